@@ -1,0 +1,11 @@
+//! netmargin: reads KiCad S-expression netlists and checks every net against the DC
+//! behaviour of the logic families on it. See `DEVELOPERS.md` for the architecture.
+//!
+//! Data flows one way: text -> [`sexpr`] (syntax tree with spans) -> [`netlist`] (the
+//! netlist model) -> [`classify`] (families, functions, pin roles) -> checks -> reports.
+
+pub mod classify;
+pub mod netlist;
+pub mod sexpr;
+pub mod source;
+pub mod values;
