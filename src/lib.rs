@@ -9,3 +9,6 @@ pub mod netlist;
 pub mod sexpr;
 pub mod source;
 pub mod values;
+pub mod diag;
+pub mod text;
+pub mod input;

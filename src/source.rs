@@ -1,1 +1,201 @@
-//! (being written)
+//! Source text shared by every layer: the file's name, its text behind an `Arc<str>` (never
+//! copied per report), byte spans, and a line-start index so that line/column lookups and
+//! miette's source rendering cost O(log n) instead of a scan from byte 0.
+
+use std::sync::Arc;
+
+use miette::{MietteError, MietteSpanContents, SourceCode, SourceSpan, SpanContents};
+
+/// A byte range in a source text. `u32` offsets keep syntax nodes small; inputs are limited
+/// to 4 GiB by the reader.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Default, serde::Serialize)]
+pub struct Span {
+    pub start: u32,
+    pub end: u32,
+}
+
+impl Span {
+    pub fn new(start: usize, end: usize) -> Span {
+        Span { start: start as u32, end: end as u32 }
+    }
+    pub fn len(self) -> usize {
+        (self.end - self.start) as usize
+    }
+    pub fn is_empty(self) -> bool {
+        self.end == self.start
+    }
+    pub fn range(self) -> std::ops::Range<usize> {
+        self.start as usize..self.end as usize
+    }
+}
+
+impl From<Span> for SourceSpan {
+    fn from(s: Span) -> SourceSpan {
+        SourceSpan::new((s.start as usize).into(), s.len())
+    }
+}
+
+/// One input file: its display name, its text and the index of its line starts.
+#[derive(Debug, Clone)]
+pub struct SourceFile {
+    name: Arc<str>,
+    text: Arc<str>,
+    line_starts: Arc<[u32]>,
+}
+
+/// A 1-based line and 1-based column (counted in characters, as editors count them).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub struct LineCol {
+    pub line: usize,
+    pub column: usize,
+}
+
+impl SourceFile {
+    pub fn new(name: impl Into<Arc<str>>, text: impl Into<Arc<str>>) -> SourceFile {
+        let text: Arc<str> = text.into();
+        let line_starts = line_starts(text.as_bytes()).into();
+        SourceFile { name: name.into(), text, line_starts }
+    }
+
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+
+    pub fn text(&self) -> &str {
+        &self.text
+    }
+
+    pub fn shared_text(&self) -> Arc<str> {
+        self.text.clone()
+    }
+
+    /// The 0-based line holding byte `offset`.
+    pub fn line_index(&self, offset: usize) -> usize {
+        match self.line_starts.binary_search(&(offset as u32)) {
+            Ok(i) => i,
+            Err(i) => i - 1,
+        }
+    }
+
+    /// 1-based line and character column of byte `offset` (clamped to the text).
+    pub fn line_col(&self, offset: usize) -> LineCol {
+        line_col_in(self.text.as_bytes(), &self.line_starts, offset)
+    }
+
+    /// The text of 1-based line `line`, without its line ending.
+    pub fn line_text(&self, line: usize) -> &str {
+        let i = line.saturating_sub(1).min(self.line_starts.len() - 1);
+        let start = self.line_starts[i] as usize;
+        let end = self.line_starts.get(i + 1).map(|&e| e as usize).unwrap_or(self.text.len());
+        self.text[start..end].trim_end_matches(['\n', '\r'])
+    }
+
+    pub fn line_count(&self) -> usize {
+        self.line_starts.len()
+    }
+}
+
+/// Byte offsets where each line starts. A line ends at `\n`, at `\r\n`, or at a lone `\r`
+/// (as miette counts them).
+pub fn line_starts(bytes: &[u8]) -> Vec<u32> {
+    let mut v = Vec::with_capacity(bytes.len() / 32 + 1);
+    v.push(0);
+    let mut i = 0;
+    while let Some(p) = memchr::memchr2(b'\n', b'\r', &bytes[i..]) {
+        let at = i + p;
+        let next = if bytes[at] == b'\r' && bytes.get(at + 1) == Some(&b'\n') { at + 2 } else { at + 1 };
+        v.push(next as u32);
+        i = next;
+        if i >= bytes.len() {
+            break;
+        }
+    }
+    v
+}
+
+/// Line and column of `offset` in `bytes`, which need not be valid UTF-8 (columns count
+/// UTF-8 lead bytes; an invalid byte counts as one column).
+pub fn line_col_in(bytes: &[u8], starts: &[u32], offset: usize) -> LineCol {
+    let offset = offset.min(bytes.len());
+    let i = match starts.binary_search(&(offset as u32)) {
+        Ok(i) => i,
+        Err(i) => i - 1,
+    };
+    let line_start = starts[i] as usize;
+    let column = bytes[line_start..offset].iter().filter(|&&b| (b & 0xC0) != 0x80).count() + 1;
+    LineCol { line: i + 1, column }
+}
+
+impl SourceCode for SourceFile {
+    fn read_span<'a>(
+        &'a self,
+        span: &SourceSpan,
+        context_lines_before: usize,
+        context_lines_after: usize,
+    ) -> Result<Box<dyn SpanContents<'a> + 'a>, MietteError> {
+        let bytes = self.text.as_bytes();
+        let start = span.offset();
+        let end = start + span.len();
+        if end > bytes.len() {
+            return Err(MietteError::OutOfBounds);
+        }
+        // Cut a window of whole lines around the span from the index, let miette's own
+        // logic work on the window, then put the window's offsets back.
+        let first_line = self.line_index(start).saturating_sub(context_lines_before);
+        let last_line = self.line_index(end.saturating_sub(1).max(start)) + context_lines_after + 1;
+        let win_start = self.line_starts[first_line] as usize;
+        let win_end = self
+            .line_starts
+            .get(last_line + 1)
+            .map(|&e| e as usize)
+            .unwrap_or(bytes.len());
+        let window = &bytes[win_start..win_end];
+        let local = SourceSpan::new((start - win_start).into(), span.len());
+        let inner = window.read_span(&local, context_lines_before, context_lines_after)?;
+        let data = inner.data();
+        let data_off = data.as_ptr() as usize - bytes.as_ptr() as usize;
+        Ok(Box::new(MietteSpanContents::new_named(
+            self.name.to_string(),
+            data,
+            SourceSpan::new(data_off.into(), data.len()),
+            inner.line() + first_line,
+            inner.column(),
+            inner.line_count() + first_line,
+        )))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn line_col_counts_characters_and_crlf() {
+        let f = SourceFile::new("t", "ab\r\nçd\ne\rf");
+        assert_eq!(f.line_col(0), LineCol { line: 1, column: 1 });
+        assert_eq!(f.line_col(4), LineCol { line: 2, column: 1 });
+        // 'd' is after the two-byte 'ç': column 2
+        assert_eq!(f.line_col(6), LineCol { line: 2, column: 2 });
+        assert_eq!(f.line_col(8), LineCol { line: 3, column: 1 });
+        assert_eq!(f.line_col(10), LineCol { line: 4, column: 1 });
+        assert_eq!(f.line_text(2), "çd");
+    }
+
+    #[test]
+    fn windowed_read_span_matches_miettes_scan() {
+        let text: String = (0..200).map(|i| format!("(line {i} \"x\")\r\n")).collect();
+        let f = SourceFile::new("t.net", text.clone());
+        for &(off, len) in &[(0usize, 1usize), (17, 5), (900, 12), (text.len() - 3, 2), (50, 0)] {
+            for ctx in 0..3 {
+                let span = SourceSpan::new(off.into(), len);
+                let ours = f.read_span(&span, ctx, ctx).unwrap();
+                let theirs = text.as_str().read_span(&span, ctx, ctx).unwrap();
+                assert_eq!(ours.data(), theirs.data(), "off {off} ctx {ctx}");
+                assert_eq!(ours.line(), theirs.line());
+                assert_eq!(ours.column(), theirs.column());
+                assert_eq!(ours.span(), theirs.span());
+                assert_eq!(ours.line_count(), theirs.line_count());
+            }
+        }
+    }
+}

@@ -1,1 +1,482 @@
-//! (being written)
+//! The S-expression reader: text in, a flat tree of lists, atoms and quoted strings out,
+//! every node keeping its byte span.
+//!
+//! * Zero-copy: atoms are slices of the input; quoted strings are unescaped on demand
+//!   ([`Tree::text`]).
+//! * Not recursive: an explicit stack, and a depth limit ([`MAX_DEPTH`]) that turns a
+//!   pathological file into a clear error instead of a stack overflow.
+//! * KiCad's lexical rules, not Lisp's: `;` is an ordinary character, atoms such as
+//!   `5ACE05B6`, `#PWR01`, `+5V`, `/D[0]`, `C:\dir\x` stay whole and are never turned into
+//!   numbers, and a backslash is an escape only inside a quoted string.
+//!
+//! This layer knows nothing of netlists beyond recognising, from the first bytes, the
+//! files people commonly feed it by mistake ([`sniff`]).
+
+use std::borrow::Cow;
+
+use crate::diag::Diag;
+use crate::source::Span;
+
+/// Lists nested deeper than this are refused. KiCad netlists nest about seven levels.
+pub const MAX_DEPTH: usize = 1000;
+
+/// The kind of a syntax node.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Kind {
+    List,
+    /// An unquoted atom.
+    Atom,
+    /// A quoted string (the span includes the quotes).
+    Str,
+}
+
+/// Index of a node in its [`Tree`].
+pub type NodeId = u32;
+
+const KIND_SHIFT: u32 = 30;
+const NEXT_MASK: u32 = (1 << KIND_SHIFT) - 1;
+
+/// 12 bytes: span and (kind, next sibling). The first child of a list is the next node in
+/// the arena when that node starts inside the list's span (the arena is in pre-order).
+#[derive(Debug, Clone, Copy)]
+struct Node {
+    start: u32,
+    end: u32,
+    next_kind: u32,
+}
+
+impl Node {
+    fn kind(self) -> Kind {
+        match self.next_kind >> KIND_SHIFT {
+            0 => Kind::List,
+            1 => Kind::Atom,
+            _ => Kind::Str,
+        }
+    }
+    fn next(self) -> u32 {
+        self.next_kind & NEXT_MASK
+    }
+}
+
+/// A parsed file. Node 0 is the root list.
+#[derive(Debug, Clone)]
+pub struct Tree<'a> {
+    text: &'a str,
+    nodes: Vec<Node>,
+}
+
+impl<'a> Tree<'a> {
+    pub fn root(&self) -> NodeId {
+        0
+    }
+    pub fn source(&self) -> &'a str {
+        self.text
+    }
+    pub fn len(&self) -> usize {
+        self.nodes.len()
+    }
+    pub fn is_empty(&self) -> bool {
+        self.nodes.is_empty()
+    }
+    pub fn kind(&self, id: NodeId) -> Kind {
+        self.nodes[id as usize].kind()
+    }
+    pub fn span(&self, id: NodeId) -> Span {
+        let n = self.nodes[id as usize];
+        Span { start: n.start, end: n.end }
+    }
+    /// The node's text exactly as written (quotes and escapes included).
+    pub fn raw(&self, id: NodeId) -> &'a str {
+        let n = self.nodes[id as usize];
+        &self.text[n.start as usize..n.end as usize]
+    }
+    pub fn is_list(&self, id: NodeId) -> bool {
+        self.kind(id) == Kind::List
+    }
+    /// The value of an atom or string (strings unescaped); `None` for a list.
+    pub fn text(&self, id: NodeId) -> Option<Cow<'a, str>> {
+        let n = self.nodes[id as usize];
+        match n.kind() {
+            Kind::List => None,
+            Kind::Atom => Some(Cow::Borrowed(&self.text[n.start as usize..n.end as usize])),
+            Kind::Str => Some(unescape(&self.text[n.start as usize + 1..n.end as usize - 1])),
+        }
+    }
+    /// The first child of a list.
+    pub fn first_child(&self, id: NodeId) -> Option<NodeId> {
+        let n = self.nodes[id as usize];
+        if n.kind() != Kind::List {
+            return None;
+        }
+        let c = id as usize + 1;
+        match self.nodes.get(c) {
+            Some(child) if child.start < n.end && child.start > n.start => Some(c as NodeId),
+            _ => None,
+        }
+    }
+    pub fn next_sibling(&self, id: NodeId) -> Option<NodeId> {
+        match self.nodes[id as usize].next() {
+            0 => None,
+            n => Some(n),
+        }
+    }
+    /// The children of a list (none for an atom).
+    pub fn children(&self, id: NodeId) -> Children<'_, 'a> {
+        Children { tree: self, next: self.first_child(id) }
+    }
+    /// The head of a list when it is an atom: `(net (code 1))` -> `net`.
+    pub fn head(&self, id: NodeId) -> Option<&'a str> {
+        let c = self.first_child(id)?;
+        match self.kind(c) {
+            Kind::Atom => Some(self.raw(c)),
+            _ => None,
+        }
+    }
+    /// Number of children.
+    pub fn child_count(&self, id: NodeId) -> usize {
+        self.children(id).count()
+    }
+    /// Re-prints the tree in a canonical layout (one space between items); reading the
+    /// result gives the same tree shape and atom texts.
+    pub fn print(&self, id: NodeId) -> String {
+        let mut out = String::new();
+        if !self.is_list(id) {
+            out.push_str(self.raw(id));
+            return out;
+        }
+        out.push('(');
+        // each entry: the next child to print in an open list
+        let mut stack: Vec<Option<NodeId>> = vec![self.first_child(id)];
+        while let Some(top) = stack.pop() {
+            match top {
+                None => out.push(')'),
+                Some(n) => {
+                    stack.push(self.next_sibling(n));
+                    if !out.ends_with('(') {
+                        out.push(' ');
+                    }
+                    if self.is_list(n) {
+                        out.push('(');
+                        stack.push(self.first_child(n));
+                    } else {
+                        out.push_str(self.raw(n));
+                    }
+                }
+            }
+        }
+        out
+    }
+}
+
+/// Iterator over a list's children.
+pub struct Children<'t, 'a> {
+    tree: &'t Tree<'a>,
+    next: Option<NodeId>,
+}
+
+impl Iterator for Children<'_, '_> {
+    type Item = NodeId;
+    fn next(&mut self) -> Option<NodeId> {
+        let cur = self.next?;
+        self.next = self.tree.next_sibling(cur);
+        Some(cur)
+    }
+}
+
+/// Undoes KiCad's string escapes: `\"`, `\\`, `\n`, `\t`, `\r`. Any other backslash is kept
+/// as written.
+pub fn unescape(s: &str) -> Cow<'_, str> {
+    if !s.contains('\\') {
+        return Cow::Borrowed(s);
+    }
+    let mut out = String::with_capacity(s.len());
+    let mut chars = s.chars();
+    while let Some(c) = chars.next() {
+        if c != '\\' {
+            out.push(c);
+            continue;
+        }
+        match chars.next() {
+            Some('"') => out.push('"'),
+            Some('\\') => out.push('\\'),
+            Some('n') => out.push('\n'),
+            Some('t') => out.push('\t'),
+            Some('r') => out.push('\r'),
+            Some(other) => {
+                out.push('\\');
+                out.push(other);
+            }
+            None => out.push('\\'),
+        }
+    }
+    Cow::Owned(out)
+}
+
+/// Byte classes for the lexer.
+const WS: u8 = 1;
+const DELIM: u8 = 2;
+static CLASS: [u8; 256] = {
+    let mut t = [0u8; 256];
+    t[b' ' as usize] = WS;
+    t[b'\t' as usize] = WS;
+    t[b'\n' as usize] = WS;
+    t[b'\r' as usize] = WS;
+    t[0x0c] = WS;
+    t[b'(' as usize] = DELIM;
+    t[b')' as usize] = DELIM;
+    t
+};
+
+/// Length of a UTF-8 byte-order mark at the start of `text` (0 or 3).
+pub fn bom_len(text: &str) -> usize {
+    if text.starts_with('\u{feff}') {
+        3
+    } else {
+        0
+    }
+}
+
+/// Recognises the inputs people commonly give by mistake, from the first bytes alone, so a
+/// 40 MB PCB file is refused before it is parsed. `None` means "looks like an
+/// S-expression; parse it".
+pub fn sniff(text: &str) -> Option<Diag> {
+    let start = bom_len(text);
+    let body = &text[start..];
+    let trimmed = body.trim_start();
+    let at = start + (body.len() - trimmed.len());
+    if trimmed.is_empty() {
+        let msg = if text.is_empty() {
+            "the file is empty".to_string()
+        } else {
+            "the file holds only white space".to_string()
+        };
+        return Some(
+            Diag::error("empty-file", msg)
+                .with_help("export the netlist again from KiCad's schematic editor (File > Export > Netlist, KiCad format)"),
+        );
+    }
+    let first_line_end = trimmed.find(['\n', '\r']).unwrap_or(trimmed.len());
+    let first_line = &trimmed[..first_line_end];
+    let span = Span::new(at, at + first_line.len().min(60));
+    if first_line.starts_with("EESchema Schematic File") {
+        return Some(
+            Diag::error("wrong-format", "this is a legacy KiCad schematic (`.sch`, \"EESchema Schematic File\"), not a netlist")
+                .at(span, "schematic header")
+                .with_help("open it in KiCad and export a netlist (File > Export > Netlist, KiCad format), then check the `.net` file"),
+        );
+    }
+    let compact: String = first_line.chars().filter(|c| !c.is_whitespace()).take(40).collect();
+    if compact.starts_with("({EESchemaNetlist") || compact.starts_with("({") {
+        return Some(
+            Diag::error(
+                "wrong-format",
+                "this is the older KiCad netlist format (\"( { EESchema Netlist Version ... }\"), not the S-expression export",
+            )
+            .at(span, "old-format header")
+            .with_help("export the netlist again in KiCad's S-expression format (Eeschema: Netlist > KiCad tab, or kicad-cli sch export netlist)"),
+        );
+    }
+    if trimmed.starts_with('{') || trimmed.starts_with('[') {
+        return Some(
+            Diag::error("wrong-format", "this looks like JSON, not a KiCad S-expression netlist")
+                .at(Span::new(at, at + 1), "a netlist starts with `(export`")
+                .with_help("give netmargin the `.net` file KiCad exports"),
+        );
+    }
+    if trimmed.starts_with(')') {
+        return Some(
+            Diag::error("stray-close", "the file begins with `)`, which closes a list that was never opened")
+                .at(Span::new(at, at + 1), "no matching `(`")
+                .with_help("the file is damaged or not a netlist: export it again from KiCad"),
+        );
+    }
+    if !trimmed.starts_with('(') {
+        return Some(
+            Diag::error("not-a-netlist", "this is not a KiCad S-expression netlist: it does not begin with `(`")
+                .at(Span::new(at, at + first_line.chars().next().map_or(1, char::len_utf8)), "expected `(export`")
+                .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"),
+        );
+    }
+    // `(kicad_sch`, `(kicad_pcb` ... : read the head atom.
+    let after = trimmed[1..].trim_start();
+    let head_at = at + (trimmed.len() - after.len());
+    let head_len = after
+        .bytes()
+        .position(|b| CLASS[b as usize] != 0 || b == b'"')
+        .unwrap_or(after.len());
+    let head = &after[..head_len];
+    let hspan = Span::new(head_at, head_at + head_len);
+    let wrong = |what: &str| {
+        Some(
+            Diag::error("wrong-format", format!("this is {what}, not a netlist"))
+                .at(hspan, "this file's kind")
+                .with_help("export a netlist from the schematic (KiCad: File > Export > Netlist, or `kicad-cli sch export netlist board.kicad_sch`) and check that"),
+        )
+    };
+    match head {
+        "kicad_sch" => wrong("a KiCad schematic (`.kicad_sch`)"),
+        "kicad_pcb" => wrong("a KiCad board layout (`.kicad_pcb`)"),
+        "kicad_symbol_lib" => wrong("a KiCad symbol library (`.kicad_sym`)"),
+        "footprint" | "module" => wrong("a KiCad footprint (`.kicad_mod`)"),
+        "fp_lib_table" | "sym_lib_table" => wrong("a KiCad library table"),
+        "kicad_wks" | "page_layout" => wrong("a KiCad drawing-sheet file"),
+        _ => None,
+    }
+}
+
+/// Reads `text` (already known to be UTF-8) into a tree. One root list is expected, with
+/// only white space around it.
+pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
+    if text.len() >= NEXT_MASK as usize {
+        return Err(Diag::error(
+            "too-large",
+            format!("the file is {} bytes; netmargin reads files up to {} bytes", text.len(), NEXT_MASK),
+        ));
+    }
+    let b = text.as_bytes();
+    let mut nodes: Vec<Node> = Vec::with_capacity(b.len() / 6 + 4);
+    // (list node index, last child index or 0)
+    let mut stack: Vec<(u32, u32)> = Vec::with_capacity(16);
+    let mut i = bom_len(text);
+    let n = b.len();
+    let mut root_done = false;
+
+    macro_rules! link {
+        ($idx:expr) => {
+            if let Some(top) = stack.last_mut() {
+                if top.1 != 0 {
+                    let prev = top.1 as usize;
+                    nodes[prev].next_kind |= $idx;
+                }
+                top.1 = $idx;
+            }
+        };
+    }
+
+    while i < n {
+        let c = b[i];
+        if CLASS[c as usize] == WS {
+            i += 1;
+            continue;
+        }
+        if root_done && c == b')' {
+            let root_end = nodes[0].end as usize;
+            return Err(Diag::error("stray-close", "a `)` closes a list that was never opened")
+                .at(Span::new(i, i + 1), "no list is open here")
+                .also(Span::new(root_end - 1, root_end), "the root list already closed here")
+                .with_help("a list above closes too early, or this `)` is extra: remove one `)`"));
+        }
+        if root_done {
+            let end = text[i..].find(char::is_whitespace).map_or(n, |p| i + p).min(i + 40);
+            return Err(Diag::error("trailing-text", "unexpected text after the end of the netlist")
+                .at(Span::new(i, end.max(i + 1).min(n)), "after the closing `)` of the root list")
+                .with_help("a netlist is one parenthesised list; the file may have been concatenated or edited by hand"));
+        }
+        match c {
+            b'(' => {
+                if stack.len() >= MAX_DEPTH {
+                    return Err(Diag::error(
+                        "too-deep",
+                        format!("lists are nested more than {MAX_DEPTH} levels deep; a KiCad netlist nests about seven"),
+                    )
+                    .at(Span::new(i, i + 1), format!("level {}", MAX_DEPTH + 1))
+                    .with_help("this file was not written by KiCad; export the netlist again"));
+                }
+                let idx = nodes.len() as u32;
+                link!(idx);
+                nodes.push(Node { start: i as u32, end: 0, next_kind: 0 });
+                stack.push((idx, 0));
+                i += 1;
+            }
+            b')' => {
+                let Some((idx, _)) = stack.pop() else {
+                    return Err(Diag::error("stray-close", "a `)` closes a list that was never opened")
+                        .at(Span::new(i, i + 1), "no matching `(`")
+                        .with_help("remove this parenthesis, or look above it for a list closed too early"));
+                };
+                nodes[idx as usize].end = (i + 1) as u32;
+                i += 1;
+                if stack.is_empty() {
+                    root_done = true;
+                }
+            }
+            b'"' => {
+                if stack.is_empty() {
+                    return Err(outside(i, i + 1));
+                }
+                let start = i;
+                let mut j = i + 1;
+                loop {
+                    match memchr::memchr2(b'"', b'\\', &b[j..]) {
+                        None => {
+                            let line_end = text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
+                            return Err(Diag::error("unterminated-string", "a quoted string is never closed")
+                                .at(Span::new(start, line_end.min(start + 60).max(start + 1)), "this string has no closing `\"`")
+                                .with_help("add the closing quote; inside a string, write a quote as \\\" and a backslash as \\\\"));
+                        }
+                        Some(p) => {
+                            let at = j + p;
+                            if b[at] == b'\\' {
+                                j = at + 2;
+                                if j > n {
+                                    j = n;
+                                }
+                            } else {
+                                j = at + 1;
+                                break;
+                            }
+                        }
+                    }
+                }
+                let idx = nodes.len() as u32;
+                link!(idx);
+                nodes.push(Node { start: start as u32, end: j as u32, next_kind: 2 << KIND_SHIFT });
+                i = j;
+            }
+            _ => {
+                let start = i;
+                let mut j = i + 1;
+                while j < n && CLASS[b[j] as usize] == 0 {
+                    j += 1;
+                }
+                if stack.is_empty() {
+                    return Err(outside(start, j));
+                }
+                let idx = nodes.len() as u32;
+                link!(idx);
+                nodes.push(Node { start: start as u32, end: j as u32, next_kind: 1 << KIND_SHIFT });
+                i = j;
+            }
+        }
+    }
+    if let Some(&(open, _)) = stack.last() {
+        let o = nodes[open as usize].start as usize;
+        let depth = stack.len();
+        let head_end = text[o..].find(|ch: char| ch.is_whitespace() || ch == ')').map_or(n, |p| o + p);
+        let head = &text[o..head_end.min(o + 40)];
+        let mut d = Diag::error(
+            "unclosed-list",
+            format!(
+                "the file ends with {depth} list{} still open; the innermost, `{head}`, is never closed",
+                if depth == 1 { "" } else { "s" }
+            ),
+        )
+        .at(Span::new(o, o + 1), "this list is never closed")
+        .with_help("the file looks truncated: export the netlist again, or add the missing `)`");
+        d = d.also(Span::new(n, n), "end of file");
+        return Err(d);
+    }
+    if nodes.is_empty() {
+        return Err(Diag::error("empty-file", "the file holds no S-expression"));
+    }
+    Ok(Tree { text, nodes })
+}
+
+fn outside(start: usize, end: usize) -> Diag {
+    Diag::error("not-a-netlist", "text outside any list: a KiCad netlist is one parenthesised list")
+        .at(Span::new(start, end), "outside the root list")
+        .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
+}
+
+#[cfg(test)]
+mod tests;

@@ -1,0 +1,148 @@
+//! The one diagnostic shape every layer produces (reader errors, netlist-model problems,
+//! and later the checks' findings) and its miette rendering.
+//!
+//! Layers build [`Diag`] values as plain data; only the reporters decide how they look.
+
+use std::fmt;
+
+use miette::{Diagnostic, LabeledSpan, SourceCode};
+use serde::Serialize;
+
+use crate::source::{SourceFile, Span};
+
+/// How serious a diagnostic is. Ordered: `Info < Warning < Error`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Severity {
+    Info,
+    Warning,
+    Error,
+}
+
+impl Severity {
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Severity::Info => "info",
+            Severity::Warning => "warning",
+            Severity::Error => "error",
+        }
+    }
+}
+
+impl fmt::Display for Severity {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.as_str())
+    }
+}
+
+/// A labelled place in the source.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Label {
+    pub span: Span,
+    pub text: String,
+    pub primary: bool,
+}
+
+/// One diagnostic: a code, a severity, a message with the numbers, places in the file, a fix.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Diag {
+    /// Stable kebab-case id, e.g. `unclosed-list` or `floating-cmos-input`.
+    pub code: String,
+    pub severity: Severity,
+    pub message: String,
+    /// The first primary label is the diagnostic's location.
+    pub labels: Vec<Label>,
+    pub help: Option<String>,
+}
+
+impl Diag {
+    pub fn new(code: impl Into<String>, severity: Severity, message: impl Into<String>) -> Diag {
+        Diag { code: code.into(), severity, message: message.into(), labels: Vec::new(), help: None }
+    }
+    pub fn error(code: impl Into<String>, message: impl Into<String>) -> Diag {
+        Diag::new(code, Severity::Error, message)
+    }
+    pub fn warning(code: impl Into<String>, message: impl Into<String>) -> Diag {
+        Diag::new(code, Severity::Warning, message)
+    }
+    pub fn info(code: impl Into<String>, message: impl Into<String>) -> Diag {
+        Diag::new(code, Severity::Info, message)
+    }
+    /// Adds the primary place.
+    pub fn at(mut self, span: Span, text: impl Into<String>) -> Diag {
+        self.labels.push(Label { span, text: text.into(), primary: true });
+        self
+    }
+    /// Adds a secondary place.
+    pub fn also(mut self, span: Span, text: impl Into<String>) -> Diag {
+        self.labels.push(Label { span, text: text.into(), primary: false });
+        self
+    }
+    pub fn with_help(mut self, help: impl Into<String>) -> Diag {
+        self.help = Some(help.into());
+        self
+    }
+    /// The primary span, if any.
+    pub fn primary_span(&self) -> Option<Span> {
+        self.labels.iter().find(|l| l.primary).or(self.labels.first()).map(|l| l.span)
+    }
+}
+
+/// A diagnostic bound to its source, ready for miette's graphical handler.
+pub struct Rendered<'a> {
+    pub diag: &'a Diag,
+    pub source: &'a SourceFile,
+}
+
+impl fmt::Debug for Rendered<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        fmt::Debug::fmt(self.diag, f)
+    }
+}
+
+impl fmt::Display for Rendered<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&crate::text::sanitize(&self.diag.message))
+    }
+}
+
+impl std::error::Error for Rendered<'_> {}
+
+impl Diagnostic for Rendered<'_> {
+    fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
+        Some(Box::new(&self.diag.code))
+    }
+    fn severity(&self) -> Option<miette::Severity> {
+        Some(match self.diag.severity {
+            Severity::Error => miette::Severity::Error,
+            Severity::Warning => miette::Severity::Warning,
+            Severity::Info => miette::Severity::Advice,
+        })
+    }
+    fn help<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
+        self.diag
+            .help
+            .as_ref()
+            .map(|h| Box::new(crate::text::sanitize(h)) as Box<dyn fmt::Display>)
+    }
+    fn source_code(&self) -> Option<&dyn SourceCode> {
+        if self.diag.labels.is_empty() {
+            None
+        } else {
+            Some(self.source)
+        }
+    }
+    fn labels(&self) -> Option<Box<dyn Iterator<Item = LabeledSpan> + '_>> {
+        if self.diag.labels.is_empty() {
+            return None;
+        }
+        Some(Box::new(self.diag.labels.iter().map(|l| {
+            let text = if l.text.is_empty() { None } else { Some(crate::text::sanitize(&l.text).into_owned()) };
+            if l.primary {
+                LabeledSpan::new_primary_with_span(text, l.span)
+            } else {
+                LabeledSpan::new_with_span(text, l.span)
+            }
+        })))
+    }
+}

@@ -1,0 +1,156 @@
+use super::*;
+use crate::source::SourceFile;
+
+/// Parses and returns (code, line, column) of the error's primary place.
+fn err_at(text: &str) -> (String, usize, usize) {
+    let d = match sniff(text) {
+        Some(d) => d,
+        None => parse(text).expect_err("expected an error"),
+    };
+    let src = SourceFile::new("t", text);
+    let span = d.primary_span().unwrap_or_default();
+    let lc = src.line_col(span.start as usize);
+    (d.code, lc.line, lc.column)
+}
+
+fn atoms(text: &str) -> Vec<String> {
+    let t = parse(text).unwrap();
+    (0..t.len() as u32).filter(|&i| !t.is_list(i)).map(|i| t.text(i).unwrap().into_owned()).collect()
+}
+
+#[test]
+fn reads_lists_atoms_and_strings_with_spans() {
+    let text = "(export (version \"E\")\n  (net (code 1) (name \"+5V\")))";
+    let t = parse(text).unwrap();
+    assert_eq!(t.head(0), Some("export"));
+    let kids: Vec<_> = t.children(0).collect();
+    assert_eq!(kids.len(), 3);
+    assert_eq!(t.raw(kids[1]), "(version \"E\")");
+    let net = kids[2];
+    assert_eq!(t.head(net), Some("net"));
+    let name = t.children(net).nth(2).unwrap();
+    let s = t.children(name).nth(1).unwrap();
+    assert_eq!(t.kind(s), Kind::Str);
+    assert_eq!(t.text(s).unwrap(), "+5V");
+    assert_eq!(&text[t.span(s).range()], "\"+5V\"");
+    assert_eq!(t.span(0), Span::new(0, text.len()));
+}
+
+#[test]
+fn kicad_atoms_stay_whole_and_are_not_numbers() {
+    assert_eq!(
+        atoms("(a 5ACE05B6 #PWR01 +5V /D[0] 00012345 1.50 C:\\dir\\x.sch ~{RST} $x 'q' a;b *:.-+{})"),
+        vec!["a", "5ACE05B6", "#PWR01", "+5V", "/D[0]", "00012345", "1.50", "C:\\dir\\x.sch", "~{RST}", "$x", "'q'", "a;b", "*:.-+{}"]
+    );
+}
+
+#[test]
+fn strings_unescape_on_demand_and_keep_parens_and_semicolons() {
+    assert_eq!(
+        atoms(r#"(a "q\"uote" "back\\slash" "(paren) ; semi" "" "line\nbreak" "C:\\x")"#),
+        vec!["a", "q\"uote", "back\\slash", "(paren) ; semi", "", "line\nbreak", "C:\\x"]
+    );
+}
+
+#[test]
+fn bom_crlf_tabs_and_non_ascii() {
+    let text = "\u{feff}(export\r\n\t(value \"10 kΩ ±1% µ Räksmörgås Ж 日本\u{a0}x\")\r\n)";
+    let t = parse(text).unwrap();
+    assert_eq!(t.head(0), Some("export"));
+    let v = t.children(0).nth(1).unwrap();
+    assert_eq!(t.text(t.children(v).nth(1).unwrap()).unwrap(), "10 kΩ ±1% µ Räksmörgås Ж 日本\u{a0}x");
+}
+
+#[test]
+fn unclosed_list_points_at_innermost_open_paren_and_end_of_file() {
+    let text = "(export\n  (nets\n    (net (code 1)\n";
+    let d = parse(text).unwrap_err();
+    assert_eq!(d.code, "unclosed-list");
+    assert!(d.message.contains("3 lists still open"), "{}", d.message);
+    let src = SourceFile::new("t", text);
+    let lc = src.line_col(d.labels[0].span.start as usize);
+    assert_eq!((lc.line, lc.column), (3, 5));
+    assert_eq!(d.labels[1].span.start as usize, text.len());
+}
+
+#[test]
+fn error_classes_with_line_and_column() {
+    assert_eq!(err_at("(export (a))\n)"), ("stray-close".into(), 2, 1));
+    assert_eq!(err_at("(export (a)))"), ("stray-close".into(), 1, 13));
+    assert_eq!(err_at(")"), ("stray-close".into(), 1, 1));
+    assert_eq!(err_at("(export\n  (value \"abc)\n)"), ("unterminated-string".into(), 2, 10));
+    assert_eq!(err_at("").0, "empty-file");
+    assert_eq!(err_at("  \n\t\r\n").0, "empty-file");
+    assert_eq!(err_at("\u{feff}").0, "empty-file");
+    assert_eq!(err_at("(kicad_sch (version 20231120))"), ("wrong-format".into(), 1, 2));
+    assert_eq!(err_at("\n(kicad_pcb (version 20221018))"), ("wrong-format".into(), 2, 2));
+    assert_eq!(err_at("EESchema Schematic File Version 4\n"), ("wrong-format".into(), 1, 1));
+    assert_eq!(err_at("( { EESchema Netlist Version 1.1 created  x }\n"), ("wrong-format".into(), 1, 1));
+    assert_eq!(err_at("{\"export\": 1}"), ("wrong-format".into(), 1, 1));
+    assert_eq!(err_at("hello"), ("not-a-netlist".into(), 1, 1));
+    assert_eq!(err_at("(a) b"), ("trailing-text".into(), 1, 5));
+}
+
+#[test]
+fn format_messages_name_the_format_and_the_fix() {
+    let d = sniff("( { EESchema Netlist Version 1.1 }").unwrap();
+    assert!(d.message.contains("older KiCad netlist format"));
+    assert!(d.help.unwrap().contains("S-expression"));
+    let d = sniff("(kicad_pcb (version 4))").unwrap();
+    assert!(d.message.contains("board layout"));
+    assert!(d.help.unwrap().contains("export a netlist"));
+}
+
+#[test]
+fn deep_nesting_is_an_error_not_a_crash() {
+    let text = "(".repeat(100_000) + &")".repeat(100_000);
+    let d = parse(&text).unwrap_err();
+    assert_eq!(d.code, "too-deep");
+    assert_eq!(d.labels[0].span.start as usize, MAX_DEPTH);
+    let ok = "(".repeat(MAX_DEPTH) + &")".repeat(MAX_DEPTH);
+    assert_eq!(parse(&ok).unwrap().len(), MAX_DEPTH);
+}
+
+#[test]
+fn print_round_trips() {
+    let text = "(export (a \"b c\" d) () (e (f (g))) h)";
+    let t = parse(text).unwrap();
+    let p = t.print(0);
+    assert_eq!(p, "(export (a \"b c\" d) () (e (f (g))) h)");
+    let t2 = parse(&p).unwrap();
+    assert_eq!(t2.print(0), p);
+}
+
+#[test]
+fn empty_list_has_no_children() {
+    let t = parse("(a () b)").unwrap();
+    let kids: Vec<_> = t.children(0).collect();
+    assert_eq!(kids.len(), 3);
+    assert_eq!(t.first_child(kids[1]), None);
+    assert_eq!(t.raw(kids[2]), "b");
+}
+
+proptest::proptest! {
+    #[test]
+    fn any_bytes_give_a_tree_or_an_error_inside_the_input(bytes in proptest::collection::vec(proptest::prelude::any::<u8>(), 0..200)) {
+        match crate::input::load("p", bytes.clone()) {
+            Err(e) => {
+                if let Some(s) = e.diag.primary_span() { proptest::prop_assert!(s.end as usize <= bytes.len()); }
+            }
+            Ok(src) => {
+                let r = sniff(src.text()).map(Err).unwrap_or_else(|| parse(src.text()).map(|_| ()));
+                if let Err(d) = r {
+                    for l in &d.labels { proptest::prop_assert!(l.span.end as usize <= bytes.len()); }
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn structured_text_parses(s in "\\((export|a)( ([a-z0-9+/~#]{1,5}|\"[^\"\\\\]{0,5}\"|\\(\\)|\\([a-z]{1,3} [0-9]{1,3}\\)))*\\)") {
+        let t = parse(&s).unwrap();
+        let printed = t.print(0);
+        let t2 = parse(&printed).unwrap();
+        proptest::prop_assert_eq!(t2.print(0), printed);
+    }
+}
