@@ -1,1 +1,250 @@
-//! (being written)
+//! The netlist model: components, library parts, nets and nodes of a KiCad netlist, in one
+//! shape for both dialects (version "D" of KiCad 4-5 and "E" of KiCad 6-9), every item
+//! keeping its span in the file.
+//!
+//! Built from the syntax tree by [`build`]. Reading never stops at a bad item: problems
+//! (a pin on two nets, a node naming a missing component, a missing field) become
+//! diagnostics in [`Netlist::diagnostics`] and reading goes on. This layer knows nothing of
+//! logic families; it only reports what the file says.
+
+mod build;
+mod pintype;
+
+use std::borrow::Cow;
+use std::collections::HashMap;
+
+pub use build::build;
+pub use pintype::PinType;
+
+use crate::diag::Diag;
+use crate::source::Span;
+
+/// A text value from the file (unescaped) with its span.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Text<'a> {
+    pub s: Cow<'a, str>,
+    pub span: Span,
+}
+
+impl Text<'_> {
+    pub fn as_str(&self) -> &str {
+        &self.s
+    }
+}
+
+impl std::fmt::Display for Text<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.s)
+    }
+}
+
+/// Which dialect the file is written in.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Dialect {
+    /// Version "D": KiCad 4 and 5 (bare atoms, `tstamp`, pin types like `BiDi`, `3state`).
+    D,
+    /// Version "E": KiCad 6 to 9 (quoted atoms, `tstamps`, node `pintype`s).
+    E,
+    /// A version netmargin does not know; read as "E" is read.
+    Other,
+}
+
+/// The `(design ...)` header.
+#[derive(Debug, Clone, Default)]
+pub struct Design<'a> {
+    pub source: Option<Text<'a>>,
+    pub date: Option<Text<'a>>,
+    pub tool: Option<Text<'a>>,
+    pub title: Option<Text<'a>>,
+    pub company: Option<Text<'a>>,
+    pub rev: Option<Text<'a>>,
+}
+
+/// `(field (name N) V)` or `(property (name N) (value V))`.
+#[derive(Debug, Clone)]
+pub struct Field<'a> {
+    pub name: Text<'a>,
+    /// KiCad 8 may write a field with no text.
+    pub value: Option<Text<'a>>,
+    pub span: Span,
+}
+
+#[derive(Debug, Clone)]
+pub struct LibSource<'a> {
+    pub lib: Option<Text<'a>>,
+    pub part: Option<Text<'a>>,
+    pub description: Option<Text<'a>>,
+}
+
+#[derive(Debug, Clone)]
+pub struct SheetPath<'a> {
+    pub names: Option<Text<'a>>,
+    pub tstamps: Option<Text<'a>>,
+}
+
+/// Where one pin of a component is connected.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Connection {
+    /// On a net with at least one other pin.
+    Net { net: usize, node: usize },
+    /// Alone on a one-node net: placed but wired to nothing (`Net-(U5-Pad4)`,
+    /// `unconnected-(U1-Pad4)`), or a label used once.
+    Alone { net: usize, node: usize },
+    /// In the part's library pins but on no net at all: with KiCad 5, a gate unit (possibly
+    /// the power unit) that was never placed.
+    Absent,
+}
+
+impl Connection {
+    pub fn net(self) -> Option<usize> {
+        match self {
+            Connection::Net { net, .. } | Connection::Alone { net, .. } => Some(net),
+            Connection::Absent => None,
+        }
+    }
+    /// True when the pin reaches no other pin.
+    pub fn is_unconnected(self) -> bool {
+        !matches!(self, Connection::Net { .. })
+    }
+}
+
+/// One pin of a placed component, merged from its library part and the nets.
+#[derive(Debug, Clone)]
+pub struct CompPin<'a> {
+    pub num: Cow<'a, str>,
+    /// The symbol's pin name (`~` or empty when unnamed), from the libpart or the node's
+    /// `pinfunction`.
+    pub name: Option<Cow<'a, str>>,
+    /// The symbol's pin type (the node's `pintype` when present, else the libpart's).
+    pub ptype: PinType,
+    /// The node's pintype carried `+no_connect`, or the symbol marks the pin no-connect.
+    pub no_connect: bool,
+    pub connection: Connection,
+    /// Index into the libpart's pins.
+    pub libpin: Option<usize>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Component<'a> {
+    pub reference: Text<'a>,
+    pub value: Option<Text<'a>>,
+    pub footprint: Option<Text<'a>>,
+    pub datasheet: Option<Text<'a>>,
+    pub fields: Vec<Field<'a>>,
+    pub properties: Vec<Field<'a>>,
+    pub libsource: Option<LibSource<'a>>,
+    pub sheetpath: Option<SheetPath<'a>>,
+    pub tstamps: Vec<Text<'a>>,
+    pub span: Span,
+    /// The resolved library part (by lib and part, or through an alias).
+    pub libpart: Option<usize>,
+    /// Every pin: the library part's, plus any the nets name that it lacks.
+    pub pins: Vec<CompPin<'a>>,
+}
+
+impl<'a> Component<'a> {
+    pub fn value_str(&self) -> &str {
+        self.value.as_ref().map_or("", |v| v.as_str())
+    }
+    /// A field or property by name (case-insensitive), fields first.
+    pub fn field(&self, name: &str) -> Option<&Field<'a>> {
+        self.fields
+            .iter()
+            .chain(self.properties.iter())
+            .find(|f| f.name.as_str().eq_ignore_ascii_case(name))
+    }
+    pub fn pin(&self, num: &str) -> Option<&CompPin<'a>> {
+        self.pins.iter().find(|p| p.num == num)
+    }
+}
+
+#[derive(Debug, Clone)]
+pub struct LibPin<'a> {
+    pub num: Text<'a>,
+    pub name: Option<Text<'a>>,
+    pub ptype: PinType,
+    pub span: Span,
+}
+
+#[derive(Debug, Clone)]
+pub struct LibPart<'a> {
+    pub lib: Option<Text<'a>>,
+    pub part: Text<'a>,
+    pub aliases: Vec<Text<'a>>,
+    pub description: Option<Text<'a>>,
+    pub docs: Option<Text<'a>>,
+    pub footprints: Vec<Text<'a>>,
+    pub fields: Vec<Field<'a>>,
+    pub pins: Vec<LibPin<'a>>,
+    pub span: Span,
+}
+
+#[derive(Debug, Clone)]
+pub struct Node<'a> {
+    pub reference: Text<'a>,
+    pub pin: Text<'a>,
+    pub pinfunction: Option<Text<'a>>,
+    pub pintype: Option<PinType>,
+    /// The node's pintype ended in `+no_connect`.
+    pub no_connect: bool,
+    pub span: Span,
+    /// The component this node names, if it exists.
+    pub component: Option<usize>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Net<'a> {
+    pub code: Option<Text<'a>>,
+    /// May be empty; may hold KiCad markup (`~{RESET}`, `A_{8}`, `{slash}`).
+    pub name: Text<'a>,
+    /// De-duplicated: a (ref, pin) appears once.
+    pub nodes: Vec<Node<'a>>,
+    pub span: Span,
+}
+
+/// A whole netlist.
+#[derive(Debug, Clone)]
+pub struct Netlist<'a> {
+    pub version: Option<Text<'a>>,
+    pub dialect: Dialect,
+    pub design: Design<'a>,
+    pub components: Vec<Component<'a>>,
+    pub libparts: Vec<LibPart<'a>>,
+    pub nets: Vec<Net<'a>>,
+    /// Problems found while reading (reading went on).
+    pub diagnostics: Vec<Diag>,
+    pub span: Span,
+    by_ref: HashMap<String, usize>,
+    by_net_name: HashMap<String, usize>,
+}
+
+/// Counts for the per-file summary.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize)]
+pub struct Summary {
+    pub parts: usize,
+    pub nets: usize,
+    pub pins: usize,
+    pub pins_on_no_net: usize,
+}
+
+impl<'a> Netlist<'a> {
+    pub fn component(&self, reference: &str) -> Option<usize> {
+        self.by_ref.get(reference).copied()
+    }
+    pub fn net_by_name(&self, name: &str) -> Option<usize> {
+        self.by_net_name.get(name).copied()
+    }
+    pub fn summary(&self) -> Summary {
+        let pins = self.components.iter().map(|c| c.pins.len()).sum();
+        let pins_on_no_net = self
+            .components
+            .iter()
+            .flat_map(|c| c.pins.iter())
+            .filter(|p| p.connection.is_unconnected())
+            .count();
+        Summary { parts: self.components.len(), nets: self.nets.len(), pins, pins_on_no_net }
+    }
+}
+
+#[cfg(test)]
+mod tests;

@@ -1,0 +1,152 @@
+use super::*;
+use crate::sexpr::parse;
+
+fn read(text: &str) -> Netlist<'_> {
+    let t = parse(text).unwrap();
+    // the model borrows the text, not the tree
+    let nl = build(&t).unwrap();
+    nl
+}
+
+const K5: &str = r#"(export (version D)
+  (design
+    (source C:\restore\board.sch)
+    (tool "Eeschema 5.1.9")
+    (sheet (number 1) (name /) (tstamps /)
+      (title_block (title "Logic board") (company) (rev B))))
+  (components
+    (comp (ref U1)
+      (value 74LS00)
+      (footprint Package_DIP:DIP-14_W7.62mm)
+      (libsource (lib 74xx) (part 74LS00) (description "quad NAND"))
+      (sheetpath (names /) (tstamps /))
+      (tstamp 5ACE05B6))
+    (comp (ref R1)
+      (value 4K7)
+      (fields (field (name "Logic family") LS))
+      (libsource (lib Device) (part R))
+      (tstamp 5ACE05B7)))
+  (libparts
+    (libpart (lib 74xx) (part 7400)
+      (aliases (alias 74LS00) (alias 74HC00))
+      (pins
+        (pin (num 1) (name ~) (type input))
+        (pin (num 2) (name ~) (type input))
+        (pin (num 3) (name ~) (type output))
+        (pin (num 7) (name GND) (type power_in))
+        (pin (num 14) (name VCC) (type power_in))))
+    (libpart (lib Device) (part R)
+      (pins (pin (num 1) (name ~) (type passive)) (pin (num 2) (name ~) (type passive)))))
+  (nets
+    (net (code 1) (name +5V)
+      (node (ref U1) (pin 14))
+      (node (ref R1) (pin 1)))
+    (net (code 2) (name /A)
+      (node (ref U1) (pin 1))
+      (node (ref U1) (pin 1))
+      (node (ref R1) (pin 2))
+      (node (ref U1) (pin 2)))
+    (net (code 3) (name "Net-(U1-Pad3)")
+      (node (ref U1) (pin 3)))))
+"#;
+
+#[test]
+fn reads_kicad5_with_alias_resolution_and_absent_pins() {
+    let nl = read(K5);
+    assert_eq!(nl.dialect, Dialect::D);
+    assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics);
+    assert_eq!(nl.design.title.as_ref().unwrap().as_str(), "Logic board");
+    assert_eq!(nl.design.source.as_ref().unwrap().as_str(), "C:\\restore\\board.sch");
+    let u1 = &nl.components[nl.component("U1").unwrap()];
+    assert_eq!(u1.libpart, Some(0), "74LS00 resolves through the alias in libpart 7400");
+    assert_eq!(u1.tstamps[0].as_str(), "5ACE05B6");
+    assert_eq!(u1.pins.len(), 5);
+    // pin 1 listed twice in /A: once
+    assert_eq!(nl.nets[1].nodes.len(), 3);
+    assert!(matches!(u1.pin("1").unwrap().connection, Connection::Net { net: 1, .. }));
+    assert!(matches!(u1.pin("3").unwrap().connection, Connection::Alone { net: 2, .. }));
+    assert_eq!(u1.pin("7").unwrap().connection, Connection::Absent);
+    assert_eq!(u1.pin("14").unwrap().ptype, PinType::PowerIn);
+    let r1 = &nl.components[nl.component("R1").unwrap()];
+    assert_eq!(r1.field("logic family").unwrap().value.as_ref().unwrap().as_str(), "LS");
+    let s = nl.summary();
+    assert_eq!(s, Summary { parts: 2, nets: 3, pins: 7, pins_on_no_net: 2 });
+}
+
+const K8: &str = r#"(export (version "E")
+  (design (source "/home/x/hobby.kicad_sch") (tool "Eeschema 8.0.4"))
+  (components
+    (comp (ref "U1")
+      (value "74HC14")
+      (footprint "Package_SO:SOIC-14")
+      (fields
+        (field (name "Footprint") "Package_SO:SOIC-14")
+        (field (name "Datasheet")))
+      (libsource (lib "74xx") (part "74HC14") (description ""))
+      (property (name "Sheetname") (value "Root"))
+      (sheetpath (names "/") (tstamps "/"))
+      (tstamps "0b1c2d3e-0000-4000-8000-000000000001")))
+  (libparts
+    (libpart (lib "74xx") (part "74HC14")
+      (pins
+        (pin (num "1") (name "~") (type "input"))
+        (pin (num "2") (name "~") (type "output"))
+        (pin (num "7") (name "GND") (type "power_in"))
+        (pin (num "14") (name "VCC") (type "power_in")))))
+  (nets
+    (net (code "1") (name "GND")
+      (node (ref "U1") (pin "7") (pinfunction "GND") (pintype "power_in")))
+    (net (code "2") (name "unconnected-(U1-Pad2)")
+      (node (ref "U1") (pin "2") (pintype "output+no_connect")))
+    (net (code "3") (name "~{RESET}")
+      (node (ref "U1") (pin "1") (pintype "input"))
+      (node (ref "U9") (pin "1") (pintype "input")))
+    (net (code "3") (name "/D[2]")
+      (node (ref "U1") (pin "1") (pintype "input")))
+    (future-section (x "y"))))
+"#;
+
+#[test]
+fn reads_kicad8_and_reports_model_problems_with_spans() {
+    let nl = read(K8);
+    assert_eq!(nl.dialect, Dialect::E);
+    let u1 = &nl.components[0];
+    let fp = u1.field("Footprint").unwrap();
+    assert_eq!(fp.value.as_ref().unwrap().as_str(), "Package_SO:SOIC-14");
+    assert!(u1.field("Datasheet").unwrap().value.is_none());
+    assert_eq!(u1.field("Sheetname").unwrap().value.as_ref().unwrap().as_str(), "Root");
+    let p2 = u1.pin("2").unwrap();
+    assert!(p2.no_connect);
+    assert_eq!(p2.ptype, PinType::Output);
+    assert_eq!(u1.pin("14").unwrap().connection, Connection::Absent);
+    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| d.code.as_str()).collect();
+    assert_eq!(codes, ["unknown-component", "duplicate-net-code", "pin-on-two-nets"]);
+    let d = &nl.diagnostics[2];
+    assert_eq!(d.message, "U1.1 is on two nets: `~{RESET}` and `/D[2]`");
+    let at = d.primary_span().unwrap();
+    assert!(K8[at.range()].starts_with("(node (ref \"U1\") (pin \"1\")"));
+    assert_eq!(&K8[nl.diagnostics[0].primary_span().unwrap().range()], "\"U9\"");
+}
+
+#[test]
+fn duplicate_refs_missing_fields_and_lists_for_atoms() {
+    let text = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74LS04"))
+    (comp (ref "U1") (value "74LS08"))
+    (comp (value "orphan"))
+    (comp (ref ("U3")) (value "x")))
+  (nets (net (code "1") (name "A") (node (ref "U1")))))"#;
+    let nl = read(text);
+    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| d.code.as_str()).collect();
+    assert_eq!(codes, ["missing-field", "bad-field", "missing-field", "missing-field", "duplicate-ref"]);
+    assert_eq!(nl.components.len(), 2);
+}
+
+#[test]
+fn a_root_that_is_not_export_is_refused() {
+    let t = parse("(foo (bar))").unwrap();
+    let e = build(&t).unwrap_err();
+    assert_eq!(e.code, "not-a-netlist");
+    assert!(e.message.contains("`(foo ...)`"));
+}
