@@ -12,3 +12,8 @@ pub mod values;
 pub mod diag;
 pub mod text;
 pub mod input;
+pub mod cli;
+pub mod pipeline;
+pub mod report;
+#[doc(hidden)]
+pub mod synth;

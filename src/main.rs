@@ -1,1 +1,66 @@
-fn main(){}
+use std::io::{IsTerminal, Write};
+use std::process::ExitCode;
+
+use clap::Parser;
+
+use netmargin::cli::{Cli, ColorChoice, Command};
+use netmargin::pipeline::{self, ReadOptions};
+use netmargin::report::human::{self, HumanStyle};
+
+fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            let code = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return ExitCode::from(code);
+        }
+    };
+    match run(cli) {
+        Ok(code) => ExitCode::from(code),
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("netmargin: {e}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn color_on(choice: ColorChoice, stream_is_tty: bool) -> bool {
+    match choice {
+        ColorChoice::Always => true,
+        ColorChoice::Never => false,
+        ColorChoice::Auto => stream_is_tty && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty()),
+    }
+}
+
+fn run(cli: Cli) -> std::io::Result<u8> {
+    let opts = ReadOptions { max_bytes: cli.global.max_bytes };
+    match cli.command {
+        Command::Check(args) => {
+            let stdout = std::io::stdout();
+            let style = HumanStyle { color: color_on(cli.global.color, stdout.is_terminal()), width: 100 };
+            let h = human::handler(style);
+            let mut out = stdout.lock();
+            let stderr = std::io::stderr();
+            let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
+            let mut code = 0u8;
+            for path in &args.paths {
+                let f = pipeline::read_file(path, &opts);
+                if f.fatal.is_some() {
+                    out.flush()?;
+                    human::write_file(&mut stderr.lock(), &eh, &f)?;
+                } else {
+                    human::write_file(&mut out, &h, &f)?;
+                }
+                if f.fatal.is_some() {
+                    code = 2;
+                } else if f.worst().is_some_and(|w| w >= args.fail_on.severity()) {
+                    code = code.max(1);
+                }
+            }
+            out.flush()?;
+            Ok(code)
+        }
+    }
+}

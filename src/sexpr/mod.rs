@@ -463,7 +463,9 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
         )
         .at(Span::new(o, o + 1), "this list is never closed")
         .with_help("the file looks truncated: export the netlist again, or add the missing `)`");
-        d = d.also(Span::new(n, n), "end of file");
+        let last = text.trim_end().len().max(o + 1);
+        let last_start = text[..last].char_indices().next_back().map_or(0, |(p, _)| p);
+        d = d.also(Span::new(last_start, last), "the file ends here");
         return Err(d);
     }
     if nodes.is_empty() {

@@ -1,0 +1,70 @@
+//! The command-line definition (clap derive). Help, man page and completions all come from
+//! these types.
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+#[derive(Debug, Parser)]
+#[command(
+    name = "netmargin",
+    version,
+    about = "Checks KiCad netlists for logic-family interface mistakes",
+    long_about = "Reads KiCad S-expression netlists (.net) and checks every net against the DC data of the \
+logic families on it: floating CMOS inputs, fan-out, TTL highs into CMOS inputs, open-collector pull-ups and more.",
+    after_help = "Examples:\n  netmargin check board.net\n  netmargin check --format short hardware/*.net\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -"
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+    #[command(flatten)]
+    pub global: Global,
+}
+
+#[derive(Debug, Args)]
+pub struct Global {
+    /// When to colour the output
+    #[arg(long, value_enum, default_value_t = ColorChoice::Auto, global = true)]
+    pub color: ColorChoice,
+    /// Refuse input files larger than this many bytes
+    #[arg(long, default_value_t = crate::input::DEFAULT_MAX_BYTES, global = true, value_name = "BYTES")]
+    pub max_bytes: u64,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ColorChoice {
+    Auto,
+    Always,
+    Never,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Read netlists and report what was found in them
+    Check(CheckArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    /// Netlist files (`-` reads standard input)
+    #[arg(required = true, value_name = "PATH")]
+    pub paths: Vec<String>,
+    /// Exit with 1 when a finding at or above this severity is reported
+    #[arg(long, value_enum, default_value_t = FailOn::Error)]
+    pub fail_on: FailOn,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum FailOn {
+    Error,
+    Warning,
+    Info,
+}
+
+impl FailOn {
+    pub fn severity(self) -> crate::diag::Severity {
+        match self {
+            FailOn::Error => crate::diag::Severity::Error,
+            FailOn::Warning => crate::diag::Severity::Warning,
+            FailOn::Info => crate::diag::Severity::Info,
+        }
+    }
+}

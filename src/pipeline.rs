@@ -1,0 +1,126 @@
+//! One file through the layers: bytes -> source -> syntax tree -> netlist model, and later
+//! classification and checks. Everything a reporter needs comes back owned, so files can be
+//! processed in parallel and printed in a stable order.
+
+use std::io::Read;
+use std::path::Path;
+
+use crate::diag::{Diag, Severity};
+use crate::input;
+use crate::netlist::{self, Summary};
+use crate::sexpr;
+use crate::source::SourceFile;
+
+/// Options that shape how a file is read.
+#[derive(Debug, Clone)]
+pub struct ReadOptions {
+    pub max_bytes: u64,
+}
+
+impl Default for ReadOptions {
+    fn default() -> Self {
+        ReadOptions { max_bytes: input::DEFAULT_MAX_BYTES }
+    }
+}
+
+/// What came of one input.
+#[derive(Debug)]
+pub struct FileOutcome {
+    /// The name shown to the user (the path as given, or `<stdin>`).
+    pub name: String,
+    /// The text, when it could be read (also for most fatal errors, to show the place).
+    pub source: Option<SourceFile>,
+    /// A problem that stopped this file (unreadable, not a netlist, malformed).
+    pub fatal: Option<Diag>,
+    /// Diagnostics from reading the model (reading went on).
+    pub diags: Vec<Diag>,
+    pub summary: Summary,
+}
+
+impl FileOutcome {
+    pub fn worst(&self) -> Option<Severity> {
+        self.fatal.as_ref().map(|d| d.severity).into_iter().chain(self.diags.iter().map(|d| d.severity)).max()
+    }
+}
+
+/// Reads the bytes of `path` (`-` is standard input).
+pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
+    let too_big = |len: u64| {
+        Diag::error(
+            "too-large",
+            format!("the file is {len} bytes, above the limit of {} bytes", opts.max_bytes),
+        )
+        .with_help("raise the limit with --max-bytes if the machine has the memory for it")
+    };
+    if path == "-" {
+        let mut buf = Vec::new();
+        let mut stdin = std::io::stdin().lock().take(opts.max_bytes + 1);
+        stdin
+            .read_to_end(&mut buf)
+            .map_err(|e| Diag::error("unreadable", format!("cannot read standard input: {e}")))?;
+        if buf.len() as u64 > opts.max_bytes {
+            return Err(too_big(buf.len() as u64));
+        }
+        return Ok(buf);
+    }
+    let p = Path::new(path);
+    let meta = std::fs::metadata(p).map_err(|e| io_diag(path, &e))?;
+    if meta.is_dir() {
+        return Err(Diag::error("unreadable", format!("`{path}` is a folder")).with_help("name the `.net` files, or a folder of them once folder walking is enabled"));
+    }
+    if meta.len() > opts.max_bytes {
+        return Err(too_big(meta.len()));
+    }
+    std::fs::read(p).map_err(|e| io_diag(path, &e))
+}
+
+fn io_diag(path: &str, e: &std::io::Error) -> Diag {
+    let what = match e.kind() {
+        std::io::ErrorKind::NotFound => "no such file".to_string(),
+        std::io::ErrorKind::PermissionDenied => "permission denied".to_string(),
+        _ => e.to_string(),
+    };
+    Diag::error("unreadable", format!("cannot read `{path}`: {what}"))
+}
+
+/// Reads and models one file.
+pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
+    let name = if path == "-" { "<stdin>".to_string() } else { path.to_string() };
+    let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default() };
+    let bytes = match read_bytes(path, opts) {
+        Ok(b) => b,
+        Err(d) => {
+            out.fatal = Some(d);
+            return out;
+        }
+    };
+    let source = match input::load(&name, bytes) {
+        Ok(s) => s,
+        Err(e) => {
+            out.fatal = Some(e.diag);
+            out.source = Some(e.source);
+            return out;
+        }
+    };
+    let result = model_text(&source);
+    out.source = Some(source);
+    match result {
+        Ok((diags, summary)) => {
+            out.diags = diags;
+            out.summary = summary;
+        }
+        Err(d) => out.fatal = Some(d),
+    }
+    out
+}
+
+/// Parses and models a text, returning the model's diagnostics and counts.
+pub fn model_text(source: &SourceFile) -> Result<(Vec<Diag>, Summary), Diag> {
+    if let Some(d) = sexpr::sniff(source.text()) {
+        return Err(d);
+    }
+    let tree = sexpr::parse(source.text())?;
+    let nl = netlist::build(&tree)?;
+    drop(tree);
+    Ok((nl.diagnostics.clone(), nl.summary()))
+}

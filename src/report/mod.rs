@@ -1,0 +1,3 @@
+//! Reporters: each turns the same outcomes into one output format, writing to `impl Write`.
+
+pub mod human;

@@ -1,0 +1,85 @@
+//! A synthetic netlist generator for benchmarks, scale tests and fuzzing seeds: a board of
+//! repeated logic cells (a 74HC00, a 74LS04, a pull-up resistor, a decoupling capacitor),
+//! written in KiCad's version "E" layout. Deterministic for a given size.
+
+use std::fmt::Write;
+
+/// Writes a netlist of about `target_bytes` bytes.
+pub fn netlist(target_bytes: usize) -> String {
+    // one cell is about 2.6 kB of components and nets
+    let cells = (target_bytes / 2600).max(1);
+    let mut s = String::with_capacity(target_bytes + 8192);
+    s.push_str("(export (version \"E\")\n  (design\n    (source \"/synthetic/board.kicad_sch\")\n    (date \"2026-01-01T00:00:00\")\n    (tool \"Eeschema 8.0.0\")\n    (sheet (number \"1\") (name \"/\") (tstamps \"/\")\n      (title_block\n        (title \"synthetic benchmark board\"))))\n  (components\n");
+    for c in 0..cells {
+        for (prefix, value, lib, fp) in [
+            ("U", "74HC00", "74HC00", "Package_DIP:DIP-14_W7.62mm"),
+            ("V", "74LS04", "74LS04", "Package_DIP:DIP-14_W7.62mm"),
+            ("R", "4K7", "R", "Resistor_THT:R_Axial_DIN0207"),
+            ("C", "100n", "C", "Capacitor_THT:C_Disc_D3.0mm"),
+        ] {
+            let _ = write!(
+                s,
+                "    (comp (ref \"{prefix}{c}\")\n      (value \"{value}\")\n      (footprint \"{fp}\")\n      (libsource (lib \"x\") (part \"{lib}\") (description \"\"))\n      (sheetpath (names \"/\") (tstamps \"/\"))\n      (tstamps \"{:08x}-0000-4000-8000-{:012x}\"))\n",
+                c, c
+            );
+        }
+    }
+    s.push_str("  )\n  (libparts\n");
+    for (part, pins) in [("74HC00", 14), ("74LS04", 14), ("R", 2), ("C", 2)] {
+        let _ = write!(s, "    (libpart (lib \"x\") (part \"{part}\")\n      (pins\n");
+        for p in 1..=pins {
+            let t = match (part, p) {
+                (_, 7) | (_, 14) if pins == 14 => "power_in",
+                ("74HC00", 3 | 6 | 8 | 11) | ("74LS04", 2 | 4 | 6 | 8 | 10 | 12) => "output",
+                _ if pins == 2 => "passive",
+                _ => "input",
+            };
+            let _ = writeln!(s, "        (pin (num \"{p}\") (name \"~\") (type \"{t}\"))");
+        }
+        s.push_str("      ))\n");
+    }
+    s.push_str("  )\n  (nets\n");
+    let mut code = 1;
+    let mut net = |s: &mut String, name: &str, nodes: &[(&str, usize, u32, &str)]| {
+        let _ = writeln!(s, "    (net (code \"{code}\") (name \"{name}\")");
+        for (p, c, pin, t) in nodes {
+            let _ = writeln!(s, "      (node (ref \"{p}{c}\") (pin \"{pin}\") (pintype \"{t}\"))");
+        }
+        s.truncate(s.len() - 1);
+        s.push_str(")\n");
+        code += 1;
+    };
+    for c in 0..cells {
+        let n = format!("/cell{c}/A");
+        net(&mut s, &n, &[("V", c, 2, "output"), ("U", c, 1, "input"), ("U", c, 2, "input"), ("R", c, 2, "passive")]);
+        let n = format!("/cell{c}/Y");
+        net(&mut s, &n, &[("U", c, 3, "output"), ("V", c, 1, "input"), ("U", c, 4, "input"), ("U", c, 5, "input")]);
+        let n = format!("Net-(U{c}-Pad6)");
+        net(&mut s, &n, &[("U", c, 6, "output"), ("V", c, 3, "input")]);
+    }
+    let mut vcc: Vec<(&str, usize, u32, &str)> = Vec::new();
+    let mut gnd: Vec<(&str, usize, u32, &str)> = Vec::new();
+    for c in 0..cells {
+        vcc.extend([("U", c, 14, "power_in"), ("V", c, 14, "power_in"), ("R", c, 1, "passive"), ("C", c, 1, "passive")]);
+        gnd.extend([("U", c, 7, "power_in"), ("V", c, 7, "power_in"), ("C", c, 2, "passive")]);
+    }
+    net(&mut s, "+5V", &vcc);
+    net(&mut s, "GND", &gnd);
+    s.push_str("  )\n)\n");
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn generated_netlist_reads_cleanly_at_about_the_size_asked() {
+        let text = super::netlist(200_000);
+        assert!(text.len() > 150_000 && text.len() < 260_000, "{}", text.len());
+        let tree = crate::sexpr::parse(&text).unwrap();
+        let nl = crate::netlist::build(&tree).unwrap();
+        assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
+        let s = nl.summary();
+        assert_eq!(s.parts % 4, 0);
+        assert_eq!(s.pins, s.parts / 4 * 32);
+    }
+}
