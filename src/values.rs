@@ -393,7 +393,7 @@ fn is_not_fitted_phrase(trimmed: &str) -> bool {
 
 /// An ohm unit written as a word or symbol.
 fn ohm_unit_len(s: &str) -> Option<usize> {
-    for sym in ['Ω', 'Ω'] {
+    for sym in ['\u{3a9}', '\u{2126}'] {
         if s.starts_with(sym) {
             return Some(sym.len_utf8());
         }
