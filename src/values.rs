@@ -32,8 +32,8 @@
 //!   form `L` (`1L5`). `meg`, `Meg` and `MEG` are mega, as in SPICE.
 //! * `E` between digits is the ohm letter when written uppercase (`4E7` = 4.7 Ohm)
 //!   and an exponent when the mantissa has a decimal point or the exponent a sign
-//!   (`4.7e3`, `1e-3`, `1E+6`). A lowercase `e` between plain digits (`4e7`) is
-//!   rejected: it reads either way.
+//!   (`4.7e3`, `1e-3`, `1E+6`). So `1E3` is 1.3 Ohm, not 1000. A lowercase `e`
+//!   between plain digits (`4e7`, `1e3`) is rejected: it reads either way.
 //! * A comma before exactly three digits (`1,000`, `2,200k`) is rejected: it is a
 //!   thousands separator in some countries and a decimal comma in others.
 //! * In a network, `10x10` is rejected: either number could be the element count.
@@ -361,7 +361,7 @@ fn split_fields(trimmed: &str, text: &str) -> Result<Vec<String>, ValueError> {
     let mut fields: Vec<String> = Vec::new();
     for f in raw {
         match fields.last_mut() {
-            Some(last) if is_unit_word(&f) || f == "%" => last.push_str(&f),
+            Some(last) if is_unit_word(&f) => last.push_str(&f),
             _ => fields.push(f),
         }
     }

@@ -166,7 +166,8 @@ fn tolerance_and_power_after_the_value() {
 
 #[test]
 fn unreadable_values_are_reported() {
-    let rejected: &[(&str, fn(&ValueError) -> bool)] = &[
+    type Expect = fn(&ValueError) -> bool;
+    let rejected: &[(&str, Expect)] = &[
         ("DNP", |e| matches!(e, ValueError::NotFitted(_))),
         ("NF", |e| matches!(e, ValueError::NotFitted(_))),
         ("do not fit", |e| matches!(e, ValueError::NotFitted(_))),
