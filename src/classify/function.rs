@@ -20,7 +20,7 @@
 //! ```
 //!
 //! A function may copy another's pins with `like = "00"` (then `pins` is omitted, and
-//! `package_pins` may be too); `outputs = "open-collector"` then turns the copied push-pull
+//! `package_pins` may be too; `like_series = "4000"` copies from the other series); `outputs = "open-collector"` then turns the copied push-pull
 //! outputs into that role (the 7403 is a 7400 with open-collector outputs). A three-state or
 //! bidirectional pin names its enables: `enable = [1], enable_active = "low"`. `unit = "common"`
 //! (or no unit) marks a pin shared by the whole device.
@@ -258,6 +258,7 @@ struct RawFunction {
     families: Option<Vec<String>>,
     source: String,
     like: Option<Spanned<String>>,
+    like_series: Option<Spanned<String>>,
     outputs: Option<Spanned<String>>,
     pins: Option<Spanned<Vec<Spanned<RawPin>>>>,
     #[serde(default)]
@@ -316,6 +317,8 @@ fn role_from(s: &Spanned<String>, errors: &mut Vec<RuleError>) -> Option<PinRole
 struct Pending {
     func: Function,
     like: Option<Spanned<String>>,
+    /// The series `like` names (the function's own unless `like_series` says otherwise).
+    like_series: Series,
     outputs: Option<PinRole>,
     package_pins_given: Option<Spanned<u32>>,
 }
@@ -369,6 +372,25 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
             }
         };
 
+        let like_series = match rf.like_series.as_ref().map(|s| s.get_ref().as_str()) {
+            None => series,
+            Some("74") => Series::S74,
+            Some("4000") => Series::S4000,
+            Some(other) => {
+                let s = rf.like_series.as_ref().expect("matched Some above");
+                errors.push(RuleError::new(
+                    Some(s.span()),
+                    format!("unknown like_series `{other}`: expected \"74\" or \"4000\""),
+                ));
+                series
+            }
+        };
+        if let (Some(s), None) = (&rf.like_series, &rf.like) {
+            errors.push(RuleError::new(
+                Some(s.span()),
+                format!("function `{id}`: `like_series` applies only with `like`"),
+            ));
+        }
         let outputs = rf.outputs.as_ref().and_then(|o| role_from(o, &mut errors));
         if let (Some(o), None) = (&rf.outputs, &rf.like) {
             errors.push(RuleError::new(
@@ -432,6 +454,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
                 span,
             },
             like: rf.like,
+            like_series,
             outputs,
             package_pins_given: rf.package_pins,
         });
@@ -447,13 +470,13 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
     for (i, p) in pending.iter().enumerate() {
         let Some(like) = &p.like else { continue };
         let target = like.get_ref().trim().to_ascii_uppercase();
-        match by_key.get(&(p.func.series, target.clone())) {
+        match by_key.get(&(p.like_series, target.clone())) {
             None => errors.push(RuleError::new(
                 Some(like.span()),
                 format!(
                     "function `{}` is `like` `{target}`, which is not a {}-series function here",
                     p.func.id,
-                    p.func.series.as_str()
+                    p.like_series.as_str()
                 ),
             )),
             Some(&j) if pending[j].like.is_some() => errors.push(RuleError::new(
