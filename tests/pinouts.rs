@@ -1,0 +1,955 @@
+//! The built-in function table against published pinouts, its structural invariants, and the
+//! loader's errors. Expected pinouts are written out here from the named data sheets, not read
+//! back from the table.
+
+use netmargin::classify::function::{Function, FunctionTable, Series, BUILTIN_TEXT};
+use netmargin::classify::PinRole;
+use PinRole::*;
+
+fn table() -> FunctionTable {
+    match FunctionTable::parse(BUILTIN_TEXT) {
+        Ok(t) => t,
+        Err(e) => panic!("built-in table does not load: {e:#?}"),
+    }
+}
+
+fn func<'a>(t: &'a FunctionTable, series: Series, id: &str) -> &'a Function {
+    t.get(series, id)
+        .unwrap_or_else(|| panic!("function {id} missing"))
+}
+
+/// Checks each (pin, role) and that the package has `pins` pins.
+fn expect_roles(
+    t: &FunctionTable,
+    series: Series,
+    id: &str,
+    pins: u32,
+    expected: &[(u32, PinRole)],
+) {
+    let f = func(t, series, id);
+    assert_eq!(f.package_pins, pins, "{id}: package pins");
+    for &(pin, role) in expected {
+        let p = f
+            .pin(&pin.to_string())
+            .unwrap_or_else(|| panic!("{id}: pin {pin} missing"));
+        assert_eq!(p.role, role, "{id}: pin {pin} ({}) role", p.name);
+    }
+}
+
+/// Checks that the listed pins form one unit (gate, flip-flop, switch).
+fn same_unit(t: &FunctionTable, series: Series, id: &str, pins: &[u32]) {
+    let f = func(t, series, id);
+    let units: Vec<Option<String>> = pins
+        .iter()
+        .map(|p| f.pin(&p.to_string()).and_then(|d| d.unit.clone()))
+        .collect();
+    assert!(units[0].is_some(), "{id}: pin {} has no unit", pins[0]);
+    assert!(
+        units.iter().all(|u| u == &units[0]),
+        "{id}: pins {pins:?} are not one unit: {units:?}"
+    );
+}
+
+const S74: Series = Series::S74;
+const S40: Series = Series::S4000;
+
+// ---------------------------------------------------------------------------------------
+// Pinouts against data sheets (source named beside each).
+
+#[test]
+fn gates_quad_2_input() {
+    let t = table();
+    // TI SCHS118D (CD74HC08) pin functions: 1A=1 1B=2 1Y=3 2A=4 2B=5 2Y=6 GND=7 3Y=8 3A=9 3B=10
+    // 4Y=11 4A=12 4B=13 VCC=14
+    let q = [
+        (1, Input),
+        (2, Input),
+        (3, PushPull),
+        (4, Input),
+        (5, Input),
+        (6, PushPull),
+        (7, Ground),
+        (8, PushPull),
+        (9, Input),
+        (10, Input),
+        (11, PushPull),
+        (12, Input),
+        (13, Input),
+        (14, Supply),
+    ];
+    expect_roles(&t, S74, "08", 14, &q);
+    // TI SCLS229L (SN74AHCT00): 1A=1 1B=2 1Y=3 2A=4 2B=5 2Y=6 GND=7 VCC=14 (the rest as the '08)
+    expect_roles(&t, S74, "00", 14, &q);
+    same_unit(&t, S74, "00", &[1, 2, 3]);
+    same_unit(&t, S74, "00", &[8, 9, 10]);
+    same_unit(&t, S74, "00", &[11, 12, 13]);
+}
+
+#[test]
+fn hex_schmitt_inverter_14() {
+    let t = table();
+    // TI SCHS402 (CD74HCT14): 1A=1 1Y=2 2A=3 2Y=4 3A=5 3Y=6 GND=7 4Y=8 4A=9 5Y=10 5A=11 6Y=12
+    // 6A=13 VCC=14
+    let s = SchmittInput;
+    expect_roles(
+        &t,
+        S74,
+        "14",
+        14,
+        &[
+            (1, s),
+            (2, PushPull),
+            (3, s),
+            (4, PushPull),
+            (5, s),
+            (6, PushPull),
+            (7, Ground),
+            (8, PushPull),
+            (9, s),
+            (10, PushPull),
+            (11, s),
+            (12, PushPull),
+            (13, s),
+            (14, Supply),
+        ],
+    );
+    same_unit(&t, S74, "14", &[9, 8]);
+    same_unit(&t, S74, "14", &[13, 12]);
+}
+
+#[test]
+fn dual_4_input_20_and_21() {
+    let t = table();
+    // TI SCLS791A (SN74HCS20) and SCHS418 (CD74HCT21): 1A=1 1B=2 NC=3 1C=4 1D=5 1Y=6 GND=7 2Y=8
+    // 2A=9 2B=10 NC=11 2C=12 2D=13 VCC=14
+    let e = [
+        (1, Input),
+        (2, Input),
+        (3, NoConnect),
+        (4, Input),
+        (5, Input),
+        (6, PushPull),
+        (7, Ground),
+        (8, PushPull),
+        (9, Input),
+        (10, Input),
+        (11, NoConnect),
+        (12, Input),
+        (13, Input),
+        (14, Supply),
+    ];
+    expect_roles(&t, S74, "20", 14, &e);
+    expect_roles(&t, S74, "21", 14, &e);
+    same_unit(&t, S74, "20", &[1, 2, 4, 5, 6]);
+    same_unit(&t, S74, "20", &[8, 9, 10, 12, 13]);
+}
+
+#[test]
+fn dual_d_flip_flop_74() {
+    let t = table();
+    // TI SN74AHC74 (JAJSQP0N) and SN74AC74 (SCAS521): 1CLR=1 1D=2 1CLK=3 1PRE=4 1Q=5 1Q~=6 GND=7
+    // 2Q~=8 2Q=9 2PRE=10 2CLK=11 2D=12 2CLR=13 VCC=14
+    expect_roles(
+        &t,
+        S74,
+        "74",
+        14,
+        &[
+            (1, Input),
+            (2, Input),
+            (3, Input),
+            (4, Input),
+            (5, PushPull),
+            (6, PushPull),
+            (7, Ground),
+            (8, PushPull),
+            (9, PushPull),
+            (10, Input),
+            (11, Input),
+            (12, Input),
+            (13, Input),
+            (14, Supply),
+        ],
+    );
+    same_unit(&t, S74, "74", &[1, 2, 3, 4, 5, 6]);
+    same_unit(&t, S74, "74", &[8, 9, 10, 11, 12, 13]);
+}
+
+#[test]
+fn decoder_138() {
+    let t = table();
+    // TI SCLS266N (SN74AHCT138): A=1 B=2 C=3 G2A=4 G2B=5 G1=6 Y7=7 GND=8 Y6..Y0=9..15 VCC=16
+    let mut e = vec![
+        (1, Input),
+        (2, Input),
+        (3, Input),
+        (4, Input),
+        (5, Input),
+        (6, Input),
+        (7, PushPull),
+        (8, Ground),
+    ];
+    e.extend((9..=15).map(|p| (p, PushPull)));
+    e.push((16, Supply));
+    expect_roles(&t, S74, "138", 16, &e);
+    let f = func(&t, S74, "138");
+    assert!(f.pin("15").unwrap().name.contains("Y0"));
+    assert!(f.pin("7").unwrap().name.contains("Y7"));
+}
+
+#[test]
+fn transceiver_245() {
+    let t = table();
+    // TI SCLS020H (SN74HCT245): DIR=1 A1..A8=2..9 GND=10 B8..B1=11..18 OE~=19 VCC=20
+    let mut e = vec![(1, Input), (10, Ground), (19, Input), (20, Supply)];
+    e.extend((2..=9).map(|p| (p, Bidirectional)));
+    e.extend((11..=18).map(|p| (p, Bidirectional)));
+    expect_roles(&t, S74, "245", 20, &e);
+    let f = func(&t, S74, "245");
+    let a1 = f.pin("2").unwrap();
+    assert!(a1.enable.contains(&"19".to_string()) && a1.enable_active_low);
+    assert_eq!(f.pin("18").unwrap().name, "B1");
+    same_unit(&t, S74, "245", &[2, 18]);
+    same_unit(&t, S74, "245", &[9, 11]);
+}
+
+#[test]
+fn counter_161() {
+    let t = table();
+    // TI CD74AC161 (JAJSUO2D): CLR=1 CLK=2 A..D=3..6 ENP=7 GND=8 LOAD=9 ENT=10 QD=11 QC=12 QB=13
+    // QA=14 RCO=15 VCC=16
+    let e = [
+        (1, Input),
+        (2, Input),
+        (3, Input),
+        (4, Input),
+        (5, Input),
+        (6, Input),
+        (7, Input),
+        (8, Ground),
+        (9, Input),
+        (10, Input),
+        (11, PushPull),
+        (12, PushPull),
+        (13, PushPull),
+        (14, PushPull),
+        (15, PushPull),
+        (16, Supply),
+    ];
+    expect_roles(&t, S74, "161", 16, &e);
+    // counter clear and load are plain inputs (common practice)
+    assert_eq!(func(&t, S74, "163").pin("1").unwrap().role, Input);
+}
+
+#[test]
+fn shift_register_595() {
+    let t = table();
+    // TI SN74LV594A (JAJSPE6K), the same package arrangement: QB..QH=1..7 GND=8 QH'=9 SRCLR=10
+    // SRCLK=11 RCLK=12 SER=14 QA=15 VCC=16; on the '595 pin 13 is OE~ (from memory)
+    let f = func(&t, S74, "595");
+    for p in (1..=7).chain([15]) {
+        let d = f.pin(&p.to_string()).unwrap();
+        assert_eq!(d.role, ThreeState, "pin {p}");
+        assert_eq!(d.enable, vec!["13".to_string()]);
+        assert!(d.enable_active_low);
+    }
+    expect_roles(
+        &t,
+        S74,
+        "595",
+        16,
+        &[
+            (8, Ground),
+            (9, PushPull),
+            (10, Input),
+            (11, Input),
+            (12, Input),
+            (13, Input),
+            (14, Input),
+            (16, Supply),
+        ],
+    );
+}
+
+#[test]
+fn cd4027_jk() {
+    let t = table();
+    // TI SCHS032D (CD4027B): Q2=1 Q2~=2 CLOCK2=3 RESET2=4 K2=5 J2=6 SET2=7 VSS=8 SET1=9 J1=10
+    // K1=11 RESET1=12 CLOCK1=13 Q1~=14 Q1=15 VDD=16
+    expect_roles(
+        &t,
+        S40,
+        "4027",
+        16,
+        &[
+            (1, PushPull),
+            (2, PushPull),
+            (3, Input),
+            (4, Input),
+            (5, Input),
+            (6, Input),
+            (7, Input),
+            (8, Ground),
+            (9, Input),
+            (10, Input),
+            (11, Input),
+            (12, Input),
+            (13, Input),
+            (14, PushPull),
+            (15, PushPull),
+            (16, Supply),
+        ],
+    );
+    same_unit(&t, S40, "4027", &[1, 2, 3, 4, 5, 6, 7]);
+    same_unit(&t, S40, "4027", &[9, 10, 11, 12, 13, 14, 15]);
+}
+
+#[test]
+fn analogue_multiplexers_4051_4052_4053() {
+    let t = table();
+    // TI SCHS047 (CD4051B): CH4=1 CH6=2 COM=3 CH7=4 CH5=5 INH=6 VEE=7 VSS=8 C=9 B=10 A=11 CH3=12
+    // CH0=13 CH1=14 CH2=15 VDD=16
+    let a = Analog;
+    expect_roles(
+        &t,
+        S40,
+        "4051",
+        16,
+        &[
+            (1, a),
+            (2, a),
+            (3, a),
+            (4, a),
+            (5, a),
+            (6, Input),
+            (7, Ground),
+            (8, Ground),
+            (9, Input),
+            (10, Input),
+            (11, Input),
+            (12, a),
+            (13, a),
+            (14, a),
+            (15, a),
+            (16, Supply),
+        ],
+    );
+    assert_eq!(func(&t, S40, "4051").pin("7").unwrap().name, "VEE");
+    // TI SCHS047 (CD4052B): Y0=1 Y2=2 YCOM=3 Y3=4 Y1=5 INH=6 VEE=7 VSS=8 B=9 A=10 X3=11
+    expect_roles(
+        &t,
+        S40,
+        "4052",
+        16,
+        &[
+            (1, a),
+            (2, a),
+            (3, a),
+            (4, a),
+            (5, a),
+            (6, Input),
+            (7, Ground),
+            (8, Ground),
+            (9, Input),
+            (10, Input),
+            (11, a),
+        ],
+    );
+    // TI SCHS354C (CD4053B): BY=1 BX=2 CY=3 CCOM=4 CX=5 INH=6 VEE=7 VSS=8 C=9 B=10 A=11
+    expect_roles(
+        &t,
+        S40,
+        "4053",
+        16,
+        &[
+            (1, a),
+            (2, a),
+            (3, a),
+            (4, a),
+            (5, a),
+            (6, Input),
+            (7, Ground),
+            (8, Ground),
+            (9, Input),
+            (10, Input),
+            (11, Input),
+        ],
+    );
+    assert_eq!(func(&t, S40, "4053").pin("7").unwrap().name, "VEE");
+    // the 74HC4051 copies the CD4051B pinout
+    let hc = func(&t, S74, "4051");
+    assert_eq!(hc.pins, func(&t, S40, "4051").pins);
+    assert!(hc.available_in("74HC") && !hc.available_in("74LS"));
+}
+
+#[test]
+fn bilateral_switch_4066() {
+    let t = table();
+    // TI SN74HC4066 (JAJSGT1K), the CD4066B arrangement: 1A=1 1B=2 2B=3 2A=4 2C=5 3C=6 GND=7 3A=8
+    // 3B=9 4B=10 4A=11 4C=12 1C=13 VCC=14 (C = control)
+    let a = Analog;
+    expect_roles(
+        &t,
+        S40,
+        "4066",
+        14,
+        &[
+            (1, a),
+            (2, a),
+            (3, a),
+            (4, a),
+            (5, Input),
+            (6, Input),
+            (7, Ground),
+            (8, a),
+            (9, a),
+            (10, a),
+            (11, a),
+            (12, Input),
+            (13, Input),
+            (14, Supply),
+        ],
+    );
+    same_unit(&t, S40, "4066", &[1, 2, 13]);
+    same_unit(&t, S40, "4066", &[3, 4, 5]);
+    same_unit(&t, S40, "4066", &[8, 9, 6]);
+    same_unit(&t, S40, "4066", &[10, 11, 12]);
+}
+
+#[test]
+fn triple_3_input_4023() {
+    let t = table();
+    // CD4023B pin table (secondary page, matches memory): gate 1 = 1,2,8 -> 9; gate 2 = 3,4,5 -> 6;
+    // gate 3 = 11,12,13 -> 10; VSS=7 VDD=14
+    same_unit(&t, S40, "4023", &[1, 2, 8, 9]);
+    same_unit(&t, S40, "4023", &[3, 4, 5, 6]);
+    same_unit(&t, S40, "4023", &[11, 12, 13, 10]);
+    expect_roles(
+        &t,
+        S40,
+        "4023",
+        14,
+        &[
+            (9, PushPull),
+            (6, PushPull),
+            (10, PushPull),
+            (7, Ground),
+            (14, Supply),
+            (8, Input),
+        ],
+    );
+}
+
+// From memory (no data sheet text at hand): common pinouts every bench technician knows.
+#[test]
+fn common_pinouts_from_memory() {
+    let t = table();
+    // 7402 (from memory): 1Y=1 1A=2 1B=3 ... GND=7, 3A=8 3B=9 3Y=10, 4A=11 4B=12 4Y=13, VCC=14
+    expect_roles(
+        &t,
+        S74,
+        "02",
+        14,
+        &[
+            (1, PushPull),
+            (2, Input),
+            (3, Input),
+            (10, PushPull),
+            (13, PushPull),
+            (7, Ground),
+            (14, Supply),
+        ],
+    );
+    same_unit(&t, S74, "02", &[1, 2, 3]);
+    same_unit(&t, S74, "02", &[11, 12, 13]);
+    // 7410 (from memory): 1A=1 1B=2 1C=13 1Y=12; 2A..2C=3..5 2Y=6; 3Y=8 3A..3C=9..11
+    same_unit(&t, S74, "10", &[1, 2, 13, 12]);
+    same_unit(&t, S74, "10", &[3, 4, 5, 6]);
+    same_unit(&t, S74, "10", &[9, 10, 11, 8]);
+    // 74244 (from memory): 1OE~=1 2OE~=19; 1A1=2 -> 1Y1=18; 2A1=11 -> 2Y1=9; GND=10 VCC=20
+    let f = func(&t, S74, "244");
+    assert_eq!(f.pin("18").unwrap().enable, vec!["1".to_string()]);
+    assert_eq!(f.pin("9").unwrap().enable, vec!["19".to_string()]);
+    same_unit(&t, S74, "244", &[2, 18]);
+    same_unit(&t, S74, "244", &[11, 9]);
+    // 74241 (from memory): the second group's enable is active high
+    assert!(!func(&t, S74, "241").pin("9").unwrap().enable_active_low);
+    assert!(func(&t, S74, "241").pin("18").unwrap().enable_active_low);
+    // 74373/374 (from memory): OE~=1 LE/CLK=11 GND=10 VCC=20, 1D=3 -> 1Q=2, 8D=18 -> 8Q=19
+    for id in ["373", "374"] {
+        expect_roles(
+            &t,
+            S74,
+            id,
+            20,
+            &[
+                (1, Input),
+                (11, Input),
+                (2, ThreeState),
+                (19, ThreeState),
+                (3, Input),
+                (18, Input),
+                (10, Ground),
+                (20, Supply),
+            ],
+        );
+        same_unit(&t, S74, id, &[3, 2]);
+    }
+    // 74573/574 (from memory): flow-through, 1D=2 -> 1Q=19
+    same_unit(&t, S74, "574", &[2, 19]);
+    // 74125 (from memory): 1OE~=1 1A=2 1Y=3 ... 4OE~=13 4A=12 4Y=11
+    let f = func(&t, S74, "125");
+    assert_eq!(f.pin("11").unwrap().enable, vec!["13".to_string()]);
+    assert!(f.pin("11").unwrap().enable_active_low);
+    assert!(!func(&t, S74, "126").pin("11").unwrap().enable_active_low);
+    // CD4013B (from memory): Q1=1 Q1~=2 CLK1=3 RESET1=4 D1=5 SET1=6 VSS=7 ... VDD=14
+    expect_roles(
+        &t,
+        S40,
+        "4013",
+        14,
+        &[
+            (1, PushPull),
+            (2, PushPull),
+            (3, Input),
+            (4, Input),
+            (5, Input),
+            (6, Input),
+            (7, Ground),
+            (13, PushPull),
+            (14, Supply),
+        ],
+    );
+    // CD4017B (from memory): CO=12 CLK INH=13 CLK=14 RESET=15 VSS=8 VDD=16; Q0=3
+    expect_roles(
+        &t,
+        S40,
+        "4017",
+        16,
+        &[
+            (3, PushPull),
+            (12, PushPull),
+            (13, Input),
+            (14, Input),
+            (15, Input),
+            (8, Ground),
+            (16, Supply),
+        ],
+    );
+    // CD4060B (from memory): oscillator pins 9, 10, 11 are analogue; RESET=12
+    expect_roles(
+        &t,
+        S40,
+        "4060",
+        16,
+        &[
+            (9, Analog),
+            (10, Analog),
+            (11, Analog),
+            (12, Input),
+            (8, Ground),
+            (16, Supply),
+        ],
+    );
+    // CD4046B (from memory): C1 on 6/7, VCO in 9, R1 11, R2 12 analogue; VCO out 4, comparator in 3
+    expect_roles(
+        &t,
+        S40,
+        "4046",
+        16,
+        &[
+            (6, Analog),
+            (7, Analog),
+            (9, Analog),
+            (11, Analog),
+            (12, Analog),
+            (4, PushPull),
+            (3, Input),
+            (5, Input),
+            (8, Ground),
+            (16, Supply),
+        ],
+    );
+    // CD4094B (from memory): Q1..Q4 = 4..7 three-state, enabled by OE=15 (active high)
+    let f = func(&t, S40, "4094");
+    assert_eq!(f.pin("4").unwrap().enable, vec!["15".to_string()]);
+    assert!(!f.pin("4").unwrap().enable_active_low);
+    assert_eq!(f.pin("9").unwrap().role, PushPull);
+}
+
+#[test]
+fn schmitt_inputs() {
+    let t = table();
+    for (s, id, pin) in [
+        (S74, "14", 1),
+        (S74, "132", 1),
+        (S74, "132", 13),
+        (S40, "4093", 1),
+        (S40, "40106", 1),
+        (S40, "4584", 13),
+        (S74, "121", 5),
+        (S74, "221", 2),
+        (S74, "221", 10),
+    ] {
+        assert_eq!(
+            func(&t, s, id).pin(&pin.to_string()).unwrap().role,
+            SchmittInput,
+            "{id} pin {pin}"
+        );
+    }
+    // the 74221's A inputs are not Schmitt (from memory)
+    assert_eq!(func(&t, S74, "221").pin("1").unwrap().role, Input);
+}
+
+#[test]
+fn special_pins() {
+    let t = table();
+    // 7447 BI~/RBO~ (pin 4) has an internal pull-up and doubles as an output (from memory)
+    let f = func(&t, S74, "47");
+    assert_eq!(f.pin("4").unwrap().role, PulledUpIo);
+    assert_eq!(f.pin("13").unwrap().role, OpenCollector); // segment a
+                                                          // 74121 RINT (pin 9), CEXT (10), REXT/CEXT (11) are analogue (from memory)
+    let f = func(&t, S74, "121");
+    for p in ["9", "10", "11"] {
+        assert_eq!(f.pin(p).unwrap().role, Analog, "121 pin {p}");
+    }
+    // CD4049UB/4050B (from memory): VDD=1, VSS=8, pins 13 and 16 not connected
+    for id in ["4049", "4050"] {
+        expect_roles(
+            &t,
+            S40,
+            id,
+            16,
+            &[
+                (1, Supply),
+                (8, Ground),
+                (13, NoConnect),
+                (16, NoConnect),
+                (3, Input),
+                (2, PushPull),
+            ],
+        );
+        same_unit(&t, S40, id, &[3, 2]);
+    }
+    // 74181 A=B (pin 14) is open collector (from memory)
+    assert_eq!(func(&t, S74, "181").pin("14").unwrap().role, OpenCollector);
+}
+
+// ---------------------------------------------------------------------------------------
+// Supply pins not on the corners: these matter to the power checks.
+
+#[test]
+fn non_corner_supply_pins() {
+    let t = table();
+    let cases: &[(&str, u32, &str, &str, &str)] = &[
+        // (id, package pins, VCC pin, GND pin, source)
+        ("73", 14, "4", "11", "from memory (SN7473: VCC 4, GND 11)"),
+        (
+            "75",
+            16,
+            "5",
+            "12",
+            "secondary 74LS75 pin tables: VCC 5, GND 12",
+        ),
+        (
+            "76",
+            16,
+            "5",
+            "13",
+            "secondary 74LS76 pin tables: VCC 5, GND 13",
+        ),
+        (
+            "90",
+            14,
+            "5",
+            "10",
+            "secondary 7490 pin tables: VCC 5, GND 10",
+        ),
+        ("92", 14, "5", "10", "from memory (7492: VCC 5, GND 10)"),
+        (
+            "93",
+            14,
+            "5",
+            "10",
+            "secondary 74LS93 pin tables: VCC 5, GND 10",
+        ),
+        ("83", 16, "5", "12", "from memory (7483: VCC 5, GND 12)"),
+    ];
+    for &(id, n, vcc, gnd, src) in cases {
+        let f = func(&t, S74, id);
+        assert_eq!(f.package_pins, n, "{id} ({src})");
+        let s: Vec<&str> = f.supply_pins().map(|p| p.pin.as_str()).collect();
+        let g: Vec<&str> = f.ground_pins().map(|p| p.pin.as_str()).collect();
+        assert_eq!(s, vec![vcc], "{id} supply ({src})");
+        assert_eq!(g, vec![gnd], "{id} ground ({src})");
+    }
+    // 7490 and 7493 (secondary pin tables): pins 4 and 13 are not connected
+    for id in ["90", "93"] {
+        let f = func(&t, S74, id);
+        assert_eq!(f.pin("4").unwrap().role, NoConnect);
+        assert_eq!(f.pin("13").unwrap().role, NoConnect);
+    }
+    // 74283 is the 7483 with corner supply pins (from memory)
+    let f = func(&t, S74, "283");
+    assert_eq!(f.supply_pins().next().unwrap().pin, "16");
+    assert_eq!(f.ground_pins().next().unwrap().pin, "8");
+}
+
+// ---------------------------------------------------------------------------------------
+// Invariants over the whole table.
+
+#[test]
+fn every_function_lists_every_pin_once_with_power() {
+    let t = table();
+    for f in t.iter() {
+        let mut seen = vec![false; f.package_pins as usize + 1];
+        for p in &f.pins {
+            let n: usize = p
+                .pin
+                .parse()
+                .unwrap_or_else(|_| panic!("{}: pin {:?} not a number", f.id, p.pin));
+            assert!(
+                n >= 1 && n <= f.package_pins as usize,
+                "{}: pin {n} outside package",
+                f.id
+            );
+            assert!(!seen[n], "{}: pin {n} twice", f.id);
+            seen[n] = true;
+        }
+        assert_eq!(f.pins.len(), f.package_pins as usize, "{}: pin count", f.id);
+        assert!(f.supply_pins().count() >= 1, "{}: no supply pin", f.id);
+        assert!(f.ground_pins().count() >= 1, "{}: no ground pin", f.id);
+        assert!(!f.source.is_empty(), "{}: no source", f.id);
+        assert!(
+            f.pins.iter().all(|p| p.role != Unknown),
+            "{}: unknown role",
+            f.id
+        );
+    }
+}
+
+#[test]
+fn three_state_outputs_name_existing_enables() {
+    let t = table();
+    let mut count = 0;
+    for f in t.iter() {
+        for p in &f.pins {
+            if p.role == ThreeState {
+                assert!(!p.enable.is_empty(), "{} pin {}: no enable", f.id, p.pin);
+                count += 1;
+            }
+            for e in &p.enable {
+                let en = f
+                    .pin(e)
+                    .unwrap_or_else(|| panic!("{} pin {}: enable {e} missing", f.id, p.pin));
+                assert!(
+                    en.role.is_input(),
+                    "{} pin {}: enable {e} is {}",
+                    f.id,
+                    p.pin,
+                    en.role
+                );
+            }
+        }
+    }
+    assert!(count > 100, "only {count} three-state pins");
+}
+
+#[test]
+fn units_have_an_input_and_an_output() {
+    let t = table();
+    for f in t.iter() {
+        for u in f.units() {
+            let pins: Vec<_> = f.unit_pins(&u).collect();
+            let input = pins.iter().any(|p| p.role.is_input() || p.role == Analog);
+            let output = pins.iter().any(|p| p.role.is_output() || p.role == Analog);
+            assert!(
+                input && output,
+                "{} unit {u}: input {input}, output {output}",
+                f.id
+            );
+            assert!(
+                pins.iter().all(|p| !matches!(p.role, Supply | Ground)),
+                "{} unit {u}: power pin in a unit",
+                f.id
+            );
+        }
+    }
+}
+
+#[test]
+fn table_counts() {
+    let t = table();
+    let n74 = t.iter().filter(|f| f.series == S74).count();
+    let n40 = t.iter().filter(|f| f.series == S40).count();
+    assert!(n74 >= 80, "{n74} 74-series functions");
+    assert!(n40 >= 30, "{n40} 4000-series functions");
+    let required_74 = "00 02 04 08 10 11 14 20 27 30 32 86 132 01 03 05 06 07 09 12 15 16 17 22 26 33 38 \
+        73 74 75 76 107 109 112 173 174 175 273 373 374 573 574 90 93 160 161 162 163 190 191 192 193 390 393 \
+        42 47 138 139 145 151 153 154 157 158 251 253 257 125 126 240 241 244 245 540 541 640 645 \
+        164 165 166 194 299 595 83 85 181 283 121 123 221 688";
+    for id in required_74.split_whitespace() {
+        assert!(t.get(S74, id).is_some(), "74-series {id} missing");
+    }
+    let required_40 =
+        "4001 4011 4012 4013 4017 4020 4023 4024 4025 4027 4040 4046 4049 4050 4051 4052 4053 \
+        4060 4066 4069 4070 4071 4073 4081 4082 4093 4094 4511 4518 4520 4538 40106";
+    for id in required_40.split_whitespace() {
+        assert!(t.get(S40, id).is_some(), "4000-series {id} missing");
+    }
+}
+
+#[test]
+fn open_collector_functions() {
+    let t = table();
+    // open-collector parts per the reference list (7401, 03, 05, 06, 07, 09, 12, 16, 17, 22, 26,
+    // 33, 38, 136, 145, 156; 15 from secondary sources)
+    for id in [
+        "01", "03", "05", "06", "07", "09", "12", "15", "16", "17", "22", "26", "33", "38", "136",
+        "145", "156", "266",
+    ] {
+        let f = func(&t, S74, id);
+        let outs: Vec<_> = f.pins.iter().filter(|p| p.role.is_output()).collect();
+        assert!(!outs.is_empty(), "{id}");
+        assert!(
+            outs.iter().all(|p| p.role == OpenCollector),
+            "{id}: not all outputs open collector"
+        );
+    }
+    // the copies keep the original's inputs
+    assert_eq!(func(&t, S74, "03").pin("1").unwrap().role, Input);
+    assert_eq!(
+        func(&t, S74, "38").drive,
+        netmargin::classify::function::DriveClass::Buffer
+    );
+}
+
+#[test]
+fn variants_266_open_collector_in_ls_push_pull_in_hc() {
+    let t = table();
+    let f = func(&t, S74, "266");
+    let ls = f.pins_for_family("74LS");
+    let hc = f.pins_for_family("74HC");
+    // pin 3 is 1Y (from memory)
+    assert_eq!(
+        ls.iter().find(|p| p.pin == "3").unwrap().role,
+        OpenCollector
+    );
+    assert_eq!(hc.iter().find(|p| p.pin == "3").unwrap().role, PushPull);
+    assert_eq!(f.role_for_family("3", "74HCT"), Some(PushPull));
+    // inputs are unaffected
+    assert_eq!(hc.iter().find(|p| p.pin == "1").unwrap().role, Input);
+    // the 74LS05 and the 74HC05 are both open collector / open drain
+    let f = func(&t, S74, "05");
+    assert_eq!(f.role_for_family("2", "74HC"), Some(OpenCollector));
+    assert_eq!(f.role_for_family("2", "74LS"), Some(OpenCollector));
+}
+
+#[test]
+fn like_copies_and_overrides() {
+    let t = table();
+    let a = func(&t, S74, "08");
+    let b = func(&t, S74, "00");
+    assert_eq!(a.pins, b.pins);
+    let c = func(&t, S40, "4081");
+    assert_eq!(c.pins, func(&t, S40, "4001").pins);
+    // 40174 copies the 74174 across series
+    assert_eq!(func(&t, S40, "40174").pins, func(&t, S74, "174").pins);
+
+    // an override's `like` resolves inside its own file, and never to another copy
+    let head = "[[function]]\nsummary = \"x\"\nseries = \"74\"\nsource = \"t\"\n";
+    let e = FunctionTable::parse(&format!("{head}id = \"1\"\nlike = \"00\"\n")).unwrap_err();
+    assert!(e[0].message.contains("not a 74-series function"), "{e:?}");
+    let pins = "package_pins = 2\npins = [ { pin = 1, name = \"G\", role = \"ground\" }, { pin = 2, name = \"V\", role = \"supply\" } ]\n";
+    let chain = format!("{head}id = \"1\"\n{pins}\n{head}id = \"2\"\nlike = \"1\"\n\n{head}id = \"3\"\nlike = \"2\"\n");
+    let e = FunctionTable::parse(&chain).unwrap_err();
+    assert_eq!(e.len(), 1, "{e:?}");
+    assert!(e[0].message.contains("itself a copy"), "{e:?}");
+    let ok = FunctionTable::parse(&format!(
+        "{head}id = \"1\"\n{pins}\n{head}id = \"2\"\nlike = \"1\"\n"
+    ))
+    .unwrap();
+    assert_eq!(ok.get(S74, "2").unwrap().package_pins, 2);
+}
+
+// ---------------------------------------------------------------------------------------
+// Loader errors with spans.
+
+const BAD: &str = r#"
+[[function]]
+id = "9000"
+summary = "test"
+series = "74"
+package_pins = 8
+source = "test"
+pins = [
+  { pin = 1, name = "A", role = "input", unit = "A" },
+  { pin = 2, name = "Y", role = "three-state", unit = "A", enable = [9] },
+  { pin = 2, name = "B", role = "input", unit = "A" },
+  { pin = 4, name = "GND", role = "ground" },
+  { pin = 5, name = "X", role = "totem-pole" },
+  { pin = 8, name = "VCC", role = "supply" },
+]
+
+[[function]]
+id = "9001"
+summary = "copy of nothing"
+series = "74"
+source = "test"
+like = "1234"
+"#;
+
+#[test]
+fn bad_file_reports_every_problem_with_its_span() {
+    let e = FunctionTable::parse(BAD).unwrap_err();
+    let find = |needle: &str| {
+        e.iter()
+            .find(|x| x.message.contains(needle))
+            .unwrap_or_else(|| panic!("no error with {needle:?} in {e:#?}"))
+    };
+    let span_text =
+        |err: &netmargin::classify::RuleError| BAD[err.span.clone().expect("span")].to_string();
+    assert_eq!(span_text(find("enable pin 9")), "9");
+    let dup = find("pin 2 is listed twice");
+    assert_eq!(span_text(dup), "2");
+    assert!(
+        BAD[..dup.span.clone().unwrap().start].contains("name = \"Y\""),
+        "span points at the second pin 2"
+    );
+    assert_eq!(span_text(find("totem-pole")), "\"totem-pole\"");
+    assert!(find("missing 3, 6, 7").message.contains("8-pin"));
+    assert_eq!(span_text(find("`1234`")), "\"1234\"");
+}
+
+#[test]
+fn unknown_key_and_duplicate_id() {
+    let text = "[[function]]\nid = \"1\"\nsummary = \"x\"\nseries = \"74\"\npackage_pins = 2\nsource = \"t\"\ncolor = \"red\"\npins = []\n";
+    let e = FunctionTable::parse(text).unwrap_err();
+    assert!(e[0].message.contains("color"), "{e:?}");
+    let span = e[0].span.clone().expect("span");
+    assert!(text[span].contains("color"));
+
+    let one = "[[function]]\nid = \"7\"\nsummary = \"x\"\nseries = \"74\"\npackage_pins = 2\nsource = \"t\"\npins = [ { pin = 1, name = \"G\", role = \"ground\" }, { pin = 2, name = \"V\", role = \"supply\" } ]\n";
+    let two = format!("{one}\n{one}");
+    let e = FunctionTable::parse(&two).unwrap_err();
+    assert_eq!(e.len(), 1, "{e:?}");
+    assert!(e[0].message.contains("defined twice"));
+    assert!(e[0].span.clone().unwrap().start > one.len());
+    // the same id in the other series is not a duplicate
+    let other = one.replace("series = \"74\"", "series = \"4000\"");
+    assert!(FunctionTable::parse(&format!("{one}\n{other}")).is_ok());
+}
+
+#[test]
+fn merge_replaces_by_series_and_id() {
+    let mut t = table();
+    let before = t.len();
+    let over = FunctionTable::parse(
+        "[[function]]\nid = \"00\"\nsummary = \"replaced\"\nseries = \"74\"\npackage_pins = 2\nsource = \"t\"\npins = [ { pin = 1, name = \"G\", role = \"ground\" }, { pin = 2, name = \"V\", role = \"supply\" } ]\n",
+    )
+    .unwrap();
+    t.merge(over);
+    assert_eq!(t.len(), before);
+    assert_eq!(func(&t, S74, "00").summary, "replaced");
+    assert_eq!(func(&t, S74, "08").package_pins, 14);
+}
