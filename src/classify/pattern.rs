@@ -98,6 +98,10 @@ const FAMILIES_74: &[(&str, &str)] = &[
     ("LVC", "74LVC"),
 ];
 
+/// Letters no maker's package code starts with that OCR takes for digits (O, I, L, Z, G);
+/// S and B are left out because `SC`, `SJ` and `B1` are real package codes.
+const DIGIT_LIKE_LETTERS: &[char] = &['O', 'I', 'L', 'Z', 'G'];
+
 /// Longest token [`near_misses`] will try edits on; no part marking comes near it.
 const MAX_NEAR_MISS_LEN: usize = 40;
 
@@ -152,7 +156,8 @@ pub struct Suggestion {
 /// Ranking: fewer changes first; then edits that leave the package suffix alone (a slip
 /// "fixed" by turning a digit into a package letter says little about the part); then by
 /// kind: confusions, doubled characters, swaps, dropped letters, dropped digits; then by
-/// position and text, so the order is stable. Only the best suggestion for each part (series,
+/// position and text, so the order is stable. A candidate whose package suffix starts right
+/// after the number with O, I, L, Z or G (letters read for digits) is not offered. Only the best suggestion for each part (series,
 /// family, function) is kept, and none for the part the value already reads as.
 pub fn near_misses(
     value: &str,
@@ -418,6 +423,12 @@ fn evaluate(
     }
     let key = key_of(&parsed);
     if own == Some(&key) {
+        return None;
+    }
+    // a package suffix that starts, right after the number, with a letter that reads like a
+    // digit (74L50O, 74LS10O) assumes one more unexplained slip: not a suggestion
+    let joined = parsed.suffix_start > 0 && edit.chars[parsed.suffix_start - 1] != '-';
+    if joined && parsed.suffix.starts_with(DIGIT_LIKE_LETTERS) {
         return None;
     }
     let in_suffix =
