@@ -1,7 +1,9 @@
 //! Building the [`Netlist`] from a syntax tree.
 
 use std::borrow::Cow;
-use std::collections::HashMap;
+use std::cell::RefCell;
+
+use rustc_hash::FxHashMap as HashMap;
 
 use super::*;
 use crate::sexpr::{NodeId, Tree};
@@ -21,7 +23,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
             .at(span, "expected `export`")
             .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"));
     }
-    let mut b = Builder { t: tree, diags: Vec::new() };
+    let b = Builder { t: tree, diags: RefCell::new(Vec::new()) };
     let mut nl = Netlist {
         version: None,
         dialect: Dialect::Other,
@@ -31,8 +33,8 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         nets: Vec::new(),
         diagnostics: Vec::new(),
         span: tree.span(root),
-        by_ref: HashMap::new(),
-        by_net_name: HashMap::new(),
+        by_ref: HashMap::default(),
+        by_net_name: HashMap::default(),
     };
     for sec in tree.children(root).skip(1) {
         match tree.head(sec) {
@@ -71,14 +73,14 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         Some("E") => Dialect::E,
         Some(other) => {
             let v = nl.version.as_ref().expect("version is some");
-            b.diags.push(
+            b.diags.borrow_mut().push(
                 Diag::info("netlist-version", format!("netlist version `{other}` is not one netmargin knows (D: KiCad 4-5, E: KiCad 6-9); reading it as version E"))
                     .at(v.span, "version"),
             );
             Dialect::Other
         }
         None => {
-            b.diags.push(
+            b.diags.borrow_mut().push(
                 Diag::warning("missing-field", "the netlist has no `(version ...)`; reading it as version E")
                     .at(Span::new(nl.span.start as usize, nl.span.start as usize + 7), "no version in this export"),
             );
@@ -86,13 +88,13 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         }
     };
     b.link(&mut nl);
-    nl.diagnostics = b.diags;
+    nl.diagnostics = b.diags.into_inner();
     Ok(nl)
 }
 
 struct Builder<'t, 'a> {
     t: &'t Tree<'a>,
-    diags: Vec<Diag>,
+    diags: RefCell<Vec<Diag>>,
 }
 
 impl<'a> Builder<'_, 'a> {
@@ -102,11 +104,11 @@ impl<'a> Builder<'_, 'a> {
 
     /// The value of `(key VALUE)`: `None` when missing; a diagnostic when a list stands
     /// where the value belongs.
-    fn value(&mut self, list: NodeId) -> Option<Text<'a>> {
+    fn value(&self, list: NodeId) -> Option<Text<'a>> {
         let v = self.t.children(list).nth(1)?;
         if self.t.is_list(v) {
             let key = self.t.head(list).unwrap_or("?");
-            self.diags.push(
+            self.diags.borrow_mut().push(
                 Diag::error("bad-field", format!("`({key} ...)` holds a list where its value belongs"))
                     .at(self.t.span(v), "expected a name or a quoted string")
                     .with_help("the file was edited by hand or damaged: export the netlist again"),
@@ -121,10 +123,9 @@ impl<'a> Builder<'_, 'a> {
         self.t.children(list).skip(1).filter_map(|c| self.t.head(c).map(|h| (h, c)))
     }
 
-    fn design(&mut self, sec: NodeId) -> Design<'a> {
+    fn design(&self, sec: NodeId) -> Design<'a> {
         let mut d = Design::default();
-        let items: Vec<_> = self.each(sec).collect();
-        for (k, c) in items {
+                for (k, c) in self.each(sec) {
             match k {
                 "source" => d.source = self.value(c),
                 "date" => d.date = self.value(c),
@@ -132,10 +133,8 @@ impl<'a> Builder<'_, 'a> {
                 "sheet" => {
                     // the first sheet's title block names the board
                     if d.title.is_none() {
-                        let tb: Vec<_> = self.each(c).filter(|(k, _)| *k == "title_block").collect();
-                        for (_, tbl) in tb {
-                            let kids: Vec<_> = self.each(tbl).collect();
-                            for (k2, c2) in kids {
+                                                for (_, tbl) in self.each(c).filter(|(k, _)| *k == "title_block") {
+                                                        for (k2, c2) in self.each(tbl) {
                                 match k2 {
                                     "title" => d.title = self.value(c2),
                                     "company" => d.company = self.value(c2),
@@ -152,7 +151,7 @@ impl<'a> Builder<'_, 'a> {
         d
     }
 
-    fn field(&mut self, f: NodeId) -> Option<Field<'a>> {
+    fn field(&self, f: NodeId) -> Option<Field<'a>> {
         // (field (name N) V)  |  (property (name N) (value V))
         let mut name = None;
         let mut value = None;
@@ -168,13 +167,13 @@ impl<'a> Builder<'_, 'a> {
             Some(name) => Some(Field { name, value, span: self.t.span(f) }),
             None => {
                 let what = self.t.head(f).unwrap_or("field");
-                self.diags.push(Diag::warning("missing-field", format!("a `{what}` without a `(name ...)` is ignored")).at(self.t.span(f), "no name"));
+                self.diags.borrow_mut().push(Diag::warning("missing-field", format!("a `{what}` without a `(name ...)` is ignored")).at(self.t.span(f), "no name"));
                 None
             }
         }
     }
 
-    fn component(&mut self, c: NodeId) -> Option<Component<'a>> {
+    fn component(&self, c: NodeId) -> Option<Component<'a>> {
         let mut comp = Component {
             reference: Text { s: Cow::Borrowed(""), span: self.t.span(c) },
             value: None,
@@ -190,8 +189,7 @@ impl<'a> Builder<'_, 'a> {
             pins: Vec::new(),
         };
         let mut have_ref = false;
-        let items: Vec<_> = self.each(c).collect();
-        for (k, n) in items {
+                for (k, n) in self.each(c) {
             match k {
                 "ref" => {
                     if let Some(r) = self.value(n) {
@@ -203,8 +201,7 @@ impl<'a> Builder<'_, 'a> {
                 "footprint" => comp.footprint = self.value(n),
                 "datasheet" => comp.datasheet = self.value(n),
                 "fields" => {
-                    let fs: Vec<_> = self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f).collect();
-                    for f in fs {
+                                        for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
                             comp.fields.push(f);
                         }
@@ -217,8 +214,7 @@ impl<'a> Builder<'_, 'a> {
                 }
                 "libsource" => {
                     let mut ls = LibSource { lib: None, part: None, description: None };
-                    let kids: Vec<_> = self.each(n).collect();
-                    for (k2, c2) in kids {
+                                        for (k2, c2) in self.each(n) {
                         match k2 {
                             "lib" => ls.lib = self.value(c2),
                             "part" => ls.part = self.value(c2),
@@ -230,8 +226,7 @@ impl<'a> Builder<'_, 'a> {
                 }
                 "sheetpath" => {
                     let mut sp = SheetPath { names: None, tstamps: None };
-                    let kids: Vec<_> = self.each(n).collect();
-                    for (k2, c2) in kids {
+                                        for (k2, c2) in self.each(n) {
                         match k2 {
                             "names" => sp.names = self.value(c2),
                             "tstamps" => sp.tstamps = self.value(c2),
@@ -249,7 +244,7 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         if !have_ref || comp.reference.s.is_empty() {
-            self.diags.push(
+            self.diags.borrow_mut().push(
                 Diag::error("missing-field", "a component without a reference (`(ref ...)`) is left out")
                     .at(self.t.span(c), "this `comp` has no `ref`")
                     .with_help("annotate the schematic (every symbol needs a reference such as U1) and export the netlist again"),
@@ -259,7 +254,7 @@ impl<'a> Builder<'_, 'a> {
         Some(comp)
     }
 
-    fn libpart(&mut self, c: NodeId) -> Option<LibPart<'a>> {
+    fn libpart(&self, c: NodeId) -> Option<LibPart<'a>> {
         let mut lib = None;
         let mut part = None;
         let mut lp_aliases = Vec::new();
@@ -268,45 +263,39 @@ impl<'a> Builder<'_, 'a> {
         let mut footprints = Vec::new();
         let mut fields = Vec::new();
         let mut pins = Vec::new();
-        let items: Vec<_> = self.each(c).collect();
-        for (k, n) in items {
+                for (k, n) in self.each(c) {
             match k {
                 "lib" => lib = self.value(n),
                 "part" => part = self.value(n),
                 "description" => description = self.value(n),
                 "docs" => docs = self.value(n),
                 "aliases" => {
-                    let al: Vec<_> = self.each(n).filter(|(k, _)| *k == "alias").map(|(_, a)| a).collect();
-                    for a in al {
+                                        for a in self.each(n).filter(|(k, _)| *k == "alias").map(|(_, a)| a) {
                         if let Some(v) = self.value(a) {
                             lp_aliases.push(v);
                         }
                     }
                 }
                 "footprints" => {
-                    let fps: Vec<_> = self.each(n).filter(|(k, _)| *k == "fp").map(|(_, a)| a).collect();
-                    for a in fps {
+                                        for a in self.each(n).filter(|(k, _)| *k == "fp").map(|(_, a)| a) {
                         if let Some(v) = self.value(a) {
                             footprints.push(v);
                         }
                     }
                 }
                 "fields" => {
-                    let fs: Vec<_> = self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f).collect();
-                    for f in fs {
+                                        for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
                             fields.push(f);
                         }
                     }
                 }
                 "pins" => {
-                    let ps: Vec<_> = self.each(n).filter(|(k, _)| *k == "pin").map(|(_, p)| p).collect();
-                    for p in ps {
+                                        for p in self.each(n).filter(|(k, _)| *k == "pin").map(|(_, p)| p) {
                         let mut num = None;
                         let mut name = None;
                         let mut ptype = PinType::Unknown;
-                        let kids: Vec<_> = self.each(p).collect();
-                        for (k2, c2) in kids {
+                                                for (k2, c2) in self.each(p) {
                             match k2 {
                                 "num" => num = self.value(c2),
                                 "name" => name = self.value(c2),
@@ -320,7 +309,7 @@ impl<'a> Builder<'_, 'a> {
                         }
                         match num {
                             Some(num) => pins.push(LibPin { num, name, ptype, span: self.t.span(p) }),
-                            None => self.diags.push(
+                            None => self.diags.borrow_mut().push(
                                 Diag::warning("missing-field", "a library pin without a `(num ...)` is ignored").at(self.t.span(p), "no pin number"),
                             ),
                         }
@@ -330,13 +319,13 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         let Some(part) = part else {
-            self.diags.push(Diag::warning("missing-field", "a `libpart` without a `(part ...)` is ignored").at(self.t.span(c), "no part name"));
+            self.diags.borrow_mut().push(Diag::warning("missing-field", "a `libpart` without a `(part ...)` is ignored").at(self.t.span(c), "no part name"));
             return None;
         };
         Some(LibPart { lib, part, aliases: lp_aliases, description, docs, footprints, fields, pins, span: self.t.span(c) })
     }
 
-    fn net(&mut self, c: NodeId) -> Net<'a> {
+    fn net(&self, c: NodeId) -> Net<'a> {
         let mut net = Net { code: None, name: Text { s: Cow::Borrowed(""), span: self.t.span(c) }, nodes: Vec::new(), span: self.t.span(c) };
         let mut have_name = false;
         for n in self.t.children(c).skip(1) {
@@ -379,7 +368,7 @@ impl<'a> Builder<'_, 'a> {
                             span: self.t.span(n),
                             component: None,
                         }),
-                        (r, _) => self.diags.push(
+                        (r, _) => self.diags.borrow_mut().push(
                             Diag::error(
                                 "missing-field",
                                 format!("a node without {} is left out", if r.is_none() { "a `(ref ...)`" } else { "a `(pin ...)`" }),
@@ -393,21 +382,21 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         if net.code.is_none() {
-            self.diags.push(Diag::warning("missing-field", "a net without a `(code ...)`").at(self.t.span(c), "no code"));
+            self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(code ...)`").at(self.t.span(c), "no code"));
         }
         if !have_name {
-            self.diags.push(Diag::warning("missing-field", "a net without a `(name ...)`; it is read as unnamed").at(self.t.span(c), "no name"));
+            self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(name ...)`; it is read as unnamed").at(self.t.span(c), "no name"));
         }
         net
     }
 
     /// Cross-references: refs, libparts, node components, pin lists and connections.
-    fn link(&mut self, nl: &mut Netlist<'a>) {
+    fn link(&self, nl: &mut Netlist<'a>) {
         // refs
-        let mut by_ref: HashMap<String, usize> = HashMap::with_capacity(nl.components.len());
+        let mut by_ref: HashMap<String, usize> = HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
         for (i, c) in nl.components.iter().enumerate() {
             if let Some(&first) = by_ref.get(c.reference.as_str()) {
-                self.diags.push(
+                self.diags.borrow_mut().push(
                     Diag::error("duplicate-ref", format!("two components share the reference `{}`", c.reference))
                         .at(c.reference.span, "this one is checked as written but its nets may be confused")
                         .also(nl.components[first].reference.span, "first use")
@@ -418,8 +407,8 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         // libparts by (lib, part) and (lib, alias), and by part alone as a fallback
-        let mut by_lib_part: HashMap<(&str, &str), usize> = HashMap::new();
-        let mut by_part: HashMap<&str, Option<usize>> = HashMap::new();
+        let mut by_lib_part: HashMap<(&str, &str), usize> = HashMap::default();
+        let mut by_part: HashMap<&str, Option<usize>> = HashMap::default();
         for (i, lp) in nl.libparts.iter().enumerate() {
             let lib = lp.lib.as_ref().map_or("", |l| l.as_str());
             for name in std::iter::once(&lp.part).chain(lp.aliases.iter()) {
@@ -443,7 +432,7 @@ impl<'a> Builder<'_, 'a> {
                 .copied()
                 .or_else(|| by_part.get(part.as_str()).copied().flatten());
             if resolved[i].is_none() && !nl.libparts.is_empty() {
-                self.diags.push(
+                self.diags.borrow_mut().push(
                     Diag::info(
                         "missing-libpart",
                         format!("no library part `{}:{}` for {}: its pins on no net cannot be listed", lib, part, c.reference),
@@ -458,53 +447,101 @@ impl<'a> Builder<'_, 'a> {
         drop(by_lib_part);
         drop(by_part);
 
-        // nodes: component links, de-duplication, pins on two nets
-        let mut pin_at: HashMap<(u32, Cow<'a, str>), (u32, u32)> = HashMap::new();
-        let mut by_net_name = HashMap::with_capacity(nl.nets.len());
-        let mut codes: HashMap<Cow<'a, str>, usize> = HashMap::with_capacity(nl.nets.len());
-        let mut twice: Vec<(usize, usize, Span, String)> = Vec::new();
+        // nodes: component links, de-duplication, pins on two nets. Sorting every
+        // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
+        let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
+        let mut codes: HashMap<&str, usize> = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
+        let mut entries: Vec<(u32, u32, u32)> = Vec::new(); // (component, net, node)
         for (ni, net) in nl.nets.iter_mut().enumerate() {
             if let Some(code) = &net.code {
-                if let Some(&first) = codes.get(&code.s) {
-                    self.diags.push(
+                if let Some(&first) = codes.get(code.as_str()) {
+                    self.diags.borrow_mut().push(
                         Diag::warning("duplicate-net-code", format!("two nets share the code {}", code))
                             .at(code.span, format!("also used by net #{}", first + 1)),
                     );
                 } else {
-                    codes.insert(code.s.clone(), ni);
+                    codes.insert(self.t.source().get(code.span.range()).map_or("", |_| code_key(code)), ni);
                 }
             }
             if !net.name.s.is_empty() {
                 by_net_name.entry(net.name.s.to_string()).or_insert(ni);
             }
-            let mut kept: Vec<Node<'a>> = Vec::with_capacity(net.nodes.len());
-            for mut node in std::mem::take(&mut net.nodes) {
-                let Some(&ci) = by_ref.get(node.reference.as_str()) else {
-                    self.diags.push(
+            for (k, node) in net.nodes.iter_mut().enumerate() {
+                match by_ref.get(node.reference.as_str()) {
+                    Some(&ci) => {
+                        node.component = Some(ci);
+                        entries.push((ci as u32, ni as u32, k as u32));
+                    }
+                    None => self.diags.borrow_mut().push(
                         Diag::error("unknown-component", format!("net `{}` names {}, which is not among the components", net.name, node.reference))
                             .at(node.reference.span, "no component has this reference")
                             .with_help("the netlist is out of step with the schematic: export it again"),
-                    );
-                    continue;
-                };
-                node.component = Some(ci);
-                match pin_at.get(&(ci as u32, node.pin.s.clone())) {
-                    Some(&(n0, _)) if n0 as usize == ni => continue, // listed again in the same net: quietly once
-                    Some(&(n0, _)) => {
-                        twice.push((n0 as usize, ni, node.span, format!("{}.{}", node.reference, node.pin)));
-                        continue;
-                    }
-                    None => {
-                        pin_at.insert((ci as u32, node.pin.s.clone()), (ni as u32, kept.len() as u32));
-                        kept.push(node);
-                    }
+                    ),
                 }
             }
-            net.nodes = kept;
         }
+        drop(codes);
+        {
+            let nets = &nl.nets;
+            let pin = |e: &(u32, u32, u32)| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str();
+            entries.sort_unstable_by(|a, b| a.0.cmp(&b.0).then_with(|| pin(a).cmp(pin(b))).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+        }
+        // keep the first (component, pin) of each group; a repeat in the same net is dropped
+        // quietly, one in another net is a diagnostic
+        let mut keep: Vec<Vec<bool>> = nl.nets.iter().map(|n| vec![false; n.nodes.len()]).collect();
+        let mut twice: Vec<(usize, usize, Span, String)> = Vec::new();
+        let mut first_of_group = 0;
+        for i in 0..entries.len() {
+            let e = entries[i];
+            let same = i > 0 && {
+                let f = entries[first_of_group];
+                f.0 == e.0 && nl.nets[f.1 as usize].nodes[f.2 as usize].pin.s == nl.nets[e.1 as usize].nodes[e.2 as usize].pin.s
+            };
+            if !same {
+                first_of_group = i;
+                keep[e.1 as usize][e.2 as usize] = true;
+                continue;
+            }
+            let f = entries[first_of_group];
+            if f.1 != e.1 && entries[i - 1].1 != e.1 {
+                let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
+                twice.push((f.1 as usize, e.1 as usize, node.span, format!("{}.{}", node.reference, node.pin)));
+            }
+        }
+        // drop the repeats and renumber the kept nodes
+        let mut new_index: Vec<Vec<u32>> = Vec::with_capacity(nl.nets.len());
+        for (net, keep) in nl.nets.iter_mut().zip(&keep) {
+            let mut map = vec![u32::MAX; keep.len()];
+            let mut n = 0u32;
+            for (k, &kp) in keep.iter().enumerate() {
+                if kp {
+                    map[k] = n;
+                    n += 1;
+                }
+            }
+            if (n as usize) < keep.len() {
+                let mut k = 0;
+                net.nodes.retain(|_| {
+                    k += 1;
+                    keep[k - 1]
+                });
+            }
+            new_index.push(map);
+        }
+        drop(keep);
+        // per component, its kept (pin, net, node) sorted by pin
+        let mut pin_nets: Vec<(u32, u32, u32)> = entries
+            .into_iter()
+            .filter_map(|(c, ni, k)| {
+                let nk = new_index[ni as usize][k as usize];
+                (nk != u32::MAX).then_some((c, ni, nk))
+            })
+            .collect();
+        pin_nets.shrink_to_fit();
+        drop(new_index);
         for (first, second, span, pin) in twice {
             let (f, n) = (&nl.nets[first], &nl.nets[second]);
-            self.diags.push(
+            self.diags.borrow_mut().push(
                 Diag::error("pin-on-two-nets", format!("{pin} is on two nets: `{}` and `{}`", f.name, n.name))
                     .at(span, "second net")
                     .also(f.name.span, "first net")
@@ -513,58 +550,81 @@ impl<'a> Builder<'_, 'a> {
         }
 
         // component pins: the libpart's, then any the nets name that it lacks
+        let mut at = 0usize;
         for (ci, c) in nl.components.iter_mut().enumerate() {
+            let start = at;
+            while at < pin_nets.len() && pin_nets[at].0 as usize == ci {
+                at += 1;
+            }
+            let mine = &pin_nets[start..at];
+            let nets = &nl.nets;
+            let find = |num: &str| {
+                mine.binary_search_by(|e| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str().cmp(num))
+                    .ok()
+                    .map(|i| (mine[i].1 as usize, mine[i].2 as usize))
+            };
             let mut pins: Vec<CompPin<'a>> = Vec::new();
+            let mut used = vec![false; mine.len()];
             if let Some(li) = c.libpart {
-                for (pi, lpin) in nl.libparts[li].pins.iter().enumerate() {
-                    if pins.iter().any(|p| p.num == lpin.num.s) {
+                let lpins = &nl.libparts[li].pins;
+                pins.reserve(lpins.len());
+                for (pi, lpin) in lpins.iter().enumerate() {
+                    if pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
                         continue; // stacked pins listed twice
                     }
-                    let connection = match pin_at.get(&(ci as u32, lpin.num.s.clone())) {
-                        Some(&(net, node)) => connection(&nl.nets, net as usize, node as usize),
+                    let found = find(lpin.num.as_str());
+                    let connection = match found {
+                        Some((net, node)) => {
+                            if let Ok(i) = mine.binary_search_by(|e| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str().cmp(lpin.num.as_str())) {
+                                if used[i] {
+                                    continue; // stacked pins listed twice
+                                }
+                                used[i] = true;
+                            }
+                            connection(nets, net, node)
+                        }
                         None => Connection::Absent,
                     };
                     let mut ptype = lpin.ptype;
                     let mut no_connect = lpin.ptype == PinType::NoConnect;
                     let mut name = lpin.name.as_ref().map(|n| n.s.clone());
-                    if let Some(net) = connection.net() {
-                        if let Connection::Net { node, .. } | Connection::Alone { node, .. } = connection {
-                            let nd = &nl.nets[net].nodes[node];
-                            if let Some(t) = nd.pintype {
-                                ptype = t;
-                            }
-                            no_connect |= nd.no_connect;
-                            if name.is_none() {
-                                name = nd.pinfunction.as_ref().map(|f| f.s.clone());
-                            }
+                    if let Some((net, node)) = found {
+                        let nd = &nets[net].nodes[node];
+                        if let Some(t) = nd.pintype {
+                            ptype = t;
+                        }
+                        no_connect |= nd.no_connect;
+                        if name.is_none() {
+                            name = nd.pinfunction.as_ref().map(|f| f.s.clone());
                         }
                     }
                     pins.push(CompPin { num: lpin.num.s.clone(), name, ptype, no_connect, connection, libpin: Some(pi) });
                 }
             }
-            c.pins = pins;
-        }
-        // pins named by nodes but missing from the libpart (or no libpart at all)
-        for (ni, net) in nl.nets.iter().enumerate() {
-            for (k, node) in net.nodes.iter().enumerate() {
-                let Some(ci) = node.component else { continue };
-                let c = &mut nl.components[ci];
-                if c.pins.iter().any(|p| p.num == node.pin.s) {
+            // pins named by nodes but missing from the libpart (or no libpart at all)
+            for (i, e) in mine.iter().enumerate() {
+                if used[i] {
                     continue;
                 }
-                c.pins.push(CompPin {
+                let node = &nets[e.1 as usize].nodes[e.2 as usize];
+                pins.push(CompPin {
                     num: node.pin.s.clone(),
                     name: node.pinfunction.as_ref().map(|f| f.s.clone()),
                     ptype: node.pintype.unwrap_or(PinType::Unknown),
                     no_connect: node.no_connect,
-                    connection: connection(&nl.nets, ni, k),
+                    connection: connection(nets, e.1 as usize, e.2 as usize),
                     libpin: None,
                 });
             }
+            c.pins = pins;
         }
         nl.by_ref = by_ref;
         nl.by_net_name = by_net_name;
     }
+}
+
+fn code_key<'a>(code: &'a Text<'_>) -> &'a str {
+    code.as_str()
 }
 
 fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {

@@ -11,7 +11,7 @@ mod build;
 mod pintype;
 
 use std::borrow::Cow;
-use std::collections::HashMap;
+use rustc_hash::FxHashMap as HashMap;
 
 pub use build::build;
 pub use pintype::PinType;
