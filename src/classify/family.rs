@@ -233,10 +233,18 @@ pub struct Family {
 }
 
 impl Family {
-    /// The family's figures at supply `vcc`. Several points: linear between the published
-    /// supplies (thresholds, currents and the VOH/VOL rows, paired by index), linear from the
-    /// two nearest points outside them. One point: its figures unchanged. Extrapolated
-    /// voltages are kept within 0..vcc and currents never change sign.
+    /// The family's figures at supply `vcc`.
+    ///
+    /// Several points: between two published supplies every figure is linear (thresholds,
+    /// input currents, leakages, ratings, and the VOH/VOL rows paired by index, levels and
+    /// currents both). Outside them, thresholds, input currents and leakages continue the line
+    /// through the two nearest points; the outputs are the nearest point's, with its rated
+    /// currents and each VOH row's drop below VCC kept (VOL rows unchanged), because a line
+    /// through two ratings soon claims drive nobody published, or a current of the wrong sign.
+    /// Extrapolated levels stay within 0..vcc; currents never change sign.
+    ///
+    /// One point: its figures unchanged, `Published` at the point, `Nominal` elsewhere in the
+    /// supply range, `Extrapolated` outside it.
     pub fn levels(&self, vcc: f64, drive: Drive) -> Levels {
         let points = &self.points;
         assert!(
@@ -308,6 +316,36 @@ impl Family {
                 })
                 .collect()
         };
+        let (ioh_max, iol_max, voh, vol) = match basis {
+            Basis::Extrapolated { nearest } => {
+                let near = if same_v(nearest, a.vcc) { out_a } else { out_b };
+                let shift = vcc - nearest;
+                let top = vcc.max(0.0);
+                let voh = near
+                    .voh
+                    .iter()
+                    .map(|r| VI {
+                        v: (r.v + shift).clamp(0.0, top),
+                        a: r.a,
+                    })
+                    .collect();
+                let vol = near
+                    .vol
+                    .iter()
+                    .map(|r| VI {
+                        v: r.v.clamp(0.0, top),
+                        a: r.a,
+                    })
+                    .collect();
+                (near.ioh_max, near.iol_max, voh, vol)
+            }
+            _ => (
+                keep_sign(lerp(out_a.ioh_max, out_b.ioh_max), -1.0),
+                keep_sign(lerp(out_a.iol_max, out_b.iol_max), 1.0),
+                rows(&out_a.voh, &out_b.voh),
+                rows(&out_a.vol, &out_b.vol),
+            ),
+        };
         Levels {
             vcc,
             vih_min: volts(a.vih_min, b.vih_min),
@@ -316,10 +354,10 @@ impl Family {
             iil_max: keep_sign(lerp(a.iil_max, b.iil_max), a.iil_max),
             ioz: keep_sign(lerp(a.ioz, b.ioz), 1.0),
             oc_leakage: keep_sign(lerp(a.oc_leakage, b.oc_leakage), 1.0),
-            ioh_max: keep_sign(lerp(out_a.ioh_max, out_b.ioh_max), -1.0),
-            iol_max: keep_sign(lerp(out_a.iol_max, out_b.iol_max), 1.0),
-            voh: rows(&out_a.voh, &out_b.voh),
-            vol: rows(&out_a.vol, &out_b.vol),
+            ioh_max,
+            iol_max,
+            voh,
+            vol,
             drive: used,
             basis,
         }
@@ -1037,15 +1075,24 @@ vol = [{ v = 0.1, ma = 0.1 }, { v = 0.6, ma = 5 }]
     }
 
     #[test]
-    fn extrapolation_keeps_signs_and_bounds() {
+    fn extrapolation_continues_thresholds_and_keeps_the_nearest_outputs() {
         let t = FamilyTable::parse(ONE).expect("test table parses");
         let f = t.get("X").expect("present");
-        // 1.0 V: the line through the 2 V and 6 V ioh (-1, -5 mA) gives 0 mA, never positive.
+        // 1.0 V: thresholds on the 2-6 V line (VIH 1.5 - 0.75 = 0.75 V). The line through the
+        // ratings (-1, -5 mA) would give 0 mA; the 2 V point's -1 mA is kept instead, with its
+        // VOH drops (0.1 V, 0.5 V) below the new VCC.
         let l = f.levels(1.0, Drive::Standard);
         assert_eq!(l.basis, Basis::Extrapolated { nearest: 2.0 });
-        assert!(l.ioh_max <= 0.0 && l.iol_max >= 0.0);
-        assert!(l.voh.iter().all(|r| r.v >= 0.0 && r.v <= 1.0 && r.a <= 0.0));
-        assert!(close(l.vih_min, 0.75));
+        assert!(close(l.vih_min, 0.75) && close(l.vil_max, 0.25));
+        assert!(close(l.ioh_max, -1e-3) && close(l.iol_max, 1e-3));
+        assert!(close(l.voh[0].v, 0.9) && close(l.voh[1].v, 0.5) && close(l.voh[1].a, -1e-3));
+        assert!(close(l.vol[1].v, 0.5));
+        // 8 V, above: 6 V ratings kept (5 mA, not 7 mA), VOH drop 1.0 V kept: 7.0 V @ -5 mA.
+        let l = f.levels(8.0, Drive::Standard);
+        assert_eq!(l.basis, Basis::Extrapolated { nearest: 6.0 });
+        assert!(close(l.vih_min, 6.0));
+        assert!(close(l.iol_max, 5e-3));
+        assert!(close(l.voh[1].v, 7.0) && close(l.voh[1].a, -5e-3));
     }
 
     #[test]
