@@ -53,11 +53,15 @@ pub struct Diag {
     /// The first primary label is the diagnostic's location.
     pub labels: Vec<Label>,
     pub help: Option<String>,
+    /// The net the finding is about, by name.
+    pub net: Option<String>,
+    /// The pins involved, as `REF.PIN`, the offending one first.
+    pub pins: Vec<String>,
 }
 
 impl Diag {
     pub fn new(code: impl Into<String>, severity: Severity, message: impl Into<String>) -> Diag {
-        Diag { code: code.into(), severity, message: message.into(), labels: Vec::new(), help: None }
+        Diag { code: code.into(), severity, message: message.into(), labels: Vec::new(), help: None, net: None, pins: Vec::new() }
     }
     pub fn error(code: impl Into<String>, message: impl Into<String>) -> Diag {
         Diag::new(code, Severity::Error, message)
@@ -80,6 +84,14 @@ impl Diag {
     }
     pub fn with_help(mut self, help: impl Into<String>) -> Diag {
         self.help = Some(help.into());
+        self
+    }
+    pub fn on_net(mut self, net: impl Into<String>) -> Diag {
+        self.net = Some(net.into());
+        self
+    }
+    pub fn with_pins<I: IntoIterator<Item = S>, S: Into<String>>(mut self, pins: I) -> Diag {
+        self.pins.extend(pins.into_iter().map(Into::into));
         self
     }
     /// The primary span, if any.
@@ -146,3 +158,28 @@ impl Diagnostic for Rendered<'_> {
         })))
     }
 }
+
+/// The codes the reader and the netlist model use (the checks' ids are in
+/// [`crate::checks::REGISTRY`]). `(code, summary)`; reporters use them as rule metadata.
+pub static INPUT_CODES: &[(&str, &str)] = &[
+    ("empty-file", "the file is empty or holds only white space"),
+    ("wrong-format", "the file is a KiCad file of another kind, or an older netlist format"),
+    ("not-a-netlist", "the file is not a KiCad S-expression netlist"),
+    ("binary-file", "the file holds NUL bytes"),
+    ("invalid-utf8", "the file is not valid UTF-8"),
+    ("too-large", "the file is larger than the size limit"),
+    ("unreadable", "the file cannot be read"),
+    ("unclosed-list", "a list is never closed (a truncated file)"),
+    ("stray-close", "a `)` closes a list that was never opened"),
+    ("unterminated-string", "a quoted string is never closed"),
+    ("trailing-text", "text after the end of the netlist"),
+    ("too-deep", "lists nested deeper than any netlist nests"),
+    ("bad-field", "a list where a value belongs"),
+    ("missing-field", "a required field is missing; the item is left out or read as unnamed"),
+    ("duplicate-ref", "two components share one reference"),
+    ("duplicate-net-code", "two nets share one code"),
+    ("unknown-component", "a net names a component that is not in the netlist"),
+    ("pin-on-two-nets", "one pin is listed on two different nets"),
+    ("missing-libpart", "a component's library part is not in the netlist"),
+    ("netlist-version", "a netlist version netmargin does not know"),
+];

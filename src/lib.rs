@@ -17,3 +17,4 @@ pub mod pipeline;
 pub mod report;
 #[doc(hidden)]
 pub mod synth;
+pub mod checks;

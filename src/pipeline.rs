@@ -35,6 +35,9 @@ pub struct FileOutcome {
     /// Diagnostics from reading the model (reading went on).
     pub diags: Vec<Diag>,
     pub summary: Summary,
+    /// Classification coverage of IC-like parts: (classified, IC-like), once the
+    /// classifier has run.
+    pub coverage: Option<(usize, usize)>,
 }
 
 impl FileOutcome {
@@ -86,7 +89,7 @@ fn io_diag(path: &str, e: &std::io::Error) -> Diag {
 /// Reads and models one file.
 pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
     let name = if path == "-" { "<stdin>".to_string() } else { path.to_string() };
-    let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default() };
+    let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default(), coverage: None };
     let bytes = match read_bytes(path, opts) {
         Ok(b) => b,
         Err(d) => {

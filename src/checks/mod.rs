@@ -1,0 +1,76 @@
+//! The checks. One check, one file (`src/checks/<id>.rs`, the id with `_` for `-`): a doc
+//! comment that says what it finds, why it matters, an example and the fix, then the code.
+//! [`REGISTRY`] lists every check with its id, default severity and summary; `explain`,
+//! the SARIF rule metadata and the docs are generated from it and from the doc comments, so
+//! they never drift.
+
+use crate::diag::Severity;
+
+include!(concat!(env!("OUT_DIR"), "/check_docs.rs"));
+
+/// What every check declares about itself.
+#[derive(Debug, Clone, Copy)]
+pub struct CheckInfo {
+    /// Stable kebab-case id.
+    pub id: &'static str,
+    pub severity: Severity,
+    /// One line, lowercase, no final period.
+    pub summary: &'static str,
+}
+
+impl CheckInfo {
+    /// The check's doc comment (from its source file).
+    pub fn doc(&self) -> &'static str {
+        CHECK_DOCS.iter().find(|(id, _)| *id == self.id).map_or("", |(_, d)| d)
+    }
+}
+
+macro_rules! registry {
+    ($($id:literal, $sev:ident, $summary:literal;)*) => {
+        /// Every check, in the order `explain` lists them.
+        pub static REGISTRY: &[CheckInfo] = &[
+            $(CheckInfo { id: $id, severity: Severity::$sev, summary: $summary },)*
+        ];
+    };
+}
+
+registry! {
+    "floating-cmos-input", Error, "a CMOS input with nothing to set its level: no driver, no rail, no pull resistor";
+    "floating-ttl-input", Warning, "a TTL input left open: it floats high on the bench and picks up noise in service";
+    "floating-bus", Warning, "a net driven only by three-state outputs with CMOS loads and no pull resistor";
+    "fanout-overrun", Error, "an output's low- or high-state current budget exceeds its rating (or the derating)";
+    "ttl-high-into-cmos", Error, "a driver's guaranteed high level is below a CMOS load's VIH";
+    "level-mismatch", Error, "a guaranteed low level above a load's VIL, or another high-level shortfall";
+    "missing-pull-up", Error, "an open-collector or open-drain output with no pull-up resistor to a rail";
+    "pull-up-out-of-range", Error, "a pull-up outside the window set by the output's IOL and the loads' currents";
+    "output-contention", Error, "two push-pull outputs on one net, or a push-pull output tied to a rail";
+    "ttl-pull-down-too-large", Error, "a TTL input held low through a resistor too large for its input current";
+    "input-overvoltage", Error, "a driver's high level above what a load's input can take at its supply";
+    "power-pin-miswired", Error, "a supply pin on ground, a ground pin on a supply, or a supply pin on no net";
+    "unpowered-part", Error, "a classified part whose supply or ground pin is on no net or absent";
+    "weak-high-drive", Warning, "a TTL output that must source a non-logic load (an LED to ground) in its high state";
+    "package-mismatch", Warning, "the footprint's pin count disagrees with the classified function's package";
+    "pin-role-mismatch", Warning, "the netlist's pin types disagree with the function table for the part (wrong symbol)";
+    "unclassified-part", Info, "an IC-like part whose value no mapping matched; near misses suggested";
+}
+
+/// Looks a check up by id.
+pub fn info(id: &str) -> Option<&'static CheckInfo> {
+    REGISTRY.iter().find(|c| c.id == id)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn ids_are_unique_kebab_case_and_summaries_follow_the_style() {
+        let mut seen = std::collections::HashSet::new();
+        for c in REGISTRY {
+            assert!(seen.insert(c.id), "duplicate {}", c.id);
+            assert!(c.id.chars().all(|ch| ch.is_ascii_lowercase() || ch == '-'), "{}", c.id);
+            assert!(!c.summary.ends_with('.'), "{}", c.id);
+            assert!(c.summary.chars().next().is_some_and(|ch| !ch.is_uppercase()), "{}", c.id);
+        }
+    }
+}
