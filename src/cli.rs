@@ -40,6 +40,36 @@ pub enum ColorChoice {
 pub enum Command {
     /// Read netlists and report what was found in them
     Check(CheckArgs),
+    /// List every component with its family, function and how it was classified
+    Parts(PartsArgs),
+    /// List the logic families and their key figures at a chosen supply
+    Families(FamiliesArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct PartsArgs {
+    /// The netlist (`-` reads standard input)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+    pub format: ListFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct FamiliesArgs {
+    /// Supply voltage at which to show the figures (default: each family's nominal)
+    #[arg(long, value_name = "VOLTS")]
+    pub supply: Option<f64>,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+    pub format: ListFormat,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ListFormat {
+    Text,
+    Json,
 }
 
 #[derive(Debug, Args)]

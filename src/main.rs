@@ -62,5 +62,30 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             out.flush()?;
             Ok(code)
         }
+        Command::Parts(args) => {
+            let f = pipeline::read_file(&args.path, &opts);
+            let rules = netmargin::classify::classifier::Rules::builtin();
+            let mut out = std::io::stdout().lock();
+            if f.fatal.is_some() {
+                let stderr = std::io::stderr();
+                let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
+                human::write_file(&mut stderr.lock(), &eh, &f)?;
+                return Ok(2);
+            }
+            let source = f.source.as_ref().expect("read");
+            let tree = netmargin::sexpr::parse(source.text()).expect("parsed once already");
+            let nl = netmargin::netlist::build(&tree).expect("built once already");
+            let cl = netmargin::classify::classifier::classify(&nl, &rules);
+            netmargin::report::parts::write_parts(&mut out, &f.name, &nl, &cl, args.format == netmargin::cli::ListFormat::Json)?;
+            out.flush()?;
+            Ok(0)
+        }
+        Command::Families(args) => {
+            let rules = netmargin::classify::classifier::Rules::builtin();
+            let mut out = std::io::stdout().lock();
+            netmargin::report::parts::write_families(&mut out, &rules, args.supply, args.format == netmargin::cli::ListFormat::Json)?;
+            out.flush()?;
+            Ok(0)
+        }
     }
 }

@@ -43,6 +43,9 @@ pub enum Series {
     S74,
     /// CD4000 / MC14000 / HEF4000 numbering.
     S4000,
+    /// Anything else (a microprocessor, an oscillator module, a bus transceiver): named by the
+    /// explicit entries of `rules/parts.toml`.
+    Other,
 }
 
 impl Series {
@@ -50,6 +53,7 @@ impl Series {
         match self {
             Series::S74 => "74",
             Series::S4000 => "4000",
+            Series::Other => "other",
         }
     }
 }
@@ -338,6 +342,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
         let series = match rf.series.get_ref().as_str() {
             "74" => Series::S74,
             "4000" => Series::S4000,
+            "other" => Series::Other,
             other => {
                 errors.push(RuleError::new(
                     Some(rf.series.span()),
@@ -376,6 +381,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
             None => series,
             Some("74") => Series::S74,
             Some("4000") => Series::S4000,
+            Some("other") => Series::Other,
             Some(other) => {
                 let s = rf.like_series.as_ref().expect("matched Some above");
                 errors.push(RuleError::new(

@@ -1,8 +1,10 @@
 //! Part classification: logic families, functions and pin roles from component values,
 //! through the mapping files under `rules/` (embedded in the binary) and project overrides.
 
+pub mod classifier;
 pub mod family;
 pub mod function;
+pub mod parts;
 pub mod pattern;
 
 use std::fmt;

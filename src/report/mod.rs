@@ -1,3 +1,4 @@
 //! Reporters: each turns the same outcomes into one output format, writing to `impl Write`.
 
 pub mod human;
+pub mod parts;

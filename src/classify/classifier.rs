@@ -1,0 +1,376 @@
+//! From a netlist to a classified circuit: for every component, what kind of part it is,
+//! its logic family and function where it is logic, how that was decided, and the role of
+//! every pin.
+//!
+//! Precedence, strongest first: a component field (`Logic family`, optionally `Logic
+//! function`); a project's explicit entry; a shipped explicit entry (`rules/parts.toml`);
+//! the 74-series and 4000-series value patterns; the netlist's own pin types. Pin roles come
+//! from the function table when the function is known, else from the netlist's pin types.
+
+use serde::Serialize;
+
+use super::family::FamilyTable;
+use super::function::{FunctionTable, Series};
+use super::parts::{EntryKind, PartTable};
+use super::pattern::{self, Suggestion, ValueMatch};
+use super::PinRole;
+use crate::netlist::{Component, Netlist, PinType};
+
+/// The rule tables a run uses.
+#[derive(Debug, Clone)]
+pub struct Rules {
+    pub families: FamilyTable,
+    pub functions: FunctionTable,
+    pub parts: PartTable,
+    /// Where the tables came from, for reports ("shipped rules/families.toml", a project file).
+    pub sources: Vec<String>,
+}
+
+impl Rules {
+    /// The shipped tables, embedded in the binary.
+    pub fn builtin() -> Rules {
+        Rules {
+            families: FamilyTable::builtin(),
+            functions: FunctionTable::builtin(),
+            parts: PartTable::builtin(),
+            sources: vec![
+                "shipped rules/families.toml".into(),
+                "shipped rules/functions.toml".into(),
+                "shipped rules/parts.toml".into(),
+            ],
+        }
+    }
+}
+
+/// How a component was classified.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Method {
+    /// A `Logic family` field on the component.
+    ComponentField,
+    /// An explicit entry in a project's parts file.
+    ProjectOverride,
+    /// An explicit entry in the shipped `rules/parts.toml`.
+    ShippedEntry,
+    /// The 74-series or 4000-series value pattern.
+    Pattern,
+    /// Not classified; pin roles from the netlist's pin types.
+    NetlistOnly,
+    /// IC-like, and neither classified nor carrying usable pin types.
+    NotClassified,
+    /// Not an IC (resistor, capacitor, connector ...): classified by its reference.
+    Reference,
+}
+
+impl Method {
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Method::ComponentField => "component field",
+            Method::ProjectOverride => "project override",
+            Method::ShippedEntry => "shipped entry",
+            Method::Pattern => "pattern",
+            Method::NetlistOnly => "netlist only",
+            Method::NotClassified => "not classified",
+            Method::Reference => "reference",
+        }
+    }
+}
+
+/// What a component is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum PartKind {
+    Logic,
+    /// IC-like but not a logic part (regulator, op-amp, timer).
+    NotLogic,
+    /// IC-like and unknown.
+    UnknownIc,
+    Resistor,
+    ResistorNetwork,
+    Capacitor,
+    Led,
+    Diode,
+    Connector,
+    Other,
+}
+
+/// Where a pin's role came from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum RoleSource {
+    Table,
+    Netlist,
+    Unknown,
+}
+
+/// One component, classified.
+#[derive(Debug, Clone)]
+pub struct PartClass {
+    pub kind: PartKind,
+    pub method: Method,
+    /// Family id (as in `rules/families.toml`).
+    pub family: Option<String>,
+    /// The function, when it is in the function table.
+    pub function: Option<(Series, String)>,
+    /// The function the value names, even when the table lacks it.
+    pub named_function: Option<String>,
+    pub value_match: Option<ValueMatch>,
+    /// Near misses, for an unclassified IC-like part.
+    pub suggestions: Vec<Suggestion>,
+    pub ic_like: bool,
+    /// Per pin of the component (same order as `Component::pins`).
+    pub roles: Vec<PinRole>,
+    pub role_source: Vec<RoleSource>,
+    /// The function table's pin name and unit, per pin.
+    pub table_names: Vec<Option<String>>,
+    pub units: Vec<Option<String>>,
+    /// For a three-state pin: indices (into the component's pins) of its enables.
+    pub enables: Vec<Vec<usize>>,
+    /// Index of the explicit entry used, if any.
+    pub entry: Option<usize>,
+}
+
+impl PartClass {
+    /// True when the part is logic and its family is known.
+    pub fn is_logic(&self) -> bool {
+        self.kind == PartKind::Logic && self.family.is_some()
+    }
+}
+
+/// The whole board, classified.
+#[derive(Debug, Clone)]
+pub struct Classified {
+    pub parts: Vec<PartClass>,
+    /// (classified, IC-like): how many IC-like parts have a family or a known non-logic entry.
+    pub coverage: (usize, usize),
+    /// Entries of project files that matched no component.
+    pub unused_project_entries: Vec<usize>,
+}
+
+/// The reference's letter prefix: `U12` -> `U`, `RN3` -> `RN`, `IC4A` -> `IC`.
+pub fn ref_prefix(reference: &str) -> &str {
+    let end = reference.find(|c: char| !c.is_ascii_alphabetic()).unwrap_or(reference.len());
+    &reference[..end]
+}
+
+fn kind_by_reference(c: &Component<'_>) -> PartKind {
+    let p = ref_prefix(c.reference.as_str()).to_ascii_uppercase();
+    let value = c.value_str().to_ascii_uppercase();
+    let lib = c.libsource.as_ref().and_then(|l| l.part.as_ref()).map_or(String::new(), |p| p.as_str().to_ascii_uppercase());
+    match p.as_str() {
+        "R" | "VR" if c.pins.len() <= 2 => PartKind::Resistor,
+        "R" | "RN" | "RP" | "RR" | "RA" | "RM" => PartKind::ResistorNetwork,
+        "C" => PartKind::Capacitor,
+        "LED" | "DS" => PartKind::Led,
+        "D" if value.contains("LED") || lib.contains("LED") => PartKind::Led,
+        "D" => PartKind::Diode,
+        "J" | "P" | "CN" | "CON" | "X" | "XS" | "XP" | "K" | "JP" | "H" | "TP" => PartKind::Connector,
+        "U" | "IC" | "Z" | "Q" if p != "Q" => PartKind::UnknownIc,
+        _ => {
+            let many = c.pins.len() > 4;
+            let logicish = pattern::match_value(c.value_str()).is_some() || value.starts_with("74") || value.contains("40");
+            if many && logicish {
+                PartKind::UnknownIc
+            } else {
+                PartKind::Other
+            }
+        }
+    }
+}
+
+fn role_from_netlist(t: PinType, name: Option<&str>) -> (PinRole, RoleSource) {
+    let r = match t {
+        PinType::Input => PinRole::Input,
+        PinType::Output => PinRole::PushPull,
+        PinType::Bidirectional => PinRole::Bidirectional,
+        PinType::TriState => PinRole::ThreeState,
+        PinType::Passive => PinRole::Passive,
+        PinType::OpenCollector => PinRole::OpenCollector,
+        PinType::OpenEmitter => PinRole::OpenEmitter,
+        PinType::NoConnect => PinRole::NoConnect,
+        PinType::PowerIn | PinType::PowerOut => {
+            if name.is_some_and(is_ground_name) {
+                PinRole::Ground
+            } else {
+                PinRole::Supply
+            }
+        }
+        PinType::Unspecified | PinType::Free | PinType::Unknown => return (PinRole::Unknown, RoleSource::Unknown),
+    };
+    (r, RoleSource::Netlist)
+}
+
+/// A pin or net name that means ground: GND, GNDD, AGND, DGND, 0V, VSS, VEE ...
+pub fn is_ground_name(name: &str) -> bool {
+    let n = name.trim_start_matches('/').to_ascii_uppercase();
+    n.starts_with("GND") || n.ends_with("GND") || n == "0V" || n.starts_with("VSS") || n.starts_with("VEE") || n == "V-" || n == "COM"
+}
+
+fn map_series(s: &pattern::Series) -> Series {
+    match s {
+        pattern::Series::S74 => Series::S74,
+        pattern::Series::S4000 => Series::S4000,
+    }
+}
+
+/// Reads a `Logic function` field: `00`, `74:00`, `4011`, `4000:4011`, `other:osc-dip14`.
+fn parse_function_field(s: &str) -> (Series, String) {
+    let s = s.trim();
+    if let Some((series, id)) = s.split_once(':') {
+        let series = match series.trim() {
+            "74" => Series::S74,
+            "4000" => Series::S4000,
+            _ => Series::Other,
+        };
+        return (series, id.trim().to_string());
+    }
+    let digits = s.chars().all(|c| c.is_ascii_digit());
+    if digits && s.len() >= 4 && (s.starts_with("40") || s.starts_with("45")) {
+        (Series::S4000, s.to_string())
+    } else if digits {
+        (Series::S74, s.to_string())
+    } else {
+        (Series::Other, s.to_string())
+    }
+}
+
+/// Classifies every component of a netlist.
+pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
+    let mut parts = Vec::with_capacity(nl.components.len());
+    let mut used_entries = vec![false; rules.parts.entries.len()];
+    let (mut classified, mut ic_like) = (0, 0);
+    for c in &nl.components {
+        let mut kind = kind_by_reference(c);
+        let mut method = Method::Reference;
+        let mut family = None;
+        let mut function = None;
+        let mut named_function = None;
+        let mut value_match = None;
+        let mut suggestions = Vec::new();
+        let mut entry = None;
+        let value = c.value_str();
+
+        let field_family = c.field("Logic family").and_then(|f| f.value.as_ref()).map(|v| v.as_str().to_string());
+        let field_function = c.field("Logic function").and_then(|f| f.value.as_ref()).map(|v| v.as_str().to_string());
+        let ic = matches!(kind, PartKind::UnknownIc) || field_family.is_some();
+        if let Some(ff) = field_family {
+            kind = PartKind::Logic;
+            method = Method::ComponentField;
+            family = rules.families.get(&ff).map(|f| f.id.clone()).or(Some(ff));
+            let m = pattern::match_value(value);
+            let (series, id) = match (&field_function, &m) {
+                (Some(f), _) => parse_function_field(f),
+                (None, Some(m)) => (map_series(&m.series), m.function.clone()),
+                (None, None) => (Series::Other, String::new()),
+            };
+            if !id.is_empty() {
+                named_function = Some(id.clone());
+                if rules.functions.get(series, &id).is_some() {
+                    function = Some((series, id));
+                }
+            }
+            value_match = m;
+        } else if let Some((i, e)) = rules.parts.find(value).filter(|_| ic || c.pins.len() > 2) {
+            used_entries[i] = true;
+            entry = Some(i);
+            method = if e.shipped { Method::ShippedEntry } else { Method::ProjectOverride };
+            match e.kind {
+                EntryKind::NotLogic => kind = PartKind::NotLogic,
+                EntryKind::Logic => {
+                    kind = PartKind::Logic;
+                    family = e.family.as_ref().map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone()));
+                    if let Some(id) = &e.function {
+                        named_function = Some(id.clone());
+                        if rules.functions.get(e.series, id).is_some() {
+                            function = Some((e.series, id.clone()));
+                        }
+                    }
+                }
+            }
+        } else if let Some(m) = pattern::match_value(value).filter(|_| !matches!(kind, PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Connector | PartKind::Led | PartKind::Diode)) {
+            kind = PartKind::Logic;
+            method = Method::Pattern;
+            family = Some(m.family.clone());
+            let series = map_series(&m.series);
+            named_function = Some(m.function.clone());
+            if rules.functions.get(series, &m.function).is_some_and(|f| f.available_in(&m.family) || f.families.is_none()) {
+                function = Some((series, m.function.clone()));
+            }
+            value_match = Some(m);
+        } else if ic {
+            kind = PartKind::UnknownIc;
+            let known = |s: &pattern::Series, f: &str| rules.functions.get(map_series(s), f).is_some();
+            suggestions = pattern::near_misses(value, &known, 3);
+            method = if c.pins.iter().any(|p| !matches!(p.ptype, PinType::Unknown | PinType::Unspecified | PinType::Passive)) {
+                Method::NetlistOnly
+            } else {
+                Method::NotClassified
+            };
+        }
+        let is_ic = ic || matches!(kind, PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc);
+        if is_ic {
+            ic_like += 1;
+            if matches!(kind, PartKind::Logic | PartKind::NotLogic) {
+                classified += 1;
+            }
+        }
+
+        // pin roles
+        let n = c.pins.len();
+        let mut roles = Vec::with_capacity(n);
+        let mut role_source = Vec::with_capacity(n);
+        let mut table_names = vec![None; n];
+        let mut units = vec![None; n];
+        let mut enables = vec![Vec::new(); n];
+        let func = function.as_ref().and_then(|(s, id)| rules.functions.get(*s, id));
+        let fam = family.clone().unwrap_or_default();
+        for (i, p) in c.pins.iter().enumerate() {
+            let def = func.and_then(|f| f.pin(&p.num));
+            match (def, func) {
+                (Some(d), Some(f)) => {
+                    roles.push(f.role_for_family(&p.num, &fam).unwrap_or(d.role));
+                    role_source.push(RoleSource::Table);
+                    table_names[i] = Some(d.name.clone());
+                    units[i] = d.unit.clone();
+                    enables[i] = d.enable.iter().filter_map(|e| c.pins.iter().position(|q| q.num == *e)).collect();
+                }
+                _ => {
+                    let passive_kind = matches!(kind, PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Led | PartKind::Diode | PartKind::Connector);
+                    if passive_kind {
+                        roles.push(PinRole::Passive);
+                        role_source.push(RoleSource::Netlist);
+                    } else {
+                        let (r, s) = role_from_netlist(p.ptype, p.name.as_deref());
+                        roles.push(r);
+                        role_source.push(s);
+                    }
+                }
+            }
+        }
+        parts.push(PartClass {
+            kind,
+            method,
+            family,
+            function,
+            named_function,
+            value_match,
+            suggestions,
+            ic_like: is_ic,
+            roles,
+            role_source,
+            table_names,
+            units,
+            enables,
+            entry,
+        });
+    }
+    let unused_project_entries = rules
+        .parts
+        .entries
+        .iter()
+        .enumerate()
+        .filter(|(i, e)| !e.shipped && !used_entries[*i])
+        .map(|(i, _)| i)
+        .collect();
+    Classified { parts, coverage: (classified, ic_like), unused_project_entries }
+}

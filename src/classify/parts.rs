@@ -1,0 +1,197 @@
+//! `rules/parts.toml`: explicit value-to-part entries, checked before the 74-series and
+//! 4000-series patterns. They name parts the patterns do not cover (an oscillator module, a
+//! microprocessor), mark IC-like parts that are not logic (regulators, op-amps), and correct
+//! a pattern where a maker's numbering misleads.
+//!
+//! ```toml
+//! [[part]]
+//! values = ["OSC*MHZ*", "XO-*"]   # globs on the component value, case-insensitive (`*`, `?`)
+//! family = "74HC"                 # the family whose DC data applies (logic parts)
+//! series = "other"                # "74", "4000" or "other" (default "other")
+//! function = "osc-dip14"          # a function id in that series
+//! note = "full-size DIP-14 oscillator can, HCMOS output"
+//!
+//! [[part]]
+//! values = ["LM358*", "NE555*"]
+//! kind = "not-logic"              # known, and outside netmargin's checks
+//! ```
+
+use std::ops::Range;
+
+use serde::Deserialize;
+use toml::Spanned;
+
+use super::function::Series;
+use super::RuleError;
+
+pub const BUILTIN_TEXT: &str = include_str!("../../rules/parts.toml");
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum EntryKind {
+    Logic,
+    NotLogic,
+}
+
+/// One explicit entry.
+#[derive(Debug, Clone)]
+pub struct PartEntry {
+    pub values: Vec<String>,
+    pub kind: EntryKind,
+    pub family: Option<String>,
+    pub series: Series,
+    pub function: Option<String>,
+    pub note: Option<String>,
+    /// Span of the entry in its file.
+    pub span: Range<usize>,
+    /// True for the shipped file, false for a project's.
+    pub shipped: bool,
+}
+
+impl PartEntry {
+    pub fn matches(&self, value: &str) -> bool {
+        self.values.iter().any(|g| glob_match(g, value.trim()))
+    }
+}
+
+/// The entries of the shipped file and any project file (project entries first).
+#[derive(Debug, Clone, Default)]
+pub struct PartTable {
+    pub entries: Vec<PartEntry>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawFile {
+    #[serde(default)]
+    part: Vec<Spanned<RawPart>>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPart {
+    values: Vec<String>,
+    #[serde(default)]
+    kind: Option<Spanned<String>>,
+    #[serde(default)]
+    family: Option<String>,
+    #[serde(default)]
+    series: Option<Spanned<String>>,
+    #[serde(default)]
+    function: Option<String>,
+    #[serde(default)]
+    note: Option<String>,
+}
+
+impl PartTable {
+    pub fn builtin() -> PartTable {
+        PartTable::parse(BUILTIN_TEXT, true).expect("the shipped rules/parts.toml is valid (tested)")
+    }
+
+    pub fn parse(text: &str, shipped: bool) -> Result<PartTable, Vec<RuleError>> {
+        let raw: RawFile = toml::from_str(text).map_err(|e| vec![RuleError::from_toml(&e)])?;
+        let mut errors = Vec::new();
+        let mut entries = Vec::new();
+        for sp in raw.part {
+            let span = sp.span();
+            let r = sp.into_inner();
+            let kind = match r.kind.as_ref().map(|k| k.get_ref().as_str()) {
+                None | Some("logic") => EntryKind::Logic,
+                Some("not-logic") => EntryKind::NotLogic,
+                Some(other) => {
+                    let k = r.kind.as_ref().expect("some");
+                    errors.push(RuleError::new(Some(k.span()), format!("unknown kind `{other}`: expected \"logic\" or \"not-logic\"")));
+                    continue;
+                }
+            };
+            let series = match r.series.as_ref().map(|s| s.get_ref().as_str()) {
+                None | Some("other") => Series::Other,
+                Some("74") => Series::S74,
+                Some("4000") => Series::S4000,
+                Some(other) => {
+                    let s = r.series.as_ref().expect("some");
+                    errors.push(RuleError::new(Some(s.span()), format!("unknown series `{other}`: expected \"74\", \"4000\" or \"other\"")));
+                    continue;
+                }
+            };
+            if r.values.is_empty() {
+                errors.push(RuleError::new(Some(span.clone()), "a part entry needs at least one value glob"));
+                continue;
+            }
+            if kind == EntryKind::Logic && (r.family.is_none() || r.function.is_none()) {
+                errors.push(RuleError::new(Some(span.clone()), "a logic part entry needs `family` and `function`"));
+                continue;
+            }
+            entries.push(PartEntry { values: r.values, kind, family: r.family, series, function: r.function, note: r.note, span, shipped });
+        }
+        if errors.is_empty() {
+            Ok(PartTable { entries })
+        } else {
+            Err(errors)
+        }
+    }
+
+    /// Puts `over`'s entries in front, so they win.
+    pub fn merge_over(&mut self, over: PartTable) {
+        let mut e = over.entries;
+        e.append(&mut self.entries);
+        self.entries = e;
+    }
+
+    pub fn find(&self, value: &str) -> Option<(usize, &PartEntry)> {
+        self.entries.iter().enumerate().find(|(_, e)| e.matches(value))
+    }
+}
+
+/// Case-insensitive glob with `*` (any run) and `?` (one character).
+pub fn glob_match(pattern: &str, text: &str) -> bool {
+    let p: Vec<char> = pattern.chars().flat_map(char::to_lowercase).collect();
+    let t: Vec<char> = text.chars().flat_map(char::to_lowercase).collect();
+    let (mut pi, mut ti) = (0, 0);
+    let (mut star, mut mark) = (None, 0);
+    while ti < t.len() {
+        if pi < p.len() && (p[pi] == '?' || p[pi] == t[ti]) {
+            pi += 1;
+            ti += 1;
+        } else if pi < p.len() && p[pi] == '*' {
+            star = Some(pi);
+            mark = ti;
+            pi += 1;
+        } else if let Some(s) = star {
+            pi = s + 1;
+            mark += 1;
+            ti = mark;
+        } else {
+            return false;
+        }
+    }
+    while pi < p.len() && p[pi] == '*' {
+        pi += 1;
+    }
+    pi == p.len()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn globs() {
+        assert!(glob_match("LM358*", "lm358n"));
+        assert!(glob_match("*555*", "NE555P"));
+        assert!(glob_match("OSC?MHZ", "osc4mhz"));
+        assert!(!glob_match("LM358*", "LM35"));
+        assert!(glob_match("a*b*c", "aXXbYc"));
+        assert!(!glob_match("a*b*c", "aXXbY"));
+    }
+
+    #[test]
+    fn shipped_file_loads_and_rejects_unknown_keys() {
+        let t = PartTable::builtin();
+        assert!(t.entries.len() >= 5);
+        let text = "[[part]]\nvalues = [\"x\"]\nkind = \"not-logic\"\ncolour = 1\n";
+        let e = PartTable::parse(text, false).unwrap_err();
+        assert_eq!(e.len(), 1);
+        assert_eq!(&text[e[0].span.clone().unwrap()], "colour");
+        assert!(e[0].message.contains("colour"), "{}", e[0].message);
+    }
+}
