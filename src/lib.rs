@@ -18,3 +18,4 @@ pub mod report;
 #[doc(hidden)]
 pub mod synth;
 pub mod checks;
+pub mod circuit;

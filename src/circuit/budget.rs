@@ -1,0 +1,259 @@
+//! Per-net DC budgets, as an engineer lays them out with the data books open: for each
+//! driver, the current it must sink in the low state and source in the high state, item by
+//! item, against its rating; the levels it then guarantees; and each load's margin against
+//! them. The checks, the `net` command and the audit charts all read these numbers; none
+//! recomputes them.
+
+use super::{Circuit, PinRef};
+use crate::classify::PinRole;
+use crate::values::format_ohms;
+
+/// One contribution to a state's current.
+#[derive(Debug, Clone)]
+pub struct Item {
+    pub what: String,
+    pub at: Option<PinRef>,
+    /// Magnitude in amperes.
+    pub amps: f64,
+}
+
+/// One state (low or high) of one driver.
+#[derive(Debug, Clone)]
+pub struct StateBudget {
+    pub items: Vec<Item>,
+    /// Total current magnitude, amperes.
+    pub total: f64,
+    /// The driver's rated current magnitude in this state.
+    pub rating: f64,
+    /// The guaranteed level at `total` (VOL max or VOH min); `None` beyond the published rows.
+    pub level: Option<f64>,
+}
+
+impl StateBudget {
+    pub fn ratio(&self) -> f64 {
+        if self.rating > 0.0 {
+            self.total / self.rating
+        } else if self.total > 0.0 {
+            f64::INFINITY
+        } else {
+            0.0
+        }
+    }
+}
+
+/// A pull-up's effect on the high level.
+#[derive(Debug, Clone)]
+pub struct PullUpHigh {
+    pub rail_net: usize,
+    pub rail_volts: f64,
+    /// Pull-ups in parallel.
+    pub ohms: f64,
+    /// Current the pull-up supplies to the loads and leakages in the high state.
+    pub current: f64,
+    pub level: f64,
+}
+
+#[derive(Debug, Clone)]
+pub struct DriverBudget {
+    /// Index into the net's drivers.
+    pub driver: usize,
+    pub low: Option<StateBudget>,
+    /// `None` for an open-collector output (it does not drive high).
+    pub high: Option<StateBudget>,
+    pub pull_up: Option<PullUpHigh>,
+    /// The level the net reaches in the high state: the driver's VOH, raised by a pull-up;
+    /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
+    pub high_level: Option<f64>,
+    pub low_level: Option<f64>,
+}
+
+/// A load's margins against one driver.
+#[derive(Debug, Clone)]
+pub struct LoadMargin {
+    pub driver: usize,
+    pub load: usize,
+    pub vih: f64,
+    pub vil: f64,
+    /// high level - VIH (negative: short).
+    pub high_margin: Option<f64>,
+    /// VIL - low level (negative: short).
+    pub low_margin: Option<f64>,
+}
+
+/// The resistor window for an open-collector net.
+#[derive(Debug, Clone)]
+pub struct PullUpWindow {
+    pub rail_net: usize,
+    pub rail_volts: f64,
+    /// The driver whose rating sets R_min (the weakest).
+    pub driver: usize,
+    pub vol: f64,
+    pub iol: f64,
+    pub sum_iil: f64,
+    pub sum_high: f64,
+    pub vih_max: Option<f64>,
+    pub r_min: f64,
+    pub r_max: Option<f64>,
+    /// The fitted pull-ups in parallel.
+    pub fitted: Option<f64>,
+}
+
+#[derive(Debug, Clone, Default)]
+pub struct NetBudget {
+    pub drivers: Vec<DriverBudget>,
+    pub margins: Vec<LoadMargin>,
+    pub window: Option<PullUpWindow>,
+}
+
+fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
+    let g: f64 = rs.filter(|r| *r > 0.0).map(|r| 1.0 / r).sum();
+    (g > 0.0).then(|| 1.0 / g)
+}
+
+/// Computes the budget of one net.
+pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
+    let nm = &cx.nets[net];
+    let mut out = NetBudget::default();
+    let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
+    let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
+    for (di, d) in nm.drivers.iter().enumerate() {
+        let Some(lv) = &d.levels else {
+            out.drivers.push(DriverBudget { driver: di, low: None, high: None, pull_up: None, high_level: None, low_level: None });
+            continue;
+        };
+        let vol_rated = lv.vol.last().map_or(0.4, |p| p.v);
+        let voh_light = lv.voh.first().map_or(2.4, |p| p.v);
+        // --- low state: this driver low, every other driver high or off
+        let mut items = Vec::new();
+        for l in nm.loads.iter().filter(|l| l.at != d.at) {
+            if let Some(ll) = &l.levels {
+                items.push(Item { what: format!("{} input low current (IIL)", cx.pin_name(l.at)), at: Some(l.at), amps: ll.iil_max.abs() });
+            }
+        }
+        for &pi in &pullups {
+            let p = &nm.pulls[pi];
+            let a = ((p.rail_volts - vol_rated) / p.ohms).max(0.0);
+            items.push(Item {
+                what: format!("{} pull-up {} to {} ({:.2} V - {:.2} V) / R", cx.nl.components[p.resistor].reference, format_ohms(p.ohms), cx.net_name(p.rail_net), p.rail_volts, vol_rated),
+                at: Some(p.at),
+                amps: a,
+            });
+        }
+        for (oi, o) in nm.drivers.iter().enumerate() {
+            if oi == di || o.at.comp == d.at.comp && false {
+                continue;
+            }
+            if let Some(ol) = &o.levels {
+                match o.role {
+                    PinRole::ThreeState | PinRole::Bidirectional => items.push(Item { what: format!("{} off-state leakage (IOZ)", cx.pin_name(o.at)), at: Some(o.at), amps: ol.ioz.abs() }),
+                    PinRole::OpenCollector => items.push(Item { what: format!("{} off-state leakage", cx.pin_name(o.at)), at: Some(o.at), amps: ol.oc_leakage.abs() }),
+                    _ => {}
+                }
+            }
+        }
+        let total: f64 = items.iter().map(|i| i.amps).sum();
+        let low = StateBudget { items, total, rating: lv.iol_max.abs(), level: lv.vol_at(total) };
+        let low_level = low.level;
+
+        // --- high state
+        let mut high = None;
+        let mut high_level = None;
+        let drives_high = matches!(d.role, PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional | PinRole::OpenEmitter);
+        let mut load_high: f64 = 0.0;
+        let mut items = Vec::new();
+        for l in nm.loads.iter().filter(|l| l.at != d.at) {
+            if let Some(ll) = &l.levels {
+                load_high += ll.iih_max.abs();
+                items.push(Item { what: format!("{} input high current (IIH)", cx.pin_name(l.at)), at: Some(l.at), amps: ll.iih_max.abs() });
+            }
+        }
+        for (oi, o) in nm.drivers.iter().enumerate() {
+            if oi == di {
+                continue;
+            }
+            if let Some(ol) = &o.levels {
+                let a = match o.role {
+                    PinRole::ThreeState | PinRole::Bidirectional => ol.ioz.abs(),
+                    PinRole::OpenCollector => ol.oc_leakage.abs(),
+                    _ => continue,
+                };
+                load_high += a;
+                items.push(Item { what: format!("{} off-state leakage", cx.pin_name(o.at)), at: Some(o.at), amps: a });
+            }
+        }
+        if drives_high {
+            for &pi in &pulldowns {
+                let p = &nm.pulls[pi];
+                let a = (voh_light - p.rail_volts).max(0.0) / p.ohms;
+                items.push(Item {
+                    what: format!("{} pull-down {} to {} ({:.2} V / R)", cx.nl.components[p.resistor].reference, format_ohms(p.ohms), cx.net_name(p.rail_net), voh_light),
+                    at: Some(p.at),
+                    amps: a,
+                });
+            }
+            let total: f64 = items.iter().map(|i| i.amps).sum();
+            let level = lv.voh_at(-total);
+            high_level = level;
+            high = Some(StateBudget { items, total, rating: lv.ioh_max.abs(), level });
+        }
+        // a pull-up raises (or, for an open collector, makes) the high level
+        let pull_up = parallel(pullups.iter().map(|&i| nm.pulls[i].ohms)).map(|r| {
+            let p = &nm.pulls[pullups[0]];
+            let level = p.rail_volts - r * load_high;
+            PullUpHigh { rail_net: p.rail_net, rail_volts: p.rail_volts, ohms: r, current: load_high, level }
+        });
+        if let Some(pu) = &pull_up {
+            high_level = Some(high_level.map_or(pu.level, |h| h.max(pu.level)));
+        }
+        out.drivers.push(DriverBudget { driver: di, low: Some(low), high, pull_up, high_level, low_level });
+    }
+    // margins
+    for db in &out.drivers {
+        let d = &nm.drivers[db.driver];
+        for (li, l) in nm.loads.iter().enumerate() {
+            if l.at == d.at {
+                continue;
+            }
+            let Some(ll) = &l.levels else { continue };
+            out.margins.push(LoadMargin {
+                driver: db.driver,
+                load: li,
+                vih: ll.vih_min,
+                vil: ll.vil_max,
+                high_margin: db.high_level.map(|h| h - ll.vih_min),
+                low_margin: db.low_level.map(|v| ll.vil_max - v),
+            });
+        }
+    }
+    // open-collector window
+    let oc: Vec<usize> = (0..nm.drivers.len()).filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some()).collect();
+    if !oc.is_empty() && oc.len() == nm.drivers.len() {
+        let rail = nm.pulls.iter().find(|p| p.up).map(|p| (p.rail_net, p.rail_volts)).or_else(|| {
+            // no pull-up: use the drivers' supply for the window the fix needs
+            let s = cx.supplies[nm.drivers[oc[0]].at.comp].as_ref()?;
+            Some((s.supply_net?, s.vcc))
+        });
+        if let Some((rail_net, v)) = rail {
+            let weakest = *oc
+                .iter()
+                .min_by(|&&a, &&b| {
+                    let ia = nm.drivers[a].levels.as_ref().map_or(0.0, |l| l.iol_max);
+                    let ib = nm.drivers[b].levels.as_ref().map_or(0.0, |l| l.iol_max);
+                    ia.partial_cmp(&ib).unwrap_or(std::cmp::Ordering::Equal)
+                })
+                .expect("oc is not empty");
+            let lv = nm.drivers[weakest].levels.as_ref().expect("filtered on levels");
+            let vol = lv.vol.last().map_or(0.4, |p| p.v);
+            let iol = lv.iol_max.abs();
+            let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.iil_max.abs()).sum();
+            let sum_high: f64 = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.iih_max.abs()).sum::<f64>()
+                + oc.iter().filter_map(|&i| nm.drivers[i].levels.as_ref()).map(|l| l.oc_leakage.abs()).sum::<f64>();
+            let vih_max = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.vih_min).fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
+            let r_min = if iol > sum_iil { (v - vol) / (iol - sum_iil) } else { f64::INFINITY };
+            let r_max = vih_max.filter(|_| sum_high > 0.0).map(|vih| (v - vih) / sum_high);
+            let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
+            out.window = Some(PullUpWindow { rail_net, rail_volts: v, driver: weakest, vol, iol, sum_iil, sum_high, vih_max, r_min, r_max, fitted });
+        }
+    }
+    out
+}
