@@ -440,6 +440,391 @@ fn triple_3_input_4023() {
     );
 }
 
+/// Checks every pin of the package: `roles[i]` is the role of pin `i + 1`.
+fn expect_package(t: &FunctionTable, series: Series, id: &str, roles: &[PinRole]) {
+    let all: Vec<(u32, PinRole)> = roles
+        .iter()
+        .enumerate()
+        .map(|(i, &r)| (i as u32 + 1, r))
+        .collect();
+    expect_roles(t, series, id, roles.len() as u32, &all);
+}
+
+/// Checks that each listed output is three-state, enabled by `enables` with the given polarity.
+fn expect_enables(
+    t: &FunctionTable,
+    series: Series,
+    id: &str,
+    outputs: &[u32],
+    enables: &[&str],
+    active_low: bool,
+) {
+    let f = func(t, series, id);
+    let want: Vec<String> = enables.iter().map(|e| e.to_string()).collect();
+    for &o in outputs {
+        let p = f
+            .pin(&o.to_string())
+            .unwrap_or_else(|| panic!("{id}: pin {o} missing"));
+        assert_eq!(p.role, ThreeState, "{id}: pin {o} role");
+        assert_eq!(p.enable, want, "{id}: pin {o} enables");
+        assert_eq!(p.enable_active_low, active_low, "{id}: pin {o} polarity");
+    }
+}
+
+fn expect_name(t: &FunctionTable, series: Series, id: &str, pin: u32, name: &str) {
+    let f = func(t, series, id);
+    let p = f
+        .pin(&pin.to_string())
+        .unwrap_or_else(|| panic!("{id}: pin {pin} missing"));
+    assert_eq!(p.name, name, "{id}: pin {pin} name");
+}
+
+#[test]
+fn jk_flip_flop_73_non_corner_supply() {
+    let t = table();
+    // Motorola SN54/74LS73A (FAST and LS TTL Data, p. 5-68) connection diagram: CP1=1 CD1=2 K1=3
+    // VCC=4 CP2=5 CD2=6 J2=7 Q2~=8 Q2=9 K2=10 GND=11 Q1=12 Q1~=13 J1=14; NXP 74HC73 Rev. 04 agrees
+    expect_package(
+        &t,
+        S74,
+        "73",
+        &[
+            Input, Input, Input, Supply, Input, Input, Input, PushPull, PushPull, Input, Ground,
+            PushPull, PushPull, Input,
+        ],
+    );
+    same_unit(&t, S74, "73", &[1, 2, 3, 12, 13, 14]);
+    same_unit(&t, S74, "73", &[5, 6, 7, 8, 9, 10]);
+    expect_name(&t, S74, "73", 13, "1Q~");
+}
+
+#[test]
+fn adder_83_non_corner_supply() {
+    let t = table();
+    // Motorola SN54/74LS83A (FAST and LS TTL Data, p. 5-81) connection diagram: A4=1 S3=2 A3=3
+    // B3=4 VCC=5 S2=6 B2=7 A2=8 S1=9 A1=10 B1=11 GND=12 C0=13 C4=14 S4=15 B4=16
+    expect_package(
+        &t,
+        S74,
+        "83",
+        &[
+            Input, PushPull, Input, Input, Supply, PushPull, Input, Input, PushPull, Input, Input,
+            Ground, Input, PushPull, PushPull, Input,
+        ],
+    );
+    expect_name(&t, S74, "83", 13, "C0");
+    expect_name(&t, S74, "83", 14, "C4");
+}
+
+#[test]
+fn monostables_122_123() {
+    let t = table();
+    // Motorola SN54/74LS122 (FAST and LS TTL Data, p. 5-1): A1=1 A2=2 B1=3 B2=4 CLR=5 Q~=6 GND=7
+    // Q=8 RINT=9 NC=10 CEXT=11 NC=12 REXT/CEXT=13 VCC=14 (which of 6 and 8 is Q~ from memory)
+    let a = Analog;
+    expect_package(
+        &t,
+        S74,
+        "122",
+        &[
+            Input, Input, Input, Input, Input, PushPull, Ground, PushPull, a, NoConnect, a,
+            NoConnect, a, Supply,
+        ],
+    );
+    // Motorola SN54/74LS123 (same page): 1A=1 1B=2 1CLR=3 1Q~=4 2Q=5 2CEXT=6 2REXT/CEXT=7 GND=8
+    // 2A=9 2B=10 2CLR=11 2Q~=12 1Q=13 1CEXT=14 1REXT/CEXT=15 VCC=16
+    expect_package(
+        &t,
+        S74,
+        "123",
+        &[
+            Input, Input, Input, PushPull, PushPull, a, a, Ground, Input, Input, Input, PushPull,
+            PushPull, a, a, Supply,
+        ],
+    );
+    same_unit(&t, S74, "123", &[1, 2, 3, 4, 13, 14, 15]);
+    same_unit(&t, S74, "123", &[5, 6, 7, 9, 10, 11, 12]);
+}
+
+#[test]
+fn bus_buffers_125_126() {
+    let t = table();
+    // TI SCLS752C (SN74HCS125-Q1): 1OE~=1 1A=2 1Y=3 2OE~=4 2A=5 2Y=6 GND=7 3Y=8 3A=9 3OE~=10
+    // 4Y=11 4A=12 4OE~=13 VCC=14; TI SCLS103F (SN74HC126): the same pins, enables active high
+    let roles = [
+        Input, Input, ThreeState, Input, Input, ThreeState, Ground, ThreeState, Input, Input,
+        ThreeState, Input, Input, Supply,
+    ];
+    for (id, low) in [("125", true), ("126", false)] {
+        expect_package(&t, S74, id, &roles);
+        expect_enables(&t, S74, id, &[3], &["1"], low);
+        expect_enables(&t, S74, id, &[6], &["4"], low);
+        expect_enables(&t, S74, id, &[8], &["10"], low);
+        expect_enables(&t, S74, id, &[11], &["13"], low);
+        same_unit(&t, S74, id, &[8, 9, 10]);
+    }
+}
+
+#[test]
+fn multiplexers_151_153_157() {
+    let t = table();
+    // onsemi SN74LS151/D Rev. 6: I3=1 I2=2 I1=3 I0=4 Z=5 Z~=6 E~=7 GND=8 S2=9 S1=10 S0=11 I7=12
+    // I6=13 I5=14 I4=15 VCC=16
+    let mut r = vec![Input; 16];
+    r[4] = PushPull;
+    r[5] = PushPull;
+    r[7] = Ground;
+    r[15] = Supply;
+    expect_package(&t, S74, "151", &r);
+    expect_name(&t, S74, "151", 5, "Y");
+    expect_name(&t, S74, "151", 6, "W");
+    expect_name(&t, S74, "151", 11, "A");
+    // onsemi SN74LS153/D Rev. 6 and Motorola MC74HC153: Ea~=1 S1=2 I3a..I0a=3..6 Za=7 GND=8
+    // Zb=9 I0b..I3b=10..13 S0=14 Eb~=15 VCC=16
+    let mut r = vec![Input; 16];
+    r[6] = PushPull;
+    r[7] = Ground;
+    r[8] = PushPull;
+    r[15] = Supply;
+    expect_package(&t, S74, "153", &r);
+    same_unit(&t, S74, "153", &[1, 3, 4, 5, 6, 7]);
+    same_unit(&t, S74, "153", &[9, 10, 11, 12, 13, 15]);
+    let f = func(&t, S74, "153");
+    for select in ["2", "14"] {
+        assert!(f.pin(select).unwrap().unit.is_none(), "153 pin {select}");
+    }
+    expect_name(&t, S74, "153", 2, "B");
+    expect_name(&t, S74, "153", 14, "A");
+    // Motorola SN54/74LS157 (p. 5-268): S=1 I0a=2 I1a=3 Za=4 I0b=5 I1b=6 Zb=7 GND=8 Zd=9 I1d=10
+    // I0d=11 Zc=12 I1c=13 I0c=14 E~=15 VCC=16
+    let mut r = vec![Input; 16];
+    for p in [4, 7, 9, 12] {
+        r[p - 1] = PushPull;
+    }
+    r[7] = Ground;
+    r[15] = Supply;
+    expect_package(&t, S74, "157", &r);
+    same_unit(&t, S74, "157", &[2, 3, 4]);
+    same_unit(&t, S74, "157", &[5, 6, 7]);
+    same_unit(&t, S74, "157", &[9, 10, 11]);
+    same_unit(&t, S74, "157", &[12, 13, 14]);
+}
+
+#[test]
+fn shift_registers_164_165() {
+    let t = table();
+    // TI JAJSU12 (SN74AHCT164): A=1 B=2 QA..QD=3..6 GND=7 CLK=8 CLR~=9 QE..QH=10..13 VCC=14
+    let p = PushPull;
+    expect_package(
+        &t,
+        S74,
+        "164",
+        &[
+            Input, Input, p, p, p, p, Ground, Input, Input, p, p, p, p, Supply,
+        ],
+    );
+    // Motorola SN54/74LS165: PL~=1 CP1=2 P4..P7=3..6 Q7~=7 GND=8 Q7=9 DS=10 P0..P3=11..14
+    // CP2=15 VCC=16
+    let mut r = vec![Input; 16];
+    r[6] = PushPull;
+    r[7] = Ground;
+    r[8] = PushPull;
+    r[15] = Supply;
+    expect_package(&t, S74, "165", &r);
+    expect_name(&t, S74, "165", 9, "QH");
+}
+
+#[test]
+fn up_down_counters_192_193() {
+    let t = table();
+    // Motorola SN54/74LS192/193 (p. 5-1) and TI SCLS122B (SN74HC193): P1/B=1 Q1/QB=2 Q0/QA=3
+    // CPD/DOWN=4 CPU/UP=5 Q2/QC=6 Q3/QD=7 GND=8 P3/D=9 P2/C=10 PL~/LOAD~=11 TCU~/CO~=12
+    // TCD~/BO~=13 MR/CLR=14 P0/A=15 VCC=16
+    let p = PushPull;
+    let r = [
+        Input, p, p, Input, Input, p, p, Ground, Input, Input, Input, p, p, Input, Input, Supply,
+    ];
+    for id in ["192", "193"] {
+        expect_package(&t, S74, id, &r);
+        expect_name(&t, S74, id, 14, "CLR");
+        expect_name(&t, S74, id, 12, "CO~");
+    }
+}
+
+#[test]
+fn octal_buffers_240_244_541() {
+    let t = table();
+    // TI SCAS293L (SN74LVC240A), JAJSQV2G (SN74ACT244), SDLS144D (SN74LS240/244): 1OE~=1
+    // 1A1=2 2Y4=3 1A2=4 2Y3=5 1A3=6 2Y2=7 1A4=8 2Y1=9 GND=10 2A1=11 1Y4=12 2A2=13 1Y3=14 2A3=15
+    // 1Y2=16 2A4=17 1Y1=18 2OE~=19 VCC=20
+    let ts = ThreeState;
+    let r = [
+        Input, Input, ts, Input, ts, Input, ts, Input, ts, Ground, Input, ts, Input, ts, Input, ts,
+        Input, ts, Input, Supply,
+    ];
+    for id in ["240", "244"] {
+        expect_package(&t, S74, id, &r);
+        expect_enables(&t, S74, id, &[18, 16, 14, 12], &["1"], true);
+        expect_enables(&t, S74, id, &[9, 7, 5, 3], &["19"], true);
+        same_unit(&t, S74, id, &[2, 18]);
+        same_unit(&t, S74, id, &[8, 12]);
+        same_unit(&t, S74, id, &[11, 9]);
+        same_unit(&t, S74, id, &[17, 3]);
+    }
+    // TI SCAS298N (SN74LVC541A): OE1~=1 A1..A8=2..9 GND=10 Y8..Y1=11..18 OE2~=19 VCC=20
+    let mut r = vec![Input; 20];
+    for p in 11..=18 {
+        r[p - 1] = ts;
+    }
+    r[9] = Ground;
+    r[19] = Supply;
+    expect_package(&t, S74, "541", &r);
+    expect_enables(
+        &t,
+        S74,
+        "541",
+        &[11, 12, 13, 14, 15, 16, 17, 18],
+        &["1", "19"],
+        true,
+    );
+    for k in 0..8 {
+        same_unit(&t, S74, "541", &[2 + k, 18 - k]);
+    }
+}
+
+#[test]
+fn octal_registers_374_574() {
+    let t = table();
+    // TI SCBS019D (SN74BCT374): OE~=1 1Q=2 1D=3 2D=4 2Q=5 3Q=6 3D=7 4D=8 4Q=9 GND=10 CLK=11
+    // 5Q=12 5D=13 6D=14 6Q=15 7Q=16 7D=17 8D=18 8Q=19 VCC=20
+    let ts = ThreeState;
+    let r = [
+        Input, ts, Input, Input, ts, ts, Input, Input, ts, Ground, Input, ts, Input, Input, ts, ts,
+        Input, Input, ts, Supply,
+    ];
+    expect_package(&t, S74, "374", &r);
+    expect_enables(&t, S74, "374", &[2, 5, 6, 9, 12, 15, 16, 19], &["1"], true);
+    for (d, q) in [
+        (3, 2),
+        (4, 5),
+        (7, 6),
+        (8, 9),
+        (13, 12),
+        (14, 15),
+        (17, 16),
+        (18, 19),
+    ] {
+        same_unit(&t, S74, "374", &[d, q]);
+    }
+    expect_name(&t, S74, "374", 1, "OE~");
+    // TI JAJSQC3F (SN74ACT574): OE~=1 D1..D8=2..9 GND=10 CLK=11 Q8..Q1=12..19 VCC=20
+    let mut r = vec![Input; 20];
+    for p in 12..=19 {
+        r[p - 1] = ts;
+    }
+    r[9] = Ground;
+    r[19] = Supply;
+    expect_package(&t, S74, "574", &r);
+    expect_enables(
+        &t,
+        S74,
+        "574",
+        &[12, 13, 14, 15, 16, 17, 18, 19],
+        &["1"],
+        true,
+    );
+    for k in 0..8 {
+        same_unit(&t, S74, "574", &[2 + k, 19 - k]);
+    }
+    expect_name(&t, S74, "574", 1, "OE~");
+}
+
+#[test]
+fn ripple_counters_390_393() {
+    let t = table();
+    // Motorola SN54/74LS390 (p. 5-1): CP0=1 MR=2 Q0=3 CP1=4 Q1=5 Q2=6 Q3=7 GND=8 Q3=9 Q2=10
+    // Q1=11 CP1=12 Q0=13 MR=14 CP0=15 VCC=16
+    let p = PushPull;
+    expect_package(
+        &t,
+        S74,
+        "390",
+        &[
+            Input, Input, p, Input, p, p, p, Ground, p, p, p, Input, p, Input, Input, Supply,
+        ],
+    );
+    same_unit(&t, S74, "390", &[1, 2, 3, 4, 5, 6, 7]);
+    same_unit(&t, S74, "390", &[9, 10, 11, 12, 13, 14, 15]);
+    // Motorola SN54/74LS393 (same page): CP=1 MR=2 Q0..Q3=3..6 GND=7 Q3..Q0=8..11 MR=12 CP=13
+    // VCC=14
+    expect_package(
+        &t,
+        S74,
+        "393",
+        &[
+            Input, Input, p, p, p, p, Ground, p, p, p, p, Input, Input, Supply,
+        ],
+    );
+    same_unit(&t, S74, "393", &[1, 2, 3, 4, 5, 6]);
+    same_unit(&t, S74, "393", &[8, 9, 10, 11, 12, 13]);
+}
+
+#[test]
+fn triple_3_input_10() {
+    let t = table();
+    // TI SCLS083E (SN74HC10) functional pinout: 1A=1 1B=2 2A=3 2B=4 2C=5 2Y=6 GND=7 3Y=8 3A=9
+    // 3B=10 3C=11 1Y=12 1C=13 VCC=14
+    let p = PushPull;
+    expect_package(
+        &t,
+        S74,
+        "10",
+        &[
+            Input, Input, Input, Input, Input, p, Ground, p, Input, Input, Input, p, Input, Supply,
+        ],
+    );
+    same_unit(&t, S74, "10", &[1, 2, 13, 12]);
+    same_unit(&t, S74, "10", &[3, 4, 5, 6]);
+    same_unit(&t, S74, "10", &[9, 10, 11, 8]);
+}
+
+#[test]
+fn counter_oscillator_hc4060() {
+    let t = table();
+    // TI SCLS161D (SN74HC4060): QL=1 QM=2 QN=3 QF=4 QE=5 QG=6 QD=7 GND=8 CLKO=9 CLKO~=10
+    // CLKI=11 CLR=12 QI=13 QH=14 QJ=15 VCC=16 (which of 9 and 10 is the complement from memory)
+    let p = PushPull;
+    let a = Analog;
+    expect_package(
+        &t,
+        S74,
+        "4060",
+        &[p, p, p, p, p, p, p, Ground, a, a, a, Input, p, p, p, Supply],
+    );
+    assert!(func(&t, S74, "4060").available_in("74HC"));
+    // QD is the fourth stage, QN the fourteenth (SCLS161D names stages by letter)
+    expect_name(&t, S74, "4060", 7, "Q4");
+    expect_name(&t, S74, "4060", 3, "Q14");
+}
+
+#[test]
+fn hex_buffers_4049_4050() {
+    let t = table();
+    // TI SCHS046 (CD4049UB, CD4050B): VCC=1 G=2 A=3 H=4 B=5 I=6 C=7 VSS=8 D=9 J=10 E=11 K=12
+    // NC=13 F=14 L=15 NC=16
+    let p = PushPull;
+    let r = [
+        Supply, p, Input, p, Input, p, Input, Ground, Input, p, Input, p, NoConnect, Input, p,
+        NoConnect,
+    ];
+    for id in ["4049", "4050"] {
+        expect_package(&t, S40, id, &r);
+        for (i, o) in [(3, 2), (5, 4), (7, 6), (9, 10), (11, 12), (14, 15)] {
+            same_unit(&t, S40, id, &[i, o]);
+        }
+    }
+}
+
 // From memory (no data sheet text at hand): common pinouts every bench technician knows.
 #[test]
 fn common_pinouts_from_memory() {
@@ -462,46 +847,27 @@ fn common_pinouts_from_memory() {
     );
     same_unit(&t, S74, "02", &[1, 2, 3]);
     same_unit(&t, S74, "02", &[11, 12, 13]);
-    // 7410 (from memory): 1A=1 1B=2 1C=13 1Y=12; 2A..2C=3..5 2Y=6; 3Y=8 3A..3C=9..11
-    same_unit(&t, S74, "10", &[1, 2, 13, 12]);
-    same_unit(&t, S74, "10", &[3, 4, 5, 6]);
-    same_unit(&t, S74, "10", &[9, 10, 11, 8]);
-    // 74244 (from memory): 1OE~=1 2OE~=19; 1A1=2 -> 1Y1=18; 2A1=11 -> 2Y1=9; GND=10 VCC=20
-    let f = func(&t, S74, "244");
-    assert_eq!(f.pin("18").unwrap().enable, vec!["1".to_string()]);
-    assert_eq!(f.pin("9").unwrap().enable, vec!["19".to_string()]);
-    same_unit(&t, S74, "244", &[2, 18]);
-    same_unit(&t, S74, "244", &[11, 9]);
     // 74241 (from memory): the second group's enable is active high
     assert!(!func(&t, S74, "241").pin("9").unwrap().enable_active_low);
     assert!(func(&t, S74, "241").pin("18").unwrap().enable_active_low);
-    // 74373/374 (from memory): OE~=1 LE/CLK=11 GND=10 VCC=20, 1D=3 -> 1Q=2, 8D=18 -> 8Q=19
-    for id in ["373", "374"] {
-        expect_roles(
-            &t,
-            S74,
-            id,
-            20,
-            &[
-                (1, Input),
-                (11, Input),
-                (2, ThreeState),
-                (19, ThreeState),
-                (3, Input),
-                (18, Input),
-                (10, Ground),
-                (20, Supply),
-            ],
-        );
-        same_unit(&t, S74, id, &[3, 2]);
-    }
-    // 74573/574 (from memory): flow-through, 1D=2 -> 1Q=19
-    same_unit(&t, S74, "574", &[2, 19]);
-    // 74125 (from memory): 1OE~=1 1A=2 1Y=3 ... 4OE~=13 4A=12 4Y=11
-    let f = func(&t, S74, "125");
-    assert_eq!(f.pin("11").unwrap().enable, vec!["13".to_string()]);
-    assert!(f.pin("11").unwrap().enable_active_low);
-    assert!(!func(&t, S74, "126").pin("11").unwrap().enable_active_low);
+    // 74373 (from memory): OE~=1 LE=11 GND=10 VCC=20, 1D=3 -> 1Q=2, 8D=18 -> 8Q=19
+    expect_roles(
+        &t,
+        S74,
+        "373",
+        20,
+        &[
+            (1, Input),
+            (11, Input),
+            (2, ThreeState),
+            (19, ThreeState),
+            (3, Input),
+            (18, Input),
+            (10, Ground),
+            (20, Supply),
+        ],
+    );
+    same_unit(&t, S74, "373", &[3, 2]);
     // CD4013B (from memory): Q1=1 Q1~=2 CLK1=3 RESET1=4 D1=5 SET1=6 VSS=7 ... VDD=14
     expect_roles(
         &t,
@@ -536,7 +902,8 @@ fn common_pinouts_from_memory() {
             (16, Supply),
         ],
     );
-    // CD4060B (from memory): oscillator pins 9, 10, 11 are analogue; RESET=12
+    // CD4060B (from memory; the SN74HC4060 arrangement is checked above): oscillator pins 9,
+    // 10, 11 are analogue; RESET=12
     expect_roles(
         &t,
         S40,
@@ -551,6 +918,7 @@ fn common_pinouts_from_memory() {
             (16, Supply),
         ],
     );
+    assert_eq!(func(&t, S74, "4060").pins, func(&t, S40, "4060").pins);
     // CD4046B (from memory): C1 on 6/7, VCO in 9, R1 11, R2 12 analogue; VCO out 4, comparator in 3
     expect_roles(
         &t,
@@ -607,29 +975,12 @@ fn special_pins() {
     // 7447 BI~/RBO~ (pin 4) has an internal pull-up and doubles as an output (from memory)
     let f = func(&t, S74, "47");
     assert_eq!(f.pin("4").unwrap().role, PulledUpIo);
-    assert_eq!(f.pin("13").unwrap().role, OpenCollector); // segment a
-                                                          // 74121 RINT (pin 9), CEXT (10), REXT/CEXT (11) are analogue (from memory)
+    // segment a (pin 13) is open collector (from memory)
+    assert_eq!(f.pin("13").unwrap().role, OpenCollector);
+    // 74121 RINT (pin 9), CEXT (10), REXT/CEXT (11) are analogue (from memory)
     let f = func(&t, S74, "121");
     for p in ["9", "10", "11"] {
         assert_eq!(f.pin(p).unwrap().role, Analog, "121 pin {p}");
-    }
-    // CD4049UB/4050B (from memory): VDD=1, VSS=8, pins 13 and 16 not connected
-    for id in ["4049", "4050"] {
-        expect_roles(
-            &t,
-            S40,
-            id,
-            16,
-            &[
-                (1, Supply),
-                (8, Ground),
-                (13, NoConnect),
-                (16, NoConnect),
-                (3, Input),
-                (2, PushPull),
-            ],
-        );
-        same_unit(&t, S40, id, &[3, 2]);
     }
     // 74181 A=B (pin 14) is open collector (from memory)
     assert_eq!(func(&t, S74, "181").pin("14").unwrap().role, OpenCollector);
@@ -643,7 +994,7 @@ fn non_corner_supply_pins() {
     let t = table();
     let cases: &[(&str, u32, &str, &str, &str)] = &[
         // (id, package pins, VCC pin, GND pin, source)
-        ("73", 14, "4", "11", "from memory (SN7473: VCC 4, GND 11)"),
+        ("73", 14, "4", "11", "Motorola SN54/74LS73A: VCC 4, GND 11"),
         (
             "75",
             16,
@@ -673,7 +1024,7 @@ fn non_corner_supply_pins() {
             "10",
             "secondary 74LS93 pin tables: VCC 5, GND 10",
         ),
-        ("83", 16, "5", "12", "from memory (7483: VCC 5, GND 12)"),
+        ("83", 16, "5", "12", "Motorola SN54/74LS83A: VCC 5, GND 12"),
     ];
     for &(id, n, vcc, gnd, src) in cases {
         let f = func(&t, S74, id);
