@@ -80,6 +80,24 @@ pub struct CheckArgs {
     /// Exit with 1 when a finding at or above this severity is reported
     #[arg(long, value_enum, default_value_t = FailOn::Error)]
     pub fail_on: FailOn,
+    /// Run only this check (repeatable)
+    #[arg(long, value_name = "CHECK")]
+    pub only: Vec<String>,
+    /// Turn this check off (repeatable)
+    #[arg(long, value_name = "CHECK")]
+    pub disable: Vec<String>,
+    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
+    #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
+    pub rail: Vec<(String, f64)>,
+}
+
+fn parse_rail(s: &str) -> Result<(String, f64), String> {
+    let (n, v) = s.split_once('=').ok_or_else(|| format!("expected NAME=VOLTS, found `{s}`"))?;
+    let v: f64 = v.trim().trim_end_matches(['V', 'v']).parse().map_err(|_| format!("`{v}` is not a voltage"))?;
+    if n.trim().is_empty() || !v.is_finite() {
+        return Err(format!("expected NAME=VOLTS, found `{s}`"));
+    }
+    Ok((n.trim().to_string(), v))
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]

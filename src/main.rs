@@ -45,8 +45,21 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let stderr = std::io::stderr();
             let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
             let mut code = 0u8;
+            let rules = netmargin::classify::classifier::Rules::builtin();
+            let mut run = pipeline::RunOptions { read: opts.clone(), ..Default::default() };
+            for id in args.only.iter().chain(&args.disable) {
+                if netmargin::checks::info(id).is_none() {
+                    eprintln!("netmargin: unknown check `{id}`; `netmargin explain` lists them");
+                    return Ok(2);
+                }
+            }
+            if !args.only.is_empty() {
+                run.checks.disabled = netmargin::checks::REGISTRY.iter().map(|c| c.id.to_string()).filter(|id| !args.only.contains(id)).collect();
+            }
+            run.checks.disabled.extend(args.disable.iter().cloned());
+            run.model.rails = args.rail.clone();
             for path in &args.paths {
-                let f = pipeline::read_file(path, &opts);
+                let f = pipeline::check_file(path, &rules, &run);
                 if f.fatal.is_some() {
                     out.flush()?;
                     human::write_file(&mut stderr.lock(), &eh, &f)?;

@@ -5,6 +5,9 @@
 use std::io::Read;
 use std::path::Path;
 
+use crate::checks::{self, CheckOptions};
+use crate::circuit::{self, ModelOptions};
+use crate::classify::classifier::{classify, Rules};
 use crate::diag::{Diag, Severity};
 use crate::input;
 use crate::netlist::{self, Summary};
@@ -86,11 +89,25 @@ fn io_diag(path: &str, e: &std::io::Error) -> Diag {
     Diag::error("unreadable", format!("cannot read `{path}`: {what}"))
 }
 
-/// Reads and models one file.
+/// Everything that shapes a run.
+#[derive(Debug, Clone, Default)]
+pub struct RunOptions {
+    pub read: ReadOptions,
+    pub model: ModelOptions,
+    pub checks: CheckOptions,
+}
+
+/// Reads and checks one file with the shipped rules and default options.
 pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
+    let rules = Rules::builtin();
+    check_file(path, &rules, &RunOptions { read: opts.clone(), ..Default::default() })
+}
+
+/// Reads, models, classifies and checks one file.
+pub fn check_file(path: &str, rules: &Rules, opts: &RunOptions) -> FileOutcome {
     let name = if path == "-" { "<stdin>".to_string() } else { path.to_string() };
     let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default(), coverage: None };
-    let bytes = match read_bytes(path, opts) {
+    let bytes = match read_bytes(path, &opts.read) {
         Ok(b) => b,
         Err(d) => {
             out.fatal = Some(d);
@@ -105,16 +122,41 @@ pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
             return out;
         }
     };
-    let result = model_text(&source);
+    let result = check_source(&source, rules, opts);
     out.source = Some(source);
     match result {
-        Ok((diags, summary)) => {
-            out.diags = diags;
-            out.summary = summary;
+        Ok(c) => {
+            out.diags = c.diags;
+            out.summary = c.summary;
+            out.coverage = Some(c.coverage);
         }
         Err(d) => out.fatal = Some(d),
     }
     out
+}
+
+/// What checking one text produced.
+#[derive(Debug, Clone)]
+pub struct Checked {
+    /// The model's diagnostics, then the checks' findings, in file order.
+    pub diags: Vec<Diag>,
+    pub summary: Summary,
+    pub coverage: (usize, usize),
+}
+
+/// Parses, models, classifies and checks a text.
+pub fn check_source(source: &SourceFile, rules: &Rules, opts: &RunOptions) -> Result<Checked, Diag> {
+    if let Some(d) = sexpr::sniff(source.text()) {
+        return Err(d);
+    }
+    let tree = sexpr::parse(source.text())?;
+    let nl = netlist::build(&tree)?;
+    drop(tree);
+    let cl = classify(&nl, rules);
+    let cx = circuit::build(&nl, &cl, rules, opts.model.clone());
+    let mut diags = nl.diagnostics.clone();
+    diags.extend(checks::run_all(&cx, &opts.checks));
+    Ok(Checked { diags, summary: nl.summary(), coverage: cl.coverage })
 }
 
 /// Parses and models a text, returning the model's diagnostics and counts.

@@ -74,3 +74,84 @@ mod tests {
         }
     }
 }
+
+mod common;
+mod fanout_overrun;
+mod floating_cmos_input;
+mod floating_ttl_input;
+mod level_mismatch;
+mod missing_pull_up;
+mod pull_up_out_of_range;
+mod ttl_high_into_cmos;
+
+use crate::circuit::budget::{net_budget, NetBudget};
+use crate::circuit::Circuit;
+use crate::diag::Diag;
+
+/// Options that change what the checks report.
+#[derive(Debug, Clone)]
+pub struct CheckOptions {
+    /// Fan-out above this fraction of the rating is a warning (above 1.0 an error).
+    pub derating: f64,
+    /// A high-level margin below this (volts) is still a warning, though it passes.
+    pub min_margin_v: f64,
+    /// Checks turned off, by id.
+    pub disabled: Vec<String>,
+    /// Severity overrides, by id.
+    pub severity: Vec<(String, Severity)>,
+}
+
+impl Default for CheckOptions {
+    fn default() -> Self {
+        CheckOptions { derating: 0.8, min_margin_v: 0.0, disabled: Vec::new(), severity: Vec::new() }
+    }
+}
+
+/// What a check sees: the circuit, every net's budget, the options.
+pub struct Context<'c, 'n, 'a> {
+    pub cx: &'c Circuit<'n, 'a>,
+    pub budgets: Vec<NetBudget>,
+    pub opts: &'c CheckOptions,
+}
+
+type CheckFn = fn(&Context<'_, '_, '_>, &mut Vec<Diag>);
+
+/// The checks in the order they run (findings are sorted afterwards).
+fn checks() -> Vec<(&'static str, CheckFn)> {
+    vec![
+        ("floating-cmos-input", floating_cmos_input::run),
+        ("floating-ttl-input", floating_ttl_input::run),
+        ("fanout-overrun", fanout_overrun::run),
+        ("ttl-high-into-cmos", ttl_high_into_cmos::run),
+        ("level-mismatch", level_mismatch::run),
+        ("missing-pull-up", missing_pull_up::run),
+        ("pull-up-out-of-range", pull_up_out_of_range::run),
+    ]
+}
+
+/// Runs every enabled check and returns the findings in file order.
+pub fn run_all(cx: &Circuit<'_, '_>, opts: &CheckOptions) -> Vec<Diag> {
+    let budgets = (0..cx.nets.len()).map(|n| net_budget(cx, n)).collect();
+    let ctx = Context { cx, budgets, opts };
+    let mut out = Vec::new();
+    for (id, f) in checks() {
+        if opts.disabled.iter().any(|d| d == id) {
+            continue;
+        }
+        let start = out.len();
+        f(&ctx, &mut out);
+        let sev = opts.severity.iter().find(|(i, _)| i == id).map(|(_, s)| *s);
+        for d in &mut out[start..] {
+            debug_assert_eq!(d.code, id, "a check reports under its own id");
+            if let Some(s) = sev {
+                d.severity = s;
+            }
+        }
+    }
+    out.sort_by(|a, b| {
+        let sa = a.primary_span().map_or(0, |s| s.start);
+        let sb = b.primary_span().map_or(0, |s| s.start);
+        sa.cmp(&sb).then_with(|| a.code.cmp(&b.code)).then_with(|| a.message.cmp(&b.message))
+    });
+    out
+}

@@ -1,0 +1,131 @@
+//! Helpers the checks share: finding floating inputs grouped by gate, formatting.
+
+use std::collections::BTreeMap;
+
+use super::Context;
+use crate::circuit::PinRef;
+use crate::classify::PinRole;
+use crate::netlist::Connection;
+
+/// Why an input floats.
+#[derive(Debug, Clone)]
+pub enum Float {
+    /// On no net at all (its gate unit was never placed, or it is absent from the netlist).
+    Absent,
+    /// Placed, but wired to nothing (a one-node net).
+    Alone(usize),
+    /// On a net with nothing that sets a level: the other pins are inputs or passives.
+    Undriven(usize),
+}
+
+/// One floating input.
+#[derive(Debug, Clone)]
+pub struct Floating {
+    pub at: PinRef,
+    pub why: Float,
+}
+
+/// A whole gate whose inputs all float and whose outputs go nowhere.
+#[derive(Debug, Clone)]
+pub struct UnusedGate {
+    pub comp: usize,
+    pub unit: String,
+    pub inputs: Vec<Floating>,
+    pub outputs: Vec<PinRef>,
+}
+
+/// Floating logic inputs of classified parts whose family has TTL inputs (`ttl` true) or
+/// CMOS inputs (`ttl` false), with the whole unused gates gathered up.
+pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, Vec<UnusedGate>) {
+    let cx = ctx.cx;
+    let mut singles = Vec::new();
+    let mut gates = Vec::new();
+    for (ci, c) in cx.nl.components.iter().enumerate() {
+        let part = &cx.cl.parts[ci];
+        let Some(fam) = cx.family(ci).filter(|_| part.is_logic()) else { continue };
+        if fam.is_cmos_input() == ttl {
+            continue;
+        }
+        let mut by_unit: BTreeMap<String, Vec<Floating>> = BTreeMap::new();
+        let mut found = Vec::new();
+        for (pi, p) in c.pins.iter().enumerate() {
+            if !matches!(part.roles[pi], PinRole::Input | PinRole::SchmittInput) || p.no_connect {
+                continue;
+            }
+            let why = match p.connection {
+                Connection::Absent => Float::Absent,
+                Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Float::Alone(net),
+                Connection::Net { net, .. } => {
+                    let nm = &cx.nets[net];
+                    if nm.has_source() || !nm.unknown.is_empty() {
+                        continue;
+                    }
+                    Float::Undriven(net)
+                }
+                _ => continue,
+            };
+            found.push(Floating { at: PinRef { comp: ci, pin: pi }, why });
+        }
+        for f in found {
+            match part.units[f.at.pin].clone() {
+                Some(u) => by_unit.entry(u).or_default().push(f),
+                None => singles.push(f),
+            }
+        }
+        for (unit, floats) in by_unit {
+            // every input of the unit floats, and its outputs reach nothing
+            let unit_inputs: Vec<usize> = (0..c.pins.len())
+                .filter(|&i| part.units[i].as_deref() == Some(unit.as_str()) && matches!(part.roles[i], PinRole::Input | PinRole::SchmittInput))
+                .collect();
+            let unit_outputs: Vec<PinRef> = (0..c.pins.len())
+                .filter(|&i| part.units[i].as_deref() == Some(unit.as_str()) && part.roles[i].is_output())
+                .map(|i| PinRef { comp: ci, pin: i })
+                .collect();
+            let outputs_unused = unit_outputs.iter().all(|o| c.pins[o.pin].connection.is_unconnected());
+            if floats.len() == unit_inputs.len() && unit_inputs.len() > 0 && outputs_unused {
+                gates.push(UnusedGate { comp: ci, unit, inputs: floats, outputs: unit_outputs });
+            } else {
+                singles.extend(floats);
+            }
+        }
+    }
+    (singles, gates)
+}
+
+/// `pins 12 (4A) and 13 (4B)`
+pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
+    let cx = ctx.cx;
+    let items: Vec<String> = pins
+        .iter()
+        .map(|p| {
+            let num = &cx.nl.components[p.comp].pins[p.pin].num;
+            match &cx.cl.parts[p.comp].table_names[p.pin] {
+                Some(n) => format!("{num} ({n})"),
+                None => num.to_string(),
+            }
+        })
+        .collect();
+    let joined = match items.len() {
+        0 => String::new(),
+        1 => items[0].clone(),
+        _ => format!("{} and {}", items[..items.len() - 1].join(", "), items[items.len() - 1]),
+    };
+    format!("{} {joined}", if pins.len() == 1 { "pin" } else { "pins" })
+}
+
+/// The positive rail a part's supply pin sits on, by name, for fix messages.
+pub fn supply_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
+    let cx = ctx.cx;
+    cx.supplies[comp].as_ref().and_then(|s| s.supply_net.filter(|_| s.known)).map(|n| cx.net_name(n)).unwrap_or_else(|| "the supply".into())
+}
+
+/// The ground rail a part's ground pin sits on, by name.
+pub fn ground_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
+    let cx = ctx.cx;
+    cx.supplies[comp].as_ref().and_then(|s| s.ground_net).filter(|&n| cx.nets[n].rail.is_some()).map(|n| cx.net_name(n)).unwrap_or_else(|| "GND".into())
+}
+
+/// Percentage with no decimals.
+pub fn pct(x: f64) -> String {
+    format!("{:.0}%", x * 100.0)
+}

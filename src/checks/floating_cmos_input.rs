@@ -1,0 +1,84 @@
+//! Finds CMOS inputs with nothing to set their level: an input on no net, or on a net with
+//! no driver, no rail and no pull resistor (a net of inputs only, or an input wired only to
+//! a capacitor). A whole gate whose inputs all float and whose output goes nowhere is
+//! reported once, by gate.
+//!
+//! Why it matters: a CMOS input is a pair of gates with no path to either rail. Left open it
+//! drifts to mid-supply, where both transistors of its input stage conduct: the part draws
+//! supply current, gets warm, and its output may oscillate and feed noise into the rest of
+//! the package. This holds for every input of an unused gate too.
+//!
+//! Example: a 74HC00 whose fourth gate was never placed in the schematic (KiCad 5 leaves its
+//! pins out of the netlist): inputs 12 and 13 float.
+//!
+//! Fix: tie unused inputs to ground or to the supply (or to a used input of the same gate);
+//! drive every used input; leave unused outputs open.
+
+use super::common::{floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float};
+use super::Context;
+use crate::diag::Diag;
+
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+    let cx = ctx.cx;
+    let (singles, gates) = floating_inputs(ctx, false);
+    for g in gates {
+        let c = &cx.nl.components[g.comp];
+        let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
+        let absent = g.inputs.iter().all(|f| matches!(f.why, Float::Absent));
+        let mut d = Diag::error(
+            "floating-cmos-input",
+            format!(
+                "gate {} of {} ({}) is unused and its CMOS inputs float: {}{}",
+                g.unit,
+                c.reference,
+                c.value_str(),
+                pin_list(ctx, &pins),
+                if absent { " are on no net (the gate was never placed)" } else { " are connected to nothing" }
+            ),
+        )
+        .with_help(format!(
+            "tie {} to {} (or to {}); leave the gate's output {} open",
+            pin_list(ctx, &pins),
+            ground_rail_name(ctx, g.comp),
+            supply_rail_name(ctx, g.comp),
+            pin_list(ctx, &g.outputs)
+        ))
+        .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
+        d = d.at(cx.pin_span(pins[0]), "unused gate");
+        for p in &pins[1..] {
+            d = d.also(cx.pin_span(*p), "");
+        }
+        out.push(d);
+    }
+    for f in singles {
+        let (msg, label) = match f.why {
+            Float::Absent => (format!("{} is on no net: a CMOS input must never float", cx.describe(f.at)), "on no net".to_string()),
+            Float::Alone(_) => (format!("{} is connected to nothing: a CMOS input must never float", cx.describe(f.at)), "connected to nothing".to_string()),
+            Float::Undriven(net) => {
+                let nm = &cx.nets[net];
+                let others: Vec<String> = nm.loads.iter().filter(|l| l.at != f.at).map(|l| cx.pin_name(l.at)).chain(nm.passives.iter().map(|p| cx.pin_name(*p))).collect();
+                (
+                    format!(
+                        "{} is on net `{}`, which nothing drives: no output, rail or pull resistor (only {})",
+                        cx.describe(f.at),
+                        cx.net_name(net),
+                        if others.is_empty() { "this input".to_string() } else { others.join(", ") }
+                    ),
+                    "no driver on this net".to_string(),
+                )
+            }
+        };
+        let mut d = Diag::error("floating-cmos-input", msg)
+            .at(cx.pin_span(f.at), label)
+            .with_help(format!(
+                "drive it, or tie it to {} or {} (or to a used input of the same gate)",
+                ground_rail_name(ctx, f.at.comp),
+                supply_rail_name(ctx, f.at.comp)
+            ))
+            .with_pins([cx.pin_name(f.at)]);
+        if let Float::Undriven(net) | Float::Alone(net) = f.why {
+            d = d.on_net(cx.net_name(net));
+        }
+        out.push(d);
+    }
+}

@@ -1,0 +1,73 @@
+//! Finds TTL inputs left open: on no net, or on a net with no driver, rail or pull resistor.
+//! An unused gate is reported once, by gate.
+//!
+//! Why it matters: a bipolar TTL input floats high through its internal resistor (about
+//! 4 kOhm in standard TTL, 20 kOhm in 74LS, 2.8 kOhm in 74S: common practice), so the
+//! circuit works on the bench. The open input is a high-impedance antenna, though: it
+//! picks up crosstalk and supply noise, reads low on a fast edge nearby, and slows the gate.
+//!
+//! Example: a 74LS00 whose input 2B was drawn but never wired.
+//!
+//! Fix: tie unused inputs high: directly to the supply for 74LS and later families, through
+//! a resistor (1 kOhm, up to about 25 inputs per resistor) for standard TTL whose inputs
+//! must not see more than 5.5 V; or tie them to a used input of the same gate.
+
+use super::common::{floating_inputs, pin_list, supply_rail_name, Float};
+use super::Context;
+use crate::diag::Diag;
+use crate::values::format_ohms;
+
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+    let cx = ctx.cx;
+    let (singles, gates) = floating_inputs(ctx, true);
+    let inside = |comp: usize| {
+        cx.family(comp).and_then(|f| f.internal_input_pullup_ohm).map(|r| format!(" through the input's internal ~{}", format_ohms(r))).unwrap_or_default()
+    };
+    let tie = |comp: usize| {
+        let rail = supply_rail_name(ctx, comp);
+        match cx.family(comp).map(|f| f.id.as_str()) {
+            Some("74") | Some("74H") | Some("74L") => format!("tie it to {rail} through 1 kOhm (standard TTL inputs must not see more than 5.5 V; one resistor holds up to about 25 inputs)"),
+            _ => format!("tie it to {rail} (directly, or through 1 kOhm to share one resistor among several inputs)"),
+        }
+    };
+    for g in gates {
+        let c = &cx.nl.components[g.comp];
+        let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
+        let mut d = Diag::warning(
+            "floating-ttl-input",
+            format!(
+                "gate {} of {} ({}) is unused and its TTL inputs are open: {} float high{} and pick up noise",
+                g.unit,
+                c.reference,
+                c.value_str(),
+                pin_list(ctx, &pins),
+                inside(g.comp)
+            ),
+        )
+        .with_help(format!("{}; the gate's output {} may stay open", tie(g.comp).replacen("it", &pin_list(ctx, &pins), 1), pin_list(ctx, &g.outputs)))
+        .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
+        d = d.at(cx.pin_span(pins[0]), "unused gate");
+        for p in &pins[1..] {
+            d = d.also(cx.pin_span(*p), "");
+        }
+        out.push(d);
+    }
+    for f in singles {
+        let (where_, net) = match f.why {
+            Float::Absent => ("is on no net".to_string(), None),
+            Float::Alone(n) => ("is connected to nothing".to_string(), Some(n)),
+            Float::Undriven(n) => (format!("is on net `{}`, which nothing drives", cx.net_name(n)), Some(n)),
+        };
+        let mut d = Diag::warning(
+            "floating-ttl-input",
+            format!("{} {where_}: it floats high{} and picks up noise", cx.describe(f.at), inside(f.at.comp)),
+        )
+        .at(cx.pin_span(f.at), "open TTL input")
+        .with_help(tie(f.at.comp))
+        .with_pins([cx.pin_name(f.at)]);
+        if let Some(n) = net {
+            d = d.on_net(cx.net_name(n));
+        }
+        out.push(d);
+    }
+}

@@ -1,0 +1,67 @@
+//! Finds open-collector and open-drain outputs on a net with no pull-up resistor to a rail.
+//! When the net leaves the board through a connector, the pull-up may be on the other side:
+//! the finding is then a warning that says so.
+//!
+//! Why it matters: an open-collector output only pulls low. With no pull-up the high level
+//! is whatever the loads make of an open net: a TTL input floats high (slowly, and noisily),
+//! a CMOS input floats anywhere.
+//!
+//! Example: a 74LS05 inverter output wired straight to a 74LS00 input.
+//!
+//! Fix: a pull-up from the net to the loads' supply, inside the window set by the output's
+//! IOL and the loads' currents (the message computes it).
+
+use super::Context;
+use crate::classify::PinRole;
+use crate::diag::Diag;
+use crate::values::format_ohms;
+
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+    let cx = ctx.cx;
+    for (net, nm) in cx.nets.iter().enumerate() {
+        if nm.rail.is_some() || nm.pulls.iter().any(|p| p.up) {
+            continue;
+        }
+        let oc: Vec<_> = nm.drivers.iter().filter(|d| d.role == PinRole::OpenCollector).collect();
+        if oc.is_empty() || oc.len() < nm.drivers.len() {
+            continue; // a push-pull driver on the net sets the high level
+        }
+        let d = oc[0];
+        let loads: Vec<String> = nm.loads.iter().map(|l| cx.pin_name(l.at)).collect();
+        let window = ctx.budgets[net].window.as_ref();
+        let fix = match window {
+            Some(w) => match w.r_max {
+                Some(rmax) if rmax > w.r_min => format!("fit a pull-up between {} and {} to {}", format_ohms(w.r_min), format_ohms(rmax), cx.net_name(w.rail_net)),
+                _ => format!("fit a pull-up of at least {} to {}", format_ohms(w.r_min), cx.net_name(w.rail_net)),
+            },
+            None => "fit a pull-up to the loads' supply".to_string(),
+        };
+        let mut diag = if let Some(&j) = nm.connectors.first() {
+            Diag::warning(
+                "missing-pull-up",
+                format!(
+                    "{} has no pull-up on this board; the net leaves through {} pin {}, where one may be fitted",
+                    cx.describe(d.at),
+                    cx.nl.components[j.comp].reference,
+                    cx.nl.components[j.comp].pins[j.pin].num
+                ),
+            )
+            .also(cx.pin_span(j), "leaves the board")
+            .with_help(format!("check the other side of the connector; if it has none, {fix}"))
+        } else {
+            Diag::error(
+                "missing-pull-up",
+                format!(
+                    "{} has no pull-up: nothing sets the net's high level{}",
+                    cx.describe(d.at),
+                    if loads.is_empty() { String::new() } else { format!(" for {}", loads.join(", ")) }
+                ),
+            )
+            .with_help(fix)
+        };
+        diag = diag.at(cx.pin_span(d.at), "open-collector output, no pull-up").on_net(cx.net_name(net)).with_pins(std::iter::once(cx.pin_name(d.at)).chain(loads));
+        // the primary label goes first
+        diag.labels.rotate_right(1);
+        out.push(diag);
+    }
+}
