@@ -44,6 +44,30 @@ pub enum Command {
     Parts(PartsArgs),
     /// List the logic families and their key figures at a chosen supply
     Families(FamiliesArgs),
+    /// Explain a check (what it finds, why it matters, an example, the fix), or list them all
+    Explain(ExplainArgs),
+    /// Show the whole DC budget of one net: drivers, loads, pull resistors, levels and margins
+    Net(NetArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct ExplainArgs {
+    /// The check's id; without it, every check is listed
+    #[arg(value_name = "CHECK")]
+    pub check: Option<String>,
+}
+
+#[derive(Debug, Args)]
+pub struct NetArgs {
+    /// The netlist (`-` reads standard input)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// The net's name as in the netlist (`/CLK`, `Net-(U5-Pad4)`); a leading `/` may be left off
+    #[arg(value_name = "NET")]
+    pub net: String,
+    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
+    #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
+    pub rail: Vec<(String, f64)>,
 }
 
 #[derive(Debug, Args)]

@@ -93,6 +93,43 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             out.flush()?;
             Ok(0)
         }
+        Command::Explain(args) => {
+            let mut out = std::io::stdout().lock();
+            match args.check {
+                None => netmargin::report::explain::write_list(&mut out)?,
+                Some(id) => {
+                    if !netmargin::report::explain::write_one(&mut out, &id)? {
+                        eprintln!("netmargin: no check `{id}`; `netmargin explain` lists them");
+                        return Ok(2);
+                    }
+                }
+            }
+            Ok(0)
+        }
+        Command::Net(args) => {
+            let f = pipeline::read_file(&args.path, &opts);
+            if f.fatal.is_some() {
+                let stderr = std::io::stderr();
+                let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
+                human::write_file(&mut stderr.lock(), &eh, &f)?;
+                return Ok(2);
+            }
+            let rules = netmargin::classify::classifier::Rules::builtin();
+            let source = f.source.as_ref().expect("read");
+            let tree = netmargin::sexpr::parse(source.text()).expect("parsed once already");
+            let nl = netmargin::netlist::build(&tree).expect("built once already");
+            let cl = netmargin::classify::classifier::classify(&nl, &rules);
+            let model = netmargin::circuit::ModelOptions { rails: args.rail.clone(), ..Default::default() };
+            let cx = netmargin::circuit::build(&nl, &cl, &rules, model);
+            let want = args.net.trim_start_matches('/');
+            let Some(net) = (0..nl.nets.len()).find(|&i| nl.nets[i].name.as_str() == args.net || nl.nets[i].name.as_str().trim_start_matches('/') == want) else {
+                eprintln!("netmargin: no net `{}` in {}", args.net, f.name);
+                return Ok(2);
+            };
+            let mut out = std::io::stdout().lock();
+            netmargin::report::net::write_net(&mut out, &cx, net)?;
+            Ok(0)
+        }
         Command::Families(args) => {
             let rules = netmargin::classify::classifier::Rules::builtin();
             let mut out = std::io::stdout().lock();

@@ -140,7 +140,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             });
         }
         for (oi, o) in nm.drivers.iter().enumerate() {
-            if oi == di || o.at.comp == d.at.comp && false {
+            if oi == di {
                 continue;
             }
             if let Some(ol) = &o.levels {
@@ -180,6 +180,11 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 load_high += a;
                 items.push(Item { what: format!("{} off-state leakage", cx.pin_name(o.at)), at: Some(o.at), amps: a });
             }
+        }
+        if d.role == PinRole::OpenCollector {
+            // off in the high state: its own leakage flows too
+            load_high += lv.oc_leakage.abs();
+            items.push(Item { what: format!("{} off-state leakage (its own)", cx.pin_name(d.at)), at: Some(d.at), amps: lv.oc_leakage.abs() });
         }
         if drives_high {
             for &pi in &pulldowns {
