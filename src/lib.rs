@@ -19,3 +19,4 @@ pub mod report;
 pub mod synth;
 pub mod checks;
 pub mod circuit;
+pub mod config;

@@ -25,11 +25,13 @@ pub struct ModelOptions {
     pub rail_tolerance: f64,
     /// Forward voltage assumed for an LED (common practice: 1.7 V for a red LED).
     pub led_vf: f64,
+    /// Connectors whose pins are driven by a known family: (reference, family id).
+    pub connector_families: Vec<(String, String)>,
 }
 
 impl Default for ModelOptions {
     fn default() -> Self {
-        ModelOptions { rails: Vec::new(), rail_tolerance: 0.0, led_vf: 1.7 }
+        ModelOptions { rails: Vec::new(), rail_tolerance: 0.0, led_vf: 1.7, connector_families: Vec::new() }
     }
 }
 
@@ -336,6 +338,17 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
             match part.kind {
                 PartKind::Connector => {
                     nm.connectors.push(at);
+                    let reference = c.reference.as_str();
+                    if let Some((_, fam)) = opts.connector_families.iter().find(|(r, _)| r == reference) {
+                        if let Some(f) = rules.families.get(fam) {
+                            nm.drivers.push(Driver {
+                                at,
+                                role: PinRole::PushPull,
+                                levels: Some(f.levels(f.supply_nominal, Drive::Standard)),
+                                family: Some(f.id.clone()),
+                            });
+                        }
+                    }
                     continue;
                 }
                 PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Led | PartKind::Diode | PartKind::Other => {
