@@ -211,7 +211,7 @@ pub fn level(s: Severity) -> &'static str {
 fn input_code_severity(code: &str) -> Severity {
     match code {
         "missing-field" | "duplicate-net-code" => Severity::Warning,
-        "netlist-version" => Severity::Info,
+        "netlist-version" | "missing-libpart" => Severity::Info,
         _ => Severity::Error,
     }
 }
@@ -460,12 +460,15 @@ mod tests {
         }
         for text in &texts {
             for (sev, needle) in [
-                (Severity::Error, "Diag::error(\""),
-                (Severity::Warning, "Diag::warning(\""),
-                (Severity::Info, "Diag::info(\""),
+                (Severity::Error, "Diag::error("),
+                (Severity::Warning, "Diag::warning("),
+                (Severity::Info, "Diag::info("),
             ] {
                 for (at, _) in text.match_indices(needle) {
-                    let rest = &text[at + needle.len()..];
+                    let Some(rest) = text[at + needle.len()..].trim_start().strip_prefix('"')
+                    else {
+                        continue;
+                    };
                     let code = &rest[..rest.find('"').expect("a closed string literal")];
                     if INPUT_CODES.iter().any(|(c, _)| *c == code) {
                         used.entry(code).or_default().push(sev);
