@@ -98,7 +98,8 @@ pub enum ListFormat {
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Netlist files (`-` reads standard input)
+    /// Netlist files or folders (folders are searched for `*.net`, honouring .gitignore); `-` reads
+    /// standard input
     #[arg(required = true, value_name = "PATH")]
     pub paths: Vec<String>,
     /// Exit with 1 when a finding at or above this severity is reported
@@ -113,6 +114,14 @@ pub struct CheckArgs {
     /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
     #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
     pub rail: Vec<(String, f64)>,
+    /// The project configuration [default: the nearest netmargin.toml at or above each netlist]
+    #[arg(long, value_name = "FILE")]
+    pub config: Option<std::path::PathBuf>,
+    /// Ignore any netmargin.toml
+    #[arg(long, conflicts_with = "config")]
+    pub no_config: bool,
+    #[command(flatten)]
+    pub report: crate::report::ReportArgs,
 }
 
 fn parse_rail(s: &str) -> Result<(String, f64), String> {

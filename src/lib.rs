@@ -20,3 +20,4 @@ pub mod synth;
 pub mod checks;
 pub mod circuit;
 pub mod config;
+pub mod app;

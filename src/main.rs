@@ -38,42 +38,20 @@ fn run(cli: Cli) -> std::io::Result<u8> {
     let opts = ReadOptions { max_bytes: cli.global.max_bytes };
     match cli.command {
         Command::Check(args) => {
-            let stdout = std::io::stdout();
-            let style = HumanStyle { color: color_on(cli.global.color, stdout.is_terminal()), width: 100 };
-            let h = human::handler(style);
-            let mut out = stdout.lock();
-            let stderr = std::io::stderr();
-            let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
-            let mut code = 0u8;
-            let rules = netmargin::classify::classifier::Rules::builtin();
-            let mut run = pipeline::RunOptions { read: opts.clone(), ..Default::default() };
             for id in args.only.iter().chain(&args.disable) {
                 if netmargin::checks::info(id).is_none() {
                     eprintln!("netmargin: unknown check `{id}`; `netmargin explain` lists them");
                     return Ok(2);
                 }
             }
-            if !args.only.is_empty() {
-                run.checks.disabled = netmargin::checks::REGISTRY.iter().map(|c| c.id.to_string()).filter(|id| !args.only.contains(id)).collect();
-            }
-            run.checks.disabled.extend(args.disable.iter().cloned());
-            run.model.rails = args.rail.clone();
-            for path in &args.paths {
-                let f = pipeline::check_file(path, &rules, &run);
-                if f.fatal.is_some() {
-                    out.flush()?;
-                    human::write_file(&mut stderr.lock(), &eh, &f)?;
-                } else {
-                    human::write_file(&mut out, &h, &f)?;
-                }
-                if f.fatal.is_some() {
-                    code = 2;
-                } else if f.worst().is_some_and(|w| w >= args.fail_on.severity()) {
-                    code = code.max(1);
-                }
-            }
+            let (outcomes, config_failed) = netmargin::app::check(&args, &opts);
+            let stdout = std::io::stdout();
+            let color = color_on(cli.global.color, stdout.is_terminal());
+            let ropts = args.report.options(color, 100)?;
+            let mut out = stdout.lock();
+            netmargin::report::write_report(&ropts, &outcomes, &mut out)?;
             out.flush()?;
-            Ok(code)
+            Ok(netmargin::app::exit_code(&outcomes, config_failed, args.fail_on.severity()))
         }
         Command::Parts(args) => {
             let f = pipeline::read_file(&args.path, &opts);

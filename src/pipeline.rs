@@ -41,6 +41,8 @@ pub struct FileOutcome {
     /// Classification coverage of IC-like parts: (classified, IC-like), once the
     /// classifier has run.
     pub coverage: Option<(usize, usize)>,
+    /// Findings suppressed by waivers.
+    pub waived: usize,
 }
 
 impl FileOutcome {
@@ -106,7 +108,7 @@ pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
 /// Reads, models, classifies and checks one file.
 pub fn check_file(path: &str, rules: &Rules, opts: &RunOptions) -> FileOutcome {
     let name = if path == "-" { "<stdin>".to_string() } else { path.to_string() };
-    let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default(), coverage: None };
+    let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default(), coverage: None, waived: 0 };
     let bytes = match read_bytes(path, &opts.read) {
         Ok(b) => b,
         Err(d) => {

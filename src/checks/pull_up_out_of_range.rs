@@ -60,7 +60,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             out.push(mk(
                 true,
                 format!(
-                    "pull-up {} ({}) on {} is below R_min: {}; with it the output must sink {} against IOL {} ({:.0} %); {}",
+                    "pull-up {} ({}) on {} is below R_min: {}; with it the output must sink {} against IOL {} ({:.0}%); {}",
                     names.join(" || "),
                     format_ohms(fitted),
                     cx.describe(d.at),

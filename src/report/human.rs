@@ -1,13 +1,20 @@
 //! The human format: miette's graphical rendering of each diagnostic, with the source
-//! lines, then a summary line per file.
+//! lines, then a summary line per file and one for the whole run.
+//!
+//! miette prints the source lines as they are, so the text it is given is a copy in which
+//! every character that could steer a terminal (controls, bidi overrides) is replaced by a
+//! visible one of the same UTF-8 length: spans and columns stay right.
 
+use std::borrow::Cow;
 use std::io::{self, Write};
 
 use miette::{GraphicalReportHandler, GraphicalTheme};
 
+use super::{count, ReportOptions, Totals};
 use crate::diag::{Diag, Rendered};
 use crate::pipeline::FileOutcome;
 use crate::source::SourceFile;
+use crate::text::sanitize;
 
 /// Rendering settings.
 #[derive(Debug, Clone, Copy)]
@@ -17,22 +24,79 @@ pub struct HumanStyle {
 }
 
 pub fn handler(style: HumanStyle) -> GraphicalReportHandler {
-    let theme = if style.color { GraphicalTheme::unicode() } else { GraphicalTheme::unicode_nocolor() };
-    GraphicalReportHandler::new_themed(theme).with_links(false).with_width(style.width)
+    let theme = if style.color {
+        GraphicalTheme::unicode()
+    } else {
+        GraphicalTheme::unicode_nocolor()
+    };
+    GraphicalReportHandler::new_themed(theme)
+        .with_links(false)
+        .with_width(style.width)
 }
 
-/// Renders one diagnostic against its source.
+/// Renders one diagnostic against its source. miette prints source lines as they are: pass
+/// the source through [`safe_source`] first (once per file).
 pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
     let mut s = String::new();
     let r = Rendered { diag, source };
     if h.render_report(&mut s, &r).is_err() {
-        s = format!("{}: {}\n", diag.severity, diag.message);
+        s = format!("{}: {}\n", diag.severity, sanitize(&diag.message));
     }
     s
 }
 
+/// The source as it may be shown on a terminal: the same text, byte for byte the same
+/// length, with each unsafe character replaced; the name sanitized.
+pub fn safe_source(source: &SourceFile) -> Cow<'_, SourceFile> {
+    let name = sanitize(source.name());
+    let unsafe_text = source.text().chars().any(is_unsafe);
+    if !unsafe_text && matches!(name, Cow::Borrowed(_)) {
+        return Cow::Borrowed(source);
+    }
+    let text: String = if unsafe_text {
+        source.text().chars().map(same_width_stand_in).collect()
+    } else {
+        source.text().to_string()
+    };
+    Cow::Owned(SourceFile::new(name.into_owned(), text))
+}
+
+/// Characters that must not reach a terminal inside a source line. Line ends stay: they
+/// are line ends to miette as to the line index.
+fn is_unsafe(c: char) -> bool {
+    if c == '\n' || c == '\r' || c == '\t' {
+        return false;
+    }
+    c.is_control()
+        || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{2028}' | '\u{2029}')
+}
+
+fn same_width_stand_in(c: char) -> char {
+    if !is_unsafe(c) {
+        return c;
+    }
+    match c.len_utf8() {
+        1 => '?',
+        2 => '\u{bf}',
+        _ => '\u{fffd}',
+    }
+}
+
 /// Writes one file's diagnostics and its summary line.
-pub fn write_file(out: &mut dyn Write, h: &GraphicalReportHandler, f: &FileOutcome) -> io::Result<()> {
+pub fn write_file(
+    out: &mut dyn Write,
+    h: &GraphicalReportHandler,
+    f: &FileOutcome,
+) -> io::Result<()> {
+    write_file_with(out, h, f, false)
+}
+
+fn write_file_with(
+    out: &mut dyn Write,
+    h: &GraphicalReportHandler,
+    f: &FileOutcome,
+    quiet: bool,
+) -> io::Result<()> {
     let empty;
     let source = match &f.source {
         Some(s) => s,
@@ -41,22 +105,121 @@ pub fn write_file(out: &mut dyn Write, h: &GraphicalReportHandler, f: &FileOutco
             &empty
         }
     };
+    let shown = safe_source(source);
+    let source: &SourceFile = &shown;
     if let Some(d) = &f.fatal {
         write!(out, "{}", render(h, d, source))?;
-        writeln!(out, "{}: not checked: {}", crate::text::sanitize(&f.name), d.code)?;
+        if !quiet {
+            writeln!(out, "{}: not checked: {}", sanitize(&f.name), d.code)?;
+        }
         return Ok(());
     }
     for d in &f.diags {
         write!(out, "{}", render(h, d, source))?;
     }
+    if quiet {
+        return Ok(());
+    }
     let s = f.summary;
     writeln!(
         out,
         "{}: {} parts, {} nets, {} pins, {} pins on no net",
-        crate::text::sanitize(&f.name),
+        sanitize(&f.name),
         s.parts,
         s.nets,
         s.pins,
         s.pins_on_no_net
     )
+}
+
+/// The whole run in one line, e.g. `3 files, 57 parts, 131 nets: 2 errors, 5 warnings,
+/// 1 info; 41 of 44 IC-like parts classified`.
+pub fn run_summary(t: &Totals) -> String {
+    let mut s = count(t.files, "file", "files");
+    if t.not_checked > 0 {
+        s.push_str(&format!(" ({} not checked)", t.not_checked));
+    }
+    s.push_str(&format!(
+        ", {}, {}: {}, {}, {} info",
+        count(t.parts, "part", "parts"),
+        count(t.nets, "net", "nets"),
+        count(t.errors, "error", "errors"),
+        count(t.warnings, "warning", "warnings"),
+        t.infos
+    ));
+    if let Some((classified, ic_like)) = t.coverage {
+        s.push_str(&format!(
+            "; {classified} of {ic_like} IC-like parts classified"
+        ));
+    }
+    if t.waived > 0 {
+        s.push_str(&format!("; {} suppressed", t.waived));
+    }
+    s
+}
+
+/// The human report of a whole run.
+pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
+    let h = handler(HumanStyle {
+        color: opts.color,
+        width: opts.width,
+    });
+    for f in files {
+        write_file_with(out, &h, f, opts.quiet)?;
+    }
+    if !opts.quiet {
+        writeln!(out, "{}", run_summary(&Totals::of(files)))?;
+    }
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn stand_ins_keep_every_byte_offset() {
+        let text = "(ref \"U\x1b[2J\u{9b}1\u{202e}x\")\r\n(b)";
+        let src = SourceFile::new("a\x1bb.net", text);
+        let shown = safe_source(&src);
+        assert_eq!(shown.text().len(), text.len());
+        assert_eq!(shown.text(), "(ref \"U?[2J\u{bf}1\u{fffd}x\")\r\n(b)");
+        assert_eq!(shown.name(), "a\\u{1b}b.net");
+        assert_eq!(shown.line_count(), src.line_count());
+        let clean = SourceFile::new("ok.net", "(a)\n");
+        assert!(matches!(safe_source(&clean), Cow::Borrowed(_)));
+    }
+
+    #[test]
+    fn run_summary_names_the_numbers() {
+        let t = Totals {
+            files: 3,
+            not_checked: 0,
+            parts: 57,
+            nets: 131,
+            pins: 0,
+            errors: 2,
+            warnings: 5,
+            infos: 1,
+            coverage: Some((41, 44)),
+            waived: 0,
+        };
+        assert_eq!(run_summary(&t), "3 files, 57 parts, 131 nets: 2 errors, 5 warnings, 1 info; 41 of 44 IC-like parts classified");
+        let one = Totals {
+            files: 1,
+            not_checked: 1,
+            parts: 1,
+            nets: 1,
+            pins: 0,
+            errors: 1,
+            warnings: 1,
+            infos: 0,
+            coverage: None,
+            waived: 0,
+        };
+        assert_eq!(
+            run_summary(&one),
+            "1 file (1 not checked), 1 part, 1 net: 1 error, 1 warning, 0 info"
+        );
+    }
 }

@@ -1,6 +1,456 @@
-//! Reporters: each turns the same outcomes into one output format, writing to `impl Write`.
+//! Reporters: each turns the same outcomes into one output format, writing to `dyn Write`.
+//!
+//! - [`human`]: miette's graphical rendering, per-file lines and a summary line for the run;
+//! - [`short`]: one `path:line:column: severity: message [check]` line per finding;
+//! - [`json`]: one documented JSON document (`docs/json-format.md`);
+//! - [`sarif`]: SARIF 2.1.0, one run;
+//! - [`github`]: workflow-command annotation lines for the CI platform.
+//!
+//! Everything the formats share lives here: the options, the places of a diagnostic in
+//! line/column and byte terms, the fingerprints, paths relative to a root and the totals.
+//! Text from a netlist is untrusted: every reporter escapes it for its own medium.
 
 pub mod explain;
+pub mod github;
 pub mod human;
+pub mod json;
 pub mod net;
 pub mod parts;
+pub mod sarif;
+pub mod short;
+
+use std::io::{self, Write};
+use std::path::{Component, Path, PathBuf};
+
+use clap::{Args, ValueEnum};
+
+use crate::diag::{Diag, Label, Severity};
+use crate::pipeline::FileOutcome;
+use crate::source::{SourceFile, Span};
+
+/// The program's name and version, as the machine formats report them.
+pub const TOOL_NAME: &str = "netmargin";
+pub const TOOL_VERSION: &str = env!("CARGO_PKG_VERSION");
+
+/// An output format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, ValueEnum)]
+pub enum Format {
+    /// Diagnostics with the source lines they point at, and summary lines
+    #[default]
+    Human,
+    /// One `path:line:column: severity: message [check]` line per finding; nothing when clean
+    Short,
+    /// One JSON document (see docs/json-format.md)
+    Json,
+    /// SARIF 2.1.0, for code-scanning tools
+    Sarif,
+    /// Annotation lines (`::error file=...::message`) for CI workflow logs
+    Github,
+}
+
+/// The command-line options of the reporters (flattened into `check`).
+#[derive(Debug, Clone, Args)]
+pub struct ReportArgs {
+    /// Output format
+    #[arg(long, value_enum, default_value_t = Format::Human)]
+    pub format: Format,
+    /// Print the findings only: no per-file or summary lines
+    #[arg(long, short = 'q')]
+    pub quiet: bool,
+    /// Directory that SARIF and annotation paths are relative to [default: the current directory]
+    #[arg(long, value_name = "DIR")]
+    pub root: Option<PathBuf>,
+}
+
+impl ReportArgs {
+    /// The options for [`write_report`]; `color` and `width` only shape the human format.
+    pub fn options(&self, color: bool, width: usize) -> io::Result<ReportOptions> {
+        let cwd = std::env::current_dir()?;
+        let root = match &self.root {
+            Some(r) => cwd.join(r),
+            None => cwd.clone(),
+        };
+        Ok(ReportOptions {
+            format: self.format,
+            quiet: self.quiet,
+            color,
+            width,
+            root,
+            cwd,
+        })
+    }
+}
+
+/// Everything a reporter needs to know besides the outcomes.
+#[derive(Debug, Clone)]
+pub struct ReportOptions {
+    pub format: Format,
+    pub quiet: bool,
+    /// Colour in the human format.
+    pub color: bool,
+    /// Line width of the human format.
+    pub width: usize,
+    /// Absolute directory that SARIF URIs and annotation paths are made relative to.
+    pub root: PathBuf,
+    /// Absolute directory that relative input paths are relative to (the current directory).
+    pub cwd: PathBuf,
+}
+
+impl ReportOptions {
+    /// Options for `format` with the root and the working directory both `dir`.
+    pub fn new(format: Format, dir: impl Into<PathBuf>) -> ReportOptions {
+        let dir = dir.into();
+        ReportOptions {
+            format,
+            quiet: false,
+            color: false,
+            width: 100,
+            root: dir.clone(),
+            cwd: dir,
+        }
+    }
+}
+
+/// Writes the report of a whole run in the chosen format.
+pub fn write_report(
+    opts: &ReportOptions,
+    files: &[FileOutcome],
+    out: &mut dyn Write,
+) -> io::Result<()> {
+    match opts.format {
+        Format::Human => human::write(opts, files, out),
+        Format::Short => short::write(files, out),
+        Format::Json => json::write(opts, files, out),
+        Format::Sarif => sarif::write(opts, files, out),
+        Format::Github => github::write(opts, files, out),
+    }
+}
+
+// ---------------------------------------------------------------------------
+// places
+
+/// Where a span is, in every unit a format wants. Lines and columns are 1-based, columns
+/// count characters; `end_*` is the position just after the span (exclusive).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Place {
+    pub line: usize,
+    pub column: usize,
+    pub end_line: usize,
+    pub end_column: usize,
+    pub byte_offset: usize,
+    pub byte_length: usize,
+}
+
+impl Place {
+    /// The place of `span` in `source` (clamped to the text).
+    pub fn of(source: &SourceFile, span: Span) -> Place {
+        let len = source.text().len();
+        let start = (span.start as usize).min(len);
+        let end = (span.end as usize).clamp(start, len);
+        let a = source.line_col(start);
+        let b = source.line_col(end);
+        Place {
+            line: a.line,
+            column: a.column,
+            end_line: b.line,
+            end_column: b.column,
+            byte_offset: start,
+            byte_length: end - start,
+        }
+    }
+}
+
+/// The primary label of a diagnostic (the first primary one, else the first).
+pub fn primary_label(d: &Diag) -> Option<&Label> {
+    d.labels.iter().find(|l| l.primary).or(d.labels.first())
+}
+
+/// The labels other than the primary one: the secondary places (driver, resistor, other loads).
+pub fn related_labels(d: &Diag) -> impl Iterator<Item = &Label> {
+    let primary = primary_label(d).map(|l| l as *const Label);
+    d.labels
+        .iter()
+        .filter(move |l| Some(*l as *const Label) != primary)
+}
+
+/// The place of the diagnostic's primary span, when it has one and the text is known.
+pub fn primary_place(d: &Diag, source: Option<&SourceFile>) -> Option<Place> {
+    Some(Place::of(source?, primary_label(d)?.span))
+}
+
+// ---------------------------------------------------------------------------
+// fingerprints
+
+/// FNV-1a, 64 bits.
+pub fn fnv1a64(bytes: &[u8]) -> u64 {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for &b in bytes {
+        h ^= u64::from(b);
+        h = h.wrapping_mul(0x0100_0000_01b3);
+    }
+    h
+}
+
+/// What identifies a finding regardless of where it sits in the file: the check, the net and
+/// the pins (which name the parts); when it names neither a net nor a pin, the text of its
+/// primary element with white space collapsed. Never a line number or an offset.
+pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
+    let mut key = String::new();
+    key.push_str(&d.code);
+    key.push('\u{1f}');
+    key.push_str(d.net.as_deref().unwrap_or(""));
+    for p in &d.pins {
+        key.push('\u{1f}');
+        key.push_str(p);
+    }
+    if d.net.is_none() && d.pins.is_empty() {
+        key.push('\u{1e}');
+        if let (Some(src), Some(l)) = (source, primary_label(d)) {
+            let text = src.text().get(l.span.range()).unwrap_or("");
+            let mut first = true;
+            for word in text.split_whitespace() {
+                if !first {
+                    key.push(' ');
+                }
+                key.push_str(word);
+                first = false;
+            }
+        }
+    }
+    key
+}
+
+/// The fingerprints of a file's findings, in order: 16 hex digits of FNV-1a 64 of the key.
+/// Findings with the same key in one file are told apart by their rank among them (the
+/// findings come in a stable order), so each fingerprint is unique within its file.
+pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
+    let mut seen: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+    f.diags
+        .iter()
+        .map(|d| {
+            let mut key = fingerprint_key(d, f.source.as_ref());
+            let n = seen.entry(key.clone()).or_insert(0);
+            if *n > 0 {
+                key.push_str(&format!("\u{1d}{n}"));
+            }
+            *n += 1;
+            format!("{:016x}", fnv1a64(key.as_bytes()))
+        })
+        .collect()
+}
+
+/// The fingerprint of a file's fatal diagnostic.
+pub fn fatal_fingerprint(d: &Diag, source: Option<&SourceFile>) -> String {
+    format!("{:016x}", fnv1a64(fingerprint_key(d, source).as_bytes()))
+}
+
+// ---------------------------------------------------------------------------
+// paths
+
+/// Where an input lies relative to the root.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum RootedPath {
+    /// Under the root: the path from it, `/`-separated.
+    Relative(String),
+    /// Outside the root: the absolute path, `/`-separated, with a leading `/` (or a drive).
+    Absolute(String),
+    /// Standard input: no path.
+    Stdin,
+}
+
+/// Resolves an input's name (as given) against `cwd` and expresses it relative to `root`.
+/// Purely lexical: `.` and `..` are folded, links are not followed.
+pub fn rooted_path(name: &str, root: &Path, cwd: &Path) -> RootedPath {
+    if name == "<stdin>" {
+        return RootedPath::Stdin;
+    }
+    let abs = normalize(&cwd.join(name));
+    let root = normalize(&cwd.join(root));
+    match abs.strip_prefix(&root) {
+        Ok(rel) if rel.as_os_str().is_empty() => RootedPath::Relative(".".to_string()),
+        Ok(rel) => RootedPath::Relative(slashed(rel)),
+        Err(_) => {
+            let s = slashed(&abs);
+            RootedPath::Absolute(if s.starts_with('/') {
+                s
+            } else {
+                format!("/{s}")
+            })
+        }
+    }
+}
+
+fn normalize(p: &Path) -> PathBuf {
+    let mut out = PathBuf::new();
+    for c in p.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                out.pop();
+            }
+            other => out.push(other.as_os_str()),
+        }
+    }
+    out
+}
+
+fn slashed(p: &Path) -> String {
+    let mut parts: Vec<String> = Vec::new();
+    let mut rooted = false;
+    for c in p.components() {
+        match c {
+            Component::Prefix(pre) => parts.push(pre.as_os_str().to_string_lossy().into_owned()),
+            Component::RootDir => rooted = true,
+            Component::Normal(s) => parts.push(s.to_string_lossy().into_owned()),
+            Component::CurDir | Component::ParentDir => {
+                parts.push(c.as_os_str().to_string_lossy().into_owned())
+            }
+        }
+    }
+    let joined = parts.join("/");
+    if rooted && !matches!(p.components().next(), Some(Component::Prefix(_))) {
+        format!("/{joined}")
+    } else {
+        joined
+    }
+}
+
+/// `p` made absolute against `cwd`, folded and `/`-separated.
+pub(crate) fn absolute_slashed(p: &Path, cwd: &Path) -> String {
+    let s = slashed(&normalize(&cwd.join(p)));
+    if s.starts_with('/') {
+        s
+    } else {
+        format!("/{s}")
+    }
+}
+
+/// The path shown for a file where a relative path is wanted (annotations): relative to the
+/// root when under it, else absolute; `<stdin>` for standard input.
+pub fn display_path(name: &str, opts: &ReportOptions) -> String {
+    match rooted_path(name, &opts.root, &opts.cwd) {
+        RootedPath::Relative(s) | RootedPath::Absolute(s) => s,
+        RootedPath::Stdin => "<stdin>".to_string(),
+    }
+}
+
+// ---------------------------------------------------------------------------
+// totals
+
+/// Counts over a whole run.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct Totals {
+    pub files: usize,
+    /// Files that could not be read or modelled (their fatal diagnostic is not counted below).
+    pub not_checked: usize,
+    pub parts: usize,
+    pub nets: usize,
+    pub pins: usize,
+    pub errors: usize,
+    pub warnings: usize,
+    pub infos: usize,
+    /// (classified, IC-like) summed over the files that report coverage; `None` when none does.
+    pub coverage: Option<(usize, usize)>,
+    /// Findings suppressed by waivers or a baseline.
+    pub waived: usize,
+}
+
+impl Totals {
+    pub fn of(files: &[FileOutcome]) -> Totals {
+        let mut t = Totals {
+            files: files.len(),
+            ..Totals::default()
+        };
+        for f in files {
+            if f.fatal.is_some() {
+                t.not_checked += 1;
+            }
+            t.parts += f.summary.parts;
+            t.nets += f.summary.nets;
+            t.pins += f.summary.pins;
+            t.waived += f.waived;
+            for d in &f.diags {
+                match d.severity {
+                    Severity::Error => t.errors += 1,
+                    Severity::Warning => t.warnings += 1,
+                    Severity::Info => t.infos += 1,
+                }
+            }
+            if let Some((c, n)) = f.coverage {
+                let (tc, tn) = t.coverage.unwrap_or((0, 0));
+                t.coverage = Some((tc + c, tn + n));
+            }
+        }
+        t
+    }
+}
+
+/// `1 file`, `2 files`.
+pub(crate) fn count(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fnv1a64_matches_the_published_test_vectors() {
+        // FNV-1a 64-bit test vectors published with the algorithm (the FNV authors' test
+        // suite, also in the IETF FNV draft); values quoted from memory
+        assert_eq!(fnv1a64(b""), 0xcbf29ce484222325);
+        assert_eq!(fnv1a64(b"a"), 0xaf63dc4c8601ec8c);
+        assert_eq!(fnv1a64(b"foobar"), 0x85944171f73967e8);
+    }
+
+    #[test]
+    fn paths_relative_to_the_root() {
+        let root = Path::new("/repo");
+        assert_eq!(
+            rooted_path("boards/a.net", root, Path::new("/repo")),
+            RootedPath::Relative("boards/a.net".into())
+        );
+        assert_eq!(
+            rooted_path("./x/../a.net", root, Path::new("/repo/sub")),
+            RootedPath::Relative("sub/a.net".into())
+        );
+        assert_eq!(
+            rooted_path("/repo/b/c.net", root, Path::new("/elsewhere")),
+            RootedPath::Relative("b/c.net".into())
+        );
+        assert_eq!(
+            rooted_path("../c.net", root, Path::new("/repo")),
+            RootedPath::Absolute("/c.net".into())
+        );
+        // a sibling whose name starts like the root is not under it
+        assert_eq!(
+            rooted_path("/repo2/c.net", root, Path::new("/")),
+            RootedPath::Absolute("/repo2/c.net".into())
+        );
+        assert_eq!(
+            rooted_path("<stdin>", root, Path::new("/repo")),
+            RootedPath::Stdin
+        );
+    }
+
+    #[test]
+    fn places_count_characters_and_end_after_the_span() {
+        let src = SourceFile::new("t", "(a\n  (ref \"Ω1\") x)\n");
+        // `"Ω1"` starts at byte 10 (line 2, column 8) and is 5 bytes, 4 characters
+        let p = Place::of(&src, Span::new(10, 15));
+        assert_eq!(
+            p,
+            Place {
+                line: 2,
+                column: 8,
+                end_line: 2,
+                end_column: 12,
+                byte_offset: 10,
+                byte_length: 5
+            }
+        );
+        // a span past the end is clamped
+        let q = Place::of(&src, Span::new(100, 200));
+        assert_eq!((q.byte_offset, q.byte_length), (src.text().len(), 0));
+    }
+}

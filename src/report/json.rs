@@ -1,0 +1,251 @@
+//! The JSON format: one document for the whole run. Every field is described in
+//! `docs/json-format.md`; `format_version` changes when a field changes meaning or goes away
+//! (new fields may be added without a change).
+//!
+//! serde_json escapes the C0 controls; [`escape_unsafe`] then escapes what it leaves raw and
+//! a terminal could still act on (DEL, C1 controls, bidi overrides, line and paragraph
+//! separators), so the document can be shown on a terminal as it is and reads back the same.
+
+use std::io::{self, Write};
+
+use serde::Serialize;
+
+use super::{
+    fatal_fingerprint, fingerprints, primary_label, related_labels, Place, ReportOptions, Totals,
+    TOOL_NAME, TOOL_VERSION,
+};
+use crate::diag::{Diag, Severity};
+use crate::pipeline::FileOutcome;
+use crate::source::{SourceFile, Span};
+
+/// The version of this document's layout.
+pub const FORMAT_VERSION: u32 = 1;
+
+#[derive(Serialize)]
+struct Document<'a> {
+    format_version: u32,
+    tool: Tool,
+    files: Vec<File<'a>>,
+    totals: TotalsOut,
+}
+
+#[derive(Serialize)]
+struct Tool {
+    name: &'static str,
+    version: &'static str,
+}
+
+#[derive(Serialize)]
+struct File<'a> {
+    path: &'a str,
+    checked: bool,
+    error: Option<Finding<'a>>,
+    summary: Option<SummaryOut>,
+    findings: Vec<Finding<'a>>,
+}
+
+#[derive(Serialize)]
+struct SummaryOut {
+    parts: usize,
+    nets: usize,
+    pins: usize,
+    pins_on_no_net: usize,
+    classified: Option<usize>,
+    ic_like: Option<usize>,
+}
+
+#[derive(Serialize)]
+struct Finding<'a> {
+    check: &'a str,
+    severity: Severity,
+    message: &'a str,
+    net: Option<&'a str>,
+    pins: &'a [String],
+    label: Option<&'a str>,
+    #[serde(flatten)]
+    place: PlaceOut,
+    help: Option<&'a str>,
+    related: Vec<Related<'a>>,
+    fingerprint: String,
+}
+
+#[derive(Serialize)]
+struct Related<'a> {
+    message: &'a str,
+    #[serde(flatten)]
+    place: PlaceOut,
+}
+
+#[derive(Serialize, Default)]
+struct PlaceOut {
+    line: Option<usize>,
+    column: Option<usize>,
+    end_line: Option<usize>,
+    end_column: Option<usize>,
+    byte_offset: Option<usize>,
+    byte_length: Option<usize>,
+}
+
+impl PlaceOut {
+    fn of(source: Option<&SourceFile>, span: Option<Span>) -> PlaceOut {
+        match (source, span) {
+            (Some(src), Some(span)) => {
+                let p = Place::of(src, span);
+                PlaceOut {
+                    line: Some(p.line),
+                    column: Some(p.column),
+                    end_line: Some(p.end_line),
+                    end_column: Some(p.end_column),
+                    byte_offset: Some(p.byte_offset),
+                    byte_length: Some(p.byte_length),
+                }
+            }
+            _ => PlaceOut::default(),
+        }
+    }
+}
+
+#[derive(Serialize)]
+struct TotalsOut {
+    files: usize,
+    checked: usize,
+    not_checked: usize,
+    parts: usize,
+    nets: usize,
+    pins: usize,
+    errors: usize,
+    warnings: usize,
+    infos: usize,
+    classified: Option<usize>,
+    ic_like: Option<usize>,
+}
+
+fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: String) -> Finding<'a> {
+    let primary = primary_label(d);
+    Finding {
+        check: &d.code,
+        severity: d.severity,
+        message: &d.message,
+        net: d.net.as_deref(),
+        pins: &d.pins,
+        label: primary.map(|l| l.text.as_str()).filter(|t| !t.is_empty()),
+        place: PlaceOut::of(source, primary.map(|l| l.span)),
+        help: d.help.as_deref(),
+        related: related_labels(d)
+            .map(|l| Related {
+                message: &l.text,
+                place: PlaceOut::of(source, Some(l.span)),
+            })
+            .collect(),
+        fingerprint,
+    }
+}
+
+fn document(files: &[FileOutcome]) -> Document<'_> {
+    let t = Totals::of(files);
+    let out_files = files
+        .iter()
+        .map(|f| {
+            let src = f.source.as_ref();
+            let checked = f.fatal.is_none();
+            let fps = fingerprints(f);
+            File {
+                path: &f.name,
+                checked,
+                error: f
+                    .fatal
+                    .as_ref()
+                    .map(|d| finding(d, src, fatal_fingerprint(d, src))),
+                summary: checked.then(|| SummaryOut {
+                    parts: f.summary.parts,
+                    nets: f.summary.nets,
+                    pins: f.summary.pins,
+                    pins_on_no_net: f.summary.pins_on_no_net,
+                    classified: f.coverage.map(|c| c.0),
+                    ic_like: f.coverage.map(|c| c.1),
+                }),
+                findings: f
+                    .diags
+                    .iter()
+                    .zip(fps)
+                    .map(|(d, fp)| finding(d, src, fp))
+                    .collect(),
+            }
+        })
+        .collect();
+    Document {
+        format_version: FORMAT_VERSION,
+        tool: Tool {
+            name: TOOL_NAME,
+            version: TOOL_VERSION,
+        },
+        files: out_files,
+        totals: TotalsOut {
+            files: t.files,
+            checked: t.files - t.not_checked,
+            not_checked: t.not_checked,
+            parts: t.parts,
+            nets: t.nets,
+            pins: t.pins,
+            errors: t.errors,
+            warnings: t.warnings,
+            infos: t.infos,
+            classified: t.coverage.map(|c| c.0),
+            ic_like: t.coverage.map(|c| c.1),
+        },
+    }
+}
+
+/// Escapes, as `\uXXXX`, the characters serde_json leaves raw that a terminal could act on.
+/// serde_json's output is ASCII outside strings, so each such character is inside a string
+/// and the escape reads back as the same character.
+pub fn escape_unsafe(json: String) -> String {
+    if !json.chars().any(needs_escape) {
+        return json;
+    }
+    let mut out = String::with_capacity(json.len() + 16);
+    for c in json.chars() {
+        if needs_escape(c) {
+            out.push_str(&format!("\\u{:04x}", c as u32));
+        } else {
+            out.push(c);
+        }
+    }
+    out
+}
+
+fn needs_escape(c: char) -> bool {
+    // all are in the Basic Multilingual Plane: one `\uXXXX` each
+    c == '\u{7f}'
+        || ('\u{80}'..='\u{9f}').contains(&c)
+        || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{2028}' | '\u{2029}')
+}
+
+/// The document as text, with a final line end.
+pub fn to_string(files: &[FileOutcome]) -> String {
+    let text = serde_json::to_string_pretty(&document(files))
+        .expect("a document of strings and numbers serializes");
+    let mut text = escape_unsafe(text);
+    text.push('\n');
+    text
+}
+
+pub fn write(_opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
+    out.write_all(to_string(files).as_bytes())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn escapes_what_serde_json_leaves_raw_and_reads_back_the_same() {
+        let s = "a\u{7f}b\u{9b}c\u{202e}d\u{2028}e µΩ \u{1b}";
+        let json = escape_unsafe(serde_json::to_string(s).unwrap());
+        assert!(!json.chars().any(needs_escape));
+        assert!(!json.contains('\u{1b}') && !json.contains('\u{202e}') && !json.contains('\u{9b}'));
+        assert!(json.contains("\\u202e") && json.contains("\\u001b") && json.contains("µΩ"));
+        let back: String = serde_json::from_str(&json).unwrap();
+        assert_eq!(back, s);
+    }
+}
