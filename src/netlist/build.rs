@@ -393,7 +393,7 @@ impl<'a> Builder<'_, 'a> {
     /// Cross-references: refs, libparts, node components, pin lists and connections.
     fn link(&self, nl: &mut Netlist<'a>) {
         // refs
-        let mut by_ref: HashMap<String, usize> = HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
+        let mut by_ref: HashMap<Cow<'a, str>, usize> = HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
         for (i, c) in nl.components.iter().enumerate() {
             if let Some(&first) = by_ref.get(c.reference.as_str()) {
                 self.diags.borrow_mut().push(
@@ -403,7 +403,7 @@ impl<'a> Builder<'_, 'a> {
                         .with_help("re-annotate the schematic so every reference is unique, then export again"),
                 );
             } else {
-                by_ref.insert(c.reference.s.to_string(), i);
+                by_ref.insert(c.reference.s.clone(), i);
             }
         }
         // libparts by (lib, part) and (lib, alias), and by part alone as a fallback
@@ -464,7 +464,7 @@ impl<'a> Builder<'_, 'a> {
                 }
             }
             if !net.name.s.is_empty() {
-                by_net_name.entry(net.name.s.to_string()).or_insert(ni);
+                by_net_name.entry(net.name.s.clone()).or_insert(ni);
             }
             for (k, node) in net.nodes.iter_mut().enumerate() {
                 match by_ref.get(node.reference.as_str()) {
@@ -481,37 +481,102 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         drop(codes);
-        {
-            let nets = &nl.nets;
-            let pin = |e: &(u32, u32, u32)| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str();
-            entries.sort_unstable_by(|a, b| a.0.cmp(&b.0).then_with(|| pin(a).cmp(pin(b))).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+
+        // Pin numbers as integers: each distinct pin text gets its rank in text order, so
+        // sorting by rank sorts exactly as comparing the texts would.
+        let mut pin_ids: HashMap<Cow<'a, str>, u32> = HashMap::default();
+        let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
+        for &(_, ni, k) in &entries {
+            let pin = &nl.nets[ni as usize].nodes[k as usize].pin.s;
+            let next = pin_ids.len() as u32;
+            let id = match pin_ids.get(pin.as_ref()) {
+                Some(&id) => id,
+                None => {
+                    pin_ids.insert(pin.clone(), next);
+                    next
+                }
+            };
+            pin_of.push(id);
         }
+        let mut by_text: Vec<(&str, u32)> = pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
+        by_text.sort_unstable();
+        let mut rank_of_id = vec![0u32; by_text.len()];
+        for (rank, &(_, id)) in by_text.iter().enumerate() {
+            rank_of_id[id as usize] = rank as u32;
+        }
+        drop(by_text);
+        for id in pin_ids.values_mut() {
+            *id = rank_of_id[*id as usize];
+        }
+        for p in &mut pin_of {
+            *p = rank_of_id[*p as usize];
+        }
+        drop(rank_of_id);
+
+        // Group the entries by component (a counting sort: linear, and it keeps each
+        // component's entries in net and node order), then sort each group by pin rank.
+        let ncomp = nl.components.len();
+        let mut comp_at = vec![0u32; ncomp + 1];
+        for e in &entries {
+            comp_at[e.0 as usize + 1] += 1;
+        }
+        for c in 0..ncomp {
+            comp_at[c + 1] += comp_at[c];
+        }
+        let mut fill: Vec<u32> = comp_at[..ncomp].to_vec();
+        // (pin rank, net, node)
+        let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); entries.len()];
+        for (e, &rank) in entries.iter().zip(&pin_of) {
+            let at = &mut fill[e.0 as usize];
+            sorted[*at as usize] = (rank, e.1, e.2);
+            *at += 1;
+        }
+        drop(fill);
+        drop(pin_of);
+        drop(entries);
+        for c in 0..ncomp {
+            let group = &mut sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
+            if group.len() > 1 {
+                group.sort_unstable();
+            }
+        }
+
+        // Flat per-node tables: node `k` of net `ni` is at `net_at[ni] + k`.
+        let mut net_at: Vec<u32> = Vec::with_capacity(nl.nets.len() + 1);
+        let mut total = 0u32;
+        for net in &nl.nets {
+            net_at.push(total);
+            total += net.nodes.len() as u32;
+        }
+        net_at.push(total);
+
         // keep the first (component, pin) of each group; a repeat in the same net is dropped
         // quietly, one in another net is a diagnostic
-        let mut keep: Vec<Vec<bool>> = nl.nets.iter().map(|n| vec![false; n.nodes.len()]).collect();
+        let mut keep = vec![false; total as usize];
         let mut twice: Vec<(usize, usize, Span, String)> = Vec::new();
-        let mut first_of_group = 0;
-        for i in 0..entries.len() {
-            let e = entries[i];
-            let same = i > 0 && {
-                let f = entries[first_of_group];
-                f.0 == e.0 && nl.nets[f.1 as usize].nodes[f.2 as usize].pin.s == nl.nets[e.1 as usize].nodes[e.2 as usize].pin.s
-            };
-            if !same {
-                first_of_group = i;
-                keep[e.1 as usize][e.2 as usize] = true;
-                continue;
-            }
-            let f = entries[first_of_group];
-            if f.1 != e.1 && entries[i - 1].1 != e.1 {
-                let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
-                twice.push((f.1 as usize, e.1 as usize, node.span, format!("{}.{}", node.reference, node.pin)));
+        for c in 0..ncomp {
+            let group = &sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
+            let mut first_of_run = 0;
+            for i in 0..group.len() {
+                let e = group[i];
+                if i == 0 || group[first_of_run].0 != e.0 {
+                    first_of_run = i;
+                    keep[(net_at[e.1 as usize] + e.2) as usize] = true;
+                    continue;
+                }
+                let f = group[first_of_run];
+                if f.1 != e.1 && group[i - 1].1 != e.1 {
+                    let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
+                    twice.push((f.1 as usize, e.1 as usize, node.span, format!("{}.{}", node.reference, node.pin)));
+                }
             }
         }
-        // drop the repeats and renumber the kept nodes
-        let mut new_index: Vec<Vec<u32>> = Vec::with_capacity(nl.nets.len());
-        for (net, keep) in nl.nets.iter_mut().zip(&keep) {
-            let mut map = vec![u32::MAX; keep.len()];
+        // drop the repeats and renumber the kept nodes (`new_index` reuses the flat layout)
+        let mut new_index = vec![u32::MAX; total as usize];
+        for (ni, net) in nl.nets.iter_mut().enumerate() {
+            let base = net_at[ni] as usize;
+            let keep = &keep[base..base + net.nodes.len()];
+            let map = &mut new_index[base..base + net.nodes.len()];
             let mut n = 0u32;
             for (k, &kp) in keep.iter().enumerate() {
                 if kp {
@@ -526,19 +591,25 @@ impl<'a> Builder<'_, 'a> {
                     keep[k - 1]
                 });
             }
-            new_index.push(map);
         }
         drop(keep);
-        // per component, its kept (pin, net, node) sorted by pin
-        let mut pin_nets: Vec<(u32, u32, u32)> = entries
-            .into_iter()
-            .filter_map(|(c, ni, k)| {
-                let nk = new_index[ni as usize][k as usize];
-                (nk != u32::MAX).then_some((c, ni, nk))
-            })
-            .collect();
-        pin_nets.shrink_to_fit();
+        // per component, its kept (pin rank, net, node), still sorted by pin
+        let mut pin_nets: Vec<(u32, u32, u32)> = Vec::with_capacity(sorted.len());
+        let mut pins_at: Vec<u32> = Vec::with_capacity(ncomp + 1);
+        for c in 0..ncomp {
+            pins_at.push(pin_nets.len() as u32);
+            for &(rank, ni, k) in &sorted[comp_at[c] as usize..comp_at[c + 1] as usize] {
+                let nk = new_index[(net_at[ni as usize] + k) as usize];
+                if nk != u32::MAX {
+                    pin_nets.push((rank, ni, nk));
+                }
+            }
+        }
+        pins_at.push(pin_nets.len() as u32);
+        drop(sorted);
         drop(new_index);
+        drop(comp_at);
+        drop(net_at);
         for (first, second, span, pin) in twice {
             let (f, n) = (&nl.nets[first], &nl.nets[second]);
             self.diags.borrow_mut().push(
@@ -550,18 +621,13 @@ impl<'a> Builder<'_, 'a> {
         }
 
         // component pins: the libpart's, then any the nets name that it lacks
-        let mut at = 0usize;
         for (ci, c) in nl.components.iter_mut().enumerate() {
-            let start = at;
-            while at < pin_nets.len() && pin_nets[at].0 as usize == ci {
-                at += 1;
-            }
-            let mine = &pin_nets[start..at];
+            let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
             let nets = &nl.nets;
+            // where in `mine` the pin numbered `num` is
             let find = |num: &str| {
-                mine.binary_search_by(|e| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str().cmp(num))
-                    .ok()
-                    .map(|i| (mine[i].1 as usize, mine[i].2 as usize))
+                let rank = *pin_ids.get(num)?;
+                mine.binary_search_by(|e| e.0.cmp(&rank)).ok()
             };
             let mut pins: Vec<CompPin<'a>> = Vec::new();
             let mut used = vec![false; mine.len()];
@@ -574,22 +640,20 @@ impl<'a> Builder<'_, 'a> {
                     }
                     let found = find(lpin.num.as_str());
                     let connection = match found {
-                        Some((net, node)) => {
-                            if let Ok(i) = mine.binary_search_by(|e| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str().cmp(lpin.num.as_str())) {
-                                if used[i] {
-                                    continue; // stacked pins listed twice
-                                }
-                                used[i] = true;
+                        Some(i) => {
+                            if used[i] {
+                                continue; // stacked pins listed twice
                             }
-                            connection(nets, net, node)
+                            used[i] = true;
+                            connection(nets, mine[i].1 as usize, mine[i].2 as usize)
                         }
                         None => Connection::Absent,
                     };
                     let mut ptype = lpin.ptype;
                     let mut no_connect = lpin.ptype == PinType::NoConnect;
                     let mut name = lpin.name.as_ref().map(|n| n.s.clone());
-                    if let Some((net, node)) = found {
-                        let nd = &nets[net].nodes[node];
+                    if let Some(i) = found {
+                        let nd = &nets[mine[i].1 as usize].nodes[mine[i].2 as usize];
                         if let Some(t) = nd.pintype {
                             ptype = t;
                         }
@@ -632,5 +696,83 @@ fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {
         Connection::Net { net, node }
     } else {
         Connection::Alone { net, node }
+    }
+}
+
+#[cfg(test)]
+mod scale_tests {
+    use std::fmt::Write;
+
+    use crate::netlist::{build, Connection};
+    use crate::sexpr::parse;
+
+    /// A component whose library part has 100 000 pins, every pin on a net of its own and
+    /// named twice there (the repeat is dropped), and pin 7 also on a second net.
+    #[test]
+    fn a_component_with_100_000_pins_links_every_pin() {
+        const N: usize = 100_000;
+        let mut s = String::from("(export (version \"E\") (components (comp (ref \"U1\") (libsource (lib \"x\") (part \"BIG\"))))\n(libparts (libpart (lib \"x\") (part \"BIG\") (pins\n");
+        for p in 1..=N {
+            let _ = writeln!(s, "(pin (num \"{p}\") (name \"P{p}\") (type \"input\"))");
+        }
+        s.push_str(")))\n(nets\n");
+        for p in 1..=N {
+            let _ = writeln!(s, "(net (code \"{p}\") (name \"N{p}\") (node (ref \"U1\") (pin \"{p}\")) (node (ref \"U1\") (pin \"{p}\")))");
+        }
+        s.push_str("(net (code \"0\") (name \"EXTRA\") (node (ref \"U1\") (pin \"7\")) (node (ref \"U1\") (pin \"100001\")))))");
+        let t = parse(&s).unwrap();
+        let nl = build(&t).unwrap();
+        let u1 = &nl.components[0];
+        // the libpart's pins in their order, then the one only a net names
+        assert_eq!(u1.pins.len(), N + 1);
+        assert_eq!(u1.pins[0].num, "1");
+        assert_eq!(u1.pins[N - 1].num, "100000");
+        assert_eq!(u1.pins[N].num, "100001");
+        assert_eq!(u1.pins[N].libpin, None);
+        // each net keeps one node: the pin is alone on it
+        assert!(nl.nets[..N].iter().all(|n| n.nodes.len() == 1));
+        assert_eq!(u1.pins[41].connection, Connection::Alone { net: 41, node: 0 });
+        // U1.7 stays on its first net: EXTRA keeps only pin 100001
+        assert_eq!(u1.pins[6].connection, Connection::Alone { net: 6, node: 0 });
+        assert_eq!(nl.nets[N].nodes.len(), 1);
+        assert_eq!(u1.pins[N].connection, Connection::Alone { net: N, node: 0 });
+        let two: Vec<&str> = nl.diagnostics.iter().filter(|d| d.code == "pin-on-two-nets").map(|d| d.message.as_str()).collect();
+        assert_eq!(two, ["U1.7 is on two nets: `N7` and `EXTRA`"]);
+    }
+
+    /// One net of 1 000 000 nodes: 500 components of 1000 pins, with each node written
+    /// twice in the net; the repeats are dropped.
+    #[test]
+    fn a_net_of_1_000_000_nodes_is_deduplicated() {
+        const C: usize = 500;
+        const P: usize = 1000;
+        let mut s = String::from("(export (version \"E\") (components\n");
+        for c in 0..C {
+            let _ = writeln!(s, "(comp (ref \"R{c}\"))");
+        }
+        s.push_str(") (nets (net (code \"1\") (name \"BUS\")\n");
+        for _ in 0..2 {
+            for c in 0..C {
+                for p in 0..P {
+                    let _ = writeln!(s, "(node (ref \"R{c}\") (pin \"{p}\"))");
+                }
+            }
+        }
+        s.push_str(")))");
+        let t = parse(&s).unwrap();
+        let nl = build(&t).unwrap();
+        assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
+        assert_eq!(nl.nets[0].nodes.len(), C * P);
+        let r7 = &nl.components[nl.component("R7").unwrap()];
+        assert_eq!(r7.pins.len(), P);
+        // pins without a libpart come in text order: "0", "1", "10", "100", ...
+        assert_eq!(r7.pins[2].num, "10");
+        let node = match r7.pins[2].connection {
+            Connection::Net { net: 0, node } => node,
+            other => panic!("{other:?}"),
+        };
+        assert_eq!(nl.nets[0].nodes[node].reference.as_str(), "R7");
+        assert_eq!(nl.nets[0].nodes[node].pin.as_str(), "10");
+        assert_eq!(node, 7 * P + 10);
     }
 }
