@@ -251,6 +251,10 @@ impl<'a> Builder<'_, 'a> {
             );
             return None;
         }
+        // a vector grows to 4 items at its first push; give back what one or two don't use
+        comp.tstamps.shrink_to_fit();
+        comp.fields.shrink_to_fit();
+        comp.properties.shrink_to_fit();
         Some(comp)
     }
 
@@ -387,6 +391,7 @@ impl<'a> Builder<'_, 'a> {
         if !have_name {
             self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(name ...)`; it is read as unnamed").at(self.t.span(c), "no name"));
         }
+        net.nodes.shrink_to_fit();
         net
     }
 
@@ -620,25 +625,36 @@ impl<'a> Builder<'_, 'a> {
             );
         }
 
+        // per library part, once: each pin's rank among the pin texts the nets use, and
+        // whether an earlier pin of the part has the same number (a stacked pin)
+        let lib_pins: Vec<(Vec<Option<u32>>, Vec<bool>)> = nl
+            .libparts
+            .iter()
+            .map(|lp| {
+                let mut seen: HashMap<&str, ()> = HashMap::with_capacity_and_hasher(lp.pins.len(), Default::default());
+                let ranks = lp.pins.iter().map(|p| pin_ids.get(p.num.as_str()).copied()).collect();
+                let repeats = lp.pins.iter().map(|p| seen.insert(p.num.as_str(), ()).is_some()).collect();
+                (ranks, repeats)
+            })
+            .collect();
+        let mut used: Vec<bool> = Vec::new();
         // component pins: the libpart's, then any the nets name that it lacks
         for (ci, c) in nl.components.iter_mut().enumerate() {
             let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
             let nets = &nl.nets;
-            // where in `mine` the pin numbered `num` is
-            let find = |num: &str| {
-                let rank = *pin_ids.get(num)?;
-                mine.binary_search_by(|e| e.0.cmp(&rank)).ok()
-            };
             let mut pins: Vec<CompPin<'a>> = Vec::new();
-            let mut used = vec![false; mine.len()];
+            used.clear();
+            used.resize(mine.len(), false);
             if let Some(li) = c.libpart {
                 let lpins = &nl.libparts[li].pins;
+                let (ranks, repeats) = &lib_pins[li];
                 pins.reserve(lpins.len());
                 for (pi, lpin) in lpins.iter().enumerate() {
-                    if pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
+                    // only a number an earlier pin had can be among the pins so far
+                    if repeats[pi] && pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
                         continue; // stacked pins listed twice
                     }
-                    let found = find(lpin.num.as_str());
+                    let found = ranks[pi].and_then(|rank| mine.binary_search_by(|e| e.0.cmp(&rank)).ok());
                     let connection = match found {
                         Some(i) => {
                             if used[i] {
@@ -700,7 +716,7 @@ fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {
 }
 
 #[cfg(test)]
-mod scale_tests {
+mod link_tests {
     use std::fmt::Write;
 
     use crate::netlist::{build, Connection};
@@ -774,5 +790,27 @@ mod scale_tests {
         assert_eq!(nl.nets[0].nodes[node].reference.as_str(), "R7");
         assert_eq!(nl.nets[0].nodes[node].pin.as_str(), "10");
         assert_eq!(node, 7 * P + 10);
+    }
+
+    /// A library part that lists a pin number twice (stacked pins) gives the component
+    /// one pin for it, early in the list and after the 64th pin alike.
+    #[test]
+    fn stacked_library_pins_are_listed_once() {
+        let mut s = String::from("(export (version \"E\") (components (comp (ref \"U1\") (libsource (lib \"x\") (part \"S\"))))\n(libparts (libpart (lib \"x\") (part \"S\") (pins\n");
+        for p in ["1", "2", "1", "3"] {
+            let _ = writeln!(s, "(pin (num \"{p}\") (type \"input\"))");
+        }
+        for p in 4..=70 {
+            let _ = writeln!(s, "(pin (num \"{p}\") (type \"input\"))");
+        }
+        s.push_str("(pin (num \"40\") (type \"output\")))))\n(nets (net (code \"1\") (name \"A\") (node (ref \"U1\") (pin \"1\")) (node (ref \"U1\") (pin \"40\")))))");
+        let t = parse(&s).unwrap();
+        let nl = build(&t).unwrap();
+        let nums: Vec<&str> = nl.components[0].pins.iter().map(|p| p.num.as_ref()).collect();
+        let want: Vec<String> = (1..=70).map(|p| p.to_string()).collect();
+        assert_eq!(nums, want);
+        assert_eq!(nl.components[0].pins[0].connection, Connection::Net { net: 0, node: 0 });
+        assert_eq!(nl.components[0].pins[39].connection, Connection::Net { net: 0, node: 1 });
+        assert_eq!(nl.components[0].pins[1].connection, Connection::Absent);
     }
 }
