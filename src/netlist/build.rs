@@ -14,16 +14,24 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
     let root = tree.root();
     let head = tree.head(root);
     if head != Some("export") {
-        let span = tree.first_child(root).map_or(tree.span(root), |c| tree.span(c));
+        let span = tree
+            .first_child(root)
+            .map_or(tree.span(root), |c| tree.span(c));
         let what = match head {
             Some(h) => format!("the file's root list is `({h} ...)`"),
             None => "the file's root list has no name".to_string(),
         };
-        return Err(Diag::error("not-a-netlist", format!("{what}; a KiCad netlist's is `(export ...)`"))
-            .at(span, "expected `export`")
-            .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"));
+        return Err(Diag::error(
+            "not-a-netlist",
+            format!("{what}; a KiCad netlist's is `(export ...)`"),
+        )
+        .at(span, "expected `export`")
+        .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"));
     }
-    let b = Builder { t: tree, diags: RefCell::new(Vec::new()) };
+    let b = Builder {
+        t: tree,
+        diags: RefCell::new(Vec::new()),
+    };
     let mut nl = Netlist {
         version: None,
         dialect: Dialect::Other,
@@ -81,8 +89,14 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         }
         None => {
             b.diags.borrow_mut().push(
-                Diag::warning("missing-field", "the netlist has no `(version ...)`; reading it as version E")
-                    .at(Span::new(nl.span.start as usize, nl.span.start as usize + 7), "no version in this export"),
+                Diag::warning(
+                    "missing-field",
+                    "the netlist has no `(version ...)`; reading it as version E",
+                )
+                .at(
+                    Span::new(nl.span.start as usize, nl.span.start as usize + 7),
+                    "no version in this export",
+                ),
             );
             Dialect::Other
         }
@@ -99,7 +113,10 @@ struct Builder<'t, 'a> {
 
 impl<'a> Builder<'_, 'a> {
     fn text(&self, id: NodeId) -> Option<Text<'a>> {
-        Some(Text { s: self.t.text(id)?, span: self.t.span(id) })
+        Some(Text {
+            s: self.t.text(id)?,
+            span: self.t.span(id),
+        })
     }
 
     /// The value of `(key VALUE)`: `None` when missing; a diagnostic when a list stands
@@ -109,9 +126,12 @@ impl<'a> Builder<'_, 'a> {
         if self.t.is_list(v) {
             let key = self.t.head(list).unwrap_or("?");
             self.diags.borrow_mut().push(
-                Diag::error("bad-field", format!("`({key} ...)` holds a list where its value belongs"))
-                    .at(self.t.span(v), "expected a name or a quoted string")
-                    .with_help("the file was edited by hand or damaged: export the netlist again"),
+                Diag::error(
+                    "bad-field",
+                    format!("`({key} ...)` holds a list where its value belongs"),
+                )
+                .at(self.t.span(v), "expected a name or a quoted string")
+                .with_help("the file was edited by hand or damaged: export the netlist again"),
             );
             return None;
         }
@@ -120,12 +140,15 @@ impl<'a> Builder<'_, 'a> {
 
     /// Children of `list` as `(key value)` pairs, for the keys the caller wants.
     fn each(&self, list: NodeId) -> impl Iterator<Item = (&'a str, NodeId)> + '_ {
-        self.t.children(list).skip(1).filter_map(|c| self.t.head(c).map(|h| (h, c)))
+        self.t
+            .children(list)
+            .skip(1)
+            .filter_map(|c| self.t.head(c).map(|h| (h, c)))
     }
 
     fn design(&self, sec: NodeId) -> Design<'a> {
         let mut d = Design::default();
-                for (k, c) in self.each(sec) {
+        for (k, c) in self.each(sec) {
             match k {
                 "source" => d.source = self.value(c),
                 "date" => d.date = self.value(c),
@@ -133,8 +156,8 @@ impl<'a> Builder<'_, 'a> {
                 "sheet" => {
                     // the first sheet's title block names the board
                     if d.title.is_none() {
-                                                for (_, tbl) in self.each(c).filter(|(k, _)| *k == "title_block") {
-                                                        for (k2, c2) in self.each(tbl) {
+                        for (_, tbl) in self.each(c).filter(|(k, _)| *k == "title_block") {
+                            for (k2, c2) in self.each(tbl) {
                                 match k2 {
                                     "title" => d.title = self.value(c2),
                                     "company" => d.company = self.value(c2),
@@ -164,10 +187,20 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         match name {
-            Some(name) => Some(Field { name, value, span: self.t.span(f) }),
+            Some(name) => Some(Field {
+                name,
+                value,
+                span: self.t.span(f),
+            }),
             None => {
                 let what = self.t.head(f).unwrap_or("field");
-                self.diags.borrow_mut().push(Diag::warning("missing-field", format!("a `{what}` without a `(name ...)` is ignored")).at(self.t.span(f), "no name"));
+                self.diags.borrow_mut().push(
+                    Diag::warning(
+                        "missing-field",
+                        format!("a `{what}` without a `(name ...)` is ignored"),
+                    )
+                    .at(self.t.span(f), "no name"),
+                );
                 None
             }
         }
@@ -175,7 +208,10 @@ impl<'a> Builder<'_, 'a> {
 
     fn component(&self, c: NodeId) -> Option<Component<'a>> {
         let mut comp = Component {
-            reference: Text { s: Cow::Borrowed(""), span: self.t.span(c) },
+            reference: Text {
+                s: Cow::Borrowed(""),
+                span: self.t.span(c),
+            },
             value: None,
             footprint: None,
             datasheet: None,
@@ -189,7 +225,7 @@ impl<'a> Builder<'_, 'a> {
             pins: Vec::new(),
         };
         let mut have_ref = false;
-                for (k, n) in self.each(c) {
+        for (k, n) in self.each(c) {
             match k {
                 "ref" => {
                     if let Some(r) = self.value(n) {
@@ -201,7 +237,7 @@ impl<'a> Builder<'_, 'a> {
                 "footprint" => comp.footprint = self.value(n),
                 "datasheet" => comp.datasheet = self.value(n),
                 "fields" => {
-                                        for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
+                    for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
                             comp.fields.push(f);
                         }
@@ -213,8 +249,12 @@ impl<'a> Builder<'_, 'a> {
                     }
                 }
                 "libsource" => {
-                    let mut ls = LibSource { lib: None, part: None, description: None };
-                                        for (k2, c2) in self.each(n) {
+                    let mut ls = LibSource {
+                        lib: None,
+                        part: None,
+                        description: None,
+                    };
+                    for (k2, c2) in self.each(n) {
                         match k2 {
                             "lib" => ls.lib = self.value(c2),
                             "part" => ls.part = self.value(c2),
@@ -225,8 +265,11 @@ impl<'a> Builder<'_, 'a> {
                     comp.libsource = Some(ls);
                 }
                 "sheetpath" => {
-                    let mut sp = SheetPath { names: None, tstamps: None };
-                                        for (k2, c2) in self.each(n) {
+                    let mut sp = SheetPath {
+                        names: None,
+                        tstamps: None,
+                    };
+                    for (k2, c2) in self.each(n) {
                         match k2 {
                             "names" => sp.names = self.value(c2),
                             "tstamps" => sp.tstamps = self.value(c2),
@@ -267,39 +310,39 @@ impl<'a> Builder<'_, 'a> {
         let mut footprints = Vec::new();
         let mut fields = Vec::new();
         let mut pins = Vec::new();
-                for (k, n) in self.each(c) {
+        for (k, n) in self.each(c) {
             match k {
                 "lib" => lib = self.value(n),
                 "part" => part = self.value(n),
                 "description" => description = self.value(n),
                 "docs" => docs = self.value(n),
                 "aliases" => {
-                                        for a in self.each(n).filter(|(k, _)| *k == "alias").map(|(_, a)| a) {
+                    for a in self.each(n).filter(|(k, _)| *k == "alias").map(|(_, a)| a) {
                         if let Some(v) = self.value(a) {
                             lp_aliases.push(v);
                         }
                     }
                 }
                 "footprints" => {
-                                        for a in self.each(n).filter(|(k, _)| *k == "fp").map(|(_, a)| a) {
+                    for a in self.each(n).filter(|(k, _)| *k == "fp").map(|(_, a)| a) {
                         if let Some(v) = self.value(a) {
                             footprints.push(v);
                         }
                     }
                 }
                 "fields" => {
-                                        for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
+                    for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
                             fields.push(f);
                         }
                     }
                 }
                 "pins" => {
-                                        for p in self.each(n).filter(|(k, _)| *k == "pin").map(|(_, p)| p) {
+                    for p in self.each(n).filter(|(k, _)| *k == "pin").map(|(_, p)| p) {
                         let mut num = None;
                         let mut name = None;
                         let mut ptype = PinType::Unknown;
-                                                for (k2, c2) in self.each(p) {
+                        for (k2, c2) in self.each(p) {
                             match k2 {
                                 "num" => num = self.value(c2),
                                 "name" => name = self.value(c2),
@@ -312,9 +355,18 @@ impl<'a> Builder<'_, 'a> {
                             }
                         }
                         match num {
-                            Some(num) => pins.push(LibPin { num, name, ptype, span: self.t.span(p) }),
+                            Some(num) => pins.push(LibPin {
+                                num,
+                                name,
+                                ptype,
+                                span: self.t.span(p),
+                            }),
                             None => self.diags.borrow_mut().push(
-                                Diag::warning("missing-field", "a library pin without a `(num ...)` is ignored").at(self.t.span(p), "no pin number"),
+                                Diag::warning(
+                                    "missing-field",
+                                    "a library pin without a `(num ...)` is ignored",
+                                )
+                                .at(self.t.span(p), "no pin number"),
                             ),
                         }
                     }
@@ -323,14 +375,38 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         let Some(part) = part else {
-            self.diags.borrow_mut().push(Diag::warning("missing-field", "a `libpart` without a `(part ...)` is ignored").at(self.t.span(c), "no part name"));
+            self.diags.borrow_mut().push(
+                Diag::warning(
+                    "missing-field",
+                    "a `libpart` without a `(part ...)` is ignored",
+                )
+                .at(self.t.span(c), "no part name"),
+            );
             return None;
         };
-        Some(LibPart { lib, part, aliases: lp_aliases, description, docs, footprints, fields, pins, span: self.t.span(c) })
+        Some(LibPart {
+            lib,
+            part,
+            aliases: lp_aliases,
+            description,
+            docs,
+            footprints,
+            fields,
+            pins,
+            span: self.t.span(c),
+        })
     }
 
     fn net(&self, c: NodeId) -> Net<'a> {
-        let mut net = Net { code: None, name: Text { s: Cow::Borrowed(""), span: self.t.span(c) }, nodes: Vec::new(), span: self.t.span(c) };
+        let mut net = Net {
+            code: None,
+            name: Text {
+                s: Cow::Borrowed(""),
+                span: self.t.span(c),
+            },
+            nodes: Vec::new(),
+            span: self.t.span(c),
+        };
         let mut have_name = false;
         for n in self.t.children(c).skip(1) {
             match self.t.head(n) {
@@ -375,10 +451,19 @@ impl<'a> Builder<'_, 'a> {
                         (r, _) => self.diags.borrow_mut().push(
                             Diag::error(
                                 "missing-field",
-                                format!("a node without {} is left out", if r.is_none() { "a `(ref ...)`" } else { "a `(pin ...)`" }),
+                                format!(
+                                    "a node without {} is left out",
+                                    if r.is_none() {
+                                        "a `(ref ...)`"
+                                    } else {
+                                        "a `(pin ...)`"
+                                    }
+                                ),
                             )
                             .at(self.t.span(n), "incomplete node")
-                            .with_help("the file was edited by hand or damaged: export the netlist again"),
+                            .with_help(
+                                "the file was edited by hand or damaged: export the netlist again",
+                            ),
                         ),
                     }
                 }
@@ -386,10 +471,19 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         if net.code.is_none() {
-            self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(code ...)`").at(self.t.span(c), "no code"));
+            self.diags.borrow_mut().push(
+                Diag::warning("missing-field", "a net without a `(code ...)`")
+                    .at(self.t.span(c), "no code"),
+            );
         }
         if !have_name {
-            self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(name ...)`; it is read as unnamed").at(self.t.span(c), "no name"));
+            self.diags.borrow_mut().push(
+                Diag::warning(
+                    "missing-field",
+                    "a net without a `(name ...)`; it is read as unnamed",
+                )
+                .at(self.t.span(c), "no name"),
+            );
         }
         net.nodes.shrink_to_fit();
         net
@@ -398,14 +492,23 @@ impl<'a> Builder<'_, 'a> {
     /// Cross-references: refs, libparts, node components, pin lists and connections.
     fn link(&self, nl: &mut Netlist<'a>) {
         // refs
-        let mut by_ref: HashMap<Cow<'a, str>, usize> = HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
+        let mut by_ref: HashMap<Cow<'a, str>, usize> =
+            HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
         for (i, c) in nl.components.iter().enumerate() {
             if let Some(&first) = by_ref.get(c.reference.as_str()) {
                 self.diags.borrow_mut().push(
-                    Diag::error("duplicate-ref", format!("two components share the reference `{}`", c.reference))
-                        .at(c.reference.span, "this one is checked as written but its nets may be confused")
-                        .also(nl.components[first].reference.span, "first use")
-                        .with_help("re-annotate the schematic so every reference is unique, then export again"),
+                    Diag::error(
+                        "duplicate-ref",
+                        format!("two components share the reference `{}`", c.reference),
+                    )
+                    .at(
+                        c.reference.span,
+                        "this one is checked as written but its nets may be confused",
+                    )
+                    .also(nl.components[first].reference.span, "first use")
+                    .with_help(
+                        "re-annotate the schematic so every reference is unique, then export again",
+                    ),
                 );
             } else {
                 by_ref.insert(c.reference.s.clone(), i);
@@ -431,7 +534,9 @@ impl<'a> Builder<'_, 'a> {
         let mut resolved = vec![None; nl.components.len()];
         for (i, c) in nl.components.iter().enumerate() {
             let Some(ls) = &c.libsource else { continue };
-            let (Some(part), lib) = (&ls.part, ls.lib.as_ref().map_or("", |l| l.as_str())) else { continue };
+            let (Some(part), lib) = (&ls.part, ls.lib.as_ref().map_or("", |l| l.as_str())) else {
+                continue;
+            };
             resolved[i] = by_lib_part
                 .get(&(lib, part.as_str()))
                 .copied()
@@ -440,7 +545,10 @@ impl<'a> Builder<'_, 'a> {
                 self.diags.borrow_mut().push(
                     Diag::info(
                         "missing-libpart",
-                        format!("no library part `{}:{}` for {}: its pins on no net cannot be listed", lib, part, c.reference),
+                        format!(
+                            "no library part `{}:{}` for {}: its pins on no net cannot be listed",
+                            lib, part, c.reference
+                        ),
                     )
                     .at(part.span, "not found in `libparts`"),
                 );
@@ -455,17 +563,27 @@ impl<'a> Builder<'_, 'a> {
         // nodes: component links, de-duplication, pins on two nets. Sorting every
         // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
         let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
-        let mut codes: HashMap<&str, usize> = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
+        let mut codes: HashMap<&str, usize> =
+            HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
         let mut entries: Vec<(u32, u32, u32)> = Vec::new(); // (component, net, node)
         for (ni, net) in nl.nets.iter_mut().enumerate() {
             if let Some(code) = &net.code {
                 if let Some(&first) = codes.get(code.as_str()) {
                     self.diags.borrow_mut().push(
-                        Diag::warning("duplicate-net-code", format!("two nets share the code {}", code))
-                            .at(code.span, format!("also used by net #{}", first + 1)),
+                        Diag::warning(
+                            "duplicate-net-code",
+                            format!("two nets share the code {}", code),
+                        )
+                        .at(code.span, format!("also used by net #{}", first + 1)),
                     );
                 } else {
-                    codes.insert(self.t.source().get(code.span.range()).map_or("", |_| code_key(code)), ni);
+                    codes.insert(
+                        self.t
+                            .source()
+                            .get(code.span.range())
+                            .map_or("", |_| code_key(code)),
+                        ni,
+                    );
                 }
             }
             if !net.name.s.is_empty() {
@@ -478,9 +596,17 @@ impl<'a> Builder<'_, 'a> {
                         entries.push((ci as u32, ni as u32, k as u32));
                     }
                     None => self.diags.borrow_mut().push(
-                        Diag::error("unknown-component", format!("net `{}` names {}, which is not among the components", net.name, node.reference))
-                            .at(node.reference.span, "no component has this reference")
-                            .with_help("the netlist is out of step with the schematic: export it again"),
+                        Diag::error(
+                            "unknown-component",
+                            format!(
+                                "net `{}` names {}, which is not among the components",
+                                net.name, node.reference
+                            ),
+                        )
+                        .at(node.reference.span, "no component has this reference")
+                        .with_help(
+                            "the netlist is out of step with the schematic: export it again",
+                        ),
                     ),
                 }
             }
@@ -503,7 +629,8 @@ impl<'a> Builder<'_, 'a> {
             };
             pin_of.push(id);
         }
-        let mut by_text: Vec<(&str, u32)> = pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
+        let mut by_text: Vec<(&str, u32)> =
+            pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
         by_text.sort_unstable();
         let mut rank_of_id = vec![0u32; by_text.len()];
         for (rank, &(_, id)) in by_text.iter().enumerate() {
@@ -572,7 +699,12 @@ impl<'a> Builder<'_, 'a> {
                 let f = group[first_of_run];
                 if f.1 != e.1 && group[i - 1].1 != e.1 {
                     let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
-                    twice.push((f.1 as usize, e.1 as usize, node.span, format!("{}.{}", node.reference, node.pin)));
+                    twice.push((
+                        f.1 as usize,
+                        e.1 as usize,
+                        node.span,
+                        format!("{}.{}", node.reference, node.pin),
+                    ));
                 }
             }
         }
@@ -631,9 +763,18 @@ impl<'a> Builder<'_, 'a> {
             .libparts
             .iter()
             .map(|lp| {
-                let mut seen: HashMap<&str, ()> = HashMap::with_capacity_and_hasher(lp.pins.len(), Default::default());
-                let ranks = lp.pins.iter().map(|p| pin_ids.get(p.num.as_str()).copied()).collect();
-                let repeats = lp.pins.iter().map(|p| seen.insert(p.num.as_str(), ()).is_some()).collect();
+                let mut seen: HashMap<&str, ()> =
+                    HashMap::with_capacity_and_hasher(lp.pins.len(), Default::default());
+                let ranks = lp
+                    .pins
+                    .iter()
+                    .map(|p| pin_ids.get(p.num.as_str()).copied())
+                    .collect();
+                let repeats = lp
+                    .pins
+                    .iter()
+                    .map(|p| seen.insert(p.num.as_str(), ()).is_some())
+                    .collect();
                 (ranks, repeats)
             })
             .collect();
@@ -654,7 +795,8 @@ impl<'a> Builder<'_, 'a> {
                     if repeats[pi] && pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
                         continue; // stacked pins listed twice
                     }
-                    let found = ranks[pi].and_then(|rank| mine.binary_search_by(|e| e.0.cmp(&rank)).ok());
+                    let found =
+                        ranks[pi].and_then(|rank| mine.binary_search_by(|e| e.0.cmp(&rank)).ok());
                     let connection = match found {
                         Some(i) => {
                             if used[i] {
@@ -678,7 +820,14 @@ impl<'a> Builder<'_, 'a> {
                             name = nd.pinfunction.as_ref().map(|f| f.s.clone());
                         }
                     }
-                    pins.push(CompPin { num: lpin.num.s.clone(), name, ptype, no_connect, connection, libpin: Some(pi) });
+                    pins.push(CompPin {
+                        num: lpin.num.s.clone(),
+                        name,
+                        ptype,
+                        no_connect,
+                        connection,
+                        libpin: Some(pi),
+                    });
                 }
             }
             // pins named by nodes but missing from the libpart (or no libpart at all)
@@ -747,12 +896,20 @@ mod link_tests {
         assert_eq!(u1.pins[N].libpin, None);
         // each net keeps one node: the pin is alone on it
         assert!(nl.nets[..N].iter().all(|n| n.nodes.len() == 1));
-        assert_eq!(u1.pins[41].connection, Connection::Alone { net: 41, node: 0 });
+        assert_eq!(
+            u1.pins[41].connection,
+            Connection::Alone { net: 41, node: 0 }
+        );
         // U1.7 stays on its first net: EXTRA keeps only pin 100001
         assert_eq!(u1.pins[6].connection, Connection::Alone { net: 6, node: 0 });
         assert_eq!(nl.nets[N].nodes.len(), 1);
         assert_eq!(u1.pins[N].connection, Connection::Alone { net: N, node: 0 });
-        let two: Vec<&str> = nl.diagnostics.iter().filter(|d| d.code == "pin-on-two-nets").map(|d| d.message.as_str()).collect();
+        let two: Vec<&str> = nl
+            .diagnostics
+            .iter()
+            .filter(|d| d.code == "pin-on-two-nets")
+            .map(|d| d.message.as_str())
+            .collect();
         assert_eq!(two, ["U1.7 is on two nets: `N7` and `EXTRA`"]);
     }
 
@@ -806,11 +963,21 @@ mod link_tests {
         s.push_str("(pin (num \"40\") (type \"output\")))))\n(nets (net (code \"1\") (name \"A\") (node (ref \"U1\") (pin \"1\")) (node (ref \"U1\") (pin \"40\")))))");
         let t = parse(&s).unwrap();
         let nl = build(&t).unwrap();
-        let nums: Vec<&str> = nl.components[0].pins.iter().map(|p| p.num.as_ref()).collect();
+        let nums: Vec<&str> = nl.components[0]
+            .pins
+            .iter()
+            .map(|p| p.num.as_ref())
+            .collect();
         let want: Vec<String> = (1..=70).map(|p| p.to_string()).collect();
         assert_eq!(nums, want);
-        assert_eq!(nl.components[0].pins[0].connection, Connection::Net { net: 0, node: 0 });
-        assert_eq!(nl.components[0].pins[39].connection, Connection::Net { net: 0, node: 1 });
+        assert_eq!(
+            nl.components[0].pins[0].connection,
+            Connection::Net { net: 0, node: 0 }
+        );
+        assert_eq!(
+            nl.components[0].pins[39].connection,
+            Connection::Net { net: 0, node: 1 }
+        );
         assert_eq!(nl.components[0].pins[1].connection, Connection::Absent);
     }
 }
