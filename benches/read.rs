@@ -16,7 +16,15 @@ fn median(mut v: Vec<f64>) -> f64 {
 fn peak_rss_kb() -> u64 {
     std::fs::read_to_string("/proc/self/status")
         .ok()
-        .and_then(|s| s.lines().find(|l| l.starts_with("VmHWM:")).map(|l| l.split_whitespace().nth(1).unwrap_or("0").parse().unwrap_or(0)))
+        .and_then(|s| {
+            s.lines().find(|l| l.starts_with("VmHWM:")).map(|l| {
+                l.split_whitespace()
+                    .nth(1)
+                    .unwrap_or("0")
+                    .parse()
+                    .unwrap_or(0)
+            })
+        })
         .unwrap_or(0)
 }
 
@@ -41,7 +49,10 @@ fn model(path: &Path) -> usize {
 }
 
 fn main() {
-    let args: Vec<String> = std::env::args().skip(1).filter(|a| !a.starts_with("--")).collect();
+    let args: Vec<String> = std::env::args()
+        .skip(1)
+        .filter(|a| !a.starts_with("--"))
+        .collect();
     if args.first().map(String::as_str) == Some("child-model") {
         let n = model(Path::new(&args[1]));
         println!("{n} {}", peak_rss_kb());
@@ -49,7 +60,9 @@ fn main() {
     }
     let mb: usize = args.first().and_then(|a| a.parse().ok()).unwrap_or(50);
     let runs: usize = args.get(1).and_then(|a| a.parse().ok()).unwrap_or(5);
-    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("bench-data");
+    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("target")
+        .join("bench-data");
     std::fs::create_dir_all(&dir).unwrap();
     let path = dir.join(format!("synthetic-{mb}MB.net"));
     if !path.exists() {
@@ -70,26 +83,70 @@ fn main() {
     }
     let (f, p, m) = (median(f), median(p), median(m));
     let mbs = |s: f64| size / 1e6 / s;
-    println!("file: {} ({:.1} MB), {runs} interleaved runs, medians", path.display(), size / 1e6);
-    println!("floor (read + count '(' with memchr): {:>8.3} s {:>8.0} MB/s  ratio 1.00", f, mbs(f));
-    println!("read + parse (syntax tree):           {:>8.3} s {:>8.0} MB/s  ratio {:.2}", p, mbs(p), f / p);
-    println!("read + parse + netlist model:         {:>8.3} s {:>8.0} MB/s  ratio {:.2}", m, mbs(m), f / m);
+    println!(
+        "file: {} ({:.1} MB), {runs} interleaved runs, medians",
+        path.display(),
+        size / 1e6
+    );
+    println!(
+        "floor (read + count '(' with memchr): {:>8.3} s {:>8.0} MB/s  ratio 1.00",
+        f,
+        mbs(f)
+    );
+    println!(
+        "read + parse (syntax tree):           {:>8.3} s {:>8.0} MB/s  ratio {:.2}",
+        p,
+        mbs(p),
+        f / p
+    );
+    println!(
+        "read + parse + netlist model:         {:>8.3} s {:>8.0} MB/s  ratio {:.2}",
+        m,
+        mbs(m),
+        f / m
+    );
     let exe = std::env::current_exe().unwrap();
-    if let Ok(out) = std::process::Command::new(&exe).arg("child-model").arg(&path).output() {
+    if let Ok(out) = std::process::Command::new(&exe)
+        .arg("child-model")
+        .arg(&path)
+        .output()
+    {
         let s = String::from_utf8_lossy(&out.stdout);
-        if let Some(kb) = s.split_whitespace().nth(1).and_then(|k| k.parse::<f64>().ok()) {
-            println!("peak memory, read + parse + model:    {:>8.0} MB  = {:.2} x file size", kb / 1024.0, kb * 1024.0 / size);
+        if let Some(kb) = s
+            .split_whitespace()
+            .nth(1)
+            .and_then(|k| k.parse::<f64>().ok())
+        {
+            println!(
+                "peak memory, read + parse + model:    {:>8.0} MB  = {:.2} x file size",
+                kb / 1024.0,
+                kb * 1024.0 / size
+            );
         }
     }
     // start-up plus a 50 kB netlist through the real binary
     let small = dir.join("synthetic-50kB.net");
     std::fs::write(&small, netmargin::synth::netlist(50_000)).unwrap();
-    let bin = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target").join("release").join("netmargin");
+    // the bench runs from <target>/release/deps/, next to <target>/release/netmargin
+    let bin = exe
+        .parent()
+        .and_then(Path::parent)
+        .map(|d| d.join("netmargin"))
+        .filter(|p| p.exists())
+        .unwrap_or_else(|| {
+            PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+                .join("target")
+                .join("release")
+                .join("netmargin")
+        });
     if bin.exists() {
         let mut t = Vec::new();
         for _ in 0..21 {
             let s = Instant::now();
-            let _ = std::process::Command::new(&bin).arg("check").arg(&small).output();
+            let _ = std::process::Command::new(&bin)
+                .arg("check")
+                .arg(&small)
+                .output();
             t.push(s.elapsed().as_secs_f64());
         }
         let mut v = Vec::new();
@@ -104,6 +161,8 @@ fn main() {
             median(v) * 1e3
         );
     } else {
-        println!("binary: build it first (`cargo build --release`) to time start-up + a 50 kB netlist");
+        println!(
+            "binary: build it first (`cargo build --release`) to time start-up + a 50 kB netlist"
+        );
     }
 }

@@ -20,7 +20,7 @@ pub struct LoadError {
 pub fn load(name: &str, bytes: Vec<u8>) -> Result<SourceFile, Box<LoadError>> {
     if let Some(p) = memchr::memchr(0, &bytes) {
         let shown = String::from_utf8_lossy(&bytes[..p.min(4096)]).into_owned();
-        let src = SourceFile::new(name, shown);
+        let src = SourceFile::from_string(name, shown);
         let lc = line_col_in(&bytes, &line_starts(&bytes[..p]), p);
         return Err(Box::new(LoadError {
             diag: Diag::error(
@@ -32,16 +32,19 @@ pub fn load(name: &str, bytes: Vec<u8>) -> Result<SourceFile, Box<LoadError>> {
         }));
     }
     match String::from_utf8(bytes) {
-        Ok(text) => Ok(SourceFile::new(name, text)),
+        Ok(text) => Ok(SourceFile::from_string(name, text)),
         Err(e) => {
             let at = e.utf8_error().valid_up_to();
             let bad_len = e.utf8_error().error_len().unwrap_or(1);
             let bytes = e.into_bytes();
             let lc = line_col_in(&bytes, &line_starts(&bytes), at);
-            let bad: Vec<String> = bytes[at..(at + bad_len).min(bytes.len())].iter().map(|b| format!("0x{b:02X}")).collect();
+            let bad: Vec<String> = bytes[at..(at + bad_len).min(bytes.len())]
+                .iter()
+                .map(|b| format!("0x{b:02X}"))
+                .collect();
             let shown = String::from_utf8_lossy(&bytes).into_owned();
             // The lossy text is identical up to `at`, so the span is right.
-            let src = SourceFile::new(name, shown);
+            let src = SourceFile::from_string(name, shown);
             Err(Box::new(LoadError {
                 diag: Diag::error(
                     "invalid-utf8",

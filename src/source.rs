@@ -1,8 +1,9 @@
-//! Source text shared by every layer: the file's name, its text behind an `Arc<str>` (never
+//! Source text shared by every layer: the file's name, its text behind an `Arc` (never
 //! copied per report), byte spans, and a line-start index so that line/column lookups and
-//! miette's source rendering cost O(log n) instead of a scan from byte 0.
+//! miette's source rendering cost O(log n) instead of a scan from byte 0. The index is built
+//! on first use: a file that yields no diagnostic to render never pays for it.
 
-use std::sync::Arc;
+use std::sync::{Arc, OnceLock};
 
 use miette::{MietteError, MietteSpanContents, SourceCode, SourceSpan, SpanContents};
 
@@ -16,7 +17,10 @@ pub struct Span {
 
 impl Span {
     pub fn new(start: usize, end: usize) -> Span {
-        Span { start: start as u32, end: end as u32 }
+        Span {
+            start: start as u32,
+            end: end as u32,
+        }
     }
     pub fn len(self) -> usize {
         (self.end - self.start) as usize
@@ -39,8 +43,12 @@ impl From<Span> for SourceSpan {
 #[derive(Debug, Clone)]
 pub struct SourceFile {
     name: Arc<str>,
-    text: Arc<str>,
-    line_starts: Arc<[u32]>,
+    /// Kept as the `String` it was read into, so loading a file copies nothing.
+    text: Arc<String>,
+    /// `Arc<str>` handed out by [`SourceFile::shared_text`], made on first call.
+    shared: Arc<OnceLock<Arc<str>>>,
+    /// Built on first use.
+    line_starts: Arc<OnceLock<Box<[u32]>>>,
 }
 
 /// A 1-based line and 1-based column (counted in characters, as editors count them).
@@ -52,9 +60,28 @@ pub struct LineCol {
 
 impl SourceFile {
     pub fn new(name: impl Into<Arc<str>>, text: impl Into<Arc<str>>) -> SourceFile {
-        let text: Arc<str> = text.into();
-        let line_starts = line_starts(text.as_bytes()).into();
-        SourceFile { name: name.into(), text, line_starts }
+        let shared: Arc<str> = text.into();
+        SourceFile {
+            name: name.into(),
+            text: Arc::new(shared.to_string()),
+            shared: Arc::new(OnceLock::from(shared)),
+            line_starts: Arc::default(),
+        }
+    }
+
+    /// A source that takes over `text` without copying it.
+    pub fn from_string(name: impl Into<Arc<str>>, text: String) -> SourceFile {
+        SourceFile {
+            name: name.into(),
+            text: Arc::new(text),
+            shared: Arc::default(),
+            line_starts: Arc::default(),
+        }
+    }
+
+    fn starts(&self) -> &[u32] {
+        self.line_starts
+            .get_or_init(|| line_starts(self.text.as_bytes()).into_boxed_slice())
     }
 
     pub fn name(&self) -> &str {
@@ -65,13 +92,16 @@ impl SourceFile {
         &self.text
     }
 
+    /// The text as a shared `Arc<str>` (copied from the loaded text once, on first call).
     pub fn shared_text(&self) -> Arc<str> {
-        self.text.clone()
+        self.shared
+            .get_or_init(|| Arc::from(self.text.as_str()))
+            .clone()
     }
 
     /// The 0-based line holding byte `offset`.
     pub fn line_index(&self, offset: usize) -> usize {
-        match self.line_starts.binary_search(&(offset as u32)) {
+        match self.starts().binary_search(&(offset as u32)) {
             Ok(i) => i,
             Err(i) => i - 1,
         }
@@ -79,31 +109,39 @@ impl SourceFile {
 
     /// 1-based line and character column of byte `offset` (clamped to the text).
     pub fn line_col(&self, offset: usize) -> LineCol {
-        line_col_in(self.text.as_bytes(), &self.line_starts, offset)
+        line_col_in(self.text.as_bytes(), self.starts(), offset)
     }
 
     /// The text of 1-based line `line`, without its line ending.
     pub fn line_text(&self, line: usize) -> &str {
-        let i = line.saturating_sub(1).min(self.line_starts.len() - 1);
-        let start = self.line_starts[i] as usize;
-        let end = self.line_starts.get(i + 1).map(|&e| e as usize).unwrap_or(self.text.len());
+        let starts = self.starts();
+        let i = line.saturating_sub(1).min(starts.len() - 1);
+        let start = starts[i] as usize;
+        let end = starts
+            .get(i + 1)
+            .map(|&e| e as usize)
+            .unwrap_or(self.text.len());
         self.text[start..end].trim_end_matches(['\n', '\r'])
     }
 
     pub fn line_count(&self) -> usize {
-        self.line_starts.len()
+        self.starts().len()
     }
 }
 
 /// Byte offsets where each line starts. A line ends at `\n`, at `\r\n`, or at a lone `\r`
 /// (as miette counts them).
 pub fn line_starts(bytes: &[u8]) -> Vec<u32> {
-    let mut v = Vec::with_capacity(bytes.len() / 32 + 1);
+    let mut v = Vec::with_capacity(bytes.len() / 64 + 1);
     v.push(0);
     let mut i = 0;
     while let Some(p) = memchr::memchr2(b'\n', b'\r', &bytes[i..]) {
         let at = i + p;
-        let next = if bytes[at] == b'\r' && bytes.get(at + 1) == Some(&b'\n') { at + 2 } else { at + 1 };
+        let next = if bytes[at] == b'\r' && bytes.get(at + 1) == Some(&b'\n') {
+            at + 2
+        } else {
+            at + 1
+        };
         v.push(next as u32);
         i = next;
         if i >= bytes.len() {
@@ -122,8 +160,15 @@ pub fn line_col_in(bytes: &[u8], starts: &[u32], offset: usize) -> LineCol {
         Err(i) => i - 1,
     };
     let line_start = starts[i] as usize;
-    let column = bytes[line_start..offset].iter().filter(|&&b| (b & 0xC0) != 0x80).count() + 1;
-    LineCol { line: i + 1, column }
+    let column = bytes[line_start..offset]
+        .iter()
+        .filter(|&&b| (b & 0xC0) != 0x80)
+        .count()
+        + 1;
+    LineCol {
+        line: i + 1,
+        column,
+    }
 }
 
 impl SourceCode for SourceFile {
@@ -143,9 +188,9 @@ impl SourceCode for SourceFile {
         // logic work on the window, then put the window's offsets back.
         let first_line = self.line_index(start).saturating_sub(context_lines_before);
         let last_line = self.line_index(end.saturating_sub(1).max(start)) + context_lines_after + 1;
-        let win_start = self.line_starts[first_line] as usize;
-        let win_end = self
-            .line_starts
+        let starts = self.starts();
+        let win_start = starts[first_line] as usize;
+        let win_end = starts
             .get(last_line + 1)
             .map(|&e| e as usize)
             .unwrap_or(bytes.len());
@@ -182,10 +227,35 @@ mod tests {
     }
 
     #[test]
+    fn a_taken_over_string_reads_like_a_copied_one() {
+        let text = "(a\r\n (b \"ç\")\n\r(c))";
+        let copied = SourceFile::new("t", text);
+        let taken = SourceFile::from_string("t", text.to_string());
+        assert_eq!(taken.text(), text);
+        assert_eq!(&*taken.shared_text(), text);
+        assert_eq!(taken.line_count(), 4);
+        for off in 0..=text.len() {
+            assert_eq!(taken.line_col(off), copied.line_col(off), "offset {off}");
+        }
+        for line in 1..=4 {
+            assert_eq!(taken.line_text(line), copied.line_text(line));
+        }
+        // a clone shares the index built through the original
+        let twin = taken.clone();
+        assert_eq!(twin.line_col(9), LineCol { line: 2, column: 6 });
+    }
+
+    #[test]
     fn windowed_read_span_matches_miettes_scan() {
         let text: String = (0..200).map(|i| format!("(line {i} \"x\")\r\n")).collect();
         let f = SourceFile::new("t.net", text.clone());
-        for &(off, len) in &[(0usize, 1usize), (17, 5), (900, 12), (text.len() - 3, 2), (50, 0)] {
+        for &(off, len) in &[
+            (0usize, 1usize),
+            (17, 5),
+            (900, 12),
+            (text.len() - 3, 2),
+            (50, 0),
+        ] {
             for ctx in 0..3 {
                 let span = SourceSpan::new(off.into(), len);
                 let ours = f.read_span(&span, ctx, ctx).unwrap();

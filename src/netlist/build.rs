@@ -14,16 +14,24 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
     let root = tree.root();
     let head = tree.head(root);
     if head != Some("export") {
-        let span = tree.first_child(root).map_or(tree.span(root), |c| tree.span(c));
+        let span = tree
+            .first_child(root)
+            .map_or(tree.span(root), |c| tree.span(c));
         let what = match head {
             Some(h) => format!("the file's root list is `({h} ...)`"),
             None => "the file's root list has no name".to_string(),
         };
-        return Err(Diag::error("not-a-netlist", format!("{what}; a KiCad netlist's is `(export ...)`"))
-            .at(span, "expected `export`")
-            .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"));
+        return Err(Diag::error(
+            "not-a-netlist",
+            format!("{what}; a KiCad netlist's is `(export ...)`"),
+        )
+        .at(span, "expected `export`")
+        .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"));
     }
-    let b = Builder { t: tree, diags: RefCell::new(Vec::new()) };
+    let b = Builder {
+        t: tree,
+        diags: RefCell::new(Vec::new()),
+    };
     let mut nl = Netlist {
         version: None,
         dialect: Dialect::Other,
@@ -81,8 +89,14 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         }
         None => {
             b.diags.borrow_mut().push(
-                Diag::warning("missing-field", "the netlist has no `(version ...)`; reading it as version E")
-                    .at(Span::new(nl.span.start as usize, nl.span.start as usize + 7), "no version in this export"),
+                Diag::warning(
+                    "missing-field",
+                    "the netlist has no `(version ...)`; reading it as version E",
+                )
+                .at(
+                    Span::new(nl.span.start as usize, nl.span.start as usize + 7),
+                    "no version in this export",
+                ),
             );
             Dialect::Other
         }
@@ -99,7 +113,10 @@ struct Builder<'t, 'a> {
 
 impl<'a> Builder<'_, 'a> {
     fn text(&self, id: NodeId) -> Option<Text<'a>> {
-        Some(Text { s: self.t.text(id)?, span: self.t.span(id) })
+        Some(Text {
+            s: self.t.text(id)?,
+            span: self.t.span(id),
+        })
     }
 
     /// The value of `(key VALUE)`: `None` when missing; a diagnostic when a list stands
@@ -109,9 +126,12 @@ impl<'a> Builder<'_, 'a> {
         if self.t.is_list(v) {
             let key = self.t.head(list).unwrap_or("?");
             self.diags.borrow_mut().push(
-                Diag::error("bad-field", format!("`({key} ...)` holds a list where its value belongs"))
-                    .at(self.t.span(v), "expected a name or a quoted string")
-                    .with_help("the file was edited by hand or damaged: export the netlist again"),
+                Diag::error(
+                    "bad-field",
+                    format!("`({key} ...)` holds a list where its value belongs"),
+                )
+                .at(self.t.span(v), "expected a name or a quoted string")
+                .with_help("the file was edited by hand or damaged: export the netlist again"),
             );
             return None;
         }
@@ -120,12 +140,15 @@ impl<'a> Builder<'_, 'a> {
 
     /// Children of `list` as `(key value)` pairs, for the keys the caller wants.
     fn each(&self, list: NodeId) -> impl Iterator<Item = (&'a str, NodeId)> + '_ {
-        self.t.children(list).skip(1).filter_map(|c| self.t.head(c).map(|h| (h, c)))
+        self.t
+            .children(list)
+            .skip(1)
+            .filter_map(|c| self.t.head(c).map(|h| (h, c)))
     }
 
     fn design(&self, sec: NodeId) -> Design<'a> {
         let mut d = Design::default();
-                for (k, c) in self.each(sec) {
+        for (k, c) in self.each(sec) {
             match k {
                 "source" => d.source = self.value(c),
                 "date" => d.date = self.value(c),
@@ -133,8 +156,8 @@ impl<'a> Builder<'_, 'a> {
                 "sheet" => {
                     // the first sheet's title block names the board
                     if d.title.is_none() {
-                                                for (_, tbl) in self.each(c).filter(|(k, _)| *k == "title_block") {
-                                                        for (k2, c2) in self.each(tbl) {
+                        for (_, tbl) in self.each(c).filter(|(k, _)| *k == "title_block") {
+                            for (k2, c2) in self.each(tbl) {
                                 match k2 {
                                     "title" => d.title = self.value(c2),
                                     "company" => d.company = self.value(c2),
@@ -164,10 +187,20 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         match name {
-            Some(name) => Some(Field { name, value, span: self.t.span(f) }),
+            Some(name) => Some(Field {
+                name,
+                value,
+                span: self.t.span(f),
+            }),
             None => {
                 let what = self.t.head(f).unwrap_or("field");
-                self.diags.borrow_mut().push(Diag::warning("missing-field", format!("a `{what}` without a `(name ...)` is ignored")).at(self.t.span(f), "no name"));
+                self.diags.borrow_mut().push(
+                    Diag::warning(
+                        "missing-field",
+                        format!("a `{what}` without a `(name ...)` is ignored"),
+                    )
+                    .at(self.t.span(f), "no name"),
+                );
                 None
             }
         }
@@ -175,7 +208,10 @@ impl<'a> Builder<'_, 'a> {
 
     fn component(&self, c: NodeId) -> Option<Component<'a>> {
         let mut comp = Component {
-            reference: Text { s: Cow::Borrowed(""), span: self.t.span(c) },
+            reference: Text {
+                s: Cow::Borrowed(""),
+                span: self.t.span(c),
+            },
             value: None,
             footprint: None,
             datasheet: None,
@@ -189,7 +225,7 @@ impl<'a> Builder<'_, 'a> {
             pins: Vec::new(),
         };
         let mut have_ref = false;
-                for (k, n) in self.each(c) {
+        for (k, n) in self.each(c) {
             match k {
                 "ref" => {
                     if let Some(r) = self.value(n) {
@@ -201,7 +237,7 @@ impl<'a> Builder<'_, 'a> {
                 "footprint" => comp.footprint = self.value(n),
                 "datasheet" => comp.datasheet = self.value(n),
                 "fields" => {
-                                        for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
+                    for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
                             comp.fields.push(f);
                         }
@@ -213,8 +249,12 @@ impl<'a> Builder<'_, 'a> {
                     }
                 }
                 "libsource" => {
-                    let mut ls = LibSource { lib: None, part: None, description: None };
-                                        for (k2, c2) in self.each(n) {
+                    let mut ls = LibSource {
+                        lib: None,
+                        part: None,
+                        description: None,
+                    };
+                    for (k2, c2) in self.each(n) {
                         match k2 {
                             "lib" => ls.lib = self.value(c2),
                             "part" => ls.part = self.value(c2),
@@ -225,8 +265,11 @@ impl<'a> Builder<'_, 'a> {
                     comp.libsource = Some(ls);
                 }
                 "sheetpath" => {
-                    let mut sp = SheetPath { names: None, tstamps: None };
-                                        for (k2, c2) in self.each(n) {
+                    let mut sp = SheetPath {
+                        names: None,
+                        tstamps: None,
+                    };
+                    for (k2, c2) in self.each(n) {
                         match k2 {
                             "names" => sp.names = self.value(c2),
                             "tstamps" => sp.tstamps = self.value(c2),
@@ -251,6 +294,10 @@ impl<'a> Builder<'_, 'a> {
             );
             return None;
         }
+        // a vector grows to 4 items at its first push; give back what one or two don't use
+        comp.tstamps.shrink_to_fit();
+        comp.fields.shrink_to_fit();
+        comp.properties.shrink_to_fit();
         Some(comp)
     }
 
@@ -263,39 +310,39 @@ impl<'a> Builder<'_, 'a> {
         let mut footprints = Vec::new();
         let mut fields = Vec::new();
         let mut pins = Vec::new();
-                for (k, n) in self.each(c) {
+        for (k, n) in self.each(c) {
             match k {
                 "lib" => lib = self.value(n),
                 "part" => part = self.value(n),
                 "description" => description = self.value(n),
                 "docs" => docs = self.value(n),
                 "aliases" => {
-                                        for a in self.each(n).filter(|(k, _)| *k == "alias").map(|(_, a)| a) {
+                    for a in self.each(n).filter(|(k, _)| *k == "alias").map(|(_, a)| a) {
                         if let Some(v) = self.value(a) {
                             lp_aliases.push(v);
                         }
                     }
                 }
                 "footprints" => {
-                                        for a in self.each(n).filter(|(k, _)| *k == "fp").map(|(_, a)| a) {
+                    for a in self.each(n).filter(|(k, _)| *k == "fp").map(|(_, a)| a) {
                         if let Some(v) = self.value(a) {
                             footprints.push(v);
                         }
                     }
                 }
                 "fields" => {
-                                        for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
+                    for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
                             fields.push(f);
                         }
                     }
                 }
                 "pins" => {
-                                        for p in self.each(n).filter(|(k, _)| *k == "pin").map(|(_, p)| p) {
+                    for p in self.each(n).filter(|(k, _)| *k == "pin").map(|(_, p)| p) {
                         let mut num = None;
                         let mut name = None;
                         let mut ptype = PinType::Unknown;
-                                                for (k2, c2) in self.each(p) {
+                        for (k2, c2) in self.each(p) {
                             match k2 {
                                 "num" => num = self.value(c2),
                                 "name" => name = self.value(c2),
@@ -308,9 +355,18 @@ impl<'a> Builder<'_, 'a> {
                             }
                         }
                         match num {
-                            Some(num) => pins.push(LibPin { num, name, ptype, span: self.t.span(p) }),
+                            Some(num) => pins.push(LibPin {
+                                num,
+                                name,
+                                ptype,
+                                span: self.t.span(p),
+                            }),
                             None => self.diags.borrow_mut().push(
-                                Diag::warning("missing-field", "a library pin without a `(num ...)` is ignored").at(self.t.span(p), "no pin number"),
+                                Diag::warning(
+                                    "missing-field",
+                                    "a library pin without a `(num ...)` is ignored",
+                                )
+                                .at(self.t.span(p), "no pin number"),
                             ),
                         }
                     }
@@ -319,14 +375,38 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         let Some(part) = part else {
-            self.diags.borrow_mut().push(Diag::warning("missing-field", "a `libpart` without a `(part ...)` is ignored").at(self.t.span(c), "no part name"));
+            self.diags.borrow_mut().push(
+                Diag::warning(
+                    "missing-field",
+                    "a `libpart` without a `(part ...)` is ignored",
+                )
+                .at(self.t.span(c), "no part name"),
+            );
             return None;
         };
-        Some(LibPart { lib, part, aliases: lp_aliases, description, docs, footprints, fields, pins, span: self.t.span(c) })
+        Some(LibPart {
+            lib,
+            part,
+            aliases: lp_aliases,
+            description,
+            docs,
+            footprints,
+            fields,
+            pins,
+            span: self.t.span(c),
+        })
     }
 
     fn net(&self, c: NodeId) -> Net<'a> {
-        let mut net = Net { code: None, name: Text { s: Cow::Borrowed(""), span: self.t.span(c) }, nodes: Vec::new(), span: self.t.span(c) };
+        let mut net = Net {
+            code: None,
+            name: Text {
+                s: Cow::Borrowed(""),
+                span: self.t.span(c),
+            },
+            nodes: Vec::new(),
+            span: self.t.span(c),
+        };
         let mut have_name = false;
         for n in self.t.children(c).skip(1) {
             match self.t.head(n) {
@@ -371,10 +451,19 @@ impl<'a> Builder<'_, 'a> {
                         (r, _) => self.diags.borrow_mut().push(
                             Diag::error(
                                 "missing-field",
-                                format!("a node without {} is left out", if r.is_none() { "a `(ref ...)`" } else { "a `(pin ...)`" }),
+                                format!(
+                                    "a node without {} is left out",
+                                    if r.is_none() {
+                                        "a `(ref ...)`"
+                                    } else {
+                                        "a `(pin ...)`"
+                                    }
+                                ),
                             )
                             .at(self.t.span(n), "incomplete node")
-                            .with_help("the file was edited by hand or damaged: export the netlist again"),
+                            .with_help(
+                                "the file was edited by hand or damaged: export the netlist again",
+                            ),
                         ),
                     }
                 }
@@ -382,28 +471,47 @@ impl<'a> Builder<'_, 'a> {
             }
         }
         if net.code.is_none() {
-            self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(code ...)`").at(self.t.span(c), "no code"));
+            self.diags.borrow_mut().push(
+                Diag::warning("missing-field", "a net without a `(code ...)`")
+                    .at(self.t.span(c), "no code"),
+            );
         }
         if !have_name {
-            self.diags.borrow_mut().push(Diag::warning("missing-field", "a net without a `(name ...)`; it is read as unnamed").at(self.t.span(c), "no name"));
+            self.diags.borrow_mut().push(
+                Diag::warning(
+                    "missing-field",
+                    "a net without a `(name ...)`; it is read as unnamed",
+                )
+                .at(self.t.span(c), "no name"),
+            );
         }
+        net.nodes.shrink_to_fit();
         net
     }
 
     /// Cross-references: refs, libparts, node components, pin lists and connections.
     fn link(&self, nl: &mut Netlist<'a>) {
         // refs
-        let mut by_ref: HashMap<String, usize> = HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
+        let mut by_ref: HashMap<Cow<'a, str>, usize> =
+            HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
         for (i, c) in nl.components.iter().enumerate() {
             if let Some(&first) = by_ref.get(c.reference.as_str()) {
                 self.diags.borrow_mut().push(
-                    Diag::error("duplicate-ref", format!("two components share the reference `{}`", c.reference))
-                        .at(c.reference.span, "this one is checked as written but its nets may be confused")
-                        .also(nl.components[first].reference.span, "first use")
-                        .with_help("re-annotate the schematic so every reference is unique, then export again"),
+                    Diag::error(
+                        "duplicate-ref",
+                        format!("two components share the reference `{}`", c.reference),
+                    )
+                    .at(
+                        c.reference.span,
+                        "this one is checked as written but its nets may be confused",
+                    )
+                    .also(nl.components[first].reference.span, "first use")
+                    .with_help(
+                        "re-annotate the schematic so every reference is unique, then export again",
+                    ),
                 );
             } else {
-                by_ref.insert(c.reference.s.to_string(), i);
+                by_ref.insert(c.reference.s.clone(), i);
             }
         }
         // libparts by (lib, part) and (lib, alias), and by part alone as a fallback
@@ -426,7 +534,9 @@ impl<'a> Builder<'_, 'a> {
         let mut resolved = vec![None; nl.components.len()];
         for (i, c) in nl.components.iter().enumerate() {
             let Some(ls) = &c.libsource else { continue };
-            let (Some(part), lib) = (&ls.part, ls.lib.as_ref().map_or("", |l| l.as_str())) else { continue };
+            let (Some(part), lib) = (&ls.part, ls.lib.as_ref().map_or("", |l| l.as_str())) else {
+                continue;
+            };
             resolved[i] = by_lib_part
                 .get(&(lib, part.as_str()))
                 .copied()
@@ -435,7 +545,10 @@ impl<'a> Builder<'_, 'a> {
                 self.diags.borrow_mut().push(
                     Diag::info(
                         "missing-libpart",
-                        format!("no library part `{}:{}` for {}: its pins on no net cannot be listed", lib, part, c.reference),
+                        format!(
+                            "no library part `{}:{}` for {}: its pins on no net cannot be listed",
+                            lib, part, c.reference
+                        ),
                     )
                     .at(part.span, "not found in `libparts`"),
                 );
@@ -450,21 +563,31 @@ impl<'a> Builder<'_, 'a> {
         // nodes: component links, de-duplication, pins on two nets. Sorting every
         // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
         let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
-        let mut codes: HashMap<&str, usize> = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
+        let mut codes: HashMap<&str, usize> =
+            HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
         let mut entries: Vec<(u32, u32, u32)> = Vec::new(); // (component, net, node)
         for (ni, net) in nl.nets.iter_mut().enumerate() {
             if let Some(code) = &net.code {
                 if let Some(&first) = codes.get(code.as_str()) {
                     self.diags.borrow_mut().push(
-                        Diag::warning("duplicate-net-code", format!("two nets share the code {}", code))
-                            .at(code.span, format!("also used by net #{}", first + 1)),
+                        Diag::warning(
+                            "duplicate-net-code",
+                            format!("two nets share the code {}", code),
+                        )
+                        .at(code.span, format!("also used by net #{}", first + 1)),
                     );
                 } else {
-                    codes.insert(self.t.source().get(code.span.range()).map_or("", |_| code_key(code)), ni);
+                    codes.insert(
+                        self.t
+                            .source()
+                            .get(code.span.range())
+                            .map_or("", |_| code_key(code)),
+                        ni,
+                    );
                 }
             }
             if !net.name.s.is_empty() {
-                by_net_name.entry(net.name.s.to_string()).or_insert(ni);
+                by_net_name.entry(net.name.s.clone()).or_insert(ni);
             }
             for (k, node) in net.nodes.iter_mut().enumerate() {
                 match by_ref.get(node.reference.as_str()) {
@@ -473,45 +596,124 @@ impl<'a> Builder<'_, 'a> {
                         entries.push((ci as u32, ni as u32, k as u32));
                     }
                     None => self.diags.borrow_mut().push(
-                        Diag::error("unknown-component", format!("net `{}` names {}, which is not among the components", net.name, node.reference))
-                            .at(node.reference.span, "no component has this reference")
-                            .with_help("the netlist is out of step with the schematic: export it again"),
+                        Diag::error(
+                            "unknown-component",
+                            format!(
+                                "net `{}` names {}, which is not among the components",
+                                net.name, node.reference
+                            ),
+                        )
+                        .at(node.reference.span, "no component has this reference")
+                        .with_help(
+                            "the netlist is out of step with the schematic: export it again",
+                        ),
                     ),
                 }
             }
         }
         drop(codes);
-        {
-            let nets = &nl.nets;
-            let pin = |e: &(u32, u32, u32)| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str();
-            entries.sort_unstable_by(|a, b| a.0.cmp(&b.0).then_with(|| pin(a).cmp(pin(b))).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
+
+        // Pin numbers as integers: each distinct pin text gets its rank in text order, so
+        // sorting by rank sorts exactly as comparing the texts would.
+        let mut pin_ids: HashMap<Cow<'a, str>, u32> = HashMap::default();
+        let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
+        for &(_, ni, k) in &entries {
+            let pin = &nl.nets[ni as usize].nodes[k as usize].pin.s;
+            let next = pin_ids.len() as u32;
+            let id = match pin_ids.get(pin.as_ref()) {
+                Some(&id) => id,
+                None => {
+                    pin_ids.insert(pin.clone(), next);
+                    next
+                }
+            };
+            pin_of.push(id);
         }
+        let mut by_text: Vec<(&str, u32)> =
+            pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
+        by_text.sort_unstable();
+        let mut rank_of_id = vec![0u32; by_text.len()];
+        for (rank, &(_, id)) in by_text.iter().enumerate() {
+            rank_of_id[id as usize] = rank as u32;
+        }
+        drop(by_text);
+        for id in pin_ids.values_mut() {
+            *id = rank_of_id[*id as usize];
+        }
+        for p in &mut pin_of {
+            *p = rank_of_id[*p as usize];
+        }
+        drop(rank_of_id);
+
+        // Group the entries by component (a counting sort: linear, and it keeps each
+        // component's entries in net and node order), then sort each group by pin rank.
+        let ncomp = nl.components.len();
+        let mut comp_at = vec![0u32; ncomp + 1];
+        for e in &entries {
+            comp_at[e.0 as usize + 1] += 1;
+        }
+        for c in 0..ncomp {
+            comp_at[c + 1] += comp_at[c];
+        }
+        let mut fill: Vec<u32> = comp_at[..ncomp].to_vec();
+        // (pin rank, net, node)
+        let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); entries.len()];
+        for (e, &rank) in entries.iter().zip(&pin_of) {
+            let at = &mut fill[e.0 as usize];
+            sorted[*at as usize] = (rank, e.1, e.2);
+            *at += 1;
+        }
+        drop(fill);
+        drop(pin_of);
+        drop(entries);
+        for c in 0..ncomp {
+            let group = &mut sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
+            if group.len() > 1 {
+                group.sort_unstable();
+            }
+        }
+
+        // Flat per-node tables: node `k` of net `ni` is at `net_at[ni] + k`.
+        let mut net_at: Vec<u32> = Vec::with_capacity(nl.nets.len() + 1);
+        let mut total = 0u32;
+        for net in &nl.nets {
+            net_at.push(total);
+            total += net.nodes.len() as u32;
+        }
+        net_at.push(total);
+
         // keep the first (component, pin) of each group; a repeat in the same net is dropped
         // quietly, one in another net is a diagnostic
-        let mut keep: Vec<Vec<bool>> = nl.nets.iter().map(|n| vec![false; n.nodes.len()]).collect();
+        let mut keep = vec![false; total as usize];
         let mut twice: Vec<(usize, usize, Span, String)> = Vec::new();
-        let mut first_of_group = 0;
-        for i in 0..entries.len() {
-            let e = entries[i];
-            let same = i > 0 && {
-                let f = entries[first_of_group];
-                f.0 == e.0 && nl.nets[f.1 as usize].nodes[f.2 as usize].pin.s == nl.nets[e.1 as usize].nodes[e.2 as usize].pin.s
-            };
-            if !same {
-                first_of_group = i;
-                keep[e.1 as usize][e.2 as usize] = true;
-                continue;
-            }
-            let f = entries[first_of_group];
-            if f.1 != e.1 && entries[i - 1].1 != e.1 {
-                let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
-                twice.push((f.1 as usize, e.1 as usize, node.span, format!("{}.{}", node.reference, node.pin)));
+        for c in 0..ncomp {
+            let group = &sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
+            let mut first_of_run = 0;
+            for i in 0..group.len() {
+                let e = group[i];
+                if i == 0 || group[first_of_run].0 != e.0 {
+                    first_of_run = i;
+                    keep[(net_at[e.1 as usize] + e.2) as usize] = true;
+                    continue;
+                }
+                let f = group[first_of_run];
+                if f.1 != e.1 && group[i - 1].1 != e.1 {
+                    let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
+                    twice.push((
+                        f.1 as usize,
+                        e.1 as usize,
+                        node.span,
+                        format!("{}.{}", node.reference, node.pin),
+                    ));
+                }
             }
         }
-        // drop the repeats and renumber the kept nodes
-        let mut new_index: Vec<Vec<u32>> = Vec::with_capacity(nl.nets.len());
-        for (net, keep) in nl.nets.iter_mut().zip(&keep) {
-            let mut map = vec![u32::MAX; keep.len()];
+        // drop the repeats and renumber the kept nodes (`new_index` reuses the flat layout)
+        let mut new_index = vec![u32::MAX; total as usize];
+        for (ni, net) in nl.nets.iter_mut().enumerate() {
+            let base = net_at[ni] as usize;
+            let keep = &keep[base..base + net.nodes.len()];
+            let map = &mut new_index[base..base + net.nodes.len()];
             let mut n = 0u32;
             for (k, &kp) in keep.iter().enumerate() {
                 if kp {
@@ -526,19 +728,25 @@ impl<'a> Builder<'_, 'a> {
                     keep[k - 1]
                 });
             }
-            new_index.push(map);
         }
         drop(keep);
-        // per component, its kept (pin, net, node) sorted by pin
-        let mut pin_nets: Vec<(u32, u32, u32)> = entries
-            .into_iter()
-            .filter_map(|(c, ni, k)| {
-                let nk = new_index[ni as usize][k as usize];
-                (nk != u32::MAX).then_some((c, ni, nk))
-            })
-            .collect();
-        pin_nets.shrink_to_fit();
+        // per component, its kept (pin rank, net, node), still sorted by pin
+        let mut pin_nets: Vec<(u32, u32, u32)> = Vec::with_capacity(sorted.len());
+        let mut pins_at: Vec<u32> = Vec::with_capacity(ncomp + 1);
+        for c in 0..ncomp {
+            pins_at.push(pin_nets.len() as u32);
+            for &(rank, ni, k) in &sorted[comp_at[c] as usize..comp_at[c + 1] as usize] {
+                let nk = new_index[(net_at[ni as usize] + k) as usize];
+                if nk != u32::MAX {
+                    pin_nets.push((rank, ni, nk));
+                }
+            }
+        }
+        pins_at.push(pin_nets.len() as u32);
+        drop(sorted);
         drop(new_index);
+        drop(comp_at);
+        drop(net_at);
         for (first, second, span, pin) in twice {
             let (f, n) = (&nl.nets[first], &nl.nets[second]);
             self.diags.borrow_mut().push(
@@ -549,47 +757,61 @@ impl<'a> Builder<'_, 'a> {
             );
         }
 
+        // per library part, once: each pin's rank among the pin texts the nets use, and
+        // whether an earlier pin of the part has the same number (a stacked pin)
+        let lib_pins: Vec<(Vec<Option<u32>>, Vec<bool>)> = nl
+            .libparts
+            .iter()
+            .map(|lp| {
+                let mut seen: HashMap<&str, ()> =
+                    HashMap::with_capacity_and_hasher(lp.pins.len(), Default::default());
+                let ranks = lp
+                    .pins
+                    .iter()
+                    .map(|p| pin_ids.get(p.num.as_str()).copied())
+                    .collect();
+                let repeats = lp
+                    .pins
+                    .iter()
+                    .map(|p| seen.insert(p.num.as_str(), ()).is_some())
+                    .collect();
+                (ranks, repeats)
+            })
+            .collect();
+        let mut used: Vec<bool> = Vec::new();
         // component pins: the libpart's, then any the nets name that it lacks
-        let mut at = 0usize;
         for (ci, c) in nl.components.iter_mut().enumerate() {
-            let start = at;
-            while at < pin_nets.len() && pin_nets[at].0 as usize == ci {
-                at += 1;
-            }
-            let mine = &pin_nets[start..at];
+            let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
             let nets = &nl.nets;
-            let find = |num: &str| {
-                mine.binary_search_by(|e| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str().cmp(num))
-                    .ok()
-                    .map(|i| (mine[i].1 as usize, mine[i].2 as usize))
-            };
             let mut pins: Vec<CompPin<'a>> = Vec::new();
-            let mut used = vec![false; mine.len()];
+            used.clear();
+            used.resize(mine.len(), false);
             if let Some(li) = c.libpart {
                 let lpins = &nl.libparts[li].pins;
+                let (ranks, repeats) = &lib_pins[li];
                 pins.reserve(lpins.len());
                 for (pi, lpin) in lpins.iter().enumerate() {
-                    if pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
+                    // only a number an earlier pin had can be among the pins so far
+                    if repeats[pi] && pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
                         continue; // stacked pins listed twice
                     }
-                    let found = find(lpin.num.as_str());
+                    let found =
+                        ranks[pi].and_then(|rank| mine.binary_search_by(|e| e.0.cmp(&rank)).ok());
                     let connection = match found {
-                        Some((net, node)) => {
-                            if let Ok(i) = mine.binary_search_by(|e| nets[e.1 as usize].nodes[e.2 as usize].pin.as_str().cmp(lpin.num.as_str())) {
-                                if used[i] {
-                                    continue; // stacked pins listed twice
-                                }
-                                used[i] = true;
+                        Some(i) => {
+                            if used[i] {
+                                continue; // stacked pins listed twice
                             }
-                            connection(nets, net, node)
+                            used[i] = true;
+                            connection(nets, mine[i].1 as usize, mine[i].2 as usize)
                         }
                         None => Connection::Absent,
                     };
                     let mut ptype = lpin.ptype;
                     let mut no_connect = lpin.ptype == PinType::NoConnect;
                     let mut name = lpin.name.as_ref().map(|n| n.s.clone());
-                    if let Some((net, node)) = found {
-                        let nd = &nets[net].nodes[node];
+                    if let Some(i) = found {
+                        let nd = &nets[mine[i].1 as usize].nodes[mine[i].2 as usize];
                         if let Some(t) = nd.pintype {
                             ptype = t;
                         }
@@ -598,7 +820,14 @@ impl<'a> Builder<'_, 'a> {
                             name = nd.pinfunction.as_ref().map(|f| f.s.clone());
                         }
                     }
-                    pins.push(CompPin { num: lpin.num.s.clone(), name, ptype, no_connect, connection, libpin: Some(pi) });
+                    pins.push(CompPin {
+                        num: lpin.num.s.clone(),
+                        name,
+                        ptype,
+                        no_connect,
+                        connection,
+                        libpin: Some(pi),
+                    });
                 }
             }
             // pins named by nodes but missing from the libpart (or no libpart at all)
@@ -632,5 +861,123 @@ fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {
         Connection::Net { net, node }
     } else {
         Connection::Alone { net, node }
+    }
+}
+
+#[cfg(test)]
+mod link_tests {
+    use std::fmt::Write;
+
+    use crate::netlist::{build, Connection};
+    use crate::sexpr::parse;
+
+    /// A component whose library part has 100 000 pins, every pin on a net of its own and
+    /// named twice there (the repeat is dropped), and pin 7 also on a second net.
+    #[test]
+    fn a_component_with_100_000_pins_links_every_pin() {
+        const N: usize = 100_000;
+        let mut s = String::from("(export (version \"E\") (components (comp (ref \"U1\") (libsource (lib \"x\") (part \"BIG\"))))\n(libparts (libpart (lib \"x\") (part \"BIG\") (pins\n");
+        for p in 1..=N {
+            let _ = writeln!(s, "(pin (num \"{p}\") (name \"P{p}\") (type \"input\"))");
+        }
+        s.push_str(")))\n(nets\n");
+        for p in 1..=N {
+            let _ = writeln!(s, "(net (code \"{p}\") (name \"N{p}\") (node (ref \"U1\") (pin \"{p}\")) (node (ref \"U1\") (pin \"{p}\")))");
+        }
+        s.push_str("(net (code \"0\") (name \"EXTRA\") (node (ref \"U1\") (pin \"7\")) (node (ref \"U1\") (pin \"100001\")))))");
+        let t = parse(&s).unwrap();
+        let nl = build(&t).unwrap();
+        let u1 = &nl.components[0];
+        // the libpart's pins in their order, then the one only a net names
+        assert_eq!(u1.pins.len(), N + 1);
+        assert_eq!(u1.pins[0].num, "1");
+        assert_eq!(u1.pins[N - 1].num, "100000");
+        assert_eq!(u1.pins[N].num, "100001");
+        assert_eq!(u1.pins[N].libpin, None);
+        // each net keeps one node: the pin is alone on it
+        assert!(nl.nets[..N].iter().all(|n| n.nodes.len() == 1));
+        assert_eq!(
+            u1.pins[41].connection,
+            Connection::Alone { net: 41, node: 0 }
+        );
+        // U1.7 stays on its first net: EXTRA keeps only pin 100001
+        assert_eq!(u1.pins[6].connection, Connection::Alone { net: 6, node: 0 });
+        assert_eq!(nl.nets[N].nodes.len(), 1);
+        assert_eq!(u1.pins[N].connection, Connection::Alone { net: N, node: 0 });
+        let two: Vec<&str> = nl
+            .diagnostics
+            .iter()
+            .filter(|d| d.code == "pin-on-two-nets")
+            .map(|d| d.message.as_str())
+            .collect();
+        assert_eq!(two, ["U1.7 is on two nets: `N7` and `EXTRA`"]);
+    }
+
+    /// One net of 1 000 000 nodes: 500 components of 1000 pins, with each node written
+    /// twice in the net; the repeats are dropped.
+    #[test]
+    fn a_net_of_1_000_000_nodes_is_deduplicated() {
+        const C: usize = 500;
+        const P: usize = 1000;
+        let mut s = String::from("(export (version \"E\") (components\n");
+        for c in 0..C {
+            let _ = writeln!(s, "(comp (ref \"R{c}\"))");
+        }
+        s.push_str(") (nets (net (code \"1\") (name \"BUS\")\n");
+        for _ in 0..2 {
+            for c in 0..C {
+                for p in 0..P {
+                    let _ = writeln!(s, "(node (ref \"R{c}\") (pin \"{p}\"))");
+                }
+            }
+        }
+        s.push_str(")))");
+        let t = parse(&s).unwrap();
+        let nl = build(&t).unwrap();
+        assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
+        assert_eq!(nl.nets[0].nodes.len(), C * P);
+        let r7 = &nl.components[nl.component("R7").unwrap()];
+        assert_eq!(r7.pins.len(), P);
+        // pins without a libpart come in text order: "0", "1", "10", "100", ...
+        assert_eq!(r7.pins[2].num, "10");
+        let node = match r7.pins[2].connection {
+            Connection::Net { net: 0, node } => node,
+            other => panic!("{other:?}"),
+        };
+        assert_eq!(nl.nets[0].nodes[node].reference.as_str(), "R7");
+        assert_eq!(nl.nets[0].nodes[node].pin.as_str(), "10");
+        assert_eq!(node, 7 * P + 10);
+    }
+
+    /// A library part that lists a pin number twice (stacked pins) gives the component
+    /// one pin for it, early in the list and after the 64th pin alike.
+    #[test]
+    fn stacked_library_pins_are_listed_once() {
+        let mut s = String::from("(export (version \"E\") (components (comp (ref \"U1\") (libsource (lib \"x\") (part \"S\"))))\n(libparts (libpart (lib \"x\") (part \"S\") (pins\n");
+        for p in ["1", "2", "1", "3"] {
+            let _ = writeln!(s, "(pin (num \"{p}\") (type \"input\"))");
+        }
+        for p in 4..=70 {
+            let _ = writeln!(s, "(pin (num \"{p}\") (type \"input\"))");
+        }
+        s.push_str("(pin (num \"40\") (type \"output\")))))\n(nets (net (code \"1\") (name \"A\") (node (ref \"U1\") (pin \"1\")) (node (ref \"U1\") (pin \"40\")))))");
+        let t = parse(&s).unwrap();
+        let nl = build(&t).unwrap();
+        let nums: Vec<&str> = nl.components[0]
+            .pins
+            .iter()
+            .map(|p| p.num.as_ref())
+            .collect();
+        let want: Vec<String> = (1..=70).map(|p| p.to_string()).collect();
+        assert_eq!(nums, want);
+        assert_eq!(
+            nl.components[0].pins[0].connection,
+            Connection::Net { net: 0, node: 0 }
+        );
+        assert_eq!(
+            nl.components[0].pins[39].connection,
+            Connection::Net { net: 0, node: 1 }
+        );
+        assert_eq!(nl.components[0].pins[1].connection, Connection::Absent);
     }
 }

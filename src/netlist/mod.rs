@@ -214,8 +214,9 @@ pub struct Netlist<'a> {
     /// Problems found while reading (reading went on).
     pub diagnostics: Vec<Diag>,
     pub span: Span,
-    by_ref: HashMap<String, usize>,
-    by_net_name: HashMap<String, usize>,
+    /// Keys borrow the file's text (an escaped name holds its own copy).
+    by_ref: HashMap<Cow<'a, str>, usize>,
+    by_net_name: HashMap<Cow<'a, str>, usize>,
 }
 
 /// Counts for the per-file summary.
