@@ -177,12 +177,17 @@ fn sp(r: std::ops::Range<usize>) -> Span {
 
 /// The nearest `netmargin.toml` in `start`'s folder or above it.
 pub fn discover(start: &Path) -> Option<PathBuf> {
-    let abs = if start.is_absolute() { start.to_path_buf() } else { std::env::current_dir().ok()?.join(start) };
+    let cwd = std::env::current_dir().ok()?;
+    let abs = if start.is_absolute() { start.to_path_buf() } else { cwd.join(start) };
     let mut dir = if abs.is_dir() { Some(abs.as_path()) } else { abs.parent() };
     while let Some(d) = dir {
         let c = d.join(FILE_NAME);
         if c.is_file() {
-            return Some(c);
+            // shown as the user would write it: relative to the current folder when below it
+            return Some(match c.strip_prefix(&cwd) {
+                Ok(rel) if !start.is_absolute() => rel.to_path_buf(),
+                _ => c,
+            });
         }
         dir = d.parent();
     }
@@ -312,18 +317,27 @@ impl Config {
         for f in &self.families {
             let (src, text) = self.read_rule_file(&f.value, f.span)?;
             let t = FamilyTable::parse(&text).map_err(|e| rule_errors(&src, e))?;
+            for fam in t.iter() {
+                rules.project_families.push((fam.id.clone(), src.name().to_string(), src.line_col(fam.span.start).line));
+            }
             rules.families.merge(t);
             rules.sources.push(format!("project {}", f.value.display()));
         }
         for f in &self.functions {
             let (src, text) = self.read_rule_file(&f.value, f.span)?;
             let t = FunctionTable::parse(&text).map_err(|e| rule_errors(&src, e))?;
+            for f in t.iter() {
+                rules.project_functions.push((f.series, f.id.clone(), src.name().to_string(), src.line_col(f.span.start).line));
+            }
             rules.functions.merge(t);
             rules.sources.push(format!("project {}", f.value.display()));
         }
         for f in self.parts.iter().rev() {
             let (src, text) = self.read_rule_file(&f.value, f.span)?;
-            let t = PartTable::parse(&text, false).map_err(|e| rule_errors(&src, e))?;
+            let mut t = PartTable::parse(&text, false).map_err(|e| rule_errors(&src, e))?;
+            for e in &mut t.entries {
+                e.origin = Some((src.name().to_string(), src.line_col(e.span.start).line));
+            }
             rules.parts.merge_over(t);
             rules.sources.push(format!("project {}", f.value.display()));
         }

@@ -182,4 +182,8 @@ pub static INPUT_CODES: &[(&str, &str)] = &[
     ("pin-on-two-nets", "one pin is listed on two different nets"),
     ("missing-libpart", "a component's library part is not in the netlist"),
     ("netlist-version", "a netlist version netmargin does not know"),
+    ("config", "the project configuration (netmargin.toml) has an error"),
+    ("mapping-file", "a project mapping file (families, functions, parts) has an error"),
+    ("stale-waiver", "a waiver that matched no finding, or has expired"),
+    ("unused-rule", "a project mapping entry that matched nothing in the run"),
 ];

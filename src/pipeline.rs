@@ -107,13 +107,31 @@ pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
 
 /// Reads, models, classifies and checks one file.
 pub fn check_file(path: &str, rules: &Rules, opts: &RunOptions) -> FileOutcome {
+    check_file_with_usage(path, rules, opts).0
+}
+
+/// Which project mapping entries a file used (so entries that matched nothing in a run can
+/// be reported).
+#[derive(Debug, Clone, Default)]
+pub struct UsedRules {
+    /// Indices into `Rules::parts.entries`.
+    pub entries: Vec<usize>,
+    /// Family ids the classified parts use.
+    pub families: Vec<String>,
+    /// (series, function id) the classified parts use.
+    pub functions: Vec<(crate::classify::function::Series, String)>,
+}
+
+/// [`check_file`], also saying which mapping entries the file used.
+pub fn check_file_with_usage(path: &str, rules: &Rules, opts: &RunOptions) -> (FileOutcome, UsedRules) {
+    let mut used = UsedRules::default();
     let name = if path == "-" { "<stdin>".to_string() } else { path.to_string() };
     let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default(), coverage: None, waived: 0 };
     let bytes = match read_bytes(path, &opts.read) {
         Ok(b) => b,
         Err(d) => {
             out.fatal = Some(d);
-            return out;
+            return (out, used);
         }
     };
     let source = match input::load(&name, bytes) {
@@ -121,7 +139,7 @@ pub fn check_file(path: &str, rules: &Rules, opts: &RunOptions) -> FileOutcome {
         Err(e) => {
             out.fatal = Some(e.diag);
             out.source = Some(e.source);
-            return out;
+            return (out, used);
         }
     };
     let result = check_source(&source, rules, opts);
@@ -131,10 +149,11 @@ pub fn check_file(path: &str, rules: &Rules, opts: &RunOptions) -> FileOutcome {
             out.diags = c.diags;
             out.summary = c.summary;
             out.coverage = Some(c.coverage);
+            used = c.used;
         }
         Err(d) => out.fatal = Some(d),
     }
-    out
+    (out, used)
 }
 
 /// What checking one text produced.
@@ -144,6 +163,7 @@ pub struct Checked {
     pub diags: Vec<Diag>,
     pub summary: Summary,
     pub coverage: (usize, usize),
+    pub used: UsedRules,
 }
 
 /// Parses, models, classifies and checks a text.
@@ -158,7 +178,25 @@ pub fn check_source(source: &SourceFile, rules: &Rules, opts: &RunOptions) -> Re
     let cx = circuit::build(&nl, &cl, rules, opts.model.clone());
     let mut diags = nl.diagnostics.clone();
     diags.extend(checks::run_all(&cx, &opts.checks));
-    Ok(Checked { diags, summary: nl.summary(), coverage: cl.coverage })
+    let mut used = UsedRules::default();
+    for p in &cl.parts {
+        if let Some(e) = p.entry {
+            used.entries.push(e);
+        }
+        if let Some(f) = &p.family {
+            used.families.push(f.clone());
+        }
+        if let Some(f) = &p.function {
+            used.functions.push(f.clone());
+        }
+    }
+    used.entries.sort_unstable();
+    used.entries.dedup();
+    used.families.sort();
+    used.families.dedup();
+    used.functions.sort();
+    used.functions.dedup();
+    Ok(Checked { diags, summary: nl.summary(), coverage: cl.coverage, used })
 }
 
 /// Parses and models a text, returning the model's diagnostics and counts.

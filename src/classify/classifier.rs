@@ -24,6 +24,10 @@ pub struct Rules {
     pub parts: PartTable,
     /// Where the tables came from, for reports ("shipped rules/families.toml", a project file).
     pub sources: Vec<String>,
+    /// Families a project file defined: (id, file, line).
+    pub project_families: Vec<(String, String, usize)>,
+    /// Functions a project file defined: (series, id, file, line).
+    pub project_functions: Vec<(Series, String, String, usize)>,
 }
 
 impl Rules {
@@ -38,6 +42,8 @@ impl Rules {
                 "shipped rules/functions.toml".into(),
                 "shipped rules/parts.toml".into(),
             ],
+            project_families: Vec::new(),
+            project_functions: Vec::new(),
         }
     }
 }

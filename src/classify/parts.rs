@@ -45,6 +45,8 @@ pub struct PartEntry {
     pub span: Range<usize>,
     /// True for the shipped file, false for a project's.
     pub shipped: bool,
+    /// For a project entry: its file and 1-based line.
+    pub origin: Option<(String, usize)>,
 }
 
 impl PartEntry {
@@ -121,7 +123,7 @@ impl PartTable {
                 errors.push(RuleError::new(Some(span.clone()), "a logic part entry needs `family` and `function`"));
                 continue;
             }
-            entries.push(PartEntry { values: r.values, kind, family: r.family, series, function: r.function, note: r.note, span, shipped });
+            entries.push(PartEntry { values: r.values, kind, family: r.family, series, function: r.function, note: r.note, span, shipped, origin: None });
         }
         if errors.is_empty() {
             Ok(PartTable { entries })
