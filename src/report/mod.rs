@@ -10,6 +10,7 @@
 //! line/column and byte terms, the fingerprints, paths relative to a root and the totals.
 //! Text from a netlist is untrusted: every reporter escapes it for its own medium.
 
+pub mod docs;
 pub mod explain;
 pub mod github;
 pub mod human;
