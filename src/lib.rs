@@ -1,3 +1,4 @@
+#![allow(clippy::result_large_err)]
 //! netmargin: reads KiCad S-expression netlists and checks every net against the DC
 //! behaviour of the logic families on it. See `DEVELOPERS.md` for the architecture.
 //!

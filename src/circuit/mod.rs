@@ -301,9 +301,10 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
             }
         }
         let railv = supply_net.and_then(|n| rail[n]).and_then(|r| r.v()).filter(|v| *v > 0.0);
-        let groundv = ground_net.and_then(|n| rail[n]).and_then(|r| r.v()).unwrap_or(0.0);
+        // thresholds are taken against 0 V: a ground pin on a rail other than 0 V is the
+        // business of `power-pin-miswired`, and a 4051's VEE is an analogue supply
         let (vcc, known) = match railv {
-            Some(v) => (v - groundv.min(0.0).max(0.0), true),
+            Some(v) => (v, true),
             None => (fam.supply_nominal, false),
         };
         supplies.push(Some(PartSupply { vcc, known, supply_net, ground_net }));
