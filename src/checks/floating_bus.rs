@@ -34,8 +34,9 @@ const PULL_CAP_OHMS: f64 = 100e3;
 pub(super) struct Leakage {
     /// Sum of the drivers' off-state leakage (IOZ).
     pub ioz: f64,
-    /// Sum of the other loads' input currents.
-    pub inputs: f64,
+    /// Sum of the other loads' input currents at a low level (|IIL|) and at a high (IIH).
+    pub inputs_low: f64,
+    pub inputs_high: f64,
     /// The lowest VIL max of the loads, and the highest VIH min.
     pub vil: f64,
     pub vih: f64,
@@ -44,15 +45,20 @@ pub(super) struct Leakage {
 }
 
 impl Leakage {
-    pub fn total(&self) -> f64 {
-        self.ioz + self.inputs
+    /// The current a pull-down must take away to hold a low.
+    pub fn low(&self) -> f64 {
+        self.ioz + self.inputs_low
+    }
+    /// The current a pull-up must supply to hold a high.
+    pub fn high(&self) -> f64 {
+        self.ioz + self.inputs_high
     }
 }
 
 /// The largest pull-down that holds VIL against the leakage.
 pub(super) fn pull_down_max(l: &Leakage) -> f64 {
-    if l.total() > 0.0 {
-        l.vil / l.total()
+    if l.low() > 0.0 {
+        l.vil / l.low()
     } else {
         f64::INFINITY
     }
@@ -60,8 +66,8 @@ pub(super) fn pull_down_max(l: &Leakage) -> f64 {
 
 /// The largest pull-up to `vcc` that holds VIH against the leakage.
 pub(super) fn pull_up_max(l: &Leakage, vcc: f64) -> f64 {
-    if l.total() > 0.0 {
-        (vcc - l.vih).max(0.0) / l.total()
+    if l.high() > 0.0 {
+        (vcc - l.vih).max(0.0) / l.high()
     } else {
         f64::INFINITY
     }
@@ -103,17 +109,17 @@ fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
         .loads
         .iter()
         .filter(|l| !nm.drivers.iter().any(|d| d.at == l.at));
-    let inputs: f64 = others
-        .filter_map(|l| l.levels.as_ref())
-        .map(|l| l.iil_max.abs().max(l.iih_max.abs()))
-        .sum();
+    let levels: Vec<_> = others.filter_map(|l| l.levels.as_ref()).collect();
+    let inputs_low: f64 = levels.iter().map(|l| l.iil_max.abs()).sum();
+    let inputs_high: f64 = levels.iter().map(|l| l.iih_max.abs()).sum();
     let lv = nm.loads.iter().filter_map(|l| l.levels.as_ref());
     let vil = lv.clone().map(|l| l.vil_max).reduce(f64::min)?;
     let vih = lv.map(|l| l.vih_min).reduce(f64::max)?;
     let ttl = nm.loads.iter().any(|l| l.ttl);
     Some(Leakage {
         ioz,
-        inputs,
+        inputs_low,
+        inputs_high,
         vil,
         vih,
         ttl,
@@ -167,18 +173,20 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             loads.join(", "),
             leaves.clone().unwrap_or_default()
         );
-        let total = leak.total();
-        let parts = format!(
-            "{} of leakage (IOZ {}, inputs {})",
-            format_amps(total),
-            format_amps(leak.ioz),
-            format_amps(leak.inputs)
-        );
+        let parts = |total: f64, inputs: f64| {
+            format!(
+                "{} of leakage (IOZ {}, inputs {})",
+                format_amps(total),
+                format_amps(leak.ioz),
+                format_amps(inputs)
+            )
+        };
         let at = cx.supply_text(first.comp);
         let help = if leak.ttl {
             // TTL inputs float high and draw their IIL from a pull-down: pull up instead
             let vcc = cx.supplies[first.comp].as_ref().map_or(5.0, |s| s.vcc);
             let rmax = pull_up_max(&leak, vcc);
+            let (total, parts) = (leak.high(), parts(leak.high(), leak.inputs_high));
             match suggest(rmax) {
                 Some(r) => format!(
                     "fit a pull-up of {} to {}: the {parts} holds the net at {}, above VIH {} at {at} (the largest that holds VIH is {}); a pull-down would have to sink the TTL inputs' IIL",
@@ -192,6 +200,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             }
         } else {
             let rmax = pull_down_max(&leak);
+            let (total, parts) = (leak.low(), parts(leak.low(), leak.inputs_low));
             match suggest(rmax) {
                 Some(r) => format!(
                     "fit a pull-down of {} to {}: the {parts} holds the net at {}, below VIL {} at {at} (the largest that holds VIL is {})",
@@ -239,9 +248,11 @@ mod tests {
     use super::*;
 
     fn leak(ioz: f64, inputs: f64, vil: f64) -> Leakage {
+        let (inputs_low, inputs_high) = (inputs, inputs);
         Leakage {
             ioz,
-            inputs,
+            inputs_low,
+            inputs_high,
             vil,
             vih: 3.5,
             ttl: false,
@@ -256,7 +267,7 @@ mod tests {
         assert!((pull_down_max(&l) - 225e3).abs() < 1.0);
         // half of it is 112.5 kOhm: the suggestion is 100 kOhm, holding 0.60 V
         assert_eq!(suggest(pull_down_max(&l)), Some(100e3));
-        assert!((100e3 * l.total() - 0.60).abs() < 1e-9);
+        assert!((100e3 * l.low() - 0.60).abs() < 1e-9);
     }
 
     #[test]
@@ -269,6 +280,25 @@ mod tests {
         // a bound of 90 kOhm: half is 45 kOhm, the suggestion 22 kOhm
         assert_eq!(suggest(90e3), Some(22e3));
         assert_eq!(suggest(94e3), Some(47e3));
+    }
+
+    #[test]
+    fn a_pull_up_supplies_iih_not_iil() {
+        // 74HC244 IOZ 5 uA, 74HC04 1 uA (onsemi MM74HC04), 74LS04 IIH 20 uA and IIL 0.4 mA
+        // (TI SDLS025B); highest VIH 3.5 V (74HC at 5 V, 0.7 VCC)
+        let l = Leakage {
+            ioz: 5e-6,
+            inputs_low: 1e-6 + 0.4e-3,
+            inputs_high: 1e-6 + 20e-6,
+            vil: 0.8,
+            vih: 3.5,
+            ttl: true,
+        };
+        // (5.0 - 3.5) / 26 uA = 57.7 kOhm; half is 28.8 kOhm: 22 kOhm
+        assert!((pull_up_max(&l, 5.0) - 57_692.3).abs() < 1.0);
+        assert_eq!(suggest(pull_up_max(&l, 5.0)), Some(22e3));
+        // a pull-down would have to hold 0.8 V against 0.406 mA: under 2 kOhm
+        assert!(pull_down_max(&l) < 2000.0);
     }
 
     #[test]

@@ -88,6 +88,19 @@ pub(super) fn limit(fam: &Family, vcc: f64) -> (f64, String) {
     }
 }
 
+/// The tolerant CMOS families (shipped or the project's) whose inputs take `level` at a supply
+/// of `vcc`: the fix a level shift needs.
+pub(super) fn tolerant_families(cx: &Circuit<'_, '_>, level: f64, vcc: f64) -> Vec<String> {
+    cx.rules
+        .families
+        .iter()
+        .filter(|f| f.technology == Technology::Cmos)
+        .filter(|f| vcc >= f.supply_min - 1e-9 && vcc <= f.supply_max + 1e-9)
+        .filter(|f| f.input_max_v.is_some_and(|m| m >= level - 1e-9))
+        .map(|f| f.id.clone())
+        .collect()
+}
+
 /// The sources of a high level on `net`, at the top of the rail tolerance.
 pub(super) fn sources(cx: &Circuit<'_, '_>, net: usize) -> Vec<Source> {
     let nm = &cx.nets[net];
@@ -207,10 +220,27 @@ fn diag(
             };
             (
                 format!("{} drives {high} into {loads}", cx.describe(at)),
-                format!(
-                    "run {} from {load_rail}, or shift the level down with a buffer on {load_rail} whose inputs take the higher level (a CD4050B on {load_rail} converts high to low levels), or use a load family that tolerates it",
-                    cx.nl.components[at.comp].reference
-                ),
+                {
+                    let vcc = cx.supplies[comp].as_ref().map_or(5.0, |s| s.vcc);
+                    let names = tolerant_families(cx, level, vcc);
+                    let shift = if names.is_empty() {
+                        format!("put a level translator on {load_rail} between them")
+                    } else {
+                        format!(
+                            "buffer the signal with a {} part on {load_rail}, whose inputs take {}",
+                            match names.split_last() {
+                                Some((last, rest)) if !rest.is_empty() =>
+                                    format!("{} or {last}", rest.join(", ")),
+                                _ => names.join(""),
+                            },
+                            format_volts(level)
+                        )
+                    };
+                    format!(
+                        "run {} from {load_rail}, or {shift}",
+                        cx.nl.components[at.comp].reference
+                    )
+                },
                 Some(at),
                 format!("drives {}", format_volts(level)),
             )
@@ -256,8 +286,12 @@ fn diag(
         _ => String::new(),
     };
     let message = format!(
-        "{what}, which take{} at most {text} at {}: over by {}{even}",
-        if pins.len() == 1 { "s" } else { "" },
+        "{what}; {} at most {text} at {}: over by {}{even}",
+        if pins.len() == 1 {
+            "it takes"
+        } else {
+            "they take"
+        },
         cx.supply_text(comp),
         format_volts(level - lim)
     );

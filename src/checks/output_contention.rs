@@ -89,7 +89,7 @@ pub(super) fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
         };
         match cx.nets[net].rail {
             Some(r) => {
-                let high = !r.ground && r.volts.is_none_or(|v| v > 0.0);
+                let high = !r.ground && r.volts.map_or(true, |v| v > 0.0);
                 if high != want_high {
                     return Gate::Never;
                 }
@@ -332,6 +332,24 @@ fn on_text(cx: &Circuit<'_, '_>, p: PinRef) -> String {
     }
 }
 
+/// The shared enable condition, by net: `/EN_A_N low`, `/DIR low and /OE_N low`.
+fn together_text(cx: &Circuit<'_, '_>, p: PinRef) -> String {
+    match gate(cx, p) {
+        Gate::When(l) => l
+            .iter()
+            .map(|x| {
+                format!(
+                    "{} {}",
+                    cx.net_name(x.net),
+                    if x.high { "high" } else { "low" }
+                )
+            })
+            .collect::<Vec<_>>()
+            .join(" and "),
+        _ => "the same enable".to_string(),
+    }
+}
+
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for net in 0..cx.nets.len() {
@@ -478,11 +496,12 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             let mut d = Diag::error(
                 "output-contention",
                 format!(
-                    "{} drives {name} high and low, and the open-collector output{} {} pull{} it low: whenever it drives high against them, it sources into a short ({})",
+                    "{} drives {name} high and low, and the open-collector output{} {} pull{} it low: whenever it drives high against {}, it sources into a short ({})",
                     list(cx, always),
                     if oc.len() == 1 { "" } else { "s" },
                     list(cx, oc),
                     if oc.len() == 1 { "s" } else { "" },
+                    if oc.len() == 1 { "it" } else { "them" },
                     ratings(cx, net, always[0])
                 ),
             )
@@ -504,9 +523,9 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
         Finding::SameEnable(ps) => {
             let mut d = Diag::error(
                 "output-contention",
-                format!("{} three-state outputs drive {name} and are enabled together, all on {}: {}; two drivers on at once fight", ps.len(), on_text(cx, ps[0]), list(cx, ps)),
+                format!("{} three-state outputs drive {name} and are turned on together by {}: {}; two drivers on at once fight", ps.len(), together_text(cx, ps[0]), list(cx, ps)),
             )
-            .at(cx.pin_span(ps[0]), "three-state output")
+            .at(cx.pin_span(ps[0]), format!("enabled {}", on_text(cx, ps[0])))
             .on_net(name)
             .with_pins(pins_of(ps));
             for p in &ps[1..] {

@@ -45,7 +45,7 @@ fn round_value(x: f64) -> f64 {
 
 /// The largest value of `series` (any decade) not above `r`.
 pub(super) fn series_at_most(r: f64, series: &[f64]) -> Option<f64> {
-    if !(r > 0.0) || !r.is_finite() {
+    if !r.is_finite() || r <= 0.0 {
         return None;
     }
     series_values(r, series)
@@ -55,7 +55,7 @@ pub(super) fn series_at_most(r: f64, series: &[f64]) -> Option<f64> {
 
 /// The smallest value of `series` (any decade) not below `r`.
 pub(super) fn series_at_least(r: f64, series: &[f64]) -> Option<f64> {
-    if !(r > 0.0) || !r.is_finite() {
+    if !r.is_finite() || r <= 0.0 {
         return None;
     }
     series_values(r, series)
