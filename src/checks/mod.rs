@@ -77,12 +77,17 @@ mod tests {
 
 mod common;
 mod fanout_overrun;
+mod floating_bus;
 mod floating_cmos_input;
 mod floating_ttl_input;
+mod input_overvoltage;
 mod level_mismatch;
 mod missing_pull_up;
+mod output_contention;
 mod pull_up_out_of_range;
 mod ttl_high_into_cmos;
+mod ttl_pull_down_too_large;
+mod weak_high_drive;
 
 use crate::circuit::budget::{net_budget, NetBudget};
 use crate::circuit::Circuit;
@@ -126,6 +131,11 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
         ("level-mismatch", level_mismatch::run),
         ("missing-pull-up", missing_pull_up::run),
         ("pull-up-out-of-range", pull_up_out_of_range::run),
+        ("output-contention", output_contention::run),
+        ("floating-bus", floating_bus::run),
+        ("ttl-pull-down-too-large", ttl_pull_down_too_large::run),
+        ("input-overvoltage", input_overvoltage::run),
+        ("weak-high-drive", weak_high_drive::run),
     ]
 }
 

@@ -1,0 +1,293 @@
+//! Finds TTL inputs held low through a resistor to ground that is too large for their input
+//! current: with no driver on the net, the inputs' low-state current (IIL) flows out through
+//! the resistor, and IIL x R above VIL max means the input reads high or undefined. The
+//! largest resistor that holds VIL is R_max = VIL / (sum of |IIL| over the inputs on the net).
+//!
+//! Why it matters: a bipolar TTL input sources current when low (0.4 mA for a 74LS input,
+//! 1.6 mA for standard TTL). A pull-down sized for CMOS (10 kOhm, 100 kOhm) lets the input
+//! rise to its own threshold: the "low" the designer meant is read as a high.
+//!
+//! Example: a 74LS00 input with 10 kOhm to ground: 0.4 mA x 10 kOhm = 4.0 V (the input
+//! settles at its threshold), far above VIL 0.8 V. The largest pull-down that holds 0.8 V is
+//! 0.8 V / 0.4 mA = 2.0 kOhm.
+//!
+//! Fix: a resistor of at most R_max (the message suggests an E12 value at half of it, keeping
+//! half of VIL as margin), or tie the input straight to ground.
+//!
+//! When the net leaves the board through a connector, the resistor sets the level only while
+//! nothing drives it from outside: the finding says so.
+
+use super::Context;
+use crate::circuit::{Circuit, PinRef};
+use crate::diag::Diag;
+use crate::values::{format_amps, format_ohms, format_volts};
+
+/// The E12 series (IEC 60063), one decade.
+pub(super) const E12: [f64; 12] = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2];
+/// The 1 - 2.2 - 4.7 steps (E3, IEC 60063), the usual choice for pull resistors.
+pub(super) const E3: [f64; 3] = [1.0, 2.2, 4.7];
+
+fn series_values(r: f64, series: &[f64]) -> impl Iterator<Item = f64> + '_ {
+    let decade = if r > 0.0 && r.is_finite() {
+        r.log10().floor() as i32
+    } else {
+        0
+    };
+    (decade - 1..=decade + 1)
+        .flat_map(move |d| series.iter().map(move |m| round_value(m * 10f64.powi(d))))
+}
+
+/// Removes the rounding noise of `m x 10^d` (4.7 x 1000 = 4700.000000000001).
+fn round_value(x: f64) -> f64 {
+    let scale = 10f64.powi(x.log10().floor() as i32 - 3);
+    (x / scale).round() * scale
+}
+
+/// The largest value of `series` (any decade) not above `r`.
+pub(super) fn series_at_most(r: f64, series: &[f64]) -> Option<f64> {
+    if !r.is_finite() || r <= 0.0 {
+        return None;
+    }
+    series_values(r, series)
+        .filter(|v| *v <= r * (1.0 + 1e-9))
+        .reduce(f64::max)
+}
+
+/// The smallest value of `series` (any decade) not below `r`.
+pub(super) fn series_at_least(r: f64, series: &[f64]) -> Option<f64> {
+    if !r.is_finite() || r <= 0.0 {
+        return None;
+    }
+    series_values(r, series)
+        .filter(|v| *v >= r * (1.0 - 1e-9))
+        .reduce(f64::min)
+}
+
+/// A TTL input net held low by pull-downs that are too large.
+#[derive(Debug, Clone, PartialEq)]
+pub(super) struct PullDown {
+    /// The pull-downs in parallel.
+    pub ohms: f64,
+    /// Sum of |IIL| over every input on the net.
+    pub iil: f64,
+    /// The lowest VIL max of the TTL inputs.
+    pub vil: f64,
+}
+
+impl PullDown {
+    /// IIL x R: the level the inputs' current would raise the net to.
+    pub fn level(&self) -> f64 {
+        self.iil * self.ohms
+    }
+    /// The largest pull-down that holds VIL.
+    pub fn r_max(&self) -> f64 {
+        self.vil / self.iil
+    }
+    /// True when IIL x R is above VIL (the input reads high or undefined).
+    pub fn too_large(&self) -> bool {
+        self.level() > self.vil + 1e-9
+    }
+}
+
+/// The pull-down budget of `net`, when it is a net of inputs held low only by resistors to
+/// ground, with a TTL input among them.
+pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
+    let nm = &cx.nets[net];
+    if nm.rail.is_some()
+        || !nm.drivers.is_empty()
+        || nm.pulls.is_empty()
+        || !nm.unknown.is_empty()
+        || !nm.unreadable.is_empty()
+    {
+        return None;
+    }
+    if nm.pulls.iter().any(|p| p.up || p.rail_volts != 0.0) {
+        return None; // a divider or a pull to another rail: not a pull-down
+    }
+    let vil = nm
+        .loads
+        .iter()
+        .filter(|l| l.ttl)
+        .filter_map(|l| l.levels.as_ref())
+        .map(|l| l.vil_max)
+        .reduce(f64::min)?;
+    let iil: f64 = nm
+        .loads
+        .iter()
+        .filter_map(|l| l.levels.as_ref())
+        .map(|l| l.iil_max.abs())
+        .sum();
+    let g: f64 = nm
+        .pulls
+        .iter()
+        .filter(|p| p.ohms > 0.0)
+        .map(|p| 1.0 / p.ohms)
+        .sum();
+    if g <= 0.0 || iil <= 0.0 {
+        return None;
+    }
+    Some(PullDown {
+        ohms: 1.0 / g,
+        iil,
+        vil,
+    })
+}
+
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+    let cx = ctx.cx;
+    for net in 0..cx.nets.len() {
+        let Some(pd) = pull_down(cx, net).filter(|p| p.too_large()) else {
+            continue;
+        };
+        let nm = &cx.nets[net];
+        let ttl: Vec<PinRef> = nm
+            .loads
+            .iter()
+            .filter(|l| l.ttl && l.levels.is_some())
+            .map(|l| l.at)
+            .collect();
+        let first = ttl[0];
+        let resistors: Vec<String> = nm
+            .pulls
+            .iter()
+            .map(|p| {
+                format!(
+                    "{} {}",
+                    cx.nl.components[p.resistor].reference,
+                    format_ohms(p.ohms)
+                )
+            })
+            .collect();
+        let rail = cx.net_name(nm.pulls[0].rail_net);
+        let n = nm.loads.iter().filter(|l| l.levels.is_some()).count();
+        let who = if n == 1 {
+            cx.describe(first)
+        } else {
+            format!(
+                "{} and {} other input{}",
+                cx.describe(first),
+                n - 1,
+                if n == 2 { "" } else { "s" }
+            )
+        };
+        let through = if resistors.len() == 1 {
+            resistors[0].clone()
+        } else {
+            format!(
+                "{} in parallel ({})",
+                resistors.join(", "),
+                format_ohms(pd.ohms)
+            )
+        };
+        let outside = nm
+            .connectors
+            .first()
+            .map(|j| format!(" while nothing drives the net through {}", cx.pin_name(*j)))
+            .unwrap_or_default();
+        let message = format!(
+            "{who} {} held low through {through} to {rail}, but IIL x R = {} x {} = {}, above VIL {} at {}: the input reads high or undefined{outside}",
+            if n == 1 { "is" } else { "are" },
+            format_amps(pd.iil),
+            format_ohms(pd.ohms),
+            format_volts(pd.level()),
+            format_volts(pd.vil),
+            cx.supply_text(first.comp)
+        );
+        let rmax = pd.r_max();
+        let suggestion = series_at_most(rmax / 2.0, &E12)
+            .map(|r| {
+                format!(
+                    ", e.g. {} ({} at the input)",
+                    format_ohms(r),
+                    format_volts(r * pd.iil)
+                )
+            })
+            .unwrap_or_default();
+        let help = format!(
+            "use at most {} ({} / {}){suggestion}, or tie the input straight to {rail}",
+            format_ohms(rmax),
+            format_volts(pd.vil),
+            format_amps(pd.iil)
+        );
+        let mut d = Diag::error("ttl-pull-down-too-large", message)
+            .at(
+                cx.pin_span(first),
+                format!("IIL x R = {}", format_volts(pd.level())),
+            )
+            .on_net(cx.net_name(net))
+            .with_pins(
+                std::iter::once(cx.pin_name(first))
+                    .chain(
+                        nm.loads
+                            .iter()
+                            .filter(|l| l.at != first && l.levels.is_some())
+                            .map(|l| cx.pin_name(l.at)),
+                    )
+                    .chain(nm.pulls.iter().map(|p| cx.pin_name(p.at))),
+            );
+        for p in &nm.pulls {
+            d = d.also(
+                cx.pin_span(p.at),
+                format!("pull-down {}", format_ohms(p.ohms)),
+            );
+        }
+        for l in nm
+            .loads
+            .iter()
+            .filter(|l| l.at != first && l.levels.is_some())
+        {
+            d = d.also(cx.pin_span(l.at), "input");
+        }
+        if let Some(&j) = nm.connectors.first() {
+            d = d.also(cx.pin_span(j), "leaves the board");
+        }
+        out.push(d.with_help(help));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn series_values_round_to_the_neighbours() {
+        assert_eq!(series_at_most(1000.0, &E12), Some(1000.0));
+        assert_eq!(series_at_most(999.0, &E12), Some(820.0));
+        assert_eq!(series_at_most(4700.0, &E12), Some(4700.0));
+        assert_eq!(series_at_least(437.5, &E12), Some(470.0));
+        assert_eq!(series_at_least(821.0, &E12), Some(1000.0));
+        assert_eq!(series_at_most(125e3, &E3), Some(100e3));
+        assert_eq!(series_at_most(0.0, &E12), None);
+        assert_eq!(series_at_most(f64::INFINITY, &E12), None);
+    }
+
+    #[test]
+    fn one_ls_input_on_ten_kohm_reads_high() {
+        // TI SDLS025B SN74LS00: IIL -0.4 mA at 0.4 V, VIL 0.8 V
+        let pd = PullDown {
+            ohms: 10e3,
+            iil: 0.4e-3,
+            vil: 0.8,
+        };
+        assert!((pd.level() - 4.0).abs() < 1e-9);
+        assert!(pd.too_large());
+        assert!((pd.r_max() - 2000.0).abs() < 1e-6);
+    }
+
+    #[test]
+    fn the_bound_itself_holds() {
+        // 0.4 mA x 2.0 kOhm = 0.80 V: at VIL, not above it
+        let pd = PullDown {
+            ohms: 2000.0,
+            iil: 0.4e-3,
+            vil: 0.8,
+        };
+        assert!(!pd.too_large());
+        let pd = PullDown {
+            ohms: 2200.0,
+            iil: 0.4e-3,
+            vil: 0.8,
+        };
+        assert!(pd.too_large());
+    }
+}
