@@ -52,6 +52,7 @@ registry! {
     "package-mismatch", Warning, "the footprint's pin count disagrees with the classified function's package";
     "pin-role-mismatch", Warning, "the netlist's pin types disagree with the function table for the part (wrong symbol)";
     "unclassified-part", Info, "an IC-like part whose value no mapping matched; near misses suggested";
+    "unreadable-value", Warning, "a resistor whose value cannot be read, so its pull current is unknown";
 }
 
 /// Looks a check up by id.
@@ -81,8 +82,14 @@ mod floating_cmos_input;
 mod floating_ttl_input;
 mod level_mismatch;
 mod missing_pull_up;
+mod package_mismatch;
+mod pin_role_mismatch;
+mod power_pin_miswired;
 mod pull_up_out_of_range;
 mod ttl_high_into_cmos;
+mod unclassified_part;
+mod unpowered_part;
+mod unreadable_value;
 
 use crate::circuit::budget::{net_budget, NetBudget};
 use crate::circuit::Circuit;
@@ -126,6 +133,12 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
         ("level-mismatch", level_mismatch::run),
         ("missing-pull-up", missing_pull_up::run),
         ("pull-up-out-of-range", pull_up_out_of_range::run),
+        ("power-pin-miswired", power_pin_miswired::run),
+        ("unpowered-part", unpowered_part::run),
+        ("package-mismatch", package_mismatch::run),
+        ("pin-role-mismatch", pin_role_mismatch::run),
+        ("unclassified-part", unclassified_part::run),
+        ("unreadable-value", unreadable_value::run),
     ]
 }
 
