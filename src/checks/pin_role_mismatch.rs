@@ -122,12 +122,12 @@ pub fn likely_cause(pairs: &[(PinType, PinRole)]) -> &'static str {
     let untyped = pairs
         .iter()
         .all(|(t, _)| matches!(t, PinType::Passive | PinType::Unspecified | PinType::Free));
-    if typed_in_drives && typed_out_reads {
-        "the inputs and outputs are swapped: a symbol drawn for another part, or from another part's template"
+    if untyped {
+        "a generic symbol whose pins carry no types"
     } else if power {
         "the power pins are not where this part has them: a symbol for another pinout"
-    } else if untyped {
-        "a generic symbol whose pins carry no types"
+    } else if typed_in_drives && typed_out_reads {
+        "the inputs and outputs are swapped: a symbol drawn for another part, or from another part's template"
     } else {
         "a symbol for another part"
     }
@@ -311,5 +311,17 @@ mod tests {
         ])
         .contains("generic"));
         assert!(likely_cause(&[(PinType::Output, PinRole::OpenCollector)]).contains("another part"));
+        // a power disagreement outweighs swapped signal pins; untyped pins outweigh both
+        assert!(likely_cause(&[
+            (PinType::Input, PinRole::PushPull),
+            (PinType::Output, PinRole::Input),
+            (PinType::PowerIn, PinRole::Input)
+        ])
+        .contains("power pins"));
+        assert!(likely_cause(&[
+            (PinType::Passive, PinRole::Input),
+            (PinType::Passive, PinRole::Supply)
+        ])
+        .contains("generic"));
     }
 }

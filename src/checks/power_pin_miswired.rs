@@ -169,19 +169,26 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     wrong = true;
                     let (what, fix) = match kind {
                         NetKind::Signal => {
-                            let others: Vec<String> = nm
-                                .drivers
-                                .iter()
-                                .map(|d| d.at)
-                                .chain(nm.loads.iter().map(|l| l.at))
-                                .filter(|q| q.comp != ci)
-                                .take(3)
-                                .map(|q| cx.pin_name(q))
-                                .collect();
-                            let with = if others.is_empty() {
+                            let pins_of = |v: Vec<PinRef>| -> Vec<String> {
+                                v.into_iter()
+                                    .filter(|q| q.comp != ci)
+                                    .take(3)
+                                    .map(|q| cx.pin_name(q))
+                                    .collect()
+                            };
+                            let drivers = pins_of(nm.drivers.iter().map(|d| d.at).collect());
+                            let loads = pins_of(nm.loads.iter().map(|l| l.at).collect());
+                            let mut parts = Vec::new();
+                            if !drivers.is_empty() {
+                                parts.push(format!("driven by {}", drivers.join(", ")));
+                            }
+                            if !loads.is_empty() {
+                                parts.push(format!("read by {}", loads.join(", ")));
+                            }
+                            let with = if parts.is_empty() {
                                 String::new()
                             } else {
-                                format!(", with logic pins {}", others.join(", "))
+                                format!(" ({})", parts.join("; "))
                             };
                             (
                                 format!("the {fault} {name}{with}"),
@@ -242,7 +249,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                                 cx.describe(at)
                             ),
                         )
-                        .at(cx.pin_span(at), format!("{side_word} pin on no net"))
+                        .at(
+                            cx.pin_span(at),
+                            if matches!(p.connection, Connection::Absent) {
+                                format!("{side_word} pin on no net")
+                            } else {
+                                format!("{side_word} pin wired to nothing")
+                            },
+                        )
                         .with_pins([cx.pin_name(at)])
                         .with_help(format!("wire it to {}", suggest_rail(ctx, ci, side))),
                     );
@@ -332,10 +346,12 @@ fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut Vec<Diag>) {
         Diag::error(
             "power-pin-miswired",
             format!(
-                "{} (a {} part) is supplied from {} at {level}{across}, outside the family's supply range {} to {}",
+                "{} ({}, a {} part) is supplied from {} at {level}{across}, outside the {} supply range {} to {}",
                 c.reference.as_str(),
+                c.value_str(),
                 fam.id,
                 cx.net_name(snet),
+                fam.id,
                 format_volts(fam.supply_min),
                 format_volts(fam.supply_max)
             ),

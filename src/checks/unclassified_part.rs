@@ -16,6 +16,7 @@
 
 use super::Context;
 use crate::classify::classifier::{Method, PartClass, PartKind};
+use crate::classify::pattern::match_value;
 use crate::diag::Diag;
 
 /// Why a part is reported.
@@ -75,8 +76,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     "its pins are not judged at all: the symbol gives them no usable types"
                 };
+                let symbol = c
+                    .libsource
+                    .as_ref()
+                    .and_then(|l| l.part.as_ref())
+                    .map(|p| p.as_str())
+                    .filter(|p| *p != value && match_value(p).is_some())
+                    .map_or(String::new(), |p| format!("; its symbol is `{p}`"));
                 let first = part.suggestions.first().map_or(String::new(), |s| format!(" (to `{}` if that is the part)", s.value));
-                Diag::info("unclassified-part", format!("{reference} value `{value}` matches no part mapping ({near}); {pins}"))
+                Diag::info("unclassified-part", format!("{reference} value `{value}` matches no part mapping ({near}{symbol}); {pins}"))
                     .at(span, "no mapping matched")
                     .with_help(format!(
                         "correct the value{first}, or add a `Logic family` field to {reference}, or an entry for `{value}` in a project parts file (`kind = \"not-logic\"` if it is not a logic part)"

@@ -87,13 +87,18 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .collect();
         let list = join_and(&names);
         let plural = found.len() > 1;
-        let what = if unplaced {
+        let (pin_word, verb) = if plural {
+            ("pins", "are")
+        } else {
+            ("pin", "is")
+        };
+        let what = if unplaced && kinds.iter().all(|m| *m == Missing::NoSuchPin) {
             format!(
-                "{} ({value}) has no power: {} {list} {} on no net; the symbol's power unit seems never placed",
-                c.reference.as_str(),
-                if plural { "pins" } else { "pin" },
-                if plural { "are" } else { "is" }
+                "{} ({value}) has no power: its symbol has no {pin_word} {list}",
+                c.reference.as_str()
             )
+        } else if unplaced {
+            format!("{} ({value}) has no power: {pin_word} {list} {verb} on no net; the symbol's power unit seems never placed", c.reference.as_str())
         } else {
             let parts: Vec<String> = found
                 .iter()
@@ -147,7 +152,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 }
             })
             .collect();
-        let help = if unplaced {
+        let help = if unplaced && kinds.iter().all(|m| *m == Missing::NoSuchPin) {
+            format!(
+                "use a symbol with the {value}'s power pins (or add them to this one) and wire {}",
+                join_and(&wires)
+            )
+        } else if unplaced {
             format!(
                 "place the power unit of {} and wire {}",
                 c.reference.as_str(),
@@ -161,7 +171,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             None => c.reference.span,
         };
         let label = |m: Missing| match m {
-            Missing::NoSuchPin => "the symbol has no such pin",
+            Missing::NoSuchPin => "the symbol has no power pins",
             Missing::Absent => "power pin on no net",
             Missing::Unwired => "power pin wired to nothing",
         };
@@ -175,7 +185,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             )
             .with_help(help);
         for (_, m, i) in found.iter().skip(1) {
-            diag = diag.also(span_of(*i), label(*m));
+            if i.is_some() {
+                diag = diag.also(span_of(*i), label(*m));
+            }
         }
         out.push(diag);
     }

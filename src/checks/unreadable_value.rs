@@ -72,7 +72,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 })
                 .collect();
             format!(
-                "{} is left out of the budget, so its pull current is unknown",
+                "{} is left out of that net's budget, so its pull current is unknown",
                 each.join(", ")
             )
         };
