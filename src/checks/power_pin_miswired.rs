@@ -93,7 +93,7 @@ pub fn net_kind(nm: &NetModel, name: &str) -> NetKind {
         Some(r) if r.ground => NetKind::Ground,
         Some(r) => match r.volts {
             Some(v) if v < 0.0 => NetKind::Negative(Some(v)),
-            Some(v) if v == 0.0 => NetKind::Ground,
+            Some(0.0) => NetKind::Ground,
             Some(v) => NetKind::Positive(Some(v)),
             None if is_ground_name(name) => NetKind::Negative(None),
             None => NetKind::Positive(None),

@@ -23,11 +23,11 @@ use crate::diag::Diag;
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub enum Gap {
     /// IC-like, no mapping matched; `judged` when the symbol's pin types were used.
-    NoMapping { judged: bool },
+    Unmatched { judged: bool },
     /// A logic part whose function (named by the value or a field) is not in the table.
-    NoFunction(String),
+    FunctionMissing(String),
     /// A logic part whose family is not in the family table.
-    NoFamily(String),
+    FamilyUnknown(String),
 }
 
 /// What is missing for a part, if anything. `family_known` says whether the part's family
@@ -35,7 +35,7 @@ pub enum Gap {
 pub fn gap(part: &PartClass, family_known: bool) -> Option<Gap> {
     match part.method {
         Method::NetlistOnly | Method::NotClassified if part.ic_like => {
-            return Some(Gap::NoMapping {
+            return Some(Gap::Unmatched {
                 judged: part.method == Method::NetlistOnly,
             });
         }
@@ -45,10 +45,10 @@ pub fn gap(part: &PartClass, family_known: bool) -> Option<Gap> {
         return None;
     }
     if let Some(f) = part.family.as_ref().filter(|_| !family_known) {
-        return Some(Gap::NoFamily(f.clone()));
+        return Some(Gap::FamilyUnknown(f.clone()));
     }
     match (&part.named_function, &part.function) {
-        (Some(n), None) if !n.is_empty() => Some(Gap::NoFunction(n.clone())),
+        (Some(n), None) if !n.is_empty() => Some(Gap::FunctionMissing(n.clone())),
         _ => None,
     }
 }
@@ -64,7 +64,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let value = c.value_str();
         let span = c.value.as_ref().map_or(c.reference.span, |v| v.span);
         let diag = match g {
-            Gap::NoMapping { judged } => {
+            Gap::Unmatched { judged } => {
                 let near = if part.suggestions.is_empty() {
                     "no known part is one slip away".to_string()
                 } else {
@@ -90,7 +90,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         "correct the value{first}, or add a `Logic family` field to {reference}, or an entry for `{value}` in a project parts file (`kind = \"not-logic\"` if it is not a logic part)"
                     ))
             }
-            Gap::NoFunction(f) => {
+            Gap::FunctionMissing(f) => {
                 let fam = part.family.as_deref().unwrap_or("its family");
                 let listed = cx.rules.functions.iter().any(|x| x.id == f);
                 let why = if listed {
@@ -102,7 +102,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     .at(span, "function not in the table")
                     .with_help(format!("check the value; or add function {f} to a project function table, or give {reference} a `Logic function` field naming a function the table has"))
             }
-            Gap::NoFamily(f) => Diag::info("unclassified-part", format!("{reference} ({value}) names the logic family `{f}`, which the family table does not have: none of its pins are checked against family data"))
+            Gap::FamilyUnknown(f) => Diag::info("unclassified-part", format!("{reference} ({value}) names the logic family `{f}`, which the family table does not have: none of its pins are checked against family data"))
                 .at(c.field("Logic family").and_then(|x| x.value.as_ref()).map_or(span, |v| v.span), "unknown family")
                 .with_help(format!("spell the family as the family table does (`netmargin families` lists them), or add `{f}` to a project family table")),
         };
@@ -138,17 +138,17 @@ mod tests {
     fn what_is_reported() {
         assert_eq!(
             gap(&part(PartKind::UnknownIc, Method::NetlistOnly), false),
-            Some(Gap::NoMapping { judged: true })
+            Some(Gap::Unmatched { judged: true })
         );
         assert_eq!(
             gap(&part(PartKind::UnknownIc, Method::NotClassified), false),
-            Some(Gap::NoMapping { judged: false })
+            Some(Gap::Unmatched { judged: false })
         );
         let mut p = part(PartKind::Logic, Method::Pattern);
         p.family = Some("74LS".into());
         p.named_function = Some("670".into());
-        assert_eq!(gap(&p, true), Some(Gap::NoFunction("670".into())));
-        assert_eq!(gap(&p, false), Some(Gap::NoFamily("74LS".into())));
+        assert_eq!(gap(&p, true), Some(Gap::FunctionMissing("670".into())));
+        assert_eq!(gap(&p, false), Some(Gap::FamilyUnknown("74LS".into())));
     }
 
     #[test]

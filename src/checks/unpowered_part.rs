@@ -92,7 +92,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         } else {
             ("pin", "is")
         };
-        let what = if unplaced && kinds.iter().all(|m| *m == Missing::NoSuchPin) {
+        let no_symbol = c.libpart.is_none();
+        let all_missing = kinds.iter().all(|m| *m == Missing::NoSuchPin);
+        let what = if unplaced && all_missing && no_symbol {
+            format!(
+                "{} ({value}) has no power in the netlist: {pin_word} {list} {verb} in no net, and the netlist has no library part for it",
+                c.reference.as_str()
+            )
+        } else if unplaced && all_missing {
             format!(
                 "{} ({value}) has no power: its symbol has no {pin_word} {list}",
                 c.reference.as_str()
@@ -152,7 +159,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 }
             })
             .collect();
-        let help = if unplaced && kinds.iter().all(|m| *m == Missing::NoSuchPin) {
+        let help = if unplaced && all_missing && no_symbol {
+            format!(
+                "give {} its library part, then wire {}",
+                c.reference.as_str(),
+                join_and(&wires)
+            )
+        } else if unplaced && all_missing {
             format!(
                 "use a symbol with the {value}'s power pins (or add them to this one) and wire {}",
                 join_and(&wires)
@@ -171,6 +184,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             None => c.reference.span,
         };
         let label = |m: Missing| match m {
+            Missing::NoSuchPin if no_symbol => "no library part; power pins in no net",
             Missing::NoSuchPin => "the symbol has no power pins",
             Missing::Absent => "power pin on no net",
             Missing::Unwired => "power pin wired to nothing",

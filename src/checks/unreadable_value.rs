@@ -63,7 +63,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     Some(r) => {
                         let dir = match cx.nets[*r].rail.and_then(|x| x.v()) {
                             Some(v) if v > 0.0 => "pull-up",
-                            Some(v) if v == 0.0 => "pull-down",
+                            Some(0.0) => "pull-down",
                             _ => "pull",
                         };
                         format!("the {dir} on {} to {}", cx.net_name(*net), cx.net_name(*r))
