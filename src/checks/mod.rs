@@ -52,6 +52,7 @@ registry! {
     "package-mismatch", Warning, "the footprint's pin count disagrees with the classified function's package";
     "pin-role-mismatch", Warning, "the netlist's pin types disagree with the function table for the part (wrong symbol)";
     "unclassified-part", Info, "an IC-like part whose value no mapping matched; near misses suggested";
+    "unreadable-value", Warning, "a resistor whose value cannot be read, so its pull current is unknown";
 }
 
 /// Looks a check up by id.
@@ -84,9 +85,15 @@ mod input_overvoltage;
 mod level_mismatch;
 mod missing_pull_up;
 mod output_contention;
+mod package_mismatch;
+mod pin_role_mismatch;
+mod power_pin_miswired;
 mod pull_up_out_of_range;
 mod ttl_high_into_cmos;
 mod ttl_pull_down_too_large;
+mod unclassified_part;
+mod unpowered_part;
+mod unreadable_value;
 mod weak_high_drive;
 
 use crate::circuit::budget::{net_budget, NetBudget};
@@ -136,6 +143,12 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
         ("ttl-pull-down-too-large", ttl_pull_down_too_large::run),
         ("input-overvoltage", input_overvoltage::run),
         ("weak-high-drive", weak_high_drive::run),
+        ("power-pin-miswired", power_pin_miswired::run),
+        ("unpowered-part", unpowered_part::run),
+        ("package-mismatch", package_mismatch::run),
+        ("pin-role-mismatch", pin_role_mismatch::run),
+        ("unclassified-part", unclassified_part::run),
+        ("unreadable-value", unreadable_value::run),
     ]
 }
 

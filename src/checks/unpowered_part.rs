@@ -1,0 +1,251 @@
+//! Finds classified logic parts whose supply or ground pin (by the function table's pinout)
+//! is on no net: absent from the netlist, or placed but wired to nothing. When every power
+//! pin is absent, the symbol's power unit was most likely never placed: with KiCad 5
+//! libraries the power pins of a multi-unit symbol can sit in a unit of their own, and a
+//! chip whose power unit is left off the sheet has no VCC or GND at all in the netlist.
+//!
+//! Why it matters: an unpowered chip does nothing, or is powered backwards through its
+//! input clamp diodes from whatever drives it, at levels nobody designed for.
+//!
+//! Example: a 74LS00 with its four gates placed and wired to the edge connector, but no
+//! power unit: pins 7 (GND) and 14 (VCC) are in no net.
+//!
+//! Fix: place the power unit (or draw the power pins) and wire the supply pin to the
+//! family's rail and the ground pin to ground.
+
+use super::Context;
+use crate::circuit::PinRef;
+use crate::classify::function::PinDef;
+use crate::classify::PinRole;
+use crate::diag::Diag;
+use crate::netlist::Connection;
+use crate::values::format_volts;
+
+/// How one power pin is missing.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Missing {
+    /// The symbol has no pin of that number at all.
+    NoSuchPin,
+    /// The pin is in the symbol but on no net (its unit was never placed).
+    Absent,
+    /// Placed, but alone on its net.
+    Unwired,
+}
+
+/// How a pin of the component is missing, if it is (`None`: the symbol has no such pin).
+pub fn missing(pin: Option<Connection>) -> Option<Missing> {
+    match pin {
+        None => Some(Missing::NoSuchPin),
+        Some(Connection::Absent) => Some(Missing::Absent),
+        Some(Connection::Alone { .. }) => Some(Missing::Unwired),
+        Some(Connection::Net { .. }) => None,
+    }
+}
+
+/// True when every power pin is absent or not in the symbol: the power unit seems never
+/// placed.
+pub fn power_unit_unplaced(found: &[Missing], power_pins: usize) -> bool {
+    found.len() == power_pins
+        && power_pins > 0
+        && found
+            .iter()
+            .all(|m| matches!(m, Missing::Absent | Missing::NoSuchPin))
+}
+
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+    let cx = ctx.cx;
+    for (ci, c) in cx.nl.components.iter().enumerate() {
+        let part = &cx.cl.parts[ci];
+        if !part.is_logic() {
+            continue;
+        }
+        let Some(func) = part
+            .function
+            .as_ref()
+            .and_then(|(s, id)| cx.rules.functions.get(*s, id))
+        else {
+            continue;
+        };
+        let mut power: Vec<&PinDef> = func.supply_pins().chain(func.ground_pins()).collect();
+        power.sort_by_key(|d| d.pin.parse::<u32>().unwrap_or(u32::MAX));
+        let mut found: Vec<(&PinDef, Missing, Option<usize>)> = Vec::new();
+        for d in &power {
+            let idx = c.pins.iter().position(|p| p.num == d.pin);
+            if let Some(m) = missing(idx.map(|i| c.pins[i].connection)) {
+                found.push((d, m, idx));
+            }
+        }
+        if found.is_empty() {
+            continue;
+        }
+        let kinds: Vec<Missing> = found.iter().map(|f| f.1).collect();
+        let unplaced = power_unit_unplaced(&kinds, power.len());
+        let value = c.value_str();
+        let names: Vec<String> = found
+            .iter()
+            .map(|(d, _, _)| format!("{} ({})", d.pin, d.name))
+            .collect();
+        let list = join_and(&names);
+        let plural = found.len() > 1;
+        let (pin_word, verb) = if plural {
+            ("pins", "are")
+        } else {
+            ("pin", "is")
+        };
+        let no_symbol = c.libpart.is_none();
+        let all_missing = kinds.iter().all(|m| *m == Missing::NoSuchPin);
+        let what = if unplaced && all_missing && no_symbol {
+            format!(
+                "{} ({value}) has no power in the netlist: {pin_word} {list} {verb} in no net, and the netlist has no library part for it",
+                c.reference.as_str()
+            )
+        } else if unplaced && all_missing {
+            format!(
+                "{} ({value}) has no power: its symbol has no {pin_word} {list}",
+                c.reference.as_str()
+            )
+        } else if unplaced {
+            format!("{} ({value}) has no power: {pin_word} {list} {verb} on no net; the symbol's power unit seems never placed", c.reference.as_str())
+        } else {
+            let parts: Vec<String> = found
+                .iter()
+                .map(|(d, m, _)| {
+                    let how = match m {
+                        Missing::NoSuchPin => "is not in the symbol",
+                        Missing::Absent => "is on no net",
+                        Missing::Unwired => "is placed but wired to nothing",
+                    };
+                    format!("pin {} ({}) {how}", d.pin, d.name)
+                })
+                .collect();
+            format!(
+                "{} ({value}) is not fully powered: {}",
+                c.reference.as_str(),
+                parts.join(", ")
+            )
+        };
+        let supply_rail = cx.family(ci).and_then(|fam| {
+            cx.nets
+                .iter()
+                .enumerate()
+                .find(|(_, nm)| {
+                    nm.rail.is_some_and(|r| {
+                        !r.ground
+                            && r.volts
+                                .is_some_and(|v| (v - fam.supply_nominal).abs() < 1e-9)
+                    })
+                })
+                .map(|(n, _)| (cx.net_name(n), fam.supply_nominal))
+        });
+        let ground_rail = cx
+            .nets
+            .iter()
+            .enumerate()
+            .find(|(_, nm)| nm.rail.is_some_and(|r| r.ground))
+            .map(|(n, _)| cx.net_name(n))
+            .unwrap_or_else(|| "GND".into());
+        let wires: Vec<String> = found
+            .iter()
+            .map(|(d, _, _)| {
+                if d.role == PinRole::Ground {
+                    format!("pin {} ({}) to {ground_rail}", d.pin, d.name)
+                } else {
+                    match &supply_rail {
+                        Some((n, v)) => {
+                            format!("pin {} ({}) to {n} ({})", d.pin, d.name, format_volts(*v))
+                        }
+                        None => format!("pin {} ({}) to the family's supply", d.pin, d.name),
+                    }
+                }
+            })
+            .collect();
+        let help = if unplaced && all_missing && no_symbol {
+            format!(
+                "give {} its library part, then wire {}",
+                c.reference.as_str(),
+                join_and(&wires)
+            )
+        } else if unplaced && all_missing {
+            format!(
+                "use a symbol with the {value}'s power pins (or add them to this one) and wire {}",
+                join_and(&wires)
+            )
+        } else if unplaced {
+            format!(
+                "place the power unit of {} and wire {}",
+                c.reference.as_str(),
+                join_and(&wires)
+            )
+        } else {
+            format!("wire {}", join_and(&wires))
+        };
+        let span_of = |idx: Option<usize>| match idx {
+            Some(i) => cx.pin_span(PinRef { comp: ci, pin: i }),
+            None => c.reference.span,
+        };
+        let label = |m: Missing| match m {
+            Missing::NoSuchPin if no_symbol => "no library part; power pins in no net",
+            Missing::NoSuchPin => "the symbol has no power pins",
+            Missing::Absent => "power pin on no net",
+            Missing::Unwired => "power pin wired to nothing",
+        };
+        let (_, m0, i0) = found[0];
+        let mut diag = Diag::error("unpowered-part", what)
+            .at(span_of(i0), label(m0))
+            .with_pins(
+                found
+                    .iter()
+                    .map(|(d, _, _)| format!("{}.{}", c.reference.as_str(), d.pin)),
+            )
+            .with_help(help);
+        for (_, m, i) in found.iter().skip(1) {
+            if i.is_some() {
+                diag = diag.also(span_of(*i), label(*m));
+            }
+        }
+        out.push(diag);
+    }
+}
+
+fn join_and(items: &[String]) -> String {
+    match items.len() {
+        0 => String::new(),
+        1 => items[0].clone(),
+        _ => format!(
+            "{} and {}",
+            items[..items.len() - 1].join(", "),
+            items[items.len() - 1]
+        ),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn how_a_pin_is_missing() {
+        assert_eq!(missing(None), Some(Missing::NoSuchPin));
+        assert_eq!(missing(Some(Connection::Absent)), Some(Missing::Absent));
+        assert_eq!(
+            missing(Some(Connection::Alone { net: 0, node: 0 })),
+            Some(Missing::Unwired)
+        );
+        assert_eq!(missing(Some(Connection::Net { net: 0, node: 0 })), None);
+    }
+
+    #[test]
+    fn unplaced_power_unit_needs_every_power_pin_absent() {
+        assert!(power_unit_unplaced(&[Missing::Absent, Missing::Absent], 2));
+        assert!(power_unit_unplaced(
+            &[Missing::NoSuchPin, Missing::Absent],
+            2
+        ));
+        assert!(!power_unit_unplaced(&[Missing::Absent], 2));
+        assert!(!power_unit_unplaced(
+            &[Missing::Absent, Missing::Unwired],
+            2
+        ));
+        assert!(!power_unit_unplaced(&[], 0));
+    }
+}

@@ -1,0 +1,116 @@
+//! Finds resistors whose value cannot be read as a resistance (`4K7K`, `10kk`, `1.2.3k`,
+//! `1,000`, an empty value), with the reader's reason. The value is never guessed: a pull
+//! resistor that cannot be read is left out of its net's budget, so its pull current is
+//! unknown, and the message names the nets it would pull. A value that marks the part as
+//! not fitted (`DNP`, `NF`) is not reported: the part is treated as absent.
+//!
+//! Why it matters: every pull-up window, fan-out budget and LED current that runs through
+//! the resistor is computed without it, so a check that passes may pass for the wrong
+//! reason.
+//!
+//! Example: a resistor valued `4K7K` (two multiplier letters) tying four 74LS00 inputs to
+//! +5V.
+//!
+//! Fix: write the value in one form: the IEC 60062 code (`4K7`, `R47`, `1M0`) or a number
+//! with an SI prefix (`4.7k`, `10 kOhm`).
+
+use super::Context;
+use crate::circuit::PinRef;
+use crate::classify::classifier::PartKind;
+use crate::diag::Diag;
+use crate::values::{self, ValueError};
+
+/// Why a resistor's value cannot be read: `None` when it reads, or marks a part not fitted.
+pub fn unreadable(kind: PartKind, value: &str) -> Option<ValueError> {
+    let err = match kind {
+        PartKind::Resistor => values::parse_resistance(value).err(),
+        PartKind::ResistorNetwork => values::parse_network(value).err(),
+        _ => None,
+    }?;
+    (!matches!(err, ValueError::NotFitted(_))).then_some(err)
+}
+
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+    let cx = ctx.cx;
+    for (ci, c) in cx.nl.components.iter().enumerate() {
+        let kind = cx.cl.parts[ci].kind;
+        let Some(err) = unreadable(kind, c.value_str()) else {
+            continue;
+        };
+        let reference = c.reference.as_str();
+        // the nets it would pull, each with the resistor's pin there and the rail
+        let mut pulled: Vec<(usize, PinRef, Option<usize>)> = Vec::new();
+        for (net, nm) in cx.nets.iter().enumerate() {
+            if !nm.unreadable.iter().any(|(r, _)| *r == ci) {
+                continue;
+            }
+            let Some(pi) = c.pins.iter().position(|p| p.connection.net() == Some(net)) else {
+                continue;
+            };
+            let rail = c
+                .pins
+                .iter()
+                .filter_map(|p| p.connection.net())
+                .find(|&n| n != net && cx.nets[n].rail.is_some());
+            pulled.push((net, PinRef { comp: ci, pin: pi }, rail));
+        }
+        let effect = if pulled.is_empty() {
+            "it is left out of every budget".to_string()
+        } else {
+            let each: Vec<String> = pulled
+                .iter()
+                .map(|(net, _, rail)| match rail {
+                    Some(r) => {
+                        let dir = match cx.nets[*r].rail.and_then(|x| x.v()) {
+                            Some(v) if v > 0.0 => "pull-up",
+                            Some(0.0) => "pull-down",
+                            _ => "pull",
+                        };
+                        format!("the {dir} on {} to {}", cx.net_name(*net), cx.net_name(*r))
+                    }
+                    None => format!("the pull on {}", cx.net_name(*net)),
+                })
+                .collect();
+            format!(
+                "{} is left out of that net's budget, so its pull current is unknown",
+                each.join(", ")
+            )
+        };
+        let span = c.value.as_ref().map_or(c.reference.span, |v| v.span);
+        let mut diag = Diag::warning("unreadable-value", format!("{reference}: {err}; {effect}"))
+            .at(span, "unreadable value")
+            .with_pins(pulled.iter().map(|(_, p, _)| cx.pin_name(*p)))
+            .with_help("write the value in one form: the IEC 60062 code (`4K7`, `R47`, `1M0`) or a number with an SI prefix (`4.7k`, `10 kOhm`); netmargin does not guess which was meant");
+        if let Some((net, _, _)) = pulled.first() {
+            diag = diag.on_net(cx.net_name(*net));
+        }
+        for (_, p, _) in pulled.iter().take(3) {
+            diag = diag.also(cx.pin_span(*p), "pulls this net");
+        }
+        out.push(diag);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn reasons_and_near_misses() {
+        // IEC 60062 letter code: one multiplier letter in place of the decimal point
+        assert_eq!(
+            unreadable(PartKind::Resistor, "4K7K"),
+            Some(ValueError::TwoMultipliers("4K7K".into()))
+        );
+        assert!(unreadable(PartKind::Resistor, "").is_some());
+        assert!(unreadable(PartKind::Resistor, "1,000").is_some());
+        for ok in ["4K7", "4.7k", "R47", "1M0", "10 kΩ", "470R"] {
+            assert_eq!(unreadable(PartKind::Resistor, ok), None, "{ok}");
+        }
+        // not fitted: absent, not unreadable
+        assert_eq!(unreadable(PartKind::Resistor, "DNP"), None);
+        // only resistors are read
+        assert_eq!(unreadable(PartKind::Capacitor, "4K7K"), None);
+        assert_eq!(unreadable(PartKind::Logic, "74LSOO"), None);
+    }
+}
