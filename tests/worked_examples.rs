@@ -60,8 +60,12 @@ fn findings(b: &Board, id: &str, model: ModelOptions) -> Vec<(Severity, String)>
 fn oc_board(pull_ups: &[&str]) -> Board {
     let mut b = Board::default();
     b.logic14("U1", "7403", "+5V").net("+5V", &["U1.1", "U1.2"]);
-    b.logic14("U2", "74LS00", "+5V").logic14("U3", "74LS00", "+5V");
-    b.net("/WIRED_N", &["U1.3", "U2.1", "U2.2", "U2.4", "U2.5", "U3.1"]);
+    b.logic14("U2", "74LS00", "+5V")
+        .logic14("U3", "74LS00", "+5V");
+    b.net(
+        "/WIRED_N",
+        &["U1.3", "U2.1", "U2.2", "U2.4", "U2.5", "U3.1"],
+    );
     for (i, r) in pull_ups.iter().enumerate() {
         b.resistor(&format!("R{}", i + 1), r, "+5V", "/WIRED_N");
     }
@@ -79,10 +83,25 @@ fn open_collector_pull_up_window_for_a_7403_with_five_74ls_loads() {
         close(w.iol, 16e-3, 1e-12, "IOL, DM7403");
         close(w.vol, 0.4, 1e-12, "VOL, DM7403");
         close(w.sum_iil, 5.0 * 0.4e-3, 1e-12, "N3 x IIL, SN74LS00");
-        close(w.sum_high, 250e-6 + 5.0 * 20e-6, 1e-12, "N1 x IOH + N2 x IIH");
+        close(
+            w.sum_high,
+            250e-6 + 5.0 * 20e-6,
+            1e-12,
+            "N1 x IOH + N2 x IIH",
+        );
         close(w.r_min, 4.6 / 14e-3, 1e-6, "R_min");
-        close(w.r_max.expect("loads set R_max"), 3.0 / 350e-6, 1e-6, "R_max");
-        close(w.fitted.expect("R1 is fitted"), 4700.0, 1e-9, "fitted pull-up");
+        close(
+            w.r_max.expect("loads set R_max"),
+            3.0 / 350e-6,
+            1e-6,
+            "R_max",
+        );
+        close(
+            w.fitted.expect("R1 is fitted"),
+            4700.0,
+            1e-9,
+            "fitted pull-up",
+        );
     });
 }
 
@@ -98,7 +117,12 @@ fn open_collector_window_takes_each_end_at_its_worst_supply() {
     with_circuit(&oc_board(&["4K7"]).text(), opts, |cx| {
         let w = budget(cx, "/WIRED_N").window.expect("window");
         close(w.r_min, 4.85 / 14e-3, 1e-6, "R_min at VCC max");
-        close(w.r_max.expect("R_max"), 2.75 / 350e-6, 1e-6, "R_max at VCC min");
+        close(
+            w.r_max.expect("R_max"),
+            2.75 / 350e-6,
+            1e-6,
+            "R_max at VCC min",
+        );
     });
 }
 
@@ -128,7 +152,11 @@ fn open_collector_high_level_counts_its_own_leakage() {
 #[test]
 fn pull_ups_on_either_side_of_the_window() {
     // 220 Ohm < R_min 328.6 Ohm: error; 10 kOhm > R_max 8.57 kOhm: warning; 4K7 and 330 Ohm inside
-    let f = findings(&oc_board(&["220"]), "pull-up-out-of-range", ModelOptions::default());
+    let f = findings(
+        &oc_board(&["220"]),
+        "pull-up-out-of-range",
+        ModelOptions::default(),
+    );
     assert_eq!(f.len(), 1, "{f:?}");
     assert_eq!(f[0].0, Severity::Error);
     assert!(
@@ -137,12 +165,20 @@ fn pull_ups_on_either_side_of_the_window() {
         "{}",
         f[0].1
     );
-    let f = findings(&oc_board(&["10k"]), "pull-up-out-of-range", ModelOptions::default());
+    let f = findings(
+        &oc_board(&["10k"]),
+        "pull-up-out-of-range",
+        ModelOptions::default(),
+    );
     assert_eq!(f.len(), 1, "{f:?}");
     assert_eq!(f[0].0, Severity::Warning);
     assert!(f[0].1.contains("8.57 kOhm"), "{}", f[0].1);
     for inside in ["330", "4K7", "8K2"] {
-        let f = findings(&oc_board(&[inside]), "pull-up-out-of-range", ModelOptions::default());
+        let f = findings(
+            &oc_board(&[inside]),
+            "pull-up-out-of-range",
+            ModelOptions::default(),
+        );
         assert!(f.is_empty(), "{inside}: {f:?}");
     }
     // two 560 Ohm in parallel are 280 Ohm: below R_min
@@ -175,11 +211,24 @@ fn ls_high_into_hc_input_at_4v5_and_5v() {
             let b = budget(cx, "/CLK");
             close(b.drivers[0].high_level.expect("VOH"), 2.7, 1e-9, "74LS VOH");
             close(b.margins[0].vih, vih, 1e-9, "74HC VIH");
-            close(b.margins[0].high_margin.expect("margin"), -short, 1e-9, "high margin");
+            close(
+                b.margins[0].high_margin.expect("margin"),
+                -short,
+                1e-9,
+                "high margin",
+            );
         });
-        let f = findings(&ls_into_hc(rail), "ttl-high-into-cmos", ModelOptions::default());
+        let f = findings(
+            &ls_into_hc(rail),
+            "ttl-high-into-cmos",
+            ModelOptions::default(),
+        );
         assert_eq!(f.len(), 1, "{rail}: {f:?}");
-        assert!(f[0].1.contains(&format!("short by {short:.2} V")), "{}", f[0].1);
+        assert!(
+            f[0].1.contains(&format!("short by {short:.2} V")),
+            "{}",
+            f[0].1
+        );
     }
 }
 
@@ -209,14 +258,18 @@ fn fan_board(drv: &str, load: &str, n: usize) -> Board {
 fn fan_out(drv: &str, load: &str) -> (usize, &'static str) {
     let mut last = (0, "");
     for n in 1..=45 {
-        let (lo, hi) = with_circuit(&fan_board(drv, load, n).text(), ModelOptions::default(), |cx| {
-            let b = budget(cx, "/FAN");
-            let d = &b.drivers[0];
-            (
-                d.low.as_ref().expect("low").ratio(),
-                d.high.as_ref().expect("high").ratio(),
-            )
-        });
+        let (lo, hi) = with_circuit(
+            &fan_board(drv, load, n).text(),
+            ModelOptions::default(),
+            |cx| {
+                let b = budget(cx, "/FAN");
+                let d = &b.drivers[0];
+                (
+                    d.low.as_ref().expect("low").ratio(),
+                    d.high.as_ref().expect("high").ratio(),
+                )
+            },
+        );
         if lo > 1.0 + 1e-9 || hi > 1.0 + 1e-9 {
             return last;
         }
@@ -241,13 +294,25 @@ fn fan_out_by_unit_load_arithmetic() {
 #[test]
 fn fanout_check_at_the_limit_and_one_past_it() {
     // at exactly the rated fan-out a warning (above the 80 % derating), one more an error
-    for (drv, load, n) in [("7404", "7400", 10), ("74LS04", "74LS00", 20), ("74LS04", "7400", 5)] {
-        let at = findings(&fan_board(drv, load, n), "fanout-overrun", ModelOptions::default());
+    for (drv, load, n) in [
+        ("7404", "7400", 10),
+        ("74LS04", "74LS00", 20),
+        ("74LS04", "7400", 5),
+    ] {
+        let at = findings(
+            &fan_board(drv, load, n),
+            "fanout-overrun",
+            ModelOptions::default(),
+        );
         assert!(
             !at.is_empty() && at.iter().all(|(s, _)| *s == Severity::Warning),
             "{drv} x{n}: {at:?}"
         );
-        let past = findings(&fan_board(drv, load, n + 1), "fanout-overrun", ModelOptions::default());
+        let past = findings(
+            &fan_board(drv, load, n + 1),
+            "fanout-overrun",
+            ModelOptions::default(),
+        );
         assert!(
             past.iter().any(|(s, _)| *s == Severity::Error),
             "{drv} x{}: {past:?}",
@@ -267,5 +332,9 @@ fn fanout_check_at_the_limit_and_one_past_it() {
         ModelOptions::default(),
     );
     assert_eq!(f.len(), 2, "{f:?}");
-    assert!(f[0].1.contains("6.80 mA") && f[0].1.contains("85%"), "{}", f[0].1);
+    assert!(
+        f[0].1.contains("6.80 mA") && f[0].1.contains("85%"),
+        "{}",
+        f[0].1
+    );
 }

@@ -29,9 +29,10 @@ impl Board {
     pub fn net(&mut self, name: &str, nodes: &[&str]) -> &mut Self {
         match self.nets.iter_mut().find(|(n, _)| n == name) {
             Some((_, v)) => v.extend(nodes.iter().map(|s| s.to_string())),
-            None => self
-                .nets
-                .push((name.to_string(), nodes.iter().map(|s| s.to_string()).collect())),
+            None => self.nets.push((
+                name.to_string(),
+                nodes.iter().map(|s| s.to_string()).collect(),
+            )),
         }
         self
     }
@@ -78,7 +79,8 @@ impl Board {
 /// Builds the model of `text` with the shipped rules and calls `f` with it.
 pub fn with_circuit<R>(text: &str, opts: ModelOptions, f: impl FnOnce(&Circuit<'_, '_>) -> R) -> R {
     let src = SourceFile::new("bench.net", text.to_string());
-    let tree = sexpr::parse(src.text()).unwrap_or_else(|d| panic!("bench netlist does not parse: {d:?}\n{text}"));
+    let tree = sexpr::parse(src.text())
+        .unwrap_or_else(|d| panic!("bench netlist does not parse: {d:?}\n{text}"));
     let nl = netlist::build(&tree).unwrap_or_else(|d| panic!("bench netlist has no model: {d:?}"));
     let rules = Rules::builtin();
     let cl = classify(&nl, &rules);
