@@ -338,3 +338,27 @@ fn fanout_check_at_the_limit_and_one_past_it() {
         f[0].1
     );
 }
+
+#[test]
+fn weak_pull_up_on_an_open_collector_reported_with_its_level() {
+    // 74LS05 (off-state 0.1 mA, NTE74LS05) and one 74LS00 input (IIH 20 uA, VIH 2.0 V) on
+    // 33 kOhm: 5.0 - 33 kOhm x 120 uA = 1.04 V, short of 2.0 V by 0.96 V; on 22 kOhm 2.36 V
+    let board = |r: &str| {
+        let mut b = Board::default();
+        b.logic14("U1", "74LS05", "+5V")
+            .logic14("U2", "74LS00", "+5V");
+        b.net("/IRQ_N", &["U1.2", "U2.1"])
+            .resistor("R1", r, "+5V", "/IRQ_N");
+        b
+    };
+    let f = findings(&board("33k"), "level-mismatch", ModelOptions::default());
+    assert_eq!(f.len(), 1, "{f:?}");
+    assert!(
+        f[0].1
+            .contains("pulls the net up to 1.04 V: short by 0.96 V"),
+        "{}",
+        f[0].1
+    );
+    let f = findings(&board("22k"), "level-mismatch", ModelOptions::default());
+    assert!(f.is_empty(), "{f:?}");
+}
