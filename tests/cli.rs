@@ -53,7 +53,7 @@ fn each_check_on_its_fixture() {
         let check = id.split("--").next().unwrap().to_string();
         assert!(netmargin::checks::info(&check).is_some(), "{f}: no check `{check}`");
         let out = run(&["check", "--color", "never", "--fail-on", "info", "--only", &check, f]);
-        snapshot_in("../fixtures/checks", &id, &out);
+        snapshot_in("fixtures/checks", &id, &out);
     }
 }
 
