@@ -125,7 +125,28 @@ pub fn ground_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
     cx.supplies[comp].as_ref().and_then(|s| s.ground_net).filter(|&n| cx.nets[n].rail.is_some()).map(|n| cx.net_name(n)).unwrap_or_else(|| "GND".into())
 }
 
+/// `one` for a single item, `many` otherwise: `pin 13 is`, `pins 12 and 13 are`.
+pub fn agree(n: usize, one: &'static str, many: &'static str) -> &'static str {
+    if n == 1 {
+        one
+    } else {
+        many
+    }
+}
+
 /// Percentage with no decimals.
 pub fn pct(x: f64) -> String {
     format!("{:.0}%", x * 100.0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::agree;
+
+    #[test]
+    fn verbs_agree_with_the_number_of_pins() {
+        assert_eq!(agree(1, "is", "are"), "is");
+        assert_eq!(agree(2, "is", "are"), "are");
+        assert_eq!(agree(1, "floats", "float"), "floats");
+    }
 }

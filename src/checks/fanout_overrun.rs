@@ -19,6 +19,30 @@ use super::Context;
 use crate::diag::{Diag, Severity};
 use crate::values::format_amps;
 
+/// Relative slack for sums of published currents: in binary, 16 x 0.4 mA comes to a hair
+/// above 6.4 mA, and a load at exactly its rating (or the derating) is not above it.
+const SLACK: f64 = 1e-9;
+
+/// The finding for a load `ratio` (total / rating): above 1 an error, above the derating a
+/// warning, otherwise none.
+fn grade(ratio: f64, derating: f64) -> Option<Severity> {
+    if ratio > 1.0 + SLACK {
+        Some(Severity::Error)
+    } else if ratio > derating * (1.0 + SLACK) {
+        Some(Severity::Warning)
+    } else {
+        None
+    }
+}
+
+/// How many items of `each` amperes fit within `derating` of `rating`.
+fn fits(rating: f64, each: f64, derating: f64) -> usize {
+    if each <= 0.0 {
+        return 0;
+    }
+    (derating * rating / each * (1.0 + SLACK)).floor() as usize
+}
+
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
@@ -32,13 +56,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     continue;
                 }
                 let r = sb.ratio();
-                let sev = if r > 1.0 {
-                    Severity::Error
-                } else if r > ctx.opts.derating {
-                    Severity::Warning
-                } else {
-                    continue;
-                };
+                let Some(sev) = grade(r, ctx.opts.derating) else { continue };
                 let (verb, rating) = if state == "low" { ("sink", "IOL") } else { ("source", "IOH") };
                 let n_inputs = sb.items.iter().filter(|i| i.what.contains("input")).count();
                 let same = sb.items.windows(2).all(|w| (w[0].amps - w[1].amps).abs() < 1e-12) && n_inputs == sb.items.len();
@@ -68,7 +86,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 .at(cx.pin_span(d.at), format!("{} {} against {}", verb, format_amps(sb.total), format_amps(sb.rating)))
                 .on_net(cx.net_name(net))
                 .with_pins(std::iter::once(cx.pin_name(d.at)).chain(sb.items.iter().filter_map(|i| i.at).map(|p| cx.pin_name(p))));
-                let keep = (ctx.opts.derating * sb.rating / (sb.total / sb.items.len().max(1) as f64)).floor() as usize;
+                let keep = fits(sb.rating, sb.total / sb.items.len().max(1) as f64, ctx.opts.derating);
                 diag = diag.with_help(format!(
                     "split the load: at about {} per item this output can take {} of the {} within the {} derating; drive the rest from a second output or a bus driver (a 74LS244 sinks 24 mA)",
                     format_amps(sb.total / sb.items.len().max(1) as f64),
@@ -82,5 +100,26 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 out.push(diag);
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_load_at_exactly_the_rating_or_the_derating_is_not_above_it() {
+        // 74LS: IOL 8 mA, IIL 0.4 mA (TI SDLS025B); 7400: IOL 16 mA, IIL 1.6 mA (Fairchild DM7400)
+        let sum = |n: usize, each: f64| (0..n).map(|_| each).sum::<f64>();
+        assert_eq!(grade(sum(16, 0.4e-3) / 8e-3, 0.8), None, "16 x 0.4 mA is 80 % of 8 mA");
+        assert_eq!(grade(sum(17, 0.4e-3) / 8e-3, 0.8), Some(Severity::Warning));
+        assert_eq!(grade(sum(20, 0.4e-3) / 8e-3, 0.8), Some(Severity::Warning), "20 x 0.4 mA is 100 %");
+        assert_eq!(grade(sum(21, 0.4e-3) / 8e-3, 0.8), Some(Severity::Error));
+        assert_eq!(grade(sum(10, 1.6e-3) / 16e-3, 0.8), Some(Severity::Warning), "10 x 1.6 mA is 100 %");
+        assert_eq!(grade(sum(11, 1.6e-3) / 16e-3, 0.8), Some(Severity::Error));
+        assert_eq!(fits(8e-3, 0.4e-3, 0.8), 16);
+        assert_eq!(fits(0.4e-3, 20e-6, 0.8), 16);
+        assert_eq!(fits(16e-3, 1.6e-3, 1.0), 10);
+        assert_eq!(fits(8e-3, 0.0, 0.8), 0);
     }
 }

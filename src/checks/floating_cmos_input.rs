@@ -14,7 +14,7 @@
 //! Fix: tie unused inputs to ground or to the supply (or to a used input of the same gate);
 //! drive every used input; leave unused outputs open.
 
-use super::common::{floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float};
+use super::common::{agree, floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float};
 use super::Context;
 use crate::diag::Diag;
 
@@ -28,12 +28,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let mut d = Diag::error(
             "floating-cmos-input",
             format!(
-                "gate {} of {} ({}) is unused and its CMOS inputs float: {}{}",
+                "gate {} of {} ({}) is unused and {}: {}{}",
                 g.unit,
                 c.reference,
                 c.value_str(),
+                agree(pins.len(), "its CMOS input floats", "its CMOS inputs float"),
                 pin_list(ctx, &pins),
-                if absent { " are on no net (the gate was never placed)" } else { " are connected to nothing" }
+                if absent {
+                    format!(" {} on no net (the gate was never placed)", agree(pins.len(), "is", "are"))
+                } else {
+                    format!(" {} connected to nothing", agree(pins.len(), "is", "are"))
+                }
             ),
         )
         .with_help(format!(

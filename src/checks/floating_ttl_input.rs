@@ -12,7 +12,7 @@
 //! a resistor (1 kOhm, up to about 25 inputs per resistor) for standard TTL whose inputs
 //! must not see more than 5.5 V; or tie them to a used input of the same gate.
 
-use super::common::{floating_inputs, pin_list, supply_rail_name, Float};
+use super::common::{agree, floating_inputs, pin_list, supply_rail_name, Float};
 use super::Context;
 use crate::diag::Diag;
 use crate::values::format_ohms;
@@ -36,12 +36,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let mut d = Diag::warning(
             "floating-ttl-input",
             format!(
-                "gate {} of {} ({}) is unused and its TTL inputs are open: {} float high{} and pick up noise",
+                "gate {} of {} ({}) is unused and {}: {} {} high{} and {} up noise",
                 g.unit,
                 c.reference,
                 c.value_str(),
+                agree(pins.len(), "its TTL input is open", "its TTL inputs are open"),
                 pin_list(ctx, &pins),
-                inside(g.comp)
+                agree(pins.len(), "floats", "float"),
+                inside(g.comp),
+                agree(pins.len(), "picks", "pick")
             ),
         )
         .with_help(format!("{}; the gate's output {} may stay open", tie(g.comp).replacen("it", &pin_list(ctx, &pins), 1), pin_list(ctx, &g.outputs)))

@@ -16,7 +16,22 @@
 use super::ttl_high_into_cmos::ttl_output;
 use super::Context;
 use crate::diag::{Diag, Severity};
-use crate::values::format_volts;
+use crate::values::{format_ohms, format_volts};
+
+/// The fix for a high-level shortfall: for a net pulled up by a resistor (an open
+/// collector), the largest pull-up that reaches every load's VIH; otherwise a different load,
+/// a translator or a driver on the load's supply.
+fn high_fix(ctx: &Context<'_, '_, '_>, b: &crate::circuit::budget::NetBudget, pulled_up: bool) -> String {
+    match b.window.as_ref().filter(|_| pulled_up).and_then(|w| w.r_max.map(|r| (w, r))) {
+        Some((w, rmax)) if rmax > w.r_min => format!(
+            "a smaller pull-up: between {} and {} to {} reaches every load's VIH",
+            format_ohms(w.r_min),
+            format_ohms(rmax),
+            ctx.cx.net_name(w.rail_net)
+        ),
+        _ => "use a load whose VIH the driver meets (a 74HCT part reads 2.0 V as high on 5 V), a level translator, or a driver on the load's supply".to_string(),
+    }
+}
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
@@ -57,7 +72,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         .also(cx.pin_span(d.at), format!("high level {}", format_volts(high)))
                         .on_net(cx.net_name(net))
                         .with_pins([cx.pin_name(l.at), cx.pin_name(d.at)])
-                        .with_help("use a load whose VIH the driver meets (a 74HCT part reads 2.0 V as high on 5 V), a level translator, or a driver on the load's supply"),
+                        .with_help(high_fix(ctx, b, db.high.is_none())),
                     );
                 }
             }

@@ -32,14 +32,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         };
         let rmin_text = format!(
             "R_min = ({} - {}) / ({} - {}) = {}",
-            format_volts(w.rail_volts),
+            format_volts(w.v_high),
             format_volts(w.vol),
             format_amps(w.iol),
             format_amps(w.sum_iil),
             format_ohms(w.r_min)
         );
         let rmax_text = match (w.r_max, w.vih_max) {
-            (Some(r), Some(vih)) => format!("R_max = ({} - {}) / {} = {}", format_volts(w.rail_volts), format_volts(vih), format_amps(w.sum_high), format_ohms(r)),
+            (Some(r), Some(vih)) => format!("R_max = ({} - {}) / {} = {}", format_volts(w.v_low), format_volts(vih), format_amps(w.sum_high), format_ohms(r)),
             _ => String::new(),
         };
         let mk = |sev_error: bool, msg: String| {
@@ -56,7 +56,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ))
         };
         if fitted < w.r_min {
-            let sink = (w.rail_volts - w.vol) / fitted + w.sum_iil;
+            let sink = (w.v_high - w.vol) / fitted + w.sum_iil;
             out.push(mk(
                 true,
                 format!(
@@ -81,7 +81,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         format_ohms(fitted),
                         cx.describe(d.at),
                         rmax_text,
-                        format_volts(w.rail_volts - fitted * w.sum_high),
+                        format_volts((w.v_low - fitted * w.sum_high).max(0.0)),
                         format_volts(w.vih_max.unwrap_or(0.0)),
                         window_text
                     ),

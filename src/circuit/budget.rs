@@ -84,7 +84,11 @@ pub struct LoadMargin {
 #[derive(Debug, Clone)]
 pub struct PullUpWindow {
     pub rail_net: usize,
+    /// The rail's nominal voltage.
     pub rail_volts: f64,
+    /// The rail at the top of its tolerance (R_min is taken there) and at the bottom (R_max).
+    pub v_high: f64,
+    pub v_low: f64,
     /// The driver whose rating sets R_min (the weakest).
     pub driver: usize,
     pub vol: f64,
@@ -181,10 +185,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 items.push(Item { what: format!("{} off-state leakage", cx.pin_name(o.at)), at: Some(o.at), amps: a });
             }
         }
+        // an open collector's high state is the output turned off: its own off-state
+        // leakage flows through the pull-up too (the data books' N1 x IOH term)
         if d.role == PinRole::OpenCollector {
-            // off in the high state: its own leakage flows too
             load_high += lv.oc_leakage.abs();
-            items.push(Item { what: format!("{} off-state leakage (its own)", cx.pin_name(d.at)), at: Some(d.at), amps: lv.oc_leakage.abs() });
         }
         if drives_high {
             for &pi in &pulldowns {
@@ -204,7 +208,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         // a pull-up raises (or, for an open collector, makes) the high level
         let pull_up = parallel(pullups.iter().map(|&i| nm.pulls[i].ohms)).map(|r| {
             let p = &nm.pulls[pullups[0]];
-            let level = p.rail_volts - r * load_high;
+            // leakage cannot pull the net below ground: a level of 0 V means no high at all
+            let level = (p.rail_volts - r * load_high).max(0.0);
             PullUpHigh { rail_net: p.rail_net, rail_volts: p.rail_volts, ohms: r, current: load_high, level }
         });
         if let Some(pu) = &pull_up {
@@ -254,10 +259,12 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             let sum_high: f64 = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.iih_max.abs()).sum::<f64>()
                 + oc.iter().filter_map(|&i| nm.drivers[i].levels.as_ref()).map(|l| l.oc_leakage.abs()).sum::<f64>();
             let vih_max = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.vih_min).fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
-            let r_min = if iol > sum_iil { (v - vol) / (iol - sum_iil) } else { f64::INFINITY };
-            let r_max = vih_max.filter(|_| sum_high > 0.0).map(|vih| (v - vih) / sum_high);
+            // each end at the supply that is worst for it (the data books' VCC max and min)
+            let (v_low, v_high) = cx.rail_range(v);
+            let r_min = if iol > sum_iil { (v_high - vol) / (iol - sum_iil) } else { f64::INFINITY };
+            let r_max = vih_max.filter(|_| sum_high > 0.0).map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
-            out.window = Some(PullUpWindow { rail_net, rail_volts: v, driver: weakest, vol, iol, sum_iil, sum_high, vih_max, r_min, r_max, fitted });
+            out.window = Some(PullUpWindow { rail_net, rail_volts: v, v_high, v_low, driver: weakest, vol, iol, sum_iil, sum_high, vih_max, r_min, r_max, fitted });
         }
     }
     out

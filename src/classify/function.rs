@@ -325,6 +325,8 @@ struct Pending {
     like_series: Series,
     outputs: Option<PinRole>,
     package_pins_given: Option<Spanned<u32>>,
+    /// True when the entry names its `drive`; a copy that does not takes the original's.
+    drive_given: bool,
 }
 
 fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
@@ -364,6 +366,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
         }
         seen.insert((series, id.clone()), span.clone());
 
+        let drive_given = rf.drive.is_some();
         let drive = match rf.drive.as_ref().map(|d| d.get_ref().as_str()) {
             None | Some("standard") => DriveClass::Standard,
             Some("buffer") => DriveClass::Buffer,
@@ -463,6 +466,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
             like_series,
             outputs,
             package_pins_given: rf.package_pins,
+            drive_given,
         });
     }
 
@@ -472,7 +476,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
         .enumerate()
         .map(|(i, p)| ((p.func.series, p.func.id.clone()), i))
         .collect();
-    let mut copies: Vec<(usize, Vec<PinDef>, u32)> = Vec::new();
+    let mut copies: Vec<(usize, Vec<PinDef>, u32, DriveClass)> = Vec::new();
     for (i, p) in pending.iter().enumerate() {
         let Some(like) = &p.like else { continue };
         let target = like.get_ref().trim().to_ascii_uppercase();
@@ -516,13 +520,19 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
                         ));
                     }
                 }
-                copies.push((i, pins, src.package_pins));
+                let drive = if p.drive_given {
+                    p.func.drive
+                } else {
+                    src.drive
+                };
+                copies.push((i, pins, src.package_pins, drive));
             }
         }
     }
-    for (i, pins, n) in copies {
+    for (i, pins, n, drive) in copies {
         pending[i].func.pins = pins;
         pending[i].func.package_pins = n;
+        pending[i].func.drive = drive;
     }
 
     // Whole-function checks on listed pins.
@@ -738,6 +748,26 @@ variants = [ { families = ["74HC"], outputs = "push-pull" } ]
         assert_eq!(f.supply_pins().count(), 1);
         assert_eq!(f.ground_pins().next().unwrap().pin, "7");
         assert!(t.get(Series::S4000, "00").is_none());
+    }
+
+    #[test]
+    fn a_copy_takes_the_originals_drive_unless_it_names_its_own() {
+        let text = SMALL.replace(
+            "package_pins = 14\n",
+            "package_pins = 14\ndrive = \"buffer\"\n",
+        );
+        let t = FunctionTable::parse(&text).unwrap();
+        assert_eq!(t.get(Series::S74, "00").unwrap().drive, DriveClass::Buffer);
+        assert_eq!(t.get(Series::S74, "03").unwrap().drive, DriveClass::Buffer);
+        let text = text.replace("like = \"00\"\n", "like = \"00\"\ndrive = \"standard\"\n");
+        let t = FunctionTable::parse(&text).unwrap();
+        assert_eq!(
+            t.get(Series::S74, "03").unwrap().drive,
+            DriveClass::Standard
+        );
+        // the shipped table: the 74244 is a bus driver like the 74240 it copies
+        let b = FunctionTable::builtin();
+        assert_eq!(b.get(Series::S74, "244").unwrap().drive, DriveClass::Buffer);
     }
 
     #[test]
