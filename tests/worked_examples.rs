@@ -362,3 +362,31 @@ fn weak_pull_up_on_an_open_collector_reported_with_its_level() {
     let f = findings(&board("22k"), "level-mismatch", ModelOptions::default());
     assert!(f.is_empty(), "{f:?}");
 }
+
+/// A rail whose only pin is the pull resistor (KiCad writes it as a one-node net) is still a
+/// rail: the resistor is a pull-down to it. IIL x R = 0.4 mA x 10 kOhm = 4.0 V > VIL 0.8 V
+/// (TI SDLS025B figures), so the input is held high, not low.
+#[test]
+fn a_rail_net_holding_only_the_pull_resistor_still_counts() {
+    let text = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74LS00") (libsource (lib "x") (part "74LS00")))
+    (comp (ref "R1") (value "10k") (libsource (lib "x") (part "R"))))
+  (libparts
+    (libpart (lib "x") (part "74LS00")
+      (pins (pin (num "1") (name "1A") (type "input")) (pin (num "2") (name "1B") (type "input"))
+            (pin (num "7") (name "GND") (type "power_in")) (pin (num "14") (name "VCC") (type "power_in"))))
+    (libpart (lib "x") (part "R") (pins (pin (num "1") (name "~") (type "passive")) (pin (num "2") (name "~") (type "passive")))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "U1") (pin "2")))
+    (net (code "2") (name "/HOLD") (node (ref "U1") (pin "1")) (node (ref "R1") (pin "1")))
+    (net (code "3") (name "GNDREF") (node (ref "R1") (pin "2")))
+    (net (code "4") (name "GND") (node (ref "U1") (pin "7")))))
+"#;
+    let src = netmargin::source::SourceFile::new("t.net", text);
+    let rules = netmargin::classify::classifier::Rules::builtin();
+    let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
+    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_str()).collect();
+    assert!(codes.contains(&"ttl-pull-down-too-large"), "{codes:?}");
+    assert!(!codes.contains(&"floating-ttl-input"), "{codes:?}");
+}

@@ -401,10 +401,18 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
         if !matches!(part.kind, PartKind::Resistor | PartKind::ResistorNetwork) {
             continue;
         }
-        let pin_nets: Vec<(usize, usize)> = c.pins.iter().enumerate().filter_map(|(pi, p)| match p.connection {
-            Connection::Net { net, .. } => Some((pi, net)),
-            _ => None,
-        }).collect();
+        // a rail net may hold nothing but this resistor (a `-5V` label with one pull-down): its
+        // one-node net still counts when it is a rail
+        let pin_nets: Vec<(usize, usize)> = c
+            .pins
+            .iter()
+            .enumerate()
+            .filter_map(|(pi, p)| match p.connection {
+                Connection::Net { net, .. } => Some((pi, net)),
+                Connection::Alone { net, .. } if rail[net].is_some() => Some((pi, net)),
+                _ => None,
+            })
+            .collect();
         let (ohms, err) = if part.kind == PartKind::Resistor {
             match values::parse_resistance(c.value_str()) {
                 Ok(r) => (Some(r.ohms), None),
