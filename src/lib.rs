@@ -21,3 +21,4 @@ pub mod checks;
 pub mod circuit;
 pub mod config;
 pub mod app;
+pub mod audit;
