@@ -422,7 +422,7 @@ pub fn fanout_chart(net: &str, d: &DriverView, derating: f64) -> Option<Document
         .min(CAP);
     let (x0, bar_w) = (120.0, 360.0);
     let row_h = 34.0;
-    let width = x0 + bar_w + 250.0;
+    let width = x0 + bar_w + 340.0;
     let height = 50.0 + row_h * states.len() as f64 + 24.0;
     let xr = |r: f64| x0 + bar_w * (r.min(scale_max) / scale_max);
     let summary = format!(

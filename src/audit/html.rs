@@ -106,7 +106,7 @@ fn block_html(out: &mut String, title: &str, b: &Block) {
         format!("from the findings of <code>{}</code>", esc(b.check))
     } else {
         format!(
-            "from the model (no <code>{}</code> findings in this run)",
+            "from the model: no <code>{}</code> findings in this run",
             esc(b.check)
         )
     };
@@ -151,7 +151,7 @@ pub fn render(a: &Audit) -> String {
         "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>netmargin audit: {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n",
         esc(&title)
     );
-    let _ = write!(o, "<header><h1>Audit of {}</h1><p class=\"muted\">netmargin {} on <code>{}</code></p></header>\n", esc(&title), env!("CARGO_PKG_VERSION"), esc(&a.file));
+    let _ = writeln!(o, "<header><h1>Audit of {}</h1><p class=\"muted\">netmargin {} on <code>{}</code></p></header>", esc(&title), env!("CARGO_PKG_VERSION"), esc(&a.file));
     o.push_str("<div class=\"caution\"><b>Caution.</b> Legacy equipment can hold mains and high voltages, and capacitors can stay charged after power is removed. This report aids review of the DC logic interfaces. It replaces no one's judgement, and local codes and licensed practice come first.</div>\n");
     o.push_str("<nav><b>Contents</b><ol><li><a href=\"#summary\">Summary</a></li><li><a href=\"#findings\">Findings</a></li><li><a href=\"#charts\">Level charts</a></li><li><a href=\"#matrix\">Family compatibility</a></li><li><a href=\"#recapture\">Recapture review</a></li><li><a href=\"#sources\">Data sources</a></li></ol></nav>\n");
 
@@ -163,9 +163,9 @@ pub fn render(a: &Audit) -> String {
     if let Some(v) = &a.version {
         let _ = write!(o, "<tr><th>netlist version</th><td>{}</td></tr>", esc(v));
     }
-    let _ = write!(
+    let _ = writeln!(
         o,
-        "<tr><th>contents</th><td>{} parts, {} nets, {} pins, {} pins on no net or alone on a net</td></tr></table>\n",
+        "<tr><th>contents</th><td>{} parts, {} nets, {} pins, {} pins on no net or alone on a net</td></tr></table>",
         a.summary.parts, a.summary.nets, a.summary.pins, a.summary.pins_on_no_net
     );
     o.push_str("<h3>Supplies found</h3>");
@@ -241,9 +241,9 @@ pub fn render(a: &Audit) -> String {
         o.push_str("<p>No findings.</p>");
     }
     for n in &nets {
-        let _ = write!(
+        let _ = writeln!(
             o,
-            "<h4>{}</h4>\n",
+            "<h4>{}</h4>",
             n.map_or("not on one net".to_string(), |n| format!(
                 "net <code>{}</code>",
                 esc(n)
@@ -322,11 +322,7 @@ pub fn render(a: &Audit) -> String {
             if let Some(f) = charts::fanout_chart(&i.net, d, a.derating) {
                 let _ = write!(o, "{f}");
             }
-            let _ = write!(
-                o,
-                "<figcaption>{}</figcaption></figure>\n",
-                esc(&d.describe)
-            );
+            let _ = writeln!(o, "<figcaption>{}</figcaption></figure>", esc(&d.describe));
             o.push_str("<table class=\"budget\"><tr><th>driver</th><th>state</th><th>used</th><th>rating</th><th>of rating</th><th>level there</th></tr>");
             for (name, u, lvl) in [("low", d.low, d.low_level), ("high", d.high, d.high_level)] {
                 let Some(u) = u else { continue };

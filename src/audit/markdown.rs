@@ -35,7 +35,7 @@ fn block_md(o: &mut String, title: &str, b: &Block) {
     let from = if b.from_findings {
         format!("from the findings of `{}`", b.check)
     } else {
-        format!("from the model (no `{}` findings in this run)", b.check)
+        format!("from the model: no `{}` findings in this run", b.check)
     };
     if b.rows.is_empty() {
         let _ = writeln!(o, "None found ({from}).\n");

@@ -364,7 +364,7 @@ impl Audit {
                 }
             }
         }
-        parts.sort_by(|x, y| natural_key(x).cmp(&natural_key(y)));
+        parts.sort_by_key(|x| natural_key(x));
         parts
     }
 
@@ -1408,4 +1408,36 @@ pub fn command(args: &AuditArgs, read: &ReadOptions, color: bool) -> io::Result<
         }
     }
     Ok(0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn pad_counts_from_kicad_footprint_names() {
+        // KiCad's standard library names (common practice)
+        assert_eq!(footprint_pins("Package_DIP:DIP-16_W7.62mm"), Some(16));
+        assert_eq!(
+            footprint_pins("Package_SO:SOIC-14_3.9x8.7mm_P1.27mm"),
+            Some(14)
+        );
+        assert_eq!(
+            footprint_pins("Package_SO:TSSOP-20_4.4x6.5mm_P0.65mm"),
+            Some(20)
+        );
+        assert_eq!(footprint_pins("DIP-14"), Some(14));
+        assert_eq!(
+            footprint_pins("Resistor_THT:R_Axial_DIN0207_L6.3mm_D2.5mm_P10.16mm_Horizontal"),
+            None
+        );
+        assert_eq!(footprint_pins("Capacitor_SMD:C_0805_2012Metric"), None);
+    }
+
+    #[test]
+    fn references_sort_naturally() {
+        let mut v = vec!["U10", "U9", "R1", "U1A"];
+        v.sort_by_key(|x| natural_key(x));
+        assert_eq!(v, ["R1", "U1A", "U9", "U10"]);
+    }
 }
