@@ -48,6 +48,8 @@ pub enum Command {
     Explain(ExplainArgs),
     /// Show the whole DC budget of one net: drivers, loads, pull resistors, levels and margins
     Net(NetArgs),
+    /// Write a report of a whole board (HTML with level charts, or Markdown)
+    Audit(crate::audit::AuditArgs),
 }
 
 #[derive(Debug, Args)]
@@ -124,7 +126,7 @@ pub struct CheckArgs {
     pub report: crate::report::ReportArgs,
 }
 
-fn parse_rail(s: &str) -> Result<(String, f64), String> {
+pub(crate) fn parse_rail(s: &str) -> Result<(String, f64), String> {
     let (n, v) = s.split_once('=').ok_or_else(|| format!("expected NAME=VOLTS, found `{s}`"))?;
     let v: f64 = v.trim().trim_end_matches(['V', 'v']).parse().map_err(|_| format!("`{v}` is not a voltage"))?;
     if n.trim().is_empty() || !v.is_finite() {

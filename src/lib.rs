@@ -22,3 +22,4 @@ pub mod checks;
 pub mod circuit;
 pub mod config;
 pub mod app;
+pub mod audit;

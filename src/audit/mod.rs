@@ -1,0 +1,1443 @@
+//! `netmargin audit FILE`: one report of a (recaptured) schematic for the engineer who must
+//! decide whether the board can be powered: what the board is, where its logic interfaces are
+//! wrong (with level charts and fan-out bars), which family pairs on it are safe, what the
+//! recapture may have got wrong, and where the figures came from.
+//!
+//! [`gather`] runs the pipeline once and keeps everything a report needs as owned data; the
+//! renderers ([`html`], [`markdown`], [`charts`]) only lay that data out. Chart and table
+//! numbers are the budget structs' ([`net_budget`]), never recomputed here; the family
+//! matrix is the one place that asks the family table directly, because it is about families,
+//! not nets.
+
+pub mod charts;
+pub mod html;
+pub mod markdown;
+
+use std::collections::BTreeMap;
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
+
+use clap::{Args, ValueEnum};
+
+use crate::circuit::budget::{net_budget, StateBudget};
+use crate::circuit::{self, Circuit, RailSource};
+use crate::classify::classifier::{classify, PartKind, Rules};
+use crate::classify::family::Drive;
+use crate::classify::PinRole;
+use crate::config;
+use crate::diag::{Diag, Severity};
+use crate::netlist::{self, Connection, PinType};
+use crate::pipeline::{self, FileOutcome, ReadOptions, RunOptions};
+use crate::sexpr;
+use crate::source::SourceFile;
+
+/// Checks whose findings are about levels or fan-out: each gets a level chart.
+pub const CHARTED_CHECKS: &[&str] = &[
+    "fanout-overrun",
+    "ttl-high-into-cmos",
+    "level-mismatch",
+    "input-overvoltage",
+    "pull-up-out-of-range",
+    "weak-high-drive",
+];
+
+/// A pass that is closer than this to failing is marked marginal in the family matrix (our
+/// own threshold; `min_margin_v` raises it).
+pub const MARGINAL_V: f64 = 0.2;
+
+/// Report format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum AuditFormat {
+    Html,
+    Markdown,
+}
+
+/// `netmargin audit`.
+#[derive(Debug, Args)]
+pub struct AuditArgs {
+    /// The netlist (`-` reads standard input)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// Write the report here (atomically); without it the report goes to standard output
+    #[arg(short, long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Report format
+    #[arg(long, value_enum, default_value_t = AuditFormat::Html)]
+    pub format: AuditFormat,
+    /// Also chart this net, with or without a finding (repeatable)
+    #[arg(long, value_name = "NAME")]
+    pub net: Vec<String>,
+    /// Write every chart as an SVG file into this folder as well
+    #[arg(long, value_name = "DIR")]
+    pub chart_out: Option<PathBuf>,
+    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
+    #[arg(long, value_name = "NAME=VOLTS", value_parser = crate::cli::parse_rail)]
+    pub rail: Vec<(String, f64)>,
+    /// The project configuration [default: the nearest netmargin.toml at or above the netlist]
+    #[arg(long, value_name = "FILE")]
+    pub config: Option<PathBuf>,
+    /// Ignore any netmargin.toml
+    #[arg(long, conflicts_with = "config")]
+    pub no_config: bool,
+}
+
+// ---------------------------------------------------------------------------
+// the gathered data
+
+/// Everything a report shows, owned.
+#[derive(Debug, Clone)]
+pub struct Audit {
+    /// The file's name as given.
+    pub file: String,
+    /// The netlist header: (label, value), in the order title, source, tool, date, company, revision.
+    pub header: Vec<(&'static str, String)>,
+    pub version: Option<String>,
+    pub summary: netlist::Summary,
+    pub supplies: Vec<SupplyRow>,
+    /// Logic parts by family.
+    pub families: Vec<FamilyCount>,
+    /// Other parts by kind: (kind, count).
+    pub kinds: Vec<(&'static str, usize)>,
+    /// (classified, IC-like).
+    pub coverage: (usize, usize),
+    pub findings: Vec<Finding>,
+    pub by_check: Vec<CheckCount>,
+    /// Findings removed by the project's waivers.
+    pub waived: usize,
+    pub interfaces: Vec<Interface>,
+    pub matrix: Matrix,
+    pub recapture: Recapture,
+    pub sources: Sources,
+    pub derating: f64,
+    pub rail_tolerance: f64,
+}
+
+#[derive(Debug, Clone)]
+pub struct SupplyRow {
+    pub net: String,
+    pub volts: Option<f64>,
+    pub ground: bool,
+    /// "net name", "declared", "power output".
+    pub basis: &'static str,
+    /// Pins on the net.
+    pub pins: usize,
+    /// Logic parts whose supply (or ground) pin is on it.
+    pub parts: usize,
+}
+
+#[derive(Debug, Clone)]
+pub struct FamilyCount {
+    pub id: String,
+    pub name: String,
+    pub count: usize,
+    /// The parts' references.
+    pub parts: Vec<String>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Finding {
+    /// Anchor for cross references (`f1`, `f2` ...).
+    pub id: String,
+    pub code: String,
+    pub severity: Severity,
+    pub message: String,
+    pub help: Option<String>,
+    pub net: Option<String>,
+    pub pins: Vec<String>,
+    /// The parts named by `pins`, in order, de-duplicated.
+    pub parts: Vec<String>,
+    /// 1-based line of the primary place and its text.
+    pub line: Option<usize>,
+    pub line_text: Option<String>,
+}
+
+#[derive(Debug, Clone)]
+pub struct CheckCount {
+    pub code: String,
+    pub summary: String,
+    pub error: usize,
+    pub warning: usize,
+    pub info: usize,
+}
+
+/// One net that gets charts.
+#[derive(Debug, Clone)]
+pub struct Interface {
+    pub net: String,
+    /// Check ids that put it here, or `requested` for `--net`.
+    pub why: Vec<String>,
+    pub drivers: Vec<DriverView>,
+    /// Loads with no family data (not charted).
+    pub unknown_loads: Vec<String>,
+}
+
+/// A state's current against the rating, from [`StateBudget`].
+#[derive(Debug, Clone, Copy)]
+pub struct Usage {
+    pub total: f64,
+    pub rating: f64,
+    pub ratio: f64,
+    pub items: usize,
+}
+
+impl Usage {
+    fn of(sb: &StateBudget) -> Usage {
+        Usage {
+            total: sb.total,
+            rating: sb.rating,
+            ratio: sb.ratio(),
+            items: sb.items.len(),
+        }
+    }
+}
+
+#[derive(Debug, Clone)]
+pub struct DriverView {
+    pub pin: String,
+    pub describe: String,
+    pub role: PinRole,
+    pub family: Option<String>,
+    pub vcc: Option<f64>,
+    pub supply_known: bool,
+    /// VOL max at the computed low-state current.
+    pub low_level: Option<f64>,
+    /// VOH min at the computed high-state current (raised by a pull-up).
+    pub high_level: Option<f64>,
+    pub low: Option<Usage>,
+    pub high: Option<Usage>,
+    /// (ohms, rail volts) of the pull-up, when there is one.
+    pub pull_up: Option<(f64, f64)>,
+    /// The highest level the output reaches (light load), for the overvoltage mark.
+    pub top_level: Option<f64>,
+    /// The family's last published (VOL max, IOL) and (VOH min, IOH) rows: what holds up to
+    /// the rating, shown when the computed current is beyond them.
+    pub rated_low: Option<(f64, f64)>,
+    pub rated_high: Option<(f64, f64)>,
+    pub loads: Vec<LoadGroup>,
+}
+
+/// The loads of one family (at one supply) on a net, against one driver.
+#[derive(Debug, Clone)]
+pub struct LoadGroup {
+    pub family: String,
+    pub pins: Vec<String>,
+    pub vcc: Option<f64>,
+    pub vih: f64,
+    pub vil: f64,
+    /// The worst over the group.
+    pub high_margin: Option<f64>,
+    pub low_margin: Option<f64>,
+    pub input_limit: Option<f64>,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Verdict {
+    Pass,
+    Marginal,
+    Fail,
+}
+
+impl Verdict {
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Verdict::Pass => "pass",
+            Verdict::Marginal => "marginal",
+            Verdict::Fail => "fail",
+        }
+    }
+    /// The text mark shown in a cell (colour is never the only carrier).
+    pub fn mark(self) -> &'static str {
+        match self {
+            Verdict::Pass => "PASS",
+            Verdict::Marginal => "MARGINAL",
+            Verdict::Fail => "FAIL",
+        }
+    }
+}
+
+/// A family at one of the board's supplies.
+#[derive(Debug, Clone)]
+pub struct FamilyAt {
+    pub id: String,
+    pub name: String,
+    pub vcc: f64,
+}
+
+impl FamilyAt {
+    pub fn label(&self) -> String {
+        format!("{} at {:.2} V", self.id, self.vcc)
+    }
+}
+
+#[derive(Debug, Clone)]
+pub struct Cell {
+    /// VOH min (at the rated IOH) - VIH min.
+    pub high_margin: f64,
+    /// VIL max - VOL max (at the rated IOL).
+    pub low_margin: f64,
+    /// IOL max / |IIL max|, IOH max / IIH max (whole inputs).
+    pub fanout_low: f64,
+    pub fanout_high: f64,
+    /// How far the driver's highest level is above the input's limit.
+    pub over_limit: Option<f64>,
+    pub verdict: Verdict,
+    /// Why it is not a pass.
+    pub reason: Option<String>,
+}
+
+#[derive(Debug, Clone, Default)]
+pub struct Matrix {
+    pub drivers: Vec<FamilyAt>,
+    pub loads: Vec<FamilyAt>,
+    /// `cells[driver][load]`.
+    pub cells: Vec<Vec<Cell>>,
+    pub marginal_v: f64,
+}
+
+/// One line of the recapture section: what it is about, what, where.
+#[derive(Debug, Clone)]
+pub struct Row {
+    pub subject: String,
+    pub text: String,
+    pub line: Option<usize>,
+}
+
+/// Rows of a recapture question that a check answers when it runs.
+#[derive(Debug, Clone)]
+pub struct Block {
+    pub check: &'static str,
+    /// True when the rows are the check's findings; false when they come from the model.
+    pub from_findings: bool,
+    pub rows: Vec<Row>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Unclassified {
+    pub reference: String,
+    pub value: String,
+    pub libpart: Option<String>,
+    pub method: &'static str,
+    /// (suggested value, what changed, what it reads as).
+    pub suggestions: Vec<(String, String, String)>,
+    pub line: Option<usize>,
+}
+
+#[derive(Debug, Clone)]
+pub struct PartPins {
+    pub reference: String,
+    pub value: String,
+    /// Pins in the part's library pins but on no net at all.
+    pub absent: Vec<String>,
+    /// Pins alone on a one-node net.
+    pub alone: Vec<String>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Recapture {
+    pub unclassified: Vec<Unclassified>,
+    pub roles: Block,
+    pub packages: Block,
+    pub unpowered: Block,
+    /// One-node nets named like labels: (net, the pin on it, line).
+    pub label_nets: Vec<Row>,
+    pub pins_off: Vec<PartPins>,
+}
+
+#[derive(Debug, Clone)]
+pub struct Sources {
+    pub tables: Vec<String>,
+    /// (id, name, source, shipped) of the families on the board.
+    pub families: Vec<(String, String, String, bool)>,
+    /// (series:id, source) of the functions on the board.
+    pub functions: Vec<(String, String)>,
+    pub config: Option<String>,
+}
+
+impl Audit {
+    /// The parts findings name, in reference order (`U9` before `U10`).
+    pub fn finding_parts(&self) -> Vec<&str> {
+        let mut parts: Vec<&str> = Vec::new();
+        for f in &self.findings {
+            for p in &f.parts {
+                if !parts.contains(&p.as_str()) {
+                    parts.push(p);
+                }
+            }
+        }
+        parts.sort_by_key(|x| natural_key(x));
+        parts
+    }
+
+    /// The findings about `part` (it is named first), then those that only name it.
+    pub fn findings_of(&self, part: &str) -> (Vec<&Finding>, Vec<&Finding>) {
+        let about = self
+            .findings
+            .iter()
+            .filter(|f| f.parts.first().is_some_and(|p| p == part))
+            .collect();
+        let named = self
+            .findings
+            .iter()
+            .filter(|f| f.parts.iter().skip(1).any(|p| p == part))
+            .collect();
+        (about, named)
+    }
+
+    /// The distinct nets of the findings, in finding order (`None`: not on one net).
+    pub fn finding_nets(&self) -> Vec<Option<&str>> {
+        let mut nets: Vec<Option<&str>> = Vec::new();
+        for f in &self.findings {
+            if !nets.contains(&f.net.as_deref()) {
+                nets.push(f.net.as_deref());
+            }
+        }
+        nets
+    }
+}
+
+/// Sort key that puts `U9` before `U10`.
+pub fn natural_key(s: &str) -> (String, u64, String) {
+    let p = s.find(|c: char| c.is_ascii_digit()).unwrap_or(s.len());
+    let rest = &s[p..];
+    let d = rest
+        .find(|c: char| !c.is_ascii_digit())
+        .unwrap_or(rest.len());
+    (
+        s[..p].to_string(),
+        rest[..d].parse().unwrap_or(0),
+        rest[d..].to_string(),
+    )
+}
+
+// ---------------------------------------------------------------------------
+// gathering
+
+/// What shapes an audit besides the rules.
+#[derive(Debug, Clone, Default)]
+pub struct AuditOptions {
+    pub run: RunOptions,
+    /// Nets to chart whatever they hold, by name (a leading `/` may be left off).
+    pub nets: Vec<String>,
+    /// Waivers to apply (from the project configuration).
+    pub waivers: Vec<config::Waiver>,
+    /// The configuration file used, for the data sources section.
+    pub config: Option<String>,
+}
+
+fn line_of(source: &SourceFile, d: &Diag) -> (Option<usize>, Option<String>) {
+    match crate::report::primary_place(d, Some(source)) {
+        Some(p) => (
+            Some(p.line),
+            Some(source.line_text(p.line).trim().to_string()),
+        ),
+        None => (None, None),
+    }
+}
+
+fn ref_of(pin: &str) -> &str {
+    pin.rsplit_once('.').map_or(pin, |(r, _)| r)
+}
+
+fn find_net(nl: &netlist::Netlist<'_>, want: &str) -> Option<usize> {
+    let bare = want.trim_start_matches('/');
+    (0..nl.nets.len()).find(|&i| {
+        nl.nets[i].name.as_str() == want || nl.nets[i].name.as_str().trim_start_matches('/') == bare
+    })
+}
+
+fn kind_name(k: PartKind) -> &'static str {
+    match k {
+        PartKind::Logic => "logic (family unknown)",
+        PartKind::NotLogic => "other ICs",
+        PartKind::UnknownIc => "unclassified ICs",
+        PartKind::Resistor => "resistors",
+        PartKind::ResistorNetwork => "resistor networks",
+        PartKind::Capacitor => "capacitors",
+        PartKind::Led => "LEDs",
+        PartKind::Diode => "diodes",
+        PartKind::Connector => "connectors",
+        PartKind::Other => "other parts",
+    }
+}
+
+/// The pad count a footprint name states: `Package_DIP:DIP-16_W7.62mm` 16,
+/// `SOIC-14_3.9x8.7mm_P1.27mm` 14. `None` when it states none.
+pub fn footprint_pins(footprint: &str) -> Option<u32> {
+    let name = footprint.rsplit_once(':').map_or(footprint, |(_, n)| n);
+    let b = name.as_bytes();
+    let mut i = 0;
+    while i < b.len() {
+        if b[i] == b'-' {
+            let s = i + 1;
+            let mut e = s;
+            while e < b.len() && b[e].is_ascii_digit() {
+                e += 1;
+            }
+            let ends = e == b.len() || matches!(b[e], b'_' | b'-');
+            let before_letters = name[..i]
+                .chars()
+                .rev()
+                .take_while(|c| c.is_ascii_alphabetic())
+                .count()
+                >= 2;
+            if e > s && ends && before_letters {
+                return name[s..e].parse().ok();
+            }
+            i = e.max(i + 1);
+        } else {
+            i += 1;
+        }
+    }
+    None
+}
+
+/// Runs the pipeline on `source` and gathers the report's data.
+pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result<Audit, Diag> {
+    if let Some(d) = sexpr::sniff(source.text()) {
+        return Err(d);
+    }
+    let tree = sexpr::parse(source.text())?;
+    let nl = netlist::build(&tree)?;
+    drop(tree);
+    let cl = classify(&nl, rules);
+    let cx = circuit::build(&nl, &cl, rules, opts.run.model.clone());
+    let mut diags = nl.diagnostics.clone();
+    diags.extend(crate::checks::run_all(&cx, &opts.run.checks));
+    let before = diags.len();
+    let today = config::today();
+    diags.retain(|d| {
+        !opts
+            .waivers
+            .iter()
+            .any(|w| !w.expired(today) && w.covers(d))
+    });
+    let waived = before - diags.len();
+
+    let mut wanted = Vec::new();
+    for n in &opts.nets {
+        match find_net(&nl, n) {
+            Some(i) => wanted.push(i),
+            None => {
+                return Err(Diag::error(
+                    "no-such-net",
+                    format!("no net `{n}` in {}", source.name()),
+                )
+                .with_help(
+                    "give the net's name as the netlist writes it (`/CLK`, `Net-(U5-Pad4)`)",
+                ))
+            }
+        }
+    }
+
+    let d = &nl.design;
+    let t = |x: &Option<netlist::Text<'_>>| {
+        x.as_ref()
+            .map(|t| t.as_str().to_string())
+            .filter(|s| !s.is_empty())
+    };
+    let header: Vec<(&'static str, String)> = [
+        ("title", t(&d.title)),
+        ("source", t(&d.source)),
+        ("tool", t(&d.tool)),
+        ("date", t(&d.date)),
+        ("company", t(&d.company)),
+        ("revision", t(&d.rev)),
+    ]
+    .into_iter()
+    .filter_map(|(k, v)| v.map(|v| (k, v)))
+    .collect();
+
+    let findings: Vec<Finding> = diags
+        .iter()
+        .enumerate()
+        .map(|(i, d)| {
+            let (line, line_text) = line_of(source, d);
+            let mut parts: Vec<String> = Vec::new();
+            for p in &d.pins {
+                let r = ref_of(p).to_string();
+                if !parts.contains(&r) {
+                    parts.push(r);
+                }
+            }
+            Finding {
+                id: format!("f{}", i + 1),
+                code: d.code.clone(),
+                severity: d.severity,
+                message: d.message.clone(),
+                help: d.help.clone(),
+                net: d.net.clone(),
+                pins: d.pins.clone(),
+                parts,
+                line,
+                line_text,
+            }
+        })
+        .collect();
+
+    let mut counts: BTreeMap<String, CheckCount> = BTreeMap::new();
+    for f in &findings {
+        let summary = crate::checks::info(&f.code)
+            .map(|c| c.summary.to_string())
+            .or_else(|| {
+                crate::diag::INPUT_CODES
+                    .iter()
+                    .find(|(c, _)| *c == f.code)
+                    .map(|(_, s)| s.to_string())
+            })
+            .unwrap_or_default();
+        let c = counts.entry(f.code.clone()).or_insert(CheckCount {
+            code: f.code.clone(),
+            summary,
+            error: 0,
+            warning: 0,
+            info: 0,
+        });
+        match f.severity {
+            Severity::Error => c.error += 1,
+            Severity::Warning => c.warning += 1,
+            Severity::Info => c.info += 1,
+        }
+    }
+    let mut by_check: Vec<CheckCount> = counts.into_values().collect();
+    by_check.sort_by(|a, b| {
+        (b.error, b.warning, b.info)
+            .cmp(&(a.error, a.warning, a.info))
+            .then_with(|| a.code.cmp(&b.code))
+    });
+
+    let supplies = gather_supplies(&cx);
+    let (families, kinds) = gather_parts(&cx);
+
+    // interfaces: nets with a level or fan-out finding, then the requested ones
+    let mut chart_nets: Vec<(usize, Vec<String>)> = Vec::new();
+    for f in findings
+        .iter()
+        .filter(|f| CHARTED_CHECKS.contains(&f.code.as_str()))
+    {
+        let Some(n) = f
+            .net
+            .as_deref()
+            .and_then(|n| nl.net_by_name(n).or_else(|| find_net(&nl, n)))
+        else {
+            continue;
+        };
+        match chart_nets.iter_mut().find(|(i, _)| *i == n) {
+            Some((_, why)) => {
+                if !why.contains(&f.code) {
+                    why.push(f.code.clone());
+                }
+            }
+            None => chart_nets.push((n, vec![f.code.clone()])),
+        }
+    }
+    for n in wanted {
+        match chart_nets.iter_mut().find(|(i, _)| *i == n) {
+            Some((_, why)) => why.push("requested".into()),
+            None => chart_nets.push((n, vec!["requested".into()])),
+        }
+    }
+    let interfaces = chart_nets
+        .into_iter()
+        .map(|(n, why)| gather_interface(&cx, n, why))
+        .collect();
+
+    let matrix = gather_matrix(&cx, opts.run.checks.min_margin_v.max(MARGINAL_V));
+    let recapture = gather_recapture(source, &cx, &diags);
+    let sources = gather_sources(&cx, opts.config.clone());
+
+    Ok(Audit {
+        file: source.name().to_string(),
+        header,
+        version: nl.version.as_ref().map(|v| v.as_str().to_string()),
+        summary: nl.summary(),
+        supplies,
+        families,
+        kinds,
+        coverage: cl.coverage,
+        findings,
+        by_check,
+        waived,
+        interfaces,
+        matrix,
+        recapture,
+        sources,
+        derating: opts.run.checks.derating,
+        rail_tolerance: opts.run.model.rail_tolerance,
+    })
+}
+
+fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {
+    let mut rows: Vec<SupplyRow> = Vec::new();
+    for (i, nm) in cx.nets.iter().enumerate() {
+        let Some(r) = nm.rail else { continue };
+        let parts = cx
+            .supplies
+            .iter()
+            .flatten()
+            .filter(|s| s.supply_net == Some(i) || s.ground_net == Some(i))
+            .count();
+        rows.push(SupplyRow {
+            net: cx.net_name(i),
+            volts: r.v(),
+            ground: r.ground,
+            basis: match r.source {
+                RailSource::Name => "net name",
+                RailSource::PowerOutput => "power output",
+                RailSource::User => "declared",
+            },
+            pins: cx.nl.nets[i].nodes.len(),
+            parts,
+        });
+    }
+    rows.sort_by(|a, b| {
+        b.ground
+            .cmp(&a.ground)
+            .then_with(|| {
+                b.volts
+                    .unwrap_or(f64::MIN)
+                    .total_cmp(&a.volts.unwrap_or(f64::MIN))
+            })
+            .then_with(|| a.net.cmp(&b.net))
+    });
+    rows
+}
+
+fn gather_parts(cx: &Circuit<'_, '_>) -> (Vec<FamilyCount>, Vec<(&'static str, usize)>) {
+    let mut fams: Vec<FamilyCount> = Vec::new();
+    let mut kinds: Vec<(&'static str, usize)> = Vec::new();
+    for (ci, p) in cx.cl.parts.iter().enumerate() {
+        let reference = cx.nl.components[ci].reference.as_str().to_string();
+        if p.is_logic() {
+            let id = p.family.clone().unwrap_or_default();
+            let name = cx.family(ci).map_or(id.clone(), |f| f.name.clone());
+            match fams.iter_mut().find(|f| f.id == id) {
+                Some(f) => {
+                    f.count += 1;
+                    f.parts.push(reference);
+                }
+                None => fams.push(FamilyCount {
+                    id,
+                    name,
+                    count: 1,
+                    parts: vec![reference],
+                }),
+            }
+        } else {
+            let k = kind_name(p.kind);
+            match kinds.iter_mut().find(|(n, _)| *n == k) {
+                Some((_, c)) => *c += 1,
+                None => kinds.push((k, 1)),
+            }
+        }
+    }
+    fams.sort_by(|a, b| b.count.cmp(&a.count).then_with(|| a.id.cmp(&b.id)));
+    kinds.sort_by(|a, b| b.1.cmp(&a.1).then_with(|| a.0.cmp(b.0)));
+    (fams, kinds)
+}
+
+fn gather_interface(cx: &Circuit<'_, '_>, net: usize, why: Vec<String>) -> Interface {
+    let nm = &cx.nets[net];
+    let b = net_budget(cx, net);
+    let mut drivers = Vec::new();
+    for db in &b.drivers {
+        let d = &nm.drivers[db.driver];
+        let s = cx.supplies[d.at.comp].as_ref();
+        let mut loads: Vec<LoadGroup> = Vec::new();
+        for m in b.margins.iter().filter(|m| m.driver == db.driver) {
+            let l = &nm.loads[m.load];
+            let family = l.family.clone().unwrap_or_else(|| "unknown".into());
+            let vcc = l.levels.as_ref().map(|lv| lv.vcc);
+            let same = |g: &LoadGroup| {
+                g.family == family && (g.vih - m.vih).abs() < 1e-6 && (g.vil - m.vil).abs() < 1e-6
+            };
+            let worst = |a: Option<f64>, b: Option<f64>| match (a, b) {
+                (Some(x), Some(y)) => Some(x.min(y)),
+                (x, None) => x,
+                (None, y) => y,
+            };
+            match loads.iter_mut().find(|g| same(g)) {
+                Some(g) => {
+                    g.pins.push(cx.pin_name(l.at));
+                    g.high_margin = worst(g.high_margin, m.high_margin);
+                    g.low_margin = worst(g.low_margin, m.low_margin);
+                    g.input_limit = worst(g.input_limit, l.input_limit);
+                }
+                None => loads.push(LoadGroup {
+                    family,
+                    pins: vec![cx.pin_name(l.at)],
+                    vcc,
+                    vih: m.vih,
+                    vil: m.vil,
+                    high_margin: m.high_margin,
+                    low_margin: m.low_margin,
+                    input_limit: l.input_limit,
+                }),
+            }
+        }
+        drivers.push(DriverView {
+            pin: cx.pin_name(d.at),
+            describe: cx.describe(d.at),
+            role: d.role,
+            family: d.family.clone(),
+            vcc: s
+                .map(|s| s.vcc)
+                .or_else(|| d.levels.as_ref().map(|l| l.vcc)),
+            supply_known: s.is_some_and(|s| s.known),
+            low_level: db.low_level,
+            high_level: db.high_level,
+            low: db.low.as_ref().map(Usage::of),
+            high: db.high.as_ref().map(Usage::of),
+            pull_up: db.pull_up.as_ref().map(|p| (p.ohms, p.rail_volts)),
+            top_level: match d.role {
+                PinRole::OpenCollector => db.high_level,
+                _ => d
+                    .levels
+                    .as_ref()
+                    .and_then(|l| l.voh.first().map(|p| p.v))
+                    .or(db.high_level),
+            },
+            rated_low: d
+                .levels
+                .as_ref()
+                .and_then(|l| l.vol.last().map(|p| (p.v, p.a.abs()))),
+            rated_high: d
+                .levels
+                .as_ref()
+                .filter(|_| d.role != PinRole::OpenCollector)
+                .and_then(|l| l.voh.last().map(|p| (p.v, p.a.abs()))),
+            loads,
+        });
+    }
+    let unknown_loads = nm
+        .loads
+        .iter()
+        .filter(|l| l.levels.is_none())
+        .map(|l| cx.pin_name(l.at))
+        .collect();
+    Interface {
+        net: cx.net_name(net),
+        why,
+        drivers,
+        unknown_loads,
+    }
+}
+
+fn gather_matrix(cx: &Circuit<'_, '_>, marginal_v: f64) -> Matrix {
+    // the families on the board at the supplies they run from
+    let mut drivers: Vec<FamilyAt> = Vec::new();
+    let mut loads: Vec<FamilyAt> = Vec::new();
+    for (ci, p) in cx.cl.parts.iter().enumerate() {
+        let (Some(f), Some(s)) = (cx.family(ci), cx.supplies[ci].as_ref()) else {
+            continue;
+        };
+        let at = FamilyAt {
+            id: f.id.clone(),
+            name: f.name.clone(),
+            vcc: (s.vcc * 100.0).round() / 100.0,
+        };
+        let drives = p.roles.iter().any(|r| r.is_output());
+        let reads = p.roles.iter().any(|r| r.is_input());
+        for (list, yes) in [(&mut drivers, drives), (&mut loads, reads)] {
+            if yes
+                && !list
+                    .iter()
+                    .any(|x| x.id == at.id && (x.vcc - at.vcc).abs() < 1e-9)
+            {
+                list.push(at.clone());
+            }
+        }
+    }
+    let key = |a: &FamilyAt, b: &FamilyAt| a.id.cmp(&b.id).then(a.vcc.total_cmp(&b.vcc));
+    drivers.sort_by(key);
+    loads.sort_by(key);
+    let mut cells = Vec::new();
+    for d in &drivers {
+        let Some(df) = cx.rules.families.get(&d.id) else {
+            continue;
+        };
+        let dl = df.levels(d.vcc, Drive::Standard);
+        let voh = dl.voh.last().map_or(0.0, |p| p.v);
+        let vol = dl.vol.last().map_or(0.0, |p| p.v);
+        let top = dl.voh.first().map_or(voh, |p| p.v);
+        let mut row = Vec::new();
+        for l in &loads {
+            let Some(lf) = cx.rules.families.get(&l.id) else {
+                continue;
+            };
+            let ll = lf.levels(l.vcc, Drive::Standard);
+            let high_margin = voh - ll.vih_min;
+            let low_margin = ll.vil_max - vol;
+            let fanout_low = if ll.iil_max.abs() > 0.0 {
+                (dl.iol_max.abs() / ll.iil_max.abs()).floor()
+            } else {
+                f64::INFINITY
+            };
+            let fanout_high = if ll.iih_max.abs() > 0.0 {
+                (dl.ioh_max.abs() / ll.iih_max.abs()).floor()
+            } else {
+                f64::INFINITY
+            };
+            let limit = lf.input_limit_v(l.vcc);
+            let over_limit = (top > limit + 1e-9).then_some(top - limit);
+            let mut reasons = Vec::new();
+            if high_margin < 0.0 {
+                reasons.push(format!("high short by {:.2} V", -high_margin));
+            }
+            if low_margin < 0.0 {
+                reasons.push(format!("low short by {:.2} V", -low_margin));
+            }
+            if let Some(o) = over_limit {
+                reasons.push(format!(
+                    "high {:.2} V is {:.2} V above the input's limit {:.2} V",
+                    top, o, limit
+                ));
+            }
+            if fanout_low < 1.0 || fanout_high < 1.0 {
+                reasons.push("cannot drive one input".to_string());
+            }
+            let verdict = if !reasons.is_empty() {
+                Verdict::Fail
+            } else if high_margin < marginal_v || low_margin < marginal_v {
+                reasons.push(format!("a margin below {marginal_v:.2} V"));
+                Verdict::Marginal
+            } else {
+                Verdict::Pass
+            };
+            row.push(Cell {
+                high_margin,
+                low_margin,
+                fanout_low,
+                fanout_high,
+                over_limit,
+                verdict,
+                reason: (!reasons.is_empty()).then(|| reasons.join("; ")),
+            });
+        }
+        cells.push(row);
+    }
+    drivers.retain(|d| cx.rules.families.get(&d.id).is_some());
+    loads.retain(|l| cx.rules.families.get(&l.id).is_some());
+    Matrix {
+        drivers,
+        loads,
+        cells,
+        marginal_v,
+    }
+}
+
+fn block_from(
+    diags: &[Diag],
+    source: &SourceFile,
+    check: &'static str,
+    model: impl FnOnce() -> Vec<Row>,
+) -> Block {
+    let rows: Vec<Row> = diags
+        .iter()
+        .filter(|d| d.code == check)
+        .map(|d| Row {
+            subject: d
+                .pins
+                .first()
+                .map(|p| ref_of(p).to_string())
+                .or_else(|| d.net.clone())
+                .unwrap_or_default(),
+            text: d.message.clone(),
+            line: line_of(source, d).0,
+        })
+        .collect();
+    if rows.is_empty() {
+        Block {
+            check,
+            from_findings: false,
+            rows: model(),
+        }
+    } else {
+        Block {
+            check,
+            from_findings: true,
+            rows,
+        }
+    }
+}
+
+fn comp_line(source: &SourceFile, cx: &Circuit<'_, '_>, ci: usize) -> Option<usize> {
+    Some(
+        source
+            .line_col(cx.nl.components[ci].span.start as usize)
+            .line,
+    )
+}
+
+fn pin_list(v: &[String]) -> String {
+    v.join(", ")
+}
+
+fn gather_recapture(source: &SourceFile, cx: &Circuit<'_, '_>, diags: &[Diag]) -> Recapture {
+    let nl = cx.nl;
+    let unclassified = cx
+        .cl
+        .parts
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| {
+            p.kind == PartKind::UnknownIc || (p.kind == PartKind::Logic && !p.is_logic())
+        })
+        .map(|(ci, p)| {
+            let c = &nl.components[ci];
+            Unclassified {
+                reference: c.reference.as_str().to_string(),
+                value: c.value_str().to_string(),
+                libpart: c
+                    .libsource
+                    .as_ref()
+                    .and_then(|l| l.part.as_ref())
+                    .map(|p| p.as_str().to_string()),
+                method: p.method.as_str(),
+                suggestions: p
+                    .suggestions
+                    .iter()
+                    .map(|s| {
+                        (
+                            s.value.clone(),
+                            s.change.clone(),
+                            match s.matched.series {
+                                crate::classify::pattern::Series::S74 => {
+                                    format!("{}{}", s.matched.family, s.matched.function)
+                                }
+                                crate::classify::pattern::Series::S4000 => {
+                                    format!("{} ({})", s.matched.function, s.matched.family)
+                                }
+                            },
+                        )
+                    })
+                    .collect(),
+                line: comp_line(source, cx, ci),
+            }
+        })
+        .collect();
+
+    let roles = block_from(diags, source, "pin-role-mismatch", || {
+        let mut rows = Vec::new();
+        for (ci, p) in cx.cl.parts.iter().enumerate() {
+            let Some((series, fid)) = &p.function else {
+                continue;
+            };
+            let fname = match series {
+                crate::classify::function::Series::S74 => {
+                    format!("{}{fid}", p.family.as_deref().unwrap_or("74"))
+                }
+                _ => fid.clone(),
+            };
+            let c = &nl.components[ci];
+            let (mut as_in, mut as_out) = (Vec::new(), Vec::new());
+            for (pi, pin) in c.pins.iter().enumerate() {
+                if p.role_source[pi] != crate::classify::classifier::RoleSource::Table {
+                    continue;
+                }
+                let r = p.roles[pi];
+                let out_type = matches!(
+                    pin.ptype,
+                    PinType::Output
+                        | PinType::OpenCollector
+                        | PinType::TriState
+                        | PinType::OpenEmitter
+                );
+                if pin.ptype == PinType::Input && r.is_output() && !r.is_input() {
+                    as_in.push(pin.num.to_string());
+                } else if out_type && r.is_input() && !r.is_output() {
+                    as_out.push(pin.num.to_string());
+                }
+            }
+            if as_in.is_empty() && as_out.is_empty() {
+                continue;
+            }
+            let mut parts = Vec::new();
+            if !as_in.is_empty() {
+                parts.push(format!(
+                    "pins {} are typed input in the symbol but are outputs in the {} table",
+                    pin_list(&as_in),
+                    fname
+                ));
+            }
+            if !as_out.is_empty() {
+                parts.push(format!(
+                    "pins {} are typed output in the symbol but are inputs in the {} table",
+                    pin_list(&as_out),
+                    fname
+                ));
+            }
+            rows.push(Row {
+                subject: c.reference.as_str().to_string(),
+                text: format!(
+                    "{} ({}): {}; the table's roles are used",
+                    c.reference,
+                    c.value_str(),
+                    parts.join("; ")
+                ),
+                line: comp_line(source, cx, ci),
+            });
+        }
+        rows
+    });
+
+    let packages = block_from(diags, source, "package-mismatch", || {
+        let mut rows = Vec::new();
+        for (ci, p) in cx.cl.parts.iter().enumerate() {
+            let Some(f) = p
+                .function
+                .as_ref()
+                .and_then(|(s, id)| cx.rules.functions.get(*s, id))
+            else {
+                continue;
+            };
+            let fname = match f.series {
+                crate::classify::function::Series::S74 => {
+                    format!("{}{}", p.family.as_deref().unwrap_or("74"), f.id)
+                }
+                _ => f.id.clone(),
+            };
+            let c = &nl.components[ci];
+            let Some(fp) = c.footprint.as_ref() else {
+                continue;
+            };
+            let Some(pads) = footprint_pins(fp.as_str()) else {
+                continue;
+            };
+            if f.package_pins > 0 && pads != f.package_pins {
+                rows.push(Row {
+                    subject: c.reference.as_str().to_string(),
+                    text: format!(
+                        "{} ({}): footprint `{}` has {} pads, the {} is a {}-pin part",
+                        c.reference,
+                        c.value_str(),
+                        fp.as_str(),
+                        pads,
+                        fname,
+                        f.package_pins
+                    ),
+                    line: Some(source.line_col(fp.span.start as usize).line),
+                });
+            }
+        }
+        rows
+    });
+
+    let unpowered = block_from(diags, source, "unpowered-part", || {
+        let mut rows = Vec::new();
+        for (ci, s) in cx.supplies.iter().enumerate() {
+            let Some(s) = s else { continue };
+            let c = &nl.components[ci];
+            let mut what = Vec::new();
+            match s.supply_net {
+                None => what.push("its supply pin is on no net".to_string()),
+                Some(n) if cx.nets[n].rail.is_some_and(|r| r.ground) => what.push(format!(
+                    "its supply pin is on the ground rail {}",
+                    cx.net_name(n)
+                )),
+                Some(n) if cx.nets[n].rail.is_none() => what.push(format!(
+                    "its supply pin is on {}, which is no rail",
+                    cx.net_name(n)
+                )),
+                _ => {}
+            }
+            if s.ground_net.is_none() {
+                what.push("its ground pin is on no net".to_string());
+            }
+            if !what.is_empty() {
+                rows.push(Row {
+                    subject: c.reference.as_str().to_string(),
+                    text: format!("{} ({}): {}", c.reference, c.value_str(), what.join("; ")),
+                    line: comp_line(source, cx, ci),
+                });
+            }
+        }
+        rows
+    });
+
+    let mut label_nets = Vec::new();
+    for (i, n) in nl.nets.iter().enumerate() {
+        let name = n.name.as_str();
+        if n.nodes.len() != 1 || name.is_empty() {
+            continue;
+        }
+        let bare = name.trim_start_matches('/');
+        let auto = ["Net-(", "unconnected-(", "unconnected-", "Net-"]
+            .iter()
+            .any(|p| bare.starts_with(p));
+        if auto {
+            continue;
+        }
+        let node = &n.nodes[0];
+        label_nets.push(Row {
+            subject: cx.net_name(i),
+            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference.as_str(), node.pin.as_str()),
+            line: Some(source.line_col(n.span.start as usize).line),
+        });
+    }
+
+    let mut pins_off = Vec::new();
+    for c in &nl.components {
+        let absent: Vec<String> = c
+            .pins
+            .iter()
+            .filter(|p| p.connection == Connection::Absent)
+            .map(|p| p.num.to_string())
+            .collect();
+        let alone: Vec<String> = c
+            .pins
+            .iter()
+            .filter(|p| matches!(p.connection, Connection::Alone { .. }))
+            .map(|p| p.num.to_string())
+            .collect();
+        if absent.is_empty() && alone.is_empty() {
+            continue;
+        }
+        pins_off.push(PartPins {
+            reference: c.reference.as_str().to_string(),
+            value: c.value_str().to_string(),
+            absent,
+            alone,
+        });
+    }
+
+    Recapture {
+        unclassified,
+        roles,
+        packages,
+        unpowered,
+        label_nets,
+        pins_off,
+    }
+}
+
+fn gather_sources(cx: &Circuit<'_, '_>, config: Option<String>) -> Sources {
+    let mut families: Vec<(String, String, String, bool)> = Vec::new();
+    let mut functions: Vec<(String, String)> = Vec::new();
+    for (ci, p) in cx.cl.parts.iter().enumerate() {
+        if let Some(f) = cx.family(ci) {
+            if !families.iter().any(|x| x.0 == f.id) {
+                families.push((f.id.clone(), f.name.clone(), f.source.clone(), f.shipped));
+            }
+        }
+        if let Some((s, id)) = &p.function {
+            if let Some(f) = cx.rules.functions.get(*s, id) {
+                let key = format!("{}:{}", s.as_str(), f.id);
+                if !functions.iter().any(|x| x.0 == key) {
+                    functions.push((key, f.source.clone()));
+                }
+            }
+        }
+    }
+    families.sort();
+    functions.sort();
+    Sources {
+        tables: cx.rules.sources.clone(),
+        families,
+        functions,
+        config,
+    }
+}
+
+// ---------------------------------------------------------------------------
+// the command
+
+/// Writes `bytes` to `path` through a temporary file in the same folder and a rename, so a
+/// reader never sees half a report.
+fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    let dir = path
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .map_or("report".into(), |n| n.to_string_lossy().into_owned());
+    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
+    let result = (|| {
+        let mut f = std::fs::File::create(&tmp)?;
+        f.write_all(bytes)?;
+        f.sync_all()?;
+        std::fs::rename(&tmp, path)
+    })();
+    if result.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    result
+}
+
+fn safe_file_part(s: &str) -> String {
+    let t: String = s
+        .trim_start_matches('/')
+        .chars()
+        .map(|c| {
+            if c.is_ascii_alphanumeric() || c == '-' || c == '_' {
+                c
+            } else {
+                '_'
+            }
+        })
+        .collect();
+    if t.is_empty() {
+        "net".into()
+    } else {
+        t
+    }
+}
+
+/// Writes every chart of the audit into `dir` as SVG files; returns their paths.
+pub fn write_charts(audit: &Audit, dir: &Path) -> io::Result<Vec<PathBuf>> {
+    std::fs::create_dir_all(dir)?;
+    let mut out = Vec::new();
+    for i in &audit.interfaces {
+        for d in &i.drivers {
+            let base = format!("{}--{}", safe_file_part(&i.net), safe_file_part(&d.pin));
+            let p = dir.join(format!("{base}-levels.svg"));
+            write_atomic(&p, charts::level_chart(&i.net, d).to_string().as_bytes())?;
+            out.push(p);
+            if let Some(doc) = charts::fanout_chart(&i.net, d, audit.derating) {
+                let p = dir.join(format!("{base}-fanout.svg"));
+                write_atomic(&p, doc.to_string().as_bytes())?;
+                out.push(p);
+            }
+        }
+    }
+    Ok(out)
+}
+
+fn print_failure(f: &FileOutcome, color: bool) -> io::Result<()> {
+    let stderr = io::stderr();
+    let eh = crate::report::human::handler(crate::report::human::HumanStyle { color, width: 100 });
+    crate::report::human::write_file(&mut stderr.lock(), &eh, f)
+}
+
+/// Runs `netmargin audit`; returns the exit code (0 written, 2 the file or configuration
+/// could not be used).
+pub fn command(args: &AuditArgs, read: &ReadOptions, color: bool) -> io::Result<u8> {
+    let name = if args.path == "-" {
+        "<stdin>".to_string()
+    } else {
+        args.path.clone()
+    };
+    let failed = |source: Option<SourceFile>, d: Diag| -> io::Result<u8> {
+        let f = FileOutcome {
+            name: name.clone(),
+            source,
+            fatal: Some(d),
+            diags: Vec::new(),
+            summary: Default::default(),
+            coverage: None,
+            waived: 0,
+        };
+        print_failure(&f, color)?;
+        Ok(2)
+    };
+    // configuration
+    let cfg_path = if args.no_config {
+        None
+    } else if let Some(c) = &args.config {
+        Some(c.clone())
+    } else if args.path == "-" {
+        std::env::current_dir()
+            .ok()
+            .and_then(|d| config::discover(&d))
+    } else {
+        config::discover(Path::new(&args.path))
+    };
+    let mut opts = AuditOptions {
+        nets: args.net.clone(),
+        ..Default::default()
+    };
+    opts.run.read = read.clone();
+    let rules = match &cfg_path {
+        None => Rules::builtin(),
+        Some(p) => match config::load(p).and_then(|c| c.rules().map(|r| (c, r))) {
+            Ok((c, r)) => {
+                c.apply(&mut opts.run);
+                opts.waivers = c.waivers.clone();
+                opts.config = Some(p.display().to_string());
+                r
+            }
+            Err(e) => {
+                let f = FileOutcome {
+                    name: e.source.name().to_string(),
+                    source: Some(e.source.clone()),
+                    fatal: e.diags.first().cloned(),
+                    diags: e.diags.iter().skip(1).cloned().collect(),
+                    summary: Default::default(),
+                    coverage: None,
+                    waived: 0,
+                };
+                print_failure(&f, color)?;
+                return Ok(2);
+            }
+        },
+    };
+    opts.run.model.rails.extend(args.rail.iter().cloned());
+
+    let bytes = match pipeline::read_bytes(&args.path, read) {
+        Ok(b) => b,
+        Err(d) => return failed(None, d),
+    };
+    let source = match crate::input::load(&name, bytes) {
+        Ok(s) => s,
+        Err(e) => return failed(Some(e.source), e.diag),
+    };
+    let audit = match gather(&source, &rules, &opts) {
+        Ok(a) => a,
+        Err(d) => return failed(Some(source), d),
+    };
+    let text = match args.format {
+        AuditFormat::Html => html::render(&audit),
+        AuditFormat::Markdown => markdown::render(&audit),
+    };
+    if let Some(dir) = &args.chart_out {
+        write_charts(&audit, dir).map_err(|e| {
+            io::Error::new(
+                e.kind(),
+                format!("cannot write the charts into `{}`: {e}", dir.display()),
+            )
+        })?;
+    }
+    match &args.output {
+        Some(p) => write_atomic(p, text.as_bytes()).map_err(|e| {
+            io::Error::new(e.kind(), format!("cannot write `{}`: {e}", p.display()))
+        })?,
+        None => {
+            let mut out = io::stdout().lock();
+            out.write_all(text.as_bytes())?;
+            out.flush()?;
+        }
+    }
+    Ok(0)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn pad_counts_from_kicad_footprint_names() {
+        // KiCad's standard library names (common practice)
+        assert_eq!(footprint_pins("Package_DIP:DIP-16_W7.62mm"), Some(16));
+        assert_eq!(
+            footprint_pins("Package_SO:SOIC-14_3.9x8.7mm_P1.27mm"),
+            Some(14)
+        );
+        assert_eq!(
+            footprint_pins("Package_SO:TSSOP-20_4.4x6.5mm_P0.65mm"),
+            Some(20)
+        );
+        assert_eq!(footprint_pins("DIP-14"), Some(14));
+        assert_eq!(
+            footprint_pins("Resistor_THT:R_Axial_DIN0207_L6.3mm_D2.5mm_P10.16mm_Horizontal"),
+            None
+        );
+        assert_eq!(footprint_pins("Capacitor_SMD:C_0805_2012Metric"), None);
+    }
+
+    #[test]
+    fn references_sort_naturally() {
+        let mut v = vec!["U10", "U9", "R1", "U1A"];
+        v.sort_by_key(|x| natural_key(x));
+        assert_eq!(v, ["R1", "U1A", "U9", "U10"]);
+    }
+}
