@@ -21,3 +21,5 @@ pub mod checks;
 pub mod circuit;
 pub mod config;
 pub mod app;
+pub mod atomic;
+pub mod baseline;
