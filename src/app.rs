@@ -232,7 +232,7 @@ pub fn exit_code(outcomes: &[FileOutcome], config_failed: bool, fail_on: Severit
 
 /// What `init` reads from the netlists: their rails, connectors and a finding to shape the
 /// example waiver on. A file that cannot be read comes back as its outcome.
-pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<crate::report::starter::Facts, FileOutcome> {
+pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<crate::report::starter::Facts, Box<FileOutcome>> {
     use crate::report::starter::{ConnectorSeen, Facts, FindingSeen, RailSeen};
     let rules = crate::classify::classifier::Rules::builtin();
     let example_family = ["74LS", "74HC"].into_iter().find(|f| rules.families.get(f).is_some()).map(str::to_string).or_else(|| rules.families.iter().next().map(|f| f.id.clone())).unwrap_or_default();
@@ -241,7 +241,7 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<crate::report:
     for f in files {
         let outcome = pipeline::check_file(f, &rules, &RunOptions { read: read.clone(), ..Default::default() });
         if outcome.fatal.is_some() {
-            return Err(outcome);
+            return Err(Box::new(outcome));
         }
         let source = outcome.source.as_ref().expect("read when not fatal");
         // check_file parsed and built it without a fatal error

@@ -273,7 +273,7 @@ fn init(args: &InitArgs, opts: &ReadOptions, color: ColorChoice) -> std::io::Res
     let facts = match netmargin::app::init_facts(&files, opts) {
         Ok(f) => f,
         Err(o) => {
-            to_stderr(&[o], color)?;
+            to_stderr(&[*o], color)?;
             eprintln!("netmargin: {} not written", args.output.display());
             return Ok(2);
         }
