@@ -23,7 +23,10 @@ pub fn expand_paths(paths: &[String]) -> Vec<String> {
                 .hidden(true)
                 .build()
                 .flatten()
-                .filter(|e| e.file_type().is_some_and(|t| t.is_file()) && e.path().extension().is_some_and(|x| x == "net"))
+                .filter(|e| {
+                    e.file_type().is_some_and(|t| t.is_file())
+                        && e.path().extension().is_some_and(|x| x == "net")
+                })
                 .map(|e| e.path().display().to_string())
                 .collect();
             found.sort();
@@ -103,13 +106,20 @@ pub fn config_for(f: &str, args: &SettingsArgs) -> Option<PathBuf> {
 /// The options a netlist is checked with: the defaults, then the configuration, then the
 /// command line.
 pub fn run_options(cfg: Option<&Config>, args: &SettingsArgs, read: &ReadOptions) -> RunOptions {
-    let mut run = RunOptions { read: read.clone(), ..Default::default() };
+    let mut run = RunOptions {
+        read: read.clone(),
+        ..Default::default()
+    };
     if let Some(c) = cfg {
         c.apply(&mut run);
     }
     // the command line wins over the configuration
     if !args.only.is_empty() {
-        run.checks.disabled = crate::checks::REGISTRY.iter().map(|c| c.id.to_string()).filter(|id| !args.only.contains(id)).collect();
+        run.checks.disabled = crate::checks::REGISTRY
+            .iter()
+            .map(|c| c.id.to_string())
+            .filter(|id| !args.only.contains(id))
+            .collect();
     }
     run.checks.disabled.extend(args.disable.iter().cloned());
     // the model takes the first declaration of a rail: the command line's go first
@@ -139,19 +149,31 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
     let mut outcomes: Vec<FileOutcome> = files
         .par_iter()
         .zip(per_file.par_iter())
-        .map(|(f, cp)| match cp.as_ref().map(|p| loaded.get(p).expect("loaded above")) {
-            Some(Err(_)) => FileOutcome {
-                name: if f == "-" { "<stdin>".into() } else { f.clone() },
-                source: None,
-                fatal: Some(Diag::error("config", format!("not checked: its configuration `{}` has errors (shown below)", cp.as_ref().expect("some").display()))),
-                diags: Vec::new(),
-                summary: Default::default(),
-                coverage: None,
-                waived: 0,
+        .map(
+            |(f, cp)| match cp.as_ref().map(|p| loaded.get(p).expect("loaded above")) {
+                Some(Err(_)) => FileOutcome {
+                    name: if f == "-" {
+                        "<stdin>".into()
+                    } else {
+                        f.clone()
+                    },
+                    source: None,
+                    fatal: Some(Diag::error(
+                        "config",
+                        format!(
+                            "not checked: its configuration `{}` has errors (shown below)",
+                            cp.as_ref().expect("some").display()
+                        ),
+                    )),
+                    diags: Vec::new(),
+                    summary: Default::default(),
+                    coverage: None,
+                    waived: 0,
+                },
+                Some(Ok(l)) => pipeline::check_file(f, &l.rules, &base(Some(&l.config))),
+                None => pipeline::check_file(f, &builtin, &base(None)),
             },
-            Some(Ok(l)) => pipeline::check_file(f, &l.rules, &base(Some(&l.config))),
-            None => pipeline::check_file(f, &builtin, &base(None)),
-        })
+        )
         .collect();
 
     // waivers
@@ -163,7 +185,10 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
             Ok(l) => l,
             Err(e) => {
                 config_failed = true;
-                config_outcomes.push(error_outcome(ConfigError { source: e.source.clone(), diags: e.diags.clone() }));
+                config_outcomes.push(error_outcome(ConfigError {
+                    source: e.source.clone(),
+                    diags: e.diags.clone(),
+                }));
                 continue;
             }
         };
@@ -195,9 +220,15 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
                 );
             } else if !used[i] {
                 diags.push(
-                    Diag::warning("stale-waiver", format!("this waiver for `{}` matched no finding in this run", w.check))
-                        .at(w.span, "matched nothing")
-                        .with_help("remove it, or correct its refs, pins or nets"),
+                    Diag::warning(
+                        "stale-waiver",
+                        format!(
+                            "this waiver for `{}` matched no finding in this run",
+                            w.check
+                        ),
+                    )
+                    .at(w.span, "matched nothing")
+                    .with_help("remove it, or correct its refs, pins or nets"),
                 );
             }
         }
@@ -215,7 +246,11 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
     }
     let netlists = outcomes.len();
     outcomes.extend(config_outcomes);
-    Run { outcomes, netlists, config_failed }
+    Run {
+        outcomes,
+        netlists,
+        config_failed,
+    }
 }
 
 /// The exit code: 2 when a file or a configuration could not be used, 1 when a finding is
@@ -223,7 +258,10 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
 pub fn exit_code(outcomes: &[FileOutcome], config_failed: bool, fail_on: Severity) -> u8 {
     if config_failed || outcomes.iter().any(|o| o.fatal.is_some()) {
         2
-    } else if outcomes.iter().any(|o| o.diags.iter().any(|d| d.severity >= fail_on)) {
+    } else if outcomes
+        .iter()
+        .any(|o| o.diags.iter().any(|d| d.severity >= fail_on))
+    {
         1
     } else {
         0
@@ -232,14 +270,35 @@ pub fn exit_code(outcomes: &[FileOutcome], config_failed: bool, fail_on: Severit
 
 /// What `init` reads from the netlists: their rails, connectors and a finding to shape the
 /// example waiver on. A file that cannot be read comes back as its outcome.
-pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<crate::report::starter::Facts, Box<FileOutcome>> {
+pub fn init_facts(
+    files: &[String],
+    read: &ReadOptions,
+) -> Result<crate::report::starter::Facts, Box<FileOutcome>> {
     use crate::report::starter::{ConnectorSeen, Facts, FindingSeen, RailSeen};
     let rules = crate::classify::classifier::Rules::builtin();
-    let example_family = ["74LS", "74HC"].into_iter().find(|f| rules.families.get(f).is_some()).map(str::to_string).or_else(|| rules.families.iter().next().map(|f| f.id.clone())).unwrap_or_default();
+    let example_family = ["74LS", "74HC"]
+        .into_iter()
+        .find(|f| rules.families.get(f).is_some())
+        .map(str::to_string)
+        .or_else(|| rules.families.iter().next().map(|f| f.id.clone()))
+        .unwrap_or_default();
     let (y, m, d) = config::today();
-    let mut facts = Facts { netlists: files.to_vec(), example_family, derating: crate::checks::CheckOptions::default().derating, expires: (y + 1, m, d.min(28)), ..Default::default() };
+    let mut facts = Facts {
+        netlists: files.to_vec(),
+        example_family,
+        derating: crate::checks::CheckOptions::default().derating,
+        expires: (y + 1, m, d.min(28)),
+        ..Default::default()
+    };
     for f in files {
-        let outcome = pipeline::check_file(f, &rules, &RunOptions { read: read.clone(), ..Default::default() });
+        let outcome = pipeline::check_file(
+            f,
+            &rules,
+            &RunOptions {
+                read: read.clone(),
+                ..Default::default()
+            },
+        );
         if outcome.fatal.is_some() {
             return Err(Box::new(outcome));
         }
@@ -255,7 +314,12 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<crate::report:
             if facts.rails.iter().any(|r| r.name == name) {
                 continue;
             }
-            facts.rails.push(RailSeen { name, volts: rail.v(), ground: rail.ground, pins: nl.nets[i].nodes.len() });
+            facts.rails.push(RailSeen {
+                name,
+                volts: rail.v(),
+                ground: rail.ground,
+                pins: nl.nets[i].nodes.len(),
+            });
         }
         for (ci, c) in nl.components.iter().enumerate() {
             if cl.parts[ci].kind != crate::classify::classifier::PartKind::Connector {
@@ -265,12 +329,23 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<crate::report:
             if facts.connectors.iter().any(|x| x.reference == reference) {
                 continue;
             }
-            let pins = c.pins.iter().filter(|p| p.connection.net().is_some()).count();
-            facts.connectors.push(ConnectorSeen { reference, value: c.value_str().to_string(), pins });
+            let pins = c
+                .pins
+                .iter()
+                .filter(|p| p.connection.net().is_some())
+                .count();
+            facts.connectors.push(ConnectorSeen {
+                reference,
+                value: c.value_str().to_string(),
+                pins,
+            });
         }
         if facts.finding.is_none() {
             let is_check = |d: &&Diag| crate::checks::info(&d.code).is_some() && !d.pins.is_empty();
-            facts.finding = outcome.diags.iter().find(is_check).map(|d| FindingSeen { check: d.code.clone(), pins: d.pins.clone() });
+            facts.finding = outcome.diags.iter().find(is_check).map(|d| FindingSeen {
+                check: d.code.clone(),
+                pins: d.pins.clone(),
+            });
         }
     }
     Ok(facts)

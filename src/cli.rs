@@ -49,16 +49,24 @@ pub enum Command {
     /// Show the whole DC budget of one net: drivers, loads, pull resistors, levels and margins
     Net(NetArgs),
     /// Record the findings netlists have now, so `check --baseline` reports only new ones
-    #[command(after_help = "Examples:\n  netmargin baseline hardware/\n  netmargin baseline -o ci/netmargin-baseline.json hardware/*.net\n  netmargin check --baseline ci/netmargin-baseline.json hardware/")]
+    #[command(
+        after_help = "Examples:\n  netmargin baseline hardware/\n  netmargin baseline -o ci/netmargin-baseline.json hardware/*.net\n  netmargin check --baseline ci/netmargin-baseline.json hardware/"
+    )]
     Baseline(BaselineArgs),
     /// Show the configuration a netlist is checked with, and where each value comes from
-    #[command(after_help = "Examples:\n  netmargin config --show\n  netmargin config --show hardware/board.net\n  netmargin config --show --rail VCC=5 hardware/")]
+    #[command(
+        after_help = "Examples:\n  netmargin config --show\n  netmargin config --show hardware/board.net\n  netmargin config --show --rail VCC=5 hardware/"
+    )]
     Config(ConfigArgs),
     /// Write a commented starter netmargin.toml from a netlist's rails and connectors
-    #[command(after_help = "Examples:\n  netmargin init hardware/board.net\n  netmargin init -o hardware/netmargin.toml hardware/board.net\n  netmargin init --force")]
+    #[command(
+        after_help = "Examples:\n  netmargin init hardware/board.net\n  netmargin init -o hardware/netmargin.toml hardware/board.net\n  netmargin init --force"
+    )]
     Init(InitArgs),
     /// Print a shell completion script
-    #[command(after_help = "Examples:\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin\n  netmargin completions zsh > ~/.zfunc/_netmargin\n  netmargin completions fish > ~/.config/fish/completions/netmargin.fish")]
+    #[command(
+        after_help = "Examples:\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin\n  netmargin completions zsh > ~/.zfunc/_netmargin\n  netmargin completions fish > ~/.config/fish/completions/netmargin.fish"
+    )]
     Completions(CompletionsArgs),
     /// Print the man page (roff)
     #[command(after_help = "Example:\n  netmargin man > netmargin.1 && man ./netmargin.1")]
@@ -198,8 +206,14 @@ pub struct CheckArgs {
 }
 
 fn parse_rail(s: &str) -> Result<(String, f64), String> {
-    let (n, v) = s.split_once('=').ok_or_else(|| format!("expected NAME=VOLTS, found `{s}`"))?;
-    let v: f64 = v.trim().trim_end_matches(['V', 'v']).parse().map_err(|_| format!("`{v}` is not a voltage"))?;
+    let (n, v) = s
+        .split_once('=')
+        .ok_or_else(|| format!("expected NAME=VOLTS, found `{s}`"))?;
+    let v: f64 = v
+        .trim()
+        .trim_end_matches(['V', 'v'])
+        .parse()
+        .map_err(|_| format!("`{v}` is not a voltage"))?;
     if n.trim().is_empty() || !v.is_finite() {
         return Err(format!("expected NAME=VOLTS, found `{s}`"));
     }

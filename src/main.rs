@@ -31,12 +31,16 @@ fn color_on(choice: ColorChoice, stream_is_tty: bool) -> bool {
     match choice {
         ColorChoice::Always => true,
         ColorChoice::Never => false,
-        ColorChoice::Auto => stream_is_tty && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty()),
+        ColorChoice::Auto => {
+            stream_is_tty && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+        }
     }
 }
 
 fn run(cli: Cli) -> std::io::Result<u8> {
-    let opts = ReadOptions { max_bytes: cli.global.max_bytes };
+    let opts = ReadOptions {
+        max_bytes: cli.global.max_bytes,
+    };
     match cli.command {
         Command::Check(args) => {
             if !known_checks(&args.settings) {
@@ -48,7 +52,8 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let color = color_on(cli.global.color, stdout.is_terminal());
             let ropts = args.report.options(color, 100)?;
             let mut out = stdout.lock();
-            let written = netmargin::report::write_report(&ropts, &outcomes, &mut out).and_then(|()| out.flush());
+            let written = netmargin::report::write_report(&ropts, &outcomes, &mut out)
+                .and_then(|()| out.flush());
             match written {
                 // the reader stopped reading (`| head`): the run is complete, its code stands
                 Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(code),
@@ -87,7 +92,10 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let mut out = std::io::stdout().lock();
             if f.fatal.is_some() {
                 let stderr = std::io::stderr();
-                let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
+                let eh = human::handler(HumanStyle {
+                    color: color_on(cli.global.color, stderr.is_terminal()),
+                    width: 100,
+                });
                 human::write_file(&mut stderr.lock(), &eh, &f)?;
                 return Ok(2);
             }
@@ -95,7 +103,13 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let tree = netmargin::sexpr::parse(source.text()).expect("parsed once already");
             let nl = netmargin::netlist::build(&tree).expect("built once already");
             let cl = netmargin::classify::classifier::classify(&nl, &rules);
-            netmargin::report::parts::write_parts(&mut out, &f.name, &nl, &cl, args.format == netmargin::cli::ListFormat::Json)?;
+            netmargin::report::parts::write_parts(
+                &mut out,
+                &f.name,
+                &nl,
+                &cl,
+                args.format == netmargin::cli::ListFormat::Json,
+            )?;
             out.flush()?;
             Ok(0)
         }
@@ -116,7 +130,10 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let f = pipeline::read_file(&args.path, &opts);
             if f.fatal.is_some() {
                 let stderr = std::io::stderr();
-                let eh = human::handler(HumanStyle { color: color_on(cli.global.color, stderr.is_terminal()), width: 100 });
+                let eh = human::handler(HumanStyle {
+                    color: color_on(cli.global.color, stderr.is_terminal()),
+                    width: 100,
+                });
                 human::write_file(&mut stderr.lock(), &eh, &f)?;
                 return Ok(2);
             }
@@ -125,10 +142,16 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let tree = netmargin::sexpr::parse(source.text()).expect("parsed once already");
             let nl = netmargin::netlist::build(&tree).expect("built once already");
             let cl = netmargin::classify::classifier::classify(&nl, &rules);
-            let model = netmargin::circuit::ModelOptions { rails: args.rail.clone(), ..Default::default() };
+            let model = netmargin::circuit::ModelOptions {
+                rails: args.rail.clone(),
+                ..Default::default()
+            };
             let cx = netmargin::circuit::build(&nl, &cl, &rules, model);
             let want = args.net.trim_start_matches('/');
-            let Some(net) = (0..nl.nets.len()).find(|&i| nl.nets[i].name.as_str() == args.net || nl.nets[i].name.as_str().trim_start_matches('/') == want) else {
+            let Some(net) = (0..nl.nets.len()).find(|&i| {
+                nl.nets[i].name.as_str() == args.net
+                    || nl.nets[i].name.as_str().trim_start_matches('/') == want
+            }) else {
                 eprintln!("netmargin: no net `{}` in {}", args.net, f.name);
                 return Ok(2);
             };
@@ -139,7 +162,12 @@ fn run(cli: Cli) -> std::io::Result<u8> {
         Command::Families(args) => {
             let rules = netmargin::classify::classifier::Rules::builtin();
             let mut out = std::io::stdout().lock();
-            netmargin::report::parts::write_families(&mut out, &rules, args.supply, args.format == netmargin::cli::ListFormat::Json)?;
+            netmargin::report::parts::write_families(
+                &mut out,
+                &rules,
+                args.supply,
+                args.format == netmargin::cli::ListFormat::Json,
+            )?;
             out.flush()?;
             Ok(0)
         }
@@ -159,7 +187,10 @@ fn known_checks(s: &SettingsArgs) -> bool {
 /// Shows outcomes on standard error in the human format (findings and summary lines).
 fn to_stderr(outcomes: &[FileOutcome], color: ColorChoice) -> std::io::Result<()> {
     let stderr = std::io::stderr();
-    let eh = human::handler(HumanStyle { color: color_on(color, stderr.is_terminal()), width: 100 });
+    let eh = human::handler(HumanStyle {
+        color: color_on(color, stderr.is_terminal()),
+        width: 100,
+    });
     let mut err = stderr.lock();
     for o in outcomes {
         human::write_file(&mut err, &eh, o)?;
@@ -170,16 +201,30 @@ fn to_stderr(outcomes: &[FileOutcome], color: ColorChoice) -> std::io::Result<()
 fn baseline(args: &BaselineArgs, opts: &ReadOptions, color: ColorChoice) -> std::io::Result<u8> {
     let files = netmargin::app::expand_paths(&args.paths);
     if files.is_empty() {
-        eprintln!("netmargin: no `.net` files in {}; baseline not written", args.paths.join(", "));
+        eprintln!(
+            "netmargin: no `.net` files in {}; baseline not written",
+            args.paths.join(", ")
+        );
         return Ok(2);
     }
     let run = netmargin::app::check_paths(&args.paths, &args.settings, opts);
     let (netlists, others) = run.outcomes.split_at(run.netlists);
     let failed: Vec<&FileOutcome> = netlists.iter().filter(|o| o.fatal.is_some()).collect();
     if run.config_failed || !failed.is_empty() {
-        let bad: Vec<FileOutcome> = run.outcomes.into_iter().filter(|o| o.fatal.is_some()).collect();
+        let bad: Vec<FileOutcome> = run
+            .outcomes
+            .into_iter()
+            .filter(|o| o.fatal.is_some())
+            .collect();
         to_stderr(&bad, color)?;
-        eprintln!("netmargin: baseline not written: {} could not be checked", if bad.len() == 1 { "1 file".to_string() } else { format!("{} files", bad.len()) });
+        eprintln!(
+            "netmargin: baseline not written: {} could not be checked",
+            if bad.len() == 1 {
+                "1 file".to_string()
+            } else {
+                format!("{} files", bad.len())
+            }
+        );
         return Ok(2);
     }
     // stale or expired waivers: worth seeing, not a reason to refuse
@@ -189,11 +234,15 @@ fn baseline(args: &BaselineArgs, opts: &ReadOptions, color: ColorChoice) -> std:
     let text = netmargin::baseline::render(netlists, &base, &cwd);
     let target = cwd.join(&args.output);
     let written = match target.parent() {
-        Some(dir) => std::fs::create_dir_all(dir).and_then(|()| netmargin::atomic::write(&target, text.as_bytes())),
+        Some(dir) => std::fs::create_dir_all(dir)
+            .and_then(|()| netmargin::atomic::write(&target, text.as_bytes())),
         None => netmargin::atomic::write(&target, text.as_bytes()),
     };
     if let Err(e) = written {
-        eprintln!("netmargin: cannot write the baseline `{}`: {e}", args.output.display());
+        eprintln!(
+            "netmargin: cannot write the baseline `{}`: {e}",
+            args.output.display()
+        );
         return Ok(2);
     }
     let findings: usize = netlists.iter().map(|o| o.diags.len()).sum();
@@ -201,8 +250,16 @@ fn baseline(args: &BaselineArgs, opts: &ReadOptions, color: ColorChoice) -> std:
     let mut line = format!(
         "wrote {}: {} in {}",
         args.output.display(),
-        if findings == 1 { "1 finding".to_string() } else { format!("{findings} findings") },
-        if netlists.len() == 1 { "1 file".to_string() } else { format!("{} files", netlists.len()) }
+        if findings == 1 {
+            "1 finding".to_string()
+        } else {
+            format!("{findings} findings")
+        },
+        if netlists.len() == 1 {
+            "1 file".to_string()
+        } else {
+            format!("{} files", netlists.len())
+        }
     );
     if waived > 0 {
         line.push_str(&format!(" ({waived} more covered by waivers, left out)"));
@@ -248,11 +305,20 @@ fn show_config(args: &ConfigArgs, color: ColorChoice) -> std::io::Result<u8> {
         for f in netmargin::app::expand_paths(std::slice::from_ref(&target)) {
             let c = netmargin::app::config_for(&f, &args.settings);
             if c != cfg_path {
-                *others.entry(c.map_or_else(|| "no configuration".to_string(), |p| p.display().to_string())).or_default() += 1;
+                *others
+                    .entry(c.map_or_else(
+                        || "no configuration".to_string(),
+                        |p| p.display().to_string(),
+                    ))
+                    .or_default() += 1;
             }
         }
         for (c, n) in others {
-            text.push_str(&format!("\n# note: {n} netlist{} below use {}\n", if n == 1 { "" } else { "s" }, netmargin::text::sanitize(&c)));
+            text.push_str(&format!(
+                "\n# note: {n} netlist{} below use {}\n",
+                if n == 1 { "" } else { "s" },
+                netmargin::text::sanitize(&c)
+            ));
         }
     }
     let mut out = std::io::stdout().lock();
@@ -264,10 +330,16 @@ fn show_config(args: &ConfigArgs, color: ColorChoice) -> std::io::Result<u8> {
 fn init(args: &InitArgs, opts: &ReadOptions, color: ColorChoice) -> std::io::Result<u8> {
     let files = match &args.netlist {
         Some(n) => vec![n.clone()],
-        None => netmargin::app::expand_paths(&[".".to_string()]).into_iter().map(|f| f.strip_prefix("./").map(str::to_string).unwrap_or(f)).collect(),
+        None => netmargin::app::expand_paths(&[".".to_string()])
+            .into_iter()
+            .map(|f| f.strip_prefix("./").map(str::to_string).unwrap_or(f))
+            .collect(),
     };
     if !args.force && args.output.exists() {
-        eprintln!("netmargin: `{}` already exists; not replaced (use --force to replace it)", args.output.display());
+        eprintln!(
+            "netmargin: `{}` already exists; not replaced (use --force to replace it)",
+            args.output.display()
+        );
         return Ok(2);
     }
     let facts = match netmargin::app::init_facts(&files, opts) {
@@ -279,17 +351,28 @@ fn init(args: &InitArgs, opts: &ReadOptions, color: ColorChoice) -> std::io::Res
         }
     };
     let text = netmargin::report::starter::render(&facts);
-    let mode = if args.force { netmargin::atomic::Existing::Replace } else { netmargin::atomic::Existing::Keep };
+    let mode = if args.force {
+        netmargin::atomic::Existing::Replace
+    } else {
+        netmargin::atomic::Existing::Keep
+    };
     if let Err(e) = netmargin::atomic::write_with(&args.output, text.as_bytes(), mode) {
         if e.kind() == std::io::ErrorKind::AlreadyExists {
-            eprintln!("netmargin: `{}` already exists; not replaced (use --force to replace it)", args.output.display());
+            eprintln!(
+                "netmargin: `{}` already exists; not replaced (use --force to replace it)",
+                args.output.display()
+            );
         } else {
             eprintln!("netmargin: cannot write `{}`: {e}", args.output.display());
         }
         return Ok(2);
     }
     let supplies = facts.rails.iter().filter(|r| !r.ground).count();
-    let unknown = facts.rails.iter().filter(|r| !r.ground && r.volts.is_none()).count();
+    let unknown = facts
+        .rails
+        .iter()
+        .filter(|r| !r.ground && r.volts.is_none())
+        .count();
     let mut out = std::io::stdout().lock();
     write!(
         out,
@@ -305,7 +388,8 @@ fn init(args: &InitArgs, opts: &ReadOptions, color: ColorChoice) -> std::io::Res
     // a netlist that would not find the new file
     let written = std::fs::canonicalize(&args.output).ok();
     for f in &files {
-        let found = netmargin::config::discover(std::path::Path::new(f)).and_then(|p| std::fs::canonicalize(p).ok());
+        let found = netmargin::config::discover(std::path::Path::new(f))
+            .and_then(|p| std::fs::canonicalize(p).ok());
         if written.is_some() && found != written {
             writeln!(out, "note: {f} is not in the folder of {} or below it, so it does not use it; pass --config {}", args.output.display(), args.output.display())?;
         }
