@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 
 use rayon::prelude::*;
 
-use crate::cli::CheckArgs;
+use crate::cli::{CheckArgs, SettingsArgs};
 use crate::config::{self, Config, ConfigError};
 use crate::diag::{Diag, Severity};
 use crate::pipeline::{self, FileOutcome, ReadOptions, RunOptions};
@@ -23,7 +23,10 @@ pub fn expand_paths(paths: &[String]) -> Vec<String> {
                 .hidden(true)
                 .build()
                 .flatten()
-                .filter(|e| e.file_type().is_some_and(|t| t.is_file()) && e.path().extension().is_some_and(|x| x == "net"))
+                .filter(|e| {
+                    e.file_type().is_some_and(|t| t.is_file())
+                        && e.path().extension().is_some_and(|x| x == "net")
+                })
                 .map(|e| e.path().display().to_string())
                 .collect();
             found.sort();
@@ -41,24 +44,96 @@ struct Loaded {
     rules: crate::classify::classifier::Rules,
 }
 
-/// Runs `check`: the outcomes in order (netlists, then configuration files that have
-/// something to say) and whether a configuration could not be used.
+/// What a run produced.
+#[derive(Debug)]
+pub struct Run {
+    /// The netlists' outcomes in order, then those of configuration (and baseline) files
+    /// that have something to say.
+    pub outcomes: Vec<FileOutcome>,
+    /// How many of `outcomes` (from the start) are netlists.
+    pub netlists: usize,
+    /// A configuration or the baseline could not be used.
+    pub config_failed: bool,
+}
+
+/// Runs `check`: the outcomes in order (netlists, then configuration and baseline files
+/// that have something to say) and whether a configuration or the baseline could not be
+/// used. With `--baseline`, the baseline's findings are taken out after the waivers.
 pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
-    let files = expand_paths(&args.paths);
-    // which configuration each file uses
-    let cfg_path = |f: &str| -> Option<PathBuf> {
-        if args.no_config {
-            return None;
-        }
-        if let Some(c) = &args.config {
-            return Some(c.clone());
-        }
-        if f == "-" {
-            return config::discover(&std::env::current_dir().ok()?);
-        }
-        config::discover(Path::new(f))
+    let cwd = std::env::current_dir().unwrap_or_else(|_| PathBuf::from("."));
+    let baseline = match &args.baseline {
+        None => None,
+        Some(p) => match crate::baseline::load(p, &cwd) {
+            Ok(b) => Some(b),
+            Err(e) => return (vec![error_outcome(e)], true),
+        },
     };
-    let per_file: Vec<Option<PathBuf>> = files.iter().map(|f| cfg_path(f)).collect();
+    let mut run = check_paths(&args.paths, &args.settings, read);
+    if let Some(b) = baseline {
+        let (_, stale) = b.apply(&mut run.outcomes[..run.netlists], &cwd, args.verbose);
+        run.outcomes.extend(stale);
+    }
+    (run.outcomes, run.config_failed)
+}
+
+/// The outcome that shows a configuration's (or a baseline's) errors.
+fn error_outcome(e: ConfigError) -> FileOutcome {
+    FileOutcome {
+        name: e.source.name().to_string(),
+        source: Some(e.source.clone()),
+        fatal: e.diags.first().cloned(),
+        diags: e.diags.iter().skip(1).cloned().collect(),
+        summary: Default::default(),
+        coverage: None,
+        waived: 0,
+    }
+}
+
+/// Which configuration file a netlist named `f` uses under these settings.
+pub fn config_for(f: &str, args: &SettingsArgs) -> Option<PathBuf> {
+    if args.no_config {
+        return None;
+    }
+    if let Some(c) = &args.config {
+        return Some(c.clone());
+    }
+    if f == "-" {
+        return config::discover(&std::env::current_dir().ok()?);
+    }
+    config::discover(Path::new(f))
+}
+
+/// The options a netlist is checked with: the defaults, then the configuration, then the
+/// command line.
+pub fn run_options(cfg: Option<&Config>, args: &SettingsArgs, read: &ReadOptions) -> RunOptions {
+    let mut run = RunOptions {
+        read: read.clone(),
+        ..Default::default()
+    };
+    if let Some(c) = cfg {
+        c.apply(&mut run);
+    }
+    // the command line wins over the configuration
+    if !args.only.is_empty() {
+        run.checks.disabled = crate::checks::REGISTRY
+            .iter()
+            .map(|c| c.id.to_string())
+            .filter(|id| !args.only.contains(id))
+            .collect();
+    }
+    run.checks.disabled.extend(args.disable.iter().cloned());
+    // the model takes the first declaration of a rail: the command line's go first
+    let from_config = std::mem::take(&mut run.model.rails);
+    run.model.rails = args.rail.iter().cloned().chain(from_config).collect();
+    run
+}
+
+/// Checks the netlists named by `paths` (folders expanded) with their configurations and
+/// waivers.
+pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) -> Run {
+    let files = expand_paths(paths);
+    // which configuration each file uses
+    let per_file: Vec<Option<PathBuf>> = files.iter().map(|f| config_for(f, args)).collect();
     let mut loaded: BTreeMap<PathBuf, Result<Loaded, ConfigError>> = BTreeMap::new();
     for p in per_file.iter().flatten() {
         if !loaded.contains_key(p) {
@@ -70,19 +145,7 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
         }
     }
     let builtin = crate::classify::classifier::Rules::builtin();
-    let base = |cfg: Option<&Config>| {
-        let mut run = RunOptions { read: read.clone(), ..Default::default() };
-        if let Some(c) = cfg {
-            c.apply(&mut run);
-        }
-        // the command line wins over the configuration
-        if !args.only.is_empty() {
-            run.checks.disabled = crate::checks::REGISTRY.iter().map(|c| c.id.to_string()).filter(|id| !args.only.contains(id)).collect();
-        }
-        run.checks.disabled.extend(args.disable.iter().cloned());
-        run.model.rails.extend(args.rail.iter().cloned());
-        run
-    };
+    let base = |cfg: Option<&Config>| run_options(cfg, args, read);
     let results: Vec<(FileOutcome, pipeline::UsedRules)> = files
         .par_iter()
         .zip(per_file.par_iter())
@@ -111,15 +174,10 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
             Ok(l) => l,
             Err(e) => {
                 config_failed = true;
-                config_outcomes.push(FileOutcome {
-                    name: e.source.name().to_string(),
-                    source: Some(e.source.clone()),
-                    fatal: e.diags.first().cloned(),
-                    diags: e.diags.iter().skip(1).cloned().collect(),
-                    summary: Default::default(),
-                    coverage: None,
-                waived: 0,
-                });
+                config_outcomes.push(error_outcome(ConfigError {
+                    source: e.source.clone(),
+                    diags: e.diags.clone(),
+                }));
                 continue;
             }
         };
@@ -170,9 +228,15 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
                 );
             } else if !used[i] {
                 diags.push(
-                    Diag::warning("stale-waiver", format!("this waiver for `{}` matched no finding in this run", w.check))
-                        .at(w.span, "matched nothing")
-                        .with_help("remove it, or correct its refs, pins or nets"),
+                    Diag::warning(
+                        "stale-waiver",
+                        format!(
+                            "this waiver for `{}` matched no finding in this run",
+                            w.check
+                        ),
+                    )
+                    .at(w.span, "matched nothing")
+                    .with_help("remove it, or correct its refs, pins or nets"),
                 );
             }
         }
@@ -188,8 +252,13 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
             });
         }
     }
+    let netlists = outcomes.len();
     outcomes.extend(config_outcomes);
-    (outcomes, config_failed)
+    Run {
+        outcomes,
+        netlists,
+        config_failed,
+    }
 }
 
 /// The exit code: 2 when a file or a configuration could not be used, 1 when a finding is
@@ -197,9 +266,95 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
 pub fn exit_code(outcomes: &[FileOutcome], config_failed: bool, fail_on: Severity) -> u8 {
     if config_failed || outcomes.iter().any(|o| o.fatal.is_some()) {
         2
-    } else if outcomes.iter().any(|o| o.diags.iter().any(|d| d.severity >= fail_on)) {
+    } else if outcomes
+        .iter()
+        .any(|o| o.diags.iter().any(|d| d.severity >= fail_on))
+    {
         1
     } else {
         0
     }
+}
+
+/// What `init` reads from the netlists: their rails, connectors and a finding to shape the
+/// example waiver on. A file that cannot be read comes back as its outcome.
+pub fn init_facts(
+    files: &[String],
+    read: &ReadOptions,
+) -> Result<crate::report::starter::Facts, Box<FileOutcome>> {
+    use crate::report::starter::{ConnectorSeen, Facts, FindingSeen, RailSeen};
+    let rules = crate::classify::classifier::Rules::builtin();
+    let example_family = ["74LS", "74HC"]
+        .into_iter()
+        .find(|f| rules.families.get(f).is_some())
+        .map(str::to_string)
+        .or_else(|| rules.families.iter().next().map(|f| f.id.clone()))
+        .unwrap_or_default();
+    let (y, m, d) = config::today();
+    let mut facts = Facts {
+        netlists: files.to_vec(),
+        example_family,
+        derating: crate::checks::CheckOptions::default().derating,
+        expires: (y + 1, m, d.min(28)),
+        ..Default::default()
+    };
+    for f in files {
+        let outcome = pipeline::check_file(
+            f,
+            &rules,
+            &RunOptions {
+                read: read.clone(),
+                ..Default::default()
+            },
+        );
+        if outcome.fatal.is_some() {
+            return Err(Box::new(outcome));
+        }
+        let source = outcome.source.as_ref().expect("read when not fatal");
+        // check_file parsed and built it without a fatal error
+        let tree = crate::sexpr::parse(source.text()).expect("parsed once already");
+        let nl = crate::netlist::build(&tree).expect("built once already");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        for (i, net) in cx.nets.iter().enumerate() {
+            let Some(rail) = net.rail else { continue };
+            let name = nl.nets[i].name.as_str().to_string();
+            if facts.rails.iter().any(|r| r.name == name) {
+                continue;
+            }
+            facts.rails.push(RailSeen {
+                name,
+                volts: rail.v(),
+                ground: rail.ground,
+                pins: nl.nets[i].nodes.len(),
+            });
+        }
+        for (ci, c) in nl.components.iter().enumerate() {
+            if cl.parts[ci].kind != crate::classify::classifier::PartKind::Connector {
+                continue;
+            }
+            let reference = c.reference.as_str().to_string();
+            if facts.connectors.iter().any(|x| x.reference == reference) {
+                continue;
+            }
+            let pins = c
+                .pins
+                .iter()
+                .filter(|p| p.connection.net().is_some())
+                .count();
+            facts.connectors.push(ConnectorSeen {
+                reference,
+                value: c.value_str().to_string(),
+                pins,
+            });
+        }
+        if facts.finding.is_none() {
+            let is_check = |d: &&Diag| crate::checks::info(&d.code).is_some() && !d.pins.is_empty();
+            facts.finding = outcome.diags.iter().find(is_check).map(|d| FindingSeen {
+                check: d.code.clone(),
+                pins: d.pins.clone(),
+            });
+        }
+    }
+    Ok(facts)
 }

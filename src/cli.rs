@@ -10,7 +10,7 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
     about = "Checks KiCad netlists for logic-family interface mistakes",
     long_about = "Reads KiCad S-expression netlists (.net) and checks every net against the DC data of the \
 logic families on it: floating CMOS inputs, fan-out, TTL highs into CMOS inputs, open-collector pull-ups and more.",
-    after_help = "Examples:\n  netmargin check board.net\n  netmargin check --format short hardware/*.net\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -"
+    after_help = "Examples:\n  netmargin check board.net\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
 )]
 pub struct Cli {
     #[command(subcommand)]
@@ -50,6 +50,94 @@ pub enum Command {
     Net(NetArgs),
     /// Write a report of a whole board (HTML with level charts, or Markdown)
     Audit(crate::audit::AuditArgs),
+    /// Record the findings netlists have now, so `check --baseline` reports only new ones
+    #[command(
+        after_help = "Examples:\n  netmargin baseline hardware/\n  netmargin baseline -o ci/netmargin-baseline.json hardware/*.net\n  netmargin check --baseline ci/netmargin-baseline.json hardware/"
+    )]
+    Baseline(BaselineArgs),
+    /// Show the configuration a netlist is checked with, and where each value comes from
+    #[command(
+        after_help = "Examples:\n  netmargin config --show\n  netmargin config --show hardware/board.net\n  netmargin config --show --rail VCC=5 hardware/"
+    )]
+    Config(ConfigArgs),
+    /// Write a commented starter netmargin.toml from a netlist's rails and connectors
+    #[command(
+        after_help = "Examples:\n  netmargin init hardware/board.net\n  netmargin init -o hardware/netmargin.toml hardware/board.net\n  netmargin init --force"
+    )]
+    Init(InitArgs),
+    /// Print a shell completion script
+    #[command(
+        after_help = "Examples:\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin\n  netmargin completions zsh > ~/.zfunc/_netmargin\n  netmargin completions fish > ~/.config/fish/completions/netmargin.fish"
+    )]
+    Completions(CompletionsArgs),
+    /// Print the man page (roff)
+    #[command(after_help = "Example:\n  netmargin man > netmargin.1 && man ./netmargin.1")]
+    Man,
+}
+
+#[derive(Debug, Args)]
+pub struct BaselineArgs {
+    /// Netlist files or folders (folders are searched for `*.net`, honouring .gitignore)
+    #[arg(required = true, value_name = "PATH")]
+    pub paths: Vec<String>,
+    /// The baseline file to write
+    #[arg(long, short = 'o', value_name = "FILE", default_value = crate::baseline::DEFAULT_FILE)]
+    pub output: std::path::PathBuf,
+    #[command(flatten)]
+    pub settings: SettingsArgs,
+}
+
+/// The options that shape a check, shared by `check`, `baseline` and `config --show`.
+#[derive(Debug, Clone, Default, Args)]
+pub struct SettingsArgs {
+    /// Run only this check (repeatable)
+    #[arg(long, value_name = "CHECK")]
+    pub only: Vec<String>,
+    /// Turn this check off (repeatable)
+    #[arg(long, value_name = "CHECK")]
+    pub disable: Vec<String>,
+    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
+    #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
+    pub rail: Vec<(String, f64)>,
+    /// The project configuration [default: the nearest netmargin.toml at or above each netlist]
+    #[arg(long, value_name = "FILE")]
+    pub config: Option<std::path::PathBuf>,
+    /// Ignore any netmargin.toml
+    #[arg(long, conflicts_with = "config")]
+    pub no_config: bool,
+}
+
+#[derive(Debug, Args)]
+pub struct ConfigArgs {
+    /// Show the merged configuration
+    #[arg(long, required = true)]
+    pub show: bool,
+    /// The netlist or folder whose configuration to show [default: the current folder]
+    #[arg(value_name = "PATH")]
+    pub path: Option<String>,
+    #[command(flatten)]
+    pub settings: SettingsArgs,
+}
+
+#[derive(Debug, Args)]
+pub struct InitArgs {
+    /// The netlist to read rails and connectors from [default: the `*.net` files in the
+    /// current folder and below]
+    #[arg(value_name = "NETLIST")]
+    pub netlist: Option<String>,
+    /// Where to write it
+    #[arg(long, short = 'o', value_name = "FILE", default_value = crate::config::FILE_NAME)]
+    pub output: std::path::PathBuf,
+    /// Replace an existing file
+    #[arg(long)]
+    pub force: bool,
+}
+
+#[derive(Debug, Args)]
+pub struct CompletionsArgs {
+    /// The shell
+    #[arg(value_enum)]
+    pub shell: clap_complete::Shell,
 }
 
 #[derive(Debug, Args)]
@@ -107,28 +195,27 @@ pub struct CheckArgs {
     /// Exit with 1 when a finding at or above this severity is reported
     #[arg(long, value_enum, default_value_t = FailOn::Error)]
     pub fail_on: FailOn,
-    /// Run only this check (repeatable)
-    #[arg(long, value_name = "CHECK")]
-    pub only: Vec<String>,
-    /// Turn this check off (repeatable)
-    #[arg(long, value_name = "CHECK")]
-    pub disable: Vec<String>,
-    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
-    #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
-    pub rail: Vec<(String, f64)>,
-    /// The project configuration [default: the nearest netmargin.toml at or above each netlist]
+    #[command(flatten)]
+    pub settings: SettingsArgs,
+    /// Report only findings not in this baseline (made with `netmargin baseline`)
     #[arg(long, value_name = "FILE")]
-    pub config: Option<std::path::PathBuf>,
-    /// Ignore any netmargin.toml
-    #[arg(long, conflicts_with = "config")]
-    pub no_config: bool,
+    pub baseline: Option<std::path::PathBuf>,
+    /// List each baseline entry that matches no finding any more (default: a count per file)
+    #[arg(long, short = 'v')]
+    pub verbose: bool,
     #[command(flatten)]
     pub report: crate::report::ReportArgs,
 }
 
 pub(crate) fn parse_rail(s: &str) -> Result<(String, f64), String> {
-    let (n, v) = s.split_once('=').ok_or_else(|| format!("expected NAME=VOLTS, found `{s}`"))?;
-    let v: f64 = v.trim().trim_end_matches(['V', 'v']).parse().map_err(|_| format!("`{v}` is not a voltage"))?;
+    let (n, v) = s
+        .split_once('=')
+        .ok_or_else(|| format!("expected NAME=VOLTS, found `{s}`"))?;
+    let v: f64 = v
+        .trim()
+        .trim_end_matches(['V', 'v'])
+        .parse()
+        .map_err(|_| format!("`{v}` is not a voltage"))?;
     if n.trim().is_empty() || !v.is_finite() {
         return Err(format!("expected NAME=VOLTS, found `{s}`"));
     }

@@ -23,3 +23,5 @@ pub mod circuit;
 pub mod config;
 pub mod app;
 pub mod audit;
+pub mod atomic;
+pub mod baseline;

@@ -18,7 +18,9 @@ pub mod json;
 pub mod net;
 pub mod parts;
 pub mod sarif;
+pub mod settings;
 pub mod short;
+pub mod starter;
 
 use std::io::{self, Write};
 use std::path::{Component, Path, PathBuf};
