@@ -131,8 +131,15 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
                 }
                 let start = i;
                 let mut j = i + 1;
+                let mut escaped = false;
                 loop {
-                    match memchr::memchr2(b'"', b'\\', &b[j..]) {
+                    // most strings are short: look at a few bytes before calling memchr
+                    let near = (j + 24).min(n);
+                    let hit = match b[j..near].iter().position(|&c| c == b'"' || c == b'\\') {
+                        Some(p) => Some(j + p),
+                        None => memchr::memchr2(b'"', b'\\', &b[near..]).map(|p| near + p),
+                    };
+                    match hit {
                         None => {
                             let line_end =
                                 text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
@@ -140,9 +147,9 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
                                 .at(Span::new(start, line_end.min(start + 60).max(start + 1)), "this string has no closing `\"`")
                                 .with_help("add the closing quote; inside a string, write a quote as \\\" and a backslash as \\\\"));
                         }
-                        Some(p) => {
-                            let at = j + p;
+                        Some(at) => {
                             if b[at] == b'\\' {
+                                escaped = true;
                                 j = (at + 2).min(n);
                             } else {
                                 j = at + 1;
@@ -151,7 +158,7 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
                         }
                     }
                 }
-                rd.token(start, j, true);
+                rd.token(start, j, if escaped { Tok::Escaped } else { Tok::Str });
                 i = j;
             }
             _ => {
@@ -163,7 +170,7 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
                 if open.is_empty() {
                     return Err(outside(start, j));
                 }
-                rd.token(start, j, false);
+                rd.token(start, j, Tok::Atom);
                 i = j;
             }
         }
@@ -205,6 +212,16 @@ fn outside(start: usize, end: usize) -> Diag {
     )
     .at(Span::new(start, end), "outside the root list")
     .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
+}
+
+/// A token that is not a parenthesis.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Tok {
+    Atom,
+    /// A quoted string with no backslash in it.
+    Str,
+    /// A quoted string holding a backslash (maybe an escape).
+    Escaped,
 }
 
 /// Where the value of a `(key value)` list goes.
@@ -440,12 +457,12 @@ impl<'a> Reader<'a> {
     }
 
     /// The value of an atom or a quoted string token.
-    fn text_of(&self, start: usize, end: usize, quoted: bool) -> Text<'a> {
+    fn text_of(&self, start: usize, end: usize, tok: Tok) -> Text<'a> {
         let t = self.text;
-        let s = if quoted {
-            unescape(&t[start + 1..end - 1])
-        } else {
-            Cow::Borrowed(&t[start..end])
+        let s = match tok {
+            Tok::Atom => Cow::Borrowed(&t[start..end]),
+            Tok::Str => Cow::Borrowed(&t[start + 1..end - 1]),
+            Tok::Escaped => unescape(&t[start + 1..end - 1]),
         };
         Text {
             s,
@@ -504,7 +521,7 @@ impl<'a> Reader<'a> {
 
     /// An atom or a quoted string.
     #[inline]
-    fn token(&mut self, start: usize, end: usize, quoted: bool) {
+    fn token(&mut self, start: usize, end: usize, tok: Tok) {
         if self.skip > 0 {
             return;
         }
@@ -516,7 +533,7 @@ impl<'a> Reader<'a> {
         top.children += 1;
         match top.role {
             Role::Pending => {
-                let role = if quoted {
+                let role = if tok != Tok::Atom {
                     None
                 } else {
                     let head = &self.text[start..end];
@@ -537,8 +554,8 @@ impl<'a> Reader<'a> {
                 };
                 self.frames.last_mut().expect("a frame is open").role = role;
             }
-            Role::Value(_) if index == 1 => self.val = Some(self.text_of(start, end, quoted)),
-            Role::Field(_) => self.field_value = Some(self.text_of(start, end, quoted)),
+            Role::Value(_) if index == 1 => self.val = Some(self.text_of(start, end, tok)),
+            Role::Field(_) => self.field_value = Some(self.text_of(start, end, tok)),
             _ => {}
         }
     }
