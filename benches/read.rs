@@ -3,7 +3,7 @@
 //!
 //! `cargo bench --bench read -- [MEGABYTES] [RUNS]` (defaults 50 and 5). Reports medians of
 //! interleaved runs, MB/s, the ratio to the floor, peak memory of a child process that only
-//! reads and models the file, and start-up plus a 50 kB netlist through the real binary.
+//! reads and models the file (each reader), and start-up plus a 50 kB netlist through the real binary.
 
 use std::path::{Path, PathBuf};
 use std::time::Instant;
@@ -48,6 +48,13 @@ fn model(path: &Path) -> usize {
     nl.summary().pins
 }
 
+fn stream_model(path: &Path) -> usize {
+    let bytes = std::fs::read(path).unwrap();
+    let src = netmargin::input::load("bench", bytes).unwrap();
+    let nl = netmargin::netlist::read(src.text()).unwrap();
+    nl.summary().pins
+}
+
 fn main() {
     let args: Vec<String> = std::env::args()
         .skip(1)
@@ -55,6 +62,11 @@ fn main() {
         .collect();
     if args.first().map(String::as_str) == Some("child-model") {
         let n = model(Path::new(&args[1]));
+        println!("{n} {}", peak_rss_kb());
+        return;
+    }
+    if args.first().map(String::as_str) == Some("child-stream") {
+        let n = stream_model(Path::new(&args[1]));
         println!("{n} {}", peak_rss_kb());
         return;
     }
@@ -69,7 +81,7 @@ fn main() {
         std::fs::write(&path, netmargin::synth::netlist(mb * 1_000_000)).unwrap();
     }
     let size = std::fs::metadata(&path).unwrap().len() as f64;
-    let (mut f, mut p, mut m) = (Vec::new(), Vec::new(), Vec::new());
+    let (mut f, mut p, mut m, mut r) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
     for _ in 0..runs {
         let t = Instant::now();
         std::hint::black_box(floor(&path));
@@ -80,8 +92,11 @@ fn main() {
         let t = Instant::now();
         std::hint::black_box(model(&path));
         m.push(t.elapsed().as_secs_f64());
+        let t = Instant::now();
+        std::hint::black_box(stream_model(&path));
+        r.push(t.elapsed().as_secs_f64());
     }
-    let (f, p, m) = (median(f), median(p), median(m));
+    let (f, p, m, r) = (median(f), median(p), median(m), median(r));
     let mbs = |s: f64| size / 1e6 / s;
     println!(
         "file: {} ({:.1} MB), {runs} interleaved runs, medians",
@@ -105,12 +120,24 @@ fn main() {
         mbs(m),
         f / m
     );
+    println!(
+        "read + model (stream):                {:>8.3} s {:>8.0} MB/s  ratio {:.2}",
+        r,
+        mbs(r),
+        f / r
+    );
     let exe = std::env::current_exe().unwrap();
-    if let Ok(out) = std::process::Command::new(&exe)
-        .arg("child-model")
-        .arg(&path)
-        .output()
-    {
+    for (arg, what) in [
+        ("child-model", "read + parse + model:"),
+        ("child-stream", "read + model (stream):"),
+    ] {
+        let Ok(out) = std::process::Command::new(&exe)
+            .arg(arg)
+            .arg(&path)
+            .output()
+        else {
+            continue;
+        };
         let s = String::from_utf8_lossy(&out.stdout);
         if let Some(kb) = s
             .split_whitespace()
@@ -118,7 +145,7 @@ fn main() {
             .and_then(|k| k.parse::<f64>().ok())
         {
             println!(
-                "peak memory, read + parse + model:    {:>8.0} MB  = {:.2} x file size",
+                "peak memory, {what:<24}{:>8.0} MB  = {:.2} x file size",
                 kb / 1024.0,
                 kb * 1024.0 / size
             );

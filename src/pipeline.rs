@@ -171,9 +171,7 @@ pub fn check_source(source: &SourceFile, rules: &Rules, opts: &RunOptions) -> Re
     if let Some(d) = sexpr::sniff(source.text()) {
         return Err(d);
     }
-    let tree = sexpr::parse(source.text())?;
-    let nl = netlist::build(&tree)?;
-    drop(tree);
+    let nl = netlist::read(source.text())?;
     let cl = classify(&nl, rules);
     let cx = circuit::build(&nl, &cl, rules, opts.model.clone());
     let mut diags = nl.diagnostics.clone();

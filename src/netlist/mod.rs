@@ -9,12 +9,14 @@
 
 mod build;
 mod pintype;
+pub mod stream;
 
 use std::borrow::Cow;
 use rustc_hash::FxHashMap as HashMap;
 
 pub use build::build;
 pub use pintype::PinType;
+pub use stream::read;
 
 use crate::diag::Diag;
 use crate::source::Span;

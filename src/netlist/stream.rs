@@ -1,0 +1,1379 @@
+//! Reading the [`Netlist`] straight from the text, in one pass over the tokens and with no
+//! syntax tree: the same model, diagnostics and syntax errors as [`crate::sexpr::parse`]
+//! followed by [`build`](super::build), in less time and memory.
+//!
+//! The lexer is the syntax tree's, byte for byte (the same token rules, the same errors in
+//! the same order). Each open list the model needs gets a small frame saying what it is
+//! (a component, a node, a `(key value)` pair...); a list the model does not need, such as
+//! `libraries` or a section a newer KiCad adds, is passed over by counting its depth, and
+//! none of its contents is kept. Nothing recurses, and no input makes it panic.
+
+use std::borrow::Cow;
+
+use rustc_hash::FxHashMap as HashMap;
+
+use super::*;
+use crate::sexpr::{bom_len, unescape, MAX_DEPTH};
+
+/// The largest file the syntax tree can index; the same limit, so both readers agree.
+const MAX_LEN: usize = (1 << 30) - 1;
+
+/// Byte classes, as the syntax tree's lexer has them.
+const WS: u8 = 1;
+const DELIM: u8 = 2;
+static CLASS: [u8; 256] = {
+    let mut t = [0u8; 256];
+    t[b' ' as usize] = WS;
+    t[b'\t' as usize] = WS;
+    t[b'\n' as usize] = WS;
+    t[b'\r' as usize] = WS;
+    t[0x0c] = WS;
+    t[b'(' as usize] = DELIM;
+    t[b')' as usize] = DELIM;
+    t
+};
+
+/// Reads `text` (already known to be UTF-8, and already past [`crate::sexpr::sniff`]) into
+/// the netlist model. `Err` for a syntax error or a root list that is not `(export ...)`;
+/// every other problem is a diagnostic in the result.
+pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
+    if text.len() >= MAX_LEN {
+        return Err(Diag::error(
+            "too-large",
+            format!(
+                "the file is {} bytes; netmargin reads files up to {} bytes",
+                text.len(),
+                MAX_LEN
+            ),
+        ));
+    }
+    let b = text.as_bytes();
+    let n = b.len();
+    let mut rd = Reader::new(text);
+    // start of each open list
+    let mut open: Vec<u32> = Vec::with_capacity(16);
+    let mut i = bom_len(text);
+    let mut root_end: Option<usize> = None;
+    let mut any = false;
+    while i < n {
+        let c = b[i];
+        if CLASS[c as usize] == WS {
+            i += 1;
+            continue;
+        }
+        if let Some(root_end) = root_end {
+            if c == b')' {
+                return Err(Diag::error(
+                    "stray-close",
+                    "a `)` closes a list that was never opened",
+                )
+                .at(Span::new(i, i + 1), "no list is open here")
+                .also(
+                    Span::new(root_end - 1, root_end),
+                    "the root list already closed here",
+                )
+                .with_help("a list above closes too early, or this `)` is extra: remove one `)`"));
+            }
+            let end = text[i..]
+                .find(char::is_whitespace)
+                .map_or(n, |p| i + p)
+                .min(i + 40);
+            return Err(Diag::error(
+                "trailing-text",
+                "unexpected text after the end of the netlist",
+            )
+            .at(
+                Span::new(i, end.max(i + 1).min(n)),
+                "after the closing `)` of the root list",
+            )
+            .with_help(
+                "a netlist is one parenthesised list; the file may have been concatenated or edited by hand",
+            ));
+        }
+        any = true;
+        match c {
+            b'(' => {
+                if open.len() >= MAX_DEPTH {
+                    return Err(Diag::error(
+                        "too-deep",
+                        format!("lists are nested more than {MAX_DEPTH} levels deep; a KiCad netlist nests about seven"),
+                    )
+                    .at(Span::new(i, i + 1), format!("level {}", MAX_DEPTH + 1))
+                    .with_help("this file was not written by KiCad; export the netlist again"));
+                }
+                open.push(i as u32);
+                rd.open();
+                i += 1;
+            }
+            b')' => {
+                let Some(start) = open.pop() else {
+                    return Err(Diag::error(
+                        "stray-close",
+                        "a `)` closes a list that was never opened",
+                    )
+                    .at(Span::new(i, i + 1), "no matching `(`")
+                    .with_help(
+                        "remove this parenthesis, or look above it for a list closed too early",
+                    ));
+                };
+                i += 1;
+                rd.close(Span {
+                    start,
+                    end: i as u32,
+                });
+                if open.is_empty() {
+                    root_end = Some(i);
+                }
+            }
+            b'"' => {
+                if open.is_empty() {
+                    return Err(outside(i, i + 1));
+                }
+                let start = i;
+                let mut j = i + 1;
+                let mut escaped = false;
+                loop {
+                    // most strings are short: look at a few bytes before calling memchr
+                    let near = (j + 24).min(n);
+                    let hit = match b[j..near].iter().position(|&c| c == b'"' || c == b'\\') {
+                        Some(p) => Some(j + p),
+                        None => memchr::memchr2(b'"', b'\\', &b[near..]).map(|p| near + p),
+                    };
+                    match hit {
+                        None => {
+                            let line_end =
+                                text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
+                            return Err(Diag::error("unterminated-string", "a quoted string is never closed")
+                                .at(Span::new(start, line_end.min(start + 60).max(start + 1)), "this string has no closing `\"`")
+                                .with_help("add the closing quote; inside a string, write a quote as \\\" and a backslash as \\\\"));
+                        }
+                        Some(at) => {
+                            if b[at] == b'\\' {
+                                escaped = true;
+                                j = (at + 2).min(n);
+                            } else {
+                                j = at + 1;
+                                break;
+                            }
+                        }
+                    }
+                }
+                rd.token(start, j, if escaped { Tok::Escaped } else { Tok::Str });
+                i = j;
+            }
+            _ => {
+                let start = i;
+                let mut j = i + 1;
+                while j < n && CLASS[b[j] as usize] == 0 {
+                    j += 1;
+                }
+                if open.is_empty() {
+                    return Err(outside(start, j));
+                }
+                rd.token(start, j, Tok::Atom);
+                i = j;
+            }
+        }
+    }
+    if let Some(&o) = open.last() {
+        let o = o as usize;
+        let depth = open.len();
+        let head_end = text[o..]
+            .find(|ch: char| ch.is_whitespace() || ch == ')')
+            .map_or(n, |p| o + p);
+        let head = &text[o..head_end.min(o + 40)];
+        let mut d = Diag::error(
+            "unclosed-list",
+            format!(
+                "the file ends with {depth} list{} still open; the innermost, `{head}`, is never closed",
+                if depth == 1 { "" } else { "s" }
+            ),
+        )
+        .at(Span::new(o, o + 1), "this list is never closed")
+        .with_help("the file looks truncated: export the netlist again, or add the missing `)`");
+        let last = text.trim_end().len().max(o + 1);
+        let last_start = text[..last]
+            .char_indices()
+            .next_back()
+            .map_or(0, |(p, _)| p);
+        d = d.also(Span::new(last_start, last), "the file ends here");
+        return Err(d);
+    }
+    if !any {
+        return Err(Diag::error("empty-file", "the file holds no S-expression"));
+    }
+    rd.finish()
+}
+
+fn outside(start: usize, end: usize) -> Diag {
+    Diag::error(
+        "not-a-netlist",
+        "text outside any list: a KiCad netlist is one parenthesised list",
+    )
+    .at(Span::new(start, end), "outside the root list")
+    .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
+}
+
+/// A token that is not a parenthesis.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Tok {
+    Atom,
+    /// A quoted string with no backslash in it.
+    Str,
+    /// A quoted string holding a backslash (maybe an escape).
+    Escaped,
+}
+
+/// Where the value of a `(key value)` list goes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Slot {
+    Version,
+    Source,
+    Date,
+    Tool,
+    Title,
+    Company,
+    Rev,
+    Ref,
+    Value,
+    Footprint,
+    Datasheet,
+    Tstamp,
+    FieldName,
+    FieldValue,
+    LsLib,
+    LsPart,
+    LsDescription,
+    SpNames,
+    SpTstamps,
+    LpLib,
+    LpPart,
+    LpDescription,
+    LpDocs,
+    Alias,
+    Fp,
+    PinNum,
+    PinName,
+    PinType,
+    NetCode,
+    NetName,
+    NodeRef,
+    NodePin,
+    NodeFunction,
+    NodeType,
+}
+
+/// Whose list a field belongs to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Owner {
+    /// `(fields (field ...))` of a component.
+    CompField,
+    /// `(property ...)` of a component.
+    CompProperty,
+    /// `(fields (field ...))` of a library part.
+    LibPart,
+}
+
+/// What an open list is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Role {
+    /// Opened; its head (first child) has not been read yet.
+    Pending,
+    /// Not needed: its contents are counted, not kept.
+    Skip,
+    /// The root list is not `(export ...)`; the rest is only checked for syntax.
+    NotExport,
+    /// The first child of such a root is a list: its span is the error's place.
+    NotExportHead,
+    Root,
+    /// `(key value)`: child 1 is the value.
+    Value(Slot),
+    /// A list where a value belongs.
+    BadValue,
+    Design,
+    Sheet,
+    TitleBlock,
+    Components,
+    Comp,
+    CompFields,
+    Field(Owner),
+    LibSource,
+    SheetPath,
+    LibParts,
+    LibPart,
+    Aliases,
+    Footprints,
+    LibFields,
+    Pins,
+    Pin,
+    Nets,
+    Net,
+    Node,
+}
+
+impl Role {
+    /// Lists whose contents are only counted.
+    fn skips(self) -> bool {
+        matches!(
+            self,
+            Role::Skip | Role::NotExport | Role::NotExportHead | Role::BadValue
+        )
+    }
+}
+
+#[derive(Debug, Clone, Copy)]
+struct Frame {
+    role: Role,
+    /// Children read so far (the head included).
+    children: u32,
+}
+
+/// A library part being read.
+#[derive(Default)]
+struct LibPartAcc<'a> {
+    lib: Option<Text<'a>>,
+    part: Option<Text<'a>>,
+    aliases: Vec<Text<'a>>,
+    description: Option<Text<'a>>,
+    docs: Option<Text<'a>>,
+    footprints: Vec<Text<'a>>,
+    fields: Vec<Field<'a>>,
+    pins: Vec<LibPin<'a>>,
+}
+
+#[derive(Default)]
+struct NodeAcc<'a> {
+    reference: Option<Text<'a>>,
+    pin: Option<Text<'a>>,
+    pinfunction: Option<Text<'a>>,
+    pintype: Option<PinType>,
+    no_connect: bool,
+}
+
+fn empty_component<'a>() -> Component<'a> {
+    let span = Span { start: 0, end: 0 };
+    Component {
+        reference: Text {
+            s: Cow::Borrowed(""),
+            span,
+        },
+        value: None,
+        footprint: None,
+        datasheet: None,
+        fields: Vec::new(),
+        properties: Vec::new(),
+        libsource: None,
+        sheetpath: None,
+        tstamps: Vec::new(),
+        span,
+        libpart: None,
+        pins: Vec::new(),
+    }
+}
+
+/// The model being built, and the open lists it cares about.
+struct Reader<'a> {
+    text: &'a str,
+    frames: Vec<Frame>,
+    /// Depth inside the innermost skipped list.
+    skip: u32,
+    nl: Netlist<'a>,
+    diags: Vec<Diag>,
+    /// Set when the root is not `(export ...)`: the root's head, when it is an atom, and
+    /// the place of its first child (`None` until known).
+    not_export: Option<(Option<&'a str>, Option<Span>)>,
+    /// The current `(key value)` list's key and value.
+    key: &'a str,
+    val: Option<Text<'a>>,
+    design: Design<'a>,
+    comp: Component<'a>,
+    have_ref: bool,
+    field_name: Option<Text<'a>>,
+    field_value: Option<Text<'a>>,
+    libsource: LibSource<'a>,
+    sheetpath: SheetPath<'a>,
+    libpart: LibPartAcc<'a>,
+    pin_num: Option<Text<'a>>,
+    pin_name: Option<Text<'a>>,
+    pin_type: PinType,
+    net: Net<'a>,
+    have_name: bool,
+    node: NodeAcc<'a>,
+}
+
+impl<'a> Reader<'a> {
+    fn new(text: &'a str) -> Reader<'a> {
+        let span = Span { start: 0, end: 0 };
+        Reader {
+            text,
+            frames: Vec::with_capacity(16),
+            skip: 0,
+            nl: Netlist {
+                version: None,
+                dialect: Dialect::Other,
+                design: Design::default(),
+                components: Vec::new(),
+                libparts: Vec::new(),
+                nets: Vec::new(),
+                diagnostics: Vec::new(),
+                span,
+                by_ref: HashMap::default(),
+                by_net_name: HashMap::default(),
+            },
+            diags: Vec::new(),
+            not_export: None,
+            key: "",
+            val: None,
+            design: Design::default(),
+            comp: empty_component(),
+            have_ref: false,
+            field_name: None,
+            field_value: None,
+            libsource: LibSource {
+                lib: None,
+                part: None,
+                description: None,
+            },
+            sheetpath: SheetPath {
+                names: None,
+                tstamps: None,
+            },
+            libpart: LibPartAcc::default(),
+            pin_num: None,
+            pin_name: None,
+            pin_type: PinType::Unknown,
+            net: Net {
+                code: None,
+                name: Text {
+                    s: Cow::Borrowed(""),
+                    span,
+                },
+                nodes: Vec::new(),
+                span,
+            },
+            have_name: false,
+            node: NodeAcc::default(),
+        }
+    }
+
+    /// The value of an atom or a quoted string token.
+    fn text_of(&self, start: usize, end: usize, tok: Tok) -> Text<'a> {
+        let t = self.text;
+        let s = match tok {
+            Tok::Atom => Cow::Borrowed(&t[start..end]),
+            Tok::Str => Cow::Borrowed(&t[start + 1..end - 1]),
+            Tok::Escaped => unescape(&t[start + 1..end - 1]),
+        };
+        Text {
+            s,
+            span: Span::new(start, end),
+        }
+    }
+
+    #[inline]
+    fn open(&mut self) {
+        if self.skip > 0 {
+            self.skip += 1;
+            return;
+        }
+        let Some(top) = self.frames.last_mut() else {
+            self.frames.push(Frame {
+                role: Role::Pending,
+                children: 0,
+            });
+            return;
+        };
+        let index = top.children;
+        top.children += 1;
+        let role = top.role;
+        let child = match role {
+            r if r.skips() => {
+                self.skip = 1;
+                return;
+            }
+            Role::Pending => {
+                // a list as a list's head: the list has no name
+                if self.frames.len() == 1 {
+                    self.frames[0].role = Role::NotExport;
+                    self.not_export = Some((None, None));
+                    Role::NotExportHead
+                } else {
+                    self.frames.last_mut().expect("a frame is open").role = Role::Skip;
+                    self.skip = 1;
+                    return;
+                }
+            }
+            Role::Value(_) => {
+                if index == 1 {
+                    Role::BadValue
+                } else {
+                    self.skip = 1;
+                    return;
+                }
+            }
+            _ => Role::Pending,
+        };
+        self.frames.push(Frame {
+            role: child,
+            children: 0,
+        });
+    }
+
+    /// An atom or a quoted string.
+    #[inline]
+    fn token(&mut self, start: usize, end: usize, tok: Tok) {
+        if self.skip > 0 {
+            return;
+        }
+        let depth = self.frames.len();
+        let Some(top) = self.frames.last_mut() else {
+            return; // the lexer refuses text outside the root
+        };
+        let index = top.children;
+        top.children += 1;
+        match top.role {
+            Role::Pending => {
+                let role = if tok != Tok::Atom {
+                    None
+                } else {
+                    let head = &self.text[start..end];
+                    let parent = if depth >= 2 {
+                        Some(self.frames[depth - 2].role)
+                    } else {
+                        None
+                    };
+                    Some(self.role_of(parent, head, Span::new(start, end)))
+                };
+                let role = match role {
+                    Some(r) => r,
+                    None if depth == 1 => {
+                        self.not_export = Some((None, Some(Span::new(start, end))));
+                        Role::NotExport
+                    }
+                    None => Role::Skip,
+                };
+                self.frames.last_mut().expect("a frame is open").role = role;
+            }
+            Role::Value(_) if index == 1 => self.val = Some(self.text_of(start, end, tok)),
+            Role::Field(_) => self.field_value = Some(self.text_of(start, end, tok)),
+            _ => {}
+        }
+    }
+
+    /// The role of a list by its parent's role and its head, and the state it starts.
+    fn role_of(&mut self, parent: Option<Role>, head: &'a str, span: Span) -> Role {
+        let value = |me: &mut Self, slot| {
+            me.key = head;
+            me.val = None;
+            Role::Value(slot)
+        };
+        let Some(parent) = parent else {
+            if head == "export" {
+                return Role::Root;
+            }
+            self.not_export = Some((Some(head), Some(span)));
+            return Role::NotExport;
+        };
+        match (parent, head) {
+            (Role::Root, "version") => value(self, Slot::Version),
+            (Role::Root, "design") => {
+                self.design = Design::default();
+                Role::Design
+            }
+            (Role::Root, "components") => Role::Components,
+            (Role::Root, "libparts") => Role::LibParts,
+            (Role::Root, "nets") => Role::Nets,
+            (Role::Design, "source") => value(self, Slot::Source),
+            (Role::Design, "date") => value(self, Slot::Date),
+            (Role::Design, "tool") => value(self, Slot::Tool),
+            // the first sheet's title block names the board
+            (Role::Design, "sheet") if self.design.title.is_none() => Role::Sheet,
+            (Role::Sheet, "title_block") => Role::TitleBlock,
+            (Role::TitleBlock, "title") => value(self, Slot::Title),
+            (Role::TitleBlock, "company") => value(self, Slot::Company),
+            (Role::TitleBlock, "rev") => value(self, Slot::Rev),
+            (Role::Components, "comp") => {
+                self.comp = empty_component();
+                self.have_ref = false;
+                Role::Comp
+            }
+            (Role::Comp, "ref") => value(self, Slot::Ref),
+            (Role::Comp, "value") => value(self, Slot::Value),
+            (Role::Comp, "footprint") => value(self, Slot::Footprint),
+            (Role::Comp, "datasheet") => value(self, Slot::Datasheet),
+            (Role::Comp, "fields") => Role::CompFields,
+            (Role::Comp, "property") => self.start_field(Owner::CompProperty),
+            (Role::Comp, "libsource") => {
+                self.libsource = LibSource {
+                    lib: None,
+                    part: None,
+                    description: None,
+                };
+                Role::LibSource
+            }
+            (Role::Comp, "sheetpath") => {
+                self.sheetpath = SheetPath {
+                    names: None,
+                    tstamps: None,
+                };
+                Role::SheetPath
+            }
+            (Role::Comp, "tstamp" | "tstamps") => value(self, Slot::Tstamp),
+            (Role::CompFields, "field") => self.start_field(Owner::CompField),
+            (Role::Field(_), "name") => value(self, Slot::FieldName),
+            (Role::Field(_), "value") => value(self, Slot::FieldValue),
+            (Role::LibSource, "lib") => value(self, Slot::LsLib),
+            (Role::LibSource, "part") => value(self, Slot::LsPart),
+            (Role::LibSource, "description") => value(self, Slot::LsDescription),
+            (Role::SheetPath, "names") => value(self, Slot::SpNames),
+            (Role::SheetPath, "tstamps") => value(self, Slot::SpTstamps),
+            (Role::LibParts, "libpart") => {
+                self.libpart = LibPartAcc::default();
+                Role::LibPart
+            }
+            (Role::LibPart, "lib") => value(self, Slot::LpLib),
+            (Role::LibPart, "part") => value(self, Slot::LpPart),
+            (Role::LibPart, "description") => value(self, Slot::LpDescription),
+            (Role::LibPart, "docs") => value(self, Slot::LpDocs),
+            (Role::LibPart, "aliases") => Role::Aliases,
+            (Role::LibPart, "footprints") => Role::Footprints,
+            (Role::LibPart, "fields") => Role::LibFields,
+            (Role::LibPart, "pins") => Role::Pins,
+            (Role::Aliases, "alias") => value(self, Slot::Alias),
+            (Role::Footprints, "fp") => value(self, Slot::Fp),
+            (Role::LibFields, "field") => self.start_field(Owner::LibPart),
+            (Role::Pins, "pin") => {
+                self.pin_num = None;
+                self.pin_name = None;
+                self.pin_type = PinType::Unknown;
+                Role::Pin
+            }
+            (Role::Pin, "num") => value(self, Slot::PinNum),
+            (Role::Pin, "name") => value(self, Slot::PinName),
+            (Role::Pin, "type") => value(self, Slot::PinType),
+            (Role::Nets, "net") => {
+                self.net = Net {
+                    code: None,
+                    name: Text {
+                        s: Cow::Borrowed(""),
+                        span,
+                    },
+                    nodes: Vec::new(),
+                    span,
+                };
+                self.have_name = false;
+                Role::Net
+            }
+            (Role::Net, "code") => value(self, Slot::NetCode),
+            (Role::Net, "name") => value(self, Slot::NetName),
+            (Role::Net, "node") => {
+                self.node = NodeAcc::default();
+                Role::Node
+            }
+            (Role::Node, "ref") => value(self, Slot::NodeRef),
+            (Role::Node, "pin") => value(self, Slot::NodePin),
+            (Role::Node, "pinfunction") => value(self, Slot::NodeFunction),
+            (Role::Node, "pintype") => value(self, Slot::NodeType),
+            _ => Role::Skip,
+        }
+    }
+
+    fn start_field(&mut self, owner: Owner) -> Role {
+        self.field_name = None;
+        self.field_value = None;
+        Role::Field(owner)
+    }
+
+    /// A `(key value)` list's value, where it belongs.
+    fn put(&mut self, slot: Slot, v: Option<Text<'a>>) {
+        match slot {
+            Slot::Version => self.nl.version = v,
+            Slot::Source => self.design.source = v,
+            Slot::Date => self.design.date = v,
+            Slot::Tool => self.design.tool = v,
+            Slot::Title => self.design.title = v,
+            Slot::Company => self.design.company = v,
+            Slot::Rev => self.design.rev = v,
+            Slot::Ref => {
+                if let Some(r) = v {
+                    self.comp.reference = r;
+                    self.have_ref = true;
+                }
+            }
+            Slot::Value => self.comp.value = v,
+            Slot::Footprint => self.comp.footprint = v,
+            Slot::Datasheet => self.comp.datasheet = v,
+            Slot::Tstamp => {
+                if let Some(v) = v {
+                    self.comp.tstamps.push(v);
+                }
+            }
+            Slot::FieldName => self.field_name = v,
+            Slot::FieldValue => self.field_value = v,
+            Slot::LsLib => self.libsource.lib = v,
+            Slot::LsPart => self.libsource.part = v,
+            Slot::LsDescription => self.libsource.description = v,
+            Slot::SpNames => self.sheetpath.names = v,
+            Slot::SpTstamps => self.sheetpath.tstamps = v,
+            Slot::LpLib => self.libpart.lib = v,
+            Slot::LpPart => self.libpart.part = v,
+            Slot::LpDescription => self.libpart.description = v,
+            Slot::LpDocs => self.libpart.docs = v,
+            Slot::Alias => {
+                if let Some(v) = v {
+                    self.libpart.aliases.push(v);
+                }
+            }
+            Slot::Fp => {
+                if let Some(v) = v {
+                    self.libpart.footprints.push(v);
+                }
+            }
+            Slot::PinNum => self.pin_num = v,
+            Slot::PinName => self.pin_name = v,
+            Slot::PinType => {
+                if let Some(v) = v {
+                    self.pin_type = PinType::parse(v.as_str()).0;
+                }
+            }
+            Slot::NetCode => self.net.code = v,
+            Slot::NetName => {
+                if let Some(v) = v {
+                    self.net.name = v;
+                    self.have_name = true;
+                }
+            }
+            Slot::NodeRef => self.node.reference = v,
+            Slot::NodePin => self.node.pin = v,
+            Slot::NodeFunction => self.node.pinfunction = v,
+            Slot::NodeType => {
+                if let Some(v) = v {
+                    let (t, nc) = PinType::parse(v.as_str());
+                    self.node.pintype = Some(t);
+                    self.node.no_connect = nc;
+                }
+            }
+        }
+    }
+
+    #[inline]
+    fn close(&mut self, span: Span) {
+        if self.skip > 0 {
+            self.skip -= 1;
+            return;
+        }
+        let Some(frame) = self.frames.pop() else {
+            return; // the lexer refuses a `)` with no list open
+        };
+        match frame.role {
+            Role::Pending => {
+                // an empty list
+                if self.frames.is_empty() {
+                    self.not_export = Some((None, Some(span)));
+                }
+            }
+            Role::Skip | Role::NotExport => {}
+            Role::NotExportHead => {
+                if let Some((_, at)) = &mut self.not_export {
+                    *at = Some(span);
+                }
+            }
+            Role::Root => self.nl.span = span,
+            Role::Value(slot) => {
+                let v = self.val.take();
+                self.put(slot, v);
+            }
+            Role::BadValue => {
+                let key = self.key;
+                self.diags.push(
+                    Diag::error(
+                        "bad-field",
+                        format!("`({key} ...)` holds a list where its value belongs"),
+                    )
+                    .at(span, "expected a name or a quoted string")
+                    .with_help("the file was edited by hand or damaged: export the netlist again"),
+                );
+            }
+            Role::Design => self.nl.design = std::mem::take(&mut self.design),
+            Role::Sheet | Role::TitleBlock => {}
+            Role::Components | Role::LibParts | Role::Nets => {}
+            Role::CompFields | Role::Aliases | Role::Footprints | Role::LibFields | Role::Pins => {}
+            Role::Comp => self.end_comp(span),
+            Role::Field(owner) => self.end_field(owner, span),
+            Role::LibSource => {
+                let ls = LibSource {
+                    lib: self.libsource.lib.take(),
+                    part: self.libsource.part.take(),
+                    description: self.libsource.description.take(),
+                };
+                self.comp.libsource = Some(ls);
+            }
+            Role::SheetPath => {
+                let sp = SheetPath {
+                    names: self.sheetpath.names.take(),
+                    tstamps: self.sheetpath.tstamps.take(),
+                };
+                self.comp.sheetpath = Some(sp);
+            }
+            Role::LibPart => self.end_libpart(span),
+            Role::Pin => match self.pin_num.take() {
+                Some(num) => self.libpart.pins.push(LibPin {
+                    num,
+                    name: self.pin_name.take(),
+                    ptype: self.pin_type,
+                    span,
+                }),
+                None => self.diags.push(
+                    Diag::warning(
+                        "missing-field",
+                        "a library pin without a `(num ...)` is ignored",
+                    )
+                    .at(span, "no pin number"),
+                ),
+            },
+            Role::Net => self.end_net(span),
+            Role::Node => self.end_node(span),
+        }
+    }
+
+    fn end_comp(&mut self, span: Span) {
+        let mut comp = std::mem::replace(&mut self.comp, empty_component());
+        if !self.have_ref || comp.reference.s.is_empty() {
+            self.diags.push(
+                Diag::error("missing-field", "a component without a reference (`(ref ...)`) is left out")
+                    .at(span, "this `comp` has no `ref`")
+                    .with_help("annotate the schematic (every symbol needs a reference such as U1) and export the netlist again"),
+            );
+            return;
+        }
+        comp.span = span;
+        comp.tstamps.shrink_to_fit();
+        comp.fields.shrink_to_fit();
+        comp.properties.shrink_to_fit();
+        self.nl.components.push(comp);
+    }
+
+    fn end_field(&mut self, owner: Owner, span: Span) {
+        let value = self.field_value.take();
+        let Some(name) = self.field_name.take() else {
+            let what = match owner {
+                Owner::CompProperty => "property",
+                Owner::CompField | Owner::LibPart => "field",
+            };
+            self.diags.push(
+                Diag::warning(
+                    "missing-field",
+                    format!("a `{what}` without a `(name ...)` is ignored"),
+                )
+                .at(span, "no name"),
+            );
+            return;
+        };
+        let f = Field { name, value, span };
+        match owner {
+            Owner::CompField => self.comp.fields.push(f),
+            Owner::CompProperty => self.comp.properties.push(f),
+            Owner::LibPart => self.libpart.fields.push(f),
+        }
+    }
+
+    fn end_libpart(&mut self, span: Span) {
+        let lp = std::mem::take(&mut self.libpart);
+        let Some(part) = lp.part else {
+            self.diags.push(
+                Diag::warning(
+                    "missing-field",
+                    "a `libpart` without a `(part ...)` is ignored",
+                )
+                .at(span, "no part name"),
+            );
+            return;
+        };
+        self.nl.libparts.push(LibPart {
+            lib: lp.lib,
+            part,
+            aliases: lp.aliases,
+            description: lp.description,
+            docs: lp.docs,
+            footprints: lp.footprints,
+            fields: lp.fields,
+            pins: lp.pins,
+            span,
+        });
+    }
+
+    fn end_net(&mut self, span: Span) {
+        let mut net = std::mem::replace(
+            &mut self.net,
+            Net {
+                code: None,
+                name: Text {
+                    s: Cow::Borrowed(""),
+                    span,
+                },
+                nodes: Vec::new(),
+                span,
+            },
+        );
+        net.span = span;
+        if net.code.is_none() {
+            self.diags.push(
+                Diag::warning("missing-field", "a net without a `(code ...)`").at(span, "no code"),
+            );
+        }
+        if !self.have_name {
+            net.name.span = span;
+            self.diags.push(
+                Diag::warning(
+                    "missing-field",
+                    "a net without a `(name ...)`; it is read as unnamed",
+                )
+                .at(span, "no name"),
+            );
+        }
+        net.nodes.shrink_to_fit();
+        self.nl.nets.push(net);
+    }
+
+    fn end_node(&mut self, span: Span) {
+        let nd = std::mem::take(&mut self.node);
+        match (nd.reference, nd.pin) {
+            (Some(reference), Some(pin)) => self.net.nodes.push(Node {
+                reference,
+                pin,
+                pinfunction: nd.pinfunction,
+                pintype: nd.pintype,
+                no_connect: nd.no_connect,
+                span,
+                component: None,
+            }),
+            (r, _) => self.diags.push(
+                Diag::error(
+                    "missing-field",
+                    format!(
+                        "a node without {} is left out",
+                        if r.is_none() {
+                            "a `(ref ...)`"
+                        } else {
+                            "a `(pin ...)`"
+                        }
+                    ),
+                )
+                .at(span, "incomplete node")
+                .with_help("the file was edited by hand or damaged: export the netlist again"),
+            ),
+        }
+    }
+
+    /// The whole file has been read without a syntax error.
+    fn finish(self) -> Result<Netlist<'a>, Diag> {
+        if let Some((head, at)) = self.not_export {
+            let span = at.unwrap_or(self.nl.span);
+            let what = match head {
+                Some(h) => format!("the file's root list is `({h} ...)`"),
+                None => "the file's root list has no name".to_string(),
+            };
+            return Err(Diag::error(
+                "not-a-netlist",
+                format!("{what}; a KiCad netlist's is `(export ...)`"),
+            )
+            .at(span, "expected `export`")
+            .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"));
+        }
+        let mut nl = self.nl;
+        let mut diags = self.diags;
+        nl.dialect = match nl.version.as_ref().map(|v| v.as_str()) {
+            Some("D") => Dialect::D,
+            Some("E") => Dialect::E,
+            Some(other) => {
+                let v = nl.version.as_ref().expect("version is some");
+                diags.push(
+                    Diag::info("netlist-version", format!("netlist version `{other}` is not one netmargin knows (D: KiCad 4-5, E: KiCad 6-9); reading it as version E"))
+                        .at(v.span, "version"),
+                );
+                Dialect::Other
+            }
+            None => {
+                diags.push(
+                    Diag::warning(
+                        "missing-field",
+                        "the netlist has no `(version ...)`; reading it as version E",
+                    )
+                    .at(
+                        Span::new(nl.span.start as usize, nl.span.start as usize + 7),
+                        "no version in this export",
+                    ),
+                );
+                Dialect::Other
+            }
+        };
+        link(self.text, &mut nl, &mut diags);
+        nl.diagnostics = diags;
+        Ok(nl)
+    }
+}
+
+/// Cross-references: refs, libparts, node components, pin lists and connections, exactly
+/// as [`build`](super::build) links them.
+fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
+    // refs
+    let mut by_ref: HashMap<Cow<'a, str>, usize> =
+        HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
+    for (i, c) in nl.components.iter().enumerate() {
+        if let Some(&first) = by_ref.get(c.reference.as_str()) {
+            diags.push(
+                Diag::error(
+                    "duplicate-ref",
+                    format!("two components share the reference `{}`", c.reference),
+                )
+                .at(
+                    c.reference.span,
+                    "this one is checked as written but its nets may be confused",
+                )
+                .also(nl.components[first].reference.span, "first use")
+                .with_help(
+                    "re-annotate the schematic so every reference is unique, then export again",
+                ),
+            );
+        } else {
+            by_ref.insert(c.reference.s.clone(), i);
+        }
+    }
+    // libparts by (lib, part) and (lib, alias), and by part alone as a fallback
+    let mut by_lib_part: HashMap<(&str, &str), usize> = HashMap::default();
+    let mut by_part: HashMap<&str, Option<usize>> = HashMap::default();
+    for (i, lp) in nl.libparts.iter().enumerate() {
+        let lib = lp.lib.as_ref().map_or("", |l| l.as_str());
+        for name in std::iter::once(&lp.part).chain(lp.aliases.iter()) {
+            by_lib_part.entry((lib, name.as_str())).or_insert(i);
+            by_part
+                .entry(name.as_str())
+                .and_modify(|e| {
+                    if *e != Some(i) {
+                        *e = None
+                    }
+                })
+                .or_insert(Some(i));
+        }
+    }
+    let mut resolved = vec![None; nl.components.len()];
+    for (i, c) in nl.components.iter().enumerate() {
+        let Some(ls) = &c.libsource else { continue };
+        let (Some(part), lib) = (&ls.part, ls.lib.as_ref().map_or("", |l| l.as_str())) else {
+            continue;
+        };
+        resolved[i] = by_lib_part
+            .get(&(lib, part.as_str()))
+            .copied()
+            .or_else(|| by_part.get(part.as_str()).copied().flatten());
+        if resolved[i].is_none() && !nl.libparts.is_empty() {
+            diags.push(
+                Diag::info(
+                    "missing-libpart",
+                    format!(
+                        "no library part `{}:{}` for {}: its pins on no net cannot be listed",
+                        lib, part, c.reference
+                    ),
+                )
+                .at(part.span, "not found in `libparts`"),
+            );
+        }
+    }
+    for (c, r) in nl.components.iter_mut().zip(resolved) {
+        c.libpart = r;
+    }
+    drop(by_lib_part);
+    drop(by_part);
+
+    // nodes: component links, de-duplication, pins on two nets. Sorting every
+    // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
+    let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
+    let mut codes: HashMap<&str, usize> =
+        HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
+    let mut entries: Vec<(u32, u32, u32)> = Vec::new(); // (component, net, node)
+    for (ni, net) in nl.nets.iter_mut().enumerate() {
+        if let Some(code) = &net.code {
+            if let Some(&first) = codes.get(code.as_str()) {
+                diags.push(
+                    Diag::warning(
+                        "duplicate-net-code",
+                        format!("two nets share the code {}", code),
+                    )
+                    .at(code.span, format!("also used by net #{}", first + 1)),
+                );
+            } else {
+                codes.insert(
+                    text.get(code.span.range()).map_or("", |_| code.as_str()),
+                    ni,
+                );
+            }
+        }
+        if !net.name.s.is_empty() {
+            by_net_name.entry(net.name.s.clone()).or_insert(ni);
+        }
+        for (k, node) in net.nodes.iter_mut().enumerate() {
+            match by_ref.get(node.reference.as_str()) {
+                Some(&ci) => {
+                    node.component = Some(ci);
+                    entries.push((ci as u32, ni as u32, k as u32));
+                }
+                None => diags.push(
+                    Diag::error(
+                        "unknown-component",
+                        format!(
+                            "net `{}` names {}, which is not among the components",
+                            net.name, node.reference
+                        ),
+                    )
+                    .at(node.reference.span, "no component has this reference")
+                    .with_help("the netlist is out of step with the schematic: export it again"),
+                ),
+            }
+        }
+    }
+    drop(codes);
+
+    // Pin numbers as integers: each distinct pin text gets its rank in text order, so
+    // sorting by rank sorts exactly as comparing the texts would.
+    let mut pin_ids: HashMap<Cow<'a, str>, u32> = HashMap::default();
+    let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
+    for &(_, ni, k) in &entries {
+        let pin = &nl.nets[ni as usize].nodes[k as usize].pin.s;
+        let next = pin_ids.len() as u32;
+        let id = match pin_ids.get(pin.as_ref()) {
+            Some(&id) => id,
+            None => {
+                pin_ids.insert(pin.clone(), next);
+                next
+            }
+        };
+        pin_of.push(id);
+    }
+    let mut by_text: Vec<(&str, u32)> = pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
+    by_text.sort_unstable();
+    let mut rank_of_id = vec![0u32; by_text.len()];
+    for (rank, &(_, id)) in by_text.iter().enumerate() {
+        rank_of_id[id as usize] = rank as u32;
+    }
+    drop(by_text);
+    for id in pin_ids.values_mut() {
+        *id = rank_of_id[*id as usize];
+    }
+    for p in &mut pin_of {
+        *p = rank_of_id[*p as usize];
+    }
+    drop(rank_of_id);
+
+    // Group the entries by component (a counting sort: linear, and it keeps each
+    // component's entries in net and node order), then sort each group by pin rank.
+    let ncomp = nl.components.len();
+    let mut comp_at = vec![0u32; ncomp + 1];
+    for e in &entries {
+        comp_at[e.0 as usize + 1] += 1;
+    }
+    for c in 0..ncomp {
+        comp_at[c + 1] += comp_at[c];
+    }
+    let mut fill: Vec<u32> = comp_at[..ncomp].to_vec();
+    // (pin rank, net, node)
+    let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); entries.len()];
+    for (e, &rank) in entries.iter().zip(&pin_of) {
+        let at = &mut fill[e.0 as usize];
+        sorted[*at as usize] = (rank, e.1, e.2);
+        *at += 1;
+    }
+    drop(fill);
+    drop(pin_of);
+    drop(entries);
+    for c in 0..ncomp {
+        let group = &mut sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
+        if group.len() > 1 {
+            group.sort_unstable();
+        }
+    }
+
+    // Flat per-node tables: node `k` of net `ni` is at `net_at[ni] + k`.
+    let mut net_at: Vec<u32> = Vec::with_capacity(nl.nets.len() + 1);
+    let mut total = 0u32;
+    for net in &nl.nets {
+        net_at.push(total);
+        total += net.nodes.len() as u32;
+    }
+    net_at.push(total);
+
+    // keep the first (component, pin) of each group; a repeat in the same net is dropped
+    // quietly, one in another net is a diagnostic
+    let mut keep = vec![false; total as usize];
+    let mut twice: Vec<(usize, usize, Span, String)> = Vec::new();
+    for c in 0..ncomp {
+        let group = &sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
+        let mut first_of_run = 0;
+        for i in 0..group.len() {
+            let e = group[i];
+            if i == 0 || group[first_of_run].0 != e.0 {
+                first_of_run = i;
+                keep[(net_at[e.1 as usize] + e.2) as usize] = true;
+                continue;
+            }
+            let f = group[first_of_run];
+            if f.1 != e.1 && group[i - 1].1 != e.1 {
+                let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
+                twice.push((
+                    f.1 as usize,
+                    e.1 as usize,
+                    node.span,
+                    format!("{}.{}", node.reference, node.pin),
+                ));
+            }
+        }
+    }
+    // drop the repeats and renumber the kept nodes (`new_index` reuses the flat layout)
+    let mut new_index = vec![u32::MAX; total as usize];
+    for (ni, net) in nl.nets.iter_mut().enumerate() {
+        let base = net_at[ni] as usize;
+        let keep = &keep[base..base + net.nodes.len()];
+        let map = &mut new_index[base..base + net.nodes.len()];
+        let mut n = 0u32;
+        for (k, &kp) in keep.iter().enumerate() {
+            if kp {
+                map[k] = n;
+                n += 1;
+            }
+        }
+        if (n as usize) < keep.len() {
+            let mut k = 0;
+            net.nodes.retain(|_| {
+                k += 1;
+                keep[k - 1]
+            });
+        }
+    }
+    drop(keep);
+    // per component, its kept (pin rank, net, node), still sorted by pin
+    let mut pin_nets: Vec<(u32, u32, u32)> = Vec::with_capacity(sorted.len());
+    let mut pins_at: Vec<u32> = Vec::with_capacity(ncomp + 1);
+    for c in 0..ncomp {
+        pins_at.push(pin_nets.len() as u32);
+        for &(rank, ni, k) in &sorted[comp_at[c] as usize..comp_at[c + 1] as usize] {
+            let nk = new_index[(net_at[ni as usize] + k) as usize];
+            if nk != u32::MAX {
+                pin_nets.push((rank, ni, nk));
+            }
+        }
+    }
+    pins_at.push(pin_nets.len() as u32);
+    drop(sorted);
+    drop(new_index);
+    drop(comp_at);
+    drop(net_at);
+    for (first, second, span, pin) in twice {
+        let (f, n) = (&nl.nets[first], &nl.nets[second]);
+        diags.push(
+                Diag::error("pin-on-two-nets", format!("{pin} is on two nets: `{}` and `{}`", f.name, n.name))
+                    .at(span, "second net")
+                    .also(f.name.span, "first net")
+                    .with_help("the netlist is inconsistent: export it again; if it persists, look for overlapping wires or labels at this pin"),
+            );
+    }
+
+    // per library part, once: each pin's rank among the pin texts the nets use, and
+    // whether an earlier pin of the part has the same number (a stacked pin)
+    let lib_pins: Vec<(Vec<Option<u32>>, Vec<bool>)> = nl
+        .libparts
+        .iter()
+        .map(|lp| {
+            let mut seen: HashMap<&str, ()> =
+                HashMap::with_capacity_and_hasher(lp.pins.len(), Default::default());
+            let ranks = lp
+                .pins
+                .iter()
+                .map(|p| pin_ids.get(p.num.as_str()).copied())
+                .collect();
+            let repeats = lp
+                .pins
+                .iter()
+                .map(|p| seen.insert(p.num.as_str(), ()).is_some())
+                .collect();
+            (ranks, repeats)
+        })
+        .collect();
+    let mut used: Vec<bool> = Vec::new();
+    // component pins: the libpart's, then any the nets name that it lacks
+    for (ci, c) in nl.components.iter_mut().enumerate() {
+        let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
+        let nets = &nl.nets;
+        let mut pins: Vec<CompPin<'a>> = Vec::new();
+        used.clear();
+        used.resize(mine.len(), false);
+        if let Some(li) = c.libpart {
+            let lpins = &nl.libparts[li].pins;
+            let (ranks, repeats) = &lib_pins[li];
+            pins.reserve(lpins.len());
+            for (pi, lpin) in lpins.iter().enumerate() {
+                // only a number an earlier pin had can be among the pins so far
+                if repeats[pi] && pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
+                    continue; // stacked pins listed twice
+                }
+                let found =
+                    ranks[pi].and_then(|rank| mine.binary_search_by(|e| e.0.cmp(&rank)).ok());
+                let connection = match found {
+                    Some(i) => {
+                        if used[i] {
+                            continue; // stacked pins listed twice
+                        }
+                        used[i] = true;
+                        connection(nets, mine[i].1 as usize, mine[i].2 as usize)
+                    }
+                    None => Connection::Absent,
+                };
+                let mut ptype = lpin.ptype;
+                let mut no_connect = lpin.ptype == PinType::NoConnect;
+                let mut name = lpin.name.as_ref().map(|n| n.s.clone());
+                if let Some(i) = found {
+                    let nd = &nets[mine[i].1 as usize].nodes[mine[i].2 as usize];
+                    if let Some(t) = nd.pintype {
+                        ptype = t;
+                    }
+                    no_connect |= nd.no_connect;
+                    if name.is_none() {
+                        name = nd.pinfunction.as_ref().map(|f| f.s.clone());
+                    }
+                }
+                pins.push(CompPin {
+                    num: lpin.num.s.clone(),
+                    name,
+                    ptype,
+                    no_connect,
+                    connection,
+                    libpin: Some(pi),
+                });
+            }
+        }
+        // pins named by nodes but missing from the libpart (or no libpart at all)
+        for (i, e) in mine.iter().enumerate() {
+            if used[i] {
+                continue;
+            }
+            let node = &nets[e.1 as usize].nodes[e.2 as usize];
+            pins.push(CompPin {
+                num: node.pin.s.clone(),
+                name: node.pinfunction.as_ref().map(|f| f.s.clone()),
+                ptype: node.pintype.unwrap_or(PinType::Unknown),
+                no_connect: node.no_connect,
+                connection: connection(nets, e.1 as usize, e.2 as usize),
+                libpin: None,
+            });
+        }
+        c.pins = pins;
+    }
+    nl.by_ref = by_ref;
+    nl.by_net_name = by_net_name;
+}
+
+fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {
+    if nets[net].nodes.len() > 1 {
+        Connection::Net { net, node }
+    } else {
+        Connection::Alone { net, node }
+    }
+}
