@@ -129,3 +129,16 @@ fn standard_input() {
     let out = child.wait_with_output().unwrap();
     assert!(String::from_utf8_lossy(&out.stdout).contains("<stdin>: "));
 }
+
+#[test]
+fn the_demo_board_holds_an_instance_of_every_check() {
+    let out = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["check", "--no-config", "--format", "json", "fixtures/demo/counter-timer.net"])
+        .current_dir(root())
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let codes: Vec<String> = v["files"][0]["findings"].as_array().unwrap().iter().map(|f| f["check"].as_str().unwrap().to_string()).collect();
+    let missing: Vec<&str> = netmargin::checks::REGISTRY.iter().map(|c| c.id).filter(|id| !codes.iter().any(|c| c == id)).collect();
+    assert!(missing.is_empty(), "the demo board lacks an instance of {missing:?}");
+}

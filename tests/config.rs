@@ -28,9 +28,10 @@ fn waivers_suppress_and_stale_ones_are_reported() {
         d.join("netmargin.toml"),
         r#"
 [[waiver]]
-check = "floating-ttl-input"
-refs = ["U24"]
-reason = "spare gates of U24, tied on the replacement board"
+check = "floating-cmos-input"
+refs = ["U20"]
+pins = ["U20.12", "U20.13"]
+reason = "U20's unused gate D, tied on the replacement board"
 
 [[waiver]]
 check = "fanout-overrun"
@@ -47,9 +48,9 @@ expires = 2001-01-01
     .unwrap();
     let (code, out) = run(&d, &["check", "--format", "short", "hw/board.net"]);
     assert_eq!(code, 1, "{out}");
-    assert!(!out.contains("gate C of U24"), "waived finding still reported:\n{out}");
-    assert!(out.contains("U9 pin 5"), "an unwaived floating-ttl-input must remain:\n{out}");
-    assert!(out.contains("netmargin.toml:7:1: warning: this waiver for `fanout-overrun` matched no finding"), "{out}");
+    assert!(!out.contains("gate D of U20"), "waived finding still reported:\n{out}");
+    assert!(out.contains("U20 pin 10 (74HC00 input 3B) is connected to nothing"), "a finding the waiver's pins do not cover must remain:\n{out}");
+    assert!(out.contains("netmargin.toml:8:1: warning: this waiver for `fanout-overrun` matched no finding"), "{out}");
     assert!(out.contains("expired on 2001-01-01"), "{out}");
     assert!(out.contains("U15 pin 2 (74LS05 open-collector output 1Y) has no pull-up"), "an expired waiver no longer applies:\n{out}");
     let (_, human) = run(&d, &["check", "hw/board.net"]);

@@ -152,7 +152,9 @@ pub struct NetModel {
 impl NetModel {
     /// True when something on this board or off it can set the net's level.
     pub fn has_source(&self) -> bool {
-        self.rail.is_some() || !self.drivers.is_empty() || !self.pulls.is_empty() || !self.connectors.is_empty()
+        // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
+        // reports it); calling the inputs floating as well would be a cascade
+        self.rail.is_some() || !self.drivers.is_empty() || !self.pulls.is_empty() || !self.connectors.is_empty() || !self.unreadable.is_empty()
     }
 }
 
