@@ -47,13 +47,16 @@ fi
 
 corpus=fuzz/corpus/$target
 mkdir -p "$corpus"
+seed() { # copies $1 to $2 unless $2 exists (cp -n's exit status differs between versions)
+  [ -e "$2" ] || cp "$1" "$2"
+}
 if [ -d "fuzz/seeds/$target" ]; then
-  cp -n fuzz/seeds/"$target"/* "$corpus"/ 2>/dev/null || true
+  for f in fuzz/seeds/"$target"/*; do seed "$f" "$corpus/$(basename "$f")"; done
 fi
 if [ "$target" != structured ]; then
   # every fixture small enough to be a useful seed (the 200 kB nesting file is not)
   find fixtures -type f \( -name '*.net' -o -name '*.sch' -o -name '*.kicad_*' -o -name '*.json' \) -size -64k |
-    while read -r f; do cp -n "$f" "$corpus/fixture-$(echo "$f" | tr '/' '_')"; done
+    while read -r f; do seed "$f" "$corpus/fixture-$(echo "$f" | tr '/' '_')"; done
 fi
 
 dict=()
