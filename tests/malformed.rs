@@ -147,7 +147,7 @@ fn assert_outcome(label: &str, name: &str, run: &Run, e: &Expect<'_>) {
                 None => {
                     let block = &all[block_start..block_end];
                     assert!(
-                        !block.contains(&format!("[{name}:")),
+                        !block.contains(&format!("─[{name}:")),
                         "{label}: expected no place\n{block}"
                     );
                 }
@@ -500,6 +500,46 @@ fn fuzz_unclosed_list_head_cut_inside_a_character() {
             code: Some("unclosed-list"),
             place: Some((1, 3)),
             fragment: &fragment,
+        },
+    );
+}
+
+/// A diagnostic whose place is more than 65 535 columns along its line: miette pads to the
+/// column with a format width and panicked ("Formatting argument out of range"). The place
+/// is now named in the help instead of drawn.
+#[test]
+fn place_far_along_a_long_line_is_named_not_drawn() {
+    let text = format!("(export (version E) (components (comp (ref U1))) (nets (net (code 1) (name {}) (node (ref U9) (pin 1)))))", "A".repeat(70_000));
+    let at = text.find("U9").expect("U9");
+    let run = check_stdin(text.as_bytes(), &[]);
+    let fragment = format!(
+        "the place, [<stdin>:1:{}], is too far along its line to draw",
+        at + 1
+    );
+    assert_outcome(
+        "far place",
+        "<stdin>",
+        &run,
+        &Expect {
+            exit: 1,
+            code: Some("unknown-component"),
+            place: None,
+            fragment: &fragment,
+        },
+    );
+    // a place near the start of the same kind of line is still drawn
+    let text = format!("(export (version E) (components (comp (ref U1))) (nets (net (code 1) (node (ref U9) (pin 1)) (name {}))))", "A".repeat(70_000));
+    let at = text.find("U9").expect("U9");
+    let run = check_stdin(text.as_bytes(), &[]);
+    assert_outcome(
+        "near place",
+        "<stdin>",
+        &run,
+        &Expect {
+            exit: 1,
+            code: Some("unknown-component"),
+            place: Some((1, at + 1)),
+            fragment: "which is not among the components",
         },
     );
 }
