@@ -112,9 +112,22 @@ impl fmt::Debug for Rendered<'_> {
     }
 }
 
+/// A message may quote names from the file, which can be megabytes long; the report shows at
+/// most this many characters of it (both ends, the middle left out), so N such diagnostics
+/// cannot turn a small file into gigabytes of output.
+const MAX_SHOWN_MESSAGE: usize = 1000;
+
 impl fmt::Display for Rendered<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&crate::text::sanitize(&self.diag.message))
+        let m = crate::text::sanitize(&self.diag.message);
+        let n = m.chars().count();
+        if n <= MAX_SHOWN_MESSAGE {
+            return f.write_str(&m);
+        }
+        let keep = MAX_SHOWN_MESSAGE / 2;
+        let head: String = m.chars().take(keep).collect();
+        let tail: String = m.chars().skip(n - keep).collect();
+        write!(f, "{head} [... {} characters left out ...] {tail}", n - 2 * keep)
     }
 }
 

@@ -543,3 +543,42 @@ fn place_far_along_a_long_line_is_named_not_drawn() {
         },
     );
 }
+
+/// A 100 kB net name quoted in the message of each of 200 nodes naming missing parts: the
+/// report showed every message whole (20 MB of output from a 105 kB file, and minutes in a
+/// debug build at a thousand nodes). A shown message keeps its two ends.
+#[test]
+fn long_names_in_many_messages_do_not_blow_up_the_report() {
+    let mut text = format!(
+        "(export (version E) (components) (nets (net (code 1) (name {})\n",
+        "N".repeat(100_000)
+    );
+    for i in 0..200 {
+        text.push_str(&format!("(node (ref X{i}) (pin 1))\n"));
+    }
+    text.push_str(")))\n");
+    let run = check_stdin(text.as_bytes(), &[]);
+    let fragment = format!(
+        "[... {} characters left out ...]",
+        "net `".len() + 100_000 + "` names X0, which is not among the components".len() - 1000
+    );
+    assert_outcome(
+        "long names",
+        "<stdin>",
+        &run,
+        &Expect {
+            exit: 1,
+            code: Some("unknown-component"),
+            place: Some((2, 12)),
+            fragment: &fragment,
+        },
+    );
+    assert!(run.all().contains("which is not among the components"));
+    assert_eq!(run.all().matches("characters left out").count(), 200);
+    assert!(
+        run.stdout.len() < 2_000_000,
+        "{} bytes of output",
+        run.stdout.len()
+    );
+    timed("long names", &run, 20);
+}
