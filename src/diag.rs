@@ -112,13 +112,51 @@ impl fmt::Debug for Rendered<'_> {
     }
 }
 
+/// A message may quote names from the file, which can be megabytes long; the report shows at
+/// most this many characters of it (both ends, the middle left out), so N such diagnostics
+/// cannot turn a small file into gigabytes of output.
+const MAX_SHOWN_MESSAGE: usize = 1000;
+
 impl fmt::Display for Rendered<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&crate::text::sanitize(&self.diag.message))
+        let m = crate::text::sanitize(&self.diag.message);
+        let n = m.chars().count();
+        if n <= MAX_SHOWN_MESSAGE {
+            return f.write_str(&m);
+        }
+        let keep = MAX_SHOWN_MESSAGE / 2;
+        let head: String = m.chars().take(keep).collect();
+        let tail: String = m.chars().skip(n - keep).collect();
+        write!(f, "{head} [... {} characters left out ...] {tail}", n - 2 * keep)
     }
 }
 
 impl std::error::Error for Rendered<'_> {}
+
+/// miette pads up to a label's column with a format width, which panics past 65 535
+/// columns; a label further than this many bytes along its line is not drawn, and its place
+/// is named in the help instead.
+const MAX_DRAWN_COLUMN: usize = 4000;
+
+impl Rendered<'_> {
+    /// The `[name:line:column]` of the primary place, when a label lies too far along its
+    /// line to be drawn (column in bytes, as the drawn header counts it).
+    fn too_far(&self) -> Option<String> {
+        let bytes = self.source.text().as_bytes();
+        let far = |off: usize| {
+            let off = off.min(bytes.len());
+            off > MAX_DRAWN_COLUMN && memchr::memrchr2(b'\n', b'\r', &bytes[off - MAX_DRAWN_COLUMN..off]).is_none()
+        };
+        if !self.diag.labels.iter().any(|l| far(l.span.start as usize) || far(l.span.end as usize)) {
+            return None;
+        }
+        let off = (self.diag.primary_span()?.start as usize).min(bytes.len());
+        let idx = self.source.line_index(off);
+        let line = self.source.line_text(idx + 1);
+        let line_start = line.as_ptr() as usize - self.source.text().as_ptr() as usize;
+        Some(format!("[{}:{}:{}]", crate::text::sanitize(self.source.name()), idx + 1, off.saturating_sub(line_start) + 1))
+    }
+}
 
 impl Diagnostic for Rendered<'_> {
     fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
@@ -132,20 +170,25 @@ impl Diagnostic for Rendered<'_> {
         })
     }
     fn help<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        self.diag
-            .help
-            .as_ref()
-            .map(|h| Box::new(crate::text::sanitize(h)) as Box<dyn fmt::Display>)
+        let help = self.diag.help.as_ref().map(|h| crate::text::sanitize(h));
+        if let Some(place) = self.too_far() {
+            let note = format!("the place, {place}, is too far along its line to draw");
+            return Some(Box::new(match help {
+                Some(h) => format!("{h}\n{note}"),
+                None => note,
+            }));
+        }
+        help.map(|h| Box::new(h) as Box<dyn fmt::Display>)
     }
     fn source_code(&self) -> Option<&dyn SourceCode> {
-        if self.diag.labels.is_empty() {
+        if self.diag.labels.is_empty() || self.too_far().is_some() {
             None
         } else {
             Some(self.source)
         }
     }
     fn labels(&self) -> Option<Box<dyn Iterator<Item = LabeledSpan> + '_>> {
-        if self.diag.labels.is_empty() {
+        if self.diag.labels.is_empty() || self.too_far().is_some() {
             return None;
         }
         Some(Box::new(self.diag.labels.iter().map(|l| {

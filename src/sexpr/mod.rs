@@ -453,7 +453,11 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
         let o = nodes[open as usize].start as usize;
         let depth = stack.len();
         let head_end = text[o..].find(|ch: char| ch.is_whitespace() || ch == ')').map_or(n, |p| o + p);
-        let head = &text[o..head_end.min(o + 40)];
+        let mut cut = head_end.min(o + 40);
+        while !text.is_char_boundary(cut) {
+            cut -= 1;
+        }
+        let head = &text[o..cut];
         let mut d = Diag::error(
             "unclosed-list",
             format!(
