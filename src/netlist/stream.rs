@@ -181,7 +181,12 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
         let head_end = text[o..]
             .find(|ch: char| ch.is_whitespace() || ch == ')')
             .map_or(n, |p| o + p);
-        let head = &text[o..head_end.min(o + 40)];
+        // at most 40 bytes of the head, cut on a character boundary
+        let mut cut = head_end.min(o + 40);
+        while !text.is_char_boundary(cut) {
+            cut -= 1;
+        }
+        let head = &text[o..cut];
         let mut d = Diag::error(
             "unclosed-list",
             format!(
