@@ -8,6 +8,9 @@
 //! * The model does not depend on the order of components, library parts, nets, nodes or the
 //!   root's sections: the summary, the diagnostics (less their places) and every
 //!   component's pin-to-net map stay the same when the fixtures' lists are shuffled.
+//! * Neither do the checks' findings (code, severity, net, pins, the words of the message);
+//!   and renaming references consistently renames the findings' pins and the references in
+//!   their messages, and changes nothing else.
 
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -477,4 +480,119 @@ fn the_shuffle_moves_nets_and_nodes() {
             .collect::<Vec<_>>()
     };
     assert_ne!(refs(&nl), refs(&nl2), "{name}: component order unchanged");
+}
+
+// ---------------------------------------------------------------------------------------------
+// The checks: order invariance and consistent renaming
+
+/// A finding less its places, with its message's words sorted and stripped of punctuation
+/// (a list of loads may come in another order).
+fn finding_key(d: &Diag) -> (String, String, Option<String>, Vec<String>, Vec<String>) {
+    let mut words: Vec<String> = d
+        .message
+        .split_whitespace()
+        .map(|w| w.trim_matches(|c: char| matches!(c, ',' | ';' | ':' | '(' | ')')).to_string())
+        .filter(|w| !w.is_empty() && w != "and")
+        .collect();
+    words.sort();
+    let mut pins = d.pins.clone();
+    pins.sort();
+    (d.code.clone(), d.severity.to_string(), d.net.clone(), pins, words)
+}
+
+fn findings(text: &str) -> Vec<(String, String, Option<String>, Vec<String>, Vec<String>)> {
+    let src = SourceFile::new("p.net", text.to_string());
+    let rules = netmargin::classify::classifier::Rules::builtin();
+    let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).expect("fixture checks");
+    let mut v: Vec<_> = out.diags.iter().map(finding_key).collect();
+    v.sort();
+    v
+}
+
+fn check_fixtures() -> Vec<(String, String)> {
+    let base = Path::new(env!("CARGO_MANIFEST_DIR")).join("fixtures");
+    let mut v = Vec::new();
+    for f in ["demo/counter-timer.net", "boards/hobby-k8.net", "boards/clean-k5.net"] {
+        v.push((f.to_string(), std::fs::read_to_string(base.join(f)).unwrap()));
+    }
+    let mut checks: Vec<PathBuf> = std::fs::read_dir(base.join("checks")).unwrap().flatten().map(|e| e.path()).filter(|p| p.extension().is_some_and(|x| x == "net")).collect();
+    checks.sort();
+    for p in checks {
+        v.push((p.display().to_string(), std::fs::read_to_string(&p).unwrap()));
+    }
+    v
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 24, ..ProptestConfig::default() })]
+
+    /// Shuffling components, library parts, nets and nodes changes no finding.
+    #[test]
+    fn the_findings_do_not_depend_on_the_order_of_items(which in any::<prop::sample::Index>(), seed in any::<u64>()) {
+        let all = check_fixtures();
+        let (name, text) = &all[which.index(all.len())];
+        let want = findings(text);
+        let tree = sexpr::parse(text).expect("fixture reads");
+        let mut shuffled = String::new();
+        print_shuffled(&tree, tree.root(), None, &mut Mix(seed), &mut shuffled);
+        prop_assert_eq!(findings(&shuffled), want, "{} shuffled with seed {}", name, seed);
+    }
+
+    /// Renaming references consistently renames the findings' pins and the references in their
+    /// messages, and changes nothing else.
+    #[test]
+    fn renaming_references_renames_the_findings_and_nothing_else(which in any::<prop::sample::Index>(), pick in any::<u64>()) {
+        let all = check_fixtures();
+        let (name, text) = &all[which.index(all.len())];
+        let tree = sexpr::parse(text).expect("fixture reads");
+        let nl = netlist::build(&tree).expect("fixture models");
+        // rename about half the references: U9 -> U9Q (the letter prefix, and so the kind, stays)
+        let mut map: BTreeMap<String, String> = BTreeMap::new();
+        for (i, c) in nl.components.iter().enumerate() {
+            if (pick >> (i % 64)) & 1 == 1 {
+                map.insert(c.reference.as_str().to_string(), format!("{}Q", c.reference.as_str()));
+            }
+        }
+        let mut renamed = String::new();
+        let mut last = 0;
+        // every `(ref X)` list (components and nodes) gets the new name
+        for id in 0..tree.len() as NodeId {
+            if tree.is_list(id) && tree.head(id) == Some("ref") {
+                if let Some(v) = tree.children(id).nth(1) {
+                    let old = tree.text(v).unwrap().into_owned();
+                    if let Some(new) = map.get(&old) {
+                        let sp = tree.span(v);
+                        renamed.push_str(&text[last..sp.start as usize]);
+                        renamed.push_str(&if tree.kind(v) == Kind::Str { format!("\"{new}\"") } else { new.clone() });
+                        last = sp.end as usize;
+                    }
+                }
+            }
+        }
+        renamed.push_str(&text[last..]);
+        let rename_word = |w: &str| -> String {
+            // `U9`, `U9.5`, `U9's` ...: the reference part is the leading run of letters and digits
+            let end = w.find(|c: char| !c.is_ascii_alphanumeric()).unwrap_or(w.len());
+            match map.get(&w[..end]) {
+                Some(new) => format!("{new}{}", &w[end..]),
+                None => w.to_string(),
+            }
+        };
+        let src = SourceFile::new("p.net", text.to_string());
+        let rules = netmargin::classify::classifier::Rules::builtin();
+        let before = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
+        let mut want: Vec<_> = before
+            .diags
+            .iter()
+            .map(|d| {
+                let mut d = d.clone();
+                d.pins = d.pins.iter().map(|p| rename_word(p)).collect();
+                // net names are strings in the file: they keep their text (even `Net-(U5-Pad4)`)
+                d.message = d.message.split(' ').map(|w| if w.contains("Net-(") || w.contains("unconnected-(") { w.to_string() } else { rename_word(w) }).collect::<Vec<_>>().join(" ");
+                finding_key(&d)
+            })
+            .collect();
+        want.sort();
+        prop_assert_eq!(findings(&renamed), want, "{} with {:?}", name, map);
+    }
 }
