@@ -29,12 +29,21 @@ fn gnu_time() -> bool {
         .unwrap_or(false)
 }
 
-/// One timed run: wall seconds, peak resident memory in kB when GNU time measured it, and
-/// the exit code.
+/// One timed run: wall seconds, CPU seconds (user + system) and peak resident memory in kB
+/// when GNU time measured them, and the exit code.
 struct Timed {
     secs: f64,
+    cpu: Option<f64>,
     peak_kb: Option<u64>,
     code: Option<i32>,
+}
+
+/// The system's load averages (1, 5 minutes), from `/proc/loadavg`, as text.
+fn load() -> String {
+    std::fs::read_to_string("/proc/loadavg")
+        .ok()
+        .map(|s| s.split_whitespace().take(2).collect::<Vec<_>>().join(", "))
+        .unwrap_or_else(|| "n/a".to_string())
 }
 
 /// Runs `program args` with standard output thrown away (and `envs` set), under GNU time
@@ -62,17 +71,26 @@ fn run(
     let t = Instant::now();
     let out = cmd.output().expect("the command runs");
     let secs = t.elapsed().as_secs_f64();
-    let peak_kb = if measure_memory {
-        String::from_utf8_lossy(&out.stderr)
-            .lines()
-            .find_map(|l| l.trim().strip_prefix("Maximum resident set size (kbytes):"))
+    let err = String::from_utf8_lossy(&out.stderr);
+    let field = |name: &str| -> Option<f64> {
+        if !measure_memory {
+            return None;
+        }
+        err.lines()
+            .find_map(|l| l.trim().strip_prefix(name))
             .and_then(|v| v.trim().parse().ok())
-    } else {
-        None
+    };
+    let cpu = match (
+        field("User time (seconds):"),
+        field("System time (seconds):"),
+    ) {
+        (Some(u), Some(s)) => Some(u + s),
+        _ => None,
     };
     Timed {
         secs,
-        peak_kb,
+        cpu,
+        peak_kb: field("Maximum resident set size (kbytes):").map(|k| k as u64),
         code: out.status.code(),
     }
 }
@@ -154,20 +172,21 @@ fn main() {
     let cores = std::thread::available_parallelism().map_or(0, |n| n.get());
     let cat = PathBuf::from("cat");
     println!(
-        "{cores} cores; {runs} interleaved runs, medians; peak memory by {}",
+        "{cores} cores; {runs} interleaved runs, medians; CPU time and peak memory by {}; load average (1, 5 min) at the start: {}",
         if memory {
-            "GNU time (maximum resident set size)"
+            "GNU time (user + system, maximum resident set size)"
         } else {
             "nothing (GNU time not found: n/a)"
-        }
+        },
+        load()
     );
 
     // one file, growing size
     println!();
     println!(
-        "| file | netmargin check --format json | MB/s | cat (floor) | MB/s | check / cat | peak memory | peak / file |"
+        "| file | netmargin check --format json | MB/s | CPU time | MB per CPU s | cat (floor) | MB/s | check / cat | peak memory | peak / file |"
     );
-    println!("| ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
+    println!("| ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
     let mut rates = Vec::new();
     for &size in &sizes {
         let (path, len) = big_file(&dir, size);
@@ -188,20 +207,25 @@ fn main() {
         );
         let _ = run(&cat, &[path.as_os_str()], &[], false);
         let (mut t_check, mut t_cat, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
+        let mut t_cpu = Vec::new();
         for _ in 0..runs {
             let c = run(&bin, &check_args, &[], memory);
             peak = peak.max(c.peak_kb);
             t_check.push(c.secs);
+            t_cpu.extend(c.cpu);
             t_cat.push(run(&cat, &[path.as_os_str()], &[], false).secs);
         }
         let (c, f) = (median(t_check), median(t_cat));
+        let cpu = (!t_cpu.is_empty()).then(|| median(t_cpu));
         let mbytes = len as f64 / 1e6;
-        rates.push((size, mbytes / c));
+        rates.push((size, mbytes / c, cpu.map(|t| mbytes / t)));
         println!(
-            "| {:.1} MB | {:.3} s | {:.1} | {:.3} s | {:.0} | {:.1} x | {} | {} |",
+            "| {:.1} MB | {:.3} s | {:.1} | {} | {} | {:.3} s | {:.0} | {:.1} x | {} | {} |",
             mbytes,
             c,
             mbytes / c,
+            cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+            cpu.map_or("n/a".to_string(), |t| format!("{:.1}", mbytes / t)),
             f,
             mbytes / f,
             c / f,
@@ -216,10 +240,14 @@ fn main() {
         if rates.len() > 1 {
             println!();
             println!(
-                "throughput at {} MB / at {} MB: {:.2} (1.00 = linear; below 1 = cost grows faster than the size)",
+                "throughput at {} MB / at {} MB: wall {:.2}, CPU {} (1.00 = linear; below 1 = cost grows faster than the size)",
                 b.0,
                 a.0,
-                b.1 / a.1
+                b.1 / a.1,
+                match (a.2, b.2) {
+                    (Some(x), Some(y)) => format!("{:.2}", y / x),
+                    _ => "n/a".to_string(),
+                }
             );
         }
     }
@@ -249,6 +277,7 @@ fn main() {
     let _ = run(&cat, &cat_args, &[], false);
     let mut times: Vec<Vec<f64>> = vec![Vec::new(); settings.len()];
     let mut peaks: Vec<Option<u64>> = vec![None; settings.len()];
+    let mut cpus: Vec<Vec<f64>> = vec![Vec::new(); settings.len()];
     let mut t_cat = Vec::new();
     for _ in 0..runs {
         for (i, (_, threads)) in settings.iter().enumerate() {
@@ -260,6 +289,7 @@ fn main() {
             );
             peaks[i] = peaks[i].max(r.peak_kb);
             times[i].push(r.secs);
+            cpus[i].extend(r.cpu);
         }
         t_cat.push(run(&cat, &cat_args, &[], false).secs);
     }
@@ -272,24 +302,33 @@ fn main() {
         bytes as f64 / 1e3 / n_files as f64
     );
     println!();
-    println!("| run | wall time | files/s | MB/s | / cat | speed-up over 1 core | peak memory |");
-    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: |");
+    println!(
+        "| run | wall time | files/s | MB/s | / cat | speed-up over 1 core | CPU time | peak memory |"
+    );
+    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
     for (i, (label, _)) in settings.iter().enumerate() {
         let t = median(times[i].clone());
         println!(
-            "| check, {label} | {:.3} s | {:.0} | {:.1} | {:.1} x | {:.2} x | {} |",
+            "| check, {label} | {:.3} s | {:.0} | {:.1} | {:.1} x | {:.2} x | {} | {} |",
             t,
             n_files as f64 / t,
             bytes as f64 / 1e6 / t,
             t / f,
             one / t,
+            if cpus[i].is_empty() {
+                "n/a".to_string()
+            } else {
+                format!("{:.2} s", median(cpus[i].clone()))
+            },
             mb(peaks[i]),
         );
     }
     println!(
-        "| cat (floor) | {:.3} s | {:.0} | {:.0} | 1.0 x | | |",
+        "| cat (floor) | {:.3} s | {:.0} | {:.0} | 1.0 x | | | |",
         f,
         n_files as f64 / f,
         bytes as f64 / 1e6 / f
     );
+    println!();
+    println!("load average (1, 5 min) at the end: {}", load());
 }
