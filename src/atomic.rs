@@ -6,6 +6,16 @@
 //! systems), are flushed to the disk (`fsync`), and the temporary file is renamed over the
 //! target; then the folder itself is synced so the rename survives a power cut. An existing
 //! target keeps its permissions.
+//!
+//! A process killed mid-write (`kill -9`, a power cut) cannot remove its temporary file; the
+//! next write to the same target removes such leftovers, on Linux, once the process that
+//! made them is gone (its id is in the name).
+//!
+//! For tests only: with the environment variable [`PAUSE_ENV`]
+//! (`NETMARGIN_TEST_PAUSE_BEFORE_RENAME_MS`) set to a number of milliseconds, a write waits
+//! that long after the temporary file is written and synced and before the rename, so a test
+//! can kill the process in the middle of a write. Unset, empty or not a number, it does
+//! nothing.
 
 use std::fs::{self, File, OpenOptions};
 use std::io::{self, Write};
@@ -13,6 +23,13 @@ use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicU64, Ordering};
 
 static COUNTER: AtomicU64 = AtomicU64::new(0);
+
+/// The test-only environment variable that makes a write pause before its rename (see the
+/// module documentation).
+pub const PAUSE_ENV: &str = "NETMARGIN_TEST_PAUSE_BEFORE_RENAME_MS";
+
+/// The longest pause [`PAUSE_ENV`] can ask for, so a stray setting cannot hang a run.
+const MAX_PAUSE_MS: u64 = 60_000;
 
 /// How [`write_with`] treats an existing target.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -49,7 +66,9 @@ pub fn write_with(path: &Path, bytes: &[u8], existing: Existing) -> io::Result<(
             format!("`{}` already exists", path.display()),
         ));
     }
-    let (tmp, mut file) = create_temp(&dir, &name.to_string_lossy())?;
+    let name = name.to_string_lossy();
+    remove_stale(&dir, &name);
+    let (tmp, mut file) = create_temp(&dir, &name)?;
     let result = (|| {
         file.write_all(bytes)?;
         if let Ok(meta) = fs::metadata(path) {
@@ -58,6 +77,7 @@ pub fn write_with(path: &Path, bytes: &[u8], existing: Existing) -> io::Result<(
         }
         file.sync_all()?;
         drop(file);
+        test_pause();
         finish(&tmp, path, existing)?;
         sync_dir(&dir);
         Ok(())
@@ -66,6 +86,61 @@ pub fn write_with(path: &Path, bytes: &[u8], existing: Existing) -> io::Result<(
         let _ = fs::remove_file(&tmp);
     }
     result
+}
+
+/// The pause [`PAUSE_ENV`] asks for; nothing when it is unset or not a number.
+fn test_pause() {
+    let ms = std::env::var(PAUSE_ENV)
+        .ok()
+        .and_then(|v| v.trim().parse::<u64>().ok());
+    if let Some(ms) = ms {
+        std::thread::sleep(std::time::Duration::from_millis(ms.min(MAX_PAUSE_MS)));
+    }
+}
+
+/// The process id in a temporary name [`create_temp`] gives `name`: `.{name}.{pid}.{n}.tmp`.
+/// Exactly two numbers, so the temporary files of another target (`name.x`) never match.
+fn temp_owner(file: &str, name: &str) -> Option<u32> {
+    let middle = file
+        .strip_prefix('.')?
+        .strip_prefix(name)?
+        .strip_prefix('.')?
+        .strip_suffix(".tmp")?;
+    let (pid, n) = middle.split_once('.')?;
+    let digits = |s: &str| !s.is_empty() && s.bytes().all(|b| b.is_ascii_digit());
+    if !digits(pid) || !digits(n) {
+        return None;
+    }
+    pid.parse().ok()
+}
+
+/// Removes temporary files for `name` in `dir` left by processes that no longer run (a
+/// write killed before its rename). Linux only, where `/proc` says which processes run;
+/// elsewhere, and on any error, it leaves everything as it is.
+fn remove_stale(dir: &Path, name: &str) {
+    #[cfg(target_os = "linux")]
+    {
+        let proc_ok = Path::new("/proc/self").exists();
+        let Ok(entries) = fs::read_dir(dir) else {
+            return;
+        };
+        if !proc_ok {
+            return;
+        }
+        let me = std::process::id();
+        for e in entries.flatten() {
+            let file = e.file_name();
+            let Some(pid) = file.to_str().and_then(|f| temp_owner(f, name)) else {
+                continue;
+            };
+            let is_file = e.file_type().is_ok_and(|t| t.is_file());
+            if pid != me && is_file && !Path::new(&format!("/proc/{pid}")).exists() {
+                let _ = fs::remove_file(e.path());
+            }
+        }
+    }
+    #[cfg(not(target_os = "linux"))]
+    let _ = (dir, name);
 }
 
 fn create_temp(dir: &Path, name: &str) -> io::Result<(PathBuf, File)> {
@@ -195,6 +270,40 @@ mod tests {
             fs::metadata(&p).unwrap().permissions().mode() & 0o777,
             0o750
         );
+        fs::remove_dir_all(&d).unwrap();
+    }
+
+    #[test]
+    fn reads_the_owner_only_from_its_own_temporary_names() {
+        assert_eq!(temp_owner(".base.json.4321.7.tmp", "base.json"), Some(4321));
+        // another target's temporary file, or other files in the folder
+        assert_eq!(temp_owner(".base.json.x.4321.7.tmp", "base.json"), None);
+        assert_eq!(temp_owner(".base.json.4321.7.tmp", "base"), None);
+        assert_eq!(temp_owner(".base.json.4321.tmp", "base.json"), None);
+        assert_eq!(temp_owner("base.json.4321.7.tmp", "base.json"), None);
+        assert_eq!(temp_owner(".base.json.43a1.7.tmp", "base.json"), None);
+        assert_eq!(temp_owner(".base.json.4321.7.tmp.bak", "base.json"), None);
+    }
+
+    #[cfg(target_os = "linux")]
+    #[test]
+    fn a_write_removes_what_a_killed_writer_left_and_nothing_else() {
+        let d = scratch("stale");
+        let p = d.join("base.json");
+        write(&p, b"old").unwrap();
+        // no process has an id this large (Linux caps ids at 2^22)
+        let dead = d.join(".base.json.4294000000.0.tmp");
+        // process 1 always runs: its file may be a write in progress
+        let live = d.join(".base.json.1.0.tmp");
+        let other = d.join(".notes.txt.4294000000.0.tmp");
+        for f in [&dead, &live, &other] {
+            fs::write(f, b"half").unwrap();
+        }
+        write(&p, b"new").unwrap();
+        assert_eq!(fs::read(&p).unwrap(), b"new");
+        assert!(!dead.exists(), "the dead writer's file is still there");
+        assert!(live.exists(), "a running process's file was removed");
+        assert!(other.exists(), "another target's file was removed");
         fs::remove_dir_all(&d).unwrap();
     }
 }

@@ -67,7 +67,12 @@ pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
             .read_to_end(&mut buf)
             .map_err(|e| Diag::error("unreadable", format!("cannot read standard input: {e}")))?;
         if buf.len() as u64 > opts.max_bytes {
-            return Err(too_big(buf.len() as u64));
+            // only limit + 1 bytes were read: say "more than", not a size that was never counted
+            return Err(Diag::error(
+                "too-large",
+                format!("standard input holds more than the limit of {} bytes", opts.max_bytes),
+            )
+            .with_help("raise the limit with --max-bytes if the machine has the memory for it"));
         }
         return Ok(buf);
     }

@@ -1250,24 +1250,8 @@ fn gather_sources(cx: &Circuit<'_, '_>, config: Option<String>) -> Sources {
 /// Writes `bytes` to `path` through a temporary file in the same folder and a rename, so a
 /// reader never sees half a report.
 fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .map_or("report".into(), |n| n.to_string_lossy().into_owned());
-    let tmp = dir.join(format!(".{name}.{}.tmp", std::process::id()));
-    let result = (|| {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
-        f.sync_all()?;
-        std::fs::rename(&tmp, path)
-    })();
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result
+    // every file netmargin writes goes through one writer: temporary file, fsync, rename
+    crate::atomic::write(path, bytes)
 }
 
 fn safe_file_part(s: &str) -> String {

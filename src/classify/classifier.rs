@@ -276,7 +276,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 }
             }
             value_match = m;
-        } else if let Some((i, e)) = rules.parts.find(value).filter(|_| ic || c.pins.len() > 2) {
+        } else if let Some((i, e)) = (ic || c.pins.len() > 2).then(|| rules.parts.find(value)).flatten() {
             used_entries[i] = true;
             entry = Some(i);
             method = if e.shipped { Method::ShippedEntry } else { Method::ProjectOverride };

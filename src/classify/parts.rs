@@ -146,8 +146,42 @@ impl PartTable {
 
 /// Case-insensitive glob with `*` (any run) and `?` (one character).
 pub fn glob_match(pattern: &str, text: &str) -> bool {
+    if pattern.is_ascii() && text.is_ascii() {
+        return glob_ascii(pattern.as_bytes(), text.as_bytes());
+    }
     let p: Vec<char> = pattern.chars().flat_map(char::to_lowercase).collect();
     let t: Vec<char> = text.chars().flat_map(char::to_lowercase).collect();
+    glob_chars(&p, &t)
+}
+
+/// The same matcher on ASCII bytes, without allocating (every component's value meets every
+/// entry's globs).
+fn glob_ascii(p: &[u8], t: &[u8]) -> bool {
+    let (mut pi, mut ti) = (0, 0);
+    let (mut star, mut mark) = (None, 0);
+    while ti < t.len() {
+        if pi < p.len() && (p[pi] == b'?' || p[pi].eq_ignore_ascii_case(&t[ti])) {
+            pi += 1;
+            ti += 1;
+        } else if pi < p.len() && p[pi] == b'*' {
+            star = Some(pi);
+            mark = ti;
+            pi += 1;
+        } else if let Some(s) = star {
+            pi = s + 1;
+            mark += 1;
+            ti = mark;
+        } else {
+            return false;
+        }
+    }
+    while pi < p.len() && p[pi] == b'*' {
+        pi += 1;
+    }
+    pi == p.len()
+}
+
+fn glob_chars(p: &[char], t: &[char]) -> bool {
     let (mut pi, mut ti) = (0, 0);
     let (mut star, mut mark) = (None, 0);
     while ti < t.len() {
@@ -184,6 +218,10 @@ mod tests {
         assert!(!glob_match("LM358*", "LM35"));
         assert!(glob_match("a*b*c", "aXXbYc"));
         assert!(!glob_match("a*b*c", "aXXbY"));
+        // the non-ASCII path agrees
+        assert!(glob_match("µ*Ω", "µ10kΩ"));
+        assert!(!glob_match("µ*Ω", "µ10k"));
+        assert!(glob_match("ÄB*", "äbc"));
     }
 
     #[test]
