@@ -9,6 +9,8 @@
 pub mod budget;
 pub mod rails;
 
+use std::sync::Arc;
+
 use crate::classify::classifier::{Classified, PartKind, Rules};
 use crate::classify::family::{Drive, Family, Levels};
 use crate::classify::function::DriveClass;
@@ -87,7 +89,7 @@ pub struct Driver {
     pub at: PinRef,
     pub role: PinRole,
     /// The family's figures at the part's supply, when the part is classified.
-    pub levels: Option<Levels>,
+    pub levels: Option<Arc<Levels>>,
     pub family: Option<String>,
 }
 
@@ -96,7 +98,7 @@ pub struct Driver {
 pub struct Load {
     pub at: PinRef,
     pub role: PinRole,
-    pub levels: Option<Levels>,
+    pub levels: Option<Arc<Levels>>,
     pub family: Option<String>,
     /// The highest voltage this input takes at its supply.
     pub input_limit: Option<f64>,
@@ -312,7 +314,7 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
         supplies.push(Some(PartSupply { vcc, known, supply_net, ground_net }));
     }
 
-    let levels_of = |ci: usize| -> Option<Levels> {
+    let levels_of = |ci: usize| -> Option<Arc<Levels>> {
         let part = &cl.parts[ci];
         let fam = part.family.as_deref().and_then(|f| rules.families.get(f))?;
         let s = supplies[ci].as_ref()?;
@@ -320,10 +322,11 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
             Some(DriveClass::Buffer) => Drive::Buffer,
             _ => Drive::Standard,
         };
-        Some(fam.levels(s.vcc, drive))
+        Some(Arc::new(fam.levels(s.vcc, drive)))
     };
-    let mut level_cache: Vec<Option<Option<Levels>>> = vec![None; nl.components.len()];
-    let mut levels = |ci: usize| -> Option<Levels> {
+    // one `Levels` per part, shared by all its pins
+    let mut level_cache: Vec<Option<Option<Arc<Levels>>>> = vec![None; nl.components.len()];
+    let mut levels = |ci: usize| -> Option<Arc<Levels>> {
         if level_cache[ci].is_none() {
             level_cache[ci] = Some(levels_of(ci));
         }
@@ -347,7 +350,7 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
                             nm.drivers.push(Driver {
                                 at,
                                 role: PinRole::PushPull,
-                                levels: Some(f.levels(f.supply_nominal, Drive::Standard)),
+                                levels: Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard))),
                                 family: Some(f.id.clone()),
                             });
                         }
