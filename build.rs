@@ -10,7 +10,8 @@ fn main() {
     if let Ok(rd) = std::fs::read_dir(dir) {
         for e in rd.flatten() {
             let p = e.path();
-            if p.extension().is_none_or(|x| x != "rs") || p.file_stem().is_some_and(|s| s == "mod") {
+            if p.extension().is_none_or(|x| x != "rs") || p.file_stem().is_some_and(|s| s == "mod")
+            {
                 continue;
             }
             println!("cargo:rerun-if-changed={}", p.display());

@@ -149,21 +149,37 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
     let results: Vec<(FileOutcome, pipeline::UsedRules)> = files
         .par_iter()
         .zip(per_file.par_iter())
-        .map(|(f, cp)| match cp.as_ref().map(|p| loaded.get(p).expect("loaded above")) {
-            Some(Err(_)) => (FileOutcome {
-                name: if f == "-" { "<stdin>".into() } else { f.clone() },
-                source: None,
-                fatal: Some(Diag::error("config", format!("not checked: its configuration `{}` has errors (shown below)", cp.as_ref().expect("some").display()))),
-                diags: Vec::new(),
-                summary: Default::default(),
-                coverage: None,
-                waived: 0,
-            }, Default::default()),
-            Some(Ok(l)) => pipeline::check_file_with_usage(f, &l.rules, &base(Some(&l.config))),
-            None => pipeline::check_file_with_usage(f, &builtin, &base(None)),
-        })
+        .map(
+            |(f, cp)| match cp.as_ref().map(|p| loaded.get(p).expect("loaded above")) {
+                Some(Err(_)) => (
+                    FileOutcome {
+                        name: if f == "-" {
+                            "<stdin>".into()
+                        } else {
+                            f.clone()
+                        },
+                        source: None,
+                        fatal: Some(Diag::error(
+                            "config",
+                            format!(
+                                "not checked: its configuration `{}` has errors (shown below)",
+                                cp.as_ref().expect("some").display()
+                            ),
+                        )),
+                        diags: Vec::new(),
+                        summary: Default::default(),
+                        coverage: None,
+                        waived: 0,
+                    },
+                    Default::default(),
+                ),
+                Some(Ok(l)) => pipeline::check_file_with_usage(f, &l.rules, &base(Some(&l.config))),
+                None => pipeline::check_file_with_usage(f, &builtin, &base(None)),
+            },
+        )
         .collect();
-    let (mut outcomes, usage): (Vec<FileOutcome>, Vec<pipeline::UsedRules>) = results.into_iter().unzip();
+    let (mut outcomes, usage): (Vec<FileOutcome>, Vec<pipeline::UsedRules>) =
+        results.into_iter().unzip();
 
     // waivers
     let today = config::today();
@@ -200,21 +216,42 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
         }
         let mut diags = Vec::new();
         // project mapping entries that matched nothing in this run
-        let mine: Vec<&pipeline::UsedRules> = usage.iter().zip(&per_file).filter(|(_, cp)| cp.as_ref() == Some(path)).map(|(u, _)| u).collect();
+        let mine: Vec<&pipeline::UsedRules> = usage
+            .iter()
+            .zip(&per_file)
+            .filter(|(_, cp)| cp.as_ref() == Some(path))
+            .map(|(u, _)| u)
+            .collect();
         for (i, e) in l.rules.parts.entries.iter().enumerate() {
             if e.shipped || mine.iter().any(|u| u.entries.contains(&i)) {
                 continue;
             }
             let (file, line) = e.origin.clone().unwrap_or_default();
-            diags.push(Diag::warning("unused-rule", format!("the part entry at {file}:{line} ({}) matched no component in this run", e.values.join(", "))).with_help("remove it, or correct its value globs"));
+            diags.push(
+                Diag::warning(
+                    "unused-rule",
+                    format!(
+                        "the part entry at {file}:{line} ({}) matched no component in this run",
+                        e.values.join(", ")
+                    ),
+                )
+                .with_help("remove it, or correct its value globs"),
+            );
         }
         for (id, file, line) in &l.rules.project_families {
             if !mine.iter().any(|u| u.families.iter().any(|f| f == id)) {
-                diags.push(Diag::info("unused-rule", format!("the family `{id}` at {file}:{line} was used by no part in this run")));
+                diags.push(Diag::info(
+                    "unused-rule",
+                    format!("the family `{id}` at {file}:{line} was used by no part in this run"),
+                ));
             }
         }
         for (series, id, file, line) in &l.rules.project_functions {
-            if !mine.iter().any(|u| u.functions.iter().any(|(s, f)| s == series && f.eq_ignore_ascii_case(id))) {
+            if !mine.iter().any(|u| {
+                u.functions
+                    .iter()
+                    .any(|(s, f)| s == series && f.eq_ignore_ascii_case(id))
+            }) {
                 diags.push(Diag::info("unused-rule", format!("the function `{id}` ({} series) at {file}:{line} was used by no part in this run", series.as_str())));
             }
         }

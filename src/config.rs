@@ -135,10 +135,23 @@ impl Waiver {
         if self.check != "*" && self.check != d.code {
             return false;
         }
-        let refs: Vec<&str> = d.pins.iter().map(|p| p.split_once('.').map_or(p.as_str(), |(r, _)| r)).collect();
-        let refs_ok = self.refs.is_empty() || refs.iter().any(|r| self.refs.iter().any(|g| glob_match(g, r)));
-        let pins_ok = self.pins.is_empty() || d.pins.iter().any(|p| self.pins.iter().any(|g| glob_match(g, p)));
-        let nets_ok = self.nets.is_empty() || d.net.as_deref().is_some_and(|n| self.nets.iter().any(|g| glob_match(g, n)));
+        let refs: Vec<&str> = d
+            .pins
+            .iter()
+            .map(|p| p.split_once('.').map_or(p.as_str(), |(r, _)| r))
+            .collect();
+        let refs_ok = self.refs.is_empty()
+            || refs
+                .iter()
+                .any(|r| self.refs.iter().any(|g| glob_match(g, r)));
+        let pins_ok = self.pins.is_empty()
+            || d.pins
+                .iter()
+                .any(|p| self.pins.iter().any(|g| glob_match(g, p)));
+        let nets_ok = self.nets.is_empty()
+            || d.net
+                .as_deref()
+                .is_some_and(|n| self.nets.iter().any(|g| glob_match(g, n)));
         refs_ok && pins_ok && nets_ok
     }
 
@@ -178,8 +191,16 @@ fn sp(r: std::ops::Range<usize>) -> Span {
 /// The nearest `netmargin.toml` in `start`'s folder or above it.
 pub fn discover(start: &Path) -> Option<PathBuf> {
     let cwd = std::env::current_dir().ok()?;
-    let abs = if start.is_absolute() { start.to_path_buf() } else { cwd.join(start) };
-    let mut dir = if abs.is_dir() { Some(abs.as_path()) } else { abs.parent() };
+    let abs = if start.is_absolute() {
+        start.to_path_buf()
+    } else {
+        cwd.join(start)
+    };
+    let mut dir = if abs.is_dir() {
+        Some(abs.as_path())
+    } else {
+        abs.parent()
+    };
     while let Some(d) = dir {
         let c = d.join(FILE_NAME);
         if c.is_file() {
@@ -199,7 +220,10 @@ pub fn load(path: &Path) -> Result<Config, ConfigError> {
     let name = path.display().to_string();
     let text = std::fs::read_to_string(path).map_err(|e| ConfigError {
         source: SourceFile::new(name.clone(), ""),
-        diags: vec![Diag::error("config", format!("cannot read the configuration `{name}`: {e}"))],
+        diags: vec![Diag::error(
+            "config",
+            format!("cannot read the configuration `{name}`: {e}"),
+        )],
     })?;
     let source = SourceFile::new(name, text);
     let mut cfg = parse(&source)?;
@@ -209,49 +233,101 @@ pub fn load(path: &Path) -> Result<Config, ConfigError> {
 
 /// Parses a configuration text.
 pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
-    let err = |diags: Vec<Diag>| ConfigError { source: source.clone(), diags };
+    let err = |diags: Vec<Diag>| ConfigError {
+        source: source.clone(),
+        diags,
+    };
     let raw: RawConfig = toml::from_str(source.text()).map_err(|e| {
-        let mut d = Diag::error("config", format!("in the configuration: {}", e.message().trim_end()));
+        let mut d = Diag::error(
+            "config",
+            format!("in the configuration: {}", e.message().trim_end()),
+        );
         if let Some(s) = e.span() {
             d = d.at(sp(s), "here");
         }
-        err(vec![d.with_help("see `netmargin config --help` and the README's configuration section for the keys")])
+        err(vec![d.with_help(
+            "see `netmargin config --help` and the README's configuration section for the keys",
+        )])
     })?;
     let mut diags = Vec::new();
-    let mut cfg = Config { source: Some(source.clone()), ..Default::default() };
+    let mut cfg = Config {
+        source: Some(source.clone()),
+        ..Default::default()
+    };
     let mut frac = |v: &Spanned<f64>, what: &str, lo: f64, hi: f64| -> Option<At<f64>> {
         let x = *v.get_ref();
         if !(lo..=hi).contains(&x) {
-            diags.push(Diag::error("config", format!("{what} must be between {lo} and {hi}, found {x}")).at(sp(v.span()), "out of range"));
+            diags.push(
+                Diag::error(
+                    "config",
+                    format!("{what} must be between {lo} and {hi}, found {x}"),
+                )
+                .at(sp(v.span()), "out of range"),
+            );
             None
         } else {
-            Some(At { value: x, span: sp(v.span()) })
+            Some(At {
+                value: x,
+                span: sp(v.span()),
+            })
         }
     };
-    cfg.rail_tolerance = raw.rail_tolerance.as_ref().and_then(|v| frac(v, "rail_tolerance", 0.0, 0.5));
+    cfg.rail_tolerance = raw
+        .rail_tolerance
+        .as_ref()
+        .and_then(|v| frac(v, "rail_tolerance", 0.0, 0.5));
     if let Some(c) = &raw.checks {
-        cfg.derating = c.derating.as_ref().and_then(|v| frac(v, "checks.derating", 0.05, 1.0));
-        cfg.min_margin_v = c.min_margin_v.as_ref().and_then(|v| frac(v, "checks.min_margin_v", 0.0, 5.0));
+        cfg.derating = c
+            .derating
+            .as_ref()
+            .and_then(|v| frac(v, "checks.derating", 0.05, 1.0));
+        cfg.min_margin_v = c
+            .min_margin_v
+            .as_ref()
+            .and_then(|v| frac(v, "checks.min_margin_v", 0.0, 5.0));
     }
     for (name, v) in &raw.rails {
         if !v.get_ref().is_finite() || v.get_ref().abs() > 1000.0 {
-            diags.push(Diag::error("config", format!("rail `{name}`: {} is not a plausible voltage", v.get_ref())).at(sp(v.span()), "here"));
+            diags.push(
+                Diag::error(
+                    "config",
+                    format!("rail `{name}`: {} is not a plausible voltage", v.get_ref()),
+                )
+                .at(sp(v.span()), "here"),
+            );
             continue;
         }
-        cfg.rails.push(At { value: (name.clone(), *v.get_ref()), span: sp(v.span()) });
+        cfg.rails.push(At {
+            value: (name.clone(), *v.get_ref()),
+            span: sp(v.span()),
+        });
     }
     let families = FamilyTable::builtin();
     for (r, fam) in &raw.connectors {
         if families.get(fam.get_ref()).is_none() {
-            diags.push(Diag::error("config", format!("connector {r}: no family `{}`", fam.get_ref())).at(sp(fam.span()), "unknown family").with_help("`netmargin families` lists them"));
+            diags.push(
+                Diag::error(
+                    "config",
+                    format!("connector {r}: no family `{}`", fam.get_ref()),
+                )
+                .at(sp(fam.span()), "unknown family")
+                .with_help("`netmargin families` lists them"),
+            );
             continue;
         }
-        cfg.connectors.push(At { value: (r.clone(), fam.get_ref().clone()), span: sp(fam.span()) });
+        cfg.connectors.push(At {
+            value: (r.clone(), fam.get_ref().clone()),
+            span: sp(fam.span()),
+        });
     }
     if let Some(c) = &raw.checks {
         for (id, setting) in &c.severity {
             if crate::checks::info(id.get_ref()).is_none() {
-                diags.push(Diag::error("config", format!("no check `{}`", id.get_ref())).at(sp(id.span()), "unknown check").with_help("`netmargin explain` lists the checks"));
+                diags.push(
+                    Diag::error("config", format!("no check `{}`", id.get_ref()))
+                        .at(sp(id.span()), "unknown check")
+                        .with_help("`netmargin explain` lists the checks"),
+                );
                 continue;
             }
             let s = match setting.get_ref().as_str() {
@@ -260,15 +336,31 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
                 "warning" => Setting::Severity(Severity::Warning),
                 "info" => Setting::Severity(Severity::Info),
                 other => {
-                    diags.push(Diag::error("config", format!("`{other}` is not a severity: use error, warning, info or off")).at(sp(setting.span()), "here"));
+                    diags.push(
+                        Diag::error(
+                            "config",
+                            format!("`{other}` is not a severity: use error, warning, info or off"),
+                        )
+                        .at(sp(setting.span()), "here"),
+                    );
                     continue;
                 }
             };
-            cfg.checks.push(At { value: (id.get_ref().clone(), s), span: sp(setting.span()) });
+            cfg.checks.push(At {
+                value: (id.get_ref().clone(), s),
+                span: sp(setting.span()),
+            });
         }
     }
     if let Some(r) = &raw.rules {
-        let conv = |v: &Vec<Spanned<String>>| v.iter().map(|p| At { value: PathBuf::from(p.get_ref()), span: sp(p.span()) }).collect::<Vec<_>>();
+        let conv = |v: &Vec<Spanned<String>>| {
+            v.iter()
+                .map(|p| At {
+                    value: PathBuf::from(p.get_ref()),
+                    span: sp(p.span()),
+                })
+                .collect::<Vec<_>>()
+        };
         cfg.families = conv(&r.families);
         cfg.functions = conv(&r.functions);
         cfg.parts = conv(&r.parts);
@@ -277,13 +369,26 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
         let span = sp(w.span());
         let w = w.get_ref();
         if w.check.get_ref() != "*" && crate::checks::info(w.check.get_ref()).is_none() {
-            diags.push(Diag::error("config", format!("waiver for an unknown check `{}`", w.check.get_ref())).at(sp(w.check.span()), "unknown check"));
+            diags.push(
+                Diag::error(
+                    "config",
+                    format!("waiver for an unknown check `{}`", w.check.get_ref()),
+                )
+                .at(sp(w.check.span()), "unknown check"),
+            );
             continue;
         }
         let reason = match &w.reason {
             Some(r) if !r.get_ref().trim().is_empty() => r.get_ref().clone(),
             _ => {
-                diags.push(Diag::error("config", "a waiver needs a `reason`: say why the finding is accepted").at(span, "no reason").with_help("add `reason = \"...\"` to this [[waiver]]"));
+                diags.push(
+                    Diag::error(
+                        "config",
+                        "a waiver needs a `reason`: say why the finding is accepted",
+                    )
+                    .at(span, "no reason")
+                    .with_help("add `reason = \"...\"` to this [[waiver]]"),
+                );
                 continue;
             }
         };
@@ -292,12 +397,23 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
             Some(d) => match d.get_ref().date {
                 Some(date) => Some((date.year as i32, date.month as u32, date.day as u32)),
                 None => {
-                    diags.push(Diag::error("config", "`expires` must be a date such as 2027-06-30").at(sp(d.span()), "no date"));
+                    diags.push(
+                        Diag::error("config", "`expires` must be a date such as 2027-06-30")
+                            .at(sp(d.span()), "no date"),
+                    );
                     continue;
                 }
             },
         };
-        cfg.waivers.push(Waiver { check: w.check.get_ref().clone(), refs: w.refs.clone(), pins: w.pins.clone(), nets: w.nets.clone(), reason, expires, span });
+        cfg.waivers.push(Waiver {
+            check: w.check.get_ref().clone(),
+            refs: w.refs.clone(),
+            pins: w.pins.clone(),
+            nets: w.nets.clone(),
+            reason,
+            expires,
+            span,
+        });
     }
     if diags.is_empty() {
         Ok(cfg)
@@ -308,7 +424,11 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
 
 impl Config {
     fn base(&self) -> PathBuf {
-        self.path.as_ref().and_then(|p| p.parent()).map(Path::to_path_buf).unwrap_or_default()
+        self.path
+            .as_ref()
+            .and_then(|p| p.parent())
+            .map(Path::to_path_buf)
+            .unwrap_or_default()
     }
 
     /// The shipped rules with the project's mapping files over them.
@@ -318,7 +438,11 @@ impl Config {
             let (src, text) = self.read_rule_file(&f.value, f.span)?;
             let t = FamilyTable::parse(&text).map_err(|e| rule_errors(&src, e))?;
             for fam in t.iter() {
-                rules.project_families.push((fam.id.clone(), src.name().to_string(), src.line_col(fam.span.start).line));
+                rules.project_families.push((
+                    fam.id.clone(),
+                    src.name().to_string(),
+                    src.line_col(fam.span.start).line,
+                ));
             }
             rules.families.merge(t);
             rules.sources.push(format!("project {}", f.value.display()));
@@ -327,7 +451,12 @@ impl Config {
             let (src, text) = self.read_rule_file(&f.value, f.span)?;
             let t = FunctionTable::parse(&text).map_err(|e| rule_errors(&src, e))?;
             for f in t.iter() {
-                rules.project_functions.push((f.series, f.id.clone(), src.name().to_string(), src.line_col(f.span.start).line));
+                rules.project_functions.push((
+                    f.series,
+                    f.id.clone(),
+                    src.name().to_string(),
+                    src.line_col(f.span.start).line,
+                ));
             }
             rules.functions.merge(t);
             rules.sources.push(format!("project {}", f.value.display()));
@@ -349,8 +478,15 @@ impl Config {
         match std::fs::read_to_string(&p) {
             Ok(t) => Ok((SourceFile::new(p.display().to_string(), t.clone()), t)),
             Err(e) => Err(ConfigError {
-                source: self.source.clone().unwrap_or_else(|| SourceFile::new("netmargin.toml", "")),
-                diags: vec![Diag::error("config", format!("cannot read the mapping file `{}`: {e}", p.display())).at(span, "listed here")],
+                source: self
+                    .source
+                    .clone()
+                    .unwrap_or_else(|| SourceFile::new("netmargin.toml", "")),
+                diags: vec![Diag::error(
+                    "config",
+                    format!("cannot read the mapping file `{}`: {e}", p.display()),
+                )
+                .at(span, "listed here")],
             }),
         }
     }
@@ -397,7 +533,9 @@ fn rule_errors(src: &SourceFile, errs: Vec<crate::classify::RuleError>) -> Confi
 
 /// Today's date (UTC) as (year, month, day), from the system clock.
 pub fn today() -> (i32, u32, u32) {
-    let secs = std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.as_secs() as i64);
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.as_secs() as i64);
     civil_from_days(secs.div_euclid(86_400))
 }
 

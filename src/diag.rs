@@ -61,7 +61,15 @@ pub struct Diag {
 
 impl Diag {
     pub fn new(code: impl Into<String>, severity: Severity, message: impl Into<String>) -> Diag {
-        Diag { code: code.into(), severity, message: message.into(), labels: Vec::new(), help: None, net: None, pins: Vec::new() }
+        Diag {
+            code: code.into(),
+            severity,
+            message: message.into(),
+            labels: Vec::new(),
+            help: None,
+            net: None,
+            pins: Vec::new(),
+        }
     }
     pub fn error(code: impl Into<String>, message: impl Into<String>) -> Diag {
         Diag::new(code, Severity::Error, message)
@@ -74,12 +82,20 @@ impl Diag {
     }
     /// Adds the primary place.
     pub fn at(mut self, span: Span, text: impl Into<String>) -> Diag {
-        self.labels.push(Label { span, text: text.into(), primary: true });
+        self.labels.push(Label {
+            span,
+            text: text.into(),
+            primary: true,
+        });
         self
     }
     /// Adds a secondary place.
     pub fn also(mut self, span: Span, text: impl Into<String>) -> Diag {
-        self.labels.push(Label { span, text: text.into(), primary: false });
+        self.labels.push(Label {
+            span,
+            text: text.into(),
+            primary: false,
+        });
         self
     }
     pub fn with_help(mut self, help: impl Into<String>) -> Diag {
@@ -96,7 +112,11 @@ impl Diag {
     }
     /// The primary span, if any.
     pub fn primary_span(&self) -> Option<Span> {
-        self.labels.iter().find(|l| l.primary).or(self.labels.first()).map(|l| l.span)
+        self.labels
+            .iter()
+            .find(|l| l.primary)
+            .or(self.labels.first())
+            .map(|l| l.span)
     }
 }
 
@@ -127,7 +147,11 @@ impl fmt::Display for Rendered<'_> {
         let keep = MAX_SHOWN_MESSAGE / 2;
         let head: String = m.chars().take(keep).collect();
         let tail: String = m.chars().skip(n - keep).collect();
-        write!(f, "{head} [... {} characters left out ...] {tail}", n - 2 * keep)
+        write!(
+            f,
+            "{head} [... {} characters left out ...] {tail}",
+            n - 2 * keep
+        )
     }
 }
 
@@ -145,16 +169,27 @@ impl Rendered<'_> {
         let bytes = self.source.text().as_bytes();
         let far = |off: usize| {
             let off = off.min(bytes.len());
-            off > MAX_DRAWN_COLUMN && memchr::memrchr2(b'\n', b'\r', &bytes[off - MAX_DRAWN_COLUMN..off]).is_none()
+            off > MAX_DRAWN_COLUMN
+                && memchr::memrchr2(b'\n', b'\r', &bytes[off - MAX_DRAWN_COLUMN..off]).is_none()
         };
-        if !self.diag.labels.iter().any(|l| far(l.span.start as usize) || far(l.span.end as usize)) {
+        if !self
+            .diag
+            .labels
+            .iter()
+            .any(|l| far(l.span.start as usize) || far(l.span.end as usize))
+        {
             return None;
         }
         let off = (self.diag.primary_span()?.start as usize).min(bytes.len());
         let idx = self.source.line_index(off);
         let line = self.source.line_text(idx + 1);
         let line_start = line.as_ptr() as usize - self.source.text().as_ptr() as usize;
-        Some(format!("[{}:{}:{}]", crate::text::sanitize(self.source.name()), idx + 1, off.saturating_sub(line_start) + 1))
+        Some(format!(
+            "[{}:{}:{}]",
+            crate::text::sanitize(self.source.name()),
+            idx + 1,
+            off.saturating_sub(line_start) + 1
+        ))
     }
 }
 
@@ -192,7 +227,11 @@ impl Diagnostic for Rendered<'_> {
             return None;
         }
         Some(Box::new(self.diag.labels.iter().map(|l| {
-            let text = if l.text.is_empty() { None } else { Some(crate::text::sanitize(&l.text).into_owned()) };
+            let text = if l.text.is_empty() {
+                None
+            } else {
+                Some(crate::text::sanitize(&l.text).into_owned())
+            };
             if l.primary {
                 LabeledSpan::new_primary_with_span(text, l.span)
             } else {
@@ -206,8 +245,14 @@ impl Diagnostic for Rendered<'_> {
 /// [`crate::checks::REGISTRY`]). `(code, summary)`; reporters use them as rule metadata.
 pub static INPUT_CODES: &[(&str, &str)] = &[
     ("empty-file", "the file is empty or holds only white space"),
-    ("wrong-format", "the file is a KiCad file of another kind, or an older netlist format"),
-    ("not-a-netlist", "the file is not a KiCad S-expression netlist"),
+    (
+        "wrong-format",
+        "the file is a KiCad file of another kind, or an older netlist format",
+    ),
+    (
+        "not-a-netlist",
+        "the file is not a KiCad S-expression netlist",
+    ),
     ("binary-file", "the file holds NUL bytes"),
     ("invalid-utf8", "the file is not valid UTF-8"),
     ("too-large", "the file is larger than the size limit"),
@@ -218,15 +263,39 @@ pub static INPUT_CODES: &[(&str, &str)] = &[
     ("trailing-text", "text after the end of the netlist"),
     ("too-deep", "lists nested deeper than any netlist nests"),
     ("bad-field", "a list where a value belongs"),
-    ("missing-field", "a required field is missing; the item is left out or read as unnamed"),
+    (
+        "missing-field",
+        "a required field is missing; the item is left out or read as unnamed",
+    ),
     ("duplicate-ref", "two components share one reference"),
     ("duplicate-net-code", "two nets share one code"),
-    ("unknown-component", "a net names a component that is not in the netlist"),
+    (
+        "unknown-component",
+        "a net names a component that is not in the netlist",
+    ),
     ("pin-on-two-nets", "one pin is listed on two different nets"),
-    ("missing-libpart", "a component's library part is not in the netlist"),
-    ("netlist-version", "a netlist version netmargin does not know"),
-    ("config", "the project configuration (netmargin.toml) has an error"),
-    ("mapping-file", "a project mapping file (families, functions, parts) has an error"),
-    ("stale-waiver", "a waiver that matched no finding, or has expired"),
-    ("unused-rule", "a project mapping entry that matched nothing in the run"),
+    (
+        "missing-libpart",
+        "a component's library part is not in the netlist",
+    ),
+    (
+        "netlist-version",
+        "a netlist version netmargin does not know",
+    ),
+    (
+        "config",
+        "the project configuration (netmargin.toml) has an error",
+    ),
+    (
+        "mapping-file",
+        "a project mapping file (families, functions, parts) has an error",
+    ),
+    (
+        "stale-waiver",
+        "a waiver that matched no finding, or has expired",
+    ),
+    (
+        "unused-rule",
+        "a project mapping entry that matched nothing in the run",
+    ),
 ];

@@ -5,23 +5,23 @@
 //! Data flows one way: text -> [`sexpr`] (syntax tree with spans) -> [`netlist`] (the
 //! netlist model) -> [`classify`] (families, functions, pin roles) -> checks -> reports.
 
-pub mod classify;
-pub mod netlist;
-pub mod sexpr;
-pub mod source;
-pub mod values;
-pub mod diag;
-pub mod text;
-pub mod input;
-pub mod cli;
-pub mod pipeline;
-pub mod report;
-#[doc(hidden)]
-pub mod synth;
+pub mod app;
+pub mod atomic;
+pub mod audit;
+pub mod baseline;
 pub mod checks;
 pub mod circuit;
+pub mod classify;
+pub mod cli;
 pub mod config;
-pub mod app;
-pub mod audit;
-pub mod atomic;
-pub mod baseline;
+pub mod diag;
+pub mod input;
+pub mod netlist;
+pub mod pipeline;
+pub mod report;
+pub mod sexpr;
+pub mod source;
+#[doc(hidden)]
+pub mod synth;
+pub mod text;
+pub mod values;

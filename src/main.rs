@@ -159,7 +159,11 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             netmargin::report::net::write_net(&mut out, &cx, net)?;
             Ok(0)
         }
-        Command::Audit(args) => netmargin::audit::command(&args, &opts, color_on(cli.global.color, std::io::stderr().is_terminal())),
+        Command::Audit(args) => netmargin::audit::command(
+            &args,
+            &opts,
+            color_on(cli.global.color, std::io::stderr().is_terminal()),
+        ),
         Command::Families(args) => {
             let rules = netmargin::classify::classifier::Rules::builtin();
             let mut out = std::io::stdout().lock();

@@ -22,7 +22,9 @@ pub struct ReadOptions {
 
 impl Default for ReadOptions {
     fn default() -> Self {
-        ReadOptions { max_bytes: input::DEFAULT_MAX_BYTES }
+        ReadOptions {
+            max_bytes: input::DEFAULT_MAX_BYTES,
+        }
     }
 }
 
@@ -47,7 +49,12 @@ pub struct FileOutcome {
 
 impl FileOutcome {
     pub fn worst(&self) -> Option<Severity> {
-        self.fatal.as_ref().map(|d| d.severity).into_iter().chain(self.diags.iter().map(|d| d.severity)).max()
+        self.fatal
+            .as_ref()
+            .map(|d| d.severity)
+            .into_iter()
+            .chain(self.diags.iter().map(|d| d.severity))
+            .max()
     }
 }
 
@@ -56,7 +63,10 @@ pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
     let too_big = |len: u64| {
         Diag::error(
             "too-large",
-            format!("the file is {len} bytes, above the limit of {} bytes", opts.max_bytes),
+            format!(
+                "the file is {len} bytes, above the limit of {} bytes",
+                opts.max_bytes
+            ),
         )
         .with_help("raise the limit with --max-bytes if the machine has the memory for it")
     };
@@ -70,7 +80,10 @@ pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
             // only limit + 1 bytes were read: say "more than", not a size that was never counted
             return Err(Diag::error(
                 "too-large",
-                format!("standard input holds more than the limit of {} bytes", opts.max_bytes),
+                format!(
+                    "standard input holds more than the limit of {} bytes",
+                    opts.max_bytes
+                ),
             )
             .with_help("raise the limit with --max-bytes if the machine has the memory for it"));
         }
@@ -79,7 +92,11 @@ pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
     let p = Path::new(path);
     let meta = std::fs::metadata(p).map_err(|e| io_diag(path, &e))?;
     if meta.is_dir() {
-        return Err(Diag::error("unreadable", format!("`{path}` is a folder")).with_help("name the `.net` files, or a folder of them once folder walking is enabled"));
+        return Err(
+            Diag::error("unreadable", format!("`{path}` is a folder")).with_help(
+                "name the `.net` files, or a folder of them once folder walking is enabled",
+            ),
+        );
     }
     if meta.len() > opts.max_bytes {
         return Err(too_big(meta.len()));
@@ -107,7 +124,14 @@ pub struct RunOptions {
 /// Reads and checks one file with the shipped rules and default options.
 pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
     let rules = Rules::builtin();
-    check_file(path, &rules, &RunOptions { read: opts.clone(), ..Default::default() })
+    check_file(
+        path,
+        &rules,
+        &RunOptions {
+            read: opts.clone(),
+            ..Default::default()
+        },
+    )
 }
 
 /// Reads, models, classifies and checks one file.
@@ -128,10 +152,26 @@ pub struct UsedRules {
 }
 
 /// [`check_file`], also saying which mapping entries the file used.
-pub fn check_file_with_usage(path: &str, rules: &Rules, opts: &RunOptions) -> (FileOutcome, UsedRules) {
+pub fn check_file_with_usage(
+    path: &str,
+    rules: &Rules,
+    opts: &RunOptions,
+) -> (FileOutcome, UsedRules) {
     let mut used = UsedRules::default();
-    let name = if path == "-" { "<stdin>".to_string() } else { path.to_string() };
-    let mut out = FileOutcome { name: name.clone(), source: None, fatal: None, diags: Vec::new(), summary: Summary::default(), coverage: None, waived: 0 };
+    let name = if path == "-" {
+        "<stdin>".to_string()
+    } else {
+        path.to_string()
+    };
+    let mut out = FileOutcome {
+        name: name.clone(),
+        source: None,
+        fatal: None,
+        diags: Vec::new(),
+        summary: Summary::default(),
+        coverage: None,
+        waived: 0,
+    };
     let bytes = match read_bytes(path, &opts.read) {
         Ok(b) => b,
         Err(d) => {
@@ -172,7 +212,11 @@ pub struct Checked {
 }
 
 /// Parses, models, classifies and checks a text.
-pub fn check_source(source: &SourceFile, rules: &Rules, opts: &RunOptions) -> Result<Checked, Diag> {
+pub fn check_source(
+    source: &SourceFile,
+    rules: &Rules,
+    opts: &RunOptions,
+) -> Result<Checked, Diag> {
     if let Some(d) = sexpr::sniff(source.text()) {
         return Err(d);
     }
@@ -199,7 +243,12 @@ pub fn check_source(source: &SourceFile, rules: &Rules, opts: &RunOptions) -> Re
     used.families.dedup();
     used.functions.sort();
     used.functions.dedup();
-    Ok(Checked { diags, summary: nl.summary(), coverage: cl.coverage, used })
+    Ok(Checked {
+        diags,
+        summary: nl.summary(),
+        coverage: cl.coverage,
+        used,
+    })
 }
 
 /// Parses and models a text, returning the model's diagnostics and counts.

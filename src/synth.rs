@@ -26,7 +26,10 @@ pub fn netlist(target_bytes: usize) -> String {
     }
     s.push_str("  )\n  (libparts\n");
     for (part, pins) in [("74HC00", 14), ("74LS04", 14), ("R", 2), ("C", 2)] {
-        let _ = write!(s, "    (libpart (lib \"x\") (part \"{part}\")\n      (pins\n");
+        let _ = write!(
+            s,
+            "    (libpart (lib \"x\") (part \"{part}\")\n      (pins\n"
+        );
         for p in 1..=pins {
             let t = match (part, p) {
                 (_, 7) | (_, 14) if pins == 14 => "power_in",
@@ -43,7 +46,10 @@ pub fn netlist(target_bytes: usize) -> String {
     let mut net = |s: &mut String, name: &str, nodes: &[(&str, usize, u32, &str)]| {
         let _ = writeln!(s, "    (net (code \"{code}\") (name \"{name}\")");
         for (p, c, pin, t) in nodes {
-            let _ = writeln!(s, "      (node (ref \"{p}{c}\") (pin \"{pin}\") (pintype \"{t}\"))");
+            let _ = writeln!(
+                s,
+                "      (node (ref \"{p}{c}\") (pin \"{pin}\") (pintype \"{t}\"))"
+            );
         }
         s.truncate(s.len() - 1);
         s.push_str(")\n");
@@ -51,17 +57,44 @@ pub fn netlist(target_bytes: usize) -> String {
     };
     for c in 0..cells {
         let n = format!("/cell{c}/A");
-        net(&mut s, &n, &[("V", c, 2, "output"), ("U", c, 1, "input"), ("U", c, 2, "input"), ("R", c, 2, "passive")]);
+        net(
+            &mut s,
+            &n,
+            &[
+                ("V", c, 2, "output"),
+                ("U", c, 1, "input"),
+                ("U", c, 2, "input"),
+                ("R", c, 2, "passive"),
+            ],
+        );
         let n = format!("/cell{c}/Y");
-        net(&mut s, &n, &[("U", c, 3, "output"), ("V", c, 1, "input"), ("U", c, 4, "input"), ("U", c, 5, "input")]);
+        net(
+            &mut s,
+            &n,
+            &[
+                ("U", c, 3, "output"),
+                ("V", c, 1, "input"),
+                ("U", c, 4, "input"),
+                ("U", c, 5, "input"),
+            ],
+        );
         let n = format!("Net-(U{c}-Pad6)");
         net(&mut s, &n, &[("U", c, 6, "output"), ("V", c, 3, "input")]);
     }
     let mut vcc: Vec<(&str, usize, u32, &str)> = Vec::new();
     let mut gnd: Vec<(&str, usize, u32, &str)> = Vec::new();
     for c in 0..cells {
-        vcc.extend([("U", c, 14, "power_in"), ("V", c, 14, "power_in"), ("R", c, 1, "passive"), ("C", c, 1, "passive")]);
-        gnd.extend([("U", c, 7, "power_in"), ("V", c, 7, "power_in"), ("C", c, 2, "passive")]);
+        vcc.extend([
+            ("U", c, 14, "power_in"),
+            ("V", c, 14, "power_in"),
+            ("R", c, 1, "passive"),
+            ("C", c, 1, "passive"),
+        ]);
+        gnd.extend([
+            ("U", c, 7, "power_in"),
+            ("V", c, 7, "power_in"),
+            ("C", c, 2, "passive"),
+        ]);
     }
     net(&mut s, "+5V", &vcc);
     net(&mut s, "GND", &gnd);
@@ -74,7 +107,11 @@ mod tests {
     #[test]
     fn generated_netlist_reads_cleanly_at_about_the_size_asked() {
         let text = super::netlist(200_000);
-        assert!(text.len() > 150_000 && text.len() < 260_000, "{}", text.len());
+        assert!(
+            text.len() > 150_000 && text.len() < 260_000,
+            "{}",
+            text.len()
+        );
         let tree = crate::sexpr::parse(&text).unwrap();
         let nl = crate::netlist::build(&tree).unwrap();
         assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());

@@ -21,7 +21,8 @@ pub fn sanitize(s: &str) -> Cow<'_, str> {
 }
 
 fn is_unsafe(c: char) -> bool {
-    (c.is_control() && c != '\t') || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}')
+    (c.is_control() && c != '\t')
+        || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}')
 }
 
 #[cfg(test)]

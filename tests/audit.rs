@@ -266,9 +266,20 @@ fn html_report_reviews_the_recapture() {
         r.contains("U18 (74LS02): the symbol disagrees with the 74LS02 pinout at 12 pins: pins 1, 4, 10 and 13 are typed input"),
         "{r}"
     );
-    assert!(r.contains("<td>U14</td><td>U14 (74LS04) is a 14-pin part (hex inverter) on the 16-pin footprint"), "{r}");
-    assert!(r.contains("U12 pin 14 (74LS74 supply pin VCC) is on the ground rail GND"), "{r}");
-    assert!(r.contains("U19 (74LS00) has no power: pins 7 (GND) and 14 (VCC) are on no net"), "{r}");
+    assert!(
+        r.contains(
+            "<td>U14</td><td>U14 (74LS04) is a 14-pin part (hex inverter) on the 16-pin footprint"
+        ),
+        "{r}"
+    );
+    assert!(
+        r.contains("U12 pin 14 (74LS74 supply pin VCC) is on the ground rail GND"),
+        "{r}"
+    );
+    assert!(
+        r.contains("U19 (74LS00) has no power: pins 7 (GND) and 14 (VCC) are on no net"),
+        "{r}"
+    );
     // U20's unit D was never placed: pins 11, 12, 13 on no net; pin 10 alone (#1)
     assert!(
         r.contains(

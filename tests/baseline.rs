@@ -197,7 +197,10 @@ fn check_with_a_baseline_reports_only_new_findings_and_survives_unrelated_edits(
     let lines = short_lines(&o);
     // the two level-mismatch findings (one per board) are the new ones
     assert_eq!(lines.len(), 2, "{lines:?}");
-    assert!(lines.iter().all(|l| l.ends_with("[level-mismatch]")), "{lines:?}");
+    assert!(
+        lines.iter().all(|l| l.ends_with("[level-mismatch]")),
+        "{lines:?}"
+    );
     assert!(
         lines.iter().any(|l| l.starts_with(
             "hardware/hobby.net:472:7: error: U2 pin 1 (74HC00 input 1A) needs 3.50 V"

@@ -37,17 +37,41 @@ fn precedence_field_over_project_over_shipped_over_pattern() {
     let tree = netmargin::sexpr::parse(&text).unwrap();
     let nl = netmargin::netlist::build(&tree).unwrap();
     let mut rules = Rules::builtin();
-    let project = PartTable::parse("[[part]]\nvalues = [\"CUSTOM-*\"]\nfamily = \"74S\"\nseries = \"74\"\nfunction = \"00\"\n", false).unwrap();
+    let project = PartTable::parse(
+        "[[part]]\nvalues = [\"CUSTOM-*\"]\nfamily = \"74S\"\nseries = \"74\"\nfunction = \"00\"\n",
+        false,
+    )
+    .unwrap();
     rules.parts.merge_over(project);
     let cl = classify(&nl, &rules);
     let p = |i: usize| &cl.parts[i];
-    assert_eq!((p(0).method, p(0).family.as_deref()), (Method::Pattern, Some("74LS")));
-    assert_eq!((p(1).method, p(1).family.as_deref()), (Method::ComponentField, Some("74HCT")), "the field wins over the value");
-    assert_eq!((p(2).method, p(2).family.as_deref()), (Method::ProjectOverride, Some("74S")));
-    assert_eq!((p(3).method, p(3).kind), (Method::ShippedEntry, PartKind::NotLogic));
+    assert_eq!(
+        (p(0).method, p(0).family.as_deref()),
+        (Method::Pattern, Some("74LS"))
+    );
+    assert_eq!(
+        (p(1).method, p(1).family.as_deref()),
+        (Method::ComponentField, Some("74HCT")),
+        "the field wins over the value"
+    );
+    assert_eq!(
+        (p(2).method, p(2).family.as_deref()),
+        (Method::ProjectOverride, Some("74S"))
+    );
+    assert_eq!(
+        (p(3).method, p(3).kind),
+        (Method::ShippedEntry, PartKind::NotLogic)
+    );
     assert_eq!(p(4).kind, PartKind::UnknownIc);
-    assert_eq!(p(4).suggestions.first().map(|s| s.value.as_str()), Some("74LS00"));
-    assert_eq!(p(5).function.as_ref().map(|f| f.1.as_str()), Some("02"), "a Logic function field names the function");
+    assert_eq!(
+        p(4).suggestions.first().map(|s| s.value.as_str()),
+        Some("74LS00")
+    );
+    assert_eq!(
+        p(5).function.as_ref().map(|f| f.1.as_str()),
+        Some("02"),
+        "a Logic function field names the function"
+    );
     // the value is the truth: the table's roles win over the symbol's wrong pin types
     let u1 = &nl.components[0];
     let role = |num: &str| p(0).roles[u1.pins.iter().position(|x| x.num == num).unwrap()];
@@ -69,43 +93,86 @@ fn netlist_only_parts_take_the_symbols_pin_types() {
         (pin (num "4") (name "VCC") (type "power_in"))
         (pin (num "5") (name "NC") (type "no_connect"))))
 "#;
-    let text = netlist("    (comp (ref \"U1\") (value \"XR-2206Q\") (libsource (lib \"x\") (part \"MYSTERY\")))\n", lib, "");
+    let text = netlist(
+        "    (comp (ref \"U1\") (value \"XR-2206Q\") (libsource (lib \"x\") (part \"MYSTERY\")))\n",
+        lib,
+        "",
+    );
     let tree = netmargin::sexpr::parse(&text).unwrap();
     let nl = netmargin::netlist::build(&tree).unwrap();
     let cl = classify(&nl, &Rules::builtin());
     assert_eq!(cl.parts[0].method, Method::NetlistOnly);
-    assert_eq!(cl.parts[0].roles, vec![PinRole::Input, PinRole::OpenCollector, PinRole::Ground, PinRole::Supply, PinRole::NoConnect]);
+    assert_eq!(
+        cl.parts[0].roles,
+        vec![
+            PinRole::Input,
+            PinRole::OpenCollector,
+            PinRole::Ground,
+            PinRole::Supply,
+            PinRole::NoConnect
+        ]
+    );
 }
 
 #[test]
 fn parts_command_text_and_json() {
     let run = |args: &[&str]| {
-        let o = Command::new(env!("CARGO_BIN_EXE_netmargin")).args(args).current_dir(env!("CARGO_MANIFEST_DIR")).output().unwrap();
+        let o = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+            .args(args)
+            .current_dir(env!("CARGO_MANIFEST_DIR"))
+            .output()
+            .unwrap();
         assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
         String::from_utf8(o.stdout).unwrap()
     };
     let text = run(&["parts", "fixtures/demo/counter-timer.net"]);
     assert!(text.contains("U22     74LSOO"), "{text}");
     assert!(text.contains("did you mean 74LS00"), "{text}");
-    assert!(text.contains("23 of 24 IC-like parts classified (96 %)"), "{text}");
-    let json = run(&["parts", "--format", "json", "fixtures/demo/counter-timer.net"]);
+    assert!(
+        text.contains("23 of 24 IC-like parts classified (96 %)"),
+        "{text}"
+    );
+    let json = run(&[
+        "parts",
+        "--format",
+        "json",
+        "fixtures/demo/counter-timer.net",
+    ]);
     let v: serde_json::Value = serde_json::from_str(&json).unwrap();
     assert_eq!(v["coverage"]["classified"], 23);
     assert_eq!(v["coverage"]["ic_like"], 24);
-    let u23 = v["parts"].as_array().unwrap().iter().find(|p| p["reference"] == "U23").unwrap();
+    let u23 = v["parts"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["reference"] == "U23")
+        .unwrap();
     assert_eq!(u23["family"], "4000B");
     assert_eq!(u23["method"], "pattern");
 }
 
 #[test]
 fn families_command_at_a_supply() {
-    let o = Command::new(env!("CARGO_BIN_EXE_netmargin")).args(["families", "--supply", "4.5", "--format", "json"]).output().unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["families", "--supply", "4.5", "--format", "json"])
+        .output()
+        .unwrap();
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
-    let hc = v.as_array().unwrap().iter().find(|f| f["id"] == "74HC").unwrap();
+    let hc = v
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["id"] == "74HC")
+        .unwrap();
     // MM74HC04 (onsemi) DC table: VIH 3.15 V at VCC = 4.5 V
     assert_eq!(hc["vih_min"], 3.15);
     assert_eq!(hc["basis"], "published");
-    let ls = v.as_array().unwrap().iter().find(|f| f["id"] == "74LS").unwrap();
+    let ls = v
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["id"] == "74LS")
+        .unwrap();
     // TI SDLS025B: IOL 8 mA
     assert_eq!(ls["iol_max_ma"], 8.0);
 }

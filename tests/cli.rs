@@ -21,8 +21,14 @@ fn run(args: &[&str]) -> String {
         .expect("the binary runs");
     let stdout = String::from_utf8_lossy(&out.stdout);
     let stderr = String::from_utf8_lossy(&out.stderr);
-    assert!(!stderr.contains("panicked"), "the binary panicked on {args:?}:\n{stderr}");
-    format!("exit: {}\n--- stdout\n{stdout}--- stderr\n{stderr}", out.status.code().unwrap_or(-1))
+    assert!(
+        !stderr.contains("panicked"),
+        "the binary panicked on {args:?}:\n{stderr}"
+    );
+    format!(
+        "exit: {}\n--- stdout\n{stdout}--- stderr\n{stderr}",
+        out.status.code().unwrap_or(-1)
+    )
 }
 
 fn files(dir: &str, ext: &[&str]) -> Vec<String> {
@@ -48,11 +54,27 @@ fn snapshot_in(dir: &str, name: &str, content: &str) {
 fn each_check_on_its_fixture() {
     let fx = files("fixtures/checks", &["net"]);
     for f in &fx {
-        let id = Path::new(f).file_stem().unwrap().to_string_lossy().to_string();
+        let id = Path::new(f)
+            .file_stem()
+            .unwrap()
+            .to_string_lossy()
+            .to_string();
         // a fixture may hold variants: `<id>--<variant>.net`
         let check = id.split("--").next().unwrap().to_string();
-        assert!(netmargin::checks::info(&check).is_some(), "{f}: no check `{check}`");
-        let out = run(&["check", "--color", "never", "--fail-on", "info", "--only", &check, f]);
+        assert!(
+            netmargin::checks::info(&check).is_some(),
+            "{f}: no check `{check}`"
+        );
+        let out = run(&[
+            "check",
+            "--color",
+            "never",
+            "--fail-on",
+            "info",
+            "--only",
+            &check,
+            f,
+        ]);
         snapshot_in("fixtures/checks", &id, &out);
     }
 }
@@ -63,9 +85,22 @@ fn every_registered_check_has_a_fixture() {
     let missing: Vec<&str> = netmargin::checks::REGISTRY
         .iter()
         .map(|c| c.id)
-        .filter(|id| !fx.iter().any(|f| Path::new(f).file_stem().unwrap().to_string_lossy().split("--").next() == Some(id)))
+        .filter(|id| {
+            !fx.iter().any(|f| {
+                Path::new(f)
+                    .file_stem()
+                    .unwrap()
+                    .to_string_lossy()
+                    .split("--")
+                    .next()
+                    == Some(id)
+            })
+        })
         .collect();
-    assert!(missing.is_empty(), "checks without a fixture in fixtures/checks: {missing:?}");
+    assert!(
+        missing.is_empty(),
+        "checks without a fixture in fixtures/checks: {missing:?}"
+    );
 }
 
 #[test]
@@ -81,15 +116,25 @@ fn boards_and_demo() {
 
 #[test]
 fn clean_boards_have_no_findings() {
-    for f in ["fixtures/boards/clean-k5.net", "fixtures/boards/clean-k8.net"] {
+    for f in [
+        "fixtures/boards/clean-k5.net",
+        "fixtures/boards/clean-k8.net",
+    ] {
         let out = run(&["check", "--color", "never", "--fail-on", "info", f]);
-        assert!(out.starts_with("exit: 0\n"), "{f} is meant to be clean:\n{out}");
+        assert!(
+            out.starts_with("exit: 0\n"),
+            "{f} is meant to be clean:\n{out}"
+        );
     }
 }
 
 #[test]
 fn quirks_model_errors_and_malformed_files() {
-    for dir in ["fixtures/quirks", "fixtures/model-errors", "fixtures/malformed"] {
+    for dir in [
+        "fixtures/quirks",
+        "fixtures/model-errors",
+        "fixtures/malformed",
+    ] {
         for f in files(dir, &["net", "json", "sch", "kicad_sch", "kicad_pcb"]) {
             let out = run(&["check", "--color", "never", &f]);
             let name = f.replace('/', "__");
@@ -102,17 +147,37 @@ fn quirks_model_errors_and_malformed_files() {
 fn usage_errors_exit_2() {
     let out = run(&["check"]);
     assert!(out.starts_with("exit: 2\n"), "{out}");
-    let out = run(&["check", "--only", "no-such-check", "fixtures/boards/clean-k5.net"]);
-    assert!(out.starts_with("exit: 2\n") && out.contains("unknown check `no-such-check`"), "{out}");
+    let out = run(&[
+        "check",
+        "--only",
+        "no-such-check",
+        "fixtures/boards/clean-k5.net",
+    ]);
+    assert!(
+        out.starts_with("exit: 2\n") && out.contains("unknown check `no-such-check`"),
+        "{out}"
+    );
     let out = run(&["check", "fixtures/no-such-file.net"]);
-    assert!(out.starts_with("exit: 2\n") && out.contains("no such file"), "{out}");
+    assert!(
+        out.starts_with("exit: 2\n") && out.contains("no such file"),
+        "{out}"
+    );
 }
 
 #[test]
 fn one_bad_file_does_not_stop_the_others_and_the_worst_exit_wins() {
-    let out = run(&["check", "--color", "never", "fixtures/malformed/empty.net", "fixtures/boards/clean-k8.net"]);
+    let out = run(&[
+        "check",
+        "--color",
+        "never",
+        "fixtures/malformed/empty.net",
+        "fixtures/boards/clean-k8.net",
+    ]);
     assert!(out.starts_with("exit: 2\n"), "{out}");
-    assert!(out.contains("fixtures/boards/clean-k8.net: "), "the second file was still read:\n{out}");
+    assert!(
+        out.contains("fixtures/boards/clean-k8.net: "),
+        "the second file was still read:\n{out}"
+    );
 }
 
 #[test]
@@ -133,12 +198,30 @@ fn standard_input() {
 #[test]
 fn the_demo_board_holds_an_instance_of_every_check() {
     let out = Command::new(env!("CARGO_BIN_EXE_netmargin"))
-        .args(["check", "--no-config", "--format", "json", "fixtures/demo/counter-timer.net"])
+        .args([
+            "check",
+            "--no-config",
+            "--format",
+            "json",
+            "fixtures/demo/counter-timer.net",
+        ])
         .current_dir(root())
         .output()
         .unwrap();
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let codes: Vec<String> = v["files"][0]["findings"].as_array().unwrap().iter().map(|f| f["check"].as_str().unwrap().to_string()).collect();
-    let missing: Vec<&str> = netmargin::checks::REGISTRY.iter().map(|c| c.id).filter(|id| !codes.iter().any(|c| c == id)).collect();
-    assert!(missing.is_empty(), "the demo board lacks an instance of {missing:?}");
+    let codes: Vec<String> = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| f["check"].as_str().unwrap().to_string())
+        .collect();
+    let missing: Vec<&str> = netmargin::checks::REGISTRY
+        .iter()
+        .map(|c| c.id)
+        .filter(|id| !codes.iter().any(|c| c == id))
+        .collect();
+    assert!(
+        missing.is_empty(),
+        "the demo board lacks an instance of {missing:?}"
+    );
 }

@@ -6,8 +6,16 @@ use std::path::Path;
 use std::process::Command;
 
 fn run(dir: &Path, args: &[&str]) -> (i32, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_netmargin")).args(args).current_dir(dir).output().unwrap();
-    let text = format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr));
+    let out = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .unwrap();
+    let text = format!(
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
     assert!(!text.contains("panicked"), "{text}");
     (out.status.code().unwrap_or(-1), text)
 }
@@ -16,7 +24,10 @@ fn scratch(name: &str) -> std::path::PathBuf {
     let d = std::env::temp_dir().join(format!("netmargin-config-{name}-{}", std::process::id()));
     let _ = std::fs::remove_dir_all(&d);
     std::fs::create_dir_all(d.join("hw")).unwrap();
-    let demo = std::fs::read(Path::new(env!("CARGO_MANIFEST_DIR")).join("fixtures/demo/counter-timer.net")).unwrap();
+    let demo = std::fs::read(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("fixtures/demo/counter-timer.net"),
+    )
+    .unwrap();
     std::fs::write(d.join("hw/board.net"), demo).unwrap();
     d
 }
@@ -48,11 +59,25 @@ expires = 2001-01-01
     .unwrap();
     let (code, out) = run(&d, &["check", "--format", "short", "hw/board.net"]);
     assert_eq!(code, 1, "{out}");
-    assert!(!out.contains("gate D of U20"), "waived finding still reported:\n{out}");
-    assert!(out.contains("U20 pin 10 (74HC00 input 3B) is connected to nothing"), "a finding the waiver's pins do not cover must remain:\n{out}");
-    assert!(out.contains("netmargin.toml:8:1: warning: this waiver for `fanout-overrun` matched no finding"), "{out}");
+    assert!(
+        !out.contains("gate D of U20"),
+        "waived finding still reported:\n{out}"
+    );
+    assert!(
+        out.contains("U20 pin 10 (74HC00 input 3B) is connected to nothing"),
+        "a finding the waiver's pins do not cover must remain:\n{out}"
+    );
+    assert!(
+        out.contains(
+            "netmargin.toml:8:1: warning: this waiver for `fanout-overrun` matched no finding"
+        ),
+        "{out}"
+    );
     assert!(out.contains("expired on 2001-01-01"), "{out}");
-    assert!(out.contains("U15 pin 2 (74LS05 open-collector output 1Y) has no pull-up"), "an expired waiver no longer applies:\n{out}");
+    assert!(
+        out.contains("U15 pin 2 (74LS05 open-collector output 1Y) has no pull-up"),
+        "an expired waiver no longer applies:\n{out}"
+    );
     let (_, human) = run(&d, &["check", "hw/board.net"]);
     assert!(human.contains("suppressed"), "{human}");
 }
@@ -60,12 +85,19 @@ expires = 2001-01-01
 #[test]
 fn config_errors_point_at_the_line_and_exit_2() {
     let d = scratch("errors");
-    std::fs::write(d.join("netmargin.toml"), "[checks]\nderating = 0.8\ncolour = \"red\"\n").unwrap();
+    std::fs::write(
+        d.join("netmargin.toml"),
+        "[checks]\nderating = 0.8\ncolour = \"red\"\n",
+    )
+    .unwrap();
     let (code, out) = run(&d, &["check", "--format", "short", "hw/board.net"]);
     assert_eq!(code, 2, "{out}");
     assert!(out.contains("netmargin.toml:3:1: error:"), "{out}");
     assert!(out.contains("colour"), "{out}");
-    let (code, _) = run(&d, &["check", "--no-config", "--format", "short", "hw/board.net"]);
+    let (code, _) = run(
+        &d,
+        &["check", "--no-config", "--format", "short", "hw/board.net"],
+    );
     assert_eq!(code, 1);
 }
 
@@ -79,11 +111,21 @@ fn project_mapping_files_override_and_unused_entries_are_reported() {
     )
     .unwrap();
     let (_, out) = run(&d, &["check", "--format", "short", "hw/board.net"]);
-    assert!(out.contains("parts.toml:8) matched no component") || out.contains("parts.toml:8 (NOTHING-LIKE-THIS) matched no component"), "{out}");
-    assert!(!out.contains("parts.toml:1 (74LSOO) matched no component"), "{out}");
+    assert!(
+        out.contains("parts.toml:8) matched no component")
+            || out.contains("parts.toml:8 (NOTHING-LIKE-THIS) matched no component"),
+        "{out}"
+    );
+    assert!(
+        !out.contains("parts.toml:1 (74LSOO) matched no component"),
+        "{out}"
+    );
     // the project entry classifies U22: its gates are now checked as a 74LS00
     let (_, parts) = run(&d, &["check", "--format", "json", "hw/board.net"]);
-    assert!(parts.contains("\"format_version\": 1") || parts.contains("\"format_version\":1"), "{parts}");
+    assert!(
+        parts.contains("\"format_version\": 1") || parts.contains("\"format_version\":1"),
+        "{parts}"
+    );
 }
 
 #[test]
@@ -91,12 +133,48 @@ fn rails_from_the_command_line_and_config() {
     let d = scratch("rails");
     let text = std::fs::read_to_string(d.join("hw/board.net")).unwrap();
     // rename +5V to an unrevealing name: without a declaration its parts fall back to the nominal supply
-    std::fs::write(d.join("hw/board.net"), text.replace("(name +5V)", "(name LOGIC_SUPPLY)")).unwrap();
-    let (_, out) = run(&d, &["check", "--format", "short", "--only", "ttl-high-into-cmos", "hw/board.net"]);
+    std::fs::write(
+        d.join("hw/board.net"),
+        text.replace("(name +5V)", "(name LOGIC_SUPPLY)"),
+    )
+    .unwrap();
+    let (_, out) = run(
+        &d,
+        &[
+            "check",
+            "--format",
+            "short",
+            "--only",
+            "ttl-high-into-cmos",
+            "hw/board.net",
+        ],
+    );
     assert!(out.contains("the family's nominal supply"), "{out}");
-    let (_, out) = run(&d, &["check", "--format", "short", "--only", "ttl-high-into-cmos", "--rail", "LOGIC_SUPPLY=5", "hw/board.net"]);
+    let (_, out) = run(
+        &d,
+        &[
+            "check",
+            "--format",
+            "short",
+            "--only",
+            "ttl-high-into-cmos",
+            "--rail",
+            "LOGIC_SUPPLY=5",
+            "hw/board.net",
+        ],
+    );
     assert!(out.contains("at LOGIC_SUPPLY (5.00 V)"), "{out}");
     std::fs::write(d.join("netmargin.toml"), "[rails]\nLOGIC_SUPPLY = 5.0\n").unwrap();
-    let (_, out) = run(&d, &["check", "--format", "short", "--only", "ttl-high-into-cmos", "hw/board.net"]);
+    let (_, out) = run(
+        &d,
+        &[
+            "check",
+            "--format",
+            "short",
+            "--only",
+            "ttl-high-into-cmos",
+            "hw/board.net",
+        ],
+    );
     assert!(out.contains("at LOGIC_SUPPLY (5.00 V)"), "{out}");
 }

@@ -23,12 +23,16 @@ fn fixtures() -> Vec<PathBuf> {
     let mut out = Vec::new();
     let mut stack = vec![Path::new(env!("CARGO_MANIFEST_DIR")).join("fixtures")];
     while let Some(d) = stack.pop() {
-        let Ok(rd) = std::fs::read_dir(&d) else { continue };
+        let Ok(rd) = std::fs::read_dir(&d) else {
+            continue;
+        };
         for e in rd.flatten() {
             let p = e.path();
             if p.is_dir() {
                 // malformed inputs (`malformed/`, `malformed-corpus/`) are meant to fail: tests/malformed.rs
-                if p.file_name().is_some_and(|n| n.to_string_lossy().starts_with("malformed")) {
+                if p.file_name()
+                    .is_some_and(|n| n.to_string_lossy().starts_with("malformed"))
+                {
                     continue;
                 }
                 stack.push(p);
@@ -64,7 +68,9 @@ fn normalise_for_sexp(tree: &Tree<'_>, text: &str) -> String {
 }
 
 fn ours_as_sexp_would_unescape(s: &str) -> String {
-    s.replace('\n', "\\n").replace('\t', "\\t").replace('\r', "\\r")
+    s.replace('\n', "\\n")
+        .replace('\t', "\\t")
+        .replace('\r', "\\r")
 }
 
 fn compare(tree: &Tree<'_>, id: NodeId, theirs: &Sexp, path: &str, errors: &mut Vec<String>) {
@@ -72,7 +78,12 @@ fn compare(tree: &Tree<'_>, id: NodeId, theirs: &Sexp, path: &str, errors: &mut 
         (Kind::List, Sexp::List(items)) => {
             let kids: Vec<NodeId> = tree.children(id).collect();
             if kids.len() != items.len() {
-                errors.push(format!("{path}: list of {} vs {} items at byte {}", kids.len(), items.len(), tree.span(id).start));
+                errors.push(format!(
+                    "{path}: list of {} vs {} items at byte {}",
+                    kids.len(),
+                    items.len(),
+                    tree.span(id).start
+                ));
                 return;
             }
             for (k, t) in kids.iter().zip(items) {
@@ -90,13 +101,30 @@ fn compare(tree: &Tree<'_>, id: NodeId, theirs: &Sexp, path: &str, errors: &mut 
                     }
                 }
                 Atom::I(i) => ours.parse::<i64>().ok() == Some(*i),
-                Atom::F(f) => ours.parse::<f64>().map(|o| o == *f || (o.is_nan() && f.is_nan())).unwrap_or(false),
+                Atom::F(f) => ours
+                    .parse::<f64>()
+                    .map(|o| o == *f || (o.is_nan() && f.is_nan()))
+                    .unwrap_or(false),
             };
             if !ok {
-                errors.push(format!("{path}: atom {:?} vs {:?} at byte {}", ours, a, tree.span(id).start));
+                errors.push(format!(
+                    "{path}: atom {:?} vs {:?} at byte {}",
+                    ours,
+                    a,
+                    tree.span(id).start
+                ));
             }
         }
-        (k, t) => errors.push(format!("{path}: {:?} vs {} at byte {}", k, if matches!(t, Sexp::List(_)) { "list" } else { "atom" }, tree.span(id).start)),
+        (k, t) => errors.push(format!(
+            "{path}: {:?} vs {} at byte {}",
+            k,
+            if matches!(t, Sexp::List(_)) {
+                "list"
+            } else {
+                "atom"
+            },
+            tree.span(id).start
+        )),
     }
 }
 
@@ -124,15 +152,28 @@ fn every_fixture_agrees_with_the_reference_parser() {
         let text = std::fs::read_to_string(f).unwrap_or_else(|e| panic!("{}: {e}", f.display()));
         check_text(&f.display().to_string(), &text, &mut errors);
     }
-    assert!(errors.is_empty(), "{} disagreements:\n{}", errors.len(), errors.join("\n"));
+    assert!(
+        errors.is_empty(),
+        "{} disagreements:\n{}",
+        errors.len(),
+        errors.join("\n")
+    );
     // a vacuous pass (no fixtures found) would prove nothing
-    assert!(files.len() >= 5, "expected the fixture set, found {} files", files.len());
+    assert!(
+        files.len() >= 5,
+        "expected the fixture set, found {} files",
+        files.len()
+    );
 }
 
 #[test]
 fn the_normalisations_are_needed_and_sufficient() {
     let mut errors = Vec::new();
-    check_text("inline", "\u{feff}(export (a 00012345 1.50 x;y \"q\\\"\\n\" u\u{a0}v) (b))", &mut errors);
+    check_text(
+        "inline",
+        "\u{feff}(export (a 00012345 1.50 x;y \"q\\\"\\n\" u\u{a0}v) (b))",
+        &mut errors,
+    );
     assert!(errors.is_empty(), "{errors:?}");
     // and a real difference is caught
     let tree = sexpr::parse("(a b c)").unwrap();

@@ -9,7 +9,10 @@ fn checks_reference_is_current() {
         std::fs::write(&path, &want).unwrap();
     }
     let have = std::fs::read_to_string(&path).unwrap_or_default();
-    assert!(have == want, "docs/checks.md is out of date: run `NETMARGIN_UPDATE_DOCS=1 cargo test --test docs`");
+    assert!(
+        have == want,
+        "docs/checks.md is out of date: run `NETMARGIN_UPDATE_DOCS=1 cargo test --test docs`"
+    );
     for c in netmargin::checks::REGISTRY {
         assert!(have.contains(&format!("## {}", c.id)), "{} missing", c.id);
     }

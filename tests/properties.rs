@@ -491,19 +491,29 @@ fn finding_key(d: &Diag) -> (String, String, Option<String>, Vec<String>, Vec<St
     let mut words: Vec<String> = d
         .message
         .split_whitespace()
-        .map(|w| w.trim_matches(|c: char| matches!(c, ',' | ';' | ':' | '(' | ')')).to_string())
+        .map(|w| {
+            w.trim_matches(|c: char| matches!(c, ',' | ';' | ':' | '(' | ')'))
+                .to_string()
+        })
         .filter(|w| !w.is_empty() && w != "and")
         .collect();
     words.sort();
     let mut pins = d.pins.clone();
     pins.sort();
-    (d.code.clone(), d.severity.to_string(), d.net.clone(), pins, words)
+    (
+        d.code.clone(),
+        d.severity.to_string(),
+        d.net.clone(),
+        pins,
+        words,
+    )
 }
 
 fn findings(text: &str) -> Vec<(String, String, Option<String>, Vec<String>, Vec<String>)> {
     let src = SourceFile::new("p.net", text.to_string());
     let rules = netmargin::classify::classifier::Rules::builtin();
-    let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).expect("fixture checks");
+    let out = netmargin::pipeline::check_source(&src, &rules, &Default::default())
+        .expect("fixture checks");
     let mut v: Vec<_> = out.diags.iter().map(finding_key).collect();
     v.sort();
     v
@@ -512,13 +522,28 @@ fn findings(text: &str) -> Vec<(String, String, Option<String>, Vec<String>, Vec
 fn check_fixtures() -> Vec<(String, String)> {
     let base = Path::new(env!("CARGO_MANIFEST_DIR")).join("fixtures");
     let mut v = Vec::new();
-    for f in ["demo/counter-timer.net", "boards/hobby-k8.net", "boards/clean-k5.net"] {
-        v.push((f.to_string(), std::fs::read_to_string(base.join(f)).unwrap()));
+    for f in [
+        "demo/counter-timer.net",
+        "boards/hobby-k8.net",
+        "boards/clean-k5.net",
+    ] {
+        v.push((
+            f.to_string(),
+            std::fs::read_to_string(base.join(f)).unwrap(),
+        ));
     }
-    let mut checks: Vec<PathBuf> = std::fs::read_dir(base.join("checks")).unwrap().flatten().map(|e| e.path()).filter(|p| p.extension().is_some_and(|x| x == "net")).collect();
+    let mut checks: Vec<PathBuf> = std::fs::read_dir(base.join("checks"))
+        .unwrap()
+        .flatten()
+        .map(|e| e.path())
+        .filter(|p| p.extension().is_some_and(|x| x == "net"))
+        .collect();
     checks.sort();
     for p in checks {
-        v.push((p.display().to_string(), std::fs::read_to_string(&p).unwrap()));
+        v.push((
+            p.display().to_string(),
+            std::fs::read_to_string(&p).unwrap(),
+        ));
     }
     v
 }

@@ -932,7 +932,11 @@ fn block_from(
     model: impl FnOnce() -> Vec<Row>,
 ) -> Block {
     // `unpowered-part` rows also take the parts whose supply pin sits on the wrong rail
-    let also: &[&str] = if check == "unpowered-part" { &["power-pin-miswired"] } else { &[] };
+    let also: &[&str] = if check == "unpowered-part" {
+        &["power-pin-miswired"]
+    } else {
+        &[]
+    };
     let rows: Vec<Row> = diags
         .iter()
         .filter(|d| d.code == check || also.contains(&d.code.as_str()))
@@ -944,7 +948,11 @@ fn block_from(
                 .or_else(|| d.net.clone())
                 .or_else(|| {
                     // a finding about a whole part starts with its reference
-                    d.message.split_whitespace().next().filter(|w| w.chars().all(|c| c.is_ascii_alphanumeric())).map(str::to_string)
+                    d.message
+                        .split_whitespace()
+                        .next()
+                        .filter(|w| w.chars().all(|c| c.is_ascii_alphanumeric()))
+                        .map(str::to_string)
                 })
                 .unwrap_or_default(),
             text: d.message.clone(),

@@ -42,7 +42,9 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
     let mut gates = Vec::new();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];
-        let Some(fam) = cx.family(ci).filter(|_| part.is_logic()) else { continue };
+        let Some(fam) = cx.family(ci).filter(|_| part.is_logic()) else {
+            continue;
+        };
         if fam.is_cmos_input() == ttl {
             continue;
         }
@@ -64,7 +66,10 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
                 }
                 _ => continue,
             };
-            found.push(Floating { at: PinRef { comp: ci, pin: pi }, why });
+            found.push(Floating {
+                at: PinRef { comp: ci, pin: pi },
+                why,
+            });
         }
         for f in found {
             match part.units[f.at.pin].clone() {
@@ -75,15 +80,27 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
         for (unit, floats) in by_unit {
             // every input of the unit floats, and its outputs reach nothing
             let unit_inputs: Vec<usize> = (0..c.pins.len())
-                .filter(|&i| part.units[i].as_deref() == Some(unit.as_str()) && matches!(part.roles[i], PinRole::Input | PinRole::SchmittInput))
+                .filter(|&i| {
+                    part.units[i].as_deref() == Some(unit.as_str())
+                        && matches!(part.roles[i], PinRole::Input | PinRole::SchmittInput)
+                })
                 .collect();
             let unit_outputs: Vec<PinRef> = (0..c.pins.len())
-                .filter(|&i| part.units[i].as_deref() == Some(unit.as_str()) && part.roles[i].is_output())
+                .filter(|&i| {
+                    part.units[i].as_deref() == Some(unit.as_str()) && part.roles[i].is_output()
+                })
                 .map(|i| PinRef { comp: ci, pin: i })
                 .collect();
-            let outputs_unused = unit_outputs.iter().all(|o| c.pins[o.pin].connection.is_unconnected());
+            let outputs_unused = unit_outputs
+                .iter()
+                .all(|o| c.pins[o.pin].connection.is_unconnected());
             if floats.len() == unit_inputs.len() && unit_inputs.len() > 0 && outputs_unused {
-                gates.push(UnusedGate { comp: ci, unit, inputs: floats, outputs: unit_outputs });
+                gates.push(UnusedGate {
+                    comp: ci,
+                    unit,
+                    inputs: floats,
+                    outputs: unit_outputs,
+                });
             } else {
                 singles.extend(floats);
             }
@@ -108,7 +125,11 @@ pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
     let joined = match items.len() {
         0 => String::new(),
         1 => items[0].clone(),
-        _ => format!("{} and {}", items[..items.len() - 1].join(", "), items[items.len() - 1]),
+        _ => format!(
+            "{} and {}",
+            items[..items.len() - 1].join(", "),
+            items[items.len() - 1]
+        ),
     };
     format!("{} {joined}", if pins.len() == 1 { "pin" } else { "pins" })
 }
@@ -116,13 +137,22 @@ pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
 /// The positive rail a part's supply pin sits on, by name, for fix messages.
 pub fn supply_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
     let cx = ctx.cx;
-    cx.supplies[comp].as_ref().and_then(|s| s.supply_net.filter(|_| s.known)).map(|n| cx.net_name(n)).unwrap_or_else(|| "the supply".into())
+    cx.supplies[comp]
+        .as_ref()
+        .and_then(|s| s.supply_net.filter(|_| s.known))
+        .map(|n| cx.net_name(n))
+        .unwrap_or_else(|| "the supply".into())
 }
 
 /// The ground rail a part's ground pin sits on, by name.
 pub fn ground_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
     let cx = ctx.cx;
-    cx.supplies[comp].as_ref().and_then(|s| s.ground_net).filter(|&n| cx.nets[n].rail.is_some()).map(|n| cx.net_name(n)).unwrap_or_else(|| "GND".into())
+    cx.supplies[comp]
+        .as_ref()
+        .and_then(|s| s.ground_net)
+        .filter(|&n| cx.nets[n].rail.is_some())
+        .map(|n| cx.net_name(n))
+        .unwrap_or_else(|| "GND".into())
 }
 
 /// `one` for a single item, `many` otherwise: `pin 13 is`, `pins 12 and 13 are`.

@@ -52,25 +52,49 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             for (state, sb) in [("low", db.low.as_ref()), ("high", db.high.as_ref())] {
                 let Some(sb) = sb else { continue };
                 // a pull-up below R_min is reported by `pull-up-out-of-range`, with the window
-                if state == "low" && b.window.as_ref().is_some_and(|w| w.fitted.is_some_and(|f| f < w.r_min)) {
+                if state == "low"
+                    && b.window
+                        .as_ref()
+                        .is_some_and(|w| w.fitted.is_some_and(|f| f < w.r_min))
+                {
                     continue;
                 }
                 let r = sb.ratio();
-                let Some(sev) = grade(r, ctx.opts.derating) else { continue };
-                let (verb, rating) = if state == "low" { ("sink", "IOL") } else { ("source", "IOH") };
+                let Some(sev) = grade(r, ctx.opts.derating) else {
+                    continue;
+                };
+                let (verb, rating) = if state == "low" {
+                    ("sink", "IOL")
+                } else {
+                    ("source", "IOH")
+                };
                 let n_inputs = sb.items.iter().filter(|i| i.what.contains("input")).count();
-                let same = sb.items.windows(2).all(|w| (w[0].amps - w[1].amps).abs() < 1e-12) && n_inputs == sb.items.len();
+                let same = sb
+                    .items
+                    .windows(2)
+                    .all(|w| (w[0].amps - w[1].amps).abs() < 1e-12)
+                    && n_inputs == sb.items.len();
                 let detail = if same && !sb.items.is_empty() {
                     format!("{} inputs x {}", n_inputs, format_amps(sb.items[0].amps))
                 } else {
                     let other = sb.items.len() - n_inputs;
-                    format!("{} input{} and {} other item{}", n_inputs, if n_inputs == 1 { "" } else { "s" }, other, if other == 1 { "" } else { "s" })
+                    format!(
+                        "{} input{} and {} other item{}",
+                        n_inputs,
+                        if n_inputs == 1 { "" } else { "s" },
+                        other,
+                        if other == 1 { "" } else { "s" }
+                    )
                 };
                 let level = match sb.level {
                     Some(v) => format!("; the guaranteed {} level there is {v:.2} V", state),
                     None => format!("; no {} level is guaranteed at that current", state),
                 };
-                let over = if sev == Severity::Error { String::new() } else { format!(", above the {} derating", pct(ctx.opts.derating)) };
+                let over = if sev == Severity::Error {
+                    String::new()
+                } else {
+                    format!(", above the {} derating", pct(ctx.opts.derating))
+                };
                 let mut diag = Diag::new(
                     "fanout-overrun",
                     sev,
@@ -86,7 +110,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 .at(cx.pin_span(d.at), format!("{} {} against {}", verb, format_amps(sb.total), format_amps(sb.rating)))
                 .on_net(cx.net_name(net))
                 .with_pins(std::iter::once(cx.pin_name(d.at)).chain(sb.items.iter().filter_map(|i| i.at).map(|p| cx.pin_name(p))));
-                let keep = fits(sb.rating, sb.total / sb.items.len().max(1) as f64, ctx.opts.derating);
+                let keep = fits(
+                    sb.rating,
+                    sb.total / sb.items.len().max(1) as f64,
+                    ctx.opts.derating,
+                );
                 diag = diag.with_help(format!(
                     "split the load: at about {} per item this output can take {} of the {} within the {} derating; drive the rest from a second output or a bus driver (a 74LS244 sinks 24 mA)",
                     format_amps(sb.total / sb.items.len().max(1) as f64),
@@ -111,11 +139,23 @@ mod tests {
     fn a_load_at_exactly_the_rating_or_the_derating_is_not_above_it() {
         // 74LS: IOL 8 mA, IIL 0.4 mA (TI SDLS025B); 7400: IOL 16 mA, IIL 1.6 mA (Fairchild DM7400)
         let sum = |n: usize, each: f64| (0..n).map(|_| each).sum::<f64>();
-        assert_eq!(grade(sum(16, 0.4e-3) / 8e-3, 0.8), None, "16 x 0.4 mA is 80 % of 8 mA");
+        assert_eq!(
+            grade(sum(16, 0.4e-3) / 8e-3, 0.8),
+            None,
+            "16 x 0.4 mA is 80 % of 8 mA"
+        );
         assert_eq!(grade(sum(17, 0.4e-3) / 8e-3, 0.8), Some(Severity::Warning));
-        assert_eq!(grade(sum(20, 0.4e-3) / 8e-3, 0.8), Some(Severity::Warning), "20 x 0.4 mA is 100 %");
+        assert_eq!(
+            grade(sum(20, 0.4e-3) / 8e-3, 0.8),
+            Some(Severity::Warning),
+            "20 x 0.4 mA is 100 %"
+        );
         assert_eq!(grade(sum(21, 0.4e-3) / 8e-3, 0.8), Some(Severity::Error));
-        assert_eq!(grade(sum(10, 1.6e-3) / 16e-3, 0.8), Some(Severity::Warning), "10 x 1.6 mA is 100 %");
+        assert_eq!(
+            grade(sum(10, 1.6e-3) / 16e-3, 0.8),
+            Some(Severity::Warning),
+            "10 x 1.6 mA is 100 %"
+        );
         assert_eq!(grade(sum(11, 1.6e-3) / 16e-3, 0.8), Some(Severity::Error));
         assert_eq!(fits(8e-3, 0.4e-3, 0.8), 16);
         assert_eq!(fits(0.4e-3, 20e-6, 0.8), 16);

@@ -35,7 +35,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 agree(pins.len(), "its CMOS input floats", "its CMOS inputs float"),
                 pin_list(ctx, &pins),
                 if absent {
-                    format!(" {} on no net (the gate was never placed)", agree(pins.len(), "is", "are"))
+                    format!(
+                        " {} on no net (the gate was never placed)",
+                        agree(pins.len(), "is", "are")
+                    )
                 } else {
                     format!(" {} connected to nothing", agree(pins.len(), "is", "are"))
                 }
@@ -57,11 +60,29 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     }
     for f in singles {
         let (msg, label) = match f.why {
-            Float::Absent => (format!("{} is on no net: a CMOS input must never float", cx.describe(f.at)), "on no net".to_string()),
-            Float::Alone(_) => (format!("{} is connected to nothing: a CMOS input must never float", cx.describe(f.at)), "connected to nothing".to_string()),
+            Float::Absent => (
+                format!(
+                    "{} is on no net: a CMOS input must never float",
+                    cx.describe(f.at)
+                ),
+                "on no net".to_string(),
+            ),
+            Float::Alone(_) => (
+                format!(
+                    "{} is connected to nothing: a CMOS input must never float",
+                    cx.describe(f.at)
+                ),
+                "connected to nothing".to_string(),
+            ),
             Float::Undriven(net) => {
                 let nm = &cx.nets[net];
-                let others: Vec<String> = nm.loads.iter().filter(|l| l.at != f.at).map(|l| cx.pin_name(l.at)).chain(nm.passives.iter().map(|p| cx.pin_name(*p))).collect();
+                let others: Vec<String> = nm
+                    .loads
+                    .iter()
+                    .filter(|l| l.at != f.at)
+                    .map(|l| cx.pin_name(l.at))
+                    .chain(nm.passives.iter().map(|p| cx.pin_name(*p)))
+                    .collect();
                 (
                     format!(
                         "{} is on net `{}`, which nothing drives: no output, rail or pull resistor (only {})",

@@ -21,7 +21,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     let (singles, gates) = floating_inputs(ctx, true);
     let inside = |comp: usize| {
-        cx.family(comp).and_then(|f| f.internal_input_pullup_ohm).map(|r| format!(" through the input's internal ~{}", format_ohms(r))).unwrap_or_default()
+        cx.family(comp)
+            .and_then(|f| f.internal_input_pullup_ohm)
+            .map(|r| format!(" through the input's internal ~{}", format_ohms(r)))
+            .unwrap_or_default()
     };
     let tie = |comp: usize| {
         let rail = supply_rail_name(ctx, comp);
@@ -40,14 +43,22 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 g.unit,
                 c.reference,
                 c.value_str(),
-                agree(pins.len(), "its TTL input is open", "its TTL inputs are open"),
+                agree(
+                    pins.len(),
+                    "its TTL input is open",
+                    "its TTL inputs are open"
+                ),
                 pin_list(ctx, &pins),
                 agree(pins.len(), "floats", "float"),
                 inside(g.comp),
                 agree(pins.len(), "picks", "pick")
             ),
         )
-        .with_help(format!("{}; the gate's output {} may stay open", tie(g.comp).replacen("it", &pin_list(ctx, &pins), 1), pin_list(ctx, &g.outputs)))
+        .with_help(format!(
+            "{}; the gate's output {} may stay open",
+            tie(g.comp).replacen("it", &pin_list(ctx, &pins), 1),
+            pin_list(ctx, &g.outputs)
+        ))
         .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
         d = d.at(cx.pin_span(pins[0]), "unused gate");
         for p in &pins[1..] {
@@ -59,11 +70,18 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let (where_, net) = match f.why {
             Float::Absent => ("is on no net".to_string(), None),
             Float::Alone(n) => ("is connected to nothing".to_string(), Some(n)),
-            Float::Undriven(n) => (format!("is on net `{}`, which nothing drives", cx.net_name(n)), Some(n)),
+            Float::Undriven(n) => (
+                format!("is on net `{}`, which nothing drives", cx.net_name(n)),
+                Some(n),
+            ),
         };
         let mut d = Diag::warning(
             "floating-ttl-input",
-            format!("{} {where_}: it floats high{} and picks up noise", cx.describe(f.at), inside(f.at.comp)),
+            format!(
+                "{} {where_}: it floats high{} and picks up noise",
+                cx.describe(f.at),
+                inside(f.at.comp)
+            ),
         )
         .at(cx.pin_span(f.at), "open TTL input")
         .with_help(tie(f.at.comp))

@@ -21,7 +21,11 @@ use crate::values::{format_ohms, format_volts};
 /// The fix for a high-level shortfall: for a net pulled up by a resistor (an open
 /// collector), the largest pull-up that reaches every load's VIH; otherwise a different load,
 /// a translator or a driver on the load's supply.
-fn high_fix(ctx: &Context<'_, '_, '_>, b: &crate::circuit::budget::NetBudget, pulled_up: bool) -> String {
+fn high_fix(
+    ctx: &Context<'_, '_, '_>,
+    b: &crate::circuit::budget::NetBudget,
+    pulled_up: bool,
+) -> String {
     match b.window.as_ref().filter(|_| pulled_up).and_then(|w| w.r_max.map(|r| (w, r))) {
         Some((w, rmax)) if rmax > w.r_min => format!(
             "a smaller pull-up: between {} and {} to {} reaches every load's VIH",
@@ -40,7 +44,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         for m in &b.margins {
             let d = &nm.drivers[m.driver];
             let l = &nm.loads[m.load];
-            let db = b.drivers.iter().find(|x| x.driver == m.driver).expect("margin has a driver budget");
+            let db = b
+                .drivers
+                .iter()
+                .find(|x| x.driver == m.driver)
+                .expect("margin has a driver budget");
             if let Some(hm) = m.high_margin {
                 let covered = ttl_output(ctx, d.at.comp) && !l.ttl;
                 let sev = if hm < 0.0 && !covered {
@@ -52,8 +60,20 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 };
                 if let Some(sev) = sev {
                     let high = db.high_level.unwrap_or(0.0);
-                    let how = if db.high.is_none() { "pulls the net up to".to_string() } else { "guarantees".to_string() };
-                    let gap = if hm < 0.0 { format!("short by {}", format_volts(-hm)) } else { format!("margin only {} (below the configured {})", format_volts(hm), format_volts(ctx.opts.min_margin_v)) };
+                    let how = if db.high.is_none() {
+                        "pulls the net up to".to_string()
+                    } else {
+                        "guarantees".to_string()
+                    };
+                    let gap = if hm < 0.0 {
+                        format!("short by {}", format_volts(-hm))
+                    } else {
+                        format!(
+                            "margin only {} (below the configured {})",
+                            format_volts(hm),
+                            format_volts(ctx.opts.min_margin_v)
+                        )
+                    };
                     out.push(
                         Diag::new(
                             "level-mismatch",
@@ -69,7 +89,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                             ),
                         )
                         .at(cx.pin_span(l.at), format!("needs {}", format_volts(m.vih)))
-                        .also(cx.pin_span(d.at), format!("high level {}", format_volts(high)))
+                        .also(
+                            cx.pin_span(d.at),
+                            format!("high level {}", format_volts(high)),
+                        )
                         .on_net(cx.net_name(net))
                         .with_pins([cx.pin_name(l.at), cx.pin_name(d.at)])
                         .with_help(high_fix(ctx, b, db.high.is_none())),

@@ -22,7 +22,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         if nm.rail.is_some() || nm.pulls.iter().any(|p| p.up) {
             continue;
         }
-        let oc: Vec<_> = nm.drivers.iter().filter(|d| d.role == PinRole::OpenCollector).collect();
+        let oc: Vec<_> = nm
+            .drivers
+            .iter()
+            .filter(|d| d.role == PinRole::OpenCollector)
+            .collect();
         if oc.is_empty() || oc.len() < nm.drivers.len() {
             continue; // a push-pull driver on the net sets the high level
         }
@@ -31,8 +35,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let window = ctx.budgets[net].window.as_ref();
         let fix = match window {
             Some(w) => match w.r_max {
-                Some(rmax) if rmax > w.r_min => format!("fit a pull-up between {} and {} to {}", format_ohms(w.r_min), format_ohms(rmax), cx.net_name(w.rail_net)),
-                _ => format!("fit a pull-up of at least {} to {}", format_ohms(w.r_min), cx.net_name(w.rail_net)),
+                Some(rmax) if rmax > w.r_min => format!(
+                    "fit a pull-up between {} and {} to {}",
+                    format_ohms(w.r_min),
+                    format_ohms(rmax),
+                    cx.net_name(w.rail_net)
+                ),
+                _ => format!(
+                    "fit a pull-up of at least {} to {}",
+                    format_ohms(w.r_min),
+                    cx.net_name(w.rail_net)
+                ),
             },
             None => "fit a pull-up to the loads' supply".to_string(),
         };
@@ -54,12 +67,19 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 format!(
                     "{} has no pull-up: nothing sets the net's high level{}",
                     cx.describe(d.at),
-                    if loads.is_empty() { String::new() } else { format!(" for {}", loads.join(", ")) }
+                    if loads.is_empty() {
+                        String::new()
+                    } else {
+                        format!(" for {}", loads.join(", "))
+                    }
                 ),
             )
             .with_help(fix)
         };
-        diag = diag.at(cx.pin_span(d.at), "open-collector output, no pull-up").on_net(cx.net_name(net)).with_pins(std::iter::once(cx.pin_name(d.at)).chain(loads));
+        diag = diag
+            .at(cx.pin_span(d.at), "open-collector output, no pull-up")
+            .on_net(cx.net_name(net))
+            .with_pins(std::iter::once(cx.pin_name(d.at)).chain(loads));
         // the primary label goes first
         diag.labels.rotate_right(1);
         out.push(diag);

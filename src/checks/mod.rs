@@ -21,7 +21,10 @@ pub struct CheckInfo {
 impl CheckInfo {
     /// The check's doc comment (from its source file).
     pub fn doc(&self) -> &'static str {
-        CHECK_DOCS.iter().find(|(id, _)| *id == self.id).map_or("", |(_, d)| d)
+        CHECK_DOCS
+            .iter()
+            .find(|(id, _)| *id == self.id)
+            .map_or("", |(_, d)| d)
     }
 }
 
@@ -69,9 +72,20 @@ mod tests {
         let mut seen = std::collections::HashSet::new();
         for c in REGISTRY {
             assert!(seen.insert(c.id), "duplicate {}", c.id);
-            assert!(c.id.chars().all(|ch| ch.is_ascii_lowercase() || ch == '-'), "{}", c.id);
+            assert!(
+                c.id.chars().all(|ch| ch.is_ascii_lowercase() || ch == '-'),
+                "{}",
+                c.id
+            );
             assert!(!c.summary.ends_with('.'), "{}", c.id);
-            assert!(c.summary.chars().next().is_some_and(|ch| !ch.is_uppercase()), "{}", c.id);
+            assert!(
+                c.summary
+                    .chars()
+                    .next()
+                    .is_some_and(|ch| !ch.is_uppercase()),
+                "{}",
+                c.id
+            );
         }
     }
 }
@@ -115,7 +129,12 @@ pub struct CheckOptions {
 
 impl Default for CheckOptions {
     fn default() -> Self {
-        CheckOptions { derating: 0.8, min_margin_v: 0.0, disabled: Vec::new(), severity: Vec::new() }
+        CheckOptions {
+            derating: 0.8,
+            min_margin_v: 0.0,
+            disabled: Vec::new(),
+            severity: Vec::new(),
+        }
     }
 }
 
@@ -174,7 +193,9 @@ pub fn run_all(cx: &Circuit<'_, '_>, opts: &CheckOptions) -> Vec<Diag> {
     out.sort_by(|a, b| {
         let sa = a.primary_span().map_or(0, |s| s.start);
         let sb = b.primary_span().map_or(0, |s| s.start);
-        sa.cmp(&sb).then_with(|| a.code.cmp(&b.code)).then_with(|| a.message.cmp(&b.message))
+        sa.cmp(&sb)
+            .then_with(|| a.code.cmp(&b.code))
+            .then_with(|| a.message.cmp(&b.message))
     });
     out
 }

@@ -25,9 +25,16 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let nm = &cx.nets[net];
         let d = &nm.drivers[w.driver];
         let pulls: Vec<_> = nm.pulls.iter().filter(|p| p.up).collect();
-        let names: Vec<String> = pulls.iter().map(|p| cx.nl.components[p.resistor].reference.to_string()).collect();
+        let names: Vec<String> = pulls
+            .iter()
+            .map(|p| cx.nl.components[p.resistor].reference.to_string())
+            .collect();
         let window_text = match w.r_max {
-            Some(rmax) => format!("the window is {} to {}", format_ohms(w.r_min), format_ohms(rmax)),
+            Some(rmax) => format!(
+                "the window is {} to {}",
+                format_ohms(w.r_min),
+                format_ohms(rmax)
+            ),
             None => format!("the minimum is {}", format_ohms(w.r_min)),
         };
         let rmin_text = format!(
@@ -39,15 +46,33 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             format_ohms(w.r_min)
         );
         let rmax_text = match (w.r_max, w.vih_max) {
-            (Some(r), Some(vih)) => format!("R_max = ({} - {}) / {} = {}", format_volts(w.v_low), format_volts(vih), format_amps(w.sum_high), format_ohms(r)),
+            (Some(r), Some(vih)) => format!(
+                "R_max = ({} - {}) / {} = {}",
+                format_volts(w.v_low),
+                format_volts(vih),
+                format_amps(w.sum_high),
+                format_ohms(r)
+            ),
             _ => String::new(),
         };
         let mk = |sev_error: bool, msg: String| {
-            let mut diag = if sev_error { Diag::error("pull-up-out-of-range", msg) } else { Diag::warning("pull-up-out-of-range", msg) };
-            diag = diag.at(cx.pin_span(pulls[0].at), format!("{} to {}", format_ohms(fitted), cx.net_name(w.rail_net)));
+            let mut diag = if sev_error {
+                Diag::error("pull-up-out-of-range", msg)
+            } else {
+                Diag::warning("pull-up-out-of-range", msg)
+            };
+            diag = diag.at(
+                cx.pin_span(pulls[0].at),
+                format!("{} to {}", format_ohms(fitted), cx.net_name(w.rail_net)),
+            );
             diag = diag.also(cx.pin_span(d.at), "open-collector output");
             diag.on_net(cx.net_name(net))
-                .with_pins(pulls.iter().map(|p| cx.pin_name(p.at)).chain(std::iter::once(cx.pin_name(d.at))))
+                .with_pins(
+                    pulls
+                        .iter()
+                        .map(|p| cx.pin_name(p.at))
+                        .chain(std::iter::once(cx.pin_name(d.at))),
+                )
                 .with_help(format!(
                     "fit a pull-up between {} and {} to {}",
                     format_ohms(w.r_min),

@@ -19,7 +19,9 @@ use crate::values::{format_ohms, format_volts};
 
 /// True when the driver's family has TTL-level outputs (bipolar or NMOS).
 pub(super) fn ttl_output(ctx: &Context<'_, '_, '_>, comp: usize) -> bool {
-    ctx.cx.family(comp).is_some_and(|f| matches!(f.technology, Technology::Bipolar | Technology::Nmos))
+    ctx.cx
+        .family(comp)
+        .is_some_and(|f| matches!(f.technology, Technology::Bipolar | Technology::Nmos))
 }
 
 /// The TTL-threshold variant of a CMOS family, if there is one: 74HC -> 74HCT.
@@ -46,7 +48,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if !ttl_output(ctx, d.at.comp) || l.ttl || l.levels.is_none() {
                 continue;
             }
-            let db = &b.drivers.iter().find(|x| x.driver == m.driver).expect("margin has a driver budget");
+            let db = &b
+                .drivers
+                .iter()
+                .find(|x| x.driver == m.driver)
+                .expect("margin has a driver budget");
             let high = db.high_level.unwrap_or(0.0);
             let load_comp = &cx.nl.components[l.at.comp];
             let load_vcc = cx.supplies[l.at.comp].as_ref().map_or(5.0, |s| s.vcc);
@@ -57,10 +63,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     let value = load_comp.value_str();
                     let from = l.family.as_deref().unwrap_or("");
                     let suffix = from.trim_start_matches("74");
-                    let alt_value = value.to_ascii_uppercase().replacen(&format!("74{suffix}"), alt, 1);
+                    let alt_value =
+                        value
+                            .to_ascii_uppercase()
+                            .replacen(&format!("74{suffix}"), alt, 1);
                     fixes.push(format!(
                         "a {} in place of {} reads {} as high (margin {:+.2} V)",
-                        if alt_value != value.to_ascii_uppercase() { alt_value } else { alt.to_string() },
+                        if alt_value != value.to_ascii_uppercase() {
+                            alt_value
+                        } else {
+                            alt.to_string()
+                        },
                         load_comp.reference,
                         format_volts(alv.vih_min),
                         high - alv.vih_min
@@ -72,14 +85,37 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 let v = s.vcc;
                 let vol = dl.vol.last().map_or(0.4, |p| p.v);
                 let iol = dl.iol_max.abs();
-                let sum_iil: f64 = nm.loads.iter().filter_map(|x| x.levels.as_ref()).map(|x| x.iil_max.abs()).sum();
-                let sum_iih: f64 = nm.loads.iter().filter_map(|x| x.levels.as_ref()).map(|x| x.iih_max.abs()).sum();
-                let vih_max = nm.loads.iter().filter_map(|x| x.levels.as_ref()).map(|x| x.vih_min).fold(0.0, f64::max);
+                let sum_iil: f64 = nm
+                    .loads
+                    .iter()
+                    .filter_map(|x| x.levels.as_ref())
+                    .map(|x| x.iil_max.abs())
+                    .sum();
+                let sum_iih: f64 = nm
+                    .loads
+                    .iter()
+                    .filter_map(|x| x.levels.as_ref())
+                    .map(|x| x.iih_max.abs())
+                    .sum();
+                let vih_max = nm
+                    .loads
+                    .iter()
+                    .filter_map(|x| x.levels.as_ref())
+                    .map(|x| x.vih_min)
+                    .fold(0.0, f64::max);
                 if iol > sum_iil && v > vih_max {
                     let rmin = (v - vol) / (iol - sum_iil);
-                    let rmax = if sum_iih > 0.0 { ((v - vih_max) / sum_iih).min(10e3) } else { 10e3 };
+                    let rmax = if sum_iih > 0.0 {
+                        ((v - vih_max) / sum_iih).min(10e3)
+                    } else {
+                        10e3
+                    };
                     if rmin < rmax {
-                        let rail = s.supply_net.filter(|_| s.known).map(|n| cx.net_name(n)).unwrap_or_else(|| format_volts(v));
+                        let rail = s
+                            .supply_net
+                            .filter(|_| s.known)
+                            .map(|n| cx.net_name(n))
+                            .unwrap_or_else(|| format_volts(v));
                         fixes.push(format!(
                             "a pull-up between {} and {} from `{}` to {} (10 kOhm caps the rise time: common practice)",
                             format_ohms(rmin),
@@ -103,10 +139,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ),
             )
             .at(cx.pin_span(l.at), format!("needs {}", format_volts(m.vih)))
-            .also(cx.pin_span(d.at), format!("guarantees {}", format_volts(high)))
+            .also(
+                cx.pin_span(d.at),
+                format!("guarantees {}", format_volts(high)),
+            )
             .on_net(cx.net_name(net))
             .with_pins([cx.pin_name(l.at), cx.pin_name(d.at)])
-            .with_help(if fixes.is_empty() { "use a CMOS load with TTL thresholds, or a level translator".to_string() } else { fixes.join(", or ") });
+            .with_help(if fixes.is_empty() {
+                "use a CMOS load with TTL thresholds, or a level translator".to_string()
+            } else {
+                fixes.join(", or ")
+            });
             out.push(diag);
         }
     }

@@ -122,7 +122,14 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
     for (di, d) in nm.drivers.iter().enumerate() {
         let Some(lv) = &d.levels else {
-            out.drivers.push(DriverBudget { driver: di, low: None, high: None, pull_up: None, high_level: None, low_level: None });
+            out.drivers.push(DriverBudget {
+                driver: di,
+                low: None,
+                high: None,
+                pull_up: None,
+                high_level: None,
+                low_level: None,
+            });
             continue;
         };
         let vol_rated = lv.vol.last().map_or(0.4, |p| p.v);
@@ -131,14 +138,25 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         let mut items = Vec::new();
         for l in nm.loads.iter().filter(|l| l.at != d.at) {
             if let Some(ll) = &l.levels {
-                items.push(Item { what: format!("{} input low current (IIL)", cx.pin_name(l.at)), at: Some(l.at), amps: ll.iil_max.abs() });
+                items.push(Item {
+                    what: format!("{} input low current (IIL)", cx.pin_name(l.at)),
+                    at: Some(l.at),
+                    amps: ll.iil_max.abs(),
+                });
             }
         }
         for &pi in &pullups {
             let p = &nm.pulls[pi];
             let a = ((p.rail_volts - vol_rated) / p.ohms).max(0.0);
             items.push(Item {
-                what: format!("{} pull-up {} to {} ({:.2} V - {:.2} V) / R", cx.nl.components[p.resistor].reference, format_ohms(p.ohms), cx.net_name(p.rail_net), p.rail_volts, vol_rated),
+                what: format!(
+                    "{} pull-up {} to {} ({:.2} V - {:.2} V) / R",
+                    cx.nl.components[p.resistor].reference,
+                    format_ohms(p.ohms),
+                    cx.net_name(p.rail_net),
+                    p.rail_volts,
+                    vol_rated
+                ),
                 at: Some(p.at),
                 amps: a,
             });
@@ -149,26 +167,46 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             }
             if let Some(ol) = &o.levels {
                 match o.role {
-                    PinRole::ThreeState | PinRole::Bidirectional => items.push(Item { what: format!("{} off-state leakage (IOZ)", cx.pin_name(o.at)), at: Some(o.at), amps: ol.ioz.abs() }),
-                    PinRole::OpenCollector => items.push(Item { what: format!("{} off-state leakage", cx.pin_name(o.at)), at: Some(o.at), amps: ol.oc_leakage.abs() }),
+                    PinRole::ThreeState | PinRole::Bidirectional => items.push(Item {
+                        what: format!("{} off-state leakage (IOZ)", cx.pin_name(o.at)),
+                        at: Some(o.at),
+                        amps: ol.ioz.abs(),
+                    }),
+                    PinRole::OpenCollector => items.push(Item {
+                        what: format!("{} off-state leakage", cx.pin_name(o.at)),
+                        at: Some(o.at),
+                        amps: ol.oc_leakage.abs(),
+                    }),
                     _ => {}
                 }
             }
         }
         let total: f64 = items.iter().map(|i| i.amps).sum();
-        let low = StateBudget { items, total, rating: lv.iol_max.abs(), level: lv.vol_at(total) };
+        let low = StateBudget {
+            items,
+            total,
+            rating: lv.iol_max.abs(),
+            level: lv.vol_at(total),
+        };
         let low_level = low.level;
 
         // --- high state
         let mut high = None;
         let mut high_level = None;
-        let drives_high = matches!(d.role, PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional | PinRole::OpenEmitter);
+        let drives_high = matches!(
+            d.role,
+            PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional | PinRole::OpenEmitter
+        );
         let mut load_high: f64 = 0.0;
         let mut items = Vec::new();
         for l in nm.loads.iter().filter(|l| l.at != d.at) {
             if let Some(ll) = &l.levels {
                 load_high += ll.iih_max.abs();
-                items.push(Item { what: format!("{} input high current (IIH)", cx.pin_name(l.at)), at: Some(l.at), amps: ll.iih_max.abs() });
+                items.push(Item {
+                    what: format!("{} input high current (IIH)", cx.pin_name(l.at)),
+                    at: Some(l.at),
+                    amps: ll.iih_max.abs(),
+                });
             }
         }
         for (oi, o) in nm.drivers.iter().enumerate() {
@@ -182,7 +220,11 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     _ => continue,
                 };
                 load_high += a;
-                items.push(Item { what: format!("{} off-state leakage", cx.pin_name(o.at)), at: Some(o.at), amps: a });
+                items.push(Item {
+                    what: format!("{} off-state leakage", cx.pin_name(o.at)),
+                    at: Some(o.at),
+                    amps: a,
+                });
             }
         }
         // an open collector's high state is the output turned off: its own off-state
@@ -195,7 +237,13 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 let p = &nm.pulls[pi];
                 let a = (voh_light - p.rail_volts).max(0.0) / p.ohms;
                 items.push(Item {
-                    what: format!("{} pull-down {} to {} ({:.2} V / R)", cx.nl.components[p.resistor].reference, format_ohms(p.ohms), cx.net_name(p.rail_net), voh_light),
+                    what: format!(
+                        "{} pull-down {} to {} ({:.2} V / R)",
+                        cx.nl.components[p.resistor].reference,
+                        format_ohms(p.ohms),
+                        cx.net_name(p.rail_net),
+                        voh_light
+                    ),
                     at: Some(p.at),
                     amps: a,
                 });
@@ -203,19 +251,37 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             let total: f64 = items.iter().map(|i| i.amps).sum();
             let level = lv.voh_at(-total);
             high_level = level;
-            high = Some(StateBudget { items, total, rating: lv.ioh_max.abs(), level });
+            high = Some(StateBudget {
+                items,
+                total,
+                rating: lv.ioh_max.abs(),
+                level,
+            });
         }
         // a pull-up raises (or, for an open collector, makes) the high level
         let pull_up = parallel(pullups.iter().map(|&i| nm.pulls[i].ohms)).map(|r| {
             let p = &nm.pulls[pullups[0]];
             // leakage cannot pull the net below ground: a level of 0 V means no high at all
             let level = (p.rail_volts - r * load_high).max(0.0);
-            PullUpHigh { rail_net: p.rail_net, rail_volts: p.rail_volts, ohms: r, current: load_high, level }
+            PullUpHigh {
+                rail_net: p.rail_net,
+                rail_volts: p.rail_volts,
+                ohms: r,
+                current: load_high,
+                level,
+            }
         });
         if let Some(pu) = &pull_up {
             high_level = Some(high_level.map_or(pu.level, |h| h.max(pu.level)));
         }
-        out.drivers.push(DriverBudget { driver: di, low: Some(low), high, pull_up, high_level, low_level });
+        out.drivers.push(DriverBudget {
+            driver: di,
+            low: Some(low),
+            high,
+            pull_up,
+            high_level,
+            low_level,
+        });
     }
     // margins
     for db in &out.drivers {
@@ -236,13 +302,20 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         }
     }
     // open-collector window
-    let oc: Vec<usize> = (0..nm.drivers.len()).filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some()).collect();
+    let oc: Vec<usize> = (0..nm.drivers.len())
+        .filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some())
+        .collect();
     if !oc.is_empty() && oc.len() == nm.drivers.len() {
-        let rail = nm.pulls.iter().find(|p| p.up).map(|p| (p.rail_net, p.rail_volts)).or_else(|| {
-            // no pull-up: use the drivers' supply for the window the fix needs
-            let s = cx.supplies[nm.drivers[oc[0]].at.comp].as_ref()?;
-            Some((s.supply_net?, s.vcc))
-        });
+        let rail = nm
+            .pulls
+            .iter()
+            .find(|p| p.up)
+            .map(|p| (p.rail_net, p.rail_volts))
+            .or_else(|| {
+                // no pull-up: use the drivers' supply for the window the fix needs
+                let s = cx.supplies[nm.drivers[oc[0]].at.comp].as_ref()?;
+                Some((s.supply_net?, s.vcc))
+            });
         if let Some((rail_net, v)) = rail {
             let weakest = *oc
                 .iter()
@@ -252,19 +325,60 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     ia.partial_cmp(&ib).unwrap_or(std::cmp::Ordering::Equal)
                 })
                 .expect("oc is not empty");
-            let lv = nm.drivers[weakest].levels.as_ref().expect("filtered on levels");
+            let lv = nm.drivers[weakest]
+                .levels
+                .as_ref()
+                .expect("filtered on levels");
             let vol = lv.vol.last().map_or(0.4, |p| p.v);
             let iol = lv.iol_max.abs();
-            let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.iil_max.abs()).sum();
-            let sum_high: f64 = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.iih_max.abs()).sum::<f64>()
-                + oc.iter().filter_map(|&i| nm.drivers[i].levels.as_ref()).map(|l| l.oc_leakage.abs()).sum::<f64>();
-            let vih_max = nm.loads.iter().filter_map(|l| l.levels.as_ref()).map(|l| l.vih_min).fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
+            let sum_iil: f64 = nm
+                .loads
+                .iter()
+                .filter_map(|l| l.levels.as_ref())
+                .map(|l| l.iil_max.abs())
+                .sum();
+            let sum_high: f64 = nm
+                .loads
+                .iter()
+                .filter_map(|l| l.levels.as_ref())
+                .map(|l| l.iih_max.abs())
+                .sum::<f64>()
+                + oc.iter()
+                    .filter_map(|&i| nm.drivers[i].levels.as_ref())
+                    .map(|l| l.oc_leakage.abs())
+                    .sum::<f64>();
+            let vih_max = nm
+                .loads
+                .iter()
+                .filter_map(|l| l.levels.as_ref())
+                .map(|l| l.vih_min)
+                .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
             // each end at the supply that is worst for it (the data books' VCC max and min)
             let (v_low, v_high) = cx.rail_range(v);
-            let r_min = if iol > sum_iil { (v_high - vol) / (iol - sum_iil) } else { f64::INFINITY };
-            let r_max = vih_max.filter(|_| sum_high > 0.0).map(|vih| (v_low - vih) / sum_high);
+            let r_min = if iol > sum_iil {
+                (v_high - vol) / (iol - sum_iil)
+            } else {
+                f64::INFINITY
+            };
+            let r_max = vih_max
+                .filter(|_| sum_high > 0.0)
+                .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
-            out.window = Some(PullUpWindow { rail_net, rail_volts: v, v_high, v_low, driver: weakest, vol, iol, sum_iil, sum_high, vih_max, r_min, r_max, fitted });
+            out.window = Some(PullUpWindow {
+                rail_net,
+                rail_volts: v,
+                v_high,
+                v_low,
+                driver: weakest,
+                vol,
+                iol,
+                sum_iil,
+                sum_high,
+                vih_max,
+                r_min,
+                r_max,
+                fitted,
+            });
         }
     }
     out

@@ -33,7 +33,12 @@ pub struct ModelOptions {
 
 impl Default for ModelOptions {
     fn default() -> Self {
-        ModelOptions { rails: Vec::new(), rail_tolerance: 0.0, led_vf: 1.7, connector_families: Vec::new() }
+        ModelOptions {
+            rails: Vec::new(),
+            rail_tolerance: 0.0,
+            led_vf: 1.7,
+            connector_families: Vec::new(),
+        }
     }
 }
 
@@ -156,7 +161,11 @@ impl NetModel {
     pub fn has_source(&self) -> bool {
         // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
         // reports it); calling the inputs floating as well would be a cascade
-        self.rail.is_some() || !self.drivers.is_empty() || !self.pulls.is_empty() || !self.connectors.is_empty() || !self.unreadable.is_empty()
+        self.rail.is_some()
+            || !self.drivers.is_empty()
+            || !self.pulls.is_empty()
+            || !self.connectors.is_empty()
+            || !self.unreadable.is_empty()
     }
 }
 
@@ -172,7 +181,10 @@ pub struct Circuit<'n, 'a> {
 
 impl<'n, 'a> Circuit<'n, 'a> {
     pub fn family(&self, comp: usize) -> Option<&'n Family> {
-        self.cl.parts[comp].family.as_deref().and_then(|f| self.rules.families.get(f))
+        self.cl.parts[comp]
+            .family
+            .as_deref()
+            .and_then(|f| self.rules.families.get(f))
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -191,7 +203,10 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let part = &self.cl.parts[p.comp];
         let pin = &c.pins[p.pin];
         let mut s = format!("{} pin {}", c.reference, pin.num);
-        let name = part.table_names[p.pin].clone().or_else(|| pin.name.as_ref().map(|n| n.to_string())).filter(|n| n != "~" && !n.is_empty());
+        let name = part.table_names[p.pin]
+            .clone()
+            .or_else(|| pin.name.as_ref().map(|n| n.to_string()))
+            .filter(|n| n != "~" && !n.is_empty());
         let what = match part.roles[p.pin] {
             PinRole::Input | PinRole::SchmittInput => "input",
             PinRole::PushPull => "output",
@@ -214,7 +229,12 @@ impl<'n, 'a> Circuit<'n, 'a> {
     pub fn net_name(&self, net: usize) -> String {
         let n = &self.nl.nets[net];
         if n.name.s.is_empty() {
-            format!("#{}", n.code.as_ref().map_or((net + 1).to_string(), |c| c.s.to_string()))
+            format!(
+                "#{}",
+                n.code
+                    .as_ref()
+                    .map_or((net + 1).to_string(), |c| c.s.to_string())
+            )
         } else {
             n.name.s.to_string()
         }
@@ -224,7 +244,9 @@ impl<'n, 'a> Circuit<'n, 'a> {
     pub fn pin_span(&self, p: PinRef) -> crate::source::Span {
         let c = &self.nl.components[p.comp];
         match c.pins[p.pin].connection {
-            Connection::Net { net, node } | Connection::Alone { net, node } => self.nl.nets[net].nodes[node].span,
+            Connection::Net { net, node } | Connection::Alone { net, node } => {
+                self.nl.nets[net].nodes[node].span
+            }
             Connection::Absent => match (c.libpart, c.pins[p.pin].libpin) {
                 (Some(lp), Some(li)) => self.nl.libparts[lp].pins[li].span,
                 _ => c.reference.span,
@@ -240,7 +262,10 @@ impl<'n, 'a> Circuit<'n, 'a> {
                 let net = s.supply_net.map(|n| self.net_name(n)).unwrap_or_default();
                 format!("{net} ({})", values::format_volts(s.vcc))
             }
-            Some(s) => format!("{} (the family's nominal supply; the part's supply rail is unknown)", values::format_volts(s.vcc)),
+            Some(s) => format!(
+                "{} (the family's nominal supply; the part's supply rail is unknown)",
+                values::format_volts(s.vcc)
+            ),
             None => "an unknown supply".to_string(),
         }
     }
@@ -254,22 +279,55 @@ impl<'n, 'a> Circuit<'n, 'a> {
 }
 
 fn component_kind_passive(k: PartKind) -> bool {
-    matches!(k, PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Led | PartKind::Diode | PartKind::Connector | PartKind::Other)
+    matches!(
+        k,
+        PartKind::Resistor
+            | PartKind::ResistorNetwork
+            | PartKind::Capacitor
+            | PartKind::Led
+            | PartKind::Diode
+            | PartKind::Connector
+            | PartKind::Other
+    )
 }
 
 /// Builds the electrical model.
-pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, opts: ModelOptions) -> Circuit<'n, 'a> {
+pub fn build<'n, 'a>(
+    nl: &'n Netlist<'a>,
+    cl: &'n Classified,
+    rules: &'n Rules,
+    opts: ModelOptions,
+) -> Circuit<'n, 'a> {
     let n_nets = nl.nets.len();
     // rails: user declarations, names, power outputs
     let mut rail: Vec<Option<Rail>> = vec![None; n_nets];
     for (i, net) in nl.nets.iter().enumerate() {
-        if let Some((_, v)) = opts.rails.iter().find(|(n, _)| n == net.name.as_str() || n.trim_start_matches('/') == net.name.as_str().trim_start_matches('/')) {
-            rail[i] = Some(Rail { volts: Some(*v), ground: *v == 0.0, source: RailSource::User });
+        if let Some((_, v)) = opts.rails.iter().find(|(n, _)| {
+            n == net.name.as_str()
+                || n.trim_start_matches('/') == net.name.as_str().trim_start_matches('/')
+        }) {
+            rail[i] = Some(Rail {
+                volts: Some(*v),
+                ground: *v == 0.0,
+                source: RailSource::User,
+            });
             continue;
         }
         match rails::rail_from_name(net.name.as_str()) {
-            Some(rails::NameRail::Ground) => rail[i] = Some(Rail { volts: Some(0.0), ground: true, source: RailSource::Name }),
-            Some(rails::NameRail::Supply(v)) => rail[i] = Some(Rail { volts: v, ground: false, source: RailSource::Name }),
+            Some(rails::NameRail::Ground) => {
+                rail[i] = Some(Rail {
+                    volts: Some(0.0),
+                    ground: true,
+                    source: RailSource::Name,
+                })
+            }
+            Some(rails::NameRail::Supply(v)) => {
+                rail[i] = Some(Rail {
+                    volts: v,
+                    ground: false,
+                    source: RailSource::Name,
+                })
+            }
             None => {}
         }
     }
@@ -278,7 +336,11 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
             if p.ptype == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
                 if let Connection::Net { net, .. } = p.connection {
                     if rail[net].is_none() {
-                        rail[net] = Some(Rail { volts: None, ground: false, source: RailSource::PowerOutput });
+                        rail[net] = Some(Rail {
+                            volts: None,
+                            ground: false,
+                            source: RailSource::PowerOutput,
+                        });
                     }
                 }
             }
@@ -297,28 +359,43 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
         let mut supply_net = None;
         let mut ground_net = None;
         for (pi, p) in c.pins.iter().enumerate() {
-            let Some(net) = p.connection.net() else { continue };
+            let Some(net) = p.connection.net() else {
+                continue;
+            };
             match part.roles[pi] {
                 PinRole::Supply if supply_net.is_none() => supply_net = Some(net),
                 PinRole::Ground if ground_net.is_none() => ground_net = Some(net),
                 _ => {}
             }
         }
-        let railv = supply_net.and_then(|n| rail[n]).and_then(|r| r.v()).filter(|v| *v > 0.0);
+        let railv = supply_net
+            .and_then(|n| rail[n])
+            .and_then(|r| r.v())
+            .filter(|v| *v > 0.0);
         // thresholds are taken against 0 V: a ground pin on a rail other than 0 V is the
         // business of `power-pin-miswired`, and a 4051's VEE is an analogue supply
         let (vcc, known) = match railv {
             Some(v) => (v, true),
             None => (fam.supply_nominal, false),
         };
-        supplies.push(Some(PartSupply { vcc, known, supply_net, ground_net }));
+        supplies.push(Some(PartSupply {
+            vcc,
+            known,
+            supply_net,
+            ground_net,
+        }));
     }
 
     let levels_of = |ci: usize| -> Option<Arc<Levels>> {
         let part = &cl.parts[ci];
         let fam = part.family.as_deref().and_then(|f| rules.families.get(f))?;
         let s = supplies[ci].as_ref()?;
-        let drive = match part.function.as_ref().and_then(|(sr, id)| rules.functions.get(*sr, id)).map(|f| f.drive) {
+        let drive = match part
+            .function
+            .as_ref()
+            .and_then(|(sr, id)| rules.functions.get(*sr, id))
+            .map(|f| f.drive)
+        {
             Some(DriveClass::Buffer) => Drive::Buffer,
             _ => Drive::Standard,
         };
@@ -333,11 +410,18 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
         level_cache[ci].clone().flatten()
     };
 
-    let mut nets: Vec<NetModel> = (0..n_nets).map(|i| NetModel { rail: rail[i], ..Default::default() }).collect();
+    let mut nets: Vec<NetModel> = (0..n_nets)
+        .map(|i| NetModel {
+            rail: rail[i],
+            ..Default::default()
+        })
+        .collect();
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         for (pi, p) in c.pins.iter().enumerate() {
-            let Connection::Net { net, .. } = p.connection else { continue };
+            let Connection::Net { net, .. } = p.connection else {
+                continue;
+            };
             let at = PinRef { comp: ci, pin: pi };
             let role = part.roles[pi];
             let nm = &mut nets[net];
@@ -345,7 +429,9 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
                 PartKind::Connector => {
                     nm.connectors.push(at);
                     let reference = c.reference.as_str();
-                    if let Some((_, fam)) = opts.connector_families.iter().find(|(r, _)| r == reference) {
+                    if let Some((_, fam)) =
+                        opts.connector_families.iter().find(|(r, _)| r == reference)
+                    {
                         if let Some(f) = rules.families.get(fam) {
                             nm.drivers.push(Driver {
                                 at,
@@ -357,7 +443,12 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
                     }
                     continue;
                 }
-                PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Led | PartKind::Diode | PartKind::Other => {
+                PartKind::Resistor
+                | PartKind::ResistorNetwork
+                | PartKind::Capacitor
+                | PartKind::Led
+                | PartKind::Diode
+                | PartKind::Other => {
                     nm.passives.push(at);
                     continue;
                 }
@@ -377,13 +468,27 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
                         family: part.family.clone(),
                     });
                 }
-                PinRole::PushPull | PinRole::OpenCollector | PinRole::OpenEmitter | PinRole::ThreeState | PinRole::PulledUpIo => {
-                    nm.drivers.push(Driver { at, role, levels: levels(ci), family: part.family.clone() });
+                PinRole::PushPull
+                | PinRole::OpenCollector
+                | PinRole::OpenEmitter
+                | PinRole::ThreeState
+                | PinRole::PulledUpIo => {
+                    nm.drivers.push(Driver {
+                        at,
+                        role,
+                        levels: levels(ci),
+                        family: part.family.clone(),
+                    });
                 }
                 PinRole::Bidirectional => {
                     let lv = levels(ci);
                     let vcc = supplies[ci].as_ref().map(|s| s.vcc);
-                    nm.drivers.push(Driver { at, role, levels: lv.clone(), family: part.family.clone() });
+                    nm.drivers.push(Driver {
+                        at,
+                        role,
+                        levels: lv.clone(),
+                        family: part.family.clone(),
+                    });
                     nm.loads.push(Load {
                         at,
                         role,
@@ -437,7 +542,10 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
                 elements.push((pin_nets[0], pin_nets[1]));
             }
         } else {
-            let on_rail: Vec<&(usize, usize)> = pin_nets.iter().filter(|(_, n)| rail[*n].is_some()).collect();
+            let on_rail: Vec<&(usize, usize)> = pin_nets
+                .iter()
+                .filter(|(_, n)| rail[*n].is_some())
+                .collect();
             if on_rail.len() == 1 {
                 let common = *on_rail[0];
                 for &pn in &pin_nets {
@@ -463,11 +571,21 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
                     continue;
                 }
                 let Some(r) = rail[n_other] else { continue };
-                let at = PinRef { comp: ci, pin: p_here };
+                let at = PinRef {
+                    comp: ci,
+                    pin: p_here,
+                };
                 match (ohms, &err) {
                     (Some(o), _) => {
                         if let Some(v) = r.v() {
-                            nets[n_here].pulls.push(Pull { resistor: ci, at, rail_net: n_other, rail_volts: v, ohms: o, up: v > 0.0 });
+                            nets[n_here].pulls.push(Pull {
+                                resistor: ci,
+                                at,
+                                rail_net: n_other,
+                                rail_volts: v,
+                                ohms: o,
+                                up: v > 0.0,
+                            });
                         }
                     }
                     (None, Some(e)) => nets[n_here].unreadable.push((ci, e.clone())),
@@ -497,11 +615,24 @@ pub fn build<'n, 'a>(nl: &'n Netlist<'a>, cl: &'n Classified, rules: &'n Rules, 
         nets[net].led_paths = found;
     }
 
-    Circuit { nl, cl, rules, opts, supplies, nets }
+    Circuit {
+        nl,
+        cl,
+        rules,
+        opts,
+        supplies,
+        nets,
+    }
 }
 
 /// Follows two-pin resistors and LEDs in series from `start` to a ground rail.
-fn follow_to_ground(nl: &Netlist<'_>, cl: &Classified, rail: &[Option<Rail>], start: PinRef, vf: f64) -> Option<LedPath> {
+fn follow_to_ground(
+    nl: &Netlist<'_>,
+    cl: &Classified,
+    rail: &[Option<Rail>],
+    start: PinRef,
+    vf: f64,
+) -> Option<LedPath> {
     let mut leds = Vec::new();
     let mut resistors = Vec::new();
     let mut ohms = 0.0;
@@ -524,7 +655,13 @@ fn follow_to_ground(nl: &Netlist<'_>, cl: &Classified, rail: &[Option<Rail>], st
         let net = c.pins[other].connection.net()?;
         if let Some(r) = rail[net] {
             let vf = vf * leds.len() as f64;
-            return r.ground.then_some(LedPath { at: start, leds, resistors, ohms, vf });
+            return r.ground.then_some(LedPath {
+                at: start,
+                leds,
+                resistors,
+                ohms,
+                vf,
+            });
         }
         // the next part: exactly one other passive on a two-node net
         let nodes = &nl.nets[net].nodes;
@@ -533,7 +670,10 @@ fn follow_to_ground(nl: &Netlist<'_>, cl: &Classified, rail: &[Option<Rail>], st
         }
         let next = nodes.iter().find(|n| n.component != Some(cur.comp))?;
         let ci = next.component?;
-        let pi = nl.components[ci].pins.iter().position(|p| p.num == next.pin.s)?;
+        let pi = nl.components[ci]
+            .pins
+            .iter()
+            .position(|p| p.num == next.pin.s)?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef { comp: ci, pin: pi };
         } else {

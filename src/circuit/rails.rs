@@ -83,17 +83,29 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
     }
     // a signal named after a rail (`5V_OK`, `/5V_TO_3V`, `12V_EN`) is not the rail
     const SIGNAL_WORDS: &[&str] = &[
-        "TO", "EN", "ENA", "ENABLE", "SENSE", "SEN", "MON", "DET", "OK", "PG", "PGOOD", "FAULT", "FAIL", "CTRL", "SW", "ON",
-        "OFF", "SEL", "REQ", "ACK", "N", "INT", "CLK", "DATA", "TX", "RX", "LED", "FB",
+        "TO", "EN", "ENA", "ENABLE", "SENSE", "SEN", "MON", "DET", "OK", "PG", "PGOOD", "FAULT",
+        "FAIL", "CTRL", "SW", "ON", "OFF", "SEL", "REQ", "ACK", "N", "INT", "CLK", "DATA", "TX",
+        "RX", "LED", "FB",
     ];
-    if n.split(|c: char| !c.is_ascii_alphanumeric()).skip(1).any(|w| SIGNAL_WORDS.contains(&w))
-        || n.split(|c: char| !c.is_ascii_alphanumeric()).filter(|w| voltage_in_name(w).is_some()).count() > 1
+    if n.split(|c: char| !c.is_ascii_alphanumeric())
+        .skip(1)
+        .any(|w| SIGNAL_WORDS.contains(&w))
+        || n.split(|c: char| !c.is_ascii_alphanumeric())
+            .filter(|w| voltage_in_name(w).is_some())
+            .count()
+            > 1
     {
         return None;
     }
     let v = voltage_in_name(&n);
-    let supply_word = ["VCC", "VDD", "VEE", "V+", "V-", "VBAT", "VIN", "VPP"].iter().any(|w| n.starts_with(w));
-    let voltage_like = v.is_some() && (n.starts_with('+') || n.starts_with('-') || n.chars().next().is_some_and(|c| c.is_ascii_digit()) || supply_word);
+    let supply_word = ["VCC", "VDD", "VEE", "V+", "V-", "VBAT", "VIN", "VPP"]
+        .iter()
+        .any(|w| n.starts_with(w));
+    let voltage_like = v.is_some()
+        && (n.starts_with('+')
+            || n.starts_with('-')
+            || n.chars().next().is_some_and(|c| c.is_ascii_digit())
+            || supply_word);
     if supply_word || voltage_like {
         if n.starts_with("VEE") && v.is_none() {
             return Some(NameRail::Supply(None));
@@ -128,7 +140,11 @@ mod tests {
             ("+12V_A", 12.0),
         ] {
             assert_eq!(voltage_in_name(name), Some(v), "{name}");
-            assert_eq!(rail_from_name(name), Some(NameRail::Supply(Some(v))), "{name}");
+            assert_eq!(
+                rail_from_name(name),
+                Some(NameRail::Supply(Some(v))),
+                "{name}"
+            );
         }
         for g in ["GND", "GNDD", "DGND", "AGND", "0V", "VSS", "/GND"] {
             assert_eq!(rail_from_name(g), Some(NameRail::Ground), "{g}");
@@ -136,7 +152,20 @@ mod tests {
         assert_eq!(rail_from_name("VCC"), Some(NameRail::Supply(None)));
         assert_eq!(rail_from_name("VDD"), Some(NameRail::Supply(None)));
         assert_eq!(rail_from_name("VEE"), Some(NameRail::Supply(None)));
-        for not in ["/CLK", "Net-(U1-Pad3)", "A5", "/D[2]", "unconnected-(U1-Pad4)", "/SEL0", "CNT5", "Q3V", "/5V_TO_3V", "5V_OK", "+12V_EN", "VCC_SENSE"] {
+        for not in [
+            "/CLK",
+            "Net-(U1-Pad3)",
+            "A5",
+            "/D[2]",
+            "unconnected-(U1-Pad4)",
+            "/SEL0",
+            "CNT5",
+            "Q3V",
+            "/5V_TO_3V",
+            "5V_OK",
+            "+12V_EN",
+            "VCC_SENSE",
+        ] {
             assert_eq!(rail_from_name(not), None, "{not}");
         }
     }

@@ -155,14 +155,20 @@ pub struct Classified {
 
 /// The reference's letter prefix: `U12` -> `U`, `RN3` -> `RN`, `IC4A` -> `IC`.
 pub fn ref_prefix(reference: &str) -> &str {
-    let end = reference.find(|c: char| !c.is_ascii_alphabetic()).unwrap_or(reference.len());
+    let end = reference
+        .find(|c: char| !c.is_ascii_alphabetic())
+        .unwrap_or(reference.len());
     &reference[..end]
 }
 
 fn kind_by_reference(c: &Component<'_>) -> PartKind {
     let p = ref_prefix(c.reference.as_str()).to_ascii_uppercase();
     let value = c.value_str().to_ascii_uppercase();
-    let lib = c.libsource.as_ref().and_then(|l| l.part.as_ref()).map_or(String::new(), |p| p.as_str().to_ascii_uppercase());
+    let lib = c
+        .libsource
+        .as_ref()
+        .and_then(|l| l.part.as_ref())
+        .map_or(String::new(), |p| p.as_str().to_ascii_uppercase());
     match p.as_str() {
         "R" | "VR" if c.pins.len() <= 2 => PartKind::Resistor,
         "R" | "RN" | "RP" | "RR" | "RA" | "RM" => PartKind::ResistorNetwork,
@@ -170,11 +176,15 @@ fn kind_by_reference(c: &Component<'_>) -> PartKind {
         "LED" | "DS" => PartKind::Led,
         "D" if value.contains("LED") || lib.contains("LED") => PartKind::Led,
         "D" => PartKind::Diode,
-        "J" | "P" | "CN" | "CON" | "X" | "XS" | "XP" | "K" | "JP" | "H" | "TP" => PartKind::Connector,
+        "J" | "P" | "CN" | "CON" | "X" | "XS" | "XP" | "K" | "JP" | "H" | "TP" => {
+            PartKind::Connector
+        }
         "U" | "IC" | "Z" | "Q" if p != "Q" => PartKind::UnknownIc,
         _ => {
             let many = c.pins.len() > 4;
-            let logicish = pattern::match_value(c.value_str()).is_some() || value.starts_with("74") || value.contains("40");
+            let logicish = pattern::match_value(c.value_str()).is_some()
+                || value.starts_with("74")
+                || value.contains("40");
             if many && logicish {
                 PartKind::UnknownIc
             } else {
@@ -201,7 +211,9 @@ fn role_from_netlist(t: PinType, name: Option<&str>) -> (PinRole, RoleSource) {
                 PinRole::Supply
             }
         }
-        PinType::Unspecified | PinType::Free | PinType::Unknown => return (PinRole::Unknown, RoleSource::Unknown),
+        PinType::Unspecified | PinType::Free | PinType::Unknown => {
+            return (PinRole::Unknown, RoleSource::Unknown)
+        }
     };
     (r, RoleSource::Netlist)
 }
@@ -209,7 +221,13 @@ fn role_from_netlist(t: PinType, name: Option<&str>) -> (PinRole, RoleSource) {
 /// A pin or net name that means ground: GND, GNDD, AGND, DGND, 0V, VSS, VEE ...
 pub fn is_ground_name(name: &str) -> bool {
     let n = name.trim_start_matches('/').to_ascii_uppercase();
-    n.starts_with("GND") || n.ends_with("GND") || n == "0V" || n.starts_with("VSS") || n.starts_with("VEE") || n == "V-" || n == "COM"
+    n.starts_with("GND")
+        || n.ends_with("GND")
+        || n == "0V"
+        || n.starts_with("VSS")
+        || n.starts_with("VEE")
+        || n == "V-"
+        || n == "COM"
 }
 
 fn map_series(s: &pattern::Series) -> Series {
@@ -256,8 +274,14 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         let mut entry = None;
         let value = c.value_str();
 
-        let field_family = c.field("Logic family").and_then(|f| f.value.as_ref()).map(|v| v.as_str().to_string());
-        let field_function = c.field("Logic function").and_then(|f| f.value.as_ref()).map(|v| v.as_str().to_string());
+        let field_family = c
+            .field("Logic family")
+            .and_then(|f| f.value.as_ref())
+            .map(|v| v.as_str().to_string());
+        let field_function = c
+            .field("Logic function")
+            .and_then(|f| f.value.as_ref())
+            .map(|v| v.as_str().to_string());
         let ic = matches!(kind, PartKind::UnknownIc) || field_family.is_some();
         if let Some(ff) = field_family {
             kind = PartKind::Logic;
@@ -276,15 +300,25 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 }
             }
             value_match = m;
-        } else if let Some((i, e)) = (ic || c.pins.len() > 2).then(|| rules.parts.find(value)).flatten() {
+        } else if let Some((i, e)) = (ic || c.pins.len() > 2)
+            .then(|| rules.parts.find(value))
+            .flatten()
+        {
             used_entries[i] = true;
             entry = Some(i);
-            method = if e.shipped { Method::ShippedEntry } else { Method::ProjectOverride };
+            method = if e.shipped {
+                Method::ShippedEntry
+            } else {
+                Method::ProjectOverride
+            };
             match e.kind {
                 EntryKind::NotLogic => kind = PartKind::NotLogic,
                 EntryKind::Logic => {
                     kind = PartKind::Logic;
-                    family = e.family.as_ref().map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone()));
+                    family = e
+                        .family
+                        .as_ref()
+                        .map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone()));
                     if let Some(id) = &e.function {
                         named_function = Some(id.clone());
                         if rules.functions.get(e.series, id).is_some() {
@@ -293,27 +327,51 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     }
                 }
             }
-        } else if let Some(m) = pattern::match_value(value).filter(|_| !matches!(kind, PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Connector | PartKind::Led | PartKind::Diode)) {
+        } else if let Some(m) = pattern::match_value(value).filter(|_| {
+            !matches!(
+                kind,
+                PartKind::Resistor
+                    | PartKind::ResistorNetwork
+                    | PartKind::Capacitor
+                    | PartKind::Connector
+                    | PartKind::Led
+                    | PartKind::Diode
+            )
+        }) {
             kind = PartKind::Logic;
             method = Method::Pattern;
             family = Some(m.family.clone());
             let series = map_series(&m.series);
             named_function = Some(m.function.clone());
-            if rules.functions.get(series, &m.function).is_some_and(|f| f.available_in(&m.family) || f.families.is_none()) {
+            if rules
+                .functions
+                .get(series, &m.function)
+                .is_some_and(|f| f.available_in(&m.family) || f.families.is_none())
+            {
                 function = Some((series, m.function.clone()));
             }
             value_match = Some(m);
         } else if ic {
             kind = PartKind::UnknownIc;
-            let known = |s: &pattern::Series, f: &str| rules.functions.get(map_series(s), f).is_some();
+            let known =
+                |s: &pattern::Series, f: &str| rules.functions.get(map_series(s), f).is_some();
             suggestions = pattern::near_misses(value, &known, 3);
-            method = if c.pins.iter().any(|p| !matches!(p.ptype, PinType::Unknown | PinType::Unspecified | PinType::Passive)) {
+            method = if c.pins.iter().any(|p| {
+                !matches!(
+                    p.ptype,
+                    PinType::Unknown | PinType::Unspecified | PinType::Passive
+                )
+            }) {
                 Method::NetlistOnly
             } else {
                 Method::NotClassified
             };
         }
-        let is_ic = ic || matches!(kind, PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc);
+        let is_ic = ic
+            || matches!(
+                kind,
+                PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc
+            );
         if is_ic {
             ic_like += 1;
             if matches!(kind, PartKind::Logic | PartKind::NotLogic) {
@@ -328,7 +386,9 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         let mut table_names = vec![None; n];
         let mut units = vec![None; n];
         let mut enables = vec![Vec::new(); n];
-        let func = function.as_ref().and_then(|(s, id)| rules.functions.get(*s, id));
+        let func = function
+            .as_ref()
+            .and_then(|(s, id)| rules.functions.get(*s, id));
         let fam = family.clone().unwrap_or_default();
         for (i, p) in c.pins.iter().enumerate() {
             let def = func.and_then(|f| f.pin(&p.num));
@@ -338,10 +398,22 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     role_source.push(RoleSource::Table);
                     table_names[i] = Some(d.name.clone());
                     units[i] = d.unit.clone();
-                    enables[i] = d.enable.iter().filter_map(|e| c.pins.iter().position(|q| q.num == *e)).collect();
+                    enables[i] = d
+                        .enable
+                        .iter()
+                        .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
+                        .collect();
                 }
                 _ => {
-                    let passive_kind = matches!(kind, PartKind::Resistor | PartKind::ResistorNetwork | PartKind::Capacitor | PartKind::Led | PartKind::Diode | PartKind::Connector);
+                    let passive_kind = matches!(
+                        kind,
+                        PartKind::Resistor
+                            | PartKind::ResistorNetwork
+                            | PartKind::Capacitor
+                            | PartKind::Led
+                            | PartKind::Diode
+                            | PartKind::Connector
+                    );
                     if passive_kind {
                         roles.push(PinRole::Passive);
                         role_source.push(RoleSource::Netlist);
@@ -378,5 +450,9 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         .filter(|(i, e)| !e.shipped && !used_entries[*i])
         .map(|(i, _)| i)
         .collect();
-    Classified { parts, coverage: (classified, ic_like), unused_project_entries }
+    Classified {
+        parts,
+        coverage: (classified, ic_like),
+        unused_project_entries,
+    }
 }

@@ -21,12 +21,18 @@ pub struct RuleError {
 
 impl RuleError {
     pub fn new(span: Option<Range<usize>>, message: impl Into<String>) -> Self {
-        RuleError { span, message: message.into() }
+        RuleError {
+            span,
+            message: message.into(),
+        }
     }
 
     /// Converts a `toml` deserialisation error, keeping its span.
     pub fn from_toml(err: &toml::de::Error) -> Self {
-        RuleError { span: err.span(), message: err.message().to_string() }
+        RuleError {
+            span: err.span(),
+            message: err.message().to_string(),
+        }
     }
 }
 
@@ -38,7 +44,9 @@ impl fmt::Display for RuleError {
 
 /// The electrical role of one pin, from the function table (or, failing that, from the
 /// netlist's own pin type).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize,
+)]
 #[serde(rename_all = "kebab-case")]
 pub enum PinRole {
     /// A logic input: family thresholds and input currents apply.
@@ -94,7 +102,10 @@ impl PinRole {
 
     /// True for roles that read a logic level (must not float).
     pub fn is_input(self) -> bool {
-        matches!(self, PinRole::Input | PinRole::SchmittInput | PinRole::Bidirectional)
+        matches!(
+            self,
+            PinRole::Input | PinRole::SchmittInput | PinRole::Bidirectional
+        )
     }
 
     /// True for roles that can drive a net.

@@ -86,7 +86,8 @@ struct RawPart {
 
 impl PartTable {
     pub fn builtin() -> PartTable {
-        PartTable::parse(BUILTIN_TEXT, true).expect("the shipped rules/parts.toml is valid (tested)")
+        PartTable::parse(BUILTIN_TEXT, true)
+            .expect("the shipped rules/parts.toml is valid (tested)")
     }
 
     pub fn parse(text: &str, shipped: bool) -> Result<PartTable, Vec<RuleError>> {
@@ -101,7 +102,10 @@ impl PartTable {
                 Some("not-logic") => EntryKind::NotLogic,
                 Some(other) => {
                     let k = r.kind.as_ref().expect("some");
-                    errors.push(RuleError::new(Some(k.span()), format!("unknown kind `{other}`: expected \"logic\" or \"not-logic\"")));
+                    errors.push(RuleError::new(
+                        Some(k.span()),
+                        format!("unknown kind `{other}`: expected \"logic\" or \"not-logic\""),
+                    ));
                     continue;
                 }
             };
@@ -111,19 +115,38 @@ impl PartTable {
                 Some("4000") => Series::S4000,
                 Some(other) => {
                     let s = r.series.as_ref().expect("some");
-                    errors.push(RuleError::new(Some(s.span()), format!("unknown series `{other}`: expected \"74\", \"4000\" or \"other\"")));
+                    errors.push(RuleError::new(
+                        Some(s.span()),
+                        format!("unknown series `{other}`: expected \"74\", \"4000\" or \"other\""),
+                    ));
                     continue;
                 }
             };
             if r.values.is_empty() {
-                errors.push(RuleError::new(Some(span.clone()), "a part entry needs at least one value glob"));
+                errors.push(RuleError::new(
+                    Some(span.clone()),
+                    "a part entry needs at least one value glob",
+                ));
                 continue;
             }
             if kind == EntryKind::Logic && (r.family.is_none() || r.function.is_none()) {
-                errors.push(RuleError::new(Some(span.clone()), "a logic part entry needs `family` and `function`"));
+                errors.push(RuleError::new(
+                    Some(span.clone()),
+                    "a logic part entry needs `family` and `function`",
+                ));
                 continue;
             }
-            entries.push(PartEntry { values: r.values, kind, family: r.family, series, function: r.function, note: r.note, span, shipped, origin: None });
+            entries.push(PartEntry {
+                values: r.values,
+                kind,
+                family: r.family,
+                series,
+                function: r.function,
+                note: r.note,
+                span,
+                shipped,
+                origin: None,
+            });
         }
         if errors.is_empty() {
             Ok(PartTable { entries })
@@ -140,7 +163,10 @@ impl PartTable {
     }
 
     pub fn find(&self, value: &str) -> Option<(usize, &PartEntry)> {
-        self.entries.iter().enumerate().find(|(_, e)| e.matches(value))
+        self.entries
+            .iter()
+            .enumerate()
+            .find(|(_, e)| e.matches(value))
     }
 }
 

@@ -490,4 +490,3 @@ impl<'a> Builder<'_, 'a> {
         net
     }
 }
-

@@ -11,8 +11,8 @@ mod build;
 mod pintype;
 pub mod stream;
 
-use std::borrow::Cow;
 use rustc_hash::FxHashMap as HashMap;
+use std::borrow::Cow;
 
 pub use build::build;
 pub use pintype::PinType;
@@ -245,7 +245,12 @@ impl<'a> Netlist<'a> {
             .flat_map(|c| c.pins.iter())
             .filter(|p| p.connection.is_unconnected())
             .count();
-        Summary { parts: self.components.len(), nets: self.nets.len(), pins, pins_on_no_net }
+        Summary {
+            parts: self.components.len(),
+            nets: self.nets.len(),
+            pins,
+            pins_on_no_net,
+        }
     }
 }
 

@@ -85,7 +85,10 @@ mod tests {
             assert_eq!(PinType::parse(d).0, PinType::parse(e).0, "{d} vs {e}");
             assert_ne!(PinType::parse(d).0, PinType::Unknown);
         }
-        assert_eq!(PinType::parse("passive+no_connect"), (PinType::Passive, true));
+        assert_eq!(
+            PinType::parse("passive+no_connect"),
+            (PinType::Passive, true)
+        );
         assert_eq!(PinType::parse("input"), (PinType::Input, false));
         assert_eq!(PinType::parse("weird").0, PinType::Unknown);
     }

@@ -56,21 +56,50 @@ fn reads_kicad5_with_alias_resolution_and_absent_pins() {
     assert_eq!(nl.dialect, Dialect::D);
     assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics);
     assert_eq!(nl.design.title.as_ref().unwrap().as_str(), "Logic board");
-    assert_eq!(nl.design.source.as_ref().unwrap().as_str(), "C:\\restore\\board.sch");
+    assert_eq!(
+        nl.design.source.as_ref().unwrap().as_str(),
+        "C:\\restore\\board.sch"
+    );
     let u1 = &nl.components[nl.component("U1").unwrap()];
-    assert_eq!(u1.libpart, Some(0), "74LS00 resolves through the alias in libpart 7400");
+    assert_eq!(
+        u1.libpart,
+        Some(0),
+        "74LS00 resolves through the alias in libpart 7400"
+    );
     assert_eq!(u1.tstamps[0].as_str(), "5ACE05B6");
     assert_eq!(u1.pins.len(), 5);
     // pin 1 listed twice in /A: once
     assert_eq!(nl.nets[1].nodes.len(), 3);
-    assert!(matches!(u1.pin("1").unwrap().connection, Connection::Net { net: 1, .. }));
-    assert!(matches!(u1.pin("3").unwrap().connection, Connection::Alone { net: 2, .. }));
+    assert!(matches!(
+        u1.pin("1").unwrap().connection,
+        Connection::Net { net: 1, .. }
+    ));
+    assert!(matches!(
+        u1.pin("3").unwrap().connection,
+        Connection::Alone { net: 2, .. }
+    ));
     assert_eq!(u1.pin("7").unwrap().connection, Connection::Absent);
     assert_eq!(u1.pin("14").unwrap().ptype, PinType::PowerIn);
     let r1 = &nl.components[nl.component("R1").unwrap()];
-    assert_eq!(r1.field("logic family").unwrap().value.as_ref().unwrap().as_str(), "LS");
+    assert_eq!(
+        r1.field("logic family")
+            .unwrap()
+            .value
+            .as_ref()
+            .unwrap()
+            .as_str(),
+        "LS"
+    );
     let s = nl.summary();
-    assert_eq!(s, Summary { parts: 2, nets: 3, pins: 7, pins_on_no_net: 2 });
+    assert_eq!(
+        s,
+        Summary {
+            parts: 2,
+            nets: 3,
+            pins: 7,
+            pins_on_no_net: 2
+        }
+    );
 }
 
 const K8: &str = r#"(export (version "E")
@@ -114,18 +143,32 @@ fn reads_kicad8_and_reports_model_problems_with_spans() {
     let fp = u1.field("Footprint").unwrap();
     assert_eq!(fp.value.as_ref().unwrap().as_str(), "Package_SO:SOIC-14");
     assert!(u1.field("Datasheet").unwrap().value.is_none());
-    assert_eq!(u1.field("Sheetname").unwrap().value.as_ref().unwrap().as_str(), "Root");
+    assert_eq!(
+        u1.field("Sheetname")
+            .unwrap()
+            .value
+            .as_ref()
+            .unwrap()
+            .as_str(),
+        "Root"
+    );
     let p2 = u1.pin("2").unwrap();
     assert!(p2.no_connect);
     assert_eq!(p2.ptype, PinType::Output);
     assert_eq!(u1.pin("14").unwrap().connection, Connection::Absent);
     let codes: Vec<&str> = nl.diagnostics.iter().map(|d| d.code.as_str()).collect();
-    assert_eq!(codes, ["unknown-component", "duplicate-net-code", "pin-on-two-nets"]);
+    assert_eq!(
+        codes,
+        ["unknown-component", "duplicate-net-code", "pin-on-two-nets"]
+    );
     let d = &nl.diagnostics[2];
     assert_eq!(d.message, "U1.1 is on two nets: `~{RESET}` and `/D[2]`");
     let at = d.primary_span().unwrap();
     assert!(K8[at.range()].starts_with("(node (ref \"U1\") (pin \"1\")"));
-    assert_eq!(&K8[nl.diagnostics[0].primary_span().unwrap().range()], "\"U9\"");
+    assert_eq!(
+        &K8[nl.diagnostics[0].primary_span().unwrap().range()],
+        "\"U9\""
+    );
 }
 
 #[test]
@@ -139,7 +182,16 @@ fn duplicate_refs_missing_fields_and_lists_for_atoms() {
   (nets (net (code "1") (name "A") (node (ref "U1")))))"#;
     let nl = read(text);
     let codes: Vec<&str> = nl.diagnostics.iter().map(|d| d.code.as_str()).collect();
-    assert_eq!(codes, ["missing-field", "bad-field", "missing-field", "missing-field", "duplicate-ref"]);
+    assert_eq!(
+        codes,
+        [
+            "missing-field",
+            "bad-field",
+            "missing-field",
+            "missing-field",
+            "duplicate-ref"
+        ]
+    );
     assert_eq!(nl.components.len(), 2);
 }
 

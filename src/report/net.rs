@@ -9,13 +9,32 @@ use crate::text::sanitize;
 use crate::values::{format_amps, format_ohms, format_volts};
 
 fn state(out: &mut dyn Write, name: &str, verb: &str, sb: &StateBudget) -> io::Result<()> {
-    writeln!(out, "    {name} state: must {verb} {} against a rating of {} ({:.0}%)", format_amps(sb.total), format_amps(sb.rating), sb.ratio() * 100.0)?;
+    writeln!(
+        out,
+        "    {name} state: must {verb} {} against a rating of {} ({:.0}%)",
+        format_amps(sb.total),
+        format_amps(sb.rating),
+        sb.ratio() * 100.0
+    )?;
     for it in &sb.items {
-        writeln!(out, "      {:>10}  {}", format_amps(it.amps), sanitize(&it.what))?;
+        writeln!(
+            out,
+            "      {:>10}  {}",
+            format_amps(it.amps),
+            sanitize(&it.what)
+        )?;
     }
     match sb.level {
-        Some(v) => writeln!(out, "      guaranteed {} level at that current: {}", if name == "low" { "VOL max" } else { "VOH min" }, format_volts(v)),
-        None => writeln!(out, "      no level is guaranteed at that current (beyond the published rows)"),
+        Some(v) => writeln!(
+            out,
+            "      guaranteed {} level at that current: {}",
+            if name == "low" { "VOL max" } else { "VOH min" },
+            format_volts(v)
+        ),
+        None => writeln!(
+            out,
+            "      no level is guaranteed at that current (beyond the published rows)"
+        ),
     }
 }
 
@@ -24,7 +43,11 @@ pub fn write_net(out: &mut dyn Write, cx: &Circuit<'_, '_>, net: usize) -> io::R
     let b = net_budget(cx, net);
     writeln!(out, "net {}", sanitize(&cx.net_name(net)))?;
     if let Some(r) = nm.rail {
-        writeln!(out, "  a rail: {}", r.v().map_or("voltage unknown".into(), format_volts))?;
+        writeln!(
+            out,
+            "  a rail: {}",
+            r.v().map_or("voltage unknown".into(), format_volts)
+        )?;
     }
     writeln!(out, "  drivers:")?;
     if nm.drivers.is_empty() {
@@ -38,7 +61,11 @@ pub fn write_net(out: &mut dyn Write, cx: &Circuit<'_, '_>, net: usize) -> io::R
                 return format!(
                     "; IOL {} (VOL {}), off-state leakage {}, {}",
                     format_amps(l.iol_max),
-                    l.vol.iter().map(|p| format!("{:.2} V @ {}", p.v, format_amps(p.a))).collect::<Vec<_>>().join(", "),
+                    l.vol
+                        .iter()
+                        .map(|p| format!("{:.2} V @ {}", p.v, format_amps(p.a)))
+                        .collect::<Vec<_>>()
+                        .join(", "),
                     format_amps(l.oc_leakage),
                     l.basis.describe()
                 );
@@ -46,23 +73,54 @@ pub fn write_net(out: &mut dyn Write, cx: &Circuit<'_, '_>, net: usize) -> io::R
             format!(
                 "; IOL {} (VOL {}), IOH {} (VOH {}), {}",
                 format_amps(l.iol_max),
-                l.vol.iter().map(|p| format!("{:.2} V @ {}", p.v, format_amps(p.a))).collect::<Vec<_>>().join(", "),
+                l.vol
+                    .iter()
+                    .map(|p| format!("{:.2} V @ {}", p.v, format_amps(p.a)))
+                    .collect::<Vec<_>>()
+                    .join(", "),
                 format_amps(l.ioh_max),
-                l.voh.iter().map(|p| format!("{:.2} V @ {}", p.v, format_amps(p.a))).collect::<Vec<_>>().join(", "),
+                l.voh
+                    .iter()
+                    .map(|p| format!("{:.2} V @ {}", p.v, format_amps(p.a)))
+                    .collect::<Vec<_>>()
+                    .join(", "),
                 l.basis.describe()
             )
         });
-        writeln!(out, "    {} [{}, {}] at {}{}", sanitize(&cx.describe(d.at)), d.role, fam, sanitize(&cx.supply_text(d.at.comp)), ratings)?;
+        writeln!(
+            out,
+            "    {} [{}, {}] at {}{}",
+            sanitize(&cx.describe(d.at)),
+            d.role,
+            fam,
+            sanitize(&cx.supply_text(d.at.comp)),
+            ratings
+        )?;
     }
     writeln!(out, "  loads:")?;
     if nm.loads.is_empty() {
         writeln!(out, "    (none)")?;
     }
     for l in &nm.loads {
-        let fig = l.levels.as_ref().map_or("no family data".to_string(), |lv| {
-            format!("VIH {} VIL {} IIH {} IIL {}", format_volts(lv.vih_min), format_volts(lv.vil_max), format_amps(lv.iih_max), format_amps(lv.iil_max))
-        });
-        writeln!(out, "    {} [{}]: {}", sanitize(&cx.describe(l.at)), l.family.as_deref().unwrap_or("unknown family"), fig)?;
+        let fig = l
+            .levels
+            .as_ref()
+            .map_or("no family data".to_string(), |lv| {
+                format!(
+                    "VIH {} VIL {} IIH {} IIL {}",
+                    format_volts(lv.vih_min),
+                    format_volts(lv.vil_max),
+                    format_amps(lv.iih_max),
+                    format_amps(lv.iil_max)
+                )
+            });
+        writeln!(
+            out,
+            "    {} [{}]: {}",
+            sanitize(&cx.describe(l.at)),
+            l.family.as_deref().unwrap_or("unknown family"),
+            fig
+        )?;
     }
     if !nm.pulls.is_empty() {
         writeln!(out, "  pull resistors:")?;
@@ -78,13 +136,25 @@ pub fn write_net(out: &mut dyn Write, cx: &Circuit<'_, '_>, net: usize) -> io::R
         }
     }
     for (ci, e) in &nm.unreadable {
-        writeln!(out, "  unreadable resistor value: {} `{}`: {}", cx.nl.components[*ci].reference, sanitize(cx.nl.components[*ci].value_str()), e)?;
+        writeln!(
+            out,
+            "  unreadable resistor value: {} `{}`: {}",
+            cx.nl.components[*ci].reference,
+            sanitize(cx.nl.components[*ci].value_str()),
+            e
+        )?;
     }
     for j in &nm.connectors {
         writeln!(out, "  leaves the board through {}", cx.pin_name(*j))?;
     }
     for p in &nm.led_paths {
-        writeln!(out, "  LED load: {} LED(s), {} in series to ground (Vf {} assumed)", p.leds.len(), format_ohms(p.ohms), format_volts(p.vf))?;
+        writeln!(
+            out,
+            "  LED load: {} LED(s), {} in series to ground (Vf {} assumed)",
+            p.leds.len(),
+            format_ohms(p.ohms),
+            format_volts(p.vf)
+        )?;
     }
     for db in &b.drivers {
         let d = &nm.drivers[db.driver];
@@ -96,22 +166,61 @@ pub fn write_net(out: &mut dyn Write, cx: &Circuit<'_, '_>, net: usize) -> io::R
             state(out, "high", "source", sb)?;
         }
         if let Some(pu) = &db.pull_up {
-            writeln!(out, "    pull-up {} to {}: supplies {} to the loads, high level {}", format_ohms(pu.ohms), format_volts(pu.rail_volts), format_amps(pu.current), format_volts(pu.level))?;
+            writeln!(
+                out,
+                "    pull-up {} to {}: supplies {} to the loads, high level {}",
+                format_ohms(pu.ohms),
+                format_volts(pu.rail_volts),
+                format_amps(pu.current),
+                format_volts(pu.level)
+            )?;
         }
         for m in b.margins.iter().filter(|m| m.driver == db.driver) {
             let l = &nm.loads[m.load];
             let f = |x: Option<f64>| x.map_or("-".to_string(), |v| format!("{v:+.2} V"));
-            writeln!(out, "    margin at {}: high {} (VIH {}), low {} (VIL {})", cx.pin_name(l.at), f(m.high_margin), format_volts(m.vih), f(m.low_margin), format_volts(m.vil))?;
+            writeln!(
+                out,
+                "    margin at {}: high {} (VIH {}), low {} (VIL {})",
+                cx.pin_name(l.at),
+                f(m.high_margin),
+                format_volts(m.vih),
+                f(m.low_margin),
+                format_volts(m.vil)
+            )?;
         }
     }
     if let Some(w) = &b.window {
-        writeln!(out, "  open-collector pull-up window to {} ({}):", sanitize(&cx.net_name(w.rail_net)), format_volts(w.rail_volts))?;
-        writeln!(out, "    R_min = ({} - {}) / ({} - {}) = {}", format_volts(w.rail_volts), format_volts(w.vol), format_amps(w.iol), format_amps(w.sum_iil), format_ohms(w.r_min))?;
+        writeln!(
+            out,
+            "  open-collector pull-up window to {} ({}):",
+            sanitize(&cx.net_name(w.rail_net)),
+            format_volts(w.rail_volts)
+        )?;
+        writeln!(
+            out,
+            "    R_min = ({} - {}) / ({} - {}) = {}",
+            format_volts(w.rail_volts),
+            format_volts(w.vol),
+            format_amps(w.iol),
+            format_amps(w.sum_iil),
+            format_ohms(w.r_min)
+        )?;
         match (w.r_max, w.vih_max) {
-            (Some(r), Some(v)) => writeln!(out, "    R_max = ({} - {}) / {} = {}", format_volts(w.rail_volts), format_volts(v), format_amps(w.sum_high), format_ohms(r))?,
+            (Some(r), Some(v)) => writeln!(
+                out,
+                "    R_max = ({} - {}) / {} = {}",
+                format_volts(w.rail_volts),
+                format_volts(v),
+                format_amps(w.sum_high),
+                format_ohms(r)
+            )?,
             _ => writeln!(out, "    R_max: no load sets one")?,
         }
-        writeln!(out, "    fitted: {}", w.fitted.map_or("none".into(), format_ohms))?;
+        writeln!(
+            out,
+            "    fitted: {}",
+            w.fitted.map_or("none".into(), format_ohms)
+        )?;
     }
     Ok(())
 }

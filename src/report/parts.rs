@@ -29,15 +29,29 @@ fn rows<'a>(nl: &'a Netlist<'_>, cl: &'a Classified) -> Vec<PartRow<'a>> {
             value: c.value_str(),
             kind: p.kind,
             family: p.family.as_deref(),
-            function: p.function.as_ref().map(|(_, f)| f.clone()).or_else(|| p.named_function.as_ref().map(|f| format!("{f} (not in the function table)"))),
+            function: p.function.as_ref().map(|(_, f)| f.clone()).or_else(|| {
+                p.named_function
+                    .as_ref()
+                    .map(|f| format!("{f} (not in the function table)"))
+            }),
             method: p.method.as_str(),
-            suggestions: p.suggestions.iter().map(|s| format!("{} ({})", s.value, s.change)).collect(),
+            suggestions: p
+                .suggestions
+                .iter()
+                .map(|s| format!("{} ({})", s.value, s.change))
+                .collect(),
         })
         .collect()
 }
 
 /// Writes the parts list as text or JSON.
-pub fn write_parts(out: &mut dyn Write, name: &str, nl: &Netlist<'_>, cl: &Classified, json: bool) -> io::Result<()> {
+pub fn write_parts(
+    out: &mut dyn Write,
+    name: &str,
+    nl: &Netlist<'_>,
+    cl: &Classified,
+    json: bool,
+) -> io::Result<()> {
     let rows = rows(nl, cl);
     let (classified, ic) = cl.coverage;
     if json {
@@ -53,12 +67,28 @@ pub fn write_parts(out: &mut dyn Write, name: &str, nl: &Netlist<'_>, cl: &Class
             classified: usize,
             ic_like: usize,
         }
-        let doc = Doc { format_version: 1, path: name, parts: rows, coverage: Coverage { classified, ic_like: ic } };
+        let doc = Doc {
+            format_version: 1,
+            path: name,
+            parts: rows,
+            coverage: Coverage {
+                classified,
+                ic_like: ic,
+            },
+        };
         serde_json::to_writer_pretty(&mut *out, &doc).map_err(io::Error::other)?;
         return writeln!(out);
     }
     let w = |s: &str, n: usize| format!("{:<n$}", sanitize(s), n = n);
-    writeln!(out, "{}{}{}{}{}method", w("ref", 8), w("value", 18), w("kind", 15), w("family", 9), w("function", 12))?;
+    writeln!(
+        out,
+        "{}{}{}{}{}method",
+        w("ref", 8),
+        w("value", 18),
+        w("kind", 15),
+        w("family", 9),
+        w("function", 12)
+    )?;
     for r in &rows {
         let func = r.function.clone().unwrap_or_else(|| "-".into());
         writeln!(
@@ -75,14 +105,27 @@ pub fn write_parts(out: &mut dyn Write, name: &str, nl: &Netlist<'_>, cl: &Class
             writeln!(out, "        did you mean {}?", sanitize(s))?;
         }
     }
-    let pct = if ic == 0 { 100.0 } else { classified as f64 * 100.0 / ic as f64 };
-    writeln!(out, "{}: {classified} of {ic} IC-like parts classified ({pct:.0} %)", sanitize(name))?;
+    let pct = if ic == 0 {
+        100.0
+    } else {
+        classified as f64 * 100.0 / ic as f64
+    };
+    writeln!(
+        out,
+        "{}: {classified} of {ic} IC-like parts classified ({pct:.0} %)",
+        sanitize(name)
+    )?;
     let _ = Method::Pattern;
     Ok(())
 }
 
 /// Writes the family table at a supply.
-pub fn write_families(out: &mut dyn Write, rules: &Rules, supply: Option<f64>, json: bool) -> io::Result<()> {
+pub fn write_families(
+    out: &mut dyn Write,
+    rules: &Rules,
+    supply: Option<f64>,
+    json: bool,
+) -> io::Result<()> {
     #[derive(Serialize)]
     struct Row {
         id: String,
@@ -128,13 +171,38 @@ pub fn write_families(out: &mut dyn Write, rules: &Rules, supply: Option<f64>, j
         serde_json::to_writer_pretty(&mut *out, &rows).map_err(io::Error::other)?;
         return writeln!(out);
     }
-    writeln!(out, "{:<9}{:<6}{:>6} {:>6} {:>6} {:>6} {:>6} {:>8} {:>8} {:>8} {:>8}  basis", "family", "input", "VCC", "VIH", "VIL", "VOH", "VOL", "IOH mA", "IOL mA", "IIH uA", "IIL mA")?;
+    writeln!(
+        out,
+        "{:<9}{:<6}{:>6} {:>6} {:>6} {:>6} {:>6} {:>8} {:>8} {:>8} {:>8}  basis",
+        "family",
+        "input",
+        "VCC",
+        "VIH",
+        "VIL",
+        "VOH",
+        "VOL",
+        "IOH mA",
+        "IOL mA",
+        "IIH uA",
+        "IIL mA"
+    )?;
     for r in rows {
         let f = |v: Option<f64>| v.map_or("-".to_string(), |v| format!("{v:.2}"));
         writeln!(
             out,
             "{:<9}{:<6}{:>6.2} {:>6.2} {:>6.2} {:>6} {:>6} {:>8.2} {:>8.2} {:>8.1} {:>8.2}  {}",
-            r.id, r.input, r.vcc, r.vih_min, r.vil_max, f(r.voh_min), f(r.vol_max), r.ioh_max_ma, r.iol_max_ma, r.iih_max_ua, r.iil_max_ma, r.basis
+            r.id,
+            r.input,
+            r.vcc,
+            r.vih_min,
+            r.vil_max,
+            f(r.voh_min),
+            f(r.vol_max),
+            r.ioh_max_ma,
+            r.iol_max_ma,
+            r.iih_max_ua,
+            r.iil_max_ma,
+            r.basis
         )?;
     }
     writeln!(out, "VOH and VOL at each family's heaviest published load; `netmargin families --format json` adds the sources")

@@ -83,7 +83,10 @@ impl<'a> Tree<'a> {
     }
     pub fn span(&self, id: NodeId) -> Span {
         let n = self.nodes[id as usize];
-        Span { start: n.start, end: n.end }
+        Span {
+            start: n.start,
+            end: n.end,
+        }
     }
     /// The node's text exactly as written (quotes and escapes included).
     pub fn raw(&self, id: NodeId) -> &'a str {
@@ -99,7 +102,9 @@ impl<'a> Tree<'a> {
         match n.kind() {
             Kind::List => None,
             Kind::Atom => Some(Cow::Borrowed(&self.text[n.start as usize..n.end as usize])),
-            Kind::Str => Some(unescape(&self.text[n.start as usize + 1..n.end as usize - 1])),
+            Kind::Str => Some(unescape(
+                &self.text[n.start as usize + 1..n.end as usize - 1],
+            )),
         }
     }
     /// The first child of a list.
@@ -122,7 +127,10 @@ impl<'a> Tree<'a> {
     }
     /// The children of a list (none for an atom).
     pub fn children(&self, id: NodeId) -> Children<'_, 'a> {
-        Children { tree: self, next: self.first_child(id) }
+        Children {
+            tree: self,
+            next: self.first_child(id),
+        }
     }
     /// The head of a list when it is an atom: `(net (code 1))` -> `net`.
     pub fn head(&self, id: NodeId) -> Option<&'a str> {
@@ -265,7 +273,11 @@ pub fn sniff(text: &str) -> Option<Diag> {
                 .with_help("open it in KiCad and export a netlist (File > Export > Netlist, KiCad format), then check the `.net` file"),
         );
     }
-    let compact: String = first_line.chars().filter(|c| !c.is_whitespace()).take(40).collect();
+    let compact: String = first_line
+        .chars()
+        .filter(|c| !c.is_whitespace())
+        .take(40)
+        .collect();
     if compact.starts_with("({EESchemaNetlist") || compact.starts_with("({") {
         return Some(
             Diag::error(
@@ -278,23 +290,35 @@ pub fn sniff(text: &str) -> Option<Diag> {
     }
     if trimmed.starts_with('{') || trimmed.starts_with('[') {
         return Some(
-            Diag::error("wrong-format", "this looks like JSON, not a KiCad S-expression netlist")
-                .at(Span::new(at, at + 1), "a netlist starts with `(export`")
-                .with_help("give netmargin the `.net` file KiCad exports"),
+            Diag::error(
+                "wrong-format",
+                "this looks like JSON, not a KiCad S-expression netlist",
+            )
+            .at(Span::new(at, at + 1), "a netlist starts with `(export`")
+            .with_help("give netmargin the `.net` file KiCad exports"),
         );
     }
     if trimmed.starts_with(')') {
         return Some(
-            Diag::error("stray-close", "the file begins with `)`, which closes a list that was never opened")
-                .at(Span::new(at, at + 1), "no matching `(`")
-                .with_help("the file is damaged or not a netlist: export it again from KiCad"),
+            Diag::error(
+                "stray-close",
+                "the file begins with `)`, which closes a list that was never opened",
+            )
+            .at(Span::new(at, at + 1), "no matching `(`")
+            .with_help("the file is damaged or not a netlist: export it again from KiCad"),
         );
     }
     if !trimmed.starts_with('(') {
         return Some(
-            Diag::error("not-a-netlist", "this is not a KiCad S-expression netlist: it does not begin with `(`")
-                .at(Span::new(at, at + first_line.chars().next().map_or(1, char::len_utf8)), "expected `(export`")
-                .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"),
+            Diag::error(
+                "not-a-netlist",
+                "this is not a KiCad S-expression netlist: it does not begin with `(`",
+            )
+            .at(
+                Span::new(at, at + first_line.chars().next().map_or(1, char::len_utf8)),
+                "expected `(export`",
+            )
+            .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)"),
         );
     }
     // `(kicad_sch`, `(kicad_pcb` ... : read the head atom.
@@ -330,7 +354,11 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
     if text.len() >= NEXT_MASK as usize {
         return Err(Diag::error(
             "too-large",
-            format!("the file is {} bytes; netmargin reads files up to {} bytes", text.len(), NEXT_MASK),
+            format!(
+                "the file is {} bytes; netmargin reads files up to {} bytes",
+                text.len(),
+                NEXT_MASK
+            ),
         ));
     }
     let b = text.as_bytes();
@@ -361,13 +389,23 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
         }
         if root_done && c == b')' {
             let root_end = nodes[0].end as usize;
-            return Err(Diag::error("stray-close", "a `)` closes a list that was never opened")
-                .at(Span::new(i, i + 1), "no list is open here")
-                .also(Span::new(root_end - 1, root_end), "the root list already closed here")
-                .with_help("a list above closes too early, or this `)` is extra: remove one `)`"));
+            return Err(
+                Diag::error("stray-close", "a `)` closes a list that was never opened")
+                    .at(Span::new(i, i + 1), "no list is open here")
+                    .also(
+                        Span::new(root_end - 1, root_end),
+                        "the root list already closed here",
+                    )
+                    .with_help(
+                        "a list above closes too early, or this `)` is extra: remove one `)`",
+                    ),
+            );
         }
         if root_done {
-            let end = text[i..].find(char::is_whitespace).map_or(n, |p| i + p).min(i + 40);
+            let end = text[i..]
+                .find(char::is_whitespace)
+                .map_or(n, |p| i + p)
+                .min(i + 40);
             return Err(Diag::error("trailing-text", "unexpected text after the end of the netlist")
                 .at(Span::new(i, end.max(i + 1).min(n)), "after the closing `)` of the root list")
                 .with_help("a netlist is one parenthesised list; the file may have been concatenated or edited by hand"));
@@ -384,15 +422,24 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
                 }
                 let idx = nodes.len() as u32;
                 link!(idx);
-                nodes.push(Node { start: i as u32, end: 0, next_kind: 0 });
+                nodes.push(Node {
+                    start: i as u32,
+                    end: 0,
+                    next_kind: 0,
+                });
                 stack.push((idx, 0));
                 i += 1;
             }
             b')' => {
                 let Some((idx, _)) = stack.pop() else {
-                    return Err(Diag::error("stray-close", "a `)` closes a list that was never opened")
-                        .at(Span::new(i, i + 1), "no matching `(`")
-                        .with_help("remove this parenthesis, or look above it for a list closed too early"));
+                    return Err(Diag::error(
+                        "stray-close",
+                        "a `)` closes a list that was never opened",
+                    )
+                    .at(Span::new(i, i + 1), "no matching `(`")
+                    .with_help(
+                        "remove this parenthesis, or look above it for a list closed too early",
+                    ));
                 };
                 nodes[idx as usize].end = (i + 1) as u32;
                 i += 1;
@@ -409,7 +456,8 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
                 loop {
                     match memchr::memchr2(b'"', b'\\', &b[j..]) {
                         None => {
-                            let line_end = text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
+                            let line_end =
+                                text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
                             return Err(Diag::error("unterminated-string", "a quoted string is never closed")
                                 .at(Span::new(start, line_end.min(start + 60).max(start + 1)), "this string has no closing `\"`")
                                 .with_help("add the closing quote; inside a string, write a quote as \\\" and a backslash as \\\\"));
@@ -430,7 +478,11 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
                 }
                 let idx = nodes.len() as u32;
                 link!(idx);
-                nodes.push(Node { start: start as u32, end: j as u32, next_kind: 2 << KIND_SHIFT });
+                nodes.push(Node {
+                    start: start as u32,
+                    end: j as u32,
+                    next_kind: 2 << KIND_SHIFT,
+                });
                 i = j;
             }
             _ => {
@@ -444,7 +496,11 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
                 }
                 let idx = nodes.len() as u32;
                 link!(idx);
-                nodes.push(Node { start: start as u32, end: j as u32, next_kind: 1 << KIND_SHIFT });
+                nodes.push(Node {
+                    start: start as u32,
+                    end: j as u32,
+                    next_kind: 1 << KIND_SHIFT,
+                });
                 i = j;
             }
         }
@@ -452,7 +508,9 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
     if let Some(&(open, _)) = stack.last() {
         let o = nodes[open as usize].start as usize;
         let depth = stack.len();
-        let head_end = text[o..].find(|ch: char| ch.is_whitespace() || ch == ')').map_or(n, |p| o + p);
+        let head_end = text[o..]
+            .find(|ch: char| ch.is_whitespace() || ch == ')')
+            .map_or(n, |p| o + p);
         let mut cut = head_end.min(o + 40);
         while !text.is_char_boundary(cut) {
             cut -= 1;
@@ -468,7 +526,10 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
         .at(Span::new(o, o + 1), "this list is never closed")
         .with_help("the file looks truncated: export the netlist again, or add the missing `)`");
         let last = text.trim_end().len().max(o + 1);
-        let last_start = text[..last].char_indices().next_back().map_or(0, |(p, _)| p);
+        let last_start = text[..last]
+            .char_indices()
+            .next_back()
+            .map_or(0, |(p, _)| p);
         d = d.also(Span::new(last_start, last), "the file ends here");
         return Err(d);
     }
@@ -479,9 +540,12 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
 }
 
 fn outside(start: usize, end: usize) -> Diag {
-    Diag::error("not-a-netlist", "text outside any list: a KiCad netlist is one parenthesised list")
-        .at(Span::new(start, end), "outside the root list")
-        .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
+    Diag::error(
+        "not-a-netlist",
+        "text outside any list: a KiCad netlist is one parenthesised list",
+    )
+    .at(Span::new(start, end), "outside the root list")
+    .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
 }
 
 #[cfg(test)]

@@ -15,7 +15,10 @@ fn err_at(text: &str) -> (String, usize, usize) {
 
 fn atoms(text: &str) -> Vec<String> {
     let t = parse(text).unwrap();
-    (0..t.len() as u32).filter(|&i| !t.is_list(i)).map(|i| t.text(i).unwrap().into_owned()).collect()
+    (0..t.len() as u32)
+        .filter(|&i| !t.is_list(i))
+        .map(|i| t.text(i).unwrap().into_owned())
+        .collect()
 }
 
 #[test]
@@ -39,8 +42,24 @@ fn reads_lists_atoms_and_strings_with_spans() {
 #[test]
 fn kicad_atoms_stay_whole_and_are_not_numbers() {
     assert_eq!(
-        atoms("(a 5ACE05B6 #PWR01 +5V /D[0] 00012345 1.50 C:\\dir\\x.sch ~{RST} $x 'q' a;b *:.-+{})"),
-        vec!["a", "5ACE05B6", "#PWR01", "+5V", "/D[0]", "00012345", "1.50", "C:\\dir\\x.sch", "~{RST}", "$x", "'q'", "a;b", "*:.-+{}"]
+        atoms(
+            "(a 5ACE05B6 #PWR01 +5V /D[0] 00012345 1.50 C:\\dir\\x.sch ~{RST} $x 'q' a;b *:.-+{})"
+        ),
+        vec![
+            "a",
+            "5ACE05B6",
+            "#PWR01",
+            "+5V",
+            "/D[0]",
+            "00012345",
+            "1.50",
+            "C:\\dir\\x.sch",
+            "~{RST}",
+            "$x",
+            "'q'",
+            "a;b",
+            "*:.-+{}"
+        ]
     );
 }
 
@@ -48,7 +67,15 @@ fn kicad_atoms_stay_whole_and_are_not_numbers() {
 fn strings_unescape_on_demand_and_keep_parens_and_semicolons() {
     assert_eq!(
         atoms(r#"(a "q\"uote" "back\\slash" "(paren) ; semi" "" "line\nbreak" "C:\\x")"#),
-        vec!["a", "q\"uote", "back\\slash", "(paren) ; semi", "", "line\nbreak", "C:\\x"]
+        vec![
+            "a",
+            "q\"uote",
+            "back\\slash",
+            "(paren) ; semi",
+            "",
+            "line\nbreak",
+            "C:\\x"
+        ]
     );
 }
 
@@ -58,7 +85,10 @@ fn bom_crlf_tabs_and_non_ascii() {
     let t = parse(text).unwrap();
     assert_eq!(t.head(0), Some("export"));
     let v = t.children(0).nth(1).unwrap();
-    assert_eq!(t.text(t.children(v).nth(1).unwrap()).unwrap(), "10 kΩ ±1% µ Räksmörgås Ж 日本\u{a0}x");
+    assert_eq!(
+        t.text(t.children(v).nth(1).unwrap()).unwrap(),
+        "10 kΩ ±1% µ Räksmörgås Ж 日本\u{a0}x"
+    );
 }
 
 #[test]
@@ -78,14 +108,29 @@ fn error_classes_with_line_and_column() {
     assert_eq!(err_at("(export (a))\n)"), ("stray-close".into(), 2, 1));
     assert_eq!(err_at("(export (a)))"), ("stray-close".into(), 1, 13));
     assert_eq!(err_at(")"), ("stray-close".into(), 1, 1));
-    assert_eq!(err_at("(export\n  (value \"abc)\n)"), ("unterminated-string".into(), 2, 10));
+    assert_eq!(
+        err_at("(export\n  (value \"abc)\n)"),
+        ("unterminated-string".into(), 2, 10)
+    );
     assert_eq!(err_at("").0, "empty-file");
     assert_eq!(err_at("  \n\t\r\n").0, "empty-file");
     assert_eq!(err_at("\u{feff}").0, "empty-file");
-    assert_eq!(err_at("(kicad_sch (version 20231120))"), ("wrong-format".into(), 1, 2));
-    assert_eq!(err_at("\n(kicad_pcb (version 20221018))"), ("wrong-format".into(), 2, 2));
-    assert_eq!(err_at("EESchema Schematic File Version 4\n"), ("wrong-format".into(), 1, 1));
-    assert_eq!(err_at("( { EESchema Netlist Version 1.1 created  x }\n"), ("wrong-format".into(), 1, 1));
+    assert_eq!(
+        err_at("(kicad_sch (version 20231120))"),
+        ("wrong-format".into(), 1, 2)
+    );
+    assert_eq!(
+        err_at("\n(kicad_pcb (version 20221018))"),
+        ("wrong-format".into(), 2, 2)
+    );
+    assert_eq!(
+        err_at("EESchema Schematic File Version 4\n"),
+        ("wrong-format".into(), 1, 1)
+    );
+    assert_eq!(
+        err_at("( { EESchema Netlist Version 1.1 created  x }\n"),
+        ("wrong-format".into(), 1, 1)
+    );
     assert_eq!(err_at("{\"export\": 1}"), ("wrong-format".into(), 1, 1));
     assert_eq!(err_at("hello"), ("not-a-netlist".into(), 1, 1));
     assert_eq!(err_at("(a) b"), ("trailing-text".into(), 1, 5));
