@@ -13,7 +13,7 @@ use std::borrow::Cow;
 use rustc_hash::FxHashMap as HashMap;
 
 use super::*;
-use crate::sexpr::{bom_len, unescape, MAX_DEPTH};
+use crate::sexpr::{bom_len, errors, unescape, MAX_DEPTH};
 
 /// The largest file the syntax tree can index; the same limit, so both readers agree.
 const MAX_LEN: usize = (1 << 30) - 1;
@@ -63,43 +63,15 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
         }
         if let Some(root_end) = root_end {
             if c == b')' {
-                return Err(Diag::error(
-                    "stray-close",
-                    "a `)` closes a list that was never opened",
-                )
-                .at(Span::new(i, i + 1), "no list is open here")
-                .also(
-                    Span::new(root_end - 1, root_end),
-                    "the root list already closed here",
-                )
-                .with_help("a list above closes too early, or this `)` is extra: remove one `)`"));
+                return Err(errors::stray_close_after_root(i, root_end));
             }
-            let end = text[i..]
-                .find(char::is_whitespace)
-                .map_or(n, |p| i + p)
-                .min(i + 40);
-            return Err(Diag::error(
-                "trailing-text",
-                "unexpected text after the end of the netlist",
-            )
-            .at(
-                Span::new(i, end.max(i + 1).min(n)),
-                "after the closing `)` of the root list",
-            )
-            .with_help(
-                "a netlist is one parenthesised list; the file may have been concatenated or edited by hand",
-            ));
+            return Err(errors::trailing_text(text, i));
         }
         any = true;
         match c {
             b'(' => {
                 if open.len() >= MAX_DEPTH {
-                    return Err(Diag::error(
-                        "too-deep",
-                        format!("lists are nested more than {MAX_DEPTH} levels deep; a KiCad netlist nests about seven"),
-                    )
-                    .at(Span::new(i, i + 1), format!("level {}", MAX_DEPTH + 1))
-                    .with_help("this file was not written by KiCad; export the netlist again"));
+                    return Err(errors::too_deep(i));
                 }
                 open.push(i as u32);
                 rd.open();
@@ -107,14 +79,7 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
             }
             b')' => {
                 let Some(start) = open.pop() else {
-                    return Err(Diag::error(
-                        "stray-close",
-                        "a `)` closes a list that was never opened",
-                    )
-                    .at(Span::new(i, i + 1), "no matching `(`")
-                    .with_help(
-                        "remove this parenthesis, or look above it for a list closed too early",
-                    ));
+                    return Err(errors::stray_close(i));
                 };
                 i += 1;
                 rd.close(Span {
@@ -127,7 +92,7 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
             }
             b'"' => {
                 if open.is_empty() {
-                    return Err(outside(i, i + 1));
+                    return Err(errors::outside(i, i + 1));
                 }
                 let start = i;
                 let mut j = i + 1;
@@ -140,13 +105,7 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
                         None => memchr::memchr2(b'"', b'\\', &b[near..]).map(|p| near + p),
                     };
                     match hit {
-                        None => {
-                            let line_end =
-                                text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
-                            return Err(Diag::error("unterminated-string", "a quoted string is never closed")
-                                .at(Span::new(start, line_end.min(start + 60).max(start + 1)), "this string has no closing `\"`")
-                                .with_help("add the closing quote; inside a string, write a quote as \\\" and a backslash as \\\\"));
-                        }
+                        None => return Err(errors::unterminated_string(text, start)),
                         Some(at) => {
                             if b[at] == b'\\' {
                                 escaped = true;
@@ -168,7 +127,7 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
                     j += 1;
                 }
                 if open.is_empty() {
-                    return Err(outside(start, j));
+                    return Err(errors::outside(start, j));
                 }
                 rd.token(start, j, Tok::Atom);
                 i = j;
@@ -176,47 +135,12 @@ pub fn read(text: &str) -> Result<Netlist<'_>, Diag> {
         }
     }
     if let Some(&o) = open.last() {
-        let o = o as usize;
-        let depth = open.len();
-        let head_end = text[o..]
-            .find(|ch: char| ch.is_whitespace() || ch == ')')
-            .map_or(n, |p| o + p);
-        // at most 40 bytes of the head, cut on a character boundary
-        let mut cut = head_end.min(o + 40);
-        while !text.is_char_boundary(cut) {
-            cut -= 1;
-        }
-        let head = &text[o..cut];
-        let mut d = Diag::error(
-            "unclosed-list",
-            format!(
-                "the file ends with {depth} list{} still open; the innermost, `{head}`, is never closed",
-                if depth == 1 { "" } else { "s" }
-            ),
-        )
-        .at(Span::new(o, o + 1), "this list is never closed")
-        .with_help("the file looks truncated: export the netlist again, or add the missing `)`");
-        let last = text.trim_end().len().max(o + 1);
-        let last_start = text[..last]
-            .char_indices()
-            .next_back()
-            .map_or(0, |(p, _)| p);
-        d = d.also(Span::new(last_start, last), "the file ends here");
-        return Err(d);
+        return Err(errors::unclosed_list(text, o as usize, open.len()));
     }
     if !any {
-        return Err(Diag::error("empty-file", "the file holds no S-expression"));
+        return Err(errors::no_expression());
     }
     rd.finish()
-}
-
-fn outside(start: usize, end: usize) -> Diag {
-    Diag::error(
-        "not-a-netlist",
-        "text outside any list: a KiCad netlist is one parenthesised list",
-    )
-    .at(Span::new(start, end), "outside the root list")
-    .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
 }
 
 /// A token that is not a parenthesis.

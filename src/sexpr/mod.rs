@@ -20,6 +20,8 @@ use crate::source::Span;
 /// Lists nested deeper than this are refused. KiCad netlists nest about seven levels.
 pub const MAX_DEPTH: usize = 1000;
 
+pub(crate) mod errors;
+
 /// The kind of a syntax node.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Kind {
@@ -388,37 +390,15 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
             continue;
         }
         if root_done && c == b')' {
-            let root_end = nodes[0].end as usize;
-            return Err(
-                Diag::error("stray-close", "a `)` closes a list that was never opened")
-                    .at(Span::new(i, i + 1), "no list is open here")
-                    .also(
-                        Span::new(root_end - 1, root_end),
-                        "the root list already closed here",
-                    )
-                    .with_help(
-                        "a list above closes too early, or this `)` is extra: remove one `)`",
-                    ),
-            );
+            return Err(errors::stray_close_after_root(i, nodes[0].end as usize));
         }
         if root_done {
-            let end = text[i..]
-                .find(char::is_whitespace)
-                .map_or(n, |p| i + p)
-                .min(i + 40);
-            return Err(Diag::error("trailing-text", "unexpected text after the end of the netlist")
-                .at(Span::new(i, end.max(i + 1).min(n)), "after the closing `)` of the root list")
-                .with_help("a netlist is one parenthesised list; the file may have been concatenated or edited by hand"));
+            return Err(errors::trailing_text(text, i));
         }
         match c {
             b'(' => {
                 if stack.len() >= MAX_DEPTH {
-                    return Err(Diag::error(
-                        "too-deep",
-                        format!("lists are nested more than {MAX_DEPTH} levels deep; a KiCad netlist nests about seven"),
-                    )
-                    .at(Span::new(i, i + 1), format!("level {}", MAX_DEPTH + 1))
-                    .with_help("this file was not written by KiCad; export the netlist again"));
+                    return Err(errors::too_deep(i));
                 }
                 let idx = nodes.len() as u32;
                 link!(idx);
@@ -432,14 +412,7 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
             }
             b')' => {
                 let Some((idx, _)) = stack.pop() else {
-                    return Err(Diag::error(
-                        "stray-close",
-                        "a `)` closes a list that was never opened",
-                    )
-                    .at(Span::new(i, i + 1), "no matching `(`")
-                    .with_help(
-                        "remove this parenthesis, or look above it for a list closed too early",
-                    ));
+                    return Err(errors::stray_close(i));
                 };
                 nodes[idx as usize].end = (i + 1) as u32;
                 i += 1;
@@ -449,19 +422,13 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
             }
             b'"' => {
                 if stack.is_empty() {
-                    return Err(outside(i, i + 1));
+                    return Err(errors::outside(i, i + 1));
                 }
                 let start = i;
                 let mut j = i + 1;
                 loop {
                     match memchr::memchr2(b'"', b'\\', &b[j..]) {
-                        None => {
-                            let line_end =
-                                text[start..].find(['\n', '\r']).map_or(n, |p| start + p);
-                            return Err(Diag::error("unterminated-string", "a quoted string is never closed")
-                                .at(Span::new(start, line_end.min(start + 60).max(start + 1)), "this string has no closing `\"`")
-                                .with_help("add the closing quote; inside a string, write a quote as \\\" and a backslash as \\\\"));
-                        }
+                        None => return Err(errors::unterminated_string(text, start)),
                         Some(p) => {
                             let at = j + p;
                             if b[at] == b'\\' {
@@ -492,7 +459,7 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
                     j += 1;
                 }
                 if stack.is_empty() {
-                    return Err(outside(start, j));
+                    return Err(errors::outside(start, j));
                 }
                 let idx = nodes.len() as u32;
                 link!(idx);
@@ -506,46 +473,16 @@ pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
         }
     }
     if let Some(&(open, _)) = stack.last() {
-        let o = nodes[open as usize].start as usize;
-        let depth = stack.len();
-        let head_end = text[o..]
-            .find(|ch: char| ch.is_whitespace() || ch == ')')
-            .map_or(n, |p| o + p);
-        let mut cut = head_end.min(o + 40);
-        while !text.is_char_boundary(cut) {
-            cut -= 1;
-        }
-        let head = &text[o..cut];
-        let mut d = Diag::error(
-            "unclosed-list",
-            format!(
-                "the file ends with {depth} list{} still open; the innermost, `{head}`, is never closed",
-                if depth == 1 { "" } else { "s" }
-            ),
-        )
-        .at(Span::new(o, o + 1), "this list is never closed")
-        .with_help("the file looks truncated: export the netlist again, or add the missing `)`");
-        let last = text.trim_end().len().max(o + 1);
-        let last_start = text[..last]
-            .char_indices()
-            .next_back()
-            .map_or(0, |(p, _)| p);
-        d = d.also(Span::new(last_start, last), "the file ends here");
-        return Err(d);
+        return Err(errors::unclosed_list(
+            text,
+            nodes[open as usize].start as usize,
+            stack.len(),
+        ));
     }
     if nodes.is_empty() {
-        return Err(Diag::error("empty-file", "the file holds no S-expression"));
+        return Err(errors::no_expression());
     }
     Ok(Tree { text, nodes })
-}
-
-fn outside(start: usize, end: usize) -> Diag {
-    Diag::error(
-        "not-a-netlist",
-        "text outside any list: a KiCad netlist is one parenthesised list",
-    )
-    .at(Span::new(start, end), "outside the root list")
-    .with_help("give netmargin the `.net` file KiCad exports (File > Export > Netlist)")
 }
 
 #[cfg(test)]
