@@ -390,3 +390,110 @@ fn a_rail_net_holding_only_the_pull_resistor_still_counts() {
     assert!(codes.contains(&"ttl-pull-down-too-large"), "{codes:?}");
     assert!(!codes.contains(&"floating-ttl-input"), "{codes:?}");
 }
+
+/// A bussed resistor network (`RN1`, `4K7x4`, common pin on +5V) is four pull-ups, one per
+/// element: each open-collector net gets 4.7 kOhm. With one 74LS load the window is
+/// R_min = (5.00 - 0.5) / (8 mA - 0.4 mA) = 592 Ohm and R_max = (5.00 - 2.0) / (20 uA + 100 uA)
+/// = 25 kOhm (TI SDLS025B input figures; 74LS05 off-state leakage 0.1 mA, NTE74LS05), so
+/// 4.7 kOhm is inside and no net is reported as missing its pull-up.
+#[test]
+fn a_bussed_resistor_network_is_one_pull_up_per_element() {
+    let mut nets = String::new();
+    for k in 0..4 {
+        let out = [2, 4, 6, 8][k];
+        let inp = [1, 2, 4, 5][k];
+        nets.push_str(&format!(
+            "    (net (code \"{c}\") (name \"/OC{k}\") (node (ref \"U1\") (pin \"{out}\")) (node (ref \"RN1\") (pin \"{p}\")) (node (ref \"U2\") (pin \"{inp}\")))\n",
+            c = k + 10,
+            p = k + 2
+        ));
+    }
+    let text = format!(
+        r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74LS05") (libsource (lib "x") (part "74LS05")))
+    (comp (ref "U2") (value "74LS00") (libsource (lib "x") (part "74LS00")))
+    (comp (ref "RN1") (value "4K7x4") (libsource (lib "x") (part "RN5"))))
+  (libparts
+    (libpart (lib "x") (part "RN5")
+      (pins (pin (num "1") (name "C") (type "passive")) (pin (num "2") (name "R1") (type "passive")) (pin (num "3") (name "R2") (type "passive"))
+            (pin (num "4") (name "R3") (type "passive")) (pin (num "5") (name "R4") (type "passive")))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "RN1") (pin "1")) (node (ref "U1") (pin "14")) (node (ref "U2") (pin "14")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "U2") (pin "7")))
+{nets}))
+"#
+    );
+    let src = netmargin::source::SourceFile::new("rn.net", text.clone());
+    let rules = netmargin::classify::classifier::Rules::builtin();
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = netmargin::classify::classifier::classify(&nl, &rules);
+    let cx = netmargin::circuit::build(&nl, &cl, &rules, Default::default());
+    for k in 0..4 {
+        let net = nl.net_by_name(&format!("/OC{k}")).unwrap();
+        let pulls = &cx.nets[net].pulls;
+        assert_eq!(pulls.len(), 1, "/OC{k}: {pulls:?}");
+        assert!(
+            (pulls[0].ohms - 4700.0).abs() < 1e-9
+                && pulls[0].up
+                && (pulls[0].rail_volts - 5.0).abs() < 1e-12
+        );
+        let w = netmargin::circuit::budget::net_budget(&cx, net)
+            .window
+            .expect("an open-collector window");
+        assert!((w.r_min - 4.5 / 7.6e-3).abs() < 1e-6, "{}", w.r_min);
+        assert!(
+            (w.r_max.unwrap() - 3.0 / 120e-6).abs() < 1e-6,
+            "{:?}",
+            w.r_max
+        );
+    }
+    let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
+    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_str()).collect();
+    assert!(
+        !codes.contains(&"missing-pull-up") && !codes.contains(&"pull-up-out-of-range"),
+        "{codes:?}"
+    );
+}
+
+/// An isolated network (a DIP-8 of four separate resistors, pins 1-8, 2-7, 3-6, 4-5; common
+/// practice for the package) with pins 5 to 8 on +5V is four pull-ups of its element value.
+#[test]
+fn an_isolated_resistor_network_pairs_pins_across_the_package() {
+    let mut nets = String::new();
+    for k in 0..4 {
+        nets.push_str(&format!(
+            "    (net (code \"{c}\") (name \"/IN{k}\") (node (ref \"RN1\") (pin \"{p}\")) (node (ref \"U1\") (pin \"{inp}\")))\n",
+            c = k + 10,
+            p = k + 1,
+            inp = [1, 2, 4, 5][k]
+        ));
+    }
+    let text = format!(
+        r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74HC00") (libsource (lib "x") (part "74HC00")))
+    (comp (ref "RN1") (value "10k 4x") (libsource (lib "x") (part "RN8"))))
+  (libparts
+    (libpart (lib "x") (part "RN8")
+      (pins (pin (num "1") (type "passive")) (pin (num "2") (type "passive")) (pin (num "3") (type "passive")) (pin (num "4") (type "passive"))
+            (pin (num "5") (type "passive")) (pin (num "6") (type "passive")) (pin (num "7") (type "passive")) (pin (num "8") (type "passive")))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "RN1") (pin "5")) (node (ref "RN1") (pin "6")) (node (ref "RN1") (pin "7")) (node (ref "RN1") (pin "8")) (node (ref "U1") (pin "14")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")))
+{nets}))
+"#
+    );
+    let rules = netmargin::classify::classifier::Rules::builtin();
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = netmargin::classify::classifier::classify(&nl, &rules);
+    let cx = netmargin::circuit::build(&nl, &cl, &rules, Default::default());
+    for k in 0..4 {
+        let net = nl.net_by_name(&format!("/IN{k}")).unwrap();
+        let pulls = &cx.nets[net].pulls;
+        assert_eq!(pulls.len(), 1, "/IN{k}: {pulls:?}");
+        assert!((pulls[0].ohms - 10e3).abs() < 1e-9 && pulls[0].up);
+    }
+}
