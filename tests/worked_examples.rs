@@ -497,3 +497,43 @@ fn an_isolated_resistor_network_pairs_pins_across_the_package() {
         assert!((pulls[0].ohms - 10e3).abs() < 1e-9 && pulls[0].up);
     }
 }
+
+/// With a 10 % rail tolerance a 74HC input's VIH is checked at the top of its supply: at
+/// 5.50 V it is 3.85 V (onsemi MM74HC04 data sheet: "the VIH value at 5.5 V is 3.85 V"), so a
+/// 74LS high of 2.70 V (TI SDLS025B) is short by 1.15 V; the message says which supply it used.
+#[test]
+fn a_rail_tolerance_takes_a_cmos_vih_at_the_top_of_the_supply() {
+    let text = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74LS04") (libsource (lib "x") (part "74LS04")))
+    (comp (ref "U2") (value "74HC00") (libsource (lib "x") (part "74HC00"))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "U2") (pin "14")) (node (ref "U2") (pin "2")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "U2") (pin "7")) (node (ref "U1") (pin "1")))
+    (net (code "3") (name "/X") (node (ref "U1") (pin "2")) (node (ref "U2") (pin "1")))))
+"#;
+    let src = netmargin::source::SourceFile::new("tol.net", text);
+    let rules = netmargin::classify::classifier::Rules::builtin();
+    let mut opts = netmargin::pipeline::RunOptions::default();
+    let msg = |opts: &netmargin::pipeline::RunOptions| {
+        let out = netmargin::pipeline::check_source(&src, &rules, opts).unwrap();
+        out.diags
+            .iter()
+            .find(|d| d.code == "ttl-high-into-cmos")
+            .map(|d| d.message.clone())
+            .expect("the finding")
+    };
+    let nominal = msg(&opts);
+    assert!(
+        nominal.contains("needs 3.50 V") && nominal.contains("short by 0.80 V"),
+        "{nominal}"
+    );
+    opts.model.rail_tolerance = 0.10;
+    let worst = msg(&opts);
+    assert!(worst.contains("needs 3.85 V"), "{worst}");
+    assert!(
+        worst.contains("(VIH taken at 5.50 V, the top of the rail tolerance)"),
+        "{worst}"
+    );
+    assert!(worst.contains("short by 1.15 V"), "{worst}");
+}

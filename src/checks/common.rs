@@ -180,3 +180,14 @@ mod tests {
         assert_eq!(agree(1, "floats", "float"), "floats");
     }
 }
+
+/// ` (VIH taken at 5.25 V, the top of the rail tolerance)` when a tolerance moved the load's
+/// threshold; empty otherwise.
+pub fn vih_supply_note(m: &crate::circuit::budget::LoadMargin) -> String {
+    m.thresholds_at.map_or(String::new(), |(hi, _)| {
+        format!(
+            " (VIH taken at {}, the top of the rail tolerance)",
+            crate::values::format_volts(hi)
+        )
+    })
+}

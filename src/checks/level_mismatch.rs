@@ -79,10 +79,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                             "level-mismatch",
                             sev,
                             format!(
-                                "{} needs {} for a high at {}; {} {} {}: {gap}",
+                                "{} needs {} for a high at {}{}; {} {} {}: {gap}",
                                 cx.describe(l.at),
                                 format_volts(m.vih),
                                 cx.supply_text(l.at.comp),
+                                super::common::vih_supply_note(m),
                                 cx.describe(d.at),
                                 how,
                                 format_volts(high)
@@ -106,9 +107,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         Diag::error(
                             "level-mismatch",
                             format!(
-                                "{} reads a low only below {}; {} guarantees {} at its load: short by {}",
+                                "{} reads a low only below {}{}; {} guarantees {} at its load: short by {}",
                                 cx.describe(l.at),
                                 format_volts(m.vil),
+                                m.thresholds_at.map_or(String::new(), |(_, lo)| format!(
+                                    " (VIL taken at {}, the bottom of the rail tolerance)",
+                                    format_volts(lo)
+                                )),
                                 cx.describe(d.at),
                                 format_volts(low),
                                 format_volts(-lm)

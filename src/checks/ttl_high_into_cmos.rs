@@ -129,10 +129,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let diag = Diag::error(
                 "ttl-high-into-cmos",
                 format!(
-                    "{} needs {} for a high at {}; {} guarantees {}: short by {}",
+                    "{} needs {} for a high at {}{}; {} guarantees {}: short by {}",
                     cx.describe(l.at),
                     format_volts(m.vih),
                     cx.supply_text(l.at.comp),
+                    super::common::vih_supply_note(m),
                     cx.describe(d.at),
                     format_volts(high),
                     format_volts(-hm)

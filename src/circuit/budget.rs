@@ -5,6 +5,7 @@
 //! recomputes them.
 
 use super::{Circuit, PinRef};
+use crate::classify::family::Drive;
 use crate::classify::PinRole;
 use crate::values::format_ohms;
 
@@ -78,6 +79,10 @@ pub struct LoadMargin {
     pub high_margin: Option<f64>,
     /// VIL - low level (negative: short).
     pub low_margin: Option<f64>,
+    /// With a rail tolerance, a CMOS load's thresholds are taken at the worst end of its
+    /// supply (VIH at the top, VIL at the bottom): (VIH's supply, VIL's supply). `None` when
+    /// they are the nominal supply's.
+    pub thresholds_at: Option<(f64, f64)>,
 }
 
 /// The resistor window for an open-collector net.
@@ -291,13 +296,30 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 continue;
             }
             let Some(ll) = &l.levels else { continue };
+            // a CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is
+            // checked at the top of it and VIL at the bottom (TTL thresholds do not move)
+            let t = cx.opts.rail_tolerance.abs();
+            let scaled = match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
+                (Some(f), Some(s)) if t > 0.0 && f.is_cmos_input() => {
+                    let (lo, hi) = cx.rail_range(s.vcc);
+                    Some((
+                        f.levels(hi, Drive::Standard).vih_min,
+                        f.levels(lo, Drive::Standard).vil_max,
+                        hi,
+                        lo,
+                    ))
+                }
+                _ => None,
+            };
+            let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
             out.margins.push(LoadMargin {
                 driver: db.driver,
                 load: li,
-                vih: ll.vih_min,
-                vil: ll.vil_max,
-                high_margin: db.high_level.map(|h| h - ll.vih_min),
-                low_margin: db.low_level.map(|v| ll.vil_max - v),
+                vih,
+                vil,
+                high_margin: db.high_level.map(|h| h - vih),
+                low_margin: db.low_level.map(|v| vil - v),
+                thresholds_at: scaled.map(|(_, _, hi, lo)| (hi, lo)),
             });
         }
     }
