@@ -87,25 +87,29 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             Ok(0)
         }
         Command::Parts(args) => {
-            let f = pipeline::read_file(&args.path, &opts);
             let rules = netmargin::classify::classifier::Rules::builtin();
             let mut out = std::io::stdout().lock();
-            if f.fatal.is_some() {
+            let fail = |f: &pipeline::FileOutcome| -> std::io::Result<u8> {
                 let stderr = std::io::stderr();
                 let eh = human::handler(HumanStyle {
                     color: color_on(cli.global.color, stderr.is_terminal()),
                     width: 100,
                 });
-                human::write_file(&mut stderr.lock(), &eh, &f)?;
-                return Ok(2);
-            }
-            let source = f.source.as_ref().expect("read");
-            let tree = netmargin::sexpr::parse(source.text()).expect("parsed once already");
-            let nl = netmargin::netlist::build(&tree).expect("built once already");
+                human::write_file(&mut stderr.lock(), &eh, f)?;
+                Ok(2)
+            };
+            let source = match pipeline::open_source(&args.path, &opts) {
+                Ok(s) => s,
+                Err(f) => return fail(&f),
+            };
+            let nl = match netmargin::netlist::read(source.text()) {
+                Ok(nl) => nl,
+                Err(d) => return fail(&pipeline::fatal_outcome(&source, d)),
+            };
             let cl = netmargin::classify::classifier::classify(&nl, &rules);
             netmargin::report::parts::write_parts(
                 &mut out,
-                &f.name,
+                source.name(),
                 &nl,
                 &cl,
                 args.format == netmargin::cli::ListFormat::Json,
@@ -127,20 +131,24 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             Ok(0)
         }
         Command::Net(args) => {
-            let f = pipeline::read_file(&args.path, &opts);
-            if f.fatal.is_some() {
+            let fail = |f: &pipeline::FileOutcome| -> std::io::Result<u8> {
                 let stderr = std::io::stderr();
                 let eh = human::handler(HumanStyle {
                     color: color_on(cli.global.color, stderr.is_terminal()),
                     width: 100,
                 });
-                human::write_file(&mut stderr.lock(), &eh, &f)?;
-                return Ok(2);
-            }
+                human::write_file(&mut stderr.lock(), &eh, f)?;
+                Ok(2)
+            };
+            let source = match pipeline::open_source(&args.path, &opts) {
+                Ok(s) => s,
+                Err(f) => return fail(&f),
+            };
+            let nl = match netmargin::netlist::read(source.text()) {
+                Ok(nl) => nl,
+                Err(d) => return fail(&pipeline::fatal_outcome(&source, d)),
+            };
             let rules = netmargin::classify::classifier::Rules::builtin();
-            let source = f.source.as_ref().expect("read");
-            let tree = netmargin::sexpr::parse(source.text()).expect("parsed once already");
-            let nl = netmargin::netlist::build(&tree).expect("built once already");
             let cl = netmargin::classify::classifier::classify(&nl, &rules);
             let model = netmargin::circuit::ModelOptions {
                 rails: args.rail.clone(),
@@ -152,7 +160,7 @@ fn run(cli: Cli) -> std::io::Result<u8> {
                 nl.nets[i].name.as_str() == args.net
                     || nl.nets[i].name.as_str().trim_start_matches('/') == want
             }) else {
-                eprintln!("netmargin: no net `{}` in {}", args.net, f.name);
+                eprintln!("netmargin: no net `{}` in {}", args.net, source.name());
                 return Ok(2);
             };
             let mut out = std::io::stdout().lock();

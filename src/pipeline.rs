@@ -121,6 +121,47 @@ pub struct RunOptions {
     pub checks: CheckOptions,
 }
 
+/// Reads a file as far as a source that looks like a netlist (size limit, UTF-8, the usual
+/// wrong formats), for commands that model it themselves (`parts`, `net`). `Err` is an
+/// outcome carrying the fatal diagnostic, to be shown like `check` shows it.
+pub fn open_source(path: &str, opts: &ReadOptions) -> Result<SourceFile, Box<FileOutcome>> {
+    let name = if path == "-" {
+        "<stdin>".to_string()
+    } else {
+        path.to_string()
+    };
+    let fail = |fatal: Diag, source: Option<SourceFile>| {
+        Box::new(FileOutcome {
+            name: name.clone(),
+            source,
+            fatal: Some(fatal),
+            diags: Vec::new(),
+            summary: Summary::default(),
+            coverage: None,
+            waived: 0,
+        })
+    };
+    let bytes = read_bytes(path, opts).map_err(|d| fail(d, None))?;
+    let source = input::load(&name, bytes).map_err(|e| fail(e.diag, Some(e.source)))?;
+    if let Some(d) = sexpr::sniff(source.text()) {
+        return Err(fail(d, Some(source)));
+    }
+    Ok(source)
+}
+
+/// A fatal outcome for `source` (a netlist that could not be modelled).
+pub fn fatal_outcome(source: &SourceFile, fatal: Diag) -> FileOutcome {
+    FileOutcome {
+        name: source.name().to_string(),
+        source: Some(source.clone()),
+        fatal: Some(fatal),
+        diags: Vec::new(),
+        summary: Summary::default(),
+        coverage: None,
+        waived: 0,
+    }
+}
+
 /// Reads and checks one file with the shipped rules and default options.
 pub fn read_file(path: &str, opts: &ReadOptions) -> FileOutcome {
     let rules = Rules::builtin();
