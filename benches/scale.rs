@@ -115,10 +115,7 @@ fn small_files(dir: &Path, n: usize) -> (Vec<PathBuf>, u64) {
     let mut files = Vec::with_capacity(n);
     let mut bytes = 0;
     for i in 0..n {
-        let mut text = base.clone();
-        for p in ["U", "V", "R", "C"] {
-            text = text.replace(&format!("(ref \"{p}"), &format!("(ref \"{p}{i}_"));
-        }
+        let text = netmargin::synth::variant(&base, i);
         let path = dir.join(format!("board-{i:04}.net"));
         std::fs::write(&path, &text).expect("bench file");
         bytes += text.len() as u64;

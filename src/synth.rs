@@ -102,6 +102,16 @@ pub fn netlist(target_bytes: usize) -> String {
     s
 }
 
+/// The `i`-th variant of a netlist from [`netlist`]: every reference renamed (`U7` ->
+/// `U3_7`), so a folder of them holds no two files with the same text.
+pub fn variant(base: &str, i: usize) -> String {
+    let mut text = base.to_string();
+    for p in ["U", "V", "R", "C"] {
+        text = text.replace(&format!("(ref \"{p}"), &format!("(ref \"{p}{i}_"));
+    }
+    text
+}
+
 #[cfg(test)]
 mod tests {
     #[test]
@@ -118,5 +128,13 @@ mod tests {
         let s = nl.summary();
         assert_eq!(s.parts % 4, 0);
         assert_eq!(s.pins, s.parts / 4 * 32);
+        // a variant renames every reference and keeps the board
+        let v = super::variant(&text, 7);
+        assert_ne!(v, text);
+        assert!(v.contains("(ref \"U7_0\")") && !v.contains("(ref \"U0\")"));
+        let t2 = crate::sexpr::parse(&v).unwrap();
+        let nl2 = crate::netlist::build(&t2).unwrap();
+        assert!(nl2.diagnostics.is_empty());
+        assert_eq!(nl2.summary(), s);
     }
 }
