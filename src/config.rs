@@ -490,29 +490,6 @@ impl Config {
             }),
         }
     }
-
-    /// Applies the check settings to options.
-    pub fn apply(&self, run: &mut crate::pipeline::RunOptions) {
-        for r in &self.rails {
-            run.model.rails.push(r.value.clone());
-        }
-        if let Some(t) = &self.rail_tolerance {
-            run.model.rail_tolerance = t.value;
-        }
-        if let Some(d) = &self.derating {
-            run.checks.derating = d.value;
-        }
-        if let Some(m) = &self.min_margin_v {
-            run.checks.min_margin_v = m.value;
-        }
-        for c in &self.checks {
-            match c.value.1 {
-                Setting::Off => run.checks.disabled.push(c.value.0.clone()),
-                Setting::Severity(s) => run.checks.severity.push((c.value.0.clone(), s)),
-            }
-        }
-        run.model.connector_families = self.connectors.iter().map(|c| c.value.clone()).collect();
-    }
 }
 
 fn rule_errors(src: &SourceFile, errs: Vec<crate::classify::RuleError>) -> ConfigError {

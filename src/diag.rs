@@ -298,4 +298,16 @@ pub static INPUT_CODES: &[(&str, &str)] = &[
         "unused-rule",
         "a project mapping entry that matched nothing in the run",
     ),
+    (
+        "baseline",
+        "the baseline file cannot be read or is not a netmargin baseline",
+    ),
+    (
+        "stale-baseline",
+        "baseline entries that match no finding any more",
+    ),
+    (
+        "no-such-net",
+        "a net named on the command line is not in the netlist",
+    ),
 ];

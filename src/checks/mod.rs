@@ -141,7 +141,8 @@ impl Default for CheckOptions {
 /// What a check sees: the circuit, every net's budget, the options.
 pub struct Context<'c, 'n, 'a> {
     pub cx: &'c Circuit<'n, 'a>,
-    pub budgets: Vec<NetBudget>,
+    /// Every net's budget, by net index, computed once by the caller (`circuit::budget`).
+    pub budgets: &'c [NetBudget],
     pub opts: &'c CheckOptions,
 }
 
@@ -171,9 +172,14 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
     ]
 }
 
-/// Runs every enabled check and returns the findings in file order.
-pub fn run_all(cx: &Circuit<'_, '_>, opts: &CheckOptions) -> Vec<Diag> {
-    let budgets = (0..cx.nets.len()).map(|n| net_budget(cx, n)).collect();
+/// Every net's budget, by net index: what [`run_all`] reads.
+pub fn budgets(cx: &Circuit<'_, '_>) -> Vec<NetBudget> {
+    (0..cx.nets.len()).map(|n| net_budget(cx, n)).collect()
+}
+
+/// Runs every enabled check on the circuit and its budgets (from [`budgets`], computed
+/// once) and returns the findings in file order.
+pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> Vec<Diag> {
     let ctx = Context { cx, budgets, opts };
     let mut out = Vec::new();
     for (id, f) in checks() {

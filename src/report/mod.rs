@@ -25,7 +25,7 @@ pub mod starter;
 use std::io::{self, Write};
 use std::path::{Component, Path, PathBuf};
 
-use clap::{Args, ValueEnum};
+use clap::ValueEnum;
 
 use crate::diag::{Diag, Label, Severity};
 use crate::pipeline::FileOutcome;
@@ -49,39 +49,6 @@ pub enum Format {
     Sarif,
     /// Annotation lines (`::error file=...::message`) for CI workflow logs
     Github,
-}
-
-/// The command-line options of the reporters (flattened into `check`).
-#[derive(Debug, Clone, Args)]
-pub struct ReportArgs {
-    /// Output format
-    #[arg(long, value_enum, default_value_t = Format::Human)]
-    pub format: Format,
-    /// Print the findings only: no per-file or summary lines
-    #[arg(long, short = 'q')]
-    pub quiet: bool,
-    /// Directory that SARIF and annotation paths are relative to [default: the current directory]
-    #[arg(long, value_name = "DIR")]
-    pub root: Option<PathBuf>,
-}
-
-impl ReportArgs {
-    /// The options for [`write_report`]; `color` and `width` only shape the human format.
-    pub fn options(&self, color: bool, width: usize) -> io::Result<ReportOptions> {
-        let cwd = std::env::current_dir()?;
-        let root = match &self.root {
-            Some(r) => cwd.join(r),
-            None => cwd.clone(),
-        };
-        Ok(ReportOptions {
-            format: self.format,
-            quiet: self.quiet,
-            color,
-            width,
-            root,
-            cwd,
-        })
-    }
 }
 
 /// Everything a reporter needs to know besides the outcomes.
