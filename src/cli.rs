@@ -94,11 +94,11 @@ pub struct BaselineArgs {
 /// The options that shape a check, shared by `check`, `baseline` and `config --show`.
 #[derive(Debug, Clone, Default, Args)]
 pub struct SettingsArgs {
-    /// Run only this check (repeatable)
-    #[arg(long, value_name = "CHECK")]
+    /// Run only these checks (repeatable, or a comma-separated list: `--only a,b`)
+    #[arg(long, value_name = "CHECK", value_delimiter = ',')]
     pub only: Vec<String>,
-    /// Turn this check off (repeatable)
-    #[arg(long, value_name = "CHECK")]
+    /// Turn these checks off (repeatable, or a comma-separated list)
+    #[arg(long, value_name = "CHECK", value_delimiter = ',')]
     pub disable: Vec<String>,
     /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
     #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
@@ -288,6 +288,7 @@ impl ReportArgs {
             width,
             root,
             cwd,
+            netlists: None,
         })
     }
 }

@@ -56,13 +56,19 @@ pub struct Run {
 /// Runs `check`: the outcomes in order (netlists, then configuration and baseline files
 /// that have something to say) and whether a configuration or the baseline could not be
 /// used. With `--baseline`, the baseline's findings are taken out after the waivers.
-pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
+pub fn check(args: &CheckArgs, read: &ReadOptions) -> Run {
     let cwd = std::env::current_dir().unwrap_or_else(|_| PathBuf::from("."));
     let baseline = match &args.baseline {
         None => None,
         Some(p) => match crate::baseline::load(p, &cwd) {
             Ok(b) => Some(b),
-            Err(e) => return (vec![error_outcome(e)], true),
+            Err(e) => {
+                return Run {
+                    outcomes: vec![error_outcome(e)],
+                    netlists: 0,
+                    config_failed: true,
+                }
+            }
         },
     };
     let mut run = check_paths(&args.paths, &args.settings, read);
@@ -70,7 +76,7 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
         let (_, stale) = b.apply(&mut run.outcomes[..run.netlists], &cwd, args.verbose);
         run.outcomes.extend(stale);
     }
-    (run.outcomes, run.config_failed)
+    run
 }
 
 /// The outcome that shows a configuration's (or a baseline's) errors.
@@ -280,14 +286,15 @@ pub fn command(
         );
         return Ok(if args.require_files { 2 } else { 0 });
     }
-    let (outcomes, config_failed) = check(args, read);
-    let code = exit_code(&outcomes, config_failed, args.fail_on.severity());
+    let run = check(args, read);
+    let code = exit_code(&run.outcomes, run.config_failed, args.fail_on.severity());
     let stdout = std::io::stdout();
     let color = super::color_on(color, std::io::IsTerminal::is_terminal(&stdout));
-    let ropts = args.report.options(color, 100)?;
+    let mut ropts = args.report.options(color, 100)?;
+    ropts.netlists = Some(run.netlists);
     let mut out = stdout.lock();
     let written =
-        crate::report::write_report(&ropts, &outcomes, &mut out).and_then(|()| out.flush());
+        crate::report::write_report(&ropts, &run.outcomes, &mut out).and_then(|()| out.flush());
     match written {
         // the reader stopped reading (`| head`): the run is complete, its code stands
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(code),

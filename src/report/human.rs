@@ -168,7 +168,11 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
         write_file_with(out, &h, f, opts.quiet)?;
     }
     if !opts.quiet {
-        writeln!(out, "{}", run_summary(&Totals::of(files)))?;
+        writeln!(
+            out,
+            "{}",
+            run_summary(&Totals::of_run(files, opts.netlists))
+        )?;
     }
     Ok(())
 }

@@ -64,6 +64,9 @@ pub struct ReportOptions {
     pub root: PathBuf,
     /// Absolute directory that relative input paths are relative to (the current directory).
     pub cwd: PathBuf,
+    /// How many outcomes, from the start, are netlists (the rest are configuration and
+    /// baseline files with something to say, not counted as checked files); `None`: all.
+    pub netlists: Option<usize>,
 }
 
 impl ReportOptions {
@@ -77,6 +80,7 @@ impl ReportOptions {
             width: 100,
             root: dir.clone(),
             cwd: dir,
+            netlists: None,
         }
     }
 }
@@ -327,12 +331,20 @@ pub struct Totals {
 
 impl Totals {
     pub fn of(files: &[FileOutcome]) -> Totals {
+        Totals::of_run(files, None)
+    }
+
+    /// The totals of a run whose first `netlists` outcomes are netlists (`None`: all): the
+    /// others (a configuration's stale waivers, a baseline's notes) add their findings but are
+    /// not counted as files.
+    pub fn of_run(files: &[FileOutcome], netlists: Option<usize>) -> Totals {
+        let n = netlists.unwrap_or(files.len()).min(files.len());
         let mut t = Totals {
-            files: files.len(),
+            files: n,
             ..Totals::default()
         };
-        for f in files {
-            if f.fatal.is_some() {
+        for (i, f) in files.iter().enumerate() {
+            if f.fatal.is_some() && i < n {
                 t.not_checked += 1;
             }
             t.parts += f.summary.parts;
