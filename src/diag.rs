@@ -195,7 +195,8 @@ impl Rendered<'_> {
 
 impl Diagnostic for Rendered<'_> {
     fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        Some(Box::new(&self.diag.code))
+        // an excerpt continuing a finding carries no code of its own
+        (!self.diag.code.is_empty()).then(|| Box::new(&self.diag.code) as Box<dyn fmt::Display>)
     }
     fn severity(&self) -> Option<miette::Severity> {
         Some(match self.diag.severity {
