@@ -26,7 +26,8 @@ fn is_unsafe(c: char) -> bool {
 }
 
 /// The names closest to `want` (case-insensitive edit distance, within a third of its
-/// length and at least 2), best first, at most `n`: for "did you mean" hints.
+/// length and at least 2): those at the smallest distance, at most `n`, for "did you mean"
+/// hints.
 pub fn closest<'a>(want: &str, names: impl IntoIterator<Item = &'a str>, n: usize) -> Vec<String> {
     let w = want.trim_start_matches('/').to_ascii_lowercase();
     let limit = (w.chars().count() / 3).max(2);
@@ -39,6 +40,8 @@ pub fn closest<'a>(want: &str, names: impl IntoIterator<Item = &'a str>, n: usiz
         .collect();
     scored.sort();
     scored.dedup_by(|a, b| a.1 == b.1);
+    let best = scored.first().map_or(0, |s| s.0);
+    scored.retain(|s| s.0 == best);
     scored
         .into_iter()
         .take(n)
