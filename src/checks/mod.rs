@@ -110,7 +110,7 @@ mod unpowered_part;
 mod unreadable_value;
 mod weak_high_drive;
 
-use crate::circuit::budget::{net_budget, NetBudget};
+use crate::circuit::budget::NetBudget;
 use crate::circuit::Circuit;
 use crate::diag::Diag;
 
@@ -172,13 +172,8 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
     ]
 }
 
-/// Every net's budget, by net index: what [`run_all`] reads.
-pub fn budgets(cx: &Circuit<'_, '_>) -> Vec<NetBudget> {
-    (0..cx.nets.len()).map(|n| net_budget(cx, n)).collect()
-}
-
-/// Runs every enabled check on the circuit and its budgets (from [`budgets`], computed
-/// once) and returns the findings in file order.
+/// Runs every enabled check on the circuit and its budgets (computed once by the caller,
+/// [`crate::analysis`]) and returns the findings in file order.
 pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> Vec<Diag> {
     let ctx = Context { cx, budgets, opts };
     let mut out = Vec::new();

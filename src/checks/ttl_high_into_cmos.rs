@@ -13,16 +13,8 @@
 //! load's supply from the net, within the computed window.
 
 use super::Context;
-use crate::classify::family::Technology;
 use crate::diag::Diag;
 use crate::values::{format_ohms, format_volts};
-
-/// True when the driver's family has TTL-level outputs (bipolar or NMOS).
-pub(super) fn ttl_output(ctx: &Context<'_, '_, '_>, comp: usize) -> bool {
-    ctx.cx
-        .family(comp)
-        .is_some_and(|f| matches!(f.technology, Technology::Bipolar | Technology::Nmos))
-}
 
 /// The TTL-threshold variant of a CMOS family, if there is one: 74HC -> 74HCT.
 pub(super) fn ttl_threshold_variant(family: &str) -> Option<&'static str> {
@@ -45,7 +37,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             }
             let d = &nm.drivers[m.driver];
             let l = &nm.loads[m.load];
-            if !ttl_output(ctx, d.at.comp) || l.ttl || l.levels.is_none() {
+            if !ctx.cx.ttl_output(d.at.comp) || l.ttl || l.levels.is_none() {
                 continue;
             }
             let db = &b

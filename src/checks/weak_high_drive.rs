@@ -19,7 +19,6 @@
 //! reversed (cathode towards the output) never conducts from the high state and is skipped.
 
 use super::common::pct;
-use super::ttl_high_into_cmos::ttl_output;
 use super::Context;
 use crate::circuit::enables::gate;
 use crate::circuit::enables::Gate;
@@ -136,7 +135,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if !matches!(
                 d.role,
                 PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional
-            ) || !ttl_output(ctx, d.at.comp)
+            ) || !ctx.cx.ttl_output(d.at.comp)
                 || gate(cx, d.at) == Gate::Never
             {
                 continue;
