@@ -209,18 +209,6 @@ mod tests {
     use super::*;
 
     #[test]
-    fn series_values_round_to_the_neighbours() {
-        assert_eq!(series_at_most(1000.0, &E12), Some(1000.0));
-        assert_eq!(series_at_most(999.0, &E12), Some(820.0));
-        assert_eq!(series_at_most(4700.0, &E12), Some(4700.0));
-        assert_eq!(series_at_least(437.5, &E12), Some(470.0));
-        assert_eq!(series_at_least(821.0, &E12), Some(1000.0));
-        assert_eq!(series_at_most(125e3, &E3), Some(100e3));
-        assert_eq!(series_at_most(0.0, &E12), None);
-        assert_eq!(series_at_most(f64::INFINITY, &E12), None);
-    }
-
-    #[test]
     fn one_ls_input_on_ten_kohm_reads_high() {
         // TI SDLS025B SN74LS00: IIL -0.4 mA at 0.4 V, VIL 0.8 V
         let pd = PullDown {

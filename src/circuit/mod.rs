@@ -996,7 +996,8 @@ fn rails_by_usage(
             continue;
         }
         let name = nl.nets[net].name.as_str();
-        if name.to_ascii_lowercase().starts_with("unconnected-") {
+        // a pin alone on its net is wired to nothing, whatever its type
+        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].nodes.len() < 2 {
             continue;
         }
         let (s, g) = (supply_pins[net], ground_pins[net]);
