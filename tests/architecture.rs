@@ -284,6 +284,27 @@ fn every_check_file_is_registered_and_every_registered_check_has_a_file() {
         .map(|c| c.id.to_string())
         .collect();
     assert_eq!(files, registered);
+    // declared once: no check's id is written anywhere in src/ but its own file
+    for (path, text) in sources() {
+        for c in netmargin::checks::REGISTRY {
+            let own = format!("src/checks/{}.rs", c.id.replace('-', "_"));
+            if path != own {
+                assert!(
+                    !text.contains(&format!("id: \"{}\"", c.id)),
+                    "{path} declares {}",
+                    c.id
+                );
+            }
+        }
+    }
+    let mod_rs = std::fs::read_to_string(dir.join("mod.rs")).unwrap();
+    for c in netmargin::checks::REGISTRY {
+        assert!(
+            !mod_rs.contains(&format!("\"{}\"", c.id)),
+            "src/checks/mod.rs names {}: a check is declared in its own file",
+            c.id
+        );
+    }
     for c in netmargin::checks::REGISTRY {
         assert!(!c.doc().is_empty(), "{} has no doc comment", c.id);
         let fixture = root().join(format!("fixtures/checks/{}.net", c.id));

@@ -13,6 +13,14 @@
 //! Fix: a load with thresholds the driver meets (74HCT on 5 V reads 2.0 V as high), a level
 //! translator, or a driver on the load's supply.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "level-mismatch",
+    severity: crate::diag::Severity::Error,
+    summary: "a guaranteed low level above a load's VIL, or another high-level shortfall",
+};
+
 use super::Context;
 use crate::diag::{Diag, Severity};
 use crate::values::{format_ohms, format_volts};

@@ -12,6 +12,14 @@
 //! Fix: a TTL-threshold CMOS load (74HCT, 74ACT, 74AHCT: VIH 2.0 V), or a pull-up to the
 //! load's supply from the net, within the computed window.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "ttl-high-into-cmos",
+    severity: crate::diag::Severity::Error,
+    summary: "a driver's guaranteed high level is below a CMOS load's VIH",
+};
+
 use super::Context;
 use crate::diag::Diag;
 use crate::values::{format_ohms, format_volts};

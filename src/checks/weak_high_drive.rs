@@ -18,6 +18,14 @@
 //! practice). An LED whose anode and cathode can be told from its pin names (A, K) and that is
 //! reversed (cathode towards the output) never conducts from the high state and is skipped.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "weak-high-drive",
+    severity: crate::diag::Severity::Warning,
+    summary: "a TTL output that must source a non-logic load (an LED to ground) in its high state",
+};
+
 use super::common::pct;
 use super::Context;
 use crate::circuit::enables::gate;
