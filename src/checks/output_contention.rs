@@ -21,6 +21,14 @@
 //! open-collector outputs (wired-AND) with a pull-up; to share a bus, use three-state outputs
 //! with enables decoded so that only one is on at a time.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "output-contention",
+    severity: crate::diag::Severity::Error,
+    summary: "two push-pull outputs on one net, or a push-pull output tied to a rail",
+};
+
 use super::common::pct;
 use super::Context;
 use crate::circuit::enables::{enabled_together, gate, literal_text, Gate, Literal};

@@ -17,6 +17,14 @@
 //! When the net leaves the board through a connector, the resistor sets the level only while
 //! nothing drives it from outside: the finding says so.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "ttl-pull-down-too-large",
+    severity: crate::diag::Severity::Error,
+    summary: "a TTL input held low through a resistor too large for its input current",
+};
+
 use super::Context;
 use crate::circuit::{Circuit, PinRef};
 use crate::diag::Diag;

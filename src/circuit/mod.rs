@@ -281,6 +281,17 @@ impl<'n, 'a> Circuit<'n, 'a> {
             .and_then(|f| self.rules.families.get(f))
     }
 
+    /// True when the part's family has TTL-level outputs (bipolar or NMOS).
+    pub fn ttl_output(&self, comp: usize) -> bool {
+        self.family(comp).is_some_and(|f| {
+            matches!(
+                f.technology,
+                crate::classify::family::Technology::Bipolar
+                    | crate::classify::family::Technology::Nmos
+            )
+        })
+    }
+
     pub fn role(&self, p: PinRef) -> PinRole {
         self.roles[p.comp][p.pin]
     }
