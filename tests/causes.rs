@@ -11,10 +11,14 @@
 //! - 74LS high output: VOH 2.70 V minimum at IOH -0.4 mA (TI SDLS025B, SN74LS00/SN74LS04).
 //! - A bipolar TTL input left open floats high (common practice); a CMOS input left open has no
 //!   defined level (JEDEC JESD7A requires every input to be driven; common practice).
-//! - 74LS393 1CLR (pin 2) and 74LS90 R0(1) (pin 2) are active-high clears; 74LS74 pin 1 is the
-//!   active-low clear 1CLR~ (Motorola FAST and LS TTL Data, connection diagrams and truth tables).
-//! - 74HC245: DIR high passes A to B, so the A side receives (TI SCLS131, function table; from
-//!   memory for the document number).
+//! - 74LS393 1CLR (pin 2) is an active-high clear (Motorola SN54/74LS393 data sheet, FAST and LS
+//!   TTL Data); 74LS90 R0(1) (pin 2) is an active-high reset to zero (from memory, as the 7490
+//!   pinout in rules/functions.toml); 74x74 pin 1 is the active-low clear 1CLR~ (TI SN74AHC74
+//!   pin functions, the pinout shared by the 74LS74).
+//! - 74HC245: DIR high passes A to B, so the A side receives (TI SCLS020H, SN74HCT245 function
+//!   table, the same for the 74HC245: from memory).
+//! - An enable pin (CE, OE~, WE) of a memory or peripheral is an input (JEDEC memory pinouts:
+//!   common practice).
 
 use std::path::Path;
 use std::process::Command;
@@ -236,9 +240,11 @@ fn a_net_driven_only_by_an_unclassified_output_is_not_floating() {
 #[test]
 fn an_enable_pin_typed_output_on_an_unclassified_part_is_an_input() {
     let f = run("unknown-parts");
-    // CE typed output on TW-PRB7, driven by a 74LS04 output: no contention, no float
+    // CE, OE~ and WE typed output on TW-PRB7, each driven by a 74LS04 output: no contention
     quiet(&f, "/PRB_CE", &["output-contention"]);
     quiet(&f, "/PRB_CE2", &["output-contention"]);
+    quiet(&f, "/PRB_OE_N", &["output-contention"]);
+    quiet(&f, "/PRB_WE", &["output-contention"]);
 }
 
 // ---------------------------------------------------------------------------------------------
