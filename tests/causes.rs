@@ -9,11 +9,11 @@
 //! - 74HC at 5.0 V: VIH 3.50 V (JEDEC JESD7A gives 3.15 V at 4.5 V and 3.85 V at 5.5 V; the line
 //!   through them passes 3.50 V at 5.0 V).
 //! - 74LS high output: VOH 2.70 V minimum at IOH -0.4 mA (TI SDLS025B, SN74LS00/SN74LS04).
-//! - A bipolar TTL input left open floats high (common practice); a CMOS input left open has no
-//!   defined level (JEDEC JESD7A requires every input to be driven; common practice).
+//! - A bipolar TTL input left open floats high; a CMOS input left open has no defined level and
+//!   must be tied (common practice).
 //! - 74LS393 1CLR (pin 2) is an active-high clear (Motorola SN54/74LS393 data sheet, FAST and LS
-//!   TTL Data); 74LS90 R0(1) (pin 2) is an active-high reset to zero (from memory, as the 7490
-//!   pinout in rules/functions.toml); 74x74 pin 1 is the active-low clear 1CLR~ (TI SN74AHC74
+//!   TTL Data); 74LS90 and 74LS93 R0(1) (pin 2) and R0(2) (pin 3) reset the counter to zero when
+//!   both are high (from memory, as the 7490 and 7493 pinouts in rules/functions.toml); 74x74 pin 1 is the active-low clear 1CLR~ (TI SN74AHC74
 //!   pin functions, the pinout shared by the 74LS74).
 //! - 74HC245: DIR high passes A to B, so the A side receives (TI SCLS020H, SN74HCT245 function
 //!   table, the same for the 74HC245: from memory).
@@ -457,16 +457,28 @@ fn an_open_active_high_clear_holds_the_part_and_is_an_error() {
         "floating-ttl-input",
         "error",
     );
-    fires(
-        &f,
-        "unconnected-(U4-R0(1)-Pad2)",
-        "floating-ttl-input",
-        "error",
-    );
+    // both reset-to-zero inputs of the 74LS90 open: both float high and hold it at zero
+    for net in ["unconnected-(U4-R0(1)-Pad2)", "unconnected-(U4-R0(2)-Pad3)"] {
+        fires(&f, net, "floating-ttl-input", "error");
+    }
     // 74LS74 1CLR~ (pin 1): active low, floats to its inactive level
     fires(
         &f,
         "unconnected-(U5-~{1CLR}-Pad1)",
+        "floating-ttl-input",
+        "warning",
+    );
+}
+
+#[test]
+#[ignore = "model gap: an open R0(1) is taken to hold a 7490/7493 at zero whatever R0(2) is; the reset gate is an AND of R0(1) and R0(2), so with R0(2) on GND the open input holds nothing and is a warning"]
+fn an_open_reset_input_whose_partner_is_grounded_holds_nothing() {
+    let f = run("no-connect-flags");
+    // 74LS93 reset/count function table: outputs reset to zero only when R0(1) and R0(2) are
+    // both high (TI SN74LS93 data sheet: from memory)
+    fires(
+        &f,
+        "unconnected-(U6-R0(1)-Pad2)",
         "floating-ttl-input",
         "warning",
     );
