@@ -530,3 +530,40 @@ fn a_driver_and_its_load_on_one_rail_share_the_rails_end() {
     assert!(run(&text, "input-overvoltage", 0.10).is_empty());
     assert!(run(&text, "input-overvoltage", 0.0).is_empty());
 }
+
+// ---------------------------------------------------------------------------------------------
+// fanout-overrun: an open-collector output sinking an LED from the supply
+
+#[test]
+fn an_led_sunk_from_the_supply_is_in_the_low_state_budget() {
+    // 74LS05 (TI SN74LS05): IOL 8 mA at VOL 0.5 V. A red LED (1.7 V, common practice) from +5V
+    // through 330 Ohm: (5.00 - 1.70 - 0.50) / 330 = 8.48 mA, over the 8 mA rating; through
+    // 1 kOhm 2.80 mA, well inside it. No pull-up is asked for: nothing reads the net.
+    let board = |ohms: &str| {
+        netlist(
+            &[
+                c("U1", "74LS05", "NAND2", "Package_DIP:DIP-14_W7.62mm"),
+                c("R1", ohms, "RES", ""),
+                c("D1", "RED", "LED", ""),
+                c("J1", "PWR", "CONN", ""),
+            ],
+            &[
+                ("NAND2", NAND2),
+                ("RES", "1:~:passive 2:~:passive"),
+                ("LED", "1:K:passive 2:A:passive"),
+                ("CONN", "1:P1:passive 2:P2:passive"),
+            ],
+            &[
+                ("+5V", &["J1.1", "U1.14", "R1.1"]),
+                ("GND", &["J1.2", "U1.7", "U1.1"]),
+                ("/LAMP_A", &["R1.2", "D1.2"]),
+                ("/LAMP_K", &["D1.1", "U1.2"]),
+            ],
+        )
+    };
+    let over = run(&board("330"), "fanout-overrun", 0.0);
+    assert_eq!(over.len(), 1, "{over:?}");
+    assert!(over[0].message.contains("8.48 mA"), "{}", over[0].message);
+    assert!(run(&board("1k"), "fanout-overrun", 0.0).is_empty());
+    assert!(run(&board("330"), "missing-pull-up", 0.0).is_empty());
+}
