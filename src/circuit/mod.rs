@@ -208,6 +208,9 @@ pub struct NetModel {
     /// Switch elements whose opening leaves this net with nothing to set its level (the
     /// net is held only through them): it floats when all of them are open.
     pub floats_open: Vec<SwitchLink>,
+    /// Nets whose only source is this net, through a series element (directly or through
+    /// further series elements): their loads are this net's drivers' loads too.
+    pub feeds: Vec<(usize, SeriesLink)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -960,6 +963,25 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
         if !changed {
             break;
+        }
+    }
+    // the nets each net feeds through series elements, followed to the end of the chain
+    let direct: Vec<Option<(usize, SeriesLink)>> = nets
+        .iter()
+        .map(|nm| match nm.source {
+            Some(Source::Through(l)) => Some((l.other_net, l)),
+            _ => None,
+        })
+        .collect();
+    for (m, d) in direct.iter().enumerate() {
+        let Some((mut up, link)) = *d else { continue };
+        // walk up to the net with a source of its own; every net on the way feeds m
+        for _ in 0..nets.len() {
+            nets[up].feeds.push((m, link));
+            match direct[up] {
+                Some((next, _)) => up = next,
+                None => break,
+            }
         }
     }
     for i in 0..nets.len() {
