@@ -19,6 +19,7 @@ pub mod input;
 pub mod netlist;
 pub mod pipeline;
 pub mod report;
+pub mod schematic;
 pub mod sexpr;
 pub mod source;
 #[doc(hidden)]

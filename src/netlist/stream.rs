@@ -944,7 +944,7 @@ impl<'a> Reader<'a> {
 
 /// Cross-references: refs, libparts, node components, pin lists and connections. Both
 /// readers ([`read`] and [`build`](super::build)) finish with it.
-pub(super) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
+pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
     let mut by_ref: HashMap<Cow<'a, str>, usize> =
         HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
