@@ -131,6 +131,13 @@ fn join_along(sheet: &Sheet<'_>, items: &[Item], at: &HashMap<Pt, Vec<u32>>, dsu
         }
     };
     for (p, ids) in at {
+        // a label at the end of a wire or bus joins that one only
+        if ids
+            .iter()
+            .any(|&i| matches!(items[i as usize], Item::Wire(_) | Item::Bus(_)))
+        {
+            continue;
+        }
         for &id in ids {
             let Item::Label(_, is_bus) = items[id as usize] else {
                 continue;
@@ -172,9 +179,24 @@ pub fn pieces(sheet: &Sheet<'_>, pins: &[PinAt]) -> Vec<Piece> {
         let id = put(&mut items, Item::Bus(i), w.a);
         second.push((w.b, id));
     }
+    // a bus entry joins nets only at its end that is not on a bus: the end on the bus links
+    // it to that bus, and a wire that happens to end there is not joined to it
+    let on_bus = |p: Pt| sheet.buses.iter().any(|b| on_segment(b, p));
     for (i, e) in sheet.entries.iter().enumerate() {
-        let id = put(&mut items, Item::Entry(i), e.a);
-        second.push((e.b, id));
+        let ends: Vec<Pt> = [e.a, e.b].into_iter().filter(|&p| !on_bus(p)).collect();
+        match ends.as_slice() {
+            [] => {
+                // both ends on buses: present at neither point
+                items.push(Item::Entry(i));
+            }
+            [one] => {
+                put(&mut items, Item::Entry(i), *one);
+            }
+            _ => {
+                let id = put(&mut items, Item::Entry(i), e.a);
+                second.push((e.b, id));
+            }
+        }
     }
     for &p in &sheet.junctions {
         put(&mut items, Item::Junction, p);

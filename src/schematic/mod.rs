@@ -328,33 +328,52 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
             }
         }
     }
-    // global bus labels: the nets on such a bus that carry a member's name are global
+    // nets on one bus that carry the name of the same member are one net; on a bus with a
+    // global label, that member's name is global
     let mut global_members: Vec<(usize, String)> = Vec::new();
+    let mut bus_members: Vec<(usize, usize, String)> = Vec::new(); // (net piece, bus piece, member)
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
         for (bi, b) in pieces[ui].iter().enumerate() {
             if !b.is_bus {
                 continue;
             }
+            let mut members: Vec<(String, bool)> = Vec::new();
             for &l in &b.labels {
                 let lab = &sh.labels[l];
-                if lab.kind != LabelKind::Global {
+                for m in bus::members(&lab.text) {
+                    members.push((m, lab.kind == LabelKind::Global));
+                }
+            }
+            for &(s, k) in &b.sheet_pins {
+                for m in bus::members(&sh.sheets[s].pins[k].text) {
+                    members.push((m, false));
+                }
+            }
+            for (ni, net) in pieces[ui].iter().enumerate() {
+                if !net.buses.contains(&bi) {
                     continue;
                 }
-                let members = bus::members(&lab.text);
-                for (ni, net) in pieces[ui].iter().enumerate() {
-                    if !net.buses.contains(&bi) {
-                        continue;
-                    }
-                    for &nl in &net.labels {
-                        let t = &sh.labels[nl].text;
-                        if members.iter().any(|m| m == t) {
-                            global_members.push((first[ui] + ni, t.to_string()));
+                for &nl in &net.labels {
+                    let t = &sh.labels[nl].text;
+                    for (m, global) in &members {
+                        if m == t {
+                            bus_members.push((first[ui] + ni, first[ui] + bi, t.to_string()));
+                            if *global {
+                                global_members.push((first[ui] + ni, t.to_string()));
+                            }
                         }
                     }
                 }
             }
         }
+    }
+    let mut bus_keys: HashMap<(usize, &str), usize> = HashMap::default();
+    for (net, b, m) in &bus_members {
+        let id = *bus_keys
+            .entry((*b, m.as_str()))
+            .or_insert_with(|| dsu.add());
+        dsu.union(id, *net);
     }
     let owned: Vec<String> = member_links
         .iter()
@@ -376,6 +395,10 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
         dsu.union(a, *g);
     }
 
+    let mut global_member_of: HashMap<usize, Vec<&str>> = HashMap::default();
+    for (net, m) in &global_members {
+        global_member_of.entry(*net).or_default().push(m.as_str());
+    }
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
     let mut pools: HashMap<(usize, usize), Vec<Candidate>> = HashMap::default();
@@ -389,6 +412,18 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
             }
             let g = dsu.find(first[ui] + pi);
             let pool = pools.entry((g, ui)).or_default();
+            for m in global_member_of
+                .get(&(first[ui] + pi))
+                .into_iter()
+                .flatten()
+            {
+                pool.push(Candidate {
+                    strength: Strength::Global,
+                    name: m.to_string(),
+                    power_symbol: false,
+                    output: false,
+                });
+            }
             for &l in &p.labels {
                 let lab = &sh.labels[l];
                 let (strength, name) = match lab.kind {
