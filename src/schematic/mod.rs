@@ -395,7 +395,44 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
         dsu.union(a, *g);
     }
 
+    // a local or hierarchical label named like a global label (or a member of a global bus
+    // label) on the same sheet joins that global net
+    let mut global_here: Vec<rustc_hash::FxHashSet<String>> = Vec::new();
+    for u in &project.uses {
+        let sh = &project.sheets[u.file];
+        let mut set = rustc_hash::FxHashSet::default();
+        for lab in sh.labels.iter().filter(|l| l.kind == LabelKind::Global) {
+            if bus::is_bus(&lab.text) {
+                set.extend(bus::members(&lab.text));
+            } else {
+                set.insert(lab.text.to_string());
+            }
+        }
+        global_here.push(set);
+    }
+    let mut named_global: Vec<(usize, &str)> = Vec::new(); // (piece, name)
+    for (ui, u) in project.uses.iter().enumerate() {
+        if global_here[ui].is_empty() {
+            continue;
+        }
+        let sh = &project.sheets[u.file];
+        for (pi, p) in pieces[ui].iter().enumerate() {
+            if p.is_bus {
+                continue;
+            }
+            for &l in &p.labels {
+                let lab = &sh.labels[l];
+                if lab.kind != LabelKind::Global && global_here[ui].contains(lab.text.as_ref()) {
+                    join_key(&mut dsu, &mut keys, Key::Global(&lab.text), first[ui] + pi);
+                    named_global.push((first[ui] + pi, &lab.text));
+                }
+            }
+        }
+    }
     let mut global_member_of: HashMap<usize, Vec<&str>> = HashMap::default();
+    for &(piece, name) in &named_global {
+        global_member_of.entry(piece).or_default().push(name);
+    }
     for (net, m) in &global_members {
         global_member_of.entry(*net).or_default().push(m.as_str());
     }
@@ -493,7 +530,7 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
     }
     let mut net_of_name: HashMap<String, usize> = HashMap::default();
     let mut nets: Vec<Net<'_>> = Vec::new();
-    let mut seen_node: HashMap<(String, String), ()> = HashMap::default();
+    let mut seen_node: HashMap<(usize, String, String), ()> = HashMap::default();
     for g in group_order {
         let Some(chosen) = by_group.get(&g) else {
             continue;
@@ -524,7 +561,7 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
             let pl = &placements[ui][s];
             let lp = &pl.lib.pins[lpi];
             if seen_node
-                .insert((pl.reference.to_string(), lp.num.to_string()), ())
+                .insert((idx, pl.reference.to_string(), lp.num.to_string()), ())
                 .is_some()
             {
                 continue;
@@ -546,6 +583,14 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
                 component: None,
             });
         }
+    }
+
+    // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
+    // by reference and number; a pin on two nets is kept in the first, as in its export
+    nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
+    for n in &mut nets {
+        n.nodes
+            .sort_by(|a, b| (&a.reference.s, &a.pin.s).cmp(&(&b.reference.s, &b.pin.s)));
     }
 
     // components (one per reference, units merged) and library parts
@@ -657,6 +702,43 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
 /// the model can borrow them.
 pub fn load(path: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
     open(path, max_bytes)
+}
+
+/// Compares names as KiCad orders nets: runs of digits by their value, the rest by
+/// character.
+pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
+    use std::cmp::Ordering;
+    let (a, b) = (a.as_bytes(), b.as_bytes());
+    let (mut i, mut j) = (0, 0);
+    while i < a.len() && j < b.len() {
+        if a[i].is_ascii_digit() && b[j].is_ascii_digit() {
+            let si = i;
+            while i < a.len() && a[i].is_ascii_digit() {
+                i += 1;
+            }
+            let sj = j;
+            while j < b.len() && b[j].is_ascii_digit() {
+                j += 1;
+            }
+            let da = std::str::from_utf8(&a[si..i])
+                .unwrap_or("")
+                .trim_start_matches('0');
+            let db = std::str::from_utf8(&b[sj..j])
+                .unwrap_or("")
+                .trim_start_matches('0');
+            let o = da.len().cmp(&db.len()).then_with(|| da.cmp(db));
+            if o != Ordering::Equal {
+                return o;
+            }
+        } else {
+            if a[i] != b[j] {
+                return a[i].cmp(&b[j]);
+            }
+            i += 1;
+            j += 1;
+        }
+    }
+    (a.len() - i).cmp(&(b.len() - j))
 }
 
 /// Where a span of a project points: the sheet file's name.
