@@ -338,31 +338,53 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
             if !b.is_bus {
                 continue;
             }
-            let mut members: Vec<(String, bool)> = Vec::new();
+            // the bus's names; the strongest (a global label, then a local label, a
+            // hierarchical label, a sheet pin; ties by text) names its members, the others'
+            // members are the same wires by position
+            let mut named: Vec<(Strength, &str)> = Vec::new();
             for &l in &b.labels {
                 let lab = &sh.labels[l];
-                for m in bus::members(&lab.text) {
-                    members.push((m, lab.kind == LabelKind::Global));
-                }
+                let st = match lab.kind {
+                    LabelKind::Global => Strength::Global,
+                    LabelKind::Local => Strength::LocalLabel,
+                    LabelKind::Hier => Strength::HierLabel,
+                };
+                named.push((st, &lab.text));
             }
             for &(s, k) in &b.sheet_pins {
-                for m in bus::members(&sh.sheets[s].pins[k].text) {
-                    members.push((m, false));
-                }
+                named.push((Strength::SheetPin, &sh.sheets[s].pins[k].text));
             }
+            let Some(&(dst, dtext)) = named
+                .iter()
+                .max_by(|a, b| a.0.cmp(&b.0).then_with(|| b.1.cmp(a.1)))
+            else {
+                continue;
+            };
+            let driver = bus::members(dtext);
+            let lists: Vec<Vec<String>> = named.iter().map(|n| bus::members(n.1)).collect();
             for (ni, net) in pieces[ui].iter().enumerate() {
                 if !net.buses.contains(&bi) {
                     continue;
                 }
                 for &nl in &net.labels {
                     let t = &sh.labels[nl].text;
-                    for (m, global) in &members {
-                        if m == t {
-                            bus_members.push((first[ui] + ni, first[ui] + bi, t.to_string()));
-                            if *global {
-                                global_members.push((first[ui] + ni, t.to_string()));
-                            }
+                    let mut hit: Option<usize> = None;
+                    for m in &lists {
+                        if let Some(i) = m.iter().position(|x| x == t) {
+                            hit = Some(if m.len() == driver.len() {
+                                i
+                            } else {
+                                driver.iter().position(|x| x == t).unwrap_or(usize::MAX)
+                            });
+                            break;
                         }
+                    }
+                    let Some(i) = hit.filter(|&i| i < driver.len()) else {
+                        continue;
+                    };
+                    bus_members.push((first[ui] + ni, first[ui] + bi, driver[i].clone()));
+                    if dst == Strength::Global {
+                        global_members.push((first[ui] + ni, driver[i].clone()));
                     }
                 }
             }
