@@ -80,12 +80,27 @@ fn compare(sch: &Netlist<'_>, net: &Netlist<'_>) -> (Vec<String>, Vec<String>) {
     for (pins, name) in &b {
         match a.get(pins) {
             None => {
-                let mut v: Vec<String> = pins.iter().map(|(r, p)| format!("{r}.{p}")).collect();
-                v.truncate(8);
+                // the read nets that hold its pins, and the pins that differ
+                let holders: Vec<(&BTreeSet<(String, String)>, &String)> =
+                    a.iter().filter(|(p, _)| !p.is_disjoint(pins)).collect();
+                let mut differ: Vec<String> = Vec::new();
+                for (p, n) in &holders {
+                    for x in p.symmetric_difference(pins) {
+                        if p.contains(x) {
+                            differ.push(format!("+{}.{} (read in `{n}`)", x.0, x.1));
+                        }
+                    }
+                }
+                for x in pins {
+                    if !holders.iter().any(|(p, _)| p.contains(x)) {
+                        differ.push(format!("-{}.{}", x.0, x.1));
+                    }
+                }
+                differ.truncate(8);
                 out.push(format!(
-                    "KiCad's net `{name}` ({} pins: {}) is not one net in the schematic read",
+                    "KiCad's net `{name}` ({} pins) is not one net in the schematic read: {}",
                     pins.len(),
-                    v.join(" ")
+                    differ.join(" ")
                 ));
             }
             Some(ours) if ours != name => {

@@ -18,13 +18,13 @@
 //! the bound and suggests a round value in the 100 kOhm class, half the bound or less.
 
 use super::common::{ground_rail_name, supply_rail_name};
-use super::output_contention::{gate, literal_text, Gate};
-use super::ttl_pull_down_too_large::{series_at_most, E3};
 use super::Context;
+use crate::circuit::enables::{gate, literal_text, Gate};
 use crate::circuit::{Circuit, PinRef};
 use crate::classify::PinRole;
 use crate::diag::Diag;
 use crate::values::{format_amps, format_ohms, format_volts};
+use crate::values::{series_at_most, E3};
 
 /// Pull resistors above this are slow to settle and pick up noise (common practice).
 const PULL_CAP_OHMS: f64 = 100e3;

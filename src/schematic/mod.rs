@@ -552,7 +552,6 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
     }
     let mut net_of_name: HashMap<String, usize> = HashMap::default();
     let mut nets: Vec<Net<'_>> = Vec::new();
-    let mut seen_node: HashMap<(usize, String, String), ()> = HashMap::default();
     for g in group_order {
         let Some(chosen) = by_group.get(&g) else {
             continue;
@@ -582,12 +581,6 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
             let (s, lpi) = pins_of[ui][k];
             let pl = &placements[ui][s];
             let lp = &pl.lib.pins[lpi];
-            if seen_node
-                .insert((idx, pl.reference.to_string(), lp.num.to_string()), ())
-                .is_some()
-            {
-                continue;
-            }
             let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
             let net = &mut nets[idx];
             if net.nodes.is_empty() {
@@ -610,9 +603,15 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
     nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
+    // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
+    // on one net, the one with the lowest name)
+    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.s.to_string());
     for n in &mut nets {
+        n.nodes.sort_by(|a, b| {
+            (&a.reference.s, &a.pin.s, fname(a)).cmp(&(&b.reference.s, &b.pin.s, fname(b)))
+        });
         n.nodes
-            .sort_by(|a, b| (&a.reference.s, &a.pin.s).cmp(&(&b.reference.s, &b.pin.s)));
+            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin.s == b.pin.s);
     }
 
     // components (one per reference, units merged) and library parts
