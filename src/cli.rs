@@ -50,6 +50,16 @@ pub enum Command {
     Net(NetArgs),
     /// Write a report of a whole board (HTML with level charts, or Markdown)
     Audit(crate::audit::AuditArgs),
+    /// List every net with its name and pins, from a netlist or a schematic
+    #[command(
+        after_help = "Examples:\n  netmargin nets board.kicad_sch\n  netmargin nets --format json board.net > board-nets.json"
+    )]
+    Nets(NetsArgs),
+    /// Compare two captures of a board (netlists or schematics) pin by pin
+    #[command(
+        after_help = "Exit codes: 0 when every pin connects alike and the parts match, 1 when they differ, 2 when an input cannot be read.\n\nExamples:\n  netmargin compare board.kicad_sch board.net\n  netmargin compare capture-1.kicad_sch capture-2.kicad_sch"
+    )]
+    Compare(CompareArgs),
     /// Record the findings netlists have now, so `check --baseline` reports only new ones
     #[command(
         after_help = "Examples:\n  netmargin baseline hardware/\n  netmargin baseline -o ci/netmargin-baseline.json hardware/*.net\n  netmargin check --baseline ci/netmargin-baseline.json hardware/"
@@ -158,6 +168,26 @@ pub struct NetArgs {
     /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
     #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
     pub rail: Vec<(String, f64)>,
+}
+
+#[derive(Debug, Args)]
+pub struct NetsArgs {
+    /// A netlist (`-` reads standard input) or a schematic's root sheet (`.kicad_sch`)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+    pub format: ListFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct CompareArgs {
+    /// The first capture: a netlist or a schematic's root sheet
+    #[arg(value_name = "A")]
+    pub a: String,
+    /// The second capture
+    #[arg(value_name = "B")]
+    pub b: String,
 }
 
 #[derive(Debug, Args)]

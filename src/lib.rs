@@ -9,6 +9,7 @@ pub mod app;
 pub mod atomic;
 pub mod audit;
 pub mod baseline;
+pub mod capture;
 pub mod checks;
 pub mod circuit;
 pub mod classify;

@@ -37,6 +37,17 @@ fn color_on(choice: ColorChoice, stream_is_tty: bool) -> bool {
     }
 }
 
+/// Shows a file's fatal error on standard error, as `check` shows it; the exit code is 2.
+fn show_fatal(f: &pipeline::FileOutcome, color: ColorChoice) -> std::io::Result<u8> {
+    let stderr = std::io::stderr();
+    let eh = human::handler(HumanStyle {
+        color: color_on(color, stderr.is_terminal()),
+        width: 100,
+    });
+    human::write_file(&mut stderr.lock(), &eh, f)?;
+    Ok(2)
+}
+
 fn run(cli: Cli) -> std::io::Result<u8> {
     let opts = ReadOptions {
         max_bytes: cli.global.max_bytes,
@@ -166,6 +177,50 @@ fn run(cli: Cli) -> std::io::Result<u8> {
             let mut out = std::io::stdout().lock();
             netmargin::report::net::write_net(&mut out, &cx, net)?;
             Ok(0)
+        }
+        Command::Nets(args) => {
+            let fail = |f: &pipeline::FileOutcome| show_fatal(f, cli.global.color);
+            let cap = match netmargin::capture::Capture::open(&args.path, &opts) {
+                Ok(c) => c,
+                Err(f) => return fail(&f),
+            };
+            let nl = match cap.model() {
+                Ok(nl) => nl,
+                Err(f) => return fail(&f),
+            };
+            let mut out = std::io::stdout().lock();
+            let json = args.format == netmargin::cli::ListFormat::Json;
+            match netmargin::capture::write_nets(&mut out, &nl, json).and_then(|()| out.flush()) {
+                Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => Err(e),
+                _ => Ok(0),
+            }
+        }
+        Command::Compare(args) => {
+            let fail = |f: &pipeline::FileOutcome| show_fatal(f, cli.global.color);
+            let open = |p: &str| netmargin::capture::Capture::open(p, &opts);
+            let (ca, cb) = match (open(&args.a), open(&args.b)) {
+                (Ok(a), Ok(b)) => (a, b),
+                (a, b) => {
+                    for f in [a.err(), b.err()].into_iter().flatten() {
+                        fail(&f)?;
+                    }
+                    return Ok(2);
+                }
+            };
+            let (na, nb) = match (ca.model(), cb.model()) {
+                (Ok(a), Ok(b)) => (a, b),
+                (a, b) => {
+                    for f in [a.err(), b.err()].into_iter().flatten() {
+                        fail(&f)?;
+                    }
+                    return Ok(2);
+                }
+            };
+            let d = netmargin::capture::compare(&na, &nb);
+            let mut out = std::io::stdout().lock();
+            netmargin::capture::write_differences(&mut out, &d, &args.a, &args.b)?;
+            out.flush()?;
+            Ok(if d.is_empty() { 0 } else { 1 })
         }
         Command::Audit(args) => netmargin::audit::command(
             &args,

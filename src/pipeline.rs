@@ -228,6 +228,21 @@ pub fn check_file_with_usage(
             return (out, used);
         }
     };
+    if crate::schematic::is_sheet(source.text()) {
+        // a KiCad 6-9 schematic: the root sheet and every sheet below it
+        let (source, result) = check_schematic(path, rules, opts);
+        out.source = source;
+        match result {
+            Ok(c) => {
+                out.diags = c.diags;
+                out.summary = c.summary;
+                out.coverage = Some(c.coverage);
+                used = c.used;
+            }
+            Err(d) => out.fatal = Some(d),
+        }
+        return (out, used);
+    }
     let result = check_source(&source, rules, opts);
     out.source = Some(source);
     match result {
@@ -262,8 +277,48 @@ pub fn check_source(
         return Err(d);
     }
     let nl = netlist::read(source.text())?;
-    let cl = classify(&nl, rules);
-    let cx = circuit::build(&nl, &cl, rules, opts.model.clone());
+    Ok(check_model(&nl, rules, opts))
+}
+
+/// Reads a schematic project from its root sheet (`-` cannot be one: its sub-sheets are
+/// found beside its file) and checks it. The source returned is the project's sheets joined,
+/// the one every span points into.
+pub fn check_schematic(
+    path: &str,
+    rules: &Rules,
+    opts: &RunOptions,
+) -> (Option<SourceFile>, Result<Checked, Diag>) {
+    match open_schematic(path, opts.read.max_bytes) {
+        Err(f) => (f.source, Err(f.diag)),
+        Ok(files) => {
+            let result = crate::schematic::read(&files).map(|nl| check_model(&nl, rules, opts));
+            (Some(files.source), result)
+        }
+    }
+}
+
+/// Reads the sheets of the schematic project whose root sheet is `path`.
+pub fn open_schematic(
+    path: &str,
+    max_bytes: u64,
+) -> Result<crate::schematic::load::Files, Box<crate::schematic::load::Failed>> {
+    if path == "-" {
+        return Err(Box::new(crate::schematic::load::Failed {
+            diag: Diag::error(
+                "schematic-on-stdin",
+                "a schematic cannot be read from standard input: its sub-sheets are found beside its file",
+            )
+            .with_help("name the root `.kicad_sch` file instead"),
+            source: None,
+        }));
+    }
+    crate::schematic::open(path, max_bytes)
+}
+
+/// Classifies and checks a model, from either reader.
+pub fn check_model(nl: &netlist::Netlist<'_>, rules: &Rules, opts: &RunOptions) -> Checked {
+    let cl = classify(nl, rules);
+    let cx = circuit::build(nl, &cl, rules, opts.model.clone());
     let mut diags = nl.diagnostics.clone();
     diags.extend(checks::run_all(&cx, &opts.checks));
     let mut used = UsedRules::default();
@@ -284,12 +339,12 @@ pub fn check_source(
     used.families.dedup();
     used.functions.sort();
     used.functions.dedup();
-    Ok(Checked {
+    Checked {
         diags,
         summary: nl.summary(),
         coverage: cl.coverage,
         used,
-    })
+    }
 }
 
 /// Parses and models a text, returning the model's diagnostics and counts.
