@@ -183,3 +183,62 @@ fn every_pair_reads_into_kicads_nets() {
     }
     assert!(failures.is_empty(), "{failures:#?}");
 }
+
+/// The checks run on a schematic unchanged: every pair's schematic yields the same findings
+/// (check, severity, pins) as its exported netlist, and the findings point into the sheet
+/// files.
+#[test]
+fn checks_find_the_same_on_a_schematic_as_on_its_netlist() {
+    use netmargin::classify::classifier::Rules;
+    use netmargin::pipeline::{self, RunOptions};
+    let pairs = pairs();
+    if pairs.is_empty() {
+        eprintln!("note: {PAIRS} is absent: the checks were not compared on schematics");
+        return;
+    }
+    let rules = Rules::builtin();
+    let opts = RunOptions::default();
+    for (name, root, net) in &pairs {
+        let key = |o: &pipeline::FileOutcome| {
+            let mut v: Vec<String> = o
+                .diags
+                .iter()
+                .map(|d| {
+                    let mut pins = d.pins.clone();
+                    pins.sort();
+                    format!("{} {} {}", d.code, d.severity, pins.join(","))
+                })
+                .collect();
+            v.sort();
+            v
+        };
+        let a = pipeline::check_file(root.to_str().unwrap(), &rules, &opts);
+        let b = pipeline::check_file(net.to_str().unwrap(), &rules, &opts);
+        assert!(a.fatal.is_none(), "{name}: {:?}", a.fatal);
+        let (ka, kb) = (key(&a), key(&b));
+        let only_a: Vec<_> = ka.iter().filter(|k| !kb.contains(k)).take(5).collect();
+        let only_b: Vec<_> = kb.iter().filter(|k| !ka.contains(k)).take(5).collect();
+        assert_eq!(
+            ka.len(),
+            kb.len(),
+            "{name}: schematic only {only_a:?}, netlist only {only_b:?}"
+        );
+        assert!(
+            only_a.is_empty() && only_b.is_empty(),
+            "{name}: {only_a:?} {only_b:?}"
+        );
+        // every finding with a place points into one of the project's sheet files
+        let src = a.source.as_ref().unwrap();
+        let sheets: Vec<&str> = src.files().iter().map(|f| &*f.name).collect();
+        for d in &a.diags {
+            if let Some(s) = d.primary_span() {
+                let file = src.file_at(s.start as usize);
+                assert!(
+                    sheets.contains(&file) && file.ends_with(".kicad_sch"),
+                    "{file}"
+                );
+            }
+        }
+        eprintln!("{name}: {} findings alike", ka.len());
+    }
+}

@@ -345,3 +345,73 @@ fn shift(mut d: Diag, by: u32) -> Diag {
     }
     d
 }
+
+/// The sheet files a sheet's text names, found by a plain scan of its `Sheetfile`
+/// properties (cheap enough to run over every sheet in a folder).
+pub fn named_sheets(text: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    for key in ["(property \"Sheetfile\" \"", "(property \"Sheet file\" \""] {
+        let mut rest = text;
+        while let Some(p) = rest.find(key) {
+            rest = &rest[p + key.len()..];
+            if let Some(end) = rest.find('"') {
+                out.push(sexpr::unescape(&rest[..end]).into_owned());
+            }
+        }
+    }
+    out
+}
+
+/// The root sheet of the project `sheet` belongs to: the sheet in its folder that names it
+/// as a sub-sheet, followed upwards (a sheet no other sheet names is a root). Sheets are
+/// named relative to the project folder, so the search stays in the sheet's folder.
+pub fn project_root(sheet: &Path) -> PathBuf {
+    let dir = sheet.parent().map(Path::to_path_buf).unwrap_or_default();
+    let listing = if dir.as_os_str().is_empty() {
+        Path::new(".")
+    } else {
+        dir.as_path()
+    };
+    let Ok(entries) = std::fs::read_dir(listing) else {
+        return sheet.to_path_buf();
+    };
+    // child file name -> the sheet naming it
+    let mut parent_of: HashMap<String, String> = HashMap::default();
+    let mut names: Vec<String> = entries
+        .flatten()
+        .filter(|e| e.path().extension().is_some_and(|x| x == "kicad_sch"))
+        .filter_map(|e| e.file_name().to_str().map(str::to_string))
+        .collect();
+    names.sort();
+    for n in &names {
+        let Ok(text) = std::fs::read_to_string(listing.join(n)) else {
+            continue;
+        };
+        for child in named_sheets(&text) {
+            let child = child.replace('\\', "/");
+            if child != *n {
+                parent_of.entry(child).or_insert_with(|| n.clone());
+            }
+        }
+    }
+    let Some(mut cur) = sheet
+        .file_name()
+        .and_then(|f| f.to_str())
+        .map(str::to_string)
+    else {
+        return sheet.to_path_buf();
+    };
+    let mut seen = vec![cur.clone()];
+    while let Some(p) = parent_of.get(&cur) {
+        if seen.contains(p) {
+            break; // sheets that name each other: keep the one given
+        }
+        seen.push(p.clone());
+        cur = p.clone();
+    }
+    if seen.len() == 1 {
+        sheet.to_path_buf()
+    } else {
+        dir.join(cur)
+    }
+}

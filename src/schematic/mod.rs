@@ -614,13 +614,48 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
             .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin.s == b.pin.s);
     }
 
-    // components (one per reference, units merged) and library parts
+    // components (one per reference, units merged) and library parts, as KiCad lists
+    // them: sheet by sheet in page order, by reference within a sheet
+    let root_uuid = &project.sheets[0].uuid;
+    let page_of = |ui: usize| -> String {
+        let u = &project.uses[ui];
+        let Some((pu, si)) = u.parent else {
+            return String::new();
+        };
+        let chain: String = u.uuids.iter().map(|x| format!("/{x}")).collect();
+        let parent_chain: String = project.uses[pu]
+            .uuids
+            .iter()
+            .map(|x| format!("/{x}"))
+            .collect();
+        let sub = &project.sheets[project.uses[pu].file].sheets[si];
+        let v7 = format!("/{root_uuid}{parent_chain}");
+        sub.pages
+            .iter()
+            .find(|p| p.0 == v7)
+            .or_else(|| {
+                project.sheets[0]
+                    .sheet_instances
+                    .iter()
+                    .find(|p| p.0 == chain)
+            })
+            .map_or(String::new(), |p| p.1.to_string())
+    };
+    let mut order: Vec<(usize, String)> =
+        (0..project.uses.len()).map(|u| (u, page_of(u))).collect();
+    order.sort_by(|a, b| {
+        (a.0 != 0)
+            .cmp(&(b.0 != 0))
+            .then_with(|| natural_cmp(&a.1, &b.1))
+    });
     let mut components: Vec<Component<'_>> = Vec::new();
     let mut comp_of: HashMap<String, ()> = HashMap::default();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
-    for (ui, pls) in placements.iter().enumerate() {
+    for &(ui, _) in &order {
         let u = &project.uses[ui];
+        let mut pls: Vec<&Placement<'_, '_>> = placements[ui].iter().collect();
+        pls.sort_by(|a, b| natural_cmp(&a.reference, &b.reference));
         for pl in pls {
             if !pl.listed || comp_of.insert(pl.reference.to_string(), ()).is_some() {
                 continue;

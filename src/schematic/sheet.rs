@@ -136,6 +136,8 @@ pub struct SubSheet<'a> {
     /// The sheet-file property's value, to point at when the file cannot be read.
     pub file_span: Span,
     pub pins: Vec<SheetPin<'a>>,
+    /// KiCad 7 and later: (sheet path, page number) of each use of this sheet symbol.
+    pub pages: Vec<(Cow<'a, str>, Cow<'a, str>)>,
     pub span: Span,
 }
 
@@ -160,6 +162,8 @@ pub struct Sheet<'a> {
     pub sheets: Vec<SubSheet<'a>>,
     /// KiCad 6: the root sheet's `symbol_instances`, by path.
     pub symbol_instances: Vec<Instance<'a>>,
+    /// KiCad 6: the root sheet's `sheet_instances`, (path, page number).
+    pub sheet_instances: Vec<(Cow<'a, str>, Cow<'a, str>)>,
     pub span: Span,
 }
 
@@ -342,6 +346,13 @@ impl<'t, 'a> Reader<'t, 'a> {
                         .with_help("open the project in KiCad and give the sheet its file"),
                     ),
                 },
+                "sheet_instances" => {
+                    for p in self.t.children(c).skip(1) {
+                        if let Some(x) = self.page(p) {
+                            sh.sheet_instances.push(x);
+                        }
+                    }
+                }
                 "symbol_instances" => {
                     for p in self.t.children(c).skip(1) {
                         if let Some(i) = self.instance(p) {
@@ -521,8 +532,17 @@ impl<'t, 'a> Reader<'t, 'a> {
         })
     }
 
+    /// `(path "/a/b" (page "3"))`.
+    fn page(&self, id: NodeId) -> Option<(Cow<'a, str>, Cow<'a, str>)> {
+        if self.t.head(id) != Some("path") {
+            return None;
+        }
+        Some((self.text(self.nth(id, 1)?)?, self.value_of(id, "page")?))
+    }
+
     fn subsheet(&self, id: NodeId) -> Option<SubSheet<'a>> {
         let mut name = None;
+        let mut pages = Vec::new();
         let mut file = None;
         let mut pins = Vec::new();
         for c in self.t.children(id).skip(1) {
@@ -533,6 +553,15 @@ impl<'t, 'a> Reader<'t, 'a> {
                             "Sheetname" | "Sheet name" => name = Some(pr.value),
                             "Sheetfile" | "Sheet file" => file = Some((pr.value, pr.value_span)),
                             _ => {}
+                        }
+                    }
+                }
+                Some("instances") => {
+                    for proj in self.t.children(c).skip(1) {
+                        for path in self.t.children(proj).skip(1) {
+                            if let Some(x) = self.page(path) {
+                                pages.push(x);
+                            }
                         }
                     }
                 }
@@ -557,6 +586,7 @@ impl<'t, 'a> Reader<'t, 'a> {
             file,
             file_span,
             pins,
+            pages,
             span: self.span(id),
         })
     }
