@@ -180,8 +180,20 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
                 .with_help("open the sheet in KiCad and save it, or update the symbol from its library, so the file carries the symbol it uses"));
             };
             let inst = instance(&project, u, placed);
+            // a KiCad 6 instance lives in the root sheet: point at the symbol's own property
+            // in the sheet where it is drawn (for the reference, even when that sheet's text
+            // is another use's reference or `R?`)
+            let own_span = |name: &str, text: &str, or: Span| {
+                placed
+                    .prop(name)
+                    .filter(|p| p.value == text || name == "Reference")
+                    .map_or(or, |p| p.value_span)
+            };
             let (reference, reference_span) = match inst {
-                Some(i) => (i.reference.clone(), i.reference_span),
+                Some(i) => (
+                    i.reference.clone(),
+                    own_span("Reference", &i.reference, i.reference_span),
+                ),
                 None => match placed.prop("Reference") {
                     Some(p) => (p.value.clone(), p.value_span),
                     None => (Cow::Borrowed("?"), placed.span),
@@ -207,8 +219,20 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
                 reference,
                 reference_span,
                 unit,
-                value: inst.and_then(|i| i.value.clone()).filter(|_| !modern),
-                footprint: inst.and_then(|i| i.footprint.clone()).filter(|_| !modern),
+                value: inst
+                    .and_then(|i| i.value.clone())
+                    .filter(|_| !modern)
+                    .map(|(v, s)| {
+                        let s = own_span("Value", &v, s);
+                        (v, s)
+                    }),
+                footprint: inst
+                    .and_then(|i| i.footprint.clone())
+                    .filter(|_| !modern)
+                    .map(|(v, s)| {
+                        let s = own_span("Footprint", &v, s);
+                        (v, s)
+                    }),
                 listed,
             });
         }

@@ -272,7 +272,7 @@ pub fn sniff(text: &str) -> Option<Diag> {
         return Some(
             Diag::error("wrong-format", "this is a legacy KiCad schematic (`.sch`, \"EESchema Schematic File\"), not a netlist")
                 .at(span, "schematic header")
-                .with_help("open it in KiCad and export a netlist (File > Export > Netlist, KiCad format), then check the `.net` file"),
+                .with_help("export a netlist from it (File > Export > Netlist, KiCad format) and check the `.net` file, or open and save the project in KiCad 6 or newer and check its `.kicad_sch`"),
         );
     }
     let compact: String = first_line
