@@ -7,10 +7,10 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 #[command(
     name = "netmargin",
     version,
-    about = "Checks KiCad netlists for logic-family interface mistakes",
-    long_about = "Reads KiCad S-expression netlists (.net) and checks every net against the DC data of the \
+    about = "Checks KiCad netlists and schematics for logic-family interface mistakes",
+    long_about = "Reads KiCad S-expression netlists (.net) or KiCad 6-9 schematics (.kicad_sch) and checks every net against the DC data of the \
 logic families on it: floating CMOS inputs, fan-out, TTL highs into CMOS inputs, open-collector pull-ups and more.",
-    after_help = "Examples:\n  netmargin check board.net\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
+    after_help = "Examples:\n  netmargin check board.net\n  netmargin check board.kicad_sch\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
 )]
 pub struct Cli {
     #[command(subcommand)]
@@ -218,8 +218,9 @@ pub enum ListFormat {
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Netlist files or folders (folders are searched for `*.net`, honouring .gitignore); `-` reads
-    /// standard input
+    /// Netlists, KiCad 6-9 schematics (a sheet stands for its project's root sheet) or folders
+    /// (searched for `*.net` and `*.kicad_sch`, each project's root sheet once, honouring
+    /// .gitignore); `-` reads a netlist from standard input
     #[arg(required = true, value_name = "PATH")]
     pub paths: Vec<String>,
     /// Exit with 1 when a finding at or above this severity is reported
