@@ -129,3 +129,68 @@ fn a_sub_sheet_stands_for_its_project() {
     ]);
     assert_eq!(paths, ["fixtures/schematics/hierarchy/tally.kicad_sch"]);
 }
+
+/// Damaged sheets never panic and every diagnostic stays inside the text: each fixture
+/// sheet cut short at many places, and with single characters that matter replaced
+/// (parentheses, quotes, digits), read as a one-sheet project.
+#[test]
+fn damaged_sheets_give_diagnostics_not_panics() {
+    let mut sheets: Vec<PathBuf> = Vec::new();
+    for e in std::fs::read_dir("fixtures/schematics").unwrap().flatten() {
+        for f in std::fs::read_dir(e.path()).into_iter().flatten().flatten() {
+            if f.path().extension().is_some_and(|x| x == "kicad_sch") {
+                sheets.push(f.path());
+            }
+        }
+    }
+    sheets.sort();
+    let mut runs = 0;
+    let read = |text: String| match netmargin::schematic::load::single("damaged.kicad_sch", text) {
+        Err(f) => {
+            if let Some(src) = &f.source {
+                for l in &f.diag.labels {
+                    assert!(l.span.start <= l.span.end && l.span.end as usize <= src.text().len());
+                }
+            }
+        }
+        Ok(files) => {
+            let len = files.source.text().len();
+            let diags = match netmargin::schematic::read(&files) {
+                Ok(nl) => nl.diagnostics,
+                Err(d) => vec![d],
+            };
+            for d in diags {
+                for l in &d.labels {
+                    assert!(
+                        l.span.start <= l.span.end && l.span.end as usize <= len,
+                        "{d:?}"
+                    );
+                }
+            }
+        }
+    };
+    for p in &sheets {
+        let text = std::fs::read_to_string(p).unwrap();
+        let step = (text.len() / 150).max(1);
+        for cut in (0..text.len()).step_by(step) {
+            if text.is_char_boundary(cut) {
+                read(text[..cut].to_string());
+                runs += 1;
+            }
+        }
+        for (i, c) in text.char_indices().step_by(step) {
+            let swap = match c {
+                '(' => ")",
+                ')' => "(",
+                '"' => "x",
+                '0'..='9' => "-",
+                _ => continue,
+            };
+            let mut t = text.clone();
+            t.replace_range(i..i + 1, swap);
+            read(t);
+            runs += 1;
+        }
+    }
+    assert!(runs > 1000, "{runs}");
+}

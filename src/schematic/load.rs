@@ -415,3 +415,18 @@ pub fn project_root(sheet: &Path) -> PathBuf {
         dir.join(cur)
     }
 }
+
+/// A project of one sheet given as text (standard input, fuzzing, tests): its sub-sheets,
+/// which would be found beside its file, are left out.
+pub fn single(name: &str, text: String) -> Result<Files, Box<Failed>> {
+    if let Some(d) = sniff_sheet(&text) {
+        return Err(Box::new(Failed {
+            diag: d,
+            source: Some(SourceFile::from_string(name, text)),
+        }));
+    }
+    Ok(Files {
+        source: SourceFile::from_files(name, vec![(name.to_string(), text)]),
+        names: vec![name.to_string()],
+    })
+}
