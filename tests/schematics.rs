@@ -194,3 +194,23 @@ fn damaged_sheets_give_diagnostics_not_panics() {
     }
     assert!(runs > 1000, "{runs}");
 }
+
+/// The benchmark's synthetic schematic reads into the nets it is built with: the labelled
+/// chain and one inner net per cell, every resistor pin on a net.
+#[test]
+fn the_synthetic_schematic_reads_into_its_nets() {
+    let (text, nets) = netmargin::synth::schematic(60_000);
+    let files = netmargin::schematic::load::single("synthetic.kicad_sch", text).unwrap();
+    let nl = netmargin::schematic::read(&files).unwrap();
+    assert_eq!(nl.nets.len(), nets);
+    // only the two ends of the chain (N0 and the last label) hold a single pin
+    assert_eq!(nl.summary().pins_on_no_net, 2);
+    // N0 holds the first resistor's outer pin alone; N1 joins cell 0's last pin to cell 1's first
+    let n1 = nl.net_by_name("/N1").expect("/N1");
+    let pins: Vec<String> = nl.nets[n1]
+        .nodes
+        .iter()
+        .map(|n| format!("{}.{}", n.reference, n.pin))
+        .collect();
+    assert_eq!(pins, ["R1.2", "R2.1"]);
+}
