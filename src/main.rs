@@ -109,13 +109,15 @@ fn run(cli: Cli) -> std::io::Result<u8> {
                 human::write_file(&mut stderr.lock(), &eh, f)?;
                 Ok(2)
             };
-            let source = match pipeline::open_source(&args.path, &opts) {
-                Ok(s) => s,
+            // a netlist or a schematic's root sheet
+            let cap = match netmargin::capture::Capture::open(&args.path, &opts) {
+                Ok(c) => c,
                 Err(f) => return fail(&f),
             };
-            let nl = match netmargin::netlist::read(source.text()) {
+            let source = cap.source();
+            let nl = match cap.model() {
                 Ok(nl) => nl,
-                Err(d) => return fail(&pipeline::fatal_outcome(&source, d)),
+                Err(f) => return fail(&f),
             };
             let cl = netmargin::classify::classifier::classify(&nl, &rules);
             netmargin::report::parts::write_parts(
@@ -151,13 +153,15 @@ fn run(cli: Cli) -> std::io::Result<u8> {
                 human::write_file(&mut stderr.lock(), &eh, f)?;
                 Ok(2)
             };
-            let source = match pipeline::open_source(&args.path, &opts) {
-                Ok(s) => s,
+            // a netlist or a schematic's root sheet
+            let cap = match netmargin::capture::Capture::open(&args.path, &opts) {
+                Ok(c) => c,
                 Err(f) => return fail(&f),
             };
-            let nl = match netmargin::netlist::read(source.text()) {
+            let source = cap.source();
+            let nl = match cap.model() {
                 Ok(nl) => nl,
-                Err(d) => return fail(&pipeline::fatal_outcome(&source, d)),
+                Err(f) => return fail(&f),
             };
             let rules = netmargin::classify::classifier::Rules::builtin();
             let cl = netmargin::classify::classifier::classify(&nl, &rules);
