@@ -340,7 +340,11 @@ pub fn sniff(text: &str) -> Option<Diag> {
         )
     };
     match head {
-        "kicad_sch" => wrong("a KiCad schematic (`.kicad_sch`)"),
+        "kicad_sch" => Some(
+            Diag::error("wrong-format", "this is a KiCad schematic (`.kicad_sch`); this command reads a netlist")
+                .at(hspan, "this file's kind")
+                .with_help("`check`, `nets`, `compare`, `parts` and `net` read schematics; for this command export a netlist (KiCad: File > Export > Netlist, or `kicad-cli sch export netlist board.kicad_sch`)"),
+        ),
         "kicad_pcb" => wrong("a KiCad board layout (`.kicad_pcb`)"),
         "kicad_symbol_lib" => wrong("a KiCad symbol library (`.kicad_sym`)"),
         "footprint" | "module" => wrong("a KiCad footprint (`.kicad_mod`)"),
