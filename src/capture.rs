@@ -7,62 +7,37 @@ use std::io::{self, Write};
 
 use serde::Serialize;
 
-use crate::diag::Diag;
+use crate::input::ReadOptions;
 use crate::netlist::{self, Netlist};
-use crate::pipeline::{self, FileOutcome, ReadOptions};
-use crate::schematic::{self, load::Files};
+use crate::pipeline::{self, FileOutcome};
+use crate::schematic;
 use crate::source::SourceFile;
 use crate::text::sanitize;
 
-/// The text of a capture, kept so its model can borrow it.
-pub enum Capture {
-    Netlist(SourceFile),
-    Schematic(Files),
-}
+/// The text of a capture (a netlist, or a schematic project's sheets joined), kept so its
+/// model can borrow it.
+pub struct Capture(SourceFile);
 
 impl Capture {
-    /// Reads `path` (a netlist, `-` for standard input, or a schematic's root sheet).
-    /// `Err` is an outcome carrying the fatal diagnostic, shown as `check` shows it.
+    /// Reads `path` (a netlist, `-` for standard input, or a schematic's root sheet or any of
+    /// its sheets' project root). `Err` is an outcome carrying the fatal diagnostic, shown as
+    /// `check` shows it.
     pub fn open(path: &str, opts: &ReadOptions) -> Result<Capture, Box<FileOutcome>> {
-        let name = if path == "-" { "<stdin>" } else { path };
-        let fail = |fatal: Diag, source: Option<SourceFile>| {
-            Box::new(FileOutcome {
-                name: name.to_string(),
-                source,
-                fatal: Some(fatal),
-                diags: Vec::new(),
-                summary: Default::default(),
-                coverage: None,
-                waived: 0,
-            })
-        };
-        let bytes = pipeline::read_bytes(path, opts).map_err(|d| fail(d, None))?;
-        let source = crate::input::load(name, bytes).map_err(|e| fail(e.diag, Some(e.source)))?;
-        if schematic::is_sheet(source.text()) {
-            return pipeline::open_schematic(path, opts.max_bytes)
-                .map(Capture::Schematic)
-                .map_err(|f| fail(f.diag, f.source));
-        }
-        if let Some(d) = crate::sexpr::sniff(source.text()) {
-            return Err(fail(d, Some(source)));
-        }
-        Ok(Capture::Netlist(source))
+        pipeline::open_source(path, opts).map(Capture)
     }
 
     pub fn source(&self) -> &SourceFile {
-        match self {
-            Capture::Netlist(s) => s,
-            Capture::Schematic(f) => &f.source,
-        }
+        &self.0
     }
 
     /// The model; `Err` is an outcome for a capture that could not be modelled.
     pub fn model(&self) -> Result<Netlist<'_>, Box<FileOutcome>> {
-        let r = match self {
-            Capture::Netlist(s) => netlist::read(s.text()),
-            Capture::Schematic(f) => schematic::read(f),
+        let r = if schematic::is_sheet(self.0.text()) {
+            schematic::read_source(&self.0)
+        } else {
+            netlist::read(self.0.text())
         };
-        r.map_err(|d| Box::new(pipeline::fatal_outcome(self.source(), d)))
+        r.map_err(|d| Box::new(pipeline::fatal_outcome(&self.0, d)))
     }
 }
 

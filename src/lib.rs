@@ -5,7 +5,7 @@
 //! Data flows one way: text -> [`sexpr`] (syntax tree with spans) -> [`netlist`] (the
 //! netlist model) -> [`classify`] (families, functions, pin roles) -> checks -> reports.
 
-pub mod app;
+pub mod analysis;
 pub mod atomic;
 pub mod audit;
 pub mod baseline;
@@ -14,6 +14,7 @@ pub mod checks;
 pub mod circuit;
 pub mod classify;
 pub mod cli;
+pub mod commands;
 pub mod config;
 pub mod diag;
 pub mod input;

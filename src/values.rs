@@ -1029,3 +1029,21 @@ mod tests {
         assert_eq!(err("-0"), ValueError::Negative("-0".into()));
     }
 }
+
+#[cfg(test)]
+mod preferred_value_tests {
+    use super::*;
+
+    // IEC 60063 E12 and E3 steps
+    #[test]
+    fn series_values_round_to_the_neighbours() {
+        assert_eq!(series_at_most(1000.0, &E12), Some(1000.0));
+        assert_eq!(series_at_most(999.0, &E12), Some(820.0));
+        assert_eq!(series_at_most(4700.0, &E12), Some(4700.0));
+        assert_eq!(series_at_least(437.5, &E12), Some(470.0));
+        assert_eq!(series_at_least(821.0, &E12), Some(1000.0));
+        assert_eq!(series_at_most(125e3, &E3), Some(100e3));
+        assert_eq!(series_at_most(0.0, &E12), None);
+        assert_eq!(series_at_most(f64::INFINITY, &E12), None);
+    }
+}

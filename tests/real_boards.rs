@@ -138,6 +138,9 @@ struct Row {
     after_w: usize,
     after_i: usize,
     false_errors: usize,
+    /// Warnings the review called false or debatable (they should be info or gone).
+    false_warnings: usize,
+    debatable: usize,
     true_total: usize,
     true_kept: usize,
     misses_total: usize,
@@ -190,11 +193,22 @@ fn real_boards_against_the_review() {
                 "warning" => row.after_w += 1,
                 _ => row.after_i += 1,
             }
+            if f.severity == "warning" {
+                let k = key(&f.check, &f.pins, f.net.as_deref());
+                if let Some(ls) = labels.get(&k) {
+                    if ls.iter().all(|l| *l == "F") {
+                        row.false_warnings += 1;
+                    } else if ls.iter().all(|l| *l == "D") {
+                        row.debatable += 1;
+                    }
+                }
+            }
             if f.severity != "error" {
                 continue;
             }
             let k = key(&f.check, &f.pins, f.net.as_deref());
             match labels.get(&k) {
+                Some(ls) if ls.iter().all(|l| *l == "D") => row.debatable += 1,
                 Some(ls) if ls.iter().all(|l| *l == "F") => {
                     row.false_errors += 1;
                     problems.push(format!(
@@ -282,19 +296,30 @@ fn real_boards_against_the_review() {
     }
 
     println!(
-        "\n{:<36} {:>9} {:>9} {:>6} {:>7} {:>9} {:>8} {:>9}",
-        "board", "E before", "W before", "E now", "W now", "false E", "T kept", "misses"
+        "\n{:<36} {:>9} {:>9} {:>6} {:>7} {:>7} {:>8} {:>8} {:>8} {:>9}",
+        "board",
+        "E before",
+        "W before",
+        "E now",
+        "W now",
+        "I now",
+        "false E",
+        "F/D W+E",
+        "T kept",
+        "misses"
     );
     let mut tot = Row::default();
     for (name, r) in &rows {
         println!(
-            "{:<36} {:>9} {:>9} {:>6} {:>7} {:>9} {:>8} {:>9}",
+            "{:<36} {:>9} {:>9} {:>6} {:>7} {:>7} {:>8} {:>8} {:>8} {:>9}",
             name,
             r.before_e,
             r.before_w,
             r.after_e,
             r.after_w,
+            r.after_i,
             r.false_errors,
+            format!("{}/{}", r.false_warnings, r.debatable),
             format!("{}/{}", r.true_kept, r.true_total),
             format!("{}/{}", r.misses_found, r.misses_total)
         );
@@ -303,6 +328,9 @@ fn real_boards_against_the_review() {
         tot.after_e += r.after_e;
         tot.after_w += r.after_w;
         tot.false_errors += r.false_errors;
+        tot.false_warnings += r.false_warnings;
+        tot.debatable += r.debatable;
+        tot.after_i += r.after_i;
         tot.true_kept += r.true_kept;
         tot.true_total += r.true_total;
         tot.misses_found += r.misses_found;
@@ -310,13 +338,15 @@ fn real_boards_against_the_review() {
         tot.new_errors += r.new_errors;
     }
     println!(
-        "{:<36} {:>9} {:>9} {:>6} {:>7} {:>9} {:>8} {:>9}",
+        "{:<36} {:>9} {:>9} {:>6} {:>7} {:>7} {:>8} {:>8} {:>8} {:>9}",
         "all",
         tot.before_e,
         tot.before_w,
         tot.after_e,
         tot.after_w,
+        tot.after_i,
         tot.false_errors,
+        format!("{}/{}", tot.false_warnings, tot.debatable),
         format!("{}/{}", tot.true_kept, tot.true_total),
         format!("{}/{}", tot.misses_found, tot.misses_total)
     );

@@ -123,7 +123,7 @@ fn a_sub_sheet_stands_for_its_project() {
         "fixtures/schematics/hierarchy/stage.kicad_sch",
     ));
     assert!(root.ends_with("tally.kicad_sch"), "{}", root.display());
-    let paths = netmargin::app::expand_paths(&[
+    let paths = netmargin::commands::check::expand_paths(&[
         "fixtures/schematics/hierarchy/stage.kicad_sch".to_string(),
         "fixtures/schematics/hierarchy".to_string(),
     ]);

@@ -14,6 +14,14 @@
 //! Fix: split the load across two outputs, or buffer it with a bus driver (a 74LS244 sinks
 //! 24 mA), or use a family whose inputs draw less (74HCT inputs draw about 1 uA).
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "fanout-overrun",
+    severity: crate::diag::Severity::Error,
+    summary: "an output's low- or high-state current budget exceeds its rating (or the derating)",
+};
+
 use super::common::pct;
 use super::Context;
 use crate::diag::{Diag, Severity};

@@ -12,6 +12,14 @@
 //! a resistor (1 kOhm, up to about 25 inputs per resistor) for standard TTL whose inputs
 //! must not see more than 5.5 V; or tie them to a used input of the same gate.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "floating-ttl-input",
+    severity: crate::diag::Severity::Warning,
+    summary: "a TTL input left open: it floats high on the bench and picks up noise in service",
+};
+
 use super::common::{agree, floating_inputs, pin_list, supply_rail_name, Float};
 use super::Context;
 use crate::diag::Diag;

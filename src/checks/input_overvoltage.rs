@@ -21,6 +21,14 @@
 //! load's supply whose inputs take the higher level, use a tolerant family for the load, or
 //! pull up (or tie) to the load's own supply.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "input-overvoltage",
+    severity: crate::diag::Severity::Error,
+    summary: "a driver's high level above what a load's input can take at its supply",
+};
+
 use std::collections::BTreeMap;
 
 use super::common::{pin_list, supply_rail_name};

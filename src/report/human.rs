@@ -34,15 +34,112 @@ pub fn handler(style: HumanStyle) -> GraphicalReportHandler {
         .with_width(style.width)
 }
 
+/// Labels further apart than this many lines are shown as separate excerpts, with the lines
+/// between left out, instead of one excerpt of every line between them.
+pub const EXCERPT_GAP_LINES: usize = 8;
+
 /// Renders one diagnostic against its source. miette prints source lines as they are: pass
-/// the source through [`safe_source`] first (once per file).
+/// the source through [`safe_source`] first (once per file). Labels far apart are shown as
+/// one excerpt each, the primary one first, with a marker that says how many lines were left
+/// out between them.
 pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
+    let groups = label_groups(diag, source);
+    if groups.len() <= 1 {
+        return render_one(h, diag, source);
+    }
+    let pick = |g: &[usize]| {
+        g.iter()
+            .map(|&i| diag.labels[i].clone())
+            .collect::<Vec<_>>()
+    };
+    // the help comes after the last excerpt
+    let main = Diag {
+        labels: pick(&groups[0].1),
+        help: None,
+        ..diag.clone()
+    };
+    let mut s = render_one(h, &main, source);
+    for (i, (lines, g)) in groups.iter().enumerate().skip(1) {
+        let primary = groups[0].0;
+        let message = if lines.0 > primary.1 {
+            // after the primary excerpt: the lines between it and the excerpt shown before it
+            let prev_end = groups
+                .iter()
+                .take(i)
+                .map(|(l, _)| l.1)
+                .filter(|&end| end < lines.0)
+                .max()
+                .unwrap_or(primary.1);
+            format!(
+                "... {} lines left out; continued at line {} ...",
+                lines.0 - prev_end - 1,
+                lines.0
+            )
+        } else {
+            format!(
+                "... and above it, at line {} ({} lines before line {}) ...",
+                lines.0,
+                primary.0 - lines.1 - 1,
+                primary.0
+            )
+        };
+        let part = Diag {
+            code: String::new(),
+            severity: crate::diag::Severity::Info,
+            message,
+            labels: pick(g),
+            help: if i + 1 == groups.len() {
+                diag.help.clone()
+            } else {
+                None
+            },
+            net: None,
+            pins: Vec::new(),
+        };
+        s.push_str(&render_one(h, &part, source));
+    }
+    s
+}
+
+fn render_one(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
     let mut s = String::new();
     let r = Rendered { diag, source };
     if h.render_report(&mut s, &r).is_err() {
         s = format!("{}: {}\n", diag.severity, sanitize(&diag.message));
     }
     s
+}
+
+/// The labels in groups of nearby lines: ((first line, last line), label indices), the
+/// primary label's group first, the rest in file order.
+fn label_groups(diag: &Diag, source: &SourceFile) -> Vec<((usize, usize), Vec<usize>)> {
+    let len = source.text().len();
+    let line = |off: u32| source.line_index((off as usize).min(len)) + 1;
+    let mut order: Vec<(usize, usize, usize)> = diag
+        .labels
+        .iter()
+        .enumerate()
+        .map(|(i, l)| (line(l.span.start), line(l.span.end.max(l.span.start)), i))
+        .collect();
+    order.sort();
+    let mut groups: Vec<((usize, usize), Vec<usize>)> = Vec::new();
+    for (a, b, i) in order {
+        match groups.last_mut() {
+            Some((lines, g)) if a <= lines.1 + EXCERPT_GAP_LINES => {
+                lines.1 = lines.1.max(b);
+                g.push(i);
+            }
+            _ => groups.push(((a, b), vec![i])),
+        }
+    }
+    if let Some(p) = groups
+        .iter()
+        .position(|(_, g)| g.iter().any(|&i| diag.labels[i].primary))
+    {
+        let first = groups.remove(p);
+        groups.insert(0, first);
+    }
+    groups
 }
 
 /// The source as it may be shown on a terminal: the same text, byte for byte the same
@@ -108,9 +205,26 @@ fn write_file_with(
     let shown = safe_source(source);
     let source: &SourceFile = &shown;
     if let Some(d) = &f.fatal {
-        write!(out, "{}", render(h, d, source))?;
+        // a configuration or baseline holds every problem found in it: show them all
+        for d in std::iter::once(d).chain(&f.diags) {
+            write!(out, "{}", render(h, d, source))?;
+        }
         if !quiet {
-            writeln!(out, "{}: not checked: {}", sanitize(&f.name), d.code)?;
+            // a configuration, mapping file or baseline (a netlist stopped by its
+            // configuration's errors has no source of its own)
+            let settings_file = matches!(d.code.as_str(), "config" | "mapping-file" | "baseline")
+                && f.source.is_some();
+            if settings_file {
+                let n = 1 + f.diags.len();
+                writeln!(
+                    out,
+                    "{}: cannot be used: {n} problem{}",
+                    sanitize(&f.name),
+                    if n == 1 { "" } else { "s" }
+                )?;
+            } else {
+                writeln!(out, "{}: not checked: {}", sanitize(&f.name), d.code)?;
+            }
         }
         return Ok(());
     }
@@ -168,7 +282,11 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
         write_file_with(out, &h, f, opts.quiet)?;
     }
     if !opts.quiet {
-        writeln!(out, "{}", run_summary(&Totals::of(files)))?;
+        writeln!(
+            out,
+            "{}",
+            run_summary(&Totals::of_run(files, opts.netlists))
+        )?;
     }
     Ok(())
 }

@@ -258,13 +258,25 @@ pub fn read_files(root: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
     Ok(Files { source, names })
 }
 
-/// Parses the joined files into sheets and lays out the uses of sheets from the root.
-pub fn project<'a>(files: &'a Files) -> Result<Project<'a>, Diag> {
-    let text = files.source.text();
-    let mut sheets = Vec::with_capacity(files.names.len());
+/// Parses the joined files into sheets and lays out the uses of sheets from the root. A
+/// source of one file (not made by [`read_files`]) is a project of one sheet.
+pub fn project(source: &SourceFile) -> Result<Project<'_>, Diag> {
+    let text = source.text();
+    let one = [crate::source::FilePart {
+        name: source.name().into(),
+        start: 0,
+        len: text.len() as u32,
+    }];
+    let parts: &[crate::source::FilePart] = if source.files().is_empty() {
+        &one
+    } else {
+        source.files()
+    };
+    let names: Vec<&str> = parts.iter().map(|p| &*p.name).collect();
+    let mut sheets = Vec::with_capacity(parts.len());
     let mut diags = Vec::new();
     let mut index_of: HashMap<&str, usize> = HashMap::default();
-    for (i, part) in files.source.files().iter().enumerate() {
+    for (i, part) in parts.iter().enumerate() {
         let start = part.start as usize;
         let own = &text[start..start + part.len as usize];
         let tree = sexpr::parse(own).map_err(|d| shift(d, part.start))?;
@@ -274,10 +286,10 @@ pub fn project<'a>(files: &'a Files) -> Result<Project<'a>, Diag> {
         };
         let sheet = reader.sheet(&mut diags)?;
         sheets.push(sheet);
-        index_of.insert(files.names[i].as_str(), i);
+        index_of.insert(names[i], i);
     }
     // uses, depth first from the root; recursion is an error at the sheet symbol
-    let root_dir = Path::new(&files.names[0])
+    let root_dir = Path::new(names[0])
         .parent()
         .map(Path::to_path_buf)
         .unwrap_or_default();
@@ -291,7 +303,7 @@ pub fn project<'a>(files: &'a Files) -> Result<Project<'a>, Diag> {
     while let Some(u) = stack.pop() {
         let file = uses[u].file;
         for (si, s) in sheets[file].sheets.iter().enumerate() {
-            let p = display(&resolve(&root_dir, &files.names[file], &s.file));
+            let p = display(&resolve(&root_dir, names[file], &s.file));
             let Some(&child) = index_of.get(p.as_str()) else {
                 continue;
             };
@@ -303,7 +315,7 @@ pub fn project<'a>(files: &'a Files) -> Result<Project<'a>, Diag> {
                         "recursive-sheet",
                         format!(
                             "sheet `{}` uses `{}`, which is already above it in the hierarchy: the sheets recurse",
-                            files.names[file], files.names[child]
+                            names[file], names[child]
                         ),
                     )
                     .at(s.file_span, "this sheet symbol's file")

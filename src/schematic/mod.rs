@@ -153,8 +153,13 @@ fn join_key<'s>(dsu: &mut Dsu, keys: &mut HashMap<Key<'s>, usize>, k: Key<'s>, x
 
 /// Reads the loaded files into the netlist model.
 pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
-    let text = files.source.text();
-    let project = load::project(files)?;
+    read_source(&files.source)
+}
+
+/// Reads a project's joined sheets (or a single sheet's text) into the netlist model.
+pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
+    let text = source.text();
+    let project = load::project(source)?;
     let mut diags = project.diags.clone();
     let modern = project.sheets[0].version >= KICAD7;
 
