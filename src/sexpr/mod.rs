@@ -341,9 +341,9 @@ pub fn sniff(text: &str) -> Option<Diag> {
     };
     match head {
         "kicad_sch" => Some(
-            Diag::error("wrong-format", "this is a KiCad schematic (`.kicad_sch`); this command reads a netlist")
+            Diag::error("wrong-format", "this is a KiCad schematic (`.kicad_sch`) given where a netlist was read")
                 .at(hspan, "this file's kind")
-                .with_help("`check`, `nets`, `compare`, `parts` and `net` read schematics; for this command export a netlist (KiCad: File > Export > Netlist, or `kicad-cli sch export netlist board.kicad_sch`)"),
+                .with_help("give netmargin the sheet's path: it reads KiCad 6-9 schematic projects from their files (standard input is read as one sheet)"),
         ),
         "kicad_pcb" => wrong("a KiCad board layout (`.kicad_pcb`)"),
         "kicad_symbol_lib" => wrong("a KiCad symbol library (`.kicad_sym`)"),
