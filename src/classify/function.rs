@@ -302,13 +302,14 @@ fn role_from(s: &Spanned<String>, errors: &mut Vec<RuleError>) -> Option<PinRole
         "analog" => PinRole::Analog,
         "passive" => PinRole::Passive,
         "no-connect" => PinRole::NoConnect,
+        "unknown" => PinRole::Unknown,
         other => {
             errors.push(RuleError::new(
                 Some(s.span()),
                 format!(
                     "unknown pin role `{other}`: expected one of input, schmitt-input, push-pull, \
                      open-collector, open-emitter, three-state, bidirectional, supply, ground, \
-                     pulled-up-io, analog, passive, no-connect"
+                     pulled-up-io, analog, passive, no-connect, unknown"
                 ),
             ));
             return None;
