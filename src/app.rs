@@ -359,9 +359,11 @@ pub fn init_facts(
             if facts.rails.iter().any(|r| r.name == name) {
                 continue;
             }
+            // an inferred voltage is for the user to confirm: the starter asks for it
+            let inferred = cx.rail_notes.iter().any(|n| n.net == i && n.why.is_some());
             facts.rails.push(RailSeen {
                 name,
-                volts: rail.v(),
+                volts: if inferred { None } else { rail.v() },
                 ground: rail.ground,
                 pins: nl.nets[i].nodes.len(),
             });

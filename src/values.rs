@@ -209,6 +209,55 @@ pub fn parse_resistance(text: &str) -> Result<Resistance, ValueError> {
 /// assert_eq!((n.ohms, n.elements), (4700.0, Some(8)));
 /// assert_eq!(parse_network("10k").unwrap().elements, None);
 /// ```
+// ---------------------------------------------------------------------------
+// preferred values (IEC 60063)
+
+/// The E12 series (IEC 60063), one decade.
+pub const E12: [f64; 12] = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2];
+/// The 1 - 2.2 - 4.7 steps (E3, IEC 60063), the usual choice for pull resistors.
+pub const E3: [f64; 3] = [1.0, 2.2, 4.7];
+
+fn series_values(r: f64, series: &[f64]) -> impl Iterator<Item = f64> + '_ {
+    let decade = if r > 0.0 && r.is_finite() {
+        r.log10().floor() as i32
+    } else {
+        0
+    };
+    (decade - 1..=decade + 1)
+        .flat_map(move |d| series.iter().map(move |m| round_value(m * 10f64.powi(d))))
+}
+
+/// Removes the rounding noise of `m x 10^d` (4.7 x 1000 = 4700.000000000001).
+fn round_value(x: f64) -> f64 {
+    let scale = 10f64.powi(x.log10().floor() as i32 - 3);
+    (x / scale).round() * scale
+}
+
+/// The largest value of `series` (any decade) not above `r`.
+pub fn series_at_most(r: f64, series: &[f64]) -> Option<f64> {
+    if !r.is_finite() || r <= 0.0 {
+        return None;
+    }
+    series_values(r, series)
+        .filter(|v| *v <= r * (1.0 + 1e-9))
+        .reduce(f64::max)
+}
+
+/// The smallest value of `series` (any decade) not below `r`.
+pub fn series_at_least(r: f64, series: &[f64]) -> Option<f64> {
+    if !r.is_finite() || r <= 0.0 {
+        return None;
+    }
+    series_values(r, series)
+        .filter(|v| *v >= r * (1.0 - 1e-9))
+        .reduce(f64::min)
+}
+
+/// Between 2 and 16: an element count of a resistor network rather than a resistance.
+fn plausible_count(t: &str) -> bool {
+    t.parse::<u32>().is_ok_and(|n| (2..=16).contains(&n))
+}
+
 pub fn parse_network(text: &str) -> Result<ResistorNetwork, ValueError> {
     let chars: Vec<char> = text.chars().collect();
     let mut count: Option<u32> = None;
@@ -226,6 +275,9 @@ pub fn parse_network(text: &str) -> Result<ResistorNetwork, ValueError> {
         let right_int = right.chars().all(|c| c.is_ascii_digit());
         let (count_text, value) = match (left_int, right_int) {
             (false, false) => continue,
+            // `330x8`: a count is a handful of elements, a resistance in bare ohms is not
+            (true, true) if plausible_count(&right) && !plausible_count(&left) => (right, left),
+            (true, true) if plausible_count(&left) && !plausible_count(&right) => (left, right),
             (true, true) => {
                 return Err(ValueError::Ambiguous {
                     text: text.to_string(),
@@ -244,7 +296,16 @@ pub fn parse_network(text: &str) -> Result<ResistorNetwork, ValueError> {
         value_text = format!("{before}{value}{after}");
         break;
     }
-    let r = parse_resistance(&value_text).map_err(|e| rename_text(e, text))?;
+    // `47k_Pack05_SIP`: a library-style name whose first word is the resistance
+    let r = match parse_resistance(&value_text) {
+        Ok(r) => r,
+        Err(e) => match value_text.split_once('_') {
+            Some((head, _)) if !head.is_empty() && !matches!(e, ValueError::NotFitted(_)) => {
+                parse_resistance(head).map_err(|_| rename_text(e, text))?
+            }
+            _ => return Err(rename_text(e, text)),
+        },
+    };
     let from_pins = elements_from_pins(text)?;
     let elements = match (count, from_pins) {
         (Some(c), Some(p)) if c != p => {
@@ -966,5 +1027,23 @@ mod tests {
         );
         assert_eq!(err("4K7 K"), ValueError::TwoMultipliers("4K7 K".into()));
         assert_eq!(err("-0"), ValueError::Negative("-0".into()));
+    }
+}
+
+#[cfg(test)]
+mod preferred_value_tests {
+    use super::*;
+
+    // IEC 60063 E12 and E3 steps
+    #[test]
+    fn series_values_round_to_the_neighbours() {
+        assert_eq!(series_at_most(1000.0, &E12), Some(1000.0));
+        assert_eq!(series_at_most(999.0, &E12), Some(820.0));
+        assert_eq!(series_at_most(4700.0, &E12), Some(4700.0));
+        assert_eq!(series_at_least(437.5, &E12), Some(470.0));
+        assert_eq!(series_at_least(821.0, &E12), Some(1000.0));
+        assert_eq!(series_at_most(125e3, &E3), Some(100e3));
+        assert_eq!(series_at_most(0.0, &E12), None);
+        assert_eq!(series_at_most(f64::INFINITY, &E12), None);
     }
 }

@@ -346,7 +346,7 @@ fn gone_entries_are_reported_so_the_baseline_can_be_tightened() {
     );
     let lines = short_lines(&o);
     assert_eq!(lines.len(), 2, "{lines:?}");
-    assert_eq!(lines[0], "netmargin-baseline.json:5:5: info: hardware/counter-timer.net: 2 of its 24 baseline entries match no finding now [stale-baseline]");
+    assert_eq!(lines[0], "netmargin-baseline.json:5:5: info: hardware/counter-timer.net: 2 of its 25 baseline entries match no finding now [stale-baseline]");
     assert!(lines[1].ends_with(": info: hardware/hobby.net: 1 of its 2 baseline entries match no finding now [stale-baseline]"), "{}", lines[1]);
     // --verbose: one line per entry, at its fingerprint
     let o = run_in(
@@ -507,7 +507,7 @@ fn init_writes_a_starter_that_loads_and_refuses_to_overwrite() {
     let s = project("init");
     let o = run_in(&s.0, &["init", "hardware/counter-timer.net"]);
     assert_eq!(o.status.code(), Some(0), "{}", err(&o));
-    assert_eq!(out(&o), "wrote netmargin.toml: 3 supply rails (0 without a voltage to set), 3 connectors to review\n");
+    assert_eq!(out(&o), "wrote netmargin.toml: 4 supply rails (1 without a voltage to set), 3 connectors to review\n");
     let text = std::fs::read_to_string(s.path("netmargin.toml")).unwrap();
     // the demo's rails with the voltages their names state, its connectors commented
     for line in [

@@ -143,9 +143,19 @@ fn floating_bus_fixture() {
     // a pull-down, TTL loads only, an enable tied on and a push-pull driver keep the others quiet
     assert_eq!(
         nets(&d),
-        set(&["/SELA", "/SELB", "/SELC", "/DATA0", "/SELM"])
+        set(&["/SELA", "/SELB", "/SELC", "/DATA0", "/SELM", "/LATCH_CLK"])
     );
-    assert!(d.iter().all(|x| x.severity == Severity::Warning));
+    // a bus that floats between transfers is normal practice (info); it is a warning where a
+    // clock input (74HC74 1CLK) sits on it
+    for x in &d {
+        let want = if x.net.as_deref() == Some("/LATCH_CLK") {
+            Severity::Warning
+        } else {
+            Severity::Info
+        };
+        assert_eq!(x.severity, want, "{}", x.message);
+    }
+    says(on(&d, "/LATCH_CLK"), &["U7.3 clocks or latches on it"]);
     // 74HC244 IOZ 5 uA (National MM54HC242, 85 C), 74HC04 input 1 uA (onsemi MM74HC04),
     // VIL at 5.0 V 1.50 V (linear between MM74HC04's 1.35 V at 4.5 V and 1.8 V at 6.0 V):
     // 1.50 V / 6 uA = 250 kOhm; 100 kOhm holds 0.60 V

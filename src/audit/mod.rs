@@ -456,6 +456,8 @@ fn kind_name(k: PartKind) -> &'static str {
         PartKind::Led => "LEDs",
         PartKind::Diode => "diodes",
         PartKind::Connector => "connectors",
+        PartKind::Switch => "switches and jumpers",
+        PartKind::Inductor => "inductors and ferrite beads",
         PartKind::Other => "other parts",
     }
 }
@@ -684,6 +686,7 @@ fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {
                 RailSource::Name => "net name",
                 RailSource::PowerOutput => "power output",
                 RailSource::User => "declared",
+                RailSource::Usage => "supply pins on it",
             },
             pins: cx.nl.nets[i].nodes.len(),
             parts,

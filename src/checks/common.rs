@@ -16,6 +16,8 @@ pub enum Float {
     Alone(usize),
     /// On a net with nothing that sets a level: the other pins are inputs or passives.
     Undriven(usize),
+    /// On a net held only through one switch or jumper element: it floats when that is open.
+    SwitchOpen(usize, Vec<crate::circuit::SwitchLink>),
 }
 
 /// One floating input.
@@ -51,7 +53,8 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
         let mut by_unit: BTreeMap<String, Vec<Floating>> = BTreeMap::new();
         let mut found = Vec::new();
         for (pi, p) in c.pins.iter().enumerate() {
-            if !matches!(part.roles[pi], PinRole::Input | PinRole::SchmittInput) || p.no_connect {
+            // a no-connect flag silences the schematic editor; it does not tie the pin
+            if !matches!(cx.roles[ci][pi], PinRole::Input | PinRole::SchmittInput) {
                 continue;
             }
             let why = match p.connection {
@@ -59,10 +62,14 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
                 Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Float::Alone(net),
                 Connection::Net { net, .. } => {
                     let nm = &cx.nets[net];
-                    if nm.has_source() || !nm.unknown.is_empty() {
+                    if nm.has_source() {
                         continue;
                     }
-                    Float::Undriven(net)
+                    if nm.floats_open.is_empty() {
+                        Float::Undriven(net)
+                    } else {
+                        Float::SwitchOpen(net, nm.floats_open.clone())
+                    }
                 }
                 _ => continue,
             };
@@ -82,12 +89,12 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             let unit_inputs: Vec<usize> = (0..c.pins.len())
                 .filter(|&i| {
                     part.units[i].as_deref() == Some(unit.as_str())
-                        && matches!(part.roles[i], PinRole::Input | PinRole::SchmittInput)
+                        && matches!(cx.roles[ci][i], PinRole::Input | PinRole::SchmittInput)
                 })
                 .collect();
             let unit_outputs: Vec<PinRef> = (0..c.pins.len())
                 .filter(|&i| {
-                    part.units[i].as_deref() == Some(unit.as_str()) && part.roles[i].is_output()
+                    part.units[i].as_deref() == Some(unit.as_str()) && cx.roles[ci][i].is_output()
                 })
                 .map(|i| PinRef { comp: ci, pin: i })
                 .collect();
@@ -190,4 +197,18 @@ pub fn vih_supply_note(m: &crate::circuit::budget::LoadMargin) -> String {
             crate::values::format_volts(hi)
         )
     })
+}
+
+/// `J1` or `J1 and J3`: the switches a net is held through.
+pub fn switch_names(ctx: &Context<'_, '_, '_>, links: &[crate::circuit::SwitchLink]) -> String {
+    let mut refs: Vec<&str> = links
+        .iter()
+        .map(|l| ctx.cx.nl.components[l.part].reference.as_str())
+        .collect();
+    refs.dedup();
+    match refs.len() {
+        0 => String::new(),
+        1 => refs[0].to_string(),
+        n => format!("{} and {}", refs[..n - 1].join(", "), refs[n - 1]),
+    }
 }

@@ -18,13 +18,13 @@
 //! the bound and suggests a round value in the 100 kOhm class, half the bound or less.
 
 use super::common::{ground_rail_name, supply_rail_name};
-use super::output_contention::{gate, literal_text, Gate};
-use super::ttl_pull_down_too_large::{series_at_most, E3};
 use super::Context;
+use crate::circuit::enables::{gate, literal_text, Gate};
 use crate::circuit::{Circuit, PinRef};
 use crate::classify::PinRole;
 use crate::diag::Diag;
 use crate::values::{format_amps, format_ohms, format_volts};
+use crate::values::{series_at_most, E3};
 
 /// Pull resistors above this are slow to settle and pick up noise (common practice).
 const PULL_CAP_OHMS: f64 = 100e3;
@@ -127,16 +127,34 @@ fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
 }
 
 /// How one driver is turned off: `U17.1 (1OE~) on /ARM_HC is high`.
+/// `off when U4.1 (1OE~) on /EN_A is high`, `off always (its enable is tied off)`.
 fn off_text(cx: &Circuit<'_, '_>, p: PinRef) -> String {
     match gate(cx, p) {
-        Gate::When(l) => l
-            .iter()
-            .map(|x| literal_text(cx, p.comp, x, false))
-            .collect::<Vec<_>>()
-            .join(" or "),
-        Gate::Never => "always (its enable is tied off)".to_string(),
-        _ => "when disabled (its enable is not known)".to_string(),
+        Gate::When(l) => format!(
+            "off when {}",
+            l.iter()
+                .map(|x| literal_text(cx, p.comp, x, false))
+                .collect::<Vec<_>>()
+                .join(" or ")
+        ),
+        Gate::Never => "off always (its enable is tied off)".to_string(),
+        _ => "off when disabled (its enable is not known)".to_string(),
     }
+}
+
+/// True for a clock, strobe or latch-enable input by its function-table name (`CLK`,
+/// `1CLK`, `CKA`, `CP`, `LE`, `STB`, `SRCLK`): an edge or a transparent latch there acts on
+/// whatever a floating net reads.
+fn clocks(name: &str) -> bool {
+    let n = name.to_ascii_uppercase();
+    let n = n.trim_start_matches(|c: char| c.is_ascii_digit());
+    n.contains("CLK") && !n.contains("INH")
+        || n.starts_with("CK")
+        || n.starts_with("CP")
+        || n == "LE"
+        || n == "LE~"
+        || n.contains("STB")
+        || n.contains("CLOCK")
 }
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
@@ -159,7 +177,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let offs: Vec<String> = nm
             .drivers
             .iter()
-            .map(|d| format!("{} is off when {}", cx.pin_name(d.at), off_text(cx, d.at)))
+            .map(|d| format!("{} is {}", cx.pin_name(d.at), off_text(cx, d.at)))
             .collect();
         let loads: Vec<String> = cmos.iter().map(|p| cx.describe(*p)).collect();
         let name = cx.net_name(net);
@@ -219,22 +237,58 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             ),
             None => help,
         };
-        let mut d = Diag::warning("floating-bus", message)
-            .at(cx.pin_span(first), "floats when every driver is off")
-            .on_net(name)
-            .with_pins(
-                cmos.iter()
-                    .chain(nm.drivers.iter().map(|d| &d.at))
-                    .map(|p| cx.pin_name(*p)),
-            );
+        // a bus that floats between transfers is normal practice: it matters where an input
+        // on it clocks or latches, and only the enables tell when the net floats
+        let known = nm
+            .drivers
+            .iter()
+            .all(|d| !d.symbol_only && matches!(gate(cx, d.at), Gate::When(_) | Gate::Never));
+        let clocked: Vec<PinRef> = cmos
+            .iter()
+            .copied()
+            .filter(|p| {
+                cx.cl.parts[p.comp].table_names[p.pin]
+                    .as_deref()
+                    .is_some_and(clocks)
+            })
+            .collect();
+        let severe = known && !clocked.is_empty();
+        let message = if severe {
+            format!(
+                "{message}; {} {} on it, so an edge while it floats acts on noise",
+                clocked
+                    .iter()
+                    .map(|p| cx.pin_name(*p))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+                if clocked.len() == 1 {
+                    "clocks or latches"
+                } else {
+                    "clock or latch"
+                }
+            )
+        } else if !known {
+            format!("{message} (the drivers' enables are not known, so netmargin cannot tell when; a bus that floats between transfers is normal practice where nothing clocks on it)")
+        } else {
+            format!("{message} (a bus that floats between transfers is normal practice: no input on it clocks or latches)")
+        };
+        let mut d = if severe {
+            Diag::warning("floating-bus", message)
+        } else {
+            Diag::info("floating-bus", message)
+        }
+        .at(cx.pin_span(first), "floats when every driver is off")
+        .on_net(name)
+        .with_pins(
+            cmos.iter()
+                .chain(nm.drivers.iter().map(|d| &d.at))
+                .map(|p| cx.pin_name(*p)),
+        );
         for p in &cmos[1..] {
             d = d.also(cx.pin_span(*p), "floats too");
         }
         for drv in &nm.drivers {
-            d = d.also(
-                cx.pin_span(drv.at),
-                format!("off when {}", off_text(cx, drv.at)),
-            );
+            d = d.also(cx.pin_span(drv.at), off_text(cx, drv.at));
         }
         if let Some(&j) = nm.connectors.first() {
             d = d.also(cx.pin_span(j), "leaves the board");

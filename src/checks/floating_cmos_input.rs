@@ -74,6 +74,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ),
                 "connected to nothing".to_string(),
             ),
+            Float::SwitchOpen(net, ref l) => (
+                format!(
+                    "{} is on net `{}`, which only {} sets, and only while closed: in the open position the CMOS input floats",
+                    cx.describe(f.at),
+                    cx.net_name(net),
+                    super::common::switch_names(ctx, l)
+                ),
+                format!("floats while {} open", super::common::switch_names(ctx, l)),
+            ),
             Float::Undriven(net) => {
                 let nm = &cx.nets[net];
                 let others: Vec<String> = nm
@@ -102,7 +111,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 supply_rail_name(ctx, f.at.comp)
             ))
             .with_pins([cx.pin_name(f.at)]);
-        if let Float::Undriven(net) | Float::Alone(net) = f.why {
+        if let Float::Undriven(net) | Float::Alone(net) | Float::SwitchOpen(net, _) = &f.why {
+            let net = *net;
             d = d.on_net(cx.net_name(net));
         }
         out.push(d);

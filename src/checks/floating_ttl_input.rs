@@ -67,28 +67,96 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         out.push(d);
     }
     for f in singles {
+        let nc = cx.nl.components[f.at.comp].pins[f.at.pin].no_connect;
+        let flag = if nc {
+            " (its no-connect flag leaves it open; it does not tie it)"
+        } else {
+            ""
+        };
         let (where_, net) = match f.why {
             Float::Absent => ("is on no net".to_string(), None),
-            Float::Alone(n) => ("is connected to nothing".to_string(), Some(n)),
+            Float::Alone(n) => (format!("is connected to nothing{flag}"), Some(n)),
             Float::Undriven(n) => (
                 format!("is on net `{}`, which nothing drives", cx.net_name(n)),
                 Some(n),
             ),
-        };
-        let mut d = Diag::warning(
-            "floating-ttl-input",
-            format!(
-                "{} {where_}: it floats high{} and picks up noise",
-                cx.describe(f.at),
-                inside(f.at.comp)
+            Float::SwitchOpen(n, ref l) => (
+                format!(
+                    "is on net `{}`, which only {} sets, and only while closed",
+                    cx.net_name(n),
+                    super::common::switch_names(ctx, l)
+                ),
+                Some(n),
             ),
-        )
+        };
+        let holds = cx.cl.parts[f.at.comp].table_names[f.at.pin]
+            .as_deref()
+            .is_some_and(holds_when_high);
+        let mut d = if holds {
+            Diag::error(
+                "floating-ttl-input",
+                format!(
+                    "{} {where_}: it floats high{}, and a high on this active-high input holds the part in reset or clear",
+                    cx.describe(f.at),
+                    inside(f.at.comp)
+                ),
+            )
+            .with_help(format!(
+                "tie it to {} (or drive it) so the part runs",
+                super::common::ground_rail_name(ctx, f.at.comp)
+            ))
+        } else {
+            Diag::warning(
+                "floating-ttl-input",
+                format!(
+                    "{} {where_}: it floats high{} and picks up noise",
+                    cx.describe(f.at),
+                    inside(f.at.comp)
+                ),
+            )
+            .with_help(tie(f.at.comp))
+        }
         .at(cx.pin_span(f.at), "open TTL input")
-        .with_help(tie(f.at.comp))
         .with_pins([cx.pin_name(f.at)]);
         if let Some(n) = net {
             d = d.on_net(cx.net_name(n));
         }
         out.push(d);
+    }
+}
+
+/// True for an active-high reset, clear or preset-to-nine input by its function-table name
+/// (`CLR`, `1CLR`, `MR`, `R0(1)`, `R9(2)`, `RESET`): an open TTL input floats high and holds
+/// the part. Active-low names carry `~` (`CLR~`) and float to their inactive level.
+pub(crate) fn holds_when_high(name: &str) -> bool {
+    if name.contains('~') {
+        return false;
+    }
+    let n = name.to_ascii_uppercase();
+    let n = n.trim_start_matches(|c: char| c.is_ascii_digit());
+    n.starts_with("CLR")
+        || n.starts_with("MR")
+        || n.starts_with("R0(")
+        || n.starts_with("R9(")
+        || n.starts_with("RESET")
+        || n.starts_with("RST")
+        || n.starts_with("CLEAR")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::holds_when_high;
+
+    #[test]
+    fn active_high_resets_by_name() {
+        // names as in the function table (TI and Motorola pin functions)
+        for yes in [
+            "CLR", "1CLR", "2CLR", "MR", "R0(1)", "R9(2)", "RESET", "RESET_A",
+        ] {
+            assert!(holds_when_high(yes), "{yes}");
+        }
+        for no in ["CLR~", "1CLR~", "SRCLR~", "CLK", "1A", "D", "PRE~"] {
+            assert!(!holds_when_high(no), "{no}");
+        }
     }
 }

@@ -19,7 +19,12 @@ use crate::values::format_ohms;
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
-        if nm.rail.is_some() || nm.pulls.iter().any(|p| p.up) {
+        // a pull-up to a rail of unknown voltage, or a pull-up part, still sets the high
+        if nm.rail.is_some() || nm.pulls.iter().any(|p| p.up) || !nm.held.is_empty() {
+            continue;
+        }
+        // a pull-up reached through a series resistor or a jumper counts too
+        if matches!(nm.source, Some(crate::circuit::Source::Through(_))) {
             continue;
         }
         let oc: Vec<_> = nm
@@ -31,7 +36,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             continue; // a push-pull driver on the net sets the high level
         }
         let d = oc[0];
-        let loads: Vec<String> = nm.loads.iter().map(|l| cx.pin_name(l.at)).collect();
+        let loads: Vec<String> = nm
+            .loads
+            .iter()
+            .filter(|l| !oc.iter().any(|o| o.at == l.at))
+            .map(|l| cx.pin_name(l.at))
+            .collect();
+        // a pull-up matters only where a logic input reads the net: an output that sinks an
+        // LED, a lamp, a relay or a key-matrix row through its load needs none
+        if loads.is_empty() && nm.connectors.is_empty() {
+            continue;
+        }
         let window = ctx.budgets[net].window.as_ref();
         let fix = match window {
             Some(w) => match w.r_max {
@@ -49,7 +64,19 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             },
             None => "fit a pull-up to the loads' supply".to_string(),
         };
-        let mut diag = if let Some(&j) = nm.connectors.first() {
+        let mut diag = if let (Some(&j), true) = (nm.connectors.first(), loads.is_empty()) {
+            Diag::info(
+                "missing-pull-up",
+                format!(
+                    "{} has no pull-up on this board and no input here reads it; the net leaves through {} pin {}, where the pull-up belongs to the other side",
+                    cx.describe(d.at),
+                    cx.nl.components[j.comp].reference,
+                    cx.nl.components[j.comp].pins[j.pin].num
+                ),
+            )
+            .also(cx.pin_span(j), "leaves the board")
+            .with_help(format!("check that the other side of the connector has a pull-up; if it has none, {fix}"))
+        } else if let Some(&j) = nm.connectors.first() {
             Diag::warning(
                 "missing-pull-up",
                 format!(
@@ -76,6 +103,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             )
             .with_help(fix)
         };
+        if d.symbol_only && diag.severity > crate::diag::Severity::Info {
+            diag.severity = crate::diag::Severity::Info;
+            diag.message.push_str(&format!(
+                " (this rests on the symbol, which types the pin open-collector; {} is a part netmargin does not know)",
+                cx.nl.components[d.at.comp].reference
+            ));
+        }
         diag = diag
             .at(cx.pin_span(d.at), "open-collector output, no pull-up")
             .on_net(cx.net_name(net))

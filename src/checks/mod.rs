@@ -56,6 +56,7 @@ registry! {
     "pin-role-mismatch", Warning, "the netlist's pin types disagree with the function table for the part (wrong symbol)";
     "unclassified-part", Info, "an IC-like part whose value no mapping matched; near misses suggested";
     "unreadable-value", Warning, "a resistor whose value cannot be read, so its pull current is unknown";
+    "inferred-rail", Info, "a rail whose existence or voltage netmargin inferred from its pins, its regulator or the families it powers";
 }
 
 /// Looks a check up by id.
@@ -95,6 +96,7 @@ mod fanout_overrun;
 mod floating_bus;
 mod floating_cmos_input;
 mod floating_ttl_input;
+mod inferred_rail;
 mod input_overvoltage;
 mod level_mismatch;
 mod missing_pull_up;
@@ -168,6 +170,7 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
         ("pin-role-mismatch", pin_role_mismatch::run),
         ("unclassified-part", unclassified_part::run),
         ("unreadable-value", unreadable_value::run),
+        ("inferred-rail", inferred_rail::run),
     ]
 }
 

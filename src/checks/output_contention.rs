@@ -23,115 +23,12 @@
 
 use super::common::pct;
 use super::Context;
+use crate::circuit::enables::{enabled_together, gate, literal_text, Gate, Literal};
 use crate::circuit::{Circuit, PinRef};
 use crate::classify::PinRole;
 use crate::diag::Diag;
 use crate::netlist::Connection;
 use crate::values::format_amps;
-
-/// One condition under which a three-state output drives: enable pin `pin` of the part on
-/// net `net` at the level `high`.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
-pub(super) struct Literal {
-    pub net: usize,
-    pub high: bool,
-    /// The enable pin (index into the component's pins).
-    pub pin: usize,
-}
-
-/// When an output drives its net.
-#[derive(Debug, Clone, PartialEq, Eq)]
-pub(super) enum Gate {
-    /// All the time (a push-pull output, or a three-state one enabled through rails).
-    Always,
-    /// Never (an enable tied to its off level).
-    Never,
-    /// When every condition holds.
-    When(Vec<Literal>),
-    /// The enables are unknown or not wired.
-    Unknown,
-}
-
-/// When the output at `p` drives. The enables come from the function table; a pin named
-/// `DIR` (a transceiver's direction input) turns the A side on when low and the B side on when
-/// high (Motorola SN74LS245 truth table: DIR L, bus B data to bus A).
-pub(super) fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
-    let part = &cx.cl.parts[p.comp];
-    match part.roles[p.pin] {
-        PinRole::PushPull => return Gate::Always,
-        PinRole::ThreeState | PinRole::Bidirectional => {}
-        _ => return Gate::Unknown,
-    }
-    let enables = &part.enables[p.pin];
-    let comp = &cx.nl.components[p.comp];
-    let def = part
-        .function
-        .as_ref()
-        .and_then(|(s, id)| cx.rules.functions.get(*s, id))
-        .and_then(|f| f.pin(&comp.pins[p.pin].num));
-    let Some(def) = def.filter(|_| !enables.is_empty()) else {
-        return Gate::Unknown;
-    };
-    let mut lits = Vec::new();
-    for &e in enables {
-        let name = part.table_names[e].as_deref().unwrap_or("");
-        let want_high = if name.eq_ignore_ascii_case("DIR") {
-            match def.name.chars().next() {
-                Some('A') => false,
-                Some('B') => true,
-                _ => return Gate::Unknown,
-            }
-        } else {
-            !def.enable_active_low
-        };
-        let Connection::Net { net, .. } = comp.pins[e].connection else {
-            return Gate::Unknown;
-        };
-        match cx.nets[net].rail {
-            Some(r) => {
-                let high = !r.ground && r.volts.map_or(true, |v| v > 0.0);
-                if high != want_high {
-                    return Gate::Never;
-                }
-            }
-            None => lits.push(Literal {
-                net,
-                high: want_high,
-                pin: e,
-            }),
-        }
-    }
-    if lits.is_empty() {
-        Gate::Always
-    } else {
-        lits.sort();
-        Gate::When(lits)
-    }
-}
-
-/// True when two gated outputs are on together whenever either is: the same enable nets at
-/// the same levels.
-pub(super) fn enabled_together(a: &[Literal], b: &[Literal]) -> bool {
-    a.len() == b.len()
-        && a.iter()
-            .zip(b)
-            .all(|(x, y)| x.net == y.net && x.high == y.high)
-}
-
-/// `U4.1 (1OE~) on /EN_A is low`
-pub(super) fn literal_text(cx: &Circuit<'_, '_>, comp: usize, l: &Literal, on: bool) -> String {
-    let pin = PinRef { comp, pin: l.pin };
-    let name = cx.cl.parts[comp].table_names[l.pin]
-        .as_deref()
-        .map(|n| format!(" ({n})"))
-        .unwrap_or_default();
-    let level = if l.high == on { "high" } else { "low" };
-    format!(
-        "{}{name} on {} is {level}",
-        cx.pin_name(pin),
-        cx.net_name(l.net)
-    )
-}
 
 /// The units of one package whose outputs are paralleled on purpose: every output is a
 /// push-pull output of one component, each in its own unit, each unit with exactly one
@@ -354,7 +251,53 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for net in 0..cx.nets.len() {
         for f in assess(cx, net) {
-            out.push(diag(ctx, net, &f));
+            let mut d = diag(ctx, net, &f);
+            // an unclassified part's pin types are a hint, never proof
+            let pins = finding_pins(&f);
+            let hinted: Vec<PinRef> = pins
+                .iter()
+                .copied()
+                .filter(|p| {
+                    cx.nets[net]
+                        .drivers
+                        .iter()
+                        .any(|d| d.at == *p && d.symbol_only)
+                })
+                .collect();
+            if !hinted.is_empty() && d.severity > crate::diag::Severity::Info {
+                let all = hinted.len() == pins.len();
+                d.severity = if all {
+                    crate::diag::Severity::Info
+                } else {
+                    crate::diag::Severity::Warning
+                };
+                let mut refs: Vec<&str> = hinted
+                    .iter()
+                    .map(|p| cx.nl.components[p.comp].reference.as_str())
+                    .collect();
+                refs.dedup();
+                d.message.push_str(&format!(
+                    " (this rests on the symbol's pin types of {}, which netmargin does not know: check that {} really drive{} all the time)",
+                    refs.join(", "),
+                    if refs.len() == 1 { "its pins" } else { "their pins" },
+                    ""
+                ));
+            }
+            out.push(d);
+        }
+    }
+}
+
+/// Every pin a finding names.
+fn finding_pins(f: &Finding) -> Vec<PinRef> {
+    match f {
+        Finding::Fight(ps) | Finding::Paralleled(ps) | Finding::SameEnable(ps) => ps.clone(),
+        Finding::OnRail(p) => vec![*p],
+        Finding::AgainstEnabled { always, gated } => {
+            always.iter().copied().chain([*gated]).collect()
+        }
+        Finding::AgainstOpenCollector { always, oc } => {
+            always.iter().chain(oc.iter()).copied().collect()
         }
     }
 }

@@ -211,10 +211,22 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         }
                         _ => "",
                     };
-                    let mut d = Diag::error(
-                        "power-pin-miswired",
-                        format!("{} is on {what}{consequence}", cx.describe(at)),
-                    )
+                    // an unclassified part's pin names and types are a hint, never proof
+                    let mut d = if part.role_source[pi] == RoleSource::Table {
+                        Diag::error(
+                            "power-pin-miswired",
+                            format!("{} is on {what}{consequence}", cx.describe(at)),
+                        )
+                    } else {
+                        Diag::warning(
+                            "power-pin-miswired",
+                            format!(
+                                "{} is on {what}{consequence} (by the symbol's pin name and type: {} is a part netmargin does not know)",
+                                cx.describe(at),
+                                c.reference
+                            ),
+                        )
+                    }
                     .at(cx.pin_span(at), format!("{side_word} pin on the {fault}"))
                     .on_net(name)
                     .with_pins([cx.pin_name(at)])
@@ -232,24 +244,51 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     }
                     out.push(d);
                 }
+                // a supply pin alone on a rail net (one power symbol on one chip) is on the rail
+                Connection::Alone { net, .. } if cx.nets[net].rail.is_some() => {}
                 Connection::Alone { .. } | Connection::Absent
-                    if part.role_source[pi] != RoleSource::Table && !p.no_connect =>
+                    if part.role_source[pi] != RoleSource::Table =>
                 {
                     wrong = true;
                     let how = if matches!(p.connection, Connection::Absent) {
                         "is on no net (its unit was never placed, or the pin is not in the netlist)"
+                    } else if p.no_connect {
+                        "carries a no-connect flag, which leaves it open"
                     } else {
                         "is placed but wired to nothing"
                     };
-                    out.push(
-                        Diag::error(
+                    // another pin of the same kind on a rail: an alternate or duplicate supply
+                    // pin (a part with two supply inputs, used one at a time)
+                    let other_on_rail = c.pins.iter().enumerate().any(|(qi, q)| {
+                        qi != pi
+                            && side_of(part.roles[qi], part.role_source[qi], q.name.as_deref())
+                                == Some(side)
+                            && q.connection
+                                .net()
+                                .is_some_and(|n| cx.nets[n].rail.is_some())
+                    });
+                    let d = if other_on_rail {
+                        Diag::info(
                             "power-pin-miswired",
                             format!(
-                                "{} {how}: the part is not powered through it",
-                                cx.describe(at)
+                                "{} {how}, while another {side_word} pin of {} is on a rail: an alternate {side_word} input may be meant to stay open (by the symbol's pin names; {} is a part netmargin does not know)",
+                                cx.describe(at),
+                                c.reference,
+                                c.reference
                             ),
                         )
-                        .at(
+                    } else {
+                        Diag::warning(
+                            "power-pin-miswired",
+                            format!(
+                                "{} {how}: the part is not powered through it (by the symbol's pin name and type: {} is a part netmargin does not know)",
+                                cx.describe(at),
+                                c.reference
+                            ),
+                        )
+                    };
+                    out.push(
+                        d.at(
                             cx.pin_span(at),
                             if matches!(p.connection, Connection::Absent) {
                                 format!("{side_word} pin on no net")

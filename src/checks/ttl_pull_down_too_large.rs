@@ -20,48 +20,7 @@
 use super::Context;
 use crate::circuit::{Circuit, PinRef};
 use crate::diag::Diag;
-use crate::values::{format_amps, format_ohms, format_volts};
-
-/// The E12 series (IEC 60063), one decade.
-pub(super) const E12: [f64; 12] = [1.0, 1.2, 1.5, 1.8, 2.2, 2.7, 3.3, 3.9, 4.7, 5.6, 6.8, 8.2];
-/// The 1 - 2.2 - 4.7 steps (E3, IEC 60063), the usual choice for pull resistors.
-pub(super) const E3: [f64; 3] = [1.0, 2.2, 4.7];
-
-fn series_values(r: f64, series: &[f64]) -> impl Iterator<Item = f64> + '_ {
-    let decade = if r > 0.0 && r.is_finite() {
-        r.log10().floor() as i32
-    } else {
-        0
-    };
-    (decade - 1..=decade + 1)
-        .flat_map(move |d| series.iter().map(move |m| round_value(m * 10f64.powi(d))))
-}
-
-/// Removes the rounding noise of `m x 10^d` (4.7 x 1000 = 4700.000000000001).
-fn round_value(x: f64) -> f64 {
-    let scale = 10f64.powi(x.log10().floor() as i32 - 3);
-    (x / scale).round() * scale
-}
-
-/// The largest value of `series` (any decade) not above `r`.
-pub(super) fn series_at_most(r: f64, series: &[f64]) -> Option<f64> {
-    if !r.is_finite() || r <= 0.0 {
-        return None;
-    }
-    series_values(r, series)
-        .filter(|v| *v <= r * (1.0 + 1e-9))
-        .reduce(f64::max)
-}
-
-/// The smallest value of `series` (any decade) not below `r`.
-pub(super) fn series_at_least(r: f64, series: &[f64]) -> Option<f64> {
-    if !r.is_finite() || r <= 0.0 {
-        return None;
-    }
-    series_values(r, series)
-        .filter(|v| *v >= r * (1.0 - 1e-9))
-        .reduce(f64::min)
-}
+use crate::values::{format_amps, format_ohms, format_volts, series_at_most, E12};
 
 /// A TTL input net held low by pull-downs that are too large.
 #[derive(Debug, Clone, PartialEq)]
@@ -248,18 +207,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn series_values_round_to_the_neighbours() {
-        assert_eq!(series_at_most(1000.0, &E12), Some(1000.0));
-        assert_eq!(series_at_most(999.0, &E12), Some(820.0));
-        assert_eq!(series_at_most(4700.0, &E12), Some(4700.0));
-        assert_eq!(series_at_least(437.5, &E12), Some(470.0));
-        assert_eq!(series_at_least(821.0, &E12), Some(1000.0));
-        assert_eq!(series_at_most(125e3, &E3), Some(100e3));
-        assert_eq!(series_at_most(0.0, &E12), None);
-        assert_eq!(series_at_most(f64::INFINITY, &E12), None);
-    }
 
     #[test]
     fn one_ls_input_on_ten_kohm_reads_high() {

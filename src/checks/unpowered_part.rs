@@ -71,6 +71,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let mut found: Vec<(&PinDef, Missing, Option<usize>)> = Vec::new();
         for d in &power {
             let idx = c.pins.iter().position(|p| p.num == d.pin);
+            // alone on a rail net (one power symbol on one chip): on that rail
+            if let Some(Connection::Alone { net, .. }) = idx.map(|i| c.pins[i].connection) {
+                if cx.nets[net].rail.is_some() {
+                    continue;
+                }
+            }
             if let Some(m) = missing(idx.map(|i| c.pins[i].connection)) {
                 found.push((d, m, idx));
             }

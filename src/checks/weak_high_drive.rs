@@ -19,17 +19,17 @@
 //! reversed (cathode towards the output) never conducts from the high state and is skipped.
 
 use super::common::pct;
-use super::output_contention::gate;
-use super::output_contention::Gate;
 use super::ttl_high_into_cmos::ttl_output;
-use super::ttl_pull_down_too_large::{series_at_least, E12};
 use super::Context;
+use crate::circuit::enables::gate;
+use crate::circuit::enables::Gate;
 use crate::circuit::{Circuit, LedPath, PinRef};
 use crate::classify::classifier::PartKind;
 use crate::classify::PinRole;
 use crate::diag::Diag;
 use crate::netlist::Connection;
 use crate::values::{format_amps, format_ohms, format_volts};
+use crate::values::{series_at_least, E12};
 
 /// Which way an LED is wired on a path from the output to ground.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

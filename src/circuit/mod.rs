@@ -7,11 +7,12 @@
 //! so.
 
 pub mod budget;
+pub mod enables;
 pub mod rails;
 
 use std::sync::Arc;
 
-use crate::classify::classifier::{Classified, PartKind, Rules};
+use crate::classify::classifier::{Classified, PartKind, RoleSource, Rules};
 use crate::classify::family::{Drive, Family, Levels};
 use crate::classify::function::DriveClass;
 use crate::classify::PinRole;
@@ -48,6 +49,34 @@ pub enum RailSource {
     Name,
     PowerOutput,
     User,
+    /// The supply or ground pins of the parts on it say so, whatever its name.
+    Usage,
+}
+
+/// How a rail's voltage was inferred when neither its name nor the configuration gave it.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Inferred {
+    /// A fixed regulator's output is on it.
+    Regulator { comp: usize },
+    /// It powers parts of families specified at one supply only (74LS, 74HCT ...).
+    Families {
+        comps: Vec<usize>,
+        families: Vec<String>,
+    },
+}
+
+/// A rail whose voltage (or whose being a rail) was inferred: stated once per file.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RailNote {
+    pub net: usize,
+    /// The voltage inferred, when one was.
+    pub volts: Option<f64>,
+    pub why: Option<Inferred>,
+    /// True when the net is a rail by its pins alone (its name does not say so).
+    pub by_usage: bool,
+    pub ground: bool,
+    /// Supply or ground pins on it, for the message.
+    pub power_pins: usize,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -93,6 +122,9 @@ pub struct PartSupply {
 pub struct Driver {
     pub at: PinRef,
     pub role: PinRole,
+    /// True when the role comes only from the symbol's pin type (an unclassified part): a hint,
+    /// never proof.
+    pub symbol_only: bool,
     /// The family's figures at the part's supply, when the part is classified.
     pub levels: Option<Arc<Levels>>,
     pub family: Option<String>,
@@ -154,18 +186,75 @@ pub struct NetModel {
     pub led_paths: Vec<LedPath>,
     /// Supply and ground pins on this net.
     pub power_pins: Vec<PinRef>,
+    /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
+    /// pull-down parts: they hold the net at a level that cannot be computed.
+    pub held: Vec<usize>,
+    /// The net's name says rail (`/video/VDD`) but it is a sheet-local net that reaches no
+    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
+    pub rail_named_local: bool,
+    /// Series elements (a resistor, a resistor-network element, an inductor or ferrite bead)
+    /// from this net to another net that is not a rail.
+    pub series: Vec<SeriesLink>,
+    /// Switch and jumper elements from this net to another net.
+    pub switches: Vec<SwitchLink>,
+    /// What sets the level, as the model found it (`None`: nothing, in some state).
+    pub source: Option<Source>,
+    /// Switch elements whose opening leaves this net with nothing to set its level (the
+    /// net is held only through them): it floats when all of them are open.
+    pub floats_open: Vec<SwitchLink>,
+}
+
+/// A two-terminal series element from one net to another.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct SeriesLink {
+    pub part: usize,
+    /// The element's pin on this net.
+    pub at: PinRef,
+    pub other_net: usize,
+    /// Its resistance, when known (an inductor or bead counts as 0).
+    pub ohms: Option<f64>,
+}
+
+/// One switch or jumper element from this net to another.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SwitchLink {
+    pub part: usize,
+    pub at: PinRef,
+    pub other_net: usize,
+}
+
+/// What sets a net's level.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Source {
+    /// Something on the net itself: a rail, a driver, a pull resistor, a connector.
+    Own,
+    /// A net that has a source, through a series element.
+    Through(SeriesLink),
+    /// Two or more switch positions each join it to a net with a source (a selector).
+    Selector,
 }
 
 impl NetModel {
-    /// True when something on this board or off it can set the net's level.
-    pub fn has_source(&self) -> bool {
+    /// True when something on the net itself can set its level.
+    pub fn own_source(&self) -> bool {
         // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
         // reports it); calling the inputs floating as well would be a cascade
         self.rail.is_some()
-            || !self.drivers.is_empty()
+            || self
+                .drivers
+                .iter()
+                .any(|d| !(d.symbol_only && self.rail_named_local))
             || !self.pulls.is_empty()
+            || !self.held.is_empty()
             || !self.connectors.is_empty()
             || !self.unreadable.is_empty()
+            || !self.unknown.is_empty()
+    }
+
+    /// True when something on this board or off it can set the net's level in every
+    /// position of its switches: on the net, through a series element, or by a selector.
+    pub fn has_source(&self) -> bool {
+        self.source.is_some() || self.own_source()
     }
 }
 
@@ -177,6 +266,11 @@ pub struct Circuit<'n, 'a> {
     pub opts: ModelOptions,
     pub supplies: Vec<Option<PartSupply>>,
     pub nets: Vec<NetModel>,
+    /// Each pin's role once the wiring is known: a transceiver whose direction pin is tied to
+    /// a rail has inputs on one side and outputs on the other.
+    pub roles: Vec<Vec<PinRole>>,
+    /// Rails the model inferred (by their pins, or their voltage), for the info finding.
+    pub rail_notes: Vec<RailNote>,
 }
 
 impl<'n, 'a> Circuit<'n, 'a> {
@@ -188,7 +282,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
-        self.cl.parts[p.comp].roles[p.pin]
+        self.roles[p.comp][p.pin]
     }
 
     /// `U4.6`
@@ -299,7 +393,7 @@ pub fn build<'n, 'a>(
     opts: ModelOptions,
 ) -> Circuit<'n, 'a> {
     let n_nets = nl.nets.len();
-    // rails: user declarations, names, power outputs
+    // rails: user declarations, names, power outputs, then the pins on them
     let mut rail: Vec<Option<Rail>> = vec![None; n_nets];
     for (i, net) in nl.nets.iter().enumerate() {
         if let Some((_, v)) = opts.rails.iter().find(|(n, _)| {
@@ -346,6 +440,7 @@ pub fn build<'n, 'a>(
             }
         }
     }
+    let mut rail_notes = rails_by_usage(nl, cl, rules, &mut rail);
 
     // supplies
     let mut supplies = Vec::with_capacity(nl.components.len());
@@ -386,6 +481,9 @@ pub fn build<'n, 'a>(
         }));
     }
 
+    // roles once the wiring is known
+    let roles = enables::wired_roles(nl, cl, &rail);
+
     let levels_of = |ci: usize| -> Option<Arc<Levels>> {
         let part = &cl.parts[ci];
         let fam = part.family.as_deref().and_then(|f| rules.families.get(f))?;
@@ -423,7 +521,8 @@ pub fn build<'n, 'a>(
                 continue;
             };
             let at = PinRef { comp: ci, pin: pi };
-            let role = part.roles[pi];
+            let role = roles[ci][pi];
+            let symbol_only = part.role_source[pi] != RoleSource::Table;
             let nm = &mut nets[net];
             match part.kind {
                 PartKind::Connector => {
@@ -436,6 +535,7 @@ pub fn build<'n, 'a>(
                             nm.drivers.push(Driver {
                                 at,
                                 role: PinRole::PushPull,
+                                symbol_only: false,
                                 levels: Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard))),
                                 family: Some(f.id.clone()),
                             });
@@ -448,7 +548,19 @@ pub fn build<'n, 'a>(
                 | PartKind::Capacitor
                 | PartKind::Led
                 | PartKind::Diode
-                | PartKind::Other => {
+                | PartKind::Switch
+                | PartKind::Inductor => {
+                    nm.passives.push(at);
+                    continue;
+                }
+                // a small part whose symbol types a pin as a logic input or output (a probe,
+                // a stimulus, a module's pin) takes part by that type, as a hint
+                PartKind::Other
+                    if matches!(
+                        role,
+                        PinRole::Passive | PinRole::Unknown | PinRole::NoConnect | PinRole::Analog
+                    ) =>
+                {
                     nm.passives.push(at);
                     continue;
                 }
@@ -476,6 +588,7 @@ pub fn build<'n, 'a>(
                     nm.drivers.push(Driver {
                         at,
                         role,
+                        symbol_only,
                         levels: levels(ci),
                         family: part.family.clone(),
                     });
@@ -486,6 +599,7 @@ pub fn build<'n, 'a>(
                     nm.drivers.push(Driver {
                         at,
                         role,
+                        symbol_only,
                         levels: lv.clone(),
                         family: part.family.clone(),
                     });
@@ -505,24 +619,13 @@ pub fn build<'n, 'a>(
         }
     }
 
-    // resistors to rails: pulls
+    // resistors: to a rail a pull (or a hold, when the rail's voltage is unknown), between
+    // two signal nets a series element
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         if !matches!(part.kind, PartKind::Resistor | PartKind::ResistorNetwork) {
             continue;
         }
-        // a rail net may hold nothing but this resistor (a `-5V` label with one pull-down): its
-        // one-node net still counts when it is a rail
-        let pin_nets: Vec<(usize, usize)> = c
-            .pins
-            .iter()
-            .enumerate()
-            .filter_map(|(pi, p)| match p.connection {
-                Connection::Net { net, .. } => Some((pi, net)),
-                Connection::Alone { net, .. } if rail[net].is_some() => Some((pi, net)),
-                _ => None,
-            })
-            .collect();
         let (ohms, err) = if part.kind == PartKind::Resistor {
             match values::parse_resistance(c.value_str()) {
                 Ok(r) => (Some(r.ohms), None),
@@ -534,66 +637,121 @@ pub fn build<'n, 'a>(
                 Err(e) => (None, Some(e)),
             }
         };
-        // element pairs: a two-pin resistor; a bussed network (one pin on a rail) as one
-        // element per other pin; an isolated network as pins i and N+1-i
-        let mut elements: Vec<((usize, usize), (usize, usize))> = Vec::new();
-        if part.kind == PartKind::Resistor || c.pins.len() == 2 {
-            if pin_nets.len() == 2 {
-                elements.push((pin_nets[0], pin_nets[1]));
-            }
-        } else {
-            let on_rail: Vec<&(usize, usize)> = pin_nets
-                .iter()
-                .filter(|(_, n)| rail[*n].is_some())
-                .collect();
-            if on_rail.len() == 1 {
-                let common = *on_rail[0];
-                for &pn in &pin_nets {
-                    if pn != common {
-                        elements.push((pn, common));
-                    }
-                }
-            } else {
-                let n = c.pins.len();
-                for &(pi, net) in &pin_nets {
-                    let mate = n - 1 - pi;
-                    if pi < mate {
-                        if let Some(&m) = pin_nets.iter().find(|(q, _)| *q == mate) {
-                            elements.push(((pi, net), m));
-                        }
-                    }
-                }
-            }
+        if matches!(err, Some(ValueError::NotFitted(_))) {
+            continue; // not on the board
         }
-        for ((pa, na), (pb, nb)) in elements {
+        for ((pa, na), (pb, nb)) in resistor_elements(c, part.kind, &rail) {
+            if na == nb {
+                continue;
+            }
             for ((p_here, n_here), n_other) in [((pa, na), nb), ((pb, nb), na)] {
-                if n_here == n_other || rail[n_here].is_some() {
+                if rail[n_here].is_some() {
                     continue;
                 }
-                let Some(r) = rail[n_other] else { continue };
                 let at = PinRef {
                     comp: ci,
                     pin: p_here,
                 };
+                let Some(r) = rail[n_other] else {
+                    nets[n_here].series.push(SeriesLink {
+                        part: ci,
+                        at,
+                        other_net: n_other,
+                        ohms,
+                    });
+                    continue;
+                };
                 match (ohms, &err) {
-                    (Some(o), _) => {
-                        if let Some(v) = r.v() {
-                            nets[n_here].pulls.push(Pull {
-                                resistor: ci,
-                                at,
-                                rail_net: n_other,
-                                rail_volts: v,
-                                ohms: o,
-                                up: v > 0.0,
-                            });
-                        }
-                    }
+                    (Some(o), _) => match r.v() {
+                        Some(v) => nets[n_here].pulls.push(Pull {
+                            resistor: ci,
+                            at,
+                            rail_net: n_other,
+                            rail_volts: v,
+                            ohms: o,
+                            up: v > 0.0,
+                        }),
+                        None => nets[n_here].held.push(ci),
+                    },
                     (None, Some(e)) => nets[n_here].unreadable.push((ci, e.clone())),
                     _ => {}
                 }
             }
         }
     }
+    // one-pin pull-up and pull-down parts (simulation and sketch libraries)
+    for (ci, c) in nl.components.iter().enumerate() {
+        if c.pins.len() != 1 {
+            continue;
+        }
+        let says = |t: &str| {
+            let t = t.to_ascii_lowercase().replace(['_', '-', ' '], "");
+            t.contains("pullup") || t.contains("pulldown")
+        };
+        let symbol = c
+            .libsource
+            .as_ref()
+            .and_then(|l| l.part.as_ref())
+            .map_or("", |p| p.as_str());
+        if says(c.value_str()) || says(symbol) {
+            if let Some(net) = c.pins[0].connection.net() {
+                nets[net].held.push(ci);
+            }
+        }
+    }
+    for (i, net) in nl.nets.iter().enumerate() {
+        let name = net.name.as_str();
+        let local = name.trim_start_matches('/').contains('/');
+        if local && rail[i].is_none() {
+            let last = name.rsplit('/').next().unwrap_or("");
+            nets[i].rail_named_local = rails::rail_from_name(last).is_some();
+        }
+    }
+    // inductors and ferrite beads: series elements of no resistance to speak of
+    for (ci, c) in nl.components.iter().enumerate() {
+        if cl.parts[ci].kind != PartKind::Inductor || c.pins.len() != 2 {
+            continue;
+        }
+        let (Some(na), Some(nb)) = (c.pins[0].connection.net(), c.pins[1].connection.net()) else {
+            continue;
+        };
+        if na == nb {
+            continue;
+        }
+        for (pi, here, other) in [(0, na, nb), (1, nb, na)] {
+            if rail[here].is_none() {
+                nets[here].series.push(SeriesLink {
+                    part: ci,
+                    at: PinRef { comp: ci, pin: pi },
+                    other_net: other,
+                    ohms: Some(0.0),
+                });
+            }
+        }
+    }
+    // switches and jumpers: each element joins two nets in some positions only
+    for (ci, c) in nl.components.iter().enumerate() {
+        if cl.parts[ci].kind != PartKind::Switch {
+            continue;
+        }
+        for (pa, pb) in switch_elements(c) {
+            let (Some(na), Some(nb)) = (c.pins[pa].connection.net(), c.pins[pb].connection.net())
+            else {
+                continue;
+            };
+            if na == nb {
+                continue;
+            }
+            for (pi, here, other) in [(pa, na, nb), (pb, nb, na)] {
+                nets[here].switches.push(SwitchLink {
+                    part: ci,
+                    at: PinRef { comp: ci, pin: pi },
+                    other_net: other,
+                });
+            }
+        }
+    }
+    settle_sources(&mut nets);
 
     // LED paths: net -> (R | LED)* -> ground, at most four parts deep
     for net in 0..n_nets {
@@ -614,6 +772,7 @@ pub fn build<'n, 'a>(
         }
         nets[net].led_paths = found;
     }
+    rail_notes.retain(|n| n.by_usage || n.volts.is_some());
 
     Circuit {
         nl,
@@ -622,6 +781,341 @@ pub fn build<'n, 'a>(
         opts,
         supplies,
         nets,
+        roles,
+        rail_notes,
+    }
+}
+
+/// The elements of a resistor or network as pairs of (pin, net): a two-pin resistor; a
+/// bussed network (one common pin: the symbol says `R_Network`, or exactly one pin is on a
+/// rail) as one element per other pin; an isolated network (`R_Pack`, `R_Array`) as pins i
+/// and N+1-i.
+fn resistor_elements(
+    c: &crate::netlist::Component<'_>,
+    kind: PartKind,
+    rail: &[Option<Rail>],
+) -> Vec<((usize, usize), (usize, usize))> {
+    // a rail net may hold nothing but this resistor (a `-5V` label with one pull-down): its
+    // one-node net still counts when it is a rail
+    let pin_nets: Vec<(usize, usize)> = c
+        .pins
+        .iter()
+        .enumerate()
+        .filter_map(|(pi, p)| match p.connection {
+            Connection::Net { net, .. } => Some((pi, net)),
+            Connection::Alone { net, .. } if rail[net].is_some() => Some((pi, net)),
+            _ => None,
+        })
+        .collect();
+    let mut elements = Vec::new();
+    if kind == PartKind::Resistor || c.pins.len() == 2 {
+        if pin_nets.len() == 2 {
+            elements.push((pin_nets[0], pin_nets[1]));
+        }
+        return elements;
+    }
+    let symbol = c
+        .libsource
+        .as_ref()
+        .and_then(|l| l.part.as_ref())
+        .map_or(String::new(), |p| p.as_str().to_ascii_lowercase());
+    let bussed_symbol = symbol.starts_with("r_network");
+    let isolated_symbol = symbol.starts_with("r_pack") || symbol.starts_with("r_array");
+    let on_rail: Vec<&(usize, usize)> = pin_nets
+        .iter()
+        .filter(|(_, n)| rail[*n].is_some())
+        .collect();
+    let common = if bussed_symbol {
+        // the common pin is pin 1 on the usual SIP networks
+        pin_nets
+            .iter()
+            .find(|(pi, _)| c.pins[*pi].num == "1")
+            .or_else(|| on_rail.first().copied())
+            .copied()
+    } else if !isolated_symbol && on_rail.len() == 1 {
+        Some(*on_rail[0])
+    } else {
+        None
+    };
+    match common {
+        Some(common) => {
+            for &pn in &pin_nets {
+                if pn != common {
+                    elements.push((pn, common));
+                }
+            }
+        }
+        None => {
+            let mut order: Vec<usize> = (0..c.pins.len()).collect();
+            order.sort_by_key(|&i| pin_number_key(&c.pins[i].num));
+            let n = order.len();
+            for k in 0..n / 2 {
+                let (a, b) = (order[k], order[n - 1 - k]);
+                let na = pin_nets.iter().find(|(q, _)| *q == a);
+                let nb = pin_nets.iter().find(|(q, _)| *q == b);
+                if let (Some(&x), Some(&y)) = (na, nb) {
+                    elements.push((x, y));
+                }
+            }
+        }
+    }
+    elements
+}
+
+/// Sorts pin numbers as numbers where they are (`2` before `10`).
+fn pin_number_key(num: &str) -> (u64, String) {
+    (num.parse::<u64>().unwrap_or(u64::MAX), num.to_string())
+}
+
+/// The elements of a switch or jumper, as pin index pairs: a two-pin switch one element; a
+/// three-pin switch or jumper (1-2 or 2-3) two elements sharing the middle pin; a DIP switch
+/// or shunt with an even count of pins, pins i and N+1-i.
+fn switch_elements(c: &crate::netlist::Component<'_>) -> Vec<(usize, usize)> {
+    let mut order: Vec<usize> = (0..c.pins.len()).collect();
+    order.sort_by_key(|&i| pin_number_key(&c.pins[i].num));
+    match order.len() {
+        0 | 1 => Vec::new(),
+        2 => vec![(order[0], order[1])],
+        3 => vec![(order[0], order[1]), (order[1], order[2])],
+        n if n % 2 == 0 => (0..n / 2).map(|k| (order[k], order[n - 1 - k])).collect(),
+        _ => Vec::new(),
+    }
+}
+
+/// Which nets have something to set their level: on the net itself, through a series element
+/// from a net that has (repeated until nothing changes), or through two or more switch
+/// elements from nets that have (a selector: every position drives it). A net held only
+/// through one switch element floats when that switch is open.
+fn settle_sources(nets: &mut [NetModel]) {
+    for nm in nets.iter_mut() {
+        if nm.own_source() {
+            nm.source = Some(Source::Own);
+        }
+    }
+    loop {
+        let mut changed = false;
+        for i in 0..nets.len() {
+            if nets[i].source.is_some() {
+                continue;
+            }
+            let through = nets[i]
+                .series
+                .iter()
+                .find(|l| nets[l.other_net].source.is_some())
+                .copied();
+            if let Some(l) = through {
+                nets[i].source = Some(Source::Through(l));
+                changed = true;
+                continue;
+            }
+            // two positions of one switch or jumper that each join a net with a source:
+            // the net is set in every position the part is made for
+            let links: Vec<&SwitchLink> = nets[i]
+                .switches
+                .iter()
+                .filter(|l| nets[l.other_net].source.is_some())
+                .collect();
+            let selector = links
+                .iter()
+                .any(|a| links.iter().filter(|b| b.part == a.part).count() >= 2);
+            if selector {
+                nets[i].source = Some(Source::Selector);
+                changed = true;
+            }
+        }
+        if !changed {
+            break;
+        }
+    }
+    for i in 0..nets.len() {
+        if nets[i].source.is_some() {
+            continue;
+        }
+        let links: Vec<SwitchLink> = nets[i]
+            .switches
+            .iter()
+            .filter(|l| nets[l.other_net].source.is_some())
+            .copied()
+            .collect();
+        nets[i].floats_open = links;
+    }
+}
+
+/// Nets that are rails by their pins: supply pins (or ground pins) of the parts on them and
+/// no output of a classified part. Then the voltage of every supply rail that states none:
+/// a fixed regulator's output, or the one supply of the families it powers. Returns what was
+/// inferred, for the info finding.
+fn rails_by_usage(
+    nl: &Netlist<'_>,
+    cl: &Classified,
+    rules: &Rules,
+    rail: &mut [Option<Rail>],
+) -> Vec<RailNote> {
+    let n_nets = nl.nets.len();
+    let mut supply_pins = vec![0usize; n_nets];
+    let mut ground_pins = vec![0usize; n_nets];
+    let mut logic_pins = vec![0usize; n_nets];
+    let mut outputs = vec![false; n_nets];
+    let mut powered: Vec<Vec<usize>> = vec![Vec::new(); n_nets];
+    for (ci, c) in nl.components.iter().enumerate() {
+        let part = &cl.parts[ci];
+        for (pi, p) in c.pins.iter().enumerate() {
+            let Some(net) = p.connection.net() else {
+                continue;
+            };
+            let role = part.roles[pi];
+            let from_table = part.role_source[pi] == RoleSource::Table;
+            match role {
+                PinRole::Supply => {
+                    supply_pins[net] += 1;
+                    if part.is_logic() {
+                        powered[net].push(ci);
+                    }
+                }
+                PinRole::Ground => ground_pins[net] += 1,
+                r if r.is_output() && from_table => outputs[net] = true,
+                r if r.is_input() && from_table => logic_pins[net] += 1,
+                _ => {}
+            }
+        }
+    }
+    let mut notes = Vec::new();
+    for net in 0..n_nets {
+        if rail[net].is_some() || outputs[net] {
+            continue;
+        }
+        let name = nl.nets[net].name.as_str();
+        // a pin alone on its net is wired to nothing, whatever its type
+        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].nodes.len() < 2 {
+            continue;
+        }
+        let (s, g) = (supply_pins[net], ground_pins[net]);
+        let enough = |k: usize| k >= 2 || (k == 1 && logic_pins[net] == 0);
+        if g > 0 && s == 0 && enough(g) {
+            rail[net] = Some(Rail {
+                volts: Some(0.0),
+                ground: true,
+                source: RailSource::Usage,
+            });
+            notes.push(RailNote {
+                net,
+                volts: Some(0.0),
+                why: None,
+                by_usage: true,
+                ground: true,
+                power_pins: g,
+            });
+        } else if s > 0 && g == 0 && enough(s) {
+            rail[net] = Some(Rail {
+                volts: None,
+                ground: false,
+                source: RailSource::Usage,
+            });
+            notes.push(RailNote {
+                net,
+                volts: None,
+                why: None,
+                by_usage: true,
+                ground: false,
+                power_pins: s,
+            });
+        }
+    }
+    // voltages: a fixed regulator's output first, then the families powered
+    for (ci, c) in nl.components.iter().enumerate() {
+        let Some((volts, out_pin)) = rails::fixed_regulator(c.value_str()) else {
+            continue;
+        };
+        if cl.parts[ci].is_logic() {
+            continue;
+        }
+        let by_name = c.pins.iter().find(|p| {
+            p.name.as_deref().is_some_and(|n| {
+                let n = n.to_ascii_uppercase();
+                matches!(n.as_str(), "VO" | "VOUT" | "OUT" | "OUTPUT" | "V_OUT")
+            })
+        });
+        let pin = by_name.or_else(|| c.pins.iter().find(|p| p.num == out_pin));
+        let Some(net) = pin.and_then(|p| p.connection.net()) else {
+            continue;
+        };
+        if let Some(r) = rail[net].as_mut() {
+            if r.volts.is_none() && !r.ground {
+                r.volts = Some(volts);
+                note_for(&mut notes, net, volts, Inferred::Regulator { comp: ci });
+            }
+        } else {
+            rail[net] = Some(Rail {
+                volts: Some(volts),
+                ground: false,
+                source: RailSource::PowerOutput,
+            });
+            note_for(&mut notes, net, volts, Inferred::Regulator { comp: ci });
+        }
+    }
+    for net in 0..n_nets {
+        let Some(r) = rail[net].as_mut() else {
+            continue;
+        };
+        if r.volts.is_some() || r.ground || r.source == RailSource::User {
+            continue;
+        }
+        let mut fams: Vec<String> = Vec::new();
+        let mut single: Option<f64> = None;
+        let mut agree = !powered[net].is_empty();
+        for &ci in &powered[net] {
+            let Some(f) = cl.parts[ci]
+                .family
+                .as_deref()
+                .and_then(|f| rules.families.get(f))
+            else {
+                continue;
+            };
+            // a family specified at one supply (4.5 to 5.5 V and the like)
+            let one = f.supply_max - f.supply_min <= 1.0 + 1e-9;
+            if !one {
+                continue;
+            }
+            match single {
+                None => single = Some(f.supply_nominal),
+                Some(v) if (v - f.supply_nominal).abs() < 1e-9 => {}
+                Some(_) => agree = false,
+            }
+            if !fams.contains(&f.id) {
+                fams.push(f.id.clone());
+            }
+        }
+        if let (true, Some(v)) = (agree, single) {
+            r.volts = Some(v);
+            let comps = powered[net].clone();
+            note_for(
+                &mut notes,
+                net,
+                v,
+                Inferred::Families {
+                    comps,
+                    families: fams,
+                },
+            );
+        }
+    }
+    notes
+}
+
+fn note_for(notes: &mut Vec<RailNote>, net: usize, volts: f64, why: Inferred) {
+    match notes.iter_mut().find(|n| n.net == net) {
+        Some(n) => {
+            n.volts = Some(volts);
+            n.why = Some(why);
+        }
+        None => notes.push(RailNote {
+            net,
+            volts: Some(volts),
+            why: Some(why),
+            by_usage: false,
+            ground: false,
+            power_pins: 0,
+        }),
     }
 }
 

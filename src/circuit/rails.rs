@@ -170,3 +170,88 @@ mod tests {
         }
     }
 }
+
+/// The output voltage a fixed regulator's part number states, with the pin its output is on
+/// in the usual package when the symbol does not name it: `7805` / `LM7805` / `MC78L05` /
+/// `L78M12` (TO-220 and TO-92 pin 3 is the output on the positive 78xx series: onsemi MC7800
+/// and MC78L00A data sheets), `AMS1117-3.3` / `LM1117-3.3` (SOT-223 pin 2 is the output:
+/// Advanced Monolithic Systems AMS1117 data sheet), `LM2940-5.0`, `LM3940` (3.3 V; TO-220 pin
+/// 3: TI LM2940, LM3940 data sheets). `None` when the value names no fixed regulator.
+pub fn fixed_regulator(value: &str) -> Option<(f64, &'static str)> {
+    let v = value.trim().to_ascii_uppercase();
+    // 78xx, 78Lxx, 78Mxx after an optional maker prefix
+    if let Some(i) = v.find("78") {
+        let prefix = &v[..i];
+        if prefix.chars().all(|c| c.is_ascii_alphabetic()) && prefix.len() <= 3 {
+            let rest = &v[i + 2..];
+            let rest = rest
+                .strip_prefix('L')
+                .or_else(|| rest.strip_prefix('M'))
+                .unwrap_or(rest);
+            let digits: String = rest.chars().take_while(|c| c.is_ascii_digit()).collect();
+            if digits.len() == 2 {
+                let volts: f64 = digits.parse().ok()?;
+                if (2.0..=24.0).contains(&volts) {
+                    return Some((volts, "3"));
+                }
+            }
+        }
+    }
+    if v.contains("3940") {
+        return Some((3.3, "3"));
+    }
+    for (key, out_pin) in [
+        ("1117", "2"),
+        ("2940", "3"),
+        ("2937", "3"),
+        ("1084", "2"),
+        ("1085", "2"),
+        ("1086", "2"),
+    ] {
+        if let Some(i) = v.find(key) {
+            let rest = &v[i + key.len()..];
+            // `-3.3`, `-3V3`, `-5.0`, `CT-5.0`, `-33`
+            let tail = rest.rsplit('-').next().unwrap_or("");
+            let volts = if rest.contains('-') {
+                voltage_in_name(&format!("{tail}V")).or_else(|| {
+                    tail.parse::<f64>()
+                        .ok()
+                        .map(|x| if x >= 10.0 { x / 10.0 } else { x })
+                })
+            } else {
+                None
+            };
+            if let Some(volts) = volts.filter(|x| (1.0..=15.0).contains(x)) {
+                return Some((volts, out_pin));
+            }
+        }
+    }
+    None
+}
+
+#[cfg(test)]
+mod regulator_tests {
+    use super::fixed_regulator;
+
+    #[test]
+    fn fixed_regulators_name_their_output() {
+        // output voltages as the part numbers state them (onsemi MC7800, MC78L00A; AMS1117;
+        // TI LM2940, LM3940 data sheets)
+        for (value, volts) in [
+            ("7805", 5.0),
+            ("LM7805", 5.0),
+            ("MC78L05", 5.0),
+            ("L7812CV", 12.0),
+            ("78M09", 9.0),
+            ("AMS1117-3.3", 3.3),
+            ("LM1117-5.0", 5.0),
+            ("LM2940CT-5.0", 5.0),
+            ("LM3940", 3.3),
+        ] {
+            assert_eq!(fixed_regulator(value).map(|x| x.0), Some(volts), "{value}");
+        }
+        for not in ["LM317", "74LS78", "NE555", "AMS1117", "7400"] {
+            assert_eq!(fixed_regulator(not), None, "{not}");
+        }
+    }
+}

@@ -97,6 +97,10 @@ pub enum PartKind {
     Led,
     Diode,
     Connector,
+    /// A switch, jumper or DIP shunt: joins its pins in some positions and not in others.
+    Switch,
+    /// An inductor or ferrite bead: a DC path of almost no resistance.
+    Inductor,
     Other,
 }
 
@@ -161,7 +165,106 @@ pub fn ref_prefix(reference: &str) -> &str {
     &reference[..end]
 }
 
+/// What the symbol, its library and its footprint say the part is, before the reference
+/// does: real boards name resistors `RG4`, `RIO2`, `RCPU1`, connectors `BUS1` or `U7`.
+fn kind_by_symbol(c: &Component<'_>) -> Option<PartKind> {
+    let (lib, part) = c
+        .libsource
+        .as_ref()
+        .map_or((String::new(), String::new()), |l| {
+            (
+                l.lib
+                    .as_ref()
+                    .map_or(String::new(), |x| x.as_str().to_ascii_lowercase()),
+                l.part
+                    .as_ref()
+                    .map_or(String::new(), |x| x.as_str().to_ascii_lowercase()),
+            )
+        });
+    let fp = c
+        .footprint
+        .as_ref()
+        .map_or(String::new(), |f| f.as_str().to_ascii_lowercase());
+    let (fp_lib, fp_name) = fp.split_once(':').unwrap_or(("", fp.as_str()));
+    let value = c.value_str().to_ascii_lowercase();
+    let n = c.pins.len();
+    let words = |s: &str, w: &[&str]| w.iter().any(|x| s.contains(x));
+    // switches and jumpers first: a DIP shunt is often drawn with a resistor-pack symbol
+    if words(
+        &part,
+        &["jumper", "sw_", "switch", "sw_dip", "solderjumper"],
+    ) || part == "sw"
+        || words(&value, &["jumper", "switch", "shunt", "dip-sw", "dipsw"])
+        || fp_lib.starts_with("button_switch")
+        || fp_lib.starts_with("jumper")
+    {
+        return Some(PartKind::Switch);
+    }
+    let resistor_part = matches!(
+        part.as_str(),
+        "r" | "r_small" | "r_us" | "r_small_us" | "resistor" | "r_pot" | "r_pot_small"
+    ) || part.starts_with("r_pack")
+        || part.starts_with("r_network")
+        || part.starts_with("r_array")
+        || part.starts_with("resistor_");
+    let resistor_fp = fp_lib.starts_with("resistor")
+        || fp_name.starts_with("r_array")
+        || fp_name.starts_with("r_axial")
+        || fp_name.starts_with("r_pack")
+        || fp_name.starts_with("r_0")
+        || fp_name.starts_with("r_1")
+        || fp_name.starts_with("r_2");
+    if resistor_part || (resistor_fp && !part.starts_with("conn")) {
+        return Some(if n <= 2 {
+            PartKind::Resistor
+        } else {
+            PartKind::ResistorNetwork
+        });
+    }
+    if part.starts_with("ferritebead")
+        || part == "l"
+        || part == "l_small"
+        || part.starts_with("inductor")
+        || fp_lib.starts_with("inductor")
+    {
+        return Some(PartKind::Inductor);
+    }
+    let connector_part = part.starts_with("conn")
+        || lib.starts_with("connector")
+        || lib == "conn"
+        || part.starts_with("bus_")
+        || part.contains("edge_connector")
+        || part.contains("header");
+    let connector_fp = fp_lib.starts_with("connector")
+        || fp_lib.starts_with("pin_header")
+        || fp_name.contains("pinheader")
+        || fp_name.contains("pin_header")
+        || fp_name.contains("pinsocket")
+        || fp_name.contains("idc")
+        || fp_name.contains("dsub")
+        || fp_name.contains("edge")
+        || fp_name.contains("bus_");
+    if connector_part || (connector_fp && !fp_name.contains("dip")) {
+        // a 2- or 3-pin header whose value says what it selects is a jumper
+        let selects = n <= 3
+            && (value.contains('|')
+                || words(
+                    &value,
+                    &["jumper", "link", "select", "enable", "pull", "strap"],
+                ));
+        return Some(if selects {
+            PartKind::Switch
+        } else {
+            PartKind::Connector
+        });
+    }
+    None
+}
+
 fn kind_by_reference(c: &Component<'_>) -> PartKind {
+    if let Some(k) = kind_by_symbol(c) {
+        return k;
+    }
     let p = ref_prefix(c.reference.as_str()).to_ascii_uppercase();
     let value = c.value_str().to_ascii_uppercase();
     let lib = c
@@ -176,16 +279,31 @@ fn kind_by_reference(c: &Component<'_>) -> PartKind {
         "LED" | "DS" => PartKind::Led,
         "D" if value.contains("LED") || lib.contains("LED") => PartKind::Led,
         "D" => PartKind::Diode,
-        "J" | "P" | "CN" | "CON" | "X" | "XS" | "XP" | "K" | "JP" | "H" | "TP" => {
-            PartKind::Connector
-        }
+        "JP" | "SW" | "S" => PartKind::Switch,
+        "FB" | "L" if c.pins.len() == 2 => PartKind::Inductor,
+        "J" | "P" | "CN" | "CON" | "CONN" | "X" | "XS" | "XP" | "K" | "H" | "TP" | "BUS"
+        | "SLOT" => PartKind::Connector,
         "U" | "IC" | "Z" | "Q" if p != "Q" => PartKind::UnknownIc,
         _ => {
             let many = c.pins.len() > 4;
             let logicish = pattern::match_value(c.value_str()).is_some()
                 || value.starts_with("74")
                 || value.contains("40");
-            if many && logicish {
+            // a part whose symbol types pins as outputs or supplies is an active part,
+            // whatever its reference (`CPU1`, `VRAM1`, `1J1`, a module `A1`)
+            let active = c.pins.len() >= 3
+                && c.pins.iter().any(|p| {
+                    matches!(
+                        p.ptype,
+                        PinType::Output
+                            | PinType::TriState
+                            | PinType::Bidirectional
+                            | PinType::OpenCollector
+                            | PinType::OpenEmitter
+                            | PinType::PowerIn
+                    )
+                });
+            if (many && logicish) || active {
                 PartKind::UnknownIc
             } else {
                 PartKind::Other
@@ -239,6 +357,25 @@ fn role_from_netlist(t: PinType, name: Option<&str>) -> (PinRole, RoleSource) {
         }
     };
     (r, RoleSource::Netlist)
+}
+
+/// A pin name that is a memory's or peripheral's control input by convention (JEDEC
+/// memory pinouts: chip enable, output enable, write enable, chip select), with or without
+/// an active-low mark: `CE`, `CEn`, `~{OE}`, `/WE`, `CS#`, `OE_N`.
+pub fn is_enable_input_name(name: &str) -> bool {
+    let n = name
+        .trim()
+        .trim_start_matches(['~', '/', '!', '{'])
+        .trim_end_matches(['}', '#', '*'])
+        .to_ascii_uppercase();
+    let n = n.trim_start_matches("~{").trim_end_matches('}');
+    let n = n
+        .strip_suffix("_N")
+        .or_else(|| n.strip_suffix("_B"))
+        .or_else(|| n.strip_suffix('N').filter(|b| b.len() >= 2))
+        .unwrap_or(n);
+    let n = n.trim_end_matches(|c: char| c.is_ascii_digit());
+    matches!(n, "CE" | "OE" | "WE" | "CS" | "PGM")
 }
 
 /// A pin or net name that means ground: GND, GNDD, AGND, DGND, 0V, VSS, VEE ...
@@ -360,6 +497,8 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     | PartKind::Connector
                     | PartKind::Led
                     | PartKind::Diode
+                    | PartKind::Switch
+                    | PartKind::Inductor
             )
         }) {
             kind = PartKind::Logic;
@@ -437,12 +576,19 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                             | PartKind::Led
                             | PartKind::Diode
                             | PartKind::Connector
+                            | PartKind::Switch
+                            | PartKind::Inductor
                     );
                     if passive_kind {
                         roles.push(PinRole::Passive);
                         role_source.push(RoleSource::Netlist);
                     } else {
-                        let (r, s) = role_from_netlist(p.ptype, p.name.as_deref());
+                        let (mut r, s) = role_from_netlist(p.ptype, p.name.as_deref());
+                        // a memory's chip, output or write enable is an input whatever
+                        // the symbol types it
+                        if r.is_output() && p.name.as_deref().is_some_and(is_enable_input_name) {
+                            r = PinRole::Input;
+                        }
                         roles.push(r);
                         role_source.push(s);
                     }

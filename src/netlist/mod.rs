@@ -10,6 +10,7 @@
 mod build;
 mod pintype;
 pub mod stream;
+mod ties;
 
 use rustc_hash::FxHashMap as HashMap;
 use std::borrow::Cow;

@@ -945,6 +945,36 @@ impl<'a> Reader<'a> {
 /// Cross-references: refs, libparts, node components, pin lists and connections. Both
 /// readers ([`read`] and [`build`](super::build)) finish with it.
 pub(super) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
+    name_unnumbered_pins(nl);
+    link_pins(text, nl, diags);
+    super::ties::join_net_ties(nl);
+}
+
+/// A symbol drawn with pin names but no pin numbers (simulation and sketch libraries do it)
+/// gives every node the pin `""`: keyed by number, all its pins would collapse into one pin
+/// "on many nets". Such pins are keyed by their name instead, in the nodes and the libpart.
+fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
+    for net in &mut nl.nets {
+        for nd in &mut net.nodes {
+            if nd.pin.s.trim().is_empty() {
+                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.s.trim().is_empty()) {
+                    nd.pin.s = f.s.clone();
+                }
+            }
+        }
+    }
+    for lp in &mut nl.libparts {
+        for p in &mut lp.pins {
+            if p.num.s.trim().is_empty() {
+                if let Some(n) = p.name.as_ref().filter(|n| !n.s.trim().is_empty()) {
+                    p.num.s = n.s.clone();
+                }
+            }
+        }
+    }
+}
+
+fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
     let mut by_ref: HashMap<Cow<'a, str>, usize> =
         HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());

@@ -1,0 +1,88 @@
+//! Net ties: a net-tie part (KiCad's `NetTie_2`, `NetTie_3` ...) is a deliberate short between
+//! nets that are kept apart in the schematic (a ground star point, a kludge between two named
+//! signals). Electrically its nets are one: the model joins them into the first of them, so a
+//! driver on one side is seen by the loads on the other.
+
+use super::{Component, Connection, Netlist};
+
+/// True when the part is a net tie, by its symbol, value or footprint.
+pub fn is_net_tie(c: &Component<'_>) -> bool {
+    let starts = |s: &str| s.trim().to_ascii_lowercase().starts_with("nettie");
+    c.libsource
+        .as_ref()
+        .and_then(|l| l.part.as_ref())
+        .is_some_and(|p| starts(p.as_str()))
+        || starts(c.value_str())
+        || c.footprint.as_ref().is_some_and(|f| {
+            f.as_str()
+                .rsplit(':')
+                .next()
+                .is_some_and(|name| starts(name))
+        })
+}
+
+fn find(parent: &mut [usize], mut x: usize) -> usize {
+    while parent[x] != x {
+        parent[x] = parent[parent[x]];
+        x = parent[x];
+    }
+    x
+}
+
+/// Joins the nets of every net tie. The joined net keeps the first net's name; the names of
+/// the others still find it (`net_by_name`). Emptied nets stay, with no nodes.
+pub fn join_net_ties(nl: &mut Netlist<'_>) {
+    let mut parent: Vec<usize> = (0..nl.nets.len()).collect();
+    let mut any = false;
+    for c in &nl.components {
+        if !is_net_tie(c) {
+            continue;
+        }
+        let nets: Vec<usize> = c.pins.iter().filter_map(|p| p.connection.net()).collect();
+        for w in nets.windows(2) {
+            let (a, b) = (find(&mut parent, w[0]), find(&mut parent, w[1]));
+            if a != b {
+                parent[a.max(b)] = a.min(b);
+                any = true;
+            }
+        }
+    }
+    if !any {
+        return;
+    }
+    // move the nodes; remember where each moved net's nodes start in its new net
+    let n = nl.nets.len();
+    let mut moved_to: Vec<Option<(usize, usize)>> = vec![None; n];
+    for i in 0..n {
+        let r = find(&mut parent, i);
+        if r == i {
+            continue;
+        }
+        let nodes = std::mem::take(&mut nl.nets[i].nodes);
+        let base = nl.nets[r].nodes.len();
+        nl.nets[r].nodes.extend(nodes);
+        moved_to[i] = Some((r, base));
+        let name = nl.nets[i].name.s.clone();
+        if !name.is_empty() {
+            nl.by_net_name.insert(name, r);
+        }
+    }
+    let nets = &nl.nets;
+    for c in &mut nl.components {
+        for p in &mut c.pins {
+            let (net, node) = match p.connection {
+                Connection::Net { net, node } | Connection::Alone { net, node } => (net, node),
+                Connection::Absent => continue,
+            };
+            let (net, node) = match moved_to[net] {
+                Some((r, base)) => (r, node + base),
+                None => (net, node),
+            };
+            p.connection = if nets[net].nodes.len() > 1 {
+                Connection::Net { net, node }
+            } else {
+                Connection::Alone { net, node }
+            };
+        }
+    }
+}
