@@ -40,6 +40,7 @@ macro_rules! registry {
 registry! {
     "floating-cmos-input", Error, "a CMOS input with nothing to set its level: no driver, no rail, no pull resistor";
     "floating-ttl-input", Warning, "a TTL input left open: it floats high on the bench and picks up noise in service";
+    "open-control-input", Error, "a processor's, peripheral's or memory's control input left open instead of held at its idle level";
     "floating-bus", Warning, "a net driven only by three-state outputs with CMOS loads and no pull resistor";
     "fanout-overrun", Error, "an output's low- or high-state current budget exceeds its rating (or the derating)";
     "ttl-high-into-cmos", Error, "a driver's guaranteed high level is below a CMOS load's VIH";
@@ -100,6 +101,7 @@ mod inferred_rail;
 mod input_overvoltage;
 mod level_mismatch;
 mod missing_pull_up;
+mod open_control_input;
 mod output_contention;
 mod package_mismatch;
 mod pin_role_mismatch;
@@ -154,6 +156,7 @@ fn checks() -> Vec<(&'static str, CheckFn)> {
     vec![
         ("floating-cmos-input", floating_cmos_input::run),
         ("floating-ttl-input", floating_ttl_input::run),
+        ("open-control-input", open_control_input::run),
         ("fanout-overrun", fanout_overrun::run),
         ("ttl-high-into-cmos", ttl_high_into_cmos::run),
         ("level-mismatch", level_mismatch::run),
