@@ -297,7 +297,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
                 f.technology,
                 crate::classify::family::Technology::Bipolar
                     | crate::classify::family::Technology::Nmos
-            )
+            ) || f.high_output != crate::classify::family::HighOutput::Rows
         })
     }
 
