@@ -60,9 +60,36 @@ pub struct Project<'a> {
 /// recursing).
 pub const MAX_USES: usize = 100_000;
 
+/// The bytes of a sheet file, within the size limit (the codes and words of the netlist
+/// reader's own file reading).
+fn read_bytes(name: &str, max_bytes: u64) -> Result<Vec<u8>, Diag> {
+    let io = |e: std::io::Error| {
+        let what = match e.kind() {
+            std::io::ErrorKind::NotFound => "no such file".to_string(),
+            std::io::ErrorKind::PermissionDenied => "permission denied".to_string(),
+            _ => e.to_string(),
+        };
+        Diag::error("unreadable", format!("cannot read `{name}`: {what}"))
+    };
+    let meta = std::fs::metadata(name).map_err(io)?;
+    if meta.is_dir() {
+        return Err(Diag::error("unreadable", format!("`{name}` is a folder")));
+    }
+    if meta.len() > max_bytes {
+        return Err(Diag::error(
+            "too-large",
+            format!(
+                "the file is {} bytes, above the limit of {max_bytes} bytes",
+                meta.len()
+            ),
+        )
+        .with_help("raise the limit with --max-bytes if the machine has the memory for it"));
+    }
+    std::fs::read(name).map_err(io)
+}
+
 fn read_text(name: &str, max_bytes: u64) -> Result<String, Box<Failed>> {
-    let opts = crate::pipeline::ReadOptions { max_bytes };
-    let bytes = crate::pipeline::read_bytes(name, &opts).map_err(Failed::bare)?;
+    let bytes = read_bytes(name, max_bytes).map_err(Failed::bare)?;
     match input::load(name, bytes) {
         Ok(s) => Ok(s.text().to_string()),
         Err(e) => Err(Box::new(Failed {
