@@ -265,6 +265,20 @@ impl<'a> Analysis<'a> {
     /// closest names.
     pub fn find_net(&self, want: &str) -> Result<usize, Diag> {
         let bare = want.trim_start_matches('/');
+        // an unnamed net is shown as `#CODE` (its code, or its place in the file): find it so
+        if let Some(code) = want.strip_prefix('#') {
+            let found = (0..self.nl.nets.len()).find(|&i| {
+                let n = &self.nl.nets[i];
+                n.name.as_str().is_empty()
+                    && n.code
+                        .as_ref()
+                        .map_or((i + 1).to_string(), |c| c.as_str().to_string())
+                        == code
+            });
+            if let Some(i) = found {
+                return Ok(i);
+            }
+        }
         if let Some(i) = self.nl.net_by_name(want).or_else(|| {
             (0..self.nl.nets.len())
                 .find(|&i| self.nl.nets[i].name.as_str().trim_start_matches('/') == bare)

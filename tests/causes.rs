@@ -352,7 +352,6 @@ fn a_pull_up_marked_dnp_is_not_fitted() {
 }
 
 #[test]
-#[ignore = "model gap: a value `nc` is not taken as not fitted (values.rs NOT_FITTED has no `nc`); it is an unreadable value whose pull still holds the net, so the TTL input is not reported"]
 fn a_pull_up_marked_nc_is_not_fitted() {
     let f = run("resistor-kinds");
     fires(&f, "/OPT_J", "floating-ttl-input", "warning");
@@ -471,7 +470,6 @@ fn an_open_active_high_clear_holds_the_part_and_is_an_error() {
 }
 
 #[test]
-#[ignore = "model gap: an open R0(1) is taken to hold a 7490/7493 at zero whatever R0(2) is; the reset gate is an AND of R0(1) and R0(2), so with R0(2) on GND the open input holds nothing and is a warning"]
 fn an_open_reset_input_whose_partner_is_grounded_holds_nothing() {
     let f = run("no-connect-flags");
     // 74LS93 reset/count function table: outputs reset to zero only when R0(1) and R0(2) are
