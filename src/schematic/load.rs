@@ -443,7 +443,9 @@ pub fn project_root(sheet: &Path) -> PathBuf {
     let mut seen = vec![cur.clone()];
     while let Some(p) = parent_of.get(&cur) {
         if seen.contains(p) {
-            break; // sheets that name each other: keep the one given
+            // sheets that name each other: no root; read from the one given, where the
+            // recursion is then reported
+            return sheet.to_path_buf();
         }
         seen.push(p.clone());
         cur = p.clone();
