@@ -214,3 +214,53 @@ fn the_synthetic_schematic_reads_into_its_nets() {
         .collect();
     assert_eq!(pins, ["R1.2", "R2.1"]);
 }
+
+/// Every output format points a finding into the sheet where the gate is drawn: the short
+/// line, the GitHub annotation, the JSON place (with its `file`) and the SARIF location.
+#[test]
+fn findings_point_into_the_sheet_in_every_format() {
+    let run = |format: &str| {
+        let o = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+            .args(["check", "--no-config", "--format", format])
+            .arg("fixtures/schematics/cmos/panel.kicad_sch")
+            .output()
+            .expect("runs");
+        assert_eq!(o.status.code(), Some(1), "{format}");
+        String::from_utf8(o.stdout).unwrap()
+    };
+    // the unplaced gate B's inputs: the library symbol's pin in logic.kicad_sch, line 14
+    let short = run("short");
+    assert!(
+        short.contains("fixtures/schematics/cmos/logic.kicad_sch:14:9: error: gate B of U1"),
+        "{short}"
+    );
+    let github = run("github");
+    assert!(
+        github.contains("file=fixtures/schematics/cmos/logic.kicad_sch,line=14,col=9"),
+        "{github}"
+    );
+    let json: serde_json::Value = serde_json::from_str(&run("json")).unwrap();
+    let file = &json["files"][0];
+    assert_eq!(file["path"], "fixtures/schematics/cmos/panel.kicad_sch");
+    let f = file["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["message"].as_str().unwrap().starts_with("gate B of U1"))
+        .expect("the gate B finding");
+    assert_eq!(f["file"], "fixtures/schematics/cmos/logic.kicad_sch");
+    assert_eq!(f["line"], 14);
+    // the offset counts from the start of that sheet
+    let sheet = std::fs::read_to_string("fixtures/schematics/cmos/logic.kicad_sch").unwrap();
+    let off = f["byte_offset"].as_u64().unwrap() as usize;
+    assert!(
+        sheet[off..].starts_with("(pin input"),
+        "{}",
+        &sheet[off..off + 20]
+    );
+    let sarif = run("sarif");
+    assert!(
+        sarif.contains("\"uri\": \"fixtures/schematics/cmos/logic.kicad_sch\""),
+        "{sarif}"
+    );
+}
