@@ -264,3 +264,20 @@ fn findings_point_into_the_sheet_in_every_format() {
         "{sarif}"
     );
 }
+
+/// A symbol marked do-not-populate stays on its nets and carries the `dnp` property, as KiCad
+/// writes it in a netlist; the others do not.
+#[test]
+fn a_do_not_populate_symbol_carries_the_mark() {
+    let cap = Capture::open(
+        "fixtures/schematics/wires/wires.kicad_sch",
+        &ReadOptions::default(),
+    )
+    .unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let nl = cap.model().unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let r5 = &nl.components[nl.component("R5").unwrap()];
+    assert!(r5.field("dnp").is_some());
+    assert!(r5.pins.iter().all(|p| !p.connection.is_unconnected()));
+    let r1 = &nl.components[nl.component("R1").unwrap()];
+    assert!(r1.field("dnp").is_none());
+}
