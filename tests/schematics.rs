@@ -281,3 +281,54 @@ fn a_do_not_populate_symbol_carries_the_mark() {
     let r1 = &nl.components[nl.component("R1").unwrap()];
     assert!(r1.field("dnp").is_none());
 }
+
+/// `compare` sets two captures side by side by pins: a copy of a project with one wire
+/// taken away and one value changed differs exactly there (exit 1); a project against
+/// itself, or against its own `nets` read back, matches (exit 0).
+#[test]
+fn compare_reports_pins_and_parts_that_differ() {
+    let dir = std::env::temp_dir().join(format!("netmargin-compare-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let text = std::fs::read_to_string("fixtures/schematics/wires/wires.kicad_sch").unwrap();
+    // R1's value, and the wire that brings R5.2 to R4.2's path
+    let changed = text
+        .replacen(
+            "(property \"Value\" \"10k\"",
+            "(property \"Value\" \"22k\"",
+            1,
+        )
+        .replace(
+            "  (wire (pts (xy 105.41 88.9) (xy 105.41 63.5))",
+            "  (polyline (pts (xy 105.41 88.9) (xy 105.41 63.5))",
+        );
+    assert_ne!(changed, text);
+    let b = dir.join("wires.kicad_sch");
+    std::fs::write(&b, changed).unwrap();
+    let run = |a: &str, b: &str| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+            .args(["compare", a, b])
+            .output()
+            .expect("runs")
+    };
+    let o = run(
+        "fixtures/schematics/wires/wires.kicad_sch",
+        b.to_str().unwrap(),
+    );
+    let out = String::from_utf8_lossy(&o.stdout).into_owned();
+    assert_eq!(o.status.code(), Some(1), "{out}");
+    assert!(out.contains("R1: value `10k` in A, `22k` in B"), "{out}");
+    // R4.2 and R5.2 no longer reach each other: both pins are reported, by pins
+    assert!(out.contains("R4.2: connections differ"), "{out}");
+    assert!(out.contains("  only in A: R5.2"), "{out}");
+    assert!(out.contains("R5.2: connections differ"), "{out}");
+    assert!(
+        out.contains("2 pin(s) connected differently, 0 part(s) added, 0 removed, 1 changed"),
+        "{out}"
+    );
+    let same = run(
+        "fixtures/schematics/wires/wires.kicad_sch",
+        "fixtures/schematics/wires/wires.kicad_sch",
+    );
+    assert_eq!(same.status.code(), Some(0));
+    let _ = std::fs::remove_dir_all(&dir);
+}
