@@ -332,3 +332,36 @@ fn compare_reports_pins_and_parts_that_differ() {
     assert_eq!(same.status.code(), Some(0));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// A project whose sheet sits in a sub-folder (named `parts/stage.kicad_sch` by the root):
+/// the sheet stands for the root a folder above it, and the project reads into the same
+/// nets as with the sheet beside the root.
+#[test]
+fn a_sheet_in_a_sub_folder_finds_its_root_above() {
+    let dir = std::env::temp_dir().join(format!("netmargin-subfolder-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(dir.join("parts")).unwrap();
+    let root = std::fs::read_to_string("fixtures/schematics/hierarchy/tally.kicad_sch").unwrap();
+    let moved = root.replace("\"stage.kicad_sch\"", "\"parts/stage.kicad_sch\"");
+    assert_ne!(root, moved);
+    std::fs::write(dir.join("tally.kicad_sch"), moved).unwrap();
+    std::fs::copy(
+        "fixtures/schematics/hierarchy/stage.kicad_sch",
+        dir.join("parts/stage.kicad_sch"),
+    )
+    .unwrap();
+    let sub = dir.join("parts/stage.kicad_sch");
+    let found = netmargin::schematic::load::project_root(&sub);
+    assert_eq!(
+        found.canonicalize().unwrap(),
+        dir.join("tally.kicad_sch").canonicalize().unwrap()
+    );
+    let cap = Capture::open(sub.to_str().unwrap(), &ReadOptions::default())
+        .unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let nl = cap.model().unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let mut out = Vec::new();
+    capture::write_nets(&mut out, &nl, false).unwrap();
+    let want = std::fs::read_to_string("fixtures/schematics/hierarchy/expected-nets.txt").unwrap();
+    assert_eq!(String::from_utf8(out).unwrap(), want);
+    let _ = std::fs::remove_dir_all(&dir);
+}
