@@ -1,16 +1,20 @@
 //! The command-line definition (clap derive). Help, man page and completions all come from
 //! these types.
 
+use std::path::PathBuf;
+
 use clap::{Args, Parser, Subcommand, ValueEnum};
+
+use crate::report::{Format, ReportOptions};
 
 #[derive(Debug, Parser)]
 #[command(
     name = "netmargin",
     version,
-    about = "Checks KiCad netlists for logic-family interface mistakes",
-    long_about = "Reads KiCad S-expression netlists (.net) and checks every net against the DC data of the \
+    about = "Checks KiCad netlists and schematics for logic-family interface mistakes",
+    long_about = "Reads KiCad S-expression netlists (.net) or KiCad 6-9 schematics (.kicad_sch) and checks every net against the DC data of the \
 logic families on it: floating CMOS inputs, fan-out, TTL highs into CMOS inputs, open-collector pull-ups and more.",
-    after_help = "Examples:\n  netmargin check board.net\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
+    after_help = "Examples:\n  netmargin check board.net\n  netmargin check board.kicad_sch\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
 )]
 pub struct Cli {
     #[command(subcommand)]
@@ -49,7 +53,17 @@ pub enum Command {
     /// Show the whole DC budget of one net: drivers, loads, pull resistors, levels and margins
     Net(NetArgs),
     /// Write a report of a whole board (HTML with level charts, or Markdown)
-    Audit(crate::audit::AuditArgs),
+    Audit(AuditArgs),
+    /// List every net with its name and pins, from a netlist or a schematic
+    #[command(
+        after_help = "Examples:\n  netmargin nets board.kicad_sch\n  netmargin nets --format json board.net > board-nets.json"
+    )]
+    Nets(NetsArgs),
+    /// Compare two captures of a board (netlists or schematics) pin by pin
+    #[command(
+        after_help = "Exit codes: 0 when every pin connects alike and the parts match, 1 when they differ, 2 when an input cannot be read.\n\nExamples:\n  netmargin compare board.kicad_sch board.net\n  netmargin compare capture-1.kicad_sch capture-2.kicad_sch"
+    )]
+    Compare(CompareArgs),
     /// Record the findings netlists have now, so `check --baseline` reports only new ones
     #[command(
         after_help = "Examples:\n  netmargin baseline hardware/\n  netmargin baseline -o ci/netmargin-baseline.json hardware/*.net\n  netmargin check --baseline ci/netmargin-baseline.json hardware/"
@@ -90,11 +104,11 @@ pub struct BaselineArgs {
 /// The options that shape a check, shared by `check`, `baseline` and `config --show`.
 #[derive(Debug, Clone, Default, Args)]
 pub struct SettingsArgs {
-    /// Run only this check (repeatable)
-    #[arg(long, value_name = "CHECK")]
+    /// Run only these checks (repeatable, or a comma-separated list: `--only a,b`)
+    #[arg(long, value_name = "CHECK", value_delimiter = ',')]
     pub only: Vec<String>,
-    /// Turn this check off (repeatable)
-    #[arg(long, value_name = "CHECK")]
+    /// Turn these checks off (repeatable, or a comma-separated list)
+    #[arg(long, value_name = "CHECK", value_delimiter = ',')]
     pub disable: Vec<String>,
     /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
     #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
@@ -105,6 +119,18 @@ pub struct SettingsArgs {
     /// Ignore any netmargin.toml
     #[arg(long, conflicts_with = "config")]
     pub no_config: bool,
+}
+
+impl From<&SettingsArgs> for crate::analysis::Overrides {
+    fn from(a: &SettingsArgs) -> Self {
+        crate::analysis::Overrides {
+            only: a.only.clone(),
+            disable: a.disable.clone(),
+            rail: a.rail.clone(),
+            config: a.config.clone(),
+            no_config: a.no_config,
+        }
+    }
 }
 
 #[derive(Debug, Args)]
@@ -155,9 +181,28 @@ pub struct NetArgs {
     /// The net's name as in the netlist (`/CLK`, `Net-(U5-Pad4)`); a leading `/` may be left off
     #[arg(value_name = "NET")]
     pub net: String,
-    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
-    #[arg(long, value_name = "NAME=VOLTS", value_parser = parse_rail)]
-    pub rail: Vec<(String, f64)>,
+    #[command(flatten)]
+    pub settings: SettingsArgs,
+}
+
+#[derive(Debug, Args)]
+pub struct NetsArgs {
+    /// A netlist (`-` reads standard input) or a schematic's root sheet (`.kicad_sch`)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+    pub format: ListFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct CompareArgs {
+    /// The first capture: a netlist or a schematic's root sheet
+    #[arg(value_name = "A")]
+    pub a: String,
+    /// The second capture
+    #[arg(value_name = "B")]
+    pub b: String,
 }
 
 #[derive(Debug, Args)]
@@ -168,6 +213,8 @@ pub struct PartsArgs {
     /// Output format
     #[arg(long, value_enum, default_value_t = ListFormat::Text)]
     pub format: ListFormat,
+    #[command(flatten)]
+    pub settings: SettingsArgs,
 }
 
 #[derive(Debug, Args)]
@@ -188,8 +235,9 @@ pub enum ListFormat {
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Netlist files or folders (folders are searched for `*.net`, honouring .gitignore); `-` reads
-    /// standard input
+    /// Netlists, KiCad 6-9 schematics (a sheet stands for its project's root sheet) or folders
+    /// (searched for `*.net` and `*.kicad_sch`, each project's root sheet once, honouring
+    /// .gitignore); `-` reads a netlist from standard input
     #[arg(required = true, value_name = "PATH")]
     pub paths: Vec<String>,
     /// Exit with 1 when a finding at or above this severity is reported
@@ -203,8 +251,11 @@ pub struct CheckArgs {
     /// List each baseline entry that matches no finding any more (default: a count per file)
     #[arg(long, short = 'v')]
     pub verbose: bool,
+    /// Exit with 2 when the paths hold no netlist (for CI: a moved folder checks nothing)
+    #[arg(long)]
+    pub require_files: bool,
     #[command(flatten)]
-    pub report: crate::report::ReportArgs,
+    pub report: ReportArgs,
 }
 
 pub(crate) fn parse_rail(s: &str) -> Result<(String, f64), String> {
@@ -237,4 +288,67 @@ impl FailOn {
             FailOn::Info => crate::diag::Severity::Info,
         }
     }
+}
+
+/// The command-line options of the reporters (flattened into `check`).
+#[derive(Debug, Clone, Args)]
+pub struct ReportArgs {
+    /// Output format
+    #[arg(long, value_enum, default_value_t = Format::Human)]
+    pub format: Format,
+    /// Print the findings only: no per-file or summary lines
+    #[arg(long, short = 'q')]
+    pub quiet: bool,
+    /// Directory that SARIF and annotation paths are relative to [default: the current directory]
+    #[arg(long, value_name = "DIR")]
+    pub root: Option<PathBuf>,
+}
+
+impl ReportArgs {
+    /// The options for [`write_report`]; `color` and `width` only shape the human format.
+    pub fn options(&self, color: bool, width: usize) -> std::io::Result<ReportOptions> {
+        let cwd = std::env::current_dir()?;
+        let root = match &self.root {
+            Some(r) => cwd.join(r),
+            None => cwd.clone(),
+        };
+        Ok(ReportOptions {
+            format: self.format,
+            quiet: self.quiet,
+            color,
+            width,
+            root,
+            cwd,
+            netlists: None,
+        })
+    }
+}
+
+/// Report format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum AuditFormat {
+    Html,
+    Markdown,
+}
+
+/// `netmargin audit`.
+#[derive(Debug, Args)]
+pub struct AuditArgs {
+    /// The netlist (`-` reads standard input)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// Write the report here (atomically); without it the report goes to standard output
+    #[arg(short, long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Report format
+    #[arg(long, value_enum, default_value_t = AuditFormat::Html)]
+    pub format: AuditFormat,
+    /// Also chart this net, with or without a finding (repeatable)
+    #[arg(long, value_name = "NAME")]
+    pub net: Vec<String>,
+    /// Write every chart as an SVG file into this folder as well
+    #[arg(long, value_name = "DIR")]
+    pub chart_out: Option<PathBuf>,
+    #[command(flatten)]
+    pub settings: SettingsArgs,
 }

@@ -37,7 +37,7 @@
 
 use std::path::{Path, PathBuf};
 
-use serde::Deserialize;
+use toml::de::{DeTable, DeValue};
 use toml::Spanned;
 
 use crate::classify::classifier::Rules;
@@ -49,58 +49,40 @@ use crate::source::{SourceFile, Span};
 
 pub const FILE_NAME: &str = "netmargin.toml";
 
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
+#[derive(Debug, Default)]
 struct RawConfig {
-    #[serde(default)]
     rail_tolerance: Option<Spanned<f64>>,
-    #[serde(default)]
     rails: std::collections::BTreeMap<String, Spanned<f64>>,
-    #[serde(default)]
     connectors: std::collections::BTreeMap<String, Spanned<String>>,
-    #[serde(default)]
     checks: Option<RawChecks>,
-    #[serde(default)]
     rules: Option<RawRules>,
-    #[serde(default)]
-    waiver: Vec<Spanned<RawWaiver>>,
+    waiver: Vec<RawWaiver>,
 }
 
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
+#[derive(Debug, Default)]
 struct RawChecks {
-    #[serde(default)]
     derating: Option<Spanned<f64>>,
-    #[serde(default)]
     min_margin_v: Option<Spanned<f64>>,
-    #[serde(default)]
     severity: std::collections::BTreeMap<Spanned<String>, Spanned<String>>,
 }
 
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
+#[derive(Debug, Default)]
 struct RawRules {
-    #[serde(default)]
     families: Vec<Spanned<String>>,
-    #[serde(default)]
     functions: Vec<Spanned<String>>,
-    #[serde(default)]
     parts: Vec<Spanned<String>>,
 }
 
-#[derive(Debug, Deserialize)]
-#[serde(deny_unknown_fields)]
+#[derive(Debug, Default)]
 struct RawWaiver {
-    check: Spanned<String>,
-    #[serde(default)]
+    check: Option<Spanned<String>>,
     refs: Vec<String>,
-    #[serde(default)]
     pins: Vec<String>,
-    #[serde(default)]
     nets: Vec<String>,
     reason: Option<Spanned<String>>,
-    #[serde(default)]
     expires: Option<Spanned<toml::value::Datetime>>,
+    /// The `[[waiver]]` table's span.
+    span: std::ops::Range<usize>,
 }
 
 /// A value with where it came from.
@@ -237,19 +219,8 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
         source: source.clone(),
         diags,
     };
-    let raw: RawConfig = toml::from_str(source.text()).map_err(|e| {
-        let mut d = Diag::error(
-            "config",
-            format!("in the configuration: {}", e.message().trim_end()),
-        );
-        if let Some(s) = e.span() {
-            d = d.at(sp(s), "here");
-        }
-        err(vec![d.with_help(
-            "see `netmargin config --help` and the README's configuration section for the keys",
-        )])
-    })?;
     let mut diags = Vec::new();
+    let raw = read_raw(source.text(), &mut diags);
     let mut cfg = Config {
         source: Some(source.clone()),
         ..Default::default()
@@ -326,7 +297,7 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
                 diags.push(
                     Diag::error("config", format!("no check `{}`", id.get_ref()))
                         .at(sp(id.span()), "unknown check")
-                        .with_help("`netmargin explain` lists the checks"),
+                        .with_help(check_help(id.get_ref())),
                 );
                 continue;
             }
@@ -366,15 +337,23 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
         cfg.parts = conv(&r.parts);
     }
     for w in &raw.waiver {
-        let span = sp(w.span());
-        let w = w.get_ref();
-        if w.check.get_ref() != "*" && crate::checks::info(w.check.get_ref()).is_none() {
+        let span = sp(w.span.clone());
+        let Some(check) = &w.check else {
+            diags.push(
+                Diag::error("config", "a waiver needs a `check`: the check id it accepts, or \"*\"")
+                    .at(span, "no check")
+                    .with_help("add `check = \"<check id>\"` to this [[waiver]]; `netmargin explain` lists the ids"),
+            );
+            continue;
+        };
+        if check.get_ref() != "*" && crate::checks::info(check.get_ref()).is_none() {
             diags.push(
                 Diag::error(
                     "config",
-                    format!("waiver for an unknown check `{}`", w.check.get_ref()),
+                    format!("waiver for an unknown check `{}`", check.get_ref()),
                 )
-                .at(sp(w.check.span()), "unknown check"),
+                .at(sp(check.span()), "unknown check")
+                .with_help(check_help(check.get_ref())),
             );
             continue;
         }
@@ -406,7 +385,7 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
             },
         };
         cfg.waivers.push(Waiver {
-            check: w.check.get_ref().clone(),
+            check: check.get_ref().clone(),
             refs: w.refs.clone(),
             pins: w.pins.clone(),
             nets: w.nets.clone(),
@@ -418,7 +397,305 @@ pub fn parse(source: &SourceFile) -> Result<Config, ConfigError> {
     if diags.is_empty() {
         Ok(cfg)
     } else {
+        diags.sort_by_key(|d| d.primary_span().map_or(0, |s| s.start));
         Err(err(diags))
+    }
+}
+
+fn check_help(id: &str) -> String {
+    let close = crate::text::closest(id, crate::checks::REGISTRY.iter().map(|c| c.id), 2);
+    match close.first() {
+        Some(c) => format!("did you mean `{c}`? `netmargin explain` lists the checks"),
+        None => "`netmargin explain` lists the checks".to_string(),
+    }
+}
+
+/// Reads the document into the raw shape, noting every problem (syntax, unknown keys, wrong
+/// kinds of value) at its place, in the words of this file's documentation, and going on.
+fn read_raw(text: &str, diags: &mut Vec<Diag>) -> RawConfig {
+    let (doc, errors) = DeTable::parse_recoverable(text);
+    for e in errors {
+        let mut d = Diag::error(
+            "config",
+            format!("this is not valid TOML: {}", e.message().trim_end()),
+        );
+        if let Some(s) = e.span() {
+            d = d.at(sp(s), "here");
+        }
+        diags.push(d.with_help("see the README's configuration section for the file's form"));
+    }
+    let mut r = Reader { diags };
+    let mut raw = RawConfig::default();
+    let top = doc.get_ref();
+    r.known(
+        top,
+        "",
+        &[
+            "rail_tolerance",
+            "rails",
+            "connectors",
+            "checks",
+            "rules",
+            "waiver",
+        ],
+    );
+    if let Some(v) = top.get("rail_tolerance") {
+        raw.rail_tolerance = r.number(v, "rail_tolerance", "0.05");
+    }
+    if let Some(t) = top.get("rails").and_then(|v| r.table(v, "[rails]")) {
+        for (k, v) in t {
+            if let Some(n) = r.number(v, &format!("rail `{}`", k.get_ref()), "5.0") {
+                raw.rails.insert(k.get_ref().to_string(), n);
+            }
+        }
+    }
+    if let Some(t) = top
+        .get("connectors")
+        .and_then(|v| r.table(v, "[connectors]"))
+    {
+        for (k, v) in t {
+            if let Some(f) = r.string(v, &format!("connector `{}`", k.get_ref()), "\"74LS\"") {
+                raw.connectors.insert(k.get_ref().to_string(), f);
+            }
+        }
+    }
+    if let Some(t) = top.get("checks").and_then(|v| r.table(v, "[checks]")) {
+        r.known(t, "checks", &["derating", "min_margin_v", "severity"]);
+        let mut c = RawChecks::default();
+        if let Some(v) = t.get("derating") {
+            c.derating = r.number(v, "checks.derating", "0.8");
+        }
+        if let Some(v) = t.get("min_margin_v") {
+            c.min_margin_v = r.number(v, "checks.min_margin_v", "0.2");
+        }
+        if let Some(s) = t
+            .get("severity")
+            .and_then(|v| r.table(v, "checks.severity"))
+        {
+            for (k, v) in s {
+                if let Some(x) = r.string(
+                    v,
+                    &format!("the severity of `{}`", k.get_ref()),
+                    "\"warning\"",
+                ) {
+                    c.severity
+                        .insert(Spanned::new(k.span(), k.get_ref().to_string()), x);
+                }
+            }
+        }
+        raw.checks = Some(c);
+    }
+    if let Some(t) = top.get("rules").and_then(|v| r.table(v, "[rules]")) {
+        r.known(t, "rules", &["families", "functions", "parts"]);
+        let mut rr = RawRules::default();
+        for (key, list) in [
+            ("families", &mut rr.families),
+            ("functions", &mut rr.functions),
+            ("parts", &mut rr.parts),
+        ] {
+            if let Some(v) = t.get(key) {
+                *list = r.strings(v, &format!("rules.{key}"), "[\"rules/parts.toml\"]");
+            }
+        }
+        raw.rules = Some(rr);
+    }
+    if let Some(v) = top.get("waiver") {
+        match v.get_ref() {
+            DeValue::Array(items) => {
+                for item in items {
+                    let Some(t) = r.table(item, "[[waiver]]") else {
+                        continue;
+                    };
+                    r.known(
+                        t,
+                        "waiver",
+                        &["check", "refs", "pins", "nets", "reason", "expires"],
+                    );
+                    let mut w = RawWaiver {
+                        span: item.span(),
+                        ..Default::default()
+                    };
+                    if let Some(v) = t.get("check") {
+                        w.check = r.string(v, "a waiver's `check`", "\"floating-ttl-input\"");
+                    }
+                    for (key, list) in [
+                        ("refs", &mut w.refs),
+                        ("pins", &mut w.pins),
+                        ("nets", &mut w.nets),
+                    ] {
+                        if let Some(v) = t.get(key) {
+                            *list = r
+                                .strings(v, &format!("a waiver's `{key}`"), "[\"U24\"]")
+                                .into_iter()
+                                .map(Spanned::into_inner)
+                                .collect();
+                        }
+                    }
+                    if let Some(v) = t.get("reason") {
+                        w.reason = r.string(v, "a waiver's `reason`", "\"spare gates\"");
+                    }
+                    if let Some(v) = t.get("expires") {
+                        match v.get_ref() {
+                            DeValue::Datetime(d) => w.expires = Some(Spanned::new(v.span(), *d)),
+                            other => r.wrong(
+                                v.span(),
+                                "a waiver's `expires`",
+                                "a date such as 2027-06-30",
+                                other,
+                            ),
+                        }
+                    }
+                    raw.waiver.push(w);
+                }
+            }
+            other => r.wrong(v.span(), "`waiver`", "a list of [[waiver]] tables", other),
+        }
+    }
+    raw
+}
+
+/// Walks the parsed document, noting problems as it goes.
+struct Reader<'d> {
+    diags: &'d mut Vec<Diag>,
+}
+
+fn kind_of(v: &DeValue<'_>) -> &'static str {
+    match v {
+        DeValue::String(_) => "text",
+        DeValue::Integer(_) | DeValue::Float(_) => "a number",
+        DeValue::Boolean(_) => "true or false",
+        DeValue::Datetime(_) => "a date",
+        DeValue::Array(_) => "a list",
+        DeValue::Table(_) => "a table",
+    }
+}
+
+impl Reader<'_> {
+    fn wrong(&mut self, span: std::ops::Range<usize>, what: &str, want: &str, found: &DeValue<'_>) {
+        self.diags.push(
+            Diag::error(
+                "config",
+                format!("{what} must be {want}, not {}", kind_of(found)),
+            )
+            .at(sp(span), format!("expected {want}")),
+        );
+    }
+
+    /// Notes every key of `t` not in `known`, with the closest known key.
+    fn known(&mut self, t: &DeTable<'_>, section: &str, known: &[&str]) {
+        for k in t.keys() {
+            if known.contains(&k.get_ref().as_ref()) {
+                continue;
+            }
+            let place = if section.is_empty() {
+                "at the top of the file".to_string()
+            } else {
+                format!("in [{section}]")
+            };
+            let close = crate::text::closest(k.get_ref(), known.iter().copied(), 1);
+            let help = match close.first() {
+                Some(c) => format!(
+                    "did you mean `{c}`? the keys {place} are: {}",
+                    known.join(", ")
+                ),
+                None => format!("the keys {place} are: {}", known.join(", ")),
+            };
+            self.diags.push(
+                Diag::error("config", format!("unknown key `{}` {place}", k.get_ref()))
+                    .at(sp(k.span()), "unknown key")
+                    .with_help(help),
+            );
+        }
+    }
+
+    fn table<'v, 'i>(
+        &mut self,
+        v: &'v Spanned<DeValue<'i>>,
+        what: &str,
+    ) -> Option<&'v DeTable<'i>> {
+        match v.get_ref() {
+            DeValue::Table(t) => Some(t),
+            other => {
+                self.wrong(v.span(), what, "a table", other);
+                None
+            }
+        }
+    }
+
+    fn number(
+        &mut self,
+        v: &Spanned<DeValue<'_>>,
+        what: &str,
+        example: &str,
+    ) -> Option<Spanned<f64>> {
+        let x = match v.get_ref() {
+            DeValue::Float(f) => f.as_str().replace('_', "").parse::<f64>().ok(),
+            DeValue::Integer(i) => i64::from_str_radix(&i.as_str().replace('_', ""), i.radix())
+                .ok()
+                .map(|n| n as f64),
+            other => {
+                self.wrong(
+                    v.span(),
+                    what,
+                    &format!("a number, such as {example}"),
+                    other,
+                );
+                return None;
+            }
+        };
+        match x {
+            Some(x) => Some(Spanned::new(v.span(), x)),
+            None => {
+                self.diags.push(
+                    Diag::error("config", format!("{what}: this number cannot be read"))
+                        .at(sp(v.span()), "here"),
+                );
+                None
+            }
+        }
+    }
+
+    fn string(
+        &mut self,
+        v: &Spanned<DeValue<'_>>,
+        what: &str,
+        example: &str,
+    ) -> Option<Spanned<String>> {
+        match v.get_ref() {
+            DeValue::String(s) => Some(Spanned::new(v.span(), s.to_string())),
+            other => {
+                self.wrong(
+                    v.span(),
+                    what,
+                    &format!("text in quotes, such as {example}"),
+                    other,
+                );
+                None
+            }
+        }
+    }
+
+    fn strings(
+        &mut self,
+        v: &Spanned<DeValue<'_>>,
+        what: &str,
+        example: &str,
+    ) -> Vec<Spanned<String>> {
+        match v.get_ref() {
+            DeValue::Array(items) => items
+                .iter()
+                .filter_map(|i| self.string(i, &format!("each item of {what}"), "\"U24\""))
+                .collect(),
+            other => {
+                self.wrong(
+                    v.span(),
+                    what,
+                    &format!("a list of text, such as {example}"),
+                    other,
+                );
+                Vec::new()
+            }
+        }
     }
 }
 
@@ -489,29 +766,6 @@ impl Config {
                 .at(span, "listed here")],
             }),
         }
-    }
-
-    /// Applies the check settings to options.
-    pub fn apply(&self, run: &mut crate::pipeline::RunOptions) {
-        for r in &self.rails {
-            run.model.rails.push(r.value.clone());
-        }
-        if let Some(t) = &self.rail_tolerance {
-            run.model.rail_tolerance = t.value;
-        }
-        if let Some(d) = &self.derating {
-            run.checks.derating = d.value;
-        }
-        if let Some(m) = &self.min_margin_v {
-            run.checks.min_margin_v = m.value;
-        }
-        for c in &self.checks {
-            match c.value.1 {
-                Setting::Off => run.checks.disabled.push(c.value.0.clone()),
-                Setting::Severity(s) => run.checks.severity.push((c.value.0.clone(), s)),
-            }
-        }
-        run.model.connector_families = self.connectors.iter().map(|c| c.value.clone()).collect();
     }
 }
 

@@ -195,7 +195,8 @@ impl Rendered<'_> {
 
 impl Diagnostic for Rendered<'_> {
     fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        Some(Box::new(&self.diag.code))
+        // an excerpt continuing a finding carries no code of its own
+        (!self.diag.code.is_empty()).then(|| Box::new(&self.diag.code) as Box<dyn fmt::Display>)
     }
     fn severity(&self) -> Option<miette::Severity> {
         Some(match self.diag.severity {
@@ -297,5 +298,17 @@ pub static INPUT_CODES: &[(&str, &str)] = &[
     (
         "unused-rule",
         "a project mapping entry that matched nothing in the run",
+    ),
+    (
+        "baseline",
+        "the baseline file cannot be read or is not a netmargin baseline",
+    ),
+    (
+        "stale-baseline",
+        "baseline entries that match no finding any more",
+    ),
+    (
+        "no-such-net",
+        "a net named on the command line is not in the netlist",
     ),
 ];

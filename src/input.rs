@@ -8,6 +8,20 @@ use crate::source::{line_col_in, line_starts, SourceFile, Span};
 /// a file that would exhaust memory.
 pub const DEFAULT_MAX_BYTES: u64 = 2 << 30;
 
+/// Options that shape how a file is read.
+#[derive(Debug, Clone)]
+pub struct ReadOptions {
+    pub max_bytes: u64,
+}
+
+impl Default for ReadOptions {
+    fn default() -> Self {
+        ReadOptions {
+            max_bytes: DEFAULT_MAX_BYTES,
+        }
+    }
+}
+
 /// A failed load: the diagnostic and, where the bytes could be shown, a source to show them
 /// from (invalid UTF-8 is shown with replacement characters).
 #[derive(Debug)]

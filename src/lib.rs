@@ -5,20 +5,23 @@
 //! Data flows one way: text -> [`sexpr`] (syntax tree with spans) -> [`netlist`] (the
 //! netlist model) -> [`classify`] (families, functions, pin roles) -> checks -> reports.
 
-pub mod app;
+pub mod analysis;
 pub mod atomic;
 pub mod audit;
 pub mod baseline;
+pub mod capture;
 pub mod checks;
 pub mod circuit;
 pub mod classify;
 pub mod cli;
+pub mod commands;
 pub mod config;
 pub mod diag;
 pub mod input;
 pub mod netlist;
 pub mod pipeline;
 pub mod report;
+pub mod schematic;
 pub mod sexpr;
 pub mod source;
 #[doc(hidden)]

@@ -5,28 +5,15 @@
 use std::io::Read;
 use std::path::Path;
 
-use crate::checks::{self, CheckOptions};
-use crate::circuit::{self, ModelOptions};
-use crate::classify::classifier::{classify, Rules};
+use crate::analysis::{Analysis, Settings};
+pub use crate::analysis::{RunOptions, UsedRules};
+use crate::classify::classifier::Rules;
 use crate::diag::{Diag, Severity};
 use crate::input;
-use crate::netlist::{self, Summary};
+pub use crate::input::ReadOptions;
+use crate::netlist::Summary;
 use crate::sexpr;
 use crate::source::SourceFile;
-
-/// Options that shape how a file is read.
-#[derive(Debug, Clone)]
-pub struct ReadOptions {
-    pub max_bytes: u64,
-}
-
-impl Default for ReadOptions {
-    fn default() -> Self {
-        ReadOptions {
-            max_bytes: input::DEFAULT_MAX_BYTES,
-        }
-    }
-}
 
 /// What came of one input.
 #[derive(Debug)]
@@ -113,14 +100,6 @@ fn io_diag(path: &str, e: &std::io::Error) -> Diag {
     Diag::error("unreadable", format!("cannot read `{path}`: {what}"))
 }
 
-/// Everything that shapes a run.
-#[derive(Debug, Clone, Default)]
-pub struct RunOptions {
-    pub read: ReadOptions,
-    pub model: ModelOptions,
-    pub checks: CheckOptions,
-}
-
 /// Reads a file as far as a source that looks like a netlist (size limit, UTF-8, the usual
 /// wrong formats), for commands that model it themselves (`parts`, `net`). `Err` is an
 /// outcome carrying the fatal diagnostic, to be shown like `check` shows it.
@@ -143,10 +122,34 @@ pub fn open_source(path: &str, opts: &ReadOptions) -> Result<SourceFile, Box<Fil
     };
     let bytes = read_bytes(path, opts).map_err(|d| fail(d, None))?;
     let source = input::load(&name, bytes).map_err(|e| fail(e.diag, Some(e.source)))?;
+    if crate::schematic::is_sheet(source.text()) {
+        // a KiCad 6-9 schematic: the root sheet and every sheet below it, joined into one
+        // source whose spans point into each sheet
+        return open_schematic(path, source, opts.max_bytes).map_err(|f| fail(f.diag, f.source));
+    }
     if let Some(d) = sexpr::sniff(source.text()) {
         return Err(fail(d, Some(source)));
     }
     Ok(source)
+}
+
+/// The project `path` belongs to (`path` is its root sheet or any sheet of it), as one
+/// source made of its sheet files, read from the disk (`loaded` is `path`'s text, already
+/// read). Standard input is a project of one
+/// sheet: its sub-sheets would be found beside its file.
+pub fn open_schematic(
+    path: &str,
+    loaded: SourceFile,
+    max_bytes: u64,
+) -> Result<SourceFile, Box<crate::schematic::load::Failed>> {
+    if path == "-" {
+        return crate::schematic::load::single(loaded.name(), loaded.text().to_string())
+            .map(|f| f.source);
+    }
+    // a sheet stands for its project: read from the project's root sheet
+    let root = crate::schematic::load::project_root(std::path::Path::new(path));
+    let root = root.to_str().unwrap_or(path);
+    crate::schematic::open(root, max_bytes).map(|f| f.source)
 }
 
 /// A fatal outcome for `source` (a netlist that could not be modelled).
@@ -180,66 +183,68 @@ pub fn check_file(path: &str, rules: &Rules, opts: &RunOptions) -> FileOutcome {
     check_file_with_usage(path, rules, opts).0
 }
 
-/// Which project mapping entries a file used (so entries that matched nothing in a run can
-/// be reported).
-#[derive(Debug, Clone, Default)]
-pub struct UsedRules {
-    /// Indices into `Rules::parts.entries`.
-    pub entries: Vec<usize>,
-    /// Family ids the classified parts use.
-    pub families: Vec<String>,
-    /// (series, function id) the classified parts use.
-    pub functions: Vec<(crate::classify::function::Series, String)>,
-}
-
 /// [`check_file`], also saying which mapping entries the file used.
 pub fn check_file_with_usage(
     path: &str,
     rules: &Rules,
     opts: &RunOptions,
 ) -> (FileOutcome, UsedRules) {
-    let mut used = UsedRules::default();
-    let name = if path == "-" {
-        "<stdin>".to_string()
-    } else {
-        path.to_string()
-    };
-    let mut out = FileOutcome {
-        name: name.clone(),
-        source: None,
-        fatal: None,
-        diags: Vec::new(),
-        summary: Summary::default(),
-        coverage: None,
-        waived: 0,
-    };
-    let bytes = match read_bytes(path, &opts.read) {
-        Ok(b) => b,
-        Err(d) => {
-            out.fatal = Some(d);
-            return (out, used);
-        }
-    };
-    let source = match input::load(&name, bytes) {
+    let settings = Settings::with(rules.clone(), opts.clone());
+    let (o, u) = check_file_with(path, &settings);
+    (o, u.rules)
+}
+
+/// What analysing one file for `check` produced, besides its outcome: which project mapping
+/// entries and which waivers it used (so those used by no file can be reported).
+#[derive(Debug, Clone, Default)]
+pub struct Usage {
+    pub rules: UsedRules,
+    /// One per waiver of the settings.
+    pub waivers: Vec<bool>,
+}
+
+/// Reads and analyses the file at `path` with resolved settings: the outcome (findings with
+/// the waivers applied) and what it used.
+pub fn check_file_with(path: &str, settings: &Settings) -> (FileOutcome, Usage) {
+    let source = match open_source(path, &settings.run.read) {
         Ok(s) => s,
-        Err(e) => {
-            out.fatal = Some(e.diag);
-            out.source = Some(e.source);
-            return (out, used);
-        }
+        Err(f) => return (*f, Usage::default()),
     };
-    let result = check_source(&source, rules, opts);
-    out.source = Some(source);
+    outcome_of(source, settings)
+}
+
+/// The outcome of analysing `source` with `settings`.
+pub fn outcome_of(source: SourceFile, settings: &Settings) -> (FileOutcome, Usage) {
+    let result = Analysis::new(&source, settings).map(|a| {
+        let board = a.circuit();
+        let f = board.findings();
+        let usage = Usage {
+            rules: a.used(),
+            waivers: f.waivers_used.clone(),
+        };
+        (
+            f.diags.clone(),
+            f.waived.len(),
+            a.nl.summary(),
+            a.cl.coverage,
+            usage,
+        )
+    });
     match result {
-        Ok(c) => {
-            out.diags = c.diags;
-            out.summary = c.summary;
-            out.coverage = Some(c.coverage);
-            used = c.used;
-        }
-        Err(d) => out.fatal = Some(d),
+        Ok((diags, waived, summary, coverage, usage)) => (
+            FileOutcome {
+                name: source.name().to_string(),
+                source: Some(source),
+                fatal: None,
+                diags,
+                summary,
+                coverage: Some(coverage),
+                waived,
+            },
+            usage,
+        ),
+        Err(d) => (fatal_outcome(&source, d), Usage::default()),
     }
-    (out, used)
 }
 
 /// What checking one text produced.
@@ -252,43 +257,20 @@ pub struct Checked {
     pub used: UsedRules,
 }
 
-/// Parses, models, classifies and checks a text.
+/// Parses, models, classifies and checks a text (no configuration, no waivers).
 pub fn check_source(
     source: &SourceFile,
     rules: &Rules,
     opts: &RunOptions,
 ) -> Result<Checked, Diag> {
-    if let Some(d) = sexpr::sniff(source.text()) {
-        return Err(d);
-    }
-    let nl = netlist::read(source.text())?;
-    let cl = classify(&nl, rules);
-    let cx = circuit::build(&nl, &cl, rules, opts.model.clone());
-    let mut diags = nl.diagnostics.clone();
-    diags.extend(checks::run_all(&cx, &opts.checks));
-    let mut used = UsedRules::default();
-    for p in &cl.parts {
-        if let Some(e) = p.entry {
-            used.entries.push(e);
-        }
-        if let Some(f) = &p.family {
-            used.families.push(f.clone());
-        }
-        if let Some(f) = &p.function {
-            used.functions.push(f.clone());
-        }
-    }
-    used.entries.sort_unstable();
-    used.entries.dedup();
-    used.families.sort();
-    used.families.dedup();
-    used.functions.sort();
-    used.functions.dedup();
+    let settings = Settings::with(rules.clone(), opts.clone());
+    let a = Analysis::new(source, &settings)?;
+    let board = a.circuit();
     Ok(Checked {
-        diags,
-        summary: nl.summary(),
-        coverage: cl.coverage,
-        used,
+        diags: board.findings().diags.clone(),
+        summary: a.nl.summary(),
+        coverage: a.cl.coverage,
+        used: a.used(),
     })
 }
 
@@ -297,8 +279,6 @@ pub fn model_text(source: &SourceFile) -> Result<(Vec<Diag>, Summary), Diag> {
     if let Some(d) = sexpr::sniff(source.text()) {
         return Err(d);
     }
-    let tree = sexpr::parse(source.text())?;
-    let nl = netlist::build(&tree)?;
-    drop(tree);
+    let nl = crate::netlist::read(source.text())?;
     Ok((nl.diagnostics.clone(), nl.summary()))
 }

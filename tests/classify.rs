@@ -126,7 +126,7 @@ fn parts_command_text_and_json() {
         String::from_utf8(o.stdout).unwrap()
     };
     let text = run(&["parts", "fixtures/demo/counter-timer.net"]);
-    assert!(text.contains("U22     74LSOO"), "{text}");
+    assert!(text.contains("U22  74LSOO"), "{text}");
     assert!(text.contains("did you mean 74LS00"), "{text}");
     assert!(
         text.contains("25 of 26 IC-like parts classified (96 %)"),
@@ -175,4 +175,37 @@ fn families_command_at_a_supply() {
         .unwrap();
     // TI SDLS025B: IOL 8 mA
     assert_eq!(ls["iol_max_ma"], 8.0);
+}
+
+#[test]
+fn parts_columns_never_run_together_and_unnamed_nets_can_be_asked_about() {
+    let run = |args: &[&str]| {
+        let o = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+            .args(args)
+            .current_dir(env!("CARGO_MANIFEST_DIR"))
+            .output()
+            .unwrap();
+        (
+            o.status.code(),
+            String::from_utf8_lossy(&o.stdout).into_owned(),
+        )
+    };
+    // every row keeps two spaces between the reference and the value, however long either is
+    let (_, text) = run(&["parts", "fixtures/quirks/netnames-k8.net"]);
+    let header = text.lines().next().unwrap();
+    let value_at = header.find("value").unwrap();
+    for line in text
+        .lines()
+        .skip(1)
+        .filter(|l| !l.starts_with(' ') && !l.contains(':'))
+    {
+        assert!(
+            line[..value_at].ends_with("  "),
+            "columns run together: {line}"
+        );
+    }
+    // an unnamed net is shown as `#CODE` in findings; `net` finds it by that name
+    let (code, text) = run(&["net", "fixtures/quirks/netnames-k8.net", "#1"]);
+    assert_eq!(code, Some(0), "{text}");
+    assert!(text.contains("#1"), "{text}");
 }

@@ -24,6 +24,8 @@
 
 mod support;
 
+#[path = "notice/mod.rs"]
+mod notice;
 use std::fmt::Write as _;
 use std::process::Command;
 
@@ -532,12 +534,13 @@ fn ngspice_present() -> bool {
 #[test]
 fn budgets_agree_with_ngspice_operating_points() {
     if !ngspice_present() {
-        if std::env::var_os("CI").is_some() {
-            panic!("ngspice is not installed: CI must install it (apt-get install -y ngspice)");
-        }
-        eprintln!("notice: ngspice is not installed; the ngspice cross-check did not run (apt-get install -y ngspice)");
+        notice::skipped(
+            "budgets against ngspice operating points",
+            "apt-get install -y ngspice",
+        );
         return;
     }
+    notice::ran("budgets against ngspice operating points");
     let cases = cases();
     assert!(cases.len() >= 30);
     let mut deck = String::from("netmargin budget cross-check\n");

@@ -6,6 +6,8 @@
 //! Without the validator the test prints a notice and passes, except under CI (env `CI`
 //! set), where a missing validator fails.
 
+#[path = "notice/mod.rs"]
+mod notice;
 use std::process::{Command, Stdio};
 
 use netmargin::diag::Diag;
@@ -47,9 +49,10 @@ fn validate(logs: &[String]) -> Option<Vec<Result<(), String>>> {
         .output();
     let _ = std::fs::remove_dir_all(&dir);
     let missing = |why: String| {
-        let notice = format!("SARIF validator not installed ({}): {INSTALL}", why.trim());
-        assert!(std::env::var_os("CI").is_none(), "{notice}; CI needs it");
-        eprintln!("notice: {notice}; skipping the schema check outside CI");
+        notice::skipped(
+            "SARIF output against the SARIF 2.1.0 schema",
+            &format!("{INSTALL}; {}", why.trim()),
+        );
         None
     };
     let out = match run {
@@ -85,6 +88,7 @@ fn validate(logs: &[String]) -> Option<Vec<Result<(), String>>> {
             }
         })
         .collect();
+    notice::ran("SARIF output against the SARIF 2.1.0 schema");
     Some(verdicts)
 }
 

@@ -102,11 +102,11 @@ fn finding_html(out: &mut String, f: &Finding, file: &str) {
 
 fn block_html(out: &mut String, title: &str, b: &Block) {
     let _ = write!(out, "<h3>{}</h3>", esc(title));
-    let from = if b.from_findings {
+    let from = if b.ran {
         format!("from the findings of <code>{}</code>", esc(b.check))
     } else {
         format!(
-            "from the model: no <code>{}</code> findings in this run",
+            "<code>{}</code> is turned off in this run: not reviewed",
             esc(b.check)
         )
     };

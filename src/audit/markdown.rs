@@ -32,10 +32,10 @@ pub fn md(s: &str) -> String {
 
 fn block_md(o: &mut String, title: &str, b: &Block) {
     let _ = writeln!(o, "### {title}\n");
-    let from = if b.from_findings {
+    let from = if b.ran {
         format!("from the findings of `{}`", b.check)
     } else {
-        format!("from the model: no `{}` findings in this run", b.check)
+        format!("`{}` is turned off in this run: not reviewed", b.check)
     };
     if b.rows.is_empty() {
         let _ = writeln!(o, "None found ({from}).\n");

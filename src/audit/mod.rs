@@ -14,21 +14,18 @@ pub mod html;
 pub mod markdown;
 
 use std::collections::BTreeMap;
-use std::io::{self, Write};
+use std::io;
 use std::path::{Path, PathBuf};
 
-use clap::{Args, ValueEnum};
-
-use crate::circuit::budget::{net_budget, StateBudget};
-use crate::circuit::{self, Circuit, RailSource};
-use crate::classify::classifier::{classify, PartKind, Rules};
+use crate::analysis::{Analysis, Board, RunOptions, Settings};
+use crate::circuit::budget::{NetBudget, StateBudget};
+use crate::circuit::{Circuit, RailSource};
+use crate::classify::classifier::{PartKind, Rules};
 use crate::classify::family::Drive;
 use crate::classify::PinRole;
 use crate::config;
 use crate::diag::{Diag, Severity};
-use crate::netlist::{self, Connection, PinType};
-use crate::pipeline::{self, FileOutcome, ReadOptions, RunOptions};
-use crate::sexpr;
+use crate::netlist::{self, Connection};
 use crate::source::SourceFile;
 
 /// Checks whose findings are about levels or fan-out: each gets a level chart.
@@ -44,42 +41,6 @@ pub const CHARTED_CHECKS: &[&str] = &[
 /// A pass that is closer than this to failing is marked marginal in the family matrix (our
 /// own threshold; `min_margin_v` raises it).
 pub const MARGINAL_V: f64 = 0.2;
-
-/// Report format.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub enum AuditFormat {
-    Html,
-    Markdown,
-}
-
-/// `netmargin audit`.
-#[derive(Debug, Args)]
-pub struct AuditArgs {
-    /// The netlist (`-` reads standard input)
-    #[arg(value_name = "FILE")]
-    pub path: String,
-    /// Write the report here (atomically); without it the report goes to standard output
-    #[arg(short, long, value_name = "FILE")]
-    pub output: Option<PathBuf>,
-    /// Report format
-    #[arg(long, value_enum, default_value_t = AuditFormat::Html)]
-    pub format: AuditFormat,
-    /// Also chart this net, with or without a finding (repeatable)
-    #[arg(long, value_name = "NAME")]
-    pub net: Vec<String>,
-    /// Write every chart as an SVG file into this folder as well
-    #[arg(long, value_name = "DIR")]
-    pub chart_out: Option<PathBuf>,
-    /// Declare a rail and its voltage: `--rail VCC=5` (repeatable)
-    #[arg(long, value_name = "NAME=VOLTS", value_parser = crate::cli::parse_rail)]
-    pub rail: Vec<(String, f64)>,
-    /// The project configuration [default: the nearest netmargin.toml at or above the netlist]
-    #[arg(long, value_name = "FILE")]
-    pub config: Option<PathBuf>,
-    /// Ignore any netmargin.toml
-    #[arg(long, conflicts_with = "config")]
-    pub no_config: bool,
-}
 
 // ---------------------------------------------------------------------------
 // the gathered data
@@ -302,12 +263,13 @@ pub struct Row {
     pub line: Option<usize>,
 }
 
-/// Rows of a recapture question that a check answers when it runs.
+/// Rows of a recapture question that a check answers: its findings (waived ones too,
+/// marked), never derived again here.
 #[derive(Debug, Clone)]
 pub struct Block {
     pub check: &'static str,
-    /// True when the rows are the check's findings; false when they come from the model.
-    pub from_findings: bool,
+    /// False when the check is turned off in this run: the question was not asked.
+    pub ran: bool,
     pub rows: Vec<Row>,
 }
 
@@ -438,13 +400,6 @@ fn ref_of(pin: &str) -> &str {
     pin.rsplit_once('.').map_or(pin, |(r, _)| r)
 }
 
-fn find_net(nl: &netlist::Netlist<'_>, want: &str) -> Option<usize> {
-    let bare = want.trim_start_matches('/');
-    (0..nl.nets.len()).find(|&i| {
-        nl.nets[i].name.as_str() == want || nl.nets[i].name.as_str().trim_start_matches('/') == bare
-    })
-}
-
 fn kind_name(k: PartKind) -> &'static str {
     match k {
         PartKind::Logic => "logic (family unknown)",
@@ -462,73 +417,31 @@ fn kind_name(k: PartKind) -> &'static str {
     }
 }
 
-/// The pad count a footprint name states: `Package_DIP:DIP-16_W7.62mm` 16,
-/// `SOIC-14_3.9x8.7mm_P1.27mm` 14. `None` when it states none.
-pub fn footprint_pins(footprint: &str) -> Option<u32> {
-    let name = footprint.rsplit_once(':').map_or(footprint, |(_, n)| n);
-    let b = name.as_bytes();
-    let mut i = 0;
-    while i < b.len() {
-        if b[i] == b'-' {
-            let s = i + 1;
-            let mut e = s;
-            while e < b.len() && b[e].is_ascii_digit() {
-                e += 1;
-            }
-            let ends = e == b.len() || matches!(b[e], b'_' | b'-');
-            let before_letters = name[..i]
-                .chars()
-                .rev()
-                .take_while(|c| c.is_ascii_alphabetic())
-                .count()
-                >= 2;
-            if e > s && ends && before_letters {
-                return name[s..e].parse().ok();
-            }
-            i = e.max(i + 1);
-        } else {
-            i += 1;
-        }
-    }
-    None
+/// Analyses `source` with these rules and options and gathers the report's data.
+pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result<Audit, Diag> {
+    let settings = Settings {
+        config_path: opts.config.as_ref().map(PathBuf::from),
+        config: None,
+        rules: rules.clone(),
+        run: opts.run.clone(),
+        waivers: opts.waivers.clone(),
+    };
+    let a = Analysis::new(source, &settings)?;
+    let board = a.circuit();
+    from_board(&board, &opts.nets)
 }
 
-/// Runs the pipeline on `source` and gathers the report's data.
-pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result<Audit, Diag> {
-    if let Some(d) = sexpr::sniff(source.text()) {
-        return Err(d);
-    }
-    let tree = sexpr::parse(source.text())?;
-    let nl = netlist::build(&tree)?;
-    drop(tree);
-    let cl = classify(&nl, rules);
-    let cx = circuit::build(&nl, &cl, rules, opts.run.model.clone());
-    let mut diags = nl.diagnostics.clone();
-    diags.extend(crate::checks::run_all(&cx, &opts.run.checks));
-    let before = diags.len();
-    let today = config::today();
-    diags.retain(|d| {
-        !opts
-            .waivers
-            .iter()
-            .any(|w| !w.expired(today) && w.covers(d))
-    });
-    let waived = before - diags.len();
-
+/// Gathers the report's data from an analysis: its findings (waivers applied), its budgets,
+/// its model. `nets` are charted whatever they hold.
+pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag> {
+    let a = board.analysis;
+    let (source, nl, cl, cx) = (a.source, &a.nl, &a.cl, &board.cx);
+    let found = board.findings();
+    let diags = &found.diags;
+    let waived = found.waived.len();
     let mut wanted = Vec::new();
-    for n in &opts.nets {
-        match find_net(&nl, n) {
-            Some(i) => wanted.push(i),
-            None => {
-                return Err(Diag::error(
-                    "no-such-net",
-                    format!("no net `{n}` in {}", source.name()),
-                )
-                .with_help(
-                    "give the net's name as the netlist writes it (`/CLK`, `Net-(U5-Pad4)`)",
-                ))
-            }
-        }
+    for n in nets {
+        wanted.push(a.find_net(n)?);
     }
 
     let d = &nl.design;
@@ -607,8 +520,8 @@ pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result
             .then_with(|| a.code.cmp(&b.code))
     });
 
-    let supplies = gather_supplies(&cx);
-    let (families, kinds) = gather_parts(&cx);
+    let supplies = gather_supplies(cx);
+    let (families, kinds) = gather_parts(cx);
 
     // interfaces: nets with a level or fan-out finding, then the requested ones
     let mut chart_nets: Vec<(usize, Vec<String>)> = Vec::new();
@@ -619,7 +532,7 @@ pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result
         let Some(n) = f
             .net
             .as_deref()
-            .and_then(|n| nl.net_by_name(n).or_else(|| find_net(&nl, n)))
+            .and_then(|n| nl.net_by_name(n).or_else(|| a.find_net(n).ok()))
         else {
             continue;
         };
@@ -640,12 +553,19 @@ pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result
     }
     let interfaces = chart_nets
         .into_iter()
-        .map(|(n, why)| gather_interface(&cx, n, why))
+        .map(|(n, why)| gather_interface(cx, &board.budgets[n], n, why))
         .collect();
 
-    let matrix = gather_matrix(&cx, opts.run.checks.min_margin_v.max(MARGINAL_V));
-    let recapture = gather_recapture(source, &cx, &diags);
-    let sources = gather_sources(&cx, opts.config.clone());
+    let run = &a.settings.run;
+    let matrix = gather_matrix(cx, run.checks.min_margin_v.max(MARGINAL_V));
+    let recapture = gather_recapture(a, cx, found);
+    let sources = gather_sources(
+        cx,
+        a.settings
+            .config_path
+            .as_ref()
+            .map(|p| p.display().to_string()),
+    );
 
     Ok(Audit {
         file: source.name().to_string(),
@@ -663,8 +583,8 @@ pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result
         matrix,
         recapture,
         sources,
-        derating: opts.run.checks.derating,
-        rail_tolerance: opts.run.model.rail_tolerance,
+        derating: run.checks.derating,
+        rail_tolerance: run.model.rail_tolerance,
     })
 }
 
@@ -738,9 +658,13 @@ fn gather_parts(cx: &Circuit<'_, '_>) -> (Vec<FamilyCount>, Vec<(&'static str, u
     (fams, kinds)
 }
 
-fn gather_interface(cx: &Circuit<'_, '_>, net: usize, why: Vec<String>) -> Interface {
+fn gather_interface(
+    cx: &Circuit<'_, '_>,
+    b: &NetBudget,
+    net: usize,
+    why: Vec<String>,
+) -> Interface {
     let nm = &cx.nets[net];
-    let b = net_budget(cx, net);
     let mut drivers = Vec::new();
     for db in &b.drivers {
         let d = &nm.drivers[db.driver];
@@ -928,52 +852,56 @@ fn gather_matrix(cx: &Circuit<'_, '_>, marginal_v: f64) -> Matrix {
     }
 }
 
-fn block_from(
-    diags: &[Diag],
-    source: &SourceFile,
-    check: &'static str,
-    model: impl FnOnce() -> Vec<Row>,
-) -> Block {
-    // `unpowered-part` rows also take the parts whose supply pin sits on the wrong rail
-    let also: &[&str] = if check == "unpowered-part" {
-        &["power-pin-miswired"]
-    } else {
-        &[]
-    };
-    let rows: Vec<Row> = diags
+/// The component whose node holds `d`'s primary place (a finding about a whole part points
+/// at the part).
+fn part_at(nl: &netlist::Netlist<'_>, d: &Diag) -> Option<String> {
+    let at = d.primary_span()?.start;
+    nl.components
         .iter()
-        .filter(|d| d.code == check || also.contains(&d.code.as_str()))
-        .map(|d| Row {
-            subject: d
-                .pins
-                .first()
-                .map(|p| ref_of(p).to_string())
-                .or_else(|| d.net.clone())
-                .or_else(|| {
-                    // a finding about a whole part starts with its reference
-                    d.message
-                        .split_whitespace()
-                        .next()
-                        .filter(|w| w.chars().all(|c| c.is_ascii_alphanumeric()))
-                        .map(str::to_string)
-                })
-                .unwrap_or_default(),
-            text: d.message.clone(),
-            line: line_of(source, d).0,
-        })
+        .find(|c| c.span.start <= at && at < c.span.end)
+        .map(|c| c.reference.as_str().to_string())
+}
+
+/// The rows of `checks`' findings (the first id names the block), waived ones marked.
+fn block_from(
+    a: &Analysis<'_>,
+    found: &crate::analysis::Findings,
+    checks: &[&'static str],
+) -> Block {
+    let row = |d: &Diag, waived: bool| Row {
+        subject: d
+            .pins
+            .first()
+            .map(|p| ref_of(p).to_string())
+            .or_else(|| part_at(&a.nl, d))
+            .or_else(|| d.net.clone())
+            .unwrap_or_default(),
+        text: if waived {
+            format!("{} (waived)", d.message)
+        } else {
+            d.message.clone()
+        },
+        line: line_of(a.source, d).0,
+    };
+    let mine = |d: &&Diag| checks.contains(&d.code.as_str());
+    let mut rows: Vec<(Option<usize>, Row)> = found
+        .diags
+        .iter()
+        .filter(mine)
+        .map(|d| (d.primary_span().map(|s| s.start as usize), row(d, false)))
+        .chain(
+            found
+                .waived
+                .iter()
+                .filter(mine)
+                .map(|d| (d.primary_span().map(|s| s.start as usize), row(d, true))),
+        )
         .collect();
-    if rows.is_empty() {
-        Block {
-            check,
-            from_findings: false,
-            rows: model(),
-        }
-    } else {
-        Block {
-            check,
-            from_findings: true,
-            rows,
-        }
+    rows.sort_by_key(|(at, _)| *at);
+    Block {
+        check: checks[0],
+        ran: a.settings.runs(checks[0]),
+        rows: rows.into_iter().map(|(_, r)| r).collect(),
     }
 }
 
@@ -985,12 +913,12 @@ fn comp_line(source: &SourceFile, cx: &Circuit<'_, '_>, ci: usize) -> Option<usi
     )
 }
 
-fn pin_list(v: &[String]) -> String {
-    v.join(", ")
-}
-
-fn gather_recapture(source: &SourceFile, cx: &Circuit<'_, '_>, diags: &[Diag]) -> Recapture {
-    let nl = cx.nl;
+fn gather_recapture(
+    a: &Analysis<'_>,
+    cx: &Circuit<'_, '_>,
+    found: &crate::analysis::Findings,
+) -> Recapture {
+    let (source, nl) = (a.source, cx.nl);
     let unclassified = cx
         .cl
         .parts
@@ -1033,143 +961,10 @@ fn gather_recapture(source: &SourceFile, cx: &Circuit<'_, '_>, diags: &[Diag]) -
         })
         .collect();
 
-    let roles = block_from(diags, source, "pin-role-mismatch", || {
-        let mut rows = Vec::new();
-        for (ci, p) in cx.cl.parts.iter().enumerate() {
-            let Some((series, fid)) = &p.function else {
-                continue;
-            };
-            let fname = match series {
-                crate::classify::function::Series::S74 => {
-                    format!("{}{fid}", p.family.as_deref().unwrap_or("74"))
-                }
-                _ => fid.clone(),
-            };
-            let c = &nl.components[ci];
-            let (mut as_in, mut as_out) = (Vec::new(), Vec::new());
-            for (pi, pin) in c.pins.iter().enumerate() {
-                if p.role_source[pi] != crate::classify::classifier::RoleSource::Table {
-                    continue;
-                }
-                let r = p.roles[pi];
-                let out_type = matches!(
-                    pin.ptype,
-                    PinType::Output
-                        | PinType::OpenCollector
-                        | PinType::TriState
-                        | PinType::OpenEmitter
-                );
-                if pin.ptype == PinType::Input && r.is_output() && !r.is_input() {
-                    as_in.push(pin.num.to_string());
-                } else if out_type && r.is_input() && !r.is_output() {
-                    as_out.push(pin.num.to_string());
-                }
-            }
-            if as_in.is_empty() && as_out.is_empty() {
-                continue;
-            }
-            let mut parts = Vec::new();
-            if !as_in.is_empty() {
-                parts.push(format!(
-                    "pins {} are typed input in the symbol but are outputs in the {} table",
-                    pin_list(&as_in),
-                    fname
-                ));
-            }
-            if !as_out.is_empty() {
-                parts.push(format!(
-                    "pins {} are typed output in the symbol but are inputs in the {} table",
-                    pin_list(&as_out),
-                    fname
-                ));
-            }
-            rows.push(Row {
-                subject: c.reference.as_str().to_string(),
-                text: format!(
-                    "{} ({}): {}; the table's roles are used",
-                    c.reference,
-                    c.value_str(),
-                    parts.join("; ")
-                ),
-                line: comp_line(source, cx, ci),
-            });
-        }
-        rows
-    });
-
-    let packages = block_from(diags, source, "package-mismatch", || {
-        let mut rows = Vec::new();
-        for (ci, p) in cx.cl.parts.iter().enumerate() {
-            let Some(f) = p
-                .function
-                .as_ref()
-                .and_then(|(s, id)| cx.rules.functions.get(*s, id))
-            else {
-                continue;
-            };
-            let fname = match f.series {
-                crate::classify::function::Series::S74 => {
-                    format!("{}{}", p.family.as_deref().unwrap_or("74"), f.id)
-                }
-                _ => f.id.clone(),
-            };
-            let c = &nl.components[ci];
-            let Some(fp) = c.footprint.as_ref() else {
-                continue;
-            };
-            let Some(pads) = footprint_pins(fp.as_str()) else {
-                continue;
-            };
-            if f.package_pins > 0 && pads != f.package_pins {
-                rows.push(Row {
-                    subject: c.reference.as_str().to_string(),
-                    text: format!(
-                        "{} ({}): footprint `{}` has {} pads, the {} is a {}-pin part",
-                        c.reference,
-                        c.value_str(),
-                        fp.as_str(),
-                        pads,
-                        fname,
-                        f.package_pins
-                    ),
-                    line: Some(source.line_col(fp.span.start as usize).line),
-                });
-            }
-        }
-        rows
-    });
-
-    let unpowered = block_from(diags, source, "unpowered-part", || {
-        let mut rows = Vec::new();
-        for (ci, s) in cx.supplies.iter().enumerate() {
-            let Some(s) = s else { continue };
-            let c = &nl.components[ci];
-            let mut what = Vec::new();
-            match s.supply_net {
-                None => what.push("its supply pin is on no net".to_string()),
-                Some(n) if cx.nets[n].rail.is_some_and(|r| r.ground) => what.push(format!(
-                    "its supply pin is on the ground rail {}",
-                    cx.net_name(n)
-                )),
-                Some(n) if cx.nets[n].rail.is_none() => what.push(format!(
-                    "its supply pin is on {}, which is no rail",
-                    cx.net_name(n)
-                )),
-                _ => {}
-            }
-            if s.ground_net.is_none() {
-                what.push("its ground pin is on no net".to_string());
-            }
-            if !what.is_empty() {
-                rows.push(Row {
-                    subject: c.reference.as_str().to_string(),
-                    text: format!("{} ({}): {}", c.reference, c.value_str(), what.join("; ")),
-                    line: comp_line(source, cx, ci),
-                });
-            }
-        }
-        rows
-    });
+    let roles = block_from(a, found, &["pin-role-mismatch"]);
+    let packages = block_from(a, found, &["package-mismatch"]);
+    // parts with no supply, and those whose supply pin sits on the wrong rail
+    let unpowered = block_from(a, found, &["unpowered-part", "power-pin-miswired"]);
 
     let mut label_nets = Vec::new();
     for (i, n) in nl.nets.iter().enumerate() {
@@ -1304,136 +1099,9 @@ pub fn write_charts(audit: &Audit, dir: &Path) -> io::Result<Vec<PathBuf>> {
     Ok(out)
 }
 
-fn print_failure(f: &FileOutcome, color: bool) -> io::Result<()> {
-    let stderr = io::stderr();
-    let eh = crate::report::human::handler(crate::report::human::HumanStyle { color, width: 100 });
-    crate::report::human::write_file(&mut stderr.lock(), &eh, f)
-}
-
-/// Runs `netmargin audit`; returns the exit code (0 written, 2 the file or configuration
-/// could not be used).
-pub fn command(args: &AuditArgs, read: &ReadOptions, color: bool) -> io::Result<u8> {
-    let name = if args.path == "-" {
-        "<stdin>".to_string()
-    } else {
-        args.path.clone()
-    };
-    let failed = |source: Option<SourceFile>, d: Diag| -> io::Result<u8> {
-        let f = FileOutcome {
-            name: name.clone(),
-            source,
-            fatal: Some(d),
-            diags: Vec::new(),
-            summary: Default::default(),
-            coverage: None,
-            waived: 0,
-        };
-        print_failure(&f, color)?;
-        Ok(2)
-    };
-    // configuration
-    let cfg_path = if args.no_config {
-        None
-    } else if let Some(c) = &args.config {
-        Some(c.clone())
-    } else if args.path == "-" {
-        std::env::current_dir()
-            .ok()
-            .and_then(|d| config::discover(&d))
-    } else {
-        config::discover(Path::new(&args.path))
-    };
-    let mut opts = AuditOptions {
-        nets: args.net.clone(),
-        ..Default::default()
-    };
-    opts.run.read = read.clone();
-    let rules = match &cfg_path {
-        None => Rules::builtin(),
-        Some(p) => match config::load(p).and_then(|c| c.rules().map(|r| (c, r))) {
-            Ok((c, r)) => {
-                c.apply(&mut opts.run);
-                opts.waivers = c.waivers.clone();
-                opts.config = Some(p.display().to_string());
-                r
-            }
-            Err(e) => {
-                let f = FileOutcome {
-                    name: e.source.name().to_string(),
-                    source: Some(e.source.clone()),
-                    fatal: e.diags.first().cloned(),
-                    diags: e.diags.iter().skip(1).cloned().collect(),
-                    summary: Default::default(),
-                    coverage: None,
-                    waived: 0,
-                };
-                print_failure(&f, color)?;
-                return Ok(2);
-            }
-        },
-    };
-    opts.run.model.rails.extend(args.rail.iter().cloned());
-
-    let bytes = match pipeline::read_bytes(&args.path, read) {
-        Ok(b) => b,
-        Err(d) => return failed(None, d),
-    };
-    let source = match crate::input::load(&name, bytes) {
-        Ok(s) => s,
-        Err(e) => return failed(Some(e.source), e.diag),
-    };
-    let audit = match gather(&source, &rules, &opts) {
-        Ok(a) => a,
-        Err(d) => return failed(Some(source), d),
-    };
-    let text = match args.format {
-        AuditFormat::Html => html::render(&audit),
-        AuditFormat::Markdown => markdown::render(&audit),
-    };
-    if let Some(dir) = &args.chart_out {
-        write_charts(&audit, dir).map_err(|e| {
-            io::Error::new(
-                e.kind(),
-                format!("cannot write the charts into `{}`: {e}", dir.display()),
-            )
-        })?;
-    }
-    match &args.output {
-        Some(p) => write_atomic(p, text.as_bytes()).map_err(|e| {
-            io::Error::new(e.kind(), format!("cannot write `{}`: {e}", p.display()))
-        })?,
-        None => {
-            let mut out = io::stdout().lock();
-            out.write_all(text.as_bytes())?;
-            out.flush()?;
-        }
-    }
-    Ok(0)
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn pad_counts_from_kicad_footprint_names() {
-        // KiCad's standard library names (common practice)
-        assert_eq!(footprint_pins("Package_DIP:DIP-16_W7.62mm"), Some(16));
-        assert_eq!(
-            footprint_pins("Package_SO:SOIC-14_3.9x8.7mm_P1.27mm"),
-            Some(14)
-        );
-        assert_eq!(
-            footprint_pins("Package_SO:TSSOP-20_4.4x6.5mm_P0.65mm"),
-            Some(20)
-        );
-        assert_eq!(footprint_pins("DIP-14"), Some(14));
-        assert_eq!(
-            footprint_pins("Resistor_THT:R_Axial_DIN0207_L6.3mm_D2.5mm_P10.16mm_Horizontal"),
-            None
-        );
-        assert_eq!(footprint_pins("Capacitor_SMD:C_0805_2012Metric"), None);
-    }
 
     #[test]
     fn references_sort_naturally() {

@@ -17,6 +17,14 @@
 //! leakage: R <= VIL / (sum of IOZ + input currents) for a pull-down. The message computes
 //! the bound and suggests a round value in the 100 kOhm class, half the bound or less.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "floating-bus",
+    severity: crate::diag::Severity::Warning,
+    summary: "a net driven only by three-state outputs with CMOS loads and no pull resistor",
+};
+
 use super::common::{ground_rail_name, supply_rail_name};
 use super::Context;
 use crate::circuit::enables::{gate, literal_text, Gate};

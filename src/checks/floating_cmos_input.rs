@@ -14,6 +14,14 @@
 //! Fix: tie unused inputs to ground or to the supply (or to a used input of the same gate);
 //! drive every used input; leave unused outputs open.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "floating-cmos-input",
+    severity: crate::diag::Severity::Error,
+    summary: "a CMOS input with nothing to set its level: no driver, no rail, no pull resistor",
+};
+
 use super::common::{agree, floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float};
 use super::Context;
 use crate::diag::Diag;

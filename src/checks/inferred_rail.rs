@@ -13,6 +13,14 @@
 //! Fix: nothing, when the inference is right. Otherwise declare the rail: `--rail VCC=3.3` or
 //! `[rails] VCC = 3.3` in `netmargin.toml`.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "inferred-rail",
+    severity: crate::diag::Severity::Info,
+    summary: "a rail whose existence or voltage netmargin inferred from its pins, its regulator or the families it powers",
+};
+
 use super::Context;
 use crate::circuit::Inferred;
 use crate::diag::Diag;

@@ -21,6 +21,14 @@
 //! load's supply whose inputs take the higher level, use a tolerant family for the load, or
 //! pull up (or tie) to the load's own supply.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "input-overvoltage",
+    severity: crate::diag::Severity::Error,
+    summary: "a driver's high level above what a load's input can take at its supply",
+};
+
 use std::collections::BTreeMap;
 
 use super::common::{pin_list, supply_rail_name};
@@ -161,7 +169,22 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 else {
                     continue;
                 };
-                let (lim, text) = limit(fam, cx.rail_range(s.vcc).0);
+                // one rail is at one end of its tolerance at a time: a source and a load on
+                // the same rail are compared at the same (top) end
+                let src_rail = match &src {
+                    Source::Rail { .. } => Some(net),
+                    Source::Driver { at, .. } => {
+                        cx.supplies[at.comp].as_ref().and_then(|x| x.supply_net)
+                    }
+                    Source::PullUp { index, .. } => Some(nm.pulls[*index].rail_net),
+                };
+                let same_rail = src_rail.is_some() && src_rail == s.supply_net;
+                let end = if same_rail {
+                    cx.rail_range(s.vcc).1
+                } else {
+                    cx.rail_range(s.vcc).0
+                };
+                let (lim, text) = limit(fam, end);
                 if src.level() > lim + 1e-9 {
                     over.entry(l.at.comp)
                         .or_insert_with(|| (Vec::new(), lim, text))

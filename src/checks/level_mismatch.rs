@@ -13,7 +13,14 @@
 //! Fix: a load with thresholds the driver meets (74HCT on 5 V reads 2.0 V as high), a level
 //! translator, or a driver on the load's supply.
 
-use super::ttl_high_into_cmos::ttl_output;
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "level-mismatch",
+    severity: crate::diag::Severity::Error,
+    summary: "a guaranteed low level above a load's VIL, or another high-level shortfall",
+};
+
 use super::Context;
 use crate::diag::{Diag, Severity};
 use crate::values::{format_ohms, format_volts};
@@ -50,7 +57,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 .find(|x| x.driver == m.driver)
                 .expect("margin has a driver budget");
             if let Some(hm) = m.high_margin {
-                let covered = ttl_output(ctx, d.at.comp) && !l.ttl;
+                let covered = ctx.cx.ttl_output(d.at.comp) && !l.ttl;
                 let sev = if hm < 0.0 && !covered {
                     Some(Severity::Error)
                 } else if hm >= 0.0 && hm < ctx.opts.min_margin_v {

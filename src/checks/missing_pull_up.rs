@@ -11,6 +11,14 @@
 //! Fix: a pull-up from the net to the loads' supply, inside the window set by the output's
 //! IOL and the loads' currents (the message computes it).
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "missing-pull-up",
+    severity: crate::diag::Severity::Error,
+    summary: "an open-collector or open-drain output with no pull-up resistor to a rail",
+};
+
 use super::Context;
 use crate::classify::PinRole;
 use crate::diag::Diag;

@@ -19,6 +19,14 @@
 //! of the computed value; for one nothing will ever drive, a straight tie to the rail named; for
 //! ~RESET, the board's reset circuit.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "open-control-input",
+    severity: crate::diag::Severity::Error,
+    summary: "a processor's, peripheral's or memory's control input left open instead of held at its idle level",
+};
+
 use super::common::{ground_rail_name, supply_rail_name, Float};
 use super::Context;
 use crate::circuit::PinRef;

@@ -21,6 +21,14 @@
 //! open-collector outputs (wired-AND) with a pull-up; to share a bus, use three-state outputs
 //! with enables decoded so that only one is on at a time.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "output-contention",
+    severity: crate::diag::Severity::Error,
+    summary: "two push-pull outputs on one net, or a push-pull output tied to a rail",
+};
+
 use super::common::pct;
 use super::Context;
 use crate::circuit::enables::{enabled_together, gate, literal_text, Gate, Literal};
@@ -205,12 +213,12 @@ fn ratings(cx: &Circuit<'_, '_>, net: usize, p: PinRef) -> String {
         .and_then(|d| d.levels.as_ref())
     {
         Some(lv) => format!(
-            "rated to source {} (IOH) and sink {} (IOL) at {}",
+            "each rated to source {} (IOH) and sink {} (IOL) at {}",
             format_amps(lv.ioh_max.abs()),
             format_amps(lv.iol_max.abs()),
             cx.supply_text(p.comp)
         ),
-        None => "its family's ratings are unknown".to_string(),
+        None => "with ratings unknown: its family is not known".to_string(),
     }
 }
 
@@ -312,7 +320,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             let mut d = Diag::error(
                 "output-contention",
                 format!(
-                    "{} push-pull outputs drive {name}: {}; when they disagree, the one driving low sinks what the others source, limited only by the output stages (each {}), and the level is undefined",
+                    "{} push-pull outputs drive {name}: {}; when they disagree, the one driving low sinks what the others source, limited only by the output stages ({}), and the level is undefined",
                     ps.len(),
                     list(cx, ps),
                     ratings(cx, net, ps[0])

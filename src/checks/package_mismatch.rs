@@ -15,6 +15,14 @@
 //! Fix: give the component a footprint with the function's pin count, or correct the value
 //! if the footprint is right and the part is another one.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "package-mismatch",
+    severity: crate::diag::Severity::Warning,
+    summary: "the footprint's pin count disagrees with the classified function's package",
+};
+
 use super::Context;
 use crate::diag::Diag;
 

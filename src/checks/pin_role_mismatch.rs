@@ -18,6 +18,14 @@
 //!
 //! Fix: use a symbol for the part in the value (or correct the symbol's pin types).
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "pin-role-mismatch",
+    severity: crate::diag::Severity::Warning,
+    summary: "the netlist's pin types disagree with the function table for the part (wrong symbol)",
+};
+
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::classifier::{is_ground_name, RoleSource};

@@ -23,6 +23,14 @@
 //! Fix: move the pin to the rail the part's data sheet asks for (the message names one on
 //! the board, and the family's supply range).
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "power-pin-miswired",
+    severity: crate::diag::Severity::Error,
+    summary: "a supply pin on ground, a ground pin on a supply, or a supply pin on no net",
+};
+
 use super::Context;
 use crate::circuit::{NetModel, PinRef};
 use crate::classify::classifier::{is_ground_name, PartKind, RoleSource};

@@ -13,6 +13,14 @@
 //!
 //! Fix: a value inside the window, nearer R_min for speed, nearer R_max for power.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "pull-up-out-of-range",
+    severity: crate::diag::Severity::Error,
+    summary: "a pull-up outside the window set by the output's IOL and the loads' currents",
+};
+
 use super::Context;
 use crate::diag::Diag;
 use crate::values::{format_amps, format_ohms, format_volts};

@@ -16,19 +16,18 @@
 //! Fix: a TTL-threshold CMOS load (74HCT, 74ACT, 74AHCT: VIH 2.0 V), or a pull-up to the
 //! load's supply from the net, within the computed window.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "ttl-high-into-cmos",
+    severity: crate::diag::Severity::Error,
+    summary: "a driver's guaranteed high level is below a CMOS load's VIH",
+};
+
 use super::Context;
-use crate::classify::family::{HighOutput, Technology};
+use crate::classify::family::HighOutput;
 use crate::diag::{Diag, Severity};
 use crate::values::{format_ohms, format_volts};
-
-/// True when the driver's family has TTL-level outputs (bipolar or NMOS, or a family whose
-/// `high_output` says so).
-pub(super) fn ttl_output(ctx: &Context<'_, '_, '_>, comp: usize) -> bool {
-    ctx.cx.family(comp).is_some_and(|f| {
-        matches!(f.technology, Technology::Bipolar | Technology::Nmos)
-            || f.high_output != HighOutput::Rows
-    })
-}
 
 /// True when the driver is a CMOS output guaranteed only at TTL levels at its rated current.
 fn rated_at_ttl(ctx: &Context<'_, '_, '_>, comp: usize) -> bool {
@@ -58,7 +57,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             }
             let d = &nm.drivers[m.driver];
             let l = &nm.loads[m.load];
-            if !ttl_output(ctx, d.at.comp) || l.ttl || l.levels.is_none() {
+            if !ctx.cx.ttl_output(d.at.comp) || l.ttl || l.levels.is_none() {
                 continue;
             }
             let db = &b

@@ -14,6 +14,14 @@
 //! to the component; or add an entry (`[[part]]` with `values`, `family`, `function`) to
 //! a project parts file.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "unclassified-part",
+    severity: crate::diag::Severity::Info,
+    summary: "an IC-like part whose value no mapping matched; near misses suggested",
+};
+
 use super::Context;
 use crate::classify::classifier::{Method, PartClass, PartKind};
 use crate::classify::pattern::match_value;

@@ -13,6 +13,14 @@
 //! Fix: place the power unit (or draw the power pins) and wire the supply pin to the
 //! family's rail and the ground pin to ground.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "unpowered-part",
+    severity: crate::diag::Severity::Error,
+    summary: "a classified part whose supply or ground pin is on no net or absent",
+};
+
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::function::PinDef;

@@ -14,6 +14,14 @@
 //! Fix: write the value in one form: the IEC 60062 code (`4K7`, `R47`, `1M0`) or a number
 //! with an SI prefix (`4.7k`, `10 kOhm`).
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "unreadable-value",
+    severity: crate::diag::Severity::Warning,
+    summary: "a resistor whose value cannot be read, so its pull current is unknown",
+};
+
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::classifier::PartKind;

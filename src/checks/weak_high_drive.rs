@@ -18,8 +18,15 @@
 //! practice). An LED whose anode and cathode can be told from its pin names (A, K) and that is
 //! reversed (cathode towards the output) never conducts from the high state and is skipped.
 
+/// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
+/// the doc comment above).
+pub(super) const INFO: super::CheckInfo = super::CheckInfo {
+    id: "weak-high-drive",
+    severity: crate::diag::Severity::Warning,
+    summary: "a TTL output that must source a non-logic load (an LED to ground) in its high state",
+};
+
 use super::common::pct;
-use super::ttl_high_into_cmos::ttl_output;
 use super::Context;
 use crate::circuit::enables::gate;
 use crate::circuit::enables::Gate;
@@ -136,7 +143,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if !matches!(
                 d.role,
                 PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional
-            ) || !ttl_output(ctx, d.at.comp)
+            ) || !ctx.cx.ttl_output(d.at.comp)
                 || gate(cx, d.at) == Gate::Never
             {
                 continue;

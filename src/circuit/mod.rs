@@ -166,6 +166,9 @@ pub struct LedPath {
     pub ohms: f64,
     /// Sum of the LEDs' assumed forward voltages.
     pub vf: f64,
+    /// The rail the path ends on, and its voltage (0 for ground).
+    pub rail_net: usize,
+    pub rail_volts: f64,
 }
 
 /// Everything on one net.
@@ -184,6 +187,9 @@ pub struct NetModel {
     /// Capacitors, diodes and other passives not counted above.
     pub passives: Vec<PinRef>,
     pub led_paths: Vec<LedPath>,
+    /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
+    /// their current in its low state.
+    pub sink_paths: Vec<LedPath>,
     /// Supply and ground pins on this net.
     pub power_pins: Vec<PinRef>,
     /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
@@ -202,6 +208,9 @@ pub struct NetModel {
     /// Switch elements whose opening leaves this net with nothing to set its level (the
     /// net is held only through them): it floats when all of them are open.
     pub floats_open: Vec<SwitchLink>,
+    /// Nets whose only source is this net, through a series element (directly or through
+    /// further series elements): their loads are this net's drivers' loads too.
+    pub feeds: Vec<(usize, SeriesLink)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -281,6 +290,18 @@ impl<'n, 'a> Circuit<'n, 'a> {
             .and_then(|f| self.rules.families.get(f))
     }
 
+    /// True when the part's family has TTL-level outputs (bipolar or NMOS, or a family whose
+    /// `high_output` says its high stops at TTL levels or is guaranteed only there).
+    pub fn ttl_output(&self, comp: usize) -> bool {
+        self.family(comp).is_some_and(|f| {
+            matches!(
+                f.technology,
+                crate::classify::family::Technology::Bipolar
+                    | crate::classify::family::Technology::Nmos
+            ) || f.high_output != crate::classify::family::HighOutput::Rows
+        })
+    }
+
     pub fn role(&self, p: PinRef) -> PinRole {
         self.roles[p.comp][p.pin]
     }
@@ -356,10 +377,20 @@ impl<'n, 'a> Circuit<'n, 'a> {
                 let net = s.supply_net.map(|n| self.net_name(n)).unwrap_or_default();
                 format!("{net} ({})", values::format_volts(s.vcc))
             }
-            Some(s) => format!(
-                "{} (the family's nominal supply; the part's supply rail is unknown)",
-                values::format_volts(s.vcc)
-            ),
+            Some(s) => {
+                let why = match s.supply_net {
+                    Some(n) if self.nets[n].rail.is_some() => format!(
+                        "the voltage of {} is not known: declare it with --rail",
+                        self.net_name(n)
+                    ),
+                    Some(n) => format!("its supply pin is on {}, not a rail", self.net_name(n)),
+                    None => "its supply pin is on no net".to_string(),
+                };
+                format!(
+                    "{} (the family's nominal supply; {why})",
+                    values::format_volts(s.vcc)
+                )
+            }
             None => "an unknown supply".to_string(),
         }
     }
@@ -759,18 +790,26 @@ pub fn build<'n, 'a>(
             continue;
         }
         let mut found = Vec::new();
+        let mut sinks = Vec::new();
         for &start in &nets[net].passives {
             let kind = cl.parts[start.comp].kind;
             if !matches!(kind, PartKind::Resistor | PartKind::Led) {
                 continue;
             }
             if let Some(path) = follow_to_ground(nl, cl, &rail, start, opts.led_vf) {
-                if !path.leds.is_empty() {
+                if path.leds.is_empty() {
+                    continue;
+                }
+                if path.rail_volts == 0.0 {
                     found.push(path);
+                } else if path.rail_volts > 0.0 && leds_point_to(nl, &path, start, true) {
+                    // an LED, lamp or relay from the supply: the output sinks it when low
+                    sinks.push(path);
                 }
             }
         }
         nets[net].led_paths = found;
+        nets[net].sink_paths = sinks;
     }
     rail_notes.retain(|n| n.by_usage || n.volts.is_some());
 
@@ -925,6 +964,25 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
         if !changed {
             break;
+        }
+    }
+    // the nets each net feeds through series elements, followed to the end of the chain
+    let direct: Vec<Option<(usize, SeriesLink)>> = nets
+        .iter()
+        .map(|nm| match nm.source {
+            Some(Source::Through(l)) => Some((l.other_net, l)),
+            _ => None,
+        })
+        .collect();
+    for (m, d) in direct.iter().enumerate() {
+        let Some((mut up, link)) = *d else { continue };
+        // walk up to the net with a source of its own; every net on the way feeds m
+        for _ in 0..nets.len() {
+            nets[up].feeds.push((m, link));
+            match direct[up] {
+                Some((next, _)) => up = next,
+                None => break,
+            }
         }
     }
     for i in 0..nets.len() {
@@ -1148,13 +1206,18 @@ fn follow_to_ground(
         let other = 1 - cur.pin;
         let net = c.pins[other].connection.net()?;
         if let Some(r) = rail[net] {
-            let vf = vf * leds.len() as f64;
-            return r.ground.then_some(LedPath {
+            let vf: f64 = leds
+                .iter()
+                .map(|&l| led_vf_by_colour(nl.components[l].value_str()).unwrap_or(vf))
+                .sum();
+            return Some(LedPath {
                 at: start,
                 leds,
                 resistors,
                 ohms,
                 vf,
+                rail_net: net,
+                rail_volts: r.v()?,
             });
         }
         // the next part: exactly one other passive on a two-node net
@@ -1175,4 +1238,74 @@ fn follow_to_ground(
         }
     }
     None
+}
+
+/// True unless a pin name says an LED on the path points the other way: for a path from a
+/// rail down to the net (`from_rail`), each LED's cathode (`K`) faces the net. LEDs whose pins
+/// are not named `A`/`K` are taken as drawn the right way round.
+fn leds_point_to(nl: &Netlist<'_>, path: &LedPath, start: PinRef, from_rail: bool) -> bool {
+    let _ = start;
+    path.leds.iter().all(|&l| {
+        let c = &nl.components[l];
+        let name = |i: usize| c.pins[i].name.as_deref().map(|n| n.to_ascii_uppercase());
+        // the pin nearer the net is the one whose net is not the rail side: follow the chain
+        // order is not kept, so judge by which pin is named K and which net it is on
+        let k = (0..c.pins.len()).find(|&i| name(i).as_deref() == Some("K"));
+        let a = (0..c.pins.len()).find(|&i| name(i).as_deref() == Some("A"));
+        match (k, a) {
+            (Some(k), Some(a)) => {
+                // the anode is on the rail side: its net is the rail or further from the net
+                let on_rail = c.pins[a].connection.net() == Some(path.rail_net);
+                let k_on_rail = c.pins[k].connection.net() == Some(path.rail_net);
+                if from_rail {
+                    !k_on_rail || on_rail
+                } else {
+                    !on_rail || k_on_rail
+                }
+            }
+            _ => true,
+        }
+    })
+}
+
+/// The forward voltage usually taken for an LED of the colour its value names (`GREEN`,
+/// `LED_YEL`, `blue 3mm`): red 1.7 V, orange, amber and yellow 2.0 V, green 2.1 V, blue and
+/// white 3.0 V, infrared 1.2 V (common practice: typical figures of indicator LEDs at about
+/// 10 mA, from memory). `None` when the value names no colour: the configured figure applies.
+pub fn led_vf_by_colour(value: &str) -> Option<f64> {
+    let v = value.to_ascii_uppercase();
+    let words: Vec<&str> = v
+        .split(|c: char| !c.is_ascii_alphanumeric())
+        .filter(|w| !w.is_empty())
+        .collect();
+    let has = |ws: &[&str]| words.iter().any(|w| ws.contains(w));
+    if has(&["BLUE", "BLU", "WHITE", "WHT", "WH"]) {
+        Some(3.0)
+    } else if has(&["GREEN", "GRN", "GN"]) {
+        Some(2.1)
+    } else if has(&["YELLOW", "YEL", "YE", "AMBER", "AMB", "ORANGE", "ORG"]) {
+        Some(2.0)
+    } else if has(&["RED", "RD"]) {
+        Some(1.7)
+    } else if has(&["IR", "INFRARED"]) {
+        Some(1.2)
+    } else {
+        None
+    }
+}
+
+#[cfg(test)]
+mod led_tests {
+    use super::led_vf_by_colour;
+
+    #[test]
+    fn colours_in_led_values() {
+        // common practice (from memory): typical indicator-LED forward voltages
+        assert_eq!(led_vf_by_colour("RED"), Some(1.7));
+        assert_eq!(led_vf_by_colour("LED_GREEN"), Some(2.1));
+        assert_eq!(led_vf_by_colour("yel 5mm"), Some(2.0));
+        assert_eq!(led_vf_by_colour("BLUE"), Some(3.0));
+        assert_eq!(led_vf_by_colour("GATE"), None);
+        assert_eq!(led_vf_by_colour("LED"), None);
+    }
 }

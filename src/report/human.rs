@@ -34,15 +34,112 @@ pub fn handler(style: HumanStyle) -> GraphicalReportHandler {
         .with_width(style.width)
 }
 
+/// Labels further apart than this many lines are shown as separate excerpts, with the lines
+/// between left out, instead of one excerpt of every line between them.
+pub const EXCERPT_GAP_LINES: usize = 8;
+
 /// Renders one diagnostic against its source. miette prints source lines as they are: pass
-/// the source through [`safe_source`] first (once per file).
+/// the source through [`safe_source`] first (once per file). Labels far apart are shown as
+/// one excerpt each, the primary one first, with a marker that says how many lines were left
+/// out between them.
 pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
+    let groups = label_groups(diag, source);
+    if groups.len() <= 1 {
+        return render_one(h, diag, source);
+    }
+    let pick = |g: &[usize]| {
+        g.iter()
+            .map(|&i| diag.labels[i].clone())
+            .collect::<Vec<_>>()
+    };
+    // the help comes after the last excerpt
+    let main = Diag {
+        labels: pick(&groups[0].1),
+        help: None,
+        ..diag.clone()
+    };
+    let mut s = render_one(h, &main, source);
+    for (i, (lines, g)) in groups.iter().enumerate().skip(1) {
+        let primary = groups[0].0;
+        let message = if lines.0 > primary.1 {
+            // after the primary excerpt: the lines between it and the excerpt shown before it
+            let prev_end = groups
+                .iter()
+                .take(i)
+                .map(|(l, _)| l.1)
+                .filter(|&end| end < lines.0)
+                .max()
+                .unwrap_or(primary.1);
+            format!(
+                "... {} lines left out; continued at line {} ...",
+                lines.0 - prev_end - 1,
+                lines.0
+            )
+        } else {
+            format!(
+                "... and above it, at line {} ({} lines before line {}) ...",
+                lines.0,
+                primary.0 - lines.1 - 1,
+                primary.0
+            )
+        };
+        let part = Diag {
+            code: String::new(),
+            severity: crate::diag::Severity::Info,
+            message,
+            labels: pick(g),
+            help: if i + 1 == groups.len() {
+                diag.help.clone()
+            } else {
+                None
+            },
+            net: None,
+            pins: Vec::new(),
+        };
+        s.push_str(&render_one(h, &part, source));
+    }
+    s
+}
+
+fn render_one(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
     let mut s = String::new();
     let r = Rendered { diag, source };
     if h.render_report(&mut s, &r).is_err() {
         s = format!("{}: {}\n", diag.severity, sanitize(&diag.message));
     }
     s
+}
+
+/// The labels in groups of nearby lines: ((first line, last line), label indices), the
+/// primary label's group first, the rest in file order.
+fn label_groups(diag: &Diag, source: &SourceFile) -> Vec<((usize, usize), Vec<usize>)> {
+    let len = source.text().len();
+    let line = |off: u32| source.line_index((off as usize).min(len)) + 1;
+    let mut order: Vec<(usize, usize, usize)> = diag
+        .labels
+        .iter()
+        .enumerate()
+        .map(|(i, l)| (line(l.span.start), line(l.span.end.max(l.span.start)), i))
+        .collect();
+    order.sort();
+    let mut groups: Vec<((usize, usize), Vec<usize>)> = Vec::new();
+    for (a, b, i) in order {
+        match groups.last_mut() {
+            Some((lines, g)) if a <= lines.1 + EXCERPT_GAP_LINES => {
+                lines.1 = lines.1.max(b);
+                g.push(i);
+            }
+            _ => groups.push(((a, b), vec![i])),
+        }
+    }
+    if let Some(p) = groups
+        .iter()
+        .position(|(_, g)| g.iter().any(|&i| diag.labels[i].primary))
+    {
+        let first = groups.remove(p);
+        groups.insert(0, first);
+    }
+    groups
 }
 
 /// The source as it may be shown on a terminal: the same text, byte for byte the same
@@ -108,14 +205,73 @@ fn write_file_with(
     let shown = safe_source(source);
     let source: &SourceFile = &shown;
     if let Some(d) = &f.fatal {
-        write!(out, "{}", render(h, d, source))?;
+        // a configuration or baseline holds every problem found in it: show them all
+        for d in std::iter::once(d).chain(&f.diags) {
+            write!(out, "{}", render(h, d, source))?;
+        }
         if !quiet {
-            writeln!(out, "{}: not checked: {}", sanitize(&f.name), d.code)?;
+            // a configuration, mapping file or baseline (a netlist stopped by its
+            // configuration's errors has no source of its own)
+            let settings_file = matches!(d.code.as_str(), "config" | "mapping-file" | "baseline")
+                && f.source.is_some();
+            if settings_file {
+                let n = 1 + f.diags.len();
+                writeln!(
+                    out,
+                    "{}: cannot be used: {n} problem{}",
+                    sanitize(&f.name),
+                    if n == 1 { "" } else { "s" }
+                )?;
+            } else {
+                writeln!(out, "{}: not checked: {}", sanitize(&f.name), d.code)?;
+            }
         }
         return Ok(());
     }
-    for d in &f.diags {
+    for group in fold(&f.diags) {
+        let d = &f.diags[group[0]];
         write!(out, "{}", render(h, d, source))?;
+        if group.len() > 1 {
+            // where each other finding is: its net, else its first pin, else the part its
+            // message names first; a place named several times is named once, with a count
+            let mut nets: Vec<(String, usize)> = Vec::new();
+            for &i in &group[1..] {
+                let o = &f.diags[i];
+                let at = o
+                    .net
+                    .clone()
+                    .or_else(|| o.pins.first().cloned())
+                    .or_else(|| o.message.split_whitespace().next().map(str::to_string))
+                    .map(|n| sanitize(&n).into_owned())
+                    .unwrap_or_default();
+                match nets.iter_mut().find(|(n, _)| *n == at) {
+                    Some((_, k)) => *k += 1,
+                    None => nets.push((at, 1)),
+                }
+            }
+            let count = group.len() - 1;
+            let nets: Vec<String> = nets
+                .into_iter()
+                .map(|(n, k)| if k > 1 { format!("{n} (x{k})") } else { n })
+                .collect();
+            let shown = nets.len().min(FOLD_LIST);
+            writeln!(
+                out,
+                "  ... and {} more {} like it ({}): {}{}\n",
+                count,
+                if count == 1 { "finding" } else { "findings" },
+                d.code,
+                nets[..shown].join(", "),
+                if nets.len() > shown {
+                    format!(
+                        ", ... ({} more places; every finding is in --format json or short)",
+                        nets.len() - shown
+                    )
+                } else {
+                    String::new()
+                }
+            )?;
+        }
     }
     if quiet {
         return Ok(());
@@ -130,6 +286,74 @@ fn write_file_with(
         s.pins,
         s.pins_on_no_net
     )
+}
+
+/// Findings of one cause repeated at least this often are folded into the first.
+const FOLD_AT: usize = 4;
+/// Nets named in a fold line.
+const FOLD_LIST: usize = 12;
+
+/// A finding's shape: its check, severity and message with the names of places taken out
+/// (every word that holds a digit, such as `U12`, `A7` or `/D3`, and quoted net names),
+/// while figures with a decimal point (`2.70 V`) stay: findings of one shape are one cause
+/// repeated across a bus or a row of parts.
+fn shape(d: &Diag) -> String {
+    let mut out = format!("{}|{:?}|", d.code, d.severity);
+    let mut in_quote = false;
+    for word in d.message.split_inclusive(|c: char| {
+        c.is_whitespace() || c == '`' || c == ',' || c == '(' || c == ')'
+    }) {
+        if word.starts_with('`') || in_quote {
+            in_quote = !word.ends_with('`') || (word == "`" && !in_quote);
+            out.push('@');
+            continue;
+        }
+        let core =
+            word.trim_end_matches(|c: char| c.is_whitespace() || c == ',' || c == '(' || c == ')');
+        let decimal = core.contains('.')
+            && core
+                .chars()
+                .next()
+                .is_some_and(|c| c.is_ascii_digit() || c == '-');
+        if core.chars().any(|c| c.is_ascii_digit()) && !decimal {
+            out.push('#');
+            out.push_str(&word[core.len()..]);
+        } else {
+            out.push_str(word);
+        }
+    }
+    out
+}
+
+/// Groups findings of one shape, in the order of their first appearance; groups smaller than
+/// [`FOLD_AT`] are split back into single findings.
+fn fold(diags: &[Diag]) -> Vec<Vec<usize>> {
+    let mut by_shape: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+    let mut groups: Vec<Vec<usize>> = Vec::new();
+    for (i, d) in diags.iter().enumerate() {
+        // only the checks' findings fold: every problem with the input is shown in full
+        if crate::checks::info(&d.code).is_none() {
+            groups.push(vec![i]);
+            continue;
+        }
+        match by_shape.entry(shape(d)) {
+            std::collections::hash_map::Entry::Occupied(e) => groups[*e.get()].push(i),
+            std::collections::hash_map::Entry::Vacant(e) => {
+                e.insert(groups.len());
+                groups.push(vec![i]);
+            }
+        }
+    }
+    let mut out = Vec::new();
+    for g in groups {
+        if g.len() >= FOLD_AT {
+            out.push(g);
+        } else {
+            out.extend(g.into_iter().map(|i| vec![i]));
+        }
+    }
+    out.sort_by_key(|g| g[0]);
+    out
 }
 
 /// The whole run in one line, e.g. `3 files, 57 parts, 131 nets: 2 errors, 5 warnings,
@@ -168,7 +392,11 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
         write_file_with(out, &h, f, opts.quiet)?;
     }
     if !opts.quiet {
-        writeln!(out, "{}", run_summary(&Totals::of(files)))?;
+        writeln!(
+            out,
+            "{}",
+            run_summary(&Totals::of_run(files, opts.netlists))
+        )?;
     }
     Ok(())
 }
@@ -188,6 +416,30 @@ mod tests {
         assert_eq!(shown.line_count(), src.line_count());
         let clean = SourceFile::new("ok.net", "(a)\n");
         assert!(matches!(safe_source(&clean), Cow::Borrowed(_)));
+    }
+
+    #[test]
+    fn one_cause_across_a_bus_folds_and_different_causes_do_not() {
+        let mk = |msg: &str, net: &str| {
+            crate::diag::Diag::error("ttl-high-into-cmos", msg).on_net(net.to_string())
+        };
+        let diags: Vec<crate::diag::Diag> = (0..8)
+            .map(|i| {
+                mk(
+                    &format!("U{} pin {} (74HC245 input A{i}) needs 3.50 V; U7 pin {} (74LS574 output {i}Q) guarantees 2.70 V: short by 0.80 V", 20 + i, 2 + i, 12 + i),
+                    &format!("/D{i}"),
+                )
+            })
+            .chain(std::iter::once(mk(
+                "U30 pin 1 (74HC00 input 1A) needs 3.50 V; U8 pin 3 (74LS00 output 1Y) guarantees 2.40 V: short by 1.10 V",
+                "/X",
+            )))
+            .collect();
+        let groups = fold(&diags);
+        assert_eq!(groups, vec![(0..8).collect::<Vec<_>>(), vec![8]]);
+        // three of a kind stay apart
+        let few: Vec<_> = diags[..3].to_vec();
+        assert_eq!(fold(&few).len(), 3);
     }
 
     #[test]

@@ -25,7 +25,7 @@ pub mod starter;
 use std::io::{self, Write};
 use std::path::{Component, Path, PathBuf};
 
-use clap::{Args, ValueEnum};
+use clap::ValueEnum;
 
 use crate::diag::{Diag, Label, Severity};
 use crate::pipeline::FileOutcome;
@@ -51,39 +51,6 @@ pub enum Format {
     Github,
 }
 
-/// The command-line options of the reporters (flattened into `check`).
-#[derive(Debug, Clone, Args)]
-pub struct ReportArgs {
-    /// Output format
-    #[arg(long, value_enum, default_value_t = Format::Human)]
-    pub format: Format,
-    /// Print the findings only: no per-file or summary lines
-    #[arg(long, short = 'q')]
-    pub quiet: bool,
-    /// Directory that SARIF and annotation paths are relative to [default: the current directory]
-    #[arg(long, value_name = "DIR")]
-    pub root: Option<PathBuf>,
-}
-
-impl ReportArgs {
-    /// The options for [`write_report`]; `color` and `width` only shape the human format.
-    pub fn options(&self, color: bool, width: usize) -> io::Result<ReportOptions> {
-        let cwd = std::env::current_dir()?;
-        let root = match &self.root {
-            Some(r) => cwd.join(r),
-            None => cwd.clone(),
-        };
-        Ok(ReportOptions {
-            format: self.format,
-            quiet: self.quiet,
-            color,
-            width,
-            root,
-            cwd,
-        })
-    }
-}
-
 /// Everything a reporter needs to know besides the outcomes.
 #[derive(Debug, Clone)]
 pub struct ReportOptions {
@@ -97,6 +64,9 @@ pub struct ReportOptions {
     pub root: PathBuf,
     /// Absolute directory that relative input paths are relative to (the current directory).
     pub cwd: PathBuf,
+    /// How many outcomes, from the start, are netlists (the rest are configuration and
+    /// baseline files with something to say, not counted as checked files); `None`: all.
+    pub netlists: Option<usize>,
 }
 
 impl ReportOptions {
@@ -110,6 +80,7 @@ impl ReportOptions {
             width: 100,
             root: dir.clone(),
             cwd: dir,
+            netlists: None,
         }
     }
 }
@@ -174,6 +145,15 @@ pub fn related_labels(d: &Diag) -> impl Iterator<Item = &Label> {
     d.labels
         .iter()
         .filter(move |l| Some(*l as *const Label) != primary)
+}
+
+/// The file a diagnostic points into: for a schematic project (a source made of several
+/// sheet files) the sheet where its primary span lies, otherwise the input's own name.
+pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: &Diag) -> &'a str {
+    match (f.source.as_ref(), primary_label(d)) {
+        (Some(src), Some(l)) if !src.files().is_empty() => src.file_at(l.span.start as usize),
+        _ => &f.name,
+    }
 }
 
 /// The place of the diagnostic's primary span, when it has one and the text is known.
@@ -360,12 +340,20 @@ pub struct Totals {
 
 impl Totals {
     pub fn of(files: &[FileOutcome]) -> Totals {
+        Totals::of_run(files, None)
+    }
+
+    /// The totals of a run whose first `netlists` outcomes are netlists (`None`: all): the
+    /// others (a configuration's stale waivers, a baseline's notes) add their findings but are
+    /// not counted as files.
+    pub fn of_run(files: &[FileOutcome], netlists: Option<usize>) -> Totals {
+        let n = netlists.unwrap_or(files.len()).min(files.len());
         let mut t = Totals {
-            files: files.len(),
+            files: n,
             ..Totals::default()
         };
-        for f in files {
-            if f.fatal.is_some() {
+        for (i, f) in files.iter().enumerate() {
+            if f.fatal.is_some() && i < n {
                 t.not_checked += 1;
             }
             t.parts += f.summary.parts;

@@ -3,7 +3,7 @@
 
 use std::io::{self, Write};
 
-use crate::circuit::budget::{net_budget, StateBudget};
+use crate::circuit::budget::{NetBudget, StateBudget};
 use crate::circuit::Circuit;
 use crate::text::sanitize;
 use crate::values::{format_amps, format_ohms, format_volts};
@@ -38,9 +38,14 @@ fn state(out: &mut dyn Write, name: &str, verb: &str, sb: &StateBudget) -> io::R
     }
 }
 
-pub fn write_net(out: &mut dyn Write, cx: &Circuit<'_, '_>, net: usize) -> io::Result<()> {
+/// Writes net `net` of the circuit with its budget `b` (the one the checks read).
+pub fn write_net(
+    out: &mut dyn Write,
+    cx: &Circuit<'_, '_>,
+    b: &NetBudget,
+    net: usize,
+) -> io::Result<()> {
     let nm = &cx.nets[net];
-    let b = net_budget(cx, net);
     writeln!(out, "net {}", sanitize(&cx.net_name(net)))?;
     if let Some(r) = nm.rail {
         writeln!(

@@ -79,30 +79,51 @@ pub fn write_parts(
         serde_json::to_writer_pretty(&mut *out, &doc).map_err(io::Error::other)?;
         return writeln!(out);
     }
+    // columns as wide as their widest entry, two spaces apart, so long references and values
+    // (`SYS_RAM1`, `MK4116x8`) never run together
+    let kinds: Vec<String> = rows
+        .iter()
+        .map(|r| format!("{:?}", r.kind).to_lowercase())
+        .collect();
+    let funcs: Vec<String> = rows
+        .iter()
+        .map(|r| r.function.clone().unwrap_or_else(|| "-".into()))
+        .collect();
+    let width = |head: &str, cells: &mut dyn Iterator<Item = usize>| {
+        cells.fold(head.chars().count(), usize::max) + 2
+    };
+    let len = |s: &str| sanitize(s).chars().count();
+    let wr = width("ref", &mut rows.iter().map(|r| len(r.reference)));
+    let wv = width("value", &mut rows.iter().map(|r| len(r.value)));
+    let wk = width("kind", &mut kinds.iter().map(|k| k.chars().count()));
+    let wf = width(
+        "family",
+        &mut rows.iter().map(|r| len(r.family.unwrap_or("-"))),
+    );
+    let wn = width("function", &mut funcs.iter().map(|f| len(f)));
     let w = |s: &str, n: usize| format!("{:<n$}", sanitize(s), n = n);
     writeln!(
         out,
         "{}{}{}{}{}method",
-        w("ref", 8),
-        w("value", 18),
-        w("kind", 15),
-        w("family", 9),
-        w("function", 12)
+        w("ref", wr),
+        w("value", wv),
+        w("kind", wk),
+        w("family", wf),
+        w("function", wn)
     )?;
-    for r in &rows {
-        let func = r.function.clone().unwrap_or_else(|| "-".into());
+    for (i, r) in rows.iter().enumerate() {
         writeln!(
             out,
             "{}{}{}{}{}{}",
-            w(r.reference, 8),
-            w(r.value, 18),
-            w(&format!("{:?}", r.kind).to_lowercase(), 15),
-            w(r.family.unwrap_or("-"), 9),
-            w(&func, 12),
+            w(r.reference, wr),
+            w(r.value, wv),
+            w(&kinds[i], wk),
+            w(r.family.unwrap_or("-"), wf),
+            w(&funcs[i], wn),
             r.method
         )?;
         for s in &r.suggestions {
-            writeln!(out, "        did you mean {}?", sanitize(s))?;
+            writeln!(out, "{}did you mean {}?", " ".repeat(wr), sanitize(s))?;
         }
     }
     let pct = if ic == 0 {

@@ -4,9 +4,9 @@
 
 use std::fmt::Write as _;
 
+use crate::analysis::Overrides as SettingsArgs;
 use crate::checks::{CheckOptions, REGISTRY};
 use crate::circuit::ModelOptions;
-use crate::cli::SettingsArgs;
 use crate::config::{Config, Setting};
 use crate::source::Span;
 

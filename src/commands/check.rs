@@ -1,19 +1,42 @@
-//! The `check` command: find the files, load each one's configuration, check them in
-//! parallel, apply waivers, and hand every outcome to the reporter in a stable order.
+//! `netmargin check`: find the files, resolve each configuration once, analyse the files in
+//! parallel (each through [`crate::analysis`]), report stale waivers and unused mapping
+//! entries, and hand every outcome to the reporter in a stable order.
 
 use std::collections::BTreeMap;
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use rayon::prelude::*;
 
+use crate::analysis::{config_for, Overrides, Settings};
 use crate::cli::{CheckArgs, SettingsArgs};
-use crate::config::{self, Config, ConfigError};
+use crate::config::{self, ConfigError};
 use crate::diag::{Diag, Severity};
-use crate::pipeline::{self, FileOutcome, ReadOptions, RunOptions};
+use crate::pipeline::{self, FileOutcome, ReadOptions};
 
-/// Expands folders into the `*.net` files below them (honouring `.gitignore`), keeping files
-/// and `-` as given. Sorted within each folder, so the order is stable.
+/// Expands folders into the `*.net` files and KiCad schematics (`*.kicad_sch`) below them
+/// (honouring `.gitignore`), keeping files and `-` as given. Sorted within each folder, so
+/// the order is stable. A schematic sheet stands for its project: it is replaced by the
+/// project's root sheet, and each root is checked once.
 pub fn expand_paths(paths: &[String]) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for p in expand_files(paths) {
+        let path = Path::new(&p);
+        let p = if path.extension().is_some_and(|x| x == "kicad_sch") && path.is_file() {
+            crate::schematic::load::project_root(path)
+                .display()
+                .to_string()
+        } else {
+            p
+        };
+        if p == "-" || !out.contains(&p) {
+            out.push(p);
+        }
+    }
+    out
+}
+
+fn expand_files(paths: &[String]) -> Vec<String> {
     let mut out = Vec::new();
     for p in paths {
         let path = Path::new(p);
@@ -25,7 +48,9 @@ pub fn expand_paths(paths: &[String]) -> Vec<String> {
                 .flatten()
                 .filter(|e| {
                     e.file_type().is_some_and(|t| t.is_file())
-                        && e.path().extension().is_some_and(|x| x == "net")
+                        && e.path()
+                            .extension()
+                            .is_some_and(|x| x == "net" || x == "kicad_sch")
                 })
                 .map(|e| e.path().display().to_string())
                 .collect();
@@ -36,12 +61,6 @@ pub fn expand_paths(paths: &[String]) -> Vec<String> {
         }
     }
     out
-}
-
-/// A configuration, loaded once, with its rules and what its waivers matched.
-struct Loaded {
-    config: Config,
-    rules: crate::classify::classifier::Rules,
 }
 
 /// What a run produced.
@@ -59,13 +78,19 @@ pub struct Run {
 /// Runs `check`: the outcomes in order (netlists, then configuration and baseline files
 /// that have something to say) and whether a configuration or the baseline could not be
 /// used. With `--baseline`, the baseline's findings are taken out after the waivers.
-pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
+pub fn check(args: &CheckArgs, read: &ReadOptions) -> Run {
     let cwd = std::env::current_dir().unwrap_or_else(|_| PathBuf::from("."));
     let baseline = match &args.baseline {
         None => None,
         Some(p) => match crate::baseline::load(p, &cwd) {
             Ok(b) => Some(b),
-            Err(e) => return (vec![error_outcome(e)], true),
+            Err(e) => {
+                return Run {
+                    outcomes: vec![error_outcome(e)],
+                    netlists: 0,
+                    config_failed: true,
+                }
+            }
         },
     };
     let mut run = check_paths(&args.paths, &args.settings, read);
@@ -73,7 +98,7 @@ pub fn check(args: &CheckArgs, read: &ReadOptions) -> (Vec<FileOutcome>, bool) {
         let (_, stale) = b.apply(&mut run.outcomes[..run.netlists], &cwd, args.verbose);
         run.outcomes.extend(stale);
     }
-    (run.outcomes, run.config_failed)
+    run
 }
 
 /// The outcome that shows a configuration's (or a baseline's) errors.
@@ -89,64 +114,24 @@ fn error_outcome(e: ConfigError) -> FileOutcome {
     }
 }
 
-/// Which configuration file a netlist named `f` uses under these settings.
-pub fn config_for(f: &str, args: &SettingsArgs) -> Option<PathBuf> {
-    if args.no_config {
-        return None;
-    }
-    if let Some(c) = &args.config {
-        return Some(c.clone());
-    }
-    if f == "-" {
-        return config::discover(&std::env::current_dir().ok()?);
-    }
-    config::discover(Path::new(f))
-}
-
-/// The options a netlist is checked with: the defaults, then the configuration, then the
-/// command line.
-pub fn run_options(cfg: Option<&Config>, args: &SettingsArgs, read: &ReadOptions) -> RunOptions {
-    let mut run = RunOptions {
-        read: read.clone(),
-        ..Default::default()
-    };
-    if let Some(c) = cfg {
-        c.apply(&mut run);
-    }
-    // the command line wins over the configuration
-    if !args.only.is_empty() {
-        run.checks.disabled = crate::checks::REGISTRY
-            .iter()
-            .map(|c| c.id.to_string())
-            .filter(|id| !args.only.contains(id))
-            .collect();
-    }
-    run.checks.disabled.extend(args.disable.iter().cloned());
-    // the model takes the first declaration of a rail: the command line's go first
-    let from_config = std::mem::take(&mut run.model.rails);
-    run.model.rails = args.rail.iter().cloned().chain(from_config).collect();
-    run
-}
-
 /// Checks the netlists named by `paths` (folders expanded) with their configurations and
 /// waivers.
 pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) -> Run {
-    let files = expand_paths(paths);
+    check_files(&expand_paths(paths), &Overrides::from(args), read)
+}
+
+/// Checks `files` with their configurations (each resolved once) and waivers.
+pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Run {
     // which configuration each file uses
-    let per_file: Vec<Option<PathBuf>> = files.iter().map(|f| config_for(f, args)).collect();
-    let mut loaded: BTreeMap<PathBuf, Result<Loaded, ConfigError>> = BTreeMap::new();
+    let per_file: Vec<Option<PathBuf>> = files.iter().map(|f| config_for(f, over)).collect();
+    let mut loaded: BTreeMap<PathBuf, Result<Settings, ConfigError>> = BTreeMap::new();
     for p in per_file.iter().flatten() {
         if !loaded.contains_key(p) {
-            let l = config::load(p).and_then(|config| {
-                let rules = config.rules()?;
-                Ok(Loaded { config, rules })
-            });
-            loaded.insert(p.clone(), l);
+            loaded.insert(p.clone(), Settings::load(Some(p), over, read));
         }
     }
-    let builtin = crate::classify::classifier::Rules::builtin();
-    let base = |cfg: Option<&Config>| run_options(cfg, args, read);
-    let results: Vec<(FileOutcome, pipeline::UsedRules)> = files
+    let builtin = Settings::builtin(over, read);
+    let results: Vec<(FileOutcome, pipeline::Usage)> = files
         .par_iter()
         .zip(per_file.par_iter())
         .map(
@@ -173,15 +158,14 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
                     },
                     Default::default(),
                 ),
-                Some(Ok(l)) => pipeline::check_file_with_usage(f, &l.rules, &base(Some(&l.config))),
-                None => pipeline::check_file_with_usage(f, &builtin, &base(None)),
+                Some(Ok(s)) => pipeline::check_file_with(f, s),
+                None => pipeline::check_file_with(f, &builtin),
             },
         )
         .collect();
-    let (mut outcomes, usage): (Vec<FileOutcome>, Vec<pipeline::UsedRules>) =
-        results.into_iter().unzip();
+    let (outcomes, usage): (Vec<FileOutcome>, Vec<pipeline::Usage>) = results.into_iter().unzip();
 
-    // waivers
+    // stale waivers and unused mapping entries, per configuration
     let today = config::today();
     let mut config_outcomes = Vec::new();
     let mut config_failed = false;
@@ -197,33 +181,22 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
                 continue;
             }
         };
-        let mut used = vec![false; l.config.waivers.len()];
-        for (o, cp) in outcomes.iter_mut().zip(&per_file) {
-            if cp.as_ref() != Some(path) {
-                continue;
-            }
-            let before = o.diags.len();
-            o.diags.retain(|d| {
-                for (i, w) in l.config.waivers.iter().enumerate() {
-                    if !w.expired(today) && w.covers(d) {
-                        used[i] = true;
-                        return false;
-                    }
-                }
-                true
-            });
-            o.waived += before - o.diags.len();
-        }
-        let mut diags = Vec::new();
-        // project mapping entries that matched nothing in this run
-        let mine: Vec<&pipeline::UsedRules> = usage
+        let mine: Vec<&pipeline::Usage> = usage
             .iter()
             .zip(&per_file)
             .filter(|(_, cp)| cp.as_ref() == Some(path))
             .map(|(u, _)| u)
             .collect();
+        let used: Vec<bool> = (0..l.waivers.len())
+            .map(|i| {
+                mine.iter()
+                    .any(|u| u.waivers.get(i).copied().unwrap_or(false))
+            })
+            .collect();
+        let mut diags = Vec::new();
+        // project mapping entries that matched nothing in this run
         for (i, e) in l.rules.parts.entries.iter().enumerate() {
-            if e.shipped || mine.iter().any(|u| u.entries.contains(&i)) {
+            if e.shipped || mine.iter().any(|u| u.rules.entries.contains(&i)) {
                 continue;
             }
             let (file, line) = e.origin.clone().unwrap_or_default();
@@ -239,7 +212,10 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
             );
         }
         for (id, file, line) in &l.rules.project_families {
-            if !mine.iter().any(|u| u.families.iter().any(|f| f == id)) {
+            if !mine
+                .iter()
+                .any(|u| u.rules.families.iter().any(|f| f == id))
+            {
                 diags.push(Diag::info(
                     "unused-rule",
                     format!("the family `{id}` at {file}:{line} was used by no part in this run"),
@@ -248,14 +224,15 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
         }
         for (series, id, file, line) in &l.rules.project_functions {
             if !mine.iter().any(|u| {
-                u.functions
+                u.rules
+                    .functions
                     .iter()
                     .any(|(s, f)| s == series && f.eq_ignore_ascii_case(id))
             }) {
                 diags.push(Diag::info("unused-rule", format!("the function `{id}` ({} series) at {file}:{line} was used by no part in this run", series.as_str())));
             }
         }
-        for (i, w) in l.config.waivers.iter().enumerate() {
+        for (i, w) in l.waivers.iter().enumerate() {
             if w.expired(today) {
                 let (y, m, d) = w.expires.expect("expired has a date");
                 diags.push(
@@ -280,7 +257,7 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
         if !diags.is_empty() {
             config_outcomes.push(FileOutcome {
                 name: path.display().to_string(),
-                source: l.config.source.clone(),
+                source: l.config.as_ref().and_then(|c| c.source.clone()),
                 fatal: None,
                 diags,
                 summary: Default::default(),
@@ -290,6 +267,7 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
         }
     }
     let netlists = outcomes.len();
+    let mut outcomes = outcomes;
     outcomes.extend(config_outcomes);
     Run {
         outcomes,
@@ -313,87 +291,36 @@ pub fn exit_code(outcomes: &[FileOutcome], config_failed: bool, fail_on: Severit
     }
 }
 
-/// What `init` reads from the netlists: their rails, connectors and a finding to shape the
-/// example waiver on. A file that cannot be read comes back as its outcome.
-pub fn init_facts(
-    files: &[String],
+/// Runs `netmargin check` and prints the report; returns the exit code.
+pub fn command(
+    args: &CheckArgs,
     read: &ReadOptions,
-) -> Result<crate::report::starter::Facts, Box<FileOutcome>> {
-    use crate::report::starter::{ConnectorSeen, Facts, FindingSeen, RailSeen};
-    let rules = crate::classify::classifier::Rules::builtin();
-    let example_family = ["74LS", "74HC"]
-        .into_iter()
-        .find(|f| rules.families.get(f).is_some())
-        .map(str::to_string)
-        .or_else(|| rules.families.iter().next().map(|f| f.id.clone()))
-        .unwrap_or_default();
-    let (y, m, d) = config::today();
-    let mut facts = Facts {
-        netlists: files.to_vec(),
-        example_family,
-        derating: crate::checks::CheckOptions::default().derating,
-        expires: (y + 1, m, d.min(28)),
-        ..Default::default()
-    };
-    for f in files {
-        let outcome = pipeline::check_file(
-            f,
-            &rules,
-            &RunOptions {
-                read: read.clone(),
-                ..Default::default()
-            },
-        );
-        if outcome.fatal.is_some() {
-            return Err(Box::new(outcome));
-        }
-        let source = outcome.source.as_ref().expect("read when not fatal");
-        // check_file parsed and built it without a fatal error
-        let tree = crate::sexpr::parse(source.text()).expect("parsed once already");
-        let nl = crate::netlist::build(&tree).expect("built once already");
-        let cl = crate::classify::classifier::classify(&nl, &rules);
-        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
-        for (i, net) in cx.nets.iter().enumerate() {
-            let Some(rail) = net.rail else { continue };
-            let name = nl.nets[i].name.as_str().to_string();
-            if facts.rails.iter().any(|r| r.name == name) {
-                continue;
-            }
-            // an inferred voltage is for the user to confirm: the starter asks for it
-            let inferred = cx.rail_notes.iter().any(|n| n.net == i && n.why.is_some());
-            facts.rails.push(RailSeen {
-                name,
-                volts: if inferred { None } else { rail.v() },
-                ground: rail.ground,
-                pins: nl.nets[i].nodes.len(),
-            });
-        }
-        for (ci, c) in nl.components.iter().enumerate() {
-            if cl.parts[ci].kind != crate::classify::classifier::PartKind::Connector {
-                continue;
-            }
-            let reference = c.reference.as_str().to_string();
-            if facts.connectors.iter().any(|x| x.reference == reference) {
-                continue;
-            }
-            let pins = c
-                .pins
-                .iter()
-                .filter(|p| p.connection.net().is_some())
-                .count();
-            facts.connectors.push(ConnectorSeen {
-                reference,
-                value: c.value_str().to_string(),
-                pins,
-            });
-        }
-        if facts.finding.is_none() {
-            let is_check = |d: &&Diag| crate::checks::info(&d.code).is_some() && !d.pins.is_empty();
-            facts.finding = outcome.diags.iter().find(is_check).map(|d| FindingSeen {
-                check: d.code.clone(),
-                pins: d.pins.clone(),
-            });
-        }
+    color: crate::cli::ColorChoice,
+) -> std::io::Result<u8> {
+    if !super::known_checks(&args.settings) {
+        return Ok(2);
     }
-    Ok(facts)
+    if !args.paths.iter().any(|p| p == "-") && expand_paths(&args.paths).is_empty() {
+        // a folder with no netlists (or all ignored) checks nothing: say so, never silently
+        eprintln!(
+            "netmargin: no `.net` files in {} (folders are searched for `*.net`, honouring .gitignore); nothing checked",
+            args.paths.iter().map(|p| crate::text::sanitize(p).into_owned()).collect::<Vec<_>>().join(", ")
+        );
+        return Ok(if args.require_files { 2 } else { 0 });
+    }
+    let run = check(args, read);
+    let code = exit_code(&run.outcomes, run.config_failed, args.fail_on.severity());
+    let stdout = std::io::stdout();
+    let color = super::color_on(color, std::io::IsTerminal::is_terminal(&stdout));
+    let mut ropts = args.report.options(color, 100)?;
+    ropts.netlists = Some(run.netlists);
+    let mut out = stdout.lock();
+    let written =
+        crate::report::write_report(&ropts, &run.outcomes, &mut out).and_then(|()| out.flush());
+    match written {
+        // the reader stopped reading (`| head`): the run is complete, its code stands
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(code),
+        Err(e) => Err(e),
+        Ok(()) => Ok(code),
+    }
 }
