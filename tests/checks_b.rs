@@ -628,3 +628,45 @@ fn loads_behind_a_series_resistor_count_against_the_driver() {
     );
     assert!(run(&text, "floating-ttl-input", 0.0).is_empty());
 }
+
+// ---------------------------------------------------------------------------------------------
+// one-pin pull parts
+
+#[test]
+fn a_one_pin_pull_up_part_holds_its_net_and_drives_nothing() {
+    // simulation libraries draw a pull-up as one pin (typed three-state here): it holds a CMOS
+    // input that nothing else drives, and it is not a three-state driver of a floating bus
+    let board = |pull: bool| {
+        let mut comps = vec![
+            c("U1", "74HC00", "NAND2", "Package_DIP:DIP-14_W7.62mm"),
+            c("J1", "PWR", "CONN", ""),
+        ];
+        let mut en = vec!["U1.1"];
+        if pull {
+            comps.push(c("PU1", "pull_up", "PULL", ""));
+            en.push("PU1.1");
+        }
+        netlist(
+            &comps,
+            &[
+                ("NAND2", NAND2),
+                ("PULL", "1:~:tri_state"),
+                ("CONN", "1:P1:passive 2:P2:passive"),
+            ],
+            &[
+                ("+5V", &["J1.1", "U1.14", "U1.2"]),
+                ("GND", &["J1.2", "U1.7"]),
+                ("/EN", &en),
+            ],
+        )
+    };
+    let floats = |t: &str| {
+        run(t, "floating-cmos-input", 0.0)
+            .into_iter()
+            .filter(|d| d.net.as_deref() == Some("/EN") || d.pins.iter().any(|p| p == "U1.1"))
+            .count()
+    };
+    assert_eq!(floats(&board(false)), 1);
+    assert_eq!(floats(&board(true)), 0);
+    assert!(run(&board(true), "floating-bus", 0.0).is_empty());
+}

@@ -585,7 +585,12 @@ pub fn build<'n, 'a>(
                     continue;
                 }
                 // a small part whose symbol types a pin as a logic input or output (a probe,
-                // a stimulus, a module's pin) takes part by that type, as a hint
+                // a stimulus, a module's pin) takes part by that type, as a hint; a one-pin
+                // pull part holds its net (below) and drives nothing
+                PartKind::Other if is_pull_part(c) => {
+                    nm.passives.push(at);
+                    continue;
+                }
                 PartKind::Other
                     if matches!(
                         role,
@@ -712,19 +717,7 @@ pub fn build<'n, 'a>(
     }
     // one-pin pull-up and pull-down parts (simulation and sketch libraries)
     for (ci, c) in nl.components.iter().enumerate() {
-        if c.pins.len() != 1 {
-            continue;
-        }
-        let says = |t: &str| {
-            let t = t.to_ascii_lowercase().replace(['_', '-', ' '], "");
-            t.contains("pullup") || t.contains("pulldown")
-        };
-        let symbol = c
-            .libsource
-            .as_ref()
-            .and_then(|l| l.part.as_ref())
-            .map_or("", |p| p.as_str());
-        if says(c.value_str()) || says(symbol) {
+        if is_pull_part(c) {
             if let Some(net) = c.pins[0].connection.net() {
                 nets[net].held.push(ci);
             }
@@ -823,6 +816,23 @@ pub fn build<'n, 'a>(
         roles,
         rail_notes,
     }
+}
+
+/// A one-pin part that stands for a pull-up or pull-down (`PULLUP`, `rpullup`, `pull_down`).
+fn is_pull_part(c: &crate::netlist::Component<'_>) -> bool {
+    if c.pins.len() != 1 {
+        return false;
+    }
+    let says = |t: &str| {
+        let t = t.to_ascii_lowercase().replace(['_', '-', ' '], "");
+        t.contains("pullup") || t.contains("pulldown")
+    };
+    let symbol = c
+        .libsource
+        .as_ref()
+        .and_then(|l| l.part.as_ref())
+        .map_or("", |p| p.as_str());
+    says(c.value_str()) || says(symbol)
 }
 
 /// The elements of a resistor or network as pairs of (pin, net): a two-pin resistor; a
