@@ -167,14 +167,33 @@ fn families_command_at_a_supply() {
     // MM74HC04 (onsemi) DC table: VIH 3.15 V at VCC = 4.5 V
     assert_eq!(hc["vih_min"], 3.15);
     assert_eq!(hc["basis"], "published");
+    // TI SDLS025B: 74LS is specified for VCC 4.75 to 5.25 V, so it is not listed at 4.5 V ...
+    assert!(v.as_array().unwrap().iter().all(|f| f["id"] != "74LS"));
+    // ... and at 5 V it is, with IOL 8 mA
+    let o = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["families", "--supply", "5", "--format", "json"])
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     let ls = v
         .as_array()
         .unwrap()
         .iter()
         .find(|f| f["id"] == "74LS")
         .unwrap();
-    // TI SDLS025B: IOL 8 mA
     assert_eq!(ls["iol_max_ma"], 8.0);
+    // the text form names what it leaves out: no 74AHCT (4.5 to 5.5 V) figures at 3.3 V
+    let o = Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["families", "--supply", "3.3"])
+        .output()
+        .unwrap();
+    let text = String::from_utf8_lossy(&o.stdout);
+    assert!(!text.lines().any(|l| l.starts_with("74AHCT ")), "{text}");
+    assert!(
+        text.contains("not specified at 3.30 V, so not listed: ")
+            && text.contains("74AHCT (4.50 to 5.50 V)"),
+        "{text}"
+    );
 }
 
 #[test]

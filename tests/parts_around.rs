@@ -342,3 +342,48 @@ fn every_new_part_entry_names_a_family_and_function_that_exist() {
         }
     }
 }
+
+#[test]
+fn an_open_control_input_is_held_at_its_idle_level_with_a_computed_pull() {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args([
+            "check",
+            "--no-config",
+            "--format",
+            "json",
+            "--only",
+            "open-control-input",
+            "fixtures/checks/open-control-input.net",
+        ])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let found: Vec<(String, String)> = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            (
+                f["pins"][0].as_str().unwrap().to_string(),
+                format!("{} {}", f["message"], f["help"]),
+            )
+        })
+        .collect();
+    let pins: Vec<&str> = found.iter().map(|f| f.0.as_str()).collect();
+    // open: ~WAIT, ~BUSRQ (only an HC input on its net), the EPROM's VPP, the 555's ~RESET;
+    // held: ~INT (4K7 pull-up), ~RESET (an HC04 output), ~NMI (tied to +5V)
+    let mut sorted = pins.clone();
+    sorted.sort();
+    assert_eq!(sorted, ["U3.24", "U3.25", "U4.1", "U5.4"]);
+    let of = |p: &str| &found.iter().find(|f| f.0 == p).unwrap().1;
+    // Zilog Z80 (secondary quote of the 1978 spec, the NMOS family): VIH 2.0 V, leakage 10 uA:
+    // (5.00 V - 2.0 V) / 10 uA = 300 kOhm holds it; 10 kOhm is the usual value (common practice)
+    assert!(of("U3.24").contains("must be held high"), "{}", of("U3.24"));
+    assert!(of("U3.24").contains("300 kOhm"), "{}", of("U3.24"));
+    assert!(of("U3.24").contains("at most 10 kOhm"), "{}", of("U3.24"));
+    // TI SLFS022I (NE555, from memory): reset high above 1.0 V, 0.1 mA: (5.00 - 1.0) / 0.1 mA
+    assert!(of("U5.4").contains("40 kOhm"), "{}", of("U5.4"));
+    // the advice never names the wrong rail for an active-low control input
+    assert!(!of("U3.24").contains("GND"), "{}", of("U3.24"));
+}

@@ -35,6 +35,7 @@ fn rated_at_ttl(ctx: &Context<'_, '_, '_>, comp: usize) -> bool {
         .family(comp)
         .is_some_and(|f| f.high_output == HighOutput::RatedAtTtl)
 }
+
 /// The TTL-threshold variant of a CMOS family, if there is one: 74HC -> 74HCT.
 pub(super) fn ttl_threshold_variant(family: &str) -> Option<&'static str> {
     match family {

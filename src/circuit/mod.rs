@@ -290,7 +290,8 @@ impl<'n, 'a> Circuit<'n, 'a> {
             .and_then(|f| self.rules.families.get(f))
     }
 
-    /// True when the part's family has TTL-level outputs (bipolar or NMOS).
+    /// True when the part's family has TTL-level outputs (bipolar or NMOS, or a family whose
+    /// `high_output` says its high stops at TTL levels or is guaranteed only there).
     pub fn ttl_output(&self, comp: usize) -> bool {
         self.family(comp).is_some_and(|f| {
             matches!(

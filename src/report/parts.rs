@@ -164,9 +164,23 @@ pub fn write_families(
         iil_max_ma: f64,
         source: String,
     }
+    // at a stated supply, only the families specified for it: a 74LS or 74AHCT row at 3.3 V
+    // would print figures no part guarantees
+    let specified = |f: &&crate::classify::family::Family| {
+        supply.map_or(true, |v| {
+            v >= f.supply_min - 1e-9 && v <= f.supply_max + 1e-9
+        })
+    };
+    let unspecified: Vec<String> = rules
+        .families
+        .iter()
+        .filter(|f| !specified(f))
+        .map(|f| format!("{} ({:.2} to {:.2} V)", f.id, f.supply_min, f.supply_max))
+        .collect();
     let rows: Vec<Row> = rules
         .families
         .iter()
+        .filter(specified)
         .map(|f| {
             let vcc = supply.unwrap_or(f.supply_nominal);
             let l = f.levels(vcc, Drive::Standard);
@@ -194,7 +208,7 @@ pub fn write_families(
     }
     writeln!(
         out,
-        "{:<9}{:<6}{:>6} {:>6} {:>6} {:>6} {:>6} {:>8} {:>8} {:>8} {:>8}  basis",
+        "{:<11}{:<6}{:>6} {:>6} {:>6} {:>6} {:>6} {:>8} {:>8} {:>8} {:>8}  basis",
         "family",
         "input",
         "VCC",
@@ -211,7 +225,7 @@ pub fn write_families(
         let f = |v: Option<f64>| v.map_or("-".to_string(), |v| format!("{v:.2}"));
         writeln!(
             out,
-            "{:<9}{:<6}{:>6.2} {:>6.2} {:>6.2} {:>6} {:>6} {:>8.2} {:>8.2} {:>8.1} {:>8.2}  {}",
+            "{:<11}{:<6}{:>6.2} {:>6.2} {:>6.2} {:>6} {:>6} {:>8.2} {:>8.2} {:>8.1} {:>8.2}  {}",
             r.id,
             r.input,
             r.vcc,
@@ -224,6 +238,13 @@ pub fn write_families(
             r.iih_max_ua,
             r.iil_max_ma,
             r.basis
+        )?;
+    }
+    if let (Some(v), false) = (supply, unspecified.is_empty()) {
+        writeln!(
+            out,
+            "not specified at {v:.2} V, so not listed: {}",
+            unspecified.join(", ")
         )?;
     }
     writeln!(out, "VOH and VOL at each family's heaviest published load; `netmargin families --format json` adds the sources")
