@@ -3,8 +3,13 @@
 //! netlists with 1, 2 and all cores, each against a floor measured in the same run (`cat`
 //! of the same bytes).
 //!
-//! `cargo build --release && cargo bench --bench scale -- [SIZES_MB] [RUNS] [FILES]`, e.g.
-//! `-- 5,50,500 3 2000` (defaults `5,50`, 3 and 2000; the 500 MB file only when asked).
+//! `cargo build --release && cargo bench --bench scale -- [SIZES_MB] [RUNS] [FILES] [SHAPES]`,
+//! e.g. `-- 5,50,500 3 2000` (defaults `5,50`, 3, 2000 and every shape of
+//! `netmargin::synth::SHAPES`; the 500 MB files only when asked; 0 files skips the folder).
+//! Each shape is checked at each size against a floor measured in the same run: the bench
+//! itself, in a child process, reading and modelling the same file (`netlist::read`). The
+//! column "time x for 10 x data" is the check's time over that of the size ten times smaller.
+//! Start-up is a small netlist and `--version` against spawning `true`.
 //! The files are written under `<target>/bench-scale/`. Peak memory is GNU time's "Maximum
 //! resident set size" (`/usr/bin/time -v`); without GNU time it is shown as n/a.
 
@@ -95,15 +100,26 @@ fn run(
     }
 }
 
-/// The synthetic netlist of about `mb` megabytes, written once and kept.
-fn big_file(dir: &Path, mb: usize) -> (PathBuf, u64) {
-    let path = dir.join(format!("synthetic-{mb}MB.net"));
+/// The synthetic netlist of shape `shape` and about `mb` megabytes, written once and kept.
+fn big_file(dir: &Path, shape: &str, mb: usize) -> (PathBuf, u64) {
+    let path = dir.join(format!("{shape}-{mb}MB.net"));
     if !path.exists() {
-        let text = netmargin::synth::netlist(mb * 1_000_000);
+        let text = netmargin::synth::shape(shape, mb * 1_000_000).expect("a known shape");
         std::fs::write(&path, &text).expect("bench file");
     }
     let len = std::fs::metadata(&path).expect("bench file").len();
     (path, len)
+}
+
+/// The environment variable that makes the bench, run as a child of itself, only read and
+/// model the file it names (the floor of the whole check, in a process of its own so its peak
+/// memory is its own).
+const READ_ONLY: &str = "NETMARGIN_BENCH_READ_AND_MODEL";
+
+fn read_and_model(path: &str) {
+    let text = std::fs::read_to_string(path).expect("bench file");
+    let nl = netmargin::netlist::read(&text).expect("a netlist");
+    std::hint::black_box(&nl);
 }
 
 /// `n` small netlists (about 20 kB each), each with its references renamed so no two files
@@ -131,6 +147,10 @@ fn mb(kb: Option<u64>) -> String {
 }
 
 fn main() {
+    if let Ok(path) = std::env::var(READ_ONLY) {
+        read_and_model(&path);
+        return;
+    }
     let args: Vec<String> = std::env::args()
         .skip(1)
         .filter(|a| !a.starts_with("--"))
@@ -144,8 +164,11 @@ fn main() {
     let n_files: usize = args
         .get(2)
         .and_then(|a| a.parse().ok())
-        .unwrap_or(2000)
-        .max(1);
+        .unwrap_or(2000);
+    let shapes: Vec<String> = args
+        .get(3)
+        .map(|a| a.split(',').map(str::to_string).collect())
+        .unwrap_or_else(|| netmargin::synth::SHAPES.iter().map(|s| s.to_string()).collect());
 
     let exe = std::env::current_exe().expect("the bench's own path");
     // the bench runs from <target>/release/deps/, next to <target>/release/netmargin
@@ -178,75 +201,114 @@ fn main() {
         load()
     );
 
-    // one file, growing size
+    // one file, growing size, each shape
     println!();
     println!(
-        "| file | netmargin check --format json | MB/s | CPU time | MB per CPU s | cat (floor) | MB/s | check / cat | peak memory | peak / file |"
+        "| shape | file | check --format json | MB/s | CPU time | read + model (floor) | MB/s | check / floor | time x for 10 x data | peak memory | peak / file | floor peak / file |"
     );
-    println!("| ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
-    let mut rates = Vec::new();
-    for &size in &sizes {
-        let (path, len) = big_file(&dir, size);
-        let check_args = [
-            "check".as_ref(),
-            "--format".as_ref(),
-            "json".as_ref(),
-            "--no-config".as_ref(),
-            path.as_os_str(),
-        ];
-        // warm-up: the page cache holds the file, and the run must succeed
-        let first = run(&bin, &check_args, &[], memory);
-        assert!(
-            matches!(first.code, Some(0 | 1)),
-            "netmargin check exited with {:?} on {}",
-            first.code,
-            path.display()
-        );
-        let _ = run(&cat, &[path.as_os_str()], &[], false);
-        let (mut t_check, mut t_cat, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
-        let mut t_cpu = Vec::new();
-        for _ in 0..runs {
-            let c = run(&bin, &check_args, &[], memory);
-            peak = peak.max(c.peak_kb);
-            t_check.push(c.secs);
-            t_cpu.extend(c.cpu);
-            t_cat.push(run(&cat, &[path.as_os_str()], &[], false).secs);
-        }
-        let (c, f) = (median(t_check), median(t_cat));
-        let cpu = (!t_cpu.is_empty()).then(|| median(t_cpu));
-        let mbytes = len as f64 / 1e6;
-        rates.push((size, mbytes / c, cpu.map(|t| mbytes / t)));
-        println!(
-            "| {:.1} MB | {:.3} s | {:.1} | {} | {} | {:.3} s | {:.0} | {:.1} x | {} | {} |",
-            mbytes,
-            c,
-            mbytes / c,
-            cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
-            cpu.map_or("n/a".to_string(), |t| format!("{:.1}", mbytes / t)),
-            f,
-            mbytes / f,
-            c / f,
-            mb(peak),
-            peak.map_or("n/a".to_string(), |k| format!(
-                "{:.2} x",
-                k as f64 * 1024.0 / len as f64
-            )),
-        );
-    }
-    if let (Some(a), Some(b)) = (rates.first(), rates.last()) {
-        if rates.len() > 1 {
-            println!();
+    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
+    for shape in &shapes {
+        let mut prev: Option<(usize, f64)> = None;
+        for &size in &sizes {
+            let (path, len) = big_file(&dir, shape, size);
+            let check_args = [
+                "check".as_ref(),
+                "--format".as_ref(),
+                "json".as_ref(),
+                "--no-config".as_ref(),
+                path.as_os_str(),
+            ];
+            let path_str = path.to_string_lossy().into_owned();
+            let floor_env = [(READ_ONLY, Some(path_str.as_str()))];
+            // warm-up: the page cache holds the file, and the run must succeed
+            let first = run(&bin, &check_args, &[], memory);
+            assert!(
+                matches!(first.code, Some(0 | 1)),
+                "netmargin check exited with {:?} on {}",
+                first.code,
+                path.display()
+            );
+            let floor_first = run(&exe, &[], &floor_env, memory);
+            assert_eq!(floor_first.code, Some(0), "read and model {}", path.display());
+            let (mut t_check, mut t_floor, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
+            let mut floor_peak = floor_first.peak_kb;
+            let mut t_cpu = Vec::new();
+            for _ in 0..runs {
+                let c = run(&bin, &check_args, &[], memory);
+                peak = peak.max(c.peak_kb);
+                t_check.push(c.secs);
+                t_cpu.extend(c.cpu);
+                let f = run(&exe, &[], &floor_env, memory);
+                floor_peak = floor_peak.max(f.peak_kb);
+                t_floor.push(f.secs);
+            }
+            let (c, f) = (median(t_check), median(t_floor));
+            let cpu = (!t_cpu.is_empty()).then(|| median(t_cpu));
+            let mbytes = len as f64 / 1e6;
+            let growth = match prev {
+                Some((s0, t0)) if size == s0 * 10 => format!("{:.1}", c / t0),
+                _ => String::new(),
+            };
+            prev = Some((size, c));
+            let per_file = |k: Option<u64>| {
+                k.map_or("n/a".to_string(), |k| {
+                    format!("{:.2} x", k as f64 * 1024.0 / len as f64)
+                })
+            };
             println!(
-                "throughput at {} MB / at {} MB: wall {:.2}, CPU {} (1.00 = linear; below 1 = cost grows faster than the size)",
-                b.0,
-                a.0,
-                b.1 / a.1,
-                match (a.2, b.2) {
-                    (Some(x), Some(y)) => format!("{:.2}", y / x),
-                    _ => "n/a".to_string(),
-                }
+                "| {shape} | {:.1} MB | {:.3} s | {:.1} | {} | {:.3} s | {:.0} | {:.2} x | {growth} | {} | {} | {} |",
+                mbytes,
+                c,
+                mbytes / c,
+                cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+                f,
+                mbytes / f,
+                c / f,
+                mb(peak),
+                per_file(peak),
+                per_file(floor_peak),
             );
         }
+    }
+
+    // start-up: a small netlist against spawning a process that does nothing, and `--version`
+    let small = dir.join("small.net");
+    std::fs::write(&small, netmargin::synth::netlist(5_000)).expect("bench file");
+    let small_args = [
+        "check".as_ref(),
+        "--format".as_ref(),
+        "json".as_ref(),
+        "--no-config".as_ref(),
+        small.as_os_str(),
+    ];
+    let version: [&std::ffi::OsStr; 1] = ["--version".as_ref()];
+    let truth = PathBuf::from("true");
+    let (mut t_true, mut t_version, mut t_small) = (Vec::new(), Vec::new(), Vec::new());
+    for _ in 0..(runs * 20).max(30) {
+        t_true.push(run(&truth, &[], &[], false).secs);
+        t_version.push(run(&bin, &version, &[], false).secs);
+        t_small.push(run(&bin, &small_args, &[], false).secs);
+    }
+    let (t, v, c) = (median(t_true), median(t_version), median(t_small));
+    println!();
+    println!("| start-up | median | above `true` |");
+    println!("| --- | ---: | ---: |");
+    println!("| `true` (spawning a process) | {:.2} ms | |", t * 1e3);
+    println!(
+        "| netmargin --version | {:.2} ms | {:.2} ms |",
+        v * 1e3,
+        (v - t) * 1e3
+    );
+    println!(
+        "| netmargin check, {:.1} kB netlist | {:.2} ms | {:.2} ms |",
+        std::fs::metadata(&small).map_or(0, |m| m.len()) as f64 / 1e3,
+        c * 1e3,
+        (c - t) * 1e3
+    );
+    if n_files == 0 {
+        println!();
+        println!("load average (1, 5 min) at the end: {}", load());
+        return;
     }
 
     // many small files, 1, 2 and all cores
