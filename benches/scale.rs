@@ -9,7 +9,9 @@
 //! Each shape is checked at each size against a floor measured in the same run: the bench
 //! itself, in a child process, reading and modelling the same file (`netlist::read`). The
 //! column "time x for 10 x data" is the check's time over that of the size ten times smaller.
-//! Start-up is a small netlist and `--version` against spawning `true`.
+//! Start-up is a small netlist and `--version` against spawning `true`. With
+//! `NETMARGIN_BENCH_BASELINE=<another netmargin binary>` that binary (an earlier build) runs
+//! on the same files in the same run, for before-and-after columns.
 //! The files are written under `<target>/bench-scale/`. Peak memory is GNU time's "Maximum
 //! resident set size" (`/usr/bin/time -v`); without GNU time it is shown as n/a.
 
@@ -116,6 +118,10 @@ fn big_file(dir: &Path, shape: &str, mb: usize) -> (PathBuf, u64) {
 /// memory is its own).
 const READ_ONLY: &str = "NETMARGIN_BENCH_READ_AND_MODEL";
 
+/// The environment variable naming another netmargin binary (an earlier build) to run on the
+/// same files in the same run, for before-and-after figures.
+const BASELINE: &str = "NETMARGIN_BENCH_BASELINE";
+
 fn read_and_model(path: &str) {
     let text = std::fs::read_to_string(path).expect("bench file");
     let nl = netmargin::netlist::read(&text).expect("a netlist");
@@ -203,12 +209,26 @@ fn main() {
 
     // one file, growing size, each shape
     println!();
+    // another build of netmargin to compare with, run on the same files in the same run
+    let baseline = std::env::var_os(BASELINE).map(PathBuf::from);
+    if let Some(b) = &baseline {
+        println!("baseline ({BASELINE}): {}", b.display());
+    }
+    let (bh, bs) = if baseline.is_some() {
+        (
+            " baseline CPU | baseline CPU x for 10 x data | baseline peak / file | baseline CPU / CPU |",
+            " ---: | ---: | ---: | ---: |",
+        )
+    } else {
+        ("", "")
+    };
     println!(
-        "| shape | file | check --format json | MB/s | CPU time | read + model (floor) | MB/s | check / floor | time x for 10 x data | peak memory | peak / file | floor peak / file |"
+        "| shape | file | check --format json | MB/s | CPU time | read + model (floor) | floor CPU | check / floor (CPU) | CPU time x for 10 x data | peak memory | peak / file | floor peak / file |{bh}"
     );
-    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
+    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |{bs}");
     for shape in &shapes {
         let mut prev: Option<(usize, f64)> = None;
+        let mut prev_base: Option<(usize, f64)> = None;
         for &size in &sizes {
             let (path, len) = big_file(&dir, shape, size);
             let check_args = [
@@ -232,38 +252,69 @@ fn main() {
             assert_eq!(floor_first.code, Some(0), "read and model {}", path.display());
             let (mut t_check, mut t_floor, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
             let mut floor_peak = floor_first.peak_kb;
-            let mut t_cpu = Vec::new();
+            let (mut t_cpu, mut f_cpu) = (Vec::new(), Vec::new());
+            let (mut b_cost, mut b_peak) = (Vec::new(), None);
             for _ in 0..runs {
+                if let Some(b) = &baseline {
+                    let r = run(b, &check_args, &[], memory);
+                    b_peak = b_peak.max(r.peak_kb);
+                    b_cost.push(r.cpu.unwrap_or(r.secs));
+                }
                 let c = run(&bin, &check_args, &[], memory);
                 peak = peak.max(c.peak_kb);
                 t_check.push(c.secs);
                 t_cpu.extend(c.cpu);
                 let f = run(&exe, &[], &floor_env, memory);
                 floor_peak = floor_peak.max(f.peak_kb);
+                f_cpu.extend(f.cpu);
                 t_floor.push(f.secs);
             }
             let (c, f) = (median(t_check), median(t_floor));
             let cpu = (!t_cpu.is_empty()).then(|| median(t_cpu));
+            let fcpu = (!f_cpu.is_empty()).then(|| median(f_cpu));
             let mbytes = len as f64 / 1e6;
+            // CPU time when measured: wall time on a shared machine swings with its load
+            let cost = cpu.unwrap_or(c);
             let growth = match prev {
-                Some((s0, t0)) if size == s0 * 10 => format!("{:.1}", c / t0),
+                Some((s0, t0)) if size == s0 * 10 => format!("{:.1}", cost / t0),
                 _ => String::new(),
             };
-            prev = Some((size, c));
+            prev = Some((size, cost));
+            let base_cols = if baseline.is_some() {
+                let bc = median(b_cost);
+                let g = match prev_base {
+                    Some((s0, t0)) if size == s0 * 10 => format!("{:.1}", bc / t0),
+                    _ => String::new(),
+                };
+                prev_base = Some((size, bc));
+                format!(
+                    " {bc:.2} s | {g} | {} | {:.2} x |",
+                    b_peak.map_or("n/a".to_string(), |k| format!(
+                        "{:.2} x",
+                        k as f64 * 1024.0 / len as f64
+                    )),
+                    bc / cost
+                )
+            } else {
+                String::new()
+            };
             let per_file = |k: Option<u64>| {
                 k.map_or("n/a".to_string(), |k| {
                     format!("{:.2} x", k as f64 * 1024.0 / len as f64)
                 })
             };
             println!(
-                "| {shape} | {:.1} MB | {:.3} s | {:.1} | {} | {:.3} s | {:.0} | {:.2} x | {growth} | {} | {} | {} |",
+                "| {shape} | {:.1} MB | {:.3} s | {:.1} | {} | {:.3} s | {} | {:.2} x | {growth} | {} | {} | {} |{base_cols}",
                 mbytes,
                 c,
                 mbytes / c,
                 cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
                 f,
-                mbytes / f,
-                c / f,
+                fcpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+                match (cpu, fcpu) {
+                    (Some(a), Some(b)) => a / b,
+                    _ => c / f,
+                },
                 mb(peak),
                 per_file(peak),
                 per_file(floor_peak),
@@ -284,10 +335,14 @@ fn main() {
     let version: [&std::ffi::OsStr; 1] = ["--version".as_ref()];
     let truth = PathBuf::from("true");
     let (mut t_true, mut t_version, mut t_small) = (Vec::new(), Vec::new(), Vec::new());
+    let mut t_base = Vec::new();
     for _ in 0..(runs * 20).max(30) {
         t_true.push(run(&truth, &[], &[], false).secs);
         t_version.push(run(&bin, &version, &[], false).secs);
         t_small.push(run(&bin, &small_args, &[], false).secs);
+        if let Some(b) = &baseline {
+            t_base.push(run(b, &small_args, &[], false).secs);
+        }
     }
     let (t, v, c) = (median(t_true), median(t_version), median(t_small));
     println!();
@@ -305,6 +360,14 @@ fn main() {
         c * 1e3,
         (c - t) * 1e3
     );
+    if !t_base.is_empty() {
+        let b = median(t_base);
+        println!(
+            "| baseline check, same netlist | {:.2} ms | {:.2} ms |",
+            b * 1e3,
+            (b - t) * 1e3
+        );
+    }
     if n_files == 0 {
         println!();
         println!("load average (1, 5 min) at the end: {}", load());
