@@ -1,7 +1,7 @@
 //! Scale benchmark: the whole pipeline (read, model, classify, check, JSON out) through the
 //! release binary on synthetic netlists of growing size, and on a folder of many small
-//! netlists with 1, 2 and all cores, each against a floor measured in the same run (`cat`
-//! of the same bytes).
+//! netlists with 1, 2 and all cores, and on synthetic one-sheet schematics, each against a
+//! floor measured in the same run (`cat` of the same bytes).
 //!
 //! `cargo build --release && cargo bench --bench scale -- [SIZES_MB] [RUNS] [FILES] [SHAPES]`,
 //! e.g. `-- 5,50,500 3 2000` (defaults `5,50`, 3, 2000 and every shape of
@@ -451,6 +451,55 @@ fn main() {
         n_files as f64 / f,
         bytes as f64 / 1e6 / f
     );
+    schematics(&bin, &dir, &sizes, runs, memory);
     println!();
     println!("load average (1, 5 min) at the end: {}", load());
+}
+
+/// The whole pipeline on synthetic one-sheet schematics (a tenth of each netlist size: a
+/// schematic carries about ten times the text per pin of its netlist), against `cat`.
+fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize, mem: bool) {
+    println!();
+    println!("schematics (one sheet of resistor cells, wires and labels)");
+    println!();
+    println!("| size | nets | check (json) | MB/s | / cat | peak memory |");
+    println!("| ---: | ---: | ---: | ---: | ---: | ---: |");
+    let cat = PathBuf::from("cat");
+    for &size in sizes {
+        let size_mb = (size / 10).max(1);
+        let path = dir.join(format!("synthetic-{size_mb}MB.kicad_sch"));
+        let (text, nets) = netmargin::synth::schematic(size_mb * 1_000_000);
+        std::fs::write(&path, &text).expect("bench file");
+        let bytes = text.len() as f64;
+        drop(text);
+        let args: Vec<&std::ffi::OsStr> = vec![
+            "check".as_ref(),
+            "--format".as_ref(),
+            "json".as_ref(),
+            "--no-config".as_ref(),
+            path.as_os_str(),
+        ];
+        let mut t = Vec::new();
+        let mut peak = None;
+        for _ in 0..runs {
+            let r = run(bin, &args, &[], mem);
+            peak = r.peak_kb.or(peak);
+            t.push(r.secs);
+        }
+        let cat_args: Vec<&std::ffi::OsStr> = vec![path.as_os_str()];
+        let f = median(
+            (0..runs)
+                .map(|_| run(&cat, &cat_args, &[], false).secs)
+                .collect(),
+        );
+        let w = median(t);
+        println!(
+            "| {:.1} MB | {nets} | {:.3} s | {:.1} | {:.0} x | {} |",
+            bytes / 1e6,
+            w,
+            bytes / 1e6 / w,
+            w / f,
+            mb(peak)
+        );
+    }
 }

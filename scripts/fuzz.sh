@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Runs one fuzz target for a number of seconds on the stable toolchain.
 #
-#   scripts/fuzz.sh <read|model|structured|check> <seconds> [extra libFuzzer flags...]
+#   scripts/fuzz.sh <read|model|structured|sheet|check> <seconds> [extra libFuzzer flags...]
 #
 # cargo-fuzz and libFuzzer want a nightly compiler; RUSTC_BOOTSTRAP=1 lets the stable one
 # accept the `-Z` flags they pass. The address sanitizer is used when the toolchain ships
@@ -13,7 +13,7 @@
 # test in tests/malformed.rs.
 set -euo pipefail
 
-target=${1:?usage: scripts/fuzz.sh <read|model|structured|check> <seconds> [libFuzzer flags]}
+target=${1:?usage: scripts/fuzz.sh <read|model|structured|sheet|check> <seconds> [libFuzzer flags]}
 seconds=${2:?usage: scripts/fuzz.sh <target> <seconds>}
 shift 2
 
@@ -21,9 +21,9 @@ root=$(cd "$(dirname "$0")/.." && pwd)
 cd "$root"
 
 case "$target" in
-  read | model | structured) features=() ;;
+  read | model | structured | sheet) features=() ;;
   check) features=(--features check) ;; # needs netmargin::pipeline::check_source
-  *) echo "fuzz.sh: unknown target \`$target\` (read, model, structured, check)" >&2; exit 2 ;;
+  *) echo "fuzz.sh: unknown target \`$target\` (read, model, structured, sheet, check)" >&2; exit 2 ;;
 esac
 
 if ! command -v cargo-fuzz >/dev/null 2>&1; then

@@ -194,13 +194,19 @@ pub struct Analysis<'a> {
 }
 
 impl<'a> Analysis<'a> {
-    /// Reads the text with the one-pass reader and classifies every part. `Err` is the
-    /// diagnostic that stops this file (not a netlist, malformed).
+    /// Reads the text with the one-pass reader (or, for a schematic project, the schematic
+    /// reader) and classifies every part. `Err` is the diagnostic that stops this file (not a
+    /// netlist, malformed).
     pub fn new(source: &'a SourceFile, settings: &'a Settings) -> Result<Analysis<'a>, Diag> {
-        if let Some(d) = sexpr::sniff(source.text()) {
-            return Err(d);
-        }
-        let nl = netlist::read(source.text())?;
+        let nl = if crate::schematic::is_sheet(source.text()) {
+            // a schematic project (opened by `pipeline::open_source` as its sheets joined)
+            crate::schematic::read_source(source)?
+        } else {
+            if let Some(d) = sexpr::sniff(source.text()) {
+                return Err(d);
+            }
+            netlist::read(source.text())?
+        };
         let cl = classify(&nl, &settings.rules);
         Ok(Analysis {
             source,

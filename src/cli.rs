@@ -11,10 +11,10 @@ use crate::report::{Format, ReportOptions};
 #[command(
     name = "netmargin",
     version,
-    about = "Checks KiCad netlists for logic-family interface mistakes",
-    long_about = "Reads KiCad S-expression netlists (.net) and checks every net against the DC data of the \
+    about = "Checks KiCad netlists and schematics for logic-family interface mistakes",
+    long_about = "Reads KiCad S-expression netlists (.net) or KiCad 6-9 schematics (.kicad_sch) and checks every net against the DC data of the \
 logic families on it: floating CMOS inputs, fan-out, TTL highs into CMOS inputs, open-collector pull-ups and more.",
-    after_help = "Examples:\n  netmargin check board.net\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
+    after_help = "Examples:\n  netmargin check board.net\n  netmargin check board.kicad_sch\n  netmargin check --format short hardware/\n  kicad-cli sch export netlist -o - board.kicad_sch | netmargin check -\n  netmargin baseline hardware/ && netmargin check --baseline netmargin-baseline.json hardware/\n  netmargin init hardware/board.net\n  netmargin config --show hardware/board.net\n  netmargin completions bash > ~/.local/share/bash-completion/completions/netmargin"
 )]
 pub struct Cli {
     #[command(subcommand)]
@@ -54,6 +54,16 @@ pub enum Command {
     Net(NetArgs),
     /// Write a report of a whole board (HTML with level charts, or Markdown)
     Audit(AuditArgs),
+    /// List every net with its name and pins, from a netlist or a schematic
+    #[command(
+        after_help = "Examples:\n  netmargin nets board.kicad_sch\n  netmargin nets --format json board.net > board-nets.json"
+    )]
+    Nets(NetsArgs),
+    /// Compare two captures of a board (netlists or schematics) pin by pin
+    #[command(
+        after_help = "Exit codes: 0 when every pin connects alike and the parts match, 1 when they differ, 2 when an input cannot be read.\n\nExamples:\n  netmargin compare board.kicad_sch board.net\n  netmargin compare capture-1.kicad_sch capture-2.kicad_sch"
+    )]
+    Compare(CompareArgs),
     /// Record the findings netlists have now, so `check --baseline` reports only new ones
     #[command(
         after_help = "Examples:\n  netmargin baseline hardware/\n  netmargin baseline -o ci/netmargin-baseline.json hardware/*.net\n  netmargin check --baseline ci/netmargin-baseline.json hardware/"
@@ -176,6 +186,26 @@ pub struct NetArgs {
 }
 
 #[derive(Debug, Args)]
+pub struct NetsArgs {
+    /// A netlist (`-` reads standard input) or a schematic's root sheet (`.kicad_sch`)
+    #[arg(value_name = "FILE")]
+    pub path: String,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = ListFormat::Text)]
+    pub format: ListFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct CompareArgs {
+    /// The first capture: a netlist or a schematic's root sheet
+    #[arg(value_name = "A")]
+    pub a: String,
+    /// The second capture
+    #[arg(value_name = "B")]
+    pub b: String,
+}
+
+#[derive(Debug, Args)]
 pub struct PartsArgs {
     /// The netlist (`-` reads standard input)
     #[arg(value_name = "FILE")]
@@ -205,8 +235,9 @@ pub enum ListFormat {
 
 #[derive(Debug, Args)]
 pub struct CheckArgs {
-    /// Netlist files or folders (folders are searched for `*.net`, honouring .gitignore); `-` reads
-    /// standard input
+    /// Netlists, KiCad 6-9 schematics (a sheet stands for its project's root sheet) or folders
+    /// (searched for `*.net` and `*.kicad_sch`, each project's root sheet once, honouring
+    /// .gitignore); `-` reads a netlist from standard input
     #[arg(required = true, value_name = "PATH")]
     pub paths: Vec<String>,
     /// Exit with 1 when a finding at or above this severity is reported

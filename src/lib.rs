@@ -9,6 +9,7 @@ pub mod analysis;
 pub mod atomic;
 pub mod audit;
 pub mod baseline;
+pub mod capture;
 pub mod checks;
 pub mod circuit;
 pub mod classify;
@@ -20,6 +21,7 @@ pub mod input;
 pub mod netlist;
 pub mod pipeline;
 pub mod report;
+pub mod schematic;
 pub mod sexpr;
 pub mod source;
 #[doc(hidden)]

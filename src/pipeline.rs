@@ -122,10 +122,34 @@ pub fn open_source(path: &str, opts: &ReadOptions) -> Result<SourceFile, Box<Fil
     };
     let bytes = read_bytes(path, opts).map_err(|d| fail(d, None))?;
     let source = input::load(&name, bytes).map_err(|e| fail(e.diag, Some(e.source)))?;
+    if crate::schematic::is_sheet(source.text()) {
+        // a KiCad 6-9 schematic: the root sheet and every sheet below it, joined into one
+        // source whose spans point into each sheet
+        return open_schematic(path, source, opts.max_bytes).map_err(|f| fail(f.diag, f.source));
+    }
     if let Some(d) = sexpr::sniff(source.text()) {
         return Err(fail(d, Some(source)));
     }
     Ok(source)
+}
+
+/// The project `path` belongs to (`path` is its root sheet or any sheet of it), as one
+/// source made of its sheet files, read from the disk (`loaded` is `path`'s text, already
+/// read). Standard input is a project of one
+/// sheet: its sub-sheets would be found beside its file.
+pub fn open_schematic(
+    path: &str,
+    loaded: SourceFile,
+    max_bytes: u64,
+) -> Result<SourceFile, Box<crate::schematic::load::Failed>> {
+    if path == "-" {
+        return crate::schematic::load::single(loaded.name(), loaded.text().to_string())
+            .map(|f| f.source);
+    }
+    // a sheet stands for its project: read from the project's root sheet
+    let root = crate::schematic::load::project_root(std::path::Path::new(path));
+    let root = root.to_str().unwrap_or(path);
+    crate::schematic::open(root, max_bytes).map(|f| f.source)
 }
 
 /// A fatal outcome for `source` (a netlist that could not be modelled).

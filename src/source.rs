@@ -49,6 +49,20 @@ pub struct SourceFile {
     shared: Arc<OnceLock<Arc<str>>>,
     /// Built on first use.
     line_starts: Arc<OnceLock<Box<[u32]>>>,
+    /// For a source made of several files (a schematic's sheets, see
+    /// [`SourceFile::from_files`]): where each file starts in the text, in order. Empty for
+    /// a single file.
+    files: Arc<[FilePart]>,
+}
+
+/// One file of a source made of several: its name, and where its text starts.
+#[derive(Debug, Clone)]
+pub struct FilePart {
+    pub name: Arc<str>,
+    /// Byte offset of the file's first byte in the joined text.
+    pub start: u32,
+    /// Byte length of the file's own text (without the line break added after it).
+    pub len: u32,
 }
 
 /// A 1-based line and 1-based column (counted in characters, as editors count them).
@@ -66,6 +80,7 @@ impl SourceFile {
             text: Arc::new(shared.to_string()),
             shared: Arc::new(OnceLock::from(shared)),
             line_starts: Arc::default(),
+            files: Arc::from([]),
         }
     }
 
@@ -76,6 +91,72 @@ impl SourceFile {
             text: Arc::new(text),
             shared: Arc::default(),
             line_starts: Arc::default(),
+            files: Arc::from([]),
+        }
+    }
+
+    /// One source for several files (the sheets of a schematic project): the texts are
+    /// joined, each ending in a line break (one is added where a file lacks it), so spans
+    /// stay plain byte offsets into one text while lines, columns and names are given per
+    /// file ([`SourceFile::file_at`], [`SourceFile::line_col`]). `name` names the whole
+    /// (the root sheet's path).
+    pub fn from_files(name: impl Into<Arc<str>>, files: Vec<(String, String)>) -> SourceFile {
+        let total: usize = files.iter().map(|(_, t)| t.len() + 1).sum();
+        let mut text = String::with_capacity(total);
+        let mut parts = Vec::with_capacity(files.len());
+        for (fname, t) in files {
+            let start = text.len() as u32;
+            text.push_str(&t);
+            parts.push(FilePart {
+                name: fname.into(),
+                start,
+                len: t.len() as u32,
+            });
+            if !t.ends_with('\n') && !t.ends_with('\r') {
+                text.push('\n');
+            }
+        }
+        SourceFile {
+            name: name.into(),
+            text: Arc::new(text),
+            shared: Arc::default(),
+            line_starts: Arc::default(),
+            files: parts.into(),
+        }
+    }
+
+    /// The files of a source made of several (empty for a single file).
+    pub fn files(&self) -> &[FilePart] {
+        &self.files
+    }
+
+    /// The file holding byte `offset`, for a source made of several files.
+    pub fn part_at(&self, offset: usize) -> Option<&FilePart> {
+        if self.files.is_empty() {
+            return None;
+        }
+        let i = match self
+            .files
+            .binary_search_by(|p| (p.start as usize).cmp(&offset))
+        {
+            Ok(i) => i,
+            Err(0) => 0,
+            Err(i) => i - 1,
+        };
+        self.files.get(i)
+    }
+
+    /// The name of the file holding byte `offset`: the source's own name for a single file,
+    /// the sheet's path for a schematic project.
+    pub fn file_at(&self, offset: usize) -> &str {
+        self.part_at(offset).map_or(&self.name, |p| &p.name)
+    }
+
+    /// 0-based index of the first line of the file holding `offset` (0 for a single file).
+    fn first_line_of(&self, offset: usize) -> usize {
+        match self.part_at(offset) {
+            Some(p) => self.line_index(p.start as usize),
+            None => 0,
         }
     }
 
@@ -107,12 +188,22 @@ impl SourceFile {
         }
     }
 
-    /// 1-based line and character column of byte `offset` (clamped to the text).
+    /// 1-based line and character column of byte `offset` (clamped to the text), within
+    /// the file that holds it ([`SourceFile::file_at`]).
     pub fn line_col(&self, offset: usize) -> LineCol {
-        line_col_in(self.text.as_bytes(), self.starts(), offset)
+        let mut lc = line_col_in(self.text.as_bytes(), self.starts(), offset);
+        lc.line -= self.first_line_of(offset.min(self.text.len()));
+        lc
     }
 
-    /// The text of 1-based line `line`, without its line ending.
+    /// The text of the line holding byte `offset`, without its line ending.
+    pub fn line_text_at(&self, offset: usize) -> &str {
+        self.line_text(self.line_index(offset.min(self.text.len())) + 1)
+    }
+
+    /// The text of 1-based line `line` of the whole text (for a source made of several
+    /// files, lines count across them: use [`SourceFile::line_text_at`]), without its line
+    /// ending.
     pub fn line_text(&self, line: usize) -> &str {
         let starts = self.starts();
         let i = line.saturating_sub(1).min(starts.len() - 1);
@@ -199,13 +290,15 @@ impl SourceCode for SourceFile {
         let inner = window.read_span(&local, context_lines_before, context_lines_after)?;
         let data = inner.data();
         let data_off = data.as_ptr() as usize - bytes.as_ptr() as usize;
+        // lines are counted within the file that holds the span
+        let file_line = self.first_line_of(start);
         Ok(Box::new(MietteSpanContents::new_named(
-            self.name.to_string(),
+            self.file_at(start).to_string(),
             data,
             SourceSpan::new(data_off.into(), data.len()),
-            inner.line() + first_line,
+            inner.line() + first_line - file_line,
             inner.column(),
-            inner.line_count() + first_line,
+            inner.line_count() + first_line - file_line,
         )))
     }
 }
@@ -243,6 +336,37 @@ mod tests {
         // a clone shares the index built through the original
         let twin = taken.clone();
         assert_eq!(twin.line_col(9), LineCol { line: 2, column: 6 });
+    }
+
+    #[test]
+    fn a_source_of_several_files_places_offsets_in_each_file() {
+        let f = SourceFile::from_files(
+            "root.kicad_sch",
+            vec![
+                ("root.kicad_sch".into(), "(a\n (b))".into()),
+                ("sub/child.kicad_sch".into(), "(c\r\n  (d))\n".into()),
+            ],
+        );
+        // the first file lacked a final line break: one was added
+        assert_eq!(f.text(), "(a\n (b))\n(c\r\n  (d))\n");
+        assert_eq!(f.files().len(), 2);
+        assert_eq!(f.files()[1].start, 9);
+        assert_eq!(f.file_at(0), "root.kicad_sch");
+        assert_eq!(f.file_at(8), "root.kicad_sch");
+        assert_eq!(f.file_at(9), "sub/child.kicad_sch");
+        assert_eq!(f.line_col(5), LineCol { line: 2, column: 3 });
+        // `(d)` is on line 2, column 3 of the second file
+        let d = f.text().find("(d)").unwrap();
+        assert_eq!(f.line_col(d), LineCol { line: 2, column: 3 });
+        assert_eq!(f.line_col(9), LineCol { line: 1, column: 1 });
+        assert_eq!(f.line_text_at(d), "  (d))");
+        let shown = f.read_span(&SourceSpan::new(d.into(), 3), 0, 0).unwrap();
+        assert_eq!(shown.name(), Some("sub/child.kicad_sch"));
+        assert_eq!(shown.line(), 1);
+        // a single file is its own only part
+        let one = SourceFile::new("x.net", "(a)");
+        assert_eq!(one.file_at(1), "x.net");
+        assert!(one.files().is_empty());
     }
 
     #[test]

@@ -369,3 +369,51 @@ mod tests {
         assert_eq!(nl2.summary(), s);
     }
 }
+
+/// Writes a one-sheet KiCad 8 schematic of about `target_bytes` bytes: a chain of resistor
+/// cells on a grid, each cell two resistors joined by a wire, their outer ends on labels
+/// that join the next cell, so the reader has wires, labels, placements and instance data
+/// to work through. Returns the text and the number of nets it must read into.
+pub fn schematic(target_bytes: usize) -> (String, usize) {
+    // one cell is about 1.9 kB
+    let cells = (target_bytes / 1900).max(1);
+    let root = "00000000-0000-4000-8000-000000000000";
+    let mut s = String::with_capacity(target_bytes + 8192);
+    let _ = write!(
+        s,
+        "(kicad_sch (version 20231120) (generator \"eeschema\")\n  (uuid \"{root}\")\n  (paper \"A0\")\n  (lib_symbols\n    (symbol \"Device:R\" (in_bom yes) (on_board yes)\n      (property \"Reference\" \"R\" (at 0 0 0))\n      (symbol \"R_1_1\"\n        (pin passive line (at 0 3.81 270) (length 1.27) (name \"~\") (number \"1\"))\n        (pin passive line (at 0 -3.81 90) (length 1.27) (name \"~\") (number \"2\")))))\n"
+    );
+    let mm = |v: f64| format!("{v:.2}");
+    for c in 0..cells {
+        let x0 = (c % 200) as f64 * 30.48;
+        let y = (c / 200) as f64 * 20.32 + 10.16;
+        for (k, xc) in [(0, x0 + 10.16), (1, x0 + 22.86)] {
+            let r = 2 * c + k;
+            let _ = write!(
+                s,
+                "  (symbol (lib_id \"Device:R\") (at {} {} 90) (unit 1) (in_bom yes) (on_board yes)\n    (uuid \"{:08x}-0000-4000-8000-{:012x}\")\n    (property \"Reference\" \"R{r}\" (at {} {} 0))\n    (property \"Value\" \"4k7\" (at {} {} 0))\n    (pin \"1\" (uuid \"{:08x}-0001-4000-8000-{:012x}\"))\n    (pin \"2\" (uuid \"{:08x}-0002-4000-8000-{:012x}\"))\n    (instances (project \"synthetic\" (path \"/{root}\" (reference \"R{r}\") (unit 1)))))\n",
+                mm(xc), mm(y), r, r, mm(xc), mm(y - 2.54), mm(xc), mm(y + 2.54), r, r, r, r
+            );
+        }
+        let wire = |s: &mut String, a: f64, b: f64, n: usize| {
+            let _ = write!(
+                s,
+                "  (wire (pts (xy {} {}) (xy {} {})) (stroke (width 0) (type default)) (uuid \"{:08x}-0003-4000-8000-{:012x}\"))\n",
+                mm(a), mm(y), mm(b), mm(y), c, n
+            );
+        };
+        wire(&mut s, x0 + 13.97, x0 + 19.05, 0);
+        wire(&mut s, x0 + 3.81, x0 + 6.35, 1);
+        wire(&mut s, x0 + 26.67, x0 + 29.21, 2);
+        for (at, n) in [(x0 + 3.81, c), (x0 + 29.21, c + 1)] {
+            let _ = write!(
+                s,
+                "  (label \"N{n}\" (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"{:08x}-0004-4000-8000-{:012x}\"))\n",
+                mm(at), mm(y), c, n
+            );
+        }
+    }
+    s.push_str("  (sheet_instances (path \"/\" (page \"1\")))\n)\n");
+    // the labelled chain nets N0 .. N{cells}, one inner net per cell
+    (s, 2 * cells + 1)
+}

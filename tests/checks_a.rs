@@ -283,7 +283,7 @@ fn input_overvoltage_fixture() {
     says(on(&d, "/HV_CMOS"), &["5.50 V", "over by 6.50 V"]);
     says(
         on(&d, "/HC_TO_LV"),
-        &["3.80 V", "over by 1.20 V", "74AHC, 74LV-A or 74LVC"],
+        &["3.80 V", "over by 1.20 V", "74AHC, 74LV-A, 74LVC or 74LVT"],
     );
     says(
         on(&d, "/PULL_12"),

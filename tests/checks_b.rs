@@ -530,3 +530,143 @@ fn a_driver_and_its_load_on_one_rail_share_the_rails_end() {
     assert!(run(&text, "input-overvoltage", 0.10).is_empty());
     assert!(run(&text, "input-overvoltage", 0.0).is_empty());
 }
+
+// ---------------------------------------------------------------------------------------------
+// fanout-overrun: an open-collector output sinking an LED from the supply
+
+#[test]
+fn an_led_sunk_from_the_supply_is_in_the_low_state_budget() {
+    // 74LS05 (TI SN74LS05): IOL 8 mA at VOL 0.5 V. A red LED (1.7 V, common practice) from +5V
+    // through 330 Ohm: (5.00 - 1.70 - 0.50) / 330 = 8.48 mA, over the 8 mA rating; through
+    // 1 kOhm 2.80 mA, well inside it. No pull-up is asked for: nothing reads the net.
+    let board = |ohms: &str| {
+        netlist(
+            &[
+                c("U1", "74LS05", "NAND2", "Package_DIP:DIP-14_W7.62mm"),
+                c("R1", ohms, "RES", ""),
+                c("D1", "RED", "LED", ""),
+                c("J1", "PWR", "CONN", ""),
+            ],
+            &[
+                ("NAND2", NAND2),
+                ("RES", "1:~:passive 2:~:passive"),
+                ("LED", "1:K:passive 2:A:passive"),
+                ("CONN", "1:P1:passive 2:P2:passive"),
+            ],
+            &[
+                ("+5V", &["J1.1", "U1.14", "R1.1"]),
+                ("GND", &["J1.2", "U1.7", "U1.1"]),
+                ("/LAMP_A", &["R1.2", "D1.2"]),
+                ("/LAMP_K", &["D1.1", "U1.2"]),
+            ],
+        )
+    };
+    let over = run(&board("330"), "fanout-overrun", 0.0);
+    assert_eq!(over.len(), 1, "{over:?}");
+    assert!(over[0].message.contains("8.48 mA"), "{}", over[0].message);
+    assert!(run(&board("1k"), "fanout-overrun", 0.0).is_empty());
+    assert!(run(&board("330"), "missing-pull-up", 0.0).is_empty());
+}
+
+// ---------------------------------------------------------------------------------------------
+// fanout-overrun: loads reached through a series resistor
+
+#[test]
+fn loads_behind_a_series_resistor_count_against_the_driver() {
+    // a 74HC00 output (IOL 4 mA at 4.5 V: onsemi MM74HC00; 4.40 mA at 5 V, interpolated) through
+    // a 33 Ohm series resistor into twelve 74LS00 inputs (IIL 0.4 mA each: TI SDLS025B):
+    // 4.80 mA, over the rating.
+    // The inputs are driven (no floating-ttl-input), and their current is the driver's.
+    let mut comps = vec![
+        c("U1", "74HC00", "NAND2", "Package_DIP:DIP-14_W7.62mm"),
+        c("R1", "33", "RES", ""),
+        c("J1", "PWR", "CONN", ""),
+    ];
+    let mut far: Vec<String> = Vec::new();
+    let mut vcc: Vec<String> = vec!["J1.1".into(), "U1.14".into(), "U1.1".into(), "U1.2".into()];
+    let mut gnd: Vec<String> = vec!["J1.2".into(), "U1.7".into()];
+    for (k, r) in [(2, "U2"), (3, "U3"), (4, "U4")] {
+        comps.push(c(r, "74LS00", "NAND2", "Package_DIP:DIP-14_W7.62mm"));
+        for p in [1, 2, 4, 5] {
+            far.push(format!("U{k}.{p}"));
+        }
+        vcc.push(format!("U{k}.14"));
+        gnd.push(format!("U{k}.7"));
+        for p in [9, 10, 12, 13] {
+            gnd.push(format!("U{k}.{p}"));
+        }
+    }
+    fn refs(v: &[String]) -> Vec<&str> {
+        v.iter().map(|s| s.as_str()).collect()
+    }
+    let (far_r, vcc_r, gnd_r) = (refs(&far), refs(&vcc), refs(&gnd));
+    let mut far_net = vec!["R1.2"];
+    far_net.extend(far_r.iter().copied());
+    let text = netlist(
+        &comps,
+        &[
+            ("NAND2", NAND2),
+            ("RES", "1:~:passive 2:~:passive"),
+            ("CONN", "1:P1:passive 2:P2:passive"),
+        ],
+        &[
+            ("+5V", &vcc_r),
+            ("GND", &gnd_r),
+            ("/OUT", &["U1.3", "R1.1"]),
+            ("/FAR", &far_net),
+        ],
+    );
+    let over = run(&text, "fanout-overrun", 0.0);
+    assert_eq!(over.len(), 1, "{over:?}");
+    assert!(over[0].message.contains("4.80 mA"), "{}", over[0].message);
+    assert!(
+        over[0]
+            .message
+            .contains("12 inputs x 0.40 mA (12 of them through a series element)"),
+        "{}",
+        over[0].message
+    );
+    assert!(run(&text, "floating-ttl-input", 0.0).is_empty());
+}
+
+// ---------------------------------------------------------------------------------------------
+// one-pin pull parts
+
+#[test]
+fn a_one_pin_pull_up_part_holds_its_net_and_drives_nothing() {
+    // simulation libraries draw a pull-up as one pin (typed three-state here): it holds a CMOS
+    // input that nothing else drives, and it is not a three-state driver of a floating bus
+    let board = |pull: bool| {
+        let mut comps = vec![
+            c("U1", "74HC00", "NAND2", "Package_DIP:DIP-14_W7.62mm"),
+            c("J1", "PWR", "CONN", ""),
+        ];
+        let mut en = vec!["U1.1"];
+        if pull {
+            comps.push(c("PU1", "pull_up", "PULL", ""));
+            en.push("PU1.1");
+        }
+        netlist(
+            &comps,
+            &[
+                ("NAND2", NAND2),
+                ("PULL", "1:~:tri_state"),
+                ("CONN", "1:P1:passive 2:P2:passive"),
+            ],
+            &[
+                ("+5V", &["J1.1", "U1.14", "U1.2"]),
+                ("GND", &["J1.2", "U1.7"]),
+                ("/EN", &en),
+            ],
+        )
+    };
+    let floats = |t: &str| {
+        run(t, "floating-cmos-input", 0.0)
+            .into_iter()
+            .filter(|d| d.net.as_deref() == Some("/EN") || d.pins.iter().any(|p| p == "U1.1"))
+            .count()
+    };
+    assert_eq!(floats(&board(false)), 1);
+    assert_eq!(floats(&board(true)), 0);
+    assert!(run(&board(true), "floating-bus", 0.0).is_empty());
+}

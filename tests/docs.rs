@@ -188,3 +188,35 @@ fn readme_lists_every_reference_the_tests_compare_against() {
         }
     }
 }
+
+#[test]
+fn the_severity_policy_is_the_same_in_explain_and_the_guide() {
+    let guide = std::fs::read_to_string(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("DEVELOPERS.md"),
+    )
+    .unwrap();
+    let policy = netmargin::report::explain::SEVERITY_POLICY;
+    // the same three rules and the same limit on symbols, in both places
+    for phrase in [
+        "follows from known data",
+        "in at least one state the circuit reaches",
+        "rests on\nan assumption",
+        "cannot tell",
+        "A symbol's pin types alone\nnever make an error",
+    ] {
+        let flat = |s: &str| s.split_whitespace().collect::<Vec<_>>().join(" ");
+        assert!(
+            flat(policy).contains(&flat(phrase)),
+            "explain lacks {phrase:?}"
+        );
+        assert!(
+            flat(&guide).contains(&flat(phrase)),
+            "the guide lacks {phrase:?}"
+        );
+    }
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .arg("explain")
+        .output()
+        .unwrap();
+    assert!(String::from_utf8_lossy(&out.stdout).starts_with("severity: an error when"));
+}

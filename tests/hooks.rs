@@ -425,3 +425,73 @@ fn pre_commit_framework_runs_the_manifest() {
     assert!(text(&o).contains("Passed"), "{}", text(&o));
     assert_eq!(commits(&repo, &home), 1);
 }
+
+/// The plain git hook on a schematic project: a staged sheet is checked through its
+/// project's root sheet, with the other sheets taken from the index, and the finding points
+/// into the sub-sheet where the gate is drawn.
+#[test]
+fn plain_git_hook_checks_a_staged_sheet_through_its_project() {
+    let s = Scratch::new("sheets");
+    let home = s.0.join("home");
+    std::fs::create_dir_all(&home).unwrap();
+    let repo = s.0.join("project");
+    new_repo(&repo, &home);
+    let hook = repo.join(".git/hooks/pre-commit");
+    std::fs::copy(root().join("ci/git-hooks/pre-commit"), &hook).expect("install the hook");
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        std::fs::set_permissions(&hook, std::fs::Permissions::from_mode(0o755)).unwrap();
+    }
+    std::fs::create_dir_all(repo.join("hardware")).unwrap();
+    for f in ["panel.kicad_sch", "logic.kicad_sch"] {
+        std::fs::copy(
+            root().join("fixtures/schematics/cmos").join(f),
+            repo.join("hardware").join(f),
+        )
+        .unwrap();
+    }
+    let commit = |msg: &str| {
+        isolated("git", &repo, &home)
+            .env("NETMARGIN", bin())
+            .args(["commit", "-q", "-m", msg])
+            .output()
+            .expect("git commit runs")
+    };
+    // the root sheet was committed before the hook was in place; only the sub-sheet is
+    // staged now: the project is still checked whole
+    ok(
+        &git(&repo, &home, &["add", "hardware/panel.kicad_sch"]),
+        "git add",
+    );
+    ok(
+        &git(
+            &repo,
+            &home,
+            &[
+                "-c",
+                "core.hooksPath=/dev/null",
+                "commit",
+                "-q",
+                "-m",
+                "root",
+            ],
+        ),
+        "the first commit",
+    );
+    ok(
+        &git(&repo, &home, &["add", "hardware/logic.kicad_sch"]),
+        "git add",
+    );
+    let o = commit("add the logic sheet");
+    let out = text(&o);
+    assert!(!o.status.success(), "the commit went in:\n{out}");
+    assert!(
+        out.contains("hardware/logic.kicad_sch:14:9: error: gate B of U1 (74HC00) is unused"),
+        "{out}"
+    );
+    assert!(out.contains("[floating-cmos-input]"), "{out}");
+    // checked once, through the root: each finding once
+    assert_eq!(out.matches("gate B of U1").count(), 1, "{out}");
+    assert_eq!(commits(&repo, &home), 1);
+}

@@ -435,11 +435,8 @@ fn rejects_non_logic_and_unknown_families() {
         // their thresholds)
         "74HCU04",
         "74LCX112SJX",
-        "74VHC00",
-        "74ABT244",
-        "74C00",
-        "74LVT245",
-        "74FCT244",
+        // Motorola's bipolar MC40xx parts are not 4000-series CMOS
+        "MC4044P",
         // single-gate parts (a one-digit count before the letter) are not read
         "74AHC1G00",
         "74LVC1G14",
@@ -677,7 +674,9 @@ const FAMILIES: &[&str] = &[
 const SUFFIXES_74: &[&str] = &[
     "", "N", "AN", "PC", "D", "PW", "NE4", "J", "-N", "DR", "A", "APWR",
 ];
-const PREFIXES_4000: &[&str] = &["", "CD", "MC", "HEF", "HCF", "HCC", "TC", "HD", "BU"];
+// "MC" is left out: Motorola numbers its CMOS MC14xxx (below), and an MC40xx is another part (the
+// bipolar MC4044 phase detector)
+const PREFIXES_4000: &[&str] = &["", "CD", "HEF", "HCF", "HCC", "TC", "HD", "BU"];
 const SUFFIXES_4000: &[&str] = &["", "E", "P", "CP", "CN", "T", "M", "F3A", "PWR", "-E"];
 
 fn pick(list: &'static [&'static str]) -> impl Strategy<Value = &'static str> {

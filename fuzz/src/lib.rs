@@ -432,3 +432,32 @@ impl GenNetlist {
         s
     }
 }
+
+/// The schematic reader on one sheet's bytes: load, sniff, parse, connect, name, model;
+/// every diagnostic rendered, every span inside the text.
+pub fn run_sheet(bytes: &[u8]) {
+    let source = match netmargin::input::load("fuzz.kicad_sch", bytes.to_vec()) {
+        Ok(s) => s,
+        Err(e) => {
+            check_diag(&e.diag, &e.source);
+            return;
+        }
+    };
+    match netmargin::schematic::load::single("fuzz.kicad_sch", source.text().to_string()) {
+        Err(f) => {
+            if let Some(src) = &f.source {
+                check_diag(&f.diag, src);
+            }
+        }
+        Ok(files) => match netmargin::schematic::read(&files) {
+            Ok(nl) => {
+                for d in &nl.diagnostics {
+                    check_diag(d, &files.source);
+                }
+                let s = nl.summary();
+                assert!(s.pins_on_no_net <= s.pins);
+            }
+            Err(d) => check_diag(&d, &files.source),
+        },
+    }
+}

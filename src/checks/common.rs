@@ -57,6 +57,10 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             if !matches!(cx.roles[ci][pi], PinRole::Input | PinRole::SchmittInput) {
                 continue;
             }
+            // a control input that must be held at one level is `open-control-input`'s
+            if super::open_control_input::idle_level(ctx, ci, pi).is_some() {
+                continue;
+            }
             let why = match p.connection {
                 Connection::Absent => Float::Absent,
                 Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Float::Alone(net),

@@ -82,17 +82,38 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     .windows(2)
                     .all(|w| (w[0].amps - w[1].amps).abs() < 1e-12)
                     && n_inputs == sb.items.len();
+                let through = sb
+                    .items
+                    .iter()
+                    .filter(|i| i.what.contains(", through "))
+                    .count();
+                let through_note = if through > 0 {
+                    format!(" ({through} of them through a series element)")
+                } else {
+                    String::new()
+                };
                 let detail = if same && !sb.items.is_empty() {
-                    format!("{} inputs x {}", n_inputs, format_amps(sb.items[0].amps))
+                    format!(
+                        "{} inputs x {}{through_note}",
+                        n_inputs,
+                        format_amps(sb.items[0].amps)
+                    )
                 } else {
                     let other = sb.items.len() - n_inputs;
-                    format!(
-                        "{} input{} and {} other item{}",
+                    let inputs = format!(
+                        "{} input{}{through_note}",
                         n_inputs,
                         if n_inputs == 1 { "" } else { "s" },
-                        other,
-                        if other == 1 { "" } else { "s" }
-                    )
+                    );
+                    if other == 0 {
+                        inputs
+                    } else {
+                        format!(
+                            "{inputs} and {} other item{}",
+                            other,
+                            if other == 1 { "" } else { "s" }
+                        )
+                    }
                 };
                 let level = match sb.level {
                     Some(v) => format!("; the guaranteed {} level there is {v:.2} V", state),

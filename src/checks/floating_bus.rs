@@ -95,6 +95,7 @@ fn floating_bus(cx: &Circuit<'_, '_>, net: usize) -> bool {
         && !nm.drivers.is_empty()
         && nm.pulls.is_empty()
         && nm.unreadable.is_empty()
+        && nm.held.is_empty()
         && nm.unknown.is_empty()
         && nm
             .drivers

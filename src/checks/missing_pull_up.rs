@@ -43,6 +43,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         if oc.is_empty() || oc.len() < nm.drivers.len() {
             continue; // a push-pull driver on the net sets the high level
         }
+        // wired-OR outputs: name them all, the first by reference (not by file order)
+        let mut oc = oc;
+        oc.sort_by_key(|d| {
+            let c = &cx.nl.components[d.at.comp];
+            (
+                c.reference.as_str().to_string(),
+                c.pins[d.at.pin].num.to_string(),
+            )
+        });
         let d = oc[0];
         let loads: Vec<String> = nm
             .loads
@@ -121,7 +130,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         diag = diag
             .at(cx.pin_span(d.at), "open-collector output, no pull-up")
             .on_net(cx.net_name(net))
-            .with_pins(std::iter::once(cx.pin_name(d.at)).chain(loads));
+            .with_pins(oc.iter().map(|o| cx.pin_name(o.at)).chain(loads));
         // the primary label goes first
         diag.labels.rotate_right(1);
         out.push(diag);

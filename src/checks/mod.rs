@@ -73,6 +73,7 @@ mod inferred_rail;
 mod input_overvoltage;
 mod level_mismatch;
 mod missing_pull_up;
+mod open_control_input;
 mod output_contention;
 mod package_mismatch;
 mod pin_role_mismatch;

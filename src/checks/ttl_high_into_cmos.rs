@@ -1,6 +1,10 @@
-//! Finds a TTL-output driver (bipolar, or NMOS with TTL-compatible outputs) whose guaranteed
-//! high level is below a CMOS load's VIH: the classic 2.4-2.7 V TTL high into a 74HC or
-//! 4000-series input that needs 3.5 V at 5 V.
+//! Finds a TTL-output driver (bipolar, or NMOS with TTL-compatible outputs: a processor, a
+//! peripheral, an NMOS RAM or EPROM; a 555 timer; a BiCMOS bus driver) whose guaranteed high
+//! level is below a CMOS load's VIH: the classic 2.4-2.7 V TTL high into a 74HC or 4000-series
+//! input that needs 3.5 V at 5 V. A CMOS part whose data sheet guarantees its high only at TTL
+//! levels at a rated current (a CMOS static RAM: 2.4 V at -1 mA) is reported as a warning that
+//! names this: at a light CMOS load its output rises towards the supply, but no figure says how
+//! far.
 //!
 //! Why it matters: the load sees a level inside its undefined band. It usually works on
 //! the bench (typical TTL highs are near 3.4 V), and fails with a weak part, a hot day or a
@@ -21,9 +25,16 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 };
 
 use super::Context;
-use crate::diag::Diag;
+use crate::classify::family::HighOutput;
+use crate::diag::{Diag, Severity};
 use crate::values::{format_ohms, format_volts};
 
+/// True when the driver is a CMOS output guaranteed only at TTL levels at its rated current.
+fn rated_at_ttl(ctx: &Context<'_, '_, '_>, comp: usize) -> bool {
+    ctx.cx
+        .family(comp)
+        .is_some_and(|f| f.high_output == HighOutput::RatedAtTtl)
+}
 /// The TTL-threshold variant of a CMOS family, if there is one: 74HC -> 74HCT.
 pub(super) fn ttl_threshold_variant(family: &str) -> Option<&'static str> {
     match family {
@@ -126,17 +137,31 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     }
                 }
             }
-            let diag = Diag::error(
+            let rated = rated_at_ttl(ctx, d.at.comp);
+            let diag = Diag::new(
                 "ttl-high-into-cmos",
+                if rated {
+                    Severity::Warning
+                } else {
+                    Severity::Error
+                },
                 format!(
-                    "{} needs {} for a high at {}{}; {} guarantees {}: short by {}",
+                    "{} needs {} for a high at {}{}; {} guarantees {}: short by {}{}",
                     cx.describe(l.at),
                     format_volts(m.vih),
                     cx.supply_text(l.at.comp),
                     super::common::vih_supply_note(m),
                     cx.describe(d.at),
                     format_volts(high),
-                    format_volts(-hm)
+                    format_volts(-hm),
+                    if rated {
+                        format!(
+                            " (assuming the {} family's high is no better at this light load than its guarantee at its rated current: its data sheet gives no light-load figure)",
+                            cx.family(d.at.comp).map_or("driver's", |f| f.id.as_str())
+                        )
+                    } else {
+                        String::new()
+                    }
                 ),
             )
             .at(cx.pin_span(l.at), format!("needs {}", format_volts(m.vih)))

@@ -166,6 +166,46 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 amps: a,
             });
         }
+        // inputs on nets this one feeds through series resistors, beads or inductors
+        for &(m, link) in &nm.feeds {
+            for l in &cx.nets[m].loads {
+                if let Some(ll) = &l.levels {
+                    items.push(Item {
+                        what: format!(
+                            "{} input low current (IIL), through {}",
+                            cx.pin_name(l.at),
+                            cx.nl.components[link.part].reference
+                        ),
+                        at: Some(l.at),
+                        amps: ll.iil_max.abs(),
+                    });
+                }
+            }
+        }
+        // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
+        // state, (V_rail - VF - VOL) / R each
+        for p in nm.sink_paths.iter().filter(|p| p.ohms > 0.0) {
+            let a = ((p.rail_volts - p.vf - vol_rated) / p.ohms).max(0.0);
+            let names: Vec<&str> = p
+                .resistors
+                .iter()
+                .chain(&p.leds)
+                .map(|&c| cx.nl.components[c].reference.as_str())
+                .collect();
+            items.push(Item {
+                what: format!(
+                    "{} from {} ({:.2} V - {:.2} V VF - {:.2} V) / {}",
+                    names.join(" and "),
+                    cx.net_name(p.rail_net),
+                    p.rail_volts,
+                    p.vf,
+                    vol_rated,
+                    format_ohms(p.ohms)
+                ),
+                at: Some(p.at),
+                amps: a,
+            });
+        }
         for (oi, o) in nm.drivers.iter().enumerate() {
             if oi == di {
                 continue;
@@ -212,6 +252,22 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     at: Some(l.at),
                     amps: ll.iih_max.abs(),
                 });
+            }
+        }
+        for &(m, link) in &nm.feeds {
+            for l in &cx.nets[m].loads {
+                if let Some(ll) = &l.levels {
+                    load_high += ll.iih_max.abs();
+                    items.push(Item {
+                        what: format!(
+                            "{} input high current (IIH), through {}",
+                            cx.pin_name(l.at),
+                            cx.nl.components[link.part].reference
+                        ),
+                        at: Some(l.at),
+                        amps: ll.iih_max.abs(),
+                    });
+                }
             }
         }
         for (oi, o) in nm.drivers.iter().enumerate() {

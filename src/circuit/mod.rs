@@ -166,6 +166,9 @@ pub struct LedPath {
     pub ohms: f64,
     /// Sum of the LEDs' assumed forward voltages.
     pub vf: f64,
+    /// The rail the path ends on, and its voltage (0 for ground).
+    pub rail_net: usize,
+    pub rail_volts: f64,
 }
 
 /// Everything on one net.
@@ -184,6 +187,9 @@ pub struct NetModel {
     /// Capacitors, diodes and other passives not counted above.
     pub passives: Vec<PinRef>,
     pub led_paths: Vec<LedPath>,
+    /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
+    /// their current in its low state.
+    pub sink_paths: Vec<LedPath>,
     /// Supply and ground pins on this net.
     pub power_pins: Vec<PinRef>,
     /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
@@ -202,6 +208,9 @@ pub struct NetModel {
     /// Switch elements whose opening leaves this net with nothing to set its level (the
     /// net is held only through them): it floats when all of them are open.
     pub floats_open: Vec<SwitchLink>,
+    /// Nets whose only source is this net, through a series element (directly or through
+    /// further series elements): their loads are this net's drivers' loads too.
+    pub feeds: Vec<(usize, SeriesLink)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -288,7 +297,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
                 f.technology,
                 crate::classify::family::Technology::Bipolar
                     | crate::classify::family::Technology::Nmos
-            )
+            ) || f.high_output != crate::classify::family::HighOutput::Rows
         })
     }
 
@@ -575,7 +584,12 @@ pub fn build<'n, 'a>(
                     continue;
                 }
                 // a small part whose symbol types a pin as a logic input or output (a probe,
-                // a stimulus, a module's pin) takes part by that type, as a hint
+                // a stimulus, a module's pin) takes part by that type, as a hint; a one-pin
+                // pull part holds its net (below) and drives nothing
+                PartKind::Other if is_pull_part(c) => {
+                    nm.passives.push(at);
+                    continue;
+                }
                 PartKind::Other
                     if matches!(
                         role,
@@ -702,19 +716,7 @@ pub fn build<'n, 'a>(
     }
     // one-pin pull-up and pull-down parts (simulation and sketch libraries)
     for (ci, c) in nl.components.iter().enumerate() {
-        if c.pins.len() != 1 {
-            continue;
-        }
-        let says = |t: &str| {
-            let t = t.to_ascii_lowercase().replace(['_', '-', ' '], "");
-            t.contains("pullup") || t.contains("pulldown")
-        };
-        let symbol = c
-            .libsource
-            .as_ref()
-            .and_then(|l| l.part.as_ref())
-            .map_or("", |p| p.as_str());
-        if says(c.value_str()) || says(symbol) {
+        if is_pull_part(c) {
             if let Some(net) = c.pins[0].connection.net() {
                 nets[net].held.push(ci);
             }
@@ -780,18 +782,26 @@ pub fn build<'n, 'a>(
             continue;
         }
         let mut found = Vec::new();
+        let mut sinks = Vec::new();
         for &start in &nets[net].passives {
             let kind = cl.parts[start.comp].kind;
             if !matches!(kind, PartKind::Resistor | PartKind::Led) {
                 continue;
             }
             if let Some(path) = follow_to_ground(nl, cl, &rail, start, opts.led_vf) {
-                if !path.leds.is_empty() {
+                if path.leds.is_empty() {
+                    continue;
+                }
+                if path.rail_volts == 0.0 {
                     found.push(path);
+                } else if path.rail_volts > 0.0 && leds_point_to(nl, &path, start, true) {
+                    // an LED, lamp or relay from the supply: the output sinks it when low
+                    sinks.push(path);
                 }
             }
         }
         nets[net].led_paths = found;
+        nets[net].sink_paths = sinks;
     }
     rail_notes.retain(|n| n.by_usage || n.volts.is_some());
 
@@ -805,6 +815,23 @@ pub fn build<'n, 'a>(
         roles,
         rail_notes,
     }
+}
+
+/// A one-pin part that stands for a pull-up or pull-down (`PULLUP`, `rpullup`, `pull_down`).
+fn is_pull_part(c: &crate::netlist::Component<'_>) -> bool {
+    if c.pins.len() != 1 {
+        return false;
+    }
+    let says = |t: &str| {
+        let t = t.to_ascii_lowercase().replace(['_', '-', ' '], "");
+        t.contains("pullup") || t.contains("pulldown")
+    };
+    let symbol = c
+        .libsource
+        .as_ref()
+        .and_then(|l| l.part.as_ref())
+        .map_or("", |p| p.as_str());
+    says(c.value_str()) || says(symbol)
 }
 
 /// The elements of a resistor or network as pairs of (pin, net): a two-pin resistor; a
@@ -946,6 +973,25 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
         if !changed {
             break;
+        }
+    }
+    // the nets each net feeds through series elements, followed to the end of the chain
+    let direct: Vec<Option<(usize, SeriesLink)>> = nets
+        .iter()
+        .map(|nm| match nm.source {
+            Some(Source::Through(l)) => Some((l.other_net, l)),
+            _ => None,
+        })
+        .collect();
+    for (m, d) in direct.iter().enumerate() {
+        let Some((mut up, link)) = *d else { continue };
+        // walk up to the net with a source of its own; every net on the way feeds m
+        for _ in 0..nets.len() {
+            nets[up].feeds.push((m, link));
+            match direct[up] {
+                Some((next, _)) => up = next,
+                None => break,
+            }
         }
     }
     for i in 0..nets.len() {
@@ -1173,12 +1219,14 @@ fn follow_to_ground(
                 .iter()
                 .map(|&l| led_vf_by_colour(nl.components[l].value_str()).unwrap_or(vf))
                 .sum();
-            return r.ground.then_some(LedPath {
+            return Some(LedPath {
                 at: start,
                 leds,
                 resistors,
                 ohms,
                 vf,
+                rail_net: net,
+                rail_volts: r.v()?,
             });
         }
         // the next part: exactly one other passive on a two-node net
@@ -1199,6 +1247,34 @@ fn follow_to_ground(
         }
     }
     None
+}
+
+/// True unless a pin name says an LED on the path points the other way: for a path from a
+/// rail down to the net (`from_rail`), each LED's cathode (`K`) faces the net. LEDs whose pins
+/// are not named `A`/`K` are taken as drawn the right way round.
+fn leds_point_to(nl: &Netlist<'_>, path: &LedPath, start: PinRef, from_rail: bool) -> bool {
+    let _ = start;
+    path.leds.iter().all(|&l| {
+        let c = &nl.components[l];
+        let name = |i: usize| c.pins[i].name.as_deref().map(|n| n.to_ascii_uppercase());
+        // the pin nearer the net is the one whose net is not the rail side: follow the chain
+        // order is not kept, so judge by which pin is named K and which net it is on
+        let k = (0..c.pins.len()).find(|&i| name(i).as_deref() == Some("K"));
+        let a = (0..c.pins.len()).find(|&i| name(i).as_deref() == Some("A"));
+        match (k, a) {
+            (Some(k), Some(a)) => {
+                // the anode is on the rail side: its net is the rail or further from the net
+                let on_rail = c.pins[a].connection.net() == Some(path.rail_net);
+                let k_on_rail = c.pins[k].connection.net() == Some(path.rail_net);
+                if from_rail {
+                    !k_on_rail || on_rail
+                } else {
+                    !on_rail || k_on_rail
+                }
+            }
+            _ => true,
+        }
+    })
 }
 
 /// The forward voltage usually taken for an LED of the colour its value names (`GREEN`,

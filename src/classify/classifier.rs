@@ -312,6 +312,29 @@ fn kind_by_reference(c: &Component<'_>) -> PartKind {
     }
 }
 
+/// False when the entry names a function whose package has fewer pins than the component
+/// numbers (an `MK4116x8` symbol that draws eight DRAMs in one is not a 16-pin 4116).
+fn fits_package(c: &Component<'_>, e: &super::parts::PartEntry, rules: &Rules) -> bool {
+    let Some(f) = e
+        .function
+        .as_ref()
+        .and_then(|id| rules.functions.get(e.series, id))
+    else {
+        return true;
+    };
+    c.pins
+        .iter()
+        .filter_map(|p| p.num.trim().parse::<u32>().ok())
+        .all(|n| n <= f.package_pins)
+}
+
+/// A connector whose reference says it is a socket or header (`J`, `P`, `CN` ...): its value
+/// may name the part that plugs into it (`68000_SOCKET`), but it is not that part. `X` is left
+/// out: oscillator cans and crystals are often `X1`.
+fn socket_like(c: &Component<'_>, kind: PartKind) -> bool {
+    kind == PartKind::Connector && !ref_prefix(c.reference.as_str()).eq_ignore_ascii_case("X")
+}
+
 fn role_from_netlist(t: PinType, name: Option<&str>) -> (PinRole, RoleSource) {
     let r = match t {
         PinType::Input => PinRole::Input,
@@ -437,9 +460,10 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 }
             }
             value_match = m;
-        } else if let Some((i, e)) = (ic || c.pins.len() > 2)
+        } else if let Some((i, e)) = (ic || (c.pins.len() > 2 && !socket_like(c, kind)))
             .then(|| rules.parts.find(value))
             .flatten()
+            .filter(|(_, e)| fits_package(c, e, rules))
         {
             used_entries[i] = true;
             entry = Some(i);

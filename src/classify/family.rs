@@ -64,6 +64,22 @@ impl fmt::Display for Technology {
     }
 }
 
+/// How far a family's output high reaches, beyond its VOH rows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+pub enum HighOutput {
+    /// The rows say it all: a CMOS output published down to light loads, or a bipolar / NMOS
+    /// output (whose technology already says that its high stops near 3.5 V at 5 V).
+    #[default]
+    Rows,
+    /// A TTL-level output stage in a CMOS or BiCMOS part (an NMOS pull-up, as in 74ABT and
+    /// 74FCT-T): its high stays near TTL levels whatever the load.
+    Ttl,
+    /// A CMOS output whose data sheet guarantees the high only at TTL levels at its rated
+    /// current (a CMOS SRAM's 2.4 V at -1 mA): at a light CMOS load it rises towards the
+    /// supply, but no figure says how far.
+    RatedAtTtl,
+}
+
 /// A guaranteed level at a load current: `v` volts at `a` amperes (signed: out of the pin is
 /// negative).
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
@@ -221,6 +237,8 @@ pub struct Family {
     pub clamp_above_supply_v: Option<f64>,
     /// TTL only: the input's internal resistor.
     pub internal_input_pullup_ohm: Option<f64>,
+    /// How far the output high reaches beyond the published rows.
+    pub high_output: HighOutput,
     pub source: String,
     pub aliases: Vec<String>,
     /// Published points, sorted by supply; never empty for a family from a [`FamilyTable`].
@@ -551,6 +569,8 @@ struct RawFamily {
     input_max_v: Option<Spanned<f64>>,
     input_clamp_above_supply_v: Option<Spanned<f64>>,
     internal_input_pullup_ohm: Option<Spanned<f64>>,
+    #[serde(default)]
+    high_output: Option<Spanned<String>>,
     source: String,
     #[serde(default)]
     aliases: Vec<Spanned<String>>,
@@ -692,6 +712,20 @@ fn convert_family(
         }
         v
     });
+    let high_output = match rf.high_output.as_ref().map(|h| h.get_ref().as_str()) {
+        None | Some("rows") => HighOutput::Rows,
+        Some("ttl") => HighOutput::Ttl,
+        Some("rated-at-ttl") => HighOutput::RatedAtTtl,
+        Some(other) => {
+            let h = rf.high_output.as_ref().expect("matched Some above");
+            err(
+                errors,
+                h.span(),
+                format!("family {id}: unknown high_output `{other}`: expected \"rows\", \"ttl\" or \"rated-at-ttl\""),
+            );
+            HighOutput::Rows
+        }
+    };
     if rf.point.is_empty() {
         err(
             errors,
@@ -759,6 +793,7 @@ fn convert_family(
         input_max_v,
         clamp_above_supply_v,
         internal_input_pullup_ohm,
+        high_output,
         source: rf.source,
         aliases,
         points,

@@ -22,7 +22,8 @@
 //! A function may copy another's pins with `like = "00"` (then `pins` is omitted, and
 //! `package_pins` may be too; `like_series = "4000"` copies from the other series); `outputs = "open-collector"` then turns the copied push-pull
 //! outputs into that role (the 7403 is a 7400 with open-collector outputs). A three-state or
-//! bidirectional pin names its enables: `enable = [1], enable_active = "low"`. `unit = "common"`
+//! bidirectional pin names its enables: `enable = [1], enable_active = "low"`. A control input
+//! that must be held (a processor's `~WAIT`, `~INT`, `~RESET`) says where: `idle = "high"`. `unit = "common"`
 //! (or no unit) marks a pin shared by the whole device.
 
 use std::collections::{HashMap, HashSet};
@@ -79,6 +80,10 @@ pub struct PinDef {
     pub enable: Vec<String>,
     /// True when the enables turn the output on when low.
     pub enable_active_low: bool,
+    /// For a control input that must be held (a processor's wait, interrupt, bus-request or
+    /// reset input): the level at which the part runs undisturbed, `Some(true)` for high. An
+    /// unused one is tied there, never to the other rail.
+    pub idle_high: Option<bool>,
 }
 
 /// A family-dependent change of output kind: the open-collector outputs of the function
@@ -278,6 +283,7 @@ struct RawPin {
     unit: Option<String>,
     enable: Option<Vec<Spanned<u32>>>,
     enable_active: Option<Spanned<String>>,
+    idle: Option<Spanned<String>>,
 }
 
 #[derive(Deserialize)]
@@ -302,13 +308,14 @@ fn role_from(s: &Spanned<String>, errors: &mut Vec<RuleError>) -> Option<PinRole
         "analog" => PinRole::Analog,
         "passive" => PinRole::Passive,
         "no-connect" => PinRole::NoConnect,
+        "unknown" => PinRole::Unknown,
         other => {
             errors.push(RuleError::new(
                 Some(s.span()),
                 format!(
                     "unknown pin role `{other}`: expected one of input, schmitt-input, push-pull, \
                      open-collector, open-emitter, three-state, bidirectional, supply, ground, \
-                     pulled-up-io, analog, passive, no-connect"
+                     pulled-up-io, analog, passive, no-connect, unknown"
                 ),
             ));
             return None;
@@ -655,6 +662,28 @@ fn build_pins(
                 true
             }
         };
+        let idle_high = match rp.idle.as_ref().map(|s| s.get_ref().as_str()) {
+            None => None,
+            Some("high") => Some(true),
+            Some("low") => Some(false),
+            Some(other) => {
+                let s = rp.idle.as_ref().expect("matched Some above");
+                errors.push(RuleError::new(
+                    Some(s.span()),
+                    format!("unknown idle `{other}`: expected \"low\" or \"high\""),
+                ));
+                None
+            }
+        };
+        if idle_high.is_some() && !role.is_input() {
+            errors.push(RuleError::new(
+                Some(sp.span()),
+                format!(
+                    "function `{id}`: pin {n} ({}) is {role}; `idle` applies to inputs",
+                    rp.name
+                ),
+            ));
+        }
         out.push(PinDef {
             pin: n.to_string(),
             name: rp.name.clone(),
@@ -666,6 +695,7 @@ fn build_pins(
                 .map(|e| e.iter().map(|k| k.get_ref().to_string()).collect())
                 .unwrap_or_default(),
             enable_active_low,
+            idle_high,
         });
     }
     // Enables must name pins of this package.

@@ -50,7 +50,8 @@ pub struct ValueMatch {
     pub series: Series,
     /// Canonical family id as used in `rules/families.toml`: "74", "74L", "74H", "74S", "74LS",
     /// "74ALS", "74AS", "74F", "74HC", "74HCT", "74AC", "74ACT", "74AHC", "74AHCT", "74LV",
-    /// "74LV-A", "74LVC", "4000B", "4000UB".
+    /// "74LV-A", "74LVC", "74C", "74ABT", "74BCT", "74FCT", "74LVT", "74ALVC", "4000B", "4000UB"
+    /// (`VHC` and `VHCT` read as "74AHC" and "74AHCT").
     pub family: String,
     /// The function id: "00", "04", "245"; for 4000-series functions the full "4011", "40106",
     /// "4060".
@@ -70,7 +71,7 @@ pub struct ValueMatch {
 /// Maker prefixes accepted before a 54/74 number.
 pub const PREFIXES_74: &[&str] = &[
     "SN", "SNJ", "DM", "MC", "N", "S", "HD", "TC", "MM", "M", "CD", "IN", "UPD", "MB", "T", "KS",
-    "GD", "MN", "NTE",
+    "GD", "MN", "NTE", "IDT", "CY", "QS",
 ];
 
 /// Maker prefixes accepted before a 4000-series number.
@@ -96,6 +97,14 @@ const FAMILIES_74: &[(&str, &str)] = &[
     ("AHCT", "74AHCT"),
     ("LV", "74LV"),
     ("LVC", "74LVC"),
+    ("C", "74C"),
+    ("VHC", "74AHC"),
+    ("VHCT", "74AHCT"),
+    ("ABT", "74ABT"),
+    ("BCT", "74BCT"),
+    ("FCT", "74FCT"),
+    ("LVT", "74LVT"),
+    ("ALVC", "74ALVC"),
 ];
 
 /// Letters no maker's package code starts with that OCR takes for digits (O, I, L, Z, G);
@@ -156,7 +165,8 @@ pub struct Suggestion {
 /// Ranking: fewer changes first; then edits that leave the package suffix alone (a slip
 /// "fixed" by turning a digit into a package letter says little about the part); then by
 /// kind: confusions, doubled characters, swaps, dropped letters, dropped digits; then by
-/// position and text, so the order is stable. A candidate whose package suffix starts right
+/// position and text, so the order is stable. A bare number gets no digit put in front of it
+/// (`4164` is a DRAM, not a `54164` with its 5 lost). A candidate whose package suffix starts right
 /// after the number with O, I, L, Z or G (letters read for digits) is not offered. Only the best suggestion for each part (series,
 /// family, function) is kept, and none for the part the value already reads as.
 pub fn near_misses(
@@ -175,8 +185,14 @@ pub fn near_misses(
         && !chars.iter().any(|c| c.is_ascii_uppercase());
     let case = |c: char| if lower { c.to_ascii_lowercase() } else { c };
 
+    // a bare number (`4164`) is another maker's part number far more often than a 54/74 number
+    // with its first digit lost: no digit is put in front of it
+    let bare_number = chars.iter().all(|c| c.is_ascii_digit());
     let mut single: Vec<Candidate> = Vec::new();
     for edit in single_edits(&chars, &case) {
+        if bare_number && edit.kind == 4 && edit.at == 0 {
+            continue;
+        }
         if let Some(c) = evaluate(edit, known, own.as_ref()) {
             single.push(c);
         }
@@ -250,6 +266,11 @@ fn parse(token: &[char]) -> Option<Parsed> {
         }
         ['4', ..] | ['1', '4', ..] => {
             if !prefix.is_empty() && !PREFIXES_4000.contains(&prefix.as_str()) {
+                return None;
+            }
+            // Motorola numbers its CMOS MC14xxx; an MC40xx or MC45xx is another part (the MC4044
+            // phase-frequency detector and the MC4024 oscillator are bipolar)
+            if prefix == "MC" && rest.first() == Some(&'4') {
                 return None;
             }
             parse_4000(&up, pre_end, prefix)

@@ -14,9 +14,29 @@ use crate::config::{self, ConfigError};
 use crate::diag::{Diag, Severity};
 use crate::pipeline::{self, FileOutcome, ReadOptions};
 
-/// Expands folders into the `*.net` files below them (honouring `.gitignore`), keeping files
-/// and `-` as given. Sorted within each folder, so the order is stable.
+/// Expands folders into the `*.net` files and KiCad schematics (`*.kicad_sch`) below them
+/// (honouring `.gitignore`), keeping files and `-` as given. Sorted within each folder, so
+/// the order is stable. A schematic sheet stands for its project: it is replaced by the
+/// project's root sheet, and each root is checked once.
 pub fn expand_paths(paths: &[String]) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for p in expand_files(paths) {
+        let path = Path::new(&p);
+        let p = if path.extension().is_some_and(|x| x == "kicad_sch") && path.is_file() {
+            crate::schematic::load::project_root(path)
+                .display()
+                .to_string()
+        } else {
+            p
+        };
+        if p == "-" || !out.contains(&p) {
+            out.push(p);
+        }
+    }
+    out
+}
+
+fn expand_files(paths: &[String]) -> Vec<String> {
     let mut out = Vec::new();
     for p in paths {
         let path = Path::new(p);
@@ -28,7 +48,9 @@ pub fn expand_paths(paths: &[String]) -> Vec<String> {
                 .flatten()
                 .filter(|e| {
                     e.file_type().is_some_and(|t| t.is_file())
-                        && e.path().extension().is_some_and(|x| x == "net")
+                        && e.path()
+                            .extension()
+                            .is_some_and(|x| x == "net" || x == "kicad_sch")
                 })
                 .map(|e| e.path().display().to_string())
                 .collect();

@@ -5,11 +5,13 @@
 pub mod audit;
 pub mod baseline;
 pub mod check;
+pub mod compare;
 pub mod config;
 pub mod explain;
 pub mod families;
 pub mod init;
 pub mod net;
+pub mod nets;
 pub mod parts;
 pub mod shell;
 
@@ -41,6 +43,8 @@ pub fn run(cli: Cli) -> std::io::Result<u8> {
         Command::Net(args) => net::command(&args, &read, color),
         Command::Audit(args) => audit::command(&args, &read, color),
         Command::Families(args) => families::command(&args),
+        Command::Nets(args) => nets::command(&args, &read, color),
+        Command::Compare(args) => compare::command(&args, &read, color),
     }
 }
 

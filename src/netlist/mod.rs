@@ -232,6 +232,35 @@ pub struct Summary {
 }
 
 impl<'a> Netlist<'a> {
+    /// A netlist made by another reader (the schematic reader): its components, library
+    /// parts and nets, cross-referenced by the same linking pass the netlist readers end
+    /// with (duplicate references, pins on two nets and the like become diagnostics).
+    /// `text` is the text every span points into.
+    pub fn assemble(
+        text: &'a str,
+        components: Vec<Component<'a>>,
+        libparts: Vec<LibPart<'a>>,
+        nets: Vec<Net<'a>>,
+        mut diagnostics: Vec<Diag>,
+        span: Span,
+    ) -> Netlist<'a> {
+        let mut nl = Netlist {
+            version: None,
+            dialect: Dialect::E,
+            design: Design::default(),
+            components,
+            libparts,
+            nets,
+            diagnostics: Vec::new(),
+            span,
+            by_ref: HashMap::default(),
+            by_net_name: HashMap::default(),
+        };
+        stream::link(text, &mut nl, &mut diagnostics);
+        nl.diagnostics = diagnostics;
+        nl
+    }
+
     pub fn component(&self, reference: &str) -> Option<usize> {
         self.by_ref.get(reference).copied()
     }

@@ -944,7 +944,7 @@ impl<'a> Reader<'a> {
 
 /// Cross-references: refs, libparts, node components, pin lists and connections. Both
 /// readers ([`read`] and [`build`](super::build)) finish with it.
-pub(super) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
+pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     name_unnumbered_pins(nl);
     link_pins(text, nl, diags);
     super::ties::join_net_ties(nl);

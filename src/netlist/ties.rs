@@ -50,8 +50,28 @@ pub fn join_net_ties(nl: &mut Netlist<'_>) {
     if !any {
         return;
     }
-    // move the nodes; remember where each moved net's nodes start in its new net
+    // each group is kept under its best name, whatever the order of the file: a name the
+    // author gave before an automatic one, then the first in text order
     let n = nl.nets.len();
+    let auto = |name: &str| {
+        let l = name.to_ascii_lowercase();
+        name.is_empty() || l.starts_with("net-(") || l.starts_with("unconnected-")
+    };
+    let mut best: Vec<usize> = (0..n).collect();
+    for i in 0..n {
+        let r = find(&mut parent, i);
+        let (a, b) = (nl.nets[i].name.as_str(), nl.nets[best[r]].name.as_str());
+        if (auto(a), a) < (auto(b), b) {
+            best[r] = i;
+        }
+    }
+    for i in 0..n {
+        let r = find(&mut parent, i);
+        let b = best[r];
+        parent[i] = b;
+        parent[b] = b;
+    }
+    // move the nodes; remember where each moved net's nodes start in its new net
     let mut moved_to: Vec<Option<(usize, usize)>> = vec![None; n];
     for i in 0..n {
         let r = find(&mut parent, i);

@@ -5,7 +5,17 @@ use std::io::{self, Write};
 use crate::checks::REGISTRY;
 use crate::diag::INPUT_CODES;
 
+/// How netmargin chooses a finding's severity; `explain` prints it, and the contributor
+/// guide holds the same words.
+pub const SEVERITY_POLICY: &str = "\
+severity: an error when the problem follows from known data (classified parts, rails of known
+or stated voltage) in at least one state the circuit reaches; a warning when it rests on an
+assumption that the message names; info when netmargin cannot tell. A symbol's pin types alone
+never make an error: findings that rest on an unclassified part's symbol are warnings or info,
+whatever the check's usual severity below.";
+
 pub fn write_list(out: &mut dyn Write) -> io::Result<()> {
+    writeln!(out, "{SEVERITY_POLICY}\n")?;
     let w = REGISTRY.iter().map(|c| c.id.len()).max().unwrap_or(10);
     for c in REGISTRY {
         writeln!(

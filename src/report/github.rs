@@ -52,7 +52,7 @@ pub fn escape_property(s: &str) -> String {
 pub fn line(f: &FileOutcome, d: &Diag, opts: &ReportOptions) -> String {
     let mut props = vec![format!(
         "file={}",
-        escape_property(&display_path(&f.name, opts))
+        escape_property(&display_path(super::file_name(f, d), opts))
     )];
     if let Some(p) = primary_place(d, f.source.as_ref()) {
         props.push(format!("line={}", p.line));

@@ -147,6 +147,15 @@ pub fn related_labels(d: &Diag) -> impl Iterator<Item = &Label> {
         .filter(move |l| Some(*l as *const Label) != primary)
 }
 
+/// The file a diagnostic points into: for a schematic project (a source made of several
+/// sheet files) the sheet where its primary span lies, otherwise the input's own name.
+pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: &Diag) -> &'a str {
+    match (f.source.as_ref(), primary_label(d)) {
+        (Some(src), Some(l)) if !src.files().is_empty() => src.file_at(l.span.start as usize),
+        _ => &f.name,
+    }
+}
+
 /// The place of the diagnostic's primary span, when it has one and the text is known.
 pub fn primary_place(d: &Diag, source: Option<&SourceFile>) -> Option<Place> {
     Some(Place::of(source?, primary_label(d)?.span))

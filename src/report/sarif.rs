@@ -374,13 +374,20 @@ pub fn to_string(opts: &ReportOptions, files: &[FileOutcome]) -> String {
         .collect();
     let mut results = Vec::new();
     for f in files {
-        let art = artifact(&f.name, opts);
         let src = f.source.as_ref();
+        // a schematic's findings point into the sheet file where the item is drawn
+        let art_of = |d: &Diag| artifact(super::file_name(f, d), opts);
         if let Some(d) = &f.fatal {
-            results.push(result(d, src, &art, &index, fatal_fingerprint(d, src)));
+            results.push(result(
+                d,
+                src,
+                &art_of(d),
+                &index,
+                fatal_fingerprint(d, src),
+            ));
         }
         for (d, fp) in f.diags.iter().zip(fingerprints(f)) {
-            results.push(result(d, src, &art, &index, fp));
+            results.push(result(d, src, &art_of(d), &index, fp));
         }
     }
     let homepage = [env!("CARGO_PKG_HOMEPAGE"), env!("CARGO_PKG_REPOSITORY")]

@@ -14,7 +14,7 @@ use crate::text::sanitize;
 
 /// The line for one diagnostic (without the line end).
 pub fn line(f: &FileOutcome, d: &Diag) -> String {
-    let path = sanitize(&f.name);
+    let path = sanitize(super::file_name(f, d));
     let place = match primary_place(d, f.source.as_ref()) {
         Some(p) => format!(":{}:{}", p.line, p.column),
         None => String::new(),

@@ -272,7 +272,7 @@ pub fn sniff(text: &str) -> Option<Diag> {
         return Some(
             Diag::error("wrong-format", "this is a legacy KiCad schematic (`.sch`, \"EESchema Schematic File\"), not a netlist")
                 .at(span, "schematic header")
-                .with_help("open it in KiCad and export a netlist (File > Export > Netlist, KiCad format), then check the `.net` file"),
+                .with_help("export a netlist from it (File > Export > Netlist, KiCad format) and check the `.net` file, or open and save the project in KiCad 6 or newer and check its `.kicad_sch`"),
         );
     }
     let compact: String = first_line
@@ -340,7 +340,11 @@ pub fn sniff(text: &str) -> Option<Diag> {
         )
     };
     match head {
-        "kicad_sch" => wrong("a KiCad schematic (`.kicad_sch`)"),
+        "kicad_sch" => Some(
+            Diag::error("wrong-format", "this is a KiCad schematic (`.kicad_sch`) given where a netlist was read")
+                .at(hspan, "this file's kind")
+                .with_help("give netmargin the sheet's path: it reads KiCad 6-9 schematic projects from their files (standard input is read as one sheet)"),
+        ),
         "kicad_pcb" => wrong("a KiCad board layout (`.kicad_pcb`)"),
         "kicad_symbol_lib" => wrong("a KiCad symbol library (`.kicad_sym`)"),
         "footprint" | "module" => wrong("a KiCad footprint (`.kicad_mod`)"),

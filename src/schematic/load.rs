@@ -1,0 +1,444 @@
+//! Loading a project from its root sheet: every sheet file the hierarchy names is read once
+//! (a file used by several sheet symbols is one file with several uses), the texts are
+//! joined into one [`SourceFile`] made of several files, and the uses of sheets are laid
+//! out as a tree of sheet paths. Missing or unreadable sheets, recursion between sheets and
+//! malformed sheets are errors that point at the sheet symbol that names them.
+
+use std::path::{Path, PathBuf};
+
+use rustc_hash::FxHashMap as HashMap;
+
+use crate::diag::Diag;
+use crate::input;
+use crate::sexpr::{self, Tree};
+use crate::source::{SourceFile, Span};
+
+use super::sheet::{Reader, Sheet};
+
+/// Where a project failed: the diagnostic, and the text to show it in when there is one.
+#[derive(Debug)]
+pub struct Failed {
+    pub diag: Diag,
+    pub source: Option<SourceFile>,
+}
+
+impl Failed {
+    fn bare(diag: Diag) -> Box<Failed> {
+        Box::new(Failed { diag, source: None })
+    }
+}
+
+/// One use of a sheet in the hierarchy.
+#[derive(Debug, Clone)]
+pub struct Use {
+    /// Index of the sheet file in [`Project::sheets`].
+    pub file: usize,
+    /// The sheet symbols' uuids from the root down (empty for the root).
+    pub uuids: Vec<String>,
+    /// KiCad's readable sheet path: `/` for the root, `/name/` below it, `/a/b/` deeper.
+    pub path: String,
+    /// (parent use, index of the sheet symbol in the parent's sheet).
+    pub parent: Option<(usize, usize)>,
+}
+
+/// The files read, joined, before they are parsed into sheets.
+#[derive(Debug)]
+pub struct Files {
+    pub source: SourceFile,
+    /// The name of each file, in the order of `source.files()`.
+    pub names: Vec<String>,
+}
+
+/// A loaded project.
+pub struct Project<'a> {
+    pub sheets: Vec<Sheet<'a>>,
+    pub uses: Vec<Use>,
+    pub diags: Vec<Diag>,
+}
+
+/// Most sheets a project may use (a guard against hierarchies that multiply without
+/// recursing).
+pub const MAX_USES: usize = 100_000;
+
+fn read_text(name: &str, max_bytes: u64) -> Result<String, Box<Failed>> {
+    let opts = crate::pipeline::ReadOptions { max_bytes };
+    let bytes = crate::pipeline::read_bytes(name, &opts).map_err(Failed::bare)?;
+    match input::load(name, bytes) {
+        Ok(s) => Ok(s.text().to_string()),
+        Err(e) => Err(Box::new(Failed {
+            diag: e.diag,
+            source: Some(e.source),
+        })),
+    }
+}
+
+/// The first diagnostic of a file that is not a KiCad 6-9 sheet (a legacy sheet, another
+/// KiCad file, not an S-expression), or `None`.
+pub fn sniff_sheet(text: &str) -> Option<Diag> {
+    match sexpr::sniff(text) {
+        Some(d) if d.code == "wrong-format" && d.message.contains("(`.kicad_sch`)") => None,
+        Some(mut d) => {
+            if d.message.contains("legacy KiCad schematic") {
+                d.message = "this is a legacy KiCad schematic (`.sch`, \"EESchema Schematic File\", KiCad 5 or older), which netmargin does not read".into();
+                d.help = Some("export a netlist from it (File > Export > Netlist) and check the `.net` file, or open and save the project in KiCad 6 or newer".into());
+            }
+            Some(d)
+        }
+        None => {
+            let t = text.trim_start_matches('\u{feff}').trim_start();
+            if t.starts_with("(export") {
+                None
+            } else {
+                Some(
+                    Diag::error(
+                        "not-a-schematic",
+                        "this is not a KiCad schematic sheet: it does not begin with `(kicad_sch`",
+                    )
+                    .at(Span::new(0, t.len().min(1)), "expected `(kicad_sch`"),
+                )
+            }
+        }
+    }
+}
+
+/// The sub-sheet file names a sheet's text refers to, with the offsets of the names.
+fn sheet_files(tree: &Tree<'_>) -> Vec<(String, Span)> {
+    let mut out = Vec::new();
+    let root = tree.root();
+    for c in tree.children(root) {
+        if tree.head(c) != Some("sheet") {
+            continue;
+        }
+        for p in tree.children(c) {
+            if tree.head(p) != Some("property") {
+                continue;
+            }
+            let mut it = tree.children(p).skip(1);
+            let (Some(n), Some(v)) = (it.next(), it.next()) else {
+                continue;
+            };
+            let name = tree.text(n).unwrap_or_default();
+            if name == "Sheetfile" || name == "Sheet file" {
+                out.push((tree.text(v).unwrap_or_default().into_owned(), tree.span(v)));
+            }
+        }
+    }
+    out
+}
+
+/// Resolves a sheet file named in `parent` (a path relative to the project folder, or
+/// failing that to the parent's folder).
+fn resolve(root_dir: &Path, parent: &str, file: &str) -> PathBuf {
+    let f = Path::new(file);
+    if f.is_absolute() {
+        return f.to_path_buf();
+    }
+    let p = root_dir.join(f);
+    if p.exists() {
+        return p;
+    }
+    let beside = Path::new(parent).parent().map(|d| d.join(f));
+    match beside {
+        Some(b) if b.exists() => b,
+        _ => p,
+    }
+}
+
+fn display(p: &Path) -> String {
+    let s = p.to_string_lossy().into_owned();
+    s.strip_prefix("./").map(str::to_string).unwrap_or(s)
+}
+
+/// Reads the root sheet and every sheet file below it, once each.
+pub fn read_files(root: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
+    let root_dir = Path::new(root)
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_default();
+    let mut names: Vec<String> = vec![root.to_string()];
+    let mut texts: Vec<String> = Vec::new();
+    let mut by_path: HashMap<PathBuf, usize> = HashMap::default();
+    by_path.insert(PathBuf::from(root), 0);
+    // (file, referring file, span of the name in the referring file's own text)
+    let mut missing: Option<(String, usize, Span, Diag)> = None;
+    let mut i = 0;
+    while i < names.len() {
+        let text = match read_text(&names[i], max_bytes) {
+            Ok(t) => t,
+            Err(f) if i == 0 => return Err(f),
+            Err(f) => {
+                // pointed at from the referring sheet below
+                missing = Some((names[i].clone(), usize::MAX, Span::default(), f.diag));
+                texts.push(String::new());
+                break;
+            }
+        };
+        if let Some(d) = sniff_sheet(&text) {
+            let src = SourceFile::from_string(names[i].as_str(), text);
+            let mut d = d;
+            if i > 0 {
+                d.message = format!("sheet `{}`: {}", names[i], d.message);
+            }
+            return Err(Box::new(Failed {
+                diag: d,
+                source: Some(src),
+            }));
+        }
+        let refs = match sexpr::parse(&text) {
+            Ok(tree) => sheet_files(&tree),
+            Err(d) => {
+                let src = SourceFile::from_string(names[i].as_str(), text);
+                return Err(Box::new(Failed {
+                    diag: d,
+                    source: Some(src),
+                }));
+            }
+        };
+        for (f, span) in refs {
+            let p = resolve(&root_dir, &names[i], &f);
+            if !by_path.contains_key(&p) {
+                if !p.is_file() {
+                    let d = if p.exists() {
+                        Diag::error(
+                            "missing-sheet",
+                            format!("the sheet file `{}` is not a file", display(&p)),
+                        )
+                    } else {
+                        Diag::error(
+                            "missing-sheet",
+                            format!("the sheet file `{}` does not exist", display(&p)),
+                        )
+                    };
+                    missing = Some((display(&p), i, span, d));
+                    break;
+                }
+                by_path.insert(p.clone(), names.len());
+                names.push(display(&p));
+            }
+        }
+        texts.push(text);
+        if missing.is_some() {
+            break;
+        }
+        i += 1;
+    }
+    if let Some((file, from, span, d)) = missing {
+        // show it in the sheet that names it
+        let from = if from == usize::MAX {
+            // the file exists but could not be read: find who names it
+            texts
+                .iter()
+                .position(|t| t.contains(file.rsplit('/').next().unwrap_or(&file)))
+                .unwrap_or(0)
+        } else {
+            from
+        };
+        let parent = names[from].clone();
+        let text = std::mem::take(&mut texts[from]);
+        let span = if span == Span::default() {
+            let name = file.rsplit('/').next().unwrap_or(&file);
+            text.find(&format!("\"{name}\""))
+                .map_or(Span::default(), |p| Span::new(p, p + name.len() + 2))
+        } else {
+            span
+        };
+        let src = SourceFile::from_string(parent.as_str(), text);
+        let d = Diag {
+            message: format!("{} (named by sheet `{parent}`)", d.message),
+            ..d
+        }
+        .at(span, "this sheet symbol's file")
+        .with_help("restore the sheet file, or fix the sheet symbol's file name in KiCad");
+        return Err(Box::new(Failed {
+            diag: d,
+            source: Some(src),
+        }));
+    }
+    let source = SourceFile::from_files(root, names.iter().cloned().zip(texts).collect::<Vec<_>>());
+    Ok(Files { source, names })
+}
+
+/// Parses the joined files into sheets and lays out the uses of sheets from the root. A
+/// source of one file (not made by [`read_files`]) is a project of one sheet.
+pub fn project(source: &SourceFile) -> Result<Project<'_>, Diag> {
+    let text = source.text();
+    let one = [crate::source::FilePart {
+        name: source.name().into(),
+        start: 0,
+        len: text.len() as u32,
+    }];
+    let parts: &[crate::source::FilePart] = if source.files().is_empty() {
+        &one
+    } else {
+        source.files()
+    };
+    let names: Vec<&str> = parts.iter().map(|p| &*p.name).collect();
+    let mut sheets = Vec::with_capacity(parts.len());
+    let mut diags = Vec::new();
+    let mut index_of: HashMap<&str, usize> = HashMap::default();
+    for (i, part) in parts.iter().enumerate() {
+        let start = part.start as usize;
+        let own = &text[start..start + part.len as usize];
+        let tree = sexpr::parse(own).map_err(|d| shift(d, part.start))?;
+        let reader = Reader {
+            t: &tree,
+            base: part.start,
+        };
+        let sheet = reader.sheet(&mut diags)?;
+        sheets.push(sheet);
+        index_of.insert(names[i], i);
+    }
+    // uses, depth first from the root; recursion is an error at the sheet symbol
+    let root_dir = Path::new(names[0])
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_default();
+    let mut uses = vec![Use {
+        file: 0,
+        uuids: Vec::new(),
+        path: "/".to_string(),
+        parent: None,
+    }];
+    let mut stack = vec![0usize];
+    while let Some(u) = stack.pop() {
+        let file = uses[u].file;
+        for (si, s) in sheets[file].sheets.iter().enumerate() {
+            let p = display(&resolve(&root_dir, names[file], &s.file));
+            let Some(&child) = index_of.get(p.as_str()) else {
+                continue;
+            };
+            // recursion: the child file is this use or one of its ancestors
+            let mut a = Some(u);
+            while let Some(x) = a {
+                if uses[x].file == child {
+                    return Err(Diag::error(
+                        "recursive-sheet",
+                        format!(
+                            "sheet `{}` uses `{}`, which is already above it in the hierarchy: the sheets recurse",
+                            names[file], names[child]
+                        ),
+                    )
+                    .at(s.file_span, "this sheet symbol's file")
+                    .with_help("a sheet cannot contain itself, directly or through other sheets: point this sheet symbol at another file"));
+                }
+                a = uses[x].parent.map(|p| p.0);
+            }
+            if uses.len() >= MAX_USES {
+                return Err(Diag::error(
+                    "too-many-sheets",
+                    format!("the hierarchy uses more than {MAX_USES} sheets"),
+                )
+                .at(s.file_span, "here"));
+            }
+            let mut uuids = uses[u].uuids.clone();
+            uuids.push(s.uuid.to_string());
+            let path = format!("{}{}/", uses[u].path, s.name);
+            uses.push(Use {
+                file: child,
+                uuids,
+                path,
+                parent: Some((u, si)),
+            });
+            stack.push(uses.len() - 1);
+        }
+    }
+    // keep the uses in a stable order: by path of uuids as KiCad lists sheets
+    Ok(Project {
+        sheets,
+        uses,
+        diags,
+    })
+}
+
+fn shift(mut d: Diag, by: u32) -> Diag {
+    for l in &mut d.labels {
+        l.span.start += by;
+        l.span.end += by;
+    }
+    d
+}
+
+/// The sheet files a sheet's text names, found by a plain scan of its `Sheetfile`
+/// properties (cheap enough to run over every sheet in a folder).
+pub fn named_sheets(text: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    for key in ["(property \"Sheetfile\" \"", "(property \"Sheet file\" \""] {
+        let mut rest = text;
+        while let Some(p) = rest.find(key) {
+            rest = &rest[p + key.len()..];
+            if let Some(end) = rest.find('"') {
+                out.push(sexpr::unescape(&rest[..end]).into_owned());
+            }
+        }
+    }
+    out
+}
+
+/// The root sheet of the project `sheet` belongs to: the sheet in its folder that names it
+/// as a sub-sheet, followed upwards (a sheet no other sheet names is a root). Sheets are
+/// named relative to the project folder, so the search stays in the sheet's folder.
+pub fn project_root(sheet: &Path) -> PathBuf {
+    let dir = sheet.parent().map(Path::to_path_buf).unwrap_or_default();
+    let listing = if dir.as_os_str().is_empty() {
+        Path::new(".")
+    } else {
+        dir.as_path()
+    };
+    let Ok(entries) = std::fs::read_dir(listing) else {
+        return sheet.to_path_buf();
+    };
+    // child file name -> the sheet naming it
+    let mut parent_of: HashMap<String, String> = HashMap::default();
+    let mut names: Vec<String> = entries
+        .flatten()
+        .filter(|e| e.path().extension().is_some_and(|x| x == "kicad_sch"))
+        .filter_map(|e| e.file_name().to_str().map(str::to_string))
+        .collect();
+    names.sort();
+    for n in &names {
+        let Ok(text) = std::fs::read_to_string(listing.join(n)) else {
+            continue;
+        };
+        for child in named_sheets(&text) {
+            let child = child.replace('\\', "/");
+            if child != *n {
+                parent_of.entry(child).or_insert_with(|| n.clone());
+            }
+        }
+    }
+    let Some(mut cur) = sheet
+        .file_name()
+        .and_then(|f| f.to_str())
+        .map(str::to_string)
+    else {
+        return sheet.to_path_buf();
+    };
+    let mut seen = vec![cur.clone()];
+    while let Some(p) = parent_of.get(&cur) {
+        if seen.contains(p) {
+            break; // sheets that name each other: keep the one given
+        }
+        seen.push(p.clone());
+        cur = p.clone();
+    }
+    if seen.len() == 1 {
+        sheet.to_path_buf()
+    } else {
+        dir.join(cur)
+    }
+}
+
+/// A project of one sheet given as text (standard input, fuzzing, tests): its sub-sheets,
+/// which would be found beside its file, are left out.
+pub fn single(name: &str, text: String) -> Result<Files, Box<Failed>> {
+    if let Some(d) = sniff_sheet(&text) {
+        return Err(Box::new(Failed {
+            diag: d,
+            source: Some(SourceFile::from_string(name, text)),
+        }));
+    }
+    Ok(Files {
+        source: SourceFile::from_files(name, vec![(name.to_string(), text)]),
+        names: vec![name.to_string()],
+    })
+}

@@ -1,0 +1,832 @@
+//! The schematic reader: a KiCad 6-9 project read from its root sheet into the same
+//! [`Netlist`] model the netlist readers build, so every check runs on a schematic
+//! unchanged.
+//!
+//! * [`load`]: the root sheet and every sheet below it, read once each and joined into one
+//!   [`SourceFile`] made of several files (spans point into the sheet where an item is
+//!   drawn); the uses of sheets as a tree of sheet paths; missing sheets and recursion.
+//! * [`sheet`]: one sheet file's items from its syntax tree.
+//! * [`symbol`]: units, body styles and pin positions under rotation and mirroring.
+//! * [`connect`]: items joined at their connection points into pieces, per use of a sheet.
+//! * [`bus`]: bus names and their members.
+//! * [`names`]: how a net takes its name.
+//!
+//! This module joins the pieces across the project (labels by name on a sheet, global
+//! labels and power pins by name everywhere, sheet pins with the child's hierarchical
+//! labels, bus members through sheet pins and global bus labels), names each net, and
+//! builds the model. Like KiCad, nets that end with the same name are one net.
+
+pub mod bus;
+pub mod connect;
+pub mod load;
+pub mod names;
+pub mod sheet;
+pub mod symbol;
+
+use std::borrow::Cow;
+
+use rustc_hash::FxHashMap as HashMap;
+
+use crate::diag::Diag;
+use crate::netlist::{
+    Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, PinType,
+    SheetPath, Text,
+};
+use crate::source::{SourceFile, Span};
+
+use connect::{Dsu, PinAt};
+use load::{Failed, Files, Project};
+use names::{Candidate, Chosen, Strength};
+use sheet::{LabelKind, LibSym, Placed, Power};
+
+pub use load::sniff_sheet;
+
+/// Reads the root sheet `path` and every sheet below it (`max_bytes` per file).
+pub fn open(path: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
+    load::read_files(path, max_bytes)
+}
+
+/// True when `text` begins like a KiCad 6-9 sheet (`(kicad_sch`).
+pub fn is_sheet(text: &str) -> bool {
+    let t = text.trim_start_matches('\u{feff}').trim_start();
+    t.strip_prefix('(')
+        .map(|r| r.trim_start().starts_with("kicad_sch"))
+        .unwrap_or(false)
+}
+
+fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
+    Text { s: s.into(), span }
+}
+
+/// One placed symbol in one use of a sheet, with its instance data resolved.
+struct Placement<'p, 'a> {
+    placed: &'p Placed<'a>,
+    lib: &'p LibSym<'a>,
+    reference: Cow<'a, str>,
+    reference_span: Span,
+    unit: u32,
+    value: Option<(Cow<'a, str>, Span)>,
+    footprint: Option<(Cow<'a, str>, Span)>,
+    /// In the netlist: not a `#` reference (power symbols, flags) and on the board.
+    listed: bool,
+}
+
+/// The instance data of `placed` in `use_`: its reference, unit, value and footprint.
+fn instance<'p, 'a>(
+    project: &'p Project<'a>,
+    u: &load::Use,
+    placed: &'p Placed<'a>,
+) -> Option<&'p sheet::Instance<'a>> {
+    let root = &project.sheets[0];
+    let chain: String = u.uuids.iter().map(|x| format!("/{x}")).collect();
+    // KiCad 7 and later: in the symbol, by the path of sheets from the root's uuid
+    let full = format!("/{}{}", root.uuid, chain);
+    if let Some(i) = placed.instances.iter().find(|i| i.path == full) {
+        return Some(i);
+    }
+    // KiCad 6: in the root's list, by the sheet path and the symbol's uuid
+    let v6 = format!("{chain}/{}", placed.uuid);
+    if let Some(i) = root.symbol_instances.iter().find(|i| i.path == v6) {
+        return Some(i);
+    }
+    // another project's root: the same sheets below it
+    if !chain.is_empty() {
+        if let Some(i) = placed.instances.iter().find(|i| i.path.ends_with(&chain)) {
+            return Some(i);
+        }
+    } else if placed.instances.len() == 1 {
+        return placed.instances.first();
+    }
+    None
+}
+
+/// KiCad's automatic name for a net whose strongest item is a pin.
+fn pin_net_name(
+    modern: bool,
+    pl: &Placement<'_, '_>,
+    pin: &sheet::LibPin<'_>,
+    unconnected: bool,
+) -> String {
+    let head = if unconnected {
+        "unconnected-("
+    } else {
+        "Net-("
+    };
+    let shown = if pin.name == "~" { "" } else { &pin.name };
+    if !modern {
+        return format!("{head}{}-Pad{})", pl.reference, pin.num);
+    }
+    if !shown.is_empty() && shown != pin.num {
+        let reference = if pl.lib.unit_count > 1 {
+            format!("{}{}", pl.reference, symbol::unit_letters(pl.unit))
+        } else {
+            pl.reference.to_string()
+        };
+        let has_multiple = symbol::unit_pins(pl.lib, pl.unit, pl.placed.style)
+            .any(|p| p.name == pin.name && p.num != pin.num);
+        if unconnected || has_multiple {
+            format!("{head}{reference}-{shown}-Pad{})", pin.num)
+        } else {
+            format!("{head}{reference}-{shown})")
+        }
+    } else {
+        format!("{head}{}-Pad{})", pl.reference, pin.num)
+    }
+}
+
+/// The first KiCad 7 file version: automatic names carry pin names from it on.
+const KICAD7: u32 = 20_220_000;
+/// The file version of KiCad 7 releases: later versions name power nets by the symbol's
+/// value.
+const KICAD7_LAST: u32 = 20_230_121;
+
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+enum Key<'s> {
+    Local(usize, &'s str),
+    Global(&'s str),
+}
+
+fn join_key<'s>(dsu: &mut Dsu, keys: &mut HashMap<Key<'s>, usize>, k: Key<'s>, x: usize) {
+    let id = *keys.entry(k).or_insert_with(|| dsu.add());
+    dsu.union(id, x);
+}
+
+/// Reads the loaded files into the netlist model.
+pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
+    read_source(&files.source)
+}
+
+/// Reads a project's joined sheets (or a single sheet's text) into the netlist model.
+pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
+    let text = source.text();
+    let project = load::project(source)?;
+    let mut diags = project.diags.clone();
+    let modern = project.sheets[0].version >= KICAD7;
+
+    // placements and pieces, per use
+    let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
+    let mut pins_of: Vec<Vec<(usize, usize)>> = Vec::new(); // (placement, libpin) per placed pin
+    let mut pieces: Vec<Vec<connect::Piece>> = Vec::new();
+    for u in &project.uses {
+        let sh = &project.sheets[u.file];
+        let mut pls = Vec::with_capacity(sh.symbols.len());
+        let mut at: Vec<PinAt> = Vec::new();
+        let mut which: Vec<(usize, usize)> = Vec::new();
+        for placed in &sh.symbols {
+            let Some(lib) = sh.lib.get(&placed.lib_key) else {
+                return Err(Diag::error(
+                    "missing-library-symbol",
+                    format!(
+                        "the symbol `{}` is placed but its library symbol is not in the sheet's `lib_symbols`",
+                        placed.lib_key
+                    ),
+                )
+                .at(placed.lib_key_span, "no library symbol with this name in the file")
+                .with_help("open the sheet in KiCad and save it, or update the symbol from its library, so the file carries the symbol it uses"));
+            };
+            let inst = instance(&project, u, placed);
+            // a KiCad 6 instance lives in the root sheet: point at the symbol's own property
+            // in the sheet where it is drawn (for the reference, even when that sheet's text
+            // is another use's reference or `R?`)
+            let own_span = |name: &str, text: &str, or: Span| {
+                placed
+                    .prop(name)
+                    .filter(|p| p.value == text || name == "Reference")
+                    .map_or(or, |p| p.value_span)
+            };
+            let (reference, reference_span) = match inst {
+                Some(i) => (
+                    i.reference.clone(),
+                    own_span("Reference", &i.reference, i.reference_span),
+                ),
+                None => match placed.prop("Reference") {
+                    Some(p) => (p.value.clone(), p.value_span),
+                    None => (Cow::Borrowed("?"), placed.span),
+                },
+            };
+            let unit = inst.and_then(|i| i.unit).unwrap_or(placed.unit);
+            let pi = pls.len();
+            for (k, lp) in lib.pins.iter().enumerate() {
+                if (lp.unit == 0 || lp.unit == unit) && (lp.style == 0 || lp.style == placed.style)
+                {
+                    at.push(PinAt {
+                        symbol: pi,
+                        libpin: k,
+                        at: symbol::pin_point(placed, lp),
+                    });
+                    which.push((pi, k));
+                }
+            }
+            let listed = !reference.starts_with('#') && placed.on_board;
+            pls.push(Placement {
+                placed,
+                lib,
+                reference,
+                reference_span,
+                unit,
+                value: inst
+                    .and_then(|i| i.value.clone())
+                    .filter(|_| !modern)
+                    .map(|(v, s)| {
+                        let s = own_span("Value", &v, s);
+                        (v, s)
+                    }),
+                footprint: inst
+                    .and_then(|i| i.footprint.clone())
+                    .filter(|_| !modern)
+                    .map(|(v, s)| {
+                        let s = own_span("Footprint", &v, s);
+                        (v, s)
+                    }),
+                listed,
+            });
+        }
+        pieces.push(connect::pieces(sh, &at));
+        placements.push(pls);
+        pins_of.push(which);
+    }
+
+    // every piece of every use, then keys, in one union-find
+    let mut first: Vec<usize> = Vec::with_capacity(pieces.len());
+    let mut n = 0;
+    for p in &pieces {
+        first.push(n);
+        n += p.len();
+    }
+    let mut dsu = Dsu::new(n);
+    let mut keys: HashMap<Key<'_>, usize> = HashMap::default();
+    // power pin names: a power symbol's name is its value from KiCad 8 on, its pin's before
+    let value_names = project.sheets[0].version > KICAD7_LAST;
+    let power_name = |pl: &Placement<'_, '_>, lp: &sheet::LibPin<'_>| -> String {
+        if pl.lib.power != Power::No && value_names {
+            if let Some(v) = pl.placed.prop("Value") {
+                return v.value.to_string();
+            }
+        }
+        lp.name.to_string()
+    };
+    let is_power_pin = |pl: &Placement<'_, '_>, lp: &sheet::LibPin<'_>| {
+        lp.ptype == PinType::PowerIn && (lp.hidden || pl.lib.power != Power::No)
+    };
+    let mut power_names: Vec<Vec<String>> = Vec::new();
+    for (ui, u) in project.uses.iter().enumerate() {
+        let sh = &project.sheets[u.file];
+        let mut names_here = vec![String::new(); pins_of[ui].len()];
+        for (pi, p) in pieces[ui].iter().enumerate() {
+            let g = first[ui] + pi;
+            if p.is_bus {
+                continue;
+            }
+            for &l in &p.labels {
+                let lab = &sh.labels[l];
+                match lab.kind {
+                    LabelKind::Global => join_key(&mut dsu, &mut keys, Key::Global(&lab.text), g),
+                    _ => join_key(&mut dsu, &mut keys, Key::Local(ui, &lab.text), g),
+                }
+            }
+            for &k in &p.pins {
+                let (s, lpi) = pins_of[ui][k];
+                let pl = &placements[ui][s];
+                let lp = &pl.lib.pins[lpi];
+                if is_power_pin(pl, lp) {
+                    names_here[k] = power_name(pl, lp);
+                }
+            }
+        }
+        power_names.push(names_here);
+    }
+    for (ui, p) in pieces.iter().enumerate() {
+        for (pi, piece) in p.iter().enumerate() {
+            for &k in &piece.pins {
+                let name = &power_names[ui][k];
+                if !name.is_empty() {
+                    let (s, _) = pins_of[ui][k];
+                    let local = placements[ui][s].lib.power == Power::Local;
+                    let key = if local {
+                        Key::Local(ui, name.as_str())
+                    } else {
+                        Key::Global(name.as_str())
+                    };
+                    join_key(&mut dsu, &mut keys, key, first[ui] + pi);
+                }
+            }
+        }
+    }
+    // sheet pins with the child's hierarchical labels; bus members through bus pins
+    for (ci, u) in project.uses.iter().enumerate() {
+        let Some((pu, si)) = u.parent else { continue };
+        let parent_sheet = &project.sheets[project.uses[pu].file];
+        let child_sheet = &project.sheets[u.file];
+        let sub = &parent_sheet.sheets[si];
+        for (k, spin) in sub.pins.iter().enumerate() {
+            if bus::is_bus(&spin.text) {
+                continue;
+            }
+            let parents: Vec<usize> = pieces[pu]
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| p.sheet_pins.contains(&(si, k)))
+                .map(|(i, _)| first[pu] + i)
+                .collect();
+            for (i, p) in pieces[ci].iter().enumerate() {
+                if p.is_bus {
+                    continue;
+                }
+                let hit = p.labels.iter().any(|&l| {
+                    let lab = &child_sheet.labels[l];
+                    lab.kind == LabelKind::Hier && lab.text == spin.text
+                });
+                if hit {
+                    for &pp in &parents {
+                        dsu.union(pp, first[ci] + i);
+                    }
+                }
+            }
+        }
+    }
+    // bus member names joined through bus sheet pins: owned names, keyed after the loop
+    let mut member_links: Vec<(usize, usize, String)> = Vec::new();
+    for (ci, u) in project.uses.iter().enumerate() {
+        let Some((pu, si)) = u.parent else { continue };
+        let sub = &project.sheets[project.uses[pu].file].sheets[si];
+        for spin in &sub.pins {
+            if bus::is_bus(&spin.text) {
+                for m in bus::members(&spin.text) {
+                    member_links.push((pu, ci, m));
+                }
+            }
+        }
+    }
+    // nets on one bus that carry the name of the same member are one net; on a bus with a
+    // global label, that member's name is global
+    let mut global_members: Vec<(usize, String)> = Vec::new();
+    let mut bus_members: Vec<(usize, usize, String)> = Vec::new(); // (net piece, bus piece, member)
+    for (ui, u) in project.uses.iter().enumerate() {
+        let sh = &project.sheets[u.file];
+        for (bi, b) in pieces[ui].iter().enumerate() {
+            if !b.is_bus {
+                continue;
+            }
+            // the bus's names; the strongest (a global label, then a local label, a
+            // hierarchical label, a sheet pin; ties by text) names its members, the others'
+            // members are the same wires by position
+            let mut named: Vec<(Strength, &str)> = Vec::new();
+            for &l in &b.labels {
+                let lab = &sh.labels[l];
+                let st = match lab.kind {
+                    LabelKind::Global => Strength::Global,
+                    LabelKind::Local => Strength::LocalLabel,
+                    LabelKind::Hier => Strength::HierLabel,
+                };
+                named.push((st, &lab.text));
+            }
+            for &(s, k) in &b.sheet_pins {
+                named.push((Strength::SheetPin, &sh.sheets[s].pins[k].text));
+            }
+            let Some(&(dst, dtext)) = named
+                .iter()
+                .max_by(|a, b| a.0.cmp(&b.0).then_with(|| b.1.cmp(a.1)))
+            else {
+                continue;
+            };
+            let driver = bus::members(dtext);
+            let lists: Vec<Vec<String>> = named.iter().map(|n| bus::members(n.1)).collect();
+            for (ni, net) in pieces[ui].iter().enumerate() {
+                if !net.buses.contains(&bi) {
+                    continue;
+                }
+                for &nl in &net.labels {
+                    let t = &sh.labels[nl].text;
+                    let mut hit: Option<usize> = None;
+                    for m in &lists {
+                        if let Some(i) = m.iter().position(|x| x == t) {
+                            hit = Some(if m.len() == driver.len() {
+                                i
+                            } else {
+                                driver.iter().position(|x| x == t).unwrap_or(usize::MAX)
+                            });
+                            break;
+                        }
+                    }
+                    let Some(i) = hit.filter(|&i| i < driver.len()) else {
+                        continue;
+                    };
+                    bus_members.push((first[ui] + ni, first[ui] + bi, driver[i].clone()));
+                    if dst == Strength::Global {
+                        global_members.push((first[ui] + ni, driver[i].clone()));
+                    }
+                }
+            }
+        }
+    }
+    let mut bus_keys: HashMap<(usize, &str), usize> = HashMap::default();
+    for (net, b, m) in &bus_members {
+        let id = *bus_keys
+            .entry((*b, m.as_str()))
+            .or_insert_with(|| dsu.add());
+        dsu.union(id, *net);
+    }
+    let owned: Vec<String> = member_links
+        .iter()
+        .map(|m| m.2.clone())
+        .chain(global_members.iter().map(|g| g.1.clone()))
+        .collect();
+    let mut oi = 0;
+    for (pu, ci, _) in &member_links {
+        let m = owned[oi].as_str();
+        oi += 1;
+        let a = *keys.entry(Key::Local(*pu, m)).or_insert_with(|| dsu.add());
+        let b = *keys.entry(Key::Local(*ci, m)).or_insert_with(|| dsu.add());
+        dsu.union(a, b);
+    }
+    for (g, _) in &global_members {
+        let m = owned[oi].as_str();
+        oi += 1;
+        let a = *keys.entry(Key::Global(m)).or_insert_with(|| dsu.add());
+        dsu.union(a, *g);
+    }
+
+    // a local or hierarchical label named like a global label (or a member of a global bus
+    // label) on the same sheet joins that global net
+    let mut global_here: Vec<rustc_hash::FxHashSet<String>> = Vec::new();
+    for u in &project.uses {
+        let sh = &project.sheets[u.file];
+        let mut set = rustc_hash::FxHashSet::default();
+        for lab in sh.labels.iter().filter(|l| l.kind == LabelKind::Global) {
+            if bus::is_bus(&lab.text) {
+                set.extend(bus::members(&lab.text));
+            } else {
+                set.insert(lab.text.to_string());
+            }
+        }
+        global_here.push(set);
+    }
+    let mut named_global: Vec<(usize, &str)> = Vec::new(); // (piece, name)
+    for (ui, u) in project.uses.iter().enumerate() {
+        if global_here[ui].is_empty() {
+            continue;
+        }
+        let sh = &project.sheets[u.file];
+        for (pi, p) in pieces[ui].iter().enumerate() {
+            if p.is_bus {
+                continue;
+            }
+            for &l in &p.labels {
+                let lab = &sh.labels[l];
+                if lab.kind != LabelKind::Global && global_here[ui].contains(lab.text.as_ref()) {
+                    join_key(&mut dsu, &mut keys, Key::Global(&lab.text), first[ui] + pi);
+                    named_global.push((first[ui] + pi, &lab.text));
+                }
+            }
+        }
+    }
+    let mut global_member_of: HashMap<usize, Vec<&str>> = HashMap::default();
+    for &(piece, name) in &named_global {
+        global_member_of.entry(piece).or_default().push(name);
+    }
+    for (net, m) in &global_members {
+        global_member_of.entry(*net).or_default().push(m.as_str());
+    }
+    // candidates per (group, use)
+    let depth = |ui: usize| project.uses[ui].uuids.len();
+    let mut pools: HashMap<(usize, usize), Vec<Candidate>> = HashMap::default();
+    let mut nodes_of: HashMap<usize, Vec<(usize, usize, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
+    let mut group_order: Vec<usize> = Vec::new();
+    for (ui, u) in project.uses.iter().enumerate() {
+        let sh = &project.sheets[u.file];
+        for (pi, p) in pieces[ui].iter().enumerate() {
+            if p.is_bus {
+                continue;
+            }
+            let g = dsu.find(first[ui] + pi);
+            let pool = pools.entry((g, ui)).or_default();
+            for m in global_member_of
+                .get(&(first[ui] + pi))
+                .into_iter()
+                .flatten()
+            {
+                pool.push(Candidate {
+                    strength: Strength::Global,
+                    name: m.to_string(),
+                    power_symbol: false,
+                    output: false,
+                });
+            }
+            for &l in &p.labels {
+                let lab = &sh.labels[l];
+                let (strength, name) = match lab.kind {
+                    LabelKind::Global => (Strength::Global, lab.text.to_string()),
+                    LabelKind::Local => (Strength::LocalLabel, format!("{}{}", u.path, lab.text)),
+                    LabelKind::Hier => (Strength::HierLabel, format!("{}{}", u.path, lab.text)),
+                };
+                pool.push(Candidate {
+                    strength,
+                    name,
+                    power_symbol: false,
+                    output: false,
+                });
+            }
+            for &(s, k) in &p.sheet_pins {
+                let t = &sh.sheets[s].pins[k].text;
+                pool.push(Candidate {
+                    strength: Strength::SheetPin,
+                    name: format!("{}{}", u.path, t),
+                    power_symbol: false,
+                    output: false,
+                });
+            }
+            for &k in &p.pins {
+                let (s, lpi) = pins_of[ui][k];
+                let pl = &placements[ui][s];
+                let lp = &pl.lib.pins[lpi];
+                let pname = &power_names[ui][k];
+                if !pname.is_empty() {
+                    let name = if pl.lib.power == Power::Local {
+                        format!("{}{}", u.path, pname)
+                    } else {
+                        pname.clone()
+                    };
+                    pool.push(Candidate {
+                        strength: Strength::Power,
+                        name,
+                        power_symbol: pl.lib.power != Power::No,
+                        output: false,
+                    });
+                } else if pl.listed {
+                    let alone = p.pins.len() == 1 && p.labels.is_empty() && p.sheet_pins.is_empty();
+                    let nc = p.no_connect || lp.ptype == PinType::NoConnect || alone;
+                    pool.push(Candidate {
+                        strength: Strength::Pin,
+                        name: pin_net_name(modern, pl, lp, nc),
+                        power_symbol: false,
+                        output: false,
+                    });
+                }
+                if pl.listed {
+                    let e = nodes_of.entry(g).or_insert_with(|| {
+                        group_order.push(g);
+                        Vec::new()
+                    });
+                    e.push((ui, k, p.no_connect));
+                }
+            }
+        }
+    }
+    // the name of each group with pins
+    let mut by_group: HashMap<usize, Vec<(usize, Candidate)>> = HashMap::default();
+    for ((g, ui), pool) in pools {
+        if let Some(b) = names::best(&pool) {
+            by_group.entry(g).or_default().push((ui, b.clone()));
+        }
+    }
+    let mut net_of_name: HashMap<String, usize> = HashMap::default();
+    let mut nets: Vec<Net<'_>> = Vec::new();
+    for g in group_order {
+        let Some(chosen) = by_group.get(&g) else {
+            continue;
+        };
+        let mut list: Vec<(usize, &Candidate)> = chosen.iter().map(|(u, c)| (*u, c)).collect();
+        list.sort_by_key(|(u, _)| *u);
+        let ch: Vec<Chosen<'_>> = list
+            .iter()
+            .map(|(u, c)| Chosen {
+                cand: c,
+                depth: depth(*u),
+            })
+            .collect();
+        let Some(name) = names::chain(&ch).map(|c| c.name.clone()) else {
+            continue;
+        };
+        let idx = *net_of_name.entry(name.clone()).or_insert_with(|| {
+            nets.push(Net {
+                code: None,
+                name: txt(name.clone(), Span::default()),
+                nodes: Vec::new(),
+                span: Span::default(),
+            });
+            nets.len() - 1
+        });
+        for &(ui, k, nc) in &nodes_of[&g] {
+            let (s, lpi) = pins_of[ui][k];
+            let pl = &placements[ui][s];
+            let lp = &pl.lib.pins[lpi];
+            let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
+            let net = &mut nets[idx];
+            if net.nodes.is_empty() {
+                net.span = span;
+                net.name.span = span;
+            }
+            net.nodes.push(Node {
+                reference: txt(pl.reference.clone(), pl.reference_span),
+                pin: txt(lp.num.clone(), span),
+                pinfunction: (!lp.name.is_empty() && lp.name != "~")
+                    .then(|| txt(lp.name.clone(), lp.span)),
+                pintype: Some(lp.ptype),
+                no_connect: nc || lp.ptype == PinType::NoConnect,
+                span,
+                component: None,
+            });
+        }
+    }
+
+    // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
+    // by reference and number; a pin on two nets is kept in the first, as in its export
+    nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
+    // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
+    // on one net, the one with the lowest name)
+    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.s.to_string());
+    for n in &mut nets {
+        n.nodes.sort_by(|a, b| {
+            (&a.reference.s, &a.pin.s, fname(a)).cmp(&(&b.reference.s, &b.pin.s, fname(b)))
+        });
+        n.nodes
+            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin.s == b.pin.s);
+    }
+
+    // components (one per reference, units merged) and library parts, as KiCad lists
+    // them: sheet by sheet in page order, by reference within a sheet
+    let root_uuid = &project.sheets[0].uuid;
+    let page_of = |ui: usize| -> String {
+        let u = &project.uses[ui];
+        let Some((pu, si)) = u.parent else {
+            return String::new();
+        };
+        let chain: String = u.uuids.iter().map(|x| format!("/{x}")).collect();
+        let parent_chain: String = project.uses[pu]
+            .uuids
+            .iter()
+            .map(|x| format!("/{x}"))
+            .collect();
+        let sub = &project.sheets[project.uses[pu].file].sheets[si];
+        let v7 = format!("/{root_uuid}{parent_chain}");
+        sub.pages
+            .iter()
+            .find(|p| p.0 == v7)
+            .or_else(|| {
+                project.sheets[0]
+                    .sheet_instances
+                    .iter()
+                    .find(|p| p.0 == chain)
+            })
+            .map_or(String::new(), |p| p.1.to_string())
+    };
+    let mut order: Vec<(usize, String)> =
+        (0..project.uses.len()).map(|u| (u, page_of(u))).collect();
+    order.sort_by(|a, b| {
+        (a.0 != 0)
+            .cmp(&(b.0 != 0))
+            .then_with(|| natural_cmp(&a.1, &b.1))
+    });
+    let mut components: Vec<Component<'_>> = Vec::new();
+    let mut comp_of: HashMap<String, ()> = HashMap::default();
+    let mut libparts: Vec<LibPart<'_>> = Vec::new();
+    let mut lib_of: HashMap<&str, usize> = HashMap::default();
+    for &(ui, _) in &order {
+        let u = &project.uses[ui];
+        let mut pls: Vec<&Placement<'_, '_>> = placements[ui].iter().collect();
+        pls.sort_by(|a, b| natural_cmp(&a.reference, &b.reference));
+        for pl in pls {
+            if !pl.listed || comp_of.insert(pl.reference.to_string(), ()).is_some() {
+                continue;
+            }
+            let placed = pl.placed;
+            let (lib, part) = match placed.lib_id.split_once(':') {
+                Some((l, p)) => (l, p),
+                None => ("", placed.lib_id.as_ref()),
+            };
+            let key = placed.lib_key.as_ref();
+            if !lib_of.contains_key(key) {
+                lib_of.insert(key, libparts.len());
+                let mut pins: Vec<ModelLibPin<'_>> = Vec::new();
+                for lp in pl.lib.pins.iter().filter(|p| p.style <= 1) {
+                    if pins.iter().any(|q| q.num.s == lp.num) {
+                        continue;
+                    }
+                    pins.push(ModelLibPin {
+                        num: txt(lp.num.clone(), lp.span),
+                        name: (!lp.name.is_empty()).then(|| txt(lp.name.clone(), lp.span)),
+                        ptype: lp.ptype,
+                        span: lp.span,
+                    });
+                }
+                libparts.push(LibPart {
+                    lib: Some(txt(lib.to_string(), placed.lib_key_span)),
+                    part: txt(part.to_string(), placed.lib_key_span),
+                    aliases: Vec::new(),
+                    description: None,
+                    docs: None,
+                    footprints: Vec::new(),
+                    fields: Vec::new(),
+                    pins,
+                    span: pl.lib.span,
+                });
+            }
+            let prop_text = |name: &str| {
+                placed
+                    .prop(name)
+                    .filter(|p| !p.value.is_empty())
+                    .map(|p| txt(p.value.clone(), p.value_span))
+            };
+            let value = pl
+                .value
+                .clone()
+                .map(|(v, s)| txt(v, s))
+                .or_else(|| prop_text("Value"));
+            let footprint = pl
+                .footprint
+                .clone()
+                .filter(|f| !f.0.is_empty())
+                .map(|(v, s)| txt(v, s))
+                .or_else(|| prop_text("Footprint"));
+            let fields = placed
+                .props
+                .iter()
+                .filter(|p| {
+                    !matches!(
+                        p.name.as_ref(),
+                        "Reference" | "Value" | "Footprint" | "Datasheet"
+                    )
+                })
+                .map(|p| Field {
+                    name: txt(p.name.clone(), p.name_span),
+                    value: Some(txt(p.value.clone(), p.value_span)),
+                    span: p.name_span,
+                })
+                .collect();
+            components.push(Component {
+                reference: txt(pl.reference.clone(), pl.reference_span),
+                value,
+                footprint,
+                datasheet: prop_text("Datasheet"),
+                fields,
+                properties: Vec::new(),
+                libsource: Some(LibSource {
+                    lib: Some(txt(lib.to_string(), placed.lib_key_span)),
+                    part: Some(txt(part.to_string(), placed.lib_key_span)),
+                    description: None,
+                }),
+                sheetpath: Some(SheetPath {
+                    names: Some(txt(u.path.clone(), placed.span)),
+                    tstamps: None,
+                }),
+                tstamps: vec![txt(placed.uuid.clone(), placed.span)],
+                span: placed.span,
+                libpart: None,
+                pins: Vec::new(),
+            });
+        }
+    }
+    let root_span = project.sheets[0].span;
+    diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
+    Ok(Netlist::assemble(
+        text, components, libparts, nets, diags, root_span,
+    ))
+}
+
+/// The whole project read into a model, as one call: the files are kept by the caller so
+/// the model can borrow them.
+pub fn load(path: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
+    open(path, max_bytes)
+}
+
+/// Compares names as KiCad orders nets: runs of digits by their value, the rest by
+/// character.
+pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
+    use std::cmp::Ordering;
+    let (a, b) = (a.as_bytes(), b.as_bytes());
+    let (mut i, mut j) = (0, 0);
+    while i < a.len() && j < b.len() {
+        if a[i].is_ascii_digit() && b[j].is_ascii_digit() {
+            let si = i;
+            while i < a.len() && a[i].is_ascii_digit() {
+                i += 1;
+            }
+            let sj = j;
+            while j < b.len() && b[j].is_ascii_digit() {
+                j += 1;
+            }
+            let da = std::str::from_utf8(&a[si..i])
+                .unwrap_or("")
+                .trim_start_matches('0');
+            let db = std::str::from_utf8(&b[sj..j])
+                .unwrap_or("")
+                .trim_start_matches('0');
+            let o = da.len().cmp(&db.len()).then_with(|| da.cmp(db));
+            if o != Ordering::Equal {
+                return o;
+            }
+        } else {
+            if a[i] != b[j] {
+                return a[i].cmp(&b[j]);
+            }
+            i += 1;
+            j += 1;
+        }
+    }
+    (a.len() - i).cmp(&(b.len() - j))
+}
+
+/// Where a span of a project points: the sheet file's name.
+pub fn file_of(source: &SourceFile, span: Span) -> &str {
+    source.file_at(span.start as usize)
+}
