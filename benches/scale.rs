@@ -369,6 +369,7 @@ fn main() {
         );
     }
     if n_files == 0 {
+        schematics(&bin, &dir, &sizes, runs, memory);
         println!();
         println!("load average (1, 5 min) at the end: {}", load());
         return;
