@@ -31,7 +31,11 @@ use roles::{PinRole, RuleError};
 /// Reads the shipped tables and writes their compact form; a table that does not read stops
 /// the build with every problem and its byte range.
 fn tables(out_dir: &std::path::Path) {
-    for f in ["rules/families.toml", "rules/functions.toml", "rules/parts.toml"] {
+    for f in [
+        "rules/families.toml",
+        "rules/functions.toml",
+        "rules/parts.toml",
+    ] {
         println!("cargo:rerun-if-changed={f}");
     }
     for f in ["family", "function", "parts", "roles"] {

@@ -167,14 +167,16 @@ fn main() {
         .filter(|v: &Vec<usize>| !v.is_empty())
         .unwrap_or_else(|| vec![5, 50]);
     let runs: usize = args.get(1).and_then(|a| a.parse().ok()).unwrap_or(3).max(1);
-    let n_files: usize = args
-        .get(2)
-        .and_then(|a| a.parse().ok())
-        .unwrap_or(2000);
+    let n_files: usize = args.get(2).and_then(|a| a.parse().ok()).unwrap_or(2000);
     let shapes: Vec<String> = args
         .get(3)
         .map(|a| a.split(',').map(str::to_string).collect())
-        .unwrap_or_else(|| netmargin::synth::SHAPES.iter().map(|s| s.to_string()).collect());
+        .unwrap_or_else(|| {
+            netmargin::synth::SHAPES
+                .iter()
+                .map(|s| s.to_string())
+                .collect()
+        });
 
     let exe = std::env::current_exe().expect("the bench's own path");
     // the bench runs from <target>/release/deps/, next to <target>/release/netmargin
@@ -225,7 +227,9 @@ fn main() {
     println!(
         "| shape | file | check --format json | MB/s | CPU time | read + model (floor) | floor CPU | check / floor (CPU) | CPU time x for 10 x data | peak memory | peak / file | floor peak / file |{bh}"
     );
-    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |{bs}");
+    println!(
+        "| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |{bs}"
+    );
     for shape in &shapes {
         let mut prev: Option<(usize, f64)> = None;
         let mut prev_base: Option<(usize, f64)> = None;
@@ -249,7 +253,12 @@ fn main() {
                 path.display()
             );
             let floor_first = run(&exe, &[], &floor_env, memory);
-            assert_eq!(floor_first.code, Some(0), "read and model {}", path.display());
+            assert_eq!(
+                floor_first.code,
+                Some(0),
+                "read and model {}",
+                path.display()
+            );
             let (mut t_check, mut t_floor, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
             let mut floor_peak = floor_first.peak_kb;
             let (mut t_cpu, mut f_cpu) = (Vec::new(), Vec::new());

@@ -65,7 +65,9 @@ impl fmt::Display for Technology {
 }
 
 /// How far a family's output high reaches, beyond its VOH rows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize,
+)]
 pub enum HighOutput {
     /// The rows say it all: a CMOS output published down to light loads, or a bipolar / NMOS
     /// output (whose technology already says that its high stops near 3.5 V at 5 V).

@@ -38,7 +38,9 @@ use super::{PinRole, RuleError};
 pub const BUILTIN_TEXT: &str = include_str!("../../rules/functions.toml");
 
 /// The numbering series a function belongs to.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize,
+)]
 pub enum Series {
     /// 54/74-series numbering (74LS00, 74HC4051 are both "74").
     S74,
@@ -60,7 +62,9 @@ impl Series {
 }
 
 /// How strongly a function's outputs drive: bus drivers have their own (larger) ratings.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize,
+)]
 pub enum DriveClass {
     #[default]
     Standard,

@@ -53,9 +53,18 @@ mod tests {
     /// file with the same text would give.
     #[test]
     fn compiled_tables_equal_the_tables_read_from_the_text() {
-        assert_eq!(FamilyTable::builtin(), FamilyTable::parse_shipped().unwrap());
-        let (a, b) = (FunctionTable::builtin(), FunctionTable::parse_shipped().unwrap());
-        assert_eq!(format!("{:?}", a.iter().collect::<Vec<_>>()), format!("{:?}", b.iter().collect::<Vec<_>>()));
+        assert_eq!(
+            FamilyTable::builtin(),
+            FamilyTable::parse_shipped().unwrap()
+        );
+        let (a, b) = (
+            FunctionTable::builtin(),
+            FunctionTable::parse_shipped().unwrap(),
+        );
+        assert_eq!(
+            format!("{:?}", a.iter().collect::<Vec<_>>()),
+            format!("{:?}", b.iter().collect::<Vec<_>>())
+        );
         for f in b.iter() {
             assert_eq!(a.get(f.series, &f.id), Some(f), "{}", f.id);
         }
