@@ -218,3 +218,37 @@ pub fn switch_names(ctx: &Context<'_, '_, '_>, links: &[crate::circuit::SwitchLi
         n => format!("{} and {}", refs[..n - 1].join(", "), refs[n - 1]),
     }
 }
+
+/// The board's rail nets, gathered once per file so that a check asking "which rail should
+/// this pin go to" for each finding never scans every net again.
+#[derive(Debug, Default)]
+pub struct RailIndex {
+    /// The first net (in net order) of each distinct rail (ground or not, voltage): every
+    /// question asked of the index depends on those two alone, so the first answer among
+    /// these is the first among all rail nets, and the list stays as short as the board has
+    /// kinds of rail.
+    rails: Vec<(usize, crate::circuit::Rail)>,
+}
+
+impl RailIndex {
+    pub fn new(cx: &crate::circuit::Circuit<'_, '_>) -> RailIndex {
+        let mut seen = rustc_hash::FxHashSet::default();
+        RailIndex {
+            rails: cx
+                .nets
+                .iter()
+                .enumerate()
+                .filter_map(|(n, nm)| nm.rail.map(|r| (n, r)))
+                .filter(|(_, r)| seen.insert((r.ground, r.volts.map(f64::to_bits))))
+                .collect(),
+        }
+    }
+
+    /// The first rail net (in net order) for which `f` holds.
+    pub fn find(
+        &self,
+        f: impl Fn(&crate::circuit::Rail) -> bool,
+    ) -> Option<(usize, crate::circuit::Rail)> {
+        self.rails.iter().find(|(_, r)| f(r)).copied()
+    }
+}
