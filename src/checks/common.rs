@@ -58,7 +58,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
                 continue;
             }
             // a control input that must be held at one level is `open-control-input`'s
-            if super::open_control_input::idle_level(ctx, ci, pi).is_some() {
+            if cx.idle_level(ci, pi).is_some() {
                 continue;
             }
             let why = match p.connection {

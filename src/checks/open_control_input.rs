@@ -35,15 +35,6 @@ use crate::diag::Diag;
 use crate::netlist::Connection;
 use crate::values::format_ohms;
 
-/// The level at which `pin` of component `comp` must be held, from the function table.
-pub(super) fn idle_level(ctx: &Context<'_, '_, '_>, comp: usize, pin: usize) -> Option<bool> {
-    let cx = ctx.cx;
-    let part = &cx.cl.parts[comp];
-    let (series, id) = part.function.as_ref()?;
-    let num = &cx.nl.components[comp].pins[pin].num;
-    cx.rules.functions.get(*series, id)?.pin(num)?.idle_high
-}
-
 /// Largest resistor that holds the input at its idle level against its own leakage, capped at
 /// 10 kOhm (common practice: a value an open-collector source on the line can still pull
 /// through, and fast enough for a control line).
@@ -70,7 +61,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             continue;
         }
         for (pi, p) in c.pins.iter().enumerate() {
-            let Some(high) = idle_level(ctx, ci, pi) else {
+            let Some(high) = ctx.cx.idle_level(ci, pi) else {
                 continue;
             };
             if !cx.roles[ci][pi].is_input() {
