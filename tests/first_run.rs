@@ -374,3 +374,27 @@ fn far_apart_labels_are_shown_as_excerpts_with_the_lines_between_left_out() {
         assert!(lines <= 30, "{lines} source lines in:\n{}", b.join("\n"));
     }
 }
+
+#[test]
+fn the_json_totals_count_netlists_not_the_configuration() {
+    let s = Scratch::new("json-counted");
+    std::fs::copy(
+        root().join("fixtures/boards/clean-k5.net"),
+        s.0.join("board.net"),
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("netmargin.toml"),
+        "[[waiver]]\ncheck = \"fanout-overrun\"\nrefs = [\"U99\"]\nreason = \"bench unit\"\n",
+    )
+    .unwrap();
+    let (_, out, err) = run(&s.0, &["check", "--format", "json", "board.net"]);
+    let doc: serde_json::Value =
+        serde_json::from_str(&out).unwrap_or_else(|e| panic!("{e}: {err}"));
+    // the configuration is listed, with its stale waiver ...
+    assert_eq!(doc["files"].as_array().unwrap().len(), 2);
+    // ... but one file was checked
+    assert_eq!(doc["totals"]["files"], 1);
+    assert_eq!(doc["totals"]["checked"], 1);
+    assert_eq!(doc["totals"]["warnings"], 1);
+}
