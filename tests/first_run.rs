@@ -401,3 +401,53 @@ fn the_json_totals_count_netlists_not_the_configuration() {
     assert_eq!(doc["totals"]["checked"], 1);
     assert_eq!(doc["totals"]["warnings"], 1);
 }
+
+#[test]
+fn every_broken_mapping_file_is_reported_in_one_run() {
+    let s = Scratch::new("mapping");
+    std::fs::copy(
+        root().join("fixtures/boards/clean-k5.net"),
+        s.0.join("board.net"),
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("netmargin.toml"),
+        "[rules]\nparts = [\"a-parts.toml\", \"b-parts.toml\", \"missing.toml\"]\n",
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("a-parts.toml"),
+        "[[part]]\nvalues = \"74LSOO\"\nfamily = \"74LS\"\n",
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("b-parts.toml"),
+        "[[part]]\nvalues = [\"X*\"]\nfamliy = \"74LS\"\n",
+    )
+    .unwrap();
+    let (code, out, err) = run(&s.0, &["check", "--format", "short", "board.net"]);
+    assert_eq!(code, 2, "{out}{err}");
+    let text = format!("{out}{err}");
+    assert!(
+        text.lines()
+            .any(|l| l.contains("a-parts.toml:2:") && l.contains("expected a list, found text")),
+        "{text}"
+    );
+    assert!(
+        text.lines()
+            .any(|l| l.contains("b-parts.toml:3:") && l.contains("unknown key `famliy`")),
+        "{text}"
+    );
+    assert!(
+        text.lines()
+            .any(|l| l.contains("netmargin.toml:2:") && l.contains("missing.toml")),
+        "{text}"
+    );
+    // the same from the commands that show one file
+    let (code, _, err) = run(&s.0, &["parts", "board.net"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("a-parts.toml") && err.contains("b-parts.toml"),
+        "{err}"
+    );
+}
