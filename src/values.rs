@@ -117,6 +117,9 @@ const MAX_ELEMENTS: u32 = 64;
 
 /// Markers for a part that is not fitted, compared without case.
 const NOT_FITTED: &[&str] = &[
+    "nc",
+    "n/c",
+    "n.c.",
     "dnp",
     "dnf",
     "dni",

@@ -173,7 +173,9 @@ pub fn agree(n: usize, one: &'static str, many: &'static str) -> &'static str {
 
 /// Percentage with no decimals.
 pub fn pct(x: f64) -> String {
-    format!("{:.0}%", x * 100.0)
+    let v = (x * 100.0).round();
+    // no `-0%` for a figure that rounds to nothing
+    format!("{:.0}%", if v == 0.0 { 0.0 } else { v })
 }
 
 #[cfg(test)]

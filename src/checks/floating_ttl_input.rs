@@ -99,7 +99,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         };
         let holds = cx.cl.parts[f.at.comp].table_names[f.at.pin]
             .as_deref()
-            .is_some_and(holds_when_high);
+            .is_some_and(holds_when_high)
+            && partner_lets_it_hold(ctx, f.at);
         let mut d = if holds {
             Diag::error(
                 "floating-ttl-input",
@@ -130,6 +131,36 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             d = d.on_net(cx.net_name(n));
         }
         out.push(d);
+    }
+}
+
+/// A counter's gated reset (`R0(1)` with `R0(2)`, `R9(1)` with `R9(2)`: the part resets only
+/// while both are high, as the 74LS90/92/93 reset tables give it) holds the part only when its
+/// partner input can be high too: open, or on a net that is not a ground rail. Any other
+/// active-high reset holds on its own.
+fn partner_lets_it_hold(ctx: &Context<'_, '_, '_>, at: crate::circuit::PinRef) -> bool {
+    let cx = ctx.cx;
+    let part = &cx.cl.parts[at.comp];
+    let Some(name) = part.table_names[at.pin].as_deref() else {
+        return true;
+    };
+    let partner = match name {
+        "R0(1)" => "R0(2)",
+        "R0(2)" => "R0(1)",
+        "R9(1)" => "R9(2)",
+        "R9(2)" => "R9(1)",
+        _ => return true,
+    };
+    let Some(q) = part
+        .table_names
+        .iter()
+        .position(|n| n.as_deref() == Some(partner))
+    else {
+        return true;
+    };
+    match cx.nl.components[at.comp].pins[q].connection.net() {
+        Some(n) => !cx.nets[n].rail.is_some_and(|r| r.ground),
+        None => true,
     }
 }
 

@@ -213,12 +213,12 @@ fn ratings(cx: &Circuit<'_, '_>, net: usize, p: PinRef) -> String {
         .and_then(|d| d.levels.as_ref())
     {
         Some(lv) => format!(
-            "rated to source {} (IOH) and sink {} (IOL) at {}",
+            "each rated to source {} (IOH) and sink {} (IOL) at {}",
             format_amps(lv.ioh_max.abs()),
             format_amps(lv.iol_max.abs()),
             cx.supply_text(p.comp)
         ),
-        None => "its family's ratings are unknown".to_string(),
+        None => "with ratings unknown: its family is not known".to_string(),
     }
 }
 
@@ -320,7 +320,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             let mut d = Diag::error(
                 "output-contention",
                 format!(
-                    "{} push-pull outputs drive {name}: {}; when they disagree, the one driving low sinks what the others source, limited only by the output stages (each {}), and the level is undefined",
+                    "{} push-pull outputs drive {name}: {}; when they disagree, the one driving low sinks what the others source, limited only by the output stages ({}), and the level is undefined",
                     ps.len(),
                     list(cx, ps),
                     ratings(cx, net, ps[0])

@@ -151,8 +151,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .first()
             .map(|j| format!(" while nothing drives the net through {}", cx.pin_name(*j)))
             .unwrap_or_default();
+        let vcc = cx.supplies[first.comp].as_ref().map_or(5.0, |s| s.vcc);
+        let reads = if pd.level() >= vcc {
+            // the product is only a budget: the input cannot rise above its open level
+            "the resistor cannot hold it low at all, and it sits at its open-input level (a high)"
+        } else {
+            "the input reads high or undefined"
+        };
         let message = format!(
-            "{who} {} held low through {through} to {rail}, but IIL x R = {} x {} = {}, above VIL {} at {}: the input reads high or undefined{outside}",
+            "{who} {} held low through {through} to {rail}, but IIL x R = {} x {} = {}, above VIL {} at {}: {reads}{outside}",
             if n == 1 { "is" } else { "are" },
             format_amps(pd.iil),
             format_ohms(pd.ohms),
@@ -160,6 +167,23 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             format_volts(pd.vil),
             cx.supply_text(first.comp)
         );
+        // a capacitor from the net to the supply beside the pull-down: a power-on delay,
+        // drawn on purpose (the input is high at power-on and is meant to be)
+        let rc = nm.passives.iter().find_map(|p| {
+            let c = &cx.nl.components[p.comp];
+            (cx.cl.parts[p.comp].kind == crate::classify::classifier::PartKind::Capacitor
+                && c.pins.len() == 2)
+                .then(|| c.pins[1 - p.pin].connection.net())
+                .flatten()
+                .filter(|&n| cx.nets[n].rail.is_some_and(|r| !r.ground))
+                .map(|_| c.reference.as_str().to_string())
+        });
+        let message = match &rc {
+            Some(cap) => format!(
+                "{message}; with {cap} to the supply this is a power-on delay, deliberate where the input is meant to read high"
+            ),
+            None => message,
+        };
         let rmax = pd.r_max();
         let suggestion = series_at_most(rmax / 2.0, &E12)
             .map(|r| {
@@ -176,22 +200,26 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             format_volts(pd.vil),
             format_amps(pd.iil)
         );
-        let mut d = Diag::error("ttl-pull-down-too-large", message)
-            .at(
-                cx.pin_span(first),
-                format!("IIL x R = {}", format_volts(pd.level())),
-            )
-            .on_net(cx.net_name(net))
-            .with_pins(
-                std::iter::once(cx.pin_name(first))
-                    .chain(
-                        nm.loads
-                            .iter()
-                            .filter(|l| l.at != first && l.levels.is_some())
-                            .map(|l| cx.pin_name(l.at)),
-                    )
-                    .chain(nm.pulls.iter().map(|p| cx.pin_name(p.at))),
-            );
+        let mut d = if rc.is_some() {
+            Diag::info("ttl-pull-down-too-large", message)
+        } else {
+            Diag::error("ttl-pull-down-too-large", message)
+        }
+        .at(
+            cx.pin_span(first),
+            format!("IIL x R = {}", format_volts(pd.level())),
+        )
+        .on_net(cx.net_name(net))
+        .with_pins(
+            std::iter::once(cx.pin_name(first))
+                .chain(
+                    nm.loads
+                        .iter()
+                        .filter(|l| l.at != first && l.levels.is_some())
+                        .map(|l| cx.pin_name(l.at)),
+                )
+                .chain(nm.pulls.iter().map(|p| cx.pin_name(p.at))),
+        );
         for p in &nm.pulls {
             d = d.also(
                 cx.pin_span(p.at),

@@ -367,10 +367,20 @@ impl<'n, 'a> Circuit<'n, 'a> {
                 let net = s.supply_net.map(|n| self.net_name(n)).unwrap_or_default();
                 format!("{net} ({})", values::format_volts(s.vcc))
             }
-            Some(s) => format!(
-                "{} (the family's nominal supply; the part's supply rail is unknown)",
-                values::format_volts(s.vcc)
-            ),
+            Some(s) => {
+                let why = match s.supply_net {
+                    Some(n) if self.nets[n].rail.is_some() => format!(
+                        "the voltage of {} is not known: declare it with --rail",
+                        self.net_name(n)
+                    ),
+                    Some(n) => format!("its supply pin is on {}, not a rail", self.net_name(n)),
+                    None => "its supply pin is on no net".to_string(),
+                };
+                format!(
+                    "{} (the family's nominal supply; {why})",
+                    values::format_volts(s.vcc)
+                )
+            }
             None => "an unknown supply".to_string(),
         }
     }
@@ -1159,7 +1169,10 @@ fn follow_to_ground(
         let other = 1 - cur.pin;
         let net = c.pins[other].connection.net()?;
         if let Some(r) = rail[net] {
-            let vf = vf * leds.len() as f64;
+            let vf: f64 = leds
+                .iter()
+                .map(|&l| led_vf_by_colour(nl.components[l].value_str()).unwrap_or(vf))
+                .sum();
             return r.ground.then_some(LedPath {
                 at: start,
                 leds,
@@ -1186,4 +1199,46 @@ fn follow_to_ground(
         }
     }
     None
+}
+
+/// The forward voltage usually taken for an LED of the colour its value names (`GREEN`,
+/// `LED_YEL`, `blue 3mm`): red 1.7 V, orange, amber and yellow 2.0 V, green 2.1 V, blue and
+/// white 3.0 V, infrared 1.2 V (common practice: typical figures of indicator LEDs at about
+/// 10 mA, from memory). `None` when the value names no colour: the configured figure applies.
+pub fn led_vf_by_colour(value: &str) -> Option<f64> {
+    let v = value.to_ascii_uppercase();
+    let words: Vec<&str> = v
+        .split(|c: char| !c.is_ascii_alphanumeric())
+        .filter(|w| !w.is_empty())
+        .collect();
+    let has = |ws: &[&str]| words.iter().any(|w| ws.contains(w));
+    if has(&["BLUE", "BLU", "WHITE", "WHT", "WH"]) {
+        Some(3.0)
+    } else if has(&["GREEN", "GRN", "GN"]) {
+        Some(2.1)
+    } else if has(&["YELLOW", "YEL", "YE", "AMBER", "AMB", "ORANGE", "ORG"]) {
+        Some(2.0)
+    } else if has(&["RED", "RD"]) {
+        Some(1.7)
+    } else if has(&["IR", "INFRARED"]) {
+        Some(1.2)
+    } else {
+        None
+    }
+}
+
+#[cfg(test)]
+mod led_tests {
+    use super::led_vf_by_colour;
+
+    #[test]
+    fn colours_in_led_values() {
+        // common practice (from memory): typical indicator-LED forward voltages
+        assert_eq!(led_vf_by_colour("RED"), Some(1.7));
+        assert_eq!(led_vf_by_colour("LED_GREEN"), Some(2.1));
+        assert_eq!(led_vf_by_colour("yel 5mm"), Some(2.0));
+        assert_eq!(led_vf_by_colour("BLUE"), Some(3.0));
+        assert_eq!(led_vf_by_colour("GATE"), None);
+        assert_eq!(led_vf_by_colour("LED"), None);
+    }
 }

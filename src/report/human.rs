@@ -228,8 +228,50 @@ fn write_file_with(
         }
         return Ok(());
     }
-    for d in &f.diags {
+    for group in fold(&f.diags) {
+        let d = &f.diags[group[0]];
         write!(out, "{}", render(h, d, source))?;
+        if group.len() > 1 {
+            // where each other finding is: its net, else its first pin, else the part its
+            // message names first; a place named several times is named once, with a count
+            let mut nets: Vec<(String, usize)> = Vec::new();
+            for &i in &group[1..] {
+                let o = &f.diags[i];
+                let at = o
+                    .net
+                    .clone()
+                    .or_else(|| o.pins.first().cloned())
+                    .or_else(|| o.message.split_whitespace().next().map(str::to_string))
+                    .map(|n| sanitize(&n).into_owned())
+                    .unwrap_or_default();
+                match nets.iter_mut().find(|(n, _)| *n == at) {
+                    Some((_, k)) => *k += 1,
+                    None => nets.push((at, 1)),
+                }
+            }
+            let count = group.len() - 1;
+            let nets: Vec<String> = nets
+                .into_iter()
+                .map(|(n, k)| if k > 1 { format!("{n} (x{k})") } else { n })
+                .collect();
+            let shown = nets.len().min(FOLD_LIST);
+            writeln!(
+                out,
+                "  ... and {} more {} like it ({}): {}{}\n",
+                count,
+                if count == 1 { "finding" } else { "findings" },
+                d.code,
+                nets[..shown].join(", "),
+                if nets.len() > shown {
+                    format!(
+                        ", ... ({} more places; every finding is in --format json or short)",
+                        nets.len() - shown
+                    )
+                } else {
+                    String::new()
+                }
+            )?;
+        }
     }
     if quiet {
         return Ok(());
@@ -244,6 +286,74 @@ fn write_file_with(
         s.pins,
         s.pins_on_no_net
     )
+}
+
+/// Findings of one cause repeated at least this often are folded into the first.
+const FOLD_AT: usize = 4;
+/// Nets named in a fold line.
+const FOLD_LIST: usize = 12;
+
+/// A finding's shape: its check, severity and message with the names of places taken out
+/// (every word that holds a digit, such as `U12`, `A7` or `/D3`, and quoted net names),
+/// while figures with a decimal point (`2.70 V`) stay: findings of one shape are one cause
+/// repeated across a bus or a row of parts.
+fn shape(d: &Diag) -> String {
+    let mut out = format!("{}|{:?}|", d.code, d.severity);
+    let mut in_quote = false;
+    for word in d.message.split_inclusive(|c: char| {
+        c.is_whitespace() || c == '`' || c == ',' || c == '(' || c == ')'
+    }) {
+        if word.starts_with('`') || in_quote {
+            in_quote = !word.ends_with('`') || (word == "`" && !in_quote);
+            out.push('@');
+            continue;
+        }
+        let core =
+            word.trim_end_matches(|c: char| c.is_whitespace() || c == ',' || c == '(' || c == ')');
+        let decimal = core.contains('.')
+            && core
+                .chars()
+                .next()
+                .is_some_and(|c| c.is_ascii_digit() || c == '-');
+        if core.chars().any(|c| c.is_ascii_digit()) && !decimal {
+            out.push('#');
+            out.push_str(&word[core.len()..]);
+        } else {
+            out.push_str(word);
+        }
+    }
+    out
+}
+
+/// Groups findings of one shape, in the order of their first appearance; groups smaller than
+/// [`FOLD_AT`] are split back into single findings.
+fn fold(diags: &[Diag]) -> Vec<Vec<usize>> {
+    let mut by_shape: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+    let mut groups: Vec<Vec<usize>> = Vec::new();
+    for (i, d) in diags.iter().enumerate() {
+        // only the checks' findings fold: every problem with the input is shown in full
+        if crate::checks::info(&d.code).is_none() {
+            groups.push(vec![i]);
+            continue;
+        }
+        match by_shape.entry(shape(d)) {
+            std::collections::hash_map::Entry::Occupied(e) => groups[*e.get()].push(i),
+            std::collections::hash_map::Entry::Vacant(e) => {
+                e.insert(groups.len());
+                groups.push(vec![i]);
+            }
+        }
+    }
+    let mut out = Vec::new();
+    for g in groups {
+        if g.len() >= FOLD_AT {
+            out.push(g);
+        } else {
+            out.extend(g.into_iter().map(|i| vec![i]));
+        }
+    }
+    out.sort_by_key(|g| g[0]);
+    out
 }
 
 /// The whole run in one line, e.g. `3 files, 57 parts, 131 nets: 2 errors, 5 warnings,
@@ -306,6 +416,30 @@ mod tests {
         assert_eq!(shown.line_count(), src.line_count());
         let clean = SourceFile::new("ok.net", "(a)\n");
         assert!(matches!(safe_source(&clean), Cow::Borrowed(_)));
+    }
+
+    #[test]
+    fn one_cause_across_a_bus_folds_and_different_causes_do_not() {
+        let mk = |msg: &str, net: &str| {
+            crate::diag::Diag::error("ttl-high-into-cmos", msg).on_net(net.to_string())
+        };
+        let diags: Vec<crate::diag::Diag> = (0..8)
+            .map(|i| {
+                mk(
+                    &format!("U{} pin {} (74HC245 input A{i}) needs 3.50 V; U7 pin {} (74LS574 output {i}Q) guarantees 2.70 V: short by 0.80 V", 20 + i, 2 + i, 12 + i),
+                    &format!("/D{i}"),
+                )
+            })
+            .chain(std::iter::once(mk(
+                "U30 pin 1 (74HC00 input 1A) needs 3.50 V; U8 pin 3 (74LS00 output 1Y) guarantees 2.40 V: short by 1.10 V",
+                "/X",
+            )))
+            .collect();
+        let groups = fold(&diags);
+        assert_eq!(groups, vec![(0..8).collect::<Vec<_>>(), vec![8]]);
+        // three of a kind stay apart
+        let few: Vec<_> = diags[..3].to_vec();
+        assert_eq!(fold(&few).len(), 3);
     }
 
     #[test]
