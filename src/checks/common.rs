@@ -58,7 +58,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
                 continue;
             }
             // a control input that must be held at one level is `open-control-input`'s
-            if super::open_control_input::idle_level(ctx, ci, pi).is_some() {
+            if idle_level(ctx, ci, pi).is_some() {
                 continue;
             }
             let why = match p.connection {
@@ -118,6 +118,16 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
         }
     }
     (singles, gates)
+}
+
+/// The level at which `pin` of component `comp` must be held (a processor's ~WAIT: high), from
+/// the function table's `idle`; `None` for an ordinary input.
+pub fn idle_level(ctx: &Context<'_, '_, '_>, comp: usize, pin: usize) -> Option<bool> {
+    let cx = ctx.cx;
+    let part = &cx.cl.parts[comp];
+    let (series, id) = part.function.as_ref()?;
+    let num = &cx.nl.components[comp].pins[pin].num;
+    cx.rules.functions.get(*series, id)?.pin(num)?.idle_high
 }
 
 /// `pins 12 (4A) and 13 (4B)`

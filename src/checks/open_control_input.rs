@@ -27,22 +27,13 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a processor's, peripheral's or memory's control input left open instead of held at its idle level",
 };
 
-use super::common::{ground_rail_name, supply_rail_name, Float};
+use super::common::{ground_rail_name, idle_level, supply_rail_name, Float};
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::family::Drive;
 use crate::diag::Diag;
 use crate::netlist::Connection;
 use crate::values::format_ohms;
-
-/// The level at which `pin` of component `comp` must be held, from the function table.
-pub(super) fn idle_level(ctx: &Context<'_, '_, '_>, comp: usize, pin: usize) -> Option<bool> {
-    let cx = ctx.cx;
-    let part = &cx.cl.parts[comp];
-    let (series, id) = part.function.as_ref()?;
-    let num = &cx.nl.components[comp].pins[pin].num;
-    cx.rules.functions.get(*series, id)?.pin(num)?.idle_high
-}
 
 /// Largest resistor that holds the input at its idle level against its own leakage, capped at
 /// 10 kOhm (common practice: a value an open-collector source on the line can still pull
