@@ -24,7 +24,7 @@ use serde_json::Value;
 
 /// The misses (of those an existing check should catch) that must be found. Raise it as the model
 /// learns; never lower it without a reason written in the commit.
-const MISSES_FOUND_AT_LEAST: usize = 30;
+const MISSES_FOUND_AT_LEAST: usize = 32;
 
 fn shared() -> Option<PathBuf> {
     let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/real-boards");
