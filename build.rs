@@ -3,9 +3,69 @@
 //! and the list of checks (`REGISTRY`, `RUNS`) from the files themselves, so a check is
 //! declared once, in its own file (its `INFO` and `run`), and cannot be left out of a list.
 
+//!
+//! It also reads the shipped tables (`rules/*.toml`) with the crate's own table code (the
+//! modules below, compiled into this script too) and writes each in postcard's compact form
+//! to `OUT_DIR`, so the binary decodes them at start-up instead of parsing TOML.
+
 use std::fmt::Write;
 
+// the crate's table code, as `crate::classify::...` and `super::...` expect to find it
+#[allow(dead_code)]
+#[path = "src/classify/family.rs"]
+mod family;
+#[allow(dead_code)]
+#[path = "src/classify/function.rs"]
+mod function;
+#[allow(dead_code)]
+#[path = "src/classify/parts.rs"]
+mod parts;
+#[allow(dead_code)]
+#[path = "src/classify/roles.rs"]
+mod roles;
+mod classify {
+    pub use super::roles::RuleError;
+}
+use roles::{PinRole, RuleError};
+
+/// Reads the shipped tables and writes their compact form; a table that does not read stops
+/// the build with every problem and its byte range.
+fn tables(out_dir: &std::path::Path) {
+    for f in [
+        "rules/families.toml",
+        "rules/functions.toml",
+        "rules/parts.toml",
+    ] {
+        println!("cargo:rerun-if-changed={f}");
+    }
+    for f in ["family", "function", "parts", "roles"] {
+        println!("cargo:rerun-if-changed=src/classify/{f}.rs");
+    }
+    fn fail(file: &str, errors: Vec<RuleError>) -> ! {
+        let all: Vec<String> = errors
+            .iter()
+            .map(|e| format!("{:?}: {}", e.span, e.message))
+            .collect();
+        panic!("rules/{file} does not read:\n{}", all.join("\n"));
+    }
+    let write = |name: &str, bytes: Vec<u8>| {
+        std::fs::write(out_dir.join(format!("{name}.postcard")), bytes).unwrap();
+    };
+    let families =
+        family::FamilyTable::parse_shipped().unwrap_or_else(|e| fail("families.toml", e));
+    write("families", postcard::to_allocvec(&families).unwrap());
+    let functions =
+        function::FunctionTable::parse_shipped().unwrap_or_else(|e| fail("functions.toml", e));
+    write("functions", postcard::to_allocvec(&functions).unwrap());
+    let parts = parts::PartTable::parse_shipped().unwrap_or_else(|e| fail("parts.toml", e));
+    write("parts", postcard::to_allocvec(&parts).unwrap());
+    // PinRole is read by the function table; named here so the import is used
+    let _ = PinRole::Unknown;
+}
+
 fn main() {
+    let out_dir = std::path::PathBuf::from(std::env::var("OUT_DIR").unwrap());
+    tables(&out_dir);
     let dir = std::path::Path::new("src/checks");
     println!("cargo:rerun-if-changed=src/checks");
     let mut entries: Vec<(String, String)> = Vec::new();
@@ -34,7 +94,6 @@ fn main() {
         let _ = writeln!(out, "    ({id:?}, {doc:?}),");
     }
     out.push_str("];\n");
-    let out_dir = std::path::PathBuf::from(std::env::var("OUT_DIR").unwrap());
     std::fs::write(out_dir.join("check_docs.rs"), out).unwrap();
 
     // the list of checks: every file but `mod.rs` and the shared helpers

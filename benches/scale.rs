@@ -3,8 +3,15 @@
 //! netlists with 1, 2 and all cores, and on synthetic one-sheet schematics, each against a
 //! floor measured in the same run (`cat` of the same bytes).
 //!
-//! `cargo build --release && cargo bench --bench scale -- [SIZES_MB] [RUNS] [FILES]`, e.g.
-//! `-- 5,50,500 3 2000` (defaults `5,50`, 3 and 2000; the 500 MB file only when asked).
+//! `cargo build --release && cargo bench --bench scale -- [SIZES_MB] [RUNS] [FILES] [SHAPES]`,
+//! e.g. `-- 5,50,500 3 2000` (defaults `5,50`, 3, 2000 and every shape of
+//! `netmargin::synth::SHAPES`; the 500 MB files only when asked; 0 files skips the folder).
+//! Each shape is checked at each size against a floor measured in the same run: the bench
+//! itself, in a child process, reading and modelling the same file (`netlist::read`). The
+//! column "time x for 10 x data" is the check's time over that of the size ten times smaller.
+//! Start-up is a small netlist and `--version` against spawning `true`. With
+//! `NETMARGIN_BENCH_BASELINE=<another netmargin binary>` that binary (an earlier build) runs
+//! on the same files in the same run, for before-and-after columns.
 //! The files are written under `<target>/bench-scale/`. Peak memory is GNU time's "Maximum
 //! resident set size" (`/usr/bin/time -v`); without GNU time it is shown as n/a.
 
@@ -95,15 +102,30 @@ fn run(
     }
 }
 
-/// The synthetic netlist of about `mb` megabytes, written once and kept.
-fn big_file(dir: &Path, mb: usize) -> (PathBuf, u64) {
-    let path = dir.join(format!("synthetic-{mb}MB.net"));
+/// The synthetic netlist of shape `shape` and about `mb` megabytes, written once and kept.
+fn big_file(dir: &Path, shape: &str, mb: usize) -> (PathBuf, u64) {
+    let path = dir.join(format!("{shape}-{mb}MB.net"));
     if !path.exists() {
-        let text = netmargin::synth::netlist(mb * 1_000_000);
+        let text = netmargin::synth::shape(shape, mb * 1_000_000).expect("a known shape");
         std::fs::write(&path, &text).expect("bench file");
     }
     let len = std::fs::metadata(&path).expect("bench file").len();
     (path, len)
+}
+
+/// The environment variable that makes the bench, run as a child of itself, only read and
+/// model the file it names (the floor of the whole check, in a process of its own so its peak
+/// memory is its own).
+const READ_ONLY: &str = "NETMARGIN_BENCH_READ_AND_MODEL";
+
+/// The environment variable naming another netmargin binary (an earlier build) to run on the
+/// same files in the same run, for before-and-after figures.
+const BASELINE: &str = "NETMARGIN_BENCH_BASELINE";
+
+fn read_and_model(path: &str) {
+    let text = std::fs::read_to_string(path).expect("bench file");
+    let nl = netmargin::netlist::read(&text).expect("a netlist");
+    std::hint::black_box(&nl);
 }
 
 /// `n` small netlists (about 20 kB each), each with its references renamed so no two files
@@ -131,6 +153,10 @@ fn mb(kb: Option<u64>) -> String {
 }
 
 fn main() {
+    if let Ok(path) = std::env::var(READ_ONLY) {
+        read_and_model(&path);
+        return;
+    }
     let args: Vec<String> = std::env::args()
         .skip(1)
         .filter(|a| !a.starts_with("--"))
@@ -141,11 +167,16 @@ fn main() {
         .filter(|v: &Vec<usize>| !v.is_empty())
         .unwrap_or_else(|| vec![5, 50]);
     let runs: usize = args.get(1).and_then(|a| a.parse().ok()).unwrap_or(3).max(1);
-    let n_files: usize = args
-        .get(2)
-        .and_then(|a| a.parse().ok())
-        .unwrap_or(2000)
-        .max(1);
+    let n_files: usize = args.get(2).and_then(|a| a.parse().ok()).unwrap_or(2000);
+    let shapes: Vec<String> = args
+        .get(3)
+        .map(|a| a.split(',').map(str::to_string).collect())
+        .unwrap_or_else(|| {
+            netmargin::synth::SHAPES
+                .iter()
+                .map(|s| s.to_string())
+                .collect()
+        });
 
     let exe = std::env::current_exe().expect("the bench's own path");
     // the bench runs from <target>/release/deps/, next to <target>/release/netmargin
@@ -178,75 +209,179 @@ fn main() {
         load()
     );
 
-    // one file, growing size
+    // one file, growing size, each shape
     println!();
-    println!(
-        "| file | netmargin check --format json | MB/s | CPU time | MB per CPU s | cat (floor) | MB/s | check / cat | peak memory | peak / file |"
-    );
-    println!("| ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
-    let mut rates = Vec::new();
-    for &size in &sizes {
-        let (path, len) = big_file(&dir, size);
-        let check_args = [
-            "check".as_ref(),
-            "--format".as_ref(),
-            "json".as_ref(),
-            "--no-config".as_ref(),
-            path.as_os_str(),
-        ];
-        // warm-up: the page cache holds the file, and the run must succeed
-        let first = run(&bin, &check_args, &[], memory);
-        assert!(
-            matches!(first.code, Some(0 | 1)),
-            "netmargin check exited with {:?} on {}",
-            first.code,
-            path.display()
-        );
-        let _ = run(&cat, &[path.as_os_str()], &[], false);
-        let (mut t_check, mut t_cat, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
-        let mut t_cpu = Vec::new();
-        for _ in 0..runs {
-            let c = run(&bin, &check_args, &[], memory);
-            peak = peak.max(c.peak_kb);
-            t_check.push(c.secs);
-            t_cpu.extend(c.cpu);
-            t_cat.push(run(&cat, &[path.as_os_str()], &[], false).secs);
-        }
-        let (c, f) = (median(t_check), median(t_cat));
-        let cpu = (!t_cpu.is_empty()).then(|| median(t_cpu));
-        let mbytes = len as f64 / 1e6;
-        rates.push((size, mbytes / c, cpu.map(|t| mbytes / t)));
-        println!(
-            "| {:.1} MB | {:.3} s | {:.1} | {} | {} | {:.3} s | {:.0} | {:.1} x | {} | {} |",
-            mbytes,
-            c,
-            mbytes / c,
-            cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
-            cpu.map_or("n/a".to_string(), |t| format!("{:.1}", mbytes / t)),
-            f,
-            mbytes / f,
-            c / f,
-            mb(peak),
-            peak.map_or("n/a".to_string(), |k| format!(
-                "{:.2} x",
-                k as f64 * 1024.0 / len as f64
-            )),
-        );
+    // another build of netmargin to compare with, run on the same files in the same run
+    let baseline = std::env::var_os(BASELINE).map(PathBuf::from);
+    if let Some(b) = &baseline {
+        println!("baseline ({BASELINE}): {}", b.display());
     }
-    if let (Some(a), Some(b)) = (rates.first(), rates.last()) {
-        if rates.len() > 1 {
-            println!();
-            println!(
-                "throughput at {} MB / at {} MB: wall {:.2}, CPU {} (1.00 = linear; below 1 = cost grows faster than the size)",
-                b.0,
-                a.0,
-                b.1 / a.1,
-                match (a.2, b.2) {
-                    (Some(x), Some(y)) => format!("{:.2}", y / x),
-                    _ => "n/a".to_string(),
+    let (bh, bs) = if baseline.is_some() {
+        (
+            " baseline CPU | baseline CPU x for 10 x data | baseline peak / file | baseline CPU / CPU |",
+            " ---: | ---: | ---: | ---: |",
+        )
+    } else {
+        ("", "")
+    };
+    println!(
+        "| shape | file | check --format json | MB/s | CPU time | read + model (floor) | floor CPU | check / floor (CPU) | CPU time x for 10 x data | peak memory | peak / file | floor peak / file |{bh}"
+    );
+    println!(
+        "| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |{bs}"
+    );
+    for shape in &shapes {
+        let mut prev: Option<(usize, f64)> = None;
+        let mut prev_base: Option<(usize, f64)> = None;
+        for &size in &sizes {
+            let (path, len) = big_file(&dir, shape, size);
+            let check_args = [
+                "check".as_ref(),
+                "--format".as_ref(),
+                "json".as_ref(),
+                "--no-config".as_ref(),
+                path.as_os_str(),
+            ];
+            let path_str = path.to_string_lossy().into_owned();
+            let floor_env = [(READ_ONLY, Some(path_str.as_str()))];
+            // warm-up: the page cache holds the file, and the run must succeed
+            let first = run(&bin, &check_args, &[], memory);
+            assert!(
+                matches!(first.code, Some(0 | 1)),
+                "netmargin check exited with {:?} on {}",
+                first.code,
+                path.display()
+            );
+            let floor_first = run(&exe, &[], &floor_env, memory);
+            assert_eq!(
+                floor_first.code,
+                Some(0),
+                "read and model {}",
+                path.display()
+            );
+            let (mut t_check, mut t_floor, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
+            let mut floor_peak = floor_first.peak_kb;
+            let (mut t_cpu, mut f_cpu) = (Vec::new(), Vec::new());
+            let (mut b_cost, mut b_peak) = (Vec::new(), None);
+            for _ in 0..runs {
+                if let Some(b) = &baseline {
+                    let r = run(b, &check_args, &[], memory);
+                    b_peak = b_peak.max(r.peak_kb);
+                    b_cost.push(r.cpu.unwrap_or(r.secs));
                 }
+                let c = run(&bin, &check_args, &[], memory);
+                peak = peak.max(c.peak_kb);
+                t_check.push(c.secs);
+                t_cpu.extend(c.cpu);
+                let f = run(&exe, &[], &floor_env, memory);
+                floor_peak = floor_peak.max(f.peak_kb);
+                f_cpu.extend(f.cpu);
+                t_floor.push(f.secs);
+            }
+            let (c, f) = (median(t_check), median(t_floor));
+            let cpu = (!t_cpu.is_empty()).then(|| median(t_cpu));
+            let fcpu = (!f_cpu.is_empty()).then(|| median(f_cpu));
+            let mbytes = len as f64 / 1e6;
+            // CPU time when measured: wall time on a shared machine swings with its load
+            let cost = cpu.unwrap_or(c);
+            let growth = match prev {
+                Some((s0, t0)) if size == s0 * 10 => format!("{:.1}", cost / t0),
+                _ => String::new(),
+            };
+            prev = Some((size, cost));
+            let base_cols = if baseline.is_some() {
+                let bc = median(b_cost);
+                let g = match prev_base {
+                    Some((s0, t0)) if size == s0 * 10 => format!("{:.1}", bc / t0),
+                    _ => String::new(),
+                };
+                prev_base = Some((size, bc));
+                format!(
+                    " {bc:.2} s | {g} | {} | {:.2} x |",
+                    b_peak.map_or("n/a".to_string(), |k| format!(
+                        "{:.2} x",
+                        k as f64 * 1024.0 / len as f64
+                    )),
+                    bc / cost
+                )
+            } else {
+                String::new()
+            };
+            let per_file = |k: Option<u64>| {
+                k.map_or("n/a".to_string(), |k| {
+                    format!("{:.2} x", k as f64 * 1024.0 / len as f64)
+                })
+            };
+            println!(
+                "| {shape} | {:.1} MB | {:.3} s | {:.1} | {} | {:.3} s | {} | {:.2} x | {growth} | {} | {} | {} |{base_cols}",
+                mbytes,
+                c,
+                mbytes / c,
+                cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+                f,
+                fcpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+                match (cpu, fcpu) {
+                    (Some(a), Some(b)) => a / b,
+                    _ => c / f,
+                },
+                mb(peak),
+                per_file(peak),
+                per_file(floor_peak),
             );
         }
+    }
+
+    // start-up: a small netlist against spawning a process that does nothing, and `--version`
+    let small = dir.join("small.net");
+    std::fs::write(&small, netmargin::synth::netlist(5_000)).expect("bench file");
+    let small_args = [
+        "check".as_ref(),
+        "--format".as_ref(),
+        "json".as_ref(),
+        "--no-config".as_ref(),
+        small.as_os_str(),
+    ];
+    let version: [&std::ffi::OsStr; 1] = ["--version".as_ref()];
+    let truth = PathBuf::from("true");
+    let (mut t_true, mut t_version, mut t_small) = (Vec::new(), Vec::new(), Vec::new());
+    let mut t_base = Vec::new();
+    for _ in 0..(runs * 20).max(30) {
+        t_true.push(run(&truth, &[], &[], false).secs);
+        t_version.push(run(&bin, &version, &[], false).secs);
+        t_small.push(run(&bin, &small_args, &[], false).secs);
+        if let Some(b) = &baseline {
+            t_base.push(run(b, &small_args, &[], false).secs);
+        }
+    }
+    let (t, v, c) = (median(t_true), median(t_version), median(t_small));
+    println!();
+    println!("| start-up | median | above `true` |");
+    println!("| --- | ---: | ---: |");
+    println!("| `true` (spawning a process) | {:.2} ms | |", t * 1e3);
+    println!(
+        "| netmargin --version | {:.2} ms | {:.2} ms |",
+        v * 1e3,
+        (v - t) * 1e3
+    );
+    println!(
+        "| netmargin check, {:.1} kB netlist | {:.2} ms | {:.2} ms |",
+        std::fs::metadata(&small).map_or(0, |m| m.len()) as f64 / 1e3,
+        c * 1e3,
+        (c - t) * 1e3
+    );
+    if !t_base.is_empty() {
+        let b = median(t_base);
+        println!(
+            "| baseline check, same netlist | {:.2} ms | {:.2} ms |",
+            b * 1e3,
+            (b - t) * 1e3
+        );
+    }
+    if n_files == 0 {
+        schematics(&bin, &dir, &sizes, runs, memory);
+        println!();
+        println!("load average (1, 5 min) at the end: {}", load());
+        return;
     }
 
     // many small files, 1, 2 and all cores

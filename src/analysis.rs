@@ -185,6 +185,19 @@ pub struct UsedRules {
     pub functions: Vec<(crate::classify::function::Series, String)>,
 }
 
+/// Reads a source into the model: a schematic project (opened by `pipeline::open_source` as
+/// its sheets joined) with the schematic reader, anything else with the one-pass netlist
+/// reader. The only place either runs for the commands.
+pub fn read_model(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
+    if crate::schematic::is_sheet(source.text()) {
+        return crate::schematic::read_source(source);
+    }
+    if let Some(d) = sexpr::sniff(source.text()) {
+        return Err(d);
+    }
+    netlist::read(source.text())
+}
+
 /// One file, read and classified.
 pub struct Analysis<'a> {
     pub source: &'a SourceFile,
@@ -198,15 +211,7 @@ impl<'a> Analysis<'a> {
     /// reader) and classifies every part. `Err` is the diagnostic that stops this file (not a
     /// netlist, malformed).
     pub fn new(source: &'a SourceFile, settings: &'a Settings) -> Result<Analysis<'a>, Diag> {
-        let nl = if crate::schematic::is_sheet(source.text()) {
-            // a schematic project (opened by `pipeline::open_source` as its sheets joined)
-            crate::schematic::read_source(source)?
-        } else {
-            if let Some(d) = sexpr::sniff(source.text()) {
-                return Err(d);
-            }
-            netlist::read(source.text())?
-        };
+        let nl = read_model(source)?;
         let cl = classify(&nl, &settings.rules);
         Ok(Analysis {
             source,

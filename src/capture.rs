@@ -8,9 +8,8 @@ use std::io::{self, Write};
 use serde::Serialize;
 
 use crate::input::ReadOptions;
-use crate::netlist::{self, Netlist};
+use crate::netlist::Netlist;
 use crate::pipeline::{self, FileOutcome};
-use crate::schematic;
 use crate::source::SourceFile;
 use crate::text::sanitize;
 
@@ -30,14 +29,11 @@ impl Capture {
         &self.0
     }
 
-    /// The model; `Err` is an outcome for a capture that could not be modelled.
+    /// The model, read by the analysis's reading stage; `Err` is an outcome for a capture
+    /// that could not be modelled.
     pub fn model(&self) -> Result<Netlist<'_>, Box<FileOutcome>> {
-        let r = if schematic::is_sheet(self.0.text()) {
-            schematic::read_source(&self.0)
-        } else {
-            netlist::read(self.0.text())
-        };
-        r.map_err(|d| Box::new(pipeline::fatal_outcome(&self.0, d)))
+        crate::analysis::read_model(&self.0)
+            .map_err(|d| Box::new(pipeline::fatal_outcome(&self.0, d)))
     }
 }
 

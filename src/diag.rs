@@ -311,4 +311,25 @@ pub static INPUT_CODES: &[(&str, &str)] = &[
         "no-such-net",
         "a net named on the command line is not in the netlist",
     ),
+    (
+        "not-a-schematic",
+        "a sheet file is not a KiCad 6-9 schematic sheet",
+    ),
+    (
+        "malformed-schematic",
+        "an item of a schematic sheet is not written as KiCad writes it (it is left out)",
+    ),
+    (
+        "missing-sheet",
+        "a sub-sheet a schematic names does not exist or cannot be read",
+    ),
+    ("recursive-sheet", "schematic sheets include each other"),
+    (
+        "too-many-sheets",
+        "a schematic hierarchy uses more sheets than netmargin reads",
+    ),
+    (
+        "missing-library-symbol",
+        "a placed symbol's library symbol is not in its sheet",
+    ),
 ];

@@ -102,6 +102,233 @@ pub fn netlist(target_bytes: usize) -> String {
     s
 }
 
+/// The shapes of board the scale benchmark grows: [`netlist`]'s even cells, and shapes that
+/// stress one dimension each.
+pub const SHAPES: &[&str] = &["cells", "dense", "big-net", "two-pin", "identical", "deep"];
+
+/// A netlist of about `target_bytes` bytes in one of the [`SHAPES`] (`None` for an unknown
+/// name):
+///
+/// - `cells`: [`netlist`];
+/// - `dense`: findings on every part: chips with their supply pin on no net and their ground
+///   pin placed but wired to nothing, a chip with its supply pin on a signal net, floating
+///   inputs, resistors with values that do not read; the rails are the last nets;
+/// - `big-net`: every input of every chip on one net, driven by one output;
+/// - `two-pin`: chains of inverters, every net joining one output to one input;
+/// - `identical`: one part (a 74HC00) repeated, every input tied to ground, outputs open;
+/// - `deep`: [`netlist`]'s cells, each on a sheet nested 40 levels deep, with net names to match.
+pub fn shape(name: &str, target_bytes: usize) -> Option<String> {
+    let mut b = Board::new();
+    match name {
+        "cells" => return Some(netlist(target_bytes)),
+        "dense" => {
+            // one cell: U (74HC00, VCC absent, GND alone, inputs floating, outputs alone),
+            // V (74LS04, VCC on a signal net driven by U), R (unreadable value on that net)
+            let cells = (target_bytes / 1700).max(1);
+            for c in 0..cells {
+                b.comp(&format!("U{c}"), "74HC00", "74HC00", "/");
+                b.comp(&format!("V{c}"), "74LS04", "74LS04", "/");
+                b.comp(&format!("R{c}"), "4K7Q", "R", "/");
+                b.net(
+                    &format!("Net-(U{c}-Pad7)"),
+                    &[(format!("U{c}"), 7, "power_in")],
+                );
+                b.net(
+                    &format!("/d{c}/S"),
+                    &[
+                        (format!("U{c}"), 3, "output"),
+                        (format!("V{c}"), 14, "power_in"),
+                        (format!("R{c}"), 1, "passive"),
+                    ],
+                );
+                b.net(
+                    &format!("/d{c}/F"),
+                    &[(format!("U{c}"), 1, "input"), (format!("U{c}"), 2, "input")],
+                );
+            }
+            let gnd: Vec<_> = (0..cells)
+                .map(|c| (format!("V{c}"), 7, "power_in"))
+                .collect();
+            let vcc: Vec<_> = (0..cells)
+                .map(|c| (format!("R{c}"), 2, "passive"))
+                .collect();
+            b.net("+5V", &vcc);
+            b.net("GND", &gnd);
+        }
+        "big-net" => {
+            // about 8 nodes and one component per 520 bytes
+            let chips = (target_bytes / 1000).max(1);
+            b.comp("D1", "74HC04", "74HC04", "/");
+            let mut bus = vec![("D1".to_string(), 2, "output")];
+            let (mut vcc, mut gnd) = (Vec::new(), Vec::new());
+            for c in 0..chips {
+                b.comp(&format!("U{c}"), "74HC00", "74HC00", "/");
+                for p in [1, 2, 4, 5, 9, 10, 12, 13] {
+                    bus.push((format!("U{c}"), p, "input"));
+                }
+                vcc.push((format!("U{c}"), 14, "power_in"));
+                gnd.push((format!("U{c}"), 7, "power_in"));
+            }
+            b.net("/BUS", &bus);
+            b.net("+5V", &vcc);
+            b.net("GND", &gnd);
+        }
+        "two-pin" => {
+            // a chain of 74HC04 gates: 1A of the first chip starts it, each output feeds the
+            // next gate's input (the next chip after the sixth gate)
+            let chips = (target_bytes / 2100).max(1);
+            let (mut vcc, mut gnd) = (Vec::new(), Vec::new());
+            const INS: [u32; 6] = [1, 3, 5, 9, 11, 13];
+            const OUTS: [u32; 6] = [2, 4, 6, 8, 10, 12];
+            for c in 0..chips {
+                b.comp(&format!("U{c}"), "74HC04", "74HC04", "/");
+                vcc.push((format!("U{c}"), 14, "power_in"));
+                gnd.push((format!("U{c}"), 7, "power_in"));
+            }
+            gnd.push(("U0".to_string(), 1, "input"));
+            for c in 0..chips {
+                for g in 0..6 {
+                    let (nc, ng) = if g == 5 { (c + 1, 0) } else { (c, g + 1) };
+                    if nc == chips {
+                        continue;
+                    }
+                    b.net(
+                        &format!("Net-(U{c}-Pad{})", OUTS[g]),
+                        &[
+                            (format!("U{c}"), OUTS[g], "output"),
+                            (format!("U{nc}"), INS[ng], "input"),
+                        ],
+                    );
+                }
+            }
+            b.net("+5V", &vcc);
+            b.net("GND", &gnd);
+        }
+        "identical" => {
+            let chips = (target_bytes / 1000).max(1);
+            let (mut vcc, mut gnd) = (Vec::new(), Vec::new());
+            for c in 0..chips {
+                b.comp(&format!("U{c}"), "74HC00", "74HC00", "/");
+                vcc.push((format!("U{c}"), 14, "power_in"));
+                gnd.push((format!("U{c}"), 7, "power_in"));
+                for p in [1, 2, 4, 5, 9, 10, 12, 13] {
+                    gnd.push((format!("U{c}"), p, "input"));
+                }
+            }
+            b.net("+5V", &vcc);
+            b.net("GND", &gnd);
+        }
+        "deep" => {
+            let cells = (target_bytes / 4600).max(1);
+            let (mut vcc, mut gnd) = (Vec::new(), Vec::new());
+            for c in 0..cells {
+                let sheet: String = (0..40).map(|d| format!("/s{}_{d}", c % 97)).collect();
+                let sheet = format!("{sheet}/c{c}/");
+                let (u, v, r) = (format!("U{c}"), format!("V{c}"), format!("R{c}"));
+                b.comp(&u, "74HC00", "74HC00", &sheet);
+                b.comp(&v, "74LS04", "74LS04", &sheet);
+                b.comp(&r, "4K7", "R", &sheet);
+                b.net(
+                    &format!("{sheet}A"),
+                    &[
+                        (v.clone(), 2, "output"),
+                        (u.clone(), 1, "input"),
+                        (u.clone(), 2, "input"),
+                        (r.clone(), 2, "passive"),
+                    ],
+                );
+                b.net(
+                    &format!("{sheet}Y"),
+                    &[
+                        (u.clone(), 3, "output"),
+                        (v.clone(), 1, "input"),
+                        (u.clone(), 4, "input"),
+                        (u.clone(), 5, "input"),
+                    ],
+                );
+                vcc.extend([
+                    (u.clone(), 14, "power_in"),
+                    (v.clone(), 14, "power_in"),
+                    (r.clone(), 1, "passive"),
+                ]);
+                gnd.extend([(u.clone(), 7, "power_in"), (v.clone(), 7, "power_in")]);
+            }
+            b.net("+5V", &vcc);
+            b.net("GND", &gnd);
+        }
+        _ => return None,
+    }
+    Some(b.finish())
+}
+
+/// A netlist written part by part (components, then libparts, then nets).
+struct Board {
+    comps: String,
+    nets: String,
+    code: usize,
+}
+
+impl Board {
+    fn new() -> Board {
+        Board {
+            comps: String::new(),
+            nets: String::new(),
+            code: 1,
+        }
+    }
+
+    fn comp(&mut self, reference: &str, value: &str, lib: &str, sheet: &str) {
+        let n = self.code + self.comps.len();
+        let _ = write!(
+            self.comps,
+            "    (comp (ref \"{reference}\")\n      (value \"{value}\")\n      (footprint \"Package_DIP:DIP-14_W7.62mm\")\n      (libsource (lib \"x\") (part \"{lib}\") (description \"\"))\n      (sheetpath (names \"{sheet}\") (tstamps \"{sheet}\"))\n      (tstamps \"{:08x}-0000-4000-8000-{:012x}\"))\n",
+            n % 0xffff_ffff,
+            n
+        );
+    }
+
+    fn net(&mut self, name: &str, nodes: &[(String, u32, &str)]) {
+        let _ = write!(
+            self.nets,
+            "    (net (code \"{}\") (name \"{name}\")",
+            self.code
+        );
+        for (r, pin, t) in nodes {
+            let _ = write!(
+                self.nets,
+                "\n      (node (ref \"{r}\") (pin \"{pin}\") (pintype \"{t}\"))"
+            );
+        }
+        self.nets.push_str(")\n");
+        self.code += 1;
+    }
+
+    fn finish(self) -> String {
+        let mut s = String::with_capacity(self.comps.len() + self.nets.len() + 4096);
+        s.push_str("(export (version \"E\")\n  (design\n    (source \"/synthetic/board.kicad_sch\")\n    (date \"2026-01-01T00:00:00\")\n    (tool \"Eeschema 8.0.0\")\n    (sheet (number \"1\") (name \"/\") (tstamps \"/\")))\n  (components\n");
+        s.push_str(&self.comps);
+        s.push_str("  )\n  (libparts\n");
+        for (part, pins) in [("74HC00", 14), ("74HC04", 14), ("74LS04", 14), ("R", 2)] {
+            let _ = writeln!(s, "    (libpart (lib \"x\") (part \"{part}\")\n      (pins");
+            for p in 1..=pins {
+                let t = match (part, p) {
+                    (_, 7) | (_, 14) if pins == 14 => "power_in",
+                    ("74HC00", 3 | 6 | 8 | 11) => "output",
+                    ("74HC04" | "74LS04", 2 | 4 | 6 | 8 | 10 | 12) => "output",
+                    _ if pins == 2 => "passive",
+                    _ => "input",
+                };
+                let _ = writeln!(s, "        (pin (num \"{p}\") (name \"~\") (type \"{t}\"))");
+            }
+            s.push_str("      ))\n");
+        }
+        s.push_str("  )\n  (nets\n");
+        s.push_str(&self.nets);
+        s.push_str("  )\n)\n");
+        s
+    }
+}
+
 /// The `i`-th variant of a netlist from [`netlist`]: every reference renamed (`U7` ->
 /// `U3_7`), so a folder of them holds no two files with the same text.
 pub fn variant(base: &str, i: usize) -> String {
@@ -114,6 +341,26 @@ pub fn variant(base: &str, i: usize) -> String {
 
 #[cfg(test)]
 mod tests {
+    #[test]
+    fn every_shape_reads_cleanly_at_about_the_size_asked() {
+        for name in super::SHAPES {
+            let text = super::shape(name, 300_000).unwrap();
+            assert!(
+                // the cell sizes are estimates: within about a third of the size asked
+                text.len() > 180_000 && text.len() < 400_000,
+                "{name}: {}",
+                text.len()
+            );
+            let nl = crate::netlist::read(&text).unwrap();
+            assert!(
+                nl.diagnostics.is_empty(),
+                "{name}: {:?}",
+                nl.diagnostics.first()
+            );
+        }
+        assert!(super::shape("no such shape", 1000).is_none());
+    }
+
     #[test]
     fn generated_netlist_reads_cleanly_at_about_the_size_asked() {
         let text = super::netlist(200_000);

@@ -242,7 +242,7 @@ fn one_file_per_error_class() {
         ("empty.net", 2, "empty-file", None, "the file is empty"),
         ("whitespace-only.net", 2, "empty-file", None, "only white space"),
         ("netlist.json", 2, "wrong-format", Some((1, 1)), "looks like JSON"),
-        ("schematic.kicad_sch", 2, "wrong-format", Some((1, 2)), "a KiCad schematic"),
+        ("schematic.kicad_sch", 2, "missing-library-symbol", Some((5, 11)), "library symbol is not in the sheet"),
         ("board.kicad_pcb", 2, "wrong-format", Some((1, 2)), "a KiCad board layout"),
         ("legacy-schematic.sch", 2, "wrong-format", Some((1, 1)), "legacy KiCad schematic"),
         // not one of the README's places (`{` at 1:3, `*` at 14:1): the header's first character

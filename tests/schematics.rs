@@ -214,3 +214,154 @@ fn the_synthetic_schematic_reads_into_its_nets() {
         .collect();
     assert_eq!(pins, ["R1.2", "R2.1"]);
 }
+
+/// Every output format points a finding into the sheet where the gate is drawn: the short
+/// line, the GitHub annotation, the JSON place (with its `file`) and the SARIF location.
+#[test]
+fn findings_point_into_the_sheet_in_every_format() {
+    let run = |format: &str| {
+        let o = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+            .args(["check", "--no-config", "--format", format])
+            .arg("fixtures/schematics/cmos/panel.kicad_sch")
+            .output()
+            .expect("runs");
+        assert_eq!(o.status.code(), Some(1), "{format}");
+        String::from_utf8(o.stdout).unwrap()
+    };
+    // the unplaced gate B's inputs: the library symbol's pin in logic.kicad_sch, line 14
+    let short = run("short");
+    assert!(
+        short.contains("fixtures/schematics/cmos/logic.kicad_sch:14:9: error: gate B of U1"),
+        "{short}"
+    );
+    let github = run("github");
+    assert!(
+        github.contains("file=fixtures/schematics/cmos/logic.kicad_sch,line=14,col=9"),
+        "{github}"
+    );
+    let json: serde_json::Value = serde_json::from_str(&run("json")).unwrap();
+    let file = &json["files"][0];
+    assert_eq!(file["path"], "fixtures/schematics/cmos/panel.kicad_sch");
+    let f = file["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["message"].as_str().unwrap().starts_with("gate B of U1"))
+        .expect("the gate B finding");
+    assert_eq!(f["file"], "fixtures/schematics/cmos/logic.kicad_sch");
+    assert_eq!(f["line"], 14);
+    // the offset counts from the start of that sheet
+    let sheet = std::fs::read_to_string("fixtures/schematics/cmos/logic.kicad_sch").unwrap();
+    let off = f["byte_offset"].as_u64().unwrap() as usize;
+    assert!(
+        sheet[off..].starts_with("(pin input"),
+        "{}",
+        &sheet[off..off + 20]
+    );
+    let sarif = run("sarif");
+    assert!(
+        sarif.contains("\"uri\": \"fixtures/schematics/cmos/logic.kicad_sch\""),
+        "{sarif}"
+    );
+}
+
+/// A symbol marked do-not-populate stays on its nets and carries the `dnp` property, as KiCad
+/// writes it in a netlist; the others do not.
+#[test]
+fn a_do_not_populate_symbol_carries_the_mark() {
+    let cap = Capture::open(
+        "fixtures/schematics/wires/wires.kicad_sch",
+        &ReadOptions::default(),
+    )
+    .unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let nl = cap.model().unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let r5 = &nl.components[nl.component("R5").unwrap()];
+    assert!(r5.field("dnp").is_some());
+    assert!(r5.pins.iter().all(|p| !p.connection.is_unconnected()));
+    let r1 = &nl.components[nl.component("R1").unwrap()];
+    assert!(r1.field("dnp").is_none());
+}
+
+/// `compare` sets two captures side by side by pins: a copy of a project with one wire
+/// taken away and one value changed differs exactly there (exit 1); a project against
+/// itself, or against its own `nets` read back, matches (exit 0).
+#[test]
+fn compare_reports_pins_and_parts_that_differ() {
+    let dir = std::env::temp_dir().join(format!("netmargin-compare-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let text = std::fs::read_to_string("fixtures/schematics/wires/wires.kicad_sch").unwrap();
+    // R1's value, and the wire that brings R5.2 to R4.2's path
+    let changed = text
+        .replacen(
+            "(property \"Value\" \"10k\"",
+            "(property \"Value\" \"22k\"",
+            1,
+        )
+        .replace(
+            "  (wire (pts (xy 105.41 88.9) (xy 105.41 63.5))",
+            "  (polyline (pts (xy 105.41 88.9) (xy 105.41 63.5))",
+        );
+    assert_ne!(changed, text);
+    let b = dir.join("wires.kicad_sch");
+    std::fs::write(&b, changed).unwrap();
+    let run = |a: &str, b: &str| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+            .args(["compare", a, b])
+            .output()
+            .expect("runs")
+    };
+    let o = run(
+        "fixtures/schematics/wires/wires.kicad_sch",
+        b.to_str().unwrap(),
+    );
+    let out = String::from_utf8_lossy(&o.stdout).into_owned();
+    assert_eq!(o.status.code(), Some(1), "{out}");
+    assert!(out.contains("R1: value `10k` in A, `22k` in B"), "{out}");
+    // R4.2 and R5.2 no longer reach each other: both pins are reported, by pins
+    assert!(out.contains("R4.2: connections differ"), "{out}");
+    assert!(out.contains("  only in A: R5.2"), "{out}");
+    assert!(out.contains("R5.2: connections differ"), "{out}");
+    assert!(
+        out.contains("2 pin(s) connected differently, 0 part(s) added, 0 removed, 1 changed"),
+        "{out}"
+    );
+    let same = run(
+        "fixtures/schematics/wires/wires.kicad_sch",
+        "fixtures/schematics/wires/wires.kicad_sch",
+    );
+    assert_eq!(same.status.code(), Some(0));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// A project whose sheet sits in a sub-folder (named `parts/stage.kicad_sch` by the root):
+/// the sheet stands for the root a folder above it, and the project reads into the same
+/// nets as with the sheet beside the root.
+#[test]
+fn a_sheet_in_a_sub_folder_finds_its_root_above() {
+    let dir = std::env::temp_dir().join(format!("netmargin-subfolder-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(dir.join("parts")).unwrap();
+    let root = std::fs::read_to_string("fixtures/schematics/hierarchy/tally.kicad_sch").unwrap();
+    let moved = root.replace("\"stage.kicad_sch\"", "\"parts/stage.kicad_sch\"");
+    assert_ne!(root, moved);
+    std::fs::write(dir.join("tally.kicad_sch"), moved).unwrap();
+    std::fs::copy(
+        "fixtures/schematics/hierarchy/stage.kicad_sch",
+        dir.join("parts/stage.kicad_sch"),
+    )
+    .unwrap();
+    let sub = dir.join("parts/stage.kicad_sch");
+    let found = netmargin::schematic::load::project_root(&sub);
+    assert_eq!(
+        found.canonicalize().unwrap(),
+        dir.join("tally.kicad_sch").canonicalize().unwrap()
+    );
+    let cap = Capture::open(sub.to_str().unwrap(), &ReadOptions::default())
+        .unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let nl = cap.model().unwrap_or_else(|f| panic!("{:?}", f.fatal));
+    let mut out = Vec::new();
+    capture::write_nets(&mut out, &nl, false).unwrap();
+    let want = std::fs::read_to_string("fixtures/schematics/hierarchy/expected-nets.txt").unwrap();
+    assert_eq!(String::from_utf8(out).unwrap(), want);
+    let _ = std::fs::remove_dir_all(&dir);
+}

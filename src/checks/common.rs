@@ -58,7 +58,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
                 continue;
             }
             // a control input that must be held at one level is `open-control-input`'s
-            if idle_level(ctx, ci, pi).is_some() {
+            if cx.idle_level(ci, pi).is_some() {
                 continue;
             }
             let why = match p.connection {
@@ -118,16 +118,6 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
         }
     }
     (singles, gates)
-}
-
-/// The level at which `pin` of component `comp` must be held (a processor's ~WAIT: high), from
-/// the function table's `idle`; `None` for an ordinary input.
-pub fn idle_level(ctx: &Context<'_, '_, '_>, comp: usize, pin: usize) -> Option<bool> {
-    let cx = ctx.cx;
-    let part = &cx.cl.parts[comp];
-    let (series, id) = part.function.as_ref()?;
-    let num = &cx.nl.components[comp].pins[pin].num;
-    cx.rules.functions.get(*series, id)?.pin(num)?.idle_high
 }
 
 /// `pins 12 (4A) and 13 (4B)`
@@ -226,5 +216,39 @@ pub fn switch_names(ctx: &Context<'_, '_, '_>, links: &[crate::circuit::SwitchLi
         0 => String::new(),
         1 => refs[0].to_string(),
         n => format!("{} and {}", refs[..n - 1].join(", "), refs[n - 1]),
+    }
+}
+
+/// The board's rail nets, gathered once per file so that a check asking "which rail should
+/// this pin go to" for each finding never scans every net again.
+#[derive(Debug, Default)]
+pub struct RailIndex {
+    /// The first net (in net order) of each distinct rail (ground or not, voltage): every
+    /// question asked of the index depends on those two alone, so the first answer among
+    /// these is the first among all rail nets, and the list stays as short as the board has
+    /// kinds of rail.
+    rails: Vec<(usize, crate::circuit::Rail)>,
+}
+
+impl RailIndex {
+    pub fn new(cx: &crate::circuit::Circuit<'_, '_>) -> RailIndex {
+        let mut seen = rustc_hash::FxHashSet::default();
+        RailIndex {
+            rails: cx
+                .nets
+                .iter()
+                .enumerate()
+                .filter_map(|(n, nm)| nm.rail.map(|r| (n, r)))
+                .filter(|(_, r)| seen.insert((r.ground, r.volts.map(f64::to_bits))))
+                .collect(),
+        }
+    }
+
+    /// The first rail net (in net order) for which `f` holds.
+    pub fn find(
+        &self,
+        f: impl Fn(&crate::circuit::Rail) -> bool,
+    ) -> Option<(usize, crate::circuit::Rail)> {
+        self.rails.iter().find(|(_, r)| f(r)).copied()
     }
 }

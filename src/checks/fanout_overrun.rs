@@ -94,8 +94,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 };
                 let detail = if same && !sb.items.is_empty() {
                     format!(
-                        "{} inputs x {}{through_note}",
+                        "{} input{} x {}{through_note}",
                         n_inputs,
+                        if n_inputs == 1 { "" } else { "s" },
                         format_amps(sb.items[0].amps)
                     )
                 } else {

@@ -120,6 +120,8 @@ pub struct Context<'c, 'n, 'a> {
     /// Every net's budget, by net index, computed once by the caller (`circuit::budget`).
     pub budgets: &'c [NetBudget],
     pub opts: &'c CheckOptions,
+    /// The rail nets, gathered once.
+    pub rails: common::RailIndex,
 }
 
 type CheckFn = fn(&Context<'_, '_, '_>, &mut Vec<Diag>);
@@ -127,7 +129,12 @@ type CheckFn = fn(&Context<'_, '_, '_>, &mut Vec<Diag>);
 /// Runs every enabled check on the circuit and its budgets (computed once by the caller,
 /// [`crate::analysis`]) and returns the findings in file order.
 pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> Vec<Diag> {
-    let ctx = Context { cx, budgets, opts };
+    let ctx = Context {
+        cx,
+        budgets,
+        opts,
+        rails: common::RailIndex::new(cx),
+    };
     let mut out = Vec::new();
     for (info, f) in RUNS {
         let id = info.id;

@@ -27,7 +27,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a processor's, peripheral's or memory's control input left open instead of held at its idle level",
 };
 
-use super::common::{ground_rail_name, idle_level, supply_rail_name, Float};
+use super::common::{ground_rail_name, supply_rail_name, Float};
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::family::Drive;
@@ -61,7 +61,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             continue;
         }
         for (pi, p) in c.pins.iter().enumerate() {
-            let Some(high) = idle_level(ctx, ci, pi) else {
+            let Some(high) = ctx.cx.idle_level(ci, pi) else {
                 continue;
             };
             if !cx.roles[ci][pi].is_input() {

@@ -415,15 +415,10 @@ fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut Vec<Diag>) {
 /// pin, a ground rail.
 fn suggest_rail(ctx: &Context<'_, '_, '_>, ci: usize, side: Side) -> String {
     let cx = ctx.cx;
-    let rails = || {
-        cx.nets
-            .iter()
-            .enumerate()
-            .filter_map(|(n, nm)| nm.rail.map(|r| (n, r)))
-    };
     match side {
-        Side::Ground => rails()
-            .find(|(_, r)| r.ground)
+        Side::Ground => ctx
+            .rails
+            .find(|r| r.ground)
             .map(|(n, _)| cx.net_name(n))
             .unwrap_or_else(|| "the ground rail".into()),
         Side::Supply => {
@@ -431,11 +426,11 @@ fn suggest_rail(ctx: &Context<'_, '_, '_>, ci: usize, side: Side) -> String {
                 return "the part's positive supply".into();
             };
             let fits = |v: f64| v >= fam.supply_min - 1e-9 && v <= fam.supply_max + 1e-9;
-            let nominal = rails().find(|(_, r)| {
+            let nominal = ctx.rails.find(|r| {
                 r.volts
                     .is_some_and(|v| (v - fam.supply_nominal).abs() < 1e-9)
             });
-            let any = rails().find(|(_, r)| !r.ground && r.volts.is_some_and(fits));
+            let any = ctx.rails.find(|r| !r.ground && r.volts.is_some_and(fits));
             let range = format!(
                 "the {} family runs from {} to {}",
                 fam.id,

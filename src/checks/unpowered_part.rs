@@ -139,23 +139,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             )
         };
         let supply_rail = cx.family(ci).and_then(|fam| {
-            cx.nets
-                .iter()
-                .enumerate()
-                .find(|(_, nm)| {
-                    nm.rail.is_some_and(|r| {
-                        !r.ground
-                            && r.volts
-                                .is_some_and(|v| (v - fam.supply_nominal).abs() < 1e-9)
-                    })
+            ctx.rails
+                .find(|r| {
+                    !r.ground
+                        && r.volts
+                            .is_some_and(|v| (v - fam.supply_nominal).abs() < 1e-9)
                 })
                 .map(|(n, _)| (cx.net_name(n), fam.supply_nominal))
         });
-        let ground_rail = cx
-            .nets
-            .iter()
-            .enumerate()
-            .find(|(_, nm)| nm.rail.is_some_and(|r| r.ground))
+        let ground_rail = ctx
+            .rails
+            .find(|r| r.ground)
             .map(|(n, _)| cx.net_name(n))
             .unwrap_or_else(|| "GND".into());
         let wires: Vec<String> = found

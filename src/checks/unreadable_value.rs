@@ -48,7 +48,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let reference = c.reference.as_str();
         // the nets it would pull, each with the resistor's pin there and the rail
         let mut pulled: Vec<(usize, PinRef, Option<usize>)> = Vec::new();
-        for (net, nm) in cx.nets.iter().enumerate() {
+        // only the nets the part is on can list it (the pin lookup below needs one there)
+        let mut nets: Vec<usize> = c.pins.iter().filter_map(|p| p.connection.net()).collect();
+        nets.sort_unstable();
+        nets.dedup();
+        for net in nets {
+            let nm = &cx.nets[net];
             if !nm.unreadable.iter().any(|(r, _)| *r == ci) {
                 continue;
             }

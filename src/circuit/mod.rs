@@ -302,6 +302,15 @@ impl<'n, 'a> Circuit<'n, 'a> {
         })
     }
 
+    /// The level at which a processor's, peripheral's or memory's control input lets the part
+    /// run undisturbed (`idle` in the function table): `Some(true)` high, `Some(false)` low,
+    /// `None` for any other pin.
+    pub fn idle_level(&self, comp: usize, pin: usize) -> Option<bool> {
+        let (series, id) = self.cl.parts[comp].function.as_ref()?;
+        let num = &self.nl.components[comp].pins[pin].num;
+        self.rules.functions.get(*series, id)?.pin(num)?.idle_high
+    }
+
     pub fn role(&self, p: PinRef) -> PinRole {
         self.roles[p.comp][p.pin]
     }

@@ -17,7 +17,7 @@ use crate::classify::RuleError;
 const BUILTIN_TEXT: &str = include_str!("../../rules/families.toml");
 
 /// How an input behaves when nothing drives it.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
 pub enum InputKind {
     /// Bipolar input that sources current when low: it floats high through its internal resistor.
     Ttl,
@@ -41,7 +41,7 @@ impl fmt::Display for InputKind {
 }
 
 /// The process a family is built in.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
 pub enum Technology {
     Bipolar,
     Cmos,
@@ -65,7 +65,9 @@ impl fmt::Display for Technology {
 }
 
 /// How far a family's output high reaches, beyond its VOH rows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize,
+)]
 pub enum HighOutput {
     /// The rows say it all: a CMOS output published down to light loads, or a bipolar / NMOS
     /// output (whose technology already says that its high stops near 3.5 V at 5 V).
@@ -82,7 +84,7 @@ pub enum HighOutput {
 
 /// A guaranteed level at a load current: `v` volts at `a` amperes (signed: out of the pin is
 /// negative).
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct VI {
     pub v: f64,
     pub a: f64,
@@ -90,14 +92,14 @@ pub struct VI {
 
 /// Which outputs of a family: ordinary gate outputs, or the bus-driver / buffer outputs
 /// (244, 245, 240, 541, 374 class).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
 pub enum Drive {
     Standard,
     Buffer,
 }
 
 /// The output figures of one kind of output at one supply point.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Output {
     /// Rated high-level output current (negative).
     pub ioh_max: f64,
@@ -110,7 +112,7 @@ pub struct Output {
 }
 
 /// A family's published figures at one supply voltage, in volts and amperes.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Point {
     pub vcc: f64,
     pub vih_min: f64,
@@ -222,7 +224,7 @@ fn level_at(rows: &[VI], a: f64) -> Option<f64> {
 }
 
 /// One logic family.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Family {
     pub id: String,
     pub name: String,
@@ -444,20 +446,20 @@ fn from_point(p: &Point, drive: Drive, basis: Basis) -> Levels {
 }
 
 /// The set of known families: the shipped table, possibly with a project's file over it.
-#[derive(Debug, Clone, PartialEq, Default)]
+#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
 pub struct FamilyTable {
     families: Vec<Family>,
 }
 
 impl FamilyTable {
-    /// the shipped table, embedded with include_str!("../../rules/families.toml")
-    pub fn builtin() -> FamilyTable {
-        let mut table = FamilyTable::parse(BUILTIN_TEXT)
-            .expect("the shipped rules/families.toml is valid (a test loads it)");
+    /// The shipped table read from its text, `rules/families.toml`. `build.rs` calls this
+    /// at compile time; the binary loads its result (`builtin`, in `shipped.rs`).
+    pub fn parse_shipped() -> Result<FamilyTable, Vec<RuleError>> {
+        let mut table = FamilyTable::parse(BUILTIN_TEXT)?;
         for f in &mut table.families {
             f.shipped = true;
         }
-        table
+        Ok(table)
     }
 
     /// The text of the shipped families file (for `config --show` and for error rendering).

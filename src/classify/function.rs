@@ -38,7 +38,9 @@ use super::{PinRole, RuleError};
 pub const BUILTIN_TEXT: &str = include_str!("../../rules/functions.toml");
 
 /// The numbering series a function belongs to.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize,
+)]
 pub enum Series {
     /// 54/74-series numbering (74LS00, 74HC4051 are both "74").
     S74,
@@ -60,7 +62,9 @@ impl Series {
 }
 
 /// How strongly a function's outputs drive: bus drivers have their own (larger) ratings.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, Hash, Default, serde::Serialize, serde::Deserialize,
+)]
 pub enum DriveClass {
     #[default]
     Standard,
@@ -68,7 +72,7 @@ pub enum DriveClass {
 }
 
 /// One package pin of a function.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct PinDef {
     /// The pin number as text ("1" .. "40").
     pub pin: String,
@@ -88,14 +92,14 @@ pub struct PinDef {
 
 /// A family-dependent change of output kind: the open-collector outputs of the function
 /// become `outputs` in `families`.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Variant {
     pub families: Vec<String>,
     pub outputs: PinRole,
 }
 
 /// One function of the table.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Function {
     pub id: String,
     pub summary: String,
@@ -194,17 +198,17 @@ impl Function {
 }
 
 /// All functions, keyed by series and id.
-#[derive(Debug, Clone, Default)]
+#[derive(Debug, Clone, Default, serde::Serialize, serde::Deserialize)]
 pub struct FunctionTable {
     functions: Vec<Function>,
     index: HashMap<(Series, String), usize>,
 }
 
 impl FunctionTable {
-    /// The table shipped in the binary (`rules/functions.toml`).
-    pub fn builtin() -> FunctionTable {
+    /// The shipped table read from its text, `rules/functions.toml`. `build.rs` calls this
+    /// at compile time; the binary loads its result (`builtin`, in `shipped.rs`).
+    pub fn parse_shipped() -> Result<FunctionTable, Vec<RuleError>> {
         FunctionTable::parse(BUILTIN_TEXT)
-            .expect("the built-in function table is checked by the test suite and must load")
     }
 
     /// Parses and validates a function file; every problem found is returned, with its span.

@@ -26,14 +26,14 @@ use super::RuleError;
 
 pub const BUILTIN_TEXT: &str = include_str!("../../rules/parts.toml");
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub enum EntryKind {
     Logic,
     NotLogic,
 }
 
 /// One explicit entry.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, serde::Serialize, serde::Deserialize)]
 pub struct PartEntry {
     pub values: Vec<String>,
     pub kind: EntryKind,
@@ -56,7 +56,7 @@ impl PartEntry {
 }
 
 /// The entries of the shipped file and any project file (project entries first).
-#[derive(Debug, Clone, Default)]
+#[derive(Debug, Clone, Default, serde::Serialize, serde::Deserialize)]
 pub struct PartTable {
     pub entries: Vec<PartEntry>,
 }
@@ -85,9 +85,10 @@ struct RawPart {
 }
 
 impl PartTable {
-    pub fn builtin() -> PartTable {
+    /// The shipped table read from its text, `rules/parts.toml`. `build.rs` calls this at
+    /// compile time; the binary loads its result (`builtin`, in `shipped.rs`).
+    pub fn parse_shipped() -> Result<PartTable, Vec<RuleError>> {
         PartTable::parse(BUILTIN_TEXT, true)
-            .expect("the shipped rules/parts.toml is valid (tested)")
     }
 
     pub fn parse(text: &str, shipped: bool) -> Result<PartTable, Vec<RuleError>> {

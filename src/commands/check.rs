@@ -130,39 +130,44 @@ pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Ru
             loaded.insert(p.clone(), Settings::load(Some(p), over, read));
         }
     }
-    let builtin = Settings::builtin(over, read);
-    let results: Vec<(FileOutcome, pipeline::Usage)> = files
-        .par_iter()
-        .zip(per_file.par_iter())
-        .map(
-            |(f, cp)| match cp.as_ref().map(|p| loaded.get(p).expect("loaded above")) {
-                Some(Err(_)) => (
-                    FileOutcome {
-                        name: if f == "-" {
-                            "<stdin>".into()
-                        } else {
-                            f.clone()
-                        },
-                        source: None,
-                        fatal: Some(Diag::error(
-                            "config",
-                            format!(
-                                "not checked: its configuration `{}` has errors (shown below)",
-                                cp.as_ref().expect("some").display()
-                            ),
-                        )),
-                        diags: Vec::new(),
-                        summary: Default::default(),
-                        coverage: None,
-                        waived: 0,
+    // the shipped settings, made only when a file has no configuration of its own
+    let builtin = std::sync::OnceLock::new();
+    let one = |(f, cp): (&String, &Option<PathBuf>)| -> (FileOutcome, pipeline::Usage) {
+        match cp.as_ref().map(|p| loaded.get(p).expect("loaded above")) {
+            Some(Err(_)) => (
+                FileOutcome {
+                    name: if f == "-" {
+                        "<stdin>".into()
+                    } else {
+                        f.clone()
                     },
-                    Default::default(),
-                ),
-                Some(Ok(s)) => pipeline::check_file_with(f, s),
-                None => pipeline::check_file_with(f, &builtin),
-            },
-        )
-        .collect();
+                    source: None,
+                    fatal: Some(Diag::error(
+                        "config",
+                        format!(
+                            "not checked: its configuration `{}` has errors (shown below)",
+                            cp.as_ref().expect("some").display()
+                        ),
+                    )),
+                    diags: Vec::new(),
+                    summary: Default::default(),
+                    coverage: None,
+                    waived: 0,
+                },
+                Default::default(),
+            ),
+            Some(Ok(s)) => pipeline::check_file_with(f, s),
+            None => {
+                pipeline::check_file_with(f, builtin.get_or_init(|| Settings::builtin(over, read)))
+            }
+        }
+    };
+    // one file needs no thread pool (starting one is a noticeable part of a hook's run)
+    let results: Vec<(FileOutcome, pipeline::Usage)> = if files.len() == 1 {
+        files.iter().zip(per_file.iter()).map(one).collect()
+    } else {
+        files.par_iter().zip(per_file.par_iter()).map(one).collect()
+    };
     let (outcomes, usage): (Vec<FileOutcome>, Vec<pipeline::Usage>) = results.into_iter().unzip();
 
     // stale waivers and unused mapping entries, per configuration

@@ -21,14 +21,10 @@ pub fn command(args: &CompareArgs, read: &ReadOptions, color: ColorChoice) -> st
             return Ok(2);
         }
     };
-    let (na, nb) = match (a.model(), b.model()) {
+    let (na, nb) = match (read_model(&a), read_model(&b)) {
         (Ok(x), Ok(y)) => (x, y),
         (x, y) => {
-            let failed: Vec<_> = [x.err(), y.err()]
-                .into_iter()
-                .flatten()
-                .map(|f| *f)
-                .collect();
+            let failed: Vec<_> = [x.err(), y.err()].into_iter().flatten().collect();
             super::to_stderr(&failed, color)?;
             return Ok(2);
         }
@@ -38,4 +34,10 @@ pub fn command(args: &CompareArgs, read: &ReadOptions, color: ColorChoice) -> st
     capture::write_differences(&mut out, &d, &args.a, &args.b)?;
     out.flush()?;
     Ok(if d.is_empty() { 0 } else { 1 })
+}
+
+/// The model of a capture, read by the analysis's reading stage.
+fn read_model(c: &Capture) -> Result<crate::netlist::Netlist<'_>, crate::pipeline::FileOutcome> {
+    crate::analysis::read_model(c.source())
+        .map_err(|d| crate::pipeline::fatal_outcome(c.source(), d))
 }

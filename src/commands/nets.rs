@@ -14,10 +14,10 @@ pub fn command(args: &NetsArgs, read: &ReadOptions, color: ColorChoice) -> std::
             return Ok(2);
         }
     };
-    let nl = match cap.model() {
+    let nl = match crate::analysis::read_model(cap.source()) {
         Ok(nl) => nl,
-        Err(f) => {
-            super::to_stderr(&[*f], color)?;
+        Err(d) => {
+            super::to_stderr(&[crate::pipeline::fatal_outcome(cap.source(), d)], color)?;
             return Ok(2);
         }
     };

@@ -78,6 +78,10 @@ struct Related<'a> {
 
 #[derive(Serialize, Default)]
 struct PlaceOut {
+    /// The sheet file the place is in, for a schematic project (absent for a netlist: the
+    /// file's `path` says it).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    file: Option<String>,
     line: Option<usize>,
     column: Option<usize>,
     end_line: Option<usize>,
@@ -92,6 +96,8 @@ impl PlaceOut {
             (Some(src), Some(span)) => {
                 let p = Place::of(src, span);
                 PlaceOut {
+                    file: (!src.files().is_empty())
+                        .then(|| src.file_at(span.start as usize).to_string()),
                     line: Some(p.line),
                     column: Some(p.column),
                     end_line: Some(p.end_line),

@@ -123,12 +123,14 @@ impl Place {
         let end = (span.end as usize).clamp(start, len);
         let a = source.line_col(start);
         let b = source.line_col(end);
+        // in a source made of several files, offsets count from the start of the file
+        let base = source.part_at(start).map_or(0, |p| p.start as usize);
         Place {
             line: a.line,
             column: a.column,
             end_line: b.line,
             end_column: b.column,
-            byte_offset: start,
+            byte_offset: start - base,
             byte_length: end - start,
         }
     }

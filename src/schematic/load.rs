@@ -60,9 +60,36 @@ pub struct Project<'a> {
 /// recursing).
 pub const MAX_USES: usize = 100_000;
 
+/// The bytes of a sheet file, within the size limit (the codes and words of the netlist
+/// reader's own file reading).
+fn read_bytes(name: &str, max_bytes: u64) -> Result<Vec<u8>, Diag> {
+    let io = |e: std::io::Error| {
+        let what = match e.kind() {
+            std::io::ErrorKind::NotFound => "no such file".to_string(),
+            std::io::ErrorKind::PermissionDenied => "permission denied".to_string(),
+            _ => e.to_string(),
+        };
+        Diag::error("unreadable", format!("cannot read `{name}`: {what}"))
+    };
+    let meta = std::fs::metadata(name).map_err(io)?;
+    if meta.is_dir() {
+        return Err(Diag::error("unreadable", format!("`{name}` is a folder")));
+    }
+    if meta.len() > max_bytes {
+        return Err(Diag::error(
+            "too-large",
+            format!(
+                "the file is {} bytes, above the limit of {max_bytes} bytes",
+                meta.len()
+            ),
+        )
+        .with_help("raise the limit with --max-bytes if the machine has the memory for it"));
+    }
+    std::fs::read(name).map_err(io)
+}
+
 fn read_text(name: &str, max_bytes: u64) -> Result<String, Box<Failed>> {
-    let opts = crate::pipeline::ReadOptions { max_bytes };
-    let bytes = crate::pipeline::read_bytes(name, &opts).map_err(Failed::bare)?;
+    let bytes = read_bytes(name, max_bytes).map_err(Failed::bare)?;
     match input::load(name, bytes) {
         Ok(s) => Ok(s.text().to_string()),
         Err(e) => Err(Box::new(Failed {
@@ -374,58 +401,94 @@ pub fn named_sheets(text: &str) -> Vec<String> {
     out
 }
 
-/// The root sheet of the project `sheet` belongs to: the sheet in its folder that names it
-/// as a sub-sheet, followed upwards (a sheet no other sheet names is a root). Sheets are
-/// named relative to the project folder, so the search stays in the sheet's folder.
-pub fn project_root(sheet: &Path) -> PathBuf {
-    let dir = sheet.parent().map(Path::to_path_buf).unwrap_or_default();
+/// How many folders above a sheet its root sheet may be (sheets in sub-folders of the
+/// project folder).
+const ROOT_SEARCH_DEPTH: usize = 3;
+
+/// For each folder, the sheets its `.kicad_sch` files name (by canonical path) and the sheet
+/// naming each: read once per folder per run.
+type FolderIndex = HashMap<PathBuf, PathBuf>;
+static FOLDERS: std::sync::Mutex<Option<HashMap<PathBuf, FolderIndex>>> =
+    std::sync::Mutex::new(None);
+
+fn folder_index(dir: &Path) -> FolderIndex {
     let listing = if dir.as_os_str().is_empty() {
         Path::new(".")
     } else {
-        dir.as_path()
+        dir
     };
-    let Ok(entries) = std::fs::read_dir(listing) else {
-        return sheet.to_path_buf();
-    };
-    // child file name -> the sheet naming it
-    let mut parent_of: HashMap<String, String> = HashMap::default();
-    let mut names: Vec<String> = entries
+    let key = listing
+        .canonicalize()
+        .unwrap_or_else(|_| listing.to_path_buf());
+    if let Ok(guard) = FOLDERS.lock() {
+        if let Some(ix) = guard.as_ref().and_then(|m| m.get(&key)) {
+            return ix.clone();
+        }
+    }
+    let mut names: Vec<PathBuf> = std::fs::read_dir(listing)
+        .into_iter()
         .flatten()
-        .filter(|e| e.path().extension().is_some_and(|x| x == "kicad_sch"))
-        .filter_map(|e| e.file_name().to_str().map(str::to_string))
+        .flatten()
+        .map(|e| e.path())
+        .filter(|p| p.extension().is_some_and(|x| x == "kicad_sch"))
         .collect();
     names.sort();
-    for n in &names {
-        let Ok(text) = std::fs::read_to_string(listing.join(n)) else {
+    let mut ix = FolderIndex::default();
+    for n in names {
+        let Ok(text) = std::fs::read_to_string(&n) else {
             continue;
         };
+        let own = n.canonicalize().ok();
+        let parent = dir.join(n.file_name().unwrap_or_default());
         for child in named_sheets(&text) {
-            let child = child.replace('\\', "/");
-            if child != *n {
-                parent_of.entry(child).or_insert_with(|| n.clone());
+            let child = listing.join(child.replace('\\', "/"));
+            if let Ok(c) = child.canonicalize() {
+                if Some(&c) != own.as_ref() {
+                    ix.entry(c).or_insert_with(|| parent.clone());
+                }
             }
         }
     }
-    let Some(mut cur) = sheet
-        .file_name()
-        .and_then(|f| f.to_str())
-        .map(str::to_string)
-    else {
-        return sheet.to_path_buf();
-    };
-    let mut seen = vec![cur.clone()];
-    while let Some(p) = parent_of.get(&cur) {
-        if seen.contains(p) {
-            break; // sheets that name each other: keep the one given
+    if let Ok(mut guard) = FOLDERS.lock() {
+        guard
+            .get_or_insert_with(HashMap::default)
+            .insert(key, ix.clone());
+    }
+    ix
+}
+
+/// The sheet that names `sheet` as a sub-sheet: one in its folder or a folder above it.
+fn parent_sheet(sheet: &Path) -> Option<PathBuf> {
+    let target = sheet.canonicalize().ok()?;
+    let mut dir = sheet.parent().map(Path::to_path_buf).unwrap_or_default();
+    for _ in 0..ROOT_SEARCH_DEPTH {
+        if let Some(p) = folder_index(&dir).get(&target) {
+            return Some(p.clone());
         }
-        seen.push(p.clone());
-        cur = p.clone();
+        match dir.parent() {
+            Some(up) if !dir.as_os_str().is_empty() => dir = up.to_path_buf(),
+            _ => break,
+        }
     }
-    if seen.len() == 1 {
-        sheet.to_path_buf()
-    } else {
-        dir.join(cur)
+    None
+}
+
+/// The root sheet of the project `sheet` belongs to: the sheet that names it as a
+/// sub-sheet (in its folder or up to [`ROOT_SEARCH_DEPTH`] folders above), followed upwards;
+/// a sheet no other sheet names is a root, and so is a sheet of sheets that name each other
+/// (the recursion is reported when it is read).
+pub fn project_root(sheet: &Path) -> PathBuf {
+    let mut cur = sheet.to_path_buf();
+    let mut seen = vec![sheet.canonicalize().unwrap_or_else(|_| sheet.to_path_buf())];
+    while let Some(p) = parent_sheet(&cur) {
+        let c = p.canonicalize().unwrap_or_else(|_| p.clone());
+        if seen.contains(&c) {
+            return sheet.to_path_buf();
+        }
+        seen.push(c);
+        cur = p;
     }
+    cur
 }
 
 /// A project of one sheet given as text (standard input, fuzzing, tests): its sub-sheets,

@@ -759,7 +759,16 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 footprint,
                 datasheet: prop_text("Datasheet"),
                 fields,
-                properties: Vec::new(),
+                // as KiCad 8 and later write it in a netlist: `(property (name "dnp"))`
+                properties: if placed.dnp {
+                    vec![Field {
+                        name: txt("dnp", placed.span),
+                        value: None,
+                        span: placed.span,
+                    }]
+                } else {
+                    Vec::new()
+                },
                 libsource: Some(LibSource {
                     lib: Some(txt(lib.to_string(), placed.lib_key_span)),
                     part: Some(txt(part.to_string(), placed.lib_key_span)),

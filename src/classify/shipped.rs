@@ -1,0 +1,76 @@
+//! The shipped tables as the binary loads them: `build.rs` reads `rules/*.toml` at compile
+//! time with the same code the project files are read with at run time (`parse_shipped`),
+//! checks them, and writes each table in postcard's compact binary form to `OUT_DIR`; start-up
+//! decodes those bytes instead of parsing and validating TOML. `rules/*.toml` stay the
+//! source that is edited; a change to them rebuilds the binary.
+
+use super::family::FamilyTable;
+use super::function::FunctionTable;
+use super::parts::PartTable;
+
+/// Decodes one table written by `build.rs`. The bytes were made from the same types by the
+/// same build, so decoding cannot fail unless the build itself is broken.
+fn decode<T: serde::de::DeserializeOwned>(bytes: &[u8], what: &str) -> T {
+    postcard::from_bytes(bytes)
+        .unwrap_or_else(|e| panic!("the shipped {what} table built by build.rs decodes: {e}"))
+}
+
+impl FamilyTable {
+    /// The shipped table (`rules/families.toml`, read at compile time).
+    pub fn builtin() -> FamilyTable {
+        decode(
+            include_bytes!(concat!(env!("OUT_DIR"), "/families.postcard")),
+            "families",
+        )
+    }
+}
+
+impl FunctionTable {
+    /// The shipped table (`rules/functions.toml`, read at compile time).
+    pub fn builtin() -> FunctionTable {
+        decode(
+            include_bytes!(concat!(env!("OUT_DIR"), "/functions.postcard")),
+            "functions",
+        )
+    }
+}
+
+impl PartTable {
+    /// The shipped table (`rules/parts.toml`, read at compile time).
+    pub fn builtin() -> PartTable {
+        decode(
+            include_bytes!(concat!(env!("OUT_DIR"), "/parts.postcard")),
+            "parts",
+        )
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The compiled tables are the text's tables: what the binary loads is what a project
+    /// file with the same text would give.
+    #[test]
+    fn compiled_tables_equal_the_tables_read_from_the_text() {
+        assert_eq!(
+            FamilyTable::builtin(),
+            FamilyTable::parse_shipped().unwrap()
+        );
+        let (a, b) = (
+            FunctionTable::builtin(),
+            FunctionTable::parse_shipped().unwrap(),
+        );
+        assert_eq!(
+            format!("{:?}", a.iter().collect::<Vec<_>>()),
+            format!("{:?}", b.iter().collect::<Vec<_>>())
+        );
+        for f in b.iter() {
+            assert_eq!(a.get(f.series, &f.id), Some(f), "{}", f.id);
+        }
+        assert!(b.iter().next().is_some());
+        let (a, b) = (PartTable::builtin(), PartTable::parse_shipped().unwrap());
+        assert_eq!(format!("{:?}", a.entries), format!("{:?}", b.entries));
+        assert!(!a.entries.is_empty());
+    }
+}
