@@ -320,8 +320,9 @@ fn main() {
                 cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
                 f,
                 fcpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+                // GNU time counts CPU in 10 ms steps: a smaller floor is compared by wall time
                 match (cpu, fcpu) {
-                    (Some(a), Some(b)) => a / b,
+                    (Some(a), Some(b)) if b >= 0.05 => a / b,
                     _ => c / f,
                 },
                 mb(peak),
