@@ -142,17 +142,18 @@ impl Settings {
         }
     }
 
-    /// Loads the configuration at `path` (or none) and resolves the settings.
+    /// Loads the configuration at `path` (or none) and resolves the settings. The errors are
+    /// every problem found: the configuration's, or those of each of its mapping files.
     pub fn load(
         path: Option<&Path>,
         over: &Overrides,
         read: &ReadOptions,
-    ) -> Result<Settings, ConfigError> {
+    ) -> Result<Settings, Vec<ConfigError>> {
         let Some(path) = path else {
             return Ok(Settings::builtin(over, read));
         };
-        let config = config::load(path)?;
-        let rules = config.rules()?;
+        let config = config::load(path).map_err(|e| vec![e])?;
+        let rules = config.all_rules()?;
         Ok(Settings {
             config_path: Some(path.to_path_buf()),
             run: run_options(Some(&config), over, read),
@@ -163,7 +164,11 @@ impl Settings {
     }
 
     /// The settings for the netlist `f` (`-` is standard input).
-    pub fn resolve(f: &str, over: &Overrides, read: &ReadOptions) -> Result<Settings, ConfigError> {
+    pub fn resolve(
+        f: &str,
+        over: &Overrides,
+        read: &ReadOptions,
+    ) -> Result<Settings, Vec<ConfigError>> {
         Settings::load(config_for(f, over).as_deref(), over, read)
     }
 

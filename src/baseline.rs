@@ -204,6 +204,7 @@ pub fn parse(source: &SourceFile) -> Result<BTreeMap<String, Vec<Entry>>, Config
         let msg = e.to_string();
         // serde_json appends " at line L column C"; the label shows the place instead
         let msg = msg.split(" at line ").next().unwrap_or(&msg).to_string();
+        let msg = crate::classify::in_our_words(&msg);
         err(Diag::error("baseline", format!("in the baseline: {msg}"))
             .at(Span::new(at, (at + 1).min(text.len()).max(at)), "here")
             .with_help("a baseline is the JSON that `netmargin baseline` writes; make it again if it was edited by hand"))
@@ -503,10 +504,13 @@ mod tests {
         };
         let (line, msg) = line_of("{\n  \"format_version\": 1,\n  \"files\": {\n    \"a.net\": [ { \"fingerprint\": 12 } ]\n  }\n}\n");
         assert_eq!(line, 4, "{msg}");
-        assert!(msg.starts_with("in the baseline: invalid type"), "{msg}");
+        assert!(
+            msg.starts_with("in the baseline: expected text in quotes, found"),
+            "{msg}"
+        );
         let (line, msg) = line_of("{\n  \"format_version\": 1,\n  \"files\": {\n    \"a.net\": [\n      { \"fingerprint\": \"0123456789abcdef\", \"check\": \"x\", \"colour\": 1 }\n");
         assert_eq!(line, 5, "{msg}");
-        assert!(msg.contains("unknown field `colour`"), "{msg}");
+        assert!(msg.contains("unknown key `colour`"), "{msg}");
         let (line, msg) = line_of("{\n\n  \"format_version\": 7, \"files\": {} }");
         assert_eq!(line, 3);
         assert_eq!(

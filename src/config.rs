@@ -710,10 +710,35 @@ impl Config {
 
     /// The shipped rules with the project's mapping files over them.
     pub fn rules(&self) -> Result<Rules, ConfigError> {
+        self.all_rules().map_err(|mut e| e.swap_remove(0))
+    }
+
+    /// [`Config::rules`], reading every mapping file even after one has errors: the errors of
+    /// all of them, one `ConfigError` per file, in the order listed.
+    pub fn all_rules(&self) -> Result<Rules, Vec<ConfigError>> {
         let mut rules = Rules::builtin();
+        let mut errors = Vec::new();
+        macro_rules! read {
+            ($f:expr, $parse:expr) => {
+                match self.read_rule_file(&$f.value, $f.span) {
+                    Err(e) => {
+                        errors.push(e);
+                        None
+                    }
+                    Ok((src, text)) => match $parse(&text) {
+                        Err(e) => {
+                            errors.push(rule_errors(&src, e));
+                            None
+                        }
+                        Ok(t) => Some((src, t)),
+                    },
+                }
+            };
+        }
         for f in &self.families {
-            let (src, text) = self.read_rule_file(&f.value, f.span)?;
-            let t = FamilyTable::parse(&text).map_err(|e| rule_errors(&src, e))?;
+            let Some((src, t)) = read!(f, FamilyTable::parse) else {
+                continue;
+            };
             for fam in t.iter() {
                 rules.project_families.push((
                     fam.id.clone(),
@@ -725,29 +750,41 @@ impl Config {
             rules.sources.push(format!("project {}", f.value.display()));
         }
         for f in &self.functions {
-            let (src, text) = self.read_rule_file(&f.value, f.span)?;
-            let t = FunctionTable::parse(&text).map_err(|e| rule_errors(&src, e))?;
-            for f in t.iter() {
+            let Some((src, t)) = read!(f, FunctionTable::parse) else {
+                continue;
+            };
+            for fun in t.iter() {
                 rules.project_functions.push((
-                    f.series,
-                    f.id.clone(),
+                    fun.series,
+                    fun.id.clone(),
                     src.name().to_string(),
-                    src.line_col(f.span.start).line,
+                    src.line_col(fun.span.start).line,
                 ));
             }
             rules.functions.merge(t);
             rules.sources.push(format!("project {}", f.value.display()));
         }
-        for f in self.parts.iter().rev() {
-            let (src, text) = self.read_rule_file(&f.value, f.span)?;
-            let mut t = PartTable::parse(&text, false).map_err(|e| rule_errors(&src, e))?;
+        // read in the order listed (so errors come in that order), merged last to first: a
+        // later file wins over an earlier one
+        let mut parts = Vec::new();
+        for f in &self.parts {
+            let Some((src, mut t)) = read!(f, |text: &str| PartTable::parse(text, false)) else {
+                continue;
+            };
             for e in &mut t.entries {
                 e.origin = Some((src.name().to_string(), src.line_col(e.span.start).line));
             }
+            parts.push((f, t));
+        }
+        for (f, t) in parts.into_iter().rev() {
             rules.parts.merge_over(t);
             rules.sources.push(format!("project {}", f.value.display()));
         }
-        Ok(rules)
+        if errors.is_empty() {
+            Ok(rules)
+        } else {
+            Err(errors)
+        }
     }
 
     fn read_rule_file(&self, rel: &Path, span: Span) -> Result<(SourceFile, String), ConfigError> {

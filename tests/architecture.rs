@@ -318,3 +318,14 @@ fn every_check_file_is_registered_and_every_registered_check_has_a_file() {
         assert!(snap.is_file(), "{} has no snapshot", c.id);
     }
 }
+
+#[test]
+fn the_audit_names_only_checks_that_exist() {
+    // the audit charts the findings of these checks; a renamed check must not drop out silently
+    for id in netmargin::audit::CHARTED_CHECKS {
+        assert!(
+            netmargin::checks::info(id).is_some(),
+            "the audit charts `{id}`, which is no check"
+        );
+    }
+}

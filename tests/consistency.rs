@@ -214,3 +214,69 @@ fn check_net_parts_and_audit_show_one_circuit() {
     assert_eq!(audit.rail, "12.00 V");
     assert!(!check.u22_classified && !parts.u22_classified && !audit.u22_classified);
 }
+
+/// `config --show` prints what the analysis resolved: the same rails, derating, margins and
+/// checks turned off, with the command line over the file.
+#[test]
+fn config_show_prints_the_settings_the_analysis_uses() {
+    use netmargin::analysis::{Overrides, Settings};
+    let p = project();
+    std::fs::write(
+        p.0.join("netmargin.toml"),
+        "rail_tolerance = 0.05\n[rails]\n\"+12V\" = 5.0\nVREF = 2.5\n[checks]\nderating = 0.7\nseverity = { \"package-mismatch\" = \"off\", \"floating-bus\" = \"error\" }\n",
+    )
+    .unwrap();
+    let over = Overrides {
+        rail: vec![("VREF".into(), 3.3)],
+        disable: vec!["floating-ttl-input".into()],
+        ..Default::default()
+    };
+    let board = p.0.join("board.net");
+    let s = Settings::resolve(board.to_str().unwrap(), &over, &Default::default())
+        .expect("the project's settings");
+    let shown = netmargin::report::settings::show("board.net", s.config.as_ref(), &over);
+    let t: toml::Table = toml::from_str(&shown).expect("config --show prints TOML");
+    assert_eq!(
+        t["rail_tolerance"].as_float(),
+        Some(s.run.model.rail_tolerance)
+    );
+    assert_eq!(
+        t["checks"]["derating"].as_float(),
+        Some(s.run.checks.derating)
+    );
+    assert_eq!(
+        t["checks"]["min_margin_v"].as_float(),
+        Some(s.run.checks.min_margin_v)
+    );
+    // rails: the first declaration of a name is the one the model takes
+    let rails = t["rails"].as_table().unwrap();
+    let mut first: Vec<(String, f64)> = Vec::new();
+    for (n, v) in &s.run.model.rails {
+        if !first.iter().any(|(m, _)| m == n) {
+            first.push((n.clone(), *v));
+        }
+    }
+    assert_eq!(rails.len(), first.len(), "{shown}");
+    for (n, v) in &first {
+        assert_eq!(rails[n].as_float(), Some(*v), "{n} in {shown}");
+    }
+    // every check: off exactly when the analysis turns it off, else its severity
+    let sev = t["checks"]["severity"].as_table().unwrap();
+    for c in netmargin::checks::REGISTRY {
+        let said = sev[c.id].as_str().unwrap();
+        if !s.runs(c.id) {
+            assert_eq!(said, "off", "{}", c.id);
+        } else {
+            let want = s
+                .run
+                .checks
+                .severity
+                .iter()
+                .find(|(i, _)| i == c.id)
+                .map_or(c.severity, |(_, v)| *v);
+            assert_eq!(said, want.as_str(), "{}", c.id);
+        }
+    }
+    assert_eq!(sev["floating-ttl-input"].as_str(), Some("off"));
+    assert_eq!(sev["floating-bus"].as_str(), Some("error"));
+}

@@ -301,11 +301,14 @@ fn the_parts_file_documentation_covers_every_key_and_its_example_reads() {
     )
     .expect_err("unknown keys are errors");
     let msg = &err[0].message;
+    // "unknown key `no_such_key`; the keys here are `values`, `kind`, ..."
     let keys: Vec<&str> = msg
+        .split("the keys here are ")
+        .nth(1)
+        .unwrap_or_else(|| panic!("no list of keys in: {msg}"))
         .split('`')
-        .skip(3)
+        .skip(1)
         .step_by(2)
-        .filter(|k| !k.is_empty())
         .collect();
     assert!(
         keys.contains(&"values") && keys.contains(&"series"),
@@ -373,4 +376,78 @@ fn far_apart_labels_are_shown_as_excerpts_with_the_lines_between_left_out() {
         let lines = b.iter().filter(|l| l.contains(" │ ")).count();
         assert!(lines <= 30, "{lines} source lines in:\n{}", b.join("\n"));
     }
+}
+
+#[test]
+fn the_json_totals_count_netlists_not_the_configuration() {
+    let s = Scratch::new("json-counted");
+    std::fs::copy(
+        root().join("fixtures/boards/clean-k5.net"),
+        s.0.join("board.net"),
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("netmargin.toml"),
+        "[[waiver]]\ncheck = \"fanout-overrun\"\nrefs = [\"U99\"]\nreason = \"bench unit\"\n",
+    )
+    .unwrap();
+    let (_, out, err) = run(&s.0, &["check", "--format", "json", "board.net"]);
+    let doc: serde_json::Value =
+        serde_json::from_str(&out).unwrap_or_else(|e| panic!("{e}: {err}"));
+    // the configuration is listed, with its stale waiver ...
+    assert_eq!(doc["files"].as_array().unwrap().len(), 2);
+    // ... but one file was checked
+    assert_eq!(doc["totals"]["files"], 1);
+    assert_eq!(doc["totals"]["checked"], 1);
+    assert_eq!(doc["totals"]["warnings"], 1);
+}
+
+#[test]
+fn every_broken_mapping_file_is_reported_in_one_run() {
+    let s = Scratch::new("mapping");
+    std::fs::copy(
+        root().join("fixtures/boards/clean-k5.net"),
+        s.0.join("board.net"),
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("netmargin.toml"),
+        "[rules]\nparts = [\"a-parts.toml\", \"b-parts.toml\", \"missing.toml\"]\n",
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("a-parts.toml"),
+        "[[part]]\nvalues = \"74LSOO\"\nfamily = \"74LS\"\n",
+    )
+    .unwrap();
+    std::fs::write(
+        s.0.join("b-parts.toml"),
+        "[[part]]\nvalues = [\"X*\"]\nfamliy = \"74LS\"\n",
+    )
+    .unwrap();
+    let (code, out, err) = run(&s.0, &["check", "--format", "short", "board.net"]);
+    assert_eq!(code, 2, "{out}{err}");
+    let text = format!("{out}{err}");
+    assert!(
+        text.lines()
+            .any(|l| l.contains("a-parts.toml:2:") && l.contains("expected a list, found text")),
+        "{text}"
+    );
+    assert!(
+        text.lines()
+            .any(|l| l.contains("b-parts.toml:3:") && l.contains("unknown key `famliy`")),
+        "{text}"
+    );
+    assert!(
+        text.lines()
+            .any(|l| l.contains("netmargin.toml:2:") && l.contains("missing.toml")),
+        "{text}"
+    );
+    // the same from the commands that show one file
+    let (code, _, err) = run(&s.0, &["parts", "board.net"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("a-parts.toml") && err.contains("b-parts.toml"),
+        "{err}"
+    );
 }

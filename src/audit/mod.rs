@@ -462,63 +462,8 @@ pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag>
     .filter_map(|(k, v)| v.map(|v| (k, v)))
     .collect();
 
-    let findings: Vec<Finding> = diags
-        .iter()
-        .enumerate()
-        .map(|(i, d)| {
-            let (line, line_text) = line_of(source, d);
-            let mut parts: Vec<String> = Vec::new();
-            for p in &d.pins {
-                let r = ref_of(p).to_string();
-                if !parts.contains(&r) {
-                    parts.push(r);
-                }
-            }
-            Finding {
-                id: format!("f{}", i + 1),
-                code: d.code.clone(),
-                severity: d.severity,
-                message: d.message.clone(),
-                help: d.help.clone(),
-                net: d.net.clone(),
-                pins: d.pins.clone(),
-                parts,
-                line,
-                line_text,
-            }
-        })
-        .collect();
-
-    let mut counts: BTreeMap<String, CheckCount> = BTreeMap::new();
-    for f in &findings {
-        let summary = crate::checks::info(&f.code)
-            .map(|c| c.summary.to_string())
-            .or_else(|| {
-                crate::diag::INPUT_CODES
-                    .iter()
-                    .find(|(c, _)| *c == f.code)
-                    .map(|(_, s)| s.to_string())
-            })
-            .unwrap_or_default();
-        let c = counts.entry(f.code.clone()).or_insert(CheckCount {
-            code: f.code.clone(),
-            summary,
-            error: 0,
-            warning: 0,
-            info: 0,
-        });
-        match f.severity {
-            Severity::Error => c.error += 1,
-            Severity::Warning => c.warning += 1,
-            Severity::Info => c.info += 1,
-        }
-    }
-    let mut by_check: Vec<CheckCount> = counts.into_values().collect();
-    by_check.sort_by(|a, b| {
-        (b.error, b.warning, b.info)
-            .cmp(&(a.error, a.warning, a.info))
-            .then_with(|| a.code.cmp(&b.code))
-    });
+    let findings = gather_findings(source, diags);
+    let by_check = count_by_check(&findings);
 
     let supplies = gather_supplies(cx);
     let (families, kinds) = gather_parts(cx);
@@ -586,6 +531,70 @@ pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag>
         derating: run.checks.derating,
         rail_tolerance: run.model.rail_tolerance,
     })
+}
+
+fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
+    diags
+        .iter()
+        .enumerate()
+        .map(|(i, d)| {
+            let (line, line_text) = line_of(source, d);
+            let mut parts: Vec<String> = Vec::new();
+            for p in &d.pins {
+                let r = ref_of(p).to_string();
+                if !parts.contains(&r) {
+                    parts.push(r);
+                }
+            }
+            Finding {
+                id: format!("f{}", i + 1),
+                code: d.code.clone(),
+                severity: d.severity,
+                message: d.message.clone(),
+                help: d.help.clone(),
+                net: d.net.clone(),
+                pins: d.pins.clone(),
+                parts,
+                line,
+                line_text,
+            }
+        })
+        .collect()
+}
+
+/// Findings per code and severity, most errors first.
+fn count_by_check(findings: &[Finding]) -> Vec<CheckCount> {
+    let mut counts: BTreeMap<String, CheckCount> = BTreeMap::new();
+    for f in findings {
+        let summary = crate::checks::info(&f.code)
+            .map(|c| c.summary.to_string())
+            .or_else(|| {
+                crate::diag::INPUT_CODES
+                    .iter()
+                    .find(|(c, _)| *c == f.code)
+                    .map(|(_, s)| s.to_string())
+            })
+            .unwrap_or_default();
+        let c = counts.entry(f.code.clone()).or_insert(CheckCount {
+            code: f.code.clone(),
+            summary,
+            error: 0,
+            warning: 0,
+            info: 0,
+        });
+        match f.severity {
+            Severity::Error => c.error += 1,
+            Severity::Warning => c.warning += 1,
+            Severity::Info => c.info += 1,
+        }
+    }
+    let mut by_check: Vec<CheckCount> = counts.into_values().collect();
+    by_check.sort_by(|a, b| {
+        (b.error, b.warning, b.info)
+            .cmp(&(a.error, a.warning, a.info))
+            .then_with(|| a.code.cmp(&b.code))
+    });
+    by_check
 }
 
 fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {

@@ -9,4 +9,4 @@ pub mod pattern;
 mod roles;
 mod shipped;
 
-pub use roles::{PinRole, RuleError};
+pub use roles::{in_our_words, PinRole, RuleError};

@@ -26,8 +26,78 @@ impl RuleError {
     pub fn from_toml(err: &toml::de::Error) -> Self {
         RuleError {
             span: err.span(),
-            message: err.message().to_string(),
+            message: in_our_words(err.message().trim_end()),
         }
+    }
+}
+
+/// A TOML reader's message in the words the documentation uses: keys, numbers, text, lists.
+pub fn in_our_words(msg: &str) -> String {
+    let kind = |k: &str| -> String {
+        let k = k.trim();
+        match k {
+            "f64" | "f32" => "a number".into(),
+            "u8" | "u16" | "u32" | "u64" | "usize" | "i32" | "i64" => "a whole number".into(),
+            "a string" | "string" => "text in quotes".into(),
+            "a sequence" | "sequence" => "a list".into(),
+            "a boolean" | "bool" => "true or false".into(),
+            "a map" | "map" | "struct" => "a table".into(),
+            other => other.trim_start_matches("a ").to_string(),
+        }
+    };
+    if let Some(rest) = msg.strip_prefix("unknown field ") {
+        // "unknown field `x`, expected one of `a`, `b`" / "..., expected `a`"
+        let (field, expected) = rest.split_once(", expected ").unwrap_or((rest, ""));
+        let keys = expected.trim_start_matches("one of ");
+        return if keys.is_empty() {
+            format!("unknown key {field}")
+        } else {
+            format!("unknown key {field}; the keys here are {keys}")
+        };
+    }
+    if let Some(rest) = msg.strip_prefix("missing field ") {
+        return format!("missing key {rest}");
+    }
+    if let Some(rest) = msg.strip_prefix("invalid type: ") {
+        // "string \"5\", expected f64"
+        if let Some((found, expected)) = rest.split_once(", expected ") {
+            let found = match found.split_once(' ') {
+                Some(("string", v)) => format!("text {v}"),
+                Some(("integer", v)) | Some(("floating", v)) => format!("the number {v}"),
+                _ => kind(found),
+            };
+            return format!("expected {}, found {found}", kind(expected));
+        }
+    }
+    if let Some(rest) = msg.strip_prefix("invalid value: ") {
+        return format!("a value that does not fit: {rest}");
+    }
+    msg.to_string()
+}
+
+#[cfg(test)]
+mod words_tests {
+    use super::in_our_words;
+
+    #[test]
+    fn reader_messages_in_our_words() {
+        assert_eq!(
+            in_our_words("unknown field `colour`, expected one of `values`, `kind`"),
+            "unknown key `colour`; the keys here are `values`, `kind`"
+        );
+        assert_eq!(
+            in_our_words("invalid type: string \"5V\", expected f64"),
+            "expected a number, found text \"5V\""
+        );
+        assert_eq!(
+            in_our_words("invalid type: string \"U1\", expected a sequence"),
+            "expected a list, found text \"U1\""
+        );
+        assert_eq!(
+            in_our_words("missing field `values`"),
+            "missing key `values`"
+        );
+        assert_eq!(in_our_words("expected `=`"), "expected `=`");
     }
 }
 

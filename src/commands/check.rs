@@ -124,7 +124,7 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
 pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Run {
     // which configuration each file uses
     let per_file: Vec<Option<PathBuf>> = files.iter().map(|f| config_for(f, over)).collect();
-    let mut loaded: BTreeMap<PathBuf, Result<Settings, ConfigError>> = BTreeMap::new();
+    let mut loaded: BTreeMap<PathBuf, Result<Settings, Vec<ConfigError>>> = BTreeMap::new();
     for p in per_file.iter().flatten() {
         if !loaded.contains_key(p) {
             loaded.insert(p.clone(), Settings::load(Some(p), over, read));
@@ -177,12 +177,14 @@ pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Ru
     for (path, l) in &loaded {
         let l = match l {
             Ok(l) => l,
-            Err(e) => {
+            Err(errors) => {
                 config_failed = true;
-                config_outcomes.push(error_outcome(ConfigError {
-                    source: e.source.clone(),
-                    diags: e.diags.clone(),
-                }));
+                for e in errors {
+                    config_outcomes.push(error_outcome(ConfigError {
+                        source: e.source.clone(),
+                        diags: e.diags.clone(),
+                    }));
+                }
                 continue;
             }
         };

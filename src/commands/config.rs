@@ -19,8 +19,9 @@ pub fn command(args: &ConfigArgs, read: &ReadOptions, color: ColorChoice) -> std
     let over = Overrides::from(&args.settings);
     let settings = match Settings::resolve(&target, &over, read) {
         Ok(s) => s,
-        Err(e) => {
-            super::to_stderr(&[super::error_outcome(&e)], color)?;
+        Err(errors) => {
+            let shown: Vec<_> = errors.iter().map(super::error_outcome).collect();
+            super::to_stderr(&shown, color)?;
             return Ok(2);
         }
     };

@@ -132,8 +132,9 @@ pub fn open_one(
     }
     let s = match Settings::resolve(path, &Overrides::from(settings), read) {
         Ok(s) => s,
-        Err(e) => {
-            to_stderr(&[error_outcome(&e)], color)?;
+        Err(errors) => {
+            let shown: Vec<FileOutcome> = errors.iter().map(error_outcome).collect();
+            to_stderr(&shown, color)?;
             return Ok(Err(2));
         }
     };

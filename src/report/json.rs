@@ -147,8 +147,8 @@ fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: String) ->
     }
 }
 
-fn document(files: &[FileOutcome]) -> Document<'_> {
-    let t = Totals::of(files);
+fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
+    let t = Totals::of_run(files, netlists);
     let out_files = files
         .iter()
         .map(|f| {
@@ -229,15 +229,20 @@ fn needs_escape(c: char) -> bool {
 
 /// The document as text, with a final line end.
 pub fn to_string(files: &[FileOutcome]) -> String {
-    let text = serde_json::to_string_pretty(&document(files))
+    to_string_run(files, None)
+}
+
+/// [`to_string`] for a run whose first `netlists` outcomes are netlists (`None`: all).
+pub fn to_string_run(files: &[FileOutcome], netlists: Option<usize>) -> String {
+    let text = serde_json::to_string_pretty(&document(files, netlists))
         .expect("a document of strings and numbers serializes");
     let mut text = escape_unsafe(text);
     text.push('\n');
     text
 }
 
-pub fn write(_opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
-    out.write_all(to_string(files).as_bytes())
+pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
+    out.write_all(to_string_run(files, opts.netlists).as_bytes())
 }
 
 #[cfg(test)]
