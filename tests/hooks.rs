@@ -345,7 +345,7 @@ fn pre_commit_framework_runs_the_manifest() {
     for line in [
         "- id: netmargin",
         "entry: netmargin check --format short",
-        "files: \\.net$",
+        "files: \\.(net|kicad_sch)$",
         "pass_filenames: true",
         "language: rust",
     ] {
