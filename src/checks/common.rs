@@ -36,6 +36,27 @@ pub struct UnusedGate {
     pub outputs: Vec<PinRef>,
 }
 
+/// Why an input on `connection` floats, or `None` when something sets its level in every
+/// position of the switches: on no net, alone on a net that is not a rail, or on a net with no
+/// source (or one only a switch gives).
+pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> Option<Float> {
+    match connection {
+        Connection::Absent => Some(Float::Absent),
+        Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Some(Float::Alone(net)),
+        Connection::Net { net, .. } => {
+            let nm = &cx.nets[net];
+            if nm.has_source() {
+                None
+            } else if nm.floats_open.is_empty() {
+                Some(Float::Undriven(net))
+            } else {
+                Some(Float::SwitchOpen(net, nm.floats_open.clone()))
+            }
+        }
+        _ => None,
+    }
+}
+
 /// Floating logic inputs of classified parts whose family has TTL inputs (`ttl` true) or
 /// CMOS inputs (`ttl` false), with the whole unused gates gathered up.
 pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, Vec<UnusedGate>) {
@@ -61,21 +82,8 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             if cx.idle_level(ci, pi).is_some() {
                 continue;
             }
-            let why = match p.connection {
-                Connection::Absent => Float::Absent,
-                Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Float::Alone(net),
-                Connection::Net { net, .. } => {
-                    let nm = &cx.nets[net];
-                    if nm.has_source() {
-                        continue;
-                    }
-                    if nm.floats_open.is_empty() {
-                        Float::Undriven(net)
-                    } else {
-                        Float::SwitchOpen(net, nm.floats_open.clone())
-                    }
-                }
-                _ => continue,
+            let Some(why) = floats(cx, p.connection) else {
+                continue;
             };
             found.push(Floating {
                 at: PinRef { comp: ci, pin: pi },

@@ -32,7 +32,6 @@ use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::family::Drive;
 use crate::diag::Diag;
-use crate::netlist::Connection;
 use crate::values::format_ohms;
 
 /// Largest resistor that holds the input at its idle level against its own leakage, capped at
@@ -67,21 +66,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if !cx.roles[ci][pi].is_input() {
                 continue;
             }
-            let why = match p.connection {
-                Connection::Absent => Float::Absent,
-                Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Float::Alone(net),
-                Connection::Net { net, .. } => {
-                    let nm = &cx.nets[net];
-                    if nm.has_source() {
-                        continue;
-                    }
-                    if nm.floats_open.is_empty() {
-                        Float::Undriven(net)
-                    } else {
-                        Float::SwitchOpen(net, nm.floats_open.clone())
-                    }
-                }
-                _ => continue,
+            let Some(why) = super::common::floats(cx, p.connection) else {
+                continue;
             };
             let at = PinRef { comp: ci, pin: pi };
             let name = part.table_names[pi].clone().unwrap_or_default();
