@@ -195,7 +195,7 @@ pub struct NetModel {
     /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
     /// pull-down parts: they hold the net at a level that cannot be computed.
     pub held: Vec<usize>,
-    /// The net's name says rail (`/video/VDD`) but it is a sheet-local net that reaches no
+    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
     /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
     pub rail_named_local: bool,
     /// Series elements (a resistor, a resistor-network element, an inductor or ferrite bead)
