@@ -1019,7 +1019,8 @@ fn nor_02_and_inverter_04() {
 #[test]
 fn eight_input_nand_30() {
     let t = table();
-    // TI SCLS800A (SN74HCS30) pin functions: A..F=1..6 GND=7 Y=8 NC=9, 10, 13 G=11 H=12 VCC=14
+    // TI SCLS800A (SN74HCS30) pin functions: A..F=1..6 GND=7 Y=8 NC=9, 10, 13 G=11 H=12 VCC=14;
+    // TI SDAS010E (SN74ALS30A) top view agrees
     let i = Input;
     expect_package(
         &t,
@@ -1030,6 +1031,20 @@ fn eight_input_nand_30() {
         ],
     );
     same_unit(&t, S74, "30", &[1, 2, 3, 4, 5, 6, 8, 11, 12]);
+}
+
+#[test]
+fn identity_comparator_688() {
+    let t = table();
+    // TI SDAS228A (SN74ALS688), top view: G~=1 P0=2 Q0=3 P1=4 Q1=5 P2=6 Q2=7 P3=8 Q3=9 GND=10
+    // P4=11 Q4=12 P5=13 Q5=14 P6=15 Q6=16 P7=17 Q7=18 P=Q~=19 VCC=20; totem-pole output
+    let mut r = vec![Input; 20];
+    r[9] = Ground;
+    r[18] = PushPull;
+    r[19] = Supply;
+    expect_package(&t, S74, "688", &r);
+    expect_name(&t, S74, "688", 2, "P0");
+    expect_name(&t, S74, "688", 18, "Q7");
 }
 
 #[test]
@@ -1138,6 +1153,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "393"),
     (S74, "541"),
     (S74, "574"),
+    (S74, "688"),
     (S40, "4011"),
     (S40, "4027"),
     (S40, "4049"),
