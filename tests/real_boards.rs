@@ -24,7 +24,7 @@ use serde_json::Value;
 
 /// The misses (of those an existing check should catch) that must be found. Raise it as the model
 /// learns; never lower it without a reason written in the commit.
-const MISSES_FOUND_AT_LEAST: usize = 32;
+const MISSES_FOUND_AT_LEAST: usize = 39;
 
 fn shared() -> Option<PathBuf> {
     let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/real-boards");
@@ -129,6 +129,9 @@ fn at_matches(f: &Found, at: &str, net: Option<&str>) -> bool {
     // findings without pins name the part in the message
     f.pins.is_empty() && !at.contains('.') && f.message.split_whitespace().next() == Some(at)
 }
+
+/// Checks written for misses the review filed as `new:<name>`: (label, check id).
+const NEW_CHECKS: &[(&str, &str)] = &[("new:display-common-unconnected", "display-common-open")];
 
 #[derive(Default)]
 struct Row {
@@ -275,6 +278,12 @@ fn real_boards_against_the_review() {
         // misses that an existing check should catch
         for m in entry["missed"].as_array().unwrap() {
             let want = m["want_check"].as_str().unwrap();
+            // a miss the review filed for a check not yet written counts once the check that
+            // now does the job is named here
+            let want = NEW_CHECKS
+                .iter()
+                .find(|(label, _)| *label == want)
+                .map_or(want, |(_, id)| *id);
             if want.starts_with("new:") {
                 continue;
             }

@@ -5,7 +5,7 @@
 //! recomputes them.
 
 use super::{Circuit, PinRef};
-use crate::classify::family::Drive;
+use crate::classify::family::{Drive, HighOutput, Technology};
 use crate::classify::PinRole;
 use crate::values::format_ohms;
 
@@ -247,6 +247,7 @@ fn drive_points(
     lv: &crate::classify::family::Levels,
     iih: f64,
     iil: f64,
+    stops_short: bool,
 ) -> (Option<OperatingPoint>, Option<OperatingPoint>) {
     let drives_high = matches!(
         d.role,
@@ -280,7 +281,10 @@ fn drive_points(
             rail_volts: p.rail_volts,
             open_common: None,
         }));
-        let reach = lv.voh.first().map_or(lv.vcc, |r| r.v);
+        // how far the high can go with no load: a CMOS output to its supply; a totem pole
+        // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
+        // (common practice; its guaranteed VOH is a minimum, not a ceiling)
+        let reach = if stops_short { lv.vcc - 1.4 } else { lv.vcc };
         strongest(&lv.voh).and_then(|row| {
             operating_point(true, lv.vcc, row, lv.ioh_max.abs(), iih, reach, knees)
         })
@@ -309,7 +313,8 @@ fn drive_points(
             rail_volts: p.rail_volts,
             open_common: None,
         }));
-        let reach = lv.vol.first().map_or(0.0, |r| r.v);
+        // the low can go down to ground: LEDs that need more than their rail never light
+        let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {
             operating_point(false, lv.vcc, row, lv.iol_max.abs(), iil, reach, knees)
         })
@@ -601,7 +606,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             .filter_map(|l| l.levels.as_ref())
             .map(|l| l.iil_max.abs())
             .sum();
-        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil);
+        let stops_short = cx.family(d.at.comp).is_some_and(|f| {
+            f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
+        });
+        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
         out.drivers.push(DriverBudget {
             driver: di,
             low: Some(low),
