@@ -102,7 +102,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         };
         let mut diag = Diag::new(INFO.id, sev, message)
             .at(cx.pin_span(first), "common reaches nothing")
-            .with_pins(d.commons.iter().map(|&pin| cx.pin_name(PinRef { comp: d.comp, pin })));
+            .with_pins(
+                d.commons
+                    .iter()
+                    .map(|&pin| cx.pin_name(PinRef { comp: d.comp, pin })),
+            );
         for &pin in d.commons.iter().skip(1) {
             diag = diag.also(cx.pin_span(PinRef { comp: d.comp, pin }), "common");
         }

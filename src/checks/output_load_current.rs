@@ -51,7 +51,13 @@ use crate::values::{format_amps, format_ohms, format_volts, series_at_least, E12
 /// The smallest E12 resistor that keeps one load within `amps` when the output stands at
 /// `v_out` (high: the load runs to `rail` below it; low: from `rail` above it) and the load
 /// needs `vf`.
-pub(super) fn resistor_within(high: bool, v_out: f64, vf: f64, rail: f64, amps: f64) -> Option<f64> {
+pub(super) fn resistor_within(
+    high: bool,
+    v_out: f64,
+    vf: f64,
+    rail: f64,
+    amps: f64,
+) -> Option<f64> {
     let v = if high {
         v_out - vf - rail
     } else {
@@ -99,7 +105,12 @@ fn refs(ctx: &Context<'_, '_, '_>, ids: &[usize]) -> String {
 }
 
 /// The parts of one load, for a message: `R3 and D2`, `R7`.
-fn load_parts(ctx: &Context<'_, '_, '_>, net: usize, op: &OperatingPoint, l: &ResistiveLoad) -> String {
+fn load_parts(
+    ctx: &Context<'_, '_, '_>,
+    net: usize,
+    op: &OperatingPoint,
+    l: &ResistiveLoad,
+) -> String {
     let nm = &ctx.cx.nets[net];
     match l.kind {
         LoadKind::Led(i) => {
@@ -129,13 +140,27 @@ fn open_note(ctx: &Context<'_, '_, '_>, l: &ResistiveLoad) -> String {
 }
 
 /// LEDs whose forward voltages need more than the output reaches.
-fn dark(ctx: &Context<'_, '_, '_>, net: usize, at: PinRef, op: &OperatingPoint, out: &mut Vec<Diag>) {
+fn dark(
+    ctx: &Context<'_, '_, '_>,
+    net: usize,
+    at: PinRef,
+    op: &OperatingPoint,
+    out: &mut Vec<Diag>,
+) {
     let cx = ctx.cx;
     for l in op.loads.iter().filter(|l| l.dark) {
         let parts = load_parts(ctx, net, op, l);
         let (need, reach) = if op.high {
             (
-                format!("{} of forward voltage to {}", format_volts(l.vf), format_volts(l.rail_volts)),
+                format!(
+                    "{} of forward voltage{}",
+                    format_volts(l.vf),
+                    if l.rail_volts == 0.0 {
+                        String::new()
+                    } else {
+                        format!(" above {}", format_volts(l.rail_volts))
+                    }
+                ),
                 format!("its high reaches at most {}", format_volts(op.reach)),
             )
         } else {
@@ -176,7 +201,13 @@ fn dark(ctx: &Context<'_, '_, '_>, net: usize, at: PinRef, op: &OperatingPoint, 
 }
 
 /// A CMOS output's current against its rating and absolute maximum, and the level it keeps.
-fn current(ctx: &Context<'_, '_, '_>, net: usize, di: usize, op: &OperatingPoint, out: &mut Vec<Diag>) {
+fn current(
+    ctx: &Context<'_, '_, '_>,
+    net: usize,
+    di: usize,
+    op: &OperatingPoint,
+    out: &mut Vec<Diag>,
+) {
     let cx = ctx.cx;
     let nm = &cx.nets[net];
     let d = &nm.drivers[di];
@@ -240,9 +271,14 @@ fn current(ctx: &Context<'_, '_, '_>, net: usize, di: usize, op: &OperatingPoint
             } else {
                 (format_volts(l.rail_volts), format_volts(op.level))
             };
+            let b = if op.high && l.rail_volts == 0.0 {
+                String::new()
+            } else {
+                format!(" - {b}")
+            };
             if l.ohms > 0.0 {
                 format!(
-                    "{} through {parts} (({a} - {b}{drop}) / {}){}",
+                    "{} through {parts} (({a}{b}{drop}) / {}){}",
                     format_amps(l.amps),
                     format_ohms(l.ohms),
                     open_note(ctx, l)
@@ -318,12 +354,24 @@ fn current(ctx: &Context<'_, '_, '_>, net: usize, di: usize, op: &OperatingPoint
     if !lost.is_empty() {
         let names: Vec<String> = lost
             .iter()
-            .map(|(p, v)| format!("{} (V{}{} {})", cx.pin_name(*p), if op.high { "IH" } else { "IL" }, if op.high { " min" } else { " max" }, format_volts(*v)))
+            .map(|(p, v)| {
+                format!(
+                    "{} (V{}{} {})",
+                    cx.pin_name(*p),
+                    if op.high { "IH" } else { "IL" },
+                    if op.high { " min" } else { " max" },
+                    format_volts(*v)
+                )
+            })
             .collect();
         message.push_str(&format!(
-            ", {} the level {} needs: {}",
+            ", {} the level {}: {}",
             if op.high { "below" } else { "above" },
-            if lost.len() == 1 { "the logic input on the net" } else { "the logic inputs on the net" },
+            if lost.len() == 1 {
+                "the logic input on the net needs"
+            } else {
+                "the logic inputs on the net need"
+            },
             names.join(", ")
         ));
     } else if over_rated {
@@ -340,13 +388,7 @@ fn current(ctx: &Context<'_, '_, '_>, net: usize, di: usize, op: &OperatingPoint
         .iter()
         .filter_map(|l| {
             let r = resistor_within(op.high, op.row.0, l.vf, l.rail_volts, share)?;
-            (r > l.ohms).then(|| {
-                format!(
-                    "{} for {}",
-                    format_ohms(r),
-                    load_parts(ctx, net, op, l)
-                )
-            })
+            (r > l.ohms).then(|| format!("{} for {}", format_ohms(r), load_parts(ctx, net, op, l)))
         })
         .collect();
     let help = if fixes.is_empty() {
@@ -362,7 +404,11 @@ fn current(ctx: &Context<'_, '_, '_>, net: usize, di: usize, op: &OperatingPoint
     let mut diag = Diag::new(INFO.id, sev, message)
         .at(
             cx.pin_span(d.at),
-            format!("{} {}", if op.high { "sources" } else { "sinks" }, format_amps(op.total)),
+            format!(
+                "{} {}",
+                if op.high { "sources" } else { "sinks" },
+                format_amps(op.total)
+            ),
         )
         .on_net(cx.net_name(net))
         .with_pins(

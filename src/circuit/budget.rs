@@ -197,10 +197,7 @@ fn operating_point(
         })
     } else {
         // the low state rises from 0 V: the sunk current grows, the loads' current falls
-        let top = knees
-            .iter()
-            .map(|k| k.rail_volts)
-            .fold(vcc, f64::max);
+        let top = knees.iter().map(|k| k.rail_volts).fold(vcc, f64::max);
         crossing(0.0, top, |v| {
             logic + knees.iter().map(|k| conduct(k, v)).sum::<f64>() - v / r_out
         })
@@ -273,21 +270,26 @@ fn drive_points(
                 open_common: p.open_common,
             })
             .collect();
-        knees.extend(nm.pulls.iter().enumerate().filter(|(_, p)| !p.up).map(|(i, p)| Knee {
-            kind: LoadKind::Pull(i),
-            at: p.at,
-            vf: 0.0,
-            ohms: p.ohms,
-            rail_volts: p.rail_volts,
-            open_common: None,
-        }));
+        knees.extend(
+            nm.pulls
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| !p.up)
+                .map(|(i, p)| Knee {
+                    kind: LoadKind::Pull(i),
+                    at: p.at,
+                    vf: 0.0,
+                    ohms: p.ohms,
+                    rail_volts: p.rail_volts,
+                    open_common: None,
+                }),
+        );
         // how far the high can go with no load: a CMOS output to its supply; a totem pole
         // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
         // (common practice; its guaranteed VOH is a minimum, not a ceiling)
         let reach = if stops_short { lv.vcc - 1.4 } else { lv.vcc };
-        strongest(&lv.voh).and_then(|row| {
-            operating_point(true, lv.vcc, row, lv.ioh_max.abs(), iih, reach, knees)
-        })
+        strongest(&lv.voh)
+            .and_then(|row| operating_point(true, lv.vcc, row, lv.ioh_max.abs(), iih, reach, knees))
     } else {
         None
     };
@@ -305,14 +307,20 @@ fn drive_points(
                 open_common: p.open_common,
             })
             .collect();
-        knees.extend(nm.pulls.iter().enumerate().filter(|(_, p)| p.up).map(|(i, p)| Knee {
-            kind: LoadKind::Pull(i),
-            at: p.at,
-            vf: 0.0,
-            ohms: p.ohms,
-            rail_volts: p.rail_volts,
-            open_common: None,
-        }));
+        knees.extend(
+            nm.pulls
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| p.up)
+                .map(|(i, p)| Knee {
+                    kind: LoadKind::Pull(i),
+                    at: p.at,
+                    vf: 0.0,
+                    ohms: p.ohms,
+                    rail_volts: p.rail_volts,
+                    open_common: None,
+                }),
+        );
         // the low can go down to ground: LEDs that need more than their rail never light
         let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {
@@ -606,9 +614,9 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             .filter_map(|l| l.levels.as_ref())
             .map(|l| l.iil_max.abs())
             .sum();
-        let stops_short = cx.family(d.at.comp).is_some_and(|f| {
-            f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
-        });
+        let stops_short = cx
+            .family(d.at.comp)
+            .is_some_and(|f| f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl);
         let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
         out.drivers.push(DriverBudget {
             driver: di,

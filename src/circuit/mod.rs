@@ -806,10 +806,7 @@ pub fn build<'n, 'a>(
         let mut sinks = Vec::new();
         for &start in &nets[net].passives {
             let kind = cl.parts[start.comp].kind;
-            if !matches!(
-                kind,
-                PartKind::Resistor | PartKind::Led | PartKind::Display
-            ) {
+            if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
             if let Some(path) = follow_to_ground(nl, cl, &rail, &displays, start, opts.led_vf) {
@@ -1232,10 +1229,7 @@ fn follow_to_ground(
                 displays
                     .iter()
                     .find(|d| d.comp == l)
-                    .map_or_else(
-                        || led_vf_by_colour(nl.components[l].value_str()),
-                        |d| d.vf,
-                    )
+                    .map_or_else(|| led_vf_by_colour(nl.components[l].value_str()), |d| d.vf)
                     .unwrap_or(vf)
             })
             .sum()

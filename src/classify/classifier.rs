@@ -180,8 +180,8 @@ pub enum DisplayEvidence {
 /// Value prefixes of LED displays: digits and bar graphs of the usual makers' series.
 const DISPLAY_PREFIXES: &[&str] = &[
     "hdsp-", "hdsp_", "lts-", "ltd-", "ltc-", "lta-", "sa52-", "sc52-", "sa56-", "sc56-", "sa39-",
-    "sc39-", "sa08-", "sc08-", "sa10-", "sc10-", "ca56-", "cc56-", "dc56-", "dc10-", "tdsr", "tdsg",
-    "tdsy", "tdcr", "tdcg", "hdsm-",
+    "sc39-", "sa08-", "sc08-", "sa10-", "sc10-", "ca56-", "cc56-", "dc56-", "dc10-", "tdsr",
+    "tdsg", "tdsy", "tdcr", "tdcg", "hdsm-",
 ];
 
 /// Tells an LED display from its value, library part, description, footprint or pins.

@@ -725,7 +725,11 @@ fn convert_family(
     let positive = |errors: &mut Vec<RuleError>, x: &Spanned<f64>, key: &str, unit: &str| {
         let v = finite(errors, x, key);
         if v <= 0.0 {
-            err(errors, x.span(), format!("family {id}: `{key}` must be positive, found {v} {unit}"));
+            err(
+                errors,
+                x.span(),
+                format!("family {id}: `{key}` must be positive, found {v} {unit}"),
+            );
         }
         v
     };
