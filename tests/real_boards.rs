@@ -24,7 +24,24 @@ use serde_json::Value;
 
 /// The misses (of those an existing check should catch) that must be found. Raise it as the model
 /// learns; never lower it without a reason written in the commit.
-const MISSES_FOUND_AT_LEAST: usize = 39;
+const MISSES_FOUND_AT_LEAST: usize = 44;
+
+/// Checks that now report what the review asked of another name: a check split off from the one
+/// named (`unpowered-part` took parts with power pins wired to nothing from
+/// `power-pin-miswired`), or a check that exists now for a `new:` name the review proposed. A miss
+/// whose `new:` name has no entry here is not counted.
+const NOW_REPORTED_BY: &[(&str, &[&str])] = &[
+    ("power-pin-miswired", &["unpowered-part"]),
+    (
+        "new:floating-input-unknown-family",
+        &[
+            "floating-cmos-input",
+            "floating-ttl-input",
+            "open-control-input",
+        ],
+    ),
+    ("new:display-common-unconnected", &["display-common-open"]),
+];
 
 fn shared() -> Option<PathBuf> {
     let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/real-boards");
@@ -129,9 +146,6 @@ fn at_matches(f: &Found, at: &str, net: Option<&str>) -> bool {
     // findings without pins name the part in the message
     f.pins.is_empty() && !at.contains('.') && f.message.split_whitespace().next() == Some(at)
 }
-
-/// Checks written for misses the review filed as `new:<name>`: (label, check id).
-const NEW_CHECKS: &[(&str, &str)] = &[("new:display-common-unconnected", "display-common-open")];
 
 #[derive(Default)]
 struct Row {
@@ -278,17 +292,16 @@ fn real_boards_against_the_review() {
         // misses that an existing check should catch
         for m in entry["missed"].as_array().unwrap() {
             let want = m["want_check"].as_str().unwrap();
-            // a miss the review filed for a check not yet written counts once the check that
-            // now does the job is named here
-            let want = NEW_CHECKS
-                .iter()
-                .find(|(label, _)| *label == want)
-                .map_or(want, |(_, id)| *id);
-            if want.starts_with("new:") {
+            let mut checks: Vec<&str> = want.split('|').collect();
+            for (named, now) in NOW_REPORTED_BY {
+                if checks.contains(named) {
+                    checks.extend_from_slice(now);
+                }
+            }
+            if checks.iter().all(|c| c.starts_with("new:")) {
                 continue;
             }
             row.misses_total += 1;
-            let checks: Vec<&str> = want.split('|').collect();
             let at = m["at"].as_str().unwrap();
             let hit = found.iter().any(|f| {
                 (f.severity == "error" || f.severity == "warning")
