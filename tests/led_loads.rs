@@ -71,6 +71,30 @@ fn a_74hc_output_and_a_red_led_by_hand() {
 }
 
 #[test]
+fn a_4000b_output_and_its_transistor_dissipation_by_hand() {
+    // National CD4011BC at 5 V: IOH -0.36 mA at VO 4.6 V (85 C), so 0.4 V / 0.36 mA = 1.11 kOhm
+    let p = point("/IND_AUX", true);
+    near(p.r_out, 0.4 / 0.36e-3, 0.5, "CD4011B high-state resistance");
+    // 470 Ohm and a red LED: 3.3 / (470 + 1111) = 2.09 mA, 580 % of the rated 0.36 mA
+    near(
+        p.total,
+        3.3 / (470.0 + 0.4 / 0.36e-3),
+        2e-6,
+        "470 Ohm and a red LED",
+    );
+    assert!(p.total > p.rating);
+    // the output transistor drops 2.09 mA x 1.11 kOhm = 2.32 V: 4.8 mW, within the 100 mW
+    // a TI CD4027B sheet (JAJSM64D) rates per output transistor
+    let watts = p.total * (p.rail - p.level);
+    near(
+        watts,
+        4.84e-3,
+        0.05e-3,
+        "dissipation in the output transistor",
+    );
+}
+
+#[test]
 fn strings_that_need_more_than_the_output_reaches_are_dark() {
     // two white LEDs, 3.0 V each (common practice): 6.0 V from a 5 V output
     let p = point("/IND_GATE_W", true);
@@ -112,6 +136,7 @@ fn operating_points_agree_with_ngspice() {
         ("/IND_OVF", false, 0.0, 1.7, 5.0),
         ("/TEST_LOAD", true, 10.0, 0.0, 0.0),
         ("/IND_LOCAL", true, 2200.0, 2.1, 0.0),
+        ("/IND_AUX", true, 470.0, 1.7, 0.0),
     ];
     let mut deck = String::from("netmargin LED cross-check\n");
     let mut want = Vec::new();

@@ -795,7 +795,7 @@ pub fn build<'n, 'a>(
     }
     settle_sources(&mut nets);
 
-    // LED paths: net -> (R | LED)* -> ground, at most four parts deep; a display's segment
+    // LED paths: net -> (R | LED)* -> ground, at most eight parts deep; a display's segment
     // leads to its common
     let displays = display::find(nl, cl);
     for net in 0..n_nets {
@@ -1234,7 +1234,8 @@ fn follow_to_ground(
             })
             .sum()
     };
-    for _ in 0..4 {
+    // a resistor and up to seven LEDs: a longer string is not left out of the budget
+    for _ in 0..8 {
         let c = &nl.components[cur.comp];
         let kind = cl.parts[cur.comp].kind;
         if kind == PartKind::Display {

@@ -891,3 +891,21 @@ mod tests {
         }
     }
 }
+
+#[cfg(test)]
+mod display_tests {
+    use super::display_common_name;
+
+    #[test]
+    fn common_pins_by_name() {
+        // KiCad's display symbols name a common cathode CC, a common anode CA (common practice)
+        assert_eq!(display_common_name("CC"), Some(Some(false)));
+        assert_eq!(display_common_name("CA2"), Some(Some(true)));
+        assert_eq!(display_common_name("com"), Some(None));
+        assert_eq!(display_common_name("DIG3"), Some(None));
+        // segments and the decimal point are not commons
+        for seg in ["a", "B", "g", "DP", "C", "K1"] {
+            assert_eq!(display_common_name(seg), None, "{seg}");
+        }
+    }
+}
