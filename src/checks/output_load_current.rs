@@ -21,7 +21,8 @@
 //!
 //! Severity: error over the absolute maximum (per pin, or per output transistor for the
 //! 4000 series), or when a logic input on the same net loses its level; warning when only
-//! the rated IOH or IOL is exceeded (levels are not guaranteed there), and for LEDs that
+//! the rated IOH or IOL is exceeded (levels are not guaranteed there; a rating exceeded by
+//! pull resistors alone, or by LEDs sunk through a resistor, is `fanout-overrun`'s), and for LEDs that
 //! never light (their forward voltages are typical figures: the message says which). A
 //! display whose common is open today (`display-common-open`) lights nothing yet: its
 //! segments are judged as wired, one step lower, and not at all when only the rating is
@@ -243,6 +244,15 @@ fn current(
     } else {
         return;
     };
+    // `fanout-overrun` budgets pull resistors in both states and LEDs with a resistor sunk from
+    // a rail, at the rated level: a rating exceeded by those alone is its finding
+    let budgeted = |l: &&ResistiveLoad| match l.kind {
+        LoadKind::Pull(_) => true,
+        LoadKind::Led(_) => !op.high && l.ohms > 0.0,
+    };
+    if sev == Severity::Warning && lit.iter().all(budgeted) {
+        return;
+    }
     let assumed = lit.iter().any(|l| l.open_common.is_some());
     let supply_known = cx.supplies[d.at.comp].as_ref().is_some_and(|s| s.known);
     if assumed && sev == Severity::Warning {

@@ -307,11 +307,13 @@ fn drive_points(
                 open_common: p.open_common,
             })
             .collect();
+        // an open collector's pull-up is the open-collector window's (`PullUpWindow`)
+        let own_pulls = d.role != PinRole::OpenCollector;
         knees.extend(
             nm.pulls
                 .iter()
                 .enumerate()
-                .filter(|(_, p)| p.up)
+                .filter(|(_, p)| p.up && own_pulls)
                 .map(|(i, p)| Knee {
                     kind: LoadKind::Pull(i),
                     at: p.at,
