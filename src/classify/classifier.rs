@@ -237,7 +237,11 @@ pub fn display_evidence(c: &Component<'_>) -> Option<DisplayEvidence> {
     if named {
         return Some(DisplayEvidence::Named);
     }
-    // the pins alone: at least seven of the segments a..g and a common
+    // the pins alone: at least seven of the segments a..g and a common (a display has a few
+    // dozen pins at most)
+    if c.pins.len() > 64 {
+        return None;
+    }
     let names: Vec<String> = c
         .pins
         .iter()
