@@ -7,8 +7,8 @@
 //! ties nothing), the display stays dark whatever its drivers do. It is usually a symbol
 //! whose common pins were never wired, or a flag put on the wrong pin.
 //!
-//! Example: an HDSP-A153-style common-cathode digit whose two cathode pins (1 and 6) carry
-//! no-connect flags, its segments driven by a 4543 decoder: the digit never lights.
+//! Example: a common-cathode digit `7SEG-CC-RED` whose two cathode pins (3 and 8) carry
+//! no-connect flags, its segments driven by a 74HC04 through 2.2 kOhm: the digit never lights.
 //!
 //! Severity: error when the part is known as a display (its value, library part,
 //! description or footprint names one); warning when only its pin names (segments `a` to
