@@ -1,0 +1,268 @@
+//! The memories and peripherals around the logic added for real boards: their pinouts against
+//! the documents named beside each expected value (written out here, not read back from the
+//! table), the value forms that name them, and the look-alikes that must not be taken for them.
+
+use netmargin::classify::classifier::{classify, PartKind, Rules};
+use netmargin::classify::function::{FunctionTable, Series};
+use netmargin::classify::PinRole::{self, *};
+
+fn table() -> FunctionTable {
+    FunctionTable::builtin()
+}
+
+/// Checks (pin, name, role) of a series-"other" function and its package size.
+fn expect_pins(id: &str, package: u32, expected: &[(u32, &str, PinRole)]) {
+    let t = table();
+    let f = t
+        .get(Series::Other, id)
+        .unwrap_or_else(|| panic!("function {id} missing"));
+    assert_eq!(f.package_pins, package, "{id}: package pins");
+    for &(pin, name, role) in expected {
+        let p = f
+            .pin(&pin.to_string())
+            .unwrap_or_else(|| panic!("{id}: pin {pin} missing"));
+        assert_eq!(p.name, name, "{id}: pin {pin} name");
+        assert_eq!(p.role, role, "{id}: pin {pin} ({name}) role");
+    }
+}
+
+/// Classifies one component per (reference, value, highest pin number) and returns (kind,
+/// family, function) for each.
+fn classify_values(items: &[(&str, &str, u32)]) -> Vec<(PartKind, Option<String>, Option<String>)> {
+    let mut comps = String::new();
+    let mut libparts = String::new();
+    for (i, (r, v, n)) in items.iter().enumerate() {
+        comps.push_str(&format!(
+            "    (comp (ref \"{r}\") (value \"{v}\") (libsource (lib \"x\") (part \"P{i}\")))\n"
+        ));
+        let pins: String = (1..=*n)
+            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"passive\"))"))
+            .collect();
+        libparts.push_str(&format!(
+            "    (libpart (lib \"x\") (part \"P{i}\") (pins {pins}))\n"
+        ));
+    }
+    let text = format!(
+        "(export (version \"E\")\n  (components\n{comps})\n  (libparts\n{libparts})\n  (nets))\n"
+    );
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = classify(&nl, &Rules::builtin());
+    cl.parts
+        .iter()
+        .map(|p| {
+            (
+                p.kind,
+                p.family.clone(),
+                p.function.as_ref().map(|(_, id)| id.clone()),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn uart_dip40_matches_the_ti_terminal_table() {
+    // TI SLLS177I (TL16C550C), terminal functions, N package (pins read in the table)
+    expect_pins(
+        "16550",
+        40,
+        &[
+            (28, "A0", Input),
+            (27, "A1", Input),
+            (26, "A2", Input),
+            (25, "~ADS", Input),
+            (15, "~BAUDOUT", PushPull),
+            (12, "CS0", Input),
+            (13, "CS1", Input),
+            (14, "~CS2", Input),
+            (36, "~CTS", Input),
+        ],
+    );
+    // from memory (National PC16550D pin description): data bus, supplies, interrupt, reset
+    expect_pins(
+        "16550",
+        40,
+        &[
+            (1, "D0", Bidirectional),
+            (8, "D7", Bidirectional),
+            (20, "VSS", Ground),
+            (40, "VCC", Supply),
+            (30, "INTR", PushPull),
+            (35, "MR", Input),
+            (11, "SOUT", PushPull),
+            (10, "SIN", Input),
+        ],
+    );
+}
+
+#[test]
+fn uart_plcc44_matches_the_ti_terminal_table() {
+    // TI SLLS177I (TL16C550C), terminal functions, FN package (pins read in the table)
+    expect_pins(
+        "16550-plcc44",
+        44,
+        &[
+            (31, "A0", Input),
+            (30, "A1", Input),
+            (29, "A2", Input),
+            (28, "~ADS", Input),
+            (17, "~BAUDOUT", PushPull),
+            (14, "CS0", Input),
+            (15, "CS1", Input),
+            (16, "~CS2", Input),
+            (40, "~CTS", Input),
+        ],
+    );
+    // from memory: the four corner pins of the PLCC are not connected; power at 22 and 44
+    expect_pins(
+        "16550-plcc44",
+        44,
+        &[
+            (1, "NC", NoConnect),
+            (12, "NC", NoConnect),
+            (23, "NC", NoConnect),
+            (34, "NC", NoConnect),
+            (22, "VSS", Ground),
+            (44, "VCC", Supply),
+            (33, "INTR", PushPull),
+        ],
+    );
+}
+
+#[test]
+fn clock_generator_8224_matches_the_published_pin_list() {
+    // Intel 8224 pins 1-13 as listed in the 8080 support-chip notes; the 12 V clock drivers and
+    // the +12 V supply are analog (outside the TTL figures), per the Intel 8080 manual's 8224
+    // functional description ("two high level drivers")
+    expect_pins(
+        "8224",
+        16,
+        &[
+            (1, "RESET", PushPull),
+            (2, "~RESIN", SchmittInput),
+            (3, "RDYIN", Input),
+            (4, "READY", PushPull),
+            (5, "SYNC", Input),
+            (6, "PHI2(TTL)", PushPull),
+            (7, "~STSTB", PushPull),
+            (8, "GND", Ground),
+            (9, "VDD", Analog),
+            (10, "PHI2", Analog),
+            (11, "PHI1", Analog),
+            (12, "OSC", PushPull),
+            (13, "TANK", Analog),
+            (16, "VCC", Supply), // from memory
+        ],
+    );
+}
+
+#[test]
+fn crt_controller_8275_pinout() {
+    // from memory: Intel 8275 pin configuration (the light pen input and the supplies, the
+    // data bus and the interrupt request)
+    expect_pins(
+        "8275",
+        40,
+        &[
+            (11, "LPEN", Input),
+            (12, "DB0", Bidirectional),
+            (19, "DB7", Bidirectional),
+            (20, "GND", Ground),
+            (40, "VCC", Supply),
+            (31, "IRQ", PushPull),
+            (5, "DRQ", PushPull),
+            (6, "~DACK", Input),
+            (30, "CCLK", Input),
+        ],
+    );
+}
+
+#[test]
+fn static_ram_5101_and_line_driver_75150_pinouts() {
+    // NTE65101 (a 5101 replacement): 22-lead DIP, VSS on pin 8 (read); the rest from memory
+    expect_pins(
+        "5101",
+        22,
+        &[
+            (8, "GND", Ground),
+            (22, "VCC", Supply),
+            (4, "A0", Input),
+            (9, "DI1", Input),
+            (10, "DO1", ThreeState),
+            (16, "DO4", ThreeState),
+            (19, "~CE1", Input),
+            (20, "R/~W", Input),
+        ],
+    );
+    // from memory: TI SN75150: TTL inputs, outputs at RS-232 levels, no 5 V supply pin
+    expect_pins(
+        "75150",
+        8,
+        &[
+            (1, "S", Input),
+            (2, "1A", Input),
+            (3, "2A", Input),
+            (4, "GND", Ground),
+            (5, "VCC-", Analog),
+            (7, "1Y", Analog),
+            (8, "VCC+", Analog),
+        ],
+    );
+}
+
+#[test]
+fn value_forms_name_their_parts() {
+    // (value, highest pin, family, function): makers' markings and library symbol names
+    let cases: &[(&str, u32, &str, &str)] = &[
+        ("8275/КР580ВГ75", 40, "NMOS", "8275"),
+        ("P8275", 40, "NMOS", "8275"),
+        ("8224/КР580ГФ24", 16, "74LS", "8224"),
+        ("D8224", 16, "74LS", "8224"),
+        ("SN75150P/К170АП2", 8, "74", "75150"),
+        ("SN75150N", 8, "74", "75150"),
+        ("16C550", 40, "CMOS-TTL", "16550"),
+        ("16C550", 44, "CMOS-TTL", "16550-plcc44"),
+        ("TL16C550CN", 40, "CMOS-TTL", "16550"),
+        ("TL16C550CFN", 44, "CMOS-TTL", "16550-plcc44"),
+        ("INS8250N", 40, "NMOS", "16550"),
+        ("NS16450N", 40, "NMOS", "16550"),
+        ("NS16550AFN", 40, "NMOS", "16550"),
+        ("RAM_5501", 22, "CMOS-TTL", "5101"),
+        ("TC5501P", 22, "CMOS-TTL", "5101"),
+        ("RAM_2016", 24, "CMOS-TTL", "6116"),
+        ("TMM2016AP-10", 24, "CMOS-TTL", "6116"),
+        ("ROM_2764", 28, "NMOS-EPROM", "2764"),
+        ("2764", 28, "NMOS-EPROM", "2764"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, fam, func), (kind, f, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v} ({n} pins)");
+        assert_eq!(f.as_deref(), Some(*fam), "{v} ({n} pins): family");
+        assert_eq!(fu.as_deref(), Some(*func), "{v} ({n} pins): function");
+    }
+}
+
+#[test]
+fn look_alikes_are_not_taken_for_these_parts() {
+    // (value, highest pin, the function it must be, or None when it must stay unclassified)
+    let cases: &[(&str, u32, Option<&str>)] = &[
+        // 74-series shift register, not the 4164 DRAM
+        ("74LS164", 14, Some("164")),
+        ("DM74164N", 14, Some("164")),
+        ("54164", 14, Some("164")),
+        // the quad bilateral switch, not a 2016 static RAM
+        ("CD4016BE", 14, Some("4016")),
+        // a 74-series latch, not the SN75150
+        ("74LS75", 16, Some("75")),
+        // a symbol of eight 4116 DRAMs with its own pin numbering (1 to 26) is no 16-pin 4116
+        ("MK4116x8", 26, None),
+        // a 16550 in a 48-pin package the table does not hold
+        ("16C550", 48, None),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, want), (_, _, fu)) in cases.iter().zip(&got) {
+        assert_eq!(fu.as_deref(), *want, "{v} ({n} pins)");
+    }
+}
