@@ -64,6 +64,11 @@ pub enum Method {
     NetlistOnly,
     /// IC-like, and neither classified nor carrying usable pin types.
     NotClassified,
+    /// Drawn as a function, not a part: the value names a logic function (`AND2`, `CNT`,
+    /// `MUX2x7`) or, with no footprint, a cell (`CMPD`), and carries no part number, so no
+    /// family can be found for it. Not counted among the IC-like parts; pin roles from the
+    /// symbol's pin types.
+    FunctionSymbol,
     /// Not an IC (resistor, capacitor, connector ...): classified by its reference.
     Reference,
 }
@@ -77,6 +82,7 @@ impl Method {
             Method::Pattern => "pattern",
             Method::NetlistOnly => "netlist only",
             Method::NotClassified => "not classified",
+            Method::FunctionSymbol => "function symbol",
             Method::Reference => "reference",
         }
     }
@@ -153,6 +159,9 @@ pub struct Classified {
     pub parts: Vec<PartClass>,
     /// (classified, IC-like): how many IC-like parts have a family or a known non-logic entry.
     pub coverage: (usize, usize),
+    /// Parts drawn as a function with no part number (`Method::FunctionSymbol`), left out of
+    /// the IC-like count.
+    pub function_symbols: usize,
     /// Entries of project files that matched no component.
     pub unused_project_entries: Vec<usize>,
 }
@@ -422,7 +431,7 @@ fn parse_function_field(s: &str) -> (Series, String) {
 pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut parts = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
-    let (mut classified, mut ic_like) = (0, 0);
+    let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
     for c in &nl.components {
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
@@ -518,6 +527,10 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 function = Some((series, m.function.clone()));
             }
             value_match = Some(m);
+        } else if ic && is_function_symbol(value, c.footprint.is_some()) {
+            kind = PartKind::UnknownIc;
+            method = Method::FunctionSymbol;
+            function_symbols += 1;
         } else if ic {
             kind = PartKind::UnknownIc;
             let known =
@@ -534,11 +547,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 Method::NotClassified
             };
         }
-        let is_ic = ic
-            || matches!(
-                kind,
-                PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc
-            );
+        let is_ic = method != Method::FunctionSymbol
+            && (ic
+                || matches!(
+                    kind,
+                    PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc
+                ));
         if is_ic {
             ic_like += 1;
             if matches!(kind, PartKind::Logic | PartKind::NotLogic) {
@@ -627,6 +641,96 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     Classified {
         parts,
         coverage: (classified, ic_like),
+        function_symbols,
         unused_project_entries,
+    }
+}
+
+/// Generic words a schematic uses to draw a logic function without naming a part.
+const FUNCTION_WORDS: &[&str] = &[
+    "AND", "NAND", "OR", "NOR", "XOR", "XNOR", "NOT", "INV", "INVERTER", "BUF", "BUFFER", "DFF",
+    "JKFF", "TFF", "SRFF", "FF", "SR", "RS", "LATCH", "MUX", "DEMUX", "CNT", "COUNTER", "DEC",
+    "DECODE", "DECODER", "ENCODER", "REG", "REGISTER", "SHIFT", "SHIFTREG", "ADDER", "GATE",
+    "CMP", "COMPARATOR",
+];
+
+/// Whether an unmatched IC-like part is drawn as a function rather than named as a part: its
+/// value has no part number (no run of three digits or more, no spaces or punctuation) and is
+/// either a generic function word (`AND`, `4AND`, `NOR3`, `DFFN`, `MUX2x10`, `decode_3_bit`,
+/// `NOT_OC`) or, on a symbol with no footprint, a short cell name of letters and at most
+/// single digits (`CMPD`, `LD3R`).
+pub fn is_function_symbol(value: &str, has_footprint: bool) -> bool {
+    let v = value.trim();
+    if v.is_empty() || v == "~" || !v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_') {
+        return false;
+    }
+    let mut run = 0;
+    let mut longest = 0;
+    for c in v.chars() {
+        run = if c.is_ascii_digit() { run + 1 } else { 0 };
+        longest = longest.max(run);
+    }
+    if longest >= 3 {
+        return false;
+    }
+    let upper = v.to_ascii_uppercase();
+    // a leading count (`4AND`: a 4-input AND)
+    let body = upper.trim_start_matches(|c: char| c.is_ascii_digit());
+    // what follows an underscore names a variant (`NOT_OC`, `decode_3_bit`)
+    let head = body.split('_').next().unwrap_or("");
+    let word_end = head
+        .find(|c: char| !c.is_ascii_alphabetic())
+        .unwrap_or(head.len());
+    let (word, rest) = head.split_at(word_end);
+    // what may follow the word: input counts and widths (`3`, `2X7`)
+    let rest_ok = rest.chars().all(|c| c.is_ascii_digit() || c == 'X');
+    let known = |w: &str| FUNCTION_WORDS.contains(&w);
+    // one letter of variant (`DFFN`, `DFFR`, `CMPD`) on a word of three letters or more
+    let variant = word.len() >= 4 && {
+        let stem = &word[..word.len() - 1];
+        stem.len() >= 3 && known(stem)
+    };
+    if rest_ok && (known(word) || variant) {
+        return true;
+    }
+    // a library cell with no footprint and no part number
+    !has_footprint && longest < 2 && v.len() <= 8 && !v.contains('_')
+}
+
+#[cfg(test)]
+mod tests {
+    use super::is_function_symbol;
+
+    #[test]
+    fn values_that_draw_a_function() {
+        // generic function words, with input counts, widths, variants and suffixes
+        for v in [
+            "AND", "4AND", "NOR3", "OR6", "XOR", "DFF", "DFFN", "SR", "MUX", "MUX2x10", "CNT",
+            "decode_3_bit", "NOT_OC", "BUF", "CMPD",
+        ] {
+            assert!(is_function_symbol(v, true), "{v} with a footprint");
+            assert!(is_function_symbol(v, false), "{v} without a footprint");
+        }
+        // a short cell name is a function only when there is no footprint either
+        for v in ["LD3R", "FAINB", "ULA"] {
+            assert!(is_function_symbol(v, false), "{v} without a footprint");
+            assert!(!is_function_symbol(v, true), "{v} with a footprint");
+        }
+    }
+
+    #[test]
+    fn values_that_name_a_part() {
+        // part numbers (three digits or more), transcription slips that keep their digits,
+        // empty values, values with spaces or punctuation, and words that only start like a
+        // function word
+        for v in [
+            "74LSOO", "SN74LSOO", "NE555", "MK4116x8", "Z80", "V9938/V9958", "Flash ROM", "~", "",
+            "ORANGE", "ANDROID", "Arduino_Nano_v3.x",
+        ] {
+            assert!(!is_function_symbol(v, true), "{v} with a footprint");
+        }
+        for v in ["74LSOO", "Z80", "8T26", "Flash ROM", "~", "MOS_7360_TED", "Relay_5V"] {
+            assert!(!is_function_symbol(v, false), "{v} without a footprint");
+        }
     }
 }
