@@ -34,7 +34,11 @@ const NOW_REPORTED_BY: &[(&str, &[&str])] = &[
     ("power-pin-miswired", &["unpowered-part"]),
     (
         "new:floating-input-unknown-family",
-        &["floating-cmos-input", "floating-ttl-input", "open-control-input"],
+        &[
+            "floating-cmos-input",
+            "floating-ttl-input",
+            "open-control-input",
+        ],
     ),
 ];
 

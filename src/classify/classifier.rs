@@ -648,10 +648,41 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
 
 /// Generic words a schematic uses to draw a logic function without naming a part.
 const FUNCTION_WORDS: &[&str] = &[
-    "AND", "NAND", "OR", "NOR", "XOR", "XNOR", "NOT", "INV", "INVERTER", "BUF", "BUFFER", "DFF",
-    "JKFF", "TFF", "SRFF", "FF", "SR", "RS", "LATCH", "MUX", "DEMUX", "CNT", "COUNTER", "DEC",
-    "DECODE", "DECODER", "ENCODER", "REG", "REGISTER", "SHIFT", "SHIFTREG", "ADDER", "GATE",
-    "CMP", "COMPARATOR",
+    "AND",
+    "NAND",
+    "OR",
+    "NOR",
+    "XOR",
+    "XNOR",
+    "NOT",
+    "INV",
+    "INVERTER",
+    "BUF",
+    "BUFFER",
+    "DFF",
+    "JKFF",
+    "TFF",
+    "SRFF",
+    "FF",
+    "SR",
+    "RS",
+    "LATCH",
+    "MUX",
+    "DEMUX",
+    "CNT",
+    "COUNTER",
+    "DEC",
+    "DECODE",
+    "DECODER",
+    "ENCODER",
+    "REG",
+    "REGISTER",
+    "SHIFT",
+    "SHIFTREG",
+    "ADDER",
+    "GATE",
+    "CMP",
+    "COMPARATOR",
 ];
 
 /// Whether an unmatched IC-like part is drawn as a function rather than named as a part: its
@@ -705,8 +736,21 @@ mod tests {
     fn values_that_draw_a_function() {
         // generic function words, with input counts, widths, variants and suffixes
         for v in [
-            "AND", "4AND", "NOR3", "OR6", "XOR", "DFF", "DFFN", "SR", "MUX", "MUX2x10", "CNT",
-            "decode_3_bit", "NOT_OC", "BUF", "CMPD",
+            "AND",
+            "4AND",
+            "NOR3",
+            "OR6",
+            "XOR",
+            "DFF",
+            "DFFN",
+            "SR",
+            "MUX",
+            "MUX2x10",
+            "CNT",
+            "decode_3_bit",
+            "NOT_OC",
+            "BUF",
+            "CMPD",
         ] {
             assert!(is_function_symbol(v, true), "{v} with a footprint");
             assert!(is_function_symbol(v, false), "{v} without a footprint");
@@ -724,12 +768,30 @@ mod tests {
         // empty values, values with spaces or punctuation, and words that only start like a
         // function word
         for v in [
-            "74LSOO", "SN74LSOO", "NE555", "MK4116x8", "Z80", "V9938/V9958", "Flash ROM", "~", "",
-            "ORANGE", "ANDROID", "Arduino_Nano_v3.x",
+            "74LSOO",
+            "SN74LSOO",
+            "NE555",
+            "MK4116x8",
+            "Z80",
+            "V9938/V9958",
+            "Flash ROM",
+            "~",
+            "",
+            "ORANGE",
+            "ANDROID",
+            "Arduino_Nano_v3.x",
         ] {
             assert!(!is_function_symbol(v, true), "{v} with a footprint");
         }
-        for v in ["74LSOO", "Z80", "8T26", "Flash ROM", "~", "MOS_7360_TED", "Relay_5V"] {
+        for v in [
+            "74LSOO",
+            "Z80",
+            "8T26",
+            "Flash ROM",
+            "~",
+            "MOS_7360_TED",
+            "Relay_5V",
+        ] {
             assert!(!is_function_symbol(v, false), "{v} without a footprint");
         }
     }
