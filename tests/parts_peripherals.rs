@@ -266,3 +266,119 @@ fn look_alikes_are_not_taken_for_these_parts() {
         assert_eq!(fu.as_deref(), *want, "{v} ({n} pins)");
     }
 }
+
+#[test]
+fn word_wide_eproms_match_their_data_sheets() {
+    // ST M27C322 data sheet (April 2000), Figure 2A, DIP connections (read)
+    let left = [
+        "A18", "A17", "A7", "A6", "A5", "A4", "A3", "A2", "A1", "A0", "~E", "VSS", "~GVPP", "Q0",
+        "Q8", "Q1", "Q9", "Q2", "Q10", "Q3", "Q11",
+    ];
+    let right = [
+        "A19", "A8", "A9", "A10", "A11", "A12", "A13", "A14", "A15", "A16", "A20", "VSS", "Q15",
+        "Q7", "Q14", "Q6", "Q13", "Q5", "Q12", "Q4", "VCC",
+    ];
+    let role = |n: &str| match n {
+        "VSS" => Ground,
+        "VCC" => Supply,
+        q if q.starts_with('Q') => ThreeState,
+        _ => Input,
+    };
+    let mut want: Vec<(u32, &str, PinRole)> = Vec::new();
+    for (i, n) in left.iter().enumerate() {
+        want.push((i as u32 + 1, n, role(n)));
+    }
+    for (i, n) in right.iter().enumerate() {
+        want.push((42 - i as u32, n, role(n)));
+    }
+    expect_pins("m27c322", 42, &want);
+    // from memory: JEDEC 40-pin word-wide EPROM (Atmel AT27C1024: 40-lead PDIP read in its
+    // data sheet's features; the pin numbers are not)
+    expect_pins(
+        "27c1024",
+        40,
+        &[
+            (1, "VPP", Input),
+            (2, "~CE", Input),
+            (3, "O15", ThreeState),
+            (11, "GND", Ground),
+            (19, "O0", ThreeState),
+            (20, "~OE", Input),
+            (21, "A0", Input),
+            (30, "GND", Ground),
+            (37, "A15", Input),
+            (39, "~PGM", Input),
+            (40, "VCC", Supply),
+        ],
+    );
+}
+
+#[test]
+fn z80_peripherals_and_the_6845_pinouts() {
+    // ~INT of the CTC is an open-drain output: Zilog CTC pin description ("output, open drain,
+    // active Low"), read as quoted in a Memotech MTX service manual; pin numbers from memory
+    expect_pins(
+        "z80-ctc",
+        28,
+        &[
+            (12, "~INT", OpenCollector),
+            (5, "GND", Ground),
+            (24, "VCC", Supply),
+            (7, "ZC/TO0", PushPull),
+            (23, "CLK/TRG0", Input),
+            (25, "D0", Bidirectional),
+        ],
+    );
+    // from memory: Zilog Z8420 PIO; the port pins' direction is the program's
+    expect_pins(
+        "z80-pio",
+        40,
+        &[
+            (23, "~INT", OpenCollector),
+            (11, "GND", Ground),
+            (26, "VCC", Supply),
+            (15, "PA0", Unknown),
+            (27, "PB0", Unknown),
+            (19, "D0", Bidirectional),
+        ],
+    );
+    // from memory: Motorola MC6845
+    expect_pins(
+        "6845",
+        40,
+        &[
+            (1, "VSS", Ground),
+            (20, "VCC", Supply),
+            (3, "LPSTB", Input),
+            (4, "MA0", PushPull),
+            (33, "D0", Bidirectional),
+            (39, "HSYNC", PushPull),
+            (40, "VSYNC", PushPull),
+        ],
+    );
+}
+
+#[test]
+fn more_value_forms_name_their_parts() {
+    let cases: &[(&str, u32, &str, &str)] = &[
+        ("M27C322-100F1", 42, "CMOS-EPROM", "m27c322"),
+        ("AT27C1024-70PU", 40, "CMOS-EPROM", "27c1024"),
+        ("Z84C3008PEC", 28, "CMOS-TTL", "z80-ctc"),
+        ("Z8430APS", 28, "NMOS", "z80-ctc"),
+        ("Z80A-CTC", 28, "NMOS", "z80-ctc"),
+        ("Z80PIO", 40, "NMOS", "z80-pio"),
+        ("Z84C2008PEC", 40, "CMOS-TTL", "z80-pio"),
+        ("MC6845P", 40, "NMOS", "6845"),
+        ("HD46505SP", 40, "NMOS", "6845"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, fam, func), (kind, f, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v} ({n} pins)");
+        assert_eq!(f.as_deref(), Some(*fam), "{v} ({n} pins): family");
+        assert_eq!(fu.as_deref(), Some(*func), "{v} ({n} pins): function");
+    }
+    // the 64-pin MC68450 DMA controller is no 6845
+    let got = classify_values(&[("U1", "MC68450", 64)]);
+    assert_ne!(got[0].2.as_deref(), Some("6845"));
+}
