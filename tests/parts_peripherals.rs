@@ -382,3 +382,123 @@ fn more_value_forms_name_their_parts() {
     let got = classify_values(&[("U1", "MC68450", 64)]);
     assert_ne!(got[0].2.as_deref(), Some("6845"));
 }
+
+#[test]
+fn line_driver_1488_inputs_are_ttl_and_its_outputs_are_not_logic() {
+    // from memory: MC1488 / SN75188 pin assignment; the input currents that make its inputs TTL
+    // loads are TI SLLS094B's (IIL -1.6 mA max at VI 0)
+    expect_pins(
+        "1488",
+        14,
+        &[
+            (1, "VCC-", Analog),
+            (2, "1A", Input),
+            (3, "1Y", Analog),
+            (7, "GND", Ground),
+            (12, "4A", Input),
+            (13, "4B", Input),
+            (14, "VCC+", Analog),
+        ],
+    );
+    let got = classify_values(&[
+        ("U1", "MC1488P", 14),
+        ("U2", "SN75188N", 14),
+        ("U3", "MC1489P", 14),
+    ]);
+    assert_eq!(got[0].2.as_deref(), Some("1488"));
+    assert_eq!(got[0].1.as_deref(), Some("74"));
+    assert_eq!(got[1].2.as_deref(), Some("1488"));
+    // the receiver stays a known part outside the logic checks
+    assert_eq!(got[2].0, PartKind::NotLogic);
+}
+
+/// A small netlist: an RS-232 driver on +-12 V with one input open and one driven, and a CRT
+/// controller with its light-pen input open.
+fn open_inputs_netlist() -> String {
+    let comp = |r: &str, v: &str| {
+        format!("    (comp (ref {r}) (value \"{v}\") (libsource (lib x) (part {r})))\n")
+    };
+    let node = |r: &str, p: u32| format!("(node (ref {r}) (pin {p}))");
+    let net = |code: u32, name: &str, nodes: &[(&str, u32)]| {
+        let n: String = nodes.iter().map(|(r, p)| node(r, *p)).collect();
+        format!("    (net (code {code}) (name \"{name}\") {n})\n")
+    };
+    let mut s = String::from("(export (version D)\n  (components\n");
+    s += &comp("U1", "SN75150P");
+    s += &comp("U2", "74LS04");
+    s += &comp("U3", "P8275");
+    s += "  )\n  (nets\n";
+    s += &net(1, "+5V", &[("U2", 14), ("U3", 40), ("U1", 1)]);
+    s += &net(2, "GND", &[("U1", 4), ("U2", 7), ("U3", 20), ("U2", 1)]);
+    s += &net(3, "+12V", &[("U1", 8)]);
+    s += &net(4, "-12V", &[("U1", 5)]);
+    s += &net(5, "Net-(U1-Pad2)", &[("U1", 2)]);
+    s += &net(6, "TXD", &[("U2", 2), ("U1", 3)]);
+    s += &net(7, "LINE", &[("U1", 6)]);
+    s += &net(8, "Net-(U3-Pad11)", &[("U3", 11)]);
+    s += "  ))\n";
+    s
+}
+
+#[test]
+fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
+    let dir = std::env::temp_dir().join(format!("netmargin-periph-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("open-inputs.net");
+    std::fs::write(&path, open_inputs_netlist()).unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["check", "--no-config", "--format", "json"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let found: Vec<(String, String, Vec<String>)> = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            (
+                f["check"].as_str().unwrap().to_string(),
+                f["severity"].as_str().unwrap().to_string(),
+                f["pins"]
+                    .as_array()
+                    .unwrap()
+                    .iter()
+                    .map(|p| p.as_str().unwrap().to_string())
+                    .collect(),
+            )
+        })
+        .collect();
+    let at = |pin: &str| -> Vec<(&str, &str)> {
+        found
+            .iter()
+            .filter(|f| f.2.iter().any(|p| p == pin))
+            .map(|f| (f.0.as_str(), f.1.as_str()))
+            .collect()
+    };
+    // SN75150 input 1A open: a TTL input floats high (from memory: IIL -1.6 mA, a standard-TTL
+    // input); an assumption about the level, so a warning
+    assert!(
+        at("U1.2").contains(&("floating-ttl-input", "warning")),
+        "{found:?}"
+    );
+    // its driven input 2A is not reported
+    assert!(
+        at("U1.3").iter().all(|f| f.0 != "floating-ttl-input"),
+        "{found:?}"
+    );
+    // 8275 LPEN open: a MOS input with no pull-up floats (from memory), an error
+    assert!(
+        at("U3.11").contains(&("floating-cmos-input", "error")),
+        "{found:?}"
+    );
+    // the driver's +-12 V supplies are outside the logic levels: no power finding for U1
+    assert!(
+        found
+            .iter()
+            .all(|f| !(f.2.iter().any(|p| p.starts_with("U1."))
+                && (f.0 == "power-pin-miswired" || f.0 == "unpowered-part"))),
+        "{found:?}"
+    );
+}
