@@ -957,14 +957,7 @@ fn gather_recapture(
                         (
                             s.value.clone(),
                             s.change.clone(),
-                            match s.matched.series {
-                                crate::classify::pattern::Series::S74 => {
-                                    format!("{}{}", s.matched.family, s.matched.function)
-                                }
-                                crate::classify::pattern::Series::S4000 => {
-                                    format!("{} ({})", s.matched.function, s.matched.family)
-                                }
-                            },
+                            s.reads_as.clone(),
                         )
                     })
                     .collect(),

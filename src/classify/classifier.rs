@@ -432,6 +432,9 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut parts = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
     let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
+    // near misses against the part table, by value (many parts share one)
+    let mut table_slips: std::collections::HashMap<String, Vec<pattern::Suggestion>> =
+        std::collections::HashMap::new();
     for c in &nl.components {
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
@@ -536,6 +539,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             let known =
                 |s: &pattern::Series, f: &str| rules.functions.get(map_series(s), f).is_some();
             suggestions = pattern::near_misses(value, &known, 3);
+            if suggestions.is_empty() {
+                suggestions = table_slips
+                    .entry(value.to_string())
+                    .or_insert_with(|| table_near_misses(value, c, rules))
+                    .clone();
+            }
             method = if c.pins.iter().any(|p| {
                 !matches!(
                     p.ptype,
@@ -644,6 +653,43 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         function_symbols,
         unused_project_entries,
     }
+}
+
+/// Values one slip away from `value` that an entry of the part table (a processor, a memory,
+/// a peripheral) takes, for a value no table took: `Z8OA` (letter O) reads as a Z80A, `4l64`
+/// as a 4164 DRAM. One-slip readings first; two confusions only when they give the one reading.
+fn table_near_misses(value: &str, c: &Component<'_>, rules: &Rules) -> Vec<pattern::Suggestion> {
+    let mut single = Vec::new();
+    let mut double = Vec::new();
+    for (cand, change, slips) in pattern::slips(value) {
+        let Some((_, e)) = rules
+            .parts
+            .find(&cand)
+            .filter(|(_, e)| fits_package(c, e, rules))
+        else {
+            continue;
+        };
+        let what = match (&e.function, &e.family) {
+            (Some(f), Some(fam)) => format!("{f} ({fam})"),
+            (Some(f), None) => f.clone(),
+            (None, Some(fam)) => format!("a {fam} part"),
+            (None, None) => "a listed part".to_string(),
+        };
+        let list = if slips == 1 { &mut single } else { &mut double };
+        if !list.iter().any(|s: &pattern::Suggestion| s.value == cand) {
+            list.push(pattern::Suggestion {
+                value: cand,
+                matched: None,
+                reads_as: what,
+                change,
+            });
+        }
+    }
+    if single.is_empty() && double.len() == 1 {
+        single = double;
+    }
+    single.truncate(3);
+    single
 }
 
 /// Generic words a schematic uses to draw a logic function without naming a part.
