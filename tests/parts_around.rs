@@ -444,3 +444,47 @@ fn a_slip_is_not_suggested_when_the_package_cannot_be_that_part() {
     let got = suggestions_for(&[("U1", "4l64", 40)]);
     assert!(got[0].iter().all(|s| s.0 != "4164"), "{got:?}");
 }
+
+#[test]
+fn a_symbol_named_for_another_part_is_recorded_and_the_value_decides() {
+    // (value, symbol, pins) -> what the symbol reads as, if it disagrees
+    let cases: &[(&str, &str, u32, Option<(&str, &str)>)] = &[
+        // the NMOS Z80's symbol on the CMOS Z80 (Zilog Z84C00 marking): levels follow the value
+        ("Z84C0010PEC", "Z80CPU", 40, Some(("NMOS", "z80"))),
+        // a NOR symbol on a NAND value: another function
+        ("74LS00", "74LS02", 14, Some(("74LS", "02"))),
+        // a 74LS symbol placed as the 74HCT part of the same function: libraries draw one
+        // symbol per function (common practice), not a disagreement
+        ("74HCT00", "74LS00", 14, None),
+        ("74LS00", "74LS00", 14, None),
+        // a symbol named for no part
+        ("74LS00", "Generic_DIP14", 14, None),
+    ];
+    let mut comps = String::new();
+    let mut libparts = String::new();
+    for (i, (v, sym, n, _)) in cases.iter().enumerate() {
+        comps.push_str(&format!(
+            "    (comp (ref \"U{i}\") (value \"{v}\") (libsource (lib \"x\") (part \"{sym}\")))\n"
+        ));
+        let pins: String = (1..=*n)
+            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"passive\"))"))
+            .collect();
+        libparts.push_str(&format!("    (libpart (lib \"x\") (part \"{sym}\") (pins {pins}))\n"));
+    }
+    let text = netlist(&comps).replace("(libparts)", &format!("(libparts\n{libparts})"));
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = classify(&nl, &Rules::builtin());
+    for (i, (v, sym, _, want)) in cases.iter().enumerate() {
+        let got = cl.parts[i].symbol_reads_as.as_ref().map(|s| {
+            (
+                s.family.clone().unwrap_or_default(),
+                s.function.clone().unwrap_or_default(),
+            )
+        });
+        let want = want.map(|(f, g)| (f.to_string(), g.to_string()));
+        assert_eq!(got, want, "value {v}, symbol {sym}");
+    }
+    // the value decides the family
+    assert_eq!(cl.parts[0].family.as_deref(), Some("CMOS-TTL"));
+}

@@ -145,6 +145,7 @@ mod tests {
             units: vec![None],
             enables: vec![Vec::new()],
             entry: None,
+            symbol_reads_as: None,
         }
     }
 

@@ -144,6 +144,18 @@ pub struct PartClass {
     pub enables: Vec<Vec<usize>>,
     /// Index of the explicit entry used, if any.
     pub entry: Option<usize>,
+    /// When the symbol's own name (the library part) reads as another part than the value
+    /// does: what it reads as. The value decides; this only records the disagreement.
+    pub symbol_reads_as: Option<SymbolReading>,
+}
+
+/// What a component's library part name reads as, when that differs from its value.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SymbolReading {
+    /// The library part name (`Z80CPU`, `74LS00`).
+    pub symbol: String,
+    pub family: Option<String>,
+    pub function: Option<String>,
 }
 
 impl PartClass {
@@ -622,7 +634,14 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 }
             }
         }
+        let symbol_reads_as = match method {
+            Method::Pattern | Method::ShippedEntry | Method::ProjectOverride => {
+                symbol_reading(c, rules, family.as_deref(), named_function.as_deref())
+            }
+            _ => None,
+        };
         parts.push(PartClass {
+            symbol_reads_as,
             kind,
             method,
             family,
@@ -653,6 +672,49 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         function_symbols,
         unused_project_entries,
     }
+}
+
+/// What the component's library part name reads as (by the same patterns and part table the
+/// value goes through), when it reads as a part and that part differs from the value's in
+/// family or function; for a 74 or 4000 symbol on a 74 or 4000 value, in function only.
+/// Symbols named for no part (`Conn_01x04`, `R`) read as nothing.
+fn symbol_reading(
+    c: &Component<'_>,
+    rules: &Rules,
+    family: Option<&str>,
+    function: Option<&str>,
+) -> Option<SymbolReading> {
+    let symbol = c.libsource.as_ref()?.part.as_ref()?.as_str().trim();
+    if symbol.is_empty() || symbol.eq_ignore_ascii_case(c.value_str().trim()) {
+        return None;
+    }
+    let (f, fun) = if let Some((_, e)) = rules
+        .parts
+        .find(symbol)
+        .filter(|(_, e)| fits_package(c, e, rules))
+    {
+        (
+            e.family
+                .as_ref()
+                .map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone())),
+            e.function.clone(),
+        )
+    } else if let Some(m) = pattern::match_value(symbol) {
+        // a 74 or 4000 symbol stands for its function: libraries draw one symbol per function
+        // and name it for one family (`74LS00` placed as a 74HCT00), so only another function
+        // is a disagreement (common practice)
+        if pattern::match_value(c.value_str()).is_some() && function == Some(m.function.as_str()) {
+            return None;
+        }
+        (Some(m.family), Some(m.function))
+    } else {
+        return None;
+    };
+    (f.as_deref() != family || fun.as_deref() != function).then(|| SymbolReading {
+        symbol: symbol.to_string(),
+        family: f,
+        function: fun,
+    })
 }
 
 /// Values one slip away from `value` that an entry of the part table (a processor, a memory,
