@@ -493,6 +493,15 @@ fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
         at("U3.11").contains(&("floating-cmos-input", "error")),
         "{found:?}"
     );
+    // and the message names it for what it is: an NMOS input, not a CMOS one
+    let lpen = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["check"] == "floating-cmos-input" && f["pins"][0] == "U3.11")
+        .map(|f| f["message"].as_str().unwrap().to_string())
+        .unwrap_or_default();
+    assert!(lpen.contains("an NMOS input must never float"), "{lpen}");
     // the driver's +-12 V supplies are outside the logic levels: no power finding for U1
     assert!(
         found
