@@ -825,6 +825,121 @@ fn hex_buffers_4049_4050() {
     }
 }
 
+#[test]
+fn cmos_quad_2_input_4001_4070_4071_4081() {
+    let t = table();
+    // NXP HEF4001B Rev. 9, pin configuration: 1A=1 1B=2 1Y=3 2Y=4 2A=5 2B=6 VSS=7 3A=8 3B=9
+    // 3Y=10 4Y=11 4A=12 4B=13 VDD=14 (pin description: nA 1, 5, 8, 12; nB 2, 6, 9, 13;
+    // nY 3, 4, 10, 11). The same arrangement, pin for pin, in NXP HEF4071B Rev. 06 and
+    // HEF4081B Rev. 7 (pin configurations) and Nexperia HEF4070B Rev. 5 (pin description:
+    // 1A-4A 1, 5, 8, 12; 1B-4B 2, 6, 9, 13; 1Y-4Y 3, 4, 10, 11; VSS 7; VDD 14).
+    let (i, p) = (Input, PushPull);
+    let r = [i, i, p, p, i, i, Ground, i, i, p, p, i, i, Supply];
+    for id in ["4001", "4070", "4071", "4081"] {
+        expect_package(&t, S40, id, &r);
+        for gate in [[1, 2, 3], [5, 6, 4], [8, 9, 10], [12, 13, 11]] {
+            same_unit(&t, S40, id, &gate);
+        }
+        expect_name(&t, S40, id, 7, "VSS");
+        expect_name(&t, S40, id, 14, "VDD");
+    }
+}
+
+#[test]
+fn schmitt_nand_4093() {
+    let t = table();
+    // NXP HEF4093B Rev. 8, functional diagram and pin configuration: 1A=1 1B=2 1Y=3 2Y=4 2A=5
+    // 2B=6 VSS=7 3A=8 3B=9 3Y=10 4Y=11 4A=12 4B=13 VDD=14; every input is a Schmitt trigger
+    let (s, p) = (SchmittInput, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "4093",
+        &[s, s, p, p, s, s, Ground, s, s, p, p, s, s, Supply],
+    );
+    for gate in [[1, 2, 3], [5, 6, 4], [8, 9, 10], [12, 13, 11]] {
+        same_unit(&t, S40, "4093", &gate);
+    }
+}
+
+#[test]
+fn hex_schmitt_inverter_40106() {
+    let t = table();
+    // Motorola MC14106B (pin for pin the CD40106B), logic diagram: 1->2 3->4 5->6 9->8 11->10
+    // 13->12, VDD = pin 14, VSS = pin 7. TI SCHS097F (CD40106B) logic diagram, A 1 (3, 5, 9,
+    // 11, 13) -> G 2 (4, 6, 8, 10, 12), and Nexperia HEF40106B (1A 1 -> 1Y 2 ... 6A 13 -> 6Y 12)
+    // agree on the pairs.
+    let (s, p) = (SchmittInput, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "40106",
+        &[s, p, s, p, s, p, Ground, p, s, p, s, p, s, Supply],
+    );
+    for (a, y) in [(1, 2), (3, 4), (5, 6), (9, 8), (11, 10), (13, 12)] {
+        same_unit(&t, S40, "40106", &[a, y]);
+    }
+}
+
+#[test]
+fn ripple_counters_4020_4040() {
+    let t = table();
+    let (i, p) = (Input, PushPull);
+    // Motorola MC14020B (REV 3), logic diagram: CLOCK=10 RESET=11 Q1=9 Q4=7 Q5=5 Q6=4 Q7=6
+    // Q8=13 Q9=12 Q10=14 Q11=15 Q12=1 Q13=2 Q14=3 VDD=16 VSS=8. Nexperia HEF4020B Rev. 11
+    // (stages counted from Q0) agrees: CP 10, MR 11, Q0 9, Q3 7 ... Q13 3.
+    expect_package(
+        &t,
+        S40,
+        "4020",
+        &[p, p, p, p, p, p, p, Ground, p, i, i, p, p, p, p, Supply],
+    );
+    for (pin, name) in [
+        (1, "Q12"),
+        (2, "Q13"),
+        (3, "Q14"),
+        (4, "Q6"),
+        (5, "Q5"),
+        (6, "Q7"),
+        (7, "Q4"),
+        (9, "Q1"),
+        (12, "Q9"),
+        (13, "Q8"),
+        (14, "Q10"),
+        (15, "Q11"),
+    ] {
+        expect_name(&t, S40, "4020", pin, name);
+    }
+    // Motorola MC14040B (REV 3), logic diagram: CLOCK=10 RESET=11 Q1=9 Q2=7 Q3=6 Q4=5 Q5=3
+    // Q6=2 Q7=4 Q8=13 Q9=12 Q10=14 Q11=15 Q12=1 VDD=16 VSS=8; NXP HEF4040B Rev. 06 agrees.
+    // Motorola MC54/74HC4040A (REV 1) gives the same pin assignment for the 74HC4040.
+    let r = [p, p, p, p, p, p, p, Ground, p, i, i, p, p, p, p, Supply];
+    expect_package(&t, S40, "4040", &r);
+    expect_package(&t, S74, "4040", &r);
+    for (pin, name) in [
+        (1, "Q12"),
+        (2, "Q6"),
+        (3, "Q5"),
+        (4, "Q7"),
+        (5, "Q4"),
+        (6, "Q3"),
+        (7, "Q2"),
+        (9, "Q1"),
+        (12, "Q9"),
+        (13, "Q8"),
+        (14, "Q10"),
+        (15, "Q11"),
+    ] {
+        expect_name(&t, S40, "4040", pin, name);
+        expect_name(&t, S74, "4040", pin, name);
+    }
+    for (pin, name) in [(10, "CLK"), (11, "RESET")] {
+        expect_name(&t, S40, "4020", pin, name);
+        expect_name(&t, S40, "4040", pin, name);
+    }
+    assert!(func(&t, S74, "4040").available_in("74HC"));
+}
+
 // From memory (no data sheet text at hand): common pinouts every bench technician knows.
 #[test]
 fn common_pinouts_from_memory() {
@@ -1269,13 +1384,22 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "541"),
     (S74, "574"),
     (S74, "688"),
+    (S74, "4040"),
+    (S40, "4001"),
     (S40, "4011"),
+    (S40, "4020"),
     (S40, "4027"),
+    (S40, "4040"),
     (S40, "4049"),
     (S40, "4050"),
     (S40, "4051"),
     (S40, "4066"),
     (S40, "4069"),
+    (S40, "4070"),
+    (S40, "4071"),
+    (S40, "4081"),
+    (S40, "4093"),
+    (S40, "40106"),
 ];
 
 #[test]
