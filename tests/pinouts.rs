@@ -940,6 +940,28 @@ fn ripple_counters_4020_4040() {
     assert!(func(&t, S74, "4040").available_in("74HC"));
 }
 
+#[test]
+fn bcd_to_decimal_decoder_4028() {
+    let t = table();
+    // Nexperia HEF4028B Rev. 10, pin configuration: Y4=1 Y2=2 Y0=3 Y7=4 Y9=5 Y5=6 Y6=7 VSS=8
+    // Y8=9 A0=10 A3=11 A2=12 A1=13 Y1=14 Y3=15 VDD=16. ST HCF4028B (September 2002) pin
+    // description: A, B, C, D = 10, 13, 12, 11; outputs 0 to 9 = 3, 14, 2, 15, 1, 6, 7, 4, 9, 5;
+    // VSS 8, VDD 16.
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "4028",
+        &[p, p, p, p, p, p, p, Ground, p, i, i, i, i, p, p, Supply],
+    );
+    for (n, pin) in [3, 14, 2, 15, 1, 6, 7, 4, 9, 5].into_iter().enumerate() {
+        expect_name(&t, S40, "4028", pin, &format!("Q{n}"));
+    }
+    for (pin, name) in [(10, "A"), (13, "B"), (12, "C"), (11, "D")] {
+        expect_name(&t, S40, "4028", pin, name);
+    }
+}
+
 // From memory (no data sheet text at hand): common pinouts every bench technician knows.
 #[test]
 fn common_pinouts_from_memory() {
@@ -1389,6 +1411,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S40, "4011"),
     (S40, "4020"),
     (S40, "4027"),
+    (S40, "4028"),
     (S40, "4040"),
     (S40, "4049"),
     (S40, "4050"),
