@@ -355,7 +355,7 @@ fn analogue_multiplexers_4051_4052_4053() {
             (11, a),
         ],
     );
-    // TI SCHS354C (CD4053B): BY=1 BX=2 CY=3 CCOM=4 CX=5 INH=6 VEE=7 VSS=8 C=9 B=10 A=11
+    // TI SCHS354C (CD4053B-Q1): BY=1 BX=2 CY=3 CCOM=4 CX=5 INH=6 VEE=7 VSS=8 C=9 B=10 A=11
     expect_roles(
         &t,
         S40,
@@ -959,6 +959,59 @@ fn bcd_to_decimal_decoder_4028() {
     }
     for (pin, name) in [(10, "A"), (13, "B"), (12, "C"), (11, "D")] {
         expect_name(&t, S40, "4028", pin, name);
+    }
+}
+
+#[test]
+fn partly_checked_4013_and_4511() {
+    let t = table();
+    let (i, p) = (Input, PushPull);
+    // Nexperia HEF4013B Rev. 10, pin configuration: 1Q=1 1Q~=2 1CP=3 1CD=4 1D=5 1SD=6 VSS=7
+    // 2SD=8 2D=9 2CD=10 2CP=11 2Q~=12 2Q=13 VDD=14 (the text lost the overbars, so which of 1/2
+    // and 13/12 is the complement stays from memory; every role below is read). Motorola
+    // MC14013B (REV 3): VDD = pin 14, VSS = pin 7.
+    expect_package(
+        &t,
+        S40,
+        "4013",
+        &[p, p, i, i, i, i, Ground, i, i, i, i, p, p, Supply],
+    );
+    same_unit(&t, S40, "4013", &[1, 2, 3, 4, 5, 6]);
+    same_unit(&t, S40, "4013", &[8, 9, 10, 11, 12, 13]);
+    for (pin, name) in [(3, "CLK1"), (4, "RESET1"), (5, "D1"), (6, "SET1")] {
+        expect_name(&t, S40, "4013", pin, name);
+    }
+    for (pin, name) in [(8, "SET2"), (9, "D2"), (10, "RESET2"), (11, "CLK2")] {
+        expect_name(&t, S40, "4013", pin, name);
+    }
+    // NXP HEF4511B Rev. 7, functional diagram: D1=1 D2=2 LT~=3 BL~=4 LE=5 D3=6 D0=7 Qe=9 Qd=10
+    // Qc=11 Qb=12 Qa=13 Qg=14 Qf=15 (LT and BL active LOW per its general description). The
+    // supply pins (VSS=8, VDD=16) were not in the text read and stay from memory.
+    let mut read = vec![];
+    for pin in 1..=7 {
+        read.push((pin, i));
+    }
+    for pin in 9..=15 {
+        read.push((pin, p));
+    }
+    expect_roles(&t, S40, "4511", 16, &read);
+    for (pin, name) in [
+        (1, "B"),
+        (2, "C"),
+        (3, "LT~"),
+        (4, "BL~"),
+        (5, "LE"),
+        (6, "D"),
+        (7, "A"),
+        (9, "e"),
+        (10, "d"),
+        (11, "c"),
+        (12, "b"),
+        (13, "a"),
+        (14, "g"),
+        (15, "f"),
+    ] {
+        expect_name(&t, S40, "4511", pin, name);
     }
 }
 
