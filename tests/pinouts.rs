@@ -1015,6 +1015,27 @@ fn partly_checked_4013_and_4511() {
     }
 }
 
+#[test]
+fn hc_triple_multiplexer_4053() {
+    let t = table();
+    // NXP 74HC4053; 74HCT4053 Rev. 8, pin description: E~=6 VEE=7 GND=8; S1, S2, S3 = 11, 10, 9;
+    // 1Y0, 2Y0, 3Y0 = 12, 2, 5; 1Y1, 2Y1, 3Y1 = 13, 1, 3; 1Z, 2Z, 3Z = 14, 15, 4; VCC=16
+    let (a, i) = (Analog, Input);
+    expect_package(
+        &t,
+        S74,
+        "4053",
+        &[a, a, a, a, a, i, Ground, Ground, i, i, i, a, a, a, a, Supply],
+    );
+    // each switch with its select input: 1 = S1 11, Y0 12, Y1 13, Z 14; 2 = S2 10, Y0 2, Y1 1,
+    // Z 15; 3 = S3 9, Y0 5, Y1 3, Z 4
+    same_unit(&t, S74, "4053", &[11, 12, 13, 14]);
+    same_unit(&t, S74, "4053", &[10, 2, 1, 15]);
+    same_unit(&t, S74, "4053", &[9, 5, 3, 4]);
+    expect_name(&t, S74, "4053", 7, "VEE");
+    assert!(func(&t, S74, "4053").available_in("74HC"));
+}
+
 // From memory (no data sheet text at hand): common pinouts every bench technician knows.
 #[test]
 fn common_pinouts_from_memory() {
@@ -1460,6 +1481,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "574"),
     (S74, "688"),
     (S74, "4040"),
+    (S74, "4053"),
     (S40, "4001"),
     (S40, "4011"),
     (S40, "4020"),
