@@ -355,7 +355,7 @@ fn analogue_multiplexers_4051_4052_4053() {
             (11, a),
         ],
     );
-    // TI SCHS354C (CD4053B): BY=1 BX=2 CY=3 CCOM=4 CX=5 INH=6 VEE=7 VSS=8 C=9 B=10 A=11
+    // TI SCHS354C (CD4053B-Q1): BY=1 BX=2 CY=3 CCOM=4 CX=5 INH=6 VEE=7 VSS=8 C=9 B=10 A=11
     expect_roles(
         &t,
         S40,
@@ -825,6 +825,217 @@ fn hex_buffers_4049_4050() {
     }
 }
 
+#[test]
+fn cmos_quad_2_input_4001_4070_4071_4081() {
+    let t = table();
+    // NXP HEF4001B Rev. 9, pin configuration: 1A=1 1B=2 1Y=3 2Y=4 2A=5 2B=6 VSS=7 3A=8 3B=9
+    // 3Y=10 4Y=11 4A=12 4B=13 VDD=14 (pin description: nA 1, 5, 8, 12; nB 2, 6, 9, 13;
+    // nY 3, 4, 10, 11). The same arrangement, pin for pin, in NXP HEF4071B Rev. 06 and
+    // HEF4081B Rev. 7 (pin configurations) and Nexperia HEF4070B Rev. 5 (pin description:
+    // 1A-4A 1, 5, 8, 12; 1B-4B 2, 6, 9, 13; 1Y-4Y 3, 4, 10, 11; VSS 7; VDD 14).
+    let (i, p) = (Input, PushPull);
+    let r = [i, i, p, p, i, i, Ground, i, i, p, p, i, i, Supply];
+    for id in ["4001", "4070", "4071", "4081"] {
+        expect_package(&t, S40, id, &r);
+        for gate in [[1, 2, 3], [5, 6, 4], [8, 9, 10], [12, 13, 11]] {
+            same_unit(&t, S40, id, &gate);
+        }
+        expect_name(&t, S40, id, 7, "VSS");
+        expect_name(&t, S40, id, 14, "VDD");
+    }
+}
+
+#[test]
+fn schmitt_nand_4093() {
+    let t = table();
+    // NXP HEF4093B Rev. 8, functional diagram and pin configuration: 1A=1 1B=2 1Y=3 2Y=4 2A=5
+    // 2B=6 VSS=7 3A=8 3B=9 3Y=10 4Y=11 4A=12 4B=13 VDD=14; every input is a Schmitt trigger
+    let (s, p) = (SchmittInput, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "4093",
+        &[s, s, p, p, s, s, Ground, s, s, p, p, s, s, Supply],
+    );
+    for gate in [[1, 2, 3], [5, 6, 4], [8, 9, 10], [12, 13, 11]] {
+        same_unit(&t, S40, "4093", &gate);
+    }
+}
+
+#[test]
+fn hex_schmitt_inverter_40106() {
+    let t = table();
+    // Motorola MC14106B (pin for pin the CD40106B), logic diagram: 1->2 3->4 5->6 9->8 11->10
+    // 13->12, VDD = pin 14, VSS = pin 7. TI SCHS097F (CD40106B) logic diagram, A 1 (3, 5, 9,
+    // 11, 13) -> G 2 (4, 6, 8, 10, 12), and Nexperia HEF40106B (1A 1 -> 1Y 2 ... 6A 13 -> 6Y 12)
+    // agree on the pairs.
+    let (s, p) = (SchmittInput, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "40106",
+        &[s, p, s, p, s, p, Ground, p, s, p, s, p, s, Supply],
+    );
+    for (a, y) in [(1, 2), (3, 4), (5, 6), (9, 8), (11, 10), (13, 12)] {
+        same_unit(&t, S40, "40106", &[a, y]);
+    }
+}
+
+#[test]
+fn ripple_counters_4020_4040() {
+    let t = table();
+    let (i, p) = (Input, PushPull);
+    // Motorola MC14020B (REV 3), logic diagram: CLOCK=10 RESET=11 Q1=9 Q4=7 Q5=5 Q6=4 Q7=6
+    // Q8=13 Q9=12 Q10=14 Q11=15 Q12=1 Q13=2 Q14=3 VDD=16 VSS=8. Nexperia HEF4020B Rev. 11
+    // (stages counted from Q0) agrees: CP 10, MR 11, Q0 9, Q3 7 ... Q13 3.
+    expect_package(
+        &t,
+        S40,
+        "4020",
+        &[p, p, p, p, p, p, p, Ground, p, i, i, p, p, p, p, Supply],
+    );
+    for (pin, name) in [
+        (1, "Q12"),
+        (2, "Q13"),
+        (3, "Q14"),
+        (4, "Q6"),
+        (5, "Q5"),
+        (6, "Q7"),
+        (7, "Q4"),
+        (9, "Q1"),
+        (12, "Q9"),
+        (13, "Q8"),
+        (14, "Q10"),
+        (15, "Q11"),
+    ] {
+        expect_name(&t, S40, "4020", pin, name);
+    }
+    // Motorola MC14040B (REV 3), logic diagram: CLOCK=10 RESET=11 Q1=9 Q2=7 Q3=6 Q4=5 Q5=3
+    // Q6=2 Q7=4 Q8=13 Q9=12 Q10=14 Q11=15 Q12=1 VDD=16 VSS=8; NXP HEF4040B Rev. 06 agrees.
+    // Motorola MC54/74HC4040A (REV 1) gives the same pin assignment for the 74HC4040.
+    let r = [p, p, p, p, p, p, p, Ground, p, i, i, p, p, p, p, Supply];
+    expect_package(&t, S40, "4040", &r);
+    expect_package(&t, S74, "4040", &r);
+    for (pin, name) in [
+        (1, "Q12"),
+        (2, "Q6"),
+        (3, "Q5"),
+        (4, "Q7"),
+        (5, "Q4"),
+        (6, "Q3"),
+        (7, "Q2"),
+        (9, "Q1"),
+        (12, "Q9"),
+        (13, "Q8"),
+        (14, "Q10"),
+        (15, "Q11"),
+    ] {
+        expect_name(&t, S40, "4040", pin, name);
+        expect_name(&t, S74, "4040", pin, name);
+    }
+    for (pin, name) in [(10, "CLK"), (11, "RESET")] {
+        expect_name(&t, S40, "4020", pin, name);
+        expect_name(&t, S40, "4040", pin, name);
+    }
+    assert!(func(&t, S74, "4040").available_in("74HC"));
+}
+
+#[test]
+fn bcd_to_decimal_decoder_4028() {
+    let t = table();
+    // Nexperia HEF4028B Rev. 10, pin configuration: Y4=1 Y2=2 Y0=3 Y7=4 Y9=5 Y5=6 Y6=7 VSS=8
+    // Y8=9 A0=10 A3=11 A2=12 A1=13 Y1=14 Y3=15 VDD=16. ST HCF4028B (September 2002) pin
+    // description: A, B, C, D = 10, 13, 12, 11; outputs 0 to 9 = 3, 14, 2, 15, 1, 6, 7, 4, 9, 5;
+    // VSS 8, VDD 16.
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "4028",
+        &[p, p, p, p, p, p, p, Ground, p, i, i, i, i, p, p, Supply],
+    );
+    for (n, pin) in [3, 14, 2, 15, 1, 6, 7, 4, 9, 5].into_iter().enumerate() {
+        expect_name(&t, S40, "4028", pin, &format!("Q{n}"));
+    }
+    for (pin, name) in [(10, "A"), (13, "B"), (12, "C"), (11, "D")] {
+        expect_name(&t, S40, "4028", pin, name);
+    }
+}
+
+#[test]
+fn partly_checked_4013_and_4511() {
+    let t = table();
+    let (i, p) = (Input, PushPull);
+    // Nexperia HEF4013B Rev. 10, pin configuration: 1Q=1 1Q~=2 1CP=3 1CD=4 1D=5 1SD=6 VSS=7
+    // 2SD=8 2D=9 2CD=10 2CP=11 2Q~=12 2Q=13 VDD=14 (the text lost the overbars, so which of 1/2
+    // and 13/12 is the complement stays from memory; every role below is read). Motorola
+    // MC14013B (REV 3): VDD = pin 14, VSS = pin 7.
+    expect_package(
+        &t,
+        S40,
+        "4013",
+        &[p, p, i, i, i, i, Ground, i, i, i, i, p, p, Supply],
+    );
+    same_unit(&t, S40, "4013", &[1, 2, 3, 4, 5, 6]);
+    same_unit(&t, S40, "4013", &[8, 9, 10, 11, 12, 13]);
+    for (pin, name) in [(3, "CLK1"), (4, "RESET1"), (5, "D1"), (6, "SET1")] {
+        expect_name(&t, S40, "4013", pin, name);
+    }
+    for (pin, name) in [(8, "SET2"), (9, "D2"), (10, "RESET2"), (11, "CLK2")] {
+        expect_name(&t, S40, "4013", pin, name);
+    }
+    // NXP HEF4511B Rev. 7, functional diagram: D1=1 D2=2 LT~=3 BL~=4 LE=5 D3=6 D0=7 Qe=9 Qd=10
+    // Qc=11 Qb=12 Qa=13 Qg=14 Qf=15 (LT and BL active LOW per its general description). The
+    // supply pins (VSS=8, VDD=16) were not in the text read and stay from memory.
+    let mut read = vec![];
+    for pin in 1..=7 {
+        read.push((pin, i));
+    }
+    for pin in 9..=15 {
+        read.push((pin, p));
+    }
+    expect_roles(&t, S40, "4511", 16, &read);
+    for (pin, name) in [
+        (1, "B"),
+        (2, "C"),
+        (3, "LT~"),
+        (4, "BL~"),
+        (5, "LE"),
+        (6, "D"),
+        (7, "A"),
+        (9, "e"),
+        (10, "d"),
+        (11, "c"),
+        (12, "b"),
+        (13, "a"),
+        (14, "g"),
+        (15, "f"),
+    ] {
+        expect_name(&t, S40, "4511", pin, name);
+    }
+}
+
+#[test]
+fn hc_triple_multiplexer_4053() {
+    let t = table();
+    // NXP 74HC4053; 74HCT4053 Rev. 8, pin description: E~=6 VEE=7 GND=8; S1, S2, S3 = 11, 10, 9;
+    // 1Y0, 2Y0, 3Y0 = 12, 2, 5; 1Y1, 2Y1, 3Y1 = 13, 1, 3; 1Z, 2Z, 3Z = 14, 15, 4; VCC=16
+    let (a, i) = (Analog, Input);
+    expect_package(
+        &t,
+        S74,
+        "4053",
+        &[a, a, a, a, a, i, Ground, Ground, i, i, i, a, a, a, a, Supply],
+    );
+    // each switch with its select input: 1 = S1 11, Y0 12, Y1 13, Z 14; 2 = S2 10, Y0 2, Y1 1,
+    // Z 15; 3 = S3 9, Y0 5, Y1 3, Z 4
+    same_unit(&t, S74, "4053", &[11, 12, 13, 14]);
+    same_unit(&t, S74, "4053", &[10, 2, 1, 15]);
+    same_unit(&t, S74, "4053", &[9, 5, 3, 4]);
+    expect_name(&t, S74, "4053", 7, "VEE");
+    assert!(func(&t, S74, "4053").available_in("74HC"));
+}
+
 // From memory (no data sheet text at hand): common pinouts every bench technician knows.
 #[test]
 fn common_pinouts_from_memory() {
@@ -1269,13 +1480,24 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "541"),
     (S74, "574"),
     (S74, "688"),
+    (S74, "4040"),
+    (S74, "4053"),
+    (S40, "4001"),
     (S40, "4011"),
+    (S40, "4020"),
     (S40, "4027"),
+    (S40, "4028"),
+    (S40, "4040"),
     (S40, "4049"),
     (S40, "4050"),
     (S40, "4051"),
     (S40, "4066"),
     (S40, "4069"),
+    (S40, "4070"),
+    (S40, "4071"),
+    (S40, "4081"),
+    (S40, "4093"),
+    (S40, "40106"),
 ];
 
 #[test]
