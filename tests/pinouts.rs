@@ -1331,6 +1331,43 @@ fn octal_d_flip_flops_273_377() {
     expect_name(&t, S74, "273", 1, "CLR~");
 }
 
+#[test]
+fn synchronous_counter_163() {
+    let t = table();
+    // Motorola SN54/74LS160A-163A (FAST and LS TTL Data) connection diagram, the LS163A reading:
+    // SR=1 CP=2 P0=3 P1=4 P2=5 P3=6 CEP=7 GND=8 PE=9 CET=10 Q3=11 Q2=12 Q1=13 Q0=14 TC=15
+    // VCC=16 (SR, the synchronous reset, and PE are active low)
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S74,
+        "163",
+        &[i, i, i, i, i, i, i, Ground, i, i, p, p, p, p, p, Supply],
+    );
+    expect_name(&t, S74, "163", 14, "QA");
+    expect_name(&t, S74, "163", 11, "QD");
+    expect_name(&t, S74, "163", 15, "RCO");
+}
+
+#[test]
+fn addressable_latch_259() {
+    let t = table();
+    // TI SDAS217A (SN74ALS259) terminal assignment: S0=1 S1=2 S2=3 Q0=4 Q1=5 Q2=6 Q3=7 GND=8
+    // Q4=9 Q5=10 Q6=11 Q7=12 D=13 G=14 CLR=15 VCC=16; onsemi SN74LS259/D Rev. 6 (A0-A2, Q0-Q7,
+    // D=13, E=14, C=15) agrees. G and CLR are active low.
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S74,
+        "259",
+        &[i, i, i, p, p, p, p, Ground, p, p, p, p, i, i, i, Supply],
+    );
+    expect_name(&t, S74, "259", 4, "Q0");
+    expect_name(&t, S74, "259", 12, "Q7");
+    expect_name(&t, S74, "259", 13, "D");
+    expect_name(&t, S74, "259", 15, "CLR~");
+}
+
 /// Every function whose whole pinout a test in this file checks against a named data sheet. Its
 /// `source` (and the comment above the entry) must name that document, never "from memory".
 const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
@@ -1359,6 +1396,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "153"),
     (S74, "157"),
     (S74, "161"),
+    (S74, "163"),
     (S74, "164"),
     (S74, "165"),
     (S74, "174"),
@@ -1368,6 +1406,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "241"),
     (S74, "244"),
     (S74, "245"),
+    (S74, "259"),
     (S74, "273"),
     (S74, "367"),
     (S74, "374"),
