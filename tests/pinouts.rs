@@ -1368,6 +1368,41 @@ fn addressable_latch_259() {
     expect_name(&t, S74, "259", 15, "CLR~");
 }
 
+#[test]
+fn up_down_counter_191() {
+    let t = table();
+    // Motorola SN54/74LS190/191 (FAST and LS TTL Data) connection diagram and logic symbol:
+    // P1=1 Q1=2 Q0=3 CE=4 U/D=5 Q2=6 Q3=7 GND=8 P3=9 P2=10 PL=11 TC=12 RC=13 CP=14 P0=15
+    // VCC=16; CE and PL are active low, TC (terminal count) and RC (ripple clock) are outputs
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S74,
+        "191",
+        &[i, p, p, i, i, p, p, Ground, i, i, i, p, p, i, i, Supply],
+    );
+    expect_name(&t, S74, "191", 3, "QA");
+    expect_name(&t, S74, "191", 11, "LOAD~");
+    expect_name(&t, S74, "191", 14, "CLK");
+}
+
+#[test]
+fn open_collector_high_voltage_06() {
+    let t = table();
+    // TI SDLS031A (SN7406, SN7416) terminal assignment: 1A=1 1Y=2 2A=3 2Y=4 3A=5 3Y=6 GND=7 4Y=8
+    // 4A=9 5Y=10 5A=11 6Y=12 6A=13 VCC=14; high-voltage open-collector outputs
+    let (i, o) = (Input, OpenCollector);
+    expect_package(
+        &t,
+        S74,
+        "06",
+        &[i, o, i, o, i, o, Ground, o, i, o, i, o, i, Supply],
+    );
+    for (a, y) in [(1, 2), (3, 4), (5, 6), (9, 8), (11, 10), (13, 12)] {
+        same_unit(&t, S74, "06", &[a, y]);
+    }
+}
+
 /// Every function whose whole pinout a test in this file checks against a named data sheet. Its
 /// `source` (and the comment above the entry) must name that document, never "from memory".
 const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
@@ -1375,6 +1410,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "02"),
     (S74, "04"),
     (S74, "05"),
+    (S74, "06"),
     (S74, "07"),
     (S74, "08"),
     (S74, "10"),
@@ -1400,6 +1436,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "164"),
     (S74, "165"),
     (S74, "174"),
+    (S74, "191"),
     (S74, "192"),
     (S74, "193"),
     (S74, "240"),
