@@ -1403,6 +1403,96 @@ fn open_collector_high_voltage_06() {
     }
 }
 
+#[test]
+fn three_state_multiplexer_257() {
+    let t = table();
+    // Motorola SN54/74LS257B (FAST and LS TTL Data) connection diagram and logic diagram: S=1
+    // I0a=2 I1a=3 Za=4 I0b=5 I1b=6 Zb=7 GND=8 Zd=9 I1d=10 I0d=11 Zc=12 I1c=13 I0c=14 EO=15
+    // VCC=16; truth table: EO high gives (Z) on every output
+    let (i, z) = (Input, ThreeState);
+    expect_package(
+        &t,
+        S74,
+        "257",
+        &[i, i, i, z, i, i, z, Ground, z, i, i, z, i, i, i, Supply],
+    );
+    expect_enables(&t, S74, "257", &[4, 7, 9, 12], &["15"], true);
+    for unit in [[2, 3, 4], [5, 6, 7], [11, 10, 9], [14, 13, 12]] {
+        same_unit(&t, S74, "257", &unit);
+    }
+    assert!(func(&t, S74, "257").pin("1").unwrap().unit.is_none());
+}
+
+#[test]
+fn jk_flip_flop_112() {
+    let t = table();
+    // Motorola SN54/74LS112A (FAST and LS TTL Data) logic diagram, pin numbers of the first
+    // flip-flop with the second in brackets: CP=1(13) K=2(12) J=3(11) SD=4(10) Q=5(9) Q~=6(7)
+    // CD=15(14); VCC=16 GND=8. SD and CD are active low.
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S74,
+        "112",
+        &[i, i, i, i, p, p, p, Ground, p, i, i, i, i, i, i, Supply],
+    );
+    same_unit(&t, S74, "112", &[1, 2, 3, 4, 5, 6, 15]);
+    same_unit(&t, S74, "112", &[13, 12, 11, 10, 9, 7, 14]);
+    expect_name(&t, S74, "112", 5, "1Q");
+    expect_name(&t, S74, "112", 6, "1Q~");
+    expect_name(&t, S74, "112", 7, "2Q~");
+    expect_name(&t, S74, "112", 9, "2Q");
+}
+
+#[test]
+fn parallel_load_shift_register_166() {
+    let t = table();
+    // Motorola SN54/74LS166 (FAST and LS TTL Data) connection diagram: serial input=1, parallel
+    // inputs A-D=2-5, clock inhibit=6, clock=7, GND=8, clear=9, parallel inputs=10-12, QH=13,
+    // H=14, shift/load=15, VCC=16 (QH is the only output)
+    let mut r = vec![Input; 16];
+    r[7] = Ground;
+    r[12] = PushPull;
+    r[15] = Supply;
+    expect_package(&t, S74, "166", &r);
+    expect_name(&t, S74, "166", 13, "QH");
+    expect_name(&t, S74, "166", 15, "SH/LD~");
+    expect_name(&t, S74, "166", 9, "CLR~");
+}
+
+#[test]
+fn partly_checked_75_and_107() {
+    let t = table();
+    let p = PushPull;
+    // Motorola SN54/74LS75 (FAST and LS TTL Data) connection diagram: Q0 outputs on 1 and 16,
+    // D0=2 D1=3 E2-3=4 VCC=5 D2=6 D3=7, Q3 outputs on 8 and 9, Q2 outputs on 10 and 11, GND=12
+    // E0-1=13, Q1 outputs on 14 and 15. Which pin of each pair is the complement is not legible
+    // in the copy read, so the entry keeps "from memory" for those names.
+    let i = Input;
+    expect_package(
+        &t,
+        S74,
+        "75",
+        &[p, i, i, i, Supply, i, i, p, p, p, p, Ground, i, p, p, p],
+    );
+    same_unit(&t, S74, "75", &[1, 2, 16]);
+    same_unit(&t, S74, "75", &[3, 14, 15]);
+    same_unit(&t, S74, "75", &[6, 10, 11]);
+    same_unit(&t, S74, "75", &[7, 8, 9]);
+    // Motorola SN54/74LS107A (FAST and LS TTL Data) connection diagram and Hitachi
+    // HD74AC107/HD74ACT107 pin arrangement: J1=1, Q1 outputs on 2 and 3, K1=4, Q2 outputs on 5
+    // and 6, GND=7, J2=8, CP2=9, CD2=10, K2=11, CP1=12, CD1=13, VCC=14 (which of each output pair
+    // is the complement is not legible there)
+    expect_package(
+        &t,
+        S74,
+        "107",
+        &[i, p, p, i, p, p, Ground, i, i, i, i, i, i, Supply],
+    );
+    same_unit(&t, S74, "107", &[1, 2, 3, 4, 12, 13]);
+    same_unit(&t, S74, "107", &[5, 6, 8, 9, 10, 11]);
+}
+
 /// Every function whose whole pinout a test in this file checks against a named data sheet. Its
 /// `source` (and the comment above the entry) must name that document, never "from memory".
 const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
@@ -1414,6 +1504,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "07"),
     (S74, "08"),
     (S74, "10"),
+    (S74, "112"),
     (S74, "14"),
     (S74, "20"),
     (S74, "21"),
@@ -1435,6 +1526,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "163"),
     (S74, "164"),
     (S74, "165"),
+    (S74, "166"),
     (S74, "174"),
     (S74, "191"),
     (S74, "192"),
@@ -1443,6 +1535,7 @@ const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
     (S74, "241"),
     (S74, "244"),
     (S74, "245"),
+    (S74, "257"),
     (S74, "259"),
     (S74, "273"),
     (S74, "367"),
@@ -1517,7 +1610,7 @@ fn non_corner_supply_pins() {
             16,
             "5",
             "12",
-            "secondary 74LS75 pin tables: VCC 5, GND 12",
+            "Motorola SN54/74LS75 connection diagram: VCC 5, GND 12",
         ),
         (
             "76",
