@@ -24,7 +24,7 @@ use serde_json::Value;
 
 /// The misses (of those an existing check should catch) that must be found. Raise it as the model
 /// learns; never lower it without a reason written in the commit.
-const MISSES_FOUND_AT_LEAST: usize = 44;
+const MISSES_FOUND_AT_LEAST: usize = 46;
 
 /// Checks that now report what the review asked of another name: a check split off from the one
 /// named (`unpowered-part` took parts with power pins wired to nothing from

@@ -49,23 +49,34 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         if driven.is_empty() {
             continue;
         }
+        let how = |pi: usize| match c.pins[pi].connection {
+            Connection::Alone { .. } => "wired to nothing",
+            Connection::Absent => "on no net",
+            Connection::Net { .. } => "tied only to the display's own pins",
+        };
+        let uniform = d.commons.iter().all(|&pi| how(pi) == how(d.commons[0]));
         let commons: Vec<String> = d
             .commons
             .iter()
             .map(|&pi| {
                 let p = &c.pins[pi];
-                let how = match p.connection {
-                    Connection::Alone { .. } => "unconnected or no-connect flagged",
-                    Connection::Absent => "on no net",
-                    Connection::Net { .. } => "tied only to the display's own pins",
-                };
-                format!(
-                    "{} ({}, {how})",
-                    p.num,
-                    p.name.as_deref().unwrap_or("common")
-                )
+                let name = p.name.as_deref().unwrap_or("common");
+                if uniform {
+                    format!("{} ({name})", p.num)
+                } else {
+                    format!("{} ({name}, {})", p.num, how(pi))
+                }
             })
             .collect();
+        let state = if uniform {
+            format!(
+                " {} {}",
+                if commons.len() == 1 { "is" } else { "are" },
+                how(d.commons[0])
+            )
+        } else {
+            String::new()
+        };
         let kind = match d.common_anode {
             Some(true) => "common-anode ",
             Some(false) => "common-cathode ",
@@ -85,7 +96,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             None => "to the rail or digit driver its kind needs",
         };
         let message = format!(
-            "{} ({} {kind}display) has its common {} {}: {} of its segments {} driven, but none can ever light{basis}",
+            "{} ({} {kind}display): its common {} {}{state}, so none of its segments can ever light, though {} of them {} driven{basis}",
             c.reference,
             c.value_str(),
             if commons.len() == 1 { "pin" } else { "pins" },

@@ -585,9 +585,13 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             }
             value_match = m;
         } else if let Some((i, e)) = (ic || (c.pins.len() > 2 && !socket_like(c, kind)))
-            .then(|| rules.parts.find(value))
+            .then(|| {
+                rules
+                    .parts
+                    .matching(value)
+                    .find(|(_, e)| fits_package(c, e, rules))
+            })
             .flatten()
-            .filter(|(_, e)| fits_package(c, e, rules))
         {
             used_entries[i] = true;
             entry = Some(i);

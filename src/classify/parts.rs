@@ -176,6 +176,19 @@ impl PartTable {
             .enumerate()
             .find(|(_, e)| e.matches(value))
     }
+
+    /// Every entry whose globs take `value`, in order: the first that also fits the symbol
+    /// wins, so one value can name a part in two packages (a UART in the DIP-40 and the
+    /// PLCC-44) with the smaller package first.
+    pub fn matching<'a>(
+        &'a self,
+        value: &'a str,
+    ) -> impl Iterator<Item = (usize, &'a PartEntry)> + 'a {
+        self.entries
+            .iter()
+            .enumerate()
+            .filter(move |(_, e)| e.matches(value))
+    }
 }
 
 /// Case-insensitive glob with `*` (any run) and `?` (one character).
