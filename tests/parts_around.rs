@@ -13,26 +13,64 @@ fn netlist(comps: &str) -> String {
     format!("(export (version \"E\")\n  (components\n{comps})\n  (libparts)\n  (nets))\n")
 }
 
-/// Classifies one component per (reference, value, highest pin number); returns (kind, family,
-/// function) per component.
-fn classify_values(items: &[(&str, &str, u32)]) -> Vec<(PartKind, Option<String>, Option<String>)> {
+/// One component to classify: its value, the symbol's name, how many pins the symbol numbers,
+/// their pin type, and a footprint if any.
+struct Part<'a> {
+    reference: &'a str,
+    value: &'a str,
+    symbol: Option<&'a str>,
+    pins: u32,
+    pin_type: &'a str,
+    footprint: Option<String>,
+}
+
+/// Classifies the parts as one netlist.
+fn classify_parts(items: &[Part<'_>]) -> netmargin::classify::classifier::Classified {
     let mut comps = String::new();
     let mut libparts = String::new();
-    for (i, (r, v, n)) in items.iter().enumerate() {
+    for (i, p) in items.iter().enumerate() {
+        let symbol = p.symbol.map_or(format!("P{i}"), str::to_string);
+        let footprint = p
+            .footprint
+            .as_ref()
+            .map_or(String::new(), |f| format!(" (footprint \"{f}\")"));
         comps.push_str(&format!(
-            "    (comp (ref \"{r}\") (value \"{v}\") (libsource (lib \"x\") (part \"P{i}\")))\n"
+            "    (comp (ref \"{}\") (value \"{}\"){footprint} (libsource (lib \"x\") (part \"{symbol}\")))\n",
+            p.reference, p.value
         ));
-        let pins: String = (1..=*n)
-            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"passive\"))"))
+        let pins: String = (1..=p.pins)
+            .map(|n| {
+                format!(
+                    "(pin (num \"{n}\") (name \"P{n}\") (type \"{}\"))",
+                    p.pin_type
+                )
+            })
             .collect();
         libparts.push_str(&format!(
-            "    (libpart (lib \"x\") (part \"P{i}\") (pins {pins}))\n"
+            "    (libpart (lib \"x\") (part \"{symbol}\") (pins {pins}))\n"
         ));
     }
     let text = netlist(&comps).replace("(libparts)", &format!("(libparts\n{libparts})"));
     let tree = netmargin::sexpr::parse(&text).unwrap();
     let nl = netmargin::netlist::build(&tree).unwrap();
-    let cl = classify(&nl, &Rules::builtin());
+    classify(&nl, &Rules::builtin())
+}
+
+/// Classifies one component per (reference, value, highest pin number); returns (kind, family,
+/// function) per component.
+fn classify_values(items: &[(&str, &str, u32)]) -> Vec<(PartKind, Option<String>, Option<String>)> {
+    let parts: Vec<Part<'_>> = items
+        .iter()
+        .map(|&(reference, value, pins)| Part {
+            reference,
+            value,
+            symbol: None,
+            pins,
+            pin_type: "passive",
+            footprint: None,
+        })
+        .collect();
+    let cl = classify_parts(&parts);
     cl.parts
         .iter()
         .map(|p| {
@@ -397,21 +435,18 @@ fn an_open_control_input_is_held_at_its_idle_level_with_a_computed_pull() {
 /// Classifies one component per (reference, value, pins) and returns each part's suggestions
 /// as (value, reads as).
 fn suggestions_for(items: &[(&str, &str, u32)]) -> Vec<Vec<(String, String)>> {
-    let mut comps = String::new();
-    let mut libparts = String::new();
-    for (i, (r, v, n)) in items.iter().enumerate() {
-        comps.push_str(&format!(
-            "    (comp (ref \"{r}\") (value \"{v}\") (footprint \"Package_DIP:DIP-{n}_W15.24mm\") (libsource (lib \"x\") (part \"P{i}\")))\n"
-        ));
-        let pins: String = (1..=*n)
-            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"input\"))"))
-            .collect();
-        libparts.push_str(&format!("    (libpart (lib \"x\") (part \"P{i}\") (pins {pins}))\n"));
-    }
-    let text = netlist(&comps).replace("(libparts)", &format!("(libparts\n{libparts})"));
-    let tree = netmargin::sexpr::parse(&text).unwrap();
-    let nl = netmargin::netlist::build(&tree).unwrap();
-    let cl = classify(&nl, &Rules::builtin());
+    let parts: Vec<Part<'_>> = items
+        .iter()
+        .map(|&(reference, value, pins)| Part {
+            reference,
+            value,
+            symbol: None,
+            pins,
+            pin_type: "input",
+            footprint: Some(format!("Package_DIP:DIP-{pins}_W15.24mm")),
+        })
+        .collect();
+    let cl = classify_parts(&parts);
     cl.parts
         .iter()
         .map(|p| {
@@ -436,7 +471,10 @@ fn transcription_slips_in_processor_and_memory_values_are_suggested() {
     ]);
     let first = |i: usize| got[i].first().cloned().unwrap_or_default();
     assert_eq!(first(0).0, "Z80A", "{got:?}");
-    assert!(first(0).1.contains("z80") && first(0).1.contains("NMOS"), "{got:?}");
+    assert!(
+        first(0).1.contains("z80") && first(0).1.contains("NMOS"),
+        "{got:?}"
+    );
     assert_eq!(first(1).0, "4164", "{got:?}");
     assert_eq!(first(2).0, "MC68B09", "{got:?}");
     assert!(first(2).1.contains("6809"), "{got:?}");
@@ -466,21 +504,18 @@ fn a_symbol_named_for_another_part_is_recorded_and_the_value_decides() {
         // a symbol named for no part
         ("74LS00", "Generic_DIP14", 14, None),
     ];
-    let mut comps = String::new();
-    let mut libparts = String::new();
-    for (i, (v, sym, n, _)) in cases.iter().enumerate() {
-        comps.push_str(&format!(
-            "    (comp (ref \"U{i}\") (value \"{v}\") (libsource (lib \"x\") (part \"{sym}\")))\n"
-        ));
-        let pins: String = (1..=*n)
-            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"passive\"))"))
-            .collect();
-        libparts.push_str(&format!("    (libpart (lib \"x\") (part \"{sym}\") (pins {pins}))\n"));
-    }
-    let text = netlist(&comps).replace("(libparts)", &format!("(libparts\n{libparts})"));
-    let tree = netmargin::sexpr::parse(&text).unwrap();
-    let nl = netmargin::netlist::build(&tree).unwrap();
-    let cl = classify(&nl, &Rules::builtin());
+    let parts: Vec<Part<'_>> = cases
+        .iter()
+        .map(|&(value, symbol, pins, _)| Part {
+            reference: "U1",
+            value,
+            symbol: Some(symbol),
+            pins,
+            pin_type: "passive",
+            footprint: None,
+        })
+        .collect();
+    let cl = classify_parts(&parts);
     for (i, (v, sym, _, want)) in cases.iter().enumerate() {
         let got = cl.parts[i].symbol_reads_as.as_ref().map(|s| {
             (

@@ -1018,7 +1018,9 @@ fn hc_triple_multiplexer_4053() {
         &t,
         S74,
         "4053",
-        &[a, a, a, a, a, i, Ground, Ground, i, i, i, a, a, a, a, Supply],
+        &[
+            a, a, a, a, a, i, Ground, Ground, i, i, i, a, a, a, a, Supply,
+        ],
     );
     // each switch with its select input: 1 = S1 11, Y0 12, Y1 13, Z 14; 2 = S2 10, Y0 2, Y1 1,
     // Z 15; 3 = S3 9, Y0 5, Y1 3, Z 4
@@ -1483,7 +1485,14 @@ fn inverting_buffer_540() {
     r[9] = Ground;
     r[19] = Supply;
     expect_package(&t, S74, "540", &r);
-    expect_enables(&t, S74, "540", &[11, 12, 13, 14, 15, 16, 17, 18], &["1", "19"], true);
+    expect_enables(
+        &t,
+        S74,
+        "540",
+        &[11, 12, 13, 14, 15, 16, 17, 18],
+        &["1", "19"],
+        true,
+    );
     for k in 0..8 {
         same_unit(&t, S74, "540", &[2 + k, 18 - k]);
     }

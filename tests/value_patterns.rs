@@ -555,7 +555,12 @@ fn near_miss_top_suggestions() {
 #[test]
 fn near_miss_carries_the_reading_of_the_suggestion() {
     let s = near_misses("CD4O69UBE", &known, 3);
-    let m = &s.first().expect("a suggestion").matched.as_ref().expect("a 74 or 4000 reading");
+    let m = &s
+        .first()
+        .expect("a suggestion")
+        .matched
+        .as_ref()
+        .expect("a 74 or 4000 reading");
     assert_eq!(
         (
             m.series.clone(),

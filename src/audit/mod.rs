@@ -954,13 +954,7 @@ fn gather_recapture(
                 suggestions: p
                     .suggestions
                     .iter()
-                    .map(|s| {
-                        (
-                            s.value.clone(),
-                            s.change.clone(),
-                            s.reads_as.clone(),
-                        )
-                    })
+                    .map(|s| (s.value.clone(), s.change.clone(), s.reads_as.clone()))
                     .collect(),
                 line: comp_line(source, cx, ci),
             }
