@@ -529,3 +529,18 @@ fn a_symbol_named_for_another_part_is_recorded_and_the_value_decides() {
     // the value decides the family
     assert_eq!(cl.parts[0].family.as_deref(), Some("CMOS-TTL"));
 }
+
+#[test]
+fn a_display_is_not_counted_among_the_ic_like_parts() {
+    // an LED bar array with an IC-style reference: LEDs in a package, not an IC
+    let cl = classify_parts(&[Part {
+        reference: "U19",
+        value: "YSLB-102510R3-10",
+        symbol: None,
+        pins: 20,
+        pin_type: "passive",
+        footprint: None,
+    }]);
+    assert_eq!(cl.parts[0].kind, PartKind::Display);
+    assert_eq!(cl.coverage, (0, 0));
+}

@@ -670,7 +670,9 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 Method::NotClassified
             };
         }
+        // a display is LEDs in a package, not an IC, whatever its reference
         let is_ic = method != Method::FunctionSymbol
+            && kind != PartKind::Display
             && (ic
                 || matches!(
                     kind,
