@@ -423,6 +423,17 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut parts = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
     let (mut classified, mut ic_like) = (0, 0);
+    // many parts share a value: each distinct value meets the entries' globs and the value
+    // patterns once
+    let mut entry_of: rustc_hash::FxHashMap<&str, Option<usize>> = Default::default();
+    let mut pattern_of: rustc_hash::FxHashMap<&str, Option<ValueMatch>> = Default::default();
+    let mut near_of: rustc_hash::FxHashMap<&str, Vec<Suggestion>> = Default::default();
+    let mut match_value = |value| {
+        pattern_of
+            .entry(value)
+            .or_insert_with(|| pattern::match_value(value))
+            .clone()
+    };
     for c in &nl.components {
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
@@ -447,7 +458,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             kind = PartKind::Logic;
             method = Method::ComponentField;
             family = rules.families.get(&ff).map(|f| f.id.clone()).or(Some(ff));
-            let m = pattern::match_value(value);
+            let m = match_value(value);
             let (series, id) = match (&field_function, &m) {
                 (Some(f), _) => parse_function_field(f),
                 (None, Some(m)) => (map_series(&m.series), m.function.clone()),
@@ -461,7 +472,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             }
             value_match = m;
         } else if let Some((i, e)) = (ic || (c.pins.len() > 2 && !socket_like(c, kind)))
-            .then(|| rules.parts.find(value))
+            .then(|| {
+                let i = *entry_of
+                    .entry(value)
+                    .or_insert_with(|| rules.parts.find(value).map(|(i, _)| i));
+                i.map(|i| (i, &rules.parts.entries[i]))
+            })
             .flatten()
             .filter(|(_, e)| fits_package(c, e, rules))
         {
@@ -488,7 +504,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     }
                 }
             }
-        } else if let Some(m) = pattern::match_value(value).filter(|_| {
+        } else if let Some(m) = match_value(value).filter(|_| {
             !matches!(
                 kind,
                 PartKind::Resistor
@@ -518,7 +534,10 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             kind = PartKind::UnknownIc;
             let known =
                 |s: &pattern::Series, f: &str| rules.functions.get(map_series(s), f).is_some();
-            suggestions = pattern::near_misses(value, &known, 3);
+            suggestions = near_of
+                .entry(value)
+                .or_insert_with(|| pattern::near_misses(value, &known, 3))
+                .clone();
             method = if c.pins.iter().any(|p| {
                 !matches!(
                     p.ptype,
