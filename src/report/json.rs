@@ -206,7 +206,8 @@ fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
 /// serde_json's output is ASCII outside strings, so each such character is inside a string
 /// and the escape reads back as the same character.
 pub fn escape_unsafe(json: String) -> String {
-    if !json.chars().any(needs_escape) {
+    // every such character is DEL or outside ASCII: most documents have neither byte
+    if !json.bytes().any(|b| b >= 0x7f) || !json.chars().any(needs_escape) {
         return json;
     }
     let mut out = String::with_capacity(json.len() + 16);
