@@ -206,6 +206,13 @@ fn open_collector_read_by_a_logic_input_without_pull_up_is_an_error() {
     assert!(d.pins.contains(&"U1.6".to_string()), "{d:#?}");
 }
 
+#[test]
+fn open_collector_read_only_by_an_unknown_part_is_a_warning_naming_the_assumption() {
+    let f = run("oc-loads");
+    let d = fires(&f, "/TRIP_MON_N", "missing-pull-up", "warning");
+    assert!(d.message.contains("assuming the symbol is right"), "{d:#?}");
+}
+
 // ---------------------------------------------------------------------------------------------
 // 2. parts no table knows
 

@@ -387,3 +387,104 @@ fn an_open_control_input_is_held_at_its_idle_level_with_a_computed_pull() {
     // the advice never names the wrong rail for an active-low control input
     assert!(!of("U3.24").contains("GND"), "{}", of("U3.24"));
 }
+
+/// Classifies one component per (reference, value, pins) and returns each part's suggestions
+/// as (value, reads as).
+fn suggestions_for(items: &[(&str, &str, u32)]) -> Vec<Vec<(String, String)>> {
+    let mut comps = String::new();
+    let mut libparts = String::new();
+    for (i, (r, v, n)) in items.iter().enumerate() {
+        comps.push_str(&format!(
+            "    (comp (ref \"{r}\") (value \"{v}\") (footprint \"Package_DIP:DIP-{n}_W15.24mm\") (libsource (lib \"x\") (part \"P{i}\")))\n"
+        ));
+        let pins: String = (1..=*n)
+            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"input\"))"))
+            .collect();
+        libparts.push_str(&format!("    (libpart (lib \"x\") (part \"P{i}\") (pins {pins}))\n"));
+    }
+    let text = netlist(&comps).replace("(libparts)", &format!("(libparts\n{libparts})"));
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = classify(&nl, &Rules::builtin());
+    cl.parts
+        .iter()
+        .map(|p| {
+            p.suggestions
+                .iter()
+                .map(|s| (s.value.clone(), s.reads_as.clone()))
+                .collect()
+        })
+        .collect()
+}
+
+#[test]
+fn transcription_slips_in_processor_and_memory_values_are_suggested() {
+    // letters read for digits (O for 0, l for 1, Z for 2) in makers' markings (common practice
+    // of scanned part lists); the corrected value must read as the part named
+    let got = suggestions_for(&[
+        ("U1", "Z8OA", 40),
+        ("U2", "4l64", 16),
+        ("U3", "MC68BO9", 40),
+        ("U4", "62Z56", 28),
+        ("U5", "NOTHING-LIKE-IT", 40),
+    ]);
+    let first = |i: usize| got[i].first().cloned().unwrap_or_default();
+    assert_eq!(first(0).0, "Z80A", "{got:?}");
+    assert!(first(0).1.contains("z80") && first(0).1.contains("NMOS"), "{got:?}");
+    assert_eq!(first(1).0, "4164", "{got:?}");
+    assert_eq!(first(2).0, "MC68B09", "{got:?}");
+    assert!(first(2).1.contains("6809"), "{got:?}");
+    assert_eq!(first(3).0, "62256", "{got:?}");
+    assert!(got[4].is_empty(), "{got:?}");
+}
+
+#[test]
+fn a_slip_is_not_suggested_when_the_package_cannot_be_that_part() {
+    // a 4164 DRAM has 16 pins: a 40-pin symbol valued `4l64` is not one
+    let got = suggestions_for(&[("U1", "4l64", 40)]);
+    assert!(got[0].iter().all(|s| s.0 != "4164"), "{got:?}");
+}
+
+#[test]
+fn a_symbol_named_for_another_part_is_recorded_and_the_value_decides() {
+    // (value, symbol, pins) -> what the symbol reads as, if it disagrees
+    let cases: &[(&str, &str, u32, Option<(&str, &str)>)] = &[
+        // the NMOS Z80's symbol on the CMOS Z80 (Zilog Z84C00 marking): levels follow the value
+        ("Z84C0010PEC", "Z80CPU", 40, Some(("NMOS", "z80"))),
+        // a NOR symbol on a NAND value: another function
+        ("74LS00", "74LS02", 14, Some(("74LS", "02"))),
+        // a 74LS symbol placed as the 74HCT part of the same function: libraries draw one
+        // symbol per function (common practice), not a disagreement
+        ("74HCT00", "74LS00", 14, None),
+        ("74LS00", "74LS00", 14, None),
+        // a symbol named for no part
+        ("74LS00", "Generic_DIP14", 14, None),
+    ];
+    let mut comps = String::new();
+    let mut libparts = String::new();
+    for (i, (v, sym, n, _)) in cases.iter().enumerate() {
+        comps.push_str(&format!(
+            "    (comp (ref \"U{i}\") (value \"{v}\") (libsource (lib \"x\") (part \"{sym}\")))\n"
+        ));
+        let pins: String = (1..=*n)
+            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"passive\"))"))
+            .collect();
+        libparts.push_str(&format!("    (libpart (lib \"x\") (part \"{sym}\") (pins {pins}))\n"));
+    }
+    let text = netlist(&comps).replace("(libparts)", &format!("(libparts\n{libparts})"));
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = classify(&nl, &Rules::builtin());
+    for (i, (v, sym, _, want)) in cases.iter().enumerate() {
+        let got = cl.parts[i].symbol_reads_as.as_ref().map(|s| {
+            (
+                s.family.clone().unwrap_or_default(),
+                s.function.clone().unwrap_or_default(),
+            )
+        });
+        let want = want.map(|(f, g)| (f.to_string(), g.to_string()));
+        assert_eq!(got, want, "value {v}, symbol {sym}");
+    }
+    // the value decides the family
+    assert_eq!(cl.parts[0].family.as_deref(), Some("CMOS-TTL"));
+}

@@ -986,6 +986,221 @@ fn special_pins() {
     assert_eq!(func(&t, S74, "181").pin("14").unwrap().role, OpenCollector);
 }
 
+#[test]
+fn nor_02_and_inverter_04() {
+    let t = table();
+    let (i, p) = (Input, PushPull);
+    // TI SCHS304D (CD74AC02) pin functions: 1Y=1 1A=2 1B=3 2Y=4 2A=5 2B=6 GND=7 3A=8 3B=9 3Y=10
+    // 4A=11 4B=12 4Y=13 VCC=14; the logic diagram of TI SCHS309B (CD74ACT02) agrees
+    expect_package(
+        &t,
+        S74,
+        "02",
+        &[p, i, i, p, i, i, Ground, i, i, p, i, i, p, Supply],
+    );
+    for gate in [[1, 2, 3], [4, 5, 6], [8, 9, 10], [11, 12, 13]] {
+        same_unit(&t, S74, "02", &gate);
+    }
+    expect_name(&t, S74, "02", 1, "1Y");
+    expect_name(&t, S74, "02", 10, "3Y");
+    // TI SCLS078F (SN74HC04), top view: 1A=1 1Y=2 2A=3 2Y=4 3A=5 3Y=6 GND=7 4Y=8 4A=9 5Y=10 5A=11
+    // 6Y=12 6A=13 VCC=14
+    expect_package(
+        &t,
+        S74,
+        "04",
+        &[i, p, i, p, i, p, Ground, p, i, p, i, p, i, Supply],
+    );
+    for (a, y) in [(1, 2), (3, 4), (5, 6), (9, 8), (11, 10), (13, 12)] {
+        same_unit(&t, S74, "04", &[a, y]);
+    }
+}
+
+#[test]
+fn eight_input_nand_30() {
+    let t = table();
+    // TI SCLS800A (SN74HCS30) pin functions: A..F=1..6 GND=7 Y=8 NC=9, 10, 13 G=11 H=12 VCC=14;
+    // TI SDAS010E (SN74ALS30A) top view agrees
+    let i = Input;
+    expect_package(
+        &t,
+        S74,
+        "30",
+        &[
+            i, i, i, i, i, i, Ground, PushPull, NoConnect, NoConnect, i, i, NoConnect, Supply,
+        ],
+    );
+    same_unit(&t, S74, "30", &[1, 2, 3, 4, 5, 6, 8, 11, 12]);
+}
+
+#[test]
+fn identity_comparator_688() {
+    let t = table();
+    // TI SDAS228A (SN74ALS688), top view: G~=1 P0=2 Q0=3 P1=4 Q1=5 P2=6 Q2=7 P3=8 Q3=9 GND=10
+    // P4=11 Q4=12 P5=13 Q5=14 P6=15 Q6=16 P7=17 Q7=18 P=Q~=19 VCC=20; totem-pole output
+    let mut r = vec![Input; 20];
+    r[9] = Ground;
+    r[18] = PushPull;
+    r[19] = Supply;
+    expect_package(&t, S74, "688", &r);
+    expect_name(&t, S74, "688", 2, "P0");
+    expect_name(&t, S74, "688", 18, "Q7");
+}
+
+#[test]
+fn hex_bus_driver_367() {
+    let t = table();
+    // TI SCLS398I (SN74LV367A) pin functions: 1OE~=1 1A1=2 1Y1=3 1A2=4 1Y2=5 1A3=6 1Y3=7 GND=8
+    // 1Y4=9 1A4=10 2Y1=11 2A1=12 2Y2=13 2A2=14 2OE~=15 VCC=16
+    let (i, z) = (Input, ThreeState);
+    expect_package(
+        &t,
+        S74,
+        "367",
+        &[i, i, z, i, z, i, z, Ground, z, i, z, i, z, i, i, Supply],
+    );
+    expect_enables(&t, S74, "367", &[3, 5, 7, 9], &["1"], true);
+    expect_enables(&t, S74, "367", &[11, 13], &["15"], true);
+    for (a, y) in [(2, 3), (4, 5), (6, 7), (10, 9), (12, 11), (14, 13)] {
+        same_unit(&t, S74, "367", &[a, y]);
+    }
+}
+
+#[test]
+fn cmos_nand_4011() {
+    let t = table();
+    // Tiger Electronic CD4011 data sheet, pin assignment and logic diagram: A=1 B=2 J=3 K=4 C=5
+    // D=6 VSS=7 E=8 F=9 L=10 M=11 G=12 H=13 VDD=14, with J = A.B, K = C.D, L = E.F, M = G.H
+    let (i, p) = (Input, PushPull);
+    expect_package(
+        &t,
+        S40,
+        "4011",
+        &[i, i, p, p, i, i, Ground, i, i, p, p, i, i, Supply],
+    );
+    for gate in [[1, 2, 3], [5, 6, 4], [8, 9, 10], [12, 13, 11]] {
+        same_unit(&t, S40, "4011", &gate);
+    }
+}
+
+#[test]
+fn partly_checked_175_and_238() {
+    let t = table();
+    let p = PushPull;
+    // TI SCHS345A (CD74ACT175) pin functions, pins 1-8: CLR=1 1Q=2 1Q~=3 1D=4 2D=5 2Q, 2Q~=6, 7
+    // GND=8 (which of 2/3 and 6/7 is the inverted output is not legible there)
+    expect_roles(
+        &t,
+        S74,
+        "175",
+        16,
+        &[
+            (1, Input),
+            (2, p),
+            (3, p),
+            (4, Input),
+            (5, Input),
+            (6, p),
+            (7, p),
+            (8, Ground),
+        ],
+    );
+    same_unit(&t, S74, "175", &[2, 3, 4]);
+    same_unit(&t, S74, "175", &[5, 6, 7]);
+    // TI JAJSNC7J (CD74HC238) pin functions, pins 1-14: A0..A2=1..3 G0~=4 G1~=5 G2=6 Y7=7 GND=8
+    // Y6..Y1=9..14
+    let mut e: Vec<(u32, PinRole)> = (1..=6).map(|n| (n, Input)).collect();
+    e.push((7, p));
+    e.push((8, Ground));
+    e.extend((9..=14).map(|n| (n, p)));
+    expect_roles(&t, S74, "238", 16, &e);
+    assert!(func(&t, S74, "238").pin("7").unwrap().name.contains("Y7"));
+}
+
+/// Every function whose whole pinout a test in this file checks against a named data sheet. Its
+/// `source` (and the comment above the entry) must name that document, never "from memory".
+const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
+    (S74, "00"),
+    (S74, "02"),
+    (S74, "04"),
+    (S74, "08"),
+    (S74, "10"),
+    (S74, "14"),
+    (S74, "20"),
+    (S74, "21"),
+    (S74, "30"),
+    (S74, "73"),
+    (S74, "74"),
+    (S74, "83"),
+    (S74, "123"),
+    (S74, "125"),
+    (S74, "126"),
+    (S74, "138"),
+    (S74, "151"),
+    (S74, "153"),
+    (S74, "157"),
+    (S74, "161"),
+    (S74, "164"),
+    (S74, "165"),
+    (S74, "192"),
+    (S74, "193"),
+    (S74, "240"),
+    (S74, "244"),
+    (S74, "245"),
+    (S74, "367"),
+    (S74, "374"),
+    (S74, "390"),
+    (S74, "393"),
+    (S74, "541"),
+    (S74, "574"),
+    (S74, "688"),
+    (S40, "4011"),
+    (S40, "4027"),
+    (S40, "4049"),
+    (S40, "4050"),
+    (S40, "4051"),
+    (S40, "4066"),
+];
+
+#[test]
+fn checked_functions_name_their_data_sheet() {
+    let t = table();
+    let text = BUILTIN_TEXT;
+    for &(series, id) in CHECKED_AGAINST_DATA_SHEETS {
+        let f = func(&t, series, id);
+        assert!(
+            !f.source.to_lowercase().contains("from memory"),
+            "{id}: source still says from memory: {:?}",
+            f.source
+        );
+        // a document is named by its maker's literature number or page (letters and digits)
+        assert!(
+            f.source.chars().any(|c| c.is_ascii_digit())
+                && f.source.chars().any(|c| c.is_ascii_uppercase()),
+            "{id}: source names no document: {:?}",
+            f.source
+        );
+        // the comment line above the entry says the same
+        let series_name = if series == S74 { "74" } else { "4000" };
+        let entry = format!("[[function]]\nid = \"{id}\"\n");
+        let at = text
+            .match_indices(&entry)
+            .map(|(at, _)| at)
+            .find(|&at| {
+                text[at..]
+                    .lines()
+                    .take(6)
+                    .any(|l| l == format!("series = \"{series_name}\""))
+            })
+            .unwrap_or_else(|| panic!("{id}: entry not found in the table text"));
+        let comment = text[..at].lines().last().unwrap_or("");
+        assert!(
+            comment.starts_with('#') && !comment.to_lowercase().contains("from memory"),
+            "{id}: comment above the entry: {comment:?}"
+        );
+    }
+}
+
 // ---------------------------------------------------------------------------------------
 // Supply pins not on the corners: these matter to the power checks.
 

@@ -24,7 +24,19 @@ use serde_json::Value;
 
 /// The misses (of those an existing check should catch) that must be found. Raise it as the model
 /// learns; never lower it without a reason written in the commit.
-const MISSES_FOUND_AT_LEAST: usize = 32;
+const MISSES_FOUND_AT_LEAST: usize = 37;
+
+/// Checks that now report what the review asked of another name: a check split off from the one
+/// named (`unpowered-part` took parts with power pins wired to nothing from
+/// `power-pin-miswired`), or a check that exists now for a `new:` name the review proposed. A miss
+/// whose `new:` name has no entry here is not counted.
+const NOW_REPORTED_BY: &[(&str, &[&str])] = &[
+    ("power-pin-miswired", &["unpowered-part"]),
+    (
+        "new:floating-input-unknown-family",
+        &["floating-cmos-input", "floating-ttl-input", "open-control-input"],
+    ),
+];
 
 fn shared() -> Option<PathBuf> {
     let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/real-boards");
@@ -275,11 +287,16 @@ fn real_boards_against_the_review() {
         // misses that an existing check should catch
         for m in entry["missed"].as_array().unwrap() {
             let want = m["want_check"].as_str().unwrap();
-            if want.starts_with("new:") {
+            let mut checks: Vec<&str> = want.split('|').collect();
+            for (named, now) in NOW_REPORTED_BY {
+                if checks.contains(named) {
+                    checks.extend_from_slice(now);
+                }
+            }
+            if checks.iter().all(|c| c.starts_with("new:")) {
                 continue;
             }
             row.misses_total += 1;
-            let checks: Vec<&str> = want.split('|').collect();
             let at = m["at"].as_str().unwrap();
             let hit = found.iter().any(|f| {
                 (f.severity == "error" || f.severity == "warning")

@@ -210,7 +210,7 @@ pub fn render(a: &Audit) -> String {
     } else {
         100.0
     };
-    let _ = write!(o, "<p id=\"coverage\"><b>Classification coverage:</b> {c} of {n} IC-like parts classified ({pct:.0} %). Unclassified parts are listed in the <a href=\"#recapture\">recapture review</a>; the tool cannot judge their interfaces.</p>");
+    let _ = write!(o, "<p id=\"coverage\"><b>Classification coverage:</b> {c} of {n} IC-like parts classified ({pct:.0} %){}. Unclassified parts are listed in the <a href=\"#recapture\">recapture review</a>; the tool cannot judge their interfaces.</p>", symbols_note(a.function_symbols));
     o.push_str("<h3>Findings by check and severity</h3>");
     if a.by_check.is_empty() {
         o.push_str("<p>No findings.</p>");
@@ -521,5 +521,14 @@ mod tests {
             "&lt;script&gt;&quot;a&quot; &amp; &#39;b&#39;&lt;/script&gt;"
         );
         assert_eq!(esc("a\u{1b}[31m"), "a\\u{1b}[31m");
+    }
+}
+
+/// The clause after the coverage figure about parts drawn as functions, if any.
+pub(crate) fn symbols_note(n: usize) -> String {
+    match n {
+        0 => String::new(),
+        1 => "; 1 part is drawn as a function with no part number and is not counted".into(),
+        n => format!("; {n} parts are drawn as functions with no part number and are not counted"),
     }
 }

@@ -130,7 +130,8 @@ pub fn render(a: &Audit) -> String {
     };
     let _ = writeln!(
         o,
-        "\nClassification coverage: {c} of {n} IC-like parts classified ({pct:.0} %).\n"
+        "\nClassification coverage: {c} of {n} IC-like parts classified ({pct:.0} %){}.\n",
+        super::html::symbols_note(a.function_symbols)
     );
     o.push_str("### Findings by check and severity\n\n");
     if a.by_check.is_empty() {

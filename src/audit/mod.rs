@@ -61,6 +61,8 @@ pub struct Audit {
     pub kinds: Vec<(&'static str, usize)>,
     /// (classified, IC-like).
     pub coverage: (usize, usize),
+    /// Parts drawn as functions with no part number, not among the IC-like parts.
+    pub function_symbols: usize,
     pub findings: Vec<Finding>,
     pub by_check: Vec<CheckCount>,
     /// Findings removed by the project's waivers.
@@ -521,6 +523,7 @@ pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag>
         families,
         kinds,
         coverage: cl.coverage,
+        function_symbols: cl.function_symbols,
         findings,
         by_check,
         waived,
@@ -954,14 +957,7 @@ fn gather_recapture(
                         (
                             s.value.clone(),
                             s.change.clone(),
-                            match s.matched.series {
-                                crate::classify::pattern::Series::S74 => {
-                                    format!("{}{}", s.matched.family, s.matched.function)
-                                }
-                                crate::classify::pattern::Series::S4000 => {
-                                    format!("{} ({})", s.matched.function, s.matched.family)
-                                }
-                            },
+                            s.reads_as.clone(),
                         )
                     })
                     .collect(),

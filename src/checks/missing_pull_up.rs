@@ -120,6 +120,16 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             )
             .with_help(fix)
         };
+        // an input known only from a symbol's pin type (a part netmargin does not know) is an
+        // assumption: the output is known, the reader is not
+        let known_reader = nm
+            .loads
+            .iter()
+            .any(|l| l.family.is_some() && !oc.iter().any(|o| o.at == l.at));
+        if !known_reader && !loads.is_empty() && diag.severity == crate::diag::Severity::Error {
+            diag.severity = crate::diag::Severity::Warning;
+            diag.message.push_str(" (assuming the symbol is right that these pins are inputs: the parts are ones netmargin does not know)");
+        }
         if d.symbol_only && diag.severity > crate::diag::Severity::Info {
             diag.severity = crate::diag::Severity::Info;
             diag.message.push_str(&format!(

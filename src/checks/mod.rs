@@ -78,6 +78,7 @@ mod output_contention;
 mod package_mismatch;
 mod pin_role_mismatch;
 mod power_pin_miswired;
+mod symbol_other_part;
 mod pull_up_out_of_range;
 mod ttl_high_into_cmos;
 mod ttl_pull_down_too_large;

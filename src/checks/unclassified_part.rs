@@ -36,6 +36,8 @@ pub enum Gap {
     FunctionMissing(String),
     /// A logic part whose family is not in the family table.
     FamilyUnknown(String),
+    /// Drawn as a function (`AND2`, `CNT`) with no part number: no family can be known.
+    FunctionSymbol,
 }
 
 /// What is missing for a part, if anything. `family_known` says whether the part's family
@@ -47,6 +49,7 @@ pub fn gap(part: &PartClass, family_known: bool) -> Option<Gap> {
                 judged: part.method == Method::NetlistOnly,
             });
         }
+        Method::FunctionSymbol => return Some(Gap::FunctionSymbol),
         _ => {}
     }
     if part.kind != PartKind::Logic {
@@ -110,6 +113,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     .at(span, "function not in the table")
                     .with_help(format!("check the value; or add function {f} to a project function table, or give {reference} a `Logic function` field naming a function the table has"))
             }
+            Gap::FunctionSymbol => Diag::info("unclassified-part", format!("{reference} is drawn as a function (value `{value}`), with no part number: netmargin cannot know its logic family, so its pins are judged from the symbol's pin types only and it is not counted among the IC-like parts"))
+                .at(span, "a function, not a part number")
+                .with_help(format!("if {reference} stands for a real part, put its part number in the value (e.g. `74HC08`), or give it a `Logic family` field")),
             Gap::FamilyUnknown(f) => Diag::info("unclassified-part", format!("{reference} ({value}) names the logic family `{f}`, which the family table does not have: none of its pins are checked against family data"))
                 .at(c.field("Logic family").and_then(|x| x.value.as_ref()).map_or(span, |v| v.span), "unknown family")
                 .with_help(format!("spell the family as the family table does (`netmargin families` lists them), or add `{f}` to a project family table")),
@@ -139,6 +145,7 @@ mod tests {
             units: vec![None],
             enables: vec![Vec::new()],
             entry: None,
+            symbol_reads_as: None,
         }
     }
 
@@ -157,6 +164,9 @@ mod tests {
         p.named_function = Some("670".into());
         assert_eq!(gap(&p, true), Some(Gap::FunctionMissing("670".into())));
         assert_eq!(gap(&p, false), Some(Gap::FamilyUnknown("74LS".into())));
+        let mut s = part(PartKind::UnknownIc, Method::FunctionSymbol);
+        s.ic_like = false;
+        assert_eq!(gap(&s, false), Some(Gap::FunctionSymbol));
     }
 
     #[test]

@@ -64,6 +64,11 @@ pub enum Method {
     NetlistOnly,
     /// IC-like, and neither classified nor carrying usable pin types.
     NotClassified,
+    /// Drawn as a function, not a part: the value names a logic function (`AND2`, `CNT`,
+    /// `MUX2x7`) or, with no footprint, a cell (`CMPD`), and carries no part number, so no
+    /// family can be found for it. Not counted among the IC-like parts; pin roles from the
+    /// symbol's pin types.
+    FunctionSymbol,
     /// Not an IC (resistor, capacitor, connector ...): classified by its reference.
     Reference,
 }
@@ -77,6 +82,7 @@ impl Method {
             Method::Pattern => "pattern",
             Method::NetlistOnly => "netlist only",
             Method::NotClassified => "not classified",
+            Method::FunctionSymbol => "function symbol",
             Method::Reference => "reference",
         }
     }
@@ -138,6 +144,18 @@ pub struct PartClass {
     pub enables: Vec<Vec<usize>>,
     /// Index of the explicit entry used, if any.
     pub entry: Option<usize>,
+    /// When the symbol's own name (the library part) reads as another part than the value
+    /// does: what it reads as. The value decides; this only records the disagreement.
+    pub symbol_reads_as: Option<SymbolReading>,
+}
+
+/// What a component's library part name reads as, when that differs from its value.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct SymbolReading {
+    /// The library part name (`Z80CPU`, `74LS00`).
+    pub symbol: String,
+    pub family: Option<String>,
+    pub function: Option<String>,
 }
 
 impl PartClass {
@@ -153,6 +171,9 @@ pub struct Classified {
     pub parts: Vec<PartClass>,
     /// (classified, IC-like): how many IC-like parts have a family or a known non-logic entry.
     pub coverage: (usize, usize),
+    /// Parts drawn as a function with no part number (`Method::FunctionSymbol`), left out of
+    /// the IC-like count.
+    pub function_symbols: usize,
     /// Entries of project files that matched no component.
     pub unused_project_entries: Vec<usize>,
 }
@@ -422,7 +443,7 @@ fn parse_function_field(s: &str) -> (Series, String) {
 pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut parts = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
-    let (mut classified, mut ic_like) = (0, 0);
+    let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
     // many parts share a value: each distinct value meets the entries' globs and the value
     // patterns once
     let mut entry_of: rustc_hash::FxHashMap<&str, Option<usize>> = Default::default();
@@ -434,6 +455,9 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             .or_insert_with(|| pattern::match_value(value))
             .clone()
     };
+    // near misses against the part table, by value (many parts share one)
+    let mut table_slips: std::collections::HashMap<String, Vec<pattern::Suggestion>> =
+        std::collections::HashMap::new();
     for c in &nl.components {
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
@@ -530,6 +554,10 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 function = Some((series, m.function.clone()));
             }
             value_match = Some(m);
+        } else if ic && is_function_symbol(value, c.footprint.is_some()) {
+            kind = PartKind::UnknownIc;
+            method = Method::FunctionSymbol;
+            function_symbols += 1;
         } else if ic {
             kind = PartKind::UnknownIc;
             let known =
@@ -538,6 +566,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 .entry(value)
                 .or_insert_with(|| pattern::near_misses(value, &known, 3))
                 .clone();
+            if suggestions.is_empty() {
+                suggestions = table_slips
+                    .entry(value.to_string())
+                    .or_insert_with(|| table_near_misses(value, c, rules))
+                    .clone();
+            }
             method = if c.pins.iter().any(|p| {
                 !matches!(
                     p.ptype,
@@ -549,11 +583,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 Method::NotClassified
             };
         }
-        let is_ic = ic
-            || matches!(
-                kind,
-                PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc
-            );
+        let is_ic = method != Method::FunctionSymbol
+            && (ic
+                || matches!(
+                    kind,
+                    PartKind::Logic | PartKind::NotLogic | PartKind::UnknownIc
+                ));
         if is_ic {
             ic_like += 1;
             if matches!(kind, PartKind::Logic | PartKind::NotLogic) {
@@ -614,7 +649,14 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 }
             }
         }
+        let symbol_reads_as = match method {
+            Method::Pattern | Method::ShippedEntry | Method::ProjectOverride => {
+                symbol_reading(c, rules, family.as_deref(), named_function.as_deref())
+            }
+            _ => None,
+        };
         parts.push(PartClass {
+            symbol_reads_as,
             kind,
             method,
             family,
@@ -642,6 +684,176 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     Classified {
         parts,
         coverage: (classified, ic_like),
+        function_symbols,
         unused_project_entries,
+    }
+}
+
+/// What the component's library part name reads as (by the same patterns and part table the
+/// value goes through), when it reads as a part and that part differs from the value's in
+/// family or function; for a 74 or 4000 symbol on a 74 or 4000 value, in function only.
+/// Symbols named for no part (`Conn_01x04`, `R`) read as nothing.
+fn symbol_reading(
+    c: &Component<'_>,
+    rules: &Rules,
+    family: Option<&str>,
+    function: Option<&str>,
+) -> Option<SymbolReading> {
+    let symbol = c.libsource.as_ref()?.part.as_ref()?.as_str().trim();
+    if symbol.is_empty() || symbol.eq_ignore_ascii_case(c.value_str().trim()) {
+        return None;
+    }
+    let (f, fun) = if let Some((_, e)) = rules
+        .parts
+        .find(symbol)
+        .filter(|(_, e)| fits_package(c, e, rules))
+    {
+        (
+            e.family
+                .as_ref()
+                .map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone())),
+            e.function.clone(),
+        )
+    } else if let Some(m) = pattern::match_value(symbol) {
+        // a 74 or 4000 symbol stands for its function: libraries draw one symbol per function
+        // and name it for one family (`74LS00` placed as a 74HCT00), so only another function
+        // is a disagreement (common practice)
+        if pattern::match_value(c.value_str()).is_some() && function == Some(m.function.as_str()) {
+            return None;
+        }
+        (Some(m.family), Some(m.function))
+    } else {
+        return None;
+    };
+    (f.as_deref() != family || fun.as_deref() != function).then(|| SymbolReading {
+        symbol: symbol.to_string(),
+        family: f,
+        function: fun,
+    })
+}
+
+/// Values one slip away from `value` that an entry of the part table (a processor, a memory,
+/// a peripheral) takes, for a value no table took: `Z8OA` (letter O) reads as a Z80A, `4l64`
+/// as a 4164 DRAM. One-slip readings first; two confusions only when they give the one reading.
+fn table_near_misses(value: &str, c: &Component<'_>, rules: &Rules) -> Vec<pattern::Suggestion> {
+    let mut single = Vec::new();
+    let mut double = Vec::new();
+    for (cand, change, slips) in pattern::slips(value) {
+        let Some((_, e)) = rules
+            .parts
+            .find(&cand)
+            .filter(|(_, e)| fits_package(c, e, rules))
+        else {
+            continue;
+        };
+        let what = match (&e.function, &e.family) {
+            (Some(f), Some(fam)) => format!("{f} ({fam})"),
+            (Some(f), None) => f.clone(),
+            (None, Some(fam)) => format!("a {fam} part"),
+            (None, None) => "a listed part".to_string(),
+        };
+        let list = if slips == 1 { &mut single } else { &mut double };
+        if !list.iter().any(|s: &pattern::Suggestion| s.value == cand) {
+            list.push(pattern::Suggestion {
+                value: cand,
+                matched: None,
+                reads_as: what,
+                change,
+            });
+        }
+    }
+    if single.is_empty() && double.len() == 1 {
+        single = double;
+    }
+    single.truncate(3);
+    single
+}
+
+/// Generic words a schematic uses to draw a logic function without naming a part.
+const FUNCTION_WORDS: &[&str] = &[
+    "AND", "NAND", "OR", "NOR", "XOR", "XNOR", "NOT", "INV", "INVERTER", "BUF", "BUFFER", "DFF",
+    "JKFF", "TFF", "SRFF", "FF", "SR", "RS", "LATCH", "MUX", "DEMUX", "CNT", "COUNTER", "DEC",
+    "DECODE", "DECODER", "ENCODER", "REG", "REGISTER", "SHIFT", "SHIFTREG", "ADDER", "GATE",
+    "CMP", "COMPARATOR",
+];
+
+/// Whether an unmatched IC-like part is drawn as a function rather than named as a part: its
+/// value has no part number (no run of three digits or more, no spaces or punctuation) and is
+/// either a generic function word (`AND`, `4AND`, `NOR3`, `DFFN`, `MUX2x10`, `decode_3_bit`,
+/// `NOT_OC`) or, on a symbol with no footprint, a short cell name of letters and at most
+/// single digits (`CMPD`, `LD3R`).
+pub fn is_function_symbol(value: &str, has_footprint: bool) -> bool {
+    let v = value.trim();
+    if v.is_empty() || v == "~" || !v.chars().all(|c| c.is_ascii_alphanumeric() || c == '_') {
+        return false;
+    }
+    let mut run = 0;
+    let mut longest = 0;
+    for c in v.chars() {
+        run = if c.is_ascii_digit() { run + 1 } else { 0 };
+        longest = longest.max(run);
+    }
+    if longest >= 3 {
+        return false;
+    }
+    let upper = v.to_ascii_uppercase();
+    // a leading count (`4AND`: a 4-input AND)
+    let body = upper.trim_start_matches(|c: char| c.is_ascii_digit());
+    // what follows an underscore names a variant (`NOT_OC`, `decode_3_bit`)
+    let head = body.split('_').next().unwrap_or("");
+    let word_end = head
+        .find(|c: char| !c.is_ascii_alphabetic())
+        .unwrap_or(head.len());
+    let (word, rest) = head.split_at(word_end);
+    // what may follow the word: input counts and widths (`3`, `2X7`)
+    let rest_ok = rest.chars().all(|c| c.is_ascii_digit() || c == 'X');
+    let known = |w: &str| FUNCTION_WORDS.contains(&w);
+    // one letter of variant (`DFFN`, `DFFR`, `CMPD`) on a word of three letters or more
+    let variant = word.len() >= 4 && {
+        let stem = &word[..word.len() - 1];
+        stem.len() >= 3 && known(stem)
+    };
+    if rest_ok && (known(word) || variant) {
+        return true;
+    }
+    // a library cell with no footprint and no part number
+    !has_footprint && longest < 2 && v.len() <= 8 && !v.contains('_')
+}
+
+#[cfg(test)]
+mod tests {
+    use super::is_function_symbol;
+
+    #[test]
+    fn values_that_draw_a_function() {
+        // generic function words, with input counts, widths, variants and suffixes
+        for v in [
+            "AND", "4AND", "NOR3", "OR6", "XOR", "DFF", "DFFN", "SR", "MUX", "MUX2x10", "CNT",
+            "decode_3_bit", "NOT_OC", "BUF", "CMPD",
+        ] {
+            assert!(is_function_symbol(v, true), "{v} with a footprint");
+            assert!(is_function_symbol(v, false), "{v} without a footprint");
+        }
+        // a short cell name is a function only when there is no footprint either
+        for v in ["LD3R", "FAINB", "ULA"] {
+            assert!(is_function_symbol(v, false), "{v} without a footprint");
+            assert!(!is_function_symbol(v, true), "{v} with a footprint");
+        }
+    }
+
+    #[test]
+    fn values_that_name_a_part() {
+        // part numbers (three digits or more), transcription slips that keep their digits,
+        // empty values, values with spaces or punctuation, and words that only start like a
+        // function word
+        for v in [
+            "74LSOO", "SN74LSOO", "NE555", "MK4116x8", "Z80", "V9938/V9958", "Flash ROM", "~", "",
+            "ORANGE", "ANDROID", "Arduino_Nano_v3.x",
+        ] {
+            assert!(!is_function_symbol(v, true), "{v} with a footprint");
+        }
+        for v in ["74LSOO", "Z80", "8T26", "Flash ROM", "~", "MOS_7360_TED", "Relay_5V"] {
+            assert!(!is_function_symbol(v, false), "{v} without a footprint");
+        }
     }
 }

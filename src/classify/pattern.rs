@@ -148,8 +148,11 @@ pub fn match_value(value: &str) -> Option<ValueMatch> {
 pub struct Suggestion {
     /// The corrected value (the trimmed value with the edit applied; any comment kept).
     pub value: String,
-    /// What the corrected value reads as.
-    pub matched: ValueMatch,
+    /// What the corrected value reads as, when it is a 74 or 4000 number; `None` when it is
+    /// a part-table entry (a processor, a memory ...), described by `reads_as`.
+    pub matched: Option<ValueMatch>,
+    /// What the corrected value is, in words: `74LS00`, `4011 (4000B)`, `z80 (NMOS)`.
+    pub reads_as: String,
     /// What was changed, with 1-based character positions in the trimmed value:
     /// "O read as 0 at position 5", "doubled 8 at position 8 removed".
     pub change: String,
@@ -219,9 +222,13 @@ pub fn near_misses(
         .map(|c| {
             let p = c.parsed;
             let text: String = c.chars.iter().collect();
+            let reads_as = match p.series {
+                Series::S74 => format!("{}{}", p.family, p.function),
+                Series::S4000 => format!("{} ({})", p.function, p.family),
+            };
             Suggestion {
                 value: format!("{text}{tail}"),
-                matched: ValueMatch {
+                matched: Some(ValueMatch {
                     series: p.series,
                     family: p.family.to_string(),
                     function: p.function,
@@ -229,9 +236,34 @@ pub fn near_misses(
                     military: p.military,
                     suffix: (!p.suffix.is_empty()).then_some(p.suffix),
                     text,
-                },
+                }),
+                reads_as,
                 change: c.change,
             }
+        })
+        .collect()
+}
+
+/// The values one slip away from `value` (one confusable character, a doubled character, two
+/// neighbours swapped), and two confusions together, each with what was changed; for matching
+/// against tables that are not number patterns (the part table's globs). The part-number
+/// token alone is edited; any comment after it is kept.
+pub fn slips(value: &str) -> Vec<(String, String, usize)> {
+    let trimmed = value.trim();
+    let (token, tail) = split_token(trimmed);
+    let chars: Vec<char> = token.chars().collect();
+    if chars.is_empty() || chars.len() > MAX_NEAR_MISS_LEN {
+        return Vec::new();
+    }
+    let lower = chars.iter().any(|c| c.is_ascii_lowercase())
+        && !chars.iter().any(|c| c.is_ascii_uppercase());
+    let case = |c: char| if lower { c.to_ascii_lowercase() } else { c };
+    single_edits(&chars, &case)
+        .into_iter()
+        .chain(double_confusions(&chars, &case))
+        .map(|e| {
+            let text: String = e.chars.iter().collect();
+            (format!("{text}{tail}"), e.change, e.changes)
         })
         .collect()
 }

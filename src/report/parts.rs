@@ -66,6 +66,7 @@ pub fn write_parts(
         struct Coverage {
             classified: usize,
             ic_like: usize,
+            function_symbols: usize,
         }
         let doc = Doc {
             format_version: 1,
@@ -74,6 +75,7 @@ pub fn write_parts(
             coverage: Coverage {
                 classified,
                 ic_like: ic,
+                function_symbols: cl.function_symbols,
             },
         };
         serde_json::to_writer_pretty(&mut *out, &doc).map_err(io::Error::other)?;
@@ -131,11 +133,20 @@ pub fn write_parts(
     } else {
         classified as f64 * 100.0 / ic as f64
     };
-    writeln!(
-        out,
-        "{}: {classified} of {ic} IC-like parts classified ({pct:.0} %)",
-        sanitize(name)
-    )?;
+    let symbols = match cl.function_symbols {
+        0 => String::new(),
+        1 => "; 1 part drawn as a function with no part number, not counted".to_string(),
+        n => format!("; {n} parts drawn as functions with no part number, not counted"),
+    };
+    if ic == 0 {
+        writeln!(out, "{}: no IC-like parts{symbols}", sanitize(name))?;
+    } else {
+        writeln!(
+            out,
+            "{}: {classified} of {ic} IC-like parts classified ({pct:.0} %){symbols}",
+            sanitize(name)
+        )?;
+    }
     let _ = Method::Pattern;
     Ok(())
 }
