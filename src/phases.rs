@@ -50,11 +50,9 @@ impl Drop for Phase {
     fn drop(&mut self) {
         if let Some((name, t, cpu)) = self.0.take() {
             let ms = t.elapsed().as_secs_f64() * 1e3;
-            let cpu = cpu
-                .zip(thread_cpu_ns())
-                .map_or(String::new(), |(a, b)| {
-                    format!("  cpu {:>8.1} ms", b.saturating_sub(a) as f64 / 1e6)
-                });
+            let cpu = cpu.zip(thread_cpu_ns()).map_or(String::new(), |(a, b)| {
+                format!("  cpu {:>8.1} ms", b.saturating_sub(a) as f64 / 1e6)
+            });
             let mem = memory_kb().map_or(String::new(), |(rss, peak)| {
                 format!("  rss {} MB  peak {} MB", rss / 1024, peak / 1024)
             });

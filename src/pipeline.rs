@@ -222,7 +222,13 @@ pub fn outcome_of(source: SourceFile, settings: &Settings) -> (FileOutcome, Usag
             rules: a.used(),
             waivers: f.waivers_used,
         };
-        (f.diags, f.waived.len(), a.nl.summary(), a.cl.coverage, usage)
+        (
+            f.diags,
+            f.waived.len(),
+            a.nl.summary(),
+            a.cl.coverage,
+            usage,
+        )
     });
     match result {
         Ok((diags, waived, summary, coverage, usage)) => (

@@ -316,7 +316,11 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
 
 /// The document written to `out` as it is serialized, escaped on the way, with a final line
 /// end.
-fn write_run(files: &[FileOutcome], netlists: Option<usize>, out: &mut dyn Write) -> io::Result<()> {
+fn write_run(
+    files: &[FileOutcome],
+    netlists: Option<usize>,
+    out: &mut dyn Write,
+) -> io::Result<()> {
     // serde_json writes in small pieces: the escape looks at them in large ones
     let mut w = io::BufWriter::with_capacity(
         1 << 16,
@@ -326,7 +330,9 @@ fn write_run(files: &[FileOutcome], netlists: Option<usize>, out: &mut dyn Write
         },
     );
     serde_json::to_writer_pretty(&mut w, &document(files, netlists)).map_err(io::Error::from)?;
-    w.into_inner().map_err(io::IntoInnerError::into_error)?.finish()
+    w.into_inner()
+        .map_err(io::IntoInnerError::into_error)?
+        .finish()
 }
 
 #[cfg(test)]
@@ -350,7 +356,11 @@ mod tests {
             }
             w.finish().unwrap();
             let want = escape_unsafe(json.clone()) + "\n";
-            assert_eq!(String::from_utf8(out).unwrap(), want, "writes of {chunk} bytes");
+            assert_eq!(
+                String::from_utf8(out).unwrap(),
+                want,
+                "writes of {chunk} bytes"
+            );
         }
         // U+2070 and U+00A0 start with the bytes looked at but are left as they are
         assert!(escape_unsafe(json.clone()).contains("\u{2070}é\u{a0}"));
