@@ -24,7 +24,7 @@ use serde_json::Value;
 
 /// The misses (of those an existing check should catch) that must be found. Raise it as the model
 /// learns; never lower it without a reason written in the commit.
-const MISSES_FOUND_AT_LEAST: usize = 37;
+const MISSES_FOUND_AT_LEAST: usize = 46;
 
 /// Checks that now report what the review asked of another name: a check split off from the one
 /// named (`unpowered-part` took parts with power pins wired to nothing from
@@ -34,8 +34,13 @@ const NOW_REPORTED_BY: &[(&str, &[&str])] = &[
     ("power-pin-miswired", &["unpowered-part"]),
     (
         "new:floating-input-unknown-family",
-        &["floating-cmos-input", "floating-ttl-input", "open-control-input"],
+        &[
+            "floating-cmos-input",
+            "floating-ttl-input",
+            "open-control-input",
+        ],
     ),
+    ("new:display-common-unconnected", &["display-common-open"]),
 ];
 
 fn shared() -> Option<PathBuf> {

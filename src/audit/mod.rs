@@ -411,6 +411,7 @@ fn kind_name(k: PartKind) -> &'static str {
         PartKind::ResistorNetwork => "resistor networks",
         PartKind::Capacitor => "capacitors",
         PartKind::Led => "LEDs",
+        PartKind::Display => "LED displays",
         PartKind::Diode => "diodes",
         PartKind::Connector => "connectors",
         PartKind::Switch => "switches and jumpers",

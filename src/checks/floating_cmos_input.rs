@@ -67,17 +67,26 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         out.push(d);
     }
     for f in singles {
+        // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
+        let input = if cx
+            .family(f.at.comp)
+            .is_some_and(|fam| fam.id.starts_with("NMOS"))
+        {
+            "an NMOS input"
+        } else {
+            "a CMOS input"
+        };
         let (msg, label) = match f.why {
             Float::Absent => (
                 format!(
-                    "{} is on no net: a CMOS input must never float",
+                    "{} is on no net: {input} must never float",
                     cx.describe(f.at)
                 ),
                 "on no net".to_string(),
             ),
             Float::Alone(_) => (
                 format!(
-                    "{} is connected to nothing: a CMOS input must never float",
+                    "{} is connected to nothing: {input} must never float",
                     cx.describe(f.at)
                 ),
                 "connected to nothing".to_string(),

@@ -65,6 +65,7 @@ mod tests {
 }
 
 mod common;
+mod display_common_open;
 mod fanout_overrun;
 mod floating_bus;
 mod floating_cmos_input;
@@ -75,6 +76,7 @@ mod level_mismatch;
 mod missing_pull_up;
 mod open_control_input;
 mod output_contention;
+mod output_load_current;
 mod package_mismatch;
 mod pin_role_mismatch;
 mod power_pin_miswired;

@@ -7,7 +7,9 @@
 //! push-pull; open collector ~ open collector; tri-state ~ three-state; bidirectional or
 //! tri-state ~ bidirectional; open emitter ~ open emitter; power input ~ supply or ground.
 //! A table pin that is not connected inside the part, or an analogue switch pin, takes any
-//! signal type. A pin whose type the netlist does not give is not compared.
+//! signal type; an extra supply outside the logic levels (an 8080's VDD at +12 V, which the
+//! table marks analogue) may be typed power input. A pin whose type the netlist does not give
+//! is not compared.
 //!
 //! Why it matters: the symbol was most likely drawn for another part, or from another
 //! part's template. netmargin goes by the value and the table, but the schematic's own
@@ -49,6 +51,20 @@ pub fn types_agree(role: PinRole, ptype: PinType) -> bool {
         R::NoConnect | R::Analog => !matches!(ptype, T::PowerIn | T::PowerOut),
         R::Passive | R::Unknown => true,
     }
+}
+
+/// An extra supply outside the logic levels (an 8080's VBB and VDD, a line driver's VCC+ and
+/// VCC-) is an analogue pin in the table, so that it sets no logic supply; a symbol that types
+/// it power-in draws it rightly.
+pub fn extra_supply(role: PinRole, ptype: PinType, table_name: Option<&str>) -> bool {
+    role == PinRole::Analog
+        && ptype == PinType::PowerIn
+        && table_name.is_some_and(|n| {
+            let up = n.trim().to_ascii_uppercase();
+            ["VDD", "VBB", "VCC", "VEE", "VSS", "VPP"]
+                .iter()
+                .any(|s| up.starts_with(s))
+        })
 }
 
 /// True when the symbol's pin name says power where the table says otherwise, or the other
@@ -154,6 +170,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 continue;
             }
             let role = part.roles[pi];
+            if extra_supply(role, p.ptype, part.table_names[pi].as_deref()) {
+                continue;
+            }
             if !types_agree(role, p.ptype) || names_disagree(role, p.name.as_deref()) {
                 bad.push(pi);
             }
@@ -298,6 +317,20 @@ mod tests {
         assert!(!names_disagree(PinRole::Ground, Some("VSS")));
         assert!(!names_disagree(PinRole::Input, Some("1A")));
         assert!(!names_disagree(PinRole::Input, Some("~")));
+        // an 8080's +12 V VDD is an analogue pin in the table: typed power-in it agrees; a
+        // crystal pin typed power-in does not
+        assert!(extra_supply(PinRole::Analog, PinType::PowerIn, Some("VDD")));
+        assert!(extra_supply(
+            PinRole::Analog,
+            PinType::PowerIn,
+            Some("VCC+")
+        ));
+        assert!(!extra_supply(
+            PinRole::Analog,
+            PinType::PowerIn,
+            Some("XTAL1")
+        ));
+        assert!(!extra_supply(PinRole::Input, PinType::PowerIn, Some("VPP")));
         assert!(!names_disagree(PinRole::Input, None));
     }
 

@@ -146,6 +146,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 | PartKind::ResistorNetwork
                 | PartKind::Capacitor
                 | PartKind::Led
+                | PartKind::Display
                 | PartKind::Diode
                 | PartKind::Connector
         ) {

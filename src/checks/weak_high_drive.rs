@@ -17,6 +17,8 @@
 //! The LED's forward voltage is the model's (`1.7 V` for a red LED unless configured: common
 //! practice). An LED whose anode and cathode can be told from its pin names (A, K) and that is
 //! reversed (cathode towards the output) never conducts from the high state and is skipped.
+//! A display segment is an LED to the display's common; a common cathode left open is taken
+//! as wired to ground, and the message says the display is dark until it is.
 
 /// The declaration `explain`, the SARIF rules and `docs/checks.md` are generated from (with
 /// the doc comment above).
@@ -198,9 +200,16 @@ fn diag(
             } else {
                 format!(" through {}", refs(&p.resistors))
             };
+            let open = match p.open_common {
+                Some(c) => format!(
+                    " (once the common of {} is wired: it is open today, so nothing lights yet)",
+                    cx.nl.components[c].reference
+                ),
+                None => String::new(),
+            };
             if p.ohms > 0.0 {
                 format!(
-                    "({} - {}) / {} = {} into {}{via}",
+                    "({} - {}) / {} = {} into {}{via}{open}",
                     format_volts(voh),
                     format_volts(p.vf),
                     format_ohms(p.ohms),
@@ -209,7 +218,7 @@ fn diag(
                 )
             } else {
                 format!(
-                    "{} with no series resistor (limited only by the output stage)",
+                    "{} with no series resistor (limited only by the output stage){open}",
                     refs(&p.leds)
                 )
             }

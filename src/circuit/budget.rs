@@ -5,7 +5,7 @@
 //! recomputes them.
 
 use super::{Circuit, PinRef};
-use crate::classify::family::Drive;
+use crate::classify::family::{Drive, HighOutput, Technology};
 use crate::classify::PinRole;
 use crate::values::format_ohms;
 
@@ -66,6 +66,272 @@ pub struct DriverBudget {
     /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
     pub high_level: Option<f64>,
     pub low_level: Option<f64>,
+    /// The output's operating point with the LEDs and resistors it lights or holds in its
+    /// high state (LEDs to ground, pull-downs) and in its low state (LEDs from a rail,
+    /// pull-ups); `None` when there are none in that state.
+    pub drive_high: Option<OperatingPoint>,
+    pub drive_low: Option<OperatingPoint>,
+}
+
+/// What a resistive load on an output is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LoadKind {
+    /// `NetModel::led_paths[i]` (high state) or `NetModel::sink_paths[i]` (low state).
+    Led(usize),
+    /// `NetModel::pulls[i]`.
+    Pull(usize),
+}
+
+/// One resistive load at the operating point.
+#[derive(Debug, Clone)]
+pub struct ResistiveLoad {
+    pub kind: LoadKind,
+    pub at: PinRef,
+    /// Current through it at the operating point, amperes (0 when it cannot conduct).
+    pub amps: f64,
+    /// Its LEDs' forward voltages added (0 for a resistor).
+    pub vf: f64,
+    pub ohms: f64,
+    /// The rail it ends on.
+    pub rail_volts: f64,
+    /// LEDs that need more than the output can reach: they never light.
+    pub dark: bool,
+    /// The path runs into a display whose common is open (`LedPath::open_common`).
+    pub open_common: Option<usize>,
+}
+
+/// An output's operating point with resistive loads: the output is taken as a source of its
+/// supply (or ground) behind the resistance its data-sheet row implies, (VCC - VOH) / IOH in
+/// the high state and VOL / IOL in the low state at the rated current. A guaranteed row is
+/// the weakest output the maker ships, so the current computed is the least a real part
+/// delivers and the level the furthest from the rail.
+#[derive(Debug, Clone)]
+pub struct OperatingPoint {
+    /// True for the high state.
+    pub high: bool,
+    /// The supply the output pulls to (its VCC in the high state, 0 V in the low state).
+    pub rail: f64,
+    /// The data-sheet row the resistance comes from: (volts, amperes magnitude).
+    pub row: (f64, f64),
+    /// The output's resistance, ohms.
+    pub r_out: f64,
+    /// The output pin's voltage at the operating point.
+    pub level: f64,
+    /// The current through the output pin, amperes (resistive loads and logic inputs).
+    pub total: f64,
+    /// The logic inputs' share of it.
+    pub logic: f64,
+    /// The rated current in this state (IOH or IOL magnitude).
+    pub rating: f64,
+    /// The furthest the output goes with no load (VOH or VOL at its lightest row): LEDs that
+    /// need more never light.
+    pub reach: f64,
+    pub loads: Vec<ResistiveLoad>,
+}
+
+/// The voltage at which `f` (decreasing in v) crosses zero in [lo, hi], by bisection.
+fn crossing(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> f64 {
+    let (mut a, mut b) = (lo, hi);
+    if f(a) <= 0.0 {
+        return a;
+    }
+    if f(b) >= 0.0 {
+        return b;
+    }
+    for _ in 0..60 {
+        let m = 0.5 * (a + b);
+        if f(m) > 0.0 {
+            a = m;
+        } else {
+            b = m;
+        }
+    }
+    0.5 * (a + b)
+}
+
+/// One load as the solver sees it: it conducts when the output is beyond `knee` (above it
+/// in the high state, below it in the low state) through `ohms`.
+struct Knee {
+    kind: LoadKind,
+    at: PinRef,
+    vf: f64,
+    ohms: f64,
+    rail_volts: f64,
+    open_common: Option<usize>,
+}
+
+/// Solves the output's operating point in one state. `knees` conduct towards their rail;
+/// `logic` is the logic inputs' current (IIH or IIL), drawn at any level.
+fn operating_point(
+    high: bool,
+    vcc: f64,
+    row: (f64, f64),
+    rating: f64,
+    logic: f64,
+    reach: f64,
+    knees: Vec<Knee>,
+) -> Option<OperatingPoint> {
+    if knees.is_empty() || row.1 <= 0.0 {
+        return None;
+    }
+    let (rail, r_out) = if high {
+        (vcc, (vcc - row.0) / row.1)
+    } else {
+        (0.0, row.0 / row.1)
+    };
+    if r_out <= 0.0 || !r_out.is_finite() {
+        return None;
+    }
+    // a path with no resistor is limited by the output alone: a milliohm keeps the sums finite
+    let conduct = |k: &Knee, v: f64| -> f64 {
+        let r = k.ohms.max(1e-3);
+        if high {
+            ((v - k.vf - k.rail_volts) / r).max(0.0)
+        } else {
+            ((k.rail_volts - k.vf - v) / r).max(0.0)
+        }
+    };
+    let level = if high {
+        crossing(0.0, vcc, |v| {
+            (vcc - v) / r_out - logic - knees.iter().map(|k| conduct(k, v)).sum::<f64>()
+        })
+    } else {
+        // the low state rises from 0 V: the sunk current grows, the loads' current falls
+        let top = knees.iter().map(|k| k.rail_volts).fold(vcc, f64::max);
+        crossing(0.0, top, |v| {
+            logic + knees.iter().map(|k| conduct(k, v)).sum::<f64>() - v / r_out
+        })
+    };
+    let loads: Vec<ResistiveLoad> = knees
+        .iter()
+        .map(|k| {
+            let dark = k.vf > 0.0
+                && if high {
+                    k.vf + k.rail_volts >= reach
+                } else {
+                    k.rail_volts - k.vf <= reach
+                };
+            ResistiveLoad {
+                kind: k.kind,
+                at: k.at,
+                amps: conduct(k, level),
+                vf: k.vf,
+                ohms: k.ohms,
+                rail_volts: k.rail_volts,
+                dark,
+                open_common: k.open_common,
+            }
+        })
+        .collect();
+    Some(OperatingPoint {
+        high,
+        rail,
+        row,
+        r_out,
+        level,
+        total: (rail - level).abs() / r_out,
+        logic,
+        rating,
+        reach,
+        loads,
+    })
+}
+
+/// The high and low operating points of driver `d` of net `nm` with its resistive loads.
+fn drive_points(
+    nm: &super::NetModel,
+    d: &super::Driver,
+    lv: &crate::classify::family::Levels,
+    iih: f64,
+    iil: f64,
+    stops_short: bool,
+) -> (Option<OperatingPoint>, Option<OperatingPoint>) {
+    let drives_high = matches!(
+        d.role,
+        PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional
+    );
+    let drives_low = drives_high || d.role == PinRole::OpenCollector;
+    let strongest = |rows: &[crate::classify::family::VI]| {
+        rows.iter()
+            .max_by(|a, b| a.a.abs().total_cmp(&b.a.abs()))
+            .map(|r| (r.v, r.a.abs()))
+    };
+    let high = if drives_high {
+        let mut knees: Vec<Knee> = nm
+            .led_paths
+            .iter()
+            .enumerate()
+            .map(|(i, p)| Knee {
+                kind: LoadKind::Led(i),
+                at: p.at,
+                vf: p.vf,
+                ohms: p.ohms,
+                rail_volts: p.rail_volts,
+                open_common: p.open_common,
+            })
+            .collect();
+        knees.extend(
+            nm.pulls
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| !p.up)
+                .map(|(i, p)| Knee {
+                    kind: LoadKind::Pull(i),
+                    at: p.at,
+                    vf: 0.0,
+                    ohms: p.ohms,
+                    rail_volts: p.rail_volts,
+                    open_common: None,
+                }),
+        );
+        // how far the high can go with no load: a CMOS output to its supply; a totem pole
+        // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
+        // (common practice; its guaranteed VOH is a minimum, not a ceiling)
+        let reach = if stops_short { lv.vcc - 1.4 } else { lv.vcc };
+        strongest(&lv.voh)
+            .and_then(|row| operating_point(true, lv.vcc, row, lv.ioh_max.abs(), iih, reach, knees))
+    } else {
+        None
+    };
+    let low = if drives_low {
+        let mut knees: Vec<Knee> = nm
+            .sink_paths
+            .iter()
+            .enumerate()
+            .map(|(i, p)| Knee {
+                kind: LoadKind::Led(i),
+                at: p.at,
+                vf: p.vf,
+                ohms: p.ohms,
+                rail_volts: p.rail_volts,
+                open_common: p.open_common,
+            })
+            .collect();
+        // an open collector's pull-up is the open-collector window's (`PullUpWindow`)
+        let own_pulls = d.role != PinRole::OpenCollector;
+        knees.extend(
+            nm.pulls
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| p.up && own_pulls)
+                .map(|(i, p)| Knee {
+                    kind: LoadKind::Pull(i),
+                    at: p.at,
+                    vf: 0.0,
+                    ohms: p.ohms,
+                    rail_volts: p.rail_volts,
+                    open_common: None,
+                }),
+        );
+        // the low can go down to ground: LEDs that need more than their rail never light
+        let reach = 0.0;
+        strongest(&lv.vol).and_then(|row| {
+            operating_point(false, lv.vcc, row, lv.iol_max.abs(), iil, reach, knees)
+        })
+    } else {
+        None
+    };
+    (high, low)
 }
 
 /// A load's margins against one driver.
@@ -134,6 +400,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 pull_up: None,
                 high_level: None,
                 low_level: None,
+                drive_high: None,
+                drive_low: None,
             });
             continue;
         };
@@ -335,6 +603,23 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         if let Some(pu) = &pull_up {
             high_level = Some(high_level.map_or(pu.level, |h| h.max(pu.level)));
         }
+        let iih = load_high
+            - if d.role == PinRole::OpenCollector {
+                lv.oc_leakage.abs()
+            } else {
+                0.0
+            };
+        let iil: f64 = nm
+            .loads
+            .iter()
+            .filter(|l| l.at != d.at)
+            .filter_map(|l| l.levels.as_ref())
+            .map(|l| l.iil_max.abs())
+            .sum();
+        let stops_short = cx
+            .family(d.at.comp)
+            .is_some_and(|f| f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl);
+        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
         out.drivers.push(DriverBudget {
             driver: di,
             low: Some(low),
@@ -342,6 +627,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             pull_up,
             high_level,
             low_level,
+            drive_high,
+            drive_low,
         });
     }
     // margins

@@ -7,6 +7,7 @@
 //! so.
 
 pub mod budget;
+pub mod display;
 pub mod enables;
 pub mod rails;
 
@@ -169,6 +170,10 @@ pub struct LedPath {
     /// The rail the path ends on, and its voltage (0 for ground).
     pub rail_net: usize,
     pub rail_volts: f64,
+    /// The path ends in a display whose common is open: it is the path the display makes
+    /// once its common is wired as its kind needs (a common cathode to ground), and no
+    /// current flows in it today.
+    pub open_common: Option<usize>,
 }
 
 /// Everything on one net.
@@ -280,6 +285,8 @@ pub struct Circuit<'n, 'a> {
     pub roles: Vec<Vec<PinRole>>,
     /// Rails the model inferred (by their pins, or their voltage), for the info finding.
     pub rail_notes: Vec<RailNote>,
+    /// LED displays: their commons, segments and whether the commons reach anything.
+    pub displays: Vec<display::Display>,
 }
 
 impl<'n, 'a> Circuit<'n, 'a> {
@@ -419,6 +426,7 @@ fn component_kind_passive(k: PartKind) -> bool {
             | PartKind::ResistorNetwork
             | PartKind::Capacitor
             | PartKind::Led
+            | PartKind::Display
             | PartKind::Diode
             | PartKind::Connector
             | PartKind::Other
@@ -587,6 +595,7 @@ pub fn build<'n, 'a>(
                 | PartKind::ResistorNetwork
                 | PartKind::Capacitor
                 | PartKind::Led
+                | PartKind::Display
                 | PartKind::Diode
                 | PartKind::Switch
                 | PartKind::Inductor => {
@@ -786,7 +795,9 @@ pub fn build<'n, 'a>(
     }
     settle_sources(&mut nets);
 
-    // LED paths: net -> (R | LED)* -> ground, at most four parts deep
+    // LED paths: net -> (R | LED)* -> ground, at most eight parts deep; a display's segment
+    // leads to its common
+    let displays = display::find(nl, cl);
     for net in 0..n_nets {
         if nets[net].drivers.is_empty() {
             continue;
@@ -795,10 +806,10 @@ pub fn build<'n, 'a>(
         let mut sinks = Vec::new();
         for &start in &nets[net].passives {
             let kind = cl.parts[start.comp].kind;
-            if !matches!(kind, PartKind::Resistor | PartKind::Led) {
+            if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
-            if let Some(path) = follow_to_ground(nl, cl, &rail, start, opts.led_vf) {
+            if let Some(path) = follow_to_ground(nl, cl, &rail, &displays, start, opts.led_vf) {
                 if path.leds.is_empty() {
                     continue;
                 }
@@ -824,6 +835,7 @@ pub fn build<'n, 'a>(
         nets,
         roles,
         rail_notes,
+        displays,
     }
 }
 
@@ -1196,11 +1208,14 @@ fn note_for(notes: &mut Vec<RailNote>, net: usize, volts: f64, why: Inferred) {
     }
 }
 
-/// Follows two-pin resistors and LEDs in series from `start` to a ground rail.
+/// Follows two-pin resistors and LEDs in series from `start` to a rail. A display entered at
+/// a segment leads to its common: the path ends on the rail the common is wired to, or, for
+/// a common cathode left open, on the ground it needs (`LedPath::open_common`).
 fn follow_to_ground(
     nl: &Netlist<'_>,
     cl: &Classified,
     rail: &[Option<Rail>],
+    displays: &[display::Display],
     start: PinRef,
     vf: f64,
 ) -> Option<LedPath> {
@@ -1208,12 +1223,72 @@ fn follow_to_ground(
     let mut resistors = Vec::new();
     let mut ohms = 0.0;
     let mut cur = start;
-    for _ in 0..4 {
+    let sum_vf = |leds: &[usize]| -> f64 {
+        leds.iter()
+            .map(|&l| {
+                displays
+                    .iter()
+                    .find(|d| d.comp == l)
+                    .map_or_else(|| led_vf_by_colour(nl.components[l].value_str()), |d| d.vf)
+                    .unwrap_or(vf)
+            })
+            .sum()
+    };
+    // a resistor and up to seven LEDs: a longer string is not left out of the budget
+    for _ in 0..8 {
         let c = &nl.components[cur.comp];
+        let kind = cl.parts[cur.comp].kind;
+        if kind == PartKind::Display {
+            let d = displays.iter().find(|d| d.comp == cur.comp)?;
+            if !d.is_segment(cur.pin) {
+                return None;
+            }
+            leds.push(cur.comp);
+            if d.commons_open {
+                // only a common cathode says where it belongs (ground) without the driver
+                if d.common_anode != Some(false) {
+                    return None;
+                }
+                let net = d
+                    .commons
+                    .iter()
+                    .find_map(|&pi| c.pins[pi].connection.net())?;
+                return Some(LedPath {
+                    at: start,
+                    vf: sum_vf(&leds),
+                    leds,
+                    resistors,
+                    ohms,
+                    rail_net: net,
+                    rail_volts: 0.0,
+                    open_common: Some(cur.comp),
+                });
+            }
+            let (net, v) = d.commons.iter().find_map(|&pi| {
+                let n = c.pins[pi].connection.net()?;
+                Some((n, rail[n]?.v()?))
+            })?;
+            // a common cathode on a positive rail, or a common anode on ground, never lights
+            // from this side
+            match d.common_anode {
+                Some(false) if v > 0.0 => return None,
+                Some(true) if v == 0.0 => return None,
+                _ => {}
+            }
+            return Some(LedPath {
+                at: start,
+                vf: sum_vf(&leds),
+                leds,
+                resistors,
+                ohms,
+                rail_net: net,
+                rail_volts: v,
+                open_common: None,
+            });
+        }
         if c.pins.len() != 2 {
             return None;
         }
-        let kind = cl.parts[cur.comp].kind;
         match kind {
             PartKind::Resistor => {
                 ohms += values::parse_resistance(c.value_str()).ok()?.ohms;
@@ -1225,18 +1300,15 @@ fn follow_to_ground(
         let other = 1 - cur.pin;
         let net = c.pins[other].connection.net()?;
         if let Some(r) = rail[net] {
-            let vf: f64 = leds
-                .iter()
-                .map(|&l| led_vf_by_colour(nl.components[l].value_str()).unwrap_or(vf))
-                .sum();
             return Some(LedPath {
                 at: start,
+                vf: sum_vf(&leds),
                 leds,
                 resistors,
                 ohms,
-                vf,
                 rail_net: net,
                 rail_volts: r.v()?,
+                open_common: None,
             });
         }
         // the next part: exactly one other passive on a two-node net
@@ -1266,6 +1338,9 @@ fn leds_point_to(nl: &Netlist<'_>, path: &LedPath, start: PinRef, from_rail: boo
     let _ = start;
     path.leds.iter().all(|&l| {
         let c = &nl.components[l];
+        if c.pins.len() != 2 {
+            return true; // a display: its common's side was judged on the way
+        }
         let name = |i: usize| c.pins[i].name.as_deref().map(|n| n.to_ascii_uppercase());
         // the pin nearer the net is the one whose net is not the rail side: follow the chain
         // order is not kept, so judge by which pin is named K and which net it is on

@@ -101,6 +101,8 @@ pub enum PartKind {
     ResistorNetwork,
     Capacitor,
     Led,
+    /// An LED display (seven-segment digits, bar graphs): LEDs sharing common pins.
+    Display,
     Diode,
     Connector,
     /// A switch, jumper or DIP shunt: joins its pins in some positions and not in others.
@@ -186,6 +188,101 @@ pub fn ref_prefix(reference: &str) -> &str {
     &reference[..end]
 }
 
+/// What says a part is an LED display.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum DisplayEvidence {
+    /// Its value, library part, description or footprint names an LED display (`HDSP-A153`,
+    /// `Display:CA56-12EWA`, `7SEGMENT`, "common cathode").
+    Named,
+    /// Only its pins say so: segment names (`a` to `g`) beside a common (`CA`, `CC`, `COM`).
+    Pins,
+}
+
+/// Value prefixes of LED displays: digits and bar graphs of the usual makers' series.
+const DISPLAY_PREFIXES: &[&str] = &[
+    "hdsp-", "hdsp_", "lts-", "ltd-", "ltc-", "lta-", "sa52-", "sc52-", "sa56-", "sc56-", "sa39-",
+    "sc39-", "sa08-", "sc08-", "sa10-", "sc10-", "ca56-", "cc56-", "dc56-", "dc10-", "tdsr",
+    "tdsg", "tdsy", "tdcr", "tdcg", "hdsm-",
+];
+
+/// Tells an LED display from its value, library part, description, footprint or pins.
+pub fn display_evidence(c: &Component<'_>) -> Option<DisplayEvidence> {
+    if c.pins.len() < 3 {
+        return None;
+    }
+    let low = |t: Option<&str>| t.unwrap_or("").to_ascii_lowercase();
+    let (lib, part, desc) = c.libsource.as_ref().map_or_else(
+        || (String::new(), String::new(), String::new()),
+        |l| {
+            (
+                low(l.lib.as_ref().map(|x| x.as_str())),
+                low(l.part.as_ref().map(|x| x.as_str())),
+                low(l.description.as_ref().map(|x| x.as_str())),
+            )
+        },
+    );
+    let value = c.value_str().to_ascii_lowercase();
+    let fp = c
+        .footprint
+        .as_ref()
+        .map_or(String::new(), |f| f.as_str().to_ascii_lowercase());
+    let seg = |s: &str| {
+        let s: String = s.chars().filter(|c| c.is_ascii_alphanumeric()).collect();
+        s.contains("7seg") || s.contains("sevenseg") || s.contains("14seg") || s.contains("16seg")
+    };
+    let common = |s: &str| s.contains("common anode") || s.contains("common cathode");
+    // a decoder or driver "for 7-segment displays" is logic, not a display
+    let drives_one = ["decoder", "driver", "latch", "counter", "controller"]
+        .iter()
+        .any(|w| desc.contains(w) || part.contains(w));
+    if drives_one || pattern::match_value(c.value_str()).is_some() {
+        return None;
+    }
+    let named = [&value, &part]
+        .iter()
+        .any(|s| DISPLAY_PREFIXES.iter().any(|p| s.starts_with(p)) || seg(s))
+        || seg(&desc)
+        || common(&desc)
+        || common(&part)
+        || fp.starts_with("display_7segment")
+        || (lib.starts_with("display") && (seg(&part) || common(&desc)));
+    if named {
+        return Some(DisplayEvidence::Named);
+    }
+    // the pins alone: at least seven of the segments a..g and a common (a display has a few
+    // dozen pins at most)
+    if c.pins.len() > 64 {
+        return None;
+    }
+    let names: Vec<String> = c
+        .pins
+        .iter()
+        .filter_map(|p| p.name.as_deref().map(|n| n.to_ascii_uppercase()))
+        .collect();
+    let segments = ["A", "B", "C", "D", "E", "F", "G"]
+        .iter()
+        .filter(|s| names.iter().any(|n| n == *s))
+        .count();
+    let commons = names.iter().any(|n| display_common_name(n).is_some());
+    (segments == 7 && commons).then_some(DisplayEvidence::Pins)
+}
+
+/// A display's common pin by name: `Some(true)` for a common anode (`CA`, `CA1`, `+`),
+/// `Some(false)` for a common cathode (`CC`, `K`, `CK`), `None` inside for a common whose
+/// name does not say which (`COM`, `COMMON`). Returns `None` for a segment or other pin.
+pub fn display_common_name(name: &str) -> Option<Option<bool>> {
+    let n = name.trim().to_ascii_uppercase();
+    let base = n.trim_end_matches(|c: char| c.is_ascii_digit());
+    match base {
+        "CA" | "COMA" | "ANODE" | "COMMONANODE" | "COM_A" => Some(Some(true)),
+        "CC" | "CK" | "COMK" | "COMC" | "CATHODE" | "COMMONCATHODE" | "COM_K" | "COM_C" => {
+            Some(Some(false))
+        }
+        "COM" | "COMMON" | "DIG" | "DIGIT" => Some(None),
+        _ => None,
+    }
+}
+
 /// What the symbol, its library and its footprint say the part is, before the reference
 /// does: real boards name resistors `RG4`, `RIO2`, `RCPU1`, connectors `BUS1` or `U7`.
 fn kind_by_symbol(c: &Component<'_>) -> Option<PartKind> {
@@ -249,6 +346,9 @@ fn kind_by_symbol(c: &Component<'_>) -> Option<PartKind> {
         || fp_lib.starts_with("inductor")
     {
         return Some(PartKind::Inductor);
+    }
+    if display_evidence(c).is_some() {
+        return Some(PartKind::Display);
     }
     let connector_part = part.starts_with("conn")
         || lib.starts_with("connector")
@@ -446,7 +546,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
     // many parts share a value: each distinct value meets the entries' globs and the value
     // patterns once
-    let mut entry_of: rustc_hash::FxHashMap<&str, Option<usize>> = Default::default();
+    let mut entry_of: rustc_hash::FxHashMap<&str, Vec<usize>> = Default::default();
     let mut pattern_of: rustc_hash::FxHashMap<&str, Option<ValueMatch>> = Default::default();
     let mut near_of: rustc_hash::FxHashMap<&str, Vec<Suggestion>> = Default::default();
     let mut match_value = |value| {
@@ -497,13 +597,14 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             value_match = m;
         } else if let Some((i, e)) = (ic || (c.pins.len() > 2 && !socket_like(c, kind)))
             .then(|| {
-                let i = *entry_of
+                entry_of
                     .entry(value)
-                    .or_insert_with(|| rules.parts.find(value).map(|(i, _)| i));
-                i.map(|i| (i, &rules.parts.entries[i]))
+                    .or_insert_with(|| rules.parts.matching(value).map(|(i, _)| i).collect())
+                    .iter()
+                    .map(|&i| (i, &rules.parts.entries[i]))
+                    .find(|(_, e)| fits_package(c, e, rules))
             })
             .flatten()
-            .filter(|(_, e)| fits_package(c, e, rules))
         {
             used_entries[i] = true;
             entry = Some(i);
@@ -514,6 +615,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             };
             match e.kind {
                 EntryKind::NotLogic => kind = PartKind::NotLogic,
+                EntryKind::Display => kind = PartKind::Display,
                 EntryKind::Logic => {
                     kind = PartKind::Logic;
                     family = e
@@ -536,6 +638,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     | PartKind::Capacitor
                     | PartKind::Connector
                     | PartKind::Led
+                    | PartKind::Display
                     | PartKind::Diode
                     | PartKind::Switch
                     | PartKind::Inductor
@@ -628,6 +731,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                             | PartKind::ResistorNetwork
                             | PartKind::Capacitor
                             | PartKind::Led
+                            | PartKind::Display
                             | PartKind::Diode
                             | PartKind::Connector
                             | PartKind::Switch
@@ -771,10 +875,41 @@ fn table_near_misses(value: &str, c: &Component<'_>, rules: &Rules) -> Vec<patte
 
 /// Generic words a schematic uses to draw a logic function without naming a part.
 const FUNCTION_WORDS: &[&str] = &[
-    "AND", "NAND", "OR", "NOR", "XOR", "XNOR", "NOT", "INV", "INVERTER", "BUF", "BUFFER", "DFF",
-    "JKFF", "TFF", "SRFF", "FF", "SR", "RS", "LATCH", "MUX", "DEMUX", "CNT", "COUNTER", "DEC",
-    "DECODE", "DECODER", "ENCODER", "REG", "REGISTER", "SHIFT", "SHIFTREG", "ADDER", "GATE",
-    "CMP", "COMPARATOR",
+    "AND",
+    "NAND",
+    "OR",
+    "NOR",
+    "XOR",
+    "XNOR",
+    "NOT",
+    "INV",
+    "INVERTER",
+    "BUF",
+    "BUFFER",
+    "DFF",
+    "JKFF",
+    "TFF",
+    "SRFF",
+    "FF",
+    "SR",
+    "RS",
+    "LATCH",
+    "MUX",
+    "DEMUX",
+    "CNT",
+    "COUNTER",
+    "DEC",
+    "DECODE",
+    "DECODER",
+    "ENCODER",
+    "REG",
+    "REGISTER",
+    "SHIFT",
+    "SHIFTREG",
+    "ADDER",
+    "GATE",
+    "CMP",
+    "COMPARATOR",
 ];
 
 /// Whether an unmatched IC-like part is drawn as a function rather than named as a part: its
@@ -828,8 +963,21 @@ mod tests {
     fn values_that_draw_a_function() {
         // generic function words, with input counts, widths, variants and suffixes
         for v in [
-            "AND", "4AND", "NOR3", "OR6", "XOR", "DFF", "DFFN", "SR", "MUX", "MUX2x10", "CNT",
-            "decode_3_bit", "NOT_OC", "BUF", "CMPD",
+            "AND",
+            "4AND",
+            "NOR3",
+            "OR6",
+            "XOR",
+            "DFF",
+            "DFFN",
+            "SR",
+            "MUX",
+            "MUX2x10",
+            "CNT",
+            "decode_3_bit",
+            "NOT_OC",
+            "BUF",
+            "CMPD",
         ] {
             assert!(is_function_symbol(v, true), "{v} with a footprint");
             assert!(is_function_symbol(v, false), "{v} without a footprint");
@@ -847,13 +995,49 @@ mod tests {
         // empty values, values with spaces or punctuation, and words that only start like a
         // function word
         for v in [
-            "74LSOO", "SN74LSOO", "NE555", "MK4116x8", "Z80", "V9938/V9958", "Flash ROM", "~", "",
-            "ORANGE", "ANDROID", "Arduino_Nano_v3.x",
+            "74LSOO",
+            "SN74LSOO",
+            "NE555",
+            "MK4116x8",
+            "Z80",
+            "V9938/V9958",
+            "Flash ROM",
+            "~",
+            "",
+            "ORANGE",
+            "ANDROID",
+            "Arduino_Nano_v3.x",
         ] {
             assert!(!is_function_symbol(v, true), "{v} with a footprint");
         }
-        for v in ["74LSOO", "Z80", "8T26", "Flash ROM", "~", "MOS_7360_TED", "Relay_5V"] {
+        for v in [
+            "74LSOO",
+            "Z80",
+            "8T26",
+            "Flash ROM",
+            "~",
+            "MOS_7360_TED",
+            "Relay_5V",
+        ] {
             assert!(!is_function_symbol(v, false), "{v} without a footprint");
+        }
+    }
+}
+
+#[cfg(test)]
+mod display_tests {
+    use super::display_common_name;
+
+    #[test]
+    fn common_pins_by_name() {
+        // KiCad's display symbols name a common cathode CC, a common anode CA (common practice)
+        assert_eq!(display_common_name("CC"), Some(Some(false)));
+        assert_eq!(display_common_name("CA2"), Some(Some(true)));
+        assert_eq!(display_common_name("com"), Some(None));
+        assert_eq!(display_common_name("DIG3"), Some(None));
+        // segments and the decimal point are not commons
+        for seg in ["a", "B", "g", "DP", "C", "K1"] {
+            assert_eq!(display_common_name(seg), None, "{seg}");
         }
     }
 }

@@ -241,6 +241,12 @@ pub struct Family {
     pub internal_input_pullup_ohm: Option<f64>,
     /// How far the output high reaches beyond the published rows.
     pub high_output: HighOutput,
+    /// Absolute maximum continuous current through one output pin, amperes (the data
+    /// sheet's IO), when the family publishes one.
+    pub output_abs_max_a: Option<f64>,
+    /// Absolute maximum dissipation of one output transistor, watts (4000-series sheets
+    /// rate this instead of a current).
+    pub output_transistor_abs_max_w: Option<f64>,
     pub source: String,
     pub aliases: Vec<String>,
     /// Published points, sorted by supply; never empty for a family from a [`FamilyTable`].
@@ -571,6 +577,8 @@ struct RawFamily {
     input_max_v: Option<Spanned<f64>>,
     input_clamp_above_supply_v: Option<Spanned<f64>>,
     internal_input_pullup_ohm: Option<Spanned<f64>>,
+    output_abs_max_ma: Option<Spanned<f64>>,
+    output_transistor_abs_max_mw: Option<Spanned<f64>>,
     #[serde(default)]
     high_output: Option<Spanned<String>>,
     source: String,
@@ -714,6 +722,25 @@ fn convert_family(
         }
         v
     });
+    let positive = |errors: &mut Vec<RuleError>, x: &Spanned<f64>, key: &str, unit: &str| {
+        let v = finite(errors, x, key);
+        if v <= 0.0 {
+            err(
+                errors,
+                x.span(),
+                format!("family {id}: `{key}` must be positive, found {v} {unit}"),
+            );
+        }
+        v
+    };
+    let output_abs_max_a = rf
+        .output_abs_max_ma
+        .as_ref()
+        .map(|x| positive(errors, x, "output_abs_max_ma", "mA") / 1000.0);
+    let output_transistor_abs_max_w = rf
+        .output_transistor_abs_max_mw
+        .as_ref()
+        .map(|x| positive(errors, x, "output_transistor_abs_max_mw", "mW") / 1000.0);
     let high_output = match rf.high_output.as_ref().map(|h| h.get_ref().as_str()) {
         None | Some("rows") => HighOutput::Rows,
         Some("ttl") => HighOutput::Ttl,
@@ -796,6 +823,8 @@ fn convert_family(
         clamp_above_supply_v,
         internal_input_pullup_ohm,
         high_output,
+        output_abs_max_a,
+        output_transistor_abs_max_w,
         source: rf.source,
         aliases,
         points,

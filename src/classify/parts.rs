@@ -14,6 +14,10 @@
 //! [[part]]
 //! values = ["LM358*", "NE555*"]
 //! kind = "not-logic"              # known, and outside netmargin's checks
+//!
+//! [[part]]
+//! values = ["HDSP-*"]
+//! kind = "display"                # an LED display: its segments are LED loads
 //! ```
 
 use std::ops::Range;
@@ -30,6 +34,8 @@ pub const BUILTIN_TEXT: &str = include_str!("../../rules/parts.toml");
 pub enum EntryKind {
     Logic,
     NotLogic,
+    /// An LED display: known, not logic; its segments are LEDs to its commons.
+    Display,
 }
 
 /// One explicit entry.
@@ -101,11 +107,12 @@ impl PartTable {
             let kind = match r.kind.as_ref().map(|k| k.get_ref().as_str()) {
                 None | Some("logic") => EntryKind::Logic,
                 Some("not-logic") => EntryKind::NotLogic,
+                Some("display") => EntryKind::Display,
                 Some(other) => {
                     let k = r.kind.as_ref().expect("some");
                     errors.push(RuleError::new(
                         Some(k.span()),
-                        format!("unknown kind `{other}`: expected \"logic\" or \"not-logic\""),
+                        format!("unknown kind `{other}`: expected \"logic\", \"not-logic\" or \"display\""),
                     ));
                     continue;
                 }
@@ -168,6 +175,19 @@ impl PartTable {
             .iter()
             .enumerate()
             .find(|(_, e)| e.matches(value))
+    }
+
+    /// Every entry whose globs take `value`, in order: the first that also fits the symbol
+    /// wins, so one value can name a part in two packages (a UART in the DIP-40 and the
+    /// PLCC-44) with the smaller package first.
+    pub fn matching<'a>(
+        &'a self,
+        value: &'a str,
+    ) -> impl Iterator<Item = (usize, &'a PartEntry)> + 'a {
+        self.entries
+            .iter()
+            .enumerate()
+            .filter(move |(_, e)| e.matches(value))
     }
 }
 

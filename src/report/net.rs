@@ -3,7 +3,7 @@
 
 use std::io::{self, Write};
 
-use crate::circuit::budget::{NetBudget, StateBudget};
+use crate::circuit::budget::{LoadKind, NetBudget, StateBudget};
 use crate::circuit::Circuit;
 use crate::text::sanitize;
 use crate::values::{format_amps, format_ohms, format_volts};
@@ -179,6 +179,53 @@ pub fn write_net(
                 format_amps(pu.current),
                 format_volts(pu.level)
             )?;
+        }
+        for op in [&db.drive_high, &db.drive_low].into_iter().flatten() {
+            writeln!(
+                out,
+                "    {} state with its LEDs and resistors: {} behind {} (from {} at {}) stands at {} and {} {}",
+                if op.high { "high" } else { "low" },
+                format_volts(op.rail),
+                format_ohms(op.r_out),
+                if op.high { "VOH" } else { "VOL" },
+                format_amps(op.row.1),
+                format_volts(op.level),
+                if op.high { "sources" } else { "sinks" },
+                format_amps(op.total)
+            )?;
+            for l in &op.loads {
+                let parts: Vec<usize> = match l.kind {
+                    LoadKind::Led(i) => {
+                        let p = if op.high {
+                            &nm.led_paths[i]
+                        } else {
+                            &nm.sink_paths[i]
+                        };
+                        p.resistors.iter().chain(&p.leds).copied().collect()
+                    }
+                    LoadKind::Pull(i) => vec![nm.pulls[i].resistor],
+                };
+                let names: Vec<String> = parts
+                    .iter()
+                    .map(|&c| sanitize(cx.nl.components[c].reference.as_str()).to_string())
+                    .collect();
+                writeln!(
+                    out,
+                    "      {}: {}{}{}",
+                    names.join(", "),
+                    format_amps(l.amps),
+                    if l.dark {
+                        " (its LEDs need more than the output reaches: dark)"
+                    } else {
+                        ""
+                    },
+                    if l.open_common.is_some() {
+                        " (once the display's common is wired)"
+                    } else {
+                        ""
+                    }
+                )?;
+            }
         }
         for m in b.margins.iter().filter(|m| m.driver == db.driver) {
             let l = &nm.loads[m.load];

@@ -1,0 +1,513 @@
+//! The memories and peripherals around the logic added for real boards: their pinouts against
+//! the documents named beside each expected value (written out here, not read back from the
+//! table), the value forms that name them, and the look-alikes that must not be taken for them.
+
+use netmargin::classify::classifier::{classify, PartKind, Rules};
+use netmargin::classify::function::{FunctionTable, Series};
+use netmargin::classify::PinRole::{self, *};
+
+fn table() -> FunctionTable {
+    FunctionTable::builtin()
+}
+
+/// Checks (pin, name, role) of a series-"other" function and its package size.
+fn expect_pins(id: &str, package: u32, expected: &[(u32, &str, PinRole)]) {
+    let t = table();
+    let f = t
+        .get(Series::Other, id)
+        .unwrap_or_else(|| panic!("function {id} missing"));
+    assert_eq!(f.package_pins, package, "{id}: package pins");
+    for &(pin, name, role) in expected {
+        let p = f
+            .pin(&pin.to_string())
+            .unwrap_or_else(|| panic!("{id}: pin {pin} missing"));
+        assert_eq!(p.name, name, "{id}: pin {pin} name");
+        assert_eq!(p.role, role, "{id}: pin {pin} ({name}) role");
+    }
+}
+
+/// Classifies one component per (reference, value, highest pin number) and returns (kind,
+/// family, function) for each.
+fn classify_values(items: &[(&str, &str, u32)]) -> Vec<(PartKind, Option<String>, Option<String>)> {
+    let mut comps = String::new();
+    let mut libparts = String::new();
+    for (i, (r, v, n)) in items.iter().enumerate() {
+        comps.push_str(&format!(
+            "    (comp (ref \"{r}\") (value \"{v}\") (libsource (lib \"x\") (part \"P{i}\")))\n"
+        ));
+        let pins: String = (1..=*n)
+            .map(|p| format!("(pin (num \"{p}\") (name \"P{p}\") (type \"passive\"))"))
+            .collect();
+        libparts.push_str(&format!(
+            "    (libpart (lib \"x\") (part \"P{i}\") (pins {pins}))\n"
+        ));
+    }
+    let text = format!(
+        "(export (version \"E\")\n  (components\n{comps})\n  (libparts\n{libparts})\n  (nets))\n"
+    );
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = classify(&nl, &Rules::builtin());
+    cl.parts
+        .iter()
+        .map(|p| {
+            (
+                p.kind,
+                p.family.clone(),
+                p.function.as_ref().map(|(_, id)| id.clone()),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn uart_dip40_matches_the_ti_terminal_table() {
+    // TI SLLS177I (TL16C550C), terminal functions, N package (pins read in the table)
+    expect_pins(
+        "16550",
+        40,
+        &[
+            (28, "A0", Input),
+            (27, "A1", Input),
+            (26, "A2", Input),
+            (25, "~ADS", Input),
+            (15, "~BAUDOUT", PushPull),
+            (12, "CS0", Input),
+            (13, "CS1", Input),
+            (14, "~CS2", Input),
+            (36, "~CTS", Input),
+        ],
+    );
+    // from memory (National PC16550D pin description): data bus, supplies, interrupt, reset
+    expect_pins(
+        "16550",
+        40,
+        &[
+            (1, "D0", Bidirectional),
+            (8, "D7", Bidirectional),
+            (20, "VSS", Ground),
+            (40, "VCC", Supply),
+            (30, "INTR", PushPull),
+            (35, "MR", Input),
+            (11, "SOUT", PushPull),
+            (10, "SIN", Input),
+        ],
+    );
+}
+
+#[test]
+fn uart_plcc44_matches_the_ti_terminal_table() {
+    // TI SLLS177I (TL16C550C), terminal functions, FN package (pins read in the table)
+    expect_pins(
+        "16550-plcc44",
+        44,
+        &[
+            (31, "A0", Input),
+            (30, "A1", Input),
+            (29, "A2", Input),
+            (28, "~ADS", Input),
+            (17, "~BAUDOUT", PushPull),
+            (14, "CS0", Input),
+            (15, "CS1", Input),
+            (16, "~CS2", Input),
+            (40, "~CTS", Input),
+        ],
+    );
+    // from memory: the four corner pins of the PLCC are not connected; power at 22 and 44
+    expect_pins(
+        "16550-plcc44",
+        44,
+        &[
+            (1, "NC", NoConnect),
+            (12, "NC", NoConnect),
+            (23, "NC", NoConnect),
+            (34, "NC", NoConnect),
+            (22, "VSS", Ground),
+            (44, "VCC", Supply),
+            (33, "INTR", PushPull),
+        ],
+    );
+}
+
+#[test]
+fn clock_generator_8224_matches_the_published_pin_list() {
+    // Intel 8224 pins 1-13 as listed in the 8080 support-chip notes; the 12 V clock drivers and
+    // the +12 V supply are analog (outside the TTL figures), per the Intel 8080 manual's 8224
+    // functional description ("two high level drivers")
+    expect_pins(
+        "8224",
+        16,
+        &[
+            (1, "RESET", PushPull),
+            (2, "~RESIN", SchmittInput),
+            (3, "RDYIN", Input),
+            (4, "READY", PushPull),
+            (5, "SYNC", Input),
+            (6, "PHI2(TTL)", PushPull),
+            (7, "~STSTB", PushPull),
+            (8, "GND", Ground),
+            (9, "VDD", Analog),
+            (10, "PHI2", Analog),
+            (11, "PHI1", Analog),
+            (12, "OSC", PushPull),
+            (13, "TANK", Analog),
+            (16, "VCC", Supply), // from memory
+        ],
+    );
+}
+
+#[test]
+fn crt_controller_8275_pinout() {
+    // from memory: Intel 8275 pin configuration (the light pen input and the supplies, the
+    // data bus and the interrupt request)
+    expect_pins(
+        "8275",
+        40,
+        &[
+            (11, "LPEN", Input),
+            (12, "DB0", Bidirectional),
+            (19, "DB7", Bidirectional),
+            (20, "GND", Ground),
+            (40, "VCC", Supply),
+            (31, "IRQ", PushPull),
+            (5, "DRQ", PushPull),
+            (6, "~DACK", Input),
+            (30, "CCLK", Input),
+        ],
+    );
+}
+
+#[test]
+fn static_ram_5101_and_line_driver_75150_pinouts() {
+    // NTE65101 (a 5101 replacement): 22-lead DIP, VSS on pin 8 (read); the rest from memory
+    expect_pins(
+        "5101",
+        22,
+        &[
+            (8, "GND", Ground),
+            (22, "VCC", Supply),
+            (4, "A0", Input),
+            (9, "DI1", Input),
+            (10, "DO1", ThreeState),
+            (16, "DO4", ThreeState),
+            (19, "~CE1", Input),
+            (20, "R/~W", Input),
+        ],
+    );
+    // from memory: TI SN75150: TTL inputs, outputs at RS-232 levels, no 5 V supply pin
+    expect_pins(
+        "75150",
+        8,
+        &[
+            (1, "S", Input),
+            (2, "1A", Input),
+            (3, "2A", Input),
+            (4, "GND", Ground),
+            (5, "VCC-", Analog),
+            (7, "1Y", Analog),
+            (8, "VCC+", Analog),
+        ],
+    );
+}
+
+#[test]
+fn value_forms_name_their_parts() {
+    // (value, highest pin, family, function): makers' markings and library symbol names
+    let cases: &[(&str, u32, &str, &str)] = &[
+        ("8275/КР580ВГ75", 40, "NMOS", "8275"),
+        ("P8275", 40, "NMOS", "8275"),
+        ("8224/КР580ГФ24", 16, "74LS", "8224"),
+        ("D8224", 16, "74LS", "8224"),
+        ("SN75150P/К170АП2", 8, "74", "75150"),
+        ("SN75150N", 8, "74", "75150"),
+        ("16C550", 40, "CMOS-TTL", "16550"),
+        ("16C550", 44, "CMOS-TTL", "16550-plcc44"),
+        ("TL16C550CN", 40, "CMOS-TTL", "16550"),
+        ("TL16C550CFN", 44, "CMOS-TTL", "16550-plcc44"),
+        ("INS8250N", 40, "NMOS", "16550"),
+        ("NS16450N", 40, "NMOS", "16550"),
+        ("NS16550AFN", 40, "NMOS", "16550"),
+        ("RAM_5501", 22, "CMOS-TTL", "5101"),
+        ("TC5501P", 22, "CMOS-TTL", "5101"),
+        ("RAM_2016", 24, "CMOS-TTL", "6116"),
+        ("TMM2016AP-10", 24, "CMOS-TTL", "6116"),
+        ("ROM_2764", 28, "NMOS-EPROM", "2764"),
+        ("2764", 28, "NMOS-EPROM", "2764"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, fam, func), (kind, f, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v} ({n} pins)");
+        assert_eq!(f.as_deref(), Some(*fam), "{v} ({n} pins): family");
+        assert_eq!(fu.as_deref(), Some(*func), "{v} ({n} pins): function");
+    }
+}
+
+#[test]
+fn look_alikes_are_not_taken_for_these_parts() {
+    // (value, highest pin, the function it must be, or None when it must stay unclassified)
+    let cases: &[(&str, u32, Option<&str>)] = &[
+        // 74-series shift register, not the 4164 DRAM
+        ("74LS164", 14, Some("164")),
+        ("DM74164N", 14, Some("164")),
+        ("54164", 14, Some("164")),
+        // the quad bilateral switch, not a 2016 static RAM
+        ("CD4016BE", 14, Some("4016")),
+        // a 74-series latch, not the SN75150
+        ("74LS75", 16, Some("75")),
+        // a symbol of eight 4116 DRAMs with its own pin numbering (1 to 26) is no 16-pin 4116
+        ("MK4116x8", 26, None),
+        // a 16550 in a 48-pin package the table does not hold
+        ("16C550", 48, None),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, want), (_, _, fu)) in cases.iter().zip(&got) {
+        assert_eq!(fu.as_deref(), *want, "{v} ({n} pins)");
+    }
+}
+
+#[test]
+fn word_wide_eproms_match_their_data_sheets() {
+    // ST M27C322 data sheet (April 2000), Figure 2A, DIP connections (read)
+    let left = [
+        "A18", "A17", "A7", "A6", "A5", "A4", "A3", "A2", "A1", "A0", "~E", "VSS", "~GVPP", "Q0",
+        "Q8", "Q1", "Q9", "Q2", "Q10", "Q3", "Q11",
+    ];
+    let right = [
+        "A19", "A8", "A9", "A10", "A11", "A12", "A13", "A14", "A15", "A16", "A20", "VSS", "Q15",
+        "Q7", "Q14", "Q6", "Q13", "Q5", "Q12", "Q4", "VCC",
+    ];
+    let role = |n: &str| match n {
+        "VSS" => Ground,
+        "VCC" => Supply,
+        q if q.starts_with('Q') => ThreeState,
+        _ => Input,
+    };
+    let mut want: Vec<(u32, &str, PinRole)> = Vec::new();
+    for (i, n) in left.iter().enumerate() {
+        want.push((i as u32 + 1, n, role(n)));
+    }
+    for (i, n) in right.iter().enumerate() {
+        want.push((42 - i as u32, n, role(n)));
+    }
+    expect_pins("m27c322", 42, &want);
+    // from memory: JEDEC 40-pin word-wide EPROM (Atmel AT27C1024: 40-lead PDIP read in its
+    // data sheet's features; the pin numbers are not)
+    expect_pins(
+        "27c1024",
+        40,
+        &[
+            (1, "VPP", Input),
+            (2, "~CE", Input),
+            (3, "O15", ThreeState),
+            (11, "GND", Ground),
+            (19, "O0", ThreeState),
+            (20, "~OE", Input),
+            (21, "A0", Input),
+            (30, "GND", Ground),
+            (37, "A15", Input),
+            (39, "~PGM", Input),
+            (40, "VCC", Supply),
+        ],
+    );
+}
+
+#[test]
+fn z80_peripherals_and_the_6845_pinouts() {
+    // ~INT of the CTC is an open-drain output: Zilog CTC pin description ("output, open drain,
+    // active Low"), read as quoted in a Memotech MTX service manual; pin numbers from memory
+    expect_pins(
+        "z80-ctc",
+        28,
+        &[
+            (12, "~INT", OpenCollector),
+            (5, "GND", Ground),
+            (24, "VCC", Supply),
+            (7, "ZC/TO0", PushPull),
+            (23, "CLK/TRG0", Input),
+            (25, "D0", Bidirectional),
+        ],
+    );
+    // from memory: Zilog Z8420 PIO; the port pins' direction is the program's
+    expect_pins(
+        "z80-pio",
+        40,
+        &[
+            (23, "~INT", OpenCollector),
+            (11, "GND", Ground),
+            (26, "VCC", Supply),
+            (15, "PA0", Unknown),
+            (27, "PB0", Unknown),
+            (19, "D0", Bidirectional),
+        ],
+    );
+    // from memory: Motorola MC6845
+    expect_pins(
+        "6845",
+        40,
+        &[
+            (1, "VSS", Ground),
+            (20, "VCC", Supply),
+            (3, "LPSTB", Input),
+            (4, "MA0", PushPull),
+            (33, "D0", Bidirectional),
+            (39, "HSYNC", PushPull),
+            (40, "VSYNC", PushPull),
+        ],
+    );
+}
+
+#[test]
+fn more_value_forms_name_their_parts() {
+    let cases: &[(&str, u32, &str, &str)] = &[
+        ("M27C322-100F1", 42, "CMOS-EPROM", "m27c322"),
+        ("AT27C1024-70PU", 40, "CMOS-EPROM", "27c1024"),
+        ("Z84C3008PEC", 28, "CMOS-TTL", "z80-ctc"),
+        ("Z8430APS", 28, "NMOS", "z80-ctc"),
+        ("Z80A-CTC", 28, "NMOS", "z80-ctc"),
+        ("Z80PIO", 40, "NMOS", "z80-pio"),
+        ("Z84C2008PEC", 40, "CMOS-TTL", "z80-pio"),
+        ("MC6845P", 40, "NMOS", "6845"),
+        ("HD46505SP", 40, "NMOS", "6845"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, fam, func), (kind, f, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v} ({n} pins)");
+        assert_eq!(f.as_deref(), Some(*fam), "{v} ({n} pins): family");
+        assert_eq!(fu.as_deref(), Some(*func), "{v} ({n} pins): function");
+    }
+    // the 64-pin MC68450 DMA controller is no 6845
+    let got = classify_values(&[("U1", "MC68450", 64)]);
+    assert_ne!(got[0].2.as_deref(), Some("6845"));
+}
+
+#[test]
+fn line_driver_1488_inputs_are_ttl_and_its_outputs_are_not_logic() {
+    // from memory: MC1488 / SN75188 pin assignment; the input currents that make its inputs TTL
+    // loads are TI SLLS094B's (IIL -1.6 mA max at VI 0)
+    expect_pins(
+        "1488",
+        14,
+        &[
+            (1, "VCC-", Analog),
+            (2, "1A", Input),
+            (3, "1Y", Analog),
+            (7, "GND", Ground),
+            (12, "4A", Input),
+            (13, "4B", Input),
+            (14, "VCC+", Analog),
+        ],
+    );
+    let got = classify_values(&[
+        ("U1", "MC1488P", 14),
+        ("U2", "SN75188N", 14),
+        ("U3", "MC1489P", 14),
+    ]);
+    assert_eq!(got[0].2.as_deref(), Some("1488"));
+    assert_eq!(got[0].1.as_deref(), Some("74"));
+    assert_eq!(got[1].2.as_deref(), Some("1488"));
+    // the receiver stays a known part outside the logic checks
+    assert_eq!(got[2].0, PartKind::NotLogic);
+}
+
+/// A small netlist: an RS-232 driver on +-12 V with one input open and one driven, and a CRT
+/// controller with its light-pen input open.
+fn open_inputs_netlist() -> String {
+    let comp = |r: &str, v: &str| {
+        format!("    (comp (ref {r}) (value \"{v}\") (libsource (lib x) (part {r})))\n")
+    };
+    let node = |r: &str, p: u32| format!("(node (ref {r}) (pin {p}))");
+    let net = |code: u32, name: &str, nodes: &[(&str, u32)]| {
+        let n: String = nodes.iter().map(|(r, p)| node(r, *p)).collect();
+        format!("    (net (code {code}) (name \"{name}\") {n})\n")
+    };
+    let mut s = String::from("(export (version D)\n  (components\n");
+    s += &comp("U1", "SN75150P");
+    s += &comp("U2", "74LS04");
+    s += &comp("U3", "P8275");
+    s += "  )\n  (nets\n";
+    s += &net(1, "+5V", &[("U2", 14), ("U3", 40), ("U1", 1)]);
+    s += &net(2, "GND", &[("U1", 4), ("U2", 7), ("U3", 20), ("U2", 1)]);
+    s += &net(3, "+12V", &[("U1", 8)]);
+    s += &net(4, "-12V", &[("U1", 5)]);
+    s += &net(5, "Net-(U1-Pad2)", &[("U1", 2)]);
+    s += &net(6, "TXD", &[("U2", 2), ("U1", 3)]);
+    s += &net(7, "LINE", &[("U1", 6)]);
+    s += &net(8, "Net-(U3-Pad11)", &[("U3", 11)]);
+    s += "  ))\n";
+    s
+}
+
+#[test]
+fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
+    let dir = std::env::temp_dir().join(format!("netmargin-periph-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("open-inputs.net");
+    std::fs::write(&path, open_inputs_netlist()).unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["check", "--no-config", "--format", "json"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let found: Vec<(String, String, Vec<String>)> = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            (
+                f["check"].as_str().unwrap().to_string(),
+                f["severity"].as_str().unwrap().to_string(),
+                f["pins"]
+                    .as_array()
+                    .unwrap()
+                    .iter()
+                    .map(|p| p.as_str().unwrap().to_string())
+                    .collect(),
+            )
+        })
+        .collect();
+    let at = |pin: &str| -> Vec<(&str, &str)> {
+        found
+            .iter()
+            .filter(|f| f.2.iter().any(|p| p == pin))
+            .map(|f| (f.0.as_str(), f.1.as_str()))
+            .collect()
+    };
+    // SN75150 input 1A open: a TTL input floats high (from memory: IIL -1.6 mA, a standard-TTL
+    // input); an assumption about the level, so a warning
+    assert!(
+        at("U1.2").contains(&("floating-ttl-input", "warning")),
+        "{found:?}"
+    );
+    // its driven input 2A is not reported
+    assert!(
+        at("U1.3").iter().all(|f| f.0 != "floating-ttl-input"),
+        "{found:?}"
+    );
+    // 8275 LPEN open: a MOS input with no pull-up floats (from memory), an error
+    assert!(
+        at("U3.11").contains(&("floating-cmos-input", "error")),
+        "{found:?}"
+    );
+    // and the message names it for what it is: an NMOS input, not a CMOS one
+    let lpen = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|f| f["check"] == "floating-cmos-input" && f["pins"][0] == "U3.11")
+        .map(|f| f["message"].as_str().unwrap().to_string())
+        .unwrap_or_default();
+    assert!(lpen.contains("an NMOS input must never float"), "{lpen}");
+    // the driver's +-12 V supplies are outside the logic levels: no power finding for U1
+    assert!(
+        found
+            .iter()
+            .all(|f| !(f.2.iter().any(|p| p.starts_with("U1."))
+                && (f.0 == "power-pin-miswired" || f.0 == "unpowered-part"))),
+        "{found:?}"
+    );
+}
