@@ -56,7 +56,17 @@ fn tables(out_dir: &std::path::Path) {
     write("families", postcard::to_allocvec(&families).unwrap());
     let functions =
         function::FunctionTable::parse_shipped().unwrap_or_else(|e| fail("functions.toml", e));
-    write("functions", postcard::to_allocvec(&functions).unwrap());
+    // each function on its own, so the binary decodes only those a board uses: an index of
+    // (series, id, start, end) and the functions' bytes one after another
+    let mut blob = Vec::new();
+    let mut index = Vec::new();
+    for f in functions.iter() {
+        let start = blob.len() as u32;
+        blob.extend(postcard::to_allocvec(f).unwrap());
+        index.push((f.series, f.id.clone(), start, blob.len() as u32));
+    }
+    write("functions-index", postcard::to_allocvec(&index).unwrap());
+    write("functions", blob);
     let parts = parts::PartTable::parse_shipped().unwrap_or_else(|e| fail("parts.toml", e));
     write("parts", postcard::to_allocvec(&parts).unwrap());
     // PinRole is read by the function table; named here so the import is used

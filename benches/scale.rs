@@ -9,7 +9,8 @@
 //! Each shape is checked at each size against a floor measured in the same run: the bench
 //! itself, in a child process, reading and modelling the same file (`netlist::read`). The
 //! column "time x for 10 x data" is the check's time over that of the size ten times smaller.
-//! Start-up is a small netlist and `--version` against spawning `true`. With
+//! Start-up is a small netlist and `--version` against spawning `true`, 200 runs each (wall
+//! time and CPU time per run). With
 //! `NETMARGIN_BENCH_BASELINE=<another netmargin binary>` that binary (an earlier build) runs
 //! on the same files in the same run, for before-and-after columns.
 //! The files are written under `<target>/bench-scale/`. Peak memory is GNU time's "Maximum
@@ -100,6 +101,16 @@ fn run(
         peak_kb: field("Maximum resident set size (kbytes):").map(|k| k as u64),
         code: out.status.code(),
     }
+}
+
+/// The CPU time (user + system) of the children this process has waited for, in clock ticks
+/// of 10 ms, from `/proc/self/stat`; `None` where there is no such file.
+fn children_ticks() -> Option<u64> {
+    let stat = std::fs::read_to_string("/proc/self/stat").ok()?;
+    let rest = &stat[stat.rfind(')')? + 2..];
+    let f: Vec<&str> = rest.split_whitespace().collect();
+    // cutime and cstime: fields 16 and 17 of the line, 14 and 15 after the command name
+    Some(f.get(13)?.parse::<u64>().ok()? + f.get(14)?.parse::<u64>().ok()?)
 }
 
 /// The synthetic netlist of shape `shape` and about `mb` megabytes, written once and kept.
@@ -344,38 +355,66 @@ fn main() {
     ];
     let version: [&std::ffi::OsStr; 1] = ["--version".as_ref()];
     let truth = PathBuf::from("true");
-    let (mut t_true, mut t_version, mut t_small) = (Vec::new(), Vec::new(), Vec::new());
-    let mut t_base = Vec::new();
-    for _ in 0..(runs * 20).max(30) {
-        t_true.push(run(&truth, &[], &[], false).secs);
-        t_version.push(run(&bin, &version, &[], false).secs);
-        t_small.push(run(&bin, &small_args, &[], false).secs);
-        if let Some(b) = &baseline {
-            t_base.push(run(b, &small_args, &[], false).secs);
+    // each command 200 times, in interleaved rounds of 20: the median wall time, and the CPU
+    // time per run from the children's ticks (`/proc/self/stat`, 10 ms each, summed over the
+    // runs), which a loaded machine does not inflate as it does wall time
+    let mut commands: Vec<(String, PathBuf, Vec<&std::ffi::OsStr>)> = vec![
+        ("`true` (spawning a process)".into(), truth, vec![]),
+        ("netmargin --version".into(), bin.clone(), version.to_vec()),
+        (
+            format!(
+                "netmargin check, {:.1} kB netlist",
+                std::fs::metadata(&small).map_or(0, |m| m.len()) as f64 / 1e3
+            ),
+            bin.clone(),
+            small_args.to_vec(),
+        ),
+    ];
+    if let Some(b) = &baseline {
+        commands.push((
+            "baseline check, same netlist".into(),
+            b.clone(),
+            small_args.to_vec(),
+        ));
+    }
+    let mut walls: Vec<Vec<f64>> = vec![Vec::new(); commands.len()];
+    let mut ticks: Vec<Option<u64>> = vec![Some(0); commands.len()];
+    let rounds = 10;
+    for _ in 0..rounds {
+        for (i, (_, program, args)) in commands.iter().enumerate() {
+            let before = children_ticks();
+            for _ in 0..20 {
+                walls[i].push(run(program, args, &[], false).secs);
+            }
+            ticks[i] = match (ticks[i], before, children_ticks()) {
+                (Some(t), Some(a), Some(b)) => Some(t + b - a),
+                _ => None,
+            };
         }
     }
-    let (t, v, c) = (median(t_true), median(t_version), median(t_small));
+    let cpu_ms = |i: usize| ticks[i].map(|t| t as f64 * 10.0 / (rounds * 20) as f64);
+    let (wall_true, cpu_true) = (median(walls[0].clone()), cpu_ms(0));
     println!();
-    println!("| start-up | median | above `true` |");
-    println!("| --- | ---: | ---: |");
-    println!("| `true` (spawning a process) | {:.2} ms | |", t * 1e3);
-    println!(
-        "| netmargin --version | {:.2} ms | {:.2} ms |",
-        v * 1e3,
-        (v - t) * 1e3
-    );
-    println!(
-        "| netmargin check, {:.1} kB netlist | {:.2} ms | {:.2} ms |",
-        std::fs::metadata(&small).map_or(0, |m| m.len()) as f64 / 1e3,
-        c * 1e3,
-        (c - t) * 1e3
-    );
-    if !t_base.is_empty() {
-        let b = median(t_base);
+    println!("| start-up (200 runs each) | median wall | above `true` | CPU per run | CPU above `true` |");
+    println!("| --- | ---: | ---: | ---: | ---: |");
+    for (i, (name, _, _)) in commands.iter().enumerate() {
+        let w = median(walls[i].clone());
+        let fmt = |x: Option<f64>| x.map_or("n/a".to_string(), |x| format!("{x:.2} ms"));
+        let above = |x: f64, base: f64| {
+            if i == 0 {
+                String::new()
+            } else {
+                format!("{:.2} ms", x - base)
+            }
+        };
         println!(
-            "| baseline check, same netlist | {:.2} ms | {:.2} ms |",
-            b * 1e3,
-            (b - t) * 1e3
+            "| {name} | {:.2} ms | {} | {} | {} |",
+            w * 1e3,
+            above(w * 1e3, wall_true * 1e3),
+            fmt(cpu_ms(i)),
+            cpu_ms(i)
+                .zip(cpu_true)
+                .map_or(String::new(), |(c, t)| above(c, t)),
         );
     }
     if n_files == 0 {

@@ -216,8 +216,12 @@ impl<'a> Analysis<'a> {
     /// reader) and classifies every part. `Err` is the diagnostic that stops this file (not a
     /// netlist, malformed).
     pub fn new(source: &'a SourceFile, settings: &'a Settings) -> Result<Analysis<'a>, Diag> {
+        let phase = crate::phases::start("read");
         let nl = read_model(source)?;
+        drop(phase);
+        let phase = crate::phases::start("classify");
         let cl = classify(&nl, &settings.rules);
+        drop(phase);
         Ok(Analysis {
             source,
             settings,
@@ -228,6 +232,7 @@ impl<'a> Analysis<'a> {
 
     /// The circuit model and every net's budget, computed once for whoever asks.
     pub fn circuit(&self) -> Board<'_, 'a> {
+        let _phase = crate::phases::start("circuit");
         let cx = circuit::build(
             &self.nl,
             &self.cl,
@@ -339,6 +344,7 @@ impl<'n, 'a> Board<'n, 'a> {
     /// the waivers that have not expired.
     pub fn findings(&self) -> &Findings {
         self.findings.get_or_init(|| {
+            let _phase = crate::phases::start("checks");
             let s = self.analysis.settings;
             let mut all = self.analysis.nl.diagnostics.clone();
             all.extend(checks::run_all(&self.cx, &self.budgets, &s.run.checks));
@@ -362,6 +368,12 @@ impl<'n, 'a> Board<'n, 'a> {
             }
             out
         })
+    }
+
+    /// The findings, owned: computed if they were not yet, and the board given up.
+    pub fn into_findings(self) -> Findings {
+        self.findings();
+        self.findings.into_inner().unwrap_or_default()
     }
 
     /// The worst severity of the findings.

@@ -19,6 +19,7 @@ pub mod config;
 pub mod diag;
 pub mod input;
 pub mod netlist;
+pub mod phases;
 pub mod pipeline;
 pub mod report;
 pub mod schematic;

@@ -216,14 +216,14 @@ pub fn check_file_with(path: &str, settings: &Settings) -> (FileOutcome, Usage) 
 /// The outcome of analysing `source` with `settings`.
 pub fn outcome_of(source: SourceFile, settings: &Settings) -> (FileOutcome, Usage) {
     let result = Analysis::new(&source, settings).map(|a| {
-        let board = a.circuit();
-        let f = board.findings();
+        // the findings are moved out, and the model dropped before the next stage
+        let f = a.circuit().into_findings();
         let usage = Usage {
             rules: a.used(),
-            waivers: f.waivers_used.clone(),
+            waivers: f.waivers_used,
         };
         (
-            f.diags.clone(),
+            f.diags,
             f.waived.len(),
             a.nl.summary(),
             a.cl.coverage,

@@ -544,6 +544,17 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut parts = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
     let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
+    // many parts share a value: each distinct value meets the entries' globs and the value
+    // patterns once
+    let mut entry_of: rustc_hash::FxHashMap<&str, Vec<usize>> = Default::default();
+    let mut pattern_of: rustc_hash::FxHashMap<&str, Option<ValueMatch>> = Default::default();
+    let mut near_of: rustc_hash::FxHashMap<&str, Vec<Suggestion>> = Default::default();
+    let mut match_value = |value| {
+        pattern_of
+            .entry(value)
+            .or_insert_with(|| pattern::match_value(value))
+            .clone()
+    };
     // near misses against the part table, by value (many parts share one)
     let mut table_slips: std::collections::HashMap<String, Vec<pattern::Suggestion>> =
         std::collections::HashMap::new();
@@ -571,7 +582,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             kind = PartKind::Logic;
             method = Method::ComponentField;
             family = rules.families.get(&ff).map(|f| f.id.clone()).or(Some(ff));
-            let m = pattern::match_value(value);
+            let m = match_value(value);
             let (series, id) = match (&field_function, &m) {
                 (Some(f), _) => parse_function_field(f),
                 (None, Some(m)) => (map_series(&m.series), m.function.clone()),
@@ -586,9 +597,11 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             value_match = m;
         } else if let Some((i, e)) = (ic || (c.pins.len() > 2 && !socket_like(c, kind)))
             .then(|| {
-                rules
-                    .parts
-                    .matching(value)
+                entry_of
+                    .entry(value)
+                    .or_insert_with(|| rules.parts.matching(value).map(|(i, _)| i).collect())
+                    .iter()
+                    .map(|&i| (i, &rules.parts.entries[i]))
                     .find(|(_, e)| fits_package(c, e, rules))
             })
             .flatten()
@@ -617,7 +630,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     }
                 }
             }
-        } else if let Some(m) = pattern::match_value(value).filter(|_| {
+        } else if let Some(m) = match_value(value).filter(|_| {
             !matches!(
                 kind,
                 PartKind::Resistor
@@ -652,7 +665,10 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             kind = PartKind::UnknownIc;
             let known =
                 |s: &pattern::Series, f: &str| rules.functions.get(map_series(s), f).is_some();
-            suggestions = pattern::near_misses(value, &known, 3);
+            suggestions = near_of
+                .entry(value)
+                .or_insert_with(|| pattern::near_misses(value, &known, 3))
+                .clone();
             if suggestions.is_empty() {
                 suggestions = table_slips
                     .entry(value.to_string())

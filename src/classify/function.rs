@@ -198,10 +198,47 @@ impl Function {
 }
 
 /// All functions, keyed by series and id.
-#[derive(Debug, Clone, Default, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Default)]
 pub struct FunctionTable {
-    functions: Vec<Function>,
+    functions: Vec<Entry>,
     index: HashMap<(Series, String), usize>,
+}
+
+/// One function of a table: parsed from a file, or a shipped one still in the compact form
+/// `build.rs` wrote, decoded the first time a run asks for it (a board uses a few dozen of
+/// the hundreds shipped, so start-up decodes none of them).
+#[derive(Debug, Clone)]
+struct Entry {
+    /// The compact form (postcard) of a shipped function; empty for a parsed one.
+    bytes: &'static [u8],
+    func: std::sync::OnceLock<Function>,
+}
+
+impl Entry {
+    fn parsed(f: Function) -> Entry {
+        Entry {
+            bytes: &[],
+            func: std::sync::OnceLock::from(f),
+        }
+    }
+
+    fn get(&self) -> &Function {
+        self.func.get_or_init(|| decode_function(self.bytes))
+    }
+
+    fn into_function(self) -> Function {
+        let bytes = self.bytes;
+        self.func
+            .into_inner()
+            .unwrap_or_else(|| decode_function(bytes))
+    }
+}
+
+/// Decodes one shipped function. The bytes were written from the same type by the same
+/// build (`build.rs`), so decoding cannot fail unless the build itself is broken.
+fn decode_function(bytes: &[u8]) -> Function {
+    postcard::from_bytes(bytes)
+        .unwrap_or_else(|e| panic!("a shipped function built by build.rs decodes: {e}"))
 }
 
 impl FunctionTable {
@@ -217,15 +254,32 @@ impl FunctionTable {
         build(raw)
     }
 
+    /// A table of shipped functions in their compact form: each (series, id) with the
+    /// postcard bytes of its `Function`, decoded when first asked for.
+    pub fn from_compact(
+        entries: impl IntoIterator<Item = (Series, String, &'static [u8])>,
+    ) -> FunctionTable {
+        let mut table = FunctionTable::default();
+        for (series, id, bytes) in entries {
+            table.index.insert((series, id), table.functions.len());
+            table.functions.push(Entry {
+                bytes,
+                func: std::sync::OnceLock::new(),
+            });
+        }
+        table
+    }
+
     /// Adds `over`'s functions; one with the same series and id replaces the existing one.
     pub fn merge(&mut self, over: FunctionTable) {
-        for f in over.functions {
+        for e in over.functions {
+            let f = e.into_function();
             let key = (f.series, f.id.clone());
             match self.index.get(&key) {
-                Some(&i) => self.functions[i] = f,
+                Some(&i) => self.functions[i] = Entry::parsed(f),
                 None => {
                     self.index.insert(key, self.functions.len());
-                    self.functions.push(f);
+                    self.functions.push(Entry::parsed(f));
                 }
             }
         }
@@ -234,11 +288,11 @@ impl FunctionTable {
     pub fn get(&self, series: Series, id: &str) -> Option<&Function> {
         self.index
             .get(&(series, id.trim().to_ascii_uppercase()))
-            .map(|&i| &self.functions[i])
+            .map(|&i| self.functions[i].get())
     }
 
     pub fn iter(&self) -> impl Iterator<Item = &Function> {
-        self.functions.iter()
+        self.functions.iter().map(Entry::get)
     }
 
     pub fn len(&self) -> usize {
@@ -605,7 +659,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
         table
             .index
             .insert((p.func.series, p.func.id.clone()), table.functions.len());
-        table.functions.push(p.func);
+        table.functions.push(Entry::parsed(p.func));
     }
     Ok(table)
 }

@@ -1,11 +1,12 @@
 //! The shipped tables as the binary loads them: `build.rs` reads `rules/*.toml` at compile
 //! time with the same code the project files are read with at run time (`parse_shipped`),
 //! checks them, and writes each table in postcard's compact binary form to `OUT_DIR`; start-up
-//! decodes those bytes instead of parsing and validating TOML. `rules/*.toml` stay the
+//! decodes those bytes instead of parsing and validating TOML. The functions, the largest
+//! table, are written one by one behind an index and decoded only when a run asks for one. `rules/*.toml` stay the
 //! source that is edited; a change to them rebuilds the binary.
 
 use super::family::FamilyTable;
-use super::function::FunctionTable;
+use super::function::{FunctionTable, Series};
 use super::parts::PartTable;
 
 /// Decodes one table written by `build.rs`. The bytes were made from the same types by the
@@ -28,9 +29,15 @@ impl FamilyTable {
 impl FunctionTable {
     /// The shipped table (`rules/functions.toml`, read at compile time).
     pub fn builtin() -> FunctionTable {
-        decode(
-            include_bytes!(concat!(env!("OUT_DIR"), "/functions.postcard")),
-            "functions",
+        static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions.postcard"));
+        let index: Vec<(Series, String, u32, u32)> = decode(
+            include_bytes!(concat!(env!("OUT_DIR"), "/functions-index.postcard")),
+            "functions index",
+        );
+        FunctionTable::from_compact(
+            index
+                .into_iter()
+                .map(|(s, id, a, b)| (s, id, &BYTES[a as usize..b as usize])),
         )
     }
 }

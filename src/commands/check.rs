@@ -315,15 +315,19 @@ pub fn command(
         );
         return Ok(if args.require_files { 2 } else { 0 });
     }
+    let phase = crate::phases::start("analysis");
     let run = check(args, read);
+    drop(phase);
     let code = exit_code(&run.outcomes, run.config_failed, args.fail_on.severity());
     let stdout = std::io::stdout();
     let color = super::color_on(color, std::io::IsTerminal::is_terminal(&stdout));
     let mut ropts = args.report.options(color, 100)?;
     ropts.netlists = Some(run.netlists);
-    let mut out = stdout.lock();
+    let phase = crate::phases::start("report");
+    let mut out = std::io::BufWriter::with_capacity(1 << 16, stdout.lock());
     let written =
         crate::report::write_report(&ropts, &run.outcomes, &mut out).and_then(|()| out.flush());
+    drop(phase);
     match written {
         // the reader stopped reading (`| head`): the run is complete, its code stands
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(code),

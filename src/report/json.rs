@@ -206,7 +206,7 @@ fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
 /// serde_json's output is ASCII outside strings, so each such character is inside a string
 /// and the escape reads back as the same character.
 pub fn escape_unsafe(json: String) -> String {
-    if !json.chars().any(needs_escape) {
+    if unsafe_at(json.as_bytes()).next().is_none() {
         return json;
     }
     let mut out = String::with_capacity(json.len() + 16);
@@ -227,6 +227,77 @@ fn needs_escape(c: char) -> bool {
         || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{2028}' | '\u{2029}')
 }
 
+/// Where the characters [`needs_escape`] takes start in UTF-8 `text`, with each character
+/// (`None` when the text ends inside it). Each is DEL, or starts with the byte 0xC2 (the C1
+/// controls) or 0xE2 (the others): only those bytes are looked at.
+fn unsafe_at(text: &[u8]) -> impl Iterator<Item = (usize, Option<char>)> + '_ {
+    memchr::memchr3_iter(0x7f, 0xc2, 0xe2, text).filter_map(move |i| {
+        let len = match text[i] {
+            0x7f => 1,
+            0xc2 => 2,
+            _ => 3,
+        };
+        let Some(bytes) = text.get(i..i + len) else {
+            return Some((i, None));
+        };
+        let c = std::str::from_utf8(bytes).ok()?.chars().next()?;
+        needs_escape(c).then_some((i, Some(c)))
+    })
+}
+
+/// A writer that passes UTF-8 text on with [`escape_unsafe`]'s escapes, so a document is
+/// escaped as it is written, never held whole. A character cut between two writes is kept
+/// until the rest of it comes.
+struct Escaping<'w> {
+    out: &'w mut dyn Write,
+    /// The start of a character a write ended inside.
+    pending: Vec<u8>,
+}
+
+impl Escaping<'_> {
+    /// Writes `text`, escaped; keeps a cut character at its end for the next write.
+    fn pass(&mut self, text: &[u8]) -> io::Result<()> {
+        let mut from = 0;
+        for (i, c) in unsafe_at(text) {
+            self.out.write_all(&text[from..i])?;
+            match c {
+                Some(c) => {
+                    write!(self.out, "\\u{:04x}", c as u32)?;
+                    from = i + c.len_utf8();
+                }
+                None => {
+                    self.pending.extend_from_slice(&text[i..]);
+                    return Ok(());
+                }
+            }
+        }
+        self.out.write_all(&text[from..])
+    }
+
+    /// Writes what is left and the final line end.
+    fn finish(self) -> io::Result<()> {
+        self.out.write_all(&self.pending)?;
+        self.out.write_all(b"\n")
+    }
+}
+
+impl Write for Escaping<'_> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        if self.pending.is_empty() {
+            self.pass(buf)?;
+        } else {
+            let mut joined = std::mem::take(&mut self.pending);
+            joined.extend_from_slice(buf);
+            self.pass(&joined)?;
+        }
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+}
+
 /// The document as text, with a final line end.
 pub fn to_string(files: &[FileOutcome]) -> String {
     to_string_run(files, None)
@@ -234,20 +305,67 @@ pub fn to_string(files: &[FileOutcome]) -> String {
 
 /// [`to_string`] for a run whose first `netlists` outcomes are netlists (`None`: all).
 pub fn to_string_run(files: &[FileOutcome], netlists: Option<usize>) -> String {
-    let text = serde_json::to_string_pretty(&document(files, netlists))
-        .expect("a document of strings and numbers serializes");
-    let mut text = escape_unsafe(text);
-    text.push('\n');
-    text
+    let mut out = Vec::new();
+    write_run(files, netlists, &mut out).expect("a document of strings and numbers serializes");
+    String::from_utf8(out).expect("serde_json writes UTF-8")
 }
 
 pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
-    out.write_all(to_string_run(files, opts.netlists).as_bytes())
+    write_run(files, opts.netlists, out)
+}
+
+/// The document written to `out` as it is serialized, escaped on the way, with a final line
+/// end.
+fn write_run(
+    files: &[FileOutcome],
+    netlists: Option<usize>,
+    out: &mut dyn Write,
+) -> io::Result<()> {
+    // serde_json writes in small pieces: the escape looks at them in large ones
+    let mut w = io::BufWriter::with_capacity(
+        1 << 16,
+        Escaping {
+            out,
+            pending: Vec::new(),
+        },
+    );
+    serde_json::to_writer_pretty(&mut w, &document(files, netlists)).map_err(io::Error::from)?;
+    w.into_inner()
+        .map_err(io::IntoInnerError::into_error)?
+        .finish()
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The writer escapes as the whole-text escape does, however the text is cut into
+    /// writes (here one byte at a time, so every character of more than one byte is cut).
+    #[test]
+    fn the_streaming_escape_equals_the_whole_text_escape() {
+        let s = "x\u{7f}µ\u{9b}\u{202e}Ω\u{2028}\u{2066}\u{2069}\u{2070}é\u{a0}";
+        let json = serde_json::to_string(s).unwrap();
+        for chunk in [1, 2, 3, json.len()] {
+            let mut out = Vec::new();
+            let mut w = Escaping {
+                out: &mut out,
+                pending: Vec::new(),
+            };
+            for part in json.as_bytes().chunks(chunk) {
+                w.write_all(part).unwrap();
+            }
+            w.finish().unwrap();
+            let want = escape_unsafe(json.clone()) + "\n";
+            assert_eq!(
+                String::from_utf8(out).unwrap(),
+                want,
+                "writes of {chunk} bytes"
+            );
+        }
+        // U+2070 and U+00A0 start with the bytes looked at but are left as they are
+        assert!(escape_unsafe(json.clone()).contains("\u{2070}é\u{a0}"));
+        assert!(!escape_unsafe(json).contains('\u{2069}'));
+    }
 
     #[test]
     fn escapes_what_serde_json_leaves_raw_and_reads_back_the_same() {
