@@ -544,3 +544,12 @@ fn a_display_is_not_counted_among_the_ic_like_parts() {
     assert_eq!(cl.parts[0].kind, PartKind::Display);
     assert_eq!(cl.coverage, (0, 0));
 }
+
+#[test]
+fn a_slip_is_judged_per_package_even_for_one_value() {
+    // the same slipped value on a 16-pin and a 40-pin symbol: only the 16-pin one can be a
+    // 4164 DRAM, whichever comes first in the file
+    let got = suggestions_for(&[("U1", "4l64", 40), ("U2", "4l64", 16)]);
+    assert!(got[0].iter().all(|s| s.0 != "4164"), "{got:?}");
+    assert!(got[1].iter().any(|s| s.0 == "4164"), "{got:?}");
+}

@@ -555,8 +555,9 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             .or_insert_with(|| pattern::match_value(value))
             .clone()
     };
-    // near misses against the part table, by value (many parts share one)
-    let mut table_slips: std::collections::HashMap<String, Vec<pattern::Suggestion>> =
+    // near misses against the part table, by value and highest pin number (many parts share
+    // both; the pin number decides which entries fit the package)
+    let mut table_slips: std::collections::HashMap<(String, u32), Vec<pattern::Suggestion>> =
         std::collections::HashMap::new();
     for c in &nl.components {
         let mut kind = kind_by_reference(c);
@@ -670,8 +671,14 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 .or_insert_with(|| pattern::near_misses(value, &known, 3))
                 .clone();
             if suggestions.is_empty() {
+                let highest = c
+                    .pins
+                    .iter()
+                    .filter_map(|p| p.num.trim().parse::<u32>().ok())
+                    .max()
+                    .unwrap_or(0);
                 suggestions = table_slips
-                    .entry(value.to_string())
+                    .entry((value.to_string(), highest))
                     .or_insert_with(|| table_near_misses(value, c, rules))
                     .clone();
             }
