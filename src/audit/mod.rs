@@ -685,7 +685,7 @@ fn gather_interface(
         let mut loads: Vec<LoadGroup> = Vec::new();
         for m in b.margins.iter().filter(|m| m.driver == db.driver) {
             let l = &nm.loads[m.load];
-            let family = l.family.clone().unwrap_or_else(|| "unknown".into());
+            let family = l.family.as_deref().unwrap_or("unknown").to_string();
             let vcc = l.levels.as_ref().map(|lv| lv.vcc);
             let same = |g: &LoadGroup| {
                 g.family == family && (g.vih - m.vih).abs() < 1e-6 && (g.vil - m.vil).abs() < 1e-6
@@ -718,7 +718,7 @@ fn gather_interface(
             pin: cx.pin_name(d.at),
             describe: cx.describe(d.at),
             role: d.role,
-            family: d.family.clone(),
+            family: d.family.as_deref().map(String::from),
             vcc: s
                 .map(|s| s.vcc)
                 .or_else(|| d.levels.as_ref().map(|l| l.vcc)),

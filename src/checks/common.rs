@@ -91,7 +91,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             });
         }
         for f in found {
-            match part.units[f.at.pin].clone() {
+            match part.units[f.at.pin].as_deref().map(String::from) {
                 Some(u) => by_unit.entry(u).or_default().push(f),
                 None => singles.push(f),
             }

@@ -66,7 +66,7 @@ pub(super) fn paralleled_units(cx: &Circuit<'_, '_>, outs: &[PinRef]) -> Option<
         if part.roles[o.pin] != PinRole::PushPull {
             return None;
         }
-        let unit = part.units[o.pin].clone()?;
+        let unit = part.units[o.pin].as_deref().map(String::from)?;
         if units.contains(&unit) {
             return None;
         }

@@ -196,7 +196,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 let nums: Vec<String> = pins.iter().map(|&i| c.pins[i].num.to_string()).collect();
                 let names: Vec<String> = pins
                     .iter()
-                    .filter_map(|&i| part.table_names[i].clone())
+                    .filter_map(|&i| part.table_names[i].as_deref().map(String::from))
                     .collect();
                 let (pin_word, verb) = if pins.len() == 1 {
                     ("pin", "is")

@@ -128,7 +128,8 @@ pub struct Driver {
     pub symbol_only: bool,
     /// The family's figures at the part's supply, when the part is classified.
     pub levels: Option<Arc<Levels>>,
-    pub family: Option<String>,
+    /// The part's family id, one shared copy per part.
+    pub family: Option<Arc<str>>,
 }
 
 /// A logic input on a net.
@@ -137,7 +138,8 @@ pub struct Load {
     pub at: PinRef,
     pub role: PinRole,
     pub levels: Option<Arc<Levels>>,
-    pub family: Option<String>,
+    /// The part's family id, one shared copy per part.
+    pub family: Option<Arc<str>>,
     /// The highest voltage this input takes at its supply.
     pub input_limit: Option<f64>,
     /// True for TTL (bipolar) inputs that source current when low.
@@ -335,7 +337,8 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let pin = &c.pins[p.pin];
         let mut s = format!("{} pin {}", c.reference, pin.num);
         let name = part.table_names[p.pin]
-            .clone()
+            .as_deref()
+            .map(String::from)
             .or_else(|| pin.name.as_ref().map(|n| n.to_string()))
             .filter(|n| n != "~" && !n.is_empty());
         let what = match part.roles[p.pin] {
@@ -564,6 +567,7 @@ pub fn build<'n, 'a>(
         .collect();
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
+        let family: Option<Arc<str>> = part.family.as_deref().map(Arc::from);
         for (pi, p) in c.pins.iter().enumerate() {
             let Connection::Net { net, .. } = p.connection else {
                 continue;
@@ -585,7 +589,7 @@ pub fn build<'n, 'a>(
                                 role: PinRole::PushPull,
                                 symbol_only: false,
                                 levels: Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard))),
-                                family: Some(f.id.clone()),
+                                family: Some(Arc::from(f.id.as_str())),
                             });
                         }
                     }
@@ -631,7 +635,7 @@ pub fn build<'n, 'a>(
                         input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
                         ttl: fam.is_some_and(|f| !f.is_cmos_input()),
                         levels: lv,
-                        family: part.family.clone(),
+                        family: family.clone(),
                     });
                 }
                 PinRole::PushPull
@@ -644,7 +648,7 @@ pub fn build<'n, 'a>(
                         role,
                         symbol_only,
                         levels: levels(ci),
-                        family: part.family.clone(),
+                        family: family.clone(),
                     });
                 }
                 PinRole::Bidirectional => {
@@ -655,7 +659,7 @@ pub fn build<'n, 'a>(
                         role,
                         symbol_only,
                         levels: lv.clone(),
-                        family: part.family.clone(),
+                        family: family.clone(),
                     });
                     nm.loads.push(Load {
                         at,
@@ -663,7 +667,7 @@ pub fn build<'n, 'a>(
                         input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
                         ttl: fam.is_some_and(|f| !f.is_cmos_input()),
                         levels: lv,
-                        family: part.family.clone(),
+                        family: family.clone(),
                     });
                 }
                 PinRole::Supply | PinRole::Ground => nm.power_pins.push(at),

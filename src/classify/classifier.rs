@@ -7,6 +7,8 @@
 //! the 74-series and 4000-series value patterns; the netlist's own pin types. Pin roles come
 //! from the function table when the function is known, else from the netlist's pin types.
 
+use std::sync::Arc;
+
 use serde::Serialize;
 
 use super::family::FamilyTable;
@@ -139,9 +141,10 @@ pub struct PartClass {
     /// Per pin of the component (same order as `Component::pins`).
     pub roles: Vec<PinRole>,
     pub role_source: Vec<RoleSource>,
-    /// The function table's pin name and unit, per pin.
-    pub table_names: Vec<Option<String>>,
-    pub units: Vec<Option<String>>,
+    /// The function table's pin name and unit, per pin, shared by every part of the run that
+    /// names the same text.
+    pub table_names: Vec<Option<Arc<str>>>,
+    pub units: Vec<Option<Arc<str>>>,
     /// For a three-state pin: indices (into the component's pins) of its enables.
     pub enables: Vec<Vec<usize>>,
     /// Index of the explicit entry used, if any.
@@ -549,6 +552,16 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut entry_of: rustc_hash::FxHashMap<&str, Vec<usize>> = Default::default();
     let mut pattern_of: rustc_hash::FxHashMap<&str, Option<ValueMatch>> = Default::default();
     let mut near_of: rustc_hash::FxHashMap<&str, Vec<Suggestion>> = Default::default();
+    // the tables' pin names and units, one shared copy of each text per run
+    let mut shared: rustc_hash::FxHashMap<String, Arc<str>> = Default::default();
+    let mut share = |text: &str| -> Arc<str> {
+        if let Some(a) = shared.get(text) {
+            return a.clone();
+        }
+        let a: Arc<str> = Arc::from(text);
+        shared.insert(text.to_owned(), a.clone());
+        a
+    };
     let mut match_value = |value| {
         pattern_of
             .entry(value)
@@ -725,8 +738,8 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 (Some(d), Some(f)) => {
                     roles.push(f.role_for_family(&p.num, &fam).unwrap_or(d.role));
                     role_source.push(RoleSource::Table);
-                    table_names[i] = Some(d.name.clone());
-                    units[i] = d.unit.clone();
+                    table_names[i] = Some(share(&d.name));
+                    units[i] = d.unit.as_deref().map(&mut share);
                     enables[i] = d
                         .enable
                         .iter()
