@@ -43,6 +43,15 @@ fn grade(ratio: f64, derating: f64) -> Option<Severity> {
     }
 }
 
+/// A number of unit loads: `6`, `2.5`.
+fn unit_text(u: f64) -> String {
+    if (u - u.round()).abs() < 1e-9 {
+        format!("{u:.0}")
+    } else {
+        format!("{u:.1}")
+    }
+}
+
 /// How many items of `each` amperes fit within `derating` of `rating`.
 fn fits(rating: f64, each: f64, derating: f64) -> usize {
     if each <= 0.0 {
@@ -92,9 +101,26 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     String::new()
                 };
+                // inputs that draw more than one unit load (a counter's clock): say how many
+                let heavy: Vec<&crate::circuit::budget::Item> =
+                    sb.items.iter().filter(|i| i.unit_loads.is_some()).collect();
+                let heavy_note = match heavy.first().and_then(|i| i.unit_loads) {
+                    Some(u) if heavy.len() == sb.items.len() && same => {
+                        format!(", {} unit loads each", unit_text(u))
+                    }
+                    Some(_) => {
+                        let units: f64 = heavy.iter().filter_map(|i| i.unit_loads).sum();
+                        format!(
+                            ", {} of them drawing {} unit loads between them",
+                            heavy.len(),
+                            unit_text(units)
+                        )
+                    }
+                    None => String::new(),
+                };
                 let detail = if same && !sb.items.is_empty() {
                     format!(
-                        "{} input{} x {}{through_note}",
+                        "{} input{} x {}{heavy_note}{through_note}",
                         n_inputs,
                         if n_inputs == 1 { "" } else { "s" },
                         format_amps(sb.items[0].amps)
@@ -102,7 +128,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     let other = sb.items.len() - n_inputs;
                     let inputs = format!(
-                        "{} input{}{through_note}",
+                        "{} input{}{heavy_note}{through_note}",
                         n_inputs,
                         if n_inputs == 1 { "" } else { "s" },
                     );

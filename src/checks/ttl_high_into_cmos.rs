@@ -100,14 +100,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 let sum_iil: f64 = nm
                     .loads
                     .iter()
-                    .filter_map(|x| x.levels.as_ref())
-                    .map(|x| x.iil_max.abs())
+                    .filter_map(|x| x.iil())
                     .sum();
                 let sum_iih: f64 = nm
                     .loads
                     .iter()
-                    .filter_map(|x| x.levels.as_ref())
-                    .map(|x| x.iih_max.abs())
+                    .filter_map(|x| x.iih())
                     .sum();
                 let vih_max = nm
                     .loads

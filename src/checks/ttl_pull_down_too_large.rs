@@ -81,8 +81,7 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
     let iil: f64 = nm
         .loads
         .iter()
-        .filter_map(|l| l.levels.as_ref())
-        .map(|l| l.iil_max.abs())
+        .filter_map(|l| l.iil())
         .sum();
     let g: f64 = nm
         .pulls
