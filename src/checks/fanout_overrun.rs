@@ -9,7 +9,8 @@
 //! loads' thresholds, the noise margin is gone, and the output runs hot.
 //!
 //! Example: one 74LS04 output driving 25 74LS inputs must sink 25 x 0.4 mA = 10 mA against
-//! its rated 8 mA (125 %).
+//! its rated 8 mA (125 %). An input the function table says draws more (a 74LS90's clock
+//! input, six unit loads: 2.4 mA) counts at its own current, and the message says so.
 //!
 //! Fix: split the load across two outputs, or buffer it with a bus driver (a 74LS244 sinks
 //! 24 mA), or use a family whose inputs draw less (74HCT inputs draw about 1 uA).
@@ -108,10 +109,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     Some(u) if heavy.len() == sb.items.len() && same => {
                         format!(", {} unit loads each", unit_text(u))
                     }
+                    Some(u) if heavy.iter().all(|i| i.unit_loads == Some(u)) => format!(
+                        ", {} of them {} unit loads each",
+                        heavy.len(),
+                        unit_text(u)
+                    ),
                     Some(_) => {
                         let units: f64 = heavy.iter().filter_map(|i| i.unit_loads).sum();
                         format!(
-                            ", {} of them drawing {} unit loads between them",
+                            ", {} of them {} unit loads in all",
                             heavy.len(),
                             unit_text(units)
                         )
