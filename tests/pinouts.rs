@@ -2195,7 +2195,14 @@ fn heavy_inputs_draw_their_data_sheet_currents() {
         ("112", "4", 0.8e-3, 60e-6, "DM74LS112A preset"),
         ("112", "1", 0.8e-3, 80e-6, "DM74LS112A clock"),
         ("112", "3", 0.4e-3, 20e-6, "DM74LS112A J"),
+        // Fairchild DM74LS157: IIL S or G -0.8 mA, A or B -0.4 mA; IIH 40 and 20 uA
+        ("157", "1", 0.8e-3, 40e-6, "DM74LS157 select"),
+        ("157", "15", 0.8e-3, 40e-6, "DM74LS157 strobe"),
+        ("157", "2", 0.4e-3, 20e-6, "DM74LS157 data"),
     ];
+    // National DM74LS93: IIL A -2.4 mA, B -1.6 mA (its IIH not read: one unit load)
+    assert!(close(current("93", "14", "74LS", ls.iil_max, ls.iih_max).0, 2.4e-3));
+    assert!(close(current("93", "1", "74LS", ls.iil_max, ls.iih_max).0, 1.6e-3));
     for &(id, pin, iil, iih, what) in cases {
         let (lo, hi) = current(id, pin, "74LS", ls.iil_max, ls.iih_max);
         assert!(close(lo, iil), "{what}: IIL {lo} A, the sheet gives {iil} A");
