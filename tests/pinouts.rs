@@ -2201,15 +2201,33 @@ fn heavy_inputs_draw_their_data_sheet_currents() {
         ("157", "2", 0.4e-3, 20e-6, "DM74LS157 data"),
     ];
     // National DM74LS93: IIL A -2.4 mA, B -1.6 mA (its IIH not read: one unit load)
-    assert!(close(current("93", "14", "74LS", ls.iil_max, ls.iih_max).0, 2.4e-3));
-    assert!(close(current("93", "1", "74LS", ls.iil_max, ls.iih_max).0, 1.6e-3));
+    assert!(close(
+        current("93", "14", "74LS", ls.iil_max, ls.iih_max).0,
+        2.4e-3
+    ));
+    assert!(close(
+        current("93", "1", "74LS", ls.iil_max, ls.iih_max).0,
+        1.6e-3
+    ));
     for &(id, pin, iil, iih, what) in cases {
         let (lo, hi) = current(id, pin, "74LS", ls.iil_max, ls.iih_max);
-        assert!(close(lo, iil), "{what}: IIL {lo} A, the sheet gives {iil} A");
-        assert!(close(hi, iih), "{what}: IIH {hi} A, the sheet gives {iih} A");
+        assert!(
+            close(lo, iil),
+            "{what}: IIL {lo} A, the sheet gives {iil} A"
+        );
+        assert!(
+            close(hi, iih),
+            "{what}: IIH {hi} A, the sheet gives {iih} A"
+        );
     }
     // a family the entry does not name draws one unit load (74HC: no multiple given)
-    assert_eq!(t.get(S74, "90").unwrap().load_for_family("14", "74HC"), None);
+    assert_eq!(
+        t.get(S74, "90").unwrap().load_for_family("14", "74HC"),
+        None
+    );
     // the 74LS90's QA is rated with its own B input on it (DM74LS90 note 4)
-    assert_eq!(t.get(S74, "90").unwrap().pin("12").unwrap().rated_with, vec!["1"]);
+    assert_eq!(
+        t.get(S74, "90").unwrap().pin("12").unwrap().rated_with,
+        vec!["1"]
+    );
 }

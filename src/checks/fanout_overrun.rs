@@ -109,11 +109,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     Some(u) if heavy.len() == sb.items.len() && same => {
                         format!(", {} unit loads each", unit_text(u))
                     }
-                    Some(u) if heavy.iter().all(|i| i.unit_loads == Some(u)) => format!(
-                        ", {} of them {} unit loads each",
-                        heavy.len(),
-                        unit_text(u)
-                    ),
+                    Some(u) if heavy.iter().all(|i| i.unit_loads == Some(u)) => {
+                        format!(", {} of them {} unit loads each", heavy.len(), unit_text(u))
+                    }
                     Some(_) => {
                         let units: f64 = heavy.iter().filter_map(|i| i.unit_loads).sum();
                         format!(

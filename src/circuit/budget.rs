@@ -394,12 +394,27 @@ fn counted(cx: &Circuit<'_, '_>, d: &super::Driver, l: &super::Load) -> bool {
 
 /// A logic input's line in a state's budget: its current, and when it draws more than one
 /// of its family's input currents, how many (`6 unit loads: 6 x 0.40 mA`).
-fn input_item(cx: &Circuit<'_, '_>, l: &super::Load, low: bool, through: Option<usize>) -> Option<Item> {
+fn input_item(
+    cx: &Circuit<'_, '_>,
+    l: &super::Load,
+    low: bool,
+    through: Option<usize>,
+) -> Option<Item> {
     let ll = l.levels.as_ref()?;
     let (amps, each, units, what) = if low {
-        (l.iil()?, ll.iil_max.abs(), l.unit_loads.0, "input low current (IIL)")
+        (
+            l.iil()?,
+            ll.iil_max.abs(),
+            l.unit_loads.0,
+            "input low current (IIL)",
+        )
     } else {
-        (l.iih()?, ll.iih_max.abs(), l.unit_loads.1, "input high current (IIH)")
+        (
+            l.iih()?,
+            ll.iih_max.abs(),
+            l.unit_loads.1,
+            "input high current (IIH)",
+        )
     };
     let mut text = format!("{} {what}", cx.pin_name(l.at));
     if let Some(part) = through {
@@ -726,16 +741,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .expect("filtered on levels");
             let vol = lv.vol.last().map_or(0.4, |p| p.v);
             let iol = lv.iol_max.abs();
-            let sum_iil: f64 = nm
-                .loads
-                .iter()
-                .filter_map(|l| l.iil())
-                .sum();
-            let sum_high: f64 = nm
-                .loads
-                .iter()
-                .filter_map(|l| l.iih())
-                .sum::<f64>()
+            let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.iil()).sum();
+            let sum_high: f64 = nm.loads.iter().filter_map(|l| l.iih()).sum::<f64>()
                 + oc.iter()
                     .filter_map(|&i| nm.drivers[i].levels.as_ref())
                     .map(|l| l.oc_leakage.abs())

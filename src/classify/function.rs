@@ -1052,7 +1052,9 @@ variants = [ { families = ["74HC"], outputs = "push-pull" } ]
             r#"name = "1A", role = "input""#,
             r#"name = "1A", role = "input", rated_with = [2]"#,
         );
-        assert!(errs(&text)[0].message.contains("`rated_with` applies to outputs"));
+        assert!(errs(&text)[0]
+            .message
+            .contains("`rated_with` applies to outputs"));
     }
 
     #[test]
