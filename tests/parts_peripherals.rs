@@ -511,3 +511,186 @@ fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
         "{found:?}"
     );
 }
+
+#[test]
+fn processors_8086_and_8088_match_the_intel_pin_tables() {
+    // Intel 8086 data sheet, Table 1 Pin Description: pin numbers and types (read); the order of
+    // the bits inside AD15-AD0 (2-16, 39) and A19-A16 (35-38) from memory
+    expect_pins(
+        "8086",
+        40,
+        &[
+            (1, "GND", Ground),
+            (20, "GND", Ground),
+            (40, "VCC", Supply),
+            (16, "AD0", Bidirectional), // from memory (bit order)
+            (2, "AD14", Bidirectional), // from memory (bit order)
+            (39, "AD15", Bidirectional),
+            (35, "A19/S6", ThreeState), // floats in hold acknowledge (read)
+            (38, "A16/S3", ThreeState),
+            (34, "~BHE/S7", ThreeState),
+            (17, "NMI", Input),
+            (18, "INTR", Input),
+            (19, "CLK", Input),
+            (21, "RESET", Input),
+            (22, "READY", Input),
+            (23, "~TEST", Input),
+            (32, "~RD", ThreeState),
+            (33, "MN/~MX", Input),
+            // ALE "is never floated" (minimum mode), QS0 a queue status output (maximum mode)
+            (25, "ALE/QS0", PushPull),
+            (24, "~INTA/QS1", PushPull),
+            // minimum mode M/IO, WR, DEN, DT/R float in hold acknowledge; maximum mode S2-S0 too
+            (28, "M/~IO/~S2", ThreeState),
+            (29, "~WR/~LOCK", ThreeState),
+            // HLDA / HOLD in minimum mode, the pulled-up RQ/GT pins in maximum mode: unknown
+            (30, "HLDA/~RQ/~GT1", Unknown),
+            (31, "HOLD/~RQ/~GT0", Unknown),
+        ],
+    );
+    // Intel 8088 data sheet, Table 1 Pin Description: AD7-AD0 on 9-16 (I/O), A15-A8 on 2-8 and 39
+    // (O, float in hold acknowledge), RD 32, RQ/GT0 and RQ/GT1 on 30 and 31 (internal pull-up)
+    expect_pins(
+        "8088",
+        40,
+        &[
+            (9, "AD7", Bidirectional),
+            (16, "AD0", Bidirectional),
+            (2, "A14", ThreeState), // from memory (bit order)
+            (8, "A8", ThreeState),
+            (39, "A15", ThreeState),
+            (32, "~RD", ThreeState),
+            (28, "IO/~M/~S2", ThreeState), // from memory
+            (34, "~SS0", ThreeState),      // from memory
+            (30, "HLDA/~RQ/~GT1", Unknown),
+            (31, "HOLD/~RQ/~GT0", Unknown),
+            (40, "VCC", Supply),
+        ],
+    );
+}
+
+#[test]
+fn interrupt_controller_8259_matches_the_intel_pin_table() {
+    // Intel 8259A data sheet (231468-003), Table 1 Pin Description (read); bit order from memory
+    expect_pins(
+        "8259",
+        28,
+        &[
+            (1, "~CS", Input),
+            (2, "~WR", Input),
+            (3, "~RD", Input),
+            (4, "D7", Bidirectional),
+            (11, "D0", Bidirectional),
+            (12, "CAS0", Unknown), // outputs on a master, inputs on a slave
+            (15, "CAS2", Unknown),
+            (14, "GND", Ground),
+            (16, "~SP/~EN", Unknown), // input, or an output in buffered mode
+            (17, "INT", PushPull),
+            // internal pull-ups: ILIR -300 uA at VIN 0 (Intel 8259A D.C. characteristics)
+            (18, "IR0", Unknown),
+            (25, "IR7", Unknown),
+            (26, "~INTA", Input),
+            (27, "A0", Input),
+            (28, "VCC", Supply),
+        ],
+    );
+}
+
+#[test]
+fn commodore_6510_and_6526_pinouts() {
+    // from memory: MOS 6510 pin configuration (secondary pin lists agree)
+    expect_pins(
+        "6510",
+        40,
+        &[
+            (1, "PHI0", Input),
+            (5, "AEC", Input),
+            (6, "VCC", Supply),
+            (7, "A0", ThreeState),
+            (20, "A13", ThreeState),
+            (21, "GND", Ground),
+            (23, "A15", ThreeState),
+            (24, "P5", Unknown),
+            (29, "P0", Unknown),
+            (30, "D7", Bidirectional),
+            (37, "D0", Bidirectional),
+            (39, "PHI2", PushPull),
+            (40, "~RES", Input),
+        ],
+    );
+    // the address pins float when AEC is low
+    let t = table();
+    let f = t.get(Series::Other, "6510").unwrap();
+    let a0 = f.pin("7").unwrap();
+    assert_eq!(a0.enable, vec!["5".to_string()]);
+    assert!(!a0.enable_active_low);
+    // MOS 6526 data sheet (11/81), pin configuration (read); IRQ open drain (its interface
+    // description)
+    expect_pins(
+        "6526",
+        40,
+        &[
+            (1, "VSS", Ground),
+            (2, "PA0", Unknown),
+            (17, "PB7", Unknown),
+            (20, "VCC", Supply),
+            (21, "~IRQ", OpenCollector),
+            (22, "R/~W", Input),
+            (23, "~CS", Input),
+            (25, "PHI2", Input),
+            (26, "DB7", Bidirectional),
+            (33, "DB0", Bidirectional),
+            (34, "~RES", Input),
+            (35, "RS3", Input),
+            (38, "RS0", Input),
+            (39, "SP", Unknown),
+            (40, "CNT", Unknown),
+        ],
+    );
+}
+
+#[test]
+fn processors_and_controllers_of_the_second_batch_are_named_by_their_markings() {
+    let cases: &[(&str, u32, &str, &str)] = &[
+        ("8088", 40, "NMOS", "8088"),
+        ("P8088", 40, "NMOS", "8088"),
+        ("D8088-2", 40, "NMOS", "8088"),
+        ("8086-2", 40, "NMOS", "8086"),
+        ("C8086", 40, "NMOS", "8086"),
+        ("80C88", 40, "CMOS-TTL", "8088"),
+        ("CP80C88", 40, "CMOS-TTL", "8088"),
+        ("MSM80C86A-10RS", 40, "CMOS-TTL", "8086"),
+        ("P8259A", 28, "NMOS", "8259"),
+        ("8259A-2", 28, "NMOS", "8259"),
+        ("82C59A", 28, "CMOS-TTL", "8259"),
+        ("MOS6510", 40, "NMOS", "6510"),
+        ("6510", 40, "NMOS", "6510"),
+        ("MOS6526", 40, "NMOS", "6526"),
+        ("6526A", 40, "NMOS", "6526"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, fam, func), (kind, f, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v} ({n} pins)");
+        assert_eq!(f.as_deref(), Some(*fam), "{v} ({n} pins): family");
+        assert_eq!(fu.as_deref(), Some(*func), "{v} ({n} pins): function");
+    }
+    // look-alikes: (value, highest pin, a function it must not be)
+    let not: &[(&str, u32, &str)] = &[
+        // a 74-series-looking value is never a processor
+        ("74LS8088", 16, "8088"),
+        // the i860 (a PGA far beyond 40 pins) is no 8086
+        ("80860XR", 168, "8086"),
+        // the 6510T (drive processor) has another pinout
+        ("6510T", 40, "6510"),
+        // the 8259A in its 28-pin DIP is not the 16-pin 74LS259 latch, nor the other way round
+        ("74LS259", 16, "8259"),
+    ];
+    let items: Vec<(&str, &str, u32)> = not.iter().map(|(v, n, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, bad), (_, _, fu)) in not.iter().zip(&got) {
+        assert_ne!(fu.as_deref(), Some(*bad), "{v} ({n} pins)");
+    }
+    // and the 74LS259 stays the latch
+    assert_eq!(got[3].2.as_deref(), Some("259"));
+}
