@@ -408,8 +408,8 @@ fn line_driver_1488_inputs_are_ttl_and_its_outputs_are_not_logic() {
     assert_eq!(got[0].2.as_deref(), Some("1488"));
     assert_eq!(got[0].1.as_deref(), Some("74"));
     assert_eq!(got[1].2.as_deref(), Some("1488"));
-    // the receiver stays a known part outside the logic checks
-    assert_eq!(got[2].0, PartKind::NotLogic);
+    // the receiver is a logic part on its output side (its own entry below)
+    assert_eq!(got[2].2.as_deref(), Some("1489"));
 }
 
 /// A small netlist: an RS-232 driver on +-12 V with one input open and one driven, and a CRT
@@ -693,4 +693,65 @@ fn processors_and_controllers_of_the_second_batch_are_named_by_their_markings() 
     }
     // and the 74LS259 stays the latch
     assert_eq!(got[3].2.as_deref(), Some("259"));
+}
+
+#[test]
+fn line_receiver_1489_and_rs485_transceiver_75176_check_only_their_logic_side() {
+    // from memory: MC1489 / SN75189 pin assignment (TI's MC1489 product page: a low-power
+    // Schottky part on one 5 V supply, 14-pin PDIP): line inputs and response-control pins take
+    // RS-232 levels or a capacitor, analog; outputs totem-pole
+    expect_pins(
+        "1489",
+        14,
+        &[
+            (1, "1A", Analog),
+            (2, "1CONT", Analog),
+            (3, "1Y", PushPull),
+            (7, "GND", Ground),
+            (8, "3Y", PushPull),
+            (10, "3A", Analog),
+            (11, "4Y", PushPull),
+            (13, "4A", Analog),
+            (14, "VCC", Supply),
+        ],
+    );
+    // TI SLLS376G (SN75LBC176A), Table 4-1 Pin Functions (read); the SN75176B shares it
+    expect_pins(
+        "75176",
+        8,
+        &[
+            (1, "R", ThreeState),
+            (2, "~RE", Input),
+            (3, "DE", Input),
+            (4, "D", Input),
+            (5, "GND", Ground),
+            (6, "A", Analog),
+            (7, "B", Analog),
+            (8, "VCC", Supply),
+        ],
+    );
+    // R is on while RE is low (SLLS376G: "receiver enable, active low")
+    let t = table();
+    let r = t.get(Series::Other, "75176").unwrap().pin("1").unwrap().clone();
+    assert_eq!(r.enable, vec!["2".to_string()]);
+    assert!(r.enable_active_low);
+    let got = classify_values(&[
+        ("U1", "MC1489AP", 14),
+        ("U2", "SN75189N", 14),
+        ("U3", "SN75176BP", 8),
+        ("U4", "DS75176BN", 8),
+        // still not logic: the charge-pump RS-232 transceiver and the driver array
+        ("U5", "MAX232CPE", 16),
+        ("U6", "ULN2003A", 16),
+        // the 7-pin 75176 look-alike with more pins than the package is not taken
+        ("U7", "SN75176BP", 14),
+    ]);
+    for (i, func) in [(0, "1489"), (1, "1489"), (2, "75176"), (3, "75176")] {
+        assert_eq!(got[i].0, PartKind::Logic, "{i}");
+        assert_eq!(got[i].1.as_deref(), Some("74LS"), "{i}");
+        assert_eq!(got[i].2.as_deref(), Some(func), "{i}");
+    }
+    assert_eq!(got[4].0, PartKind::NotLogic);
+    assert_eq!(got[5].0, PartKind::NotLogic);
+    assert_ne!(got[6].2.as_deref(), Some("75176"));
 }
