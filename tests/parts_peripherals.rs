@@ -755,3 +755,68 @@ fn line_receiver_1489_and_rs485_transceiver_75176_check_only_their_logic_side() 
     assert_eq!(got[5].0, PartKind::NotLogic);
     assert_ne!(got[6].2.as_deref(), Some("75176"));
 }
+
+#[test]
+fn bipolar_proms_256x4_and_their_markings() {
+    // from memory: the 256 x 4 PROM pinout; a circuit simulator's 74S287 description agrees on
+    // the grouping (addresses 1-7 and 15, outputs 9-12, enables 13 and 14)
+    let addr = [1u32, 2, 3, 4, 5, 6, 7, 15];
+    for (id, out) in [("prom256x4", ThreeState), ("prom256x4-oc", OpenCollector)] {
+        let mut want: Vec<(u32, &str, PinRole)> = vec![
+            (5, "A0", Input),
+            (15, "A7", Input),
+            (8, "GND", Ground),
+            (12, "Q0", out),
+            (9, "Q3", out),
+            (13, "~G1", Input),
+            (14, "~G2", Input),
+            (16, "VCC", Supply),
+        ];
+        let t = table();
+        let f = t.get(Series::Other, id).unwrap();
+        for p in addr {
+            assert_eq!(f.pin(&p.to_string()).unwrap().role, Input, "{id} pin {p}");
+        }
+        want.retain(|w| w.0 != 0);
+        expect_pins(id, 16, &want);
+    }
+    // three-state outputs on while both enables are low
+    let t = table();
+    let q = t.get(Series::Other, "prom256x4").unwrap().pin("9").unwrap().clone();
+    assert_eq!(q.enable, vec!["13".to_string(), "14".to_string()]);
+    assert!(q.enable_active_low);
+    // p-n-p inputs (TI 1975 PROM bulletin): the 74LS figures stand in, never the 74S ones
+    let cases: &[(&str, &str)] = &[
+        ("74S287", "prom256x4"),
+        ("SN74S287N", "prom256x4"),
+        ("DM74S287AN", "prom256x4"),
+        ("N82S129N", "prom256x4"),
+        ("82S129", "prom256x4"),
+        ("DM93427N", "prom256x4"),
+        ("74S387", "prom256x4-oc"),
+        ("N82S126N", "prom256x4-oc"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, _)| ("U1", *v, 16)).collect();
+    let got = classify_values(&items);
+    for ((v, func), (kind, fam, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v}");
+        assert_eq!(fam.as_deref(), Some("74LS"), "{v}");
+        assert_eq!(fu.as_deref(), Some(*func), "{v}");
+    }
+    // the 16 x 4 RAMs go by the 74 pattern: family from the letters, function from the table
+    let got = classify_values(&[
+        ("U1", "74LS189", 16),
+        ("U2", "7489", 16),
+        ("U3", "SN74S189N", 16),
+        ("U4", "74LS89", 16),
+        // look-alikes: the 82S123 (32 x 8 PROM) and the 74S288 are other parts
+        ("U5", "82S123", 16),
+        ("U6", "74S288", 16),
+    ]);
+    assert_eq!((got[0].1.as_deref(), got[0].2.as_deref()), (Some("74LS"), Some("189")));
+    assert_eq!((got[1].1.as_deref(), got[1].2.as_deref()), (Some("74"), Some("89")));
+    assert_eq!((got[2].1.as_deref(), got[2].2.as_deref()), (Some("74S"), Some("189")));
+    assert_eq!(got[3].2.as_deref(), Some("89"));
+    assert!(got[4].2.as_deref().map_or(true, |f| !f.starts_with("prom")), "{:?}", got[4]);
+    assert!(got[5].2.as_deref().map_or(true, |f| !f.starts_with("prom")), "{:?}", got[5]);
+}

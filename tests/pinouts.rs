@@ -1947,8 +1947,10 @@ fn three_state_outputs_name_existing_enables() {
                     .pin(e)
                     .unwrap_or_else(|| panic!("{} pin {}: enable {e} missing", f.id, p.pin));
                 // a processor's bus floats when it grants the bus: the enable of its address
-                // pins is its own grant-acknowledge output (Z80 ~BUSAK, 8080 HLDA, 6809 BA)
-                let own_status = f.series == Series::Other && en.role == PushPull;
+                // pins is its own grant-acknowledge output (Z80 ~BUSAK, 8080 HLDA, 6809 BA), or
+                // a pin that is that output in one mode only (8086 HLDA, RQ/GT1 in maximum mode)
+                let own_status =
+                    f.series == Series::Other && matches!(en.role, PushPull | Unknown);
                 assert!(
                     en.role.is_input() || own_status,
                     "{} pin {}: enable {e} is {}",
@@ -2159,4 +2161,25 @@ fn merge_replaces_by_series_and_id() {
     assert_eq!(t.len(), before);
     assert_eq!(func(&t, S74, "00").summary, "replaced");
     assert_eq!(func(&t, S74, "08").package_pins, 14);
+}
+
+#[test]
+fn ram_16x4_89_and_189() {
+    // from memory: 7489 / 74189 pin assignment (not yet read in a data sheet): address, enable,
+    // write-enable and data inputs; inverted outputs on 5, 7, 9, 11
+    let t = table();
+    let ins = [1u32, 2, 3, 4, 6, 10, 12, 13, 14, 15];
+    let outs = [5u32, 7, 9, 11];
+    let mut want: Vec<(u32, PinRole)> = ins.iter().map(|&p| (p, Input)).collect();
+    want.extend(outs.iter().map(|&p| (p, OpenCollector)));
+    want.push((8, Ground));
+    want.push((16, Supply));
+    expect_roles(&t, S74, "89", 16, &want);
+    let mut want: Vec<(u32, PinRole)> = ins.iter().map(|&p| (p, Input)).collect();
+    want.extend(outs.iter().map(|&p| (p, ThreeState)));
+    expect_roles(&t, S74, "189", 16, &want);
+    // the 74189's outputs are on while ~CS (pin 2) is low
+    let q1 = func(&t, S74, "189").pin("5").unwrap();
+    assert_eq!(q1.enable, vec!["2".to_string()]);
+    assert!(q1.enable_active_low);
 }
