@@ -820,3 +820,119 @@ fn bipolar_proms_256x4_and_their_markings() {
     assert!(got[4].2.as_deref().map_or(true, |f| !f.starts_with("prom")), "{:?}", got[4]);
     assert!(got[5].2.as_deref().map_or(true, |f| !f.starts_with("prom")), "{:?}", got[5]);
 }
+
+/// A small board of the new parts: an 8088 in minimum mode with HOLD open and RESET open, an
+/// 8259A with seven IR inputs open, a 6526 whose open-drain ~IRQ reaches the 6510's ~IRQ with
+/// no pull-up, a 75176 whose DE is open, and an MC1489 whose line inputs are open.
+fn second_batch_netlist() -> String {
+    let comp = |r: &str, v: &str| {
+        format!("    (comp (ref {r}) (value \"{v}\") (libsource (lib x) (part {r})))\n")
+    };
+    let node = |r: &str, p: u32| format!("(node (ref {r}) (pin {p}))");
+    let net = |code: u32, name: &str, nodes: &[(&str, u32)]| {
+        let n: String = nodes.iter().map(|(r, p)| node(r, *p)).collect();
+        format!("    (net (code {code}) (name \"{name}\") {n})\n")
+    };
+    let mut s = String::from("(export (version D)\n  (components\n");
+    for (r, v) in [
+        ("U1", "P8088"),
+        ("U2", "P8259A"),
+        ("U3", "MOS6510"),
+        ("U4", "MOS6526"),
+        ("U5", "SN75176BP"),
+        ("U6", "MC1489P"),
+    ] {
+        s += &comp(r, v);
+    }
+    s += "  )\n  (nets\n";
+    s += &net(
+        1,
+        "+5V",
+        &[("U1", 40), ("U1", 33), ("U2", 28), ("U3", 6), ("U3", 5), ("U4", 20), ("U5", 8), ("U6", 14)],
+    );
+    s += &net(
+        2,
+        "GND",
+        &[("U1", 1), ("U1", 20), ("U2", 14), ("U3", 21), ("U4", 1), ("U5", 5), ("U6", 7)],
+    );
+    // 8259A INT drives the 8088's INTR; IR0 driven by the 1489's output, IR1-IR7 open
+    s += &net(3, "INTR", &[("U2", 17), ("U1", 18)]);
+    s += &net(4, "IRQ0", &[("U6", 3), ("U2", 18)]);
+    s += &net(5, "Net-(U1-Pad31)", &[("U1", 31)]);
+    s += &net(6, "Net-(U1-Pad21)", &[("U1", 21)]);
+    // 6526 ~IRQ into the 6510's ~IRQ, nothing else
+    s += &net(7, "CIAIRQ", &[("U4", 21), ("U3", 3)]);
+    s += &net(8, "Net-(U5-Pad3)", &[("U5", 3)]);
+    s += &net(9, "Net-(U6-Pad1)", &[("U6", 1)]);
+    s += "  ))\n";
+    s
+}
+
+#[test]
+fn the_second_batch_finds_what_is_wrong_and_nothing_else_on_its_pins() {
+    let dir = std::env::temp_dir().join(format!("netmargin-periph2-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("second-batch.net");
+    std::fs::write(&path, second_batch_netlist()).unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["check", "--no-config", "--format", "json"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let found: Vec<(String, String, Vec<String>)> = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            (
+                f["check"].as_str().unwrap().to_string(),
+                f["severity"].as_str().unwrap().to_string(),
+                f["pins"]
+                    .as_array()
+                    .unwrap()
+                    .iter()
+                    .map(|p| p.as_str().unwrap().to_string())
+                    .collect(),
+            )
+        })
+        .collect();
+    let at = |pin: &str| -> Vec<(&str, &str)> {
+        found
+            .iter()
+            .filter(|f| f.2.iter().any(|p| p == pin))
+            .map(|f| (f.0.as_str(), f.1.as_str()))
+            .collect()
+    };
+    // 8088 RESET (Intel 8088 Table 1: active high, must be held low to run) left open: an error
+    assert!(
+        at("U1.21").iter().any(|f| f.1 == "error"),
+        "8088 RESET open: {found:?}"
+    );
+    // HOLD / RQ/GT0 depends on MN/MX: an open pin 31 is never called floating
+    assert!(at("U1.31").is_empty(), "8088 pin 31: {found:?}");
+    // the 8259A's IR inputs have internal pull-ups (Intel 8259A ILIR): no finding for IR1-IR7
+    for p in 19..=25 {
+        assert!(at(&format!("U2.{p}")).is_empty(), "8259A IR pin {p}: {found:?}");
+    }
+    // the 6526's ~IRQ is open drain (MOS 6526 data sheet): with no pull-up, an error
+    assert!(
+        at("U4.21").contains(&("missing-pull-up", "error")),
+        "6526 IRQ: {found:?}"
+    );
+    // the 75176's DE open: a TTL input floating high, a warning (its levels a stand-in)
+    assert!(
+        at("U5.3").contains(&("floating-ttl-input", "warning")),
+        "75176 DE: {found:?}"
+    );
+    // the 1489's line input takes RS-232 levels: never a logic finding
+    assert!(at("U6.1").is_empty(), "1489 line input: {found:?}");
+    // no power finding for parts whose supplies are wired
+    assert!(
+        found
+            .iter()
+            .all(|f| f.0 != "unpowered-part" && f.0 != "power-pin-miswired"),
+        "{found:?}"
+    );
+}
