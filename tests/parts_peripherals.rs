@@ -936,3 +936,51 @@ fn the_second_batch_finds_what_is_wrong_and_nothing_else_on_its_pins() {
         "{found:?}"
     );
 }
+
+#[test]
+fn z80_sio2_bonding_and_its_markings() {
+    // from memory: Zilog Z8442 (SIO/2); an emulator's SIO pin diagram agrees on these pins
+    expect_pins(
+        "z80-sio2",
+        40,
+        &[
+            (40, "D0", Bidirectional),
+            (1, "D1", Bidirectional),
+            (5, "~INT", OpenCollector),
+            // sources disagree on the order of IEI and IEO: neither is judged
+            (6, "IEI/IEO", Unknown),
+            (7, "IEO/IEI", Unknown),
+            (9, "VCC", Supply),
+            (31, "GND", Ground),
+            (10, "~W/RDYA", Unknown),
+            (30, "~W/RDYB", Unknown),
+            (11, "~SYNCA", Unknown),
+            (13, "~RxCA", Input),
+            (14, "~TxCA", Input),
+            (15, "TxDA", PushPull),
+            (20, "CLK", Input),
+            (21, "~RESET", Input),
+            // the SIO/2 bonding: DTRB, TxCB, RxCB kept, SYNCB given up (Zilog, as quoted)
+            (25, "~DTRB", PushPull),
+            (26, "TxDB", PushPull),
+            (27, "~TxCB", Input),
+            (28, "~RxCB", Input),
+            (29, "RxDB", Input),
+        ],
+    );
+    let got = classify_values(&[
+        ("U1", "Z8442APS", 40),
+        ("U2", "Z84C4208PEC", 40),
+        ("U3", "Z80SIO/2", 40),
+        // the SIO/0 and SIO/1 bond pins 25-29 otherwise: never the SIO/2 table
+        ("U4", "Z8440APS", 40),
+        ("U5", "Z84C4008PEC", 40),
+        ("U6", "Z80SIO/0", 40),
+    ]);
+    assert_eq!((got[0].1.as_deref(), got[0].2.as_deref()), (Some("NMOS"), Some("z80-sio2")));
+    assert_eq!((got[1].1.as_deref(), got[1].2.as_deref()), (Some("CMOS-TTL"), Some("z80-sio2")));
+    assert_eq!(got[2].2.as_deref(), Some("z80-sio2"));
+    for g in &got[3..] {
+        assert_ne!(g.2.as_deref(), Some("z80-sio2"), "{g:?}");
+    }
+}
