@@ -984,3 +984,52 @@ fn z80_sio2_bonding_and_its_markings() {
         assert_ne!(g.2.as_deref(), Some("z80-sio2"), "{g:?}");
     }
 }
+
+#[test]
+fn video_processor_tms9918a_and_9928a_pinouts() {
+    // from memory; a TI data-manual pin diagram (TMS9118 family with a TMS9918A column) and a
+    // replacement board's pin map agree on these pins
+    let common: &[(u32, &str, PinRole)] = &[
+        (1, "~RAS", PushPull),
+        (2, "~CAS", PushPull),
+        (10, "AD0", PushPull),
+        (11, "R/~W", PushPull),
+        (12, "VSS", Ground),
+        (13, "MODE", Input),
+        (14, "~CSW", Input),
+        (15, "~CSR", Input),
+        (16, "~INT", Unknown), // open drain not confirmed
+        (17, "CD7", Bidirectional),
+        (24, "CD0", Bidirectional),
+        (25, "RD7", Unknown),
+        (32, "RD0", Unknown),
+        (33, "VCC", Supply),
+        (34, "~RESET/SYNC", Input),
+        (37, "GROMCLK", PushPull),
+        (39, "XTAL2", Analog),
+        (40, "XTAL1", Analog),
+    ];
+    expect_pins("tms9918a", 40, common);
+    expect_pins("tms9928a", 40, common);
+    expect_pins(
+        "tms9918a",
+        40,
+        &[(35, "EXTVDP", Analog), (36, "COMVID", Analog), (38, "CPUCLK", PushPull)],
+    );
+    expect_pins(
+        "tms9928a",
+        40,
+        &[(35, "B-Y", Analog), (36, "Y", Analog), (38, "R-Y", Analog)],
+    );
+    let got = classify_values(&[
+        ("U1", "TMS9918ANL", 40),
+        ("U2", "TMS9929ANL", 40),
+        ("U3", "TMS9928A", 40),
+        // the V9938 (a 64-pin successor) is another part
+        ("U4", "V9938", 64),
+    ]);
+    assert_eq!((got[0].1.as_deref(), got[0].2.as_deref()), (Some("NMOS"), Some("tms9918a")));
+    assert_eq!(got[1].2.as_deref(), Some("tms9928a"));
+    assert_eq!(got[2].2.as_deref(), Some("tms9928a"));
+    assert!(got[3].2.as_deref().map_or(true, |f| !f.starts_with("tms99")));
+}
