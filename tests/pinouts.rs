@@ -1716,6 +1716,7 @@ fn partly_checked_75_and_107() {
 /// Every function whose whole pinout a test in this file checks against a named data sheet. Its
 /// `source` (and the comment above the entry) must name that document, never "from memory".
 const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
+    (S74, "89"),
     (S74, "00"),
     (S74, "02"),
     (S74, "04"),
@@ -2165,9 +2166,14 @@ fn merge_replaces_by_series_and_id() {
 
 #[test]
 fn ram_16x4_89_and_189() {
-    // from memory: 7489 / 74189 pin assignment (not yet read in a data sheet): address, enable,
-    // write-enable and data inputs; inverted outputs on 5, 7, 9, 11
+    // TI SN7489 bulletin DL-S 7511386, J or N package: address A 1, ME 2, WE 3, DI1-DI4 on 4, 6,
+    // 10, 12, open-collector DO1-DO4 on 5, 7, 9, 11, address D, C, B on 13-15; the 74189 as the
+    // 7489 with three-state outputs (from memory)
     let t = table();
+    let names = [(1u32, "A"), (2, "~ME"), (4, "DI1"), (5, "~DO1"), (11, "~DO4"), (13, "D"), (15, "B")];
+    for (pin, name) in names {
+        assert_eq!(func(&t, S74, "89").pin(&pin.to_string()).unwrap().name, name, "89 pin {pin}");
+    }
     let ins = [1u32, 2, 3, 4, 6, 10, 12, 13, 14, 15];
     let outs = [5u32, 7, 9, 11];
     let mut want: Vec<(u32, PinRole)> = ins.iter().map(|&p| (p, Input)).collect();
