@@ -732,7 +732,12 @@ fn line_receiver_1489_and_rs485_transceiver_75176_check_only_their_logic_side() 
     );
     // R is on while RE is low (SLLS376G: "receiver enable, active low")
     let t = table();
-    let r = t.get(Series::Other, "75176").unwrap().pin("1").unwrap().clone();
+    let r = t
+        .get(Series::Other, "75176")
+        .unwrap()
+        .pin("1")
+        .unwrap()
+        .clone();
     assert_eq!(r.enable, vec!["2".to_string()]);
     assert!(r.enable_active_low);
     let got = classify_values(&[
@@ -782,7 +787,12 @@ fn bipolar_proms_256x4_and_their_markings() {
     }
     // three-state outputs on while both enables are low
     let t = table();
-    let q = t.get(Series::Other, "prom256x4").unwrap().pin("9").unwrap().clone();
+    let q = t
+        .get(Series::Other, "prom256x4")
+        .unwrap()
+        .pin("9")
+        .unwrap()
+        .clone();
     assert_eq!(q.enable, vec!["13".to_string(), "14".to_string()]);
     assert!(q.enable_active_low);
     // p-n-p inputs (TI 1975 PROM bulletin): the 74LS figures stand in, never the 74S ones
@@ -816,14 +826,31 @@ fn bipolar_proms_256x4_and_their_markings() {
         ("U7", "MM74C89N", 16),
     ]);
     assert_ne!(got[6].2.as_deref(), Some("89"), "{:?}", got[6]);
-    assert_eq!((got[0].1.as_deref(), got[0].2.as_deref()), (Some("74LS"), Some("189")));
-    assert_eq!((got[1].1.as_deref(), got[1].2.as_deref()), (Some("74"), Some("89")));
-    assert_eq!((got[2].1.as_deref(), got[2].2.as_deref()), (Some("74S"), Some("189")));
+    assert_eq!(
+        (got[0].1.as_deref(), got[0].2.as_deref()),
+        (Some("74LS"), Some("189"))
+    );
+    assert_eq!(
+        (got[1].1.as_deref(), got[1].2.as_deref()),
+        (Some("74"), Some("89"))
+    );
+    assert_eq!(
+        (got[2].1.as_deref(), got[2].2.as_deref()),
+        (Some("74S"), Some("189"))
+    );
     // the 89 table is the standard-TTL 7489's; an LS "89" is not taken for it (from memory: the
     // Schottky open-collector versions are numbered 289)
     assert_eq!(got[3].2.as_deref(), None);
-    assert!(got[4].2.as_deref().map_or(true, |f| !f.starts_with("prom")), "{:?}", got[4]);
-    assert!(got[5].2.as_deref().map_or(true, |f| !f.starts_with("prom")), "{:?}", got[5]);
+    assert!(
+        got[4].2.as_deref().map_or(true, |f| !f.starts_with("prom")),
+        "{:?}",
+        got[4]
+    );
+    assert!(
+        got[5].2.as_deref().map_or(true, |f| !f.starts_with("prom")),
+        "{:?}",
+        got[5]
+    );
 }
 
 /// A small board of the new parts: an 8088 in minimum mode with HOLD open and RESET open, an
@@ -853,12 +880,29 @@ fn second_batch_netlist() -> String {
     s += &net(
         1,
         "+5V",
-        &[("U1", 40), ("U1", 33), ("U2", 28), ("U3", 6), ("U3", 5), ("U4", 20), ("U5", 8), ("U6", 14)],
+        &[
+            ("U1", 40),
+            ("U1", 33),
+            ("U2", 28),
+            ("U3", 6),
+            ("U3", 5),
+            ("U4", 20),
+            ("U5", 8),
+            ("U6", 14),
+        ],
     );
     s += &net(
         2,
         "GND",
-        &[("U1", 1), ("U1", 20), ("U2", 14), ("U3", 21), ("U4", 1), ("U5", 5), ("U6", 7)],
+        &[
+            ("U1", 1),
+            ("U1", 20),
+            ("U2", 14),
+            ("U3", 21),
+            ("U4", 1),
+            ("U5", 5),
+            ("U6", 7),
+        ],
     );
     // 8259A INT drives the 8088's INTR; IR0 driven by the 1489's output, IR1-IR7 open
     s += &net(3, "INTR", &[("U2", 17), ("U1", 18)]);
@@ -919,7 +963,10 @@ fn the_second_batch_finds_what_is_wrong_and_nothing_else_on_its_pins() {
     assert!(at("U1.31").is_empty(), "8088 pin 31: {found:?}");
     // the 8259A's IR inputs have internal pull-ups (Intel 8259A ILIR): no finding for IR1-IR7
     for p in 19..=25 {
-        assert!(at(&format!("U2.{p}")).is_empty(), "8259A IR pin {p}: {found:?}");
+        assert!(
+            at(&format!("U2.{p}")).is_empty(),
+            "8259A IR pin {p}: {found:?}"
+        );
     }
     // the 6526's ~IRQ is open drain (MOS 6526 data sheet): with no pull-up, an error
     assert!(
@@ -982,8 +1029,14 @@ fn z80_sio2_bonding_and_its_markings() {
         ("U5", "Z84C4008PEC", 40),
         ("U6", "Z80SIO/0", 40),
     ]);
-    assert_eq!((got[0].1.as_deref(), got[0].2.as_deref()), (Some("NMOS"), Some("z80-sio2")));
-    assert_eq!((got[1].1.as_deref(), got[1].2.as_deref()), (Some("CMOS-TTL"), Some("z80-sio2")));
+    assert_eq!(
+        (got[0].1.as_deref(), got[0].2.as_deref()),
+        (Some("NMOS"), Some("z80-sio2"))
+    );
+    assert_eq!(
+        (got[1].1.as_deref(), got[1].2.as_deref()),
+        (Some("CMOS-TTL"), Some("z80-sio2"))
+    );
     assert_eq!(got[2].2.as_deref(), Some("z80-sio2"));
     for g in &got[3..] {
         assert_ne!(g.2.as_deref(), Some("z80-sio2"), "{g:?}");
@@ -1019,7 +1072,11 @@ fn video_processor_tms9918a_and_9928a_pinouts() {
     expect_pins(
         "tms9918a",
         40,
-        &[(35, "EXTVDP", Analog), (36, "COMVID", Analog), (38, "CPUCLK", PushPull)],
+        &[
+            (35, "EXTVDP", Analog),
+            (36, "COMVID", Analog),
+            (38, "CPUCLK", PushPull),
+        ],
     );
     expect_pins(
         "tms9928a",
@@ -1033,8 +1090,14 @@ fn video_processor_tms9918a_and_9928a_pinouts() {
         // the V9938 (a 64-pin successor) is another part
         ("U4", "V9938", 64),
     ]);
-    assert_eq!((got[0].1.as_deref(), got[0].2.as_deref()), (Some("NMOS"), Some("tms9918a")));
+    assert_eq!(
+        (got[0].1.as_deref(), got[0].2.as_deref()),
+        (Some("NMOS"), Some("tms9918a"))
+    );
     assert_eq!(got[1].2.as_deref(), Some("tms9928a"));
     assert_eq!(got[2].2.as_deref(), Some("tms9928a"));
-    assert!(got[3].2.as_deref().map_or(true, |f| !f.starts_with("tms99")));
+    assert!(got[3]
+        .2
+        .as_deref()
+        .map_or(true, |f| !f.starts_with("tms99")));
 }

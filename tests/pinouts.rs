@@ -1950,8 +1950,7 @@ fn three_state_outputs_name_existing_enables() {
                 // a processor's bus floats when it grants the bus: the enable of its address
                 // pins is its own grant-acknowledge output (Z80 ~BUSAK, 8080 HLDA, 6809 BA), or
                 // a pin that is that output in one mode only (8086 HLDA, RQ/GT1 in maximum mode)
-                let own_status =
-                    f.series == Series::Other && matches!(en.role, PushPull | Unknown);
+                let own_status = f.series == Series::Other && matches!(en.role, PushPull | Unknown);
                 assert!(
                     en.role.is_input() || own_status,
                     "{} pin {}: enable {e} is {}",
@@ -2170,9 +2169,21 @@ fn ram_16x4_89_and_189() {
     // 10, 12, open-collector DO1-DO4 on 5, 7, 9, 11, address D, C, B on 13-15; the 74189 as the
     // 7489 with three-state outputs (from memory)
     let t = table();
-    let names = [(1u32, "A"), (2, "~ME"), (4, "DI1"), (5, "~DO1"), (11, "~DO4"), (13, "D"), (15, "B")];
+    let names = [
+        (1u32, "A"),
+        (2, "~ME"),
+        (4, "DI1"),
+        (5, "~DO1"),
+        (11, "~DO4"),
+        (13, "D"),
+        (15, "B"),
+    ];
     for (pin, name) in names {
-        assert_eq!(func(&t, S74, "89").pin(&pin.to_string()).unwrap().name, name, "89 pin {pin}");
+        assert_eq!(
+            func(&t, S74, "89").pin(&pin.to_string()).unwrap().name,
+            name,
+            "89 pin {pin}"
+        );
     }
     let ins = [1u32, 2, 3, 4, 6, 10, 12, 13, 14, 15];
     let outs = [5u32, 7, 9, 11];
