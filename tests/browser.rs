@@ -215,7 +215,7 @@ fn the_report_renders_in_chromium() {
         "level charts in the DOM"
     );
     assert!(dom.contains("high short 0.80 V SHORT"));
-    assert!(dom.contains("10.00 mA of 8.00 mA (125%) OVER"));
+    assert!(dom.contains("10.80 mA of 8.00 mA (135%) OVER"));
     let _ = std::fs::remove_dir_all(&work);
 }
 

@@ -548,3 +548,55 @@ fn a_three_state_bus_floats_at_info_unless_a_clock_sits_on_it() {
     // a floating bus is not a floating input
     quiet(&f, "/BUS_A", &["floating-cmos-input"]);
 }
+
+// ---------------------------------------------------------------------------------------------
+// 13. inputs that draw more than one unit load; outputs that only source
+//
+// Figures: 74LS04 IOL 8 mA (TI SDLS025B, SN74LS04); 74LS90 IIL: A (CKA) -2.4 mA, B (CKB)
+// -3.2 mA, against the 74LS unit load of -0.4 mA (Fairchild DM74LS90 electrical
+// characteristics); QA is tested at IOL plus the B input's IIL (the same sheet, note 4); 4511
+// segment outputs are NPN emitter followers (NXP HEF4511B Rev. 7, general description).
+
+#[test]
+fn a_counters_clock_input_counts_at_its_own_input_current() {
+    let f = run("input-loads");
+    // 5 x 2.4 mA = 12 mA against 8 mA: 150 %. At one unit load each (5 x 0.4 mA = 2 mA, 25 %)
+    // nothing would be found
+    let e = fires(&f, "/CLK_FAN", "fanout-overrun", "error");
+    assert!(e.message.contains("12.00 mA"), "{}", e.message);
+    assert!(e.message.contains("8.00 mA"), "{}", e.message);
+    assert!(e.message.contains("150%"), "{}", e.message);
+    assert!(e.message.contains("6 unit loads each"), "{}", e.message);
+    // 2 x 2.4 mA = 4.8 mA: 60 %, below the 80 % derating
+    quiet(&f, "/CLK_TWO", &["fanout-overrun"]);
+    // three other packages' B inputs: 3 x 3.2 mA = 9.6 mA, 120 %; QA's own B input not counted
+    let e = fires(&f, "/QA_U3", "fanout-overrun", "error");
+    assert!(e.message.contains("9.60 mA"), "{}", e.message);
+    assert!(e.message.contains("120%"), "{}", e.message);
+}
+
+#[test]
+fn an_output_rated_with_its_own_input_does_not_count_it_again() {
+    let f = run("input-loads");
+    // QA into its own B input and ten 74LS inputs: 10 x 0.4 mA = 4 mA (50 %); counting the B
+    // input's 3.2 mA would make 7.2 mA (90 %), above the 80 % derating
+    quiet(&f, "/QA_U2", &["fanout-overrun"]);
+    quiet(&f, "/QA_U7", &["fanout-overrun"]);
+}
+
+#[test]
+fn display_driver_segment_outputs_only_source() {
+    let f = run("input-loads");
+    // 1 kOhm and a red LED from a 4511 segment: the emitter follower sources it; a 4000B gate's
+    // output rating (well under 1 mA at 5 V) does not apply to it
+    for net in ["/SEG_A", "/SEG_B"] {
+        quiet(
+            &f,
+            net,
+            &["output-load-current", "fanout-overrun", "output-contention"],
+        );
+    }
+    // the symbol types the segment outputs as outputs: that is not a disagreement worth a
+    // finding
+    part_quiet(&f, "U11", &["pin-role-mismatch"]);
+}

@@ -979,13 +979,15 @@ fn partly_checked_4013_and_4511() {
     }
     // NXP HEF4511B Rev. 7, functional diagram: D1=1 D2=2 LT~=3 BL~=4 LE=5 D3=6 D0=7 Qe=9 Qd=10
     // Qc=11 Qb=12 Qa=13 Qg=14 Qf=15 (LT and BL active LOW per its general description). The
-    // supply pins (VSS=8, VDD=16) were not in the text read and stay from memory.
+    // supply pins (VSS=8, VDD=16) were not in the text read and stay from memory. Its general
+    // description calls the segment outputs "NPN bipolar transistor" outputs: emitter
+    // followers, open-emitter.
     let mut read = vec![];
     for pin in 1..=7 {
         read.push((pin, i));
     }
     for pin in 9..=15 {
-        read.push((pin, p));
+        read.push((pin, OpenEmitter));
     }
     expect_roles(&t, S40, "4511", 16, &read);
     for (pin, name) in [
@@ -2163,6 +2165,7 @@ fn merge_replaces_by_series_and_id() {
     assert_eq!(func(&t, S74, "08").package_pins, 14);
 }
 
+<<<<<<< HEAD
 #[test]
 fn ram_16x4_89_and_189() {
     // TI SN7489 bulletin DL-S 7511386, J or N package: address A 1, ME 2, WE 3, DI1-DI4 on 4, 6,
@@ -2199,4 +2202,73 @@ fn ram_16x4_89_and_189() {
     let q1 = func(&t, S74, "189").pin("5").unwrap();
     assert_eq!(q1.enable, vec!["2".to_string()]);
     assert!(q1.enable_active_low);
+=======
+/// Inputs that draw more than one unit load: the table's multiples times the family's input
+/// currents give each data sheet's own figure for that input.
+#[test]
+fn heavy_inputs_draw_their_data_sheet_currents() {
+    use netmargin::classify::family::{Drive, FamilyTable};
+    let t = table();
+    let fams = FamilyTable::parse_shipped().expect("families load");
+    let ls = fams.get("74LS").expect("74LS").levels(5.0, Drive::Standard);
+    let current = |id: &str, pin: &str, fam: &str, iil: f64, iih: f64| -> (f64, f64) {
+        let f = t.get(S74, id).expect(id);
+        let (lo, hi) = f.load_for_family(pin, fam).unwrap_or((1.0, 1.0));
+        (lo * iil.abs(), hi * iih.abs())
+    };
+    let close = |a: f64, b: f64| (a - b).abs() < 1e-9;
+    let cases: &[(&str, &str, f64, f64, &str)] = &[
+        // Fairchild DM74LS90 electrical characteristics: IIL A -2.4 mA, B -3.2 mA, reset
+        // -0.4 mA; IIH A 40 uA, B 80 uA, reset 20 uA
+        ("90", "14", 2.4e-3, 40e-6, "DM74LS90 A"),
+        ("90", "1", 3.2e-3, 80e-6, "DM74LS90 B"),
+        ("90", "2", 0.4e-3, 20e-6, "DM74LS90 reset"),
+        // Fairchild DM74LS74A: IIL D and clock -0.4 mA, preset and clear -0.8 mA; IIH 20 and
+        // 40 uA
+        ("74", "1", 0.8e-3, 40e-6, "DM74LS74A clear"),
+        ("74", "4", 0.8e-3, 40e-6, "DM74LS74A preset"),
+        ("74", "2", 0.4e-3, 20e-6, "DM74LS74A D"),
+        ("74", "3", 0.4e-3, 20e-6, "DM74LS74A clock"),
+        // Fairchild DM74LS112A: IIL J, K -0.4 mA, clear, preset, clock -0.8 mA; IIH J, K
+        // 20 uA, clear and preset 60 uA, clock 80 uA
+        ("112", "15", 0.8e-3, 60e-6, "DM74LS112A clear"),
+        ("112", "4", 0.8e-3, 60e-6, "DM74LS112A preset"),
+        ("112", "1", 0.8e-3, 80e-6, "DM74LS112A clock"),
+        ("112", "3", 0.4e-3, 20e-6, "DM74LS112A J"),
+        // Fairchild DM74LS157: IIL S or G -0.8 mA, A or B -0.4 mA; IIH 40 and 20 uA
+        ("157", "1", 0.8e-3, 40e-6, "DM74LS157 select"),
+        ("157", "15", 0.8e-3, 40e-6, "DM74LS157 strobe"),
+        ("157", "2", 0.4e-3, 20e-6, "DM74LS157 data"),
+    ];
+    // National DM74LS93: IIL A -2.4 mA, B -1.6 mA (its IIH not read: one unit load)
+    assert!(close(
+        current("93", "14", "74LS", ls.iil_max, ls.iih_max).0,
+        2.4e-3
+    ));
+    assert!(close(
+        current("93", "1", "74LS", ls.iil_max, ls.iih_max).0,
+        1.6e-3
+    ));
+    for &(id, pin, iil, iih, what) in cases {
+        let (lo, hi) = current(id, pin, "74LS", ls.iil_max, ls.iih_max);
+        assert!(
+            close(lo, iil),
+            "{what}: IIL {lo} A, the sheet gives {iil} A"
+        );
+        assert!(
+            close(hi, iih),
+            "{what}: IIH {hi} A, the sheet gives {iih} A"
+        );
+    }
+    // a family the entry does not name draws one unit load (74HC: no multiple given)
+    assert_eq!(
+        t.get(S74, "90").unwrap().load_for_family("14", "74HC"),
+        None
+    );
+    // the 74LS90's QA is rated with its own B input on it (DM74LS90 note 4)
+    assert_eq!(
+        t.get(S74, "90").unwrap().pin("12").unwrap().rated_with,
+        vec!["1"]
+    );
+>>>>>>> main
 }

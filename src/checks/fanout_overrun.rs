@@ -9,7 +9,8 @@
 //! loads' thresholds, the noise margin is gone, and the output runs hot.
 //!
 //! Example: one 74LS04 output driving 25 74LS inputs must sink 25 x 0.4 mA = 10 mA against
-//! its rated 8 mA (125 %).
+//! its rated 8 mA (125 %). An input the function table says draws more (a 74LS90's clock
+//! input, six unit loads: 2.4 mA) counts at its own current, and the message says so.
 //!
 //! Fix: split the load across two outputs, or buffer it with a bus driver (a 74LS244 sinks
 //! 24 mA), or use a family whose inputs draw less (74HCT inputs draw about 1 uA).
@@ -40,6 +41,15 @@ fn grade(ratio: f64, derating: f64) -> Option<Severity> {
         Some(Severity::Warning)
     } else {
         None
+    }
+}
+
+/// A number of unit loads: `6`, `2.5`.
+fn unit_text(u: f64) -> String {
+    if (u - u.round()).abs() < 1e-9 {
+        format!("{u:.0}")
+    } else {
+        format!("{u:.1}")
     }
 }
 
@@ -92,9 +102,29 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     String::new()
                 };
+                // inputs that draw more than one unit load (a counter's clock): say how many
+                let heavy: Vec<&crate::circuit::budget::Item> =
+                    sb.items.iter().filter(|i| i.unit_loads.is_some()).collect();
+                let heavy_note = match heavy.first().and_then(|i| i.unit_loads) {
+                    Some(u) if heavy.len() == sb.items.len() && same => {
+                        format!(", {} unit loads each", unit_text(u))
+                    }
+                    Some(u) if heavy.iter().all(|i| i.unit_loads == Some(u)) => {
+                        format!(", {} of them {} unit loads each", heavy.len(), unit_text(u))
+                    }
+                    Some(_) => {
+                        let units: f64 = heavy.iter().filter_map(|i| i.unit_loads).sum();
+                        format!(
+                            ", {} of them {} unit loads in all",
+                            heavy.len(),
+                            unit_text(units)
+                        )
+                    }
+                    None => String::new(),
+                };
                 let detail = if same && !sb.items.is_empty() {
                     format!(
-                        "{} input{} x {}{through_note}",
+                        "{} input{} x {}{heavy_note}{through_note}",
                         n_inputs,
                         if n_inputs == 1 { "" } else { "s" },
                         format_amps(sb.items[0].amps)
@@ -102,7 +132,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     let other = sb.items.len() - n_inputs;
                     let inputs = format!(
-                        "{} input{}{through_note}",
+                        "{} input{}{heavy_note}{through_note}",
                         n_inputs,
                         if n_inputs == 1 { "" } else { "s" },
                     );

@@ -118,9 +118,9 @@ fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
         .loads
         .iter()
         .filter(|l| !nm.drivers.iter().any(|d| d.at == l.at));
-    let levels: Vec<_> = others.filter_map(|l| l.levels.as_ref()).collect();
-    let inputs_low: f64 = levels.iter().map(|l| l.iil_max.abs()).sum();
-    let inputs_high: f64 = levels.iter().map(|l| l.iih_max.abs()).sum();
+    let others: Vec<_> = others.collect();
+    let inputs_low: f64 = others.iter().filter_map(|l| l.iil()).sum();
+    let inputs_high: f64 = others.iter().filter_map(|l| l.iih()).sum();
     let lv = nm.loads.iter().filter_map(|l| l.levels.as_ref());
     let vil = lv.clone().map(|l| l.vil_max).reduce(f64::min)?;
     let vih = lv.map(|l| l.vih_min).reduce(f64::max)?;

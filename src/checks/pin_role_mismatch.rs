@@ -43,7 +43,9 @@ pub fn types_agree(role: PinRole, ptype: PinType) -> bool {
         R::Input | R::SchmittInput => ptype == T::Input,
         R::PushPull => ptype == T::Output,
         R::OpenCollector => ptype == T::OpenCollector,
-        R::OpenEmitter => ptype == T::OpenEmitter,
+        // an emitter follower drives high like any output; symbol libraries draw a display
+        // driver's segment outputs (a 4511's) as outputs, and that misleads no one
+        R::OpenEmitter => matches!(ptype, T::OpenEmitter | T::Output),
         R::ThreeState => ptype == T::TriState,
         R::Bidirectional => matches!(ptype, T::Bidirectional | T::TriState),
         R::PulledUpIo => matches!(ptype, T::Input | T::OpenCollector | T::Bidirectional),

@@ -97,18 +97,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 let v = s.vcc;
                 let vol = dl.vol.last().map_or(0.4, |p| p.v);
                 let iol = dl.iol_max.abs();
-                let sum_iil: f64 = nm
-                    .loads
-                    .iter()
-                    .filter_map(|x| x.levels.as_ref())
-                    .map(|x| x.iil_max.abs())
-                    .sum();
-                let sum_iih: f64 = nm
-                    .loads
-                    .iter()
-                    .filter_map(|x| x.levels.as_ref())
-                    .map(|x| x.iih_max.abs())
-                    .sum();
+                let sum_iil: f64 = nm.loads.iter().filter_map(|x| x.iil()).sum();
+                let sum_iih: f64 = nm.loads.iter().filter_map(|x| x.iih()).sum();
                 let vih_max = nm
                     .loads
                     .iter()

@@ -78,12 +78,7 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
         .filter_map(|l| l.levels.as_ref())
         .map(|l| l.vil_max)
         .reduce(f64::min)?;
-    let iil: f64 = nm
-        .loads
-        .iter()
-        .filter_map(|l| l.levels.as_ref())
-        .map(|l| l.iil_max.abs())
-        .sum();
+    let iil: f64 = nm.loads.iter().filter_map(|l| l.iil()).sum();
     let g: f64 = nm
         .pulls
         .iter()

@@ -144,6 +144,8 @@ mod tests {
             table_names: vec![None],
             units: vec![None],
             enables: vec![Vec::new()],
+            input_loads: vec![None],
+            rated_with: vec![Vec::new()],
             entry: None,
             symbol_reads_as: None,
         }

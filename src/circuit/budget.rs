@@ -7,7 +7,7 @@
 use super::{Circuit, PinRef};
 use crate::classify::family::{Drive, HighOutput, Technology};
 use crate::classify::PinRole;
-use crate::values::format_ohms;
+use crate::values::{format_amps, format_ohms};
 
 /// One contribution to a state's current.
 #[derive(Debug, Clone)]
@@ -16,6 +16,9 @@ pub struct Item {
     pub at: Option<PinRef>,
     /// Magnitude in amperes.
     pub amps: f64,
+    /// For a logic input that draws more than one of its family's input currents in this
+    /// state: how many.
+    pub unit_loads: Option<f64>,
 }
 
 /// One state (low or high) of one driver.
@@ -380,6 +383,66 @@ pub struct NetBudget {
     pub window: Option<PullUpWindow>,
 }
 
+/// True when input `l` counts against driver `d`'s rating: not the driver's own pin, and
+/// not one of its package's inputs the data sheet already rates the output with (a
+/// counter's QA is tested at IOL plus its second clock's IIL).
+fn counted(cx: &Circuit<'_, '_>, d: &super::Driver, l: &super::Load) -> bool {
+    l.at != d.at
+        && !(l.at.comp == d.at.comp
+            && cx.cl.parts[d.at.comp].rated_with[d.at.pin].contains(&l.at.pin))
+}
+
+/// A logic input's line in a state's budget: its current, and when it draws more than one
+/// of its family's input currents, how many (`6 unit loads: 6 x 0.40 mA`).
+fn input_item(
+    cx: &Circuit<'_, '_>,
+    l: &super::Load,
+    low: bool,
+    through: Option<usize>,
+) -> Option<Item> {
+    let ll = l.levels.as_ref()?;
+    let (amps, each, units, what) = if low {
+        (
+            l.iil()?,
+            ll.iil_max.abs(),
+            l.unit_loads.0,
+            "input low current (IIL)",
+        )
+    } else {
+        (
+            l.iih()?,
+            ll.iih_max.abs(),
+            l.unit_loads.1,
+            "input high current (IIH)",
+        )
+    };
+    let mut text = format!("{} {what}", cx.pin_name(l.at));
+    if let Some(part) = through {
+        text.push_str(&format!(", through {}", cx.nl.components[part].reference));
+    }
+    if (units - 1.0).abs() > 1e-9 {
+        let n = if (units - units.round()).abs() < 1e-9 {
+            format!("{units:.0}")
+        } else {
+            format!("{units:.1}")
+        };
+        let name = cx.cl.parts[l.at.comp].table_names[l.at.pin]
+            .clone()
+            .unwrap_or_else(|| "the input".into());
+        let family = l.family.as_deref().unwrap_or("its family");
+        text.push_str(&format!(
+            ": {name} draws {n} unit loads ({n} x the {family} input's {})",
+            format_amps(each)
+        ));
+    }
+    Some(Item {
+        what: text,
+        at: Some(l.at),
+        amps,
+        unit_loads: ((units - 1.0).abs() > 1e-9).then_some(units),
+    })
+}
+
 fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
     let g: f64 = rs.filter(|r| *r > 0.0).map(|r| 1.0 / r).sum();
     (g > 0.0).then(|| 1.0 / g)
@@ -392,7 +455,12 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
     let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
     for (di, d) in nm.drivers.iter().enumerate() {
-        let Some(lv) = &d.levels else {
+        // an open-emitter output (a display driver's emitter follower) only sources: it has no
+        // low state to budget, and its high is rated by its own data sheet, not by its
+        // family's logic outputs (a 4511 segment sources 25 mA where a 4000B gate gives
+        // under 1 mA), so neither state is judged against the family's figures
+        let levels = d.levels.as_ref().filter(|_| d.role != PinRole::OpenEmitter);
+        let Some(lv) = levels else {
             out.drivers.push(DriverBudget {
                 driver: di,
                 low: None,
@@ -409,14 +477,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         let voh_light = lv.voh.first().map_or(2.4, |p| p.v);
         // --- low state: this driver low, every other driver high or off
         let mut items = Vec::new();
-        for l in nm.loads.iter().filter(|l| l.at != d.at) {
-            if let Some(ll) = &l.levels {
-                items.push(Item {
-                    what: format!("{} input low current (IIL)", cx.pin_name(l.at)),
-                    at: Some(l.at),
-                    amps: ll.iil_max.abs(),
-                });
-            }
+        for l in nm.loads.iter().filter(|l| counted(cx, d, l)) {
+            items.extend(input_item(cx, l, true, None));
         }
         for &pi in &pullups {
             let p = &nm.pulls[pi];
@@ -432,22 +494,13 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 ),
                 at: Some(p.at),
                 amps: a,
+                unit_loads: None,
             });
         }
         // inputs on nets this one feeds through series resistors, beads or inductors
         for &(m, link) in &nm.feeds {
             for l in &cx.nets[m].loads {
-                if let Some(ll) = &l.levels {
-                    items.push(Item {
-                        what: format!(
-                            "{} input low current (IIL), through {}",
-                            cx.pin_name(l.at),
-                            cx.nl.components[link.part].reference
-                        ),
-                        at: Some(l.at),
-                        amps: ll.iil_max.abs(),
-                    });
-                }
+                items.extend(input_item(cx, l, true, Some(link.part)));
             }
         }
         // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
@@ -472,6 +525,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 ),
                 at: Some(p.at),
                 amps: a,
+                unit_loads: None,
             });
         }
         for (oi, o) in nm.drivers.iter().enumerate() {
@@ -484,11 +538,13 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                         what: format!("{} off-state leakage (IOZ)", cx.pin_name(o.at)),
                         at: Some(o.at),
                         amps: ol.ioz.abs(),
+                        unit_loads: None,
                     }),
                     PinRole::OpenCollector => items.push(Item {
                         what: format!("{} off-state leakage", cx.pin_name(o.at)),
                         at: Some(o.at),
                         amps: ol.oc_leakage.abs(),
+                        unit_loads: None,
                     }),
                     _ => {}
                 }
@@ -512,29 +568,17 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         );
         let mut load_high: f64 = 0.0;
         let mut items = Vec::new();
-        for l in nm.loads.iter().filter(|l| l.at != d.at) {
-            if let Some(ll) = &l.levels {
-                load_high += ll.iih_max.abs();
-                items.push(Item {
-                    what: format!("{} input high current (IIH)", cx.pin_name(l.at)),
-                    at: Some(l.at),
-                    amps: ll.iih_max.abs(),
-                });
+        for l in nm.loads.iter().filter(|l| counted(cx, d, l)) {
+            if let Some(it) = input_item(cx, l, false, None) {
+                load_high += it.amps;
+                items.push(it);
             }
         }
         for &(m, link) in &nm.feeds {
             for l in &cx.nets[m].loads {
-                if let Some(ll) = &l.levels {
-                    load_high += ll.iih_max.abs();
-                    items.push(Item {
-                        what: format!(
-                            "{} input high current (IIH), through {}",
-                            cx.pin_name(l.at),
-                            cx.nl.components[link.part].reference
-                        ),
-                        at: Some(l.at),
-                        amps: ll.iih_max.abs(),
-                    });
+                if let Some(it) = input_item(cx, l, false, Some(link.part)) {
+                    load_high += it.amps;
+                    items.push(it);
                 }
             }
         }
@@ -553,6 +597,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     what: format!("{} off-state leakage", cx.pin_name(o.at)),
                     at: Some(o.at),
                     amps: a,
+                    unit_loads: None,
                 });
             }
         }
@@ -575,6 +620,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     ),
                     at: Some(p.at),
                     amps: a,
+                    unit_loads: None,
                 });
             }
             let total: f64 = items.iter().map(|i| i.amps).sum();
@@ -612,9 +658,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         let iil: f64 = nm
             .loads
             .iter()
-            .filter(|l| l.at != d.at)
-            .filter_map(|l| l.levels.as_ref())
-            .map(|l| l.iil_max.abs())
+            .filter(|l| counted(cx, d, l))
+            .filter_map(|l| l.iil())
             .sum();
         let stops_short = cx
             .family(d.at.comp)
@@ -696,18 +741,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .expect("filtered on levels");
             let vol = lv.vol.last().map_or(0.4, |p| p.v);
             let iol = lv.iol_max.abs();
-            let sum_iil: f64 = nm
-                .loads
-                .iter()
-                .filter_map(|l| l.levels.as_ref())
-                .map(|l| l.iil_max.abs())
-                .sum();
-            let sum_high: f64 = nm
-                .loads
-                .iter()
-                .filter_map(|l| l.levels.as_ref())
-                .map(|l| l.iih_max.abs())
-                .sum::<f64>()
+            let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.iil()).sum();
+            let sum_high: f64 = nm.loads.iter().filter_map(|l| l.iih()).sum::<f64>()
                 + oc.iter()
                     .filter_map(|&i| nm.drivers[i].levels.as_ref())
                     .map(|l| l.oc_leakage.abs())

@@ -142,6 +142,26 @@ pub struct Load {
     pub input_limit: Option<f64>,
     /// True for TTL (bipolar) inputs that source current when low.
     pub ttl: bool,
+    /// How many of its family's input currents this input draws, low and high: (1, 1) for
+    /// most inputs; more for those the function table names (a counter's clock, a
+    /// flip-flop's clear).
+    pub unit_loads: (f64, f64),
+}
+
+impl Load {
+    /// The input's low-state current magnitude (its family's IIL times its unit loads).
+    pub fn iil(&self) -> Option<f64> {
+        self.levels
+            .as_ref()
+            .map(|l| l.iil_max.abs() * self.unit_loads.0)
+    }
+
+    /// The input's high-state current magnitude (its family's IIH times its unit loads).
+    pub fn iih(&self) -> Option<f64> {
+        self.levels
+            .as_ref()
+            .map(|l| l.iih_max.abs() * self.unit_loads.1)
+    }
 }
 
 /// A resistor from this net to a rail.
@@ -342,6 +362,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
             PinRole::Input | PinRole::SchmittInput => "input",
             PinRole::PushPull => "output",
             PinRole::OpenCollector => "open-collector output",
+            PinRole::OpenEmitter => "open-emitter output",
             PinRole::ThreeState => "three-state output",
             PinRole::Bidirectional => "bidirectional pin",
             PinRole::Supply => "supply pin",
@@ -632,6 +653,7 @@ pub fn build<'n, 'a>(
                         ttl: fam.is_some_and(|f| !f.is_cmos_input()),
                         levels: lv,
                         family: part.family.clone(),
+                        unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
                     });
                 }
                 PinRole::PushPull
@@ -664,6 +686,7 @@ pub fn build<'n, 'a>(
                         ttl: fam.is_some_and(|f| !f.is_cmos_input()),
                         levels: lv,
                         family: part.family.clone(),
+                        unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
                     });
                 }
                 PinRole::Supply | PinRole::Ground => nm.power_pins.push(at),

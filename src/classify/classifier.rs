@@ -144,6 +144,12 @@ pub struct PartClass {
     pub units: Vec<Option<String>>,
     /// For a three-state pin: indices (into the component's pins) of its enables.
     pub enables: Vec<Vec<usize>>,
+    /// For an input the function table says draws more than one unit load in this part's
+    /// family: the multiples of the family's (IIL, IIH) it draws.
+    pub input_loads: Vec<Option<(f64, f64)>>,
+    /// For an output the data sheet rates with some of the package's own inputs on it:
+    /// indices (into the component's pins) of those inputs.
+    pub rated_with: Vec<Vec<usize>>,
     /// Index of the explicit entry used, if any.
     pub entry: Option<usize>,
     /// When the symbol's own name (the library part) reads as another part than the value
@@ -715,6 +721,8 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         let mut table_names = vec![None; n];
         let mut units = vec![None; n];
         let mut enables = vec![Vec::new(); n];
+        let mut input_loads = vec![None; n];
+        let mut rated_with = vec![Vec::new(); n];
         let func = function
             .as_ref()
             .and_then(|(s, id)| rules.functions.get(*s, id));
@@ -727,6 +735,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     role_source.push(RoleSource::Table);
                     table_names[i] = Some(d.name.clone());
                     units[i] = d.unit.clone();
+                    input_loads[i] = f.load_for_family(&p.num, &fam);
+                    rated_with[i] = d
+                        .rated_with
+                        .iter()
+                        .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
+                        .collect();
                     enables[i] = d
                         .enable
                         .iter()
@@ -783,6 +797,8 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             table_names,
             units,
             enables,
+            input_loads,
+            rated_with,
             entry,
         });
     }

@@ -25,6 +25,13 @@
 //! bidirectional pin names its enables: `enable = [1], enable_active = "low"`. A control input
 //! that must be held (a processor's `~WAIT`, `~INT`, `~RESET`) says where: `idle = "high"`. `unit = "common"`
 //! (or no unit) marks a pin shared by the whole device.
+//!
+//! An input that draws more than the family's input current (a flip-flop's clear, a
+//! counter's clock) says how much, per family, as a multiple of the family's IIL and IIH:
+//! `loads = { "74LS" = 2.0, "74" = { low = 2.0, high = 3.0 } }` (one number: the same
+//! multiple in both states). A family not listed draws one unit load. An output whose
+//! rating the data sheet tests with one of the package's own inputs on it says which:
+//! `rated_with = [1]` (a counter's QA, tested at IOL plus its second clock's IIL).
 
 use std::collections::{HashMap, HashSet};
 use std::ops::Range;
@@ -88,6 +95,23 @@ pub struct PinDef {
     /// reset input): the level at which the part runs undisturbed, `Some(true)` for high. An
     /// unused one is tied there, never to the other rail.
     pub idle_high: Option<bool>,
+    /// For an input that draws more than one unit load in some families: per family, the
+    /// multiples of the family's input currents it draws.
+    pub loads: Vec<PinLoad>,
+    /// For an output whose rating the data sheet already tests with one of the package's
+    /// own inputs on it (a counter's QA feeding its second clock): those input pins, which
+    /// a budget does not count against the output again.
+    pub rated_with: Vec<String>,
+}
+
+/// What one input draws in one family, as multiples of the family's IIL and IIH.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct PinLoad {
+    pub family: String,
+    /// Multiple of the family's IIL (the low-state input current).
+    pub low: f64,
+    /// Multiple of the family's IIH (the high-state input current).
+    pub high: f64,
 }
 
 /// A family-dependent change of output kind: the open-collector outputs of the function
@@ -156,6 +180,16 @@ impl Function {
             Some(v) if pin.role == PinRole::OpenCollector => Some(v.outputs),
             _ => Some(pin.role),
         }
+    }
+
+    /// The multiples of `family_id`'s (IIL, IIH) that pin `number` draws, when the table
+    /// gives them for that family.
+    pub fn load_for_family(&self, number: &str, family_id: &str) -> Option<(f64, f64)> {
+        self.pin(number)?
+            .loads
+            .iter()
+            .find(|l| l.family.eq_ignore_ascii_case(family_id.trim()))
+            .map(|l| (l.low, l.high))
     }
 
     /// True when the function exists in `family_id` (no `families` restriction, or listed).
@@ -342,6 +376,16 @@ struct RawPin {
     enable: Option<Vec<Spanned<u32>>>,
     enable_active: Option<Spanned<String>>,
     idle: Option<Spanned<String>>,
+    loads: Option<Spanned<std::collections::BTreeMap<String, RawLoad>>>,
+    rated_with: Option<Vec<Spanned<u32>>>,
+}
+
+/// One family's load of an input: one multiple for both states, or each state's.
+#[derive(Deserialize)]
+#[serde(untagged)]
+enum RawLoad {
+    Both(f64),
+    Split { low: f64, high: f64 },
 }
 
 #[derive(Deserialize)]
@@ -566,7 +610,10 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
                 let mut pins = src.pins.clone();
                 if let Some(o) = p.outputs {
                     for pd in &mut pins {
-                        if matches!(pd.role, PinRole::PushPull | PinRole::OpenCollector) {
+                        if matches!(
+                            pd.role,
+                            PinRole::PushPull | PinRole::OpenCollector | PinRole::OpenEmitter
+                        ) {
                             pd.role = o;
                         }
                     }
@@ -742,7 +789,56 @@ fn build_pins(
                 ),
             ));
         }
+        let mut loads = Vec::new();
+        if let Some(l) = &rp.loads {
+            if !role.is_input() {
+                errors.push(RuleError::new(
+                    Some(l.span()),
+                    format!(
+                        "function `{id}`: pin {n} ({}) is {role}; `loads` applies to inputs",
+                        rp.name
+                    ),
+                ));
+            }
+            for (family, raw) in l.get_ref() {
+                let (low, high) = match raw {
+                    RawLoad::Both(x) => (*x, *x),
+                    RawLoad::Split { low, high } => (*low, *high),
+                };
+                if !(low.is_finite() && high.is_finite() && low > 0.0 && high > 0.0) {
+                    errors.push(RuleError::new(
+                        Some(l.span()),
+                        format!(
+                            "function `{id}`: pin {n} ({}): the load in `{family}` must be a \
+                             positive multiple of the family's input current",
+                            rp.name
+                        ),
+                    ));
+                    continue;
+                }
+                loads.push(PinLoad {
+                    family: family.trim().to_string(),
+                    low,
+                    high,
+                });
+            }
+        }
+        if rp.rated_with.is_some() && !role.is_output() {
+            errors.push(RuleError::new(
+                Some(sp.span()),
+                format!(
+                    "function `{id}`: pin {n} ({}) is {role}; `rated_with` applies to outputs",
+                    rp.name
+                ),
+            ));
+        }
         out.push(PinDef {
+            loads,
+            rated_with: rp
+                .rated_with
+                .as_ref()
+                .map(|e| e.iter().map(|k| k.get_ref().to_string()).collect())
+                .unwrap_or_default(),
             pin: n.to_string(),
             name: rp.name.clone(),
             role,
@@ -759,6 +855,18 @@ fn build_pins(
     // Enables must name pins of this package.
     for sp in list.get_ref() {
         let rp = sp.get_ref();
+        for e in rp.rated_with.iter().flatten() {
+            if !numbers.contains_key(e.get_ref()) {
+                errors.push(RuleError::new(
+                    Some(e.span()),
+                    format!(
+                        "function `{id}`: pin {} is rated with pin {}, which is not listed",
+                        rp.pin.get_ref(),
+                        e.get_ref()
+                    ),
+                ));
+            }
+        }
         for e in rp.enable.iter().flatten() {
             if !numbers.contains_key(e.get_ref()) {
                 errors.push(RuleError::new(
@@ -903,6 +1011,50 @@ variants = [ { families = ["74HC"], outputs = "push-pull" } ]
         ));
         assert!(e[0].message.contains("colour"), "{e:?}");
         assert!(e[0].span.is_some());
+    }
+
+    #[test]
+    fn input_loads_by_family_one_number_or_each_state() {
+        let text = SMALL.replace(
+            r#"name = "1A", role = "input", unit = "A""#,
+            r#"name = "1A", role = "input", unit = "A", loads = { "74LS" = 6.0, "74" = { low = 2.0, high = 3.0 } }"#,
+        );
+        let t = FunctionTable::parse(&text).unwrap();
+        let f = t.get(Series::S74, "00").unwrap();
+        assert_eq!(f.load_for_family("1", "74LS"), Some((6.0, 6.0)));
+        assert_eq!(f.load_for_family("1", "74ls"), Some((6.0, 6.0)));
+        assert_eq!(f.load_for_family("1", "74"), Some((2.0, 3.0)));
+        assert_eq!(f.load_for_family("1", "74HC"), None);
+        assert_eq!(f.load_for_family("2", "74LS"), None);
+        // a copy carries its original's loads
+        let c = t.get(Series::S74, "03").unwrap();
+        assert_eq!(c.load_for_family("1", "74LS"), Some((6.0, 6.0)));
+    }
+
+    #[test]
+    fn loads_apply_to_inputs_and_are_positive() {
+        let text = SMALL.replace(
+            r#"name = "1Y", role = "push-pull""#,
+            r#"name = "1Y", role = "push-pull", loads = { "74LS" = 2.0 }"#,
+        );
+        assert!(errs(&text)[0].message.contains("`loads` applies to inputs"));
+        let text = SMALL.replace(
+            r#"name = "1A", role = "input""#,
+            r#"name = "1A", role = "input", loads = { "74LS" = 0.0 }"#,
+        );
+        assert!(errs(&text)[0].message.contains("positive multiple"));
+        let text = SMALL.replace(
+            r#"name = "1Y", role = "push-pull""#,
+            r#"name = "1Y", role = "push-pull", rated_with = [15]"#,
+        );
+        assert!(errs(&text)[0].message.contains("rated with pin 15"));
+        let text = SMALL.replace(
+            r#"name = "1A", role = "input""#,
+            r#"name = "1A", role = "input", rated_with = [2]"#,
+        );
+        assert!(errs(&text)[0]
+            .message
+            .contains("`rated_with` applies to outputs"));
     }
 
     #[test]
