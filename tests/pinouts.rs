@@ -2165,7 +2165,6 @@ fn merge_replaces_by_series_and_id() {
     assert_eq!(func(&t, S74, "08").package_pins, 14);
 }
 
-<<<<<<< HEAD
 #[test]
 fn ram_16x4_89_and_189() {
     // TI SN7489 bulletin DL-S 7511386, J or N package: address A 1, ME 2, WE 3, DI1-DI4 on 4, 6,
@@ -2202,7 +2201,8 @@ fn ram_16x4_89_and_189() {
     let q1 = func(&t, S74, "189").pin("5").unwrap();
     assert_eq!(q1.enable, vec!["2".to_string()]);
     assert!(q1.enable_active_low);
-=======
+}
+
 /// Inputs that draw more than one unit load: the table's multiples times the family's input
 /// currents give each data sheet's own figure for that input.
 #[test]
@@ -2270,5 +2270,4 @@ fn heavy_inputs_draw_their_data_sheet_currents() {
         t.get(S74, "90").unwrap().pin("12").unwrap().rated_with,
         vec!["1"]
     );
->>>>>>> main
 }
