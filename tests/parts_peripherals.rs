@@ -1088,7 +1088,10 @@ fn video_processor_tms9918a_and_9928a_pinouts() {
         ("U3", "TMS9928A", 40),
         // the V9938 (a 64-pin successor) is another part
         ("U4", "V9938", 64),
+        // the TMS9118 has no GROMCLK on pin 37 (TI data-manual pin diagram, as excerpted)
+        ("U5", "TMS9118NL", 40),
     ]);
+    assert_eq!(got[4].2.as_deref(), None);
     assert_eq!(
         (got[0].1.as_deref(), got[0].2.as_deref()),
         (Some("NMOS"), Some("tms9918a"))
