@@ -408,8 +408,8 @@ fn line_driver_1488_inputs_are_ttl_and_its_outputs_are_not_logic() {
     assert_eq!(got[0].2.as_deref(), Some("1488"));
     assert_eq!(got[0].1.as_deref(), Some("74"));
     assert_eq!(got[1].2.as_deref(), Some("1488"));
-    // the receiver stays a known part outside the logic checks
-    assert_eq!(got[2].0, PartKind::NotLogic);
+    // the receiver is a logic part on its output side (its own entry below)
+    assert_eq!(got[2].2.as_deref(), Some("1489"));
 }
 
 /// A small netlist: an RS-232 driver on +-12 V with one input open and one driven, and a CRT
@@ -510,4 +510,596 @@ fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
                 && (f.0 == "power-pin-miswired" || f.0 == "unpowered-part"))),
         "{found:?}"
     );
+}
+
+#[test]
+fn processors_8086_and_8088_match_the_intel_pin_tables() {
+    // Intel 8086 data sheet, Table 1 Pin Description: pin numbers and types (read); the order of
+    // the bits inside AD15-AD0 (2-16, 39) and A19-A16 (35-38) from memory
+    expect_pins(
+        "8086",
+        40,
+        &[
+            (1, "GND", Ground),
+            (20, "GND", Ground),
+            (40, "VCC", Supply),
+            (16, "AD0", Bidirectional), // from memory (bit order)
+            (2, "AD14", Bidirectional), // from memory (bit order)
+            (39, "AD15", Bidirectional),
+            (35, "A19/S6", ThreeState), // floats in hold acknowledge (read)
+            (38, "A16/S3", ThreeState),
+            (34, "~BHE/S7", ThreeState),
+            (17, "NMI", Input),
+            (18, "INTR", Input),
+            (19, "CLK", Input),
+            (21, "RESET", Input),
+            (22, "READY", Input),
+            (23, "~TEST", Input),
+            (32, "~RD", ThreeState),
+            (33, "MN/~MX", Input),
+            // ALE "is never floated" (minimum mode), QS0 a queue status output (maximum mode)
+            (25, "ALE/QS0", PushPull),
+            (24, "~INTA/QS1", PushPull),
+            // minimum mode M/IO, WR, DEN, DT/R float in hold acknowledge; maximum mode S2-S0 too
+            (28, "M/~IO/~S2", ThreeState),
+            (29, "~WR/~LOCK", ThreeState),
+            // HLDA / HOLD in minimum mode, the pulled-up RQ/GT pins in maximum mode: unknown
+            (30, "HLDA/~RQ/~GT1", Unknown),
+            (31, "HOLD/~RQ/~GT0", Unknown),
+        ],
+    );
+    // Intel 8088 data sheet, Table 1 Pin Description: AD7-AD0 on 9-16 (I/O), A15-A8 on 2-8 and 39
+    // (O, float in hold acknowledge), RD 32, RQ/GT0 and RQ/GT1 on 30 and 31 (internal pull-up)
+    expect_pins(
+        "8088",
+        40,
+        &[
+            (9, "AD7", Bidirectional),
+            (16, "AD0", Bidirectional),
+            (2, "A14", ThreeState), // from memory (bit order)
+            (8, "A8", ThreeState),
+            (39, "A15", ThreeState),
+            (32, "~RD", ThreeState),
+            (28, "IO/~M/~S2", ThreeState), // from memory
+            (34, "~SS0", ThreeState),      // from memory
+            (30, "HLDA/~RQ/~GT1", Unknown),
+            (31, "HOLD/~RQ/~GT0", Unknown),
+            (40, "VCC", Supply),
+        ],
+    );
+}
+
+#[test]
+fn interrupt_controller_8259_matches_the_intel_pin_table() {
+    // Intel 8259A data sheet (231468-003), Table 1 Pin Description (read); bit order from memory
+    expect_pins(
+        "8259",
+        28,
+        &[
+            (1, "~CS", Input),
+            (2, "~WR", Input),
+            (3, "~RD", Input),
+            (4, "D7", Bidirectional),
+            (11, "D0", Bidirectional),
+            (12, "CAS0", Unknown), // outputs on a master, inputs on a slave
+            (15, "CAS2", Unknown),
+            (14, "GND", Ground),
+            (16, "~SP/~EN", Unknown), // input, or an output in buffered mode
+            (17, "INT", PushPull),
+            // internal pull-ups: ILIR -300 uA at VIN 0 (Intel 8259A D.C. characteristics)
+            (18, "IR0", Unknown),
+            (25, "IR7", Unknown),
+            (26, "~INTA", Input),
+            (27, "A0", Input),
+            (28, "VCC", Supply),
+        ],
+    );
+}
+
+#[test]
+fn commodore_6510_and_6526_pinouts() {
+    // from memory: MOS 6510 pin configuration (secondary pin lists agree)
+    expect_pins(
+        "6510",
+        40,
+        &[
+            (1, "PHI0", Input),
+            (5, "AEC", Input),
+            (6, "VCC", Supply),
+            (7, "A0", ThreeState),
+            (20, "A13", ThreeState),
+            (21, "GND", Ground),
+            (23, "A15", ThreeState),
+            (24, "P5", Unknown),
+            (29, "P0", Unknown),
+            (30, "D7", Bidirectional),
+            (37, "D0", Bidirectional),
+            (39, "PHI2", PushPull),
+            (40, "~RES", Input),
+        ],
+    );
+    // the address pins float when AEC is low
+    let t = table();
+    let f = t.get(Series::Other, "6510").unwrap();
+    let a0 = f.pin("7").unwrap();
+    assert_eq!(a0.enable, vec!["5".to_string()]);
+    assert!(!a0.enable_active_low);
+    // MOS 6526 data sheet (11/81), pin configuration (read); IRQ open drain (its interface
+    // description)
+    expect_pins(
+        "6526",
+        40,
+        &[
+            (1, "VSS", Ground),
+            (2, "PA0", Unknown),
+            (17, "PB7", Unknown),
+            (20, "VCC", Supply),
+            (21, "~IRQ", OpenCollector),
+            (22, "R/~W", Input),
+            (23, "~CS", Input),
+            (25, "PHI2", Input),
+            (26, "DB7", Bidirectional),
+            (33, "DB0", Bidirectional),
+            (34, "~RES", Input),
+            (35, "RS3", Input),
+            (38, "RS0", Input),
+            (39, "SP", Unknown),
+            (40, "CNT", Unknown),
+        ],
+    );
+}
+
+#[test]
+fn processors_and_controllers_of_the_second_batch_are_named_by_their_markings() {
+    let cases: &[(&str, u32, &str, &str)] = &[
+        ("8088", 40, "NMOS", "8088"),
+        ("P8088", 40, "NMOS", "8088"),
+        ("D8088-2", 40, "NMOS", "8088"),
+        ("8086-2", 40, "NMOS", "8086"),
+        ("C8086", 40, "NMOS", "8086"),
+        ("80C88", 40, "CMOS-TTL", "8088"),
+        ("CP80C88", 40, "CMOS-TTL", "8088"),
+        ("MSM80C86A-10RS", 40, "CMOS-TTL", "8086"),
+        ("P8259A", 28, "NMOS", "8259"),
+        ("8259A-2", 28, "NMOS", "8259"),
+        ("82C59A", 28, "CMOS-TTL", "8259"),
+        ("MOS6510", 40, "NMOS", "6510"),
+        ("6510", 40, "NMOS", "6510"),
+        ("MOS6526", 40, "NMOS", "6526"),
+        ("6526A", 40, "NMOS", "6526"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, n, _, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, fam, func), (kind, f, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v} ({n} pins)");
+        assert_eq!(f.as_deref(), Some(*fam), "{v} ({n} pins): family");
+        assert_eq!(fu.as_deref(), Some(*func), "{v} ({n} pins): function");
+    }
+    // look-alikes: (value, highest pin, a function it must not be)
+    let not: &[(&str, u32, &str)] = &[
+        // a 74-series-looking value is never a processor
+        ("74LS8088", 16, "8088"),
+        // the i860 (a PGA far beyond 40 pins) is no 8086
+        ("80860XR", 168, "8086"),
+        // the 6510T (drive processor) has another pinout
+        ("6510T", 40, "6510"),
+        // the 8259A in its 28-pin DIP is not the 16-pin 74LS259 latch, nor the other way round
+        ("74LS259", 16, "8259"),
+    ];
+    let items: Vec<(&str, &str, u32)> = not.iter().map(|(v, n, _)| ("U1", *v, *n)).collect();
+    let got = classify_values(&items);
+    for ((v, n, bad), (_, _, fu)) in not.iter().zip(&got) {
+        assert_ne!(fu.as_deref(), Some(*bad), "{v} ({n} pins)");
+    }
+    // and the 74LS259 stays the latch
+    assert_eq!(got[3].2.as_deref(), Some("259"));
+}
+
+#[test]
+fn line_receiver_1489_and_rs485_transceiver_75176_check_only_their_logic_side() {
+    // from memory: MC1489 / SN75189 pin assignment (TI's MC1489 product page: a low-power
+    // Schottky part on one 5 V supply, 14-pin PDIP): line inputs and response-control pins take
+    // RS-232 levels or a capacitor, analog; outputs totem-pole
+    expect_pins(
+        "1489",
+        14,
+        &[
+            (1, "1A", Analog),
+            (2, "1CONT", Analog),
+            (3, "1Y", PushPull),
+            (7, "GND", Ground),
+            (8, "3Y", PushPull),
+            (10, "3A", Analog),
+            (11, "4Y", PushPull),
+            (13, "4A", Analog),
+            (14, "VCC", Supply),
+        ],
+    );
+    // TI SLLS376G (SN75LBC176A), Table 4-1 Pin Functions (read); the SN75176B shares it
+    expect_pins(
+        "75176",
+        8,
+        &[
+            (1, "R", ThreeState),
+            (2, "~RE", Input),
+            (3, "DE", Input),
+            (4, "D", Input),
+            (5, "GND", Ground),
+            (6, "A", Analog),
+            (7, "B", Analog),
+            (8, "VCC", Supply),
+        ],
+    );
+    // R is on while RE is low (SLLS376G: "receiver enable, active low")
+    let t = table();
+    let r = t
+        .get(Series::Other, "75176")
+        .unwrap()
+        .pin("1")
+        .unwrap()
+        .clone();
+    assert_eq!(r.enable, vec!["2".to_string()]);
+    assert!(r.enable_active_low);
+    let got = classify_values(&[
+        ("U1", "MC1489AP", 14),
+        ("U2", "SN75189N", 14),
+        ("U3", "SN75176BP", 8),
+        ("U4", "DS75176BN", 8),
+        // still not logic: the charge-pump RS-232 transceiver and the driver array
+        ("U5", "MAX232CPE", 16),
+        ("U6", "ULN2003A", 16),
+        // the 7-pin 75176 look-alike with more pins than the package is not taken
+        ("U7", "SN75176BP", 14),
+    ]);
+    for (i, func) in [(0, "1489"), (1, "1489"), (2, "75176"), (3, "75176")] {
+        assert_eq!(got[i].0, PartKind::Logic, "{i}");
+        assert_eq!(got[i].1.as_deref(), Some("74LS"), "{i}");
+        assert_eq!(got[i].2.as_deref(), Some(func), "{i}");
+    }
+    assert_eq!(got[4].0, PartKind::NotLogic);
+    assert_eq!(got[5].0, PartKind::NotLogic);
+    assert_ne!(got[6].2.as_deref(), Some("75176"));
+}
+
+#[test]
+fn bipolar_proms_256x4_and_their_markings() {
+    // from memory: the 256 x 4 PROM pinout; a circuit simulator's 74S287 description agrees on
+    // the grouping (addresses 1-7 and 15, outputs 9-12, enables 13 and 14)
+    let addr = [1u32, 2, 3, 4, 5, 6, 7, 15];
+    for (id, out) in [("prom256x4", ThreeState), ("prom256x4-oc", OpenCollector)] {
+        let want: Vec<(u32, &str, PinRole)> = vec![
+            (5, "A0", Input),
+            (15, "A7", Input),
+            (8, "GND", Ground),
+            (12, "Q0", out),
+            (9, "Q3", out),
+            (13, "~G1", Input),
+            (14, "~G2", Input),
+            (16, "VCC", Supply),
+        ];
+        let t = table();
+        let f = t.get(Series::Other, id).unwrap();
+        for p in addr {
+            assert_eq!(f.pin(&p.to_string()).unwrap().role, Input, "{id} pin {p}");
+        }
+        expect_pins(id, 16, &want);
+    }
+    // three-state outputs on while both enables are low
+    let t = table();
+    let q = t
+        .get(Series::Other, "prom256x4")
+        .unwrap()
+        .pin("9")
+        .unwrap()
+        .clone();
+    assert_eq!(q.enable, vec!["13".to_string(), "14".to_string()]);
+    assert!(q.enable_active_low);
+    // p-n-p inputs (TI 1975 PROM bulletin): the 74LS figures stand in, never the 74S ones
+    let cases: &[(&str, &str)] = &[
+        ("74S287", "prom256x4"),
+        ("SN74S287N", "prom256x4"),
+        ("DM74S287AN", "prom256x4"),
+        ("N82S129N", "prom256x4"),
+        ("82S129", "prom256x4"),
+        ("DM93427N", "prom256x4"),
+        ("74S387", "prom256x4-oc"),
+        ("N82S126N", "prom256x4-oc"),
+    ];
+    let items: Vec<(&str, &str, u32)> = cases.iter().map(|(v, _)| ("U1", *v, 16)).collect();
+    let got = classify_values(&items);
+    for ((v, func), (kind, fam, fu)) in cases.iter().zip(&got) {
+        assert_eq!(*kind, PartKind::Logic, "{v}");
+        assert_eq!(fam.as_deref(), Some("74LS"), "{v}");
+        assert_eq!(fu.as_deref(), Some(*func), "{v}");
+    }
+    // the 16 x 4 RAMs go by the 74 pattern: family from the letters, function from the table
+    let got = classify_values(&[
+        ("U1", "74LS189", 16),
+        ("U2", "7489", 16),
+        ("U3", "SN74S189N", 16),
+        ("U4", "74LS89", 16),
+        // look-alikes: the 82S123 (32 x 8 PROM) and the 74S288 are other parts
+        ("U5", "82S123", 16),
+        ("U6", "74S288", 16),
+        // the CMOS MM74C89 has three-state outputs (Fairchild MM74C89): not the 7489's table
+        ("U7", "MM74C89N", 16),
+    ]);
+    assert_ne!(got[6].2.as_deref(), Some("89"), "{:?}", got[6]);
+    assert_eq!(
+        (got[0].1.as_deref(), got[0].2.as_deref()),
+        (Some("74LS"), Some("189"))
+    );
+    assert_eq!(
+        (got[1].1.as_deref(), got[1].2.as_deref()),
+        (Some("74"), Some("89"))
+    );
+    assert_eq!(
+        (got[2].1.as_deref(), got[2].2.as_deref()),
+        (Some("74S"), Some("189"))
+    );
+    // the 89 table is the standard-TTL 7489's; an LS "89" is not taken for it (from memory: the
+    // Schottky open-collector versions are numbered 289)
+    assert_eq!(got[3].2.as_deref(), None);
+    assert!(
+        got[4].2.as_deref().map_or(true, |f| !f.starts_with("prom")),
+        "{:?}",
+        got[4]
+    );
+    assert!(
+        got[5].2.as_deref().map_or(true, |f| !f.starts_with("prom")),
+        "{:?}",
+        got[5]
+    );
+}
+
+/// A small board of the new parts: an 8088 in minimum mode with HOLD open and RESET open, an
+/// 8259A with seven IR inputs open, a 6526 whose open-drain ~IRQ reaches the 6510's ~IRQ with
+/// no pull-up, a 75176 whose DE is open, and an MC1489 whose line inputs are open.
+fn second_batch_netlist() -> String {
+    let comp = |r: &str, v: &str| {
+        format!("    (comp (ref {r}) (value \"{v}\") (libsource (lib x) (part {r})))\n")
+    };
+    let node = |r: &str, p: u32| format!("(node (ref {r}) (pin {p}))");
+    let net = |code: u32, name: &str, nodes: &[(&str, u32)]| {
+        let n: String = nodes.iter().map(|(r, p)| node(r, *p)).collect();
+        format!("    (net (code {code}) (name \"{name}\") {n})\n")
+    };
+    let mut s = String::from("(export (version D)\n  (components\n");
+    for (r, v) in [
+        ("U1", "P8088"),
+        ("U2", "P8259A"),
+        ("U3", "MOS6510"),
+        ("U4", "MOS6526"),
+        ("U5", "SN75176BP"),
+        ("U6", "MC1489P"),
+    ] {
+        s += &comp(r, v);
+    }
+    s += "  )\n  (nets\n";
+    s += &net(
+        1,
+        "+5V",
+        &[
+            ("U1", 40),
+            ("U1", 33),
+            ("U2", 28),
+            ("U3", 6),
+            ("U3", 5),
+            ("U4", 20),
+            ("U5", 8),
+            ("U6", 14),
+        ],
+    );
+    s += &net(
+        2,
+        "GND",
+        &[
+            ("U1", 1),
+            ("U1", 20),
+            ("U2", 14),
+            ("U3", 21),
+            ("U4", 1),
+            ("U5", 5),
+            ("U6", 7),
+        ],
+    );
+    // 8259A INT drives the 8088's INTR; IR0 driven by the 1489's output, IR1-IR7 open
+    s += &net(3, "INTR", &[("U2", 17), ("U1", 18)]);
+    s += &net(4, "IRQ0", &[("U6", 3), ("U2", 18)]);
+    s += &net(5, "Net-(U1-Pad31)", &[("U1", 31)]);
+    s += &net(6, "Net-(U1-Pad21)", &[("U1", 21)]);
+    // 6526 ~IRQ into the 6510's ~IRQ, nothing else
+    s += &net(7, "CIAIRQ", &[("U4", 21), ("U3", 3)]);
+    s += &net(8, "Net-(U5-Pad3)", &[("U5", 3)]);
+    s += &net(9, "Net-(U6-Pad1)", &[("U6", 1)]);
+    s += "  ))\n";
+    s
+}
+
+#[test]
+fn the_second_batch_finds_what_is_wrong_and_nothing_else_on_its_pins() {
+    let dir = std::env::temp_dir().join(format!("netmargin-periph2-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("second-batch.net");
+    std::fs::write(&path, second_batch_netlist()).unwrap();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
+        .args(["check", "--no-config", "--format", "json"])
+        .arg(&path)
+        .output()
+        .unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let found: Vec<(String, String, Vec<String>)> = v["files"][0]["findings"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|f| {
+            (
+                f["check"].as_str().unwrap().to_string(),
+                f["severity"].as_str().unwrap().to_string(),
+                f["pins"]
+                    .as_array()
+                    .unwrap()
+                    .iter()
+                    .map(|p| p.as_str().unwrap().to_string())
+                    .collect(),
+            )
+        })
+        .collect();
+    let at = |pin: &str| -> Vec<(&str, &str)> {
+        found
+            .iter()
+            .filter(|f| f.2.iter().any(|p| p == pin))
+            .map(|f| (f.0.as_str(), f.1.as_str()))
+            .collect()
+    };
+    // 8088 RESET (Intel 8088 Table 1: active high, must be held low to run) left open: an error
+    assert!(
+        at("U1.21").iter().any(|f| f.1 == "error"),
+        "8088 RESET open: {found:?}"
+    );
+    // HOLD / RQ/GT0 depends on MN/MX: an open pin 31 is never called floating
+    assert!(at("U1.31").is_empty(), "8088 pin 31: {found:?}");
+    // the 8259A's IR inputs have internal pull-ups (Intel 8259A ILIR): no finding for IR1-IR7
+    for p in 19..=25 {
+        assert!(
+            at(&format!("U2.{p}")).is_empty(),
+            "8259A IR pin {p}: {found:?}"
+        );
+    }
+    // the 6526's ~IRQ is open drain (MOS 6526 data sheet): with no pull-up, an error
+    assert!(
+        at("U4.21").contains(&("missing-pull-up", "error")),
+        "6526 IRQ: {found:?}"
+    );
+    // the 75176's DE open: a TTL input floating high, a warning (its levels a stand-in)
+    assert!(
+        at("U5.3").contains(&("floating-ttl-input", "warning")),
+        "75176 DE: {found:?}"
+    );
+    // the 1489's line input takes RS-232 levels: never a logic finding
+    assert!(at("U6.1").is_empty(), "1489 line input: {found:?}");
+    // no power finding for parts whose supplies are wired
+    assert!(
+        found
+            .iter()
+            .all(|f| f.0 != "unpowered-part" && f.0 != "power-pin-miswired"),
+        "{found:?}"
+    );
+}
+
+#[test]
+fn z80_sio2_bonding_and_its_markings() {
+    // from memory: Zilog Z8442 (SIO/2); an emulator's SIO pin diagram agrees on these pins
+    expect_pins(
+        "z80-sio2",
+        40,
+        &[
+            (40, "D0", Bidirectional),
+            (1, "D1", Bidirectional),
+            (5, "~INT", OpenCollector),
+            // sources disagree on the order of IEI and IEO: neither is judged
+            (6, "IEI/IEO", Unknown),
+            (7, "IEO/IEI", Unknown),
+            (9, "VCC", Supply),
+            (31, "GND", Ground),
+            (10, "~W/RDYA", Unknown),
+            (30, "~W/RDYB", Unknown),
+            (11, "~SYNCA", Unknown),
+            (13, "~RxCA", Input),
+            (14, "~TxCA", Input),
+            (15, "TxDA", PushPull),
+            (20, "CLK", Input),
+            (21, "~RESET", Input),
+            // the SIO/2 bonding: DTRB, TxCB, RxCB kept, SYNCB given up (Zilog, as quoted)
+            (25, "~DTRB", PushPull),
+            (26, "TxDB", PushPull),
+            (27, "~TxCB", Input),
+            (28, "~RxCB", Input),
+            (29, "RxDB", Input),
+        ],
+    );
+    let got = classify_values(&[
+        ("U1", "Z8442APS", 40),
+        ("U2", "Z84C4208PEC", 40),
+        ("U3", "Z80SIO/2", 40),
+        // the SIO/0 and SIO/1 bond pins 25-29 otherwise: never the SIO/2 table
+        ("U4", "Z8440APS", 40),
+        ("U5", "Z84C4008PEC", 40),
+        ("U6", "Z80SIO/0", 40),
+    ]);
+    assert_eq!(
+        (got[0].1.as_deref(), got[0].2.as_deref()),
+        (Some("NMOS"), Some("z80-sio2"))
+    );
+    assert_eq!(
+        (got[1].1.as_deref(), got[1].2.as_deref()),
+        (Some("CMOS-TTL"), Some("z80-sio2"))
+    );
+    assert_eq!(got[2].2.as_deref(), Some("z80-sio2"));
+    for g in &got[3..] {
+        assert_ne!(g.2.as_deref(), Some("z80-sio2"), "{g:?}");
+    }
+}
+
+#[test]
+fn video_processor_tms9918a_and_9928a_pinouts() {
+    // from memory; a TI data-manual pin diagram (TMS9118 family with a TMS9918A column) and a
+    // replacement board's pin map agree on these pins
+    let common: &[(u32, &str, PinRole)] = &[
+        (1, "~RAS", PushPull),
+        (2, "~CAS", PushPull),
+        (10, "AD0", PushPull),
+        (11, "R/~W", PushPull),
+        (12, "VSS", Ground),
+        (13, "MODE", Input),
+        (14, "~CSW", Input),
+        (15, "~CSR", Input),
+        (16, "~INT", Unknown), // open drain not confirmed
+        (17, "CD7", Bidirectional),
+        (24, "CD0", Bidirectional),
+        (25, "RD7", Unknown),
+        (32, "RD0", Unknown),
+        (33, "VCC", Supply),
+        (34, "~RESET/SYNC", Input),
+        (37, "GROMCLK", PushPull),
+        (39, "XTAL2", Analog),
+        (40, "XTAL1", Analog),
+    ];
+    expect_pins("tms9918a", 40, common);
+    expect_pins("tms9928a", 40, common);
+    expect_pins(
+        "tms9918a",
+        40,
+        &[
+            (35, "EXTVDP", Analog),
+            (36, "COMVID", Analog),
+            (38, "CPUCLK", PushPull),
+        ],
+    );
+    expect_pins(
+        "tms9928a",
+        40,
+        &[(35, "B-Y", Analog), (36, "Y", Analog), (38, "R-Y", Analog)],
+    );
+    let got = classify_values(&[
+        ("U1", "TMS9918ANL", 40),
+        ("U2", "TMS9929ANL", 40),
+        ("U3", "TMS9928A", 40),
+        // the V9938 (a 64-pin successor) is another part
+        ("U4", "V9938", 64),
+        // the TMS9118 has no GROMCLK on pin 37 (TI data-manual pin diagram, as excerpted)
+        ("U5", "TMS9118NL", 40),
+    ]);
+    assert_eq!(got[4].2.as_deref(), None);
+    assert_eq!(
+        (got[0].1.as_deref(), got[0].2.as_deref()),
+        (Some("NMOS"), Some("tms9918a"))
+    );
+    assert_eq!(got[1].2.as_deref(), Some("tms9928a"));
+    assert_eq!(got[2].2.as_deref(), Some("tms9928a"));
+    assert!(got[3]
+        .2
+        .as_deref()
+        .map_or(true, |f| !f.starts_with("tms99")));
 }

@@ -1718,6 +1718,7 @@ fn partly_checked_75_and_107() {
 /// Every function whose whole pinout a test in this file checks against a named data sheet. Its
 /// `source` (and the comment above the entry) must name that document, never "from memory".
 const CHECKED_AGAINST_DATA_SHEETS: &[(Series, &str)] = &[
+    (S74, "89"),
     (S74, "00"),
     (S74, "02"),
     (S74, "04"),
@@ -1949,8 +1950,9 @@ fn three_state_outputs_name_existing_enables() {
                     .pin(e)
                     .unwrap_or_else(|| panic!("{} pin {}: enable {e} missing", f.id, p.pin));
                 // a processor's bus floats when it grants the bus: the enable of its address
-                // pins is its own grant-acknowledge output (Z80 ~BUSAK, 8080 HLDA, 6809 BA)
-                let own_status = f.series == Series::Other && en.role == PushPull;
+                // pins is its own grant-acknowledge output (Z80 ~BUSAK, 8080 HLDA, 6809 BA), or
+                // a pin that is that output in one mode only (8086 HLDA, RQ/GT1 in maximum mode)
+                let own_status = f.series == Series::Other && matches!(en.role, PushPull | Unknown);
                 assert!(
                     en.role.is_input() || own_status,
                     "{} pin {}: enable {e} is {}",
@@ -2161,6 +2163,44 @@ fn merge_replaces_by_series_and_id() {
     assert_eq!(t.len(), before);
     assert_eq!(func(&t, S74, "00").summary, "replaced");
     assert_eq!(func(&t, S74, "08").package_pins, 14);
+}
+
+#[test]
+fn ram_16x4_89_and_189() {
+    // TI SN7489 bulletin DL-S 7511386, J or N package: address A 1, ME 2, WE 3, DI1-DI4 on 4, 6,
+    // 10, 12, open-collector DO1-DO4 on 5, 7, 9, 11, address D, C, B on 13-15; the 74189 as the
+    // 7489 with three-state outputs (from memory)
+    let t = table();
+    let names = [
+        (1u32, "A"),
+        (2, "~ME"),
+        (4, "DI1"),
+        (5, "~DO1"),
+        (11, "~DO4"),
+        (13, "D"),
+        (15, "B"),
+    ];
+    for (pin, name) in names {
+        assert_eq!(
+            func(&t, S74, "89").pin(&pin.to_string()).unwrap().name,
+            name,
+            "89 pin {pin}"
+        );
+    }
+    let ins = [1u32, 2, 3, 4, 6, 10, 12, 13, 14, 15];
+    let outs = [5u32, 7, 9, 11];
+    let mut want: Vec<(u32, PinRole)> = ins.iter().map(|&p| (p, Input)).collect();
+    want.extend(outs.iter().map(|&p| (p, OpenCollector)));
+    want.push((8, Ground));
+    want.push((16, Supply));
+    expect_roles(&t, S74, "89", 16, &want);
+    let mut want: Vec<(u32, PinRole)> = ins.iter().map(|&p| (p, Input)).collect();
+    want.extend(outs.iter().map(|&p| (p, ThreeState)));
+    expect_roles(&t, S74, "189", 16, &want);
+    // the 74189's outputs are on while ~CS (pin 2) is low
+    let q1 = func(&t, S74, "189").pin("5").unwrap();
+    assert_eq!(q1.enable, vec!["2".to_string()]);
+    assert!(q1.enable_active_low);
 }
 
 /// Inputs that draw more than one unit load: the table's multiples times the family's input
