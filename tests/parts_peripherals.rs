@@ -1043,7 +1043,7 @@ fn z80_sio2_bonding_and_its_markings() {
 }
 
 #[test]
-fn video_processor_tms9918a_and_9928a_pinouts() {
+fn display_processor_tms9918a_and_9928a_pinouts() {
     // from memory; a TI data-manual pin diagram (TMS9118 family with a TMS9918A column) and a
     // replacement board's pin map agree on these pins
     let common: &[(u32, &str, PinRole)] = &[
