@@ -440,20 +440,24 @@ fn open_inputs_netlist() -> String {
     s
 }
 
-#[test]
-fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
-    let dir = std::env::temp_dir().join(format!("netmargin-periph-{}", std::process::id()));
+/// Runs `netmargin check --format json` on a netlist written to a temporary file.
+fn check_json(name: &str, text: &str) -> serde_json::Value {
+    let dir = std::env::temp_dir().join(format!("netmargin-periph-{name}-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("open-inputs.net");
-    std::fs::write(&path, open_inputs_netlist()).unwrap();
+    let path = dir.join(format!("{name}.net"));
+    std::fs::write(&path, text).unwrap();
     let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
         .args(["check", "--no-config", "--format", "json"])
         .arg(&path)
         .output()
         .unwrap();
     let _ = std::fs::remove_dir_all(&dir);
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let found: Vec<(String, String, Vec<String>)> = v["files"][0]["findings"]
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+/// (check, severity, pins) of every finding of the first file.
+fn findings(v: &serde_json::Value) -> Vec<(String, String, Vec<String>)> {
+    v["files"][0]["findings"]
         .as_array()
         .unwrap()
         .iter()
@@ -469,7 +473,13 @@ fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
                     .collect(),
             )
         })
-        .collect();
+        .collect()
+}
+
+#[test]
+fn an_open_driver_input_and_an_open_light_pen_input_are_found() {
+    let v = check_json("open-inputs", &open_inputs_netlist());
+    let found = findings(&v);
     let at = |pin: &str| -> Vec<(&str, &str)> {
         found
             .iter()
@@ -918,34 +928,8 @@ fn second_batch_netlist() -> String {
 
 #[test]
 fn the_second_batch_finds_what_is_wrong_and_nothing_else_on_its_pins() {
-    let dir = std::env::temp_dir().join(format!("netmargin-periph2-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let path = dir.join("second-batch.net");
-    std::fs::write(&path, second_batch_netlist()).unwrap();
-    let out = std::process::Command::new(env!("CARGO_BIN_EXE_netmargin"))
-        .args(["check", "--no-config", "--format", "json"])
-        .arg(&path)
-        .output()
-        .unwrap();
-    let _ = std::fs::remove_dir_all(&dir);
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let found: Vec<(String, String, Vec<String>)> = v["files"][0]["findings"]
-        .as_array()
-        .unwrap()
-        .iter()
-        .map(|f| {
-            (
-                f["check"].as_str().unwrap().to_string(),
-                f["severity"].as_str().unwrap().to_string(),
-                f["pins"]
-                    .as_array()
-                    .unwrap()
-                    .iter()
-                    .map(|p| p.as_str().unwrap().to_string())
-                    .collect(),
-            )
-        })
-        .collect();
+    let v = check_json("second-batch", &second_batch_netlist());
+    let found = findings(&v);
     let at = |pin: &str| -> Vec<(&str, &str)> {
         found
             .iter()

@@ -163,6 +163,36 @@ struct Knee {
     open_common: Option<usize>,
 }
 
+/// The loads that conduct towards a rail in one state: the LED paths of that state and the
+/// pull resistors `keep` selects.
+fn knees(
+    paths: &[super::LedPath],
+    pulls: &[super::Pull],
+    keep: impl Fn(&super::Pull) -> bool,
+) -> Vec<Knee> {
+    let leds = paths.iter().enumerate().map(|(i, p)| Knee {
+        kind: LoadKind::Led(i),
+        at: p.at,
+        vf: p.vf,
+        ohms: p.ohms,
+        rail_volts: p.rail_volts,
+        open_common: p.open_common,
+    });
+    let resistors = pulls
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| keep(p))
+        .map(|(i, p)| Knee {
+            kind: LoadKind::Pull(i),
+            at: p.at,
+            vf: 0.0,
+            ohms: p.ohms,
+            rail_volts: p.rail_volts,
+            open_common: None,
+        });
+    leds.chain(resistors).collect()
+}
+
 /// Solves the output's operating point in one state. `knees` conduct towards their rail;
 /// `logic` is the logic inputs' current (IIH or IIL), drawn at any level.
 fn operating_point(
@@ -260,33 +290,7 @@ fn drive_points(
             .map(|r| (r.v, r.a.abs()))
     };
     let high = if drives_high {
-        let mut knees: Vec<Knee> = nm
-            .led_paths
-            .iter()
-            .enumerate()
-            .map(|(i, p)| Knee {
-                kind: LoadKind::Led(i),
-                at: p.at,
-                vf: p.vf,
-                ohms: p.ohms,
-                rail_volts: p.rail_volts,
-                open_common: p.open_common,
-            })
-            .collect();
-        knees.extend(
-            nm.pulls
-                .iter()
-                .enumerate()
-                .filter(|(_, p)| !p.up)
-                .map(|(i, p)| Knee {
-                    kind: LoadKind::Pull(i),
-                    at: p.at,
-                    vf: 0.0,
-                    ohms: p.ohms,
-                    rail_volts: p.rail_volts,
-                    open_common: None,
-                }),
-        );
+        let knees = knees(&nm.led_paths, &nm.pulls, |p| !p.up);
         // how far the high can go with no load: a CMOS output to its supply; a totem pole
         // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
         // (common practice; its guaranteed VOH is a minimum, not a ceiling)
@@ -297,35 +301,9 @@ fn drive_points(
         None
     };
     let low = if drives_low {
-        let mut knees: Vec<Knee> = nm
-            .sink_paths
-            .iter()
-            .enumerate()
-            .map(|(i, p)| Knee {
-                kind: LoadKind::Led(i),
-                at: p.at,
-                vf: p.vf,
-                ohms: p.ohms,
-                rail_volts: p.rail_volts,
-                open_common: p.open_common,
-            })
-            .collect();
         // an open collector's pull-up is the open-collector window's (`PullUpWindow`)
         let own_pulls = d.role != PinRole::OpenCollector;
-        knees.extend(
-            nm.pulls
-                .iter()
-                .enumerate()
-                .filter(|(_, p)| p.up && own_pulls)
-                .map(|(i, p)| Knee {
-                    kind: LoadKind::Pull(i),
-                    at: p.at,
-                    vf: 0.0,
-                    ohms: p.ohms,
-                    rail_volts: p.rail_volts,
-                    open_common: None,
-                }),
-        );
+        let knees = knees(&nm.sink_paths, &nm.pulls, |p| p.up && own_pulls);
         // the low can go down to ground: LEDs that need more than their rail never light
         let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {
