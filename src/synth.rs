@@ -474,10 +474,10 @@ pub fn schematic(target_bytes: usize) -> (String, usize) {
 /// and the number of nets the project must read into.
 pub fn hierarchy(target_bytes: usize) -> (Vec<(String, String)>, usize) {
     const USES_PER_FILE: usize = 4;
-    // about 2.4 kB a cell with four instance paths; about 60 cells a sheet
-    let cells_total = (target_bytes / 2400).max(1);
-    let per_sheet = 60.min(cells_total);
-    let files = cells_total.div_ceil(per_sheet * USES_PER_FILE).max(1);
+    // a cell's text (with its four instance paths) is about 2.4 kB; 60 cells a file
+    let cells_written = (target_bytes / 2400).max(1);
+    let per_sheet = 60.min(cells_written);
+    let files = cells_written.div_ceil(per_sheet).max(1);
     let sheets = files * USES_PER_FILE;
     let root = "00000000-0000-4000-8000-000000000000";
     let sheet_uuid = |i: usize| format!("5eee0000-0000-4000-8000-{i:012x}");

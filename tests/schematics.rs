@@ -220,7 +220,7 @@ fn the_synthetic_schematic_reads_into_its_nets() {
 /// named by the instance of every sheet that uses it.
 #[test]
 fn the_synthetic_hierarchy_reads_into_its_nets() {
-    let (files, nets) = netmargin::synth::hierarchy(600_000);
+    let (files, nets) = netmargin::synth::hierarchy(300_000);
     let dir = std::env::temp_dir().join(format!("netmargin-hier-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     for (name, text) in &files {
@@ -233,7 +233,7 @@ fn the_synthetic_hierarchy_reads_into_its_nets() {
     let nl = netmargin::schematic::read(&loaded).unwrap();
     assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
     assert_eq!(nl.nets.len(), nets);
-    // four sheets use each child file; 600 kB makes more than one file
+    // four sheets use each child file; 300 kB makes more than one file
     let sheets = (files.len() - 1) * 4;
     assert!(sheets >= 8, "{sheets}");
     assert_eq!(nl.components.len(), sheets * 60 * 2);
