@@ -19,10 +19,12 @@ fn decode<T: serde::de::DeserializeOwned>(bytes: &[u8], what: &str) -> T {
 impl FamilyTable {
     /// The shipped table (`rules/families.toml`, read at compile time).
     pub fn builtin() -> FamilyTable {
-        decode(
+        let mut t: FamilyTable = decode(
             include_bytes!(concat!(env!("OUT_DIR"), "/families.postcard")),
             "families",
-        )
+        );
+        t.reindex();
+        t
     }
 }
 
