@@ -13,6 +13,8 @@ pub mod rails;
 
 use std::sync::Arc;
 
+use thin_vec::ThinVec;
+
 use crate::classify::classifier::{Classified, PartKind, RoleSource, Rules};
 use crate::classify::family::{Drive, Family, Levels};
 use crate::classify::function::DriveClass;
@@ -198,46 +200,47 @@ pub struct LedPath {
     pub open_common: Option<usize>,
 }
 
-/// Everything on one net.
+/// Everything on one net. Its lists are `ThinVec`s (one pointer, no allocation while empty:
+/// most of them are on most nets), each trimmed to its length once the model is built.
 #[derive(Debug, Clone, Default)]
 pub struct NetModel {
     pub rail: Option<Rail>,
-    pub drivers: Vec<Driver>,
-    pub loads: Vec<Load>,
-    pub pulls: Vec<Pull>,
+    pub drivers: ThinVec<Driver>,
+    pub loads: ThinVec<Load>,
+    pub pulls: ThinVec<Pull>,
     /// Connector pins: the net leaves the board.
-    pub connectors: Vec<PinRef>,
+    pub connectors: ThinVec<PinRef>,
     /// Pins whose role no source could tell.
-    pub unknown: Vec<PinRef>,
+    pub unknown: ThinVec<PinRef>,
     /// Resistors whose value could not be read.
-    pub unreadable: Vec<(usize, ValueError)>,
+    pub unreadable: ThinVec<(usize, ValueError)>,
     /// Capacitors, diodes and other passives not counted above.
-    pub passives: Vec<PinRef>,
-    pub led_paths: Vec<LedPath>,
+    pub passives: ThinVec<PinRef>,
+    pub led_paths: ThinVec<LedPath>,
     /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
     /// their current in its low state.
-    pub sink_paths: Vec<LedPath>,
+    pub sink_paths: ThinVec<LedPath>,
     /// Supply and ground pins on this net.
-    pub power_pins: Vec<PinRef>,
+    pub power_pins: ThinVec<PinRef>,
     /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
     /// pull-down parts: they hold the net at a level that cannot be computed.
-    pub held: Vec<usize>,
+    pub held: ThinVec<usize>,
     /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
     /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
     pub rail_named_local: bool,
     /// Series elements (a resistor, a resistor-network element, an inductor or ferrite bead)
     /// from this net to another net that is not a rail.
-    pub series: Vec<SeriesLink>,
+    pub series: ThinVec<SeriesLink>,
     /// Switch and jumper elements from this net to another net.
-    pub switches: Vec<SwitchLink>,
+    pub switches: ThinVec<SwitchLink>,
     /// What sets the level, as the model found it (`None`: nothing, in some state).
     pub source: Option<Source>,
     /// Switch elements whose opening leaves this net with nothing to set its level (the
     /// net is held only through them): it floats when all of them are open.
-    pub floats_open: Vec<SwitchLink>,
+    pub floats_open: ThinVec<SwitchLink>,
     /// Nets whose only source is this net, through a series element (directly or through
     /// further series elements): their loads are this net's drivers' loads too.
-    pub feeds: Vec<(usize, SeriesLink)>,
+    pub feeds: ThinVec<(usize, SeriesLink)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -271,6 +274,26 @@ pub enum Source {
 }
 
 impl NetModel {
+    /// Trims every list to its length: a list grown by pushes holds room for four or more,
+    /// and a board has as many nets as it has pins.
+    fn fit(&mut self) {
+        self.drivers.shrink_to_fit();
+        self.loads.shrink_to_fit();
+        self.pulls.shrink_to_fit();
+        self.connectors.shrink_to_fit();
+        self.unknown.shrink_to_fit();
+        self.unreadable.shrink_to_fit();
+        self.passives.shrink_to_fit();
+        self.led_paths.shrink_to_fit();
+        self.sink_paths.shrink_to_fit();
+        self.power_pins.shrink_to_fit();
+        self.held.shrink_to_fit();
+        self.series.shrink_to_fit();
+        self.switches.shrink_to_fit();
+        self.floats_open.shrink_to_fit();
+        self.feeds.shrink_to_fit();
+    }
+
     /// True when something on the net itself can set its level.
     pub fn own_source(&self) -> bool {
         // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
@@ -829,8 +852,8 @@ pub fn build<'n, 'a>(
         if nets[net].drivers.is_empty() {
             continue;
         }
-        let mut found = Vec::new();
-        let mut sinks = Vec::new();
+        let mut found = ThinVec::new();
+        let mut sinks = ThinVec::new();
         for &start in &nets[net].passives {
             let kind = cl.parts[start.comp].kind;
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
@@ -852,6 +875,9 @@ pub fn build<'n, 'a>(
         nets[net].sink_paths = sinks;
     }
     rail_notes.retain(|n| n.by_usage || n.volts.is_some());
+    for nm in &mut nets {
+        nm.fit();
+    }
 
     Circuit {
         nl,
@@ -1047,7 +1073,7 @@ fn settle_sources(nets: &mut [NetModel]) {
         if nets[i].source.is_some() {
             continue;
         }
-        let links: Vec<SwitchLink> = nets[i]
+        let links: ThinVec<SwitchLink> = nets[i]
             .switches
             .iter()
             .filter(|l| nets[l.other_net].source.is_some())
