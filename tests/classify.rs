@@ -103,7 +103,7 @@ fn netlist_only_parts_take_the_symbols_pin_types() {
     let cl = classify(&nl, &Rules::builtin());
     assert_eq!(cl.parts[0].method, Method::NetlistOnly);
     assert_eq!(
-        cl.parts[0].roles,
+        cl.parts[0].roles.to_vec(),
         vec![
             PinRole::Input,
             PinRole::OpenCollector,

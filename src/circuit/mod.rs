@@ -327,7 +327,8 @@ pub struct Circuit<'n, 'a> {
     pub nets: Vec<NetModel>,
     /// Each pin's role once the wiring is known: a transceiver whose direction pin is tied to
     /// a rail has inputs on one side and outputs on the other.
-    pub roles: Vec<Vec<PinRole>>,
+    /// Shared with the classification for a part whose wiring changes none of its roles.
+    pub roles: Vec<Arc<[PinRole]>>,
     /// Rails the model inferred (by their pins, or their voltage), for the info finding.
     pub rail_notes: Vec<RailNote>,
     /// LED displays: their commons, segments and whether the commons reach anything.
@@ -579,7 +580,10 @@ pub fn build<'n, 'a>(
     // roles once the wiring is known
     let roles = enables::wired_roles(nl, cl, &rail);
 
-    let levels_of = |ci: usize| -> Option<Arc<Levels>> {
+    // one `Levels` per family, supply and drive, shared by every pin of every part alike
+    let mut level_table: rustc_hash::FxHashMap<(&str, u64, Drive), Arc<Levels>> =
+        Default::default();
+    let mut levels = |ci: usize| -> Option<Arc<Levels>> {
         let part = &cl.parts[ci];
         let fam = part.family.as_deref().and_then(|f| rules.families.get(f))?;
         let s = supplies[ci].as_ref()?;
@@ -592,16 +596,13 @@ pub fn build<'n, 'a>(
             Some(DriveClass::Buffer) => Drive::Buffer,
             _ => Drive::Standard,
         };
-        Some(Arc::new(fam.levels(s.vcc, drive)))
+        let lv = level_table
+            .entry((fam.id.as_str(), s.vcc.to_bits(), drive))
+            .or_insert_with(|| Arc::new(fam.levels(s.vcc, drive)));
+        Some(lv.clone())
     };
-    // one `Levels` per part, shared by all its pins
-    let mut level_cache: Vec<Option<Option<Arc<Levels>>>> = vec![None; nl.components.len()];
-    let mut levels = |ci: usize| -> Option<Arc<Levels>> {
-        if level_cache[ci].is_none() {
-            level_cache[ci] = Some(levels_of(ci));
-        }
-        level_cache[ci].clone().flatten()
-    };
+    // one copy of each family id
+    let mut family_ids: rustc_hash::FxHashMap<&str, Arc<str>> = Default::default();
 
     let mut nets: Vec<NetModel> = (0..n_nets)
         .map(|i| NetModel {
@@ -611,7 +612,10 @@ pub fn build<'n, 'a>(
         .collect();
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
-        let family: Option<Arc<str>> = part.family.as_deref().map(Arc::from);
+        let family: Option<Arc<str>> = part
+            .family
+            .as_deref()
+            .map(|f| family_ids.entry(f).or_insert_with(|| Arc::from(f)).clone());
         for (pi, p) in c.pins.iter().enumerate() {
             let Connection::Net { net, .. } = p.connection else {
                 continue;
