@@ -1460,3 +1460,40 @@ mod led_tests {
         assert_eq!(led_vf_by_colour("LED"), None);
     }
 }
+
+#[cfg(test)]
+mod size_tests {
+    use std::mem::size_of;
+
+    use super::budget::{DriverBudget, NetBudget};
+    use super::NetModel;
+
+    /// A board has about as many nets as it has pins, and the model keeps a `NetModel` and a
+    /// `NetBudget` (with a `DriverBudget` per driver) for each: their size is held here so it
+    /// cannot regrow unnoticed (440, 176 and 408 bytes when their lists were `Vec`s and the
+    /// rare parts were inline).
+    #[test]
+    fn per_net_structures_stay_small() {
+        assert!(size_of::<NetModel>() <= 200, "{}", size_of::<NetModel>());
+        assert!(size_of::<NetBudget>() <= 56, "{}", size_of::<NetBudget>());
+        assert!(
+            size_of::<DriverBudget>() <= 216,
+            "{}",
+            size_of::<DriverBudget>()
+        );
+    }
+
+    /// An empty list costs one pointer and no allocation; a filled one is trimmed to its
+    /// length once the model is built.
+    #[test]
+    fn a_net_model_fits_its_lists() {
+        let mut nm = NetModel::default();
+        for i in 0..5 {
+            nm.held.push(i);
+        }
+        nm.fit();
+        assert_eq!(nm.held.capacity(), 5);
+        assert_eq!(&nm.held[..], &[0, 1, 2, 3, 4]);
+        assert_eq!(nm.drivers.capacity(), 0);
+    }
+}

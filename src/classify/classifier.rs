@@ -1112,6 +1112,14 @@ pub fn is_function_symbol(value: &str, has_footprint: bool) -> bool {
 mod tests {
     use super::is_function_symbol;
 
+    /// One `PartClass` per component: its size is held here so it cannot regrow unnoticed
+    /// (496 bytes when its per-pin lists and value reading were its own copies).
+    #[test]
+    fn a_part_class_stays_small() {
+        let size = std::mem::size_of::<super::PartClass>();
+        assert!(size <= 152, "{size}");
+    }
+
     #[test]
     fn values_that_draw_a_function() {
         // generic function words, with input counts, widths, variants and suffixes
