@@ -30,10 +30,12 @@ impl FunctionTable {
     /// The shipped table (`rules/functions.toml`, read at compile time).
     pub fn builtin() -> FunctionTable {
         static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions.postcard"));
-        let index: Vec<(Series, String, u32, u32)> = decode(
-            include_bytes!(concat!(env!("OUT_DIR"), "/functions-index.postcard")),
-            "functions index",
-        );
+        static INDEX: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions-index.postcard"));
+        // the ids are borrowed from the compiled index
+        let index: Vec<(Series, &'static str, u32, u32)> = postcard::from_bytes(INDEX)
+            .unwrap_or_else(|e| {
+                panic!("the shipped functions index built by build.rs decodes: {e}")
+            });
         FunctionTable::from_compact(
             index
                 .into_iter()
@@ -43,12 +45,12 @@ impl FunctionTable {
 }
 
 impl PartTable {
-    /// The shipped table (`rules/parts.toml`, read at compile time).
+    /// The shipped table (`rules/parts.toml`, read at compile time); its texts are borrowed
+    /// from the bytes compiled into the binary.
     pub fn builtin() -> PartTable {
-        decode(
-            include_bytes!(concat!(env!("OUT_DIR"), "/parts.postcard")),
-            "parts",
-        )
+        static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/parts.postcard"));
+        postcard::from_bytes(BYTES)
+            .unwrap_or_else(|e| panic!("the shipped parts table built by build.rs decodes: {e}"))
     }
 }
 
