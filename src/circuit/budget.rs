@@ -209,9 +209,10 @@ pub struct DriverBudget {
     pub low_level: Option<f64>,
     /// The output's operating point with the LEDs and resistors it lights or holds in its
     /// high state (LEDs to ground, pull-downs) and in its low state (LEDs from a rail,
-    /// pull-ups); `None` when there are none in that state.
-    pub drive_high: Option<OperatingPoint>,
-    pub drive_low: Option<OperatingPoint>,
+    /// pull-ups); `None` when there are none in that state. Boxed: most outputs have none,
+    /// and every driver of every net holds the two.
+    pub drive_high: Option<Box<OperatingPoint>>,
+    pub drive_low: Option<Box<OperatingPoint>>,
 }
 
 /// What a resistive load on an output is.
@@ -496,7 +497,8 @@ pub struct PullUpWindow {
 pub struct NetBudget {
     pub drivers: Vec<DriverBudget>,
     pub margins: Vec<LoadMargin>,
-    pub window: Option<PullUpWindow>,
+    /// Boxed: only open-collector nets have one, and every net holds the field.
+    pub window: Option<Box<PullUpWindow>>,
 }
 
 /// True when input `l` counts against driver `d`'s rating: not the driver's own pin, and
@@ -772,9 +774,12 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             } else {
                 0.0
             };
-        let stops_short = cx
-            .family(d.at.comp)
-            .is_some_and(|f| f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl);
+        // read only when the high state has resistive loads (pull-downs, LEDs to ground):
+        // with none there is no operating point to solve
+        let stops_short = (!nm.led_paths.is_empty() || !pulldowns.is_empty())
+            && cx.family(d.at.comp).is_some_and(|f| {
+                f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
+            });
         let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
         out.drivers.push(DriverBudget {
             driver: di,
@@ -783,8 +788,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             pull_up,
             high_level,
             low_level,
-            drive_high,
-            drive_low,
+            drive_high: drive_high.map(Box::new),
+            drive_low: drive_low.map(Box::new),
         });
     }
     // margins
@@ -879,7 +884,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
-            out.window = Some(PullUpWindow {
+            out.window = Some(Box::new(PullUpWindow {
                 rail_net,
                 rail_volts: v,
                 v_high,
@@ -893,7 +898,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 r_min,
                 r_max,
                 fitted,
-            });
+            }));
         }
     }
     out
