@@ -793,21 +793,15 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         });
     }
     // margins
-    out.margins
-        .reserve_exact(out.drivers.len() * nm.loads.len());
-    for db in &out.drivers {
-        let d = &nm.drivers[db.driver];
-        for (li, l) in nm.loads.iter().enumerate() {
-            if l.at == d.at {
-                continue;
-            }
-            let Some(ll) = &l.levels else { continue };
-            // a CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is
-            // checked at the top of it and VIL at the bottom (TTL thresholds do not move)
-            let t = cx.opts.rail_tolerance.abs();
-            let scaled =
-                match (t > 0.0).then(|| (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref())) {
-                    Some((Some(f), Some(s))) if f.is_cmos_input() => {
+    // a CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is checked at
+    // the top of it and VIL at the bottom (TTL thresholds do not move); each load's, once
+    let t = cx.opts.rail_tolerance.abs();
+    let scaled_at: Vec<Option<(f64, f64, f64, f64)>> = if t > 0.0 {
+        nm.loads
+            .iter()
+            .map(
+                |l| match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
+                    (Some(f), Some(s)) if f.is_cmos_input() => {
                         let (lo, hi) = cx.rail_range(s.vcc);
                         Some((
                             f.levels(hi, Drive::Standard).vih_min,
@@ -817,7 +811,22 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                         ))
                     }
                     _ => None,
-                };
+                },
+            )
+            .collect()
+    } else {
+        Vec::new()
+    };
+    out.margins
+        .reserve_exact(out.drivers.len() * nm.loads.len());
+    for db in &out.drivers {
+        let d = &nm.drivers[db.driver];
+        for (li, l) in nm.loads.iter().enumerate() {
+            if l.at == d.at {
+                continue;
+            }
+            let Some(ll) = &l.levels else { continue };
+            let scaled = scaled_at.get(li).copied().flatten();
             let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
             out.margins.push(LoadMargin {
                 driver: db.driver,
