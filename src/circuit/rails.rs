@@ -86,11 +86,10 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
     let supply_word = ["VCC", "VDD", "VEE", "V+", "V-", "VBAT", "VIN", "VPP"]
         .iter()
         .any(|w| n.starts_with(w));
-    if !supply_word
-        && !(n.starts_with('+')
-            || n.starts_with('-')
-            || n.chars().next().is_some_and(|c| c.is_ascii_digit()))
-    {
+    let starts_with_volts = n.starts_with('+')
+        || n.starts_with('-')
+        || n.chars().next().is_some_and(|c| c.is_ascii_digit());
+    if !(supply_word || starts_with_volts) {
         return None;
     }
     // a signal named after a rail (`5V_OK`, `/5V_TO_3V`, `12V_EN`) is not the rail

@@ -638,10 +638,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 EntryKind::Display => kind = PartKind::Display,
                 EntryKind::Logic => {
                     kind = PartKind::Logic;
-                    family = e
-                        .family
-                        .as_ref()
-                        .map(|f| rules.families.get(f).map_or(f.to_string(), |x| x.id.clone()));
+                    family = e.family.as_ref().map(|f| {
+                        rules
+                            .families
+                            .get(f)
+                            .map_or(f.to_string(), |x| x.id.clone())
+                    });
                     if let Some(id) = &e.function {
                         named_function = Some(id.to_string());
                         if rules.functions.get(e.series, id).is_some() {
@@ -851,9 +853,12 @@ fn symbol_reading(
         .filter(|(_, e)| fits_package(c, e, rules))
     {
         (
-            e.family
-                .as_ref()
-                .map(|f| rules.families.get(f).map_or(f.to_string(), |x| x.id.clone())),
+            e.family.as_ref().map(|f| {
+                rules
+                    .families
+                    .get(f)
+                    .map_or(f.to_string(), |x| x.id.clone())
+            }),
             e.function.as_ref().map(|f| f.to_string()),
         )
     } else if let Some(m) = pattern::match_value(symbol) {
