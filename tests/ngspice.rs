@@ -29,7 +29,7 @@ mod notice;
 use std::fmt::Write as _;
 use std::process::Command;
 
-use netmargin::circuit::budget::net_budget;
+use netmargin::circuit::budget::{net_budget, ItemKind};
 use netmargin::circuit::ModelOptions;
 use netmargin::classify::family::VI;
 use netmargin::classify::PinRole;
@@ -440,7 +440,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 });
                 for (i, it) in high.items.iter().enumerate() {
                     // each item as ngspice sees it: the current in that element
-                    let v = if it.what.contains("pull-down") {
+                    let v = if matches!(it.kind, ItemKind::PullDown { .. }) {
                         let k = nm
                             .pulls
                             .iter()
@@ -452,7 +452,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     };
                     probes.push(Probe {
                         case: c.name,
-                        what: format!("high item {i}: {}", it.what),
+                        what: format!("high item {i}: {}", it.describe(cx)),
                         vector: v,
                         want: it.amps,
                         tol: I_TOL,

@@ -86,17 +86,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     ("source", "IOH")
                 };
-                let n_inputs = sb.items.iter().filter(|i| i.what.contains("input")).count();
+                let n_inputs = sb.items.iter().filter(|i| i.is_input()).count();
                 let same = sb
                     .items
                     .windows(2)
                     .all(|w| (w[0].amps - w[1].amps).abs() < 1e-12)
                     && n_inputs == sb.items.len();
-                let through = sb
-                    .items
-                    .iter()
-                    .filter(|i| i.what.contains(", through "))
-                    .count();
+                let through = sb.items.iter().filter(|i| i.is_through()).count();
                 let through_note = if through > 0 {
                     format!(" ({through} of them through a series element)")
                 } else {

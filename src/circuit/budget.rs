@@ -9,16 +9,154 @@ use crate::classify::family::{Drive, HighOutput, Technology};
 use crate::classify::PinRole;
 use crate::values::{format_amps, format_ohms};
 
-/// One contribution to a state's current.
+/// One contribution to a state's current. What it is stays structured; its words are
+/// written by [`Item::describe`] only when a report or a message prints them.
 #[derive(Debug, Clone)]
 pub struct Item {
-    pub what: String,
+    pub kind: ItemKind,
     pub at: Option<PinRef>,
     /// Magnitude in amperes.
     pub amps: f64,
     /// For a logic input that draws more than one of its family's input currents in this
     /// state: how many.
     pub unit_loads: Option<f64>,
+}
+
+/// What a budget item is. Indices are `u32` to keep the item small: a budget holds one per
+/// input of every net.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ItemKind {
+    /// A logic input's current in the low state (IIL) or the high state (IIH): load `load`
+    /// of net `net`, on the driver's own net or, `through` a series part, on a net it feeds.
+    Input {
+        net: u32,
+        load: u32,
+        low: bool,
+        through: Option<u32>,
+    },
+    /// Pull resistor `pull` of net `net` to a rail above ground, against the driver's rated
+    /// low level `vol`.
+    PullUp { net: u32, pull: u32, vol: f64 },
+    /// Pull resistor `pull` of net `net` to ground (or below), against the driver's light
+    /// high level `voh`.
+    PullDown { net: u32, pull: u32, voh: f64 },
+    /// LED path `path` of net `net`'s `sink_paths`, from a rail, sunk at `vol`.
+    Sink { net: u32, path: u32, vol: f64 },
+    /// Another output's off-state leakage; `ioz` names it IOZ (a three-state output in the
+    /// low-state budget).
+    Leakage { pin: PinRef, ioz: bool },
+}
+
+impl Item {
+    /// True for a logic input's current (directly on the net or through a series part).
+    pub fn is_input(&self) -> bool {
+        matches!(self.kind, ItemKind::Input { .. })
+    }
+
+    /// True for a logic input reached through a series part.
+    pub fn is_through(&self) -> bool {
+        matches!(
+            self.kind,
+            ItemKind::Input {
+                through: Some(_),
+                ..
+            }
+        )
+    }
+
+    /// The item's words, as the `net` report and the messages print them:
+    /// `U2.1 input low current (IIL), through R5`, `R3 pull-up 4.7 kOhm to +5V (5.00 V -
+    /// 0.40 V) / R`, `U7.3 off-state leakage (IOZ)`.
+    pub fn describe(&self, cx: &Circuit<'_, '_>) -> String {
+        match self.kind {
+            ItemKind::Input {
+                net,
+                load,
+                low,
+                through,
+            } => {
+                let l = &cx.nets[net as usize].loads[load as usize];
+                let (each, units, what) = if low {
+                    (
+                        l.levels.as_ref().map_or(0.0, |ll| ll.iil_max.abs()),
+                        l.unit_loads.0,
+                        "input low current (IIL)",
+                    )
+                } else {
+                    (
+                        l.levels.as_ref().map_or(0.0, |ll| ll.iih_max.abs()),
+                        l.unit_loads.1,
+                        "input high current (IIH)",
+                    )
+                };
+                let mut text = format!("{} {what}", cx.pin_name(l.at));
+                if let Some(part) = through {
+                    text.push_str(", through ");
+                    text.push_str(cx.nl.components[part as usize].reference.as_str());
+                }
+                if (units - 1.0).abs() > 1e-9 {
+                    let n = if (units - units.round()).abs() < 1e-9 {
+                        format!("{units:.0}")
+                    } else {
+                        format!("{units:.1}")
+                    };
+                    let name = cx.cl.parts[l.at.comp].table_names[l.at.pin]
+                        .as_deref()
+                        .unwrap_or("the input");
+                    let family = l.family.as_deref().unwrap_or("its family");
+                    text.push_str(&format!(
+                        ": {name} draws {n} unit loads ({n} x the {family} input's {})",
+                        format_amps(each)
+                    ));
+                }
+                text
+            }
+            ItemKind::PullUp { net, pull, vol } => {
+                let p = &cx.nets[net as usize].pulls[pull as usize];
+                format!(
+                    "{} pull-up {} to {} ({:.2} V - {:.2} V) / R",
+                    cx.nl.components[p.resistor].reference,
+                    format_ohms(p.ohms),
+                    cx.net_name(p.rail_net),
+                    p.rail_volts,
+                    vol
+                )
+            }
+            ItemKind::PullDown { net, pull, voh } => {
+                let p = &cx.nets[net as usize].pulls[pull as usize];
+                format!(
+                    "{} pull-down {} to {} ({:.2} V / R)",
+                    cx.nl.components[p.resistor].reference,
+                    format_ohms(p.ohms),
+                    cx.net_name(p.rail_net),
+                    voh
+                )
+            }
+            ItemKind::Sink { net, path, vol } => {
+                let p = &cx.nets[net as usize].sink_paths[path as usize];
+                let names: Vec<&str> = p
+                    .resistors
+                    .iter()
+                    .chain(&p.leds)
+                    .map(|&c| cx.nl.components[c].reference.as_str())
+                    .collect();
+                format!(
+                    "{} from {} ({:.2} V - {:.2} V VF - {:.2} V) / {}",
+                    names.join(" and "),
+                    cx.net_name(p.rail_net),
+                    p.rail_volts,
+                    p.vf,
+                    vol,
+                    format_ohms(p.ohms)
+                )
+            }
+            ItemKind::Leakage { pin, ioz } => format!(
+                "{} off-state leakage{}",
+                cx.pin_name(pin),
+                if ioz { " (IOZ)" } else { "" }
+            ),
+        }
+    }
 }
 
 /// One state (low or high) of one driver.
@@ -386,55 +524,37 @@ fn counted(cx: &Circuit<'_, '_>, d: &super::Driver, l: &super::Load) -> bool {
             && cx.cl.parts[d.at.comp].rated_with[d.at.pin].contains(&l.at.pin))
 }
 
-/// A logic input's line in a state's budget: its current, and when it draws more than one
-/// of its family's input currents, how many (`6 unit loads: 6 x 0.40 mA`).
+/// A logic input's line in a state's budget: load `load` of net `net`, its current, and
+/// when it draws more than one of its family's input currents, how many (`6 unit loads: 6 x
+/// 0.40 mA` in its words).
 fn input_item(
-    cx: &Circuit<'_, '_>,
+    net: usize,
+    load: usize,
     l: &super::Load,
     low: bool,
     through: Option<usize>,
 ) -> Option<Item> {
-    let ll = l.levels.as_ref()?;
-    let (amps, each, units, what) = if low {
-        (
-            l.iil()?,
-            ll.iil_max.abs(),
-            l.unit_loads.0,
-            "input low current (IIL)",
-        )
+    let (amps, units) = if low {
+        (l.iil()?, l.unit_loads.0)
     } else {
-        (
-            l.iih()?,
-            ll.iih_max.abs(),
-            l.unit_loads.1,
-            "input high current (IIH)",
-        )
+        (l.iih()?, l.unit_loads.1)
     };
-    let mut text = format!("{} {what}", cx.pin_name(l.at));
-    if let Some(part) = through {
-        text.push_str(&format!(", through {}", cx.nl.components[part].reference));
-    }
-    if (units - 1.0).abs() > 1e-9 {
-        let n = if (units - units.round()).abs() < 1e-9 {
-            format!("{units:.0}")
-        } else {
-            format!("{units:.1}")
-        };
-        let name = cx.cl.parts[l.at.comp].table_names[l.at.pin]
-            .clone()
-            .unwrap_or_else(|| "the input".into());
-        let family = l.family.as_deref().unwrap_or("its family");
-        text.push_str(&format!(
-            ": {name} draws {n} unit loads ({n} x the {family} input's {})",
-            format_amps(each)
-        ));
-    }
     Some(Item {
-        what: text,
+        kind: ItemKind::Input {
+            net: index(net),
+            load: index(load),
+            low,
+            through: through.map(index),
+        },
         at: Some(l.at),
         amps,
         unit_loads: ((units - 1.0).abs() > 1e-9).then_some(units),
     })
+}
+
+/// An index as an item holds it.
+fn index(i: usize) -> u32 {
+    u32::try_from(i).expect("fewer than 2^32 nets, parts and pins")
 }
 
 fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
@@ -451,6 +571,17 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     };
     let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
     let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
+    // the most items a state can hold: every input here and on the nets fed, every pull
+    // resistor and LED path, every other driver
+    let capacity = nm.loads.len()
+        + nm.feeds
+            .iter()
+            .map(|&(m, _)| cx.nets[m].loads.len())
+            .sum::<usize>()
+        + nm.pulls.len()
+        + nm.sink_paths.len()
+        + nm.drivers.len().saturating_sub(1);
+    out.drivers.reserve_exact(nm.drivers.len());
     for (di, d) in nm.drivers.iter().enumerate() {
         // an open-emitter output (a display driver's emitter follower) only sources: it has no
         // low state to budget, and its high is rated by its own data sheet, not by its
@@ -473,22 +604,23 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         let vol_rated = lv.vol.last().map_or(0.4, |p| p.v);
         let voh_light = lv.voh.first().map_or(2.4, |p| p.v);
         // --- low state: this driver low, every other driver high or off
-        let mut items = Vec::new();
-        for l in nm.loads.iter().filter(|l| counted(cx, d, l)) {
-            items.extend(input_item(cx, l, true, None));
+        let mut items = Vec::with_capacity(capacity);
+        for (li, l) in nm.loads.iter().enumerate() {
+            if counted(cx, d, l) {
+                items.extend(input_item(net, li, l, true, None));
+            }
         }
+        // the own net's inputs' IIL, for the operating point below
+        let iil: f64 = items.iter().map(|i| i.amps).sum();
         for &pi in &pullups {
             let p = &nm.pulls[pi];
             let a = ((p.rail_volts - vol_rated) / p.ohms).max(0.0);
             items.push(Item {
-                what: format!(
-                    "{} pull-up {} to {} ({:.2} V - {:.2} V) / R",
-                    cx.nl.components[p.resistor].reference,
-                    format_ohms(p.ohms),
-                    cx.net_name(p.rail_net),
-                    p.rail_volts,
-                    vol_rated
-                ),
+                kind: ItemKind::PullUp {
+                    net: index(net),
+                    pull: index(pi),
+                    vol: vol_rated,
+                },
                 at: Some(p.at),
                 amps: a,
                 unit_loads: None,
@@ -496,30 +628,25 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         }
         // inputs on nets this one feeds through series resistors, beads or inductors
         for &(m, link) in &nm.feeds {
-            for l in &cx.nets[m].loads {
-                items.extend(input_item(cx, l, true, Some(link.part)));
+            for (li, l) in cx.nets[m].loads.iter().enumerate() {
+                items.extend(input_item(m, li, l, true, Some(link.part)));
             }
         }
         // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
         // state, (V_rail - VF - VOL) / R each
-        for p in nm.sink_paths.iter().filter(|p| p.ohms > 0.0) {
+        for (si, p) in nm
+            .sink_paths
+            .iter()
+            .enumerate()
+            .filter(|(_, p)| p.ohms > 0.0)
+        {
             let a = ((p.rail_volts - p.vf - vol_rated) / p.ohms).max(0.0);
-            let names: Vec<&str> = p
-                .resistors
-                .iter()
-                .chain(&p.leds)
-                .map(|&c| cx.nl.components[c].reference.as_str())
-                .collect();
             items.push(Item {
-                what: format!(
-                    "{} from {} ({:.2} V - {:.2} V VF - {:.2} V) / {}",
-                    names.join(" and "),
-                    cx.net_name(p.rail_net),
-                    p.rail_volts,
-                    p.vf,
-                    vol_rated,
-                    format_ohms(p.ohms)
-                ),
+                kind: ItemKind::Sink {
+                    net: index(net),
+                    path: index(si),
+                    vol: vol_rated,
+                },
                 at: Some(p.at),
                 amps: a,
                 unit_loads: None,
@@ -532,13 +659,19 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             if let Some(ol) = &o.levels {
                 match o.role {
                     PinRole::ThreeState | PinRole::Bidirectional => items.push(Item {
-                        what: format!("{} off-state leakage (IOZ)", cx.pin_name(o.at)),
+                        kind: ItemKind::Leakage {
+                            pin: o.at,
+                            ioz: true,
+                        },
                         at: Some(o.at),
                         amps: ol.ioz.abs(),
                         unit_loads: None,
                     }),
                     PinRole::OpenCollector => items.push(Item {
-                        what: format!("{} off-state leakage", cx.pin_name(o.at)),
+                        kind: ItemKind::Leakage {
+                            pin: o.at,
+                            ioz: false,
+                        },
                         at: Some(o.at),
                         amps: ol.oc_leakage.abs(),
                         unit_loads: None,
@@ -547,6 +680,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 }
             }
         }
+        items.shrink_to_fit();
         let total: f64 = items.iter().map(|i| i.amps).sum();
         let low = StateBudget {
             items,
@@ -564,16 +698,19 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional | PinRole::OpenEmitter
         );
         let mut load_high: f64 = 0.0;
-        let mut items = Vec::new();
-        for l in nm.loads.iter().filter(|l| counted(cx, d, l)) {
-            if let Some(it) = input_item(cx, l, false, None) {
+        let mut items = Vec::with_capacity(capacity);
+        for (li, l) in nm.loads.iter().enumerate() {
+            if !counted(cx, d, l) {
+                continue;
+            }
+            if let Some(it) = input_item(net, li, l, false, None) {
                 load_high += it.amps;
                 items.push(it);
             }
         }
         for &(m, link) in &nm.feeds {
-            for l in &cx.nets[m].loads {
-                if let Some(it) = input_item(cx, l, false, Some(link.part)) {
+            for (li, l) in cx.nets[m].loads.iter().enumerate() {
+                if let Some(it) = input_item(m, li, l, false, Some(link.part)) {
                     load_high += it.amps;
                     items.push(it);
                 }
@@ -591,7 +728,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 };
                 load_high += a;
                 items.push(Item {
-                    what: format!("{} off-state leakage", cx.pin_name(o.at)),
+                    kind: ItemKind::Leakage {
+                        pin: o.at,
+                        ioz: false,
+                    },
                     at: Some(o.at),
                     amps: a,
                     unit_loads: None,
@@ -608,18 +748,17 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 let p = &nm.pulls[pi];
                 let a = (voh_light - p.rail_volts).max(0.0) / p.ohms;
                 items.push(Item {
-                    what: format!(
-                        "{} pull-down {} to {} ({:.2} V / R)",
-                        cx.nl.components[p.resistor].reference,
-                        format_ohms(p.ohms),
-                        cx.net_name(p.rail_net),
-                        voh_light
-                    ),
+                    kind: ItemKind::PullDown {
+                        net: index(net),
+                        pull: index(pi),
+                        voh: voh_light,
+                    },
                     at: Some(p.at),
                     amps: a,
                     unit_loads: None,
                 });
             }
+            items.shrink_to_fit();
             let total: f64 = items.iter().map(|i| i.amps).sum();
             let level = lv.voh_at(-total);
             high_level = level;
@@ -652,15 +791,12 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             } else {
                 0.0
             };
-        let iil: f64 = nm
-            .loads
-            .iter()
-            .filter(|l| counted(cx, d, l))
-            .filter_map(|l| l.iil())
-            .sum();
-        let stops_short = cx
-            .family(d.at.comp)
-            .is_some_and(|f| f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl);
+        // read only when the high state has resistive loads (pull-downs, LEDs to ground):
+        // with none there is no operating point to solve
+        let stops_short = (!nm.led_paths.is_empty() || !pulldowns.is_empty())
+            && cx.family(d.at.comp).is_some_and(|f| {
+                f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
+            });
         let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
         out.drivers.push(DriverBudget {
             driver: di,
@@ -674,6 +810,32 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         });
     }
     // margins
+    // a CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is checked at
+    // the top of it and VIL at the bottom (TTL thresholds do not move); each load's, once
+    let t = cx.opts.rail_tolerance.abs();
+    let scaled_at: Vec<Option<(f64, f64, f64, f64)>> = if t > 0.0 {
+        nm.loads
+            .iter()
+            .map(
+                |l| match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
+                    (Some(f), Some(s)) if f.is_cmos_input() => {
+                        let (lo, hi) = cx.rail_range(s.vcc);
+                        Some((
+                            f.levels(hi, Drive::Standard).vih_min,
+                            f.levels(lo, Drive::Standard).vil_max,
+                            hi,
+                            lo,
+                        ))
+                    }
+                    _ => None,
+                },
+            )
+            .collect()
+    } else {
+        Vec::new()
+    };
+    out.margins
+        .reserve_exact(out.drivers.len() * nm.loads.len());
     for db in &out.drivers {
         let d = &nm.drivers[db.driver];
         for (li, l) in nm.loads.iter().enumerate() {
@@ -681,21 +843,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 continue;
             }
             let Some(ll) = &l.levels else { continue };
-            // a CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is
-            // checked at the top of it and VIL at the bottom (TTL thresholds do not move)
-            let t = cx.opts.rail_tolerance.abs();
-            let scaled = match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
-                (Some(f), Some(s)) if t > 0.0 && f.is_cmos_input() => {
-                    let (lo, hi) = cx.rail_range(s.vcc);
-                    Some((
-                        f.levels(hi, Drive::Standard).vih_min,
-                        f.levels(lo, Drive::Standard).vil_max,
-                        hi,
-                        lo,
-                    ))
-                }
-                _ => None,
-            };
+            let scaled = scaled_at.get(li).copied().flatten();
             let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
             out.margins.push(LoadMargin {
                 driver: db.driver,
@@ -708,6 +856,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             });
         }
     }
+    out.margins.shrink_to_fit();
     // open-collector window
     let oc: Vec<usize> = (0..nm.drivers.len())
         .filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some())
@@ -780,4 +929,110 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     }
     out.fit();
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Two 74LS125 three-state outputs on `/BUS` with a 74LS00 input, a 74LS73 clock (2 unit
+    /// loads low, 4 high: the function table's figures), a 74LS00 input on `/FED` behind
+    /// R1, a pull-up, a pull-down and an LED from +5V; two 74LS05 open collectors on `/OC`.
+    const BOARD: &str = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74LS125") (libsource (lib "x") (part "74LS125")))
+    (comp (ref "U2") (value "74LS125") (libsource (lib "x") (part "74LS125")))
+    (comp (ref "U3") (value "74LS00") (libsource (lib "x") (part "74LS00")))
+    (comp (ref "U4") (value "74LS73") (libsource (lib "x") (part "74LS73")))
+    (comp (ref "U5") (value "74LS05") (libsource (lib "x") (part "74LS05")))
+    (comp (ref "R1") (value "100") (libsource (lib "x") (part "R")))
+    (comp (ref "R2") (value "4K7") (libsource (lib "x") (part "R")))
+    (comp (ref "R3") (value "47K") (libsource (lib "x") (part "R")))
+    (comp (ref "R4") (value "330") (libsource (lib "x") (part "R")))
+    (comp (ref "D1") (value "LED_RED") (libsource (lib "x") (part "LED"))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "U2") (pin "14")) (node (ref "U3") (pin "14")) (node (ref "U4") (pin "4")) (node (ref "U5") (pin "14")) (node (ref "R2") (pin "2")) (node (ref "R4") (pin "2")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "U2") (pin "7")) (node (ref "U3") (pin "7")) (node (ref "U4") (pin "11")) (node (ref "U5") (pin "7")) (node (ref "R3") (pin "2")) (node (ref "U1") (pin "1")) (node (ref "U1") (pin "2")) (node (ref "U2") (pin "2")))
+    (net (code "3") (name "/BUS") (node (ref "U1") (pin "3")) (node (ref "U2") (pin "3")) (node (ref "U3") (pin "1")) (node (ref "U4") (pin "1")) (node (ref "R1") (pin "1")) (node (ref "R2") (pin "1")) (node (ref "R3") (pin "1")) (node (ref "D1") (pin "2")))
+    (net (code "4") (name "/FED") (node (ref "R1") (pin "2")) (node (ref "U3") (pin "2")))
+    (net (code "5") (name "/LEDA") (node (ref "R4") (pin "1")) (node (ref "D1") (pin "1")))
+    (net (code "6") (name "/OE2") (node (ref "U2") (pin "1")) (node (ref "U5") (pin "2")))
+    (net (code "7") (name "/OC") (node (ref "U5") (pin "4")) (node (ref "U3") (pin "4")) (node (ref "U5") (pin "6")))
+  ))
+"#;
+
+    /// Each budget item of the first driver of `net`, low state then high state: (kind of
+    /// item, its words).
+    fn words(net: &str) -> (Vec<String>, Vec<String>) {
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        let n = nl.net_by_name(net).expect("net on the test board");
+        let b = net_budget(&cx, n);
+        let db = &b.drivers[0];
+        let text = |sb: Option<&StateBudget>| -> Vec<String> {
+            sb.map_or(Vec::new(), |sb| {
+                sb.items.iter().map(|i| i.describe(&cx)).collect()
+            })
+        };
+        (text(db.low.as_ref()), text(db.high.as_ref()))
+    }
+
+    /// The words are those the `net` report printed when each item carried its text, built
+    /// as the budget was (the same board's report before the items were structured).
+    #[test]
+    fn items_describe_themselves_in_the_old_words() {
+        let (low, high) = words("/BUS");
+        assert_eq!(
+            low,
+            [
+                "U3.1 input low current (IIL)",
+                "U4.1 input low current (IIL): 1CLK draws 2 unit loads (2 x the 74LS input's 0.40 mA)",
+                "R2 pull-up 4.7 kOhm to +5V (5.00 V - 0.50 V) / R",
+                "U3.2 input low current (IIL), through R1",
+                "R4 and D1 from +5V (5.00 V - 1.70 V VF - 0.50 V) / 330 Ohm",
+                "U2.3 off-state leakage (IOZ)",
+            ]
+        );
+        assert_eq!(
+            high,
+            [
+                "U3.1 input high current (IIH)",
+                "U4.1 input high current (IIH): 1CLK draws 4 unit loads (4 x the 74LS input's 20 uA)",
+                "U3.2 input high current (IIH), through R1",
+                "U2.3 off-state leakage",
+                "R3 pull-down 47 kOhm to GND (2.70 V / R)",
+            ]
+        );
+        // an open collector's leakage is not named IOZ
+        let (low, high) = words("/OC");
+        assert_eq!(
+            low,
+            ["U3.4 input low current (IIL)", "U5.6 off-state leakage"]
+        );
+        assert!(high.is_empty(), "{high:?}");
+    }
+
+    /// `fanout-overrun` counts inputs and inputs through a series part by the item's kind.
+    #[test]
+    fn items_say_whether_they_are_inputs_and_through_a_series_part() {
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        let b = net_budget(&cx, nl.net_by_name("/BUS").expect("net"));
+        let low = b.drivers[0].low.as_ref().expect("a low state");
+        let inputs: Vec<bool> = low.items.iter().map(Item::is_input).collect();
+        assert_eq!(inputs, [true, true, false, true, false, false]);
+        let through: Vec<bool> = low.items.iter().map(Item::is_through).collect();
+        assert_eq!(through, [false, false, false, true, false, false]);
+        assert_eq!(
+            low.items[1].unit_loads,
+            Some(2.0),
+            "the 74LS73 clock's low unit loads"
+        );
+    }
 }

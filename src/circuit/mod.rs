@@ -616,6 +616,8 @@ pub fn build<'n, 'a>(
             .family
             .as_deref()
             .map(|f| family_ids.entry(f).or_insert_with(|| Arc::from(f)).clone());
+        // the family's table entry, looked up once per part
+        let fam = part.family.as_deref().and_then(|f| rules.families.get(f));
         for (pi, p) in c.pins.iter().enumerate() {
             let Connection::Net { net, .. } = p.connection else {
                 continue;
@@ -672,7 +674,6 @@ pub fn build<'n, 'a>(
                 }
                 _ => {}
             }
-            let fam = part.family.as_deref().and_then(|f| rules.families.get(f));
             match role {
                 PinRole::Input | PinRole::SchmittInput => {
                     let lv = levels(ci);
@@ -1169,12 +1170,13 @@ fn rails_by_usage(
     }
     // voltages: a fixed regulator's output first, then the families powered
     for (ci, c) in nl.components.iter().enumerate() {
-        let Some((volts, out_pin)) = rails::fixed_regulator(c.value_str()) else {
-            continue;
-        };
+        // a logic part is no regulator: its value is not read again
         if cl.parts[ci].is_logic() {
             continue;
         }
+        let Some((volts, out_pin)) = rails::fixed_regulator(c.value_str()) else {
+            continue;
+        };
         let by_name = c.pins.iter().find(|p| {
             p.name.as_deref().is_some_and(|n| {
                 let n = n.to_ascii_uppercase();

@@ -81,6 +81,17 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
     if is_ground(&n) {
         return Some(NameRail::Ground);
     }
+    // a supply is named by a supply word or starts with its voltage (`+5V`, `3V3`): any other
+    // name is a signal, and the word-by-word reading below is spared on every such net
+    let supply_word = ["VCC", "VDD", "VEE", "V+", "V-", "VBAT", "VIN", "VPP"]
+        .iter()
+        .any(|w| n.starts_with(w));
+    let starts_with_volts = n.starts_with('+')
+        || n.starts_with('-')
+        || n.chars().next().is_some_and(|c| c.is_ascii_digit());
+    if !(supply_word || starts_with_volts) {
+        return None;
+    }
     // a signal named after a rail (`5V_OK`, `/5V_TO_3V`, `12V_EN`) is not the rail
     const SIGNAL_WORDS: &[&str] = &[
         "TO", "EN", "ENA", "ENABLE", "SENSE", "SEN", "MON", "DET", "OK", "PG", "PGOOD", "FAULT",
@@ -98,9 +109,6 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
         return None;
     }
     let v = voltage_in_name(&n);
-    let supply_word = ["VCC", "VDD", "VEE", "V+", "V-", "VBAT", "VIN", "VPP"]
-        .iter()
-        .any(|w| n.starts_with(w));
     let voltage_like = v.is_some()
         && (n.starts_with('+')
             || n.starts_with('-')

@@ -8,7 +8,13 @@ use crate::circuit::Circuit;
 use crate::text::sanitize;
 use crate::values::{format_amps, format_ohms, format_volts};
 
-fn state(out: &mut dyn Write, name: &str, verb: &str, sb: &StateBudget) -> io::Result<()> {
+fn state(
+    out: &mut dyn Write,
+    cx: &Circuit<'_, '_>,
+    name: &str,
+    verb: &str,
+    sb: &StateBudget,
+) -> io::Result<()> {
     writeln!(
         out,
         "    {name} state: must {verb} {} against a rating of {} ({:.0}%)",
@@ -21,7 +27,7 @@ fn state(out: &mut dyn Write, name: &str, verb: &str, sb: &StateBudget) -> io::R
             out,
             "      {:>10}  {}",
             format_amps(it.amps),
-            sanitize(&it.what)
+            sanitize(&it.describe(cx))
         )?;
     }
     match sb.level {
@@ -172,10 +178,10 @@ pub fn write_net(
         let d = &nm.drivers[db.driver];
         writeln!(out, "  budget of {}:", cx.pin_name(d.at))?;
         if let Some(sb) = &db.low {
-            state(out, "low", "sink", sb)?;
+            state(out, cx, "low", "sink", sb)?;
         }
         if let Some(sb) = &db.high {
-            state(out, "high", "source", sb)?;
+            state(out, cx, "high", "source", sb)?;
         }
         if let Some(pu) = &db.pull_up {
             writeln!(
