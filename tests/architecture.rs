@@ -329,3 +329,30 @@ fn the_audit_names_only_checks_that_exist() {
         );
     }
 }
+
+/// Text is written when it is printed: a budget item holds what it is, never its words, and
+/// no check decides anything by reading an item's words.
+#[test]
+fn budget_items_hold_no_words() {
+    let budget = sources()
+        .into_iter()
+        .find(|(p, _)| p == "src/circuit/budget.rs")
+        .expect("budget.rs")
+        .1;
+    let start = budget.find("pub struct Item {").expect("struct Item");
+    let body = &budget[start..start + budget[start..].find('}').expect("end of Item")];
+    assert!(!body.contains("String"), "budget::Item holds text: {body}");
+    for (p, t) in sources() {
+        if !p.starts_with("src/checks/") {
+            continue;
+        }
+        for line in t.lines().filter(|l| l.contains(".describe(")) {
+            assert!(
+                !["contains(", "starts_with(", "ends_with(", "find("]
+                    .iter()
+                    .any(|m| line.contains(m)),
+                "{p} decides by an item's words: {line}"
+            );
+        }
+    }
+}
