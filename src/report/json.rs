@@ -134,7 +134,7 @@ fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: String) ->
         message: &d.message,
         net: d.net.as_deref(),
         pins: &d.pins,
-        label: primary.map(|l| l.text.as_str()).filter(|t| !t.is_empty()),
+        label: primary.map(|l| &*l.text).filter(|t| !t.is_empty()),
         place: PlaceOut::of(source, primary.map(|l| l.span)),
         help: d.help.as_deref(),
         related: related_labels(d)
