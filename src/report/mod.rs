@@ -215,6 +215,14 @@ pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
 /// Findings with the same key in one file are told apart by their rank among them (the
 /// findings come in a stable order), so each fingerprint is unique within its file.
 pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
+    fingerprint_hashes(f)
+        .into_iter()
+        .map(|h| format!("{h:016x}"))
+        .collect()
+}
+
+/// [`fingerprints`] as numbers, for a reporter that writes each as it goes.
+pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
     let mut seen: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
     f.diags
         .iter()
@@ -227,7 +235,7 @@ pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
                 h = fnv1a64_more(h, format!("\u{1d}{n}").as_bytes());
             }
             *n += 1;
-            format!("{h:016x}")
+            h
         })
         .collect()
 }
