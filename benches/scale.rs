@@ -506,50 +506,89 @@ fn main() {
     println!("load average (1, 5 min) at the end: {}", load());
 }
 
-/// The whole pipeline on synthetic one-sheet schematics (a tenth of each netlist size: a
-/// schematic carries about ten times the text per pin of its netlist), against `cat`.
+/// The whole pipeline on synthetic schematics (a tenth of each netlist size: a schematic
+/// carries about ten times the text per pin of its netlist), against `cat` of the same bytes:
+/// one sheet of resistor cells, and a hierarchical project (a root placing sheets, each of a
+/// few child files used by four sheets, `netmargin::synth::hierarchy`).
 fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize, mem: bool) {
     println!();
-    println!("schematics (one sheet of resistor cells, wires and labels)");
+    println!("schematics: one sheet of resistor cells, wires and labels; a hierarchy of sheets");
     println!();
-    println!("| size | nets | check (json) | MB/s | / cat | peak memory |");
-    println!("| ---: | ---: | ---: | ---: | ---: | ---: |");
+    println!("| project | size | files | nets | check (json) | MB/s | / cat | CPU time | CPU time x for 10 x data | peak memory | peak / size |");
+    println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
     let cat = PathBuf::from("cat");
-    for &size in sizes {
-        let size_mb = (size / 10).max(1);
-        let path = dir.join(format!("synthetic-{size_mb}MB.kicad_sch"));
-        let (text, nets) = netmargin::synth::schematic(size_mb * 1_000_000);
-        std::fs::write(&path, &text).expect("bench file");
-        let bytes = text.len() as f64;
-        drop(text);
-        let args: Vec<&std::ffi::OsStr> = vec![
-            "check".as_ref(),
-            "--format".as_ref(),
-            "json".as_ref(),
-            "--no-config".as_ref(),
-            path.as_os_str(),
-        ];
-        let mut t = Vec::new();
-        let mut peak = None;
-        for _ in 0..runs {
-            let r = run(bin, &args, &[], mem);
-            peak = r.peak_kb.or(peak);
-            t.push(r.secs);
+    for kind in ["one sheet", "hierarchy"] {
+        let mut prev_cpu: Option<f64> = None;
+        for &size in sizes {
+            let size_mb = (size / 10).max(1);
+            // the files written: the root first
+            let (files, nets): (Vec<PathBuf>, usize) = if kind == "one sheet" {
+                let path = dir.join(format!("synthetic-{size_mb}MB.kicad_sch"));
+                let (text, nets) = netmargin::synth::schematic(size_mb * 1_000_000);
+                std::fs::write(&path, &text).expect("bench file");
+                (vec![path], nets)
+            } else {
+                let folder = dir.join(format!("hierarchy-{size_mb}MB"));
+                std::fs::create_dir_all(&folder).expect("bench folder");
+                let (texts, nets) = netmargin::synth::hierarchy(size_mb * 1_000_000);
+                let paths = texts
+                    .iter()
+                    .map(|(name, text)| {
+                        let p = folder.join(name);
+                        std::fs::write(&p, text).expect("bench file");
+                        p
+                    })
+                    .collect();
+                (paths, nets)
+            };
+            let bytes: u64 = files
+                .iter()
+                .map(|p| std::fs::metadata(p).map_or(0, |m| m.len()))
+                .sum();
+            let args: Vec<&std::ffi::OsStr> = vec![
+                "check".as_ref(),
+                "--format".as_ref(),
+                "json".as_ref(),
+                "--no-config".as_ref(),
+                files[0].as_os_str(),
+            ];
+            let (mut t, mut cpu) = (Vec::new(), Vec::new());
+            let mut peak = None;
+            for _ in 0..runs {
+                let r = run(bin, &args, &[], mem);
+                assert!(
+                    matches!(r.code, Some(0 | 1)),
+                    "netmargin check exited with {:?} on {}",
+                    r.code,
+                    files[0].display()
+                );
+                peak = r.peak_kb.or(peak);
+                t.push(r.secs);
+                cpu.extend(r.cpu);
+            }
+            let cat_args: Vec<&std::ffi::OsStr> = files.iter().map(|p| p.as_os_str()).collect();
+            let f = median(
+                (0..runs)
+                    .map(|_| run(&cat, &cat_args, &[], false).secs)
+                    .collect(),
+            );
+            let w = median(t);
+            let cpu = (!cpu.is_empty()).then(|| median(cpu));
+            let growth = match (prev_cpu, cpu) {
+                (Some(a), Some(b)) if a > 0.0 => format!("{:.1}", b / a),
+                _ => String::new(),
+            };
+            prev_cpu = cpu;
+            let mbytes = bytes as f64 / 1e6;
+            println!(
+                "| {kind} | {mbytes:.1} MB | {} | {nets} | {w:.3} s | {:.1} | {:.0} x | {} | {growth} | {} | {} |",
+                files.len(),
+                mbytes / w,
+                w / f,
+                cpu.map_or("n/a".to_string(), |c| format!("{c:.2} s")),
+                mb(peak),
+                peak.map_or("n/a".to_string(), |k| format!("{:.2} x", k as f64 * 1024.0 / bytes as f64)),
+            );
         }
-        let cat_args: Vec<&std::ffi::OsStr> = vec![path.as_os_str()];
-        let f = median(
-            (0..runs)
-                .map(|_| run(&cat, &cat_args, &[], false).secs)
-                .collect(),
-        );
-        let w = median(t);
-        println!(
-            "| {:.1} MB | {nets} | {:.3} s | {:.1} | {:.0} x | {} |",
-            bytes / 1e6,
-            w,
-            bytes / 1e6 / w,
-            w / f,
-            mb(peak)
-        );
     }
 }

@@ -386,6 +386,61 @@ mod tests {
     }
 }
 
+/// The library symbols of a synthetic sheet: one resistor.
+const SHEET_LIB: &str = "  (lib_symbols\n    (symbol \"Device:R\" (in_bom yes) (on_board yes)\n      (property \"Reference\" \"R\" (at 0 0 0))\n      (symbol \"R_1_1\"\n        (pin passive line (at 0 3.81 270) (length 1.27) (name \"~\") (number \"1\"))\n        (pin passive line (at 0 -3.81 90) (length 1.27) (name \"~\") (number \"2\")))))\n";
+
+/// Writes `cells` resistor cells on a grid: each cell two resistors joined by a wire, their
+/// outer ends on labels that join the next cell. `uses` are the instance paths the symbols
+/// are placed under, each with the prefix of its references (`R` gives `R0`, `R1` ...);
+/// `end_labels` names the chain's two ends with hierarchical labels (`IN`, `OUT`) instead of
+/// local ones.
+fn write_cells(s: &mut String, cells: usize, uses: &[(String, String)], end_labels: bool) {
+    let mm = |v: f64| format!("{v:.2}");
+    for c in 0..cells {
+        let x0 = (c % 200) as f64 * 30.48;
+        let y = (c / 200) as f64 * 20.32 + 10.16;
+        for (k, xc) in [(0, x0 + 10.16), (1, x0 + 22.86)] {
+            let r = 2 * c + k;
+            let _ = write!(
+                s,
+                "  (symbol (lib_id \"Device:R\") (at {} {} 90) (unit 1) (in_bom yes) (on_board yes)\n    (uuid \"{:08x}-0000-4000-8000-{:012x}\")\n    (property \"Reference\" \"R{r}\" (at {} {} 0))\n    (property \"Value\" \"4k7\" (at {} {} 0))\n    (pin \"1\" (uuid \"{:08x}-0001-4000-8000-{:012x}\"))\n    (pin \"2\" (uuid \"{:08x}-0002-4000-8000-{:012x}\"))\n    (instances (project \"synthetic\"",
+                mm(xc), mm(y), r, r, mm(xc), mm(y - 2.54), mm(xc), mm(y + 2.54), r, r, r, r
+            );
+            for (path, prefix) in uses {
+                let _ = write!(s, " (path \"{path}\" (reference \"{prefix}{r}\") (unit 1))");
+            }
+            s.push_str(")))\n");
+        }
+        let wire = |s: &mut String, a: f64, b: f64, n: usize| {
+            let _ = write!(
+                s,
+                "  (wire (pts (xy {} {}) (xy {} {})) (stroke (width 0) (type default)) (uuid \"{:08x}-0003-4000-8000-{:012x}\"))\n",
+                mm(a), mm(y), mm(b), mm(y), c, n
+            );
+        };
+        wire(s, x0 + 13.97, x0 + 19.05, 0);
+        wire(s, x0 + 3.81, x0 + 6.35, 1);
+        wire(s, x0 + 26.67, x0 + 29.21, 2);
+        for (at, n) in [(x0 + 3.81, c), (x0 + 29.21, c + 1)] {
+            let (kind, name) = match (end_labels, n) {
+                (true, 0) => ("hierarchical_label", "IN".to_string()),
+                (true, n) if n == cells => ("hierarchical_label", "OUT".to_string()),
+                _ => ("label", format!("N{n}")),
+            };
+            let shape = if kind == "label" {
+                ""
+            } else {
+                " (shape passive)"
+            };
+            let _ = write!(
+                s,
+                "  ({kind} \"{name}\"{shape} (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"{:08x}-0004-4000-8000-{:012x}\"))\n",
+                mm(at), mm(y), c, n
+            );
+        }
+    }
+}
+
 /// Writes a one-sheet KiCad 8 schematic of about `target_bytes` bytes: a chain of resistor
 /// cells on a grid, each cell two resistors joined by a wire, their outer ends on labels
 /// that join the next cell, so the reader has wires, labels, placements and instance data
@@ -397,39 +452,74 @@ pub fn schematic(target_bytes: usize) -> (String, usize) {
     let mut s = String::with_capacity(target_bytes + 8192);
     let _ = write!(
         s,
-        "(kicad_sch (version 20231120) (generator \"eeschema\")\n  (uuid \"{root}\")\n  (paper \"A0\")\n  (lib_symbols\n    (symbol \"Device:R\" (in_bom yes) (on_board yes)\n      (property \"Reference\" \"R\" (at 0 0 0))\n      (symbol \"R_1_1\"\n        (pin passive line (at 0 3.81 270) (length 1.27) (name \"~\") (number \"1\"))\n        (pin passive line (at 0 -3.81 90) (length 1.27) (name \"~\") (number \"2\")))))\n"
+        "(kicad_sch (version 20231120) (generator \"eeschema\")\n  (uuid \"{root}\")\n  (paper \"A0\")\n{SHEET_LIB}"
     );
-    let mm = |v: f64| format!("{v:.2}");
-    for c in 0..cells {
-        let x0 = (c % 200) as f64 * 30.48;
-        let y = (c / 200) as f64 * 20.32 + 10.16;
-        for (k, xc) in [(0, x0 + 10.16), (1, x0 + 22.86)] {
-            let r = 2 * c + k;
-            let _ = write!(
-                s,
-                "  (symbol (lib_id \"Device:R\") (at {} {} 90) (unit 1) (in_bom yes) (on_board yes)\n    (uuid \"{:08x}-0000-4000-8000-{:012x}\")\n    (property \"Reference\" \"R{r}\" (at {} {} 0))\n    (property \"Value\" \"4k7\" (at {} {} 0))\n    (pin \"1\" (uuid \"{:08x}-0001-4000-8000-{:012x}\"))\n    (pin \"2\" (uuid \"{:08x}-0002-4000-8000-{:012x}\"))\n    (instances (project \"synthetic\" (path \"/{root}\" (reference \"R{r}\") (unit 1)))))\n",
-                mm(xc), mm(y), r, r, mm(xc), mm(y - 2.54), mm(xc), mm(y + 2.54), r, r, r, r
-            );
-        }
-        let wire = |s: &mut String, a: f64, b: f64, n: usize| {
-            let _ = write!(
-                s,
-                "  (wire (pts (xy {} {}) (xy {} {})) (stroke (width 0) (type default)) (uuid \"{:08x}-0003-4000-8000-{:012x}\"))\n",
-                mm(a), mm(y), mm(b), mm(y), c, n
-            );
-        };
-        wire(&mut s, x0 + 13.97, x0 + 19.05, 0);
-        wire(&mut s, x0 + 3.81, x0 + 6.35, 1);
-        wire(&mut s, x0 + 26.67, x0 + 29.21, 2);
-        for (at, n) in [(x0 + 3.81, c), (x0 + 29.21, c + 1)] {
-            let _ = write!(
-                s,
-                "  (label \"N{n}\" (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"{:08x}-0004-4000-8000-{:012x}\"))\n",
-                mm(at), mm(y), c, n
-            );
-        }
-    }
+    write_cells(
+        &mut s,
+        cells,
+        &[(format!("/{root}"), "R".to_string())],
+        false,
+    );
     s.push_str("  (sheet_instances (path \"/\" (page \"1\")))\n)\n");
     // the labelled chain nets N0 .. N{cells}, one inner net per cell
     (s, 2 * cells + 1)
+}
+
+/// Writes a hierarchical KiCad 8 project of about `target_bytes` bytes: a root sheet that
+/// places `sheets` sheets, each a use of one of a few child files (a file is used by up to
+/// four sheets, as a design reuses a channel), every child a chain of resistor cells (as in
+/// [`schematic`]) from its hierarchical label `IN` to `OUT`. On the root, labels at the
+/// sheet pins join each sheet's `OUT` to the next one's `IN`, so the chains make one chain
+/// across the project. Returns the files (root first, names relative to the root's folder)
+/// and the number of nets the project must read into.
+pub fn hierarchy(target_bytes: usize) -> (Vec<(String, String)>, usize) {
+    const USES_PER_FILE: usize = 4;
+    // a cell's text (with its four instance paths) is about 2.4 kB; 60 cells a file
+    let cells_written = (target_bytes / 2400).max(1);
+    let per_sheet = 60.min(cells_written);
+    let files = cells_written.div_ceil(per_sheet).max(1);
+    let sheets = files * USES_PER_FILE;
+    let root = "00000000-0000-4000-8000-000000000000";
+    let sheet_uuid = |i: usize| format!("5eee0000-0000-4000-8000-{i:012x}");
+    let mm = |v: f64| format!("{v:.2}");
+    let mut top = String::new();
+    let _ = write!(
+        top,
+        "(kicad_sch (version 20231120) (generator \"eeschema\")\n  (uuid \"{root}\")\n  (paper \"A0\")\n  (lib_symbols)\n"
+    );
+    for i in 0..sheets {
+        let (x, y) = ((i % 20) as f64 * 40.64, (i / 20) as f64 * 25.4 + 10.16);
+        let (pin_y, right) = (y + 5.08, x + 20.32);
+        let _ = write!(
+            top,
+            "  (sheet (at {} {}) (size 20.32 10.16) (uuid \"{}\")\n    (property \"Sheetname\" \"cells_{i}\" (at {} {} 0))\n    (property \"Sheetfile\" \"cells_{}.kicad_sch\" (at {} {} 0))\n    (pin \"IN\" passive (at {} {} 180) (effects (font (size 1.27 1.27))) (uuid \"5eee0001-0000-4000-8000-{i:012x}\"))\n    (pin \"OUT\" passive (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"5eee0002-0000-4000-8000-{i:012x}\"))\n    (instances (project \"synthetic\" (path \"/{root}\" (page \"{}\")))))\n",
+            mm(x), mm(y), sheet_uuid(i), mm(x), mm(y - 1.0), i / USES_PER_FILE, mm(x), mm(y + 11.0),
+            mm(x), mm(pin_y), mm(right), mm(pin_y), i + 2
+        );
+        for (at, n) in [(x, i), (right, i + 1)] {
+            let _ = write!(
+                top,
+                "  (label \"L{n}\" (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"5eee0003-{:04x}-4000-8000-{i:012x}\"))\n",
+                mm(at), mm(pin_y), n % 2
+            );
+        }
+    }
+    top.push_str("  (sheet_instances (path \"/\" (page \"1\")))\n)\n");
+    let mut out = vec![("root.kicad_sch".to_string(), top)];
+    for f in 0..files {
+        let mut s = String::with_capacity(per_sheet * 2500 + 4096);
+        let _ = write!(
+            s,
+            "(kicad_sch (version 20231120) (generator \"eeschema\")\n  (uuid \"c0de0000-0000-4000-8000-{f:012x}\")\n  (paper \"A0\")\n{SHEET_LIB}"
+        );
+        let uses: Vec<(String, String)> = (f * USES_PER_FILE..(f + 1) * USES_PER_FILE)
+            .map(|i| (format!("/{root}/{}", sheet_uuid(i)), format!("R{i}_")))
+            .collect();
+        write_cells(&mut s, per_sheet, &uses, true);
+        s.push_str(")\n");
+        out.push((format!("cells_{f}.kicad_sch"), s));
+    }
+    // per sheet: one inner net per cell and the chain's inner labels; on the root, the
+    // labels L0 .. L{sheets} that join the sheets
+    (out, sheets * (2 * per_sheet - 1) + sheets + 1)
 }

@@ -215,6 +215,41 @@ fn the_synthetic_schematic_reads_into_its_nets() {
     assert_eq!(pins, ["R1.2", "R2.1"]);
 }
 
+/// The benchmark's synthetic hierarchy reads into the nets it is built with: every sheet's
+/// chain, joined to the next sheet's through the root's labels, each child file's symbols
+/// named by the instance of every sheet that uses it.
+#[test]
+fn the_synthetic_hierarchy_reads_into_its_nets() {
+    let (files, nets) = netmargin::synth::hierarchy(300_000);
+    let dir = std::env::temp_dir().join(format!("netmargin-hier-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    for (name, text) in &files {
+        std::fs::write(dir.join(name), text).unwrap();
+    }
+    let root = dir.join("root.kicad_sch");
+    let loaded = netmargin::schematic::load::read_files(root.to_str().unwrap(), u64::MAX);
+    let _ = std::fs::remove_dir_all(&dir);
+    let loaded = loaded.unwrap_or_else(|f| panic!("{:?}", f.diag));
+    let nl = netmargin::schematic::read(&loaded).unwrap();
+    assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
+    assert_eq!(nl.nets.len(), nets);
+    // four sheets use each child file; 300 kB makes more than one file
+    let sheets = (files.len() - 1) * 4;
+    assert!(sheets >= 8, "{sheets}");
+    assert_eq!(nl.components.len(), sheets * 60 * 2);
+    // only the two ends of the whole chain hold a single pin
+    assert_eq!(nl.summary().pins_on_no_net, 2);
+    // L1 joins sheet 0's last resistor (its OUT) to sheet 1's first (its IN)
+    let l1 = nl.net_by_name("/L1").expect("/L1");
+    let mut pins: Vec<String> = nl.nets[l1]
+        .nodes
+        .iter()
+        .map(|n| format!("{}.{}", n.reference, n.pin))
+        .collect();
+    pins.sort();
+    assert_eq!(pins, ["R0_119.2", "R1_0.1"]);
+}
+
 /// Every output format points a finding into the sheet where the gate is drawn: the short
 /// line, the GitHub annotation, the JSON place (with its `file`) and the SARIF location.
 #[test]

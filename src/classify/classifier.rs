@@ -641,11 +641,11 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     family = e
                         .family
                         .as_ref()
-                        .map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone()));
+                        .map(|f| rules.families.get(f).map_or(f.to_string(), |x| x.id.clone()));
                     if let Some(id) = &e.function {
-                        named_function = Some(id.clone());
+                        named_function = Some(id.to_string());
                         if rules.functions.get(e.series, id).is_some() {
-                            function = Some((e.series, id.clone()));
+                            function = Some((e.series, id.to_string()));
                         }
                     }
                 }
@@ -853,8 +853,8 @@ fn symbol_reading(
         (
             e.family
                 .as_ref()
-                .map(|f| rules.families.get(f).map_or(f.clone(), |x| x.id.clone())),
-            e.function.clone(),
+                .map(|f| rules.families.get(f).map_or(f.to_string(), |x| x.id.clone())),
+            e.function.as_ref().map(|f| f.to_string()),
         )
     } else if let Some(m) = pattern::match_value(symbol) {
         // a 74 or 4000 symbol stands for its function: libraries draw one symbol per function
@@ -890,7 +890,7 @@ fn table_near_misses(value: &str, c: &Component<'_>, rules: &Rules) -> Vec<patte
         };
         let what = match (&e.function, &e.family) {
             (Some(f), Some(fam)) => format!("{f} ({fam})"),
-            (Some(f), None) => f.clone(),
+            (Some(f), None) => f.to_string(),
             (None, Some(fam)) => format!("a {fam} part"),
             (None, None) => "a listed part".to_string(),
         };

@@ -33,8 +33,10 @@
 //! rating the data sheet tests with one of the package's own inputs on it says which:
 //! `rated_with = [1]` (a counter's QA, tested at IOL plus its second clock's IIL).
 
-use std::collections::{HashMap, HashSet};
+use std::collections::HashSet;
 use std::ops::Range;
+
+use rustc_hash::FxHashMap as HashMap;
 
 use serde::Deserialize;
 use toml::Spanned;
@@ -441,7 +443,7 @@ struct Pending {
 fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
     let mut errors = Vec::new();
     let mut pending: Vec<Pending> = Vec::new();
-    let mut seen: HashMap<(Series, String), Range<usize>> = HashMap::new();
+    let mut seen: HashMap<(Series, String), Range<usize>> = HashMap::default();
 
     for sf in raw.function {
         let span = sf.span();
@@ -717,7 +719,7 @@ fn build_pins(
     errors: &mut Vec<RuleError>,
 ) -> Vec<PinDef> {
     let mut out = Vec::new();
-    let mut numbers: HashMap<u32, Range<usize>> = HashMap::new();
+    let mut numbers: HashMap<u32, Range<usize>> = HashMap::default();
     for sp in list.get_ref() {
         let rp = sp.get_ref();
         let n = *rp.pin.get_ref();

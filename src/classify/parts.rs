@@ -20,6 +20,7 @@
 //! kind = "display"                # an LED display: its segments are LED loads
 //! ```
 
+use std::borrow::Cow;
 use std::ops::Range;
 
 use serde::Deserialize;
@@ -38,15 +39,68 @@ pub enum EntryKind {
     Display,
 }
 
+/// A text of an entry: borrowed from the table compiled into the binary (decoding the
+/// shipped table then allocates no text), owned when read from a project's file.
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+#[serde(transparent)]
+pub struct EntryText(pub Cow<'static, str>);
+
+impl std::ops::Deref for EntryText {
+    type Target = str;
+    fn deref(&self) -> &str {
+        &self.0
+    }
+}
+
+impl std::borrow::Borrow<str> for EntryText {
+    fn borrow(&self) -> &str {
+        &self.0
+    }
+}
+
+impl From<String> for EntryText {
+    fn from(s: String) -> EntryText {
+        EntryText(Cow::Owned(s))
+    }
+}
+
+impl std::fmt::Display for EntryText {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+/// Decoded only from bytes that live as long as the program (the compiled table): the text
+/// is borrowed when the decoder can lend it, copied when it cannot.
+impl<'de: 'static> Deserialize<'de> for EntryText {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<EntryText, D::Error> {
+        struct V;
+        impl<'de: 'static> serde::de::Visitor<'de> for V {
+            type Value = EntryText;
+            fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+                f.write_str("a string")
+            }
+            fn visit_borrowed_str<E>(self, v: &'de str) -> Result<EntryText, E> {
+                Ok(EntryText(Cow::Borrowed(v)))
+            }
+            fn visit_str<E>(self, v: &str) -> Result<EntryText, E> {
+                Ok(EntryText(Cow::Owned(v.to_string())))
+            }
+        }
+        d.deserialize_str(V)
+    }
+}
+
 /// One explicit entry.
 #[derive(Debug, Clone, serde::Serialize, serde::Deserialize)]
+#[serde(bound(deserialize = "'de: 'static"))]
 pub struct PartEntry {
-    pub values: Vec<String>,
+    pub values: Vec<EntryText>,
     pub kind: EntryKind,
-    pub family: Option<String>,
+    pub family: Option<EntryText>,
     pub series: Series,
-    pub function: Option<String>,
-    pub note: Option<String>,
+    pub function: Option<EntryText>,
+    pub note: Option<EntryText>,
     /// Span of the entry in its file.
     pub span: Range<usize>,
     /// True for the shipped file, false for a project's.
@@ -63,6 +117,7 @@ impl PartEntry {
 
 /// The entries of the shipped file and any project file (project entries first).
 #[derive(Debug, Clone, Default, serde::Serialize, serde::Deserialize)]
+#[serde(bound(deserialize = "'de: 'static"))]
 pub struct PartTable {
     pub entries: Vec<PartEntry>,
 }
@@ -145,12 +200,12 @@ impl PartTable {
                 continue;
             }
             entries.push(PartEntry {
-                values: r.values,
+                values: r.values.into_iter().map(EntryText::from).collect(),
                 kind,
-                family: r.family,
+                family: r.family.map(EntryText::from),
                 series,
-                function: r.function,
-                note: r.note,
+                function: r.function.map(EntryText::from),
+                note: r.note.map(EntryText::from),
                 span,
                 shipped,
                 origin: None,
