@@ -76,12 +76,12 @@ mod tests {
                 .with_help(help)
         };
         let mut v = vec![
-            d(9, "b", "x", "1"),
-            d(3, "b", "y", "2"),
-            d(3, "a", "z", "3"),
-            d(9, "b", "x", "4"),
-            Diag::info("c", "no place").with_help("5"),
-            d(3, "b", "x", "6"),
+            d(9, "floating-bus", "x", "1"),
+            d(3, "floating-bus", "y", "2"),
+            d(3, "fanout-overrun", "z", "3"),
+            d(9, "floating-bus", "x", "4"),
+            Diag::info("unpowered-part", "no place").with_help("5"),
+            d(3, "floating-bus", "x", "6"),
         ];
         sort_in_file_order(&mut v);
         let helps: Vec<&str> = v.iter().map(|d| d.help.as_deref().unwrap()).collect();
