@@ -41,7 +41,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             _ => format!("tie it to {rail} (directly, or through 1 kOhm to share one resistor among several inputs)"),
         }
     };
+    // the wording that depends on the part alone, made once per part (a part has many
+    // findings, in a row)
+    let mut part_text: Option<(usize, String, String)> = None;
     for g in gates {
+        if part_text.as_ref().is_none_or(|(c, ..)| *c != g.comp) {
+            part_text = Some((g.comp, inside(g.comp), tie(g.comp)));
+        }
+        let (_, inside, tie) = part_text.as_ref().expect("set above");
         let c = &cx.nl.components[g.comp];
         let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
         let list = pin_list(ctx, &pins);
@@ -59,13 +66,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ),
                 list,
                 agree(pins.len(), "floats", "float"),
-                inside(g.comp),
+                inside,
                 agree(pins.len(), "picks", "pick")
             ),
         )
         .with_help(format!(
             "{}; the gate's output {} may stay open",
-            tie(g.comp).replacen("it", &list, 1),
+            tie.replacen("it", &list, 1),
             pin_list(ctx, &g.outputs)
         ))
         .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
@@ -75,9 +82,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         }
         out.push(d);
     }
-    // the wording that depends on the part alone, made once per part (a part has many
-    // findings, in a row)
-    let mut part_text: Option<(usize, String, String)> = None;
     for f in singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
             part_text = Some((f.at.comp, inside(f.at.comp), tie(f.at.comp)));

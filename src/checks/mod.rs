@@ -75,13 +75,16 @@ mod tests {
                 .at(Span::new(at as usize, at as usize + 1), "")
                 .with_help(help)
         };
+        // invented codes (`b` after `a`), so that no check's id is named here
+        let (a, b) = ("code-a", "code-b");
+        let unplaced = |code: &'static str| Diag::info(code, "no place").with_help("5");
         let mut v = vec![
-            d(9, "floating-bus", "x", "1"),
-            d(3, "floating-bus", "y", "2"),
-            d(3, "fanout-overrun", "z", "3"),
-            d(9, "floating-bus", "x", "4"),
-            Diag::info("unpowered-part", "no place").with_help("5"),
-            d(3, "floating-bus", "x", "6"),
+            d(9, b, "x", "1"),
+            d(3, b, "y", "2"),
+            d(3, a, "z", "3"),
+            d(9, b, "x", "4"),
+            unplaced("code-c"),
+            d(3, b, "x", "6"),
         ];
         sort_in_file_order(&mut v);
         let helps: Vec<&str> = v.iter().map(|d| d.help.as_deref().unwrap()).collect();
