@@ -103,7 +103,7 @@ fn netlist_only_parts_take_the_symbols_pin_types() {
     let cl = classify(&nl, &Rules::builtin());
     assert_eq!(cl.parts[0].method, Method::NetlistOnly);
     assert_eq!(
-        cl.parts[0].roles,
+        cl.parts[0].roles.to_vec(),
         vec![
             PinRole::Input,
             PinRole::OpenCollector,
@@ -227,4 +227,70 @@ fn parts_columns_never_run_together_and_unnamed_nets_can_be_asked_about() {
     let (code, text) = run(&["net", "fixtures/quirks/netnames-k8.net", "#1"]);
     assert_eq!(code, Some(0), "{text}");
     assert!(text.contains("#1"), "{text}");
+}
+
+#[test]
+fn parts_alike_share_one_pin_table_and_parts_that_differ_do_not() {
+    // the same unknown chip drawn with two symbols: pin 2 open collector in one, push-pull in
+    // the other
+    let mystery = |part: &str, two: &str| {
+        format!(
+            r#"    (libpart (lib "x") (part "{part}")
+      (pins
+        (pin (num "1") (name "IN") (type "input"))
+        (pin (num "2") (name "OUT") (type "{two}"))
+        (pin (num "3") (name "GND") (type "power_in"))
+        (pin (num "4") (name "VCC") (type "power_in"))))
+"#
+        )
+    };
+    let libs = [
+        mystery("MYSTERY", "open_collector"),
+        mystery("MYSTERY_PP", "output"),
+        NAND_SYMBOL_WRONG.to_string(),
+    ]
+    .concat();
+    let chip = |r: &str, part: &str| {
+        format!("    (comp (ref \"{r}\") (value \"XR-2206Q\") (libsource (lib \"x\") (part \"{part}\")))\n")
+    };
+    let comps = [
+        chip("U1", "MYSTERY"),
+        chip("U2", "MYSTERY"),
+        chip("U3", "MYSTERY_PP"),
+        comp("U4", "74LS00", ""),
+        comp("U5", "74LS00", ""),
+        comp("U6", "74HCT00", ""),
+    ]
+    .concat();
+    let text = netlist(&comps, &libs, "");
+    let tree = netmargin::sexpr::parse(&text).unwrap();
+    let nl = netmargin::netlist::build(&tree).unwrap();
+    let cl = classify(&nl, &Rules::builtin());
+    let shared = |a: usize, b: usize| std::sync::Arc::ptr_eq(&cl.parts[a].pins, &cl.parts[b].pins);
+    // the symbol's pin types decide an unclassified part's roles: same symbol, one table
+    assert!(shared(0, 1));
+    assert!(!shared(0, 2), "U3's symbol types pin 2 otherwise");
+    assert_eq!(cl.parts[0].roles[1], PinRole::OpenCollector);
+    assert_eq!(cl.parts[2].roles[1], PinRole::PushPull);
+    // a classified part's roles come from the table (74LS00: pin 1 an input, pin 3 the
+    // output, whatever the symbol says); another family is another table
+    assert!(shared(3, 4));
+    assert!(!shared(3, 5), "74HCT00 is another family");
+    for i in 3..6 {
+        let role = |num: &str| {
+            let at = nl.components[i]
+                .pins
+                .iter()
+                .position(|x| x.num == num)
+                .unwrap();
+            cl.parts[i].roles[at]
+        };
+        assert_eq!((role("1"), role("3")), (PinRole::Input, PinRole::PushPull));
+        assert_eq!(
+            cl.parts[i].table_names[0].as_deref(),
+            Some("1A"),
+            "U{}",
+            i + 1
+        );
+    }
 }

@@ -34,6 +34,7 @@ fn point(net: &str, high: bool) -> OperatingPoint {
         } else {
             d.drive_low.clone()
         }
+        .map(|p| *p)
         .unwrap_or_else(|| panic!("{net}: no operating point"))
     })
 }

@@ -50,7 +50,7 @@ pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> O
             } else if nm.floats_open.is_empty() {
                 Some(Float::Undriven(net))
             } else {
-                Some(Float::SwitchOpen(net, nm.floats_open.clone()))
+                Some(Float::SwitchOpen(net, nm.floats_open.to_vec()))
             }
         }
         _ => None,

@@ -127,7 +127,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::classify::PinRole;
 
     fn part(kind: PartKind, method: Method) -> PartClass {
         PartClass {
@@ -139,13 +138,7 @@ mod tests {
             value_match: None,
             suggestions: Vec::new(),
             ic_like: true,
-            roles: vec![PinRole::Unknown],
-            role_source: vec![crate::classify::classifier::RoleSource::Unknown],
-            table_names: vec![None],
-            units: vec![None],
-            enables: vec![Vec::new()],
-            input_loads: vec![None],
-            rated_with: vec![Vec::new()],
+            pins: std::sync::Arc::new(crate::classify::classifier::PinTable::unknown(1)),
             entry: None,
             symbol_reads_as: None,
         }

@@ -71,9 +71,10 @@ pub struct DriverBudget {
     pub low_level: Option<f64>,
     /// The output's operating point with the LEDs and resistors it lights or holds in its
     /// high state (LEDs to ground, pull-downs) and in its low state (LEDs from a rail,
-    /// pull-ups); `None` when there are none in that state.
-    pub drive_high: Option<OperatingPoint>,
-    pub drive_low: Option<OperatingPoint>,
+    /// pull-ups); `None` when there are none in that state. Boxed: most outputs have none,
+    /// and a budget is kept for every net.
+    pub drive_high: Option<Box<OperatingPoint>>,
+    pub drive_low: Option<Box<OperatingPoint>>,
 }
 
 /// What a resistive load on an output is.
@@ -358,7 +359,22 @@ pub struct PullUpWindow {
 pub struct NetBudget {
     pub drivers: Vec<DriverBudget>,
     pub margins: Vec<LoadMargin>,
-    pub window: Option<PullUpWindow>,
+    /// Boxed: only an open-collector net has one.
+    pub window: Option<Box<PullUpWindow>>,
+}
+
+impl NetBudget {
+    /// Trims every list to its length: a list grown by pushes holds room for four or more,
+    /// and a budget is kept for every net.
+    fn fit(&mut self) {
+        self.drivers.shrink_to_fit();
+        self.margins.shrink_to_fit();
+        for d in &mut self.drivers {
+            for s in [&mut d.low, &mut d.high].into_iter().flatten() {
+                s.items.shrink_to_fit();
+            }
+        }
+    }
 }
 
 /// True when input `l` counts against driver `d`'s rating: not the driver's own pin, and
@@ -429,7 +445,10 @@ fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
 /// Computes the budget of one net.
 pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let nm = &cx.nets[net];
-    let mut out = NetBudget::default();
+    let mut out = NetBudget {
+        drivers: Vec::with_capacity(nm.drivers.len()),
+        ..NetBudget::default()
+    };
     let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
     let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
     for (di, d) in nm.drivers.iter().enumerate() {
@@ -650,8 +669,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             pull_up,
             high_level,
             low_level,
-            drive_high,
-            drive_low,
+            drive_high: drive_high.map(Box::new),
+            drive_low: drive_low.map(Box::new),
         });
     }
     // margins
@@ -742,7 +761,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
-            out.window = Some(PullUpWindow {
+            out.window = Some(Box::new(PullUpWindow {
                 rail_net,
                 rail_volts: v,
                 v_high,
@@ -756,8 +775,9 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 r_min,
                 r_max,
                 fitted,
-            });
+            }));
         }
     }
+    out.fit();
     out
 }

@@ -2,6 +2,8 @@
 //! table) and where they are wired. An enable tied to a rail is settled once here; one on a
 //! signal net is a condition the checks can compare between drivers.
 
+use std::sync::Arc;
+
 use super::{Circuit, PinRef};
 use crate::classify::PinRole;
 use crate::netlist::Connection;
@@ -118,18 +120,20 @@ fn rail_high(r: &super::Rail) -> bool {
 /// Each pin's role once the wiring is known. A transceiver's data pin (bidirectional, with
 /// an enable named `DIR`) whose direction pin is tied to a rail is an input on the side
 /// that receives and a three-state output on the side that drives (SN74LS245 truth table:
-/// DIR low, B data to A; DIR high, A data to B). Every other pin keeps the classifier's role.
+/// DIR low, B data to A; DIR high, A data to B). Every other pin keeps the classifier's role,
+/// and a part whose wiring changes no role shares the classifier's list.
 pub fn wired_roles(
     nl: &crate::netlist::Netlist<'_>,
     cl: &crate::classify::classifier::Classified,
     rail: &[Option<super::Rail>],
-) -> Vec<Vec<PinRole>> {
+) -> Vec<Arc<[PinRole]>> {
     let mut out = Vec::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
-        let mut roles = part.roles.clone();
-        for (pi, role) in roles.iter_mut().enumerate() {
-            if *role != PinRole::Bidirectional {
+        // a copy only once a role changes
+        let mut changed: Option<Vec<PinRole>> = None;
+        for (pi, &role) in part.roles.iter().enumerate() {
+            if role != PinRole::Bidirectional {
                 continue;
             }
             let Some(dir) = part.enables[pi].iter().copied().find(|&e| {
@@ -153,14 +157,14 @@ pub fn wired_roles(
             let Some(r) = c.pins[dir].connection.net().and_then(|n| rail[n]) else {
                 continue;
             };
-            *role = if rail_high(&r) == drives_when_high {
-                PinRole::ThreeState
-            } else {
-                PinRole::Input
-            };
+            changed.get_or_insert_with(|| part.roles.to_vec())[pi] =
+                if rail_high(&r) == drives_when_high {
+                    PinRole::ThreeState
+                } else {
+                    PinRole::Input
+                };
         }
-        let _ = ci;
-        out.push(roles);
+        out.push(changed.map_or_else(|| part.roles.clone(), Arc::from));
     }
     out
 }

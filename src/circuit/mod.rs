@@ -13,6 +13,8 @@ pub mod rails;
 
 use std::sync::Arc;
 
+use thin_vec::ThinVec;
+
 use crate::classify::classifier::{Classified, PartKind, RoleSource, Rules};
 use crate::classify::family::{Drive, Family, Levels};
 use crate::classify::function::DriveClass;
@@ -198,46 +200,47 @@ pub struct LedPath {
     pub open_common: Option<usize>,
 }
 
-/// Everything on one net.
+/// Everything on one net. Its lists are `ThinVec`s (one pointer, no allocation while empty:
+/// most of them are on most nets), each trimmed to its length once the model is built.
 #[derive(Debug, Clone, Default)]
 pub struct NetModel {
     pub rail: Option<Rail>,
-    pub drivers: Vec<Driver>,
-    pub loads: Vec<Load>,
-    pub pulls: Vec<Pull>,
+    pub drivers: ThinVec<Driver>,
+    pub loads: ThinVec<Load>,
+    pub pulls: ThinVec<Pull>,
     /// Connector pins: the net leaves the board.
-    pub connectors: Vec<PinRef>,
+    pub connectors: ThinVec<PinRef>,
     /// Pins whose role no source could tell.
-    pub unknown: Vec<PinRef>,
+    pub unknown: ThinVec<PinRef>,
     /// Resistors whose value could not be read.
-    pub unreadable: Vec<(usize, ValueError)>,
+    pub unreadable: ThinVec<(usize, ValueError)>,
     /// Capacitors, diodes and other passives not counted above.
-    pub passives: Vec<PinRef>,
-    pub led_paths: Vec<LedPath>,
+    pub passives: ThinVec<PinRef>,
+    pub led_paths: ThinVec<LedPath>,
     /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
     /// their current in its low state.
-    pub sink_paths: Vec<LedPath>,
+    pub sink_paths: ThinVec<LedPath>,
     /// Supply and ground pins on this net.
-    pub power_pins: Vec<PinRef>,
+    pub power_pins: ThinVec<PinRef>,
     /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
     /// pull-down parts: they hold the net at a level that cannot be computed.
-    pub held: Vec<usize>,
+    pub held: ThinVec<usize>,
     /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
     /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
     pub rail_named_local: bool,
     /// Series elements (a resistor, a resistor-network element, an inductor or ferrite bead)
     /// from this net to another net that is not a rail.
-    pub series: Vec<SeriesLink>,
+    pub series: ThinVec<SeriesLink>,
     /// Switch and jumper elements from this net to another net.
-    pub switches: Vec<SwitchLink>,
+    pub switches: ThinVec<SwitchLink>,
     /// What sets the level, as the model found it (`None`: nothing, in some state).
     pub source: Option<Source>,
     /// Switch elements whose opening leaves this net with nothing to set its level (the
     /// net is held only through them): it floats when all of them are open.
-    pub floats_open: Vec<SwitchLink>,
+    pub floats_open: ThinVec<SwitchLink>,
     /// Nets whose only source is this net, through a series element (directly or through
     /// further series elements): their loads are this net's drivers' loads too.
-    pub feeds: Vec<(usize, SeriesLink)>,
+    pub feeds: ThinVec<(usize, SeriesLink)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -271,6 +274,26 @@ pub enum Source {
 }
 
 impl NetModel {
+    /// Trims every list to its length: a list grown by pushes holds room for four or more,
+    /// and a board has as many nets as it has pins.
+    fn fit(&mut self) {
+        self.drivers.shrink_to_fit();
+        self.loads.shrink_to_fit();
+        self.pulls.shrink_to_fit();
+        self.connectors.shrink_to_fit();
+        self.unknown.shrink_to_fit();
+        self.unreadable.shrink_to_fit();
+        self.passives.shrink_to_fit();
+        self.led_paths.shrink_to_fit();
+        self.sink_paths.shrink_to_fit();
+        self.power_pins.shrink_to_fit();
+        self.held.shrink_to_fit();
+        self.series.shrink_to_fit();
+        self.switches.shrink_to_fit();
+        self.floats_open.shrink_to_fit();
+        self.feeds.shrink_to_fit();
+    }
+
     /// True when something on the net itself can set its level.
     pub fn own_source(&self) -> bool {
         // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
@@ -304,7 +327,8 @@ pub struct Circuit<'n, 'a> {
     pub nets: Vec<NetModel>,
     /// Each pin's role once the wiring is known: a transceiver whose direction pin is tied to
     /// a rail has inputs on one side and outputs on the other.
-    pub roles: Vec<Vec<PinRole>>,
+    /// Shared with the classification for a part whose wiring changes none of its roles.
+    pub roles: Vec<Arc<[PinRole]>>,
     /// Rails the model inferred (by their pins, or their voltage), for the info finding.
     pub rail_notes: Vec<RailNote>,
     /// LED displays: their commons, segments and whether the commons reach anything.
@@ -556,7 +580,10 @@ pub fn build<'n, 'a>(
     // roles once the wiring is known
     let roles = enables::wired_roles(nl, cl, &rail);
 
-    let levels_of = |ci: usize| -> Option<Arc<Levels>> {
+    // one `Levels` per family, supply and drive, shared by every pin of every part alike
+    let mut level_table: rustc_hash::FxHashMap<(&str, u64, Drive), Arc<Levels>> =
+        Default::default();
+    let mut levels = |ci: usize| -> Option<Arc<Levels>> {
         let part = &cl.parts[ci];
         let fam = part.family.as_deref().and_then(|f| rules.families.get(f))?;
         let s = supplies[ci].as_ref()?;
@@ -569,16 +596,13 @@ pub fn build<'n, 'a>(
             Some(DriveClass::Buffer) => Drive::Buffer,
             _ => Drive::Standard,
         };
-        Some(Arc::new(fam.levels(s.vcc, drive)))
+        let lv = level_table
+            .entry((fam.id.as_str(), s.vcc.to_bits(), drive))
+            .or_insert_with(|| Arc::new(fam.levels(s.vcc, drive)));
+        Some(lv.clone())
     };
-    // one `Levels` per part, shared by all its pins
-    let mut level_cache: Vec<Option<Option<Arc<Levels>>>> = vec![None; nl.components.len()];
-    let mut levels = |ci: usize| -> Option<Arc<Levels>> {
-        if level_cache[ci].is_none() {
-            level_cache[ci] = Some(levels_of(ci));
-        }
-        level_cache[ci].clone().flatten()
-    };
+    // one copy of each family id
+    let mut family_ids: rustc_hash::FxHashMap<&str, Arc<str>> = Default::default();
 
     let mut nets: Vec<NetModel> = (0..n_nets)
         .map(|i| NetModel {
@@ -588,7 +612,10 @@ pub fn build<'n, 'a>(
         .collect();
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
-        let family: Option<Arc<str>> = part.family.as_deref().map(Arc::from);
+        let family: Option<Arc<str>> = part
+            .family
+            .as_deref()
+            .map(|f| family_ids.entry(f).or_insert_with(|| Arc::from(f)).clone());
         for (pi, p) in c.pins.iter().enumerate() {
             let Connection::Net { net, .. } = p.connection else {
                 continue;
@@ -829,8 +856,8 @@ pub fn build<'n, 'a>(
         if nets[net].drivers.is_empty() {
             continue;
         }
-        let mut found = Vec::new();
-        let mut sinks = Vec::new();
+        let mut found = ThinVec::new();
+        let mut sinks = ThinVec::new();
         for &start in &nets[net].passives {
             let kind = cl.parts[start.comp].kind;
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
@@ -852,6 +879,9 @@ pub fn build<'n, 'a>(
         nets[net].sink_paths = sinks;
     }
     rail_notes.retain(|n| n.by_usage || n.volts.is_some());
+    for nm in &mut nets {
+        nm.fit();
+    }
 
     Circuit {
         nl,
@@ -1047,7 +1077,7 @@ fn settle_sources(nets: &mut [NetModel]) {
         if nets[i].source.is_some() {
             continue;
         }
-        let links: Vec<SwitchLink> = nets[i]
+        let links: ThinVec<SwitchLink> = nets[i]
             .switches
             .iter()
             .filter(|l| nets[l.other_net].source.is_some())
@@ -1428,5 +1458,42 @@ mod led_tests {
         assert_eq!(led_vf_by_colour("BLUE"), Some(3.0));
         assert_eq!(led_vf_by_colour("GATE"), None);
         assert_eq!(led_vf_by_colour("LED"), None);
+    }
+}
+
+#[cfg(test)]
+mod size_tests {
+    use std::mem::size_of;
+
+    use super::budget::{DriverBudget, NetBudget};
+    use super::NetModel;
+
+    /// A board has about as many nets as it has pins, and the model keeps a `NetModel` and a
+    /// `NetBudget` (with a `DriverBudget` per driver) for each: their size is held here so it
+    /// cannot regrow unnoticed (440, 176 and 408 bytes when their lists were `Vec`s and the
+    /// rare parts were inline).
+    #[test]
+    fn per_net_structures_stay_small() {
+        assert!(size_of::<NetModel>() <= 200, "{}", size_of::<NetModel>());
+        assert!(size_of::<NetBudget>() <= 56, "{}", size_of::<NetBudget>());
+        assert!(
+            size_of::<DriverBudget>() <= 216,
+            "{}",
+            size_of::<DriverBudget>()
+        );
+    }
+
+    /// An empty list costs one pointer and no allocation; a filled one is trimmed to its
+    /// length once the model is built.
+    #[test]
+    fn a_net_model_fits_its_lists() {
+        let mut nm = NetModel::default();
+        for i in 0..5 {
+            nm.held.push(i);
+        }
+        nm.fit();
+        assert_eq!(nm.held.capacity(), 5);
+        assert_eq!(&nm.held[..], &[0, 1, 2, 3, 4]);
+        assert_eq!(nm.drivers.capacity(), 0);
     }
 }

@@ -134,12 +134,29 @@ pub struct PartClass {
     pub function: Option<(Series, String)>,
     /// The function the value names, even when the table lacks it.
     pub named_function: Option<String>,
-    pub value_match: Option<ValueMatch>,
+    /// What the value reads as, shared by every part of the run with the same value.
+    pub value_match: Option<Arc<ValueMatch>>,
     /// Near misses, for an unclassified IC-like part.
     pub suggestions: Vec<Suggestion>,
     pub ic_like: bool,
-    /// Per pin of the component (same order as `Component::pins`).
-    pub roles: Vec<PinRole>,
+    /// Its per-pin data (`part.roles[i]` and the like read through it: `PartClass` derefs to
+    /// it), one copy shared by every part of the run alike.
+    pub pins: Arc<PinTable>,
+    /// Index of the explicit entry used, if any.
+    pub entry: Option<usize>,
+    /// When the symbol's own name (the library part) reads as another part than the value
+    /// does: what it reads as. The value decides; this only records the disagreement.
+    pub symbol_reads_as: Option<Box<SymbolReading>>,
+}
+
+/// A part's per-pin data, each list in the order of `Component::pins`. It follows from the
+/// part's function, family and kind and its pins' numbers, types and names alone, so the parts
+/// of a board that agree in these (most of them, on a board of many alike) share one copy.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PinTable {
+    /// Each pin's role (shared with the circuit's wired roles of a part whose wiring changes
+    /// none of them).
+    pub roles: Arc<[PinRole]>,
     pub role_source: Vec<RoleSource>,
     /// The function table's pin name and unit, per pin, shared by every part of the run that
     /// names the same text.
@@ -153,11 +170,29 @@ pub struct PartClass {
     /// For an output the data sheet rates with some of the package's own inputs on it:
     /// indices (into the component's pins) of those inputs.
     pub rated_with: Vec<Vec<usize>>,
-    /// Index of the explicit entry used, if any.
-    pub entry: Option<usize>,
-    /// When the symbol's own name (the library part) reads as another part than the value
-    /// does: what it reads as. The value decides; this only records the disagreement.
-    pub symbol_reads_as: Option<SymbolReading>,
+}
+
+impl PinTable {
+    /// `n` pins whose roles no source tells.
+    pub fn unknown(n: usize) -> PinTable {
+        PinTable {
+            roles: vec![PinRole::Unknown; n].into(),
+            role_source: vec![RoleSource::Unknown; n],
+            table_names: vec![None; n],
+            units: vec![None; n],
+            enables: vec![Vec::new(); n],
+            input_loads: vec![None; n],
+            rated_with: vec![Vec::new(); n],
+        }
+    }
+}
+
+impl std::ops::Deref for PartClass {
+    type Target = PinTable;
+
+    fn deref(&self) -> &PinTable {
+        &self.pins
+    }
 }
 
 /// What a component's library part name reads as, when that differs from its value.
@@ -556,7 +591,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     // many parts share a value: each distinct value meets the entries' globs and the value
     // patterns once
     let mut entry_of: rustc_hash::FxHashMap<&str, Vec<usize>> = Default::default();
-    let mut pattern_of: rustc_hash::FxHashMap<&str, Option<ValueMatch>> = Default::default();
+    let mut pattern_of: rustc_hash::FxHashMap<&str, Option<Arc<ValueMatch>>> = Default::default();
     let mut near_of: rustc_hash::FxHashMap<&str, Vec<Suggestion>> = Default::default();
     // the tables' pin names and units, one shared copy of each text per run
     let mut shared: rustc_hash::FxHashMap<String, Arc<str>> = Default::default();
@@ -571,13 +606,15 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     let mut match_value = |value| {
         pattern_of
             .entry(value)
-            .or_insert_with(|| pattern::match_value(value))
+            .or_insert_with(|| pattern::match_value(value).map(Arc::new))
             .clone()
     };
     // near misses against the part table, by value and highest pin number (many parts share
     // both; the pin number decides which entries fit the package)
     let mut table_slips: std::collections::HashMap<(String, u32), Vec<pattern::Suggestion>> =
         std::collections::HashMap::new();
+    // the pin tables made so far, by the hash of what they follow from
+    let mut pin_tables: rustc_hash::FxHashMap<u64, Vec<SeenPins>> = Default::default();
     for c in &nl.components {
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
@@ -638,10 +675,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 EntryKind::Display => kind = PartKind::Display,
                 EntryKind::Logic => {
                     kind = PartKind::Logic;
-                    family = e
-                        .family
-                        .as_ref()
-                        .map(|f| rules.families.get(f).map_or(f.to_string(), |x| x.id.clone()));
+                    family = e.family.as_ref().map(|f| {
+                        rules
+                            .families
+                            .get(f)
+                            .map_or(f.to_string(), |x| x.id.clone())
+                    });
                     if let Some(id) = &e.function {
                         named_function = Some(id.to_string());
                         if rules.functions.get(e.series, id).is_some() {
@@ -727,71 +766,52 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             }
         }
 
-        // pin roles
-        let n = c.pins.len();
-        let mut roles = Vec::with_capacity(n);
-        let mut role_source = Vec::with_capacity(n);
-        let mut table_names = vec![None; n];
-        let mut units = vec![None; n];
-        let mut enables = vec![Vec::new(); n];
-        let mut input_loads = vec![None; n];
-        let mut rated_with = vec![Vec::new(); n];
-        let func = function
-            .as_ref()
-            .and_then(|(s, id)| rules.functions.get(*s, id));
-        let fam = family.clone().unwrap_or_default();
-        for (i, p) in c.pins.iter().enumerate() {
-            let def = func.and_then(|f| f.pin(&p.num));
-            match (def, func) {
-                (Some(d), Some(f)) => {
-                    roles.push(f.role_for_family(&p.num, &fam).unwrap_or(d.role));
-                    role_source.push(RoleSource::Table);
-                    table_names[i] = Some(share(&d.name));
-                    units[i] = d.unit.as_deref().map(&mut share);
-                    input_loads[i] = f.load_for_family(&p.num, &fam);
-                    rated_with[i] = d
-                        .rated_with
-                        .iter()
-                        .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
-                        .collect();
-                    enables[i] = d
-                        .enable
-                        .iter()
-                        .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
-                        .collect();
-                }
-                _ => {
-                    let passive_kind = matches!(
-                        kind,
-                        PartKind::Resistor
-                            | PartKind::ResistorNetwork
-                            | PartKind::Capacitor
-                            | PartKind::Led
-                            | PartKind::Display
-                            | PartKind::Diode
-                            | PartKind::Connector
-                            | PartKind::Switch
-                            | PartKind::Inductor
-                    );
-                    if passive_kind {
-                        roles.push(PinRole::Passive);
-                        role_source.push(RoleSource::Netlist);
-                    } else {
-                        let (mut r, s) = role_from_netlist(p.ptype, p.name.as_deref());
-                        // a memory's chip, output or write enable is an input whatever
-                        // the symbol types it
-                        if r.is_output() && p.name.as_deref().is_some_and(is_enable_input_name) {
-                            r = PinRole::Input;
-                        }
-                        roles.push(r);
-                        role_source.push(s);
-                    }
-                }
+        // pin roles: parts alike share one table
+        let passive_kind = matches!(
+            kind,
+            PartKind::Resistor
+                | PartKind::ResistorNetwork
+                | PartKind::Capacitor
+                | PartKind::Led
+                | PartKind::Display
+                | PartKind::Diode
+                | PartKind::Connector
+                | PartKind::Switch
+                | PartKind::Inductor
+        );
+        let key = pin_table_key(c, function.as_ref(), family.as_deref(), passive_kind);
+        let alike = pin_tables.get(&key).and_then(|seen| {
+            seen.iter().find(|t| {
+                t.passive_kind == passive_kind
+                    && t.function == function
+                    && t.family == family
+                    && same_pins(&nl.components[t.comp].pins, &c.pins)
+            })
+        });
+        let pins = match alike {
+            Some(t) => t.table.clone(),
+            None => {
+                let table = Arc::new(pin_table(
+                    c,
+                    function.as_ref(),
+                    family.as_deref(),
+                    passive_kind,
+                    rules,
+                    &mut share,
+                ));
+                pin_tables.entry(key).or_default().push(SeenPins {
+                    comp: parts.len(),
+                    function: function.clone(),
+                    family: family.clone(),
+                    passive_kind,
+                    table: table.clone(),
+                });
+                table
             }
-        }
+        };
         let symbol_reads_as = match method {
             Method::Pattern | Method::ShippedEntry | Method::ProjectOverride => {
-                symbol_reading(c, rules, family.as_deref(), named_function.as_deref())
+                symbol_reading(c, rules, family.as_deref(), named_function.as_deref()).map(Box::new)
             }
             _ => None,
         };
@@ -805,13 +825,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             value_match,
             suggestions,
             ic_like: is_ic,
-            roles,
-            role_source,
-            table_names,
-            units,
-            enables,
-            input_loads,
-            rated_with,
+            pins,
             entry,
         });
     }
@@ -828,6 +842,109 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         coverage: (classified, ic_like),
         function_symbols,
         unused_project_entries,
+    }
+}
+
+/// A part whose pin table is kept for the parts alike that follow: what the table follows
+/// from, and the table.
+struct SeenPins {
+    /// The component whose pins it was made from.
+    comp: usize,
+    function: Option<(Series, String)>,
+    family: Option<String>,
+    passive_kind: bool,
+    table: Arc<PinTable>,
+}
+
+/// The hash of what a part's pin table follows from.
+fn pin_table_key(
+    c: &Component<'_>,
+    function: Option<&(Series, String)>,
+    family: Option<&str>,
+    passive_kind: bool,
+) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut h = rustc_hash::FxHasher::default();
+    (function, family, passive_kind, c.pins.len()).hash(&mut h);
+    for p in &c.pins {
+        (p.num.as_ref(), p.ptype, p.name.as_deref()).hash(&mut h);
+    }
+    h.finish()
+}
+
+/// True when two parts' pins agree in number, type and name, in order.
+fn same_pins(a: &[crate::netlist::CompPin<'_>], b: &[crate::netlist::CompPin<'_>]) -> bool {
+    a.len() == b.len()
+        && a.iter()
+            .zip(b)
+            .all(|(x, y)| x.num == y.num && x.ptype == y.ptype && x.name == y.name)
+}
+
+/// A part's per-pin data: from the function table for a pin the table has, else from the
+/// netlist's pin type (every pin of a passive part is passive).
+fn pin_table(
+    c: &Component<'_>,
+    function: Option<&(Series, String)>,
+    family: Option<&str>,
+    passive_kind: bool,
+    rules: &Rules,
+    share: &mut impl FnMut(&str) -> Arc<str>,
+) -> PinTable {
+    let n = c.pins.len();
+    let mut roles = Vec::with_capacity(n);
+    let mut role_source = Vec::with_capacity(n);
+    let mut table_names = vec![None; n];
+    let mut units = vec![None; n];
+    let mut enables = vec![Vec::new(); n];
+    let mut input_loads = vec![None; n];
+    let mut rated_with = vec![Vec::new(); n];
+    let func = function.and_then(|(s, id)| rules.functions.get(*s, id));
+    let fam = family.unwrap_or_default();
+    for (i, p) in c.pins.iter().enumerate() {
+        let def = func.and_then(|f| f.pin(&p.num));
+        match (def, func) {
+            (Some(d), Some(f)) => {
+                roles.push(f.role_for_family(&p.num, fam).unwrap_or(d.role));
+                role_source.push(RoleSource::Table);
+                table_names[i] = Some(share(&d.name));
+                units[i] = d.unit.as_deref().map(&mut *share);
+                input_loads[i] = f.load_for_family(&p.num, fam);
+                rated_with[i] = d
+                    .rated_with
+                    .iter()
+                    .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
+                    .collect();
+                enables[i] = d
+                    .enable
+                    .iter()
+                    .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
+                    .collect();
+            }
+            _ => {
+                if passive_kind {
+                    roles.push(PinRole::Passive);
+                    role_source.push(RoleSource::Netlist);
+                } else {
+                    let (mut r, s) = role_from_netlist(p.ptype, p.name.as_deref());
+                    // a memory's chip, output or write enable is an input whatever
+                    // the symbol types it
+                    if r.is_output() && p.name.as_deref().is_some_and(is_enable_input_name) {
+                        r = PinRole::Input;
+                    }
+                    roles.push(r);
+                    role_source.push(s);
+                }
+            }
+        }
+    }
+    PinTable {
+        roles: roles.into(),
+        role_source,
+        table_names,
+        units,
+        enables,
+        input_loads,
+        rated_with,
     }
 }
 
@@ -851,9 +968,12 @@ fn symbol_reading(
         .filter(|(_, e)| fits_package(c, e, rules))
     {
         (
-            e.family
-                .as_ref()
-                .map(|f| rules.families.get(f).map_or(f.to_string(), |x| x.id.clone())),
+            e.family.as_ref().map(|f| {
+                rules
+                    .families
+                    .get(f)
+                    .map_or(f.to_string(), |x| x.id.clone())
+            }),
             e.function.as_ref().map(|f| f.to_string()),
         )
     } else if let Some(m) = pattern::match_value(symbol) {
@@ -996,6 +1116,14 @@ pub fn is_function_symbol(value: &str, has_footprint: bool) -> bool {
 #[cfg(test)]
 mod tests {
     use super::is_function_symbol;
+
+    /// One `PartClass` per component: its size is held here so it cannot regrow unnoticed
+    /// (496 bytes when its per-pin lists and value reading were its own copies).
+    #[test]
+    fn a_part_class_stays_small() {
+        let size = std::mem::size_of::<super::PartClass>();
+        assert!(size <= 152, "{size}");
+    }
 
     #[test]
     fn values_that_draw_a_function() {

@@ -455,6 +455,12 @@ fn from_point(p: &Point, drive: Drive, basis: Basis) -> Levels {
 #[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
 pub struct FamilyTable {
     families: Vec<Family>,
+    /// Each family's id, in capitals, to its index (rebuilt by [`FamilyTable::reindex`]).
+    #[serde(skip)]
+    by_id: rustc_hash::FxHashMap<String, usize>,
+    /// Each alias, in capitals, to the last family that names it.
+    #[serde(skip)]
+    by_alias: rustc_hash::FxHashMap<String, usize>,
 }
 
 impl FamilyTable {
@@ -486,9 +492,32 @@ impl FamilyTable {
         }
         check_names(&families, &mut errors);
         if errors.is_empty() {
-            Ok(FamilyTable { families })
+            Ok(FamilyTable::new(families))
         } else {
             Err(errors)
+        }
+    }
+
+    /// A table of these families, indexed.
+    pub fn new(families: Vec<Family>) -> FamilyTable {
+        let mut t = FamilyTable {
+            families,
+            ..Default::default()
+        };
+        t.reindex();
+        t
+    }
+
+    /// Rebuilds the lookup by id and alias (after decoding or merging).
+    pub fn reindex(&mut self) {
+        self.by_id.clear();
+        self.by_alias.clear();
+        for (i, f) in self.families.iter().enumerate() {
+            self.by_id.entry(f.id.to_ascii_uppercase()).or_insert(i);
+            for a in &f.aliases {
+                // the family added last wins an alias
+                self.by_alias.insert(a.to_ascii_uppercase(), i);
+            }
         }
     }
 
@@ -504,21 +533,22 @@ impl FamilyTable {
                 None => self.families.push(f),
             }
         }
+        self.reindex();
     }
 
     /// A family by id or alias, case-insensitive. Ids are looked at first; among aliases, the
     /// family added last (a project's) wins.
     pub fn get(&self, id_or_alias: &str) -> Option<&Family> {
         let name = id_or_alias.trim();
-        self.families
-            .iter()
-            .find(|f| f.id.eq_ignore_ascii_case(name))
-            .or_else(|| {
-                self.families
-                    .iter()
-                    .rev()
-                    .find(|f| f.aliases.iter().any(|a| a.eq_ignore_ascii_case(name)))
-            })
+        // the ids the model passes around are written as in the table: no copy needed
+        if let Some(&i) = self.by_id.get(name) {
+            return Some(&self.families[i]);
+        }
+        let key = name.to_ascii_uppercase();
+        self.by_id
+            .get(&key)
+            .or_else(|| self.by_alias.get(&key))
+            .map(|&i| &self.families[i])
     }
 
     pub fn iter(&self) -> impl Iterator<Item = &Family> {

@@ -33,6 +33,7 @@
 //! rating the data sheet tests with one of the package's own inputs on it says which:
 //! `rated_with = [1]` (a counter's QA, tested at IOL plus its second clock's IIL).
 
+use std::borrow::Cow;
 use std::collections::HashSet;
 use std::ops::Range;
 
@@ -237,7 +238,9 @@ impl Function {
 #[derive(Debug, Clone, Default)]
 pub struct FunctionTable {
     functions: Vec<Entry>,
-    index: HashMap<(Series, String), usize>,
+    /// For each series (by `Series as usize`), each id in capitals to its function; a shipped
+    /// id is borrowed from the compiled table.
+    index: [HashMap<Cow<'static, str>, usize>; 3],
 }
 
 /// One function of a table: parsed from a file, or a shipped one still in the compact form
@@ -293,11 +296,11 @@ impl FunctionTable {
     /// A table of shipped functions in their compact form: each (series, id) with the
     /// postcard bytes of its `Function`, decoded when first asked for.
     pub fn from_compact(
-        entries: impl IntoIterator<Item = (Series, String, &'static [u8])>,
+        entries: impl IntoIterator<Item = (Series, &'static str, &'static [u8])>,
     ) -> FunctionTable {
         let mut table = FunctionTable::default();
         for (series, id, bytes) in entries {
-            table.index.insert((series, id), table.functions.len());
+            table.index[series as usize].insert(id.into(), table.functions.len());
             table.functions.push(Entry {
                 bytes,
                 func: std::sync::OnceLock::new(),
@@ -310,20 +313,24 @@ impl FunctionTable {
     pub fn merge(&mut self, over: FunctionTable) {
         for e in over.functions {
             let f = e.into_function();
-            let key = (f.series, f.id.clone());
-            match self.index.get(&key) {
+            let index = &mut self.index[f.series as usize];
+            match index.get(f.id.as_str()) {
                 Some(&i) => self.functions[i] = Entry::parsed(f),
                 None => {
-                    self.index.insert(key, self.functions.len());
+                    index.insert(Cow::Owned(f.id.clone()), self.functions.len());
                     self.functions.push(Entry::parsed(f));
                 }
             }
         }
     }
 
+    /// A function by series and id (case-insensitive, spaces around it ignored).
     pub fn get(&self, series: Series, id: &str) -> Option<&Function> {
-        self.index
-            .get(&(series, id.trim().to_ascii_uppercase()))
+        let index = &self.index[series as usize];
+        // the ids the classifier passes are written as in the table: no copy needed
+        index
+            .get(id)
+            .or_else(|| index.get(id.trim().to_ascii_uppercase().as_str()))
             .map(|&i| self.functions[i].get())
     }
 
@@ -705,9 +712,7 @@ fn build(raw: RawFile) -> Result<FunctionTable, Vec<RuleError>> {
     }
     let mut table = FunctionTable::default();
     for p in pending {
-        table
-            .index
-            .insert((p.func.series, p.func.id.clone()), table.functions.len());
+        table.index[p.func.series as usize].insert(p.func.id.clone().into(), table.functions.len());
         table.functions.push(Entry::parsed(p.func));
     }
     Ok(table)

@@ -248,6 +248,17 @@ impl PartTable {
 
 /// Case-insensitive glob with `*` (any run) and `?` (one character).
 pub fn glob_match(pattern: &str, text: &str) -> bool {
+    // most globs begin with a letter or digit that most values do not: settle those first
+    if let (Some(&p0), Some(&t0)) = (pattern.as_bytes().first(), text.as_bytes().first()) {
+        if p0.is_ascii()
+            && t0.is_ascii()
+            && p0 != b'*'
+            && p0 != b'?'
+            && !p0.eq_ignore_ascii_case(&t0)
+        {
+            return false;
+        }
+    }
     if pattern.is_ascii() && text.is_ascii() {
         return glob_ascii(pattern.as_bytes(), text.as_bytes());
     }

@@ -19,10 +19,12 @@ fn decode<T: serde::de::DeserializeOwned>(bytes: &[u8], what: &str) -> T {
 impl FamilyTable {
     /// The shipped table (`rules/families.toml`, read at compile time).
     pub fn builtin() -> FamilyTable {
-        decode(
+        let mut t: FamilyTable = decode(
             include_bytes!(concat!(env!("OUT_DIR"), "/families.postcard")),
             "families",
-        )
+        );
+        t.reindex();
+        t
     }
 }
 
@@ -30,10 +32,12 @@ impl FunctionTable {
     /// The shipped table (`rules/functions.toml`, read at compile time).
     pub fn builtin() -> FunctionTable {
         static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions.postcard"));
-        let index: Vec<(Series, String, u32, u32)> = decode(
-            include_bytes!(concat!(env!("OUT_DIR"), "/functions-index.postcard")),
-            "functions index",
-        );
+        static INDEX: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions-index.postcard"));
+        // the ids are borrowed from the compiled index
+        let index: Vec<(Series, &'static str, u32, u32)> = postcard::from_bytes(INDEX)
+            .unwrap_or_else(|e| {
+                panic!("the shipped functions index built by build.rs decodes: {e}")
+            });
         FunctionTable::from_compact(
             index
                 .into_iter()
