@@ -131,7 +131,7 @@ pub fn entries(f: &FileOutcome) -> Vec<Entry> {
         .zip(fingerprints(f))
         .map(|(d, fp)| Entry {
             fingerprint: fp,
-            check: d.code.clone(),
+            check: d.code.to_string(),
             net: d.net.clone(),
             pins: d.pins.clone(),
             message: d.message.clone(),
@@ -364,7 +364,7 @@ mod tests {
     }
 
     fn finding(code: &str, net: &str, pins: &[&str]) -> Diag {
-        Diag::error(code, format!("{code} on {net}"))
+        Diag::error(code.to_string(), format!("{code} on {net}"))
             .on_net(net)
             .with_pins(pins.iter().copied())
     }

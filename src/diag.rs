@@ -3,6 +3,7 @@
 //!
 //! Layers build [`Diag`] values as plain data; only the reporters decide how they look.
 
+use std::borrow::Cow;
 use std::fmt;
 
 use miette::{Diagnostic, LabeledSpan, SourceCode};
@@ -39,20 +40,26 @@ impl fmt::Display for Severity {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Label {
     pub span: Span,
-    pub text: String,
+    /// Most label texts are fixed words (`open TTL input`, `unused gate`): those are held
+    /// without an allocation.
+    pub text: Cow<'static, str>,
     pub primary: bool,
 }
 
 /// One diagnostic: a code, a severity, a message with the numbers, places in the file, a fix.
+///
+/// A board can have hundreds of thousands of findings, so a finding holds no more than it
+/// says: the code (a check's `INFO.id`, a `&'static str`), fixed label and help texts are
+/// borrowed, not copied, and the label and pin lists are allocated to their length.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Diag {
     /// Stable kebab-case id, e.g. `unclosed-list` or `floating-cmos-input`.
-    pub code: String,
+    pub code: Cow<'static, str>,
     pub severity: Severity,
     pub message: String,
     /// The first primary label is the diagnostic's location.
     pub labels: Vec<Label>,
-    pub help: Option<String>,
+    pub help: Option<Cow<'static, str>>,
     /// The net the finding is about, by name.
     pub net: Option<String>,
     /// The pins involved, as `REF.PIN`, the offending one first.
@@ -60,29 +67,36 @@ pub struct Diag {
 }
 
 impl Diag {
-    pub fn new(code: impl Into<String>, severity: Severity, message: impl Into<String>) -> Diag {
+    pub fn new(
+        code: impl Into<Cow<'static, str>>,
+        severity: Severity,
+        message: impl Into<String>,
+    ) -> Diag {
+        let mut message = message.into();
+        // a formatted message carries spare capacity; a finding is held to the end of the run
+        message.shrink_to_fit();
         Diag {
             code: code.into(),
             severity,
-            message: message.into(),
+            message,
             labels: Vec::new(),
             help: None,
             net: None,
             pins: Vec::new(),
         }
     }
-    pub fn error(code: impl Into<String>, message: impl Into<String>) -> Diag {
+    pub fn error(code: impl Into<Cow<'static, str>>, message: impl Into<String>) -> Diag {
         Diag::new(code, Severity::Error, message)
     }
-    pub fn warning(code: impl Into<String>, message: impl Into<String>) -> Diag {
+    pub fn warning(code: impl Into<Cow<'static, str>>, message: impl Into<String>) -> Diag {
         Diag::new(code, Severity::Warning, message)
     }
-    pub fn info(code: impl Into<String>, message: impl Into<String>) -> Diag {
+    pub fn info(code: impl Into<Cow<'static, str>>, message: impl Into<String>) -> Diag {
         Diag::new(code, Severity::Info, message)
     }
     /// Adds the primary place.
-    pub fn at(mut self, span: Span, text: impl Into<String>) -> Diag {
-        self.labels.push(Label {
+    pub fn at(mut self, span: Span, text: impl Into<Cow<'static, str>>) -> Diag {
+        self.push_label(Label {
             span,
             text: text.into(),
             primary: true,
@@ -90,16 +104,28 @@ impl Diag {
         self
     }
     /// Adds a secondary place.
-    pub fn also(mut self, span: Span, text: impl Into<String>) -> Diag {
-        self.labels.push(Label {
+    pub fn also(mut self, span: Span, text: impl Into<Cow<'static, str>>) -> Diag {
+        self.push_label(Label {
             span,
             text: text.into(),
             primary: false,
         });
         self
     }
-    pub fn with_help(mut self, help: impl Into<String>) -> Diag {
-        self.help = Some(help.into());
+    /// Most findings have one label: the first gets room for one, not the four a growing
+    /// list starts with.
+    fn push_label(&mut self, label: Label) {
+        if self.labels.capacity() == 0 {
+            self.labels.reserve_exact(1);
+        }
+        self.labels.push(label);
+    }
+    pub fn with_help(mut self, help: impl Into<Cow<'static, str>>) -> Diag {
+        let mut help = help.into();
+        if let Cow::Owned(h) = &mut help {
+            h.shrink_to_fit();
+        }
+        self.help = Some(help);
         self
     }
     pub fn on_net(mut self, net: impl Into<String>) -> Diag {
@@ -107,7 +133,10 @@ impl Diag {
         self
     }
     pub fn with_pins<I: IntoIterator<Item = S>, S: Into<String>>(mut self, pins: I) -> Diag {
-        self.pins.extend(pins.into_iter().map(Into::into));
+        let pins = pins.into_iter();
+        // room for what is given, not a growing list's spare
+        self.pins.reserve_exact(pins.size_hint().0);
+        self.pins.extend(pins.map(Into::into));
         self
     }
     /// The primary span, if any.

@@ -317,7 +317,7 @@ fn json_byte_offsets_point_at_the_spans() {
         let len = j["byte_length"].as_u64().expect("length") as usize;
         let span = d.primary_span().expect("a span");
         assert_eq!(&BOARD[off..off + len], &BOARD[span.range()]);
-        assert_eq!(j["check"], d.code.as_str());
+        assert_eq!(j["check"], d.code.as_ref());
         assert_eq!(j["message"], d.message.as_str());
     }
     // `(node (ref "U1") (pin "3"))`: the 15th line, from column 7 to just after the `)`
@@ -444,7 +444,7 @@ fn fingerprints_of(name: &str, text: &str) -> Vec<(String, String)> {
         waived: 0,
     };
     let fps = report::fingerprints(&f);
-    f.diags.iter().map(|d| d.code.clone()).zip(fps).collect()
+    f.diags.iter().map(|d| d.code.to_string()).zip(fps).collect()
 }
 
 #[test]
@@ -665,7 +665,7 @@ fn is_steering(c: char) -> bool {
 #[test]
 fn hostile_text_escapes_no_format() {
     let f = hostile_outcome();
-    let codes: Vec<&str> = f.diags.iter().map(|d| d.code.as_str()).collect();
+    let codes: Vec<&str> = f.diags.iter().map(|d| d.code.as_ref()).collect();
     // the netlist must actually carry its text into the findings
     for code in [
         "duplicate-ref",

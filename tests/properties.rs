@@ -380,7 +380,7 @@ fn fingerprint(nl: &Netlist<'_>) -> Fingerprint {
             let mut pins = d.pins.clone();
             pins.sort();
             (
-                d.code.clone(),
+                d.code.to_string(),
                 d.severity.to_string(),
                 d.net.clone(),
                 pins,
@@ -501,7 +501,7 @@ fn finding_key(d: &Diag) -> (String, String, Option<String>, Vec<String>, Vec<St
     let mut pins = d.pins.clone();
     pins.sort();
     (
-        d.code.clone(),
+        d.code.to_string(),
         d.severity.to_string(),
         d.net.clone(),
         pins,

@@ -386,7 +386,7 @@ fn a_rail_net_holding_only_the_pull_resistor_still_counts() {
     let src = netmargin::source::SourceFile::new("t.net", text);
     let rules = netmargin::classify::classifier::Rules::builtin();
     let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
-    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_str()).collect();
+    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_ref()).collect();
     assert!(codes.contains(&"ttl-pull-down-too-large"), "{codes:?}");
     assert!(!codes.contains(&"floating-ttl-input"), "{codes:?}");
 }
@@ -450,7 +450,7 @@ fn a_bussed_resistor_network_is_one_pull_up_per_element() {
         );
     }
     let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
-    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_str()).collect();
+    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_ref()).collect();
     assert!(
         !codes.contains(&"missing-pull-up") && !codes.contains(&"pull-up-out-of-range"),
         "{codes:?}"

@@ -552,10 +552,10 @@ fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
             }
             Finding {
                 id: format!("f{}", i + 1),
-                code: d.code.clone(),
+                code: d.code.to_string(),
                 severity: d.severity,
                 message: d.message.clone(),
-                help: d.help.clone(),
+                help: d.help.as_deref().map(String::from),
                 net: d.net.clone(),
                 pins: d.pins.clone(),
                 parts,
@@ -896,7 +896,7 @@ fn block_from(
         },
         line: line_of(a.source, d).0,
     };
-    let mine = |d: &&Diag| checks.contains(&d.code.as_str());
+    let mine = |d: &&Diag| checks.contains(&&*d.code);
     let mut rows: Vec<(Option<usize>, Row)> = found
         .diags
         .iter()

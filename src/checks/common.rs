@@ -71,15 +71,24 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
         if fam.is_cmos_input() == ttl {
             continue;
         }
-        let mut by_unit: BTreeMap<String, Vec<Floating>> = BTreeMap::new();
+        let mut by_unit: BTreeMap<&str, Vec<Floating>> = BTreeMap::new();
         let mut found = Vec::new();
+        // the part's function-table entry, looked up once (not once per input)
+        let function = part
+            .function
+            .as_ref()
+            .and_then(|(series, id)| cx.rules.functions.get(*series, id));
         for (pi, p) in c.pins.iter().enumerate() {
             // a no-connect flag silences the schematic editor; it does not tie the pin
             if !matches!(cx.roles[ci][pi], PinRole::Input | PinRole::SchmittInput) {
                 continue;
             }
             // a control input that must be held at one level is `open-control-input`'s
-            if cx.idle_level(ci, pi).is_some() {
+            // (`Circuit::idle_level`, with the entry looked up above)
+            if function
+                .and_then(|f| f.pin(&p.num))
+                .is_some_and(|d| d.idle_high.is_some())
+            {
                 continue;
             }
             let Some(why) = floats(cx, p.connection) else {
@@ -91,7 +100,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             });
         }
         for f in found {
-            match part.units[f.at.pin].as_deref().map(String::from) {
+            match part.units[f.at.pin].as_deref() {
                 Some(u) => by_unit.entry(u).or_default().push(f),
                 None => singles.push(f),
             }
@@ -100,13 +109,13 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             // every input of the unit floats, and its outputs reach nothing
             let unit_inputs: Vec<usize> = (0..c.pins.len())
                 .filter(|&i| {
-                    part.units[i].as_deref() == Some(unit.as_str())
+                    part.units[i].as_deref() == Some(unit)
                         && matches!(cx.roles[ci][i], PinRole::Input | PinRole::SchmittInput)
                 })
                 .collect();
             let unit_outputs: Vec<PinRef> = (0..c.pins.len())
                 .filter(|&i| {
-                    part.units[i].as_deref() == Some(unit.as_str()) && cx.roles[ci][i].is_output()
+                    part.units[i].as_deref() == Some(unit) && cx.roles[ci][i].is_output()
                 })
                 .map(|i| PinRef { comp: ci, pin: i })
                 .collect();
@@ -116,7 +125,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
             if floats.len() == unit_inputs.len() && unit_inputs.len() > 0 && outputs_unused {
                 gates.push(UnusedGate {
                     comp: ci,
-                    unit,
+                    unit: unit.to_string(),
                     inputs: floats,
                     outputs: unit_outputs,
                 });
@@ -131,26 +140,29 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
 /// `pins 12 (4A) and 13 (4B)`
 pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
     let cx = ctx.cx;
-    let items: Vec<String> = pins
-        .iter()
-        .map(|p| {
-            let num = &cx.nl.components[p.comp].pins[p.pin].num;
-            match &cx.cl.parts[p.comp].table_names[p.pin] {
-                Some(n) => format!("{num} ({n})"),
-                None => num.to_string(),
-            }
-        })
-        .collect();
-    let joined = match items.len() {
-        0 => String::new(),
-        1 => items[0].clone(),
-        _ => format!(
-            "{} and {}",
-            items[..items.len() - 1].join(", "),
-            items[items.len() - 1]
-        ),
-    };
-    format!("{} {joined}", if pins.len() == 1 { "pin" } else { "pins" })
+    numbered_list(pins.iter().map(|p| {
+        (
+            cx.nl.components[p.comp].pins[p.pin].num.as_ref(),
+            cx.cl.parts[p.comp].table_names[p.pin].as_deref(),
+        )
+    }))
+}
+
+/// [`pin_list`]'s text from (number, function-table name) pairs, written into one string.
+fn numbered_list<'p>(pins: impl ExactSizeIterator<Item = (&'p str, Option<&'p str>)>) -> String {
+    use std::fmt::Write;
+    let n = pins.len();
+    let mut s = String::from(if n == 1 { "pin " } else { "pins " });
+    for (i, (num, name)) in pins.enumerate() {
+        if i > 0 {
+            s.push_str(if i + 1 == n { " and " } else { ", " });
+        }
+        s.push_str(num);
+        if let Some(name) = name {
+            let _ = write!(s, " ({name})");
+        }
+    }
+    s
 }
 
 /// The positive rail a part's supply pin sits on, by name, for fix messages.
@@ -193,6 +205,44 @@ pub fn pct(x: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::agree;
+
+    /// The list as it was built before (items joined with `, ` and a final ` and `).
+    fn joined(items: &[&str]) -> String {
+        let j = match items.len() {
+            0 => String::new(),
+            1 => items[0].to_string(),
+            _ => format!(
+                "{} and {}",
+                items[..items.len() - 1].join(", "),
+                items[items.len() - 1]
+            ),
+        };
+        format!("{} {j}", if items.len() == 1 { "pin" } else { "pins" })
+    }
+
+    #[test]
+    fn pin_lists_read_as_before() {
+        let pins = [("12", Some("4A")), ("13", None), ("1", Some("1A")), ("9", Some("3B"))];
+        for n in 0..=pins.len() {
+            let items: Vec<String> = pins[..n]
+                .iter()
+                .map(|(num, name)| match name {
+                    Some(x) => format!("{num} ({x})"),
+                    None => num.to_string(),
+                })
+                .collect();
+            let items: Vec<&str> = items.iter().map(String::as_str).collect();
+            assert_eq!(
+                super::numbered_list(pins[..n].iter().copied()),
+                joined(&items),
+                "{n} pins"
+            );
+        }
+        assert_eq!(
+            super::numbered_list(pins[..2].iter().copied()),
+            "pins 12 (4A) and 13"
+        );
+    }
 
     #[test]
     fn verbs_agree_with_the_number_of_pins() {

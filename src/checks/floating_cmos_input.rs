@@ -32,6 +32,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     for g in gates {
         let c = &cx.nl.components[g.comp];
         let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
+        let list = pin_list(ctx, &pins);
         let absent = g.inputs.iter().all(|f| matches!(f.why, Float::Absent));
         let mut d = Diag::error(
             "floating-cmos-input",
@@ -41,7 +42,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 c.reference,
                 c.value_str(),
                 agree(pins.len(), "its CMOS input floats", "its CMOS inputs float"),
-                pin_list(ctx, &pins),
+                list,
                 if absent {
                     format!(
                         " {} on no net (the gate was never placed)",
@@ -54,7 +55,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         )
         .with_help(format!(
             "tie {} to {} (or to {}); leave the gate's output {} open",
-            pin_list(ctx, &pins),
+            list,
             ground_rail_name(ctx, g.comp),
             supply_rail_name(ctx, g.comp),
             pin_list(ctx, &g.outputs)
@@ -66,30 +67,43 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         }
         out.push(d);
     }
+    // the wording that depends on the part alone, made once per part (a part has many
+    // findings, in a row)
+    let mut part_text: Option<(usize, &str, String)> = None;
     for f in singles {
-        // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
-        let input = if cx
-            .family(f.at.comp)
-            .is_some_and(|fam| fam.id.starts_with("NMOS"))
-        {
-            "an NMOS input"
-        } else {
-            "a CMOS input"
-        };
-        let (msg, label) = match f.why {
+        if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
+            // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
+            let input = if cx
+                .family(f.at.comp)
+                .is_some_and(|fam| fam.id.starts_with("NMOS"))
+            {
+                "an NMOS input"
+            } else {
+                "a CMOS input"
+            };
+            let help = format!(
+                "drive it, or tie it to {} or {} (or to a used input of the same gate)",
+                ground_rail_name(ctx, f.at.comp),
+                supply_rail_name(ctx, f.at.comp)
+            );
+            part_text = Some((f.at.comp, input, help));
+        }
+        let (_, input, help) = part_text.as_ref().expect("set above");
+        let input = *input;
+        let (msg, label): (String, std::borrow::Cow<'static, str>) = match f.why {
             Float::Absent => (
                 format!(
                     "{} is on no net: {input} must never float",
                     cx.describe(f.at)
                 ),
-                "on no net".to_string(),
+                "on no net".into(),
             ),
             Float::Alone(_) => (
                 format!(
                     "{} is connected to nothing: {input} must never float",
                     cx.describe(f.at)
                 ),
-                "connected to nothing".to_string(),
+                "connected to nothing".into(),
             ),
             Float::SwitchOpen(net, ref l) => (
                 format!(
@@ -98,7 +112,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     cx.net_name(net),
                     super::common::switch_names(ctx, l)
                 ),
-                format!("floats while {} open", super::common::switch_names(ctx, l)),
+                format!("floats while {} open", super::common::switch_names(ctx, l)).into(),
             ),
             Float::Undriven(net) => {
                 let nm = &cx.nets[net];
@@ -116,17 +130,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         cx.net_name(net),
                         if others.is_empty() { "this input".to_string() } else { others.join(", ") }
                     ),
-                    "no driver on this net".to_string(),
+                    "no driver on this net".into(),
                 )
             }
         };
         let mut d = Diag::error("floating-cmos-input", msg)
             .at(cx.pin_span(f.at), label)
-            .with_help(format!(
-                "drive it, or tie it to {} or {} (or to a used input of the same gate)",
-                ground_rail_name(ctx, f.at.comp),
-                supply_rail_name(ctx, f.at.comp)
-            ))
+            .with_help(help.clone())
             .with_pins([cx.pin_name(f.at)]);
         if let Float::Undriven(net) | Float::Alone(net) | Float::SwitchOpen(net, _) = &f.why {
             let net = *net;

@@ -41,9 +41,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             _ => format!("tie it to {rail} (directly, or through 1 kOhm to share one resistor among several inputs)"),
         }
     };
+    // the wording that depends on the part alone, made once per part (a part has many
+    // findings, in a row)
+    let mut part_text: Option<(usize, String, String)> = None;
     for g in gates {
+        if part_text.as_ref().is_none_or(|(c, ..)| *c != g.comp) {
+            part_text = Some((g.comp, inside(g.comp), tie(g.comp)));
+        }
+        let (_, inside, tie) = part_text.as_ref().expect("set above");
         let c = &cx.nl.components[g.comp];
         let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
+        let list = pin_list(ctx, &pins);
         let mut d = Diag::warning(
             "floating-ttl-input",
             format!(
@@ -56,15 +64,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     "its TTL input is open",
                     "its TTL inputs are open"
                 ),
-                pin_list(ctx, &pins),
+                list,
                 agree(pins.len(), "floats", "float"),
-                inside(g.comp),
+                inside,
                 agree(pins.len(), "picks", "pick")
             ),
         )
         .with_help(format!(
             "{}; the gate's output {} may stay open",
-            tie(g.comp).replacen("it", &pin_list(ctx, &pins), 1),
+            tie.replacen("it", &list, 1),
             pin_list(ctx, &g.outputs)
         ))
         .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
@@ -75,17 +83,21 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         out.push(d);
     }
     for f in singles {
+        if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
+            part_text = Some((f.at.comp, inside(f.at.comp), tie(f.at.comp)));
+        }
+        let (_, inside, tie) = part_text.as_ref().expect("set above");
         let nc = cx.nl.components[f.at.comp].pins[f.at.pin].no_connect;
         let flag = if nc {
             " (its no-connect flag leaves it open; it does not tie it)"
         } else {
             ""
         };
-        let (where_, net) = match f.why {
-            Float::Absent => ("is on no net".to_string(), None),
-            Float::Alone(n) => (format!("is connected to nothing{flag}"), Some(n)),
+        let (where_, net): (std::borrow::Cow<str>, _) = match f.why {
+            Float::Absent => ("is on no net".into(), None),
+            Float::Alone(n) => (format!("is connected to nothing{flag}").into(), Some(n)),
             Float::Undriven(n) => (
-                format!("is on net `{}`, which nothing drives", cx.net_name(n)),
+                format!("is on net `{}`, which nothing drives", cx.net_name(n)).into(),
                 Some(n),
             ),
             Float::SwitchOpen(n, ref l) => (
@@ -93,7 +105,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     "is on net `{}`, which only {} sets, and only while closed",
                     cx.net_name(n),
                     super::common::switch_names(ctx, l)
-                ),
+                )
+                .into(),
                 Some(n),
             ),
         };
@@ -107,7 +120,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 format!(
                     "{} {where_}: it floats high{}, and a high on this active-high input holds the part in reset or clear",
                     cx.describe(f.at),
-                    inside(f.at.comp)
+                    inside
                 ),
             )
             .with_help(format!(
@@ -120,10 +133,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 format!(
                     "{} {where_}: it floats high{} and picks up noise",
                     cx.describe(f.at),
-                    inside(f.at.comp)
+                    inside
                 ),
             )
-            .with_help(tie(f.at.comp))
+            .with_help(tie.clone())
         }
         .at(cx.pin_span(f.at), "open TTL input")
         .with_pins([cx.pin_name(f.at)]);

@@ -42,6 +42,56 @@ mod tests {
     use super::*;
 
     #[test]
+    fn apply_order_moves_each_item_to_its_place() {
+        // every permutation of five items, against building the ordered list afresh
+        let mut perms = vec![vec![]];
+        for n in 0..5usize {
+            perms = perms
+                .into_iter()
+                .flat_map(|p: Vec<usize>| {
+                    (0..=p.len()).map(move |at| {
+                        let mut q = p.clone();
+                        q.insert(at, n);
+                        q
+                    })
+                })
+                .collect();
+        }
+        assert_eq!(perms.len(), 120);
+        for p in perms {
+            let items: Vec<char> = "abcde".chars().collect();
+            let want: Vec<char> = p.iter().map(|&i| items[i]).collect();
+            let mut got = items.clone();
+            apply_order(&mut got, &mut p.clone());
+            assert_eq!(got, want, "{p:?}");
+        }
+    }
+
+    #[test]
+    fn findings_sort_by_place_then_code_then_message_keeping_ties_in_order() {
+        use crate::source::Span;
+        let d = |at: u32, code: &'static str, msg: &str, help: &'static str| {
+            Diag::warning(code, msg)
+                .at(Span::new(at as usize, at as usize + 1), "")
+                .with_help(help)
+        };
+        // invented codes (`b` after `a`), so that no check's id is named here
+        let (a, b) = ("code-a", "code-b");
+        let unplaced = |code: &'static str| Diag::info(code, "no place").with_help("5");
+        let mut v = vec![
+            d(9, b, "x", "1"),
+            d(3, b, "y", "2"),
+            d(3, a, "z", "3"),
+            d(9, b, "x", "4"),
+            unplaced("code-c"),
+            d(3, b, "x", "6"),
+        ];
+        sort_in_file_order(&mut v);
+        let helps: Vec<&str> = v.iter().map(|d| d.help.as_deref().unwrap()).collect();
+        assert_eq!(helps, ["5", "3", "6", "2", "1", "4"]);
+    }
+
+    #[test]
     fn ids_are_unique_kebab_case_and_summaries_follow_the_style() {
         let mut seen = std::collections::HashSet::new();
         for c in REGISTRY {
@@ -154,12 +204,47 @@ pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions)
             }
         }
     }
-    out.sort_by(|a, b| {
-        let sa = a.primary_span().map_or(0, |s| s.start);
-        let sb = b.primary_span().map_or(0, |s| s.start);
-        sa.cmp(&sb)
-            .then_with(|| a.code.cmp(&b.code))
-            .then_with(|| a.message.cmp(&b.message))
-    });
+    sort_in_file_order(&mut out);
+    // the list is held to the end of the run: no spare room
+    out.shrink_to_fit();
     out
+}
+
+/// Sorts findings, stably, by the start of their primary place, then code, then message.
+/// The places are looked up once, and the findings are sorted as indices and then moved into
+/// place by swaps: no copy of the list is made, however many findings there are.
+fn sort_in_file_order(out: &mut [Diag]) {
+    let start: Vec<u32> = out
+        .iter()
+        .map(|d| d.primary_span().map_or(0, |s| s.start))
+        .collect();
+    let mut order: Vec<usize> = (0..out.len()).collect();
+    order.sort_by(|&a, &b| {
+        start[a]
+            .cmp(&start[b])
+            .then_with(|| out[a].code.cmp(&out[b].code))
+            .then_with(|| out[a].message.cmp(&out[b].message))
+    });
+    apply_order(out, &mut order);
+}
+
+/// Rearranges `items` so that the item at `i` is the one that was at `order[i]` (`order` a
+/// permutation; it is used up). Each cycle of the permutation is followed once.
+fn apply_order<T>(items: &mut [T], order: &mut [usize]) {
+    const DONE: usize = usize::MAX;
+    for i in 0..items.len() {
+        if order[i] == DONE {
+            continue;
+        }
+        let mut cur = i;
+        loop {
+            let next = std::mem::replace(&mut order[cur], DONE);
+            if next == i {
+                break;
+            }
+            // `next` still holds its original item; what was at `i` moves on to `next`
+            items.swap(cur, next);
+            cur = next;
+        }
+    }
 }

@@ -80,7 +80,7 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
                 .iter()
                 .find(is_check)
                 .map(|d| FindingSeen {
-                    check: d.code.clone(),
+                    check: d.code.to_string(),
                     pins: d.pins.clone(),
                 });
         }

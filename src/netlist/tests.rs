@@ -156,7 +156,7 @@ fn reads_kicad8_and_reports_model_problems_with_spans() {
     assert!(p2.no_connect);
     assert_eq!(p2.ptype, PinType::Output);
     assert_eq!(u1.pin("14").unwrap().connection, Connection::Absent);
-    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| d.code.as_str()).collect();
+    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| &*d.code).collect();
     assert_eq!(
         codes,
         ["unknown-component", "duplicate-net-code", "pin-on-two-nets"]
@@ -181,7 +181,7 @@ fn duplicate_refs_missing_fields_and_lists_for_atoms() {
     (comp (ref ("U3")) (value "x")))
   (nets (net (code "1") (name "A") (node (ref "U1")))))"#;
     let nl = read(text);
-    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| d.code.as_str()).collect();
+    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| &*d.code).collect();
     assert_eq!(
         codes,
         [

@@ -84,7 +84,7 @@ pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> S
             )
         };
         let part = Diag {
-            code: String::new(),
+            code: "".into(),
             severity: crate::diag::Severity::Info,
             message,
             labels: pick(g),
@@ -212,7 +212,7 @@ fn write_file_with(
         if !quiet {
             // a configuration, mapping file or baseline (a netlist stopped by its
             // configuration's errors has no source of its own)
-            let settings_file = matches!(d.code.as_str(), "config" | "mapping-file" | "baseline")
+            let settings_file = matches!(&*d.code, "config" | "mapping-file" | "baseline")
                 && f.source.is_some();
             if settings_file {
                 let n = 1 + f.diags.len();

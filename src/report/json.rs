@@ -11,8 +11,8 @@ use std::io::{self, Write};
 use serde::Serialize;
 
 use super::{
-    fatal_fingerprint, fingerprints, primary_label, related_labels, Place, ReportOptions, Totals,
-    TOOL_NAME, TOOL_VERSION,
+    fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, Place,
+    ReportOptions, Totals, TOOL_NAME, TOOL_VERSION,
 };
 use crate::diag::{Diag, Severity};
 use crate::pipeline::FileOutcome;
@@ -41,7 +41,40 @@ struct File<'a> {
     checked: bool,
     error: Option<Finding<'a>>,
     summary: Option<SummaryOut>,
-    findings: Vec<Finding<'a>>,
+    findings: Findings<'a>,
+}
+
+/// A file's findings, each made into its [`Finding`] as it is written (never all at once:
+/// a board can have hundreds of thousands).
+struct Findings<'a> {
+    diags: &'a [Diag],
+    source: Option<&'a SourceFile>,
+    fingerprints: Vec<u64>,
+}
+
+impl Serialize for Findings<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.collect_seq(
+            self.diags
+                .iter()
+                .zip(&self.fingerprints)
+                .map(|(d, &fp)| finding(d, self.source, fp)),
+        )
+    }
+}
+
+/// A fingerprint, written as 16 hex digits.
+struct Fingerprint(u64);
+
+impl Serialize for Fingerprint {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        const HEX: &[u8; 16] = b"0123456789abcdef";
+        let mut digits = [0u8; 16];
+        for (i, d) in digits.iter_mut().enumerate() {
+            *d = HEX[((self.0 >> (60 - 4 * i)) & 0xf) as usize];
+        }
+        s.serialize_str(std::str::from_utf8(&digits).expect("hex digits are ASCII"))
+    }
 }
 
 #[derive(Serialize)]
@@ -66,7 +99,7 @@ struct Finding<'a> {
     place: PlaceOut,
     help: Option<&'a str>,
     related: Vec<Related<'a>>,
-    fingerprint: String,
+    fingerprint: Fingerprint,
 }
 
 #[derive(Serialize)]
@@ -126,7 +159,7 @@ struct TotalsOut {
     ic_like: Option<usize>,
 }
 
-fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: String) -> Finding<'a> {
+fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: u64) -> Finding<'a> {
     let primary = primary_label(d);
     Finding {
         check: &d.code,
@@ -134,7 +167,7 @@ fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: String) ->
         message: &d.message,
         net: d.net.as_deref(),
         pins: &d.pins,
-        label: primary.map(|l| l.text.as_str()).filter(|t| !t.is_empty()),
+        label: primary.map(|l| &*l.text).filter(|t| !t.is_empty()),
         place: PlaceOut::of(source, primary.map(|l| l.span)),
         help: d.help.as_deref(),
         related: related_labels(d)
@@ -143,7 +176,7 @@ fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: String) ->
                 place: PlaceOut::of(source, Some(l.span)),
             })
             .collect(),
-        fingerprint,
+        fingerprint: Fingerprint(fingerprint),
     }
 }
 
@@ -154,14 +187,13 @@ fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
         .map(|f| {
             let src = f.source.as_ref();
             let checked = f.fatal.is_none();
-            let fps = fingerprints(f);
             File {
                 path: &f.name,
                 checked,
                 error: f
                     .fatal
                     .as_ref()
-                    .map(|d| finding(d, src, fatal_fingerprint(d, src))),
+                    .map(|d| finding(d, src, fnv1a64(fingerprint_key(d, src).as_bytes()))),
                 summary: checked.then(|| SummaryOut {
                     parts: f.summary.parts,
                     nets: f.summary.nets,
@@ -170,12 +202,11 @@ fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
                     classified: f.coverage.map(|c| c.0),
                     ic_like: f.coverage.map(|c| c.1),
                 }),
-                findings: f
-                    .diags
-                    .iter()
-                    .zip(fps)
-                    .map(|(d, fp)| finding(d, src, fp))
-                    .collect(),
+                findings: Findings {
+                    diags: &f.diags,
+                    source: src,
+                    fingerprints: fingerprint_hashes(f),
+                },
             }
         })
         .collect();
@@ -365,6 +396,14 @@ mod tests {
         // U+2070 and U+00A0 start with the bytes looked at but are left as they are
         assert!(escape_unsafe(json.clone()).contains("\u{2070}é\u{a0}"));
         assert!(!escape_unsafe(json).contains('\u{2069}'));
+    }
+
+    #[test]
+    fn fingerprints_are_written_as_the_report_formats_them() {
+        for h in [0u64, 1, 0xf, 0x0123_4567_89ab_cdef, u64::MAX, 0x8000_0000_0000_0000] {
+            let json = serde_json::to_string(&Fingerprint(h)).unwrap();
+            assert_eq!(json, format!("\"{h:016x}\""));
+        }
     }
 
     #[test]

@@ -168,7 +168,11 @@ pub fn primary_place(d: &Diag, source: Option<&SourceFile>) -> Option<Place> {
 
 /// FNV-1a, 64 bits.
 pub fn fnv1a64(bytes: &[u8]) -> u64 {
-    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    fnv1a64_more(0xcbf2_9ce4_8422_2325, bytes)
+}
+
+/// FNV-1a 64 of the bytes hashed into `h` followed by `bytes`.
+fn fnv1a64_more(mut h: u64, bytes: &[u8]) -> u64 {
     for &b in bytes {
         h ^= u64::from(b);
         h = h.wrapping_mul(0x0100_0000_01b3);
@@ -180,7 +184,9 @@ pub fn fnv1a64(bytes: &[u8]) -> u64 {
 /// the pins (which name the parts); when it names neither a net nor a pin, the text of its
 /// primary element with white space collapsed. Never a line number or an offset.
 pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
-    let mut key = String::new();
+    let mut key = String::with_capacity(
+        d.code.len() + 1 + d.net.as_ref().map_or(0, String::len) + d.pins.len() * 8,
+    );
     key.push_str(&d.code);
     key.push('\u{1f}');
     key.push_str(d.net.as_deref().unwrap_or(""));
@@ -209,17 +215,27 @@ pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
 /// Findings with the same key in one file are told apart by their rank among them (the
 /// findings come in a stable order), so each fingerprint is unique within its file.
 pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
-    let mut seen: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+    fingerprint_hashes(f)
+        .into_iter()
+        .map(|h| format!("{h:016x}"))
+        .collect()
+}
+
+/// [`fingerprints`] as numbers, for a reporter that writes each as it goes.
+pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
+    let mut seen: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
     f.diags
         .iter()
         .map(|d| {
-            let mut key = fingerprint_key(d, f.source.as_ref());
-            let n = seen.entry(key.clone()).or_insert(0);
+            let key = fingerprint_key(d, f.source.as_ref());
+            // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
+            let mut h = fnv1a64(key.as_bytes());
+            let n = seen.entry(key).or_insert(0);
             if *n > 0 {
-                key.push_str(&format!("\u{1d}{n}"));
+                h = fnv1a64_more(h, format!("\u{1d}{n}").as_bytes());
             }
             *n += 1;
-            format!("{:016x}", fnv1a64(key.as_bytes()))
+            h
         })
         .collect()
 }
@@ -394,6 +410,16 @@ mod tests {
         assert_eq!(fnv1a64(b""), 0xcbf29ce484222325);
         assert_eq!(fnv1a64(b"a"), 0xaf63dc4c8601ec8c);
         assert_eq!(fnv1a64(b"foobar"), 0x85944171f73967e8);
+    }
+
+    #[test]
+    fn a_hash_carried_on_equals_the_hash_of_the_whole() {
+        let whole = "floating-ttl-input\u{1f}\u{1f}U1.2\u{1d}3";
+        let (a, b) = whole.split_at(whole.find('\u{1d}').unwrap());
+        assert_eq!(
+            fnv1a64_more(fnv1a64(a.as_bytes()), b.as_bytes()),
+            fnv1a64(whole.as_bytes())
+        );
     }
 
     #[test]

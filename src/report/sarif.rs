@@ -349,7 +349,7 @@ fn result<'a>(
         .collect();
     SarifResult {
         rule_id: &d.code,
-        rule_index: index.get(d.code.as_str()).copied(),
+        rule_index: index.get(&*d.code).copied(),
         level: level(d.severity),
         message: Message { text: &d.message },
         locations: vec![location],

@@ -10,7 +10,7 @@ fn err_at(text: &str) -> (String, usize, usize) {
     let src = SourceFile::new("t", text);
     let span = d.primary_span().unwrap_or_default();
     let lc = src.line_col(span.start as usize);
-    (d.code, lc.line, lc.column)
+    (d.code.into_owned(), lc.line, lc.column)
 }
 
 fn atoms(text: &str) -> Vec<String> {
