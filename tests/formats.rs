@@ -444,7 +444,11 @@ fn fingerprints_of(name: &str, text: &str) -> Vec<(String, String)> {
         waived: 0,
     };
     let fps = report::fingerprints(&f);
-    f.diags.iter().map(|d| d.code.to_string()).zip(fps).collect()
+    f.diags
+        .iter()
+        .map(|d| d.code.to_string())
+        .zip(fps)
+        .collect()
 }
 
 #[test]

@@ -114,9 +114,7 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
                 })
                 .collect();
             let unit_outputs: Vec<PinRef> = (0..c.pins.len())
-                .filter(|&i| {
-                    part.units[i].as_deref() == Some(unit) && cx.roles[ci][i].is_output()
-                })
+                .filter(|&i| part.units[i].as_deref() == Some(unit) && cx.roles[ci][i].is_output())
                 .map(|i| PinRef { comp: ci, pin: i })
                 .collect();
             let outputs_unused = unit_outputs
@@ -222,7 +220,12 @@ mod tests {
 
     #[test]
     fn pin_lists_read_as_before() {
-        let pins = [("12", Some("4A")), ("13", None), ("1", Some("1A")), ("9", Some("3B"))];
+        let pins = [
+            ("12", Some("4A")),
+            ("13", None),
+            ("1", Some("1A")),
+            ("9", Some("3B")),
+        ];
         for n in 0..=pins.len() {
             let items: Vec<String> = pins[..n]
                 .iter()

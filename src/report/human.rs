@@ -212,8 +212,8 @@ fn write_file_with(
         if !quiet {
             // a configuration, mapping file or baseline (a netlist stopped by its
             // configuration's errors has no source of its own)
-            let settings_file = matches!(&*d.code, "config" | "mapping-file" | "baseline")
-                && f.source.is_some();
+            let settings_file =
+                matches!(&*d.code, "config" | "mapping-file" | "baseline") && f.source.is_some();
             if settings_file {
                 let n = 1 + f.diags.len();
                 writeln!(

@@ -400,7 +400,14 @@ mod tests {
 
     #[test]
     fn fingerprints_are_written_as_the_report_formats_them() {
-        for h in [0u64, 1, 0xf, 0x0123_4567_89ab_cdef, u64::MAX, 0x8000_0000_0000_0000] {
+        for h in [
+            0u64,
+            1,
+            0xf,
+            0x0123_4567_89ab_cdef,
+            u64::MAX,
+            0x8000_0000_0000_0000,
+        ] {
             let json = serde_json::to_string(&Fingerprint(h)).unwrap();
             assert_eq!(json, format!("\"{h:016x}\""));
         }
