@@ -358,10 +358,9 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// The level at which a processor's, peripheral's or memory's control input lets the part
     /// run undisturbed (`idle` in the function table): `Some(true)` high, `Some(false)` low,
     /// `None` for any other pin.
+    /// Read from the part's pin table, where the function table's entry was looked up once.
     pub fn idle_level(&self, comp: usize, pin: usize) -> Option<bool> {
-        let (series, id) = self.cl.parts[comp].function.as_ref()?;
-        let num = &self.nl.components[comp].pins[pin].num;
-        self.rules.functions.get(*series, id)?.pin(num)?.idle_high
+        self.cl.parts[comp].idle_high[pin]
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -371,7 +370,12 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// `U4.6`
     pub fn pin_name(&self, p: PinRef) -> String {
         let c = &self.nl.components[p.comp];
-        format!("{}.{}", c.reference, c.pins[p.pin].num)
+        let (r, n) = (c.reference.as_str(), &*c.pins[p.pin].num);
+        let mut s = String::with_capacity(r.len() + 1 + n.len());
+        s.push_str(r);
+        s.push('.');
+        s.push_str(n);
+        s
     }
 
     /// `U4 pin 6 (74LS04 output 3Y)`

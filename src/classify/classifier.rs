@@ -170,6 +170,9 @@ pub struct PinTable {
     /// For an output the data sheet rates with some of the package's own inputs on it:
     /// indices (into the component's pins) of those inputs.
     pub rated_with: Vec<Vec<usize>>,
+    /// For a control input the function table says must be held (`idle`): the level at which
+    /// the part runs undisturbed, `Some(true)` for high (read through `Circuit::idle_level`).
+    pub idle_high: Vec<Option<bool>>,
 }
 
 impl PinTable {
@@ -183,6 +186,7 @@ impl PinTable {
             enables: vec![Vec::new(); n],
             input_loads: vec![None; n],
             rated_with: vec![Vec::new(); n],
+            idle_high: vec![None; n],
         }
     }
 }
@@ -898,6 +902,7 @@ fn pin_table(
     let mut enables = vec![Vec::new(); n];
     let mut input_loads = vec![None; n];
     let mut rated_with = vec![Vec::new(); n];
+    let mut idle_high = vec![None; n];
     let func = function.and_then(|(s, id)| rules.functions.get(*s, id));
     let fam = family.unwrap_or_default();
     for (i, p) in c.pins.iter().enumerate() {
@@ -909,6 +914,7 @@ fn pin_table(
                 table_names[i] = Some(share(&d.name));
                 units[i] = d.unit.as_deref().map(&mut *share);
                 input_loads[i] = f.load_for_family(&p.num, fam);
+                idle_high[i] = d.idle_high;
                 rated_with[i] = d
                     .rated_with
                     .iter()
@@ -945,6 +951,7 @@ fn pin_table(
         enables,
         input_loads,
         rated_with,
+        idle_high,
     }
 }
 
