@@ -333,6 +333,54 @@ pub struct Circuit<'n, 'a> {
     pub rail_notes: Vec<RailNote>,
     /// LED displays: their commons, segments and whether the commons reach anything.
     pub displays: Vec<display::Display>,
+    /// Every resistor's and resistor network's value as read, once per distinct text
+    /// ([`Circuit::resistor_value`]).
+    pub values: ValueReadings<'n>,
+}
+
+/// A resistor's or resistor network's value as read: its ohms (each element's, for a
+/// network), or why it cannot be read.
+pub type ValueReading = Result<f64, ValueError>;
+
+/// Reads a resistor's or resistor network's value; `None` for any other kind of part.
+pub fn read_resistor_value(kind: PartKind, value: &str) -> Option<ValueReading> {
+    match kind {
+        PartKind::Resistor => Some(values::parse_resistance(value).map(|r| r.ohms)),
+        PartKind::ResistorNetwork => Some(values::parse_network(value).map(|r| r.ohms)),
+        _ => None,
+    }
+}
+
+/// Resistor values read once per distinct text and kind: a board repeats a few values on
+/// many parts, and the model and the checks ask for each part's more than once.
+#[derive(Debug, Default)]
+pub struct ValueReadings<'n> {
+    resistors: rustc_hash::FxHashMap<&'n str, ValueReading>,
+    networks: rustc_hash::FxHashMap<&'n str, ValueReading>,
+}
+
+impl<'n> ValueReadings<'n> {
+    /// The reading of `value` for a part of `kind`, read the first time it is asked.
+    fn read(&mut self, kind: PartKind, value: &'n str) -> Option<&ValueReading> {
+        let map = match kind {
+            PartKind::Resistor => &mut self.resistors,
+            PartKind::ResistorNetwork => &mut self.networks,
+            _ => return None,
+        };
+        Some(
+            map.entry(value)
+                .or_insert_with(|| read_resistor_value(kind, value).expect("a resistor kind")),
+        )
+    }
+
+    /// The reading of `value` for a part of `kind`, when it was read.
+    pub fn get(&self, kind: PartKind, value: &str) -> Option<&ValueReading> {
+        match kind {
+            PartKind::Resistor => self.resistors.get(value),
+            PartKind::ResistorNetwork => self.networks.get(value),
+            _ => None,
+        }
+    }
 }
 
 impl<'n, 'a> Circuit<'n, 'a> {
@@ -361,6 +409,13 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// Read from the part's pin table, where the function table's entry was looked up once.
     pub fn idle_level(&self, comp: usize, pin: usize) -> Option<bool> {
         self.cl.parts[comp].idle_high[pin]
+    }
+
+    /// A resistor's or resistor network's value as the model read it; `None` for any other
+    /// part.
+    pub fn resistor_value(&self, comp: usize) -> Option<&ValueReading> {
+        self.values
+            .get(self.cl.parts[comp].kind, self.nl.components[comp].value_str())
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -732,6 +787,7 @@ pub fn build<'n, 'a>(
         }
     }
 
+    let mut readings = ValueReadings::default();
     // resistors: to a rail a pull (or a hold, when the rail's voltage is unknown), between
     // two signal nets a series element
     for (ci, c) in nl.components.iter().enumerate() {
@@ -739,16 +795,10 @@ pub fn build<'n, 'a>(
         if !matches!(part.kind, PartKind::Resistor | PartKind::ResistorNetwork) {
             continue;
         }
-        let (ohms, err) = if part.kind == PartKind::Resistor {
-            match values::parse_resistance(c.value_str()) {
-                Ok(r) => (Some(r.ohms), None),
-                Err(e) => (None, Some(e)),
-            }
-        } else {
-            match values::parse_network(c.value_str()) {
-                Ok(r) => (Some(r.ohms), None),
-                Err(e) => (None, Some(e)),
-            }
+        let (ohms, err) = match readings.read(part.kind, c.value_str()) {
+            Some(Ok(ohms)) => (Some(*ohms), None),
+            Some(Err(e)) => (None, Some(e.clone())),
+            None => (None, None),
         };
         if matches!(err, Some(ValueError::NotFitted(_))) {
             continue; // not on the board
@@ -868,7 +918,15 @@ pub fn build<'n, 'a>(
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
-            if let Some(path) = follow_to_ground(nl, cl, &rail, &displays, start, opts.led_vf) {
+            if let Some(path) = follow_to_ground(
+                nl,
+                cl,
+                &rail,
+                &displays,
+                &mut readings,
+                start,
+                opts.led_vf,
+            ) {
                 if path.leds.is_empty() {
                     continue;
                 }
@@ -898,6 +956,7 @@ pub fn build<'n, 'a>(
         roles,
         rail_notes,
         displays,
+        values: readings,
     }
 }
 
@@ -1173,12 +1232,18 @@ fn rails_by_usage(
         }
     }
     // voltages: a fixed regulator's output first, then the families powered
+    // (each distinct value read once: boards repeat values)
+    let mut regulators: rustc_hash::FxHashMap<&str, Option<(f64, &'static str)>> =
+        Default::default();
     for (ci, c) in nl.components.iter().enumerate() {
         // a logic part is no regulator: its value is not read again
         if cl.parts[ci].is_logic() {
             continue;
         }
-        let Some((volts, out_pin)) = rails::fixed_regulator(c.value_str()) else {
+        let Some((volts, out_pin)) = *regulators
+            .entry(c.value_str())
+            .or_insert_with(|| rails::fixed_regulator(c.value_str()))
+        else {
             continue;
         };
         let by_name = c.pins.iter().find(|p| {
@@ -1274,11 +1339,12 @@ fn note_for(notes: &mut Vec<RailNote>, net: usize, volts: f64, why: Inferred) {
 /// Follows two-pin resistors and LEDs in series from `start` to a rail. A display entered at
 /// a segment leads to its common: the path ends on the rail the common is wired to, or, for
 /// a common cathode left open, on the ground it needs (`LedPath::open_common`).
-fn follow_to_ground(
-    nl: &Netlist<'_>,
+fn follow_to_ground<'n>(
+    nl: &'n Netlist<'_>,
     cl: &Classified,
     rail: &[Option<Rail>],
     displays: &[display::Display],
+    readings: &mut ValueReadings<'n>,
     start: PinRef,
     vf: f64,
 ) -> Option<LedPath> {
@@ -1354,7 +1420,10 @@ fn follow_to_ground(
         }
         match kind {
             PartKind::Resistor => {
-                ohms += values::parse_resistance(c.value_str()).ok()?.ohms;
+                ohms += readings
+                    .read(kind, c.value_str())?
+                    .as_ref()
+                    .ok()?;
                 resistors.push(cur.comp);
             }
             PartKind::Led => leds.push(cur.comp),
