@@ -24,8 +24,8 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 
 use super::Context;
 use crate::circuit::PinRef;
-use crate::diag::Diag;
 use crate::circuit::ValueReading;
+use crate::diag::Diag;
 use crate::values::ValueError;
 
 /// Why a resistor's value, as the model read it, cannot be read: `None` when it reads, or

@@ -414,8 +414,10 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// A resistor's or resistor network's value as the model read it; `None` for any other
     /// part.
     pub fn resistor_value(&self, comp: usize) -> Option<&ValueReading> {
-        self.values
-            .get(self.cl.parts[comp].kind, self.nl.components[comp].value_str())
+        self.values.get(
+            self.cl.parts[comp].kind,
+            self.nl.components[comp].value_str(),
+        )
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -918,15 +920,9 @@ pub fn build<'n, 'a>(
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
-            if let Some(path) = follow_to_ground(
-                nl,
-                cl,
-                &rail,
-                &displays,
-                &mut readings,
-                start,
-                opts.led_vf,
-            ) {
+            if let Some(path) =
+                follow_to_ground(nl, cl, &rail, &displays, &mut readings, start, opts.led_vf)
+            {
                 if path.leds.is_empty() {
                     continue;
                 }
@@ -1420,10 +1416,7 @@ fn follow_to_ground<'n>(
         }
         match kind {
             PartKind::Resistor => {
-                ohms += readings
-                    .read(kind, c.value_str())?
-                    .as_ref()
-                    .ok()?;
+                ohms += readings.read(kind, c.value_str())?.as_ref().ok()?;
                 resistors.push(cur.comp);
             }
             PartKind::Led => leds.push(cur.comp),

@@ -589,7 +589,7 @@ fn parse_function_field(s: &str) -> (Series, String) {
 
 /// Classifies every component of a netlist.
 pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
-    let mut parts = Vec::with_capacity(nl.components.len());
+    let mut parts: Vec<PartClass> = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
     let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
     // many parts share a value: each distinct value meets the entries' globs and the value
@@ -619,7 +619,28 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         std::collections::HashMap::new();
     // the pin tables made so far, by the hash of what they follow from
     let mut pin_tables: rustc_hash::FxHashMap<u64, Vec<SeenPins>> = Default::default();
+    // parts alike classify alike: each distinct part is classified once, the others copy it
+    let mut first_alike: rustc_hash::FxHashMap<Alike<'_, '_>, usize> = Default::default();
     for c in &nl.components {
+        match first_alike.entry(Alike(c)) {
+            std::collections::hash_map::Entry::Occupied(first) => {
+                let part = parts[*first.get()].clone();
+                if part.ic_like {
+                    ic_like += 1;
+                    if matches!(part.kind, PartKind::Logic | PartKind::NotLogic) {
+                        classified += 1;
+                    }
+                }
+                if part.method == Method::FunctionSymbol {
+                    function_symbols += 1;
+                }
+                parts.push(part);
+                continue;
+            }
+            std::collections::hash_map::Entry::Vacant(v) => {
+                v.insert(parts.len());
+            }
+        }
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
         let mut family = None;
@@ -848,6 +869,66 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         unused_project_entries,
     }
 }
+
+/// A component by what its classification follows from: the letters of its reference, its
+/// value, footprint and library symbol (library, part, description), its logic family and
+/// function fields, and its pins' numbers, types and names. Two components equal in these
+/// classify alike.
+struct Alike<'c, 'a>(&'c Component<'a>);
+
+/// The text of an optional item.
+fn text<'t>(t: &'t Option<crate::netlist::Text<'_>>) -> Option<&'t str> {
+    t.as_ref().map(|t| t.as_str())
+}
+
+impl Alike<'_, '_> {
+    #[allow(clippy::type_complexity)]
+    fn texts(
+        &self,
+    ) -> (
+        &str,
+        &str,
+        Option<&str>,
+        Option<(Option<&str>, Option<&str>, Option<&str>)>,
+        Option<&str>,
+        Option<&str>,
+    ) {
+        let c = self.0;
+        let field = |name| {
+            c.field(name)
+                .and_then(|f| f.value.as_ref())
+                .map(|v| v.as_str())
+        };
+        (
+            ref_prefix(c.reference.as_str()),
+            c.value_str(),
+            text(&c.footprint),
+            c.libsource
+                .as_ref()
+                .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
+            field("Logic family"),
+            field("Logic function"),
+        )
+    }
+}
+
+impl std::hash::Hash for Alike<'_, '_> {
+    fn hash<H: std::hash::Hasher>(&self, h: &mut H) {
+        self.texts().hash(h);
+        self.0.pins.len().hash(h);
+        for p in &self.0.pins {
+            (p.num.as_ref(), p.ptype, p.name.as_deref()).hash(h);
+        }
+    }
+}
+
+impl PartialEq for Alike<'_, '_> {
+    fn eq(&self, other: &Self) -> bool {
+        self.texts() == other.texts() && same_pins(&self.0.pins, &other.0.pins)
+    }
+}
+
+impl Eq for Alike<'_, '_> {}
 
 /// A part whose pin table is kept for the parts alike that follow: what the table follows
 /// from, and the table.
