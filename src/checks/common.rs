@@ -322,6 +322,28 @@ mod tests {
     }
 
     #[test]
+    fn words_are_made_once_per_key() {
+        let mut words = super::Words::new();
+        let mut made = 0;
+        for key in [1, 2, 1, 1, 2, 3] {
+            let w = words.get(key, || {
+                made += 1;
+                (format!("tail {key}"), format!("help {key}"))
+            });
+            assert_eq!(w, &(format!("tail {key}"), format!("help {key}")));
+        }
+        assert_eq!(made, 3);
+    }
+
+    #[test]
+    fn pieces_join_into_a_string_of_their_length() {
+        let s = super::concat(&["gate ", "A", " of ", "U1"]);
+        assert_eq!(s, "gate A of U1");
+        assert_eq!(s.capacity(), s.len());
+        assert_eq!(super::concat(&[]), "");
+    }
+
+    #[test]
     fn verbs_agree_with_the_number_of_pins() {
         assert_eq!(agree(1, "is", "are"), "is");
         assert_eq!(agree(2, "is", "are"), "are");

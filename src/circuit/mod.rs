@@ -1514,6 +1514,44 @@ pub fn led_vf_by_colour(value: &str) -> Option<f64> {
 }
 
 #[cfg(test)]
+mod value_tests {
+    use super::{values, PartKind, ValueReadings};
+
+    /// A value is read once per text and kind, and reads as the value parsers read it.
+    #[test]
+    fn resistor_values_read_once_per_text_and_kind() {
+        let mut r = ValueReadings::default();
+        let ohms = |t: &str| values::parse_resistance(t).map(|x| x.ohms);
+        assert_eq!(
+            r.read(PartKind::Resistor, "4K7").cloned(),
+            Some(ohms("4K7"))
+        );
+        assert_eq!(
+            r.read(PartKind::Resistor, "4K7").cloned(),
+            Some(ohms("4K7"))
+        );
+        assert_eq!(
+            r.read(PartKind::Resistor, "4K7K").cloned(),
+            Some(ohms("4K7K"))
+        );
+        assert!(matches!(r.get(PartKind::Resistor, "4K7K"), Some(Err(_))));
+        assert_eq!(r.resistors.len(), 2);
+        // only resistors and networks are read
+        assert_eq!(r.read(PartKind::Capacitor, "4K7"), None);
+        assert_eq!(r.get(PartKind::Capacitor, "4K7"), None);
+        // a network's text is read as a network, apart from a resistor's of the same text
+        assert_eq!(r.get(PartKind::ResistorNetwork, "4K7"), None);
+        let net = values::parse_network("8x4K7").map(|x| x.ohms);
+        assert_eq!(
+            r.read(PartKind::ResistorNetwork, "8x4K7").cloned(),
+            Some(net)
+        );
+        assert_eq!(r.get(PartKind::Resistor, "8x4K7"), None);
+        assert_eq!(r.networks.len(), 1);
+    }
+}
+
+#[cfg(test)]
 mod led_tests {
     use super::led_vf_by_colour;
 

@@ -1213,6 +1213,55 @@ pub fn is_function_symbol(value: &str, has_footprint: bool) -> bool {
 mod tests {
     use super::is_function_symbol;
 
+    /// Parts that differ only in their reference's number classify alike and are classified
+    /// once; any other difference (reference letters, value, a logic field, a pin) makes a
+    /// part of its own.
+    #[test]
+    fn parts_alike_classify_once_and_alike() {
+        use std::hash::BuildHasher;
+        let text = r#"(export (version D)
+  (components
+    (comp (ref U1) (value 74HC00) (libsource (lib x) (part 74HC00)))
+    (comp (ref U2) (value 74HC00) (libsource (lib x) (part 74HC00)))
+    (comp (ref IC3) (value 74HC00) (libsource (lib x) (part 74HC00)))
+    (comp (ref U4) (value 74HCT00) (libsource (lib x) (part 74HC00)))
+    (comp (ref U5) (value 74HC00) (libsource (lib x) (part 74HC00))
+      (fields (field (name "Logic family") 74AC)))
+    (comp (ref U6) (value 74HC00) (libsource (lib y) (part 74HC00))))
+  (libparts
+    (libpart (lib x) (part 74HC00)
+      (pins (pin (num 1) (name 1A) (type input)) (pin (num 3) (name 1Y) (type output))
+        (pin (num 7) (name GND) (type power_in)) (pin (num 14) (name VCC) (type power_in))))
+    (libpart (lib y) (part 74HC00)
+      (pins (pin (num 1) (name A) (type input)) (pin (num 3) (name 1Y) (type output))
+        (pin (num 7) (name GND) (type power_in)) (pin (num 14) (name VCC) (type power_in)))))
+  (nets))"#;
+        let nl = crate::netlist::read(text).expect("reads");
+        assert_eq!(nl.components.len(), 6);
+        let c = &nl.components;
+        let hash = |a: &super::Alike<'_, '_>| rustc_hash::FxBuildHasher.hash_one(a);
+        let (u1, u2) = (super::Alike(&c[0]), super::Alike(&c[1]));
+        assert!(u1 == u2 && hash(&u1) == hash(&u2));
+        for (i, why) in [
+            (2, "reference letters"),
+            (3, "value"),
+            (4, "logic family field"),
+            (5, "library and pin name"),
+        ] {
+            assert!(u1 != super::Alike(&c[i]), "{why}");
+        }
+        let rules = super::Rules::shipped();
+        let cl = super::classify(&nl, rules);
+        assert_eq!(format!("{:?}", cl.parts[0]), format!("{:?}", cl.parts[1]));
+        // the copy shares the first one's pin table
+        assert!(std::sync::Arc::ptr_eq(&cl.parts[0].pins, &cl.parts[1].pins));
+        assert_eq!(cl.parts[0].family.as_deref(), Some("74HC"));
+        assert_eq!(cl.parts[3].family.as_deref(), Some("74HCT"));
+        assert_eq!(cl.parts[4].family.as_deref(), Some("74AC"));
+        // every part counts, copied or not
+        assert_eq!(cl.coverage, (6, 6));
+    }
+
     /// One `PartClass` per component: its size is held here so it cannot regrow unnoticed
     /// (496 bytes when its per-pin lists and value reading were its own copies).
     #[test]
