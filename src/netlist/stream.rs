@@ -8,9 +8,8 @@
 //! `libraries` or a section a newer KiCad adds, is passed over by counting its depth, and
 //! none of its contents is kept. Nothing recurses, and no input makes it panic.
 
-use std::borrow::Cow;
-
 use rustc_hash::FxHashMap as HashMap;
+use thin_vec::ThinVec;
 
 use super::*;
 use crate::sexpr::{bom_len, errors, unescape, MAX_DEPTH};
@@ -283,17 +282,17 @@ fn empty_component<'a>() -> Component<'a> {
     let span = Span { start: 0, end: 0 };
     Component {
         reference: Text {
-            s: Cow::Borrowed(""),
+            s: Str::borrowed(""),
             span,
         },
         value: None,
         footprint: None,
         datasheet: None,
-        fields: Vec::new(),
-        properties: Vec::new(),
+        fields: ThinVec::new(),
+        properties: ThinVec::new(),
         libsource: None,
         sheetpath: None,
-        tstamps: Vec::new(),
+        tstamps: ThinVec::new(),
         span,
         libpart: None,
         pins: Vec::new(),
@@ -374,7 +373,7 @@ impl<'a> Reader<'a> {
             net: Net {
                 code: None,
                 name: Text {
-                    s: Cow::Borrowed(""),
+                    s: Str::borrowed(""),
                     span,
                 },
                 nodes: Vec::new(),
@@ -389,9 +388,9 @@ impl<'a> Reader<'a> {
     fn text_of(&self, start: usize, end: usize, tok: Tok) -> Text<'a> {
         let t = self.text;
         let s = match tok {
-            Tok::Atom => Cow::Borrowed(&t[start..end]),
-            Tok::Str => Cow::Borrowed(&t[start + 1..end - 1]),
-            Tok::Escaped => unescape(&t[start + 1..end - 1]),
+            Tok::Atom => Str::borrowed(&t[start..end]),
+            Tok::Str => Str::borrowed(&t[start + 1..end - 1]),
+            Tok::Escaped => unescape(&t[start + 1..end - 1]).into(),
         };
         Text {
             s,
@@ -584,7 +583,7 @@ impl<'a> Reader<'a> {
                 self.net = Net {
                     code: None,
                     name: Text {
-                        s: Cow::Borrowed(""),
+                        s: Str::borrowed(""),
                         span,
                     },
                     nodes: Vec::new(),
@@ -837,7 +836,7 @@ impl<'a> Reader<'a> {
             Net {
                 code: None,
                 name: Text {
-                    s: Cow::Borrowed(""),
+                    s: Str::borrowed(""),
                     span,
                 },
                 nodes: Vec::new(),
@@ -976,7 +975,7 @@ fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
 
 fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
-    let mut by_ref: HashMap<Cow<'a, str>, usize> =
+    let mut by_ref: HashMap<Str<'a>, usize> =
         HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
     for (i, c) in nl.components.iter().enumerate() {
         if let Some(&first) = by_ref.get(c.reference.as_str()) {
@@ -1073,7 +1072,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         for (k, node) in net.nodes.iter_mut().enumerate() {
             match by_ref.get(node.reference.as_str()) {
                 Some(&ci) => {
-                    node.component = Some(ci);
+                    node.component = Some(ci as u32);
                     entries.push((ci as u32, ni as u32, k as u32));
                 }
                 None => diags.push(
@@ -1094,7 +1093,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
 
     // Pin numbers as integers: each distinct pin text gets its rank in text order, so
     // sorting by rank sorts exactly as comparing the texts would.
-    let mut pin_ids: HashMap<Cow<'a, str>, u32> = HashMap::default();
+    let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
     let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
     for &(_, ni, k) in &entries {
         let pin = &nl.nets[ni as usize].nodes[k as usize].pin.s;
@@ -1281,7 +1280,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                             continue; // stacked pins listed twice
                         }
                         used[i] = true;
-                        connection(nets, mine[i].1 as usize, mine[i].2 as usize)
+                        connection(nets, mine[i].1, mine[i].2)
                     }
                     None => Connection::Absent,
                 };
@@ -1304,7 +1303,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     ptype,
                     no_connect,
                     connection,
-                    libpin: Some(pi),
+                    libpin: Some(pi as u32),
                 });
             }
         }
@@ -1319,7 +1318,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 name: node.pinfunction.as_ref().map(|f| f.s.clone()),
                 ptype: node.pintype.unwrap_or(PinType::Unknown),
                 no_connect: node.no_connect,
-                connection: connection(nets, e.1 as usize, e.2 as usize),
+                connection: connection(nets, e.1, e.2),
                 libpin: None,
             });
         }
@@ -1329,8 +1328,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     nl.by_net_name = by_net_name;
 }
 
-fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {
-    if nets[net].nodes.len() > 1 {
+fn connection(nets: &[Net<'_>], net: u32, node: u32) -> Connection {
+    if nets[net as usize].nodes.len() > 1 {
         Connection::Net { net, node }
     } else {
         Connection::Alone { net, node }

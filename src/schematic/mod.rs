@@ -26,6 +26,7 @@ pub mod symbol;
 use std::borrow::Cow;
 
 use rustc_hash::FxHashMap as HashMap;
+use thin_vec::ThinVec;
 
 use crate::diag::Diag;
 use crate::netlist::{
@@ -55,7 +56,10 @@ pub fn is_sheet(text: &str) -> bool {
 }
 
 fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
-    Text { s: s.into(), span }
+    Text {
+        s: s.into().into(),
+        span,
+    }
 }
 
 /// One placed symbol in one use of a sheet, with its instance data resolved.
@@ -699,7 +703,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 lib_of.insert(key, libparts.len());
                 let mut pins: Vec<ModelLibPin<'_>> = Vec::new();
                 for lp in pl.lib.pins.iter().filter(|p| p.style <= 1) {
-                    if pins.iter().any(|q| q.num.s == lp.num) {
+                    if pins.iter().any(|q| *q.num.s == *lp.num) {
                         continue;
                     }
                     pins.push(ModelLibPin {
@@ -761,13 +765,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 fields,
                 // as KiCad 8 and later write it in a netlist: `(property (name "dnp"))`
                 properties: if placed.dnp {
-                    vec![Field {
+                    thin_vec::thin_vec![Field {
                         name: txt("dnp", placed.span),
                         value: None,
                         span: placed.span,
                     }]
                 } else {
-                    Vec::new()
+                    ThinVec::new()
                 },
                 libsource: Some(LibSource {
                     lib: Some(txt(lib.to_string(), placed.lib_key_span)),
@@ -778,7 +782,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     names: Some(txt(u.path.clone(), placed.span)),
                     tstamps: None,
                 }),
-                tstamps: vec![txt(placed.uuid.clone(), placed.span)],
+                tstamps: thin_vec::thin_vec![txt(placed.uuid.clone(), placed.span)],
                 span: placed.span,
                 libpart: None,
                 pins: Vec::new(),
