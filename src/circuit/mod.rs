@@ -1382,7 +1382,7 @@ fn follow_to_ground(
         let pi = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num == next.pin.s)?;
+            .position(|p| p.num == next.pin)?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef { comp: ci, pin: pi };
         } else {

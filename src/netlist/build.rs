@@ -442,8 +442,8 @@ impl<'a> Builder<'_, 'a> {
                     match (reference, pin) {
                         (Some(reference), Some(pin)) => net.nodes.push(Node {
                             reference,
-                            pin,
-                            pinfunction,
+                            pin: pin.s,
+                            pinfunction: pinfunction.map(|f| f.s),
                             pintype,
                             no_connect,
                             span: self.t.span(n),

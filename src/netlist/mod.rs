@@ -191,8 +191,9 @@ pub struct LibPart<'a> {
 #[derive(Debug, Clone)]
 pub struct Node<'a> {
     pub reference: Text<'a>,
-    pub pin: Text<'a>,
-    pub pinfunction: Option<Text<'a>>,
+    /// The pin number (no span of its own: a diagnostic about a pin points at its node).
+    pub pin: Str<'a>,
+    pub pinfunction: Option<Str<'a>>,
     pub pintype: Option<PinType>,
     /// The node's pintype ended in `+no_connect`.
     pub no_connect: bool,

@@ -272,8 +272,8 @@ struct LibPartAcc<'a> {
 #[derive(Default)]
 struct NodeAcc<'a> {
     reference: Option<Text<'a>>,
-    pin: Option<Text<'a>>,
-    pinfunction: Option<Text<'a>>,
+    pin: Option<Str<'a>>,
+    pinfunction: Option<Str<'a>>,
     pintype: Option<PinType>,
     no_connect: bool,
 }
@@ -327,6 +327,12 @@ struct Reader<'a> {
     net: Net<'a>,
     have_name: bool,
     node: NodeAcc<'a>,
+    /// The open component's and net's lists, gathered here and moved into the model with
+    /// one allocation of their exact length when the list closes (no growing, no trimming).
+    fields: Vec<Field<'a>>,
+    properties: Vec<Field<'a>>,
+    tstamps: Vec<Text<'a>>,
+    nodes: Vec<Node<'a>>,
 }
 
 impl<'a> Reader<'a> {
@@ -381,6 +387,10 @@ impl<'a> Reader<'a> {
             },
             have_name: false,
             node: NodeAcc::default(),
+            fields: Vec::new(),
+            properties: Vec::new(),
+            tstamps: Vec::new(),
+            nodes: Vec::new(),
         }
     }
 
@@ -522,6 +532,9 @@ impl<'a> Reader<'a> {
             (Role::TitleBlock, "rev") => value(self, Slot::Rev),
             (Role::Components, "comp") => {
                 self.comp = empty_component();
+                self.fields.clear();
+                self.properties.clear();
+                self.tstamps.clear();
                 self.have_ref = false;
                 Role::Comp
             }
@@ -589,6 +602,7 @@ impl<'a> Reader<'a> {
                     nodes: Vec::new(),
                     span,
                 };
+                self.nodes.clear();
                 self.have_name = false;
                 Role::Net
             }
@@ -633,7 +647,7 @@ impl<'a> Reader<'a> {
             Slot::Datasheet => self.comp.datasheet = v,
             Slot::Tstamp => {
                 if let Some(v) = v {
-                    self.comp.tstamps.push(v);
+                    self.tstamps.push(v);
                 }
             }
             Slot::FieldName => self.field_name = v,
@@ -672,8 +686,8 @@ impl<'a> Reader<'a> {
                 }
             }
             Slot::NodeRef => self.node.reference = v,
-            Slot::NodePin => self.node.pin = v,
-            Slot::NodeFunction => self.node.pinfunction = v,
+            Slot::NodePin => self.node.pin = v.map(|t| t.s),
+            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.s),
             Slot::NodeType => {
                 if let Some(v) = v {
                     let (t, nc) = PinType::parse(v.as_str());
@@ -775,9 +789,9 @@ impl<'a> Reader<'a> {
             return;
         }
         comp.span = span;
-        comp.tstamps.shrink_to_fit();
-        comp.fields.shrink_to_fit();
-        comp.properties.shrink_to_fit();
+        comp.tstamps = self.tstamps.drain(..).collect();
+        comp.fields = self.fields.drain(..).collect();
+        comp.properties = self.properties.drain(..).collect();
         self.nl.components.push(comp);
     }
 
@@ -799,8 +813,8 @@ impl<'a> Reader<'a> {
         };
         let f = Field { name, value, span };
         match owner {
-            Owner::CompField => self.comp.fields.push(f),
-            Owner::CompProperty => self.comp.properties.push(f),
+            Owner::CompField => self.fields.push(f),
+            Owner::CompProperty => self.properties.push(f),
             Owner::LibPart => self.libpart.fields.push(f),
         }
     }
@@ -859,14 +873,21 @@ impl<'a> Reader<'a> {
                 .at(span, "no name"),
             );
         }
-        net.nodes.shrink_to_fit();
+        net.nodes = if self.nodes.len() <= 256 {
+            self.nodes.drain(..).collect()
+        } else {
+            // a large net is moved out and trimmed where it lies, never held twice
+            let mut nodes = std::mem::take(&mut self.nodes);
+            nodes.shrink_to_fit();
+            nodes
+        };
         self.nl.nets.push(net);
     }
 
     fn end_node(&mut self, span: Span) {
         let nd = std::mem::take(&mut self.node);
         match (nd.reference, nd.pin) {
-            (Some(reference), Some(pin)) => self.net.nodes.push(Node {
+            (Some(reference), Some(pin)) => self.nodes.push(Node {
                 reference,
                 pin,
                 pinfunction: nd.pinfunction,
@@ -955,9 +976,9 @@ pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag
 fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
     for net in &mut nl.nets {
         for nd in &mut net.nodes {
-            if nd.pin.s.trim().is_empty() {
-                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.s.trim().is_empty()) {
-                    nd.pin.s = f.s.clone();
+            if nd.pin.trim().is_empty() {
+                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.trim().is_empty()) {
+                    nd.pin = f.clone();
                 }
             }
         }
@@ -1048,7 +1069,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
     let mut codes: HashMap<&str, usize> =
         HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
-    let mut entries: Vec<(u32, u32, u32)> = Vec::new(); // (component, net, node)
+    // (component, net, node)
+    let mut entries: Vec<(u32, u32, u32)> =
+        Vec::with_capacity(nl.nets.iter().map(|n| n.nodes.len()).sum());
     for (ni, net) in nl.nets.iter_mut().enumerate() {
         if let Some(code) = &net.code {
             if let Some(&first) = codes.get(code.as_str()) {
@@ -1096,7 +1119,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
     let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
     for &(_, ni, k) in &entries {
-        let pin = &nl.nets[ni as usize].nodes[k as usize].pin.s;
+        let pin = &nl.nets[ni as usize].nodes[k as usize].pin;
         let next = pin_ids.len() as u32;
         let id = match pin_ids.get(pin.as_ref()) {
             Some(&id) => id,
@@ -1294,7 +1317,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     }
                     no_connect |= nd.no_connect;
                     if name.is_none() {
-                        name = nd.pinfunction.as_ref().map(|f| f.s.clone());
+                        name = nd.pinfunction.clone();
                     }
                 }
                 pins.push(CompPin {
@@ -1314,8 +1337,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
             let node = &nets[e.1 as usize].nodes[e.2 as usize];
             pins.push(CompPin {
-                num: node.pin.s.clone(),
-                name: node.pinfunction.as_ref().map(|f| f.s.clone()),
+                num: node.pin.clone(),
+                name: node.pinfunction.clone(),
                 ptype: node.pintype.unwrap_or(PinType::Unknown),
                 no_connect: node.no_connect,
                 connection: connection(nets, e.1, e.2),

@@ -214,7 +214,7 @@ fn model_items_stay_small() {
     assert!(size_of::<Option<Text<'_>>>() <= 24);
     assert!(size_of::<Connection>() <= 12, "Connection: {}", size_of::<Connection>());
     assert!(size_of::<CompPin<'_>>() <= 56, "CompPin: {}", size_of::<CompPin<'_>>());
-    assert!(size_of::<Node<'_>>() <= 96, "Node: {}", size_of::<Node<'_>>());
+    assert!(size_of::<Node<'_>>() <= 80, "Node: {}", size_of::<Node<'_>>());
     assert!(size_of::<Component<'_>>() <= 304, "Component: {}", size_of::<Component<'_>>());
     assert!(size_of::<Net<'_>>() <= 80, "Net: {}", size_of::<Net<'_>>());
 }

@@ -622,9 +622,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             net.nodes.push(Node {
                 reference: txt(pl.reference.clone(), pl.reference_span),
-                pin: txt(lp.num.clone(), span),
+                pin: lp.num.clone().into(),
                 pinfunction: (!lp.name.is_empty() && lp.name != "~")
-                    .then(|| txt(lp.name.clone(), lp.span)),
+                    .then(|| lp.name.clone().into()),
                 pintype: Some(lp.ptype),
                 no_connect: nc || lp.ptype == PinType::NoConnect,
                 span,
@@ -638,13 +638,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
-    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.s.to_string());
+    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.to_string());
     for n in &mut nets {
         n.nodes.sort_by(|a, b| {
-            (&a.reference.s, &a.pin.s, fname(a)).cmp(&(&b.reference.s, &b.pin.s, fname(b)))
+            (&a.reference.s, &a.pin, fname(a)).cmp(&(&b.reference.s, &b.pin, fname(b)))
         });
         n.nodes
-            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin.s == b.pin.s);
+            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin == b.pin);
     }
 
     // components (one per reference, units merged) and library parts, as KiCad lists
