@@ -24,8 +24,8 @@ use crate::source::Span;
 
 /// A text of the model: borrowed from the file's text, or owned where unescaping or the
 /// schematic reader made a new one. Two words where `std::borrow::Cow` takes four: the
-/// model holds a few of them for every pin and node. Its lengths are 32-bit, and the
-/// readers refuse files of 1 GiB or more, so every text fits.
+/// model holds a few of them for every pin and node. Its lengths are 32-bit, as `Span`'s
+/// offsets are: both readers refuse a file of 1 GiB or more, so every text fits.
 pub type Str<'a> = beef::lean::Cow<'a, str>;
 
 /// A text value from the file (unescaped) with its span.
