@@ -93,7 +93,7 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
                         .iter()
                         .map(|x| NodeOut {
                             reference: x.reference.as_str(),
-                            pin: x.pin.as_str(),
+                            pin: &x.pin,
                         })
                         .collect(),
                 })
@@ -139,7 +139,7 @@ fn side(nl: &Netlist<'_>) -> Side {
         let pins: BTreeSet<Pin> = n
             .nodes
             .iter()
-            .map(|x| (x.reference.s.to_string(), x.pin.s.to_string()))
+            .map(|x| (x.reference.s.to_string(), x.pin.to_string()))
             .collect();
         let i = s.nets.len();
         for p in &pins {

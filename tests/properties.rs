@@ -404,10 +404,10 @@ fn fingerprint(nl: &Netlist<'_>) -> Fingerprint {
                     .map(|p| {
                         let (net, kind) = match p.connection {
                             Connection::Net { net, .. } => {
-                                (nl.nets[net].name.as_str().to_string(), "net")
+                                (nl.nets[net as usize].name.as_str().to_string(), "net")
                             }
                             Connection::Alone { net, .. } => {
-                                (nl.nets[net].name.as_str().to_string(), "alone")
+                                (nl.nets[net as usize].name.as_str().to_string(), "alone")
                             }
                             Connection::Absent => (String::new(), "absent"),
                         };

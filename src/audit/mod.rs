@@ -982,7 +982,7 @@ fn gather_recapture(
         let node = &n.nodes[0];
         label_nets.push(Row {
             subject: cx.net_name(i),
-            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference.as_str(), node.pin.as_str()),
+            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference.as_str(), &*node.pin),
             line: Some(source.line_col(n.span.start as usize).line),
         });
     }

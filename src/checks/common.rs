@@ -43,8 +43,11 @@ pub struct UnusedGate<'n> {
 pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> Option<Float> {
     match connection {
         Connection::Absent => Some(Float::Absent),
-        Connection::Alone { net, .. } if cx.nets[net].rail.is_none() => Some(Float::Alone(net)),
+        Connection::Alone { net, .. } if cx.nets[net as usize].rail.is_none() => {
+            Some(Float::Alone(net as usize))
+        }
         Connection::Net { net, .. } => {
+            let net = net as usize;
             let nm = &cx.nets[net];
             if nm.has_source() {
                 None

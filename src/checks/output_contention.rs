@@ -85,7 +85,7 @@ pub(super) fn paralleled_units(cx: &Circuit<'_, '_>, outs: &[PinRef]) -> Option<
             .filter(|&i| matches!(part.roles[i], PinRole::Input | PinRole::SchmittInput))
         {
             match pins[i].connection {
-                Connection::Net { net, .. } => nets.push(net),
+                Connection::Net { net, .. } => nets.push(net as usize),
                 _ => return None,
             }
         }

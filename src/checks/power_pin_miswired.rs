@@ -170,6 +170,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             };
             match p.connection {
                 Connection::Net { net, .. } => {
+                    let net = net as usize;
                     let nm = &cx.nets[net];
                     let name = cx.net_name(net);
                     let kind = net_kind(nm, &name);
@@ -255,7 +256,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     out.push(d);
                 }
                 // a supply pin alone on a rail net (one power symbol on one chip) is on the rail
-                Connection::Alone { net, .. } if cx.nets[net].rail.is_some() => {}
+                Connection::Alone { net, .. } if cx.nets[net as usize].rail.is_some() => {}
                 Connection::Alone { .. } | Connection::Absent
                     if part.role_source[pi] != RoleSource::Table =>
                 {

@@ -81,7 +81,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let idx = c.pins.iter().position(|p| p.num == d.pin);
             // alone on a rail net (one power symbol on one chip): on that rail
             if let Some(Connection::Alone { net, .. }) = idx.map(|i| c.pins[i].connection) {
-                if cx.nets[net].rail.is_some() {
+                if cx.nets[net as usize].rail.is_some() {
                     continue;
                 }
             }

@@ -81,21 +81,24 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
         let Connection::Net { net, .. } = c.pins[1 - cur.pin].connection else {
             break;
         };
+        let net = net as usize;
         if cx.nets[net].rail.is_some() {
             break;
         }
         let Some(next) = nl.nets[net]
             .nodes
             .iter()
-            .find(|n| n.component != Some(cur.comp))
+            .find(|n| n.component != Some(cur.comp as u32))
         else {
             break;
         };
-        let Some(ci) = next.component else { break };
+        let Some(ci) = next.component.map(|c| c as usize) else {
+            break;
+        };
         let Some(pi) = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num == next.pin.s)
+            .position(|p| p.num == next.pin)
         else {
             break;
         };

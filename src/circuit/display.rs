@@ -91,7 +91,7 @@ pub fn find(nl: &Netlist<'_>, cl: &Classified) -> Vec<Display> {
         let common_nets: Vec<Option<usize>> = commons
             .iter()
             .map(|&pi| match c.pins[pi].connection {
-                Connection::Net { net, .. } => Some(net),
+                Connection::Net { net, .. } => Some(net as usize),
                 _ => None,
             })
             .collect();
@@ -100,7 +100,7 @@ pub fn find(nl: &Netlist<'_>, cl: &Classified) -> Vec<Display> {
             Some(net) => nl.nets[*net]
                 .nodes
                 .iter()
-                .all(|node| node.component == Some(ci)),
+                .all(|node| node.component == Some(ci as u32)),
         });
         let vf = super::led_vf_by_colour(&text);
         out.push(Display {

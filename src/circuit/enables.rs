@@ -66,6 +66,7 @@ pub fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
         let Connection::Net { net, .. } = comp.pins[e].connection else {
             return Gate::Unknown;
         };
+        let net = net as usize;
         match cx.nets[net].rail {
             Some(r) => {
                 let high = !r.ground && r.volts.map_or(true, |v| v > 0.0);

@@ -485,10 +485,10 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let c = &self.nl.components[p.comp];
         match c.pins[p.pin].connection {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
-                self.nl.nets[net].nodes[node].span
+                self.nl.nets[net as usize].nodes[node as usize].span
             }
             Connection::Absent => match (c.libpart, c.pins[p.pin].libpin) {
-                (Some(lp), Some(li)) => self.nl.libparts[lp].pins[li].span,
+                (Some(lp), Some(li)) => self.nl.libparts[lp].pins[li as usize].span,
                 _ => c.reference.span,
             },
         }
@@ -586,6 +586,7 @@ pub fn build<'n, 'a>(
         for p in &c.pins {
             if p.ptype == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
                 if let Connection::Net { net, .. } = p.connection {
+                    let net = net as usize;
                     if rail[net].is_none() {
                         rail[net] = Some(Rail {
                             volts: None,
@@ -683,6 +684,7 @@ pub fn build<'n, 'a>(
             let Connection::Net { net, .. } = p.connection else {
                 continue;
             };
+            let net = net as usize;
             let at = PinRef { comp: ci, pin: pi };
             let role = roles[ci][pi];
             let symbol_only = part.role_source[pi] != RoleSource::Table;
@@ -989,8 +991,8 @@ fn resistor_elements(
         .iter()
         .enumerate()
         .filter_map(|(pi, p)| match p.connection {
-            Connection::Net { net, .. } => Some((pi, net)),
-            Connection::Alone { net, .. } if rail[net].is_some() => Some((pi, net)),
+            Connection::Net { net, .. } => Some((pi, net as usize)),
+            Connection::Alone { net, .. } if rail[net as usize].is_some() => Some((pi, net as usize)),
             _ => None,
         })
         .collect();
@@ -1441,12 +1443,12 @@ fn follow_to_ground<'n>(
         if nodes.len() != 2 {
             return None;
         }
-        let next = nodes.iter().find(|n| n.component != Some(cur.comp))?;
-        let ci = next.component?;
+        let next = nodes.iter().find(|n| n.component != Some(cur.comp as u32))?;
+        let ci = next.component? as usize;
         let pi = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num == next.pin.s)?;
+            .position(|p| p.num == next.pin)?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef { comp: ci, pin: pi };
         } else {

@@ -1,6 +1,6 @@
 //! Building the [`Netlist`] from a syntax tree.
 
-use std::borrow::Cow;
+use thin_vec::ThinVec;
 use std::cell::RefCell;
 
 use rustc_hash::FxHashMap as HashMap;
@@ -115,7 +115,7 @@ struct Builder<'t, 'a> {
 impl<'a> Builder<'_, 'a> {
     fn text(&self, id: NodeId) -> Option<Text<'a>> {
         Some(Text {
-            s: self.t.text(id)?,
+            s: self.t.text(id)?.into(),
             span: self.t.span(id),
         })
     }
@@ -210,17 +210,17 @@ impl<'a> Builder<'_, 'a> {
     fn component(&self, c: NodeId) -> Option<Component<'a>> {
         let mut comp = Component {
             reference: Text {
-                s: Cow::Borrowed(""),
+                s: Str::borrowed(""),
                 span: self.t.span(c),
             },
             value: None,
             footprint: None,
             datasheet: None,
-            fields: Vec::new(),
-            properties: Vec::new(),
+            fields: ThinVec::new(),
+            properties: ThinVec::new(),
             libsource: None,
             sheetpath: None,
-            tstamps: Vec::new(),
+            tstamps: ThinVec::new(),
             span: self.t.span(c),
             libpart: None,
             pins: Vec::new(),
@@ -402,7 +402,7 @@ impl<'a> Builder<'_, 'a> {
         let mut net = Net {
             code: None,
             name: Text {
-                s: Cow::Borrowed(""),
+                s: Str::borrowed(""),
                 span: self.t.span(c),
             },
             nodes: Vec::new(),
@@ -442,8 +442,8 @@ impl<'a> Builder<'_, 'a> {
                     match (reference, pin) {
                         (Some(reference), Some(pin)) => net.nodes.push(Node {
                             reference,
-                            pin,
-                            pinfunction,
+                            pin: pin.s,
+                            pinfunction: pinfunction.map(|f| f.s),
                             pintype,
                             no_connect,
                             span: self.t.span(n),

@@ -13,7 +13,7 @@ pub mod stream;
 mod ties;
 
 use rustc_hash::FxHashMap as HashMap;
-use std::borrow::Cow;
+use thin_vec::ThinVec;
 
 pub use build::build;
 pub use pintype::PinType;
@@ -22,10 +22,16 @@ pub use stream::read;
 use crate::diag::Diag;
 use crate::source::Span;
 
+/// A text of the model: borrowed from the file's text, or owned where unescaping or the
+/// schematic reader made a new one. Two words where `std::borrow::Cow` takes four: the
+/// model holds a few of them for every pin and node. Its lengths are 32-bit, as `Span`'s
+/// offsets are: both readers refuse a file of 1 GiB or more, so every text fits.
+pub type Str<'a> = beef::lean::Cow<'a, str>;
+
 /// A text value from the file (unescaped) with its span.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Text<'a> {
-    pub s: Cow<'a, str>,
+    pub s: Str<'a>,
     pub span: Span,
 }
 
@@ -89,10 +95,10 @@ pub struct SheetPath<'a> {
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Connection {
     /// On a net with at least one other pin.
-    Net { net: usize, node: usize },
+    Net { net: u32, node: u32 },
     /// Alone on a one-node net: placed but wired to nothing (`Net-(U5-Pad4)`,
     /// `unconnected-(U1-Pad4)`), or a label used once.
-    Alone { net: usize, node: usize },
+    Alone { net: u32, node: u32 },
     /// In the part's library pins but on no net at all: with KiCad 5, a gate unit (possibly
     /// the power unit) that was never placed.
     Absent,
@@ -101,7 +107,7 @@ pub enum Connection {
 impl Connection {
     pub fn net(self) -> Option<usize> {
         match self {
-            Connection::Net { net, .. } | Connection::Alone { net, .. } => Some(net),
+            Connection::Net { net, .. } | Connection::Alone { net, .. } => Some(net as usize),
             Connection::Absent => None,
         }
     }
@@ -114,17 +120,17 @@ impl Connection {
 /// One pin of a placed component, merged from its library part and the nets.
 #[derive(Debug, Clone)]
 pub struct CompPin<'a> {
-    pub num: Cow<'a, str>,
+    pub num: Str<'a>,
     /// The symbol's pin name (`~` or empty when unnamed), from the libpart or the node's
     /// `pinfunction`.
-    pub name: Option<Cow<'a, str>>,
+    pub name: Option<Str<'a>>,
     /// The symbol's pin type (the node's `pintype` when present, else the libpart's).
     pub ptype: PinType,
     /// The node's pintype carried `+no_connect`, or the symbol marks the pin no-connect.
     pub no_connect: bool,
     pub connection: Connection,
     /// Index into the libpart's pins.
-    pub libpin: Option<usize>,
+    pub libpin: Option<u32>,
 }
 
 #[derive(Debug, Clone)]
@@ -133,11 +139,11 @@ pub struct Component<'a> {
     pub value: Option<Text<'a>>,
     pub footprint: Option<Text<'a>>,
     pub datasheet: Option<Text<'a>>,
-    pub fields: Vec<Field<'a>>,
-    pub properties: Vec<Field<'a>>,
+    pub fields: ThinVec<Field<'a>>,
+    pub properties: ThinVec<Field<'a>>,
     pub libsource: Option<LibSource<'a>>,
     pub sheetpath: Option<SheetPath<'a>>,
-    pub tstamps: Vec<Text<'a>>,
+    pub tstamps: ThinVec<Text<'a>>,
     pub span: Span,
     /// The resolved library part (by lib and part, or through an alias).
     pub libpart: Option<usize>,
@@ -185,14 +191,15 @@ pub struct LibPart<'a> {
 #[derive(Debug, Clone)]
 pub struct Node<'a> {
     pub reference: Text<'a>,
-    pub pin: Text<'a>,
-    pub pinfunction: Option<Text<'a>>,
+    /// The pin number (no span of its own: a diagnostic about a pin points at its node).
+    pub pin: Str<'a>,
+    pub pinfunction: Option<Str<'a>>,
     pub pintype: Option<PinType>,
     /// The node's pintype ended in `+no_connect`.
     pub no_connect: bool,
     pub span: Span,
     /// The component this node names, if it exists.
-    pub component: Option<usize>,
+    pub component: Option<u32>,
 }
 
 #[derive(Debug, Clone)]
@@ -218,8 +225,8 @@ pub struct Netlist<'a> {
     pub diagnostics: Vec<Diag>,
     pub span: Span,
     /// Keys borrow the file's text (an escaped name holds its own copy).
-    by_ref: HashMap<Cow<'a, str>, usize>,
-    by_net_name: HashMap<Cow<'a, str>, usize>,
+    by_ref: HashMap<Str<'a>, usize>,
+    by_net_name: HashMap<Str<'a>, usize>,
 }
 
 /// Counts for the per-file summary.

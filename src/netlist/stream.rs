@@ -8,9 +8,8 @@
 //! `libraries` or a section a newer KiCad adds, is passed over by counting its depth, and
 //! none of its contents is kept. Nothing recurses, and no input makes it panic.
 
-use std::borrow::Cow;
-
 use rustc_hash::FxHashMap as HashMap;
+use thin_vec::ThinVec;
 
 use super::*;
 use crate::sexpr::{bom_len, errors, unescape, MAX_DEPTH};
@@ -273,8 +272,8 @@ struct LibPartAcc<'a> {
 #[derive(Default)]
 struct NodeAcc<'a> {
     reference: Option<Text<'a>>,
-    pin: Option<Text<'a>>,
-    pinfunction: Option<Text<'a>>,
+    pin: Option<Str<'a>>,
+    pinfunction: Option<Str<'a>>,
     pintype: Option<PinType>,
     no_connect: bool,
 }
@@ -283,17 +282,17 @@ fn empty_component<'a>() -> Component<'a> {
     let span = Span { start: 0, end: 0 };
     Component {
         reference: Text {
-            s: Cow::Borrowed(""),
+            s: Str::borrowed(""),
             span,
         },
         value: None,
         footprint: None,
         datasheet: None,
-        fields: Vec::new(),
-        properties: Vec::new(),
+        fields: ThinVec::new(),
+        properties: ThinVec::new(),
         libsource: None,
         sheetpath: None,
-        tstamps: Vec::new(),
+        tstamps: ThinVec::new(),
         span,
         libpart: None,
         pins: Vec::new(),
@@ -328,6 +327,12 @@ struct Reader<'a> {
     net: Net<'a>,
     have_name: bool,
     node: NodeAcc<'a>,
+    /// The open component's and net's lists, gathered here and moved into the model with
+    /// one allocation of their exact length when the list closes (no growing, no trimming).
+    fields: Vec<Field<'a>>,
+    properties: Vec<Field<'a>>,
+    tstamps: Vec<Text<'a>>,
+    nodes: Vec<Node<'a>>,
 }
 
 impl<'a> Reader<'a> {
@@ -374,7 +379,7 @@ impl<'a> Reader<'a> {
             net: Net {
                 code: None,
                 name: Text {
-                    s: Cow::Borrowed(""),
+                    s: Str::borrowed(""),
                     span,
                 },
                 nodes: Vec::new(),
@@ -382,6 +387,10 @@ impl<'a> Reader<'a> {
             },
             have_name: false,
             node: NodeAcc::default(),
+            fields: Vec::new(),
+            properties: Vec::new(),
+            tstamps: Vec::new(),
+            nodes: Vec::new(),
         }
     }
 
@@ -389,9 +398,9 @@ impl<'a> Reader<'a> {
     fn text_of(&self, start: usize, end: usize, tok: Tok) -> Text<'a> {
         let t = self.text;
         let s = match tok {
-            Tok::Atom => Cow::Borrowed(&t[start..end]),
-            Tok::Str => Cow::Borrowed(&t[start + 1..end - 1]),
-            Tok::Escaped => unescape(&t[start + 1..end - 1]),
+            Tok::Atom => Str::borrowed(&t[start..end]),
+            Tok::Str => Str::borrowed(&t[start + 1..end - 1]),
+            Tok::Escaped => unescape(&t[start + 1..end - 1]).into(),
         };
         Text {
             s,
@@ -523,6 +532,9 @@ impl<'a> Reader<'a> {
             (Role::TitleBlock, "rev") => value(self, Slot::Rev),
             (Role::Components, "comp") => {
                 self.comp = empty_component();
+                self.fields.clear();
+                self.properties.clear();
+                self.tstamps.clear();
                 self.have_ref = false;
                 Role::Comp
             }
@@ -584,12 +596,13 @@ impl<'a> Reader<'a> {
                 self.net = Net {
                     code: None,
                     name: Text {
-                        s: Cow::Borrowed(""),
+                        s: Str::borrowed(""),
                         span,
                     },
                     nodes: Vec::new(),
                     span,
                 };
+                self.nodes.clear();
                 self.have_name = false;
                 Role::Net
             }
@@ -634,7 +647,7 @@ impl<'a> Reader<'a> {
             Slot::Datasheet => self.comp.datasheet = v,
             Slot::Tstamp => {
                 if let Some(v) = v {
-                    self.comp.tstamps.push(v);
+                    self.tstamps.push(v);
                 }
             }
             Slot::FieldName => self.field_name = v,
@@ -673,8 +686,8 @@ impl<'a> Reader<'a> {
                 }
             }
             Slot::NodeRef => self.node.reference = v,
-            Slot::NodePin => self.node.pin = v,
-            Slot::NodeFunction => self.node.pinfunction = v,
+            Slot::NodePin => self.node.pin = v.map(|t| t.s),
+            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.s),
             Slot::NodeType => {
                 if let Some(v) = v {
                     let (t, nc) = PinType::parse(v.as_str());
@@ -776,9 +789,9 @@ impl<'a> Reader<'a> {
             return;
         }
         comp.span = span;
-        comp.tstamps.shrink_to_fit();
-        comp.fields.shrink_to_fit();
-        comp.properties.shrink_to_fit();
+        comp.tstamps = self.tstamps.drain(..).collect();
+        comp.fields = self.fields.drain(..).collect();
+        comp.properties = self.properties.drain(..).collect();
         self.nl.components.push(comp);
     }
 
@@ -800,8 +813,8 @@ impl<'a> Reader<'a> {
         };
         let f = Field { name, value, span };
         match owner {
-            Owner::CompField => self.comp.fields.push(f),
-            Owner::CompProperty => self.comp.properties.push(f),
+            Owner::CompField => self.fields.push(f),
+            Owner::CompProperty => self.properties.push(f),
             Owner::LibPart => self.libpart.fields.push(f),
         }
     }
@@ -837,7 +850,7 @@ impl<'a> Reader<'a> {
             Net {
                 code: None,
                 name: Text {
-                    s: Cow::Borrowed(""),
+                    s: Str::borrowed(""),
                     span,
                 },
                 nodes: Vec::new(),
@@ -860,14 +873,21 @@ impl<'a> Reader<'a> {
                 .at(span, "no name"),
             );
         }
-        net.nodes.shrink_to_fit();
+        net.nodes = if self.nodes.len() <= 256 {
+            self.nodes.drain(..).collect()
+        } else {
+            // a large net is moved out and trimmed where it lies, never held twice
+            let mut nodes = std::mem::take(&mut self.nodes);
+            nodes.shrink_to_fit();
+            nodes
+        };
         self.nl.nets.push(net);
     }
 
     fn end_node(&mut self, span: Span) {
         let nd = std::mem::take(&mut self.node);
         match (nd.reference, nd.pin) {
-            (Some(reference), Some(pin)) => self.net.nodes.push(Node {
+            (Some(reference), Some(pin)) => self.nodes.push(Node {
                 reference,
                 pin,
                 pinfunction: nd.pinfunction,
@@ -956,9 +976,9 @@ pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag
 fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
     for net in &mut nl.nets {
         for nd in &mut net.nodes {
-            if nd.pin.s.trim().is_empty() {
-                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.s.trim().is_empty()) {
-                    nd.pin.s = f.s.clone();
+            if nd.pin.trim().is_empty() {
+                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.trim().is_empty()) {
+                    nd.pin = f.clone();
                 }
             }
         }
@@ -976,7 +996,7 @@ fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
 
 fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
-    let mut by_ref: HashMap<Cow<'a, str>, usize> =
+    let mut by_ref: HashMap<Str<'a>, usize> =
         HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
     for (i, c) in nl.components.iter().enumerate() {
         if let Some(&first) = by_ref.get(c.reference.as_str()) {
@@ -1049,7 +1069,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
     let mut codes: HashMap<&str, usize> =
         HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
-    let mut entries: Vec<(u32, u32, u32)> = Vec::new(); // (component, net, node)
+    // (component, net, node)
+    let mut entries: Vec<(u32, u32, u32)> =
+        Vec::with_capacity(nl.nets.iter().map(|n| n.nodes.len()).sum());
     for (ni, net) in nl.nets.iter_mut().enumerate() {
         if let Some(code) = &net.code {
             if let Some(&first) = codes.get(code.as_str()) {
@@ -1073,7 +1095,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         for (k, node) in net.nodes.iter_mut().enumerate() {
             match by_ref.get(node.reference.as_str()) {
                 Some(&ci) => {
-                    node.component = Some(ci);
+                    node.component = Some(ci as u32);
                     entries.push((ci as u32, ni as u32, k as u32));
                 }
                 None => diags.push(
@@ -1094,10 +1116,10 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
 
     // Pin numbers as integers: each distinct pin text gets its rank in text order, so
     // sorting by rank sorts exactly as comparing the texts would.
-    let mut pin_ids: HashMap<Cow<'a, str>, u32> = HashMap::default();
+    let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
     let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
     for &(_, ni, k) in &entries {
-        let pin = &nl.nets[ni as usize].nodes[k as usize].pin.s;
+        let pin = &nl.nets[ni as usize].nodes[k as usize].pin;
         let next = pin_ids.len() as u32;
         let id = match pin_ids.get(pin.as_ref()) {
             Some(&id) => id,
@@ -1281,7 +1303,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                             continue; // stacked pins listed twice
                         }
                         used[i] = true;
-                        connection(nets, mine[i].1 as usize, mine[i].2 as usize)
+                        connection(nets, mine[i].1, mine[i].2)
                     }
                     None => Connection::Absent,
                 };
@@ -1295,7 +1317,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     }
                     no_connect |= nd.no_connect;
                     if name.is_none() {
-                        name = nd.pinfunction.as_ref().map(|f| f.s.clone());
+                        name = nd.pinfunction.clone();
                     }
                 }
                 pins.push(CompPin {
@@ -1304,7 +1326,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     ptype,
                     no_connect,
                     connection,
-                    libpin: Some(pi),
+                    libpin: Some(pi as u32),
                 });
             }
         }
@@ -1315,11 +1337,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
             let node = &nets[e.1 as usize].nodes[e.2 as usize];
             pins.push(CompPin {
-                num: node.pin.s.clone(),
-                name: node.pinfunction.as_ref().map(|f| f.s.clone()),
+                num: node.pin.clone(),
+                name: node.pinfunction.clone(),
                 ptype: node.pintype.unwrap_or(PinType::Unknown),
                 no_connect: node.no_connect,
-                connection: connection(nets, e.1 as usize, e.2 as usize),
+                connection: connection(nets, e.1, e.2),
                 libpin: None,
             });
         }
@@ -1329,8 +1351,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     nl.by_net_name = by_net_name;
 }
 
-fn connection(nets: &[Net<'_>], net: usize, node: usize) -> Connection {
-    if nets[net].nodes.len() > 1 {
+fn connection(nets: &[Net<'_>], net: u32, node: u32) -> Connection {
+    if nets[net as usize].nodes.len() > 1 {
         Connection::Net { net, node }
     } else {
         Connection::Alone { net, node }

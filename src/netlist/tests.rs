@@ -202,3 +202,44 @@ fn a_root_that_is_not_export_is_refused() {
     assert_eq!(e.code, "not-a-netlist");
     assert!(e.message.contains("`(foo ...)`"));
 }
+
+/// The model holds several of these for every pin, node and part of a board: a bound that
+/// fails when a field grows them back (sizes on a 64-bit target).
+#[test]
+#[cfg(target_pointer_width = "64")]
+fn model_items_stay_small() {
+    use std::mem::size_of;
+    assert!(size_of::<Str<'_>>() <= 16, "Str: {}", size_of::<Str<'_>>());
+    assert!(size_of::<Text<'_>>() <= 24, "Text: {}", size_of::<Text<'_>>());
+    assert!(size_of::<Option<Text<'_>>>() <= 24);
+    assert!(size_of::<Connection>() <= 12, "Connection: {}", size_of::<Connection>());
+    assert!(size_of::<CompPin<'_>>() <= 56, "CompPin: {}", size_of::<CompPin<'_>>());
+    assert!(size_of::<Node<'_>>() <= 80, "Node: {}", size_of::<Node<'_>>());
+    assert!(size_of::<Component<'_>>() <= 304, "Component: {}", size_of::<Component<'_>>());
+    assert!(size_of::<Net<'_>>() <= 80, "Net: {}", size_of::<Net<'_>>());
+}
+
+/// A text borrows the file where it is written as it reads, and owns its value only where
+/// unescaping changed it; both readers agree on the value.
+#[test]
+fn texts_borrow_the_file_unless_unescaped() {
+    let text = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74HC\"00\"")))
+  (nets (net (code "1") (name "A\\B") (node (ref "U1") (pin "1")))))"#;
+    for nl in [read(text), super::read(text).unwrap()] {
+        let c = &nl.components[0];
+        assert!(c.reference.s.is_borrowed());
+        assert_eq!(c.reference.as_str(), "U1");
+        let v = c.value.as_ref().unwrap();
+        assert!(!v.s.is_borrowed());
+        assert_eq!(v.as_str(), "74HC\"00\"");
+        assert_eq!(&text[v.span.range()], r#""74HC\"00\"""#);
+        assert_eq!(nl.nets[0].name.as_str(), "A\\B");
+        assert_eq!(nl.net_by_name("A\\B"), Some(0));
+        assert_eq!(nl.component("U1"), Some(0));
+        assert_eq!(c.pins[0].num, "1");
+        assert_eq!(c.pins[0].connection, Connection::Alone { net: 0, node: 0 });
+        assert_eq!(nl.nets[0].nodes[0].component, Some(0));
+    }
+}

@@ -91,14 +91,17 @@ pub fn join_net_ties(nl: &mut Netlist<'_>) {
     for c in &mut nl.components {
         for p in &mut c.pins {
             let (net, node) = match p.connection {
-                Connection::Net { net, node } | Connection::Alone { net, node } => (net, node),
+                Connection::Net { net, node } | Connection::Alone { net, node } => {
+                    (net as usize, node as usize)
+                }
                 Connection::Absent => continue,
             };
             let (net, node) = match moved_to[net] {
                 Some((r, base)) => (r, node + base),
                 None => (net, node),
             };
-            p.connection = if nets[net].nodes.len() > 1 {
+            let (net, node) = (net as u32, node as u32);
+            p.connection = if nets[net as usize].nodes.len() > 1 {
                 Connection::Net { net, node }
             } else {
                 Connection::Alone { net, node }

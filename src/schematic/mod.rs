@@ -26,6 +26,7 @@ pub mod symbol;
 use std::borrow::Cow;
 
 use rustc_hash::FxHashMap as HashMap;
+use thin_vec::ThinVec;
 
 use crate::diag::Diag;
 use crate::netlist::{
@@ -55,7 +56,10 @@ pub fn is_sheet(text: &str) -> bool {
 }
 
 fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
-    Text { s: s.into(), span }
+    Text {
+        s: s.into().into(),
+        span,
+    }
 }
 
 /// One placed symbol in one use of a sheet, with its instance data resolved.
@@ -618,9 +622,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             net.nodes.push(Node {
                 reference: txt(pl.reference.clone(), pl.reference_span),
-                pin: txt(lp.num.clone(), span),
+                pin: lp.num.clone().into(),
                 pinfunction: (!lp.name.is_empty() && lp.name != "~")
-                    .then(|| txt(lp.name.clone(), lp.span)),
+                    .then(|| lp.name.clone().into()),
                 pintype: Some(lp.ptype),
                 no_connect: nc || lp.ptype == PinType::NoConnect,
                 span,
@@ -634,13 +638,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
-    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.s.to_string());
+    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.to_string());
     for n in &mut nets {
         n.nodes.sort_by(|a, b| {
-            (&a.reference.s, &a.pin.s, fname(a)).cmp(&(&b.reference.s, &b.pin.s, fname(b)))
+            (&a.reference.s, &a.pin, fname(a)).cmp(&(&b.reference.s, &b.pin, fname(b)))
         });
         n.nodes
-            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin.s == b.pin.s);
+            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin == b.pin);
     }
 
     // components (one per reference, units merged) and library parts, as KiCad lists
@@ -699,7 +703,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 lib_of.insert(key, libparts.len());
                 let mut pins: Vec<ModelLibPin<'_>> = Vec::new();
                 for lp in pl.lib.pins.iter().filter(|p| p.style <= 1) {
-                    if pins.iter().any(|q| q.num.s == lp.num) {
+                    if pins.iter().any(|q| *q.num.s == *lp.num) {
                         continue;
                     }
                     pins.push(ModelLibPin {
@@ -761,13 +765,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 fields,
                 // as KiCad 8 and later write it in a netlist: `(property (name "dnp"))`
                 properties: if placed.dnp {
-                    vec![Field {
+                    thin_vec::thin_vec![Field {
                         name: txt("dnp", placed.span),
                         value: None,
                         span: placed.span,
                     }]
                 } else {
-                    Vec::new()
+                    ThinVec::new()
                 },
                 libsource: Some(LibSource {
                     lib: Some(txt(lib.to_string(), placed.lib_key_span)),
@@ -778,7 +782,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     names: Some(txt(u.path.clone(), placed.span)),
                     tstamps: None,
                 }),
-                tstamps: vec![txt(placed.uuid.clone(), placed.span)],
+                tstamps: thin_vec::thin_vec![txt(placed.uuid.clone(), placed.span)],
                 span: placed.span,
                 libpart: None,
                 pins: Vec::new(),
