@@ -2,9 +2,10 @@
 //! `docs/json-format.md`; `format_version` changes when a field changes meaning or goes away
 //! (new fields may be added without a change).
 //!
-//! serde_json escapes the C0 controls; [`escape_unsafe`] then escapes what it leaves raw and
-//! a terminal could still act on (DEL, C1 controls, bidi overrides, line and paragraph
-//! separators), so the document can be shown on a terminal as it is and reads back the same.
+//! serde_json escapes the C0 controls; [`SafePretty`] then escapes, as it writes each string,
+//! what serde_json leaves raw and a terminal could still act on (DEL, C1 controls, bidi
+//! overrides, line and paragraph separators; [`escape_unsafe`] does the same to a whole text),
+//! so the document can be shown on a terminal as it is and reads back the same.
 
 use std::io::{self, Write};
 
