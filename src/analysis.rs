@@ -54,8 +54,9 @@ pub struct Settings {
     /// The configuration file used, if any.
     pub config_path: Option<PathBuf>,
     pub config: Option<Config>,
-    /// The shipped rules with the project's mapping files over them.
-    pub rules: Rules,
+    /// The shipped rules with the project's mapping files over them (borrowed from
+    /// [`Rules::shipped`] when there are none).
+    pub rules: std::borrow::Cow<'static, Rules>,
     pub run: RunOptions,
     /// The waivers in force (from the configuration).
     pub waivers: Vec<Waiver>,
@@ -125,7 +126,7 @@ impl Settings {
         Settings {
             config_path: None,
             config: None,
-            rules: Rules::builtin(),
+            rules: std::borrow::Cow::Borrowed(Rules::shipped()),
             run: run_options(None, over, read),
             waivers: Vec::new(),
         }
@@ -136,7 +137,7 @@ impl Settings {
         Settings {
             config_path: None,
             config: None,
-            rules,
+            rules: std::borrow::Cow::Owned(rules),
             run,
             waivers: Vec::new(),
         }
@@ -159,7 +160,7 @@ impl Settings {
             run: run_options(Some(&config), over, read),
             waivers: config.waivers.clone(),
             config: Some(config),
-            rules,
+            rules: std::borrow::Cow::Owned(rules),
         })
     }
 

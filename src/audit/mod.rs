@@ -425,7 +425,7 @@ pub fn gather(source: &SourceFile, rules: &Rules, opts: &AuditOptions) -> Result
     let settings = Settings {
         config_path: opts.config.as_ref().map(PathBuf::from),
         config: None,
-        rules: rules.clone(),
+        rules: std::borrow::Cow::Owned(rules.clone()),
         run: opts.run.clone(),
         waivers: opts.waivers.clone(),
     };

@@ -33,6 +33,14 @@ pub struct Rules {
 }
 
 impl Rules {
+    /// The shipped tables, decoded once per process on first use and never freed: a run
+    /// with no project mapping files borrows them (settings hold a `Cow`), so neither a
+    /// second decoding nor freeing them at exit is paid.
+    pub fn shipped() -> &'static Rules {
+        static SHIPPED: std::sync::OnceLock<Rules> = std::sync::OnceLock::new();
+        SHIPPED.get_or_init(Rules::builtin)
+    }
+
     /// The shipped tables, embedded in the binary.
     pub fn builtin() -> Rules {
         Rules {

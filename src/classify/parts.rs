@@ -119,7 +119,83 @@ impl PartEntry {
 #[derive(Debug, Clone, Default, serde::Serialize, serde::Deserialize)]
 #[serde(bound(deserialize = "'de: 'static"))]
 pub struct PartTable {
+    /// Change it only through [`PartTable::parse`] and [`PartTable::merge_over`]: the index
+    /// below is built from it on first use.
     pub entries: Vec<PartEntry>,
+    /// Which entries a value can match, by the value's first letter; built on first use.
+    #[serde(skip)]
+    index: std::sync::OnceLock<FirstLetters>,
+}
+
+/// The entries whose globs a value can match, told by the value's first byte: a glob that
+/// begins with an ASCII letter or digit takes only values that begin with it (in either
+/// case); any other glob (`*`, `?`, a non-ASCII letter) may take any value.
+#[derive(Debug, Clone, Default)]
+struct FirstLetters {
+    /// For each lower-case ASCII byte, the entries with a glob that begins with it, in
+    /// entry order; an entry that may take any value is not repeated here.
+    by_byte: Vec<Vec<u32>>,
+    /// The entries with a glob that may take a value beginning with anything, in order.
+    any: Vec<u32>,
+}
+
+impl FirstLetters {
+    fn of(entries: &[PartEntry]) -> FirstLetters {
+        let mut t = FirstLetters {
+            by_byte: vec![Vec::new(); 128],
+            any: Vec::new(),
+        };
+        for (i, e) in entries.iter().enumerate() {
+            let i = i as u32;
+            let fixed: Option<Vec<u8>> = e
+                .values
+                .iter()
+                .map(|g| match g.as_bytes().first() {
+                    Some(&b) if b.is_ascii() && b != b'*' && b != b'?' => {
+                        Some(b.to_ascii_lowercase())
+                    }
+                    _ => None,
+                })
+                .collect();
+            match fixed {
+                Some(bytes) => {
+                    for b in bytes {
+                        let list = &mut t.by_byte[b as usize];
+                        if list.last() != Some(&i) {
+                            list.push(i);
+                        }
+                    }
+                }
+                None => t.any.push(i),
+            }
+        }
+        t
+    }
+
+    /// The entries that may match `value` (trimmed), in entry order; `None` when every
+    /// entry may (a value that is empty or begins with a non-ASCII letter).
+    fn candidates(&self, value: &str) -> Option<impl Iterator<Item = usize> + '_> {
+        let b = *value.as_bytes().first()?;
+        if !b.is_ascii() {
+            return None;
+        }
+        let (mut a, mut b) = (
+            self.by_byte[b.to_ascii_lowercase() as usize]
+                .iter()
+                .peekable(),
+            self.any.iter().peekable(),
+        );
+        // the two lists are sorted and disjoint: merge them in order
+        Some(std::iter::from_fn(move || {
+            let next = match (a.peek(), b.peek()) {
+                (Some(&&x), Some(&&y)) if x < y => a.next(),
+                (Some(_), Some(_)) => b.next(),
+                (Some(_), None) => a.next(),
+                (None, _) => b.next(),
+            };
+            next.map(|&i| i as usize)
+        }))
+    }
 }
 
 #[derive(Deserialize)]
@@ -212,7 +288,10 @@ impl PartTable {
             });
         }
         if errors.is_empty() {
-            Ok(PartTable { entries })
+            Ok(PartTable {
+                entries,
+                index: Default::default(),
+            })
         } else {
             Err(errors)
         }
@@ -223,13 +302,12 @@ impl PartTable {
         let mut e = over.entries;
         e.append(&mut self.entries);
         self.entries = e;
+        self.index = Default::default();
     }
 
     pub fn find(&self, value: &str) -> Option<(usize, &PartEntry)> {
-        self.entries
-            .iter()
-            .enumerate()
-            .find(|(_, e)| e.matches(value))
+        let i = self.matching(value).next()?.0;
+        Some((i, &self.entries[i]))
     }
 
     /// Every entry whose globs take `value`, in order: the first that also fits the symbol
@@ -239,10 +317,15 @@ impl PartTable {
         &'a self,
         value: &'a str,
     ) -> impl Iterator<Item = (usize, &'a PartEntry)> + 'a {
-        self.entries
-            .iter()
-            .enumerate()
-            .filter(move |(_, e)| e.matches(value))
+        let index = self.index.get_or_init(|| FirstLetters::of(&self.entries));
+        let value = value.trim();
+        let some: Option<Box<dyn Iterator<Item = usize> + 'a>> = match index.candidates(value) {
+            Some(c) => Some(Box::new(c)),
+            None => None,
+        };
+        some.unwrap_or_else(|| Box::new(0..self.entries.len()))
+            .map(|i| (i, &self.entries[i]))
+            .filter(move |(_, e)| e.values.iter().any(|g| glob_match(g, value)))
     }
 }
 
@@ -335,6 +418,56 @@ mod tests {
         assert!(glob_match("µ*Ω", "µ10kΩ"));
         assert!(!glob_match("µ*Ω", "µ10k"));
         assert!(glob_match("ÄB*", "äbc"));
+    }
+
+    /// Every entry a linear scan of all globs finds, in the same order.
+    fn scan<'a>(t: &'a PartTable, value: &str) -> Vec<usize> {
+        let v = value.trim();
+        (0..t.entries.len())
+            .filter(|&i| t.entries[i].values.iter().any(|g| glob_match(g, v)))
+            .collect()
+    }
+
+    #[test]
+    fn the_first_letter_index_finds_what_a_scan_of_every_glob_finds() {
+        let mut t = PartTable::builtin();
+        // values made from the shipped globs themselves (wildcards filled in, case turned),
+        // and values no glob begins with
+        let mut values: Vec<String> = t
+            .entries
+            .iter()
+            .flat_map(|e| e.values.iter())
+            .flat_map(|g| {
+                let filled = g.replace('*', "12").replace('?', "7");
+                [filled.to_lowercase(), format!("  {filled} "), g.to_string()]
+            })
+            .collect();
+        values.extend(
+            [
+                "", " ", "µ10k", "Ä1", "74LS00", "z80", "*", "?", "lm358n", "osc4mhz",
+            ]
+            .map(String::from),
+        );
+        let mut found = 0;
+        for v in &values {
+            let got: Vec<usize> = t.matching(v).map(|(i, _)| i).collect();
+            assert_eq!(got, scan(&t, v), "{v:?}");
+            found += got.len();
+        }
+        assert!(found > t.entries.len(), "the values match entries: {found}");
+        // a project entry merged over the shipped ones is found first (the index is rebuilt)
+        let project = PartTable::parse(
+            "[[part]]\nvalues = [\"lm358*\", \"*X*\"]\nkind = \"not-logic\"\n",
+            false,
+        )
+        .unwrap();
+        t.merge_over(project);
+        for v in &values {
+            let got: Vec<usize> = t.matching(v).map(|(i, _)| i).collect();
+            assert_eq!(got, scan(&t, v), "{v:?}");
+        }
+        assert_eq!(t.find("LM358N").map(|(i, _)| i), Some(0));
+        assert_eq!(t.find("ax1").map(|(i, _)| i), Some(0));
     }
 
     #[test]
