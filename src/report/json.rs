@@ -2,10 +2,10 @@
 //! `docs/json-format.md`; `format_version` changes when a field changes meaning or goes away
 //! (new fields may be added without a change).
 //!
-//! serde_json escapes the C0 controls; [`SafePretty`] then escapes, as it writes each string,
-//! what serde_json leaves raw and a terminal could still act on (DEL, C1 controls, bidi
-//! overrides, line and paragraph separators; [`escape_unsafe`] does the same to a whole text),
-//! so the document can be shown on a terminal as it is and reads back the same.
+//! serde_json escapes the C0 controls; [`escape_unsafe`] then escapes what it leaves raw and
+//! a terminal could still act on (DEL, C1 controls, bidi overrides, line and paragraph
+//! separators), so the document can be shown on a terminal as it is and reads back the same.
+//! The escape is applied to the text on its way out ([`write_safe_pretty`]).
 
 use std::io::{self, Write};
 
@@ -330,38 +330,17 @@ fn unsafe_at(text: &[u8]) -> impl Iterator<Item = (usize, Option<char>)> + '_ {
     })
 }
 
-/// Whether every byte is ASCII below DEL, where [`needs_escape`] finds nothing. Eight bytes
-/// at a time: a byte's top bit is set in `b | ((b & 0x7f) + 1)` exactly when `b >= 0x7f`,
-/// and `(b & 0x7f) + 1` never carries into the next byte.
-fn below_del(bytes: &[u8]) -> bool {
-    const LOW: u64 = u64::from_ne_bytes([0x7f; 8]);
-    const ONE: u64 = u64::from_ne_bytes([0x01; 8]);
-    const TOP: u64 = u64::from_ne_bytes([0x80; 8]);
-    let mut words = bytes.chunks_exact(8);
-    let mut m = 0u64;
-    for w in &mut words {
-        let w = u64::from_ne_bytes(w.try_into().expect("eight bytes"));
-        m |= w | ((w & LOW) + ONE);
-    }
-    let rest = words
-        .remainder()
-        .iter()
-        .fold(0u8, |m, &b| m | b | (b & 0x7f).wrapping_add(1));
-    m & TOP == 0 && rest & 0x80 == 0
-}
-
-/// serde_json's pretty layout (objects and arrays over lines, two spaces a level), written
-/// for a terminal: every string's text gets [`escape_unsafe`]'s escapes as it is written, so a
-/// document is escaped on the way out, never held whole. A line break and its indent go out
-/// in one write. The text is the same as `escape_unsafe(to_string_pretty(..))`.
-pub(crate) struct SafePretty {
+/// serde_json's pretty layout (objects and arrays over lines, two spaces a level), with each
+/// line break and its indent written at once (serde_json's own writes the indent a level at a
+/// time).
+pub(crate) struct Pretty {
     depth: usize,
     has_value: bool,
 }
 
-impl SafePretty {
-    pub(crate) fn new() -> SafePretty {
-        SafePretty {
+impl Pretty {
+    pub(crate) fn new() -> Pretty {
+        Pretty {
             depth: 0,
             has_value: false,
         }
@@ -392,24 +371,7 @@ impl SafePretty {
     }
 }
 
-impl serde_json::ser::Formatter for SafePretty {
-    fn write_string_fragment<W: ?Sized + Write>(&mut self, w: &mut W, text: &str) -> io::Result<()> {
-        // serde_json cuts a string only at ASCII characters it escapes: a fragment holds
-        // whole characters
-        let bytes = text.as_bytes();
-        if below_del(bytes) {
-            return w.write_all(bytes);
-        }
-        let mut from = 0;
-        for (i, c) in unsafe_at(bytes) {
-            let Some(c) = c else { break };
-            w.write_all(&bytes[from..i])?;
-            write!(w, "\\u{:04x}", c as u32)?;
-            from = i + c.len_utf8();
-        }
-        w.write_all(&bytes[from..])
-    }
-
+impl serde_json::ser::Formatter for Pretty {
     fn begin_array<W: ?Sized + Write>(&mut self, w: &mut W) -> io::Result<()> {
         self.depth += 1;
         self.has_value = false;
@@ -453,17 +415,79 @@ impl serde_json::ser::Formatter for SafePretty {
     }
 }
 
-/// Writes `value` to `out` in [`SafePretty`]'s layout, with a final line end.
+/// A writer that passes UTF-8 text on with [`escape_unsafe`]'s escapes, so a document is
+/// escaped as it is written, never held whole. A character cut between two writes is kept
+/// until the rest of it comes.
+struct Escaping<'w> {
+    out: &'w mut dyn Write,
+    /// The start of a character a write ended inside.
+    pending: Vec<u8>,
+}
+
+impl Escaping<'_> {
+    /// Writes `text`, escaped; keeps a cut character at its end for the next write.
+    fn pass(&mut self, text: &[u8]) -> io::Result<()> {
+        let mut from = 0;
+        for (i, c) in unsafe_at(text) {
+            self.out.write_all(&text[from..i])?;
+            match c {
+                Some(c) => {
+                    write!(self.out, "\\u{:04x}", c as u32)?;
+                    from = i + c.len_utf8();
+                }
+                None => {
+                    self.pending.extend_from_slice(&text[i..]);
+                    return Ok(());
+                }
+            }
+        }
+        self.out.write_all(&text[from..])
+    }
+
+    /// Writes what is left and the final line end.
+    fn finish(self) -> io::Result<()> {
+        self.out.write_all(&self.pending)?;
+        self.out.write_all(b"\n")
+    }
+}
+
+impl Write for Escaping<'_> {
+    fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
+        if self.pending.is_empty() {
+            self.pass(buf)?;
+        } else {
+            let mut joined = std::mem::take(&mut self.pending);
+            joined.extend_from_slice(buf);
+            self.pass(&joined)?;
+        }
+        Ok(buf.len())
+    }
+
+    fn flush(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+}
+
+/// Writes `value` to `out` in [`Pretty`]'s layout, escaped on the way (the text is
+/// `escape_unsafe(to_string_pretty(value))`), with a final line end. The document is never
+/// held whole.
 pub(crate) fn write_safe_pretty<T: Serialize + ?Sized>(
     value: &T,
     out: &mut dyn Write,
 ) -> io::Result<()> {
-    // serde_json writes in small pieces: they are gathered here before `out`
-    let mut w = io::BufWriter::with_capacity(1 << 16, out);
-    let mut ser = serde_json::Serializer::with_formatter(&mut w, SafePretty::new());
+    // serde_json writes in small pieces: the escape looks at them in large ones
+    let mut w = io::BufWriter::with_capacity(
+        1 << 16,
+        Escaping {
+            out,
+            pending: Vec::new(),
+        },
+    );
+    let mut ser = serde_json::Serializer::with_formatter(&mut w, Pretty::new());
     value.serialize(&mut ser).map_err(io::Error::from)?;
-    w.write_all(b"\n")?;
-    w.flush()
+    w.into_inner()
+        .map_err(io::IntoInnerError::into_error)?
+        .finish()
 }
 
 /// The document as text, with a final line end.
@@ -519,18 +543,32 @@ mod tests {
         assert!(!want.contains('\u{2069}') && want.contains("\\u2069"));
     }
 
+    /// The writer escapes as the whole-text escape does, however the text is cut into
+    /// writes (here one byte at a time, so every character of more than one byte is cut).
     #[test]
-    fn below_del_is_true_only_for_ascii_below_del() {
-        assert!(below_del(b"") && below_del(b"plain text, 0x7e ~"));
-        assert!(below_del(&(0..0x7fu8).collect::<Vec<_>>()));
-        for b in 0x7f..=0xffu8 {
-            // in a whole word and in the tail, at every place in a word
-            for at in [0, 3, 7, 33, 39] {
-                let mut v = vec![0x7e; 40];
-                v[at] = b;
-                assert!(!below_del(&v), "byte {b:#x} at {at}");
+    fn the_streaming_escape_equals_the_whole_text_escape() {
+        let s = "x\u{7f}µ\u{9b}\u{202e}Ω\u{2028}\u{2066}\u{2069}\u{2070}é\u{a0}";
+        let json = serde_json::to_string(s).unwrap();
+        for chunk in [1, 2, 3, json.len()] {
+            let mut out = Vec::new();
+            let mut w = Escaping {
+                out: &mut out,
+                pending: Vec::new(),
+            };
+            for part in json.as_bytes().chunks(chunk) {
+                w.write_all(part).unwrap();
             }
+            w.finish().unwrap();
+            let want = escape_unsafe(json.clone()) + "\n";
+            assert_eq!(
+                String::from_utf8(out).unwrap(),
+                want,
+                "writes of {chunk} bytes"
+            );
         }
+        // U+2070 and U+00A0 start with the bytes looked at but are left as they are
+        assert!(escape_unsafe(json.clone()).contains("\u{2070}é\u{a0}"));
+        assert!(!escape_unsafe(json).contains('\u{2069}'));
     }
 
     #[test]
