@@ -236,13 +236,10 @@ fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
             File {
                 path: &f.name,
                 checked,
-                error: f
-                    .fatal
-                    .as_ref()
-                    .map(|d| {
-                        let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
-                        finding(d, src.map(SourceFile::cursor).as_mut(), fp)
-                    }),
+                error: f.fatal.as_ref().map(|d| {
+                    let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
+                    finding(d, src.map(SourceFile::cursor).as_mut(), fp)
+                }),
                 summary: checked.then(|| SummaryOut {
                     parts: f.summary.parts,
                     nets: f.summary.nets,
@@ -524,9 +521,10 @@ mod tests {
     /// empty and deep objects and arrays, keys and strings with characters to escape.
     #[test]
     fn safe_pretty_writes_the_escaped_pretty_text() {
-        let deep = (0..40).fold(serde_json::json!([1, "x\u{202e}"]), |v, i| {
-            serde_json::json!({ format!("k{i}"): v, "e": [], "o": {} })
-        });
+        let deep = (0..40).fold(
+            serde_json::json!([1, "x\u{202e}"]),
+            |v, i| serde_json::json!({ format!("k{i}"): v, "e": [], "o": {} }),
+        );
         let doc = serde_json::json!({
             "a": "x\u{7f}µ\u{9b}\u{202e}Ω\u{2028}\u{2066}\u{2069}\u{2070}é\u{a0}\"\\\n\u{1b}",
             "k\u{2029}ey": [1, 2.5, null, true, [], {}, [[]], {"x": {"y": []}}],

@@ -68,25 +68,30 @@ struct Results<'a> {
 impl Serialize for Results<'_> {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
         let index = &self.index;
-        s.collect_seq(self.files.iter().zip(&self.artifacts).flat_map(|(f, arts)| {
-            let src = f.source.as_ref();
-            // a schematic's findings point into the sheet file where the item is drawn
-            let art_of = move |d: &Diag| {
-                let sheet =
-                    primary_label(d).and_then(|l| src?.part_index_at(l.span.start as usize));
-                &arts[sheet.map_or(0, |i| i + 1)]
-            };
-            // findings of one part come together: their lines are looked up near each other
-            let mut lines = src.map(SourceFile::cursor);
-            let fatal = f
-                .fatal
-                .as_ref()
-                .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
-            fatal
-                .into_iter()
-                .chain(f.diags.iter().zip(fingerprint_hashes(f)))
-                .map(move |(d, fp)| result(d, lines.as_mut(), art_of(d), index, fp))
-        }))
+        s.collect_seq(
+            self.files
+                .iter()
+                .zip(&self.artifacts)
+                .flat_map(|(f, arts)| {
+                    let src = f.source.as_ref();
+                    // a schematic's findings point into the sheet file where the item is drawn
+                    let art_of = move |d: &Diag| {
+                        let sheet = primary_label(d)
+                            .and_then(|l| src?.part_index_at(l.span.start as usize));
+                        &arts[sheet.map_or(0, |i| i + 1)]
+                    };
+                    // findings of one part come together: their lines are looked up near each other
+                    let mut lines = src.map(SourceFile::cursor);
+                    let fatal = f
+                        .fatal
+                        .as_ref()
+                        .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
+                    fatal
+                        .into_iter()
+                        .chain(f.diags.iter().zip(fingerprint_hashes(f)))
+                        .map(move |(d, fp)| result(d, lines.as_mut(), art_of(d), index, fp))
+                }),
+        )
     }
 }
 
