@@ -53,7 +53,17 @@ fn tables(out_dir: &std::path::Path) {
     };
     let families =
         family::FamilyTable::parse_shipped().unwrap_or_else(|e| fail("families.toml", e));
-    write("families", postcard::to_allocvec(&families).unwrap());
+    // each family on its own, as the functions below: an index of (id, aliases, start, end),
+    // ids and aliases in capitals, and the families' bytes one after another
+    let mut blob = Vec::new();
+    let mut index = Vec::new();
+    for (id, aliases, bytes) in families.to_compact() {
+        let start = blob.len() as u32;
+        blob.extend(bytes);
+        index.push((id, aliases, start, blob.len() as u32));
+    }
+    write("families-index", postcard::to_allocvec(&index).unwrap());
+    write("families", blob);
     let functions =
         function::FunctionTable::parse_shipped().unwrap_or_else(|e| fail("functions.toml", e));
     // each function on its own, so the binary decodes only those a board uses: an index of

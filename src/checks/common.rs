@@ -1,7 +1,5 @@
 //! Helpers the checks share: finding floating inputs grouped by gate, formatting.
 
-use std::collections::BTreeMap;
-
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
@@ -29,10 +27,13 @@ pub struct Floating {
 
 /// A whole gate whose inputs all float and whose outputs go nowhere.
 #[derive(Debug, Clone)]
-pub struct UnusedGate {
+pub struct UnusedGate<'n> {
     pub comp: usize,
-    pub unit: String,
+    /// The unit's name in the function table (`A`, `B` ...).
+    pub unit: &'n str,
+    /// Every input of the unit, in pin order.
     pub inputs: Vec<Floating>,
+    /// Every output of the unit, in pin order.
     pub outputs: Vec<PinRef>,
 }
 
@@ -57,75 +58,82 @@ pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> O
     }
 }
 
+fn is_logic_input(role: PinRole) -> bool {
+    matches!(role, PinRole::Input | PinRole::SchmittInput)
+}
+
 /// Floating logic inputs of classified parts whose family has TTL inputs (`ttl` true) or
-/// CMOS inputs (`ttl` false), with the whole unused gates gathered up.
-pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, Vec<UnusedGate>) {
+/// CMOS inputs (`ttl` false), with the whole unused gates gathered up (in unit-name order,
+/// each part's inputs outside a unit first among its singles).
+pub fn floating_inputs<'n>(
+    ctx: &Context<'_, 'n, '_>,
+    ttl: bool,
+) -> (Vec<Floating>, Vec<UnusedGate<'n>>) {
     let cx = ctx.cx;
+    let cl: &'n crate::classify::classifier::Classified = cx.cl;
     let mut singles = Vec::new();
     let mut gates = Vec::new();
     for (ci, c) in cx.nl.components.iter().enumerate() {
-        let part = &cx.cl.parts[ci];
+        let part = &cl.parts[ci];
         let Some(fam) = cx.family(ci).filter(|_| part.is_logic()) else {
             continue;
         };
         if fam.is_cmos_input() == ttl {
             continue;
         }
-        let mut by_unit: BTreeMap<&str, Vec<Floating>> = BTreeMap::new();
-        let mut found = Vec::new();
-        // the part's function-table entry, looked up once (not once per input)
-        let function = part
-            .function
-            .as_ref()
-            .and_then(|(series, id)| cx.rules.functions.get(*series, id));
+        let roles = &cx.roles[ci];
+        // the floating inputs of each unit, units in name order
+        let mut by_unit: Vec<(&'n str, Vec<Floating>)> = Vec::new();
         for (pi, p) in c.pins.iter().enumerate() {
             // a no-connect flag silences the schematic editor; it does not tie the pin
-            if !matches!(cx.roles[ci][pi], PinRole::Input | PinRole::SchmittInput) {
+            if !is_logic_input(roles[pi]) {
                 continue;
             }
             // a control input that must be held at one level is `open-control-input`'s
-            // (`Circuit::idle_level`, with the entry looked up above)
-            if function
-                .and_then(|f| f.pin(&p.num))
-                .is_some_and(|d| d.idle_high.is_some())
-            {
+            // (`Circuit::idle_level`)
+            if part.idle_high[pi].is_some() {
                 continue;
             }
             let Some(why) = floats(cx, p.connection) else {
                 continue;
             };
-            found.push(Floating {
+            let f = Floating {
                 at: PinRef { comp: ci, pin: pi },
                 why,
-            });
-        }
-        for f in found {
-            match part.units[f.at.pin].as_deref() {
-                Some(u) => by_unit.entry(u).or_default().push(f),
+            };
+            match part.units[pi].as_deref() {
+                Some(u) => match by_unit.iter_mut().find(|(v, _)| *v == u) {
+                    Some((_, l)) => l.push(f),
+                    None => by_unit.push((u, vec![f])),
+                },
                 None => singles.push(f),
             }
         }
+        by_unit.sort_unstable_by(|a, b| a.0.cmp(b.0));
         for (unit, floats) in by_unit {
             // every input of the unit floats, and its outputs reach nothing
-            let unit_inputs: Vec<usize> = (0..c.pins.len())
-                .filter(|&i| {
-                    part.units[i].as_deref() == Some(unit)
-                        && matches!(cx.roles[ci][i], PinRole::Input | PinRole::SchmittInput)
-                })
-                .collect();
-            let unit_outputs: Vec<PinRef> = (0..c.pins.len())
-                .filter(|&i| part.units[i].as_deref() == Some(unit) && cx.roles[ci][i].is_output())
-                .map(|i| PinRef { comp: ci, pin: i })
-                .collect();
-            let outputs_unused = unit_outputs
+            let mut unit_inputs = 0;
+            let mut outputs = Vec::new();
+            for i in 0..c.pins.len() {
+                if part.units[i].as_deref() != Some(unit) {
+                    continue;
+                }
+                if is_logic_input(roles[i]) {
+                    unit_inputs += 1;
+                }
+                if roles[i].is_output() {
+                    outputs.push(PinRef { comp: ci, pin: i });
+                }
+            }
+            let outputs_unused = outputs
                 .iter()
                 .all(|o| c.pins[o.pin].connection.is_unconnected());
-            if floats.len() == unit_inputs.len() && unit_inputs.len() > 0 && outputs_unused {
+            if floats.len() == unit_inputs && unit_inputs > 0 && outputs_unused {
                 gates.push(UnusedGate {
                     comp: ci,
-                    unit: unit.to_string(),
+                    unit,
                     inputs: floats,
-                    outputs: unit_outputs,
+                    outputs,
                 });
             } else {
                 singles.extend(floats);
@@ -133,6 +141,63 @@ pub fn floating_inputs(ctx: &Context<'_, '_, '_>, ttl: bool) -> (Vec<Floating>, 
         }
     }
     (singles, gates)
+}
+
+/// What the words of an unused gate's finding follow from, beside its part's reference and
+/// value: the part's pin table (its pins' numbers, table names and units, and its family:
+/// one table is shared by every part alike), its roles as wired, the unit, the rails its fix
+/// names and whether the inputs are on no net. Parts alike give the same key, so a check makes
+/// those words once per key, not once per part.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub struct GateKey<'n> {
+    table: *const crate::classify::classifier::PinTable,
+    roles: *const [PinRole],
+    family: Option<&'n str>,
+    unit: &'n str,
+    supply: Option<usize>,
+    ground: Option<usize>,
+    absent: bool,
+}
+
+impl<'n> GateKey<'n> {
+    pub fn of(ctx: &Context<'_, 'n, '_>, g: &UnusedGate<'n>) -> GateKey<'n> {
+        let cx = ctx.cx;
+        let cl: &'n crate::classify::classifier::Classified = cx.cl;
+        let part = &cl.parts[g.comp];
+        GateKey {
+            table: std::sync::Arc::as_ptr(&part.pins),
+            roles: std::sync::Arc::as_ptr(&cx.roles[g.comp]),
+            family: part.family.as_deref(),
+            unit: g.unit,
+            supply: supply_rail(ctx, g.comp),
+            ground: ground_rail(ctx, g.comp),
+            absent: g.inputs.iter().all(|f| matches!(f.why, Float::Absent)),
+        }
+    }
+}
+
+/// Words made once per key and handed out as copies.
+pub struct Words<K>(rustc_hash::FxHashMap<K, (String, String)>);
+
+impl<K: std::hash::Hash + Eq> Words<K> {
+    pub fn new() -> Words<K> {
+        Words(Default::default())
+    }
+
+    /// The words for `key`, made by `make` the first time it is asked.
+    pub fn get(&mut self, key: K, make: impl FnOnce() -> (String, String)) -> &(String, String) {
+        self.0.entry(key).or_insert_with(make)
+    }
+}
+
+/// The pieces joined into one string allocated to its length (a finding holds its words to
+/// the end of the run).
+pub fn concat(pieces: &[&str]) -> String {
+    let mut s = String::with_capacity(pieces.iter().map(|p| p.len()).sum());
+    for p in pieces {
+        s.push_str(p);
+    }
+    s
 }
 
 /// `pins 12 (4A) and 13 (4B)`
@@ -163,24 +228,33 @@ fn numbered_list<'p>(pins: impl ExactSizeIterator<Item = (&'p str, Option<&'p st
     s
 }
 
-/// The positive rail a part's supply pin sits on, by name, for fix messages.
-pub fn supply_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
-    let cx = ctx.cx;
-    cx.supplies[comp]
+/// The net of the positive rail a part's supply pin sits on, when its voltage is known.
+pub fn supply_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
+    ctx.cx.supplies[comp]
         .as_ref()
         .and_then(|s| s.supply_net.filter(|_| s.known))
-        .map(|n| cx.net_name(n))
+}
+
+/// The positive rail a part's supply pin sits on, by name, for fix messages.
+pub fn supply_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
+    supply_rail(ctx, comp)
+        .map(|n| ctx.cx.net_name(n))
         .unwrap_or_else(|| "the supply".into())
 }
 
-/// The ground rail a part's ground pin sits on, by name.
-pub fn ground_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
+/// The net of the ground rail a part's ground pin sits on.
+pub fn ground_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
     let cx = ctx.cx;
     cx.supplies[comp]
         .as_ref()
         .and_then(|s| s.ground_net)
         .filter(|&n| cx.nets[n].rail.is_some())
-        .map(|n| cx.net_name(n))
+}
+
+/// The ground rail a part's ground pin sits on, by name.
+pub fn ground_rail_name(ctx: &Context<'_, '_, '_>, comp: usize) -> String {
+    ground_rail(ctx, comp)
+        .map(|n| ctx.cx.net_name(n))
         .unwrap_or_else(|| "GND".into())
 }
 
@@ -245,6 +319,28 @@ mod tests {
             super::numbered_list(pins[..2].iter().copied()),
             "pins 12 (4A) and 13"
         );
+    }
+
+    #[test]
+    fn words_are_made_once_per_key() {
+        let mut words = super::Words::new();
+        let mut made = 0;
+        for key in [1, 2, 1, 1, 2, 3] {
+            let w = words.get(key, || {
+                made += 1;
+                (format!("tail {key}"), format!("help {key}"))
+            });
+            assert_eq!(w, &(format!("tail {key}"), format!("help {key}")));
+        }
+        assert_eq!(made, 3);
+    }
+
+    #[test]
+    fn pieces_join_into_a_string_of_their_length() {
+        let s = super::concat(&["gate ", "A", " of ", "U1"]);
+        assert_eq!(s, "gate A of U1");
+        assert_eq!(s.capacity(), s.len());
+        assert_eq!(super::concat(&[]), "");
     }
 
     #[test]

@@ -22,48 +22,65 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a CMOS input with nothing to set its level: no driver, no rail, no pull resistor",
 };
 
-use super::common::{agree, floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float};
+use super::common::{
+    agree, concat, floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float, GateKey,
+    Words,
+};
 use super::Context;
 use crate::diag::Diag;
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     let (singles, gates) = floating_inputs(ctx, false);
+    // the words every part alike shares (the tail of the message, the help), made once
+    let mut words = Words::new();
     for g in gates {
+        let key = GateKey::of(ctx, &g);
+        let (tail, help) = words.get(key, || {
+            let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
+            let list = pin_list(ctx, &pins);
+            let n = pins.len();
+            let absent = g.inputs.iter().all(|f| matches!(f.why, Float::Absent));
+            (
+                format!(
+                    "{}: {}{}",
+                    agree(n, "its CMOS input floats", "its CMOS inputs float"),
+                    list,
+                    if absent {
+                        format!(
+                            " {} on no net (the gate was never placed)",
+                            agree(n, "is", "are")
+                        )
+                    } else {
+                        format!(" {} connected to nothing", agree(n, "is", "are"))
+                    }
+                ),
+                format!(
+                    "tie {} to {} (or to {}); leave the gate's output {} open",
+                    list,
+                    ground_rail_name(ctx, g.comp),
+                    supply_rail_name(ctx, g.comp),
+                    pin_list(ctx, &g.outputs)
+                ),
+            )
+        });
         let c = &cx.nl.components[g.comp];
-        let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
-        let list = pin_list(ctx, &pins);
-        let absent = g.inputs.iter().all(|f| matches!(f.why, Float::Absent));
-        let mut d = Diag::error(
-            "floating-cmos-input",
-            format!(
-                "gate {} of {} ({}) is unused and {}: {}{}",
-                g.unit,
-                c.reference,
-                c.value_str(),
-                agree(pins.len(), "its CMOS input floats", "its CMOS inputs float"),
-                list,
-                if absent {
-                    format!(
-                        " {} on no net (the gate was never placed)",
-                        agree(pins.len(), "is", "are")
-                    )
-                } else {
-                    format!(" {} connected to nothing", agree(pins.len(), "is", "are"))
-                }
-            ),
-        )
-        .with_help(format!(
-            "tie {} to {} (or to {}); leave the gate's output {} open",
-            list,
-            ground_rail_name(ctx, g.comp),
-            supply_rail_name(ctx, g.comp),
-            pin_list(ctx, &g.outputs)
-        ))
-        .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
-        d = d.at(cx.pin_span(pins[0]), "unused gate");
-        for p in &pins[1..] {
-            d = d.also(cx.pin_span(*p), "");
+        let message = concat(&[
+            "gate ",
+            g.unit,
+            " of ",
+            c.reference.as_str(),
+            " (",
+            c.value_str(),
+            ") is unused and ",
+            tail,
+        ]);
+        let mut d = Diag::error("floating-cmos-input", message)
+            .with_help(help.clone())
+            .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
+        d = d.at(cx.pin_span(g.inputs[0].at), "unused gate");
+        for f in &g.inputs[1..] {
+            d = d.also(cx.pin_span(f.at), "");
         }
         out.push(d);
     }

@@ -20,7 +20,9 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a TTL input left open: it floats high on the bench and picks up noise in service",
 };
 
-use super::common::{agree, floating_inputs, pin_list, supply_rail_name, Float};
+use super::common::{
+    agree, concat, floating_inputs, pin_list, supply_rail_name, Float, GateKey, Words,
+};
 use super::Context;
 use crate::diag::Diag;
 use crate::values::format_ohms;
@@ -41,47 +43,52 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             _ => format!("tie it to {rail} (directly, or through 1 kOhm to share one resistor among several inputs)"),
         }
     };
-    // the wording that depends on the part alone, made once per part (a part has many
-    // findings, in a row)
-    let mut part_text: Option<(usize, String, String)> = None;
+    // the words every part alike shares (the tail of the message, the help), made once
+    let mut words = Words::new();
     for g in gates {
-        if part_text.as_ref().is_none_or(|(c, ..)| *c != g.comp) {
-            part_text = Some((g.comp, inside(g.comp), tie(g.comp)));
-        }
-        let (_, inside, tie) = part_text.as_ref().expect("set above");
-        let c = &cx.nl.components[g.comp];
-        let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
-        let list = pin_list(ctx, &pins);
-        let mut d = Diag::warning(
-            "floating-ttl-input",
-            format!(
-                "gate {} of {} ({}) is unused and {}: {} {} high{} and {} up noise",
-                g.unit,
-                c.reference,
-                c.value_str(),
-                agree(
-                    pins.len(),
-                    "its TTL input is open",
-                    "its TTL inputs are open"
+        let (tail, help) = words.get(GateKey::of(ctx, &g), || {
+            let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
+            let list = pin_list(ctx, &pins);
+            let n = pins.len();
+            (
+                format!(
+                    "{}: {} {} high{} and {} up noise",
+                    agree(n, "its TTL input is open", "its TTL inputs are open"),
+                    list,
+                    agree(n, "floats", "float"),
+                    inside(g.comp),
+                    agree(n, "picks", "pick")
                 ),
-                list,
-                agree(pins.len(), "floats", "float"),
-                inside,
-                agree(pins.len(), "picks", "pick")
-            ),
-        )
-        .with_help(format!(
-            "{}; the gate's output {} may stay open",
-            tie.replacen("it", &list, 1),
-            pin_list(ctx, &g.outputs)
-        ))
-        .with_pins(pins.iter().map(|p| cx.pin_name(*p)));
-        d = d.at(cx.pin_span(pins[0]), "unused gate");
-        for p in &pins[1..] {
-            d = d.also(cx.pin_span(*p), "");
+                format!(
+                    "{}; the gate's output {} may stay open",
+                    tie(g.comp).replacen("it", &list, 1),
+                    pin_list(ctx, &g.outputs)
+                ),
+            )
+        });
+        let c = &cx.nl.components[g.comp];
+        let message = concat(&[
+            "gate ",
+            g.unit,
+            " of ",
+            c.reference.as_str(),
+            " (",
+            c.value_str(),
+            ") is unused and ",
+            tail,
+        ]);
+        let mut d = Diag::warning("floating-ttl-input", message)
+            .with_help(help.clone())
+            .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
+        d = d.at(cx.pin_span(g.inputs[0].at), "unused gate");
+        for f in &g.inputs[1..] {
+            d = d.also(cx.pin_span(f.at), "");
         }
         out.push(d);
     }
+    // the wording that depends on the part alone, made once per part (a part has many
+    // findings, in a row)
+    let mut part_text: Option<(usize, String, String)> = None;
     for f in singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
             part_text = Some((f.at.comp, inside(f.at.comp), tie(f.at.comp)));

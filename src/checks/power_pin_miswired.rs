@@ -40,7 +40,7 @@ use crate::netlist::{Connection, PinType};
 use crate::values::format_volts;
 
 /// Which side of the supply a power pin belongs to.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Side {
     Supply,
     Ground,
@@ -138,6 +138,7 @@ fn rail_text(name: &str, v: Option<f64>) -> String {
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
+    let mut rails = Suggestions::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];
         if matches!(
@@ -201,16 +202,16 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                             };
                             (
                                 format!("the {fault} {name}{with}"),
-                                format!("move it to {}", suggest_rail(ctx, ci, side)),
+                                format!("move it to {}", rails.get(ctx, ci, side)),
                             )
                         }
                         NetKind::Positive(v) | NetKind::Negative(v) => (
                             format!("the {fault} {}", rail_text(&name, v)),
-                            format!("move it to {}", suggest_rail(ctx, ci, side)),
+                            format!("move it to {}", rails.get(ctx, ci, side)),
                         ),
                         _ => (
                             format!("the {fault} {name}"),
-                            format!("move it to {}", suggest_rail(ctx, ci, side)),
+                            format!("move it to {}", rails.get(ctx, ci, side)),
                         ),
                     };
                     let consequence = match (side, kind) {
@@ -306,7 +307,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                             },
                         )
                         .with_pins([cx.pin_name(at)])
-                        .with_help(format!("wire it to {}", suggest_rail(ctx, ci, side))),
+                        .with_help(format!("wire it to {}", rails.get(ctx, ci, side))),
                     );
                 }
                 _ => {}
@@ -409,6 +410,27 @@ fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut Vec<Diag>) {
         .with_pins([cx.pin_name(at)])
         .with_help(format!("run it from a rail within {} to {}{alt}", format_volts(fam.supply_min), format_volts(fam.supply_max))),
     );
+}
+
+/// The rails [`suggest_rail`] names, made once per family and side: the words depend on
+/// nothing else, and a board has many parts of one family.
+#[derive(Default)]
+struct Suggestions<'n>(rustc_hash::FxHashMap<(Option<&'n str>, Side), String>);
+
+impl<'n> Suggestions<'n> {
+    fn get(&mut self, ctx: &Context<'_, 'n, '_>, ci: usize, side: Side) -> &str {
+        let cx = ctx.cx;
+        let cl: &'n crate::classify::classifier::Classified = cx.cl;
+        let part = &cl.parts[ci];
+        // the family the suggestion reads, as `suggest_rail` reads it
+        let family = part
+            .family
+            .as_deref()
+            .filter(|_| side == Side::Supply && part.is_logic());
+        self.0
+            .entry((family, side))
+            .or_insert_with(|| suggest_rail(ctx, ci, side))
+    }
 }
 
 /// A rail on the board for a power pin of this part: for a supply pin of a classified

@@ -24,25 +24,23 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 
 use super::Context;
 use crate::circuit::PinRef;
-use crate::classify::classifier::PartKind;
+use crate::circuit::ValueReading;
 use crate::diag::Diag;
-use crate::values::{self, ValueError};
+use crate::values::ValueError;
 
-/// Why a resistor's value cannot be read: `None` when it reads, or marks a part not fitted.
-pub fn unreadable(kind: PartKind, value: &str) -> Option<ValueError> {
-    let err = match kind {
-        PartKind::Resistor => values::parse_resistance(value).err(),
-        PartKind::ResistorNetwork => values::parse_network(value).err(),
-        _ => None,
-    }?;
-    (!matches!(err, ValueError::NotFitted(_))).then_some(err)
+/// Why a resistor's value, as the model read it, cannot be read: `None` when it reads, or
+/// marks a part not fitted.
+fn unreadable_reading(reading: Option<&ValueReading>) -> Option<&ValueError> {
+    reading?
+        .as_ref()
+        .err()
+        .filter(|e| !matches!(e, ValueError::NotFitted(_)))
 }
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (ci, c) in cx.nl.components.iter().enumerate() {
-        let kind = cx.cl.parts[ci].kind;
-        let Some(err) = unreadable(kind, c.value_str()) else {
+        let Some(err) = unreadable_reading(cx.resistor_value(ci)) else {
             continue;
         };
         let reference = c.reference.as_str();
@@ -107,6 +105,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::classify::classifier::PartKind;
+
+    /// Why a value cannot be read for a part of `kind`, read as the model reads it.
+    fn unreadable(kind: PartKind, value: &str) -> Option<ValueError> {
+        let reading = crate::circuit::read_resistor_value(kind, value);
+        unreadable_reading(reading.as_ref()).cloned()
+    }
 
     #[test]
     fn reasons_and_near_misses() {

@@ -333,6 +333,54 @@ pub struct Circuit<'n, 'a> {
     pub rail_notes: Vec<RailNote>,
     /// LED displays: their commons, segments and whether the commons reach anything.
     pub displays: Vec<display::Display>,
+    /// Every resistor's and resistor network's value as read, once per distinct text
+    /// ([`Circuit::resistor_value`]).
+    pub values: ValueReadings<'n>,
+}
+
+/// A resistor's or resistor network's value as read: its ohms (each element's, for a
+/// network), or why it cannot be read.
+pub type ValueReading = Result<f64, ValueError>;
+
+/// Reads a resistor's or resistor network's value; `None` for any other kind of part.
+pub fn read_resistor_value(kind: PartKind, value: &str) -> Option<ValueReading> {
+    match kind {
+        PartKind::Resistor => Some(values::parse_resistance(value).map(|r| r.ohms)),
+        PartKind::ResistorNetwork => Some(values::parse_network(value).map(|r| r.ohms)),
+        _ => None,
+    }
+}
+
+/// Resistor values read once per distinct text and kind: a board repeats a few values on
+/// many parts, and the model and the checks ask for each part's more than once.
+#[derive(Debug, Default)]
+pub struct ValueReadings<'n> {
+    resistors: rustc_hash::FxHashMap<&'n str, ValueReading>,
+    networks: rustc_hash::FxHashMap<&'n str, ValueReading>,
+}
+
+impl<'n> ValueReadings<'n> {
+    /// The reading of `value` for a part of `kind`, read the first time it is asked.
+    fn read(&mut self, kind: PartKind, value: &'n str) -> Option<&ValueReading> {
+        let map = match kind {
+            PartKind::Resistor => &mut self.resistors,
+            PartKind::ResistorNetwork => &mut self.networks,
+            _ => return None,
+        };
+        Some(
+            map.entry(value)
+                .or_insert_with(|| read_resistor_value(kind, value).expect("a resistor kind")),
+        )
+    }
+
+    /// The reading of `value` for a part of `kind`, when it was read.
+    pub fn get(&self, kind: PartKind, value: &str) -> Option<&ValueReading> {
+        match kind {
+            PartKind::Resistor => self.resistors.get(value),
+            PartKind::ResistorNetwork => self.networks.get(value),
+            _ => None,
+        }
+    }
 }
 
 impl<'n, 'a> Circuit<'n, 'a> {
@@ -358,10 +406,18 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// The level at which a processor's, peripheral's or memory's control input lets the part
     /// run undisturbed (`idle` in the function table): `Some(true)` high, `Some(false)` low,
     /// `None` for any other pin.
+    /// Read from the part's pin table, where the function table's entry was looked up once.
     pub fn idle_level(&self, comp: usize, pin: usize) -> Option<bool> {
-        let (series, id) = self.cl.parts[comp].function.as_ref()?;
-        let num = &self.nl.components[comp].pins[pin].num;
-        self.rules.functions.get(*series, id)?.pin(num)?.idle_high
+        self.cl.parts[comp].idle_high[pin]
+    }
+
+    /// A resistor's or resistor network's value as the model read it; `None` for any other
+    /// part.
+    pub fn resistor_value(&self, comp: usize) -> Option<&ValueReading> {
+        self.values.get(
+            self.cl.parts[comp].kind,
+            self.nl.components[comp].value_str(),
+        )
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -371,7 +427,12 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// `U4.6`
     pub fn pin_name(&self, p: PinRef) -> String {
         let c = &self.nl.components[p.comp];
-        format!("{}.{}", c.reference, c.pins[p.pin].num)
+        let (r, n) = (c.reference.as_str(), &*c.pins[p.pin].num);
+        let mut s = String::with_capacity(r.len() + 1 + n.len());
+        s.push_str(r);
+        s.push('.');
+        s.push_str(n);
+        s
     }
 
     /// `U4 pin 6 (74LS04 output 3Y)`
@@ -728,6 +789,7 @@ pub fn build<'n, 'a>(
         }
     }
 
+    let mut readings = ValueReadings::default();
     // resistors: to a rail a pull (or a hold, when the rail's voltage is unknown), between
     // two signal nets a series element
     for (ci, c) in nl.components.iter().enumerate() {
@@ -735,16 +797,10 @@ pub fn build<'n, 'a>(
         if !matches!(part.kind, PartKind::Resistor | PartKind::ResistorNetwork) {
             continue;
         }
-        let (ohms, err) = if part.kind == PartKind::Resistor {
-            match values::parse_resistance(c.value_str()) {
-                Ok(r) => (Some(r.ohms), None),
-                Err(e) => (None, Some(e)),
-            }
-        } else {
-            match values::parse_network(c.value_str()) {
-                Ok(r) => (Some(r.ohms), None),
-                Err(e) => (None, Some(e)),
-            }
+        let (ohms, err) = match readings.read(part.kind, c.value_str()) {
+            Some(Ok(ohms)) => (Some(*ohms), None),
+            Some(Err(e)) => (None, Some(e.clone())),
+            None => (None, None),
         };
         if matches!(err, Some(ValueError::NotFitted(_))) {
             continue; // not on the board
@@ -864,7 +920,9 @@ pub fn build<'n, 'a>(
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
-            if let Some(path) = follow_to_ground(nl, cl, &rail, &displays, start, opts.led_vf) {
+            if let Some(path) =
+                follow_to_ground(nl, cl, &rail, &displays, &mut readings, start, opts.led_vf)
+            {
                 if path.leds.is_empty() {
                     continue;
                 }
@@ -894,6 +952,7 @@ pub fn build<'n, 'a>(
         roles,
         rail_notes,
         displays,
+        values: readings,
     }
 }
 
@@ -1169,12 +1228,18 @@ fn rails_by_usage(
         }
     }
     // voltages: a fixed regulator's output first, then the families powered
+    // (each distinct value read once: boards repeat values)
+    let mut regulators: rustc_hash::FxHashMap<&str, Option<(f64, &'static str)>> =
+        Default::default();
     for (ci, c) in nl.components.iter().enumerate() {
         // a logic part is no regulator: its value is not read again
         if cl.parts[ci].is_logic() {
             continue;
         }
-        let Some((volts, out_pin)) = rails::fixed_regulator(c.value_str()) else {
+        let Some((volts, out_pin)) = *regulators
+            .entry(c.value_str())
+            .or_insert_with(|| rails::fixed_regulator(c.value_str()))
+        else {
             continue;
         };
         let by_name = c.pins.iter().find(|p| {
@@ -1270,11 +1335,12 @@ fn note_for(notes: &mut Vec<RailNote>, net: usize, volts: f64, why: Inferred) {
 /// Follows two-pin resistors and LEDs in series from `start` to a rail. A display entered at
 /// a segment leads to its common: the path ends on the rail the common is wired to, or, for
 /// a common cathode left open, on the ground it needs (`LedPath::open_common`).
-fn follow_to_ground(
-    nl: &Netlist<'_>,
+fn follow_to_ground<'n>(
+    nl: &'n Netlist<'_>,
     cl: &Classified,
     rail: &[Option<Rail>],
     displays: &[display::Display],
+    readings: &mut ValueReadings<'n>,
     start: PinRef,
     vf: f64,
 ) -> Option<LedPath> {
@@ -1350,7 +1416,7 @@ fn follow_to_ground(
         }
         match kind {
             PartKind::Resistor => {
-                ohms += values::parse_resistance(c.value_str()).ok()?.ohms;
+                ohms += readings.read(kind, c.value_str())?.as_ref().ok()?;
                 resistors.push(cur.comp);
             }
             PartKind::Led => leds.push(cur.comp),
@@ -1444,6 +1510,44 @@ pub fn led_vf_by_colour(value: &str) -> Option<f64> {
         Some(1.2)
     } else {
         None
+    }
+}
+
+#[cfg(test)]
+mod value_tests {
+    use super::{values, PartKind, ValueReadings};
+
+    /// A value is read once per text and kind, and reads as the value parsers read it.
+    #[test]
+    fn resistor_values_read_once_per_text_and_kind() {
+        let mut r = ValueReadings::default();
+        let ohms = |t: &str| values::parse_resistance(t).map(|x| x.ohms);
+        assert_eq!(
+            r.read(PartKind::Resistor, "4K7").cloned(),
+            Some(ohms("4K7"))
+        );
+        assert_eq!(
+            r.read(PartKind::Resistor, "4K7").cloned(),
+            Some(ohms("4K7"))
+        );
+        assert_eq!(
+            r.read(PartKind::Resistor, "4K7K").cloned(),
+            Some(ohms("4K7K"))
+        );
+        assert!(matches!(r.get(PartKind::Resistor, "4K7K"), Some(Err(_))));
+        assert_eq!(r.resistors.len(), 2);
+        // only resistors and networks are read
+        assert_eq!(r.read(PartKind::Capacitor, "4K7"), None);
+        assert_eq!(r.get(PartKind::Capacitor, "4K7"), None);
+        // a network's text is read as a network, apart from a resistor's of the same text
+        assert_eq!(r.get(PartKind::ResistorNetwork, "4K7"), None);
+        let net = values::parse_network("8x4K7").map(|x| x.ohms);
+        assert_eq!(
+            r.read(PartKind::ResistorNetwork, "8x4K7").cloned(),
+            Some(net)
+        );
+        assert_eq!(r.get(PartKind::Resistor, "8x4K7"), None);
+        assert_eq!(r.networks.len(), 1);
     }
 }
 

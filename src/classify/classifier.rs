@@ -178,6 +178,9 @@ pub struct PinTable {
     /// For an output the data sheet rates with some of the package's own inputs on it:
     /// indices (into the component's pins) of those inputs.
     pub rated_with: Vec<Vec<usize>>,
+    /// For a control input the function table says must be held (`idle`): the level at which
+    /// the part runs undisturbed, `Some(true)` for high (read through `Circuit::idle_level`).
+    pub idle_high: Vec<Option<bool>>,
 }
 
 impl PinTable {
@@ -191,6 +194,7 @@ impl PinTable {
             enables: vec![Vec::new(); n],
             input_loads: vec![None; n],
             rated_with: vec![Vec::new(); n],
+            idle_high: vec![None; n],
         }
     }
 }
@@ -593,7 +597,7 @@ fn parse_function_field(s: &str) -> (Series, String) {
 
 /// Classifies every component of a netlist.
 pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
-    let mut parts = Vec::with_capacity(nl.components.len());
+    let mut parts: Vec<PartClass> = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
     let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
     // many parts share a value: each distinct value meets the entries' globs and the value
@@ -623,7 +627,28 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         std::collections::HashMap::new();
     // the pin tables made so far, by the hash of what they follow from
     let mut pin_tables: rustc_hash::FxHashMap<u64, Vec<SeenPins>> = Default::default();
+    // parts alike classify alike: each distinct part is classified once, the others copy it
+    let mut first_alike: rustc_hash::FxHashMap<Alike<'_, '_>, usize> = Default::default();
     for c in &nl.components {
+        match first_alike.entry(Alike(c)) {
+            std::collections::hash_map::Entry::Occupied(first) => {
+                let part = parts[*first.get()].clone();
+                if part.ic_like {
+                    ic_like += 1;
+                    if matches!(part.kind, PartKind::Logic | PartKind::NotLogic) {
+                        classified += 1;
+                    }
+                }
+                if part.method == Method::FunctionSymbol {
+                    function_symbols += 1;
+                }
+                parts.push(part);
+                continue;
+            }
+            std::collections::hash_map::Entry::Vacant(v) => {
+                v.insert(parts.len());
+            }
+        }
         let mut kind = kind_by_reference(c);
         let mut method = Method::Reference;
         let mut family = None;
@@ -853,6 +878,66 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     }
 }
 
+/// A component by what its classification follows from: the letters of its reference, its
+/// value, footprint and library symbol (library, part, description), its logic family and
+/// function fields, and its pins' numbers, types and names. Two components equal in these
+/// classify alike.
+struct Alike<'c, 'a>(&'c Component<'a>);
+
+/// The text of an optional item.
+fn text<'t>(t: &'t Option<crate::netlist::Text<'_>>) -> Option<&'t str> {
+    t.as_ref().map(|t| t.as_str())
+}
+
+impl Alike<'_, '_> {
+    #[allow(clippy::type_complexity)]
+    fn texts(
+        &self,
+    ) -> (
+        &str,
+        &str,
+        Option<&str>,
+        Option<(Option<&str>, Option<&str>, Option<&str>)>,
+        Option<&str>,
+        Option<&str>,
+    ) {
+        let c = self.0;
+        let field = |name| {
+            c.field(name)
+                .and_then(|f| f.value.as_ref())
+                .map(|v| v.as_str())
+        };
+        (
+            ref_prefix(c.reference.as_str()),
+            c.value_str(),
+            text(&c.footprint),
+            c.libsource
+                .as_ref()
+                .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
+            field("Logic family"),
+            field("Logic function"),
+        )
+    }
+}
+
+impl std::hash::Hash for Alike<'_, '_> {
+    fn hash<H: std::hash::Hasher>(&self, h: &mut H) {
+        self.texts().hash(h);
+        self.0.pins.len().hash(h);
+        for p in &self.0.pins {
+            (p.num.as_ref(), p.ptype, p.name.as_deref()).hash(h);
+        }
+    }
+}
+
+impl PartialEq for Alike<'_, '_> {
+    fn eq(&self, other: &Self) -> bool {
+        self.texts() == other.texts() && same_pins(&self.0.pins, &other.0.pins)
+    }
+}
+
+impl Eq for Alike<'_, '_> {}
+
 /// A part whose pin table is kept for the parts alike that follow: what the table follows
 /// from, and the table.
 struct SeenPins {
@@ -906,6 +991,7 @@ fn pin_table(
     let mut enables = vec![Vec::new(); n];
     let mut input_loads = vec![None; n];
     let mut rated_with = vec![Vec::new(); n];
+    let mut idle_high = vec![None; n];
     let func = function.and_then(|(s, id)| rules.functions.get(*s, id));
     let fam = family.unwrap_or_default();
     for (i, p) in c.pins.iter().enumerate() {
@@ -917,6 +1003,7 @@ fn pin_table(
                 table_names[i] = Some(share(&d.name));
                 units[i] = d.unit.as_deref().map(&mut *share);
                 input_loads[i] = f.load_for_family(&p.num, fam);
+                idle_high[i] = d.idle_high;
                 rated_with[i] = d
                     .rated_with
                     .iter()
@@ -953,6 +1040,7 @@ fn pin_table(
         enables,
         input_loads,
         rated_with,
+        idle_high,
     }
 }
 
@@ -1124,6 +1212,55 @@ pub fn is_function_symbol(value: &str, has_footprint: bool) -> bool {
 #[cfg(test)]
 mod tests {
     use super::is_function_symbol;
+
+    /// Parts that differ only in their reference's number classify alike and are classified
+    /// once; any other difference (reference letters, value, a logic field, a pin) makes a
+    /// part of its own.
+    #[test]
+    fn parts_alike_classify_once_and_alike() {
+        use std::hash::BuildHasher;
+        let text = r#"(export (version D)
+  (components
+    (comp (ref U1) (value 74HC00) (libsource (lib x) (part 74HC00)))
+    (comp (ref U2) (value 74HC00) (libsource (lib x) (part 74HC00)))
+    (comp (ref IC3) (value 74HC00) (libsource (lib x) (part 74HC00)))
+    (comp (ref U4) (value 74HCT00) (libsource (lib x) (part 74HC00)))
+    (comp (ref U5) (value 74HC00) (libsource (lib x) (part 74HC00))
+      (fields (field (name "Logic family") 74AC)))
+    (comp (ref U6) (value 74HC00) (libsource (lib y) (part 74HC00))))
+  (libparts
+    (libpart (lib x) (part 74HC00)
+      (pins (pin (num 1) (name 1A) (type input)) (pin (num 3) (name 1Y) (type output))
+        (pin (num 7) (name GND) (type power_in)) (pin (num 14) (name VCC) (type power_in))))
+    (libpart (lib y) (part 74HC00)
+      (pins (pin (num 1) (name A) (type input)) (pin (num 3) (name 1Y) (type output))
+        (pin (num 7) (name GND) (type power_in)) (pin (num 14) (name VCC) (type power_in)))))
+  (nets))"#;
+        let nl = crate::netlist::read(text).expect("reads");
+        assert_eq!(nl.components.len(), 6);
+        let c = &nl.components;
+        let hash = |a: &super::Alike<'_, '_>| rustc_hash::FxBuildHasher.hash_one(a);
+        let (u1, u2) = (super::Alike(&c[0]), super::Alike(&c[1]));
+        assert!(u1 == u2 && hash(&u1) == hash(&u2));
+        for (i, why) in [
+            (2, "reference letters"),
+            (3, "value"),
+            (4, "logic family field"),
+            (5, "library and pin name"),
+        ] {
+            assert!(u1 != super::Alike(&c[i]), "{why}");
+        }
+        let rules = super::Rules::shipped();
+        let cl = super::classify(&nl, rules);
+        assert_eq!(format!("{:?}", cl.parts[0]), format!("{:?}", cl.parts[1]));
+        // the copy shares the first one's pin table
+        assert!(std::sync::Arc::ptr_eq(&cl.parts[0].pins, &cl.parts[1].pins));
+        assert_eq!(cl.parts[0].family.as_deref(), Some("74HC"));
+        assert_eq!(cl.parts[3].family.as_deref(), Some("74HCT"));
+        assert_eq!(cl.parts[4].family.as_deref(), Some("74AC"));
+        // every part counts, copied or not
+        assert_eq!(cl.coverage, (6, 6));
+    }
 
     /// One `PartClass` per component: its size is held here so it cannot regrow unnoticed
     /// (496 bytes when its per-pin lists and value reading were its own copies).

@@ -5,6 +5,7 @@
 //! IIL), current into a pin positive. [`Family::levels`] gives a family's figures at any
 //! supply, saying how they were obtained ([`Basis`]).
 
+use std::borrow::Cow;
 use std::fmt;
 use std::ops::Range;
 
@@ -452,15 +453,58 @@ fn from_point(p: &Point, drive: Drive, basis: Basis) -> Levels {
 }
 
 /// The set of known families: the shipped table, possibly with a project's file over it.
-#[derive(Debug, Clone, PartialEq, Default, serde::Serialize, serde::Deserialize)]
+#[derive(Debug, Clone, Default)]
 pub struct FamilyTable {
-    families: Vec<Family>,
-    /// Each family's id, in capitals, to its index (rebuilt by [`FamilyTable::reindex`]).
-    #[serde(skip)]
-    by_id: rustc_hash::FxHashMap<String, usize>,
+    families: Vec<Entry>,
+    /// Each family's id, in capitals, to its index (rebuilt by [`FamilyTable::reindex`]); a
+    /// shipped id is borrowed from the compiled table.
+    by_id: rustc_hash::FxHashMap<Cow<'static, str>, usize>,
     /// Each alias, in capitals, to the last family that names it.
-    #[serde(skip)]
-    by_alias: rustc_hash::FxHashMap<String, usize>,
+    by_alias: rustc_hash::FxHashMap<Cow<'static, str>, usize>,
+}
+
+/// One family of a table: parsed from a file, or a shipped one still in the compact form
+/// `build.rs` wrote, decoded the first time a run asks for it (a board uses a few of the
+/// dozens shipped). Its id and aliases, in capitals, are kept beside it for the index.
+#[derive(Debug, Clone)]
+struct Entry {
+    id: Cow<'static, str>,
+    aliases: Vec<Cow<'static, str>>,
+    /// The compact form (postcard) of a shipped family; empty for a parsed one.
+    bytes: &'static [u8],
+    family: std::sync::OnceLock<Family>,
+}
+
+impl Entry {
+    fn parsed(f: Family) -> Entry {
+        Entry {
+            id: Cow::Owned(f.id.to_ascii_uppercase()),
+            aliases: f
+                .aliases
+                .iter()
+                .map(|a| Cow::Owned(a.to_ascii_uppercase()))
+                .collect(),
+            bytes: &[],
+            family: std::sync::OnceLock::from(f),
+        }
+    }
+
+    fn get(&self) -> &Family {
+        self.family.get_or_init(|| decode_family(self.bytes))
+    }
+}
+
+/// Decodes one shipped family. The bytes were written from the same type by the same build
+/// (`build.rs`), so decoding cannot fail unless the build itself is broken.
+fn decode_family(bytes: &[u8]) -> Family {
+    postcard::from_bytes(bytes)
+        .unwrap_or_else(|e| panic!("a shipped family built by build.rs decodes: {e}"))
+}
+
+impl PartialEq for FamilyTable {
+    fn eq(&self, other: &FamilyTable) -> bool {
+        self.iter().eq(other.iter())
+    }
 }
 
 impl FamilyTable {
@@ -468,8 +512,10 @@ impl FamilyTable {
     /// at compile time; the binary loads its result (`builtin`, in `shipped.rs`).
     pub fn parse_shipped() -> Result<FamilyTable, Vec<RuleError>> {
         let mut table = FamilyTable::parse(BUILTIN_TEXT)?;
-        for f in &mut table.families {
-            f.shipped = true;
+        for e in &mut table.families {
+            if let Some(f) = e.family.get_mut() {
+                f.shipped = true;
+            }
         }
         Ok(table)
     }
@@ -501,36 +547,71 @@ impl FamilyTable {
     /// A table of these families, indexed.
     pub fn new(families: Vec<Family>) -> FamilyTable {
         let mut t = FamilyTable {
-            families,
+            families: families.into_iter().map(Entry::parsed).collect(),
             ..Default::default()
         };
         t.reindex();
         t
     }
 
+    /// A table of shipped families in their compact form: each family's id and aliases (in
+    /// capitals) with the postcard bytes of its [`Family`], decoded when first asked for.
+    pub fn from_compact(
+        entries: impl IntoIterator<Item = (&'static str, Vec<&'static str>, &'static [u8])>,
+    ) -> FamilyTable {
+        let mut t = FamilyTable {
+            families: entries
+                .into_iter()
+                .map(|(id, aliases, bytes)| Entry {
+                    id: Cow::Borrowed(id),
+                    aliases: aliases.into_iter().map(Cow::Borrowed).collect(),
+                    bytes,
+                    family: std::sync::OnceLock::new(),
+                })
+                .collect(),
+            ..Default::default()
+        };
+        t.reindex();
+        t
+    }
+
+    /// The compact form [`FamilyTable::from_compact`] reads, for `build.rs`: each family's id
+    /// and aliases in capitals, and its postcard bytes.
+    pub fn to_compact(&self) -> Vec<(String, Vec<String>, Vec<u8>)> {
+        self.families
+            .iter()
+            .map(|e| {
+                (
+                    e.id.to_string(),
+                    e.aliases.iter().map(|a| a.to_string()).collect(),
+                    postcard::to_allocvec(e.get()).expect("a family encodes"),
+                )
+            })
+            .collect()
+    }
+
     /// Rebuilds the lookup by id and alias (after decoding or merging).
     pub fn reindex(&mut self) {
         self.by_id.clear();
         self.by_alias.clear();
-        for (i, f) in self.families.iter().enumerate() {
-            self.by_id.entry(f.id.to_ascii_uppercase()).or_insert(i);
-            for a in &f.aliases {
+        for (i, e) in self.families.iter().enumerate() {
+            self.by_id.entry(e.id.clone()).or_insert(i);
+            for a in &e.aliases {
                 // the family added last wins an alias
-                self.by_alias.insert(a.to_ascii_uppercase(), i);
+                self.by_alias.insert(a.clone(), i);
             }
         }
     }
 
     /// a project file over this one: a family with the same id replaces the shipped one; new ids are added
     pub fn merge(&mut self, over: FamilyTable) {
-        for f in over.families {
-            match self
-                .families
-                .iter_mut()
-                .find(|g| g.id.eq_ignore_ascii_case(&f.id))
-            {
-                Some(slot) => *slot = f,
-                None => self.families.push(f),
+        for e in over.families {
+            match self.by_id.get(e.id.as_ref()) {
+                Some(&i) => self.families[i] = e,
+                None => {
+                    self.by_id.insert(e.id.clone(), self.families.len());
+                    self.families.push(e);
+                }
             }
         }
         self.reindex();
@@ -542,17 +623,17 @@ impl FamilyTable {
         let name = id_or_alias.trim();
         // the ids the model passes around are written as in the table: no copy needed
         if let Some(&i) = self.by_id.get(name) {
-            return Some(&self.families[i]);
+            return Some(self.families[i].get());
         }
         let key = name.to_ascii_uppercase();
         self.by_id
-            .get(&key)
-            .or_else(|| self.by_alias.get(&key))
-            .map(|&i| &self.families[i])
+            .get(key.as_str())
+            .or_else(|| self.by_alias.get(key.as_str()))
+            .map(|&i| self.families[i].get())
     }
 
     pub fn iter(&self) -> impl Iterator<Item = &Family> {
-        self.families.iter()
+        self.families.iter().map(Entry::get)
     }
 
     pub fn len(&self) -> usize {
@@ -1110,6 +1191,48 @@ fn check_names(families: &[Family], errors: &mut Vec<RuleError>) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The shipped table decodes a family only when it is asked for, by id or alias, and a
+    /// project's family of the same id replaces it without decoding the others.
+    #[test]
+    fn shipped_families_are_decoded_when_asked_for() {
+        let decoded = |t: &FamilyTable| {
+            t.families
+                .iter()
+                .filter(|e| e.family.get().is_some())
+                .count()
+        };
+        let mut t = FamilyTable::builtin();
+        assert!(t.len() > 20, "{}", t.len());
+        assert_eq!(decoded(&t), 0);
+        assert_eq!(t.get("74hc").map(|f| f.id.as_str()), Some("74HC"));
+        assert_eq!(decoded(&t), 1);
+        let (id, alias) = t
+            .families
+            .iter()
+            .find_map(|e| Some((e.id.clone(), e.aliases.first()?.clone())))
+            .expect("a shipped family with an alias");
+        assert_eq!(
+            t.get(&alias.to_ascii_lowercase())
+                .map(|f| f.id.to_ascii_uppercase()),
+            Some(id.to_string())
+        );
+        assert!(decoded(&t) <= 2);
+        let mut over = FamilyTable::parse(BUILTIN_TEXT).expect("the shipped text parses");
+        over.families.retain(|e| e.id == "74LS");
+        over.families[0].family.get_mut().expect("parsed").name = "replaced".into();
+        over.reindex();
+        let n = t.len();
+        t.merge(over);
+        assert_eq!(t.len(), n);
+        assert_eq!(t.get("74LS").map(|f| f.name.as_str()), Some("replaced"));
+        assert!(decoded(&t) <= 3, "{}", decoded(&t));
+        // every family decodes to what the text gives
+        assert_eq!(
+            FamilyTable::builtin(),
+            FamilyTable::parse_shipped().expect("parses")
+        );
+    }
 
     const ONE: &str = r#"
 [[family]]

@@ -1,30 +1,31 @@
 //! The shipped tables as the binary loads them: `build.rs` reads `rules/*.toml` at compile
 //! time with the same code the project files are read with at run time (`parse_shipped`),
 //! checks them, and writes each table in postcard's compact binary form to `OUT_DIR`; start-up
-//! decodes those bytes instead of parsing and validating TOML. The functions, the largest
-//! table, are written one by one behind an index and decoded only when a run asks for one. `rules/*.toml` stay the
-//! source that is edited; a change to them rebuilds the binary.
+//! decodes those bytes instead of parsing and validating TOML. The functions and the families
+//! are written one by one behind an index and each is decoded only when a run asks for it.
+//! `rules/*.toml` stay the source that is edited; a change to them rebuilds the binary.
 
 use super::family::FamilyTable;
 use super::function::{FunctionTable, Series};
 use super::parts::PartTable;
 
-/// Decodes one table written by `build.rs`. The bytes were made from the same types by the
-/// same build, so decoding cannot fail unless the build itself is broken.
-fn decode<T: serde::de::DeserializeOwned>(bytes: &[u8], what: &str) -> T {
-    postcard::from_bytes(bytes)
-        .unwrap_or_else(|e| panic!("the shipped {what} table built by build.rs decodes: {e}"))
-}
-
 impl FamilyTable {
-    /// The shipped table (`rules/families.toml`, read at compile time).
+    /// The shipped table (`rules/families.toml`, read at compile time): an index of each
+    /// family's id and aliases, borrowed from the compiled bytes, and each family decoded the
+    /// first time a run asks for it.
     pub fn builtin() -> FamilyTable {
-        let mut t: FamilyTable = decode(
-            include_bytes!(concat!(env!("OUT_DIR"), "/families.postcard")),
-            "families",
-        );
-        t.reindex();
-        t
+        static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/families.postcard"));
+        static INDEX: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/families-index.postcard"));
+        // the ids and aliases are borrowed from the compiled index
+        let index: Vec<(&'static str, Vec<&'static str>, u32, u32)> = postcard::from_bytes(INDEX)
+            .unwrap_or_else(|e| {
+                panic!("the shipped families index built by build.rs decodes: {e}")
+            });
+        FamilyTable::from_compact(
+            index
+                .into_iter()
+                .map(|(id, aliases, a, b)| (id, aliases, &BYTES[a as usize..b as usize])),
+        )
     }
 }
 
