@@ -218,6 +218,69 @@ impl SourceFile {
     pub fn line_count(&self) -> usize {
         self.starts().len()
     }
+
+    /// A cursor for many [`SourceFile::line_col`] lookups in a row (a report's places).
+    pub fn cursor(&self) -> LineCursor<'_> {
+        LineCursor {
+            source: self,
+            starts: self.starts(),
+            line: 0,
+        }
+    }
+
+    /// The index in [`SourceFile::files`] of the file holding byte `offset` (`None` for a
+    /// single file).
+    pub fn part_index_at(&self, offset: usize) -> Option<usize> {
+        let p = self.part_at(offset)?;
+        Some((p as *const FilePart as usize - self.files.as_ptr() as usize) / size_of::<FilePart>())
+    }
+}
+
+/// [`SourceFile::line_col`] for offsets that come near each other: a finding's start and end,
+/// findings of one part. The line of the last lookup is tried before a binary search.
+pub struct LineCursor<'a> {
+    source: &'a SourceFile,
+    starts: &'a [u32],
+    /// 0-based index of the line of the last lookup.
+    line: usize,
+}
+
+impl<'a> LineCursor<'a> {
+    /// The source looked up in.
+    pub fn source(&self) -> &'a SourceFile {
+        self.source
+    }
+
+    /// The same as [`SourceFile::line_col`].
+    pub fn line_col(&mut self, offset: usize) -> LineCol {
+        let bytes = self.source.text.as_bytes();
+        let offset = offset.min(bytes.len());
+        let o = offset as u32;
+        let starts = self.starts;
+        let here = starts[self.line] <= o && starts.get(self.line + 1).is_none_or(|&next| o < next);
+        if !here {
+            self.line = match starts.binary_search(&o) {
+                Ok(i) => i,
+                Err(i) => i - 1,
+            };
+        }
+        let line_start = starts[self.line] as usize;
+        let column = count_columns(&bytes[line_start..offset]) + 1;
+        let first = if self.source.files.is_empty() {
+            0
+        } else {
+            self.source.first_line_of(offset)
+        };
+        LineCol {
+            line: self.line + 1 - first,
+            column,
+        }
+    }
+}
+
+/// Characters in UTF-8 `bytes` (lead bytes; an invalid byte counts as one).
+fn count_columns(bytes: &[u8]) -> usize {
+    bytes.iter().filter(|&&b| (b & 0xC0) != 0x80).count()
 }
 
 /// Byte offsets where each line starts. A line ends at `\n`, at `\r\n`, or at a lone `\r`
@@ -251,11 +314,7 @@ pub fn line_col_in(bytes: &[u8], starts: &[u32], offset: usize) -> LineCol {
         Err(i) => i - 1,
     };
     let line_start = starts[i] as usize;
-    let column = bytes[line_start..offset]
-        .iter()
-        .filter(|&&b| (b & 0xC0) != 0x80)
-        .count()
-        + 1;
+    let column = count_columns(&bytes[line_start..offset]) + 1;
     LineCol {
         line: i + 1,
         column,
@@ -336,6 +395,33 @@ mod tests {
         // a clone shares the index built through the original
         let twin = taken.clone();
         assert_eq!(twin.line_col(9), LineCol { line: 2, column: 6 });
+    }
+
+    #[test]
+    fn a_cursor_gives_what_a_lookup_gives_in_any_order() {
+        let one = SourceFile::new("t", "ab\r\nçd\ne\rf\n\n(g \"Ω\")");
+        let several = SourceFile::from_files(
+            "root",
+            vec![
+                ("root".into(), "(a\n (b))".into()),
+                ("sub".into(), "(c\r\n  (dΩ))\n".into()),
+            ],
+        );
+        for f in [&one, &several] {
+            let n = f.text().len();
+            // forwards, backwards, jumping about and past the end
+            let order: Vec<usize> = (0..=n + 2)
+                .chain((0..=n).rev())
+                .chain((0..=n).map(|i| (i * 7) % (n + 1)))
+                .collect();
+            let mut c = f.cursor();
+            for off in order {
+                assert_eq!(c.line_col(off), f.line_col(off), "offset {off}");
+            }
+        }
+        assert_eq!(several.part_index_at(0), Some(0));
+        assert_eq!(several.part_index_at(several.text().len() - 1), Some(1));
+        assert_eq!(one.part_index_at(3), None);
     }
 
     #[test]

@@ -328,6 +328,9 @@ pub fn command(
     let written =
         crate::report::write_report(&ropts, &run.outcomes, &mut out).and_then(|()| out.flush());
     drop(phase);
+    // the process ends when this returns: its memory goes back to the system at once, so the
+    // findings (hundreds of thousands on a big board) are not freed one by one first
+    std::mem::forget(run);
     match written {
         // the reader stopped reading (`| head`): the run is complete, its code stands
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(code),

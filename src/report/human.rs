@@ -146,7 +146,7 @@ fn label_groups(diag: &Diag, source: &SourceFile) -> Vec<((usize, usize), Vec<us
 /// length, with each unsafe character replaced; the name sanitized.
 pub fn safe_source(source: &SourceFile) -> Cow<'_, SourceFile> {
     let name = sanitize(source.name());
-    let unsafe_text = source.text().chars().any(is_unsafe);
+    let unsafe_text = has_unsafe(source.text().as_bytes());
     if !unsafe_text && matches!(name, Cow::Borrowed(_)) {
         return Cow::Borrowed(source);
     }
@@ -156,6 +156,18 @@ pub fn safe_source(source: &SourceFile) -> Cow<'_, SourceFile> {
         source.text().to_string()
     };
     Cow::Owned(SourceFile::new(name.into_owned(), text))
+}
+
+/// Whether `text` holds a character [`is_unsafe`] takes: a C0 control other than a line end
+/// or a tab (looked for a block at a time, without an early exit, which the compiler turns
+/// into wide steps), or one of those the JSON format escapes.
+fn has_unsafe(text: &[u8]) -> bool {
+    let c0 = |block: &[u8]| {
+        block.iter().fold(0u8, |m, &b| {
+            m | u8::from(b < 0x20 && b != b'\t' && b != b'\n' && b != b'\r')
+        }) != 0
+    };
+    text.chunks(1 << 12).any(c0) || super::json::has_escapes(text)
 }
 
 /// Characters that must not reach a terminal inside a source line. Line ends stay: they
@@ -235,6 +247,8 @@ fn write_file_with(
             // where each other finding is: its net, else its first pin, else the part its
             // message names first; a place named several times is named once, with a count
             let mut nets: Vec<(String, usize)> = Vec::new();
+            // where each place is in `nets` (a group can hold a finding on every net)
+            let mut at_index: rustc_hash::FxHashMap<String, usize> = Default::default();
             for &i in &group[1..] {
                 let o = &f.diags[i];
                 let at = o
@@ -244,9 +258,12 @@ fn write_file_with(
                     .or_else(|| o.message.split_whitespace().next().map(str::to_string))
                     .map(|n| sanitize(&n).into_owned())
                     .unwrap_or_default();
-                match nets.iter_mut().find(|(n, _)| *n == at) {
-                    Some((_, k)) => *k += 1,
-                    None => nets.push((at, 1)),
+                match at_index.get(&at) {
+                    Some(&k) => nets[k].1 += 1,
+                    None => {
+                        at_index.insert(at.clone(), nets.len());
+                        nets.push((at, 1));
+                    }
                 }
             }
             let count = group.len() - 1;
@@ -328,7 +345,7 @@ fn shape(d: &Diag) -> String {
 /// Groups findings of one shape, in the order of their first appearance; groups smaller than
 /// [`FOLD_AT`] are split back into single findings.
 fn fold(diags: &[Diag]) -> Vec<Vec<usize>> {
-    let mut by_shape: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+    let mut by_shape: rustc_hash::FxHashMap<String, usize> = Default::default();
     let mut groups: Vec<Vec<usize>> = Vec::new();
     for (i, d) in diags.iter().enumerate() {
         // only the checks' findings fold: every problem with the input is shown in full
@@ -414,6 +431,11 @@ mod tests {
         assert_eq!(shown.text(), "(ref \"U?[2J\u{bf}1\u{fffd}x\")\r\n(b)");
         assert_eq!(shown.name(), "a\\u{1b}b.net");
         assert_eq!(shown.line_count(), src.line_count());
+        // every character is found unsafe by the quick look exactly when it is by `is_unsafe`
+        for c in (0..0x3000).filter_map(char::from_u32) {
+            let text = format!("(a \"{c}\")\r\n\t");
+            assert_eq!(has_unsafe(text.as_bytes()), is_unsafe(c), "{:#x}", c as u32);
+        }
         let clean = SourceFile::new("ok.net", "(a)\n");
         assert!(matches!(safe_source(&clean), Cow::Borrowed(_)));
     }

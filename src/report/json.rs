@@ -5,9 +5,11 @@
 //! serde_json escapes the C0 controls; [`escape_unsafe`] then escapes what it leaves raw and
 //! a terminal could still act on (DEL, C1 controls, bidi overrides, line and paragraph
 //! separators), so the document can be shown on a terminal as it is and reads back the same.
+//! The escape is applied to the text on its way out ([`write_safe_pretty`]).
 
 use std::io::{self, Write};
 
+use serde::ser::SerializeStruct;
 use serde::Serialize;
 
 use super::{
@@ -16,7 +18,7 @@ use super::{
 };
 use crate::diag::{Diag, Severity};
 use crate::pipeline::FileOutcome;
-use crate::source::{SourceFile, Span};
+use crate::source::{LineCursor, SourceFile, Span};
 
 /// The version of this document's layout.
 pub const FORMAT_VERSION: u32 = 1;
@@ -54,17 +56,19 @@ struct Findings<'a> {
 
 impl Serialize for Findings<'_> {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        // findings of one part come together: their lines are looked up near each other
+        let mut lines = self.source.map(SourceFile::cursor);
         s.collect_seq(
             self.diags
                 .iter()
                 .zip(&self.fingerprints)
-                .map(|(d, &fp)| finding(d, self.source, fp)),
+                .map(|(d, &fp)| finding(d, lines.as_mut(), fp)),
         )
     }
 }
 
 /// A fingerprint, written as 16 hex digits.
-struct Fingerprint(u64);
+pub(crate) struct Fingerprint(pub(crate) u64);
 
 impl Serialize for Fingerprint {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
@@ -87,7 +91,7 @@ struct SummaryOut {
     ic_like: Option<usize>,
 }
 
-#[derive(Serialize)]
+/// A finding as written: its place's fields sit among its own (see the `Serialize` impl).
 struct Finding<'a> {
     check: &'a str,
     severity: Severity,
@@ -95,26 +99,49 @@ struct Finding<'a> {
     net: Option<&'a str>,
     pins: &'a [String],
     label: Option<&'a str>,
-    #[serde(flatten)]
-    place: PlaceOut,
+    place: PlaceOut<'a>,
     help: Option<&'a str>,
     related: Vec<Related<'a>>,
     fingerprint: Fingerprint,
 }
 
-#[derive(Serialize)]
-struct Related<'a> {
-    message: &'a str,
-    #[serde(flatten)]
-    place: PlaceOut,
+impl Serialize for Finding<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut m = s.serialize_struct("Finding", 16)?;
+        m.serialize_field("check", self.check)?;
+        m.serialize_field("severity", &self.severity)?;
+        m.serialize_field("message", self.message)?;
+        m.serialize_field("net", &self.net)?;
+        m.serialize_field("pins", self.pins)?;
+        m.serialize_field("label", &self.label)?;
+        self.place.fields(&mut m)?;
+        m.serialize_field("help", &self.help)?;
+        m.serialize_field("related", &self.related)?;
+        m.serialize_field("fingerprint", &self.fingerprint)?;
+        m.end()
+    }
 }
 
-#[derive(Serialize, Default)]
-struct PlaceOut {
+struct Related<'a> {
+    message: &'a str,
+    place: PlaceOut<'a>,
+}
+
+impl Serialize for Related<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut m = s.serialize_struct("Related", 8)?;
+        m.serialize_field("message", self.message)?;
+        self.place.fields(&mut m)?;
+        m.end()
+    }
+}
+
+/// Where a finding or a related place is, written as fields of the object that holds it.
+#[derive(Default)]
+struct PlaceOut<'a> {
     /// The sheet file the place is in, for a schematic project (absent for a netlist: the
     /// file's `path` says it).
-    #[serde(skip_serializing_if = "Option::is_none")]
-    file: Option<String>,
+    file: Option<&'a str>,
     line: Option<usize>,
     column: Option<usize>,
     end_line: Option<usize>,
@@ -123,14 +150,29 @@ struct PlaceOut {
     byte_length: Option<usize>,
 }
 
-impl PlaceOut {
-    fn of(source: Option<&SourceFile>, span: Option<Span>) -> PlaceOut {
-        match (source, span) {
-            (Some(src), Some(span)) => {
-                let p = Place::of(src, span);
+impl PlaceOut<'_> {
+    fn fields<M: SerializeStruct>(&self, m: &mut M) -> Result<(), M::Error> {
+        match self.file {
+            Some(file) => m.serialize_field("file", file)?,
+            None => m.skip_field("file")?,
+        }
+        m.serialize_field("line", &self.line)?;
+        m.serialize_field("column", &self.column)?;
+        m.serialize_field("end_line", &self.end_line)?;
+        m.serialize_field("end_column", &self.end_column)?;
+        m.serialize_field("byte_offset", &self.byte_offset)?;
+        m.serialize_field("byte_length", &self.byte_length)
+    }
+}
+
+impl<'a> PlaceOut<'a> {
+    fn of(lines: Option<&mut LineCursor<'a>>, span: Option<Span>) -> PlaceOut<'a> {
+        match (lines, span) {
+            (Some(lines), Some(span)) => {
+                let p = Place::at(lines, span);
+                let src = lines.source();
                 PlaceOut {
-                    file: (!src.files().is_empty())
-                        .then(|| src.file_at(span.start as usize).to_string()),
+                    file: (!src.files().is_empty()).then(|| src.file_at(span.start as usize)),
                     line: Some(p.line),
                     column: Some(p.column),
                     end_line: Some(p.end_line),
@@ -159,7 +201,11 @@ struct TotalsOut {
     ic_like: Option<usize>,
 }
 
-fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: u64) -> Finding<'a> {
+fn finding<'a>(
+    d: &'a Diag,
+    mut lines: Option<&mut LineCursor<'a>>,
+    fingerprint: u64,
+) -> Finding<'a> {
     let primary = primary_label(d);
     Finding {
         check: &d.code,
@@ -168,12 +214,12 @@ fn finding<'a>(d: &'a Diag, source: Option<&SourceFile>, fingerprint: u64) -> Fi
         net: d.net.as_deref(),
         pins: &d.pins,
         label: primary.map(|l| &*l.text).filter(|t| !t.is_empty()),
-        place: PlaceOut::of(source, primary.map(|l| l.span)),
+        place: PlaceOut::of(lines.as_deref_mut(), primary.map(|l| l.span)),
         help: d.help.as_deref(),
         related: related_labels(d)
             .map(|l| Related {
                 message: &l.text,
-                place: PlaceOut::of(source, Some(l.span)),
+                place: PlaceOut::of(lines.as_deref_mut(), Some(l.span)),
             })
             .collect(),
         fingerprint: Fingerprint(fingerprint),
@@ -190,10 +236,10 @@ fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
             File {
                 path: &f.name,
                 checked,
-                error: f
-                    .fatal
-                    .as_ref()
-                    .map(|d| finding(d, src, fnv1a64(fingerprint_key(d, src).as_bytes()))),
+                error: f.fatal.as_ref().map(|d| {
+                    let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
+                    finding(d, src.map(SourceFile::cursor).as_mut(), fp)
+                }),
                 summary: checked.then(|| SummaryOut {
                     parts: f.summary.parts,
                     nets: f.summary.nets,
@@ -258,6 +304,11 @@ fn needs_escape(c: char) -> bool {
         || matches!(c, '\u{200e}' | '\u{200f}' | '\u{202a}'..='\u{202e}' | '\u{2066}'..='\u{2069}' | '\u{2028}' | '\u{2029}')
 }
 
+/// Whether UTF-8 `text` holds a character [`needs_escape`] takes.
+pub(crate) fn has_escapes(text: &[u8]) -> bool {
+    unsafe_at(text).next().is_some()
+}
+
 /// Where the characters [`needs_escape`] takes start in UTF-8 `text`, with each character
 /// (`None` when the text ends inside it). Each is DEL, or starts with the byte 0xC2 (the C1
 /// controls) or 0xE2 (the others): only those bytes are looked at.
@@ -274,6 +325,91 @@ fn unsafe_at(text: &[u8]) -> impl Iterator<Item = (usize, Option<char>)> + '_ {
         let c = std::str::from_utf8(bytes).ok()?.chars().next()?;
         needs_escape(c).then_some((i, Some(c)))
     })
+}
+
+/// serde_json's pretty layout (objects and arrays over lines, two spaces a level), with each
+/// line break and its indent written at once (serde_json's own writes the indent a level at a
+/// time).
+pub(crate) struct Pretty {
+    depth: usize,
+    has_value: bool,
+}
+
+impl Pretty {
+    pub(crate) fn new() -> Pretty {
+        Pretty {
+            depth: 0,
+            has_value: false,
+        }
+    }
+
+    /// `,` when not the first item, a line break and the indent of the current depth.
+    fn line<W: ?Sized + Write>(&self, w: &mut W, comma: bool) -> io::Result<()> {
+        const BREAK: &[u8] = b",\n                                                                ";
+        let from = usize::from(!comma);
+        let want = 2 + 2 * self.depth;
+        if want <= BREAK.len() {
+            w.write_all(&BREAK[from..want])
+        } else {
+            w.write_all(&BREAK[from..2])?;
+            for _ in 0..self.depth {
+                w.write_all(b"  ")?;
+            }
+            Ok(())
+        }
+    }
+
+    fn close<W: ?Sized + Write>(&mut self, w: &mut W, bracket: &[u8]) -> io::Result<()> {
+        self.depth -= 1;
+        if self.has_value {
+            self.line(w, false)?;
+        }
+        w.write_all(bracket)
+    }
+}
+
+impl serde_json::ser::Formatter for Pretty {
+    fn begin_array<W: ?Sized + Write>(&mut self, w: &mut W) -> io::Result<()> {
+        self.depth += 1;
+        self.has_value = false;
+        w.write_all(b"[")
+    }
+
+    fn end_array<W: ?Sized + Write>(&mut self, w: &mut W) -> io::Result<()> {
+        self.close(w, b"]")
+    }
+
+    fn begin_array_value<W: ?Sized + Write>(&mut self, w: &mut W, first: bool) -> io::Result<()> {
+        self.line(w, !first)
+    }
+
+    fn end_array_value<W: ?Sized + Write>(&mut self, _w: &mut W) -> io::Result<()> {
+        self.has_value = true;
+        Ok(())
+    }
+
+    fn begin_object<W: ?Sized + Write>(&mut self, w: &mut W) -> io::Result<()> {
+        self.depth += 1;
+        self.has_value = false;
+        w.write_all(b"{")
+    }
+
+    fn end_object<W: ?Sized + Write>(&mut self, w: &mut W) -> io::Result<()> {
+        self.close(w, b"}")
+    }
+
+    fn begin_object_key<W: ?Sized + Write>(&mut self, w: &mut W, first: bool) -> io::Result<()> {
+        self.line(w, !first)
+    }
+
+    fn begin_object_value<W: ?Sized + Write>(&mut self, w: &mut W) -> io::Result<()> {
+        w.write_all(b": ")
+    }
+
+    fn end_object_value<W: ?Sized + Write>(&mut self, _w: &mut W) -> io::Result<()> {
+        self.has_value = true;
+        Ok(())
+    }
 }
 
 /// A writer that passes UTF-8 text on with [`escape_unsafe`]'s escapes, so a document is
@@ -329,6 +465,28 @@ impl Write for Escaping<'_> {
     }
 }
 
+/// Writes `value` to `out` in [`Pretty`]'s layout, escaped on the way (the text is
+/// `escape_unsafe(to_string_pretty(value))`), with a final line end. The document is never
+/// held whole.
+pub(crate) fn write_safe_pretty<T: Serialize + ?Sized>(
+    value: &T,
+    out: &mut dyn Write,
+) -> io::Result<()> {
+    // serde_json writes in small pieces: the escape looks at them in large ones
+    let mut w = io::BufWriter::with_capacity(
+        1 << 16,
+        Escaping {
+            out,
+            pending: Vec::new(),
+        },
+    );
+    let mut ser = serde_json::Serializer::with_formatter(&mut w, Pretty::new());
+    value.serialize(&mut ser).map_err(io::Error::from)?;
+    w.into_inner()
+        .map_err(io::IntoInnerError::into_error)?
+        .finish()
+}
+
 /// The document as text, with a final line end.
 pub fn to_string(files: &[FileOutcome]) -> String {
     to_string_run(files, None)
@@ -352,23 +510,36 @@ fn write_run(
     netlists: Option<usize>,
     out: &mut dyn Write,
 ) -> io::Result<()> {
-    // serde_json writes in small pieces: the escape looks at them in large ones
-    let mut w = io::BufWriter::with_capacity(
-        1 << 16,
-        Escaping {
-            out,
-            pending: Vec::new(),
-        },
-    );
-    serde_json::to_writer_pretty(&mut w, &document(files, netlists)).map_err(io::Error::from)?;
-    w.into_inner()
-        .map_err(io::IntoInnerError::into_error)?
-        .finish()
+    write_safe_pretty(&document(files, netlists), out)
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The layout is serde_json's pretty one with the whole-text escape applied: nested,
+    /// empty and deep objects and arrays, keys and strings with characters to escape.
+    #[test]
+    fn safe_pretty_writes_the_escaped_pretty_text() {
+        let deep = (0..40).fold(
+            serde_json::json!([1, "x\u{202e}"]),
+            |v, i| serde_json::json!({ format!("k{i}"): v, "e": [], "o": {} }),
+        );
+        let doc = serde_json::json!({
+            "a": "x\u{7f}µ\u{9b}\u{202e}Ω\u{2028}\u{2066}\u{2069}\u{2070}é\u{a0}\"\\\n\u{1b}",
+            "k\u{2029}ey": [1, 2.5, null, true, [], {}, [[]], {"x": {"y": []}}],
+            "empty": {},
+            "list": [{"m": "\u{200e}", "n": -3}, "s"],
+            "deep": deep,
+        });
+        let mut out = Vec::new();
+        write_safe_pretty(&doc, &mut out).unwrap();
+        let want = escape_unsafe(serde_json::to_string_pretty(&doc).unwrap()) + "\n";
+        assert_eq!(String::from_utf8(out).unwrap(), want);
+        // U+2070 and U+00A0 start with the bytes looked at but are left as they are
+        assert!(want.contains("\u{2070}é\u{a0}"));
+        assert!(!want.contains('\u{2069}') && want.contains("\\u2069"));
+    }
 
     /// The writer escapes as the whole-text escape does, however the text is cut into
     /// writes (here one byte at a time, so every character of more than one byte is cut).

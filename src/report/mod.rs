@@ -29,7 +29,7 @@ use clap::ValueEnum;
 
 use crate::diag::{Diag, Label, Severity};
 use crate::pipeline::FileOutcome;
-use crate::source::{SourceFile, Span};
+use crate::source::{LineCursor, SourceFile, Span};
 
 /// The program's name and version, as the machine formats report them.
 pub const TOOL_NAME: &str = "netmargin";
@@ -118,11 +118,17 @@ pub struct Place {
 impl Place {
     /// The place of `span` in `source` (clamped to the text).
     pub fn of(source: &SourceFile, span: Span) -> Place {
+        Place::at(&mut source.cursor(), span)
+    }
+
+    /// [`Place::of`] through a cursor kept over many places of one source.
+    pub fn at(lines: &mut LineCursor<'_>, span: Span) -> Place {
+        let source = lines.source();
         let len = source.text().len();
         let start = (span.start as usize).min(len);
         let end = (span.end as usize).clamp(start, len);
-        let a = source.line_col(start);
-        let b = source.line_col(end);
+        let a = lines.line_col(start);
+        let b = lines.line_col(end);
         // in a source made of several files, offsets count from the start of the file
         let base = source.part_at(start).map_or(0, |p| p.start as usize);
         Place {
@@ -184,9 +190,14 @@ fn fnv1a64_more(mut h: u64, bytes: &[u8]) -> u64 {
 /// the pins (which name the parts); when it names neither a net nor a pin, the text of its
 /// primary element with white space collapsed. Never a line number or an offset.
 pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
-    let mut key = String::with_capacity(
-        d.code.len() + 1 + d.net.as_ref().map_or(0, String::len) + d.pins.len() * 8,
-    );
+    let mut key = String::new();
+    write_fingerprint_key(d, source, &mut key);
+    key
+}
+
+/// [`fingerprint_key`] written into `key` (cleared first), so one buffer serves every finding.
+fn write_fingerprint_key(d: &Diag, source: Option<&SourceFile>, key: &mut String) {
+    key.clear();
     key.push_str(&d.code);
     key.push('\u{1f}');
     key.push_str(d.net.as_deref().unwrap_or(""));
@@ -208,7 +219,6 @@ pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
             }
         }
     }
-    key
 }
 
 /// The fingerprints of a file's findings, in order: 16 hex digits of FNV-1a 64 of the key.
@@ -223,19 +233,57 @@ pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
 
 /// [`fingerprints`] as numbers, for a reporter that writes each as it goes.
 pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
-    let mut seen: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
+    key_ranks(f, fnv1a64)
+        .into_iter()
+        .map(|(h, n)| {
+            // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
+            if n > 0 {
+                fnv1a64_more(h, format!("\u{1d}{n}").as_bytes())
+            } else {
+                h
+            }
+        })
+        .collect()
+}
+
+/// Each finding's `hash` of its key, and its rank among the file's findings with that key.
+///
+/// Keys are counted by their hash, each hash with the first finding that had it; a hash met
+/// again is checked against that finding's key, and a different key with the same hash is
+/// counted apart by its text. No key is kept as text unless two differ with one hash.
+fn key_ranks(f: &FileOutcome, hash: fn(&[u8]) -> u64) -> Vec<(u64, usize)> {
+    use std::collections::hash_map::Entry;
+    let source = f.source.as_ref();
+    // hash -> (the first finding with it, how many findings had its key so far)
+    let mut seen: rustc_hash::FxHashMap<u64, (usize, usize)> = rustc_hash::FxHashMap::default();
+    seen.reserve(f.diags.len());
+    let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
+    let (mut key, mut first_key) = (String::new(), String::new());
     f.diags
         .iter()
-        .map(|d| {
-            let key = fingerprint_key(d, f.source.as_ref());
-            // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
-            let mut h = fnv1a64(key.as_bytes());
-            let n = seen.entry(key).or_insert(0);
-            if *n > 0 {
-                h = fnv1a64_more(h, format!("\u{1d}{n}").as_bytes());
-            }
-            *n += 1;
-            h
+        .enumerate()
+        .map(|(i, d)| {
+            write_fingerprint_key(d, source, &mut key);
+            let h = hash(key.as_bytes());
+            let n = match seen.entry(h) {
+                Entry::Vacant(e) => {
+                    e.insert((i, 1));
+                    0
+                }
+                Entry::Occupied(mut e) => {
+                    let (first, count) = e.get_mut();
+                    write_fingerprint_key(&f.diags[*first], source, &mut first_key);
+                    if first_key == key {
+                        *count += 1;
+                        *count - 1
+                    } else {
+                        let n = collided.entry(key.clone()).or_insert(0);
+                        *n += 1;
+                        *n - 1
+                    }
+                }
+            };
+            (h, n)
         })
         .collect()
 }
@@ -420,6 +468,52 @@ mod tests {
             fnv1a64_more(fnv1a64(a.as_bytes()), b.as_bytes()),
             fnv1a64(whole.as_bytes())
         );
+    }
+
+    /// Ranks counted by hash equal ranks counted by the key's text, even when every key
+    /// has the same hash or keys of one length share one.
+    #[test]
+    fn key_ranks_count_each_key_apart_whatever_the_hash() {
+        let mk = |code: &'static str, net: Option<&str>, pins: &[&str]| {
+            let mut d = Diag::warning(code, "m");
+            d.net = net.map(str::to_string);
+            d.pins = pins.iter().map(|p| p.to_string()).collect();
+            d
+        };
+        let diags = vec![
+            mk("a", Some("N1"), &["U1.1"]),
+            mk("a", Some("N2"), &["U1.1"]),
+            mk("a", Some("N1"), &["U1.1"]),
+            mk("b", Some("N1"), &[]),
+            mk("a", Some("N2"), &["U1.1"]),
+            mk("a", Some("N1"), &["U1.1"]),
+            mk("b", None, &["N1"]),
+            mk("b", Some("N1"), &[]),
+        ];
+        let f = FileOutcome {
+            name: "t.net".into(),
+            source: None,
+            fatal: None,
+            diags,
+            summary: Default::default(),
+            coverage: None,
+            waived: 0,
+        };
+        let mut by_text: std::collections::HashMap<String, usize> = Default::default();
+        let want: Vec<usize> = f
+            .diags
+            .iter()
+            .map(|d| {
+                let n = by_text.entry(fingerprint_key(d, None)).or_insert(0);
+                *n += 1;
+                *n - 1
+            })
+            .collect();
+        assert_eq!(want, [0, 0, 1, 0, 1, 2, 0, 1]);
+        for hash in [fnv1a64 as fn(&[u8]) -> u64, |_| 7, |k| k.len() as u64] {
+            let got: Vec<usize> = key_ranks(&f, hash).into_iter().map(|(_, n)| n).collect();
+            assert_eq!(got, want);
+        }
     }
 
     #[test]

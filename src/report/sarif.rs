@@ -19,14 +19,16 @@ use std::io::{self, Write};
 
 use serde::Serialize;
 
+use serde::ser::SerializeMap;
+
 use super::{
-    fatal_fingerprint, fingerprints, primary_label, related_labels, rooted_path, Place,
-    ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
+    fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, rooted_path,
+    Place, ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
 };
 use crate::checks::REGISTRY;
 use crate::diag::{Diag, Severity, INPUT_CODES};
 use crate::pipeline::FileOutcome;
-use crate::source::SourceFile;
+use crate::source::{LineCursor, SourceFile};
 
 /// The OASIS schema of SARIF 2.1.0 (with its errata), named in `$schema`.
 pub const SCHEMA_URI: &str =
@@ -51,7 +53,46 @@ struct Run<'a> {
     original_uri_base_ids: BTreeMap<&'static str, ArtifactLocation>,
     column_kind: &'static str,
     invocations: Vec<Invocation>,
-    results: Vec<SarifResult<'a>>,
+    results: Results<'a>,
+}
+
+/// Every file's results, each made into its [`SarifResult`] as it is written (never all at
+/// once: a board can have hundreds of thousands).
+struct Results<'a> {
+    files: &'a [FileOutcome],
+    /// Per file: the input's location, then one per sheet of a schematic project.
+    artifacts: Vec<Vec<ArtifactLocation>>,
+    index: BTreeMap<&'static str, usize>,
+}
+
+impl Serialize for Results<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let index = &self.index;
+        s.collect_seq(
+            self.files
+                .iter()
+                .zip(&self.artifacts)
+                .flat_map(|(f, arts)| {
+                    let src = f.source.as_ref();
+                    // a schematic's findings point into the sheet file where the item is drawn
+                    let art_of = move |d: &Diag| {
+                        let sheet = primary_label(d)
+                            .and_then(|l| src?.part_index_at(l.span.start as usize));
+                        &arts[sheet.map_or(0, |i| i + 1)]
+                    };
+                    // findings of one part come together: their lines are looked up near each other
+                    let mut lines = src.map(SourceFile::cursor);
+                    let fatal = f
+                        .fatal
+                        .as_ref()
+                        .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
+                    fatal
+                        .into_iter()
+                        .chain(f.diags.iter().zip(fingerprint_hashes(f)))
+                        .map(move |(d, fp)| result(d, lines.as_mut(), art_of(d), index, fp))
+                }),
+        )
+    }
 }
 
 #[derive(Serialize)]
@@ -121,10 +162,10 @@ struct SarifResult<'a> {
     rule_index: Option<usize>,
     level: &'static str,
     message: Message<'a>,
-    locations: Vec<Location<'a>>,
+    locations: [Location<'a>; 1],
     #[serde(skip_serializing_if = "Vec::is_empty")]
     related_locations: Vec<Location<'a>>,
-    partial_fingerprints: BTreeMap<&'static str, String>,
+    partial_fingerprints: PartialFingerprints,
     #[serde(skip_serializing_if = "Properties::is_empty")]
     properties: Properties<'a>,
 }
@@ -150,15 +191,26 @@ impl Properties<'_> {
 struct Location<'a> {
     #[serde(skip_serializing_if = "Option::is_none")]
     id: Option<usize>,
-    physical_location: PhysicalLocation,
+    physical_location: PhysicalLocation<'a>,
     #[serde(skip_serializing_if = "Option::is_none")]
     message: Option<Message<'a>>,
 }
 
+/// `partialFingerprints`: our one fingerprint, under [`FINGERPRINT_KEY`].
+struct PartialFingerprints(u64);
+
+impl Serialize for PartialFingerprints {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let mut m = s.serialize_map(Some(1))?;
+        m.serialize_entry(FINGERPRINT_KEY, &super::json::Fingerprint(self.0))?;
+        m.end()
+    }
+}
+
 #[derive(Serialize)]
 #[serde(rename_all = "camelCase")]
-struct PhysicalLocation {
-    artifact_location: ArtifactLocation,
+struct PhysicalLocation<'a> {
+    artifact_location: &'a ArtifactLocation,
     #[serde(skip_serializing_if = "Option::is_none")]
     region: Option<Region>,
 }
@@ -319,17 +371,17 @@ fn artifact(name: &str, opts: &ReportOptions) -> ArtifactLocation {
 
 fn result<'a>(
     d: &'a Diag,
-    source: Option<&SourceFile>,
-    art: &ArtifactLocation,
+    mut lines: Option<&mut LineCursor<'_>>,
+    art: &'a ArtifactLocation,
     index: &BTreeMap<&str, usize>,
-    fingerprint: String,
+    fingerprint: u64,
 ) -> SarifResult<'a> {
-    let place = |span| source.map(|s| Region::of(Place::of(s, span)));
+    let mut place = |span| lines.as_deref_mut().map(|l| Region::of(Place::at(l, span)));
     let primary = primary_label(d);
     let location = Location {
         id: None,
         physical_location: PhysicalLocation {
-            artifact_location: art.clone(),
+            artifact_location: art,
             region: primary.and_then(|l| place(l.span)),
         },
         message: primary
@@ -341,7 +393,7 @@ fn result<'a>(
         .map(|(i, l)| Location {
             id: Some(i + 1),
             physical_location: PhysicalLocation {
-                artifact_location: art.clone(),
+                artifact_location: art,
                 region: place(l.span),
             },
             message: Some(Message { text: &l.text }),
@@ -352,9 +404,9 @@ fn result<'a>(
         rule_index: index.get(&*d.code).copied(),
         level: level(d.severity),
         message: Message { text: &d.message },
-        locations: vec![location],
+        locations: [location],
         related_locations: related,
-        partial_fingerprints: BTreeMap::from([(FINGERPRINT_KEY, fingerprint)]),
+        partial_fingerprints: PartialFingerprints(fingerprint),
         properties: Properties {
             net: d.net.as_deref(),
             pins: &d.pins,
@@ -365,31 +417,31 @@ fn result<'a>(
 
 /// The SARIF log as text, with a final line end.
 pub fn to_string(opts: &ReportOptions, files: &[FileOutcome]) -> String {
+    let mut out = Vec::new();
+    write(opts, files, &mut out).expect("a log of strings and numbers serializes");
+    String::from_utf8(out).expect("serde_json writes UTF-8")
+}
+
+/// The SARIF log written to `out` as it is serialized, escaped on the way (as the JSON
+/// format is), with a final line end.
+pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
     let rules = rules();
-    let index: BTreeMap<&str, usize> = rules
+    let index: BTreeMap<&'static str, usize> = rules
         .iter()
         .enumerate()
         .rev()
         .map(|(i, r)| (r.id, i))
         .collect();
-    let mut results = Vec::new();
-    for f in files {
-        let src = f.source.as_ref();
-        // a schematic's findings point into the sheet file where the item is drawn
-        let art_of = |d: &Diag| artifact(super::file_name(f, d), opts);
-        if let Some(d) = &f.fatal {
-            results.push(result(
-                d,
-                src,
-                &art_of(d),
-                &index,
-                fatal_fingerprint(d, src),
-            ));
-        }
-        for (d, fp) in f.diags.iter().zip(fingerprints(f)) {
-            results.push(result(d, src, &art_of(d), &index, fp));
-        }
-    }
+    let artifacts = files
+        .iter()
+        .map(|f| {
+            let sheets = f.source.iter().flat_map(|s| s.files()).map(|p| &*p.name);
+            std::iter::once(&*f.name)
+                .chain(sheets)
+                .map(|name| artifact(name, opts))
+                .collect()
+        })
+        .collect();
     let homepage = [env!("CARGO_PKG_HOMEPAGE"), env!("CARGO_PKG_REPOSITORY")]
         .into_iter()
         .find(|s| !s.is_empty());
@@ -418,17 +470,14 @@ pub fn to_string(opts: &ReportOptions, files: &[FileOutcome]) -> String {
             invocations: vec![Invocation {
                 execution_successful: files.iter().all(|f| f.fatal.is_none()),
             }],
-            results,
+            results: Results {
+                files,
+                artifacts,
+                index,
+            },
         }],
     };
-    let text = serde_json::to_string_pretty(&log).expect("a log of strings and numbers serializes");
-    let mut text = super::json::escape_unsafe(text);
-    text.push('\n');
-    text
-}
-
-pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
-    out.write_all(to_string(opts, files).as_bytes())
+    super::json::write_safe_pretty(&log, out)
 }
 
 #[cfg(test)]
