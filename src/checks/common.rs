@@ -1,8 +1,10 @@
 //! Helpers the checks share: finding floating inputs grouped by gate, formatting.
 
 use super::Context;
+use crate::circuit::Circuit;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
+use crate::diag::Diag;
 use crate::netlist::Connection;
 
 /// Why an input floats.
@@ -191,6 +193,38 @@ impl<K: std::hash::Hash + Eq> Words<K> {
     pub fn get(&mut self, key: K, make: impl FnOnce() -> (String, String)) -> &(String, String) {
         self.0.entry(key).or_insert_with(make)
     }
+}
+
+/// The finding for an unused gate whose inputs float: "gate B of U1 (74HC00) is unused and
+/// {tail}", at its first floating input (labelled "unused gate"), its other inputs beside it,
+/// its pins listed, with the help the caller worded for parts alike.
+pub fn unused_gate_finding(
+    cx: &Circuit<'_, '_>,
+    g: &UnusedGate<'_>,
+    make: fn(&'static str, String) -> Diag,
+    code: &'static str,
+    tail: &str,
+    help: &str,
+) -> Diag {
+    let c = &cx.nl.components[g.comp];
+    let message = concat(&[
+        "gate ",
+        g.unit,
+        " of ",
+        c.reference.as_str(),
+        " (",
+        c.value_str(),
+        ") is unused and ",
+        tail,
+    ]);
+    let mut d = make(code, message)
+        .with_help(help.to_string())
+        .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
+    d = d.at(cx.pin_span(g.inputs[0].at), "unused gate");
+    for f in &g.inputs[1..] {
+        d = d.also(cx.pin_span(f.at), "");
+    }
+    d
 }
 
 /// The pieces joined into one string allocated to its length (a finding holds its words to

@@ -23,8 +23,8 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 };
 
 use super::common::{
-    agree, concat, floating_inputs, ground_rail_name, pin_list, supply_rail_name, Float, GateKey,
-    Words,
+    agree, floating_inputs, ground_rail_name, pin_list, supply_rail_name, unused_gate_finding,
+    Float, GateKey, Words,
 };
 use super::Context;
 use crate::diag::Diag;
@@ -64,25 +64,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ),
             )
         });
-        let c = &cx.nl.components[g.comp];
-        let message = concat(&[
-            "gate ",
-            g.unit,
-            " of ",
-            c.reference.as_str(),
-            " (",
-            c.value_str(),
-            ") is unused and ",
+        out.push(unused_gate_finding(
+            cx,
+            &g,
+            Diag::error,
+            "floating-cmos-input",
             tail,
-        ]);
-        let mut d = Diag::error("floating-cmos-input", message)
-            .with_help(help.clone())
-            .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
-        d = d.at(cx.pin_span(g.inputs[0].at), "unused gate");
-        for f in &g.inputs[1..] {
-            d = d.also(cx.pin_span(f.at), "");
-        }
-        out.push(d);
+            help,
+        ));
     }
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)

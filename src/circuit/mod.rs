@@ -992,7 +992,9 @@ fn resistor_elements(
         .enumerate()
         .filter_map(|(pi, p)| match p.connection {
             Connection::Net { net, .. } => Some((pi, net as usize)),
-            Connection::Alone { net, .. } if rail[net as usize].is_some() => Some((pi, net as usize)),
+            Connection::Alone { net, .. } if rail[net as usize].is_some() => {
+                Some((pi, net as usize))
+            }
             _ => None,
         })
         .collect();
@@ -1443,7 +1445,9 @@ fn follow_to_ground<'n>(
         if nodes.len() != 2 {
             return None;
         }
-        let next = nodes.iter().find(|n| n.component != Some(cur.comp as u32))?;
+        let next = nodes
+            .iter()
+            .find(|n| n.component != Some(cur.comp as u32))?;
         let ci = next.component? as usize;
         let pi = nl.components[ci]
             .pins

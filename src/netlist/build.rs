@@ -1,7 +1,7 @@
 //! Building the [`Netlist`] from a syntax tree.
 
-use thin_vec::ThinVec;
 use std::cell::RefCell;
+use thin_vec::ThinVec;
 
 use rustc_hash::FxHashMap as HashMap;
 

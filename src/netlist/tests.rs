@@ -210,12 +210,32 @@ fn a_root_that_is_not_export_is_refused() {
 fn model_items_stay_small() {
     use std::mem::size_of;
     assert!(size_of::<Str<'_>>() <= 16, "Str: {}", size_of::<Str<'_>>());
-    assert!(size_of::<Text<'_>>() <= 24, "Text: {}", size_of::<Text<'_>>());
+    assert!(
+        size_of::<Text<'_>>() <= 24,
+        "Text: {}",
+        size_of::<Text<'_>>()
+    );
     assert!(size_of::<Option<Text<'_>>>() <= 24);
-    assert!(size_of::<Connection>() <= 12, "Connection: {}", size_of::<Connection>());
-    assert!(size_of::<CompPin<'_>>() <= 56, "CompPin: {}", size_of::<CompPin<'_>>());
-    assert!(size_of::<Node<'_>>() <= 80, "Node: {}", size_of::<Node<'_>>());
-    assert!(size_of::<Component<'_>>() <= 304, "Component: {}", size_of::<Component<'_>>());
+    assert!(
+        size_of::<Connection>() <= 12,
+        "Connection: {}",
+        size_of::<Connection>()
+    );
+    assert!(
+        size_of::<CompPin<'_>>() <= 56,
+        "CompPin: {}",
+        size_of::<CompPin<'_>>()
+    );
+    assert!(
+        size_of::<Node<'_>>() <= 80,
+        "Node: {}",
+        size_of::<Node<'_>>()
+    );
+    assert!(
+        size_of::<Component<'_>>() <= 304,
+        "Component: {}",
+        size_of::<Component<'_>>()
+    );
     assert!(size_of::<Net<'_>>() <= 80, "Net: {}", size_of::<Net<'_>>());
 }
 
