@@ -325,7 +325,7 @@ impl PartTable {
         };
         some.unwrap_or_else(|| Box::new(0..self.entries.len()))
             .map(|i| (i, &self.entries[i]))
-            .filter(move |(_, e)| e.values.iter().any(|g| glob_match(g, value)))
+            .filter(move |(_, e)| e.matches(value))
     }
 }
 
