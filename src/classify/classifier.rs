@@ -974,9 +974,10 @@ fn same_pins(
     b: &[crate::netlist::CompPin],
 ) -> bool {
     a.len() == b.len()
-        && a.iter().zip(b).all(|(x, y)| {
-            x.num(nl) == y.num(nl) && x.ptype == y.ptype && x.name(nl) == y.name(nl)
-        })
+        && a
+            .iter()
+            .zip(b)
+            .all(|(x, y)| x.ptype == y.ptype && x.same_texts(y, nl))
 }
 
 /// A part's per-pin data: from the function table for a pin the table has, else from the

@@ -160,12 +160,14 @@ impl CompPin {
     pub fn libpin(&self) -> Option<u32> {
         (self.libpin != NONE).then_some(self.libpin)
     }
+    #[inline]
     fn lib<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n LibPin<'n>> {
         if self.libpin == NONE {
             return None;
         }
         Some(&nl.libparts[self.libpart as usize].pins[self.libpin as usize])
     }
+    #[inline]
     fn node<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n Node<'n>> {
         match self.connection {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
@@ -175,6 +177,7 @@ impl CompPin {
         }
     }
     /// The pin number: the library pin's, else the node's.
+    #[inline]
     pub fn num<'n>(&self, nl: &'n Netlist<'_>) -> &'n str {
         match self.lib(nl) {
             Some(lp) => lp.num.as_str(),
@@ -183,10 +186,23 @@ impl CompPin {
     }
     /// The symbol's pin name (`~` or empty when unnamed), from the libpart or the node's
     /// `pinfunction`.
+    #[inline]
     pub fn name<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n str> {
         self.lib(nl)
             .and_then(|lp| lp.name.as_ref().map(|n| n.as_str()))
             .or_else(|| self.node(nl).and_then(|n| n.pinfunction.as_deref()))
+    }
+    /// True when both pins have the same number and name (of parts alike, most often the
+    /// same library pin, which is not read twice).
+    pub fn same_texts(&self, other: &CompPin, nl: &Netlist<'_>) -> bool {
+        if self.libpin != NONE && self.libpin == other.libpin && self.libpart == other.libpart {
+            let lp = &nl.libparts[self.libpart as usize].pins[self.libpin as usize];
+            if lp.name.is_some() {
+                return true;
+            }
+            return self.name(nl) == other.name(nl);
+        }
+        self.num(nl) == other.num(nl) && self.name(nl) == other.name(nl)
     }
 }
 
