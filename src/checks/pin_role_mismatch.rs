@@ -195,7 +195,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let clauses: Vec<String> = groups
             .iter()
             .map(|((t, r), pins)| {
-                let nums: Vec<String> = pins.iter().map(|&i| c.pins[i].num(cx.nl).to_string()).collect();
+                let nums: Vec<String> = pins
+                    .iter()
+                    .map(|&i| c.pins[i].num(cx.nl).to_string())
+                    .collect();
                 let names: Vec<String> = pins
                     .iter()
                     .filter_map(|&i| part.table_names[i].as_deref().map(String::from))

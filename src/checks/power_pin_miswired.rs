@@ -158,8 +158,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if part.role_source[pi] != RoleSource::Table && p.ptype == PinType::PowerOut {
                 continue; // a power output makes its own rail
             }
-            let Some(side) = side_of(part.roles[pi], part.role_source[pi], p.name(cx.nl))
-            else {
+            let Some(side) = side_of(part.roles[pi], part.role_source[pi], p.name(cx.nl)) else {
                 continue;
             };
             let at = PinRef { comp: ci, pin: pi };

@@ -491,7 +491,12 @@ fn kind_by_reference(nl: &Netlist<'_>, c: &Component<'_>) -> PartKind {
 
 /// False when the entry names a function whose package has fewer pins than the component
 /// numbers (an `MK4116x8` symbol that draws eight DRAMs in one is not a 16-pin 4116).
-fn fits_package(nl: &Netlist<'_>, c: &Component<'_>, e: &super::parts::PartEntry, rules: &Rules) -> bool {
+fn fits_package(
+    nl: &Netlist<'_>,
+    c: &Component<'_>,
+    e: &super::parts::PartEntry,
+    rules: &Rules,
+) -> bool {
     let Some(f) = e
         .function
         .as_ref()
@@ -845,7 +850,8 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         };
         let symbol_reads_as = match method {
             Method::Pattern | Method::ShippedEntry | Method::ProjectOverride => {
-                symbol_reading(nl, c, rules, family.as_deref(), named_function.as_deref()).map(Box::new)
+                symbol_reading(nl, c, rules, family.as_deref(), named_function.as_deref())
+                    .map(Box::new)
             }
             _ => None,
         };
@@ -974,8 +980,7 @@ fn same_pins(
     b: &[crate::netlist::CompPin],
 ) -> bool {
     a.len() == b.len()
-        && a
-            .iter()
+        && a.iter()
             .zip(b)
             .all(|(x, y)| x.ptype == y.ptype && x.same_texts(y, nl))
 }
@@ -1102,7 +1107,12 @@ fn symbol_reading(
 /// Values one slip away from `value` that an entry of the part table (a processor, a memory,
 /// a peripheral) takes, for a value no table took: `Z8OA` (letter O) reads as a Z80A, `4l64`
 /// as a 4164 DRAM. One-slip readings first; two confusions only when they give the one reading.
-fn table_near_misses(nl: &Netlist<'_>, value: &str, c: &Component<'_>, rules: &Rules) -> Vec<pattern::Suggestion> {
+fn table_near_misses(
+    nl: &Netlist<'_>,
+    value: &str,
+    c: &Component<'_>,
+    rules: &Rules,
+) -> Vec<pattern::Suggestion> {
     let mut single = Vec::new();
     let mut double = Vec::new();
     for (cand, change, slips) in pattern::slips(value) {

@@ -3,7 +3,6 @@
 use std::cell::RefCell;
 use thin_vec::ThinVec;
 
-
 use super::*;
 use crate::sexpr::{NodeId, Tree};
 

@@ -137,7 +137,13 @@ const NONE: u32 = u32::MAX;
 
 impl CompPin {
     /// A pin from library pin `libpin` of library part `libpart`.
-    pub(crate) fn from_libpin(libpart: usize, libpin: usize, ptype: PinType, no_connect: bool, connection: Connection) -> CompPin {
+    pub(crate) fn from_libpin(
+        libpart: usize,
+        libpin: usize,
+        ptype: PinType,
+        no_connect: bool,
+        connection: Connection,
+    ) -> CompPin {
         CompPin {
             connection,
             libpin: libpin as u32,
@@ -374,7 +380,9 @@ impl<'a> Netlist<'a> {
     pub fn net_by_name(&self, name: &str) -> Option<usize> {
         let nets = &self.nets;
         self.by_net_name
-            .find(text_hash(name), |&(k, _)| nets[k as usize].name.as_str() == name)
+            .find(text_hash(name), |&(k, _)| {
+                nets[k as usize].name.as_str() == name
+            })
             .map(|&(_, n)| n as usize)
     }
     /// Net `net`'s name finds net `to` from now on (no effect for an unnamed net).

@@ -1311,9 +1311,10 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 // only a number an earlier pin had can be among the pins so far
                 if repeats[pi]
                     && pins.len() < 64
-                    && pins
-                        .iter()
-                        .any(|p| p.libpin().is_some_and(|q| lpins[q as usize].num.s == lpin.num.s))
+                    && pins.iter().any(|p| {
+                        p.libpin()
+                            .is_some_and(|q| lpins[q as usize].num.s == lpin.num.s)
+                    })
                 {
                     continue; // stacked pins listed twice
                 }

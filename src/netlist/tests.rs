@@ -315,7 +315,10 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
         assert_eq!(u1.pins[3].connection, Connection::Absent);
         // the net tie joined N2 into N1: the nodes moved, the names still resolve
         assert_eq!(nl.nets[1].nodes.len(), 0);
-        assert!(matches!(u1.pins[1].connection, Connection::Net { net: 0, .. }));
+        assert!(matches!(
+            u1.pins[1].connection,
+            Connection::Net { net: 0, .. }
+        ));
         assert_eq!(u1.pin(&nl, "9").unwrap().name(&nl), Some("EXTRA"));
         // pins without numbers are keyed by their names
         let q1 = &nl.components[2];
