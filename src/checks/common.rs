@@ -242,7 +242,7 @@ pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
     let cx = ctx.cx;
     numbered_list(pins.iter().map(|p| {
         (
-            cx.nl.components[p.comp].pins[p.pin].num.as_ref(),
+            cx.nl.components[p.comp].pins[p.pin].num(cx.nl),
             cx.cl.parts[p.comp].table_names[p.pin].as_deref(),
         )
     }))

@@ -427,7 +427,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// `U4.6`
     pub fn pin_name(&self, p: PinRef) -> String {
         let c = &self.nl.components[p.comp];
-        let (r, n) = (c.reference.as_str(), &*c.pins[p.pin].num);
+        let (r, n) = (c.reference.as_str(), c.pins[p.pin].num(self.nl));
         let mut s = String::with_capacity(r.len() + 1 + n.len());
         s.push_str(r);
         s.push('.');
@@ -440,11 +440,11 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let c = &self.nl.components[p.comp];
         let part = &self.cl.parts[p.comp];
         let pin = &c.pins[p.pin];
-        let mut s = format!("{} pin {}", c.reference, pin.num);
+        let mut s = format!("{} pin {}", c.reference, pin.num(self.nl));
         let name = part.table_names[p.pin]
             .as_deref()
             .map(String::from)
-            .or_else(|| pin.name.as_ref().map(|n| n.to_string()))
+            .or_else(|| pin.name(self.nl).map(|n| n.to_string()))
             .filter(|n| n != "~" && !n.is_empty());
         let what = match part.roles[p.pin] {
             PinRole::Input | PinRole::SchmittInput => "input",
@@ -487,8 +487,8 @@ impl<'n, 'a> Circuit<'n, 'a> {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
                 self.nl.nets[net as usize].nodes[node as usize].span
             }
-            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin) {
-                (Some(lp), Some(li)) => self.nl.libparts[lp].pins[li as usize].span,
+            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin()) {
+                (Some(lp), Some(li)) => self.nl.libparts[lp as usize].pins[li as usize].span,
                 _ => c.reference.span,
             },
         }
@@ -807,7 +807,7 @@ pub fn build<'n, 'a>(
         if matches!(err, Some(ValueError::NotFitted(_))) {
             continue; // not on the board
         }
-        for ((pa, na), (pb, nb)) in resistor_elements(c, part.kind, &rail) {
+        for ((pa, na), (pb, nb)) in resistor_elements(nl, c, part.kind, &rail) {
             if na == nb {
                 continue;
             }
@@ -889,7 +889,7 @@ pub fn build<'n, 'a>(
         if cl.parts[ci].kind != PartKind::Switch {
             continue;
         }
-        for (pa, pb) in switch_elements(c) {
+        for (pa, pb) in switch_elements(nl, c) {
             let (Some(na), Some(nb)) = (c.pins[pa].connection.net(), c.pins[pb].connection.net())
             else {
                 continue;
@@ -980,6 +980,7 @@ fn is_pull_part(c: &crate::netlist::Component<'_>) -> bool {
 /// rail) as one element per other pin; an isolated network (`R_Pack`, `R_Array`) as pins i
 /// and N+1-i.
 fn resistor_elements(
+    nl: &Netlist<'_>,
     c: &crate::netlist::Component<'_>,
     kind: PartKind,
     rail: &[Option<Rail>],
@@ -1020,7 +1021,7 @@ fn resistor_elements(
         // the common pin is pin 1 on the usual SIP networks
         pin_nets
             .iter()
-            .find(|(pi, _)| c.pins[*pi].num == "1")
+            .find(|(pi, _)| c.pins[*pi].num(nl) == "1")
             .or_else(|| on_rail.first().copied())
             .copied()
     } else if !isolated_symbol && on_rail.len() == 1 {
@@ -1038,7 +1039,7 @@ fn resistor_elements(
         }
         None => {
             let mut order: Vec<usize> = (0..c.pins.len()).collect();
-            order.sort_by_key(|&i| pin_number_key(&c.pins[i].num));
+            order.sort_by_key(|&i| pin_number_key(c.pins[i].num(nl)));
             let n = order.len();
             for k in 0..n / 2 {
                 let (a, b) = (order[k], order[n - 1 - k]);
@@ -1061,9 +1062,9 @@ fn pin_number_key(num: &str) -> (u64, String) {
 /// The elements of a switch or jumper, as pin index pairs: a two-pin switch one element; a
 /// three-pin switch or jumper (1-2 or 2-3) two elements sharing the middle pin; a DIP switch
 /// or shunt with an even count of pins, pins i and N+1-i.
-fn switch_elements(c: &crate::netlist::Component<'_>) -> Vec<(usize, usize)> {
+fn switch_elements(nl: &Netlist<'_>, c: &crate::netlist::Component<'_>) -> Vec<(usize, usize)> {
     let mut order: Vec<usize> = (0..c.pins.len()).collect();
-    order.sort_by_key(|&i| pin_number_key(&c.pins[i].num));
+    order.sort_by_key(|&i| pin_number_key(c.pins[i].num(nl)));
     match order.len() {
         0 | 1 => Vec::new(),
         2 => vec![(order[0], order[1])],
@@ -1247,12 +1248,12 @@ fn rails_by_usage(
             continue;
         };
         let by_name = c.pins.iter().find(|p| {
-            p.name.as_deref().is_some_and(|n| {
+            p.name(nl).is_some_and(|n| {
                 let n = n.to_ascii_uppercase();
                 matches!(n.as_str(), "VO" | "VOUT" | "OUT" | "OUTPUT" | "V_OUT")
             })
         });
-        let pin = by_name.or_else(|| c.pins.iter().find(|p| p.num == out_pin));
+        let pin = by_name.or_else(|| c.pins.iter().find(|p| p.num(nl) == out_pin));
         let Some(net) = pin.and_then(|p| p.connection.net()) else {
             continue;
         };
@@ -1447,12 +1448,12 @@ fn follow_to_ground<'n>(
         }
         let next = nodes
             .iter()
-            .find(|n| n.component != Some(cur.comp as u32))?;
-        let ci = next.component? as usize;
+            .find(|n| n.component() != Some(cur.comp as u32))?;
+        let ci = next.component()? as usize;
         let pi = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num == next.pin)?;
+            .position(|p| p.num(nl) == &*next.pin)?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef { comp: ci, pin: pi };
         } else {
@@ -1472,7 +1473,7 @@ fn leds_point_to(nl: &Netlist<'_>, path: &LedPath, start: PinRef, from_rail: boo
         if c.pins.len() != 2 {
             return true; // a display: its common's side was judged on the way
         }
-        let name = |i: usize| c.pins[i].name.as_deref().map(|n| n.to_ascii_uppercase());
+        let name = |i: usize| c.pins[i].name(nl).map(|n| n.to_ascii_uppercase());
         // the pin nearer the net is the one whose net is not the rail side: follow the chain
         // order is not kept, so judge by which pin is named K and which net it is on
         let k = (0..c.pins.len()).find(|&i| name(i).as_deref() == Some("K"));
