@@ -396,6 +396,32 @@ mod tests {
         );
     }
 
+    /// Each gate's pins are the run after the previous gate's, in the shared lists.
+    #[test]
+    fn unused_gates_read_their_own_pins_from_the_shared_lists() {
+        use super::{Float, Floating, FloatingInputs, PinRef};
+        let pin = |comp, pin| PinRef { comp, pin };
+        let input = |comp, p| Floating {
+            at: pin(comp, p),
+            why: Float::Absent,
+        };
+        let found = FloatingInputs {
+            singles: vec![input(9, 9)],
+            gate_inputs: vec![input(1, 0), input(1, 1), input(2, 4)],
+            gate_outputs: vec![pin(1, 2), pin(2, 5), pin(2, 6)],
+            gates: vec![(1, "A", 2, 1), (2, "B", 3, 3)],
+        };
+        let gates: Vec<_> = found.gates().collect();
+        assert_eq!(gates.len(), 2);
+        assert_eq!((gates[0].comp, gates[0].unit), (1, "A"));
+        let ins = |g: &super::UnusedGate<'_, '_>| g.inputs.iter().map(|f| f.at).collect::<Vec<_>>();
+        assert_eq!(ins(&gates[0]), [pin(1, 0), pin(1, 1)]);
+        assert_eq!(gates[0].outputs, [pin(1, 2)]);
+        assert_eq!((gates[1].comp, gates[1].unit), (2, "B"));
+        assert_eq!(ins(&gates[1]), [pin(2, 4)]);
+        assert_eq!(gates[1].outputs, [pin(2, 5), pin(2, 6)]);
+    }
+
     #[test]
     fn words_are_made_once_per_key() {
         let mut words = super::Words::new();

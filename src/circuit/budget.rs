@@ -594,7 +594,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let capacity = nm.loads.len()
         + nm.feeds
             .iter()
-            .map(|&(m, _)| cx.nets[m].loads.len())
+            .map(|&(m, _)| cx.nets[m as usize].loads.len())
             .sum::<usize>()
         + nm.pulls.len()
         + nm.sink_paths.len()
@@ -643,9 +643,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             });
         }
         // inputs on nets this one feeds through series resistors, beads or inductors
-        for &(m, link) in &nm.feeds {
+        for &(m, part) in &nm.feeds {
+            let m = m as usize;
             for (li, l) in cx.nets[m].loads.iter().enumerate() {
-                items.extend(input_item(m, li, l, true, Some(link.part)));
+                items.extend(input_item(m, li, l, true, Some(part as usize)));
             }
         }
         // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
@@ -717,9 +718,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 items.push(it);
             }
         }
-        for &(m, link) in &nm.feeds {
+        for &(m, part) in &nm.feeds {
+            let m = m as usize;
             for (li, l) in cx.nets[m].loads.iter().enumerate() {
-                if let Some(it) = input_item(m, li, l, false, Some(link.part)) {
+                if let Some(it) = input_item(m, li, l, false, Some(part as usize)) {
                     load_high += it.amps;
                     items.push(it);
                 }

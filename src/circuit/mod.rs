@@ -239,8 +239,9 @@ pub struct NetModel {
     /// net is held only through them): it floats when all of them are open.
     pub floats_open: ThinVec<SwitchLink>,
     /// Nets whose only source is this net, through a series element (directly or through
-    /// further series elements): their loads are this net's drivers' loads too.
-    pub feeds: ThinVec<(usize, SeriesLink)>,
+    /// further series elements): their loads are this net's drivers' loads too. Each is
+    /// (the net fed, the series part its own source runs through).
+    pub feeds: ThinVec<(u32, u32)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -267,8 +268,9 @@ pub struct SwitchLink {
 pub enum Source {
     /// Something on the net itself: a rail, a driver, a pull resistor, a connector.
     Own,
-    /// A net that has a source, through a series element.
-    Through(SeriesLink),
+    /// A net that has a source, through a series element: the index of its link in the
+    /// net's `series` (a small index keeps every net's model small).
+    Through(u32),
     /// Two or more switch positions each join it to a net with a source (a selector).
     Selector,
 }
@@ -583,6 +585,11 @@ fn pin_slot(kind: PartKind, pull_part: bool, role: PinRole) -> Slot {
         PinRole::Unknown => Slot::Unknown,
         PinRole::Analog | PinRole::Passive | PinRole::NoConnect => Slot::Passive,
     }
+}
+
+/// An index as the model's compact lists hold it.
+fn small(i: usize) -> u32 {
+    u32::try_from(i).expect("fewer than 2^32 nets and parts")
 }
 
 fn component_kind_passive(k: PartKind) -> bool {
@@ -1171,9 +1178,9 @@ fn settle_sources(nets: &mut [NetModel]) {
             let through = nets[i]
                 .series
                 .iter()
-                .find(|l| nets[l.other_net].source.is_some())
-                .copied();
+                .position(|l| nets[l.other_net].source.is_some());
             if let Some(l) = through {
+                let l = u32::try_from(l).expect("fewer than 2^32 series links on a net");
                 nets[i].source = Some(Source::Through(l));
                 changed = true;
                 continue;
@@ -1198,18 +1205,21 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
     }
     // the nets each net feeds through series elements, followed to the end of the chain
-    let direct: Vec<Option<(usize, SeriesLink)>> = nets
+    let direct: Vec<Option<(usize, u32)>> = nets
         .iter()
         .map(|nm| match nm.source {
-            Some(Source::Through(l)) => Some((l.other_net, l)),
+            Some(Source::Through(l)) => {
+                let l = &nm.series[l as usize];
+                Some((l.other_net, small(l.part)))
+            }
             _ => None,
         })
         .collect();
     for (m, d) in direct.iter().enumerate() {
-        let Some((mut up, link)) = *d else { continue };
+        let Some((mut up, part)) = *d else { continue };
         // walk up to the net with a source of its own; every net on the way feeds m
         for _ in 0..nets.len() {
-            nets[up].feeds.push((m, link));
+            nets[up].feeds.push((small(m), part));
             match direct[up] {
                 Some((next, _)) => up = next,
                 None => break,
@@ -1656,18 +1666,23 @@ mod size_tests {
     use super::NetModel;
 
     /// A board has about as many nets as it has pins, and the model keeps a `NetModel` and a
-    /// `NetBudget` (with a `DriverBudget` per driver) for each: their size is held here so it
-    /// cannot regrow unnoticed (440, 176 and 408 bytes when their lists were `Vec`s and the
-    /// rare parts were inline).
+    /// `NetBudget` (with a `DriverBudget` per driver, two items and a margin per load) for
+    /// each: their size is held here so it cannot regrow unnoticed (440, 176 and 408 bytes
+    /// when their lists were `Vec`s and the rare parts were inline; 200, 56 and 216, with
+    /// 72-byte items and 88-byte margins, before a series link became an index, an item lost
+    /// its copies of what the model holds and the rare pull-up level was boxed).
     #[test]
     fn per_net_structures_stay_small() {
-        assert!(size_of::<NetModel>() <= 200, "{}", size_of::<NetModel>());
+        use super::budget::{Item, LoadMargin};
+        assert!(size_of::<NetModel>() <= 160, "{}", size_of::<NetModel>());
         assert!(size_of::<NetBudget>() <= 56, "{}", size_of::<NetBudget>());
         assert!(
-            size_of::<DriverBudget>() <= 216,
+            size_of::<DriverBudget>() <= 160,
             "{}",
             size_of::<DriverBudget>()
         );
+        assert!(size_of::<Item>() <= 32, "{}", size_of::<Item>());
+        assert!(size_of::<LoadMargin>() <= 72, "{}", size_of::<LoadMargin>());
     }
 
     /// An empty list costs one pointer and no allocation; a filled one is trimmed to its
