@@ -522,21 +522,14 @@ pub struct PullUpWindow {
     pub fitted: Option<f64>,
 }
 
+/// A net's budget. A budget is kept for every net: its lists are allocated to their length
+/// (two words each, none while empty).
 #[derive(Debug, Clone, Default)]
 pub struct NetBudget {
-    pub drivers: Vec<DriverBudget>,
-    pub margins: Vec<LoadMargin>,
+    pub drivers: Box<[DriverBudget]>,
+    pub margins: Box<[LoadMargin]>,
     /// Boxed: only an open-collector net has one.
     pub window: Option<Box<PullUpWindow>>,
-}
-
-impl NetBudget {
-    /// Trims every list to its length: a list grown by pushes holds room for four or more,
-    /// and a budget is kept for every net.
-    fn fit(&mut self) {
-        self.drivers.shrink_to_fit();
-        self.margins.shrink_to_fit();
-    }
 }
 
 /// True when input `l` counts against driver `d`'s rating: not the driver's own pin, and
@@ -583,10 +576,9 @@ fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
 /// Computes the budget of one net.
 pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let nm = &cx.nets[net];
-    let mut out = NetBudget {
-        drivers: Vec::with_capacity(nm.drivers.len()),
-        ..NetBudget::default()
-    };
+    let mut drivers: Vec<DriverBudget> = Vec::with_capacity(nm.drivers.len());
+    let mut margins: Vec<LoadMargin> = Vec::new();
+    let mut window = None;
     let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
     let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
     // the most items a state can hold: every input here and on the nets fed, every pull
@@ -599,7 +591,6 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         + nm.pulls.len()
         + nm.sink_paths.len()
         + nm.drivers.len().saturating_sub(1);
-    out.drivers.reserve_exact(nm.drivers.len());
     for (di, d) in nm.drivers.iter().enumerate() {
         // an open-emitter output (a display driver's emitter follower) only sources: it has no
         // low state to budget, and its high is rated by its own data sheet, not by its
@@ -607,7 +598,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         // under 1 mA), so neither state is judged against the family's figures
         let levels = d.levels.as_ref().filter(|_| d.role != PinRole::OpenEmitter);
         let Some(lv) = levels else {
-            out.drivers.push(DriverBudget {
+            drivers.push(DriverBudget {
                 driver: di,
                 low: None,
                 high: None,
@@ -804,7 +795,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
             });
         let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
-        out.drivers.push(DriverBudget {
+        drivers.push(DriverBudget {
             driver: di,
             low: Some(low),
             high,
@@ -840,9 +831,9 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     } else {
         Vec::new()
     };
-    out.margins
-        .reserve_exact(out.drivers.len() * nm.loads.len());
-    for db in &out.drivers {
+    margins
+        .reserve_exact(drivers.len() * nm.loads.len());
+    for db in &drivers {
         let d = &nm.drivers[db.driver];
         for (li, l) in nm.loads.iter().enumerate() {
             if l.at == d.at {
@@ -851,7 +842,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             let Some(ll) = &l.levels else { continue };
             let scaled = scaled_at.get(li).copied().flatten();
             let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
-            out.margins.push(LoadMargin {
+            margins.push(LoadMargin {
                 driver: db.driver,
                 load: li,
                 vih,
@@ -862,7 +853,6 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             });
         }
     }
-    out.margins.shrink_to_fit();
     // open-collector window
     let oc: Vec<usize> = (0..nm.drivers.len())
         .filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some())
@@ -916,7 +906,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
-            out.window = Some(Box::new(PullUpWindow {
+            window = Some(Box::new(PullUpWindow {
                 rail_net,
                 rail_volts: v,
                 v_high,
@@ -933,8 +923,11 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             }));
         }
     }
-    out.fit();
-    out
+    NetBudget {
+        drivers: drivers.into_boxed_slice(),
+        margins: margins.into_boxed_slice(),
+        window,
+    }
 }
 
 #[cfg(test)]

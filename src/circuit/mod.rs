@@ -1675,7 +1675,7 @@ mod size_tests {
     fn per_net_structures_stay_small() {
         use super::budget::{Item, LoadMargin};
         assert!(size_of::<NetModel>() <= 160, "{}", size_of::<NetModel>());
-        assert!(size_of::<NetBudget>() <= 56, "{}", size_of::<NetBudget>());
+        assert!(size_of::<NetBudget>() <= 40, "{}", size_of::<NetBudget>());
         assert!(
             size_of::<DriverBudget>() <= 160,
             "{}",
