@@ -455,12 +455,14 @@ mod tests {
 /// ` (VIH taken at 5.25 V, the top of the rail tolerance)` when a tolerance moved the load's
 /// threshold; empty otherwise.
 pub fn vih_supply_note(m: &crate::circuit::budget::LoadMargin) -> String {
-    m.thresholds_at.as_deref().map_or(String::new(), |&(hi, _)| {
-        format!(
-            " (VIH taken at {}, the top of the rail tolerance)",
-            crate::values::format_volts(hi)
-        )
-    })
+    m.thresholds_at
+        .as_deref()
+        .map_or(String::new(), |&(hi, _)| {
+            format!(
+                " (VIH taken at {}, the top of the rail tolerance)",
+                crate::values::format_volts(hi)
+            )
+        })
 }
 
 /// `J1` or `J1 and J3`: the switches a net is held through.

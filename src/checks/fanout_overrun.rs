@@ -99,8 +99,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     String::new()
                 };
                 // inputs that draw more than one unit load (a counter's clock): say how many
-                let heavy: Vec<&crate::circuit::budget::Item> =
-                    sb.items.iter().filter(|i| i.unit_loads(cx).is_some()).collect();
+                let heavy: Vec<&crate::circuit::budget::Item> = sb
+                    .items
+                    .iter()
+                    .filter(|i| i.unit_loads(cx).is_some())
+                    .collect();
                 let heavy_note = match heavy.first().and_then(|i| i.unit_loads(cx)) {
                     Some(u) if heavy.len() == sb.items.len() && same => {
                         format!(", {} unit loads each", unit_text(u))

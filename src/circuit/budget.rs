@@ -831,8 +831,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     } else {
         Vec::new()
     };
-    margins
-        .reserve_exact(drivers.len() * nm.loads.len());
+    margins.reserve_exact(drivers.len() * nm.loads.len());
     for db in &drivers {
         let d = &nm.drivers[db.driver];
         for (li, l) in nm.loads.iter().enumerate() {
