@@ -635,7 +635,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     // parts alike classify alike: each distinct part is classified once, the others copy it
     let mut first_alike: rustc_hash::FxHashMap<Alike<'_, '_>, usize> = Default::default();
     for c in &nl.components {
-        match first_alike.entry(Alike(nl, c)) {
+        match first_alike.entry(Alike::of(nl, c)) {
             std::collections::hash_map::Entry::Occupied(first) => {
                 let part = parts[*first.get()].clone();
                 if part.ic_like {
@@ -888,58 +888,67 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
 /// A component by what its classification follows from: the letters of its reference, its
 /// value, footprint and library symbol (library, part, description), its logic family and
 /// function fields, and its pins' numbers, types and names. Two components equal in these
-/// classify alike.
-struct Alike<'c, 'a>(&'c Netlist<'a>, &'c Component<'a>);
+/// classify alike. The texts are gathered once ([`Alike::of`]): hashing and each comparison
+/// read them, not the component's fields again.
+struct Alike<'c, 'a> {
+    nl: &'c Netlist<'a>,
+    c: &'c Component<'a>,
+    texts: AlikeTexts<'c>,
+}
+
+/// [`Alike`]'s texts: reference letters, value, footprint, library symbol (library, part,
+/// description), logic family and function fields.
+type AlikeTexts<'c> = (
+    &'c str,
+    &'c str,
+    Option<&'c str>,
+    Option<(Option<&'c str>, Option<&'c str>, Option<&'c str>)>,
+    Option<&'c str>,
+    Option<&'c str>,
+);
 
 /// The text of an optional item.
 fn text<'t>(t: &'t Option<crate::netlist::Text<'_>>) -> Option<&'t str> {
     t.as_ref().map(|t| t.as_str())
 }
 
-impl Alike<'_, '_> {
-    #[allow(clippy::type_complexity)]
-    fn texts(
-        &self,
-    ) -> (
-        &str,
-        &str,
-        Option<&str>,
-        Option<(Option<&str>, Option<&str>, Option<&str>)>,
-        Option<&str>,
-        Option<&str>,
-    ) {
-        let c = self.1;
+impl<'c, 'a> Alike<'c, 'a> {
+    fn of(nl: &'c Netlist<'a>, c: &'c Component<'a>) -> Alike<'c, 'a> {
         let field = |name| {
             c.field(name)
                 .and_then(|f| f.value.as_ref())
                 .map(|v| v.as_str())
         };
-        (
-            ref_prefix(c.reference.as_str()),
-            c.value_str(),
-            text(&c.footprint),
-            c.libsource
-                .as_ref()
-                .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
-            field("Logic family"),
-            field("Logic function"),
-        )
+        Alike {
+            nl,
+            c,
+            texts: (
+                ref_prefix(c.reference.as_str()),
+                c.value_str(),
+                text(&c.footprint),
+                c.libsource
+                    .as_ref()
+                    .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
+                field("Logic family"),
+                field("Logic function"),
+            ),
+        }
     }
 }
 
 impl std::hash::Hash for Alike<'_, '_> {
     fn hash<H: std::hash::Hasher>(&self, h: &mut H) {
-        self.texts().hash(h);
-        self.1.pins.len().hash(h);
-        for p in &self.1.pins {
-            (p.num(self.0), p.ptype, p.name(self.0)).hash(h);
+        self.texts.hash(h);
+        self.c.pins.len().hash(h);
+        for p in &self.c.pins {
+            (p.num(self.nl), p.ptype, p.name(self.nl)).hash(h);
         }
     }
 }
 
 impl PartialEq for Alike<'_, '_> {
     fn eq(&self, other: &Self) -> bool {
-        self.texts() == other.texts() && same_pins(self.0, &self.1.pins, &other.1.pins)
+        self.texts == other.texts && same_pins(self.nl, &self.c.pins, &other.c.pins)
     }
 }
 
@@ -1259,7 +1268,7 @@ mod tests {
         assert_eq!(nl.components.len(), 6);
         let c = &nl.components;
         let hash = |a: &super::Alike<'_, '_>| rustc_hash::FxBuildHasher.hash_one(a);
-        let (u1, u2) = (super::Alike(&nl, &c[0]), super::Alike(&nl, &c[1]));
+        let (u1, u2) = (super::Alike::of(&nl, &c[0]), super::Alike::of(&nl, &c[1]));
         assert!(u1 == u2 && hash(&u1) == hash(&u2));
         for (i, why) in [
             (2, "reference letters"),
@@ -1267,7 +1276,7 @@ mod tests {
             (4, "logic family field"),
             (5, "library and pin name"),
         ] {
-            assert!(u1 != super::Alike(&nl, &c[i]), "{why}");
+            assert!(u1 != super::Alike::of(&nl, &c[i]), "{why}");
         }
         let rules = super::Rules::shipped();
         let cl = super::classify(&nl, rules);
