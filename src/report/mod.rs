@@ -17,6 +17,7 @@ pub mod human;
 pub mod json;
 pub mod net;
 pub mod parts;
+pub(crate) mod pretty;
 pub mod sarif;
 pub mod settings;
 pub mod short;
@@ -128,7 +129,7 @@ impl Place {
         let start = (span.start as usize).min(len);
         let end = (span.end as usize).clamp(start, len);
         let a = lines.line_col(start);
-        let b = lines.line_col(end);
+        let b = lines.line_col_after(start, a, end);
         // in a source made of several files, offsets count from the start of the file
         let base = source.part_at(start).map_or(0, |p| p.start as usize);
         Place {
