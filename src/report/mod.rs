@@ -477,7 +477,7 @@ mod tests {
     fn key_ranks_count_each_key_apart_whatever_the_hash() {
         let mk = |code: &'static str, net: Option<&str>, pins: &[&str]| {
             let mut d = Diag::warning(code, "m");
-            d.net = net.map(str::to_string);
+            d.net = net.map(Into::into);
             d.pins = pins.iter().map(|p| p.to_string()).collect();
             d
         };
