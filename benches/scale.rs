@@ -13,8 +13,10 @@
 //! time and CPU time per run). With
 //! `NETMARGIN_BENCH_BASELINE=<another netmargin binary>` that binary (an earlier build) runs
 //! on the same files in the same run, for before-and-after columns.
-//! The files are written under `<target>/bench-scale/`. Peak memory is GNU time's "Maximum
-//! resident set size" (`/usr/bin/time -v`); without GNU time it is shown as n/a.
+//! The files are written under `<target>/bench-scale/`. CPU time (user + system) and peak
+//! memory (maximum resident set size) are each child's own, from `wait4` (microsecond CPU
+//! times, so even the 0.05 s runs of the smallest files compare); where the system has no
+//! `wait4` they are shown as n/a.
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
@@ -25,20 +27,8 @@ fn median(mut v: Vec<f64>) -> f64 {
     v[v.len() / 2]
 }
 
-const GNU_TIME: &str = "/usr/bin/time";
-
-/// Whether `/usr/bin/time` is GNU time (it understands `-v`).
-fn gnu_time() -> bool {
-    Command::new(GNU_TIME)
-        .args(["-v", "true"])
-        .stdout(Stdio::null())
-        .output()
-        .map(|o| String::from_utf8_lossy(&o.stderr).contains("Maximum resident set size"))
-        .unwrap_or(false)
-}
-
 /// One timed run: wall seconds, CPU seconds (user + system) and peak resident memory in kB
-/// when GNU time measured them, and the exit code.
+/// of the child itself (where the system reports them), and the exit code.
 struct Timed {
     secs: f64,
     cpu: Option<f64>,
@@ -54,22 +44,16 @@ fn load() -> String {
         .unwrap_or_else(|| "n/a".to_string())
 }
 
-/// Runs `program args` with standard output thrown away (and `envs` set), under GNU time
-/// when `measure_memory`.
-fn run(
-    program: &Path,
-    args: &[&std::ffi::OsStr],
-    envs: &[(&str, Option<&str>)],
-    measure_memory: bool,
-) -> Timed {
-    let mut cmd = if measure_memory {
-        let mut c = Command::new(GNU_TIME);
-        c.arg("-v").arg(program);
-        c
-    } else {
-        Command::new(program)
-    };
-    cmd.args(args).stdout(Stdio::null()).stderr(Stdio::piped());
+/// Whether this system reports a child's own CPU time and peak memory (`wait4`).
+const MEASURED: bool = cfg!(unix);
+
+/// Runs `program args` with its output thrown away (and `envs` set): the wall time, and, on
+/// Unix, the child's own CPU time (user + system, in microseconds as the kernel accounts it)
+/// and its maximum resident set size, from `wait4` on that child alone. No wrapper process
+/// runs between the bench and the child, so nothing else is counted.
+fn run(program: &Path, args: &[&std::ffi::OsStr], envs: &[(&str, Option<&str>)]) -> Timed {
+    let mut cmd = Command::new(program);
+    cmd.args(args).stdout(Stdio::null()).stderr(Stdio::null());
     for (k, v) in envs {
         match v {
             Some(v) => cmd.env(k, v),
@@ -77,40 +61,37 @@ fn run(
         };
     }
     let t = Instant::now();
-    let out = cmd.output().expect("the command runs");
-    let secs = t.elapsed().as_secs_f64();
-    let err = String::from_utf8_lossy(&out.stderr);
-    let field = |name: &str| -> Option<f64> {
-        if !measure_memory {
-            return None;
+    let child = cmd.spawn().expect("the command runs");
+    #[cfg(unix)]
+    {
+        use std::os::unix::process::ExitStatusExt;
+        let mut status: libc::c_int = 0;
+        // SAFETY: an all-zero `rusage` is a valid value of the plain C struct
+        let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
+        // SAFETY: `child.id()` is our own child, not yet waited for; both pointers are valid
+        let pid = unsafe { libc::wait4(child.id() as libc::pid_t, &mut status, 0, &mut usage) };
+        let secs = t.elapsed().as_secs_f64();
+        assert_eq!(pid, child.id() as libc::pid_t, "wait4 on the child");
+        let tv = |t: libc::timeval| t.tv_sec as f64 + t.tv_usec as f64 / 1e6;
+        Timed {
+            secs,
+            cpu: Some(tv(usage.ru_utime) + tv(usage.ru_stime)),
+            // Linux reports kilobytes
+            peak_kb: Some(usage.ru_maxrss as u64),
+            code: std::process::ExitStatus::from_raw(status).code(),
         }
-        err.lines()
-            .find_map(|l| l.trim().strip_prefix(name))
-            .and_then(|v| v.trim().parse().ok())
-    };
-    let cpu = match (
-        field("User time (seconds):"),
-        field("System time (seconds):"),
-    ) {
-        (Some(u), Some(s)) => Some(u + s),
-        _ => None,
-    };
-    Timed {
-        secs,
-        cpu,
-        peak_kb: field("Maximum resident set size (kbytes):").map(|k| k as u64),
-        code: out.status.code(),
     }
-}
-
-/// The CPU time (user + system) of the children this process has waited for, in clock ticks
-/// of 10 ms, from `/proc/self/stat`; `None` where there is no such file.
-fn children_ticks() -> Option<u64> {
-    let stat = std::fs::read_to_string("/proc/self/stat").ok()?;
-    let rest = &stat[stat.rfind(')')? + 2..];
-    let f: Vec<&str> = rest.split_whitespace().collect();
-    // cutime and cstime: fields 16 and 17 of the line, 14 and 15 after the command name
-    Some(f.get(13)?.parse::<u64>().ok()? + f.get(14)?.parse::<u64>().ok()?)
+    #[cfg(not(unix))]
+    {
+        let mut child = child;
+        let status = child.wait().expect("the command ends");
+        Timed {
+            secs: t.elapsed().as_secs_f64(),
+            cpu: None,
+            peak_kb: None,
+            code: status.code(),
+        }
+    }
 }
 
 /// The synthetic netlist of shape `shape` and about `mb` megabytes, written once and kept.
@@ -207,15 +188,14 @@ fn main() {
     }
     let dir = target.join("bench-scale");
     std::fs::create_dir_all(&dir).expect("bench folder");
-    let memory = gnu_time();
     let cores = std::thread::available_parallelism().map_or(0, |n| n.get());
     let cat = PathBuf::from("cat");
     println!(
         "{cores} cores; {runs} interleaved runs, medians; CPU time and peak memory by {}; load average (1, 5 min) at the start: {}",
-        if memory {
-            "GNU time (user + system, maximum resident set size)"
+        if MEASURED {
+            "wait4 on each child (user + system, maximum resident set size)"
         } else {
-            "nothing (GNU time not found: n/a)"
+            "nothing (no wait4 on this system: n/a)"
         },
         load()
     );
@@ -256,14 +236,14 @@ fn main() {
             let path_str = path.to_string_lossy().into_owned();
             let floor_env = [(READ_ONLY, Some(path_str.as_str()))];
             // warm-up: the page cache holds the file, and the run must succeed
-            let first = run(&bin, &check_args, &[], memory);
+            let first = run(&bin, &check_args, &[]);
             assert!(
                 matches!(first.code, Some(0 | 1)),
                 "netmargin check exited with {:?} on {}",
                 first.code,
                 path.display()
             );
-            let floor_first = run(&exe, &[], &floor_env, memory);
+            let floor_first = run(&exe, &[], &floor_env);
             assert_eq!(
                 floor_first.code,
                 Some(0),
@@ -274,17 +254,19 @@ fn main() {
             let mut floor_peak = floor_first.peak_kb;
             let (mut t_cpu, mut f_cpu) = (Vec::new(), Vec::new());
             let (mut b_cost, mut b_peak) = (Vec::new(), None);
-            for _ in 0..runs {
+            // the smallest files run in well under a second: more runs steady their medians
+            let n_runs = if size <= 5 { runs.max(5) } else { runs };
+            for _ in 0..n_runs {
                 if let Some(b) = &baseline {
-                    let r = run(b, &check_args, &[], memory);
+                    let r = run(b, &check_args, &[]);
                     b_peak = b_peak.max(r.peak_kb);
                     b_cost.push(r.cpu.unwrap_or(r.secs));
                 }
-                let c = run(&bin, &check_args, &[], memory);
+                let c = run(&bin, &check_args, &[]);
                 peak = peak.max(c.peak_kb);
                 t_check.push(c.secs);
                 t_cpu.extend(c.cpu);
-                let f = run(&exe, &[], &floor_env, memory);
+                let f = run(&exe, &[], &floor_env);
                 floor_peak = floor_peak.max(f.peak_kb);
                 f_cpu.extend(f.cpu);
                 t_floor.push(f.secs);
@@ -308,7 +290,7 @@ fn main() {
                 };
                 prev_base = Some((size, bc));
                 format!(
-                    " {bc:.2} s | {g} | {} | {:.2} x |",
+                    " {bc:.3} s | {g} | {} | {:.2} x |",
                     b_peak.map_or("n/a".to_string(), |k| format!(
                         "{:.2} x",
                         k as f64 * 1024.0 / len as f64
@@ -328,12 +310,11 @@ fn main() {
                 mbytes,
                 c,
                 mbytes / c,
-                cpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
+                cpu.map_or("n/a".to_string(), |t| format!("{t:.3} s")),
                 f,
-                fcpu.map_or("n/a".to_string(), |t| format!("{t:.2} s")),
-                // GNU time counts CPU in 10 ms steps: a smaller floor is compared by wall time
+                fcpu.map_or("n/a".to_string(), |t| format!("{t:.3} s")),
                 match (cpu, fcpu) {
-                    (Some(a), Some(b)) if b >= 0.05 => a / b,
+                    (Some(a), Some(b)) if b > 0.0 => a / b,
                     _ => c / f,
                 },
                 mb(peak),
@@ -355,9 +336,6 @@ fn main() {
     ];
     let version: [&std::ffi::OsStr; 1] = ["--version".as_ref()];
     let truth = PathBuf::from("true");
-    // each command 200 times, in interleaved rounds of 20: the median wall time, and the CPU
-    // time per run from the children's ticks (`/proc/self/stat`, 10 ms each, summed over the
-    // runs), which a loaded machine does not inflate as it does wall time
     let mut commands: Vec<(String, PathBuf, Vec<&std::ffi::OsStr>)> = vec![
         ("`true` (spawning a process)".into(), truth, vec![]),
         ("netmargin --version".into(), bin.clone(), version.to_vec()),
@@ -377,25 +355,21 @@ fn main() {
             small_args.to_vec(),
         ));
     }
+    // each command 200 times, interleaved: the median wall time and the median CPU time of
+    // one run (the child's own, from wait4), which a loaded machine inflates less than wall time
     let mut walls: Vec<Vec<f64>> = vec![Vec::new(); commands.len()];
-    let mut ticks: Vec<Option<u64>> = vec![Some(0); commands.len()];
-    let rounds = 10;
-    for _ in 0..rounds {
+    let mut cpus: Vec<Vec<f64>> = vec![Vec::new(); commands.len()];
+    for _ in 0..200 {
         for (i, (_, program, args)) in commands.iter().enumerate() {
-            let before = children_ticks();
-            for _ in 0..20 {
-                walls[i].push(run(program, args, &[], false).secs);
-            }
-            ticks[i] = match (ticks[i], before, children_ticks()) {
-                (Some(t), Some(a), Some(b)) => Some(t + b - a),
-                _ => None,
-            };
+            let r = run(program, args, &[]);
+            walls[i].push(r.secs);
+            cpus[i].extend(r.cpu);
         }
     }
-    let cpu_ms = |i: usize| ticks[i].map(|t| t as f64 * 10.0 / (rounds * 20) as f64);
+    let cpu_ms = |i: usize| (!cpus[i].is_empty()).then(|| median(cpus[i].clone()) * 1e3);
     let (wall_true, cpu_true) = (median(walls[0].clone()), cpu_ms(0));
     println!();
-    println!("| start-up (200 runs each) | median wall | above `true` | CPU per run | CPU above `true` |");
+    println!("| start-up (200 runs each, interleaved) | median wall | above `true` | median CPU | CPU above `true` |");
     println!("| --- | ---: | ---: | ---: | ---: |");
     for (i, (name, _, _)) in commands.iter().enumerate() {
         let w = median(walls[i].clone());
@@ -418,7 +392,7 @@ fn main() {
         );
     }
     if n_files == 0 {
-        schematics(&bin, &dir, &sizes, runs, memory);
+        schematics(&bin, &dir, &sizes, runs);
         println!();
         println!("load average (1, 5 min) at the end: {}", load());
         return;
@@ -440,30 +414,25 @@ fn main() {
         ("2 cores", Some("2")),
         ("all cores", None),
     ];
-    let first = run(&bin, &check_args, &[], false);
+    let first = run(&bin, &check_args, &[]);
     assert!(
         matches!(first.code, Some(0 | 1)),
         "netmargin check exited with {:?} on the folder",
         first.code
     );
-    let _ = run(&cat, &cat_args, &[], false);
+    let _ = run(&cat, &cat_args, &[]);
     let mut times: Vec<Vec<f64>> = vec![Vec::new(); settings.len()];
     let mut peaks: Vec<Option<u64>> = vec![None; settings.len()];
     let mut cpus: Vec<Vec<f64>> = vec![Vec::new(); settings.len()];
     let mut t_cat = Vec::new();
     for _ in 0..runs {
         for (i, (_, threads)) in settings.iter().enumerate() {
-            let r = run(
-                &bin,
-                &check_args,
-                &[("RAYON_NUM_THREADS", *threads)],
-                memory,
-            );
+            let r = run(&bin, &check_args, &[("RAYON_NUM_THREADS", *threads)]);
             peaks[i] = peaks[i].max(r.peak_kb);
             times[i].push(r.secs);
             cpus[i].extend(r.cpu);
         }
-        t_cat.push(run(&cat, &cat_args, &[], false).secs);
+        t_cat.push(run(&cat, &cat_args, &[]).secs);
     }
     let f = median(t_cat);
     let one = median(times[0].clone());
@@ -490,7 +459,7 @@ fn main() {
             if cpus[i].is_empty() {
                 "n/a".to_string()
             } else {
-                format!("{:.2} s", median(cpus[i].clone()))
+                format!("{:.3} s", median(cpus[i].clone()))
             },
             mb(peaks[i]),
         );
@@ -501,7 +470,7 @@ fn main() {
         n_files as f64 / f,
         bytes as f64 / 1e6 / f
     );
-    schematics(&bin, &dir, &sizes, runs, memory);
+    schematics(&bin, &dir, &sizes, runs);
     println!();
     println!("load average (1, 5 min) at the end: {}", load());
 }
@@ -510,7 +479,7 @@ fn main() {
 /// carries about ten times the text per pin of its netlist), against `cat` of the same bytes:
 /// one sheet of resistor cells, and a hierarchical project (a root placing sheets, each of a
 /// few child files used by four sheets, `netmargin::synth::hierarchy`).
-fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize, mem: bool) {
+fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize) {
     println!();
     println!("schematics: one sheet of resistor cells, wires and labels; a hierarchy of sheets");
     println!();
@@ -555,7 +524,7 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize, mem: bool) {
             let (mut t, mut cpu) = (Vec::new(), Vec::new());
             let mut peak = None;
             for _ in 0..runs {
-                let r = run(bin, &args, &[], mem);
+                let r = run(bin, &args, &[]);
                 assert!(
                     matches!(r.code, Some(0 | 1)),
                     "netmargin check exited with {:?} on {}",
@@ -567,11 +536,7 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize, mem: bool) {
                 cpu.extend(r.cpu);
             }
             let cat_args: Vec<&std::ffi::OsStr> = files.iter().map(|p| p.as_os_str()).collect();
-            let f = median(
-                (0..runs)
-                    .map(|_| run(&cat, &cat_args, &[], false).secs)
-                    .collect(),
-            );
+            let f = median((0..runs).map(|_| run(&cat, &cat_args, &[]).secs).collect());
             let w = median(t);
             let cpu = (!cpu.is_empty()).then(|| median(cpu));
             let growth = match (prev_cpu, cpu) {
@@ -585,7 +550,7 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize, mem: bool) {
                 files.len(),
                 mbytes / w,
                 w / f,
-                cpu.map_or("n/a".to_string(), |c| format!("{c:.2} s")),
+                cpu.map_or("n/a".to_string(), |c| format!("{c:.3} s")),
                 mb(peak),
                 peak.map_or("n/a".to_string(), |k| format!("{:.2} x", k as f64 * 1024.0 / bytes as f64)),
             );
