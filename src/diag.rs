@@ -434,7 +434,10 @@ mod tests {
         let mut d = Diag::warning("x", "first");
         d.extend_message(", then more");
         assert_eq!(&*d.message, "first, then more");
-        let d = d.at(Span::new(1, 2), "a").also(Span::new(3, 4), "b").at(Span::new(5, 6), "c");
+        let d = d
+            .at(Span::new(1, 2), "a")
+            .also(Span::new(3, 4), "b")
+            .at(Span::new(5, 6), "c");
         let texts: Vec<&str> = d.labels.iter().map(|l| &*l.text).collect();
         assert_eq!(texts, ["a", "b", "c"]);
         assert_eq!(d.primary_span(), Some(Span::new(1, 2)));

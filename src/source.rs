@@ -499,7 +499,11 @@ mod tests {
             for start in 0..=n {
                 for end in start..=n + 1 {
                     let at = c.line_col(start);
-                    assert_eq!(c.line_col_after(start, at, end), f.line_col(end), "{start}..{end}");
+                    assert_eq!(
+                        c.line_col_after(start, at, end),
+                        f.line_col(end),
+                        "{start}..{end}"
+                    );
                 }
             }
         }

@@ -378,9 +378,14 @@ mod tests {
         }
         assert_eq!(made, 3);
         // a help handed out twice is one text, not two copies
-        let (a, b) = (words.get(1, || unreachable!()).1.clone(), words.get(1, || unreachable!()).1.clone());
+        let (a, b) = (
+            words.get(1, || unreachable!()).1.clone(),
+            words.get(1, || unreachable!()).1.clone(),
+        );
         match (a, b) {
-            (super::Text::Shared(a), super::Text::Shared(b)) => assert!(std::sync::Arc::ptr_eq(&a, &b)),
+            (super::Text::Shared(a), super::Text::Shared(b)) => {
+                assert!(std::sync::Arc::ptr_eq(&a, &b))
+            }
             other => panic!("not shared: {other:?}"),
         }
     }

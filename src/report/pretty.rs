@@ -299,8 +299,14 @@ mod tests {
     #[test]
     fn every_character_that_is_escaped_is_escaped_as_the_serde_way() {
         let mut specials: Vec<char> = (0u32..0x100).filter_map(char::from_u32).collect();
-        specials.extend(['\u{200e}', '\u{200f}', '\u{2028}', '\u{2029}', '\u{2070}', '\u{feff}']);
-        specials.extend((0x202a..=0x202e).chain(0x2066..=0x2069).filter_map(char::from_u32));
+        specials.extend([
+            '\u{200e}', '\u{200f}', '\u{2028}', '\u{2029}', '\u{2070}', '\u{feff}',
+        ]);
+        specials.extend(
+            (0x202a..=0x202e)
+                .chain(0x2066..=0x2069)
+                .filter_map(char::from_u32),
+        );
         for c in specials {
             for s in [
                 c.to_string(),

@@ -272,7 +272,10 @@ fn write_result(
     fingerprint: u64,
 ) {
     let mut place = |span| lines.as_deref_mut().map(|l| Place::at(l, span));
-    let mut location = |w: &mut PrettyOut<'_>, id: Option<usize>, span: Option<crate::source::Span>, text: Option<&str>| {
+    let mut location = |w: &mut PrettyOut<'_>,
+                        id: Option<usize>,
+                        span: Option<crate::source::Span>,
+                        text: Option<&str>| {
         w.open_object();
         if let Some(id) = id {
             w.key("id").num(id);
