@@ -431,7 +431,7 @@ mod tests {
 
     #[test]
     fn a_message_extended_holds_both_parts() {
-        let mut d = Diag::warning("x", "first");
+        let mut d = Diag::warning("missing-field", "first");
         d.extend_message(", then more");
         assert_eq!(&*d.message, "first, then more");
         let d = d
