@@ -62,23 +62,85 @@ fn tables(out_dir: &std::path::Path) {
         blob.extend(bytes);
         index.push((id, aliases, start, blob.len() as u32));
     }
-    write("families-index", postcard::to_allocvec(&index).unwrap());
     write("families", blob);
+    // the index as Rust data, so start-up decodes nothing to know which families there are
+    let mut code = String::from(
+        "/// Each shipped family's id and aliases (capitals) and its bytes in `families.postcard`.\n\
+         static FAMILY_INDEX: &[(&str, &[&str], u32, u32)] = &[\n",
+    );
+    for (id, aliases, a, b) in &index {
+        let _ = writeln!(code, "    ({id:?}, &{aliases:?}, {a}, {b}),");
+    }
+    code.push_str("];\n\n");
     let functions =
         function::FunctionTable::parse_shipped().unwrap_or_else(|e| fail("functions.toml", e));
     // each function on its own, so the binary decodes only those a board uses: an index of
     // (series, id, start, end) and the functions' bytes one after another
     let mut blob = Vec::new();
-    let mut index = Vec::new();
-    for f in functions.iter() {
+    let mut ranges = Vec::new();
+    // for each series, its ids sorted (looked up by binary search) with their function's place
+    let mut ids: [Vec<(String, u32)>; 3] = Default::default();
+    for (i, f) in functions.iter().enumerate() {
         let start = blob.len() as u32;
         blob.extend(postcard::to_allocvec(f).unwrap());
-        index.push((f.series, f.id.clone(), start, blob.len() as u32));
+        ranges.push((start, blob.len() as u32));
+        ids[f.series as usize].push((f.id.clone(), i as u32));
     }
-    write("functions-index", postcard::to_allocvec(&index).unwrap());
     write("functions", blob);
+    let _ = writeln!(
+        code,
+        "/// For each series, its shipped functions' ids, sorted, each with the function's place\n\
+         /// in `FUNCTION_RANGES`.\nstatic FUNCTION_IDS: [&[(&str, u32)]; 3] = ["
+    );
+    for list in &mut ids {
+        list.sort();
+        for w in list.windows(2) {
+            assert!(
+                w[0].0 != w[1].0,
+                "rules/functions.toml: `{}` twice in one series",
+                w[0].0
+            );
+        }
+        let _ = writeln!(code, "    &{list:?},");
+    }
+    code.push_str("];\n\n");
+    let _ = writeln!(
+        code,
+        "/// Each shipped function's bytes in `functions.postcard`, in the file's order.\n\
+         static FUNCTION_RANGES: &[(u32, u32)] = &{ranges:?};\n"
+    );
     let parts = parts::PartTable::parse_shipped().unwrap_or_else(|e| fail("parts.toml", e));
-    write("parts", postcard::to_allocvec(&parts).unwrap());
+    // the part entries as Rust code: start-up builds them without decoding anything
+    code.push_str(
+        "/// The shipped part entries (`rules/parts.toml`), as build.rs read them.\n\
+         fn shipped_part_entries() -> Vec<PartEntry> {\n    vec![\n",
+    );
+    let text = |t: &Option<parts::EntryText>| match t {
+        Some(t) => format!("Some(t({:?}))", &**t),
+        None => "None".to_string(),
+    };
+    for e in &parts.entries {
+        assert!(
+            e.shipped && e.origin.is_none(),
+            "a shipped entry has no origin"
+        );
+        let values: Vec<String> = e.values.iter().map(|v| format!("t({:?})", &**v)).collect();
+        let _ = writeln!(
+            code,
+            "        PartEntry {{ values: vec![{}], kind: EntryKind::{:?}, family: {}, series: Series::{:?}, \
+             function: {}, note: {}, span: {}..{}, shipped: true, origin: None }},",
+            values.join(", "),
+            e.kind,
+            text(&e.family),
+            e.series,
+            text(&e.function),
+            text(&e.note),
+            e.span.start,
+            e.span.end
+        );
+    }
+    code.push_str("    ]\n}\n");
+    std::fs::write(out_dir.join("shipped_tables.rs"), code).unwrap();
     // PinRole is read by the function table; named here so the import is used
     let _ = PinRole::Unknown;
 }

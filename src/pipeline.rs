@@ -206,15 +206,40 @@ pub struct Usage {
 /// Reads and analyses the file at `path` with resolved settings: the outcome (findings with
 /// the waivers applied) and what it used.
 pub fn check_file_with(path: &str, settings: &Settings) -> (FileOutcome, Usage) {
+    check_file_leaving(path, settings, Model::Free)
+}
+
+/// What becomes of a file's model and circuit once its findings are out.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Model {
+    /// Freed at once, before the next file is read.
+    Free,
+    /// Left to the end of the process: for a command that checks one file and then only
+    /// reports and exits. A model is some hundreds of thousands of allocations on a big
+    /// board; the system takes the memory back at exit in one go.
+    LeftToExit,
+}
+
+/// [`check_file_with`], saying what becomes of the model.
+pub fn check_file_leaving(path: &str, settings: &Settings, model: Model) -> (FileOutcome, Usage) {
     let source = match open_source(path, &settings.run.read) {
         Ok(s) => s,
         Err(f) => return (*f, Usage::default()),
     };
-    outcome_of(source, settings)
+    outcome_leaving(source, settings, model)
 }
 
 /// The outcome of analysing `source` with `settings`.
 pub fn outcome_of(source: SourceFile, settings: &Settings) -> (FileOutcome, Usage) {
+    outcome_leaving(source, settings, Model::Free)
+}
+
+/// [`outcome_of`], saying what becomes of the model.
+pub fn outcome_leaving(
+    source: SourceFile,
+    settings: &Settings,
+    model: Model,
+) -> (FileOutcome, Usage) {
     let result = Analysis::new(&source, settings).map(|a| {
         // the findings are moved out, and the model dropped before the next stage
         let f = a.circuit().into_findings();
@@ -222,13 +247,17 @@ pub fn outcome_of(source: SourceFile, settings: &Settings) -> (FileOutcome, Usag
             rules: a.used(),
             waivers: f.waivers_used,
         };
-        (
+        let out = (
             f.diags,
             f.waived.len(),
             a.nl.summary(),
             a.cl.coverage,
             usage,
-        )
+        );
+        if model == Model::LeftToExit {
+            std::mem::forget(a);
+        }
+        out
     });
     match result {
         Ok((diags, waived, summary, coverage, usage)) => (

@@ -74,7 +74,7 @@ fn precedence_field_over_project_over_shipped_over_pattern() {
     );
     // the value is the truth: the table's roles win over the symbol's wrong pin types
     let u1 = &nl.components[0];
-    let role = |num: &str| p(0).roles[u1.pins.iter().position(|x| x.num == num).unwrap()];
+    let role = |num: &str| p(0).roles[u1.pins.iter().position(|x| x.num(&nl) == num).unwrap()];
     assert_eq!(role("1"), PinRole::Input);
     assert_eq!(role("3"), PinRole::PushPull);
     assert_eq!(role("14"), PinRole::Supply);
@@ -281,7 +281,7 @@ fn parts_alike_share_one_pin_table_and_parts_that_differ_do_not() {
             let at = nl.components[i]
                 .pins
                 .iter()
-                .position(|x| x.num == num)
+                .position(|x| x.num(&nl) == num)
                 .unwrap();
             cl.parts[i].roles[at]
         };

@@ -444,7 +444,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                         let k = nm
                             .pulls
                             .iter()
-                            .position(|pl| Some(pl.at) == it.at)
+                            .position(|pl| pl.at == it.at(cx))
                             .expect("the item's resistor");
                         format!("i(v{p}r{k})")
                     } else {

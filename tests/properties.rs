@@ -411,7 +411,7 @@ fn fingerprint(nl: &Netlist<'_>) -> Fingerprint {
                             }
                             Connection::Absent => (String::new(), "absent"),
                         };
-                        (p.num.to_string(), net, kind)
+                        (p.num(nl).to_string(), net, kind)
                     })
                     .collect();
                 v.sort();

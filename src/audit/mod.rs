@@ -993,13 +993,13 @@ fn gather_recapture(
             .pins
             .iter()
             .filter(|p| p.connection == Connection::Absent)
-            .map(|p| p.num.to_string())
+            .map(|p| p.num(nl).to_string())
             .collect();
         let alone: Vec<String> = c
             .pins
             .iter()
             .filter(|p| matches!(p.connection, Connection::Alone { .. }))
-            .map(|p| p.num.to_string())
+            .map(|p| p.num(nl).to_string())
             .collect();
         if absent.is_empty() && alone.is_empty() {
             continue;

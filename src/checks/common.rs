@@ -4,7 +4,7 @@ use super::Context;
 use crate::circuit::Circuit;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
-use crate::diag::{Diag, Text};
+use crate::diag::{Diag, Label, Text};
 use crate::netlist::Connection;
 
 /// Why an input floats.
@@ -28,15 +28,45 @@ pub struct Floating {
 }
 
 /// A whole gate whose inputs all float and whose outputs go nowhere.
-#[derive(Debug, Clone)]
-pub struct UnusedGate<'n> {
+#[derive(Debug, Clone, Copy)]
+pub struct UnusedGate<'n, 'g> {
     pub comp: usize,
     /// The unit's name in the function table (`A`, `B` ...).
     pub unit: &'n str,
     /// Every input of the unit, in pin order.
-    pub inputs: Vec<Floating>,
+    pub inputs: &'g [Floating],
     /// Every output of the unit, in pin order.
-    pub outputs: Vec<PinRef>,
+    pub outputs: &'g [PinRef],
+}
+
+/// The floating inputs of one kind of part ([`floating_inputs`]): the single inputs, and the
+/// unused gates, whose pins are kept in two lists for all of them (a board can have one
+/// on every part).
+#[derive(Debug, Default)]
+pub struct FloatingInputs<'n> {
+    pub singles: Vec<Floating>,
+    gate_inputs: Vec<Floating>,
+    gate_outputs: Vec<PinRef>,
+    /// (part, unit, end of its inputs, end of its outputs): each gate's pins follow the
+    /// previous gate's.
+    gates: Vec<(usize, &'n str, usize, usize)>,
+}
+
+impl<'n> FloatingInputs<'n> {
+    /// The unused gates, in the order found.
+    pub fn gates(&self) -> impl Iterator<Item = UnusedGate<'n, '_>> + '_ {
+        let mut from = (0, 0);
+        self.gates.iter().map(move |&(comp, unit, ins, outs)| {
+            let g = UnusedGate {
+                comp,
+                unit,
+                inputs: &self.gate_inputs[from.0..ins],
+                outputs: &self.gate_outputs[from.1..outs],
+            };
+            from = (ins, outs);
+            g
+        })
+    }
 }
 
 /// Why an input on `connection` floats, or `None` when something sets its level in every
@@ -70,14 +100,12 @@ fn is_logic_input(role: PinRole) -> bool {
 /// Floating logic inputs of classified parts whose family has TTL inputs (`ttl` true) or
 /// CMOS inputs (`ttl` false), with the whole unused gates gathered up (in unit-name order,
 /// each part's inputs outside a unit first among its singles).
-pub fn floating_inputs<'n>(
-    ctx: &Context<'_, 'n, '_>,
-    ttl: bool,
-) -> (Vec<Floating>, Vec<UnusedGate<'n>>) {
+pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInputs<'n> {
     let cx = ctx.cx;
     let cl: &'n crate::classify::classifier::Classified = cx.cl;
-    let mut singles = Vec::new();
-    let mut gates = Vec::new();
+    let mut out = FloatingInputs::default();
+    // one part's floating inputs by unit (none first), each unit's in pin order: reused
+    let mut found: Vec<(Option<&'n str>, Floating)> = Vec::new();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let Some(fam) = cx.family(ci).filter(|_| part.is_logic()) else {
@@ -87,8 +115,7 @@ pub fn floating_inputs<'n>(
             continue;
         }
         let roles = &cx.roles[ci];
-        // the floating inputs of each unit, units in name order
-        let mut by_unit: Vec<(&'n str, Vec<Floating>)> = Vec::new();
+        found.clear();
         for (pi, p) in c.pins.iter().enumerate() {
             // a no-connect flag silences the schematic editor; it does not tie the pin
             if !is_logic_input(roles[pi]) {
@@ -106,46 +133,54 @@ pub fn floating_inputs<'n>(
                 at: PinRef { comp: ci, pin: pi },
                 why,
             };
-            match part.units[pi].as_deref() {
-                Some(u) => match by_unit.iter_mut().find(|(v, _)| *v == u) {
-                    Some((_, l)) => l.push(f),
-                    None => by_unit.push((u, vec![f])),
-                },
-                None => singles.push(f),
-            }
+            found.push((part.units[pi].as_deref(), f));
         }
-        by_unit.sort_unstable_by(|a, b| a.0.cmp(b.0));
-        for (unit, floats) in by_unit {
+        if found.is_empty() {
+            continue;
+        }
+        // stable: pin order within a unit
+        found.sort_by(|a, b| a.0.cmp(&b.0));
+        let mut i = 0;
+        while i < found.len() {
+            let unit = found[i].0;
+            let mut j = i + 1;
+            while j < found.len() && found[j].0 == unit {
+                j += 1;
+            }
+            let group = found[i..j].iter().map(|(_, f)| f.clone());
+            let Some(unit) = unit else {
+                out.singles.extend(group);
+                i = j;
+                continue;
+            };
             // every input of the unit floats, and its outputs reach nothing
             let mut unit_inputs = 0;
-            let mut outputs = Vec::new();
-            for i in 0..c.pins.len() {
-                if part.units[i].as_deref() != Some(unit) {
+            let mut outputs_unused = true;
+            let outputs_from = out.gate_outputs.len();
+            for k in 0..c.pins.len() {
+                if part.units[k].as_deref() != Some(unit) {
                     continue;
                 }
-                if is_logic_input(roles[i]) {
+                if is_logic_input(roles[k]) {
                     unit_inputs += 1;
                 }
-                if roles[i].is_output() {
-                    outputs.push(PinRef { comp: ci, pin: i });
+                if roles[k].is_output() {
+                    outputs_unused &= c.pins[k].connection.is_unconnected();
+                    out.gate_outputs.push(PinRef { comp: ci, pin: k });
                 }
             }
-            let outputs_unused = outputs
-                .iter()
-                .all(|o| c.pins[o.pin].connection.is_unconnected());
-            if floats.len() == unit_inputs && unit_inputs > 0 && outputs_unused {
-                gates.push(UnusedGate {
-                    comp: ci,
-                    unit,
-                    inputs: floats,
-                    outputs,
-                });
+            if j - i == unit_inputs && unit_inputs > 0 && outputs_unused {
+                out.gate_inputs.extend(group);
+                out.gates
+                    .push((ci, unit, out.gate_inputs.len(), out.gate_outputs.len()));
             } else {
-                singles.extend(floats);
+                out.gate_outputs.truncate(outputs_from);
+                out.singles.extend(group);
             }
+            i = j;
         }
     }
-    (singles, gates)
+    out
 }
 
 /// What the words of an unused gate's finding follow from, beside its part's reference and
@@ -165,7 +200,7 @@ pub struct GateKey<'n> {
 }
 
 impl<'n> GateKey<'n> {
-    pub fn of(ctx: &Context<'_, 'n, '_>, g: &UnusedGate<'n>) -> GateKey<'n> {
+    pub fn of(ctx: &Context<'_, 'n, '_>, g: &UnusedGate<'n, '_>) -> GateKey<'n> {
         let cx = ctx.cx;
         let cl: &'n crate::classify::classifier::Classified = cx.cl;
         let part = &cl.parts[g.comp];
@@ -204,7 +239,7 @@ impl<K: std::hash::Hash + Eq> Words<K> {
 /// its pins listed, with the help the caller worded for parts alike.
 pub fn unused_gate_finding(
     cx: &Circuit<'_, '_>,
-    g: &UnusedGate<'_>,
+    g: &UnusedGate<'_, '_>,
     make: fn(&'static str, String) -> Diag,
     code: &'static str,
     tail: &str,
@@ -224,10 +259,16 @@ pub fn unused_gate_finding(
     let mut d = make(code, message)
         .with_help(help.clone())
         .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
-    d = d.at(cx.pin_span(g.inputs[0].at), "unused gate");
-    for f in &g.inputs[1..] {
-        d = d.also(cx.pin_span(f.at), "");
-    }
+    // one place per input, allocated at once: the first input's, then the others beside it
+    let place = |f: &Floating, text: &'static str, primary| Label {
+        span: cx.pin_span(f.at),
+        text: text.into(),
+        primary,
+    };
+    let mut labels = Vec::with_capacity(g.inputs.len());
+    labels.push(place(&g.inputs[0], "unused gate", true));
+    labels.extend(g.inputs[1..].iter().map(|f| place(f, "", false)));
+    d.labels = labels.into_boxed_slice();
     d
 }
 
@@ -246,7 +287,7 @@ pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
     let cx = ctx.cx;
     numbered_list(pins.iter().map(|p| {
         (
-            cx.nl.components[p.comp].pins[p.pin].num.as_ref(),
+            cx.nl.components[p.comp].pins[p.pin].num(cx.nl),
             cx.cl.parts[p.comp].table_names[p.pin].as_deref(),
         )
     }))
@@ -362,6 +403,32 @@ mod tests {
         );
     }
 
+    /// Each gate's pins are the run after the previous gate's, in the shared lists.
+    #[test]
+    fn unused_gates_read_their_own_pins_from_the_shared_lists() {
+        use super::{Float, Floating, FloatingInputs, PinRef};
+        let pin = |comp, pin| PinRef { comp, pin };
+        let input = |comp, p| Floating {
+            at: pin(comp, p),
+            why: Float::Absent,
+        };
+        let found = FloatingInputs {
+            singles: vec![input(9, 9)],
+            gate_inputs: vec![input(1, 0), input(1, 1), input(2, 4)],
+            gate_outputs: vec![pin(1, 2), pin(2, 5), pin(2, 6)],
+            gates: vec![(1, "A", 2, 1), (2, "B", 3, 3)],
+        };
+        let gates: Vec<_> = found.gates().collect();
+        assert_eq!(gates.len(), 2);
+        assert_eq!((gates[0].comp, gates[0].unit), (1, "A"));
+        let ins = |g: &super::UnusedGate<'_, '_>| g.inputs.iter().map(|f| f.at).collect::<Vec<_>>();
+        assert_eq!(ins(&gates[0]), [pin(1, 0), pin(1, 1)]);
+        assert_eq!(gates[0].outputs, [pin(1, 2)]);
+        assert_eq!((gates[1].comp, gates[1].unit), (2, "B"));
+        assert_eq!(ins(&gates[1]), [pin(2, 4)]);
+        assert_eq!(gates[1].outputs, [pin(2, 5), pin(2, 6)]);
+    }
+
     #[test]
     fn words_are_made_once_per_key() {
         let mut words = super::Words::new();
@@ -409,12 +476,14 @@ mod tests {
 /// ` (VIH taken at 5.25 V, the top of the rail tolerance)` when a tolerance moved the load's
 /// threshold; empty otherwise.
 pub fn vih_supply_note(m: &crate::circuit::budget::LoadMargin) -> String {
-    m.thresholds_at.map_or(String::new(), |(hi, _)| {
-        format!(
-            " (VIH taken at {}, the top of the rail tolerance)",
-            crate::values::format_volts(hi)
-        )
-    })
+    m.thresholds_at
+        .as_deref()
+        .map_or(String::new(), |&(hi, _)| {
+            format!(
+                " (VIH taken at {}, the top of the rail tolerance)",
+                crate::values::format_volts(hi)
+            )
+        })
 }
 
 /// `J1` or `J1 and J3`: the switches a net is held through.

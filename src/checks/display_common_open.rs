@@ -60,11 +60,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .iter()
             .map(|&pi| {
                 let p = &c.pins[pi];
-                let name = p.name.as_deref().unwrap_or("common");
+                let name = p.name(cx.nl).unwrap_or("common");
                 if uniform {
-                    format!("{} ({name})", p.num)
+                    format!("{} ({name})", p.num(cx.nl))
                 } else {
-                    format!("{} ({name}, {})", p.num, how(pi))
+                    format!("{} ({name}, {})", p.num(cx.nl), how(pi))
                 }
             })
             .collect();

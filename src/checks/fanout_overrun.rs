@@ -99,17 +99,20 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     String::new()
                 };
                 // inputs that draw more than one unit load (a counter's clock): say how many
-                let heavy: Vec<&crate::circuit::budget::Item> =
-                    sb.items.iter().filter(|i| i.unit_loads.is_some()).collect();
-                let heavy_note = match heavy.first().and_then(|i| i.unit_loads) {
+                let heavy: Vec<&crate::circuit::budget::Item> = sb
+                    .items
+                    .iter()
+                    .filter(|i| i.unit_loads(cx).is_some())
+                    .collect();
+                let heavy_note = match heavy.first().and_then(|i| i.unit_loads(cx)) {
                     Some(u) if heavy.len() == sb.items.len() && same => {
                         format!(", {} unit loads each", unit_text(u))
                     }
-                    Some(u) if heavy.iter().all(|i| i.unit_loads == Some(u)) => {
+                    Some(u) if heavy.iter().all(|i| i.unit_loads(cx) == Some(u)) => {
                         format!(", {} of them {} unit loads each", heavy.len(), unit_text(u))
                     }
                     Some(_) => {
-                        let units: f64 = heavy.iter().filter_map(|i| i.unit_loads).sum();
+                        let units: f64 = heavy.iter().filter_map(|i| i.unit_loads(cx)).sum();
                         format!(
                             ", {} of them {} unit loads in all",
                             heavy.len(),
@@ -165,7 +168,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 )
                 .at(cx.pin_span(d.at), format!("{} {} against {}", verb, format_amps(sb.total), format_amps(sb.rating)))
                 .on_net(cx.net_name(net))
-                .with_pins(std::iter::once(cx.pin_name(d.at)).chain(sb.items.iter().filter_map(|i| i.at).map(|p| cx.pin_name(p))));
+                .with_pins(std::iter::once(cx.pin_name(d.at)).chain(sb.items.iter().map(|i| cx.pin_name(i.at(cx)))));
                 let keep = fits(
                     sb.rating,
                     sb.total / sb.items.len().max(1) as f64,
@@ -178,7 +181,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     sb.items.len(),
                     pct(ctx.opts.derating)
                 ));
-                for it in sb.items.iter().filter_map(|i| i.at).take(3) {
+                for it in sb.items.iter().map(|i| i.at(cx)).take(3) {
                     diag = diag.also(cx.pin_span(it), "load");
                 }
                 out.push(diag);

@@ -31,10 +31,10 @@ use crate::diag::Diag;
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
-    let (singles, gates) = floating_inputs(ctx, false);
+    let found = floating_inputs(ctx, false);
     // the words every part alike shares (the tail of the message, the help), made once
     let mut words = Words::new();
-    for g in gates {
+    for g in found.gates() {
         let key = GateKey::of(ctx, &g);
         let (tail, help) = words.get(key, || {
             let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
@@ -60,7 +60,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     list,
                     ground_rail_name(ctx, g.comp),
                     supply_rail_name(ctx, g.comp),
-                    pin_list(ctx, &g.outputs)
+                    pin_list(ctx, g.outputs)
                 ),
             )
         });
@@ -76,7 +76,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
     let mut part_text: Option<(usize, &str, String)> = None;
-    for f in singles {
+    for f in found.singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
             // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
             let input = if cx

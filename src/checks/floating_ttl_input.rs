@@ -29,7 +29,7 @@ use crate::values::format_ohms;
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
-    let (singles, gates) = floating_inputs(ctx, true);
+    let found = floating_inputs(ctx, true);
     let inside = |comp: usize| {
         cx.family(comp)
             .and_then(|f| f.internal_input_pullup_ohm)
@@ -45,7 +45,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     };
     // the words every part alike shares (the tail of the message, the help), made once
     let mut words = Words::new();
-    for g in gates {
+    for g in found.gates() {
         let (tail, help) = words.get(GateKey::of(ctx, &g), || {
             let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
             let list = pin_list(ctx, &pins);
@@ -62,7 +62,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 format!(
                     "{}; the gate's output {} may stay open",
                     tie(g.comp).replacen("it", &list, 1),
-                    pin_list(ctx, &g.outputs)
+                    pin_list(ctx, g.outputs)
                 ),
             )
         });
@@ -78,7 +78,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
     let mut part_text: Option<(usize, String, String)> = None;
-    for f in singles {
+    for f in found.singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
             part_text = Some((f.at.comp, inside(f.at.comp), tie(f.at.comp)));
         }

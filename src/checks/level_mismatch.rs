@@ -117,7 +117,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                                 "{} reads a low only below {}{}; {} guarantees {} at its load: short by {}",
                                 cx.describe(l.at),
                                 format_volts(m.vil),
-                                m.thresholds_at.map_or(String::new(), |(_, lo)| format!(
+                                m.thresholds_at.as_deref().map_or(String::new(), |&(_, lo)| format!(
                                     " (VIL taken at {}, the bottom of the rail tolerance)",
                                     format_volts(lo)
                                 )),

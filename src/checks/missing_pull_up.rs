@@ -49,7 +49,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let c = &cx.nl.components[d.at.comp];
             (
                 c.reference.as_str().to_string(),
-                c.pins[d.at.pin].num.to_string(),
+                c.pins[d.at.pin].num(cx.nl).to_string(),
             )
         });
         let d = oc[0];
@@ -88,7 +88,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     "{} has no pull-up on this board and no input here reads it; the net leaves through {} pin {}, where the pull-up belongs to the other side",
                     cx.describe(d.at),
                     cx.nl.components[j.comp].reference,
-                    cx.nl.components[j.comp].pins[j.pin].num
+                    cx.nl.components[j.comp].pins[j.pin].num(cx.nl)
                 ),
             )
             .also(cx.pin_span(j), "leaves the board")
@@ -100,7 +100,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     "{} has no pull-up on this board; the net leaves through {} pin {}, where one may be fitted",
                     cx.describe(d.at),
                     cx.nl.components[j.comp].reference,
-                    cx.nl.components[j.comp].pins[j.pin].num
+                    cx.nl.components[j.comp].pins[j.pin].num(cx.nl)
                 ),
             )
             .also(cx.pin_span(j), "leaves the board")

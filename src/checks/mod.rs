@@ -211,20 +211,39 @@ pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions)
 }
 
 /// Sorts findings, stably, by the start of their primary place, then code, then message.
-/// The places are looked up once, and the findings are sorted as indices and then moved into
-/// place by swaps: no copy of the list is made, however many findings there are.
+/// The places are looked up once and sorted as plain numbers (place, then index: a stable
+/// order with no text compared); only findings that share a place are then ordered by code
+/// and message. The findings are moved into place by swaps: no copy of the list is made,
+/// however many findings there are.
 fn sort_in_file_order(out: &mut [Diag]) {
-    let start: Vec<u32> = out
+    let mut keys: Vec<u64> = out
         .iter()
-        .map(|d| d.primary_span().map_or(0, |s| s.start))
+        .enumerate()
+        .map(|(i, d)| {
+            let start = d.primary_span().map_or(0, |s| s.start);
+            (u64::from(start) << 32) | i as u64
+        })
         .collect();
-    let mut order: Vec<usize> = (0..out.len()).collect();
-    order.sort_by(|&a, &b| {
-        start[a]
-            .cmp(&start[b])
-            .then_with(|| out[a].code.cmp(&out[b].code))
-            .then_with(|| out[a].message.cmp(&out[b].message))
-    });
+    keys.sort_unstable();
+    let mut order: Vec<usize> = keys.iter().map(|k| (k & 0xffff_ffff) as usize).collect();
+    // runs of one place: by code, then message, in their first order otherwise
+    let mut i = 0;
+    while i < keys.len() {
+        let mut j = i + 1;
+        while j < keys.len() && keys[j] >> 32 == keys[i] >> 32 {
+            j += 1;
+        }
+        if j - i > 1 {
+            order[i..j].sort_by(|&a, &b| {
+                out[a]
+                    .code
+                    .cmp(&out[b].code)
+                    .then_with(|| out[a].message.cmp(&out[b].message))
+            });
+        }
+        i = j;
+    }
+    drop(keys);
     apply_order(out, &mut order);
 }
 

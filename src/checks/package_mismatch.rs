@@ -123,7 +123,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let filters: Vec<&str> = c
             .libpart
             .map(|lp| {
-                cx.nl.libparts[lp]
+                cx.nl.libparts[lp as usize]
                     .footprints
                     .iter()
                     .map(|t| t.as_str())
@@ -147,7 +147,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 .with_help(format!("use a {want}-pin {pkg} footprint for {reference}, or correct the value if the {n}-pin footprint is right"))
             }
             Stated::Filters(f) => {
-                let lp = c.libpart.map(|lp| &cx.nl.libparts[lp]);
+                let lp = c.libpart.map(|lp| &cx.nl.libparts[lp as usize]);
                 let span = lp
                     .and_then(|lp| {
                         lp.footprints

@@ -175,7 +175,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if extra_supply(role, p.ptype, part.table_names[pi].as_deref()) {
                 continue;
             }
-            if !types_agree(role, p.ptype) || names_disagree(role, p.name.as_deref()) {
+            if !types_agree(role, p.ptype) || names_disagree(role, p.name(cx.nl)) {
                 bad.push(pi);
             }
         }
@@ -195,7 +195,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let clauses: Vec<String> = groups
             .iter()
             .map(|((t, r), pins)| {
-                let nums: Vec<String> = pins.iter().map(|&i| c.pins[i].num.to_string()).collect();
+                let nums: Vec<String> = pins
+                    .iter()
+                    .map(|&i| c.pins[i].num(cx.nl).to_string())
+                    .collect();
                 let names: Vec<String> = pins
                     .iter()
                     .filter_map(|&i| part.table_names[i].as_deref().map(String::from))
@@ -209,8 +212,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     .iter()
                     .filter_map(|&i| {
                         c.pins[i]
-                            .name
-                            .as_deref()
+                            .name(cx.nl)
                             .map(str::to_string)
                             .filter(|n| names_disagree(part.roles[i], Some(n)))
                     })
@@ -259,7 +261,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             "pin-role-mismatch",
             format!("{} ({value}): the symbol disagrees with the {value} pinout at {} pin{}: {}", c.reference.as_str(), bad.len(), if bad.len() == 1 { "" } else { "s" }, clauses.join("; ")),
         )
-        .at(cx.pin_span(first), format!("the symbol's pin {} is typed {}", c.pins[bad[0]].num, c.pins[bad[0]].ptype.as_str()))
+        .at(cx.pin_span(first), format!("the symbol's pin {} is typed {}", c.pins[bad[0]].num(cx.nl), c.pins[bad[0]].ptype.as_str()))
         .with_pins(bad.iter().map(|&i| cx.pin_name(PinRef { comp: ci, pin: i })))
         .with_help(format!(
             "likely cause: {}; use a symbol for the {value} (or correct the pin types); netmargin goes by the value and reads these pins as the {value} pinout gives them",

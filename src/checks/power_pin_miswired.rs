@@ -158,8 +158,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             if part.role_source[pi] != RoleSource::Table && p.ptype == PinType::PowerOut {
                 continue; // a power output makes its own rail
             }
-            let Some(side) = side_of(part.roles[pi], part.role_source[pi], p.name.as_deref())
-            else {
+            let Some(side) = side_of(part.roles[pi], part.role_source[pi], p.name(cx.nl)) else {
                 continue;
             };
             let at = PinRef { comp: ci, pin: pi };
@@ -272,7 +271,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     // pin (a part with two supply inputs, used one at a time)
                     let other_on_rail = c.pins.iter().enumerate().any(|(qi, q)| {
                         qi != pi
-                            && side_of(part.roles[qi], part.role_source[qi], q.name.as_deref())
+                            && side_of(part.roles[qi], part.role_source[qi], q.name(cx.nl))
                                 == Some(side)
                             && q.connection
                                 .net()

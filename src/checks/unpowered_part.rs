@@ -78,7 +78,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         power.sort_by_key(|d| d.pin.parse::<u32>().unwrap_or(u32::MAX));
         let mut found: Vec<(&PinDef, Missing, Option<usize>)> = Vec::new();
         for d in &power {
-            let idx = c.pins.iter().position(|p| p.num == d.pin);
+            let idx = c.pins.iter().position(|p| p.num(cx.nl) == d.pin);
             // alone on a rail net (one power symbol on one chip): on that rail
             if let Some(Connection::Alone { net, .. }) = idx.map(|i| c.pins[i].connection) {
                 if cx.nets[net as usize].rail.is_some() {

@@ -71,7 +71,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
             break;
         }
         if cx.cl.parts[cur.comp].kind == PartKind::Led {
-            let side = c.pins[cur.pin].name.as_deref().and_then(pin_side);
+            let side = c.pins[cur.pin].name(nl).and_then(pin_side);
             out.push(match side {
                 Some(true) => Polarity::Forward,
                 Some(false) => Polarity::Reversed,
@@ -88,17 +88,17 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
         let Some(next) = nl.nets[net]
             .nodes
             .iter()
-            .find(|n| n.component != Some(cur.comp as u32))
+            .find(|n| n.component() != Some(cur.comp as u32))
         else {
             break;
         };
-        let Some(ci) = next.component.map(|c| c as usize) else {
+        let Some(ci) = next.component().map(|c| c as usize) else {
             break;
         };
         let Some(pi) = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num == next.pin)
+            .position(|p| p.num(nl) == &*next.pin)
         else {
             break;
         };

@@ -9,17 +9,14 @@ use crate::classify::family::{Drive, HighOutput, Technology};
 use crate::classify::PinRole;
 use crate::values::{format_amps, format_ohms};
 
-/// One contribution to a state's current. What it is stays structured; its words are
-/// written by [`Item::describe`] only when a report or a message prints them.
+/// One contribution to a state's current. What it is stays structured; its pin
+/// ([`Item::at`]), unit loads ([`Item::unit_loads`]) and words ([`Item::describe`]) are read
+/// from the model only when asked: a budget holds one item per input of every net, twice.
 #[derive(Debug, Clone)]
 pub struct Item {
     pub kind: ItemKind,
-    pub at: Option<PinRef>,
     /// Magnitude in amperes.
     pub amps: f64,
-    /// For a logic input that draws more than one of its family's input currents in this
-    /// state: how many.
-    pub unit_loads: Option<f64>,
 }
 
 /// What a budget item is. Indices are `u32` to keep the item small: a budget holds one per
@@ -48,6 +45,31 @@ pub enum ItemKind {
 }
 
 impl Item {
+    /// The pin the item is at: the input, the pull resistor's or the LED path's first pin on
+    /// the net, the other output.
+    pub fn at(&self, cx: &Circuit<'_, '_>) -> PinRef {
+        match self.kind {
+            ItemKind::Input { net, load, .. } => cx.nets[net as usize].loads[load as usize].at,
+            ItemKind::PullUp { net, pull, .. } | ItemKind::PullDown { net, pull, .. } => {
+                cx.nets[net as usize].pulls[pull as usize].at
+            }
+            ItemKind::Sink { net, path, .. } => cx.nets[net as usize].sink_paths[path as usize].at,
+            ItemKind::Leakage { pin, .. } => pin,
+        }
+    }
+
+    /// For a logic input that draws more than one of its family's input currents in this
+    /// state: how many.
+    pub fn unit_loads(&self, cx: &Circuit<'_, '_>) -> Option<f64> {
+        match self.kind {
+            ItemKind::Input { net, load, low, .. } => {
+                let l = &cx.nets[net as usize].loads[load as usize];
+                several(if low { l.unit_loads.0 } else { l.unit_loads.1 })
+            }
+            _ => None,
+        }
+    }
+
     /// True for a logic input's current (directly on the net or through a series part).
     pub fn is_input(&self) -> bool {
         matches!(self.kind, ItemKind::Input { .. })
@@ -159,10 +181,16 @@ impl Item {
     }
 }
 
+/// `units` when it is more (or less) than one unit load.
+fn several(units: f64) -> Option<f64> {
+    ((units - 1.0).abs() > 1e-9).then_some(units)
+}
+
 /// One state (low or high) of one driver.
 #[derive(Debug, Clone)]
 pub struct StateBudget {
-    pub items: Vec<Item>,
+    /// Allocated to its length.
+    pub items: Box<[Item]>,
     /// Total current magnitude, amperes.
     pub total: f64,
     /// The driver's rated current magnitude in this state.
@@ -202,7 +230,8 @@ pub struct DriverBudget {
     pub low: Option<StateBudget>,
     /// `None` for an open-collector output (it does not drive high).
     pub high: Option<StateBudget>,
-    pub pull_up: Option<PullUpHigh>,
+    /// Boxed: only a net with a pull-up has one.
+    pub pull_up: Option<Box<PullUpHigh>>,
     /// The level the net reaches in the high state: the driver's VOH, raised by a pull-up;
     /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
     pub high_level: Option<f64>,
@@ -467,8 +496,8 @@ pub struct LoadMargin {
     pub low_margin: Option<f64>,
     /// With a rail tolerance, a CMOS load's thresholds are taken at the worst end of its
     /// supply (VIH at the top, VIL at the bottom): (VIH's supply, VIL's supply). `None` when
-    /// they are the nominal supply's.
-    pub thresholds_at: Option<(f64, f64)>,
+    /// they are the nominal supply's. Boxed: only a rail tolerance sets it.
+    pub thresholds_at: Option<Box<(f64, f64)>>,
 }
 
 /// The resistor window for an open-collector net.
@@ -493,26 +522,14 @@ pub struct PullUpWindow {
     pub fitted: Option<f64>,
 }
 
+/// A net's budget. A budget is kept for every net: its lists are allocated to their length
+/// (two words each, none while empty).
 #[derive(Debug, Clone, Default)]
 pub struct NetBudget {
-    pub drivers: Vec<DriverBudget>,
-    pub margins: Vec<LoadMargin>,
+    pub drivers: Box<[DriverBudget]>,
+    pub margins: Box<[LoadMargin]>,
     /// Boxed: only an open-collector net has one.
     pub window: Option<Box<PullUpWindow>>,
-}
-
-impl NetBudget {
-    /// Trims every list to its length: a list grown by pushes holds room for four or more,
-    /// and a budget is kept for every net.
-    fn fit(&mut self) {
-        self.drivers.shrink_to_fit();
-        self.margins.shrink_to_fit();
-        for d in &mut self.drivers {
-            for s in [&mut d.low, &mut d.high].into_iter().flatten() {
-                s.items.shrink_to_fit();
-            }
-        }
-    }
 }
 
 /// True when input `l` counts against driver `d`'s rating: not the driver's own pin, and
@@ -534,11 +551,7 @@ fn input_item(
     low: bool,
     through: Option<usize>,
 ) -> Option<Item> {
-    let (amps, units) = if low {
-        (l.iil()?, l.unit_loads.0)
-    } else {
-        (l.iih()?, l.unit_loads.1)
-    };
+    let amps = if low { l.iil()? } else { l.iih()? };
     Some(Item {
         kind: ItemKind::Input {
             net: index(net),
@@ -546,9 +559,7 @@ fn input_item(
             low,
             through: through.map(index),
         },
-        at: Some(l.at),
         amps,
-        unit_loads: ((units - 1.0).abs() > 1e-9).then_some(units),
     })
 }
 
@@ -565,10 +576,9 @@ fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
 /// Computes the budget of one net.
 pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let nm = &cx.nets[net];
-    let mut out = NetBudget {
-        drivers: Vec::with_capacity(nm.drivers.len()),
-        ..NetBudget::default()
-    };
+    let mut drivers: Vec<DriverBudget> = Vec::with_capacity(nm.drivers.len());
+    let mut margins: Vec<LoadMargin> = Vec::new();
+    let mut window = None;
     let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
     let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
     // the most items a state can hold: every input here and on the nets fed, every pull
@@ -576,12 +586,11 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let capacity = nm.loads.len()
         + nm.feeds
             .iter()
-            .map(|&(m, _)| cx.nets[m].loads.len())
+            .map(|&(m, _)| cx.nets[m as usize].loads.len())
             .sum::<usize>()
         + nm.pulls.len()
         + nm.sink_paths.len()
         + nm.drivers.len().saturating_sub(1);
-    out.drivers.reserve_exact(nm.drivers.len());
     for (di, d) in nm.drivers.iter().enumerate() {
         // an open-emitter output (a display driver's emitter follower) only sources: it has no
         // low state to budget, and its high is rated by its own data sheet, not by its
@@ -589,7 +598,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         // under 1 mA), so neither state is judged against the family's figures
         let levels = d.levels.as_ref().filter(|_| d.role != PinRole::OpenEmitter);
         let Some(lv) = levels else {
-            out.drivers.push(DriverBudget {
+            drivers.push(DriverBudget {
                 driver: di,
                 low: None,
                 high: None,
@@ -621,15 +630,14 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     pull: index(pi),
                     vol: vol_rated,
                 },
-                at: Some(p.at),
                 amps: a,
-                unit_loads: None,
             });
         }
         // inputs on nets this one feeds through series resistors, beads or inductors
-        for &(m, link) in &nm.feeds {
+        for &(m, part) in &nm.feeds {
+            let m = m as usize;
             for (li, l) in cx.nets[m].loads.iter().enumerate() {
-                items.extend(input_item(m, li, l, true, Some(link.part)));
+                items.extend(input_item(m, li, l, true, Some(part as usize)));
             }
         }
         // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
@@ -647,9 +655,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                     path: index(si),
                     vol: vol_rated,
                 },
-                at: Some(p.at),
                 amps: a,
-                unit_loads: None,
             });
         }
         for (oi, o) in nm.drivers.iter().enumerate() {
@@ -663,27 +669,22 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                             pin: o.at,
                             ioz: true,
                         },
-                        at: Some(o.at),
                         amps: ol.ioz.abs(),
-                        unit_loads: None,
                     }),
                     PinRole::OpenCollector => items.push(Item {
                         kind: ItemKind::Leakage {
                             pin: o.at,
                             ioz: false,
                         },
-                        at: Some(o.at),
                         amps: ol.oc_leakage.abs(),
-                        unit_loads: None,
                     }),
                     _ => {}
                 }
             }
         }
-        items.shrink_to_fit();
         let total: f64 = items.iter().map(|i| i.amps).sum();
         let low = StateBudget {
-            items,
+            items: items.into_boxed_slice(),
             total,
             rating: lv.iol_max.abs(),
             level: lv.vol_at(total),
@@ -708,9 +709,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 items.push(it);
             }
         }
-        for &(m, link) in &nm.feeds {
+        for &(m, part) in &nm.feeds {
+            let m = m as usize;
             for (li, l) in cx.nets[m].loads.iter().enumerate() {
-                if let Some(it) = input_item(m, li, l, false, Some(link.part)) {
+                if let Some(it) = input_item(m, li, l, false, Some(part as usize)) {
                     load_high += it.amps;
                     items.push(it);
                 }
@@ -732,9 +734,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                         pin: o.at,
                         ioz: false,
                     },
-                    at: Some(o.at),
                     amps: a,
-                    unit_loads: None,
                 });
             }
         }
@@ -753,17 +753,14 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                         pull: index(pi),
                         voh: voh_light,
                     },
-                    at: Some(p.at),
                     amps: a,
-                    unit_loads: None,
                 });
             }
-            items.shrink_to_fit();
             let total: f64 = items.iter().map(|i| i.amps).sum();
             let level = lv.voh_at(-total);
             high_level = level;
             high = Some(StateBudget {
-                items,
+                items: items.into_boxed_slice(),
                 total,
                 rating: lv.ioh_max.abs(),
                 level,
@@ -798,11 +795,11 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
             });
         let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
-        out.drivers.push(DriverBudget {
+        drivers.push(DriverBudget {
             driver: di,
             low: Some(low),
             high,
-            pull_up,
+            pull_up: pull_up.map(Box::new),
             high_level,
             low_level,
             drive_high: drive_high.map(Box::new),
@@ -834,9 +831,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     } else {
         Vec::new()
     };
-    out.margins
-        .reserve_exact(out.drivers.len() * nm.loads.len());
-    for db in &out.drivers {
+    margins.reserve_exact(drivers.len() * nm.loads.len());
+    for db in &drivers {
         let d = &nm.drivers[db.driver];
         for (li, l) in nm.loads.iter().enumerate() {
             if l.at == d.at {
@@ -845,18 +841,17 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             let Some(ll) = &l.levels else { continue };
             let scaled = scaled_at.get(li).copied().flatten();
             let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
-            out.margins.push(LoadMargin {
+            margins.push(LoadMargin {
                 driver: db.driver,
                 load: li,
                 vih,
                 vil,
                 high_margin: db.high_level.map(|h| h - vih),
                 low_margin: db.low_level.map(|v| vil - v),
-                thresholds_at: scaled.map(|(_, _, hi, lo)| (hi, lo)),
+                thresholds_at: scaled.map(|(_, _, hi, lo)| Box::new((hi, lo))),
             });
         }
     }
-    out.margins.shrink_to_fit();
     // open-collector window
     let oc: Vec<usize> = (0..nm.drivers.len())
         .filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some())
@@ -910,7 +905,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
-            out.window = Some(Box::new(PullUpWindow {
+            window = Some(Box::new(PullUpWindow {
                 rail_net,
                 rail_volts: v,
                 v_high,
@@ -927,8 +922,11 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             }));
         }
     }
-    out.fit();
-    out
+    NetBudget {
+        drivers: drivers.into_boxed_slice(),
+        margins: margins.into_boxed_slice(),
+        window,
+    }
 }
 
 #[cfg(test)]
@@ -1030,7 +1028,7 @@ mod tests {
         let through: Vec<bool> = low.items.iter().map(Item::is_through).collect();
         assert_eq!(through, [false, false, false, true, false, false]);
         assert_eq!(
-            low.items[1].unit_loads,
+            low.items[1].unit_loads(&cx),
             Some(2.0),
             "the 74LS73 clock's low unit loads"
         );

@@ -48,12 +48,12 @@ pub fn find(nl: &Netlist<'_>, cl: &Classified) -> Vec<Display> {
         if cl.parts[ci].kind != PartKind::Display {
             continue;
         }
-        let evidence = display_evidence(c);
+        let evidence = display_evidence(nl, c);
         let mut commons = Vec::new();
         let mut segments = Vec::new();
         let mut by_pins: Option<bool> = None;
         for (pi, p) in c.pins.iter().enumerate() {
-            let Some(name) = p.name.as_deref() else {
+            let Some(name) = p.name(nl) else {
                 continue;
             };
             match display_common_name(name) {
@@ -100,7 +100,7 @@ pub fn find(nl: &Netlist<'_>, cl: &Classified) -> Vec<Display> {
             Some(net) => nl.nets[*net]
                 .nodes
                 .iter()
-                .all(|node| node.component == Some(ci as u32)),
+                .all(|node| node.component() == Some(ci as u32)),
         });
         let vf = super::led_vf_by_colour(&text);
         out.push(Display {

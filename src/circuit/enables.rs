@@ -47,7 +47,7 @@ pub fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
         .function
         .as_ref()
         .and_then(|(s, id)| cx.rules.functions.get(*s, id))
-        .and_then(|f| f.pin(&comp.pins[p.pin].num));
+        .and_then(|f| f.pin(comp.pins[p.pin].num(cx.nl)));
     let Some(def) = def.filter(|_| !enables.is_empty()) else {
         return Gate::Unknown;
     };

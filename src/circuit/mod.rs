@@ -239,8 +239,9 @@ pub struct NetModel {
     /// net is held only through them): it floats when all of them are open.
     pub floats_open: ThinVec<SwitchLink>,
     /// Nets whose only source is this net, through a series element (directly or through
-    /// further series elements): their loads are this net's drivers' loads too.
-    pub feeds: ThinVec<(usize, SeriesLink)>,
+    /// further series elements): their loads are this net's drivers' loads too. Each is
+    /// (the net fed, the series part its own source runs through).
+    pub feeds: ThinVec<(u32, u32)>,
 }
 
 /// A two-terminal series element from one net to another.
@@ -267,8 +268,9 @@ pub struct SwitchLink {
 pub enum Source {
     /// Something on the net itself: a rail, a driver, a pull resistor, a connector.
     Own,
-    /// A net that has a source, through a series element.
-    Through(SeriesLink),
+    /// A net that has a source, through a series element: the index of its link in the
+    /// net's `series` (a small index keeps every net's model small).
+    Through(u32),
     /// Two or more switch positions each join it to a net with a source (a selector).
     Selector,
 }
@@ -336,6 +338,8 @@ pub struct Circuit<'n, 'a> {
     /// Every resistor's and resistor network's value as read, once per distinct text
     /// ([`Circuit::resistor_value`]).
     pub values: ValueReadings<'n>,
+    /// Each part's family's table entry, looked up once ([`Circuit::family`]).
+    families: Vec<Option<&'n Family>>,
 }
 
 /// A resistor's or resistor network's value as read: its ohms (each element's, for a
@@ -384,11 +388,9 @@ impl<'n> ValueReadings<'n> {
 }
 
 impl<'n, 'a> Circuit<'n, 'a> {
+    /// The part's family's table entry (looked up once per part when the model is built).
     pub fn family(&self, comp: usize) -> Option<&'n Family> {
-        self.cl.parts[comp]
-            .family
-            .as_deref()
-            .and_then(|f| self.rules.families.get(f))
+        self.families[comp]
     }
 
     /// True when the part's family has TTL-level outputs (bipolar or NMOS, or a family whose
@@ -427,7 +429,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// `U4.6`
     pub fn pin_name(&self, p: PinRef) -> String {
         let c = &self.nl.components[p.comp];
-        let (r, n) = (c.reference.as_str(), &*c.pins[p.pin].num);
+        let (r, n) = (c.reference.as_str(), c.pins[p.pin].num(self.nl));
         let mut s = String::with_capacity(r.len() + 1 + n.len());
         s.push_str(r);
         s.push('.');
@@ -440,11 +442,11 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let c = &self.nl.components[p.comp];
         let part = &self.cl.parts[p.comp];
         let pin = &c.pins[p.pin];
-        let mut s = format!("{} pin {}", c.reference, pin.num);
+        let mut s = format!("{} pin {}", c.reference, pin.num(self.nl));
         let name = part.table_names[p.pin]
             .as_deref()
             .map(String::from)
-            .or_else(|| pin.name.as_ref().map(|n| n.to_string()))
+            .or_else(|| pin.name(self.nl).map(|n| n.to_string()))
             .filter(|n| n != "~" && !n.is_empty());
         let what = match part.roles[p.pin] {
             PinRole::Input | PinRole::SchmittInput => "input",
@@ -487,8 +489,8 @@ impl<'n, 'a> Circuit<'n, 'a> {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
                 self.nl.nets[net as usize].nodes[node as usize].span
             }
-            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin) {
-                (Some(lp), Some(li)) => self.nl.libparts[lp].pins[li as usize].span,
+            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin()) {
+                (Some(lp), Some(li)) => self.nl.libparts[lp as usize].pins[li as usize].span,
                 _ => c.reference.span,
             },
         }
@@ -528,6 +530,68 @@ impl<'n, 'a> Circuit<'n, 'a> {
     }
 }
 
+/// Which of its net's lists a connected pin goes to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Slot {
+    Driver,
+    Load,
+    Connector,
+    Passive,
+    Power,
+    Unknown,
+    /// A bidirectional pin: a driver and a load.
+    DriverAndLoad,
+}
+
+/// The lists counted per net ([`Slot`] up to `Unknown`).
+const SLOT_LISTS: usize = 6;
+
+/// Where a pin of a part of `kind` with `role` goes: a connector's pins are the net leaving
+/// the board (a driver too, when the configuration names the family driving it); passives'
+/// pins and a one-pin pull part's (`pull_part`, which holds its net) count as passives; a
+/// small part whose symbol types a pin as a logic input or output (a probe, a stimulus, a
+/// module's pin) takes part by that type, as a hint.
+fn pin_slot(kind: PartKind, pull_part: bool, role: PinRole) -> Slot {
+    match kind {
+        PartKind::Connector => return Slot::Connector,
+        PartKind::Resistor
+        | PartKind::ResistorNetwork
+        | PartKind::Capacitor
+        | PartKind::Led
+        | PartKind::Display
+        | PartKind::Diode
+        | PartKind::Switch
+        | PartKind::Inductor => return Slot::Passive,
+        PartKind::Other if pull_part => return Slot::Passive,
+        PartKind::Other
+            if matches!(
+                role,
+                PinRole::Passive | PinRole::Unknown | PinRole::NoConnect | PinRole::Analog
+            ) =>
+        {
+            return Slot::Passive
+        }
+        _ => {}
+    }
+    match role {
+        PinRole::Input | PinRole::SchmittInput => Slot::Load,
+        PinRole::PushPull
+        | PinRole::OpenCollector
+        | PinRole::OpenEmitter
+        | PinRole::ThreeState
+        | PinRole::PulledUpIo => Slot::Driver,
+        PinRole::Bidirectional => Slot::DriverAndLoad,
+        PinRole::Supply | PinRole::Ground => Slot::Power,
+        PinRole::Unknown => Slot::Unknown,
+        PinRole::Analog | PinRole::Passive | PinRole::NoConnect => Slot::Passive,
+    }
+}
+
+/// An index as the model's compact lists hold it.
+fn small(i: usize) -> u32 {
+    u32::try_from(i).expect("fewer than 2^32 nets and parts")
+}
+
 fn component_kind_passive(k: PartKind) -> bool {
     matches!(
         k,
@@ -550,6 +614,7 @@ pub fn build<'n, 'a>(
     opts: ModelOptions,
 ) -> Circuit<'n, 'a> {
     let n_nets = nl.nets.len();
+    let families = part_families(cl, rules);
     // rails: user declarations, names, power outputs, then the pins on them
     let mut rail: Vec<Option<Rail>> = vec![None; n_nets];
     for (i, net) in nl.nets.iter().enumerate() {
@@ -598,14 +663,13 @@ pub fn build<'n, 'a>(
             }
         }
     }
-    let mut rail_notes = rails_by_usage(nl, cl, rules, &mut rail);
+    let mut rail_notes = rails_by_usage(nl, cl, &families, &mut rail);
 
     // supplies
     let mut supplies = Vec::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
-        let fam = part.family.as_deref().and_then(|f| rules.families.get(f));
-        let Some(fam) = fam.filter(|_| part.is_logic()) else {
+        let Some(fam) = families[ci].filter(|_| part.is_logic()) else {
             supplies.push(None);
             continue;
         };
@@ -647,7 +711,7 @@ pub fn build<'n, 'a>(
         Default::default();
     let mut levels = |ci: usize| -> Option<Arc<Levels>> {
         let part = &cl.parts[ci];
-        let fam = part.family.as_deref().and_then(|f| rules.families.get(f))?;
+        let fam = families[ci]?;
         let s = supplies[ci].as_ref()?;
         let drive = match part
             .function
@@ -666,20 +730,66 @@ pub fn build<'n, 'a>(
     // one copy of each family id
     let mut family_ids: rustc_hash::FxHashMap<&str, Arc<str>> = Default::default();
 
+    // each pin's place in its net's lists, counted first so that every list is allocated
+    // once at its length (a list grown by pushes holds room for four)
+    let connector_family = |ci: usize| -> Option<&'n Family> {
+        let reference = nl.components[ci].reference.as_str();
+        let (_, fam) = opts
+            .connector_families
+            .iter()
+            .find(|(r, _)| r == reference)?;
+        rules.families.get(fam)
+    };
+    let mut counts: Vec<[u32; SLOT_LISTS]> = vec![[0; SLOT_LISTS]; n_nets];
+    for (ci, c) in nl.components.iter().enumerate() {
+        let part = &cl.parts[ci];
+        let pull_part = part.kind == PartKind::Other && is_pull_part(c);
+        let fed = part.kind == PartKind::Connector && connector_family(ci).is_some();
+        for (pi, p) in c.pins.iter().enumerate() {
+            let Connection::Net { net, .. } = p.connection else {
+                continue;
+            };
+            let n = &mut counts[net as usize];
+            match pin_slot(part.kind, pull_part, roles[ci][pi]) {
+                Slot::Connector => {
+                    n[Slot::Connector as usize] += 1;
+                    n[Slot::Driver as usize] += u32::from(fed);
+                }
+                Slot::DriverAndLoad => {
+                    n[Slot::Driver as usize] += 1;
+                    n[Slot::Load as usize] += 1;
+                }
+                slot => n[slot as usize] += 1,
+            }
+        }
+    }
     let mut nets: Vec<NetModel> = (0..n_nets)
-        .map(|i| NetModel {
-            rail: rail[i],
-            ..Default::default()
+        .map(|i| {
+            let n = &counts[i];
+            let list = |slot: Slot| n[slot as usize] as usize;
+            NetModel {
+                rail: rail[i],
+                drivers: ThinVec::with_capacity(list(Slot::Driver)),
+                loads: ThinVec::with_capacity(list(Slot::Load)),
+                connectors: ThinVec::with_capacity(list(Slot::Connector)),
+                passives: ThinVec::with_capacity(list(Slot::Passive)),
+                power_pins: ThinVec::with_capacity(list(Slot::Power)),
+                unknown: ThinVec::with_capacity(list(Slot::Unknown)),
+                ..Default::default()
+            }
         })
         .collect();
+    drop(counts);
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let family: Option<Arc<str>> = part
             .family
             .as_deref()
             .map(|f| family_ids.entry(f).or_insert_with(|| Arc::from(f)).clone());
-        // the family's table entry, looked up once per part
-        let fam = part.family.as_deref().and_then(|f| rules.families.get(f));
+        let fam = families[ci];
+        let pull_part = part.kind == PartKind::Other && is_pull_part(c);
+        // the part's figures at its supply, looked up once per part
+        let mut part_levels: Option<Option<Arc<Levels>>> = None;
         for (pi, p) in c.pins.iter().enumerate() {
             let Connection::Net { net, .. } = p.connection else {
                 continue;
@@ -689,84 +799,47 @@ pub fn build<'n, 'a>(
             let role = roles[ci][pi];
             let symbol_only = part.role_source[pi] != RoleSource::Table;
             let nm = &mut nets[net];
-            match part.kind {
-                PartKind::Connector => {
+            let slot = pin_slot(part.kind, pull_part, role);
+            let mut lv = || part_levels.get_or_insert_with(|| levels(ci)).clone();
+            let load = |lv: Option<Arc<Levels>>| {
+                let vcc = supplies[ci].as_ref().map(|s| s.vcc);
+                Load {
+                    at,
+                    role,
+                    input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
+                    ttl: fam.is_some_and(|f| !f.is_cmos_input()),
+                    levels: lv,
+                    family: family.clone(),
+                    unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
+                }
+            };
+            match slot {
+                Slot::Connector => {
                     nm.connectors.push(at);
-                    let reference = c.reference.as_str();
-                    if let Some((_, fam)) =
-                        opts.connector_families.iter().find(|(r, _)| r == reference)
-                    {
-                        if let Some(f) = rules.families.get(fam) {
-                            nm.drivers.push(Driver {
-                                at,
-                                role: PinRole::PushPull,
-                                symbol_only: false,
-                                levels: Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard))),
-                                family: Some(Arc::from(f.id.as_str())),
-                            });
-                        }
+                    if let Some(f) = connector_family(ci) {
+                        nm.drivers.push(Driver {
+                            at,
+                            role: PinRole::PushPull,
+                            symbol_only: false,
+                            levels: Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard))),
+                            family: Some(Arc::from(f.id.as_str())),
+                        });
                     }
-                    continue;
                 }
-                PartKind::Resistor
-                | PartKind::ResistorNetwork
-                | PartKind::Capacitor
-                | PartKind::Led
-                | PartKind::Display
-                | PartKind::Diode
-                | PartKind::Switch
-                | PartKind::Inductor => {
-                    nm.passives.push(at);
-                    continue;
+                Slot::Passive => nm.passives.push(at),
+                Slot::Load => {
+                    let l = load(lv());
+                    nm.loads.push(l);
                 }
-                // a small part whose symbol types a pin as a logic input or output (a probe,
-                // a stimulus, a module's pin) takes part by that type, as a hint; a one-pin
-                // pull part holds its net (below) and drives nothing
-                PartKind::Other if is_pull_part(c) => {
-                    nm.passives.push(at);
-                    continue;
-                }
-                PartKind::Other
-                    if matches!(
-                        role,
-                        PinRole::Passive | PinRole::Unknown | PinRole::NoConnect | PinRole::Analog
-                    ) =>
-                {
-                    nm.passives.push(at);
-                    continue;
-                }
-                _ => {}
-            }
-            match role {
-                PinRole::Input | PinRole::SchmittInput => {
-                    let lv = levels(ci);
-                    let vcc = supplies[ci].as_ref().map(|s| s.vcc);
-                    nm.loads.push(Load {
-                        at,
-                        role,
-                        input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
-                        ttl: fam.is_some_and(|f| !f.is_cmos_input()),
-                        levels: lv,
-                        family: family.clone(),
-                        unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
-                    });
-                }
-                PinRole::PushPull
-                | PinRole::OpenCollector
-                | PinRole::OpenEmitter
-                | PinRole::ThreeState
-                | PinRole::PulledUpIo => {
-                    nm.drivers.push(Driver {
-                        at,
-                        role,
-                        symbol_only,
-                        levels: levels(ci),
-                        family: family.clone(),
-                    });
-                }
-                PinRole::Bidirectional => {
-                    let lv = levels(ci);
-                    let vcc = supplies[ci].as_ref().map(|s| s.vcc);
+                Slot::Driver => nm.drivers.push(Driver {
+                    at,
+                    role,
+                    symbol_only,
+                    levels: lv(),
+                    family: family.clone(),
+                }),
+                Slot::DriverAndLoad => {
+                    let lv = lv();
                     nm.drivers.push(Driver {
                         at,
                         role,
@@ -774,19 +847,11 @@ pub fn build<'n, 'a>(
                         levels: lv.clone(),
                         family: family.clone(),
                     });
-                    nm.loads.push(Load {
-                        at,
-                        role,
-                        input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
-                        ttl: fam.is_some_and(|f| !f.is_cmos_input()),
-                        levels: lv,
-                        family: family.clone(),
-                        unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
-                    });
+                    let l = load(lv);
+                    nm.loads.push(l);
                 }
-                PinRole::Supply | PinRole::Ground => nm.power_pins.push(at),
-                PinRole::Unknown => nm.unknown.push(at),
-                PinRole::Analog | PinRole::Passive | PinRole::NoConnect => nm.passives.push(at),
+                Slot::Power => nm.power_pins.push(at),
+                Slot::Unknown => nm.unknown.push(at),
             }
         }
     }
@@ -807,7 +872,7 @@ pub fn build<'n, 'a>(
         if matches!(err, Some(ValueError::NotFitted(_))) {
             continue; // not on the board
         }
-        for ((pa, na), (pb, nb)) in resistor_elements(c, part.kind, &rail) {
+        for ((pa, na), (pb, nb)) in resistor_elements(nl, c, part.kind, &rail) {
             if na == nb {
                 continue;
             }
@@ -889,7 +954,7 @@ pub fn build<'n, 'a>(
         if cl.parts[ci].kind != PartKind::Switch {
             continue;
         }
-        for (pa, pb) in switch_elements(c) {
+        for (pa, pb) in switch_elements(nl, c) {
             let (Some(na), Some(nb)) = (c.pins[pa].connection.net(), c.pins[pb].connection.net())
             else {
                 continue;
@@ -955,7 +1020,28 @@ pub fn build<'n, 'a>(
         rail_notes,
         displays,
         values: readings,
+        families,
     }
+}
+
+/// Each part's family's table entry: looked up once per distinct family text (parts alike
+/// share one), so the model and the checks never look a family up by its name again.
+fn part_families<'n>(cl: &Classified, rules: &'n Rules) -> Vec<Option<&'n Family>> {
+    let mut last: Option<(&str, Option<&'n Family>)> = None;
+    cl.parts
+        .iter()
+        .map(|part| {
+            let id = part.family.as_deref()?;
+            match last {
+                Some((l, f)) if l == id => f,
+                _ => {
+                    let f = rules.families.get(id);
+                    last = Some((id, f));
+                    f
+                }
+            }
+        })
+        .collect()
 }
 
 /// A one-pin part that stands for a pull-up or pull-down (`PULLUP`, `rpullup`, `pull_down`).
@@ -980,6 +1066,7 @@ fn is_pull_part(c: &crate::netlist::Component<'_>) -> bool {
 /// rail) as one element per other pin; an isolated network (`R_Pack`, `R_Array`) as pins i
 /// and N+1-i.
 fn resistor_elements(
+    nl: &Netlist<'_>,
     c: &crate::netlist::Component<'_>,
     kind: PartKind,
     rail: &[Option<Rail>],
@@ -1020,7 +1107,7 @@ fn resistor_elements(
         // the common pin is pin 1 on the usual SIP networks
         pin_nets
             .iter()
-            .find(|(pi, _)| c.pins[*pi].num == "1")
+            .find(|(pi, _)| c.pins[*pi].num(nl) == "1")
             .or_else(|| on_rail.first().copied())
             .copied()
     } else if !isolated_symbol && on_rail.len() == 1 {
@@ -1038,7 +1125,7 @@ fn resistor_elements(
         }
         None => {
             let mut order: Vec<usize> = (0..c.pins.len()).collect();
-            order.sort_by_key(|&i| pin_number_key(&c.pins[i].num));
+            order.sort_by_key(|&i| pin_number_key(c.pins[i].num(nl)));
             let n = order.len();
             for k in 0..n / 2 {
                 let (a, b) = (order[k], order[n - 1 - k]);
@@ -1061,9 +1148,9 @@ fn pin_number_key(num: &str) -> (u64, String) {
 /// The elements of a switch or jumper, as pin index pairs: a two-pin switch one element; a
 /// three-pin switch or jumper (1-2 or 2-3) two elements sharing the middle pin; a DIP switch
 /// or shunt with an even count of pins, pins i and N+1-i.
-fn switch_elements(c: &crate::netlist::Component<'_>) -> Vec<(usize, usize)> {
+fn switch_elements(nl: &Netlist<'_>, c: &crate::netlist::Component<'_>) -> Vec<(usize, usize)> {
     let mut order: Vec<usize> = (0..c.pins.len()).collect();
-    order.sort_by_key(|&i| pin_number_key(&c.pins[i].num));
+    order.sort_by_key(|&i| pin_number_key(c.pins[i].num(nl)));
     match order.len() {
         0 | 1 => Vec::new(),
         2 => vec![(order[0], order[1])],
@@ -1092,9 +1179,9 @@ fn settle_sources(nets: &mut [NetModel]) {
             let through = nets[i]
                 .series
                 .iter()
-                .find(|l| nets[l.other_net].source.is_some())
-                .copied();
+                .position(|l| nets[l.other_net].source.is_some());
             if let Some(l) = through {
+                let l = u32::try_from(l).expect("fewer than 2^32 series links on a net");
                 nets[i].source = Some(Source::Through(l));
                 changed = true;
                 continue;
@@ -1119,18 +1206,21 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
     }
     // the nets each net feeds through series elements, followed to the end of the chain
-    let direct: Vec<Option<(usize, SeriesLink)>> = nets
+    let direct: Vec<Option<(usize, u32)>> = nets
         .iter()
         .map(|nm| match nm.source {
-            Some(Source::Through(l)) => Some((l.other_net, l)),
+            Some(Source::Through(l)) => {
+                let l = &nm.series[l as usize];
+                Some((l.other_net, small(l.part)))
+            }
             _ => None,
         })
         .collect();
     for (m, d) in direct.iter().enumerate() {
-        let Some((mut up, link)) = *d else { continue };
+        let Some((mut up, part)) = *d else { continue };
         // walk up to the net with a source of its own; every net on the way feeds m
         for _ in 0..nets.len() {
-            nets[up].feeds.push((m, link));
+            nets[up].feeds.push((small(m), part));
             match direct[up] {
                 Some((next, _)) => up = next,
                 None => break,
@@ -1158,7 +1248,7 @@ fn settle_sources(nets: &mut [NetModel]) {
 fn rails_by_usage(
     nl: &Netlist<'_>,
     cl: &Classified,
-    rules: &Rules,
+    families: &[Option<&Family>],
     rail: &mut [Option<Rail>],
 ) -> Vec<RailNote> {
     let n_nets = nl.nets.len();
@@ -1247,12 +1337,12 @@ fn rails_by_usage(
             continue;
         };
         let by_name = c.pins.iter().find(|p| {
-            p.name.as_deref().is_some_and(|n| {
+            p.name(nl).is_some_and(|n| {
                 let n = n.to_ascii_uppercase();
                 matches!(n.as_str(), "VO" | "VOUT" | "OUT" | "OUTPUT" | "V_OUT")
             })
         });
-        let pin = by_name.or_else(|| c.pins.iter().find(|p| p.num == out_pin));
+        let pin = by_name.or_else(|| c.pins.iter().find(|p| p.num(nl) == out_pin));
         let Some(net) = pin.and_then(|p| p.connection.net()) else {
             continue;
         };
@@ -1281,11 +1371,7 @@ fn rails_by_usage(
         let mut single: Option<f64> = None;
         let mut agree = !powered[net].is_empty();
         for &ci in &powered[net] {
-            let Some(f) = cl.parts[ci]
-                .family
-                .as_deref()
-                .and_then(|f| rules.families.get(f))
-            else {
+            let Some(f) = families[ci] else {
                 continue;
             };
             // a family specified at one supply (4.5 to 5.5 V and the like)
@@ -1447,12 +1533,12 @@ fn follow_to_ground<'n>(
         }
         let next = nodes
             .iter()
-            .find(|n| n.component != Some(cur.comp as u32))?;
-        let ci = next.component? as usize;
+            .find(|n| n.component() != Some(cur.comp as u32))?;
+        let ci = next.component()? as usize;
         let pi = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num == next.pin)?;
+            .position(|p| p.num(nl) == &*next.pin)?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef { comp: ci, pin: pi };
         } else {
@@ -1472,7 +1558,7 @@ fn leds_point_to(nl: &Netlist<'_>, path: &LedPath, start: PinRef, from_rail: boo
         if c.pins.len() != 2 {
             return true; // a display: its common's side was judged on the way
         }
-        let name = |i: usize| c.pins[i].name.as_deref().map(|n| n.to_ascii_uppercase());
+        let name = |i: usize| c.pins[i].name(nl).map(|n| n.to_ascii_uppercase());
         // the pin nearer the net is the one whose net is not the rail side: follow the chain
         // order is not kept, so judge by which pin is named K and which net it is on
         let k = (0..c.pins.len()).find(|&i| name(i).as_deref() == Some("K"));
@@ -1581,18 +1667,23 @@ mod size_tests {
     use super::NetModel;
 
     /// A board has about as many nets as it has pins, and the model keeps a `NetModel` and a
-    /// `NetBudget` (with a `DriverBudget` per driver) for each: their size is held here so it
-    /// cannot regrow unnoticed (440, 176 and 408 bytes when their lists were `Vec`s and the
-    /// rare parts were inline).
+    /// `NetBudget` (with a `DriverBudget` per driver, two items and a margin per load) for
+    /// each: their size is held here so it cannot regrow unnoticed (440, 176 and 408 bytes
+    /// when their lists were `Vec`s and the rare parts were inline; 200, 56 and 216, with
+    /// 72-byte items and 88-byte margins, before a series link became an index, an item lost
+    /// its copies of what the model holds and the rare pull-up level was boxed).
     #[test]
     fn per_net_structures_stay_small() {
-        assert!(size_of::<NetModel>() <= 200, "{}", size_of::<NetModel>());
-        assert!(size_of::<NetBudget>() <= 56, "{}", size_of::<NetBudget>());
+        use super::budget::{Item, LoadMargin};
+        assert!(size_of::<NetModel>() <= 160, "{}", size_of::<NetModel>());
+        assert!(size_of::<NetBudget>() <= 40, "{}", size_of::<NetBudget>());
         assert!(
-            size_of::<DriverBudget>() <= 216,
+            size_of::<DriverBudget>() <= 160,
             "{}",
             size_of::<DriverBudget>()
         );
+        assert!(size_of::<Item>() <= 32, "{}", size_of::<Item>());
+        assert!(size_of::<LoadMargin>() <= 72, "{}", size_of::<LoadMargin>());
     }
 
     /// An empty list costs one pointer and no allocation; a filled one is trimmed to its

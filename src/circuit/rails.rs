@@ -74,11 +74,20 @@ pub fn is_ground(name: &str) -> bool {
 
 /// Classifies a net name as a rail.
 pub fn rail_from_name(name: &str) -> Option<NameRail> {
-    let n = name.trim_start_matches('/').trim().to_ascii_uppercase();
-    if n.is_empty() || n.starts_with("NET-(") || n.starts_with("UNCONNECTED-(") {
+    let t = name.trim_start_matches('/').trim();
+    // KiCad's names for unnamed nets, the most common names on a board, are no rails: said
+    // before the name is copied
+    let starts = |p: &str| {
+        t.as_bytes()
+            .get(..p.len())
+            .is_some_and(|b| b.eq_ignore_ascii_case(p.as_bytes()))
+    };
+    if t.is_empty() || starts("NET-(") || starts("UNCONNECTED-(") {
         return None;
     }
-    if is_ground(&n) {
+    let n = t.to_ascii_uppercase();
+    // `n` is in capitals already: no second copy to look for VEE
+    if crate::classify::classifier::is_ground_name(&n) && !n.contains("VEE") {
         return Some(NameRail::Ground);
     }
     // a supply is named by a supply word or starts with its voltage (`+5V`, `3V3`): any other

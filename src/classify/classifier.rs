@@ -262,7 +262,7 @@ const DISPLAY_PREFIXES: &[&str] = &[
 ];
 
 /// Tells an LED display from its value, library part, description, footprint or pins.
-pub fn display_evidence(c: &Component<'_>) -> Option<DisplayEvidence> {
+pub fn display_evidence(nl: &Netlist<'_>, c: &Component<'_>) -> Option<DisplayEvidence> {
     if c.pins.len() < 3 {
         return None;
     }
@@ -313,7 +313,7 @@ pub fn display_evidence(c: &Component<'_>) -> Option<DisplayEvidence> {
     let names: Vec<String> = c
         .pins
         .iter()
-        .filter_map(|p| p.name.as_deref().map(|n| n.to_ascii_uppercase()))
+        .filter_map(|p| p.name(nl).map(|n| n.to_ascii_uppercase()))
         .collect();
     let segments = ["A", "B", "C", "D", "E", "F", "G"]
         .iter()
@@ -341,7 +341,7 @@ pub fn display_common_name(name: &str) -> Option<Option<bool>> {
 
 /// What the symbol, its library and its footprint say the part is, before the reference
 /// does: real boards name resistors `RG4`, `RIO2`, `RCPU1`, connectors `BUS1` or `U7`.
-fn kind_by_symbol(c: &Component<'_>) -> Option<PartKind> {
+fn kind_by_symbol(nl: &Netlist<'_>, c: &Component<'_>) -> Option<PartKind> {
     let (lib, part) = c
         .libsource
         .as_ref()
@@ -403,7 +403,7 @@ fn kind_by_symbol(c: &Component<'_>) -> Option<PartKind> {
     {
         return Some(PartKind::Inductor);
     }
-    if display_evidence(c).is_some() {
+    if display_evidence(nl, c).is_some() {
         return Some(PartKind::Display);
     }
     let connector_part = part.starts_with("conn")
@@ -438,8 +438,8 @@ fn kind_by_symbol(c: &Component<'_>) -> Option<PartKind> {
     None
 }
 
-fn kind_by_reference(c: &Component<'_>) -> PartKind {
-    if let Some(k) = kind_by_symbol(c) {
+fn kind_by_reference(nl: &Netlist<'_>, c: &Component<'_>) -> PartKind {
+    if let Some(k) = kind_by_symbol(nl, c) {
         return k;
     }
     let p = ref_prefix(c.reference.as_str()).to_ascii_uppercase();
@@ -491,7 +491,12 @@ fn kind_by_reference(c: &Component<'_>) -> PartKind {
 
 /// False when the entry names a function whose package has fewer pins than the component
 /// numbers (an `MK4116x8` symbol that draws eight DRAMs in one is not a 16-pin 4116).
-fn fits_package(c: &Component<'_>, e: &super::parts::PartEntry, rules: &Rules) -> bool {
+fn fits_package(
+    nl: &Netlist<'_>,
+    c: &Component<'_>,
+    e: &super::parts::PartEntry,
+    rules: &Rules,
+) -> bool {
     let Some(f) = e
         .function
         .as_ref()
@@ -501,7 +506,7 @@ fn fits_package(c: &Component<'_>, e: &super::parts::PartEntry, rules: &Rules) -
     };
     c.pins
         .iter()
-        .filter_map(|p| p.num.trim().parse::<u32>().ok())
+        .filter_map(|p| p.num(nl).trim().parse::<u32>().ok())
         .all(|n| n <= f.package_pins)
 }
 
@@ -630,7 +635,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     // parts alike classify alike: each distinct part is classified once, the others copy it
     let mut first_alike: rustc_hash::FxHashMap<Alike<'_, '_>, usize> = Default::default();
     for c in &nl.components {
-        match first_alike.entry(Alike(c)) {
+        match first_alike.entry(Alike::of(nl, c)) {
             std::collections::hash_map::Entry::Occupied(first) => {
                 let part = parts[*first.get()].clone();
                 if part.ic_like {
@@ -649,7 +654,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 v.insert(parts.len());
             }
         }
-        let mut kind = kind_by_reference(c);
+        let mut kind = kind_by_reference(nl, c);
         let mut method = Method::Reference;
         let mut family = None;
         let mut function = None;
@@ -692,7 +697,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                     .or_insert_with(|| rules.parts.matching(value).map(|(i, _)| i).collect())
                     .iter()
                     .map(|&i| (i, &rules.parts.entries[i]))
-                    .find(|(_, e)| fits_package(c, e, rules))
+                    .find(|(_, e)| fits_package(nl, c, e, rules))
             })
             .flatten()
         {
@@ -765,12 +770,12 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 let highest = c
                     .pins
                     .iter()
-                    .filter_map(|p| p.num.trim().parse::<u32>().ok())
+                    .filter_map(|p| p.num(nl).trim().parse::<u32>().ok())
                     .max()
                     .unwrap_or(0);
                 suggestions = table_slips
                     .entry((value.to_string(), highest))
-                    .or_insert_with(|| table_near_misses(value, c, rules))
+                    .or_insert_with(|| table_near_misses(nl, value, c, rules))
                     .clone();
             }
             method = if c.pins.iter().any(|p| {
@@ -812,19 +817,20 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
                 | PartKind::Switch
                 | PartKind::Inductor
         );
-        let key = pin_table_key(c, function.as_ref(), family.as_deref(), passive_kind);
+        let key = pin_table_key(nl, c, function.as_ref(), family.as_deref(), passive_kind);
         let alike = pin_tables.get(&key).and_then(|seen| {
             seen.iter().find(|t| {
                 t.passive_kind == passive_kind
                     && t.function == function
                     && t.family == family
-                    && same_pins(&nl.components[t.comp].pins, &c.pins)
+                    && same_pins(nl, &nl.components[t.comp].pins, &c.pins)
             })
         });
         let pins = match alike {
             Some(t) => t.table.clone(),
             None => {
                 let table = Arc::new(pin_table(
+                    nl,
                     c,
                     function.as_ref(),
                     family.as_deref(),
@@ -844,7 +850,8 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
         };
         let symbol_reads_as = match method {
             Method::Pattern | Method::ShippedEntry | Method::ProjectOverride => {
-                symbol_reading(c, rules, family.as_deref(), named_function.as_deref()).map(Box::new)
+                symbol_reading(nl, c, rules, family.as_deref(), named_function.as_deref())
+                    .map(Box::new)
             }
             _ => None,
         };
@@ -881,58 +888,67 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
 /// A component by what its classification follows from: the letters of its reference, its
 /// value, footprint and library symbol (library, part, description), its logic family and
 /// function fields, and its pins' numbers, types and names. Two components equal in these
-/// classify alike.
-struct Alike<'c, 'a>(&'c Component<'a>);
+/// classify alike. The texts are gathered once ([`Alike::of`]): hashing and each comparison
+/// read them, not the component's fields again.
+struct Alike<'c, 'a> {
+    nl: &'c Netlist<'a>,
+    c: &'c Component<'a>,
+    texts: AlikeTexts<'c>,
+}
+
+/// [`Alike`]'s texts: reference letters, value, footprint, library symbol (library, part,
+/// description), logic family and function fields.
+type AlikeTexts<'c> = (
+    &'c str,
+    &'c str,
+    Option<&'c str>,
+    Option<(Option<&'c str>, Option<&'c str>, Option<&'c str>)>,
+    Option<&'c str>,
+    Option<&'c str>,
+);
 
 /// The text of an optional item.
 fn text<'t>(t: &'t Option<crate::netlist::Text<'_>>) -> Option<&'t str> {
     t.as_ref().map(|t| t.as_str())
 }
 
-impl Alike<'_, '_> {
-    #[allow(clippy::type_complexity)]
-    fn texts(
-        &self,
-    ) -> (
-        &str,
-        &str,
-        Option<&str>,
-        Option<(Option<&str>, Option<&str>, Option<&str>)>,
-        Option<&str>,
-        Option<&str>,
-    ) {
-        let c = self.0;
+impl<'c, 'a> Alike<'c, 'a> {
+    fn of(nl: &'c Netlist<'a>, c: &'c Component<'a>) -> Alike<'c, 'a> {
         let field = |name| {
             c.field(name)
                 .and_then(|f| f.value.as_ref())
                 .map(|v| v.as_str())
         };
-        (
-            ref_prefix(c.reference.as_str()),
-            c.value_str(),
-            text(&c.footprint),
-            c.libsource
-                .as_ref()
-                .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
-            field("Logic family"),
-            field("Logic function"),
-        )
+        Alike {
+            nl,
+            c,
+            texts: (
+                ref_prefix(c.reference.as_str()),
+                c.value_str(),
+                text(&c.footprint),
+                c.libsource
+                    .as_ref()
+                    .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
+                field("Logic family"),
+                field("Logic function"),
+            ),
+        }
     }
 }
 
 impl std::hash::Hash for Alike<'_, '_> {
     fn hash<H: std::hash::Hasher>(&self, h: &mut H) {
-        self.texts().hash(h);
-        self.0.pins.len().hash(h);
-        for p in &self.0.pins {
-            (p.num.as_ref(), p.ptype, p.name.as_deref()).hash(h);
+        self.texts.hash(h);
+        self.c.pins.len().hash(h);
+        for p in &self.c.pins {
+            (p.num(self.nl), p.ptype, p.name(self.nl)).hash(h);
         }
     }
 }
 
 impl PartialEq for Alike<'_, '_> {
     fn eq(&self, other: &Self) -> bool {
-        self.texts() == other.texts() && same_pins(&self.0.pins, &other.0.pins)
+        self.texts == other.texts && same_pins(self.nl, &self.c.pins, &other.c.pins)
     }
 }
 
@@ -951,6 +967,7 @@ struct SeenPins {
 
 /// The hash of what a part's pin table follows from.
 fn pin_table_key(
+    nl: &Netlist<'_>,
     c: &Component<'_>,
     function: Option<&(Series, String)>,
     family: Option<&str>,
@@ -960,22 +977,27 @@ fn pin_table_key(
     let mut h = rustc_hash::FxHasher::default();
     (function, family, passive_kind, c.pins.len()).hash(&mut h);
     for p in &c.pins {
-        (p.num.as_ref(), p.ptype, p.name.as_deref()).hash(&mut h);
+        (p.num(nl), p.ptype, p.name(nl)).hash(&mut h);
     }
     h.finish()
 }
 
 /// True when two parts' pins agree in number, type and name, in order.
-fn same_pins(a: &[crate::netlist::CompPin<'_>], b: &[crate::netlist::CompPin<'_>]) -> bool {
+fn same_pins(
+    nl: &Netlist<'_>,
+    a: &[crate::netlist::CompPin],
+    b: &[crate::netlist::CompPin],
+) -> bool {
     a.len() == b.len()
         && a.iter()
             .zip(b)
-            .all(|(x, y)| x.num == y.num && x.ptype == y.ptype && x.name == y.name)
+            .all(|(x, y)| x.ptype == y.ptype && x.same_texts(y, nl))
 }
 
 /// A part's per-pin data: from the function table for a pin the table has, else from the
 /// netlist's pin type (every pin of a passive part is passive).
 fn pin_table(
+    nl: &Netlist<'_>,
     c: &Component<'_>,
     function: Option<&(Series, String)>,
     family: Option<&str>,
@@ -995,24 +1017,24 @@ fn pin_table(
     let func = function.and_then(|(s, id)| rules.functions.get(*s, id));
     let fam = family.unwrap_or_default();
     for (i, p) in c.pins.iter().enumerate() {
-        let def = func.and_then(|f| f.pin(&p.num));
+        let def = func.and_then(|f| f.pin(p.num(nl)));
         match (def, func) {
             (Some(d), Some(f)) => {
-                roles.push(f.role_for_family(&p.num, fam).unwrap_or(d.role));
+                roles.push(f.role_for_family(p.num(nl), fam).unwrap_or(d.role));
                 role_source.push(RoleSource::Table);
                 table_names[i] = Some(share(&d.name));
                 units[i] = d.unit.as_deref().map(&mut *share);
-                input_loads[i] = f.load_for_family(&p.num, fam);
+                input_loads[i] = f.load_for_family(p.num(nl), fam);
                 idle_high[i] = d.idle_high;
                 rated_with[i] = d
                     .rated_with
                     .iter()
-                    .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
+                    .filter_map(|e| c.pins.iter().position(|q| q.num(nl) == e.as_str()))
                     .collect();
                 enables[i] = d
                     .enable
                     .iter()
-                    .filter_map(|e| c.pins.iter().position(|q| q.num == *e))
+                    .filter_map(|e| c.pins.iter().position(|q| q.num(nl) == e.as_str()))
                     .collect();
             }
             _ => {
@@ -1020,10 +1042,10 @@ fn pin_table(
                     roles.push(PinRole::Passive);
                     role_source.push(RoleSource::Netlist);
                 } else {
-                    let (mut r, s) = role_from_netlist(p.ptype, p.name.as_deref());
+                    let (mut r, s) = role_from_netlist(p.ptype, p.name(nl));
                     // a memory's chip, output or write enable is an input whatever
                     // the symbol types it
-                    if r.is_output() && p.name.as_deref().is_some_and(is_enable_input_name) {
+                    if r.is_output() && p.name(nl).is_some_and(is_enable_input_name) {
                         r = PinRole::Input;
                     }
                     roles.push(r);
@@ -1049,6 +1071,7 @@ fn pin_table(
 /// family or function; for a 74 or 4000 symbol on a 74 or 4000 value, in function only.
 /// Symbols named for no part (`Conn_01x04`, `R`) read as nothing.
 fn symbol_reading(
+    nl: &Netlist<'_>,
     c: &Component<'_>,
     rules: &Rules,
     family: Option<&str>,
@@ -1061,7 +1084,7 @@ fn symbol_reading(
     let (f, fun) = if let Some((_, e)) = rules
         .parts
         .find(symbol)
-        .filter(|(_, e)| fits_package(c, e, rules))
+        .filter(|(_, e)| fits_package(nl, c, e, rules))
     {
         (
             e.family.as_ref().map(|f| {
@@ -1093,14 +1116,19 @@ fn symbol_reading(
 /// Values one slip away from `value` that an entry of the part table (a processor, a memory,
 /// a peripheral) takes, for a value no table took: `Z8OA` (letter O) reads as a Z80A, `4l64`
 /// as a 4164 DRAM. One-slip readings first; two confusions only when they give the one reading.
-fn table_near_misses(value: &str, c: &Component<'_>, rules: &Rules) -> Vec<pattern::Suggestion> {
+fn table_near_misses(
+    nl: &Netlist<'_>,
+    value: &str,
+    c: &Component<'_>,
+    rules: &Rules,
+) -> Vec<pattern::Suggestion> {
     let mut single = Vec::new();
     let mut double = Vec::new();
     for (cand, change, slips) in pattern::slips(value) {
         let Some((_, e)) = rules
             .parts
             .find(&cand)
-            .filter(|(_, e)| fits_package(c, e, rules))
+            .filter(|(_, e)| fits_package(nl, c, e, rules))
         else {
             continue;
         };
@@ -1240,7 +1268,7 @@ mod tests {
         assert_eq!(nl.components.len(), 6);
         let c = &nl.components;
         let hash = |a: &super::Alike<'_, '_>| rustc_hash::FxBuildHasher.hash_one(a);
-        let (u1, u2) = (super::Alike(&c[0]), super::Alike(&c[1]));
+        let (u1, u2) = (super::Alike::of(&nl, &c[0]), super::Alike::of(&nl, &c[1]));
         assert!(u1 == u2 && hash(&u1) == hash(&u2));
         for (i, why) in [
             (2, "reference letters"),
@@ -1248,7 +1276,7 @@ mod tests {
             (4, "logic family field"),
             (5, "library and pin name"),
         ] {
-            assert!(u1 != super::Alike(&c[i]), "{why}");
+            assert!(u1 != super::Alike::of(&nl, &c[i]), "{why}");
         }
         let rules = super::Rules::shipped();
         let cl = super::classify(&nl, rules);

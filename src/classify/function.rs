@@ -241,6 +241,10 @@ pub struct FunctionTable {
     /// For each series (by `Series as usize`), each id in capitals to its function; a shipped
     /// id is borrowed from the compiled table.
     index: [HashMap<Cow<'static, str>, usize>; 3],
+    /// For each series, the shipped ids (capitals), sorted, each with its function's place
+    /// in `functions`: compiled into the binary and searched where they lie. An id parsed
+    /// from a file goes into `index`, which is asked first.
+    shipped: [&'static [(&'static str, u32)]; 3],
 }
 
 /// One function of a table: parsed from a file, or a shipped one still in the compact form
@@ -293,31 +297,48 @@ impl FunctionTable {
         build(raw)
     }
 
-    /// A table of shipped functions in their compact form: each (series, id) with the
-    /// postcard bytes of its `Function`, decoded when first asked for.
-    pub fn from_compact(
-        entries: impl IntoIterator<Item = (Series, &'static str, &'static [u8])>,
+    /// The shipped table in its compiled form: for each series its ids, sorted, with the
+    /// place of each function's postcard bytes (`ranges`, in `bytes`), decoded when first
+    /// asked for.
+    pub fn from_static(
+        ids: [&'static [(&'static str, u32)]; 3],
+        ranges: &'static [(u32, u32)],
+        bytes: &'static [u8],
     ) -> FunctionTable {
-        let mut table = FunctionTable::default();
-        for (series, id, bytes) in entries {
-            table.index[series as usize].insert(id.into(), table.functions.len());
-            table.functions.push(Entry {
-                bytes,
-                func: std::sync::OnceLock::new(),
-            });
+        FunctionTable {
+            functions: ranges
+                .iter()
+                .map(|&(a, b)| Entry {
+                    bytes: &bytes[a as usize..b as usize],
+                    func: std::sync::OnceLock::new(),
+                })
+                .collect(),
+            index: Default::default(),
+            shipped: ids,
         }
-        table
+    }
+
+    /// The place in `functions` of the function with this series and id, as written.
+    fn place(&self, series: Series, id: &str) -> Option<usize> {
+        let s = series as usize;
+        self.index[s].get(id).copied().or_else(|| {
+            let shipped = self.shipped[s];
+            shipped
+                .binary_search_by(|&(k, _)| k.cmp(id))
+                .ok()
+                .map(|j| shipped[j].1 as usize)
+        })
     }
 
     /// Adds `over`'s functions; one with the same series and id replaces the existing one.
     pub fn merge(&mut self, over: FunctionTable) {
         for e in over.functions {
             let f = e.into_function();
-            let index = &mut self.index[f.series as usize];
-            match index.get(f.id.as_str()) {
-                Some(&i) => self.functions[i] = Entry::parsed(f),
+            match self.place(f.series, &f.id) {
+                Some(i) => self.functions[i] = Entry::parsed(f),
                 None => {
-                    index.insert(Cow::Owned(f.id.clone()), self.functions.len());
+                    self.index[f.series as usize]
+                        .insert(Cow::Owned(f.id.clone()), self.functions.len());
                     self.functions.push(Entry::parsed(f));
                 }
             }
@@ -326,12 +347,10 @@ impl FunctionTable {
 
     /// A function by series and id (case-insensitive, spaces around it ignored).
     pub fn get(&self, series: Series, id: &str) -> Option<&Function> {
-        let index = &self.index[series as usize];
         // the ids the classifier passes are written as in the table: no copy needed
-        index
-            .get(id)
-            .or_else(|| index.get(id.trim().to_ascii_uppercase().as_str()))
-            .map(|&i| self.functions[i].get())
+        self.place(series, id)
+            .or_else(|| self.place(series, id.trim().to_ascii_uppercase().as_str()))
+            .map(|i| self.functions[i].get())
     }
 
     pub fn iter(&self) -> impl Iterator<Item = &Function> {

@@ -132,44 +132,65 @@ pub struct PartTable {
 /// case); any other glob (`*`, `?`, a non-ASCII letter) may take any value.
 #[derive(Debug, Clone, Default)]
 struct FirstLetters {
-    /// For each lower-case ASCII byte, the entries with a glob that begins with it, in
-    /// entry order; an entry that may take any value is not repeated here.
-    by_byte: Vec<Vec<u32>>,
+    /// For each lower-case ASCII byte `b`, `items[starts[b]..starts[b + 1]]` are the entries
+    /// with a glob that begins with it, in entry order; an entry that may take any value is
+    /// not repeated there. Two allocations, however many entries.
+    starts: Vec<u32>,
+    items: Vec<u32>,
     /// The entries with a glob that may take a value beginning with anything, in order.
     any: Vec<u32>,
 }
 
 impl FirstLetters {
     fn of(entries: &[PartEntry]) -> FirstLetters {
-        let mut t = FirstLetters {
-            by_byte: vec![Vec::new(); 128],
-            any: Vec::new(),
-        };
-        for (i, e) in entries.iter().enumerate() {
-            let i = i as u32;
-            let fixed: Option<Vec<u8>> = e
-                .values
-                .iter()
-                .map(|g| match g.as_bytes().first() {
-                    Some(&b) if b.is_ascii() && b != b'*' && b != b'?' => {
-                        Some(b.to_ascii_lowercase())
-                    }
-                    _ => None,
-                })
-                .collect();
-            match fixed {
-                Some(bytes) => {
-                    for b in bytes {
-                        let list = &mut t.by_byte[b as usize];
-                        if list.last() != Some(&i) {
-                            list.push(i);
-                        }
-                    }
-                }
-                None => t.any.push(i),
+        // the byte a glob must begin with, lower case; `None` for one that takes anything
+        fn first(g: &str) -> Option<u8> {
+            match g.as_bytes().first() {
+                Some(&b) if b.is_ascii() && b != b'*' && b != b'?' => Some(b.to_ascii_lowercase()),
+                _ => None,
             }
         }
-        t
+        let fixed = |e: &PartEntry| e.values.iter().all(|g| first(g).is_some());
+        // an entry goes once into each byte's list, however many of its globs begin with it:
+        // `seen[b]` is the last entry (plus one) put into byte b's list
+        let mut seen = [0u32; 128];
+        let mut counts = [0u32; 129];
+        let mut any = Vec::new();
+        for (i, e) in entries.iter().enumerate() {
+            if !fixed(e) {
+                any.push(i as u32);
+                continue;
+            }
+            for b in e.values.iter().filter_map(|g| first(g)) {
+                if seen[b as usize] != i as u32 + 1 {
+                    seen[b as usize] = i as u32 + 1;
+                    counts[b as usize + 1] += 1;
+                }
+            }
+        }
+        for b in 0..128 {
+            counts[b + 1] += counts[b];
+        }
+        let mut next = counts;
+        let mut items = vec![0u32; counts[128] as usize];
+        seen = [0; 128];
+        for (i, e) in entries.iter().enumerate() {
+            if !fixed(e) {
+                continue;
+            }
+            for b in e.values.iter().filter_map(|g| first(g)) {
+                if seen[b as usize] != i as u32 + 1 {
+                    seen[b as usize] = i as u32 + 1;
+                    items[next[b as usize] as usize] = i as u32;
+                    next[b as usize] += 1;
+                }
+            }
+        }
+        FirstLetters {
+            starts: counts.to_vec(),
+            items,
+            any,
+        }
     }
 
     /// The entries that may match `value` (trimmed), in entry order; `None` when every
@@ -179,8 +200,9 @@ impl FirstLetters {
         if !b.is_ascii() {
             return None;
         }
+        let b = b.to_ascii_lowercase() as usize;
         let (mut a, mut b) = (
-            self.by_byte[b.to_ascii_lowercase() as usize]
+            self.items[self.starts[b] as usize..self.starts[b + 1] as usize]
                 .iter()
                 .peekable(),
             self.any.iter().peekable(),
@@ -298,6 +320,14 @@ impl PartTable {
     }
 
     /// Puts `over`'s entries in front, so they win.
+    /// A table of these entries.
+    pub fn from_entries(entries: Vec<PartEntry>) -> PartTable {
+        PartTable {
+            entries,
+            index: Default::default(),
+        }
+    }
+
     pub fn merge_over(&mut self, over: PartTable) {
         let mut e = over.entries;
         e.append(&mut self.entries);
@@ -342,8 +372,18 @@ pub fn glob_match(pattern: &str, text: &str) -> bool {
             return false;
         }
     }
-    if pattern.is_ascii() && text.is_ascii() {
-        return glob_ascii(pattern.as_bytes(), text.as_bytes());
+    if text.is_ascii() {
+        if pattern.is_ascii() {
+            return glob_ascii(pattern.as_bytes(), text.as_bytes());
+        }
+        // a letter whose lower case is not ASCII (`К`) meets no letter of an ASCII text: no
+        // need to compare them as characters (a few, like the Kelvin sign, do lower to ASCII)
+        if pattern
+            .chars()
+            .any(|c| !c.is_ascii() && c.to_lowercase().any(|l| !l.is_ascii()))
+        {
+            return false;
+        }
     }
     let p: Vec<char> = pattern.chars().flat_map(char::to_lowercase).collect();
     let t: Vec<char> = text.chars().flat_map(char::to_lowercase).collect();
@@ -418,6 +458,10 @@ mod tests {
         assert!(glob_match("µ*Ω", "µ10kΩ"));
         assert!(!glob_match("µ*Ω", "µ10k"));
         assert!(glob_match("ÄB*", "äbc"));
+        // a non-ASCII letter never matches an ASCII text, but one that lowers to ASCII does
+        assert!(!glob_match("КР580ВМ80*", "KP580BM80A"));
+        assert!(!glob_match("?80Ä*", "180AB"));
+        assert!(glob_match("\u{212A}R*", "kr1"));
     }
 
     /// Every entry a linear scan of all globs finds, in the same order.

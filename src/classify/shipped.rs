@@ -5,55 +5,49 @@
 //! are written one by one behind an index and each is decoded only when a run asks for it.
 //! `rules/*.toml` stay the source that is edited; a change to them rebuilds the binary.
 
+use std::borrow::Cow;
+
 use super::family::FamilyTable;
 use super::function::{FunctionTable, Series};
-use super::parts::PartTable;
+use super::parts::{EntryKind, EntryText, PartEntry, PartTable};
+
+// FAMILY_INDEX, FUNCTION_IDS, FUNCTION_RANGES and shipped_part_entries(), written by build.rs
+include!(concat!(env!("OUT_DIR"), "/shipped_tables.rs"));
+
+/// A text of the shipped part table, borrowed from the binary.
+fn t(s: &'static str) -> EntryText {
+    EntryText(Cow::Borrowed(s))
+}
 
 impl FamilyTable {
     /// The shipped table (`rules/families.toml`, read at compile time): an index of each
-    /// family's id and aliases, borrowed from the compiled bytes, and each family decoded the
-    /// first time a run asks for it.
+    /// family's id and aliases, compiled in as Rust data, and each family decoded the first
+    /// time a run asks for it.
     pub fn builtin() -> FamilyTable {
         static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/families.postcard"));
-        static INDEX: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/families-index.postcard"));
-        // the ids and aliases are borrowed from the compiled index
-        let index: Vec<(&'static str, Vec<&'static str>, u32, u32)> = postcard::from_bytes(INDEX)
-            .unwrap_or_else(|e| {
-                panic!("the shipped families index built by build.rs decodes: {e}")
-            });
         FamilyTable::from_compact(
-            index
-                .into_iter()
-                .map(|(id, aliases, a, b)| (id, aliases, &BYTES[a as usize..b as usize])),
+            FAMILY_INDEX
+                .iter()
+                .map(|&(id, aliases, a, b)| (id, aliases.to_vec(), &BYTES[a as usize..b as usize])),
         )
     }
 }
 
 impl FunctionTable {
-    /// The shipped table (`rules/functions.toml`, read at compile time).
+    /// The shipped table (`rules/functions.toml`, read at compile time): the ids, sorted per
+    /// series, are compiled in as Rust data and looked up where they lie; each function is
+    /// decoded the first time a run asks for it.
     pub fn builtin() -> FunctionTable {
         static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions.postcard"));
-        static INDEX: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/functions-index.postcard"));
-        // the ids are borrowed from the compiled index
-        let index: Vec<(Series, &'static str, u32, u32)> = postcard::from_bytes(INDEX)
-            .unwrap_or_else(|e| {
-                panic!("the shipped functions index built by build.rs decodes: {e}")
-            });
-        FunctionTable::from_compact(
-            index
-                .into_iter()
-                .map(|(s, id, a, b)| (s, id, &BYTES[a as usize..b as usize])),
-        )
+        FunctionTable::from_static(FUNCTION_IDS, FUNCTION_RANGES, BYTES)
     }
 }
 
 impl PartTable {
-    /// The shipped table (`rules/parts.toml`, read at compile time); its texts are borrowed
-    /// from the bytes compiled into the binary.
+    /// The shipped table (`rules/parts.toml`, read at compile time): its entries are built
+    /// by code build.rs wrote, their texts borrowed from the binary.
     pub fn builtin() -> PartTable {
-        static BYTES: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/parts.postcard"));
-        postcard::from_bytes(BYTES)
-            .unwrap_or_else(|e| panic!("the shipped parts table built by build.rs decodes: {e}"))
+        PartTable::from_entries(shipped_part_entries())
     }
 }
 

@@ -120,7 +120,9 @@ pub fn check_paths(paths: &[String], args: &SettingsArgs, read: &ReadOptions) ->
     check_files(&expand_paths(paths), &Overrides::from(args), read)
 }
 
-/// Checks `files` with their configurations (each resolved once) and waivers.
+/// Checks `files` with their configurations (each resolved once) and waivers. For the
+/// commands only (`check`, `baseline`): with one file, its model is not freed (see
+/// [`pipeline::Model::LeftToExit`]).
 pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Run {
     // which configuration each file uses
     let per_file: Vec<Option<PathBuf>> = files.iter().map(|f| config_for(f, over)).collect();
@@ -130,6 +132,13 @@ pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Ru
             loaded.insert(p.clone(), Settings::load(Some(p), over, read));
         }
     }
+    // one file's model is left to the process's exit: the commands that call this only
+    // report and exit after it; with more files, each model is freed before the next
+    let model = if files.len() == 1 {
+        pipeline::Model::LeftToExit
+    } else {
+        pipeline::Model::Free
+    };
     // the shipped settings, made only when a file has no configuration of its own
     let builtin = std::sync::OnceLock::new();
     let one = |(f, cp): (&String, &Option<PathBuf>)| -> (FileOutcome, pipeline::Usage) {
@@ -156,10 +165,12 @@ pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Ru
                 },
                 Default::default(),
             ),
-            Some(Ok(s)) => pipeline::check_file_with(f, s),
-            None => {
-                pipeline::check_file_with(f, builtin.get_or_init(|| Settings::builtin(over, read)))
-            }
+            Some(Ok(s)) => pipeline::check_file_leaving(f, s, model),
+            None => pipeline::check_file_leaving(
+                f,
+                builtin.get_or_init(|| Settings::builtin(over, read)),
+                model,
+            ),
         }
     };
     // one file needs no thread pool (starting one is a noticeable part of a hook's run)

@@ -3,8 +3,6 @@
 use std::cell::RefCell;
 use thin_vec::ThinVec;
 
-use rustc_hash::FxHashMap as HashMap;
-
 use super::*;
 use crate::sexpr::{NodeId, Tree};
 
@@ -41,8 +39,8 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         nets: Vec::new(),
         diagnostics: Vec::new(),
         span: tree.span(root),
-        by_ref: HashMap::default(),
-        by_net_name: HashMap::default(),
+        by_ref: hashbrown::HashTable::new(),
+        by_net_name: hashbrown::HashTable::new(),
     };
     for sec in tree.children(root).skip(1) {
         match tree.head(sec) {
@@ -223,7 +221,7 @@ impl<'a> Builder<'_, 'a> {
             tstamps: ThinVec::new(),
             span: self.t.span(c),
             libpart: None,
-            pins: Vec::new(),
+            pins: Box::default(),
         };
         let mut have_ref = false;
         for (k, n) in self.each(c) {
@@ -447,7 +445,7 @@ impl<'a> Builder<'_, 'a> {
                             pintype,
                             no_connect,
                             span: self.t.span(n),
-                            component: None,
+                            comp: None,
                         }),
                         (r, _) => self.diags.borrow_mut().push(
                             Diag::error(

@@ -12,7 +12,7 @@ mod pintype;
 pub mod stream;
 mod ties;
 
-use rustc_hash::FxHashMap as HashMap;
+use hashbrown::HashTable;
 use thin_vec::ThinVec;
 
 pub use build::build;
@@ -117,20 +117,99 @@ impl Connection {
     }
 }
 
-/// One pin of a placed component, merged from its library part and the nets.
-#[derive(Debug, Clone)]
-pub struct CompPin<'a> {
-    pub num: Str<'a>,
-    /// The symbol's pin name (`~` or empty when unnamed), from the libpart or the node's
-    /// `pinfunction`.
-    pub name: Option<Str<'a>>,
+/// One pin of a placed component, merged from its library part and the nets. Its number
+/// and name are not copied here (a board has several pins for every node): they are read
+/// through the library pin or the node it stands for ([`CompPin::num`], [`CompPin::name`]).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CompPin {
+    pub connection: Connection,
+    /// Index into the library part's pins, `NONE` when the pin is only the nets'.
+    libpin: u32,
+    /// The library part `libpin` belongs to.
+    libpart: u32,
     /// The symbol's pin type (the node's `pintype` when present, else the libpart's).
     pub ptype: PinType,
     /// The node's pintype carried `+no_connect`, or the symbol marks the pin no-connect.
     pub no_connect: bool,
-    pub connection: Connection,
-    /// Index into the libpart's pins.
-    pub libpin: Option<u32>,
+}
+
+const NONE: u32 = u32::MAX;
+
+impl CompPin {
+    /// A pin from library pin `libpin` of library part `libpart`.
+    pub(crate) fn from_libpin(
+        libpart: usize,
+        libpin: usize,
+        ptype: PinType,
+        no_connect: bool,
+        connection: Connection,
+    ) -> CompPin {
+        CompPin {
+            connection,
+            libpin: libpin as u32,
+            libpart: libpart as u32,
+            ptype,
+            no_connect,
+        }
+    }
+    /// A pin the nets name but no library part lists: `connection` holds its node.
+    pub(crate) fn from_node(ptype: PinType, no_connect: bool, connection: Connection) -> CompPin {
+        CompPin {
+            connection,
+            libpin: NONE,
+            libpart: NONE,
+            ptype,
+            no_connect,
+        }
+    }
+    /// Index into the component's library part's pins.
+    pub fn libpin(&self) -> Option<u32> {
+        (self.libpin != NONE).then_some(self.libpin)
+    }
+    #[inline]
+    fn lib<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n LibPin<'n>> {
+        if self.libpin == NONE {
+            return None;
+        }
+        Some(&nl.libparts[self.libpart as usize].pins[self.libpin as usize])
+    }
+    #[inline]
+    fn node<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n Node<'n>> {
+        match self.connection {
+            Connection::Net { net, node } | Connection::Alone { net, node } => {
+                Some(&nl.nets[net as usize].nodes[node as usize])
+            }
+            Connection::Absent => None,
+        }
+    }
+    /// The pin number: the library pin's, else the node's.
+    #[inline]
+    pub fn num<'n>(&self, nl: &'n Netlist<'_>) -> &'n str {
+        match self.lib(nl) {
+            Some(lp) => lp.num.as_str(),
+            None => self.node(nl).map_or("", |n| &n.pin),
+        }
+    }
+    /// The symbol's pin name (`~` or empty when unnamed), from the libpart or the node's
+    /// `pinfunction`.
+    #[inline]
+    pub fn name<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n str> {
+        self.lib(nl)
+            .and_then(|lp| lp.name.as_ref().map(|n| n.as_str()))
+            .or_else(|| self.node(nl).and_then(|n| n.pinfunction.as_deref()))
+    }
+    /// True when both pins have the same number and name (of parts alike, most often the
+    /// same library pin, which is not read twice).
+    pub fn same_texts(&self, other: &CompPin, nl: &Netlist<'_>) -> bool {
+        if self.libpin != NONE && self.libpin == other.libpin && self.libpart == other.libpart {
+            let lp = &nl.libparts[self.libpart as usize].pins[self.libpin as usize];
+            if lp.name.is_some() {
+                return true;
+            }
+            return self.name(nl) == other.name(nl);
+        }
+        self.num(nl) == other.num(nl) && self.name(nl) == other.name(nl)
+    }
 }
 
 #[derive(Debug, Clone)]
@@ -146,9 +225,9 @@ pub struct Component<'a> {
     pub tstamps: ThinVec<Text<'a>>,
     pub span: Span,
     /// The resolved library part (by lib and part, or through an alias).
-    pub libpart: Option<usize>,
+    pub libpart: Option<u32>,
     /// Every pin: the library part's, plus any the nets name that it lacks.
-    pub pins: Vec<CompPin<'a>>,
+    pub pins: Box<[CompPin]>,
 }
 
 impl<'a> Component<'a> {
@@ -162,8 +241,9 @@ impl<'a> Component<'a> {
             .chain(self.properties.iter())
             .find(|f| f.name.as_str().eq_ignore_ascii_case(name))
     }
-    pub fn pin(&self, num: &str) -> Option<&CompPin<'a>> {
-        self.pins.iter().find(|p| p.num == num)
+    /// A pin by number.
+    pub fn pin(&self, nl: &Netlist<'_>, num: &str) -> Option<&CompPin> {
+        self.pins.iter().find(|p| p.num(nl) == num)
     }
 }
 
@@ -198,8 +278,20 @@ pub struct Node<'a> {
     /// The node's pintype ended in `+no_connect`.
     pub no_connect: bool,
     pub span: Span,
+    /// The component this node names, if it exists, plus one (four bytes where an
+    /// `Option<u32>` takes eight); read it with [`Node::component`].
+    pub(crate) comp: Option<std::num::NonZeroU32>,
+}
+
+impl Node<'_> {
     /// The component this node names, if it exists.
-    pub component: Option<u32>,
+    pub fn component(&self) -> Option<u32> {
+        self.comp.map(|c| c.get() - 1)
+    }
+    /// Links the node to component `ci`.
+    pub(crate) fn set_component(&mut self, ci: u32) {
+        self.comp = std::num::NonZeroU32::new(ci.wrapping_add(1));
+    }
 }
 
 #[derive(Debug, Clone)]
@@ -224,9 +316,18 @@ pub struct Netlist<'a> {
     /// Problems found while reading (reading went on).
     pub diagnostics: Vec<Diag>,
     pub span: Span,
-    /// Keys borrow the file's text (an escaped name holds its own copy).
-    by_ref: HashMap<Str<'a>, usize>,
-    by_net_name: HashMap<Str<'a>, usize>,
+    /// Components by reference: indices into `components`, hashed by the reference's text
+    /// (the first component of a reference used twice).
+    by_ref: HashTable<u32>,
+    /// Nets by name: (the net whose name is the key, the net that name finds); a net tie's
+    /// joined nets keep their names and find the net they were joined into.
+    by_net_name: HashTable<(u32, u32)>,
+}
+
+/// The hash of a text in the lookup tables.
+pub(crate) fn text_hash(s: &str) -> u64 {
+    use std::hash::BuildHasher;
+    rustc_hash::FxBuildHasher.hash_one(s)
 }
 
 /// Counts for the per-file summary.
@@ -260,8 +361,8 @@ impl<'a> Netlist<'a> {
             nets,
             diagnostics: Vec::new(),
             span,
-            by_ref: HashMap::default(),
-            by_net_name: HashMap::default(),
+            by_ref: HashTable::new(),
+            by_net_name: HashTable::new(),
         };
         stream::link(text, &mut nl, &mut diagnostics);
         nl.diagnostics = diagnostics;
@@ -269,10 +370,41 @@ impl<'a> Netlist<'a> {
     }
 
     pub fn component(&self, reference: &str) -> Option<usize> {
-        self.by_ref.get(reference).copied()
+        let comps = &self.components;
+        self.by_ref
+            .find(text_hash(reference), |&i| {
+                comps[i as usize].reference.as_str() == reference
+            })
+            .map(|&i| i as usize)
     }
     pub fn net_by_name(&self, name: &str) -> Option<usize> {
-        self.by_net_name.get(name).copied()
+        let nets = &self.nets;
+        self.by_net_name
+            .find(text_hash(name), |&(k, _)| {
+                nets[k as usize].name.as_str() == name
+            })
+            .map(|&(_, n)| n as usize)
+    }
+    /// Net `net`'s name finds net `to` from now on (no effect for an unnamed net).
+    pub(crate) fn name_finds(&mut self, net: usize, to: usize) {
+        let nets = &self.nets;
+        let name = nets[net].name.as_str();
+        if name.is_empty() {
+            return;
+        }
+        let h = text_hash(name);
+        match self
+            .by_net_name
+            .find_mut(h, |&(k, _)| nets[k as usize].name.as_str() == name)
+        {
+            Some(e) => e.1 = to as u32,
+            None => {
+                self.by_net_name
+                    .insert_unique(h, (net as u32, to as u32), |&(k, _)| {
+                        text_hash(nets[k as usize].name.as_str())
+                    });
+            }
+        }
     }
     pub fn summary(&self) -> Summary {
         let pins = self.components.iter().map(|c| c.pins.len()).sum();

@@ -295,7 +295,7 @@ fn empty_component<'a>() -> Component<'a> {
         tstamps: ThinVec::new(),
         span,
         libpart: None,
-        pins: Vec::new(),
+        pins: Box::default(),
     }
 }
 
@@ -351,8 +351,8 @@ impl<'a> Reader<'a> {
                 nets: Vec::new(),
                 diagnostics: Vec::new(),
                 span,
-                by_ref: HashMap::default(),
-                by_net_name: HashMap::default(),
+                by_ref: hashbrown::HashTable::new(),
+                by_net_name: hashbrown::HashTable::new(),
             },
             diags: Vec::new(),
             not_export: None,
@@ -894,7 +894,7 @@ impl<'a> Reader<'a> {
                 pintype: nd.pintype,
                 no_connect: nd.no_connect,
                 span,
-                component: None,
+                comp: None,
             }),
             (r, _) => self.diags.push(
                 Diag::error(
@@ -996,10 +996,13 @@ fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
 
 fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
-    let mut by_ref: HashMap<Str<'a>, usize> =
-        HashMap::with_capacity_and_hasher(nl.components.len(), Default::default());
-    for (i, c) in nl.components.iter().enumerate() {
-        if let Some(&first) = by_ref.get(c.reference.as_str()) {
+    let comps = &nl.components;
+    let ref_of = |i: &u32| comps[*i as usize].reference.as_str();
+    let mut by_ref: hashbrown::HashTable<u32> = hashbrown::HashTable::with_capacity(comps.len());
+    for (i, c) in comps.iter().enumerate() {
+        let h = text_hash(c.reference.as_str());
+        if let Some(&first) = by_ref.find(h, |j| ref_of(j) == c.reference.as_str()) {
+            let first = first as usize;
             diags.push(
                 Diag::error(
                     "duplicate-ref",
@@ -1015,7 +1018,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 ),
             );
         } else {
-            by_ref.insert(c.reference.s.clone(), i);
+            by_ref.insert_unique(h, i as u32, |j| text_hash(ref_of(j)));
         }
     }
     // libparts by (lib, part) and (lib, alias), and by part alone as a fallback
@@ -1059,14 +1062,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
     for (c, r) in nl.components.iter_mut().zip(resolved) {
-        c.libpart = r;
+        c.libpart = r.map(|r| r as u32);
     }
     drop(by_lib_part);
     drop(by_part);
 
     // nodes: component links, de-duplication, pins on two nets. Sorting every
     // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
-    let mut by_net_name = HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
     let mut codes: HashMap<&str, usize> =
         HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
     // (component, net, node)
@@ -1089,13 +1091,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 );
             }
         }
-        if !net.name.s.is_empty() {
-            by_net_name.entry(net.name.s.clone()).or_insert(ni);
-        }
         for (k, node) in net.nodes.iter_mut().enumerate() {
-            match by_ref.get(node.reference.as_str()) {
+            let r = node.reference.as_str();
+            let comps = &nl.components;
+            match by_ref.find(text_hash(r), |&j| comps[j as usize].reference.as_str() == r) {
                 Some(&ci) => {
-                    node.component = Some(ci as u32);
+                    let ci = ci as usize;
+                    node.set_component(ci as u32);
                     entries.push((ci as u32, ni as u32, k as u32));
                 }
                 None => diags.push(
@@ -1113,6 +1115,21 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
     drop(codes);
+    // nets by name: the first net of a name
+    let nets = &nl.nets;
+    let name_of = |k: &(u32, u32)| nets[k.0 as usize].name.as_str();
+    let mut by_net_name: hashbrown::HashTable<(u32, u32)> =
+        hashbrown::HashTable::with_capacity(nets.len());
+    for (ni, net) in nets.iter().enumerate() {
+        let name = net.name.as_str();
+        if name.is_empty() {
+            continue;
+        }
+        let h = text_hash(name);
+        if by_net_name.find(h, |k| name_of(k) == name).is_none() {
+            by_net_name.insert_unique(h, (ni as u32, ni as u32), |k| text_hash(name_of(k)));
+        }
+    }
 
     // Pin numbers as integers: each distinct pin text gets its rank in text order, so
     // sorting by rank sorts exactly as comparing the texts would.
@@ -1283,16 +1300,22 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     for (ci, c) in nl.components.iter_mut().enumerate() {
         let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
         let nets = &nl.nets;
-        let mut pins: Vec<CompPin<'a>> = Vec::new();
+        let mut pins: Vec<CompPin> = Vec::new();
         used.clear();
         used.resize(mine.len(), false);
-        if let Some(li) = c.libpart {
+        if let Some(li) = c.libpart.map(|l| l as usize) {
             let lpins = &nl.libparts[li].pins;
             let (ranks, repeats) = &lib_pins[li];
             pins.reserve(lpins.len());
             for (pi, lpin) in lpins.iter().enumerate() {
                 // only a number an earlier pin had can be among the pins so far
-                if repeats[pi] && pins.len() < 64 && pins.iter().any(|p| p.num == lpin.num.s) {
+                if repeats[pi]
+                    && pins.len() < 64
+                    && pins.iter().any(|p| {
+                        p.libpin()
+                            .is_some_and(|q| lpins[q as usize].num.s == lpin.num.s)
+                    })
+                {
                     continue; // stacked pins listed twice
                 }
                 let found =
@@ -1309,25 +1332,15 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 };
                 let mut ptype = lpin.ptype;
                 let mut no_connect = lpin.ptype == PinType::NoConnect;
-                let mut name = lpin.name.as_ref().map(|n| n.s.clone());
                 if let Some(i) = found {
                     let nd = &nets[mine[i].1 as usize].nodes[mine[i].2 as usize];
                     if let Some(t) = nd.pintype {
                         ptype = t;
                     }
                     no_connect |= nd.no_connect;
-                    if name.is_none() {
-                        name = nd.pinfunction.clone();
-                    }
                 }
-                pins.push(CompPin {
-                    num: lpin.num.s.clone(),
-                    name,
-                    ptype,
-                    no_connect,
-                    connection,
-                    libpin: Some(pi as u32),
-                });
+                // the number and name are read through the library pin, or the node
+                pins.push(CompPin::from_libpin(li, pi, ptype, no_connect, connection));
             }
         }
         // pins named by nodes but missing from the libpart (or no libpart at all)
@@ -1336,16 +1349,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 continue;
             }
             let node = &nets[e.1 as usize].nodes[e.2 as usize];
-            pins.push(CompPin {
-                num: node.pin.clone(),
-                name: node.pinfunction.clone(),
-                ptype: node.pintype.unwrap_or(PinType::Unknown),
-                no_connect: node.no_connect,
-                connection: connection(nets, e.1, e.2),
-                libpin: None,
-            });
+            pins.push(CompPin::from_node(
+                node.pintype.unwrap_or(PinType::Unknown),
+                node.no_connect,
+                connection(nets, e.1, e.2),
+            ));
         }
-        c.pins = pins;
+        c.pins = pins.into_boxed_slice();
     }
     nl.by_ref = by_ref;
     nl.by_net_name = by_net_name;

@@ -82,10 +82,7 @@ pub fn join_net_ties(nl: &mut Netlist<'_>) {
         let base = nl.nets[r].nodes.len();
         nl.nets[r].nodes.extend(nodes);
         moved_to[i] = Some((r, base));
-        let name = nl.nets[i].name.s.clone();
-        if !name.is_empty() {
-            nl.by_net_name.insert(name, r);
-        }
+        nl.name_finds(i, r);
     }
     let nets = &nl.nets;
     for c in &mut nl.components {

@@ -628,7 +628,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 pintype: Some(lp.ptype),
                 no_connect: nc || lp.ptype == PinType::NoConnect,
                 span,
-                component: None,
+                comp: None,
             });
         }
     }
@@ -785,7 +785,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 tstamps: thin_vec::thin_vec![txt(placed.uuid.clone(), placed.span)],
                 span: placed.span,
                 libpart: None,
-                pins: Vec::new(),
+                pins: Box::default(),
             });
         }
     }
