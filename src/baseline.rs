@@ -132,9 +132,9 @@ pub fn entries(f: &FileOutcome) -> Vec<Entry> {
         .map(|(d, fp)| Entry {
             fingerprint: fp,
             check: d.code.to_string(),
-            net: d.net.clone(),
+            net: d.net.as_deref().map(String::from),
             pins: d.pins.clone(),
-            message: d.message.clone(),
+            message: d.message.to_string(),
         })
         .collect()
 }
@@ -432,7 +432,7 @@ mod tests {
         let stale = stale.expect("an entry is gone");
         assert_eq!(stale.diags.len(), 1);
         assert_eq!(
-            stale.diags[0].message,
+            &*stale.diags[0].message,
             "a.net: 1 of its 2 baseline entries match no finding now"
         );
         // verbose: one line per gone entry, at the entry's fingerprint
@@ -499,7 +499,7 @@ mod tests {
             let s = e.diags[0].primary_span().expect("a place");
             (
                 e.source.line_col(s.start as usize).line,
-                e.diags[0].message.clone(),
+                e.diags[0].message.to_string(),
             )
         };
         let (line, msg) = line_of("{\n  \"format_version\": 1,\n  \"files\": {\n    \"a.net\": [ { \"fingerprint\": 12 } ]\n  }\n}\n");

@@ -5,6 +5,8 @@
 
 use std::borrow::Cow;
 use std::fmt;
+use std::ops::Deref;
+use std::sync::Arc;
 
 use miette::{Diagnostic, LabeledSpan, SourceCode};
 use serde::Serialize;
@@ -46,22 +48,74 @@ pub struct Label {
     pub primary: bool,
 }
 
+/// A text a finding holds that many findings may say alike (a help): a fixed text, or one
+/// made once and shared by every finding that says it (the help for all parts of a kind).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Text {
+    Fixed(&'static str),
+    Shared(Arc<str>),
+}
+
+impl Deref for Text {
+    type Target = str;
+    fn deref(&self) -> &str {
+        match self {
+            Text::Fixed(s) => s,
+            Text::Shared(s) => s,
+        }
+    }
+}
+
+impl fmt::Display for Text {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self)
+    }
+}
+
+impl From<&'static str> for Text {
+    fn from(s: &'static str) -> Text {
+        Text::Fixed(s)
+    }
+}
+
+impl From<String> for Text {
+    fn from(s: String) -> Text {
+        Text::Shared(Arc::from(s))
+    }
+}
+
+impl From<Arc<str>> for Text {
+    fn from(s: Arc<str>) -> Text {
+        Text::Shared(s)
+    }
+}
+
+impl From<Cow<'static, str>> for Text {
+    fn from(s: Cow<'static, str>) -> Text {
+        match s {
+            Cow::Borrowed(s) => Text::Fixed(s),
+            Cow::Owned(s) => s.into(),
+        }
+    }
+}
+
 /// One diagnostic: a code, a severity, a message with the numbers, places in the file, a fix.
 ///
 /// A board can have hundreds of thousands of findings, so a finding holds no more than it
 /// says: the code (a check's `INFO.id`, a `&'static str`), fixed label and help texts are
-/// borrowed, not copied, and the label and pin lists are allocated to their length.
+/// borrowed, not copied, a help worded once for many findings is shared ([`Text`]), the texts
+/// are allocated to their length and the label and pin lists too.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Diag {
     /// Stable kebab-case id, e.g. `unclosed-list` or `floating-cmos-input`.
     pub code: Cow<'static, str>,
     pub severity: Severity,
-    pub message: String,
+    pub message: Box<str>,
     /// The first primary label is the diagnostic's location.
-    pub labels: Vec<Label>,
-    pub help: Option<Cow<'static, str>>,
+    pub labels: Box<[Label]>,
+    pub help: Option<Text>,
     /// The net the finding is about, by name.
-    pub net: Option<String>,
+    pub net: Option<Box<str>>,
     /// The pins involved, as `REF.PIN`, the offending one first.
     pub pins: Vec<String>,
 }
@@ -72,14 +126,12 @@ impl Diag {
         severity: Severity,
         message: impl Into<String>,
     ) -> Diag {
-        let mut message = message.into();
-        // a formatted message carries spare capacity; a finding is held to the end of the run
-        message.shrink_to_fit();
         Diag {
             code: code.into(),
             severity,
-            message,
-            labels: Vec::new(),
+            // allocated to its length: a finding is held to the end of the run
+            message: message.into().into_boxed_str(),
+            labels: Box::default(),
             help: None,
             net: None,
             pins: Vec::new(),
@@ -112,25 +164,28 @@ impl Diag {
         });
         self
     }
-    /// Most findings have one label: the first gets room for one, not the four a growing
-    /// list starts with.
+    /// The list is held to its length (most findings have one label).
     fn push_label(&mut self, label: Label) {
-        if self.labels.capacity() == 0 {
-            self.labels.reserve_exact(1);
-        }
-        self.labels.push(label);
+        let mut labels = std::mem::take(&mut self.labels).into_vec();
+        labels.push(label);
+        self.labels = labels.into_boxed_slice();
     }
-    pub fn with_help(mut self, help: impl Into<Cow<'static, str>>) -> Diag {
-        let mut help = help.into();
-        if let Cow::Owned(h) = &mut help {
-            h.shrink_to_fit();
-        }
-        self.help = Some(help);
+    /// A help: a fixed text, a `String` made for this finding, or a [`Text`] shared with
+    /// the findings that say the same.
+    pub fn with_help(mut self, help: impl Into<Text>) -> Diag {
+        self.help = Some(help.into());
         self
     }
     pub fn on_net(mut self, net: impl Into<String>) -> Diag {
-        self.net = Some(net.into());
+        self.net = Some(net.into().into_boxed_str());
         self
+    }
+    /// Adds `more` to the end of the message.
+    pub fn extend_message(&mut self, more: &str) {
+        let mut m = String::with_capacity(self.message.len() + more.len());
+        m.push_str(&self.message);
+        m.push_str(more);
+        self.message = m.into_boxed_str();
     }
     pub fn with_pins<I: IntoIterator<Item = S>, S: Into<String>>(mut self, pins: I) -> Diag {
         let pins = pins.into_iter();
@@ -362,3 +417,40 @@ pub static INPUT_CODES: &[(&str, &str)] = &[
         "a placed symbol's library symbol is not in its sheet",
     ),
 ];
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A board can have hundreds of thousands of findings: a finding stays this small.
+    #[test]
+    fn a_finding_is_small() {
+        assert!(size_of::<Diag>() <= 128, "{}", size_of::<Diag>());
+        assert!(size_of::<Text>() <= 24);
+    }
+
+    #[test]
+    fn a_message_extended_holds_both_parts() {
+        let mut d = Diag::warning("missing-field", "first");
+        d.extend_message(", then more");
+        assert_eq!(&*d.message, "first, then more");
+        let d = d
+            .at(Span::new(1, 2), "a")
+            .also(Span::new(3, 4), "b")
+            .at(Span::new(5, 6), "c");
+        let texts: Vec<&str> = d.labels.iter().map(|l| &*l.text).collect();
+        assert_eq!(texts, ["a", "b", "c"]);
+        assert_eq!(d.primary_span(), Some(Span::new(1, 2)));
+    }
+
+    #[test]
+    fn texts_read_as_what_they_were_made_from() {
+        let shared: Text = String::from("tie it high").into();
+        assert!(matches!(shared, Text::Shared(_)));
+        assert_eq!(&*shared, "tie it high");
+        let fixed: Text = "fixed".into();
+        assert!(matches!(fixed, Text::Fixed("fixed")));
+        let owned: Text = Cow::<'static, str>::Owned("made".into()).into();
+        assert_eq!((&*owned, owned.to_string()), ("made", "made".to_string()));
+    }
+}

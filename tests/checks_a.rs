@@ -36,7 +36,10 @@ fn run(path: &str, check: &str) -> Vec<Diag> {
 }
 
 fn nets(diags: &[Diag]) -> BTreeSet<String> {
-    diags.iter().filter_map(|d| d.net.clone()).collect()
+    diags
+        .iter()
+        .filter_map(|d| d.net.as_deref().map(String::from))
+        .collect()
 }
 
 fn set(items: &[&str]) -> BTreeSet<String> {

@@ -318,7 +318,7 @@ fn json_byte_offsets_point_at_the_spans() {
         let span = d.primary_span().expect("a span");
         assert_eq!(&BOARD[off..off + len], &BOARD[span.range()]);
         assert_eq!(j["check"], d.code.as_ref());
-        assert_eq!(j["message"], d.message.as_str());
+        assert_eq!(j["message"], &*d.message);
     }
     // `(node (ref "U1") (pin "3"))`: the 15th line, from column 7 to just after the `)`
     let line15 = BOARD.lines().nth(14).expect("15 lines");
@@ -753,7 +753,7 @@ fn hostile_text_escapes_no_format() {
     let findings = doc["files"][0]["findings"].as_array().expect("findings");
     assert_eq!(findings.len(), n);
     for (d, j) in files[0].diags.iter().zip(findings) {
-        assert_eq!(j["message"], d.message.as_str());
+        assert_eq!(j["message"], &*d.message);
     }
     assert_eq!(doc["files"][0]["path"], files[0].name.as_str());
     let last = &findings[n - 1];
@@ -764,7 +764,7 @@ fn hostile_text_escapes_no_format() {
     let results = log["runs"][0]["results"].as_array().expect("results");
     assert_eq!(results.len(), n);
     for (d, r) in files[0].diags.iter().zip(results) {
-        assert_eq!(r["message"]["text"], d.message.as_str());
+        assert_eq!(r["message"]["text"], &*d.message);
     }
     assert_eq!(
         results[n - 1]["relatedLocations"][0]["message"]["text"],

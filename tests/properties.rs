@@ -382,7 +382,7 @@ fn fingerprint(nl: &Netlist<'_>) -> Fingerprint {
             (
                 d.code.to_string(),
                 d.severity.to_string(),
-                d.net.clone(),
+                d.net.as_deref().map(String::from),
                 pins,
                 words,
             )
@@ -503,7 +503,7 @@ fn finding_key(d: &Diag) -> (String, String, Option<String>, Vec<String>, Vec<St
     (
         d.code.to_string(),
         d.severity.to_string(),
-        d.net.clone(),
+        d.net.as_deref().map(String::from),
         pins,
         words,
     )
@@ -613,7 +613,7 @@ proptest! {
                 let mut d = d.clone();
                 d.pins = d.pins.iter().map(|p| rename_word(p)).collect();
                 // net names are strings in the file: they keep their text (even `Net-(U5-Pad4)`)
-                d.message = d.message.split(' ').map(|w| if w.contains("Net-(") || w.contains("unconnected-(") { w.to_string() } else { rename_word(w) }).collect::<Vec<_>>().join(" ");
+                d.message = d.message.split(' ').map(|w| if w.contains("Net-(") || w.contains("unconnected-(") { w.to_string() } else { rename_word(w) }).collect::<Vec<_>>().join(" ").into();
                 finding_key(&d)
             })
             .collect();

@@ -51,7 +51,7 @@ fn findings(b: &Board, id: &str, model: ModelOptions) -> Vec<(Severity, String)>
         .diags
         .into_iter()
         .filter(|d| d.code == id)
-        .map(|d| (d.severity, d.message))
+        .map(|d| (d.severity, d.message.into()))
         .collect()
 }
 

@@ -554,9 +554,9 @@ fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
                 id: format!("f{}", i + 1),
                 code: d.code.to_string(),
                 severity: d.severity,
-                message: d.message.clone(),
+                message: d.message.to_string(),
                 help: d.help.as_deref().map(String::from),
-                net: d.net.clone(),
+                net: d.net.as_deref().map(String::from),
                 pins: d.pins.clone(),
                 parts,
                 line,
@@ -887,12 +887,12 @@ fn block_from(
             .first()
             .map(|p| ref_of(p).to_string())
             .or_else(|| part_at(&a.nl, d))
-            .or_else(|| d.net.clone())
+            .or_else(|| d.net.as_deref().map(String::from))
             .unwrap_or_default(),
         text: if waived {
             format!("{} (waived)", d.message)
         } else {
-            d.message.clone()
+            d.message.to_string()
         },
         line: line_of(a.source, d).0,
     };

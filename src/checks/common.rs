@@ -4,7 +4,7 @@ use super::Context;
 use crate::circuit::Circuit;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
-use crate::diag::Diag;
+use crate::diag::{Diag, Label, Text};
 use crate::netlist::Connection;
 
 /// Why an input floats.
@@ -216,8 +216,9 @@ impl<'n> GateKey<'n> {
     }
 }
 
-/// Words made once per key and handed out as copies.
-pub struct Words<K>(rustc_hash::FxHashMap<K, (String, String)>);
+/// Words made once per key: a text handed out as copies, and a help shared by every finding
+/// that is given it (one allocation for all the parts of a kind).
+pub struct Words<K>(rustc_hash::FxHashMap<K, (String, Text)>);
 
 impl<K: std::hash::Hash + Eq> Words<K> {
     pub fn new() -> Words<K> {
@@ -225,8 +226,11 @@ impl<K: std::hash::Hash + Eq> Words<K> {
     }
 
     /// The words for `key`, made by `make` the first time it is asked.
-    pub fn get(&mut self, key: K, make: impl FnOnce() -> (String, String)) -> &(String, String) {
-        self.0.entry(key).or_insert_with(make)
+    pub fn get(&mut self, key: K, make: impl FnOnce() -> (String, String)) -> &(String, Text) {
+        self.0.entry(key).or_insert_with(|| {
+            let (text, help) = make();
+            (text, help.into())
+        })
     }
 }
 
@@ -239,7 +243,7 @@ pub fn unused_gate_finding(
     make: fn(&'static str, String) -> Diag,
     code: &'static str,
     tail: &str,
-    help: &str,
+    help: &Text,
 ) -> Diag {
     let c = &cx.nl.components[g.comp];
     let message = concat(&[
@@ -252,16 +256,19 @@ pub fn unused_gate_finding(
         ") is unused and ",
         tail,
     ]);
-    let mut d = make(code, message);
-    // one place per input, allocated at once
-    d.labels.reserve_exact(g.inputs.len());
-    d = d
-        .with_help(help.to_string())
+    let mut d = make(code, message)
+        .with_help(help.clone())
         .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
-    d = d.at(cx.pin_span(g.inputs[0].at), "unused gate");
-    for f in &g.inputs[1..] {
-        d = d.also(cx.pin_span(f.at), "");
-    }
+    // one place per input, allocated at once: the first input's, then the others beside it
+    let place = |f: &Floating, text: &'static str, primary| Label {
+        span: cx.pin_span(f.at),
+        text: text.into(),
+        primary,
+    };
+    let mut labels = Vec::with_capacity(g.inputs.len());
+    labels.push(place(&g.inputs[0], "unused gate", true));
+    labels.extend(g.inputs[1..].iter().map(|f| place(f, "", false)));
+    d.labels = labels.into_boxed_slice();
     d
 }
 
@@ -431,9 +438,23 @@ mod tests {
                 made += 1;
                 (format!("tail {key}"), format!("help {key}"))
             });
-            assert_eq!(w, &(format!("tail {key}"), format!("help {key}")));
+            assert_eq!(
+                (w.0.as_str(), &*w.1),
+                (&*format!("tail {key}"), &*format!("help {key}"))
+            );
         }
         assert_eq!(made, 3);
+        // a help handed out twice is one text, not two copies
+        let (a, b) = (
+            words.get(1, || unreachable!()).1.clone(),
+            words.get(1, || unreachable!()).1.clone(),
+        );
+        match (a, b) {
+            (super::Text::Shared(a), super::Text::Shared(b)) => {
+                assert!(std::sync::Arc::ptr_eq(&a, &b))
+            }
+            other => panic!("not shared: {other:?}"),
+        }
     }
 
     #[test]

@@ -128,11 +128,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .any(|l| l.family.is_some() && !oc.iter().any(|o| o.at == l.at));
         if !known_reader && !loads.is_empty() && diag.severity == crate::diag::Severity::Error {
             diag.severity = crate::diag::Severity::Warning;
-            diag.message.push_str(" (assuming the symbol is right that these pins are inputs: the parts are ones netmargin does not know)");
+            diag.extend_message(" (assuming the symbol is right that these pins are inputs: the parts are ones netmargin does not know)");
         }
         if d.symbol_only && diag.severity > crate::diag::Severity::Info {
             diag.severity = crate::diag::Severity::Info;
-            diag.message.push_str(&format!(
+            diag.extend_message(&format!(
                 " (this rests on the symbol, which types the pin open-collector; {} is a part netmargin does not know)",
                 cx.nl.components[d.at.comp].reference
             ));

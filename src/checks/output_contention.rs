@@ -284,7 +284,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     .map(|p| cx.nl.components[p.comp].reference.as_str())
                     .collect();
                 refs.dedup();
-                d.message.push_str(&format!(
+                d.extend_message(&format!(
                     " (this rests on the symbol's pin types of {}, which netmargin does not know: check that {} really drive{} all the time)",
                     refs.join(", "),
                     if refs.len() == 1 { "its pins" } else { "their pins" },

@@ -162,7 +162,7 @@ fn reads_kicad8_and_reports_model_problems_with_spans() {
         ["unknown-component", "duplicate-net-code", "pin-on-two-nets"]
     );
     let d = &nl.diagnostics[2];
-    assert_eq!(d.message, "U1.1 is on two nets: `~{RESET}` and `/D[2]`");
+    assert_eq!(&*d.message, "U1.1 is on two nets: `~{RESET}` and `/D[2]`");
     let at = d.primary_span().unwrap();
     assert!(K8[at.range()].starts_with("(node (ref \"U1\") (pin \"1\")"));
     assert_eq!(

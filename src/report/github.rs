@@ -64,7 +64,7 @@ pub fn line(f: &FileOutcome, d: &Diag, opts: &ReportOptions) -> String {
         "title={}",
         escape_property(&format!("{} {}", super::TOOL_NAME, d.code))
     ));
-    let mut message = d.message.clone();
+    let mut message = d.message.to_string();
     if let Some(h) = &d.help {
         message.push_str("\nhelp: ");
         message.push_str(h);

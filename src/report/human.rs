@@ -54,7 +54,7 @@ pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> S
     };
     // the help comes after the last excerpt
     let main = Diag {
-        labels: pick(&groups[0].1),
+        labels: pick(&groups[0].1).into(),
         help: None,
         ..diag.clone()
     };
@@ -86,8 +86,8 @@ pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> S
         let part = Diag {
             code: "".into(),
             severity: crate::diag::Severity::Info,
-            message,
-            labels: pick(g),
+            message: message.into(),
+            labels: pick(g).into(),
             help: if i + 1 == groups.len() {
                 diag.help.clone()
             } else {
@@ -253,9 +253,9 @@ fn write_file_with(
                 let o = &f.diags[i];
                 let at = o
                     .net
-                    .clone()
-                    .or_else(|| o.pins.first().cloned())
-                    .or_else(|| o.message.split_whitespace().next().map(str::to_string))
+                    .as_deref()
+                    .or_else(|| o.pins.first().map(|p| &**p))
+                    .or_else(|| o.message.split_whitespace().next())
                     .map(|n| sanitize(&n).into_owned())
                     .unwrap_or_default();
                 match at_index.get(&at) {

@@ -5,136 +5,26 @@
 //! serde_json escapes the C0 controls; [`escape_unsafe`] then escapes what it leaves raw and
 //! a terminal could still act on (DEL, C1 controls, bidi overrides, line and paragraph
 //! separators), so the document can be shown on a terminal as it is and reads back the same.
-//! The escape is applied to the text on its way out ([`write_safe_pretty`]).
+//! The document is written record by record by [`super::pretty::PrettyOut`], whose text is
+//! that of `escape_unsafe(serde_json::to_string_pretty(..))` in [`Pretty`]'s layout
+//! ([`write_safe_pretty`], kept for the parts written through serde).
 
 use std::io::{self, Write};
 
-use serde::ser::SerializeStruct;
+#[cfg(test)]
 use serde::Serialize;
 
+use super::pretty::PrettyOut;
 use super::{
     fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, Place,
     ReportOptions, Totals, TOOL_NAME, TOOL_VERSION,
 };
-use crate::diag::{Diag, Severity};
+use crate::diag::Diag;
 use crate::pipeline::FileOutcome;
 use crate::source::{LineCursor, SourceFile, Span};
 
 /// The version of this document's layout.
 pub const FORMAT_VERSION: u32 = 1;
-
-#[derive(Serialize)]
-struct Document<'a> {
-    format_version: u32,
-    tool: Tool,
-    files: Vec<File<'a>>,
-    totals: TotalsOut,
-}
-
-#[derive(Serialize)]
-struct Tool {
-    name: &'static str,
-    version: &'static str,
-}
-
-#[derive(Serialize)]
-struct File<'a> {
-    path: &'a str,
-    checked: bool,
-    error: Option<Finding<'a>>,
-    summary: Option<SummaryOut>,
-    findings: Findings<'a>,
-}
-
-/// A file's findings, each made into its [`Finding`] as it is written (never all at once:
-/// a board can have hundreds of thousands).
-struct Findings<'a> {
-    diags: &'a [Diag],
-    source: Option<&'a SourceFile>,
-    fingerprints: Vec<u64>,
-}
-
-impl Serialize for Findings<'_> {
-    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        // findings of one part come together: their lines are looked up near each other
-        let mut lines = self.source.map(SourceFile::cursor);
-        s.collect_seq(
-            self.diags
-                .iter()
-                .zip(&self.fingerprints)
-                .map(|(d, &fp)| finding(d, lines.as_mut(), fp)),
-        )
-    }
-}
-
-/// A fingerprint, written as 16 hex digits.
-pub(crate) struct Fingerprint(pub(crate) u64);
-
-impl Serialize for Fingerprint {
-    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        const HEX: &[u8; 16] = b"0123456789abcdef";
-        let mut digits = [0u8; 16];
-        for (i, d) in digits.iter_mut().enumerate() {
-            *d = HEX[((self.0 >> (60 - 4 * i)) & 0xf) as usize];
-        }
-        s.serialize_str(std::str::from_utf8(&digits).expect("hex digits are ASCII"))
-    }
-}
-
-#[derive(Serialize)]
-struct SummaryOut {
-    parts: usize,
-    nets: usize,
-    pins: usize,
-    pins_on_no_net: usize,
-    classified: Option<usize>,
-    ic_like: Option<usize>,
-}
-
-/// A finding as written: its place's fields sit among its own (see the `Serialize` impl).
-struct Finding<'a> {
-    check: &'a str,
-    severity: Severity,
-    message: &'a str,
-    net: Option<&'a str>,
-    pins: &'a [String],
-    label: Option<&'a str>,
-    place: PlaceOut<'a>,
-    help: Option<&'a str>,
-    related: Vec<Related<'a>>,
-    fingerprint: Fingerprint,
-}
-
-impl Serialize for Finding<'_> {
-    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        let mut m = s.serialize_struct("Finding", 16)?;
-        m.serialize_field("check", self.check)?;
-        m.serialize_field("severity", &self.severity)?;
-        m.serialize_field("message", self.message)?;
-        m.serialize_field("net", &self.net)?;
-        m.serialize_field("pins", self.pins)?;
-        m.serialize_field("label", &self.label)?;
-        self.place.fields(&mut m)?;
-        m.serialize_field("help", &self.help)?;
-        m.serialize_field("related", &self.related)?;
-        m.serialize_field("fingerprint", &self.fingerprint)?;
-        m.end()
-    }
-}
-
-struct Related<'a> {
-    message: &'a str,
-    place: PlaceOut<'a>,
-}
-
-impl Serialize for Related<'_> {
-    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        let mut m = s.serialize_struct("Related", 8)?;
-        m.serialize_field("message", self.message)?;
-        self.place.fields(&mut m)?;
-        m.end()
-    }
-}
 
 /// Where a finding or a related place is, written as fields of the object that holds it.
 #[derive(Default)]
@@ -151,17 +41,16 @@ struct PlaceOut<'a> {
 }
 
 impl PlaceOut<'_> {
-    fn fields<M: SerializeStruct>(&self, m: &mut M) -> Result<(), M::Error> {
-        match self.file {
-            Some(file) => m.serialize_field("file", file)?,
-            None => m.skip_field("file")?,
+    fn write(&self, w: &mut PrettyOut<'_>) {
+        if let Some(file) = self.file {
+            w.key("file").str(file);
         }
-        m.serialize_field("line", &self.line)?;
-        m.serialize_field("column", &self.column)?;
-        m.serialize_field("end_line", &self.end_line)?;
-        m.serialize_field("end_column", &self.end_column)?;
-        m.serialize_field("byte_offset", &self.byte_offset)?;
-        m.serialize_field("byte_length", &self.byte_length)
+        w.key("line").opt_num(self.line);
+        w.key("column").opt_num(self.column);
+        w.key("end_line").opt_num(self.end_line);
+        w.key("end_column").opt_num(self.end_column);
+        w.key("byte_offset").opt_num(self.byte_offset);
+        w.key("byte_length").opt_num(self.byte_length);
     }
 }
 
@@ -186,97 +75,34 @@ impl<'a> PlaceOut<'a> {
     }
 }
 
-#[derive(Serialize)]
-struct TotalsOut {
-    files: usize,
-    checked: usize,
-    not_checked: usize,
-    parts: usize,
-    nets: usize,
-    pins: usize,
-    errors: usize,
-    warnings: usize,
-    infos: usize,
-    classified: Option<usize>,
-    ic_like: Option<usize>,
-}
-
-fn finding<'a>(
+/// One finding as an object: its place's fields sit among its own.
+fn write_finding<'a>(
+    w: &mut PrettyOut<'_>,
     d: &'a Diag,
     mut lines: Option<&mut LineCursor<'a>>,
     fingerprint: u64,
-) -> Finding<'a> {
+) {
     let primary = primary_label(d);
-    Finding {
-        check: &d.code,
-        severity: d.severity,
-        message: &d.message,
-        net: d.net.as_deref(),
-        pins: &d.pins,
-        label: primary.map(|l| &*l.text).filter(|t| !t.is_empty()),
-        place: PlaceOut::of(lines.as_deref_mut(), primary.map(|l| l.span)),
-        help: d.help.as_deref(),
-        related: related_labels(d)
-            .map(|l| Related {
-                message: &l.text,
-                place: PlaceOut::of(lines.as_deref_mut(), Some(l.span)),
-            })
-            .collect(),
-        fingerprint: Fingerprint(fingerprint),
+    w.open_object();
+    w.key("check").str(&d.code);
+    w.key("severity").word(d.severity.as_str());
+    w.key("message").str(&d.message);
+    w.key("net").opt_str(d.net.as_deref());
+    w.key("pins").strs(d.pins.iter().map(|p| &**p));
+    w.key("label")
+        .opt_str(primary.map(|l| &*l.text).filter(|t| !t.is_empty()));
+    PlaceOut::of(lines.as_deref_mut(), primary.map(|l| l.span)).write(w);
+    w.key("help").opt_str(d.help.as_deref());
+    w.key("related").open_array();
+    for l in related_labels(d) {
+        w.item().open_object();
+        w.key("message").str(&l.text);
+        PlaceOut::of(lines.as_deref_mut(), Some(l.span)).write(w);
+        w.close_object();
     }
-}
-
-fn document(files: &[FileOutcome], netlists: Option<usize>) -> Document<'_> {
-    let t = Totals::of_run(files, netlists);
-    let out_files = files
-        .iter()
-        .map(|f| {
-            let src = f.source.as_ref();
-            let checked = f.fatal.is_none();
-            File {
-                path: &f.name,
-                checked,
-                error: f.fatal.as_ref().map(|d| {
-                    let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
-                    finding(d, src.map(SourceFile::cursor).as_mut(), fp)
-                }),
-                summary: checked.then(|| SummaryOut {
-                    parts: f.summary.parts,
-                    nets: f.summary.nets,
-                    pins: f.summary.pins,
-                    pins_on_no_net: f.summary.pins_on_no_net,
-                    classified: f.coverage.map(|c| c.0),
-                    ic_like: f.coverage.map(|c| c.1),
-                }),
-                findings: Findings {
-                    diags: &f.diags,
-                    source: src,
-                    fingerprints: fingerprint_hashes(f),
-                },
-            }
-        })
-        .collect();
-    Document {
-        format_version: FORMAT_VERSION,
-        tool: Tool {
-            name: TOOL_NAME,
-            version: TOOL_VERSION,
-        },
-        files: out_files,
-        totals: TotalsOut {
-            files: t.files,
-            checked: t.files - t.not_checked,
-            not_checked: t.not_checked,
-            parts: t.parts,
-            nets: t.nets,
-            pins: t.pins,
-            errors: t.errors,
-            warnings: t.warnings,
-            infos: t.infos,
-            classified: t.coverage.map(|c| c.0),
-            ic_like: t.coverage.map(|c| c.1),
-        },
-    }
+    w.close_array();
+    w.key("fingerprint").hex64(fingerprint);
+    w.close_object();
 }
 
 /// Escapes, as `\uXXXX`, the characters serde_json leaves raw that a terminal could act on.
@@ -336,9 +162,15 @@ pub(crate) struct Pretty {
 }
 
 impl Pretty {
+    #[cfg(test)]
     pub(crate) fn new() -> Pretty {
+        Pretty::at_depth(0)
+    }
+
+    /// The layout of a value written inside `depth` open objects and arrays.
+    pub(crate) fn at_depth(depth: usize) -> Pretty {
         Pretty {
-            depth: 0,
+            depth,
             has_value: false,
         }
     }
@@ -412,15 +244,20 @@ impl serde_json::ser::Formatter for Pretty {
     }
 }
 
+/// (The serde path the reports took before [`PrettyOut`]; kept as the reference its tests
+/// compare with.)
+///
 /// A writer that passes UTF-8 text on with [`escape_unsafe`]'s escapes, so a document is
 /// escaped as it is written, never held whole. A character cut between two writes is kept
 /// until the rest of it comes.
+#[cfg(test)]
 struct Escaping<'w> {
     out: &'w mut dyn Write,
     /// The start of a character a write ended inside.
     pending: Vec<u8>,
 }
 
+#[cfg(test)]
 impl Escaping<'_> {
     /// Writes `text`, escaped; keeps a cut character at its end for the next write.
     fn pass(&mut self, text: &[u8]) -> io::Result<()> {
@@ -448,6 +285,7 @@ impl Escaping<'_> {
     }
 }
 
+#[cfg(test)]
 impl Write for Escaping<'_> {
     fn write(&mut self, buf: &[u8]) -> io::Result<usize> {
         if self.pending.is_empty() {
@@ -468,6 +306,7 @@ impl Write for Escaping<'_> {
 /// Writes `value` to `out` in [`Pretty`]'s layout, escaped on the way (the text is
 /// `escape_unsafe(to_string_pretty(value))`), with a final line end. The document is never
 /// held whole.
+#[cfg(test)]
 pub(crate) fn write_safe_pretty<T: Serialize + ?Sized>(
     value: &T,
     out: &mut dyn Write,
@@ -503,14 +342,76 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
     write_run(files, opts.netlists, out)
 }
 
-/// The document written to `out` as it is serialized, escaped on the way, with a final line
-/// end.
+/// The document written to `out`, record by record (never held whole), with a final line
+/// end. The fields and their order are those of `docs/json-format.md`.
 fn write_run(
     files: &[FileOutcome],
     netlists: Option<usize>,
     out: &mut dyn Write,
 ) -> io::Result<()> {
-    write_safe_pretty(&document(files, netlists), out)
+    let t = Totals::of_run(files, netlists);
+    let mut w = PrettyOut::new(out);
+    w.open_object();
+    w.key("format_version").num(FORMAT_VERSION as usize);
+    w.key("tool").open_object();
+    w.key("name").str(TOOL_NAME);
+    w.key("version").str(TOOL_VERSION);
+    w.close_object();
+    w.key("files").open_array();
+    for f in files {
+        let src = f.source.as_ref();
+        let checked = f.fatal.is_none();
+        w.item().open_object();
+        w.key("path").str(&f.name);
+        w.key("checked").bool(checked);
+        w.key("error");
+        match &f.fatal {
+            Some(d) => {
+                let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
+                write_finding(&mut w, d, src.map(SourceFile::cursor).as_mut(), fp);
+            }
+            None => w.null(),
+        }
+        w.key("summary");
+        if checked {
+            w.open_object();
+            w.key("parts").num(f.summary.parts);
+            w.key("nets").num(f.summary.nets);
+            w.key("pins").num(f.summary.pins);
+            w.key("pins_on_no_net").num(f.summary.pins_on_no_net);
+            w.key("classified").opt_num(f.coverage.map(|c| c.0));
+            w.key("ic_like").opt_num(f.coverage.map(|c| c.1));
+            w.close_object();
+        } else {
+            w.null();
+        }
+        w.key("findings").open_array();
+        // findings of one part come together: their lines are looked up near each other
+        let mut lines = src.map(SourceFile::cursor);
+        for (d, fp) in f.diags.iter().zip(fingerprint_hashes(f)) {
+            w.item();
+            write_finding(&mut w, d, lines.as_mut(), fp);
+            w.flush_some()?;
+        }
+        w.close_array();
+        w.close_object();
+    }
+    w.close_array();
+    w.key("totals").open_object();
+    w.key("files").num(t.files);
+    w.key("checked").num(t.files - t.not_checked);
+    w.key("not_checked").num(t.not_checked);
+    w.key("parts").num(t.parts);
+    w.key("nets").num(t.nets);
+    w.key("pins").num(t.pins);
+    w.key("errors").num(t.errors);
+    w.key("warnings").num(t.warnings);
+    w.key("infos").num(t.infos);
+    w.key("classified").opt_num(t.coverage.map(|c| c.0));
+    w.key("ic_like").opt_num(t.coverage.map(|c| c.1));
+    w.close_object();
+    w.close_object();
+    w.finish()
 }
 
 #[cfg(test)]
@@ -579,8 +480,11 @@ mod tests {
             u64::MAX,
             0x8000_0000_0000_0000,
         ] {
-            let json = serde_json::to_string(&Fingerprint(h)).unwrap();
-            assert_eq!(json, format!("\"{h:016x}\""));
+            let mut out = Vec::new();
+            let mut w = PrettyOut::new(&mut out);
+            w.hex64(h);
+            w.finish().unwrap();
+            assert_eq!(String::from_utf8(out).unwrap(), format!("\"{h:016x}\"\n"));
         }
     }
 

@@ -17,6 +17,7 @@ pub mod human;
 pub mod json;
 pub mod net;
 pub mod parts;
+pub(crate) mod pretty;
 pub mod sarif;
 pub mod settings;
 pub mod short;
@@ -128,7 +129,7 @@ impl Place {
         let start = (span.start as usize).min(len);
         let end = (span.end as usize).clamp(start, len);
         let a = lines.line_col(start);
-        let b = lines.line_col(end);
+        let b = lines.line_col_after(start, a, end);
         // in a source made of several files, offsets count from the start of the file
         let base = source.part_at(start).map_or(0, |p| p.start as usize);
         Place {
@@ -476,7 +477,7 @@ mod tests {
     fn key_ranks_count_each_key_apart_whatever_the_hash() {
         let mk = |code: &'static str, net: Option<&str>, pins: &[&str]| {
             let mut d = Diag::warning(code, "m");
-            d.net = net.map(str::to_string);
+            d.net = net.map(Into::into);
             d.pins = pins.iter().map(|p| p.to_string()).collect();
             d
         };

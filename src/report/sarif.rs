@@ -19,8 +19,7 @@ use std::io::{self, Write};
 
 use serde::Serialize;
 
-use serde::ser::SerializeMap;
-
+use super::pretty::PrettyOut;
 use super::{
     fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, rooted_path,
     Place, ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
@@ -37,63 +36,6 @@ pub const SCHEMA_URI: &str =
 pub const SRCROOT: &str = "%SRCROOT%";
 /// The key of our fingerprint in `partialFingerprints`.
 pub const FINGERPRINT_KEY: &str = "netmarginFinding/v1";
-
-#[derive(Serialize)]
-struct Log<'a> {
-    #[serde(rename = "$schema")]
-    schema: &'static str,
-    version: &'static str,
-    runs: Vec<Run<'a>>,
-}
-
-#[derive(Serialize)]
-#[serde(rename_all = "camelCase")]
-struct Run<'a> {
-    tool: Tool,
-    original_uri_base_ids: BTreeMap<&'static str, ArtifactLocation>,
-    column_kind: &'static str,
-    invocations: Vec<Invocation>,
-    results: Results<'a>,
-}
-
-/// Every file's results, each made into its [`SarifResult`] as it is written (never all at
-/// once: a board can have hundreds of thousands).
-struct Results<'a> {
-    files: &'a [FileOutcome],
-    /// Per file: the input's location, then one per sheet of a schematic project.
-    artifacts: Vec<Vec<ArtifactLocation>>,
-    index: BTreeMap<&'static str, usize>,
-}
-
-impl Serialize for Results<'_> {
-    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        let index = &self.index;
-        s.collect_seq(
-            self.files
-                .iter()
-                .zip(&self.artifacts)
-                .flat_map(|(f, arts)| {
-                    let src = f.source.as_ref();
-                    // a schematic's findings point into the sheet file where the item is drawn
-                    let art_of = move |d: &Diag| {
-                        let sheet = primary_label(d)
-                            .and_then(|l| src?.part_index_at(l.span.start as usize));
-                        &arts[sheet.map_or(0, |i| i + 1)]
-                    };
-                    // findings of one part come together: their lines are looked up near each other
-                    let mut lines = src.map(SourceFile::cursor);
-                    let fatal = f
-                        .fatal
-                        .as_ref()
-                        .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
-                    fatal
-                        .into_iter()
-                        .chain(f.diags.iter().zip(fingerprint_hashes(f)))
-                        .map(move |(d, fp)| result(d, lines.as_mut(), art_of(d), index, fp))
-                }),
-        )
-    }
-}
 
 #[derive(Serialize)]
 #[serde(rename_all = "camelCase")]
@@ -149,72 +91,6 @@ struct Configuration {
     level: &'static str,
 }
 
-#[derive(Serialize)]
-struct Message<'a> {
-    text: &'a str,
-}
-
-#[derive(Serialize)]
-#[serde(rename_all = "camelCase")]
-struct SarifResult<'a> {
-    rule_id: &'a str,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    rule_index: Option<usize>,
-    level: &'static str,
-    message: Message<'a>,
-    locations: [Location<'a>; 1],
-    #[serde(skip_serializing_if = "Vec::is_empty")]
-    related_locations: Vec<Location<'a>>,
-    partial_fingerprints: PartialFingerprints,
-    #[serde(skip_serializing_if = "Properties::is_empty")]
-    properties: Properties<'a>,
-}
-
-#[derive(Serialize)]
-struct Properties<'a> {
-    #[serde(skip_serializing_if = "Option::is_none")]
-    net: Option<&'a str>,
-    #[serde(skip_serializing_if = "<[String]>::is_empty")]
-    pins: &'a [String],
-    #[serde(skip_serializing_if = "Option::is_none")]
-    help: Option<&'a str>,
-}
-
-impl Properties<'_> {
-    fn is_empty(&self) -> bool {
-        self.net.is_none() && self.pins.is_empty() && self.help.is_none()
-    }
-}
-
-#[derive(Serialize)]
-#[serde(rename_all = "camelCase")]
-struct Location<'a> {
-    #[serde(skip_serializing_if = "Option::is_none")]
-    id: Option<usize>,
-    physical_location: PhysicalLocation<'a>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    message: Option<Message<'a>>,
-}
-
-/// `partialFingerprints`: our one fingerprint, under [`FINGERPRINT_KEY`].
-struct PartialFingerprints(u64);
-
-impl Serialize for PartialFingerprints {
-    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        let mut m = s.serialize_map(Some(1))?;
-        m.serialize_entry(FINGERPRINT_KEY, &super::json::Fingerprint(self.0))?;
-        m.end()
-    }
-}
-
-#[derive(Serialize)]
-#[serde(rename_all = "camelCase")]
-struct PhysicalLocation<'a> {
-    artifact_location: &'a ArtifactLocation,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    region: Option<Region>,
-}
-
 #[derive(Serialize, Clone)]
 #[serde(rename_all = "camelCase")]
 struct ArtifactLocation {
@@ -226,27 +102,44 @@ struct ArtifactLocation {
     description: Option<Text>,
 }
 
-#[derive(Serialize)]
-#[serde(rename_all = "camelCase")]
-struct Region {
-    start_line: usize,
-    start_column: usize,
-    end_line: usize,
-    end_column: usize,
-    byte_offset: usize,
-    byte_length: usize,
+/// A place in a file, as a SARIF `region`.
+fn write_region(w: &mut PrettyOut<'_>, p: Place) {
+    w.open_object();
+    w.key("startLine").num(p.line);
+    w.key("startColumn").num(p.column);
+    w.key("endLine").num(p.end_line);
+    w.key("endColumn").num(p.end_column);
+    w.key("byteOffset").num(p.byte_offset);
+    w.key("byteLength").num(p.byte_length);
+    w.close_object();
 }
 
-impl Region {
-    fn of(p: Place) -> Region {
-        Region {
-            start_line: p.line,
-            start_column: p.column,
-            end_line: p.end_line,
-            end_column: p.end_column,
-            byte_offset: p.byte_offset,
-            byte_length: p.byte_length,
+/// `{"text": ..}`.
+fn write_message(w: &mut PrettyOut<'_>, text: &str) {
+    w.open_object();
+    w.key("text").str(text);
+    w.close_object();
+}
+
+impl ArtifactLocation {
+    /// The location as its serde form writes it (in every result, so written by hand).
+    fn write(&self, w: &mut PrettyOut<'_>) {
+        w.open_object();
+        if let Some(uri) = &self.uri {
+            w.key("uri").str(uri);
         }
+        if let Some(base) = self.uri_base_id {
+            w.key("uriBaseId").str(base);
+        }
+        if let Some(d) = &self.description {
+            w.key("description").open_object();
+            w.key("text").str(&d.text);
+            if let Some(m) = &d.markdown {
+                w.key("markdown").str(m);
+            }
+            w.close_object();
+        }
+        w.close_object();
     }
 }
 
@@ -369,50 +262,82 @@ fn artifact(name: &str, opts: &ReportOptions) -> ArtifactLocation {
     }
 }
 
-fn result<'a>(
-    d: &'a Diag,
+/// One result: the finding at its primary place, its other places as related locations.
+fn write_result(
+    w: &mut PrettyOut<'_>,
+    d: &Diag,
     mut lines: Option<&mut LineCursor<'_>>,
-    art: &'a ArtifactLocation,
+    art: &ArtifactLocation,
     index: &BTreeMap<&str, usize>,
     fingerprint: u64,
-) -> SarifResult<'a> {
-    let mut place = |span| lines.as_deref_mut().map(|l| Region::of(Place::at(l, span)));
-    let primary = primary_label(d);
-    let location = Location {
-        id: None,
-        physical_location: PhysicalLocation {
-            artifact_location: art,
-            region: primary.and_then(|l| place(l.span)),
-        },
-        message: primary
-            .filter(|l| !l.text.is_empty())
-            .map(|l| Message { text: &l.text }),
+) {
+    let mut place = |span| lines.as_deref_mut().map(|l| Place::at(l, span));
+    let mut location = |w: &mut PrettyOut<'_>,
+                        id: Option<usize>,
+                        span: Option<crate::source::Span>,
+                        text: Option<&str>| {
+        w.open_object();
+        if let Some(id) = id {
+            w.key("id").num(id);
+        }
+        w.key("physicalLocation").open_object();
+        w.key("artifactLocation");
+        art.write(w);
+        if let Some(p) = span.and_then(&mut place) {
+            w.key("region");
+            write_region(w, p);
+        }
+        w.close_object();
+        if let Some(text) = text {
+            w.key("message");
+            write_message(w, text);
+        }
+        w.close_object();
     };
-    let related = related_labels(d)
-        .enumerate()
-        .map(|(i, l)| Location {
-            id: Some(i + 1),
-            physical_location: PhysicalLocation {
-                artifact_location: art,
-                region: place(l.span),
-            },
-            message: Some(Message { text: &l.text }),
-        })
-        .collect();
-    SarifResult {
-        rule_id: &d.code,
-        rule_index: index.get(&*d.code).copied(),
-        level: level(d.severity),
-        message: Message { text: &d.message },
-        locations: [location],
-        related_locations: related,
-        partial_fingerprints: PartialFingerprints(fingerprint),
-        properties: Properties {
-            net: d.net.as_deref(),
-            pins: &d.pins,
-            help: d.help.as_deref(),
-        },
+    let primary = primary_label(d);
+    w.open_object();
+    w.key("ruleId").str(&d.code);
+    if let Some(&i) = index.get(&*d.code) {
+        w.key("ruleIndex").num(i);
     }
+    w.key("level").word(level(d.severity));
+    w.key("message");
+    write_message(w, &d.message);
+    w.key("locations").open_array();
+    w.item();
+    location(
+        w,
+        None,
+        primary.map(|l| l.span),
+        primary.filter(|l| !l.text.is_empty()).map(|l| &*l.text),
+    );
+    w.close_array();
+    let mut related = related_labels(d).enumerate().peekable();
+    if related.peek().is_some() {
+        w.key("relatedLocations").open_array();
+        for (i, l) in related {
+            w.item();
+            location(w, Some(i + 1), Some(l.span), Some(&l.text));
+        }
+        w.close_array();
+    }
+    w.key("partialFingerprints").open_object();
+    w.key(FINGERPRINT_KEY).hex64(fingerprint);
+    w.close_object();
+    if d.net.is_some() || !d.pins.is_empty() || d.help.is_some() {
+        w.key("properties").open_object();
+        if let Some(net) = &d.net {
+            w.key("net").str(net);
+        }
+        if !d.pins.is_empty() {
+            w.key("pins").strs(d.pins.iter().map(|p| &**p));
+        }
+        if let Some(help) = &d.help {
+            w.key("help").str(help);
+        }
+        w.close_object();
+    }
+    w.close_object();
 }
 
 /// The SARIF log as text, with a final line end.
@@ -432,7 +357,7 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
         .rev()
         .map(|(i, r)| (r.id, i))
         .collect();
-    let artifacts = files
+    let artifacts: Vec<Vec<ArtifactLocation>> = files
         .iter()
         .map(|f| {
             let sheets = f.source.iter().flat_map(|s| s.files()).map(|p| &*p.name);
@@ -445,39 +370,61 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
     let homepage = [env!("CARGO_PKG_HOMEPAGE"), env!("CARGO_PKG_REPOSITORY")]
         .into_iter()
         .find(|s| !s.is_empty());
-    let log = Log {
-        schema: SCHEMA_URI,
-        version: "2.1.0",
-        runs: vec![Run {
-            tool: Tool {
-                driver: Driver {
-                    name: TOOL_NAME,
-                    version: TOOL_VERSION,
-                    semantic_version: TOOL_VERSION,
-                    information_uri: homepage,
-                    rules,
-                },
-            },
-            original_uri_base_ids: BTreeMap::from([(
-                SRCROOT,
-                ArtifactLocation {
-                    uri: Some(root_uri(opts)),
-                    uri_base_id: None,
-                    description: None,
-                },
-            )]),
-            column_kind: "unicodeCodePoints",
-            invocations: vec![Invocation {
-                execution_successful: files.iter().all(|f| f.fatal.is_none()),
-            }],
-            results: Results {
-                files,
-                artifacts,
-                index,
-            },
-        }],
-    };
-    super::json::write_safe_pretty(&log, out)
+    let mut w = PrettyOut::new(out);
+    w.open_object();
+    w.key("$schema").str(SCHEMA_URI);
+    w.key("version").str("2.1.0");
+    w.key("runs").open_array();
+    w.item().open_object();
+    w.key("tool").serde(&Tool {
+        driver: Driver {
+            name: TOOL_NAME,
+            version: TOOL_VERSION,
+            semantic_version: TOOL_VERSION,
+            information_uri: homepage,
+            rules,
+        },
+    })?;
+    w.key("originalUriBaseIds").serde(&BTreeMap::from([(
+        SRCROOT,
+        ArtifactLocation {
+            uri: Some(root_uri(opts)),
+            uri_base_id: None,
+            description: None,
+        },
+    )]))?;
+    w.key("columnKind").str("unicodeCodePoints");
+    w.key("invocations").serde(&[Invocation {
+        execution_successful: files.iter().all(|f| f.fatal.is_none()),
+    }])?;
+    w.key("results").open_array();
+    for (f, arts) in files.iter().zip(&artifacts) {
+        let src = f.source.as_ref();
+        // a schematic's findings point into the sheet file where the item is drawn
+        let art_of = |d: &Diag| {
+            let sheet = primary_label(d).and_then(|l| src?.part_index_at(l.span.start as usize));
+            &arts[sheet.map_or(0, |i| i + 1)]
+        };
+        // findings of one part come together: their lines are looked up near each other
+        let mut lines = src.map(SourceFile::cursor);
+        let fatal = f
+            .fatal
+            .as_ref()
+            .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
+        for (d, fp) in fatal
+            .into_iter()
+            .chain(f.diags.iter().zip(fingerprint_hashes(f)))
+        {
+            w.item();
+            write_result(&mut w, d, lines.as_mut(), art_of(d), &index, fp);
+            w.flush_some()?;
+        }
+    }
+    w.close_array();
+    w.close_object();
+    w.close_array();
+    w.close_object();
+    w.finish()
 }
 
 #[cfg(test)]

@@ -204,7 +204,7 @@ pub fn read_files(root: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
             let src = SourceFile::from_string(names[i].as_str(), text);
             let mut d = d;
             if i > 0 {
-                d.message = format!("sheet `{}`: {}", names[i], d.message);
+                d.message = format!("sheet `{}`: {}", names[i], d.message).into();
             }
             return Err(Box::new(Failed {
                 diag: d,
@@ -271,7 +271,7 @@ pub fn read_files(root: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
         };
         let src = SourceFile::from_string(parent.as_str(), text);
         let d = Diag {
-            message: format!("{} (named by sheet `{parent}`)", d.message),
+            message: format!("{} (named by sheet `{parent}`)", d.message).into(),
             ..d
         }
         .at(span, "this sheet symbol's file")
