@@ -389,16 +389,105 @@ fn shift(mut d: Diag, by: u32) -> Diag {
 /// properties (cheap enough to run over every sheet in a folder).
 pub fn named_sheets(text: &str) -> Vec<String> {
     let mut out = Vec::new();
-    for key in ["(property \"Sheetfile\" \"", "(property \"Sheet file\" \""] {
-        let mut rest = text;
-        while let Some(p) = rest.find(key) {
-            rest = &rest[p + key.len()..];
-            if let Some(end) = rest.find('"') {
-                out.push(sexpr::unescape(&rest[..end]).into_owned());
-            }
+    let names = SheetNames::new();
+    names.scan(text.as_bytes(), true, &mut out);
+    out
+}
+
+/// The scan of [`named_sheets`] over a text given in blocks: a file's text is looked at a
+/// block at a time and never held whole (a folder's other sheets can be far larger than the
+/// sheet being looked for).
+struct SheetNames {
+    key: memchr::memmem::Finder<'static>,
+}
+
+/// What follows `(property "Sheet` in the two spellings of the property.
+const SHEET_FILE_TAILS: [&[u8]; 2] = [b"file\" \"", b" file\" \""];
+
+impl SheetNames {
+    fn new() -> SheetNames {
+        SheetNames {
+            key: memchr::memmem::Finder::new(b"(property \"Sheet"),
         }
     }
-    out
+
+    /// Pushes the names found in `bytes` onto `out` and returns how many leading bytes are
+    /// done with: the rest may hold a property cut off by the block's end and is to be
+    /// looked at again with the next block in front of it. With `last` (the text ends
+    /// here), everything is done with. A name whose bytes are not UTF-8 is `None`.
+    fn scan(&self, bytes: &[u8], last: bool, out: &mut Vec<String>) -> usize {
+        let key = self.key.needle().len();
+        let mut from = 0;
+        while let Some(p) = self.key.find(&bytes[from..]).map(|p| p + from) {
+            let after = p + key;
+            let rest = &bytes[after..];
+            let tail = SHEET_FILE_TAILS.iter().find(|t| rest.starts_with(t));
+            let Some(tail) = tail else {
+                // cut off by the block's end: it may still be one of the two
+                if !last && SHEET_FILE_TAILS.iter().any(|t| t.starts_with(rest)) {
+                    return p;
+                }
+                from = after;
+                continue;
+            };
+            let start = after + tail.len();
+            match memchr::memchr(b'"', &bytes[start..]) {
+                Some(len) => {
+                    if let Ok(name) = std::str::from_utf8(&bytes[start..start + len]) {
+                        out.push(sexpr::unescape(name).into_owned());
+                    }
+                }
+                None if !last => return p,
+                None => {}
+            }
+            from = after;
+        }
+        if last {
+            bytes.len()
+        } else {
+            // the start of a property cut off by the block's end is kept
+            bytes.len().saturating_sub(key - 1).max(from)
+        }
+    }
+
+    /// [`named_sheets`] of the file at `path`, read a block at a time; `None` when it cannot
+    /// be read or is not UTF-8 text.
+    fn in_file(&self, path: &Path) -> Option<Vec<String>> {
+        const BLOCK: usize = 1 << 16;
+        self.in_reader(std::fs::File::open(path).ok()?, BLOCK)
+    }
+
+    fn in_reader(&self, mut r: impl std::io::Read, block: usize) -> Option<Vec<String>> {
+        let mut out = Vec::new();
+        let mut buf: Vec<u8> = Vec::with_capacity(2 * block);
+        // bytes at the start of `buf` known to be UTF-8
+        let mut valid = 0;
+        loop {
+            let len = buf.len();
+            buf.resize(len + block, 0);
+            let n = loop {
+                match r.read(&mut buf[len..]) {
+                    Ok(n) => break n,
+                    Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+                    Err(_) => return None,
+                }
+            };
+            buf.truncate(len + n);
+            let last = n == 0;
+            match std::str::from_utf8(&buf[valid..]) {
+                Ok(_) => valid = buf.len(),
+                // a character cut off by the block's end
+                Err(e) if e.error_len().is_none() && !last => valid += e.valid_up_to(),
+                Err(_) => return None,
+            }
+            let done = self.scan(&buf[..valid], last, &mut out);
+            if last {
+                return Some(out);
+            }
+            buf.drain(..done);
+            valid -= done;
+        }
+    }
 }
 
 /// How many folders above a sheet its root sheet may be (sheets in sub-folders of the
@@ -434,13 +523,14 @@ fn folder_index(dir: &Path) -> FolderIndex {
         .collect();
     names.sort();
     let mut ix = FolderIndex::default();
+    let scan = SheetNames::new();
     for n in names {
-        let Ok(text) = std::fs::read_to_string(&n) else {
+        let Some(named) = scan.in_file(&n) else {
             continue;
         };
         let own = n.canonicalize().ok();
         let parent = dir.join(n.file_name().unwrap_or_default());
-        for child in named_sheets(&text) {
+        for child in named {
             let child = listing.join(child.replace('\\', "/"));
             if let Ok(c) = child.canonicalize() {
                 if Some(&c) != own.as_ref() {
@@ -504,4 +594,65 @@ pub fn single(name: &str, text: String) -> Result<Files, Box<Failed>> {
         source: SourceFile::from_files(name, vec![(name.to_string(), text)]),
         names: vec![name.to_string()],
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The names as a search of the whole text for each spelling finds them.
+    fn whole(text: &str) -> Vec<String> {
+        let mut out = Vec::new();
+        for key in ["(property \"Sheetfile\" \"", "(property \"Sheet file\" \""] {
+            let mut rest = text;
+            while let Some(p) = rest.find(key) {
+                rest = &rest[p + key.len()..];
+                if let Some(end) = rest.find('"') {
+                    out.push(sexpr::unescape(&rest[..end]).into_owned());
+                }
+            }
+        }
+        out.sort();
+        out
+    }
+
+    /// Read in blocks of every size from 1 byte up, a text names the same sheets as when it
+    /// is searched whole: properties and characters cut by a block's end are joined again.
+    #[test]
+    fn block_reading_finds_the_names_of_a_whole_reading() {
+        let text = "(kicad_sch (sheet (property \"Sheetname\" \"a\")\n  (property \"Sheetfile\" \"sub/ä.kicad_sch\"))\n\
+                    (sheet (property \"Sheet file\" \"old.kicad_sch\") (property \"Sheet\" \"x\"))\n\
+                    (property \"Sheetfile\" \"esc\\\"aped.kicad_sch\") (property \"Sheetfile\" \"é\")\n\
+                    (property \"Sheetfile\" \"cut";
+        let want = whole(text);
+        assert_eq!(want.len(), 4, "{want:?}");
+        let scan = SheetNames::new();
+        for block in 1..=text.len() + 1 {
+            let mut got = scan.in_reader(text.as_bytes(), block).unwrap();
+            got.sort();
+            assert_eq!(got, want, "blocks of {block} bytes");
+        }
+        let mut got = named_sheets(text);
+        got.sort();
+        assert_eq!(got, want);
+    }
+
+    /// A file that is not UTF-8 names nothing (as one that cannot be read as text), wherever
+    /// the bad byte falls.
+    #[test]
+    fn block_reading_refuses_text_that_is_not_utf8() {
+        let mut bytes = b"(property \"Sheetfile\" \"a.kicad_sch\") ".to_vec();
+        bytes.push(0xff);
+        bytes.extend_from_slice(b" (property \"Sheetfile\" \"b.kicad_sch\")");
+        let scan = SheetNames::new();
+        for block in 1..=bytes.len() {
+            assert_eq!(scan.in_reader(&bytes[..], block), None, "blocks of {block}");
+        }
+        // a character cut off at the very end
+        assert_eq!(scan.in_reader("x é".as_bytes().split_last().unwrap().1, 2), None);
+        assert_eq!(
+            scan.in_reader(&b"(property \"Sheetfile\" \"a\")"[..], 3),
+            Some(vec!["a".to_string()])
+        );
+    }
 }
