@@ -149,7 +149,9 @@ pub fn open_schematic(
     // a sheet stands for its project: read from the project's root sheet
     let root = crate::schematic::load::project_root(std::path::Path::new(path));
     let root = root.to_str().unwrap_or(path);
-    crate::schematic::open(root, max_bytes).map(|f| f.source)
+    // the root's text is not read a second time (nor held twice) when `path` is the root
+    let text = (root == path).then(|| loaded.into_text());
+    crate::schematic::load::read_files_from(root, text, max_bytes).map(|f| f.source)
 }
 
 /// A fatal outcome for `source` (a netlist that could not be modelled).

@@ -102,17 +102,26 @@ impl SourceFile {
     /// (the root sheet's path).
     pub fn from_files(name: impl Into<Arc<str>>, files: Vec<(String, String)>) -> SourceFile {
         let total: usize = files.iter().map(|(_, t)| t.len() + 1).sum();
-        let mut text = String::with_capacity(total);
+        let mut text = String::new();
         let mut parts = Vec::with_capacity(files.len());
         for (fname, t) in files {
             let start = text.len() as u32;
-            text.push_str(&t);
+            let len = t.len() as u32;
+            let ends = t.ends_with('\n') || t.ends_with('\r');
+            if parts.is_empty() {
+                // the first file's text is taken over, not copied; each later one is freed
+                // once copied, so the files are not held twice
+                text = t;
+                text.reserve(total - text.len());
+            } else {
+                text.push_str(&t);
+            }
             parts.push(FilePart {
                 name: fname.into(),
                 start,
-                len: t.len() as u32,
+                len,
             });
-            if !t.ends_with('\n') && !t.ends_with('\r') {
+            if !ends {
                 text.push('\n');
             }
         }
@@ -123,6 +132,11 @@ impl SourceFile {
             line_starts: Arc::default(),
             files: parts.into(),
         }
+    }
+
+    /// The text, taken out of the source without a copy when no other handle shares it.
+    pub fn into_text(self) -> String {
+        Arc::try_unwrap(self.text).unwrap_or_else(|t| t.as_str().to_string())
     }
 
     /// The files of a source made of several (empty for a single file).

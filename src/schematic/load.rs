@@ -91,7 +91,7 @@ fn read_bytes(name: &str, max_bytes: u64) -> Result<Vec<u8>, Diag> {
 fn read_text(name: &str, max_bytes: u64) -> Result<String, Box<Failed>> {
     let bytes = read_bytes(name, max_bytes).map_err(Failed::bare)?;
     match input::load(name, bytes) {
-        Ok(s) => Ok(s.text().to_string()),
+        Ok(s) => Ok(s.into_text()),
         Err(e) => Err(Box::new(Failed {
             diag: e.diag,
             source: Some(e.source),
@@ -178,6 +178,16 @@ fn display(p: &Path) -> String {
 
 /// Reads the root sheet and every sheet file below it, once each.
 pub fn read_files(root: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
+    read_files_from(root, None, max_bytes)
+}
+
+/// [`read_files`], with the root sheet's text when the caller has already read it (it is
+/// not read again).
+pub fn read_files_from(
+    root: &str,
+    mut root_text: Option<String>,
+    max_bytes: u64,
+) -> Result<Files, Box<Failed>> {
     let root_dir = Path::new(root)
         .parent()
         .map(Path::to_path_buf)
@@ -190,7 +200,11 @@ pub fn read_files(root: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
     let mut missing: Option<(String, usize, Span, Diag)> = None;
     let mut i = 0;
     while i < names.len() {
-        let text = match read_text(&names[i], max_bytes) {
+        let read = match root_text.take() {
+            Some(t) if i == 0 => Ok(t),
+            _ => read_text(&names[i], max_bytes),
+        };
+        let text = match read {
             Ok(t) => t,
             Err(f) if i == 0 => return Err(f),
             Err(f) => {

@@ -75,27 +75,70 @@ struct Placement<'p, 'a> {
     listed: bool,
 }
 
+/// Joins texts into one string (the many short names of a project, without the
+/// formatting machinery).
+fn cat(parts: &[&str]) -> String {
+    let mut s = String::with_capacity(parts.iter().map(|p| p.len()).sum());
+    for p in parts {
+        s.push_str(p);
+    }
+    s
+}
+
+/// The paths a use of a sheet is known by in instance data, made once per use.
+struct UsePaths {
+    /// `/uuid/uuid` of the sheet symbols from the root down (empty for the root).
+    chain: String,
+    /// The chain after the root sheet's uuid (KiCad 7 and later).
+    full: String,
+}
+
+impl UsePaths {
+    fn of(root: &sheet::Sheet<'_>, u: &load::Use) -> UsePaths {
+        let mut chain = String::new();
+        for x in &u.uuids {
+            chain.push('/');
+            chain.push_str(x);
+        }
+        let full = cat(&["/", &root.uuid, &chain]);
+        UsePaths { chain, full }
+    }
+}
+
+/// The KiCad 6 instances of the root sheet's list, by path (`/sheet uuids/symbol uuid`): the
+/// first of each path, as a search of the list in order finds it.
+fn v6_index<'s>(root: &'s sheet::Sheet<'_>) -> HashMap<&'s str, usize> {
+    let mut ix: HashMap<&str, usize> = HashMap::default();
+    ix.reserve(root.symbol_instances.len());
+    for (i, inst) in root.symbol_instances.iter().enumerate() {
+        ix.entry(inst.path.as_ref()).or_insert(i);
+    }
+    ix
+}
+
 /// The instance data of `placed` in `use_`: its reference, unit, value and footprint.
 fn instance<'p, 'a>(
     project: &'p Project<'a>,
-    u: &load::Use,
+    v6: &HashMap<&str, usize>,
+    paths: &UsePaths,
     placed: &'p Placed<'a>,
 ) -> Option<&'p sheet::Instance<'a>> {
     let root = &project.sheets[0];
-    let chain: String = u.uuids.iter().map(|x| format!("/{x}")).collect();
+    let chain = paths.chain.as_str();
     // KiCad 7 and later: in the symbol, by the path of sheets from the root's uuid
-    let full = format!("/{}{}", root.uuid, chain);
-    if let Some(i) = placed.instances.iter().find(|i| i.path == full) {
+    if let Some(i) = placed.instances.iter().find(|i| i.path == paths.full) {
         return Some(i);
     }
     // KiCad 6: in the root's list, by the sheet path and the symbol's uuid
-    let v6 = format!("{chain}/{}", placed.uuid);
-    if let Some(i) = root.symbol_instances.iter().find(|i| i.path == v6) {
-        return Some(i);
+    if !v6.is_empty() {
+        let v6_path = cat(&[chain, "/", &placed.uuid]);
+        if let Some(&i) = v6.get(v6_path.as_str()) {
+            return Some(&root.symbol_instances[i]);
+        }
     }
     // another project's root: the same sheets below it
     if !chain.is_empty() {
-        if let Some(i) = placed.instances.iter().find(|i| i.path.ends_with(&chain)) {
+        if let Some(i) = placed.instances.iter().find(|i| i.path.ends_with(chain)) {
             return Some(i);
         }
     } else if placed.instances.len() == 1 {
@@ -116,25 +159,25 @@ fn pin_net_name(
     } else {
         "Net-("
     };
-    let shown = if pin.name == "~" { "" } else { &pin.name };
+    let shown: &str = if pin.name == "~" { "" } else { &pin.name };
     if !modern {
-        return format!("{head}{}-Pad{})", pl.reference, pin.num);
+        return cat(&[head, &pl.reference, "-Pad", &pin.num, ")"]);
     }
     if !shown.is_empty() && shown != pin.num {
-        let reference = if pl.lib.unit_count > 1 {
-            format!("{}{}", pl.reference, symbol::unit_letters(pl.unit))
+        let letters = if pl.lib.unit_count > 1 {
+            symbol::unit_letters(pl.unit)
         } else {
-            pl.reference.to_string()
+            String::new()
         };
         let has_multiple = symbol::unit_pins(pl.lib, pl.unit, pl.placed.style)
             .any(|p| p.name == pin.name && p.num != pin.num);
         if unconnected || has_multiple {
-            format!("{head}{reference}-{shown}-Pad{})", pin.num)
+            cat(&[head, &pl.reference, &letters, "-", shown, "-Pad", &pin.num, ")"])
         } else {
-            format!("{head}{reference}-{shown})")
+            cat(&[head, &pl.reference, &letters, "-", shown, ")"])
         }
     } else {
-        format!("{head}{}-Pad{})", pl.reference, pin.num)
+        cat(&[head, &pl.reference, "-Pad", &pin.num, ")"])
     }
 }
 
@@ -171,8 +214,10 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
     let mut pins_of: Vec<Vec<(usize, usize)>> = Vec::new(); // (placement, libpin) per placed pin
     let mut pieces: Vec<Vec<connect::Piece>> = Vec::new();
+    let v6 = v6_index(&project.sheets[0]);
     for u in &project.uses {
         let sh = &project.sheets[u.file];
+        let paths = UsePaths::of(&project.sheets[0], u);
         let mut pls = Vec::with_capacity(sh.symbols.len());
         let mut at: Vec<PinAt> = Vec::new();
         let mut which: Vec<(usize, usize)> = Vec::new();
@@ -188,7 +233,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .at(placed.lib_key_span, "no library symbol with this name in the file")
                 .with_help("open the sheet in KiCad and save it, or update the symbol from its library, so the file carries the symbol it uses"));
             };
-            let inst = instance(&project, u, placed);
+            let inst = instance(&project, &v6, &paths, placed);
             // a KiCad 6 instance lives in the root sheet: point at the symbol's own property
             // in the sheet where it is drawn (for the reference, even when that sheet's text
             // is another use's reference or `R?`)
@@ -317,6 +362,18 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
     // sheet pins with the child's hierarchical labels; bus members through bus pins
+    // the pieces (in order) each (use, sheet symbol, sheet pin) is on, found once
+    let mut on_sheet_pin: HashMap<(usize, usize, usize), Vec<usize>> = HashMap::default();
+    for (ui, ps) in pieces.iter().enumerate() {
+        for (i, p) in ps.iter().enumerate() {
+            for &(si, k) in &p.sheet_pins {
+                let e = on_sheet_pin.entry((ui, si, k)).or_default();
+                if e.last() != Some(&(first[ui] + i)) {
+                    e.push(first[ui] + i);
+                }
+            }
+        }
+    }
     for (ci, u) in project.uses.iter().enumerate() {
         let Some((pu, si)) = u.parent else { continue };
         let parent_sheet = &project.sheets[project.uses[pu].file];
@@ -326,12 +383,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             if bus::is_bus(&spin.text) {
                 continue;
             }
-            let parents: Vec<usize> = pieces[pu]
-                .iter()
-                .enumerate()
-                .filter(|(_, p)| p.sheet_pins.contains(&(si, k)))
-                .map(|(i, _)| first[pu] + i)
-                .collect();
+            let parents: &[usize] = on_sheet_pin.get(&(pu, si, k)).map_or(&[], |v| v);
             for (i, p) in pieces[ci].iter().enumerate() {
                 if p.is_bus {
                     continue;
@@ -341,7 +393,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     lab.kind == LabelKind::Hier && lab.text == spin.text
                 });
                 if hit {
-                    for &pp in &parents {
+                    for &pp in parents {
                         dsu.union(pp, first[ci] + i);
                     }
                 }
@@ -520,8 +572,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 let lab = &sh.labels[l];
                 let (strength, name) = match lab.kind {
                     LabelKind::Global => (Strength::Global, lab.text.to_string()),
-                    LabelKind::Local => (Strength::LocalLabel, format!("{}{}", u.path, lab.text)),
-                    LabelKind::Hier => (Strength::HierLabel, format!("{}{}", u.path, lab.text)),
+                    LabelKind::Local => (Strength::LocalLabel, cat(&[&u.path, &lab.text])),
+                    LabelKind::Hier => (Strength::HierLabel, cat(&[&u.path, &lab.text])),
                 };
                 pool.push(Candidate {
                     strength,
@@ -534,7 +586,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 let t = &sh.sheets[s].pins[k].text;
                 pool.push(Candidate {
                     strength: Strength::SheetPin,
-                    name: format!("{}{}", u.path, t),
+                    name: cat(&[&u.path, t]),
                     power_symbol: false,
                     output: false,
                 });
@@ -546,7 +598,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 let pname = &power_names[ui][k];
                 if !pname.is_empty() {
                     let name = if pl.lib.power == Power::Local {
-                        format!("{}{}", u.path, pname)
+                        cat(&[&u.path, pname])
                     } else {
                         pname.clone()
                     };
@@ -601,15 +653,19 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let Some(name) = names::chain(&ch).map(|c| c.name.clone()) else {
             continue;
         };
-        let idx = *net_of_name.entry(name.clone()).or_insert_with(|| {
-            nets.push(Net {
-                code: None,
-                name: txt(name.clone(), Span::default()),
-                nodes: Vec::new(),
-                span: Span::default(),
-            });
-            nets.len() - 1
-        });
+        let idx = match net_of_name.get(&name) {
+            Some(&i) => i,
+            None => {
+                net_of_name.insert(name.clone(), nets.len());
+                nets.push(Net {
+                    code: None,
+                    name: txt(name, Span::default()),
+                    nodes: Vec::new(),
+                    span: Span::default(),
+                });
+                nets.len() - 1
+            }
+        };
         for &(ui, k, nc) in &nodes_of[&g] {
             let (s, lpi) = pins_of[ui][k];
             let pl = &placements[ui][s];
@@ -638,11 +694,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
-    let fname = |n: &Node<'_>| n.pinfunction.as_ref().map(|f| f.to_string());
+    fn key<'n>(n: &'n Node<'_>) -> (&'n str, &'n str, Option<&'n str>) {
+        (&n.reference.s, &n.pin, n.pinfunction.as_deref())
+    }
     for n in &mut nets {
-        n.nodes.sort_by(|a, b| {
-            (&a.reference.s, &a.pin, fname(a)).cmp(&(&b.reference.s, &b.pin, fname(b)))
-        });
+        n.nodes.sort_by(|a, b| key(a).cmp(&key(b)));
         n.nodes
             .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin == b.pin);
     }
@@ -682,7 +738,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             .then_with(|| natural_cmp(&a.1, &b.1))
     });
     let mut components: Vec<Component<'_>> = Vec::new();
-    let mut comp_of: HashMap<String, ()> = HashMap::default();
+    let mut comp_of: rustc_hash::FxHashSet<&str> = rustc_hash::FxHashSet::default();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
     for &(ui, _) in &order {
@@ -690,7 +746,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let mut pls: Vec<&Placement<'_, '_>> = placements[ui].iter().collect();
         pls.sort_by(|a, b| natural_cmp(&a.reference, &b.reference));
         for pl in pls {
-            if !pl.listed || comp_of.insert(pl.reference.to_string(), ()).is_some() {
+            if !pl.listed || !comp_of.insert(&pl.reference) {
                 continue;
             }
             let placed = pl.placed;
@@ -807,7 +863,13 @@ pub fn load(path: &str, max_bytes: u64) -> Result<Files, Box<Failed>> {
 pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
     use std::cmp::Ordering;
     let (a, b) = (a.as_bytes(), b.as_bytes());
-    let (mut i, mut j) = (0, 0);
+    // equal bytes compare equal however they are read: start at the first difference, or at
+    // the start of the run of digits it falls in (names of one project share long prefixes)
+    let mut same = a.iter().zip(b).take_while(|(x, y)| x == y).count();
+    while same > 0 && a[same - 1].is_ascii_digit() {
+        same -= 1;
+    }
+    let (mut i, mut j) = (same, same);
     while i < a.len() && j < b.len() {
         if a[i].is_ascii_digit() && b[j].is_ascii_digit() {
             let si = i;
@@ -842,4 +904,90 @@ pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
 /// Where a span of a project points: the sheet file's name.
 pub fn file_of(source: &SourceFile, span: Span) -> &str {
     source.file_at(span.start as usize)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::cmp::Ordering;
+
+    /// The comparison read token by token from the first byte (runs of digits by value).
+    fn from_the_start(a: &str, b: &str) -> Ordering {
+        let (a, b) = (a.as_bytes(), b.as_bytes());
+        let (mut i, mut j) = (0, 0);
+        while i < a.len() && j < b.len() {
+            if a[i].is_ascii_digit() && b[j].is_ascii_digit() {
+                let (si, sj) = (i, j);
+                while i < a.len() && a[i].is_ascii_digit() {
+                    i += 1;
+                }
+                while j < b.len() && b[j].is_ascii_digit() {
+                    j += 1;
+                }
+                let da = std::str::from_utf8(&a[si..i]).unwrap().trim_start_matches('0');
+                let db = std::str::from_utf8(&b[sj..j]).unwrap().trim_start_matches('0');
+                let o = da.len().cmp(&db.len()).then_with(|| da.cmp(db));
+                if o != Ordering::Equal {
+                    return o;
+                }
+            } else {
+                if a[i] != b[j] {
+                    return a[i].cmp(&b[j]);
+                }
+                i += 1;
+                j += 1;
+            }
+        }
+        (a.len() - i).cmp(&(b.len() - j))
+    }
+
+    /// Starting at the first difference (or its run of digits) orders every pair of names
+    /// as reading from the start does: names built from digits, zeros, letters and `/`,
+    /// with shared prefixes that end inside and after runs of digits.
+    #[test]
+    fn natural_order_from_the_first_difference_is_the_same() {
+        let atoms = ["", "0", "1", "9", "10", "09", "00", "a", "/", "R", "-Pad", "2"];
+        let mut names: Vec<String> = Vec::new();
+        for x in atoms {
+            for y in atoms {
+                for z in atoms {
+                    names.push(format!("/s{x}{y}/R{z}"));
+                    names.push(format!("{x}{y}{z}"));
+                }
+            }
+        }
+        let mut seen = 0;
+        for a in &names {
+            for b in names.iter().step_by(7) {
+                assert_eq!(natural_cmp(a, b), from_the_start(a, b), "{a:?} {b:?}");
+                seen += 1;
+            }
+        }
+        assert!(seen > 100_000);
+        assert_eq!(natural_cmp("/cells_12/R9", "/cells_12/R10"), Ordering::Less);
+        assert_eq!(natural_cmp("N10", "N010"), Ordering::Equal);
+        assert_eq!(natural_cmp("N199", "N20"), Ordering::Greater);
+    }
+
+    /// A KiCad 6 path listed twice in the root's instances is found at its first entry.
+    #[test]
+    fn kicad6_instances_by_path_take_the_first() {
+        let inst = |path: &'static str, r: &'static str| sheet::Instance {
+            path: path.into(),
+            reference: r.into(),
+            reference_span: Span::default(),
+            unit: None,
+            value: None,
+            footprint: None,
+        };
+        let root = sheet::Sheet {
+            symbol_instances: vec![inst("/a/x", "R1"), inst("/b/x", "R2"), inst("/a/x", "R3")],
+            ..Default::default()
+        };
+        let ix = v6_index(&root);
+        assert_eq!(root.symbol_instances[ix["/a/x"]].reference, "R1");
+        assert_eq!(root.symbol_instances[ix["/b/x"]].reference, "R2");
+        assert_eq!(ix.len(), 2);
+        assert_eq!(cat(&["/", "top", "/"]), "/top/");
+    }
 }
