@@ -472,21 +472,14 @@ impl SheetNames {
     }
 
     fn in_reader(&self, mut r: impl std::io::Read, block: usize) -> Option<Vec<String>> {
+        use std::io::Read;
         let mut out = Vec::new();
         let mut buf: Vec<u8> = Vec::with_capacity(2 * block);
         // bytes at the start of `buf` known to be UTF-8
         let mut valid = 0;
         loop {
-            let len = buf.len();
-            buf.resize(len + block, 0);
-            let n = loop {
-                match r.read(&mut buf[len..]) {
-                    Ok(n) => break n,
-                    Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
-                    Err(_) => return None,
-                }
-            };
-            buf.truncate(len + n);
+            // appended without zeroing the block first
+            let n = (&mut r).take(block as u64).read_to_end(&mut buf).ok()?;
             let last = n == 0;
             match std::str::from_utf8(&buf[valid..]) {
                 Ok(_) => valid = buf.len(),

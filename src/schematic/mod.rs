@@ -181,6 +181,14 @@ fn pin_net_name(
     }
 }
 
+/// The candidate names of a piece group in one use: pins (placed pin, no-connect) apart,
+/// named only when nothing stronger names the group.
+#[derive(Default)]
+struct Pool {
+    cands: Vec<Candidate>,
+    pins: Vec<(usize, bool)>,
+}
+
 /// The first KiCad 7 file version: automatic names carry pin names from it on.
 const KICAD7: u32 = 20_220_000;
 /// The file version of KiCad 7 releases: later versions name power nets by the symbol's
@@ -545,7 +553,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     }
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
-    let mut pools: HashMap<(usize, usize), Vec<Candidate>> = HashMap::default();
+    let mut pools: HashMap<(usize, usize), Pool> = HashMap::default();
     let mut nodes_of: HashMap<usize, Vec<(usize, usize, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
     let mut group_order: Vec<usize> = Vec::new();
     for (ui, u) in project.uses.iter().enumerate() {
@@ -561,7 +569,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .into_iter()
                 .flatten()
             {
-                pool.push(Candidate {
+                pool.cands.push(Candidate {
                     strength: Strength::Global,
                     name: m.to_string(),
                     power_symbol: false,
@@ -575,7 +583,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     LabelKind::Local => (Strength::LocalLabel, cat(&[&u.path, &lab.text])),
                     LabelKind::Hier => (Strength::HierLabel, cat(&[&u.path, &lab.text])),
                 };
-                pool.push(Candidate {
+                pool.cands.push(Candidate {
                     strength,
                     name,
                     power_symbol: false,
@@ -584,7 +592,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             for &(s, k) in &p.sheet_pins {
                 let t = &sh.sheets[s].pins[k].text;
-                pool.push(Candidate {
+                pool.cands.push(Candidate {
                     strength: Strength::SheetPin,
                     name: cat(&[&u.path, t]),
                     power_symbol: false,
@@ -602,7 +610,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     } else {
                         pname.clone()
                     };
-                    pool.push(Candidate {
+                    pool.cands.push(Candidate {
                         strength: Strength::Power,
                         name,
                         power_symbol: pl.lib.power != Power::No,
@@ -611,12 +619,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 } else if pl.listed {
                     let alone = p.pins.len() == 1 && p.labels.is_empty() && p.sheet_pins.is_empty();
                     let nc = p.no_connect || lp.ptype == PinType::NoConnect || alone;
-                    pool.push(Candidate {
-                        strength: Strength::Pin,
-                        name: pin_net_name(modern, pl, lp, nc),
-                        power_symbol: false,
-                        output: false,
-                    });
+                    pool.pins.push((k, nc));
                 }
                 if pl.listed {
                     let e = nodes_of.entry(g).or_insert_with(|| {
@@ -628,11 +631,34 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
         }
     }
-    // the name of each group with pins
+    // what only the candidates needed
+    drop((keys, global_member_of));
+    drop((pieces, power_names, dsu, on_sheet_pin));
+    // the name of each group with pins; a pin's name is made only where no stronger
+    // candidate names the piece (a pin is the weakest)
     let mut by_group: HashMap<usize, Vec<(usize, Candidate)>> = HashMap::default();
     for ((g, ui), pool) in pools {
-        if let Some(b) = names::best(&pool) {
-            by_group.entry(g).or_default().push((ui, b.clone()));
+        let best = if pool.cands.is_empty() {
+            let named: Vec<Candidate> = pool
+                .pins
+                .iter()
+                .map(|&(k, nc)| {
+                    let (s, lpi) = pins_of[ui][k];
+                    let pl = &placements[ui][s];
+                    Candidate {
+                        strength: Strength::Pin,
+                        name: pin_net_name(modern, pl, &pl.lib.pins[lpi], nc),
+                        power_symbol: false,
+                        output: false,
+                    }
+                })
+                .collect();
+            names::best(&named).cloned()
+        } else {
+            names::best(&pool.cands).cloned()
+        };
+        if let Some(b) = best {
+            by_group.entry(g).or_default().push((ui, b));
         }
     }
     let mut net_of_name: HashMap<String, usize> = HashMap::default();
@@ -688,6 +714,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             });
         }
     }
+
+    drop((by_group, nodes_of, net_of_name, pins_of));
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
