@@ -683,7 +683,8 @@ fn gather_interface(
         let d = &nm.drivers[db.driver];
         let s = cx.supplies[d.at.comp].as_ref();
         let mut loads: Vec<LoadGroup> = Vec::new();
-        for m in b.margins.iter().filter(|m| m.driver == db.driver) {
+        for m in b.margins(cx, net).filter(|m| m.driver == db.driver) {
+            let m = &m;
             let l = &nm.loads[m.load];
             let family = l.family.as_deref().unwrap_or("unknown").to_string();
             let vcc = l.levels.as_ref().map(|lv| lv.vcc);
@@ -723,7 +724,7 @@ fn gather_interface(
                 .map(|s| s.vcc)
                 .or_else(|| d.levels.as_ref().map(|l| l.vcc)),
             supply_known: s.is_some_and(|s| s.known),
-            low_level: db.low_level,
+            low_level: db.low_level(),
             high_level: db.high_level,
             low: db.low.as_ref().map(Usage::of),
             high: db.high.as_ref().map(Usage::of),

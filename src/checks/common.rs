@@ -83,10 +83,10 @@ pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> O
             let nm = &cx.nets[net];
             if nm.has_source() {
                 None
-            } else if nm.floats_open.is_empty() {
+            } else if nm.floats_open().is_empty() {
                 Some(Float::Undriven(net))
             } else {
-                Some(Float::SwitchOpen(net, nm.floats_open.to_vec()))
+                Some(Float::SwitchOpen(net, nm.floats_open().to_vec()))
             }
         }
         _ => None,
