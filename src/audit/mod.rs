@@ -609,7 +609,7 @@ fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {
             .supplies
             .iter()
             .flatten()
-            .filter(|s| s.supply_net == Some(i) || s.ground_net == Some(i))
+            .filter(|s| s.supply_net() == Some(i) || s.ground_net() == Some(i))
             .count();
         rows.push(SupplyRow {
             net: cx.net_name(i),
@@ -701,7 +701,7 @@ fn gather_interface(
                     g.pins.push(cx.pin_name(l.at));
                     g.high_margin = worst(g.high_margin, m.high_margin);
                     g.low_margin = worst(g.low_margin, m.low_margin);
-                    g.input_limit = worst(g.input_limit, l.input_limit);
+                    g.input_limit = worst(g.input_limit, cx.input_limit(l));
                 }
                 None => loads.push(LoadGroup {
                     family,
@@ -711,7 +711,7 @@ fn gather_interface(
                     vil: m.vil,
                     high_margin: m.high_margin,
                     low_margin: m.low_margin,
-                    input_limit: l.input_limit,
+                    input_limit: cx.input_limit(l),
                 }),
             }
         }

@@ -314,7 +314,7 @@ fn numbered_list<'p>(pins: impl ExactSizeIterator<Item = (&'p str, Option<&'p st
 pub fn supply_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
     ctx.cx.supplies[comp]
         .as_ref()
-        .and_then(|s| s.supply_net.filter(|_| s.known))
+        .and_then(|s| s.supply_net().filter(|_| s.known))
 }
 
 /// The positive rail a part's supply pin sits on, by name, for fix messages.
@@ -329,7 +329,7 @@ pub fn ground_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
     let cx = ctx.cx;
     cx.supplies[comp]
         .as_ref()
-        .and_then(|s| s.ground_net)
+        .and_then(|s| s.ground_net())
         .filter(|&n| cx.nets[n].rail.is_some())
 }
 

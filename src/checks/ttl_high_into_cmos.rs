@@ -115,7 +115,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     };
                     if rmin < rmax {
                         let rail = s
-                            .supply_net
+                            .supply_net()
                             .filter(|_| s.known)
                             .map(|n| cx.net_name(n))
                             .unwrap_or_else(|| format_volts(v));

@@ -881,7 +881,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             .or_else(|| {
                 // no pull-up: use the drivers' supply for the window the fix needs
                 let s = cx.supplies[nm.drivers[oc[0]].at.comp].as_ref()?;
-                Some((s.supply_net?, s.vcc))
+                Some((s.supply_net()?, s.vcc))
             });
         if let Some((rail_net, v)) = rail {
             let weakest = *oc

@@ -115,9 +115,22 @@ pub struct PartSupply {
     pub vcc: f64,
     /// True when `vcc` comes from a rail; false when it is the family's nominal supply.
     pub known: bool,
-    /// The net of the (first connected) supply pin, and its name.
-    pub supply_net: Option<usize>,
-    pub ground_net: Option<usize>,
+    /// The net of the (first connected) supply pin and of the ground pin ([`Self::supply_net`],
+    /// [`Self::ground_net`]), held as `u32`s: a board has one per part.
+    supply_net: Option<u32>,
+    ground_net: Option<u32>,
+}
+
+impl PartSupply {
+    /// The net of the (first connected) supply pin.
+    pub fn supply_net(&self) -> Option<usize> {
+        self.supply_net.map(|n| n as usize)
+    }
+
+    /// The net of the (first connected) ground pin.
+    pub fn ground_net(&self) -> Option<usize> {
+        self.ground_net.map(|n| n as usize)
+    }
 }
 
 /// A part's family id as a driver or load holds it: one shared copy per family behind a
@@ -167,8 +180,6 @@ pub struct Load {
     pub levels: Option<Arc<Levels>>,
     /// The part's family id, one shared copy per family.
     pub family: Option<FamilyId>,
-    /// The highest voltage this input takes at its supply.
-    pub input_limit: Option<f64>,
     /// True for TTL (bipolar) inputs that source current when low.
     pub ttl: bool,
     /// How many of its family's input currents this input draws, low and high: (1, 1) for
@@ -545,6 +556,15 @@ impl<'n, 'a> Circuit<'n, 'a> {
         self.roles[p.comp][p.pin]
     }
 
+    /// The highest voltage input `l` takes at its part's supply (its family's limit there);
+    /// `None` for an input of no known family or supply.
+    pub fn input_limit(&self, l: &Load) -> Option<f64> {
+        let vcc = self.supplies[l.at.comp].as_ref().map(|s| s.vcc);
+        self.family(l.at.comp)
+            .zip(vcc)
+            .map(|(f, v)| f.input_limit_v(v))
+    }
+
     /// `U4.6`
     pub fn pin_name(&self, p: PinRef) -> String {
         let c = &self.nl.components[p.comp];
@@ -620,11 +640,11 @@ impl<'n, 'a> Circuit<'n, 'a> {
     pub fn supply_text(&self, comp: usize) -> String {
         match &self.supplies[comp] {
             Some(s) if s.known => {
-                let net = s.supply_net.map(|n| self.net_name(n)).unwrap_or_default();
+                let net = s.supply_net().map(|n| self.net_name(n)).unwrap_or_default();
                 format!("{net} ({})", values::format_volts(s.vcc))
             }
             Some(s) => {
-                let why = match s.supply_net {
+                let why = match s.supply_net() {
                     Some(n) if self.nets[n].rail.is_some() => format!(
                         "the voltage of {} is not known: declare it with --rail",
                         self.net_name(n)
@@ -799,12 +819,13 @@ pub fn build<'n, 'a>(
                 continue;
             };
             match part.roles[pi] {
-                PinRole::Supply if supply_net.is_none() => supply_net = Some(net),
-                PinRole::Ground if ground_net.is_none() => ground_net = Some(net),
+                PinRole::Supply if supply_net.is_none() => supply_net = Some(small(net)),
+                PinRole::Ground if ground_net.is_none() => ground_net = Some(small(net)),
                 _ => {}
             }
         }
         let railv = supply_net
+            .map(|n: u32| n as usize)
             .and_then(|n| rail[n])
             .and_then(|r| r.v())
             .filter(|v| *v > 0.0);
@@ -920,11 +941,9 @@ pub fn build<'n, 'a>(
             let slot = pin_slot(part.kind, pull_part, role);
             let mut lv = || part_levels.get_or_insert_with(|| levels(ci)).clone();
             let load = |lv: Option<Arc<Levels>>| {
-                let vcc = supplies[ci].as_ref().map(|s| s.vcc);
                 Load {
                     at,
                     role,
-                    input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
                     ttl: fam.is_some_and(|f| !f.is_cmos_input()),
                     levels: lv,
                     family: family.clone(),
@@ -1797,7 +1816,9 @@ mod size_tests {
     /// what the model holds and the rare pull-up level was boxed; 160, 40 and 160, with a
     /// 72-byte margin kept per driver and load, 48-byte drivers and 80-byte loads, before the
     /// rarer lists moved into one boxed `NetExtras`, margins were worked out when asked, the
-    /// low level was read from the low state and a family id became one word).
+    /// low level was read from the low state, a family id became one word and a load's input
+    /// limit was read from its part's family and supply; a part's supply was 48 bytes while
+    /// its nets were `usize`s).
     #[test]
     fn per_net_structures_stay_small() {
         use super::budget::{Item, LoadMargin};
@@ -1812,7 +1833,13 @@ mod size_tests {
         assert!(size_of::<Item>() <= 32, "{}", size_of::<Item>());
         assert!(size_of::<LoadMargin>() <= 72, "{}", size_of::<LoadMargin>());
         assert!(size_of::<Driver>() <= 40, "{}", size_of::<Driver>());
-        assert!(size_of::<Load>() <= 72, "{}", size_of::<Load>());
+        assert!(size_of::<Load>() <= 56, "{}", size_of::<Load>());
+        // one per part
+        assert!(
+            size_of::<Option<super::PartSupply>>() <= 32,
+            "{}",
+            size_of::<Option<super::PartSupply>>()
+        );
     }
 
     /// An empty list costs one pointer and no allocation; a filled one is trimmed to its
