@@ -81,7 +81,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
             let v = nl.version.as_ref().expect("version is some");
             b.diags.borrow_mut().push(
                 Diag::info("netlist-version", format!("netlist version `{other}` is not one netmargin knows (D: KiCad 4-5, E: KiCad 6-9); reading it as version E"))
-                    .at(v.span, "version"),
+                    .at(v.span(), "version"),
             );
             Dialect::Other
         }
@@ -112,10 +112,7 @@ struct Builder<'t, 'a> {
 
 impl<'a> Builder<'_, 'a> {
     fn text(&self, id: NodeId) -> Option<Text<'a>> {
-        Some(Text {
-            s: self.t.text(id)?.into(),
-            span: self.t.span(id),
-        })
+        Some(Text::new(self.t.text(id)?.into(), self.t.span(id)))
     }
 
     /// The value of `(key VALUE)`: `None` when missing; a diagnostic when a list stands
@@ -207,10 +204,7 @@ impl<'a> Builder<'_, 'a> {
 
     fn component(&self, c: NodeId) -> Option<Component<'a>> {
         let mut comp = Component {
-            reference: Text {
-                s: Str::borrowed(""),
-                span: self.t.span(c),
-            },
+            reference: Text::empty(self.t.span(c)),
             value: None,
             footprint: None,
             datasheet: None,
@@ -285,7 +279,7 @@ impl<'a> Builder<'_, 'a> {
                 _ => {}
             }
         }
-        if !have_ref || comp.reference.s.is_empty() {
+        if !have_ref || comp.reference.as_str().is_empty() {
             self.diags.borrow_mut().push(
                 Diag::error("missing-field", "a component without a reference (`(ref ...)`) is left out")
                     .at(self.t.span(c), "this `comp` has no `ref`")
@@ -399,10 +393,7 @@ impl<'a> Builder<'_, 'a> {
     fn net(&self, c: NodeId) -> Net<'a> {
         let mut net = Net {
             code: None,
-            name: Text {
-                s: Str::borrowed(""),
-                span: self.t.span(c),
-            },
+            name: Text::empty(self.t.span(c)),
             nodes: Vec::new(),
             span: self.t.span(c),
         };
@@ -440,8 +431,8 @@ impl<'a> Builder<'_, 'a> {
                     match (reference, pin) {
                         (Some(reference), Some(pin)) => net.nodes.push(Node {
                             reference,
-                            pin: pin.s,
-                            pinfunction: pinfunction.map(|f| f.s),
+                            pin: pin.to_str(),
+                            pinfunction: pinfunction.map(|f| f.to_str()),
                             pintype,
                             no_connect,
                             span: self.t.span(n),

@@ -8,6 +8,7 @@
 //! logic families; it only reports what the file says.
 
 mod build;
+mod model_text;
 mod pintype;
 pub mod stream;
 mod ties;
@@ -16,6 +17,7 @@ use hashbrown::HashTable;
 use thin_vec::ThinVec;
 
 pub use build::build;
+pub use model_text::Text;
 pub use pintype::PinType;
 pub use stream::read;
 
@@ -27,25 +29,6 @@ use crate::source::Span;
 /// model holds a few of them for every pin and node. Its lengths are 32-bit, as `Span`'s
 /// offsets are: both readers refuse a file of 1 GiB or more, so every text fits.
 pub type Str<'a> = beef::lean::Cow<'a, str>;
-
-/// A text value from the file (unescaped) with its span.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Text<'a> {
-    pub s: Str<'a>,
-    pub span: Span,
-}
-
-impl Text<'_> {
-    pub fn as_str(&self) -> &str {
-        &self.s
-    }
-}
-
-impl std::fmt::Display for Text<'_> {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&self.s)
-    }
-}
 
 /// Which dialect the file is written in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]

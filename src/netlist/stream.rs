@@ -281,10 +281,7 @@ struct NodeAcc<'a> {
 fn empty_component<'a>() -> Component<'a> {
     let span = Span { start: 0, end: 0 };
     Component {
-        reference: Text {
-            s: Str::borrowed(""),
-            span,
-        },
+        reference: Text::empty(span),
         value: None,
         footprint: None,
         datasheet: None,
@@ -378,10 +375,7 @@ impl<'a> Reader<'a> {
             pin_type: PinType::Unknown,
             net: Net {
                 code: None,
-                name: Text {
-                    s: Str::borrowed(""),
-                    span,
-                },
+                name: Text::empty(span),
                 nodes: Vec::new(),
                 span,
             },
@@ -397,14 +391,14 @@ impl<'a> Reader<'a> {
     /// The value of an atom or a quoted string token.
     fn text_of(&self, start: usize, end: usize, tok: Tok) -> Text<'a> {
         let t = self.text;
-        let s = match tok {
-            Tok::Atom => Str::borrowed(&t[start..end]),
-            Tok::Str => Str::borrowed(&t[start + 1..end - 1]),
-            Tok::Escaped => unescape(&t[start + 1..end - 1]).into(),
-        };
-        Text {
-            s,
-            span: Span::new(start, end),
+        let span = Span::new(start, end);
+        match tok {
+            Tok::Atom => Text::borrowed(&t[start..end], span),
+            Tok::Str => Text::borrowed(&t[start + 1..end - 1], span),
+            Tok::Escaped => match unescape(&t[start + 1..end - 1]) {
+                std::borrow::Cow::Borrowed(s) => Text::borrowed(s, span),
+                std::borrow::Cow::Owned(s) => Text::owned(&s, span),
+            },
         }
     }
 
@@ -595,10 +589,7 @@ impl<'a> Reader<'a> {
             (Role::Nets, "net") => {
                 self.net = Net {
                     code: None,
-                    name: Text {
-                        s: Str::borrowed(""),
-                        span,
-                    },
+                    name: Text::empty(span),
                     nodes: Vec::new(),
                     span,
                 };
@@ -686,8 +677,8 @@ impl<'a> Reader<'a> {
                 }
             }
             Slot::NodeRef => self.node.reference = v,
-            Slot::NodePin => self.node.pin = v.map(|t| t.s),
-            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.s),
+            Slot::NodePin => self.node.pin = v.map(|t| t.to_str()),
+            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.to_str()),
             Slot::NodeType => {
                 if let Some(v) = v {
                     let (t, nc) = PinType::parse(v.as_str());
@@ -780,7 +771,7 @@ impl<'a> Reader<'a> {
 
     fn end_comp(&mut self, span: Span) {
         let mut comp = std::mem::replace(&mut self.comp, empty_component());
-        if !self.have_ref || comp.reference.s.is_empty() {
+        if !self.have_ref || comp.reference.as_str().is_empty() {
             self.diags.push(
                 Diag::error("missing-field", "a component without a reference (`(ref ...)`) is left out")
                     .at(span, "this `comp` has no `ref`")
@@ -849,10 +840,7 @@ impl<'a> Reader<'a> {
             &mut self.net,
             Net {
                 code: None,
-                name: Text {
-                    s: Str::borrowed(""),
-                    span,
-                },
+                name: Text::empty(span),
                 nodes: Vec::new(),
                 span,
             },
@@ -864,7 +852,7 @@ impl<'a> Reader<'a> {
             );
         }
         if !self.have_name {
-            net.name.span = span;
+            net.name.set_span(span);
             self.diags.push(
                 Diag::warning(
                     "missing-field",
@@ -938,7 +926,7 @@ impl<'a> Reader<'a> {
                 let v = nl.version.as_ref().expect("version is some");
                 diags.push(
                     Diag::info("netlist-version", format!("netlist version `{other}` is not one netmargin knows (D: KiCad 4-5, E: KiCad 6-9); reading it as version E"))
-                        .at(v.span, "version"),
+                        .at(v.span(), "version"),
                 );
                 Dialect::Other
             }
@@ -985,9 +973,9 @@ fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
     }
     for lp in &mut nl.libparts {
         for p in &mut lp.pins {
-            if p.num.s.trim().is_empty() {
-                if let Some(n) = p.name.as_ref().filter(|n| !n.s.trim().is_empty()) {
-                    p.num.s = n.s.clone();
+            if p.num.as_str().trim().is_empty() {
+                if let Some(n) = p.name.as_ref().filter(|n| !n.as_str().trim().is_empty()) {
+                    p.num = Text::new(n.to_str(), p.num.span());
                 }
             }
         }
@@ -1009,10 +997,10 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     format!("two components share the reference `{}`", c.reference),
                 )
                 .at(
-                    c.reference.span,
+                    c.reference.span(),
                     "this one is checked as written but its nets may be confused",
                 )
-                .also(nl.components[first].reference.span, "first use")
+                .also(nl.components[first].reference.span(), "first use")
                 .with_help(
                     "re-annotate the schematic so every reference is unique, then export again",
                 ),
@@ -1057,7 +1045,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         lib, part, c.reference
                     ),
                 )
-                .at(part.span, "not found in `libparts`"),
+                .at(part.span(), "not found in `libparts`"),
             );
         }
     }
@@ -1082,11 +1070,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         "duplicate-net-code",
                         format!("two nets share the code {}", code),
                     )
-                    .at(code.span, format!("also used by net #{}", first + 1)),
+                    .at(code.span(), format!("also used by net #{}", first + 1)),
                 );
             } else {
                 codes.insert(
-                    text.get(code.span.range()).map_or("", |_| code.as_str()),
+                    text.get(code.span().range()).map_or("", |_| code.as_str()),
                     ni,
                 );
             }
@@ -1108,7 +1096,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                             net.name, node.reference
                         ),
                     )
-                    .at(node.reference.span, "no component has this reference")
+                    .at(node.reference.span(), "no component has this reference")
                     .with_help("the netlist is out of step with the schematic: export it again"),
                 ),
             }
@@ -1269,7 +1257,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         diags.push(
                 Diag::error("pin-on-two-nets", format!("{pin} is on two nets: `{}` and `{}`", f.name, n.name))
                     .at(span, "second net")
-                    .also(f.name.span, "first net")
+                    .also(f.name.span(), "first net")
                     .with_help("the netlist is inconsistent: export it again; if it persists, look for overlapping wires or labels at this pin"),
             );
     }
@@ -1313,7 +1301,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     && pins.len() < 64
                     && pins.iter().any(|p| {
                         p.libpin()
-                            .is_some_and(|q| lpins[q as usize].num.s == lpin.num.s)
+                            .is_some_and(|q| lpins[q as usize].num.as_str() == lpin.num.as_str())
                     })
                 {
                     continue; // stacked pins listed twice

@@ -249,12 +249,12 @@ fn texts_borrow_the_file_unless_unescaped() {
   (nets (net (code "1") (name "A\\B") (node (ref "U1") (pin "1")))))"#;
     for nl in [read(text), super::read(text).unwrap()] {
         let c = &nl.components[0];
-        assert!(c.reference.s.is_borrowed());
+        assert!(c.reference.is_borrowed());
         assert_eq!(c.reference.as_str(), "U1");
         let v = c.value.as_ref().unwrap();
-        assert!(!v.s.is_borrowed());
+        assert!(!v.is_borrowed());
         assert_eq!(v.as_str(), "74HC\"00\"");
-        assert_eq!(&text[v.span.range()], r#""74HC\"00\"""#);
+        assert_eq!(&text[v.span().range()], r#""74HC\"00\"""#);
         assert_eq!(nl.nets[0].name.as_str(), "A\\B");
         assert_eq!(nl.net_by_name("A\\B"), Some(0));
         assert_eq!(nl.component("U1"), Some(0));
