@@ -489,7 +489,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
                 self.nl.nets[net as usize].nodes[node as usize].span
             }
-            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin()) {
+            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin(self.nl)) {
                 (Some(lp), Some(li)) => self.nl.libparts[lp as usize].pins[li as usize].span,
                 _ => c.reference.span(),
             },

@@ -41,6 +41,8 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         span: tree.span(root),
         by_ref: hashbrown::HashTable::new(),
         by_net_name: hashbrown::HashTable::new(),
+        lib_pin_at: Vec::new(),
+        lib_pin_part: Vec::new(),
     };
     for sec in tree.children(root).skip(1) {
         match tree.head(sec) {
@@ -212,7 +214,7 @@ impl<'a> Builder<'_, 'a> {
             properties: ThinVec::new(),
             libsource: None,
             sheetpath: None,
-            tstamps: ThinVec::new(),
+            tstamps: Texts::default(),
             span: self.t.span(c),
             libpart: None,
             pins: Box::default(),
@@ -288,7 +290,6 @@ impl<'a> Builder<'_, 'a> {
             return None;
         }
         // a vector grows to 4 items at its first push; give back what one or two don't use
-        comp.tstamps.shrink_to_fit();
         comp.fields.shrink_to_fit();
         comp.properties.shrink_to_fit();
         Some(comp)

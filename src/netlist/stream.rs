@@ -289,7 +289,7 @@ fn empty_component<'a>() -> Component<'a> {
         properties: ThinVec::new(),
         libsource: None,
         sheetpath: None,
-        tstamps: ThinVec::new(),
+        tstamps: Texts::default(),
         span,
         libpart: None,
         pins: Box::default(),
@@ -328,7 +328,6 @@ struct Reader<'a> {
     /// one allocation of their exact length when the list closes (no growing, no trimming).
     fields: Vec<Field<'a>>,
     properties: Vec<Field<'a>>,
-    tstamps: Vec<Text<'a>>,
     nodes: Vec<Node<'a>>,
 }
 
@@ -350,6 +349,8 @@ impl<'a> Reader<'a> {
                 span,
                 by_ref: hashbrown::HashTable::new(),
                 by_net_name: hashbrown::HashTable::new(),
+                lib_pin_at: Vec::new(),
+                lib_pin_part: Vec::new(),
             },
             diags: Vec::new(),
             not_export: None,
@@ -383,7 +384,6 @@ impl<'a> Reader<'a> {
             node: NodeAcc::default(),
             fields: Vec::new(),
             properties: Vec::new(),
-            tstamps: Vec::new(),
             nodes: Vec::new(),
         }
     }
@@ -528,7 +528,6 @@ impl<'a> Reader<'a> {
                 self.comp = empty_component();
                 self.fields.clear();
                 self.properties.clear();
-                self.tstamps.clear();
                 self.have_ref = false;
                 Role::Comp
             }
@@ -638,7 +637,7 @@ impl<'a> Reader<'a> {
             Slot::Datasheet => self.comp.datasheet = v,
             Slot::Tstamp => {
                 if let Some(v) = v {
-                    self.tstamps.push(v);
+                    self.comp.tstamps.push(v);
                 }
             }
             Slot::FieldName => self.field_name = v,
@@ -780,7 +779,6 @@ impl<'a> Reader<'a> {
             return;
         }
         comp.span = span;
-        comp.tstamps = self.tstamps.drain(..).collect();
         comp.fields = self.fields.drain(..).collect();
         comp.properties = self.properties.drain(..).collect();
         self.nl.components.push(comp);
@@ -1284,6 +1282,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         })
         .collect();
     let mut used: Vec<bool> = Vec::new();
+    nl.number_lib_pins();
+    let lib_pin_at = &nl.lib_pin_at;
     // component pins: the libpart's, then any the nets name that it lacks
     for (ci, c) in nl.components.iter_mut().enumerate() {
         let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
@@ -1294,14 +1294,15 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         if let Some(li) = c.libpart.map(|l| l as usize) {
             let lpins = &nl.libparts[li].pins;
             let (ranks, repeats) = &lib_pins[li];
+            let first = lib_pin_at[li];
             pins.reserve(lpins.len());
             for (pi, lpin) in lpins.iter().enumerate() {
                 // only a number an earlier pin had can be among the pins so far
                 if repeats[pi]
                     && pins.len() < 64
                     && pins.iter().any(|p| {
-                        p.libpin()
-                            .is_some_and(|q| lpins[q as usize].num.as_str() == lpin.num.as_str())
+                        p.libpin != NONE
+                            && lpins[(p.libpin - first) as usize].num.as_str() == lpin.num.as_str()
                     })
                 {
                     continue; // stacked pins listed twice
@@ -1328,7 +1329,12 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     no_connect |= nd.no_connect;
                 }
                 // the number and name are read through the library pin, or the node
-                pins.push(CompPin::from_libpin(li, pi, ptype, no_connect, connection));
+                pins.push(CompPin::from_libpin(
+                    first + pi as u32,
+                    ptype,
+                    no_connect,
+                    connection,
+                ));
             }
         }
         // pins named by nodes but missing from the libpart (or no libpart at all)

@@ -300,7 +300,7 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
         let pins: Vec<(&str, Option<&str>, Option<u32>)> = u1
             .pins
             .iter()
-            .map(|p| (p.num(&nl), p.name(&nl), p.libpin()))
+            .map(|p| (p.num(&nl), p.name(&nl), p.libpin(&nl)))
             .collect();
         assert_eq!(
             pins,
@@ -330,4 +330,32 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
         assert_eq!(nl.component("NT1"), Some(1));
         assert_eq!(nl.component("U9"), None);
     }
+}
+
+/// The model's sizes: a board holds several of these for every part, pin and node.
+#[test]
+fn model_sizes() {
+    use std::mem::size_of;
+    assert!(size_of::<Text<'_>>() <= 16);
+    assert!(size_of::<Component<'_>>() <= 232);
+    assert!(size_of::<Node<'_>>() <= 64);
+    assert!(size_of::<CompPin>() <= 20);
+    assert!(size_of::<Net<'_>>() <= 64);
+    assert!(size_of::<LibPin<'_>>() <= 48);
+    assert!(size_of::<Texts<'_>>() <= 24);
+}
+
+#[test]
+fn texts_keep_the_first_in_place() {
+    let mut t = Texts::default();
+    assert!(t.is_empty());
+    t.push(Text::borrowed("a", Span::new(0, 1)));
+    t.push(Text::borrowed("b", Span::new(2, 3)));
+    t.push(Text::borrowed("c", Span::new(4, 5)));
+    assert_eq!(t.len(), 3);
+    let all: Vec<&str> = t.iter().map(|x| x.as_str()).collect();
+    assert_eq!(all, ["a", "b", "c"]);
+    assert_eq!(t[1].as_str(), "b");
+    assert!(t.get(3).is_none());
+    assert_eq!(Texts::one(Text::borrowed("u", Span::new(0, 1))).len(), 1);
 }

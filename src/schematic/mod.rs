@@ -31,7 +31,7 @@ use thin_vec::ThinVec;
 use crate::diag::Diag;
 use crate::netlist::{
     Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, PinType,
-    SheetPath, Text,
+    SheetPath, Text, Texts,
 };
 use crate::source::{SourceFile, Span};
 
@@ -782,7 +782,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     names: Some(txt(u.path.clone(), placed.span)),
                     tstamps: None,
                 }),
-                tstamps: thin_vec::thin_vec![txt(placed.uuid.clone(), placed.span)],
+                tstamps: Texts::one(txt(placed.uuid.clone(), placed.span)),
                 span: placed.span,
                 libpart: None,
                 pins: Box::default(),
