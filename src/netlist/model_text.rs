@@ -30,6 +30,7 @@ const KIND: u32 = 3 << 30;
 const END: u32 = (1 << 30) - 1;
 /// The owned block's header: the text's length and the span's end.
 const HEADER: usize = 8;
+const _: () = assert!(ATOM >> 29 == 0 && QUOTED >> 29 == 2);
 
 /// A text value from the file (unescaped) with its span.
 pub struct Text<'a> {
@@ -69,6 +70,23 @@ impl<'a> Text<'a> {
             }
         }
         Text::owned(s, span)
+    }
+
+    /// The token `text[start..end]`: an atom, or with `quoted` a quoted string whose text is
+    /// within the quotes. Borrowed, with no test of lengths: the slice is the span's.
+    #[inline]
+    pub(crate) fn token(text: &'a str, start: usize, end: usize, quoted: bool) -> Text<'a> {
+        let q = usize::from(quoted);
+        let s = &text[start + q..end - q];
+        if end > END as usize {
+            return Text::owned(s, Span::new(start, end));
+        }
+        Text {
+            ptr: NonNull::from(s.as_bytes()).cast(),
+            start: start as u32,
+            tail: if quoted { QUOTED } else { ATOM } | end as u32,
+            _text: PhantomData,
+        }
     }
 
     /// A copy of `s`.
@@ -129,41 +147,36 @@ impl<'a> Text<'a> {
 
     #[inline]
     pub fn as_str(&self) -> &str {
-        match self.kind() {
-            OWNED => {
-                let (len, _) = self.owned_header();
-                // SAFETY: the block holds `len` bytes of a `str` after its header.
-                unsafe {
-                    let bytes =
-                        std::slice::from_raw_parts(self.ptr.as_ptr().add(HEADER), len as usize);
-                    std::str::from_utf8_unchecked(bytes)
-                }
-            }
-            _ => self.borrowed_str().expect("a borrowed text"),
+        if self.kind() == OWNED {
+            let (len, _) = self.owned_header();
+            // SAFETY: the block holds `len` bytes of a `str` after its header.
+            return unsafe {
+                let bytes = std::slice::from_raw_parts(self.ptr.as_ptr().add(HEADER), len as usize);
+                std::str::from_utf8_unchecked(bytes)
+            };
         }
+        self.borrowed_unchecked()
     }
 
     /// The text for the whole lifetime of the file's text, when it is borrowed from it.
     #[inline]
     pub fn as_borrowed(&self) -> Option<&'a str> {
-        self.borrowed_str()
+        (self.kind() != OWNED).then(|| self.borrowed_unchecked())
     }
 
+    /// A borrowed text's `str`: its span's length, less the two quotes of a quoted string.
     #[inline]
-    fn borrowed_str(&self) -> Option<&'a str> {
-        let n = (self.tail & END) - self.start;
-        let len = match self.kind() {
-            ATOM => n,
-            QUOTED => n - 2,
-            _ => return None,
-        };
+    fn borrowed_unchecked(&self) -> &'a str {
+        debug_assert!(self.kind() != OWNED);
+        // QUOTED >> 29 is 2, ATOM >> 29 is 0
+        let len = (self.tail & END) - self.start - (self.kind() >> 29);
         // SAFETY: `borrowed` took the pointer from a `&'a str` of exactly this length.
-        Some(unsafe {
+        unsafe {
             std::str::from_utf8_unchecked(std::slice::from_raw_parts(
                 self.ptr.as_ptr(),
                 len as usize,
             ))
-        })
+        }
     }
 
     /// Where the text is in the file.
@@ -274,6 +287,16 @@ mod tests {
         let empty = Text::borrowed(&file[18..18], Span::new(17, 19));
         assert_eq!((empty.as_str(), empty.span()), ("", Span::new(17, 19)));
         assert!(empty.is_borrowed());
+    }
+
+    #[test]
+    fn tokens() {
+        let file = "(ref U12) (value \"74HC00\")";
+        let atom = Text::token(file, 5, 8, false);
+        assert_eq!((atom.as_str(), atom.span()), ("U12", Span::new(5, 8)));
+        let quoted = Text::token(file, 17, 25, true);
+        assert_eq!((quoted.as_str(), quoted.span()), ("74HC00", Span::new(17, 25)));
+        assert!(atom.is_borrowed() && quoted.is_borrowed());
     }
 
     #[test]

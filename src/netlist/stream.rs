@@ -393,8 +393,8 @@ impl<'a> Reader<'a> {
         let t = self.text;
         let span = Span::new(start, end);
         match tok {
-            Tok::Atom => Text::borrowed(&t[start..end], span),
-            Tok::Str => Text::borrowed(&t[start + 1..end - 1], span),
+            Tok::Atom => Text::token(t, start, end, false),
+            Tok::Str => Text::token(t, start, end, true),
             Tok::Escaped => match unescape(&t[start + 1..end - 1]) {
                 std::borrow::Cow::Borrowed(s) => Text::borrowed(s, span),
                 std::borrow::Cow::Owned(s) => Text::owned(&s, span),
