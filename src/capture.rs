@@ -139,18 +139,18 @@ fn side(nl: &Netlist<'_>) -> Side {
         let pins: BTreeSet<Pin> = n
             .nodes
             .iter()
-            .map(|x| (x.reference.s.to_string(), x.pin.to_string()))
+            .map(|x| (x.reference.as_str().to_string(), x.pin.to_string()))
             .collect();
         let i = s.nets.len();
         for p in &pins {
             s.net_of.entry(p.clone()).or_insert(i);
         }
         s.nets.push(pins);
-        s.names.push(n.name.s.to_string());
+        s.names.push(n.name.as_str().to_string());
     }
     for c in &nl.components {
         s.parts.insert(
-            c.reference.s.to_string(),
+            c.reference.as_str().to_string(),
             (
                 c.value_str().to_string(),
                 c.footprint.as_ref().map_or("", |f| f.as_str()).to_string(),

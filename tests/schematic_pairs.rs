@@ -55,10 +55,10 @@ fn partition(nl: &Netlist<'_>) -> BTreeMap<BTreeSet<(String, String)>, String> {
         let pins: BTreeSet<(String, String)> = n
             .nodes
             .iter()
-            .map(|x| (x.reference.s.to_string(), x.pin.to_string()))
+            .map(|x| (x.reference.as_str().to_string(), x.pin.to_string()))
             .collect();
         if !pins.is_empty() {
-            out.insert(pins, n.name.s.to_string());
+            out.insert(pins, n.name.as_str().to_string());
         }
     }
     out
@@ -167,12 +167,12 @@ fn every_pair_reads_into_kicads_nets() {
         let parts_a: BTreeSet<String> = read
             .components
             .iter()
-            .map(|c| c.reference.s.to_string())
+            .map(|c| c.reference.as_str().to_string())
             .collect();
         let parts_b: BTreeSet<String> = exported
             .components
             .iter()
-            .map(|c| c.reference.s.to_string())
+            .map(|c| c.reference.as_str().to_string())
             .collect();
         if parts_a != parts_b {
             let extra: Vec<_> = parts_a.difference(&parts_b).take(10).collect();

@@ -75,7 +75,7 @@ fn kicad6_instances_give_references_values_and_footprints_and_leave_off_board_pa
     // R31 is drawn in the sub-sheet: its reference points there
     let src = cap.source();
     assert!(src
-        .file_at(r31.reference.span.start as usize)
+        .file_at(r31.reference.span().start as usize)
         .ends_with("divider.kicad_sch"));
 }
 

@@ -89,7 +89,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             "inferred-rail",
             format!("`{name}` is taken as {what}: {}", reasons.join("; ")),
         )
-        .at(cx.nl.nets[note.net].name.span, "rail by inference")
+        .at(cx.nl.nets[note.net].name.span(), "rail by inference")
         .on_net(name.clone())
         .with_help(format!(
             "if that is wrong, declare it ({declare}, or under [rails] in netmargin.toml)"

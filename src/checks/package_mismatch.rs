@@ -138,7 +138,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let reference = c.reference.as_str();
         let diag = match stated {
             Stated::Footprint(n, pkg) => {
-                let span = c.footprint.as_ref().map_or(c.reference.span, |f| f.span);
+                let span = c.footprint.as_ref().map_or(c.reference.span(), |f| f.span());
                 Diag::warning(
                     "package-mismatch",
                     format!("{reference} ({value}) is a {want}-pin part ({}) on the {n}-pin footprint `{}`", func.summary, fp.unwrap_or("")),
@@ -153,9 +153,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         lp.footprints
                             .iter()
                             .find(|t| footprint_pins(t.as_str()).is_some())
-                            .map(|t| t.span)
+                            .map(|t| t.span())
                     })
-                    .unwrap_or(c.reference.span);
+                    .unwrap_or(c.reference.span());
                 let list: Vec<String> =
                     f.iter().map(|(s, n)| format!("`{s}` ({n} pins)")).collect();
                 let symbol = lp.map_or(String::from("its symbol"), |lp| {

@@ -47,7 +47,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         } else {
             "its input and output levels are the value's family's, not the symbol's"
         };
-        let span = c.value.as_ref().map_or(c.reference.span, |v| v.span);
+        let span = c.value.as_ref().map_or(c.reference.span(), |v| v.span());
         out.push(
             Diag::info(
                 "symbol-other-part",

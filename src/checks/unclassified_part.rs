@@ -73,7 +73,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         };
         let reference = c.reference.as_str();
         let value = c.value_str();
-        let span = c.value.as_ref().map_or(c.reference.span, |v| v.span);
+        let span = c.value.as_ref().map_or(c.reference.span(), |v| v.span());
         let diag = match g {
             Gap::Unmatched { judged } => {
                 let near = if part.suggestions.is_empty() {
@@ -117,7 +117,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 .at(span, "a function, not a part number")
                 .with_help(format!("if {reference} stands for a real part, put its part number in the value (e.g. `74HC08`), or give it a `Logic family` field")),
             Gap::FamilyUnknown(f) => Diag::info("unclassified-part", format!("{reference} ({value}) names the logic family `{f}`, which the family table does not have: none of its pins are checked against family data"))
-                .at(c.field("Logic family").and_then(|x| x.value.as_ref()).map_or(span, |v| v.span), "unknown family")
+                .at(c.field("Logic family").and_then(|x| x.value.as_ref()).map_or(span, |v| v.span()), "unknown family")
                 .with_help(format!("spell the family as the family table does (`netmargin families` lists them), or add `{f}` to a project family table")),
         };
         out.push(diag);

@@ -189,7 +189,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         };
         let span_of = |idx: Option<usize>| match idx {
             Some(i) => cx.pin_span(PinRef { comp: ci, pin: i }),
-            None => c.reference.span,
+            None => c.reference.span(),
         };
         let label = |m: Missing| match m {
             Missing::NoSuchPin if no_symbol => "no library part; power pins in no net",

@@ -87,7 +87,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 each.join(", ")
             )
         };
-        let span = c.value.as_ref().map_or(c.reference.span, |v| v.span);
+        let span = c.value.as_ref().map_or(c.reference.span(), |v| v.span());
         let mut diag = Diag::warning("unreadable-value", format!("{reference}: {err}; {effect}"))
             .at(span, "unreadable value")
             .with_pins(pulled.iter().map(|(_, p, _)| cx.pin_name(*p)))

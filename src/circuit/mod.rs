@@ -609,15 +609,15 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// The net's display name (`Net-(U5-Pad4)`, `/CLK`; `#7` when unnamed).
     pub fn net_name(&self, net: usize) -> String {
         let n = &self.nl.nets[net];
-        if n.name.s.is_empty() {
+        if n.name.as_str().is_empty() {
             format!(
                 "#{}",
                 n.code
                     .as_ref()
-                    .map_or((net + 1).to_string(), |c| c.s.to_string())
+                    .map_or((net + 1).to_string(), |c| c.as_str().to_string())
             )
         } else {
-            n.name.s.to_string()
+            n.name.as_str().to_string()
         }
     }
 
@@ -628,9 +628,9 @@ impl<'n, 'a> Circuit<'n, 'a> {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
                 self.nl.nets[net as usize].nodes[node as usize].span
             }
-            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin()) {
+            Connection::Absent => match (c.libpart, c.pins[p.pin].libpin(self.nl)) {
                 (Some(lp), Some(li)) => self.nl.libparts[lp as usize].pins[li as usize].span,
-                _ => c.reference.span,
+                _ => c.reference.span(),
             },
         }
     }

@@ -41,6 +41,8 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         span: tree.span(root),
         by_ref: hashbrown::HashTable::new(),
         by_net_name: hashbrown::HashTable::new(),
+        lib_pin_at: Vec::new(),
+        lib_pin_part: Vec::new(),
     };
     for sec in tree.children(root).skip(1) {
         match tree.head(sec) {
@@ -81,7 +83,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
             let v = nl.version.as_ref().expect("version is some");
             b.diags.borrow_mut().push(
                 Diag::info("netlist-version", format!("netlist version `{other}` is not one netmargin knows (D: KiCad 4-5, E: KiCad 6-9); reading it as version E"))
-                    .at(v.span, "version"),
+                    .at(v.span(), "version"),
             );
             Dialect::Other
         }
@@ -112,10 +114,7 @@ struct Builder<'t, 'a> {
 
 impl<'a> Builder<'_, 'a> {
     fn text(&self, id: NodeId) -> Option<Text<'a>> {
-        Some(Text {
-            s: self.t.text(id)?.into(),
-            span: self.t.span(id),
-        })
+        Some(Text::new(self.t.text(id)?.into(), self.t.span(id)))
     }
 
     /// The value of `(key VALUE)`: `None` when missing; a diagnostic when a list stands
@@ -207,10 +206,7 @@ impl<'a> Builder<'_, 'a> {
 
     fn component(&self, c: NodeId) -> Option<Component<'a>> {
         let mut comp = Component {
-            reference: Text {
-                s: Str::borrowed(""),
-                span: self.t.span(c),
-            },
+            reference: Text::empty(self.t.span(c)),
             value: None,
             footprint: None,
             datasheet: None,
@@ -218,7 +214,7 @@ impl<'a> Builder<'_, 'a> {
             properties: ThinVec::new(),
             libsource: None,
             sheetpath: None,
-            tstamps: ThinVec::new(),
+            tstamps: Texts::default(),
             span: self.t.span(c),
             libpart: None,
             pins: Box::default(),
@@ -285,7 +281,7 @@ impl<'a> Builder<'_, 'a> {
                 _ => {}
             }
         }
-        if !have_ref || comp.reference.s.is_empty() {
+        if !have_ref || comp.reference.as_str().is_empty() {
             self.diags.borrow_mut().push(
                 Diag::error("missing-field", "a component without a reference (`(ref ...)`) is left out")
                     .at(self.t.span(c), "this `comp` has no `ref`")
@@ -294,7 +290,6 @@ impl<'a> Builder<'_, 'a> {
             return None;
         }
         // a vector grows to 4 items at its first push; give back what one or two don't use
-        comp.tstamps.shrink_to_fit();
         comp.fields.shrink_to_fit();
         comp.properties.shrink_to_fit();
         Some(comp)
@@ -399,10 +394,7 @@ impl<'a> Builder<'_, 'a> {
     fn net(&self, c: NodeId) -> Net<'a> {
         let mut net = Net {
             code: None,
-            name: Text {
-                s: Str::borrowed(""),
-                span: self.t.span(c),
-            },
+            name: Text::empty(self.t.span(c)),
             nodes: Vec::new(),
             span: self.t.span(c),
         };
@@ -440,8 +432,8 @@ impl<'a> Builder<'_, 'a> {
                     match (reference, pin) {
                         (Some(reference), Some(pin)) => net.nodes.push(Node {
                             reference,
-                            pin: pin.s,
-                            pinfunction: pinfunction.map(|f| f.s),
+                            pin: pin.to_str(),
+                            pinfunction: pinfunction.map(|f| f.to_str()),
                             pintype,
                             no_connect,
                             span: self.t.span(n),

@@ -8,6 +8,7 @@
 //! logic families; it only reports what the file says.
 
 mod build;
+mod model_text;
 mod pintype;
 pub mod stream;
 mod ties;
@@ -16,6 +17,7 @@ use hashbrown::HashTable;
 use thin_vec::ThinVec;
 
 pub use build::build;
+pub use model_text::Text;
 pub use pintype::PinType;
 pub use stream::read;
 
@@ -27,25 +29,6 @@ use crate::source::Span;
 /// model holds a few of them for every pin and node. Its lengths are 32-bit, as `Span`'s
 /// offsets are: both readers refuse a file of 1 GiB or more, so every text fits.
 pub type Str<'a> = beef::lean::Cow<'a, str>;
-
-/// A text value from the file (unescaped) with its span.
-#[derive(Debug, Clone, PartialEq)]
-pub struct Text<'a> {
-    pub s: Str<'a>,
-    pub span: Span,
-}
-
-impl Text<'_> {
-    pub fn as_str(&self) -> &str {
-        &self.s
-    }
-}
-
-impl std::fmt::Display for Text<'_> {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.write_str(&self.s)
-    }
-}
 
 /// Which dialect the file is written in.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -123,10 +106,10 @@ impl Connection {
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct CompPin {
     pub connection: Connection,
-    /// Index into the library part's pins, `NONE` when the pin is only the nets'.
+    /// The library pin: an index into [`Netlist`]'s table of every library part's pins
+    /// (one number where a library part's and its pin's would take two), `NONE` when the
+    /// pin is only the nets'.
     libpin: u32,
-    /// The library part `libpin` belongs to.
-    libpart: u32,
     /// The symbol's pin type (the node's `pintype` when present, else the libpart's).
     pub ptype: PinType,
     /// The node's pintype carried `+no_connect`, or the symbol marks the pin no-connect.
@@ -136,18 +119,17 @@ pub struct CompPin {
 const NONE: u32 = u32::MAX;
 
 impl CompPin {
-    /// A pin from library pin `libpin` of library part `libpart`.
+    /// A pin from library pin `libpin`, in the numbering of all library pins
+    /// ([`Netlist::number_lib_pins`]).
     pub(crate) fn from_libpin(
-        libpart: usize,
-        libpin: usize,
+        libpin: u32,
         ptype: PinType,
         no_connect: bool,
         connection: Connection,
     ) -> CompPin {
         CompPin {
             connection,
-            libpin: libpin as u32,
-            libpart: libpart as u32,
+            libpin,
             ptype,
             no_connect,
         }
@@ -157,21 +139,21 @@ impl CompPin {
         CompPin {
             connection,
             libpin: NONE,
-            libpart: NONE,
             ptype,
             no_connect,
         }
     }
     /// Index into the component's library part's pins.
-    pub fn libpin(&self) -> Option<u32> {
-        (self.libpin != NONE).then_some(self.libpin)
+    pub fn libpin(&self, nl: &Netlist<'_>) -> Option<u32> {
+        (self.libpin != NONE).then(|| nl.lib_pin_of(self.libpin).1)
     }
     #[inline]
     fn lib<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n LibPin<'n>> {
         if self.libpin == NONE {
             return None;
         }
-        Some(&nl.libparts[self.libpart as usize].pins[self.libpin as usize])
+        let (part, pin) = nl.lib_pin_of(self.libpin);
+        Some(&nl.libparts[part as usize].pins[pin as usize])
     }
     #[inline]
     fn node<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n Node<'n>> {
@@ -201,14 +183,59 @@ impl CompPin {
     /// True when both pins have the same number and name (of parts alike, most often the
     /// same library pin, which is not read twice).
     pub fn same_texts(&self, other: &CompPin, nl: &Netlist<'_>) -> bool {
-        if self.libpin != NONE && self.libpin == other.libpin && self.libpart == other.libpart {
-            let lp = &nl.libparts[self.libpart as usize].pins[self.libpin as usize];
-            if lp.name.is_some() {
+        if self.libpin != NONE && self.libpin == other.libpin {
+            if self.lib(nl).is_some_and(|lp| lp.name.is_some()) {
                 return true;
             }
             return self.name(nl) == other.name(nl);
         }
         self.num(nl) == other.num(nl) && self.name(nl) == other.name(nl)
+    }
+}
+
+/// A short list of texts (a component's time stamps: nearly always one), the first kept in
+/// place: no allocation for a list of one.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Texts<'a> {
+    first: Option<Text<'a>>,
+    rest: ThinVec<Text<'a>>,
+}
+
+impl<'a> Texts<'a> {
+    pub fn one(t: Text<'a>) -> Texts<'a> {
+        Texts {
+            first: Some(t),
+            rest: ThinVec::new(),
+        }
+    }
+    pub fn push(&mut self, t: Text<'a>) {
+        if self.first.is_none() {
+            self.first = Some(t);
+        } else {
+            self.rest.push(t);
+        }
+    }
+    pub fn len(&self) -> usize {
+        usize::from(self.first.is_some()) + self.rest.len()
+    }
+    pub fn is_empty(&self) -> bool {
+        self.first.is_none()
+    }
+    pub fn iter(&self) -> impl Iterator<Item = &Text<'a>> {
+        self.first.iter().chain(self.rest.iter())
+    }
+    pub fn get(&self, i: usize) -> Option<&Text<'a>> {
+        match i {
+            0 => self.first.as_ref(),
+            _ => self.rest.get(i - 1),
+        }
+    }
+}
+
+impl<'a> std::ops::Index<usize> for Texts<'a> {
+    type Output = Text<'a>;
+    fn index(&self, i: usize) -> &Text<'a> {
+        self.get(i).expect("an index within the list")
     }
 }
 
@@ -222,7 +249,7 @@ pub struct Component<'a> {
     pub properties: ThinVec<Field<'a>>,
     pub libsource: Option<LibSource<'a>>,
     pub sheetpath: Option<SheetPath<'a>>,
-    pub tstamps: ThinVec<Text<'a>>,
+    pub tstamps: Texts<'a>,
     pub span: Span,
     /// The resolved library part (by lib and part, or through an alias).
     pub libpart: Option<u32>,
@@ -322,6 +349,10 @@ pub struct Netlist<'a> {
     /// Nets by name: (the net whose name is the key, the net that name finds); a net tie's
     /// joined nets keep their names and find the net they were joined into.
     by_net_name: HashTable<(u32, u32)>,
+    /// Where each library part's pins start in one numbering of all of them
+    /// ([`CompPin`]'s `libpin`), and that numbering's (library part, pin) pairs.
+    lib_pin_at: Vec<u32>,
+    lib_pin_part: Vec<(u32, u32)>,
 }
 
 /// The hash of a text in the lookup tables.
@@ -363,10 +394,30 @@ impl<'a> Netlist<'a> {
             span,
             by_ref: HashTable::new(),
             by_net_name: HashTable::new(),
+            lib_pin_at: Vec::new(),
+            lib_pin_part: Vec::new(),
         };
         stream::link(text, &mut nl, &mut diagnostics);
         nl.diagnostics = diagnostics;
         nl
+    }
+
+    /// The (library part, pin) of pin `g` in the numbering of all library pins.
+    #[inline]
+    fn lib_pin_of(&self, g: u32) -> (u32, u32) {
+        self.lib_pin_part[g as usize]
+    }
+    /// Numbers every library part's pins in one sequence, for [`CompPin`].
+    pub(crate) fn number_lib_pins(&mut self) {
+        let total: usize = self.libparts.iter().map(|lp| lp.pins.len()).sum();
+        let mut at = Vec::with_capacity(self.libparts.len());
+        let mut part = Vec::with_capacity(total);
+        for (li, lp) in self.libparts.iter().enumerate() {
+            at.push(part.len() as u32);
+            part.extend((0..lp.pins.len()).map(|pi| (li as u32, pi as u32)));
+        }
+        self.lib_pin_at = at;
+        self.lib_pin_part = part;
     }
 
     pub fn component(&self, reference: &str) -> Option<usize> {

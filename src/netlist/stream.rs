@@ -281,10 +281,7 @@ struct NodeAcc<'a> {
 fn empty_component<'a>() -> Component<'a> {
     let span = Span { start: 0, end: 0 };
     Component {
-        reference: Text {
-            s: Str::borrowed(""),
-            span,
-        },
+        reference: Text::empty(span),
         value: None,
         footprint: None,
         datasheet: None,
@@ -292,7 +289,7 @@ fn empty_component<'a>() -> Component<'a> {
         properties: ThinVec::new(),
         libsource: None,
         sheetpath: None,
-        tstamps: ThinVec::new(),
+        tstamps: Texts::default(),
         span,
         libpart: None,
         pins: Box::default(),
@@ -331,7 +328,6 @@ struct Reader<'a> {
     /// one allocation of their exact length when the list closes (no growing, no trimming).
     fields: Vec<Field<'a>>,
     properties: Vec<Field<'a>>,
-    tstamps: Vec<Text<'a>>,
     nodes: Vec<Node<'a>>,
 }
 
@@ -353,6 +349,8 @@ impl<'a> Reader<'a> {
                 span,
                 by_ref: hashbrown::HashTable::new(),
                 by_net_name: hashbrown::HashTable::new(),
+                lib_pin_at: Vec::new(),
+                lib_pin_part: Vec::new(),
             },
             diags: Vec::new(),
             not_export: None,
@@ -378,10 +376,7 @@ impl<'a> Reader<'a> {
             pin_type: PinType::Unknown,
             net: Net {
                 code: None,
-                name: Text {
-                    s: Str::borrowed(""),
-                    span,
-                },
+                name: Text::empty(span),
                 nodes: Vec::new(),
                 span,
             },
@@ -389,7 +384,6 @@ impl<'a> Reader<'a> {
             node: NodeAcc::default(),
             fields: Vec::new(),
             properties: Vec::new(),
-            tstamps: Vec::new(),
             nodes: Vec::new(),
         }
     }
@@ -397,14 +391,14 @@ impl<'a> Reader<'a> {
     /// The value of an atom or a quoted string token.
     fn text_of(&self, start: usize, end: usize, tok: Tok) -> Text<'a> {
         let t = self.text;
-        let s = match tok {
-            Tok::Atom => Str::borrowed(&t[start..end]),
-            Tok::Str => Str::borrowed(&t[start + 1..end - 1]),
-            Tok::Escaped => unescape(&t[start + 1..end - 1]).into(),
-        };
-        Text {
-            s,
-            span: Span::new(start, end),
+        let span = Span::new(start, end);
+        match tok {
+            Tok::Atom => Text::token(t, start, end, false),
+            Tok::Str => Text::token(t, start, end, true),
+            Tok::Escaped => match unescape(&t[start + 1..end - 1]) {
+                std::borrow::Cow::Borrowed(s) => Text::borrowed(s, span),
+                std::borrow::Cow::Owned(s) => Text::owned(&s, span),
+            },
         }
     }
 
@@ -534,7 +528,6 @@ impl<'a> Reader<'a> {
                 self.comp = empty_component();
                 self.fields.clear();
                 self.properties.clear();
-                self.tstamps.clear();
                 self.have_ref = false;
                 Role::Comp
             }
@@ -595,10 +588,7 @@ impl<'a> Reader<'a> {
             (Role::Nets, "net") => {
                 self.net = Net {
                     code: None,
-                    name: Text {
-                        s: Str::borrowed(""),
-                        span,
-                    },
+                    name: Text::empty(span),
                     nodes: Vec::new(),
                     span,
                 };
@@ -647,7 +637,7 @@ impl<'a> Reader<'a> {
             Slot::Datasheet => self.comp.datasheet = v,
             Slot::Tstamp => {
                 if let Some(v) = v {
-                    self.tstamps.push(v);
+                    self.comp.tstamps.push(v);
                 }
             }
             Slot::FieldName => self.field_name = v,
@@ -686,8 +676,8 @@ impl<'a> Reader<'a> {
                 }
             }
             Slot::NodeRef => self.node.reference = v,
-            Slot::NodePin => self.node.pin = v.map(|t| t.s),
-            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.s),
+            Slot::NodePin => self.node.pin = v.map(|t| t.to_str()),
+            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.to_str()),
             Slot::NodeType => {
                 if let Some(v) = v {
                     let (t, nc) = PinType::parse(v.as_str());
@@ -780,7 +770,7 @@ impl<'a> Reader<'a> {
 
     fn end_comp(&mut self, span: Span) {
         let mut comp = std::mem::replace(&mut self.comp, empty_component());
-        if !self.have_ref || comp.reference.s.is_empty() {
+        if !self.have_ref || comp.reference.as_str().is_empty() {
             self.diags.push(
                 Diag::error("missing-field", "a component without a reference (`(ref ...)`) is left out")
                     .at(span, "this `comp` has no `ref`")
@@ -789,7 +779,6 @@ impl<'a> Reader<'a> {
             return;
         }
         comp.span = span;
-        comp.tstamps = self.tstamps.drain(..).collect();
         comp.fields = self.fields.drain(..).collect();
         comp.properties = self.properties.drain(..).collect();
         self.nl.components.push(comp);
@@ -849,10 +838,7 @@ impl<'a> Reader<'a> {
             &mut self.net,
             Net {
                 code: None,
-                name: Text {
-                    s: Str::borrowed(""),
-                    span,
-                },
+                name: Text::empty(span),
                 nodes: Vec::new(),
                 span,
             },
@@ -864,7 +850,7 @@ impl<'a> Reader<'a> {
             );
         }
         if !self.have_name {
-            net.name.span = span;
+            net.name.set_span(span);
             self.diags.push(
                 Diag::warning(
                     "missing-field",
@@ -938,7 +924,7 @@ impl<'a> Reader<'a> {
                 let v = nl.version.as_ref().expect("version is some");
                 diags.push(
                     Diag::info("netlist-version", format!("netlist version `{other}` is not one netmargin knows (D: KiCad 4-5, E: KiCad 6-9); reading it as version E"))
-                        .at(v.span, "version"),
+                        .at(v.span(), "version"),
                 );
                 Dialect::Other
             }
@@ -985,9 +971,9 @@ fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
     }
     for lp in &mut nl.libparts {
         for p in &mut lp.pins {
-            if p.num.s.trim().is_empty() {
-                if let Some(n) = p.name.as_ref().filter(|n| !n.s.trim().is_empty()) {
-                    p.num.s = n.s.clone();
+            if p.num.as_str().trim().is_empty() {
+                if let Some(n) = p.name.as_ref().filter(|n| !n.as_str().trim().is_empty()) {
+                    p.num = Text::new(n.to_str(), p.num.span());
                 }
             }
         }
@@ -1009,10 +995,10 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     format!("two components share the reference `{}`", c.reference),
                 )
                 .at(
-                    c.reference.span,
+                    c.reference.span(),
                     "this one is checked as written but its nets may be confused",
                 )
-                .also(nl.components[first].reference.span, "first use")
+                .also(nl.components[first].reference.span(), "first use")
                 .with_help(
                     "re-annotate the schematic so every reference is unique, then export again",
                 ),
@@ -1057,7 +1043,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         lib, part, c.reference
                     ),
                 )
-                .at(part.span, "not found in `libparts`"),
+                .at(part.span(), "not found in `libparts`"),
             );
         }
     }
@@ -1082,11 +1068,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         "duplicate-net-code",
                         format!("two nets share the code {}", code),
                     )
-                    .at(code.span, format!("also used by net #{}", first + 1)),
+                    .at(code.span(), format!("also used by net #{}", first + 1)),
                 );
             } else {
                 codes.insert(
-                    text.get(code.span.range()).map_or("", |_| code.as_str()),
+                    text.get(code.span().range()).map_or("", |_| code.as_str()),
                     ni,
                 );
             }
@@ -1108,7 +1094,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                             net.name, node.reference
                         ),
                     )
-                    .at(node.reference.span, "no component has this reference")
+                    .at(node.reference.span(), "no component has this reference")
                     .with_help("the netlist is out of step with the schematic: export it again"),
                 ),
             }
@@ -1269,7 +1255,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         diags.push(
                 Diag::error("pin-on-two-nets", format!("{pin} is on two nets: `{}` and `{}`", f.name, n.name))
                     .at(span, "second net")
-                    .also(f.name.span, "first net")
+                    .also(f.name.span(), "first net")
                     .with_help("the netlist is inconsistent: export it again; if it persists, look for overlapping wires or labels at this pin"),
             );
     }
@@ -1296,6 +1282,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         })
         .collect();
     let mut used: Vec<bool> = Vec::new();
+    nl.number_lib_pins();
+    let lib_pin_at = &nl.lib_pin_at;
     // component pins: the libpart's, then any the nets name that it lacks
     for (ci, c) in nl.components.iter_mut().enumerate() {
         let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
@@ -1306,14 +1294,15 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         if let Some(li) = c.libpart.map(|l| l as usize) {
             let lpins = &nl.libparts[li].pins;
             let (ranks, repeats) = &lib_pins[li];
+            let first = lib_pin_at[li];
             pins.reserve(lpins.len());
             for (pi, lpin) in lpins.iter().enumerate() {
                 // only a number an earlier pin had can be among the pins so far
                 if repeats[pi]
                     && pins.len() < 64
                     && pins.iter().any(|p| {
-                        p.libpin()
-                            .is_some_and(|q| lpins[q as usize].num.s == lpin.num.s)
+                        p.libpin != NONE
+                            && lpins[(p.libpin - first) as usize].num.as_str() == lpin.num.as_str()
                     })
                 {
                     continue; // stacked pins listed twice
@@ -1340,7 +1329,12 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     no_connect |= nd.no_connect;
                 }
                 // the number and name are read through the library pin, or the node
-                pins.push(CompPin::from_libpin(li, pi, ptype, no_connect, connection));
+                pins.push(CompPin::from_libpin(
+                    first + pi as u32,
+                    ptype,
+                    no_connect,
+                    connection,
+                ));
             }
         }
         // pins named by nodes but missing from the libpart (or no libpart at all)

@@ -211,32 +211,33 @@ fn model_items_stay_small() {
     use std::mem::size_of;
     assert!(size_of::<Str<'_>>() <= 16, "Str: {}", size_of::<Str<'_>>());
     assert!(
-        size_of::<Text<'_>>() <= 24,
+        size_of::<Text<'_>>() <= 16,
         "Text: {}",
         size_of::<Text<'_>>()
     );
-    assert!(size_of::<Option<Text<'_>>>() <= 24);
+    assert!(size_of::<Option<Text<'_>>>() <= 16);
+    assert!(size_of::<Texts<'_>>() <= 24);
     assert!(
         size_of::<Connection>() <= 12,
         "Connection: {}",
         size_of::<Connection>()
     );
     assert!(
-        size_of::<CompPin>() <= 24,
+        size_of::<CompPin>() <= 20,
         "CompPin: {}",
         size_of::<CompPin>()
     );
     assert!(
-        size_of::<Node<'_>>() <= 72,
+        size_of::<Node<'_>>() <= 64,
         "Node: {}",
         size_of::<Node<'_>>()
     );
     assert!(
-        size_of::<Component<'_>>() <= 288,
+        size_of::<Component<'_>>() <= 232,
         "Component: {}",
         size_of::<Component<'_>>()
     );
-    assert!(size_of::<Net<'_>>() <= 80, "Net: {}", size_of::<Net<'_>>());
+    assert!(size_of::<Net<'_>>() <= 64, "Net: {}", size_of::<Net<'_>>());
 }
 
 /// A text borrows the file where it is written as it reads, and owns its value only where
@@ -249,12 +250,12 @@ fn texts_borrow_the_file_unless_unescaped() {
   (nets (net (code "1") (name "A\\B") (node (ref "U1") (pin "1")))))"#;
     for nl in [read(text), super::read(text).unwrap()] {
         let c = &nl.components[0];
-        assert!(c.reference.s.is_borrowed());
+        assert!(c.reference.is_borrowed());
         assert_eq!(c.reference.as_str(), "U1");
         let v = c.value.as_ref().unwrap();
-        assert!(!v.s.is_borrowed());
+        assert!(!v.is_borrowed());
         assert_eq!(v.as_str(), "74HC\"00\"");
-        assert_eq!(&text[v.span.range()], r#""74HC\"00\"""#);
+        assert_eq!(&text[v.span().range()], r#""74HC\"00\"""#);
         assert_eq!(nl.nets[0].name.as_str(), "A\\B");
         assert_eq!(nl.net_by_name("A\\B"), Some(0));
         assert_eq!(nl.component("U1"), Some(0));
@@ -300,7 +301,7 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
         let pins: Vec<(&str, Option<&str>, Option<u32>)> = u1
             .pins
             .iter()
-            .map(|p| (p.num(&nl), p.name(&nl), p.libpin()))
+            .map(|p| (p.num(&nl), p.name(&nl), p.libpin(&nl)))
             .collect();
         assert_eq!(
             pins,
@@ -330,4 +331,19 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
         assert_eq!(nl.component("NT1"), Some(1));
         assert_eq!(nl.component("U9"), None);
     }
+}
+
+#[test]
+fn texts_keep_the_first_in_place() {
+    let mut t = Texts::default();
+    assert!(t.is_empty());
+    t.push(Text::borrowed("a", Span::new(0, 1)));
+    t.push(Text::borrowed("b", Span::new(2, 3)));
+    t.push(Text::borrowed("c", Span::new(4, 5)));
+    assert_eq!(t.len(), 3);
+    let all: Vec<&str> = t.iter().map(|x| x.as_str()).collect();
+    assert_eq!(all, ["a", "b", "c"]);
+    assert_eq!(t[1].as_str(), "b");
+    assert!(t.get(3).is_none());
+    assert_eq!(Texts::one(Text::borrowed("u", Span::new(0, 1))).len(), 1);
 }

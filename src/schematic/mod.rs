@@ -31,7 +31,7 @@ use thin_vec::ThinVec;
 use crate::diag::Diag;
 use crate::netlist::{
     Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, PinType,
-    SheetPath, Text,
+    SheetPath, Text, Texts,
 };
 use crate::source::{SourceFile, Span};
 
@@ -56,9 +56,9 @@ pub fn is_sheet(text: &str) -> bool {
 }
 
 fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
-    Text {
-        s: s.into().into(),
-        span,
+    match s.into() {
+        Cow::Borrowed(s) => Text::borrowed(s, span),
+        Cow::Owned(s) => Text::owned(&s, span),
     }
 }
 
@@ -700,7 +700,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             let net = &mut nets[idx];
             if net.nodes.is_empty() {
                 net.span = span;
-                net.name.span = span;
+                net.name.set_span(span);
             }
             net.nodes.push(Node {
                 reference: txt(pl.reference.clone(), pl.reference_span),
@@ -719,16 +719,16 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
-    nets.sort_by(|a, b| natural_cmp(&a.name.s, &b.name.s));
+    nets.sort_by(|a, b| natural_cmp(a.name.as_str(), b.name.as_str()));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
     fn key<'n>(n: &'n Node<'_>) -> (&'n str, &'n str, Option<&'n str>) {
-        (&n.reference.s, &n.pin, n.pinfunction.as_deref())
+        (n.reference.as_str(), &n.pin, n.pinfunction.as_deref())
     }
     for n in &mut nets {
         n.nodes.sort_by(|a, b| key(a).cmp(&key(b)));
         n.nodes
-            .dedup_by(|b, a| a.reference.s == b.reference.s && a.pin == b.pin);
+            .dedup_by(|b, a| a.reference.as_str() == b.reference.as_str() && a.pin == b.pin);
     }
 
     // components (one per reference, units merged) and library parts, as KiCad lists
@@ -787,7 +787,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 lib_of.insert(key, libparts.len());
                 let mut pins: Vec<ModelLibPin<'_>> = Vec::new();
                 for lp in pl.lib.pins.iter().filter(|p| p.style <= 1) {
-                    if pins.iter().any(|q| *q.num.s == *lp.num) {
+                    if pins.iter().any(|q| *q.num.as_str() == *lp.num) {
                         continue;
                     }
                     pins.push(ModelLibPin {
@@ -866,7 +866,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     names: Some(txt(u.path.clone(), placed.span)),
                     tstamps: None,
                 }),
-                tstamps: thin_vec::thin_vec![txt(placed.uuid.clone(), placed.span)],
+                tstamps: Texts::one(txt(placed.uuid.clone(), placed.span)),
                 span: placed.span,
                 libpart: None,
                 pins: Box::default(),
