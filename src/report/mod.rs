@@ -143,6 +143,56 @@ impl Place {
     }
 }
 
+/// The places of one file's findings, looked up one after another: a cursor over the line
+/// index, and a small table of the spans looked up lately with their places (findings of one
+/// kind point at the same pins of a part's description, over and over). A place is worked out
+/// the same way whether it comes from the table or not.
+pub(crate) struct Places<'a> {
+    lines: Option<LineCursor<'a>>,
+    recent: Vec<Option<(Span, Place)>>,
+}
+
+impl<'a> Places<'a> {
+    /// Spans kept (a power of two): a table slot per span, by its offsets.
+    pub(crate) const KEPT: usize = 64;
+
+    /// Places in `source` (`None`: the text is not known, so there are none).
+    pub(crate) fn new(source: Option<&'a SourceFile>) -> Places<'a> {
+        Places {
+            lines: source.map(SourceFile::cursor),
+            recent: Vec::new(),
+        }
+    }
+
+    /// The source looked up in.
+    pub(crate) fn source(&self) -> Option<&'a SourceFile> {
+        self.lines.as_ref().map(LineCursor::source)
+    }
+
+    /// The slot of `span` in the table.
+    pub(crate) fn slot(span: Span) -> usize {
+        let h = (span.start ^ span.end.rotate_left(16)).wrapping_mul(0x9e37_79b1);
+        (h >> 26) as usize % Self::KEPT
+    }
+
+    /// [`Place::of`] `span`, when the text is known.
+    pub(crate) fn of(&mut self, span: Span) -> Option<Place> {
+        let lines = self.lines.as_mut()?;
+        if self.recent.is_empty() {
+            self.recent = vec![None; Self::KEPT];
+        }
+        let slot = &mut self.recent[Self::slot(span)];
+        match slot {
+            Some((s, p)) if *s == span => Some(*p),
+            _ => {
+                let p = Place::at(lines, span);
+                *slot = Some((span, p));
+                Some(p)
+            }
+        }
+    }
+}
+
 /// The primary label of a diagnostic (the first primary one, else the first).
 pub fn primary_label(d: &Diag) -> Option<&Label> {
     d.labels.iter().find(|l| l.primary).or(d.labels.first())
@@ -168,6 +218,27 @@ pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: &Diag) -> &'a str {
 /// The place of the diagnostic's primary span, when it has one and the text is known.
 pub fn primary_place(d: &Diag, source: Option<&SourceFile>) -> Option<Place> {
     Some(Place::of(source?, primary_label(d)?.span))
+}
+
+/// The name of a file as the line formats show it ([`file_name`] of each finding), worked
+/// out once for each name and kept while the findings name the same file.
+pub(crate) struct ShownName<'a> {
+    last: Option<(&'a str, String)>,
+}
+
+impl<'a> ShownName<'a> {
+    pub(crate) fn new() -> ShownName<'a> {
+        ShownName { last: None }
+    }
+
+    /// `show(name)`, from the last call's result when `name` is the same.
+    pub(crate) fn get(&mut self, name: &'a str, show: impl FnOnce(&str) -> String) -> &str {
+        match &self.last {
+            Some((n, _)) if *n == name => {}
+            _ => self.last = Some((name, show(name))),
+        }
+        &self.last.as_ref().expect("set above").1
+    }
 }
 
 // ---------------------------------------------------------------------------
@@ -545,6 +616,34 @@ mod tests {
             rooted_path("<stdin>", root, Path::new("/repo")),
             RootedPath::Stdin
         );
+    }
+
+    /// Places from the table equal places worked out afresh, whatever the order of the
+    /// spans and however many share a slot.
+    #[test]
+    fn places_kept_equal_places_worked_out() {
+        let text: String = (0..300)
+            .map(|i| format!("(pin (num {i}) (name \"Ω{i}\"))\n"))
+            .collect();
+        let src = SourceFile::new("t", text.as_str());
+        let len = text.len();
+        let mut places = Places::new(Some(&src));
+        let mut state = 12345u64;
+        for _ in 0..5000 {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            let start = (state >> 33) as usize % (len + 10);
+            let end = start + (state >> 20) as usize % 90;
+            // a few spans again and again, and many once
+            let span = if state & 3 == 0 {
+                Span::new(start, end)
+            } else {
+                Span::new(start % 7 * 40, start % 7 * 40 + 12)
+            };
+            assert_eq!(places.of(span), Some(Place::of(&src, span)), "{span:?}");
+        }
+        assert_eq!(Places::new(None).of(Span::new(0, 1)), None);
     }
 
     #[test]

@@ -15,8 +15,33 @@ use std::io::{self, Write};
 
 use serde::Serialize;
 
+use crate::source::Span;
+
 /// How much text is gathered before it is handed on.
 const CHUNK: usize = 1 << 16;
+
+/// Pieces of text that many records repeat (the fields of a place many findings point at),
+/// each kept with the span it was written for and the writer's state it was written in: a
+/// small table with a slot per span, by its offsets.
+pub(crate) struct Repeats {
+    slots: Vec<Option<Kept>>,
+}
+
+struct Kept {
+    span: Span,
+    /// The depth, and whether the open object had no member, before the piece.
+    depth: usize,
+    first: bool,
+    /// Whether it still had none after.
+    first_after: bool,
+    text: Vec<u8>,
+}
+
+impl Repeats {
+    pub(crate) fn new() -> Repeats {
+        Repeats { slots: Vec::new() }
+    }
+}
 
 /// A JSON writer in the reports' pretty layout. Callers open and close objects and arrays
 /// and write keys and values in order; the layout (commas, line breaks, indents) is its own.
@@ -190,6 +215,40 @@ impl<'o> PrettyOut<'o> {
             *d = HEX[((h >> (60 - 4 * i)) & 0xf) as usize];
         }
         self.buf.extend_from_slice(&digits);
+    }
+
+    /// What `write` writes for `span` here, copied from `kept` when it was written for the
+    /// same span at the same depth and place in its object. `write` must write the same text
+    /// whenever it is given the same span in the same state, close what it opens and not hand
+    /// anything on.
+    pub(crate) fn repeat(&mut self, kept: &mut Repeats, span: Span, write: impl FnOnce(&mut Self)) {
+        if kept.slots.is_empty() {
+            kept.slots = (0..crate::report::Places::KEPT).map(|_| None).collect();
+        }
+        let slot = &mut kept.slots[crate::report::Places::slot(span)];
+        if let Some(k) = slot {
+            if k.span == span && k.depth == self.depth && k.first == self.first {
+                self.buf.extend_from_slice(&k.text);
+                self.first = k.first_after;
+                return;
+            }
+        }
+        let (depth, first, from) = (self.depth, self.first, self.buf.len());
+        write(self);
+        debug_assert_eq!(self.depth, depth, "a repeated piece is closed");
+        let k = slot.get_or_insert_with(|| Kept {
+            span,
+            depth,
+            first,
+            first_after: first,
+            text: Vec::new(),
+        });
+        k.span = span;
+        k.depth = depth;
+        k.first = first;
+        k.first_after = self.first;
+        k.text.clear();
+        k.text.extend_from_slice(&self.buf[from..]);
     }
 
     /// Any value, through serde_json in the same layout and escaped as [`PrettyOut::str`]
