@@ -342,38 +342,39 @@ fn shape_into(d: &Diag, out: &mut String) {
     // the separators of `shape_chars`, in ASCII (`char::is_whitespace` takes 0x09-0x0d and
     // the space)
     let sep = |b: u8| matches!(b, b'\t'..=b'\r' | b' ' | b'`' | b',' | b'(' | b')');
-    let bytes = d.message.as_bytes();
+    let (m, bytes) = (&*d.message, d.message.as_bytes());
     let mut in_quote = false;
-    let mut from = 0;
-    while from < bytes.len() {
-        let to = bytes[from..]
-            .iter()
-            .position(|&b| sep(b))
-            .map_or(bytes.len(), |i| from + i + 1);
-        let word = &d.message[from..to];
-        from = to;
-        let w = word.as_bytes();
-        if w[0] == b'`' || in_quote {
-            in_quote = w[w.len() - 1] != b'`' || (w.len() == 1 && !in_quote);
+    // the text up to `run` is written; the word being read starts at `from`, and whether it
+    // holds a digit or a point so far (a separator is neither)
+    let (mut run, mut from, mut digit, mut point) = (0, 0, false, false);
+    let mut word = |from: usize, end: usize, core_end: usize, digit: bool, point: bool| {
+        let (first, last) = (bytes[from], bytes[end - 1]);
+        if first == b'`' || in_quote {
+            in_quote = last != b'`' || (end - from == 1 && !in_quote);
+            out.push_str(&m[run..from]);
             out.push('@');
+            run = end;
+        } else if digit && !(point && (first.is_ascii_digit() || first == b'-')) {
+            // the word without its separator (a backquote stays) holds a digit and is no
+            // figure with a decimal point
+            out.push_str(&m[run..from]);
+            out.push('#');
+            run = core_end;
+        }
+    };
+    for (i, &b) in bytes.iter().enumerate() {
+        if !sep(b) {
+            digit |= b.is_ascii_digit();
+            point |= b == b'.';
             continue;
         }
-        // the word without its separator (a backquote stays)
-        let core = match w[w.len() - 1] {
-            b if sep(b) && b != b'`' => &w[..w.len() - 1],
-            _ => w,
-        };
-        let decimal = core.contains(&b'.')
-            && core
-                .first()
-                .is_some_and(|&c| c.is_ascii_digit() || c == b'-');
-        if core.iter().any(u8::is_ascii_digit) && !decimal {
-            out.push('#');
-            out.push_str(&word[core.len()..]);
-        } else {
-            out.push_str(word);
-        }
+        word(from, i + 1, if b == b'`' { i + 1 } else { i }, digit, point);
+        (from, digit, point) = (i + 1, false, false);
     }
+    if from < bytes.len() {
+        word(from, bytes.len(), bytes.len(), digit, point);
+    }
+    out.push_str(&m[run..]);
 }
 
 /// The words of [`shape`] for any message, a character at a time.

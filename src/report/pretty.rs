@@ -277,8 +277,21 @@ fn escaped(s: &str) -> String {
 /// few strings with those bytes are clean all the same (`µ`, `Ω`); they take the slow way.
 fn clean(bytes: &[u8]) -> bool {
     const BLOCK: usize = 16;
-    if bytes.len() < BLOCK {
-        return !bytes.iter().any(|&b| special(b));
+    let n = bytes.len();
+    if n < BLOCK {
+        // a short string (a pin, a label) in one block: its first and last 8 (or 4) bytes,
+        // overlapping, which cover it, with plain bytes after
+        let mut block = [b'a'; BLOCK];
+        if n >= 8 {
+            block[..8].copy_from_slice(&bytes[..8]);
+            block[8..].copy_from_slice(&bytes[n - 8..]);
+        } else if n >= 4 {
+            block[..4].copy_from_slice(&bytes[..4]);
+            block[4..8].copy_from_slice(&bytes[n - 4..]);
+        } else {
+            return !bytes.iter().any(|&b| special(b));
+        }
+        return !any_special(&block);
     }
     let mut blocks = bytes.chunks_exact(BLOCK);
     if (&mut blocks).any(any_special) {
@@ -354,6 +367,23 @@ mod tests {
             }
         }
     }
+
+    /// Strings shorter than a block are checked whole: any special byte, at any place of a
+    /// string of any short length, is seen.
+    #[test]
+    fn short_strings_are_checked_at_every_byte() {
+        for len in 0..BLOCK_TEST {
+            for at in 0..len {
+                for b in 0..=255u8 {
+                    let mut s = vec![b'a'; len];
+                    s[at] = b;
+                    assert_eq!(clean(&s), !special(b), "byte {b:#x} at {at} of {len}");
+                }
+            }
+            assert!(clean(&vec![b'a'; len]));
+        }
+    }
+    const BLOCK_TEST: usize = 17;
 
     #[test]
     fn every_character_that_is_escaped_is_escaped_as_the_serde_way() {
