@@ -150,6 +150,24 @@ mod tests {
     use super::*;
     use proptest::prelude::*;
 
+    /// The report is the line of each finding, one after another.
+    #[test]
+    fn the_report_is_each_findings_line() {
+        let files = super::super::sample_outcomes();
+        let opts = ReportOptions::new(super::super::Format::Github, "/repo");
+        let mut want = String::new();
+        for f in &files {
+            for d in f.fatal.iter().chain(&f.diags) {
+                want.push_str(&line(f, d, &opts));
+                want.push('\n');
+            }
+        }
+        let mut out = Vec::new();
+        write(&opts, &files, &mut out).unwrap();
+        assert!(want.len() > 2 * CHUNK && want.contains("file=sub/\\u{1b}[2Jb.kicad_sch,line="));
+        assert_eq!(String::from_utf8(out).unwrap(), want);
+    }
+
     proptest! {
         /// Texts copied at once are those escaping one character at a time leaves alone.
         #[test]

@@ -87,8 +87,11 @@ impl<'o> PrettyOut<'o> {
     /// Hands the gathered text on once there is a chunk of it. Call between records.
     pub(crate) fn flush_some(&mut self) -> io::Result<()> {
         if self.buf.len() >= CHUNK {
-            self.out.write_all(&self.buf)?;
-            self.buf.clear();
+            // up to the last line break: a line-buffered standard output then hands the
+            // piece on in one write and keeps nothing back to write before the next
+            let cut = memchr::memrchr(b'\n', &self.buf).map_or(self.buf.len(), |i| i + 1);
+            self.out.write_all(&self.buf[..cut])?;
+            self.buf.drain(..cut);
         }
         Ok(())
     }
@@ -105,38 +108,54 @@ impl<'o> PrettyOut<'o> {
     pub(crate) fn key(&mut self, key: &'static str) -> &mut Self {
         debug_assert!(clean(key.as_bytes()), "a key is a plain word");
         self.line();
-        self.buf.push(b'"');
-        self.buf.extend_from_slice(key.as_bytes());
-        self.buf.extend_from_slice(b"\": ");
+        // `"key": ` as one copy of a known length (most keys are short)
+        const ROOM: usize = 24;
+        if key.len() + 4 <= ROOM {
+            let mut quoted = [b' '; ROOM];
+            quoted[0] = b'"';
+            quoted[1..1 + key.len()].copy_from_slice(key.as_bytes());
+            quoted[1 + key.len()..3 + key.len()].copy_from_slice(b"\":");
+            self.buf.extend_from_slice(&quoted[..key.len() + 4]);
+        } else {
+            self.buf.push(b'"');
+            self.buf.extend_from_slice(key.as_bytes());
+            self.buf.extend_from_slice(b"\": ");
+        }
         self
     }
 
     /// Starts the next item of an array.
+    #[inline]
     pub(crate) fn item(&mut self) -> &mut Self {
         self.line();
         self
     }
 
+    #[inline]
     pub(crate) fn open_object(&mut self) {
         self.depth += 1;
         self.first = true;
         self.buf.push(b'{');
     }
 
+    #[inline]
     pub(crate) fn close_object(&mut self) {
         self.close(b'}');
     }
 
+    #[inline]
     pub(crate) fn open_array(&mut self) {
         self.depth += 1;
         self.first = true;
         self.buf.push(b'[');
     }
 
+    #[inline]
     pub(crate) fn close_array(&mut self) {
         self.close(b']');
     }
 
+    #[inline]
     fn close(&mut self, bracket: u8) {
         self.depth -= 1;
         if !self.first {
@@ -209,11 +228,9 @@ impl<'o> PrettyOut<'o> {
 
     /// A fingerprint, as 16 hex digits.
     pub(crate) fn hex64(&mut self, h: u64) {
-        const HEX: &[u8; 16] = b"0123456789abcdef";
         let mut digits = [b'"'; 18];
-        for (i, d) in digits[1..17].iter_mut().enumerate() {
-            *d = HEX[((h >> (60 - 4 * i)) & 0xf) as usize];
-        }
+        digits[1..9].copy_from_slice(&hex8(h >> 32));
+        digits[9..17].copy_from_slice(&hex8(h & 0xffff_ffff));
         self.buf.extend_from_slice(&digits);
     }
 
@@ -265,6 +282,18 @@ impl<'o> PrettyOut<'o> {
             .extend_from_slice(super::json::escape_unsafe(text).as_bytes());
         Ok(())
     }
+}
+
+/// The 8 lower-case hex digits of 32-bit `x`, most significant first: each nibble spread into
+/// a byte of its own, then made a digit, 8 at a time.
+fn hex8(x: u64) -> [u8; 8] {
+    let x = (x | (x << 16)) & 0x0000_ffff_0000_ffff;
+    let x = (x | (x << 8)) & 0x00ff_00ff_00ff_00ff;
+    let x = (x | (x << 4)) & 0x0f0f_0f0f_0f0f_0f0f;
+    // 1 in each byte whose nibble is 10 or more
+    let letters = ((x + 0x0606_0606_0606_0606) >> 4) & 0x0101_0101_0101_0101;
+    // nibble i sits in byte i: the first digit is the highest byte
+    (x + 0x3030_3030_3030_3030 + letters * (b'a' - b'0' - 10) as u64).to_be_bytes()
 }
 
 /// `s` as a JSON string, the way the serde path writes it.
@@ -365,6 +394,26 @@ mod tests {
                 block[at] = b;
                 assert_eq!(any_special(&block), special(b), "byte {b:#x} at {at}");
             }
+        }
+    }
+
+    /// The digits of a fingerprint are those `format!` writes, for every nibble at every place.
+    #[test]
+    fn hex_digits_are_those_format_writes() {
+        let mut values: Vec<u64> = (0..16u64)
+            .flat_map(|n| (0..16).map(move |i| n << (4 * i)))
+            .collect();
+        let mut state = 7u64;
+        for _ in 0..1000 {
+            state = state.wrapping_mul(6364136223846793005).wrapping_add(1);
+            values.push(state);
+        }
+        for h in values.into_iter().chain([0, u64::MAX]) {
+            let mut out = Vec::new();
+            let mut w = PrettyOut::new(&mut out);
+            w.hex64(h);
+            w.finish().unwrap();
+            assert_eq!(String::from_utf8(out).unwrap(), format!("\"{h:016x}\"\n"));
         }
     }
 

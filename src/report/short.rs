@@ -65,3 +65,25 @@ pub fn write(files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
 
 /// How much text is gathered before it is handed on.
 const CHUNK: usize = 1 << 16;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The report is the line of each finding, one after another.
+    #[test]
+    fn the_report_is_each_findings_line() {
+        let files = super::super::sample_outcomes();
+        let mut want = String::new();
+        for f in &files {
+            for d in f.fatal.iter().chain(&f.diags) {
+                want.push_str(&line(f, d));
+                want.push('\n');
+            }
+        }
+        let mut out = Vec::new();
+        write(&files, &mut out).unwrap();
+        assert!(want.len() > 2 * CHUNK && want.contains("sub/\\u{1b}[2Jb.kicad_sch:"));
+        assert_eq!(String::from_utf8(out).unwrap(), want);
+    }
+}
