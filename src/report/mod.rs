@@ -681,8 +681,8 @@ mod tests {
             .iter()
             .chain(&sample_outcomes()[0].diags[..40])
             .chain([
-                &Diag::warning("c", "m"),
-                &Diag::warning("c", "m").at(Span::new(0, 9), "x"),
+                &Diag::warning("floating-cmos-input", "m"),
+                &Diag::warning("floating-cmos-input", "m").at(Span::new(0, 9), "x"),
             ])
         {
             let src = SourceFile::new("t", "(a  b\n c)");
