@@ -6,7 +6,7 @@ use std::borrow::Cow;
 /// Replaces control characters (C0 except tab, DEL, C1) with visible escapes such as `\u{1b}`,
 /// so no escape sequence from an input reaches a terminal.
 pub fn sanitize(s: &str) -> Cow<'_, str> {
-    if !s.chars().any(is_unsafe) {
+    if !may_be_unsafe(s.as_bytes()) || !s.chars().any(is_unsafe) {
         return Cow::Borrowed(s);
     }
     let mut out = String::with_capacity(s.len() + 8);
@@ -18,6 +18,16 @@ pub fn sanitize(s: &str) -> Cow<'_, str> {
         }
     }
     Cow::Owned(out)
+}
+
+/// Whether UTF-8 `bytes` may hold a character [`is_unsafe`] takes: a C0 control other than a
+/// tab, DEL, or the first byte of a C1 control (0xC2) or of a bidi override (0xE2). Looked at
+/// without an early exit, which the compiler runs many bytes at a time; a text with such a
+/// byte is then looked at character by character.
+pub(crate) fn may_be_unsafe(bytes: &[u8]) -> bool {
+    bytes.iter().fold(false, |any, &b| {
+        any | ((b < 0x20) & (b != b'\t')) | (b == 0x7f) | (b & 0xdf == 0xc2)
+    })
 }
 
 fn is_unsafe(c: char) -> bool {
@@ -52,6 +62,25 @@ pub fn closest<'a>(want: &str, names: impl IntoIterator<Item = &'a str>, n: usiz
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The byte check never passes a character the character check takes, alone or inside
+    /// a longer text, so the fast path changes no output.
+    #[test]
+    fn the_byte_check_sees_every_unsafe_character() {
+        for c in (0u32..0x3100)
+            .chain([0xfeff, 0xfffd, 0x1f600])
+            .filter_map(char::from_u32)
+        {
+            let s = format!("{}{c}{}", "a".repeat(17), "b".repeat(9));
+            if is_unsafe(c) {
+                assert!(may_be_unsafe(c.to_string().as_bytes()), "{c:?}");
+                assert!(may_be_unsafe(s.as_bytes()), "{c:?} inside");
+                assert_ne!(sanitize(&s), s.as_str(), "{c:?} is escaped");
+            }
+        }
+        assert!(!may_be_unsafe(b"gate C of U0 (74HC00) is unused\t"));
+        assert!(may_be_unsafe(b"x\x1b[31m"));
+    }
 
     #[test]
     fn closest_names_within_a_third_of_the_length() {

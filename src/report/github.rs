@@ -10,7 +10,7 @@
 
 use std::io::{self, Write};
 
-use super::{display_path, primary_place, ReportOptions};
+use super::{display_path, primary_label, primary_place, Places, ReportOptions, ShownName};
 use crate::diag::{Diag, Severity};
 use crate::pipeline::FileOutcome;
 
@@ -25,6 +25,26 @@ pub fn command(s: Severity) -> &'static str {
 
 fn escape_with(s: &str, property: bool) -> String {
     let mut out = String::with_capacity(s.len());
+    escape_into(&mut out, s, property);
+    out
+}
+
+/// [`escape_with`] appended to `out`. A text with no byte that could be escaped (most) is
+/// copied at once; any other is escaped character by character.
+fn escape_into(out: &mut String, s: &str, property: bool) {
+    let plain = !crate::text::may_be_unsafe(s.as_bytes())
+        && !s.bytes().fold(false, |any, b| {
+            any | (b == b'%') | (property & ((b == b':') | (b == b',')))
+        });
+    if plain {
+        out.push_str(s);
+    } else {
+        escape_chars(out, s, property);
+    }
+}
+
+/// [`escape_into`] one character at a time.
+fn escape_chars(out: &mut String, s: &str, property: bool) {
     for c in s.chars() {
         match c {
             '%' => out.push_str("%25"),
@@ -35,7 +55,6 @@ fn escape_with(s: &str, property: bool) -> String {
             c => out.push_str(&crate::text::sanitize(c.encode_utf8(&mut [0; 4]))),
         }
     }
-    out
 }
 
 /// Escapes a message (the text after `::`).
@@ -78,10 +97,89 @@ pub fn line(f: &FileOutcome, d: &Diag, opts: &ReportOptions) -> String {
 }
 
 pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
+    // the lines of [`line`], gathered and handed on in large pieces; a file's places are
+    // looked up through one cursor, its path worked out once
+    let mut buf = String::with_capacity(CHUNK + 1024);
     for f in files {
+        let mut places = Places::new(f.source.as_ref());
+        let mut shown = ShownName::new();
         for d in f.fatal.iter().chain(&f.diags) {
-            writeln!(out, "{}", line(f, d, opts))?;
+            buf.push_str("::");
+            buf.push_str(command(d.severity));
+            buf.push_str(" file=");
+            buf.push_str(shown.get(super::file_name(f, d), |n| {
+                escape_property(&display_path(n, opts))
+            }));
+            if let Some(p) = primary_label(d).and_then(|l| places.of(l.span)) {
+                let mut n = itoa::Buffer::new();
+                for (key, v) in [
+                    (",line=", p.line),
+                    (",col=", p.column),
+                    (",endLine=", p.end_line),
+                    (",endColumn=", p.end_column),
+                ] {
+                    buf.push_str(key);
+                    buf.push_str(n.format(v));
+                }
+            }
+            buf.push_str(",title=");
+            escape_into(&mut buf, super::TOOL_NAME, true);
+            escape_into(&mut buf, " ", true);
+            escape_into(&mut buf, &d.code, true);
+            buf.push_str("::");
+            escape_into(&mut buf, &d.message, false);
+            if let Some(h) = &d.help {
+                escape_into(&mut buf, "\nhelp: ", false);
+                escape_into(&mut buf, h, false);
+            }
+            buf.push('\n');
+            if buf.len() >= CHUNK {
+                out.write_all(buf.as_bytes())?;
+                buf.clear();
+            }
         }
     }
-    Ok(())
+    out.write_all(buf.as_bytes())
+}
+
+/// How much text is gathered before it is handed on.
+const CHUNK: usize = 1 << 16;
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    /// The report is the line of each finding, one after another.
+    #[test]
+    fn the_report_is_each_findings_line() {
+        let files = super::super::sample_outcomes();
+        let opts = ReportOptions::new(super::super::Format::Github, "/repo");
+        let mut want = String::new();
+        for f in &files {
+            for d in f.fatal.iter().chain(&f.diags) {
+                want.push_str(&line(f, d, &opts));
+                want.push('\n');
+            }
+        }
+        let mut out = Vec::new();
+        write(&opts, &files, &mut out).unwrap();
+        assert!(want.len() > 2 * CHUNK && want.contains("file=sub/\\u{1b}[2Jb.kicad_sch,line="));
+        assert_eq!(String::from_utf8(out).unwrap(), want);
+    }
+
+    proptest! {
+        /// Texts copied at once are those escaping one character at a time leaves alone.
+        #[test]
+        fn texts_copied_at_once_are_escaped_as_one_character_at_a_time(
+            s in "\\PC*|[ -~\t\r\n\u{7f}-\u{a0}\u{2000}-\u{2070}%:,µΩ]{0,60}",
+            property: bool,
+        ) {
+            let mut fast = String::new();
+            escape_into(&mut fast, &s, property);
+            let mut slow = String::new();
+            escape_chars(&mut slow, &s, property);
+            prop_assert_eq!(fast, slow);
+        }
+    }
 }

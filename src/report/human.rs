@@ -256,11 +256,12 @@ fn write_file_with(
                     .as_deref()
                     .or_else(|| o.pins.first().map(|p| &**p))
                     .or_else(|| o.message.split_whitespace().next())
-                    .map(|n| sanitize(&n).into_owned())
+                    .map(sanitize)
                     .unwrap_or_default();
-                match at_index.get(&at) {
+                match at_index.get(&*at) {
                     Some(&k) => nets[k].1 += 1,
                     None => {
+                        let at = at.into_owned();
                         at_index.insert(at.clone(), nets.len());
                         nets.push((at, 1));
                     }
@@ -314,10 +315,72 @@ const FOLD_LIST: usize = 12;
 /// (every word that holds a digit, such as `U12`, `A7` or `/D3`, and quoted net names),
 /// while figures with a decimal point (`2.70 V`) stay: findings of one shape are one cause
 /// repeated across a bus or a row of parts.
+#[cfg(test)]
 fn shape(d: &Diag) -> String {
-    let mut out = format!("{}|{:?}|", d.code, d.severity);
+    let mut out = String::new();
+    shape_into(d, &mut out);
+    out
+}
+
+/// [`shape`] written into `out` (cleared first), so one buffer serves every finding. A
+/// message in ASCII (most) is cut into words a byte at a time; any other goes the way of
+/// [`shape_chars`].
+fn shape_into(d: &Diag, out: &mut String) {
+    out.clear();
+    out.push_str(&d.code);
+    out.push('|');
+    out.push_str(match d.severity {
+        crate::diag::Severity::Info => "Info",
+        crate::diag::Severity::Warning => "Warning",
+        crate::diag::Severity::Error => "Error",
+    });
+    out.push('|');
+    if !d.message.is_ascii() {
+        shape_chars(&d.message, out);
+        return;
+    }
+    // the separators of `shape_chars`, in ASCII (`char::is_whitespace` takes 0x09-0x0d and
+    // the space)
+    let sep = |b: u8| matches!(b, b'\t'..=b'\r' | b' ' | b'`' | b',' | b'(' | b')');
+    let (m, bytes) = (&*d.message, d.message.as_bytes());
     let mut in_quote = false;
-    for word in d.message.split_inclusive(|c: char| {
+    // the text up to `run` is written; the word being read starts at `from`, and whether it
+    // holds a digit or a point so far (a separator is neither)
+    let (mut run, mut from, mut digit, mut point) = (0, 0, false, false);
+    let mut word = |from: usize, end: usize, core_end: usize, digit: bool, point: bool| {
+        let (first, last) = (bytes[from], bytes[end - 1]);
+        if first == b'`' || in_quote {
+            in_quote = last != b'`' || (end - from == 1 && !in_quote);
+            out.push_str(&m[run..from]);
+            out.push('@');
+            run = end;
+        } else if digit && !(point && (first.is_ascii_digit() || first == b'-')) {
+            // the word without its separator (a backquote stays) holds a digit and is no
+            // figure with a decimal point
+            out.push_str(&m[run..from]);
+            out.push('#');
+            run = core_end;
+        }
+    };
+    for (i, &b) in bytes.iter().enumerate() {
+        if !sep(b) {
+            digit |= b.is_ascii_digit();
+            point |= b == b'.';
+            continue;
+        }
+        word(from, i + 1, if b == b'`' { i + 1 } else { i }, digit, point);
+        (from, digit, point) = (i + 1, false, false);
+    }
+    if from < bytes.len() {
+        word(from, bytes.len(), bytes.len(), digit, point);
+    }
+    out.push_str(&m[run..]);
+}
+
+/// The words of [`shape`] for any message, a character at a time.
+fn shape_chars(message: &str, out: &mut String) {
+    let mut in_quote = false;
+    for word in message.split_inclusive(|c: char| {
         c.is_whitespace() || c == '`' || c == ',' || c == '(' || c == ')'
     }) {
         if word.starts_with('`') || in_quote {
@@ -339,13 +402,13 @@ fn shape(d: &Diag) -> String {
             out.push_str(word);
         }
     }
-    out
 }
 
 /// Groups findings of one shape, in the order of their first appearance; groups smaller than
 /// [`FOLD_AT`] are split back into single findings.
 fn fold(diags: &[Diag]) -> Vec<Vec<usize>> {
     let mut by_shape: rustc_hash::FxHashMap<String, usize> = Default::default();
+    let mut key = String::new();
     let mut groups: Vec<Vec<usize>> = Vec::new();
     for (i, d) in diags.iter().enumerate() {
         // only the checks' findings fold: every problem with the input is shown in full
@@ -353,10 +416,11 @@ fn fold(diags: &[Diag]) -> Vec<Vec<usize>> {
             groups.push(vec![i]);
             continue;
         }
-        match by_shape.entry(shape(d)) {
-            std::collections::hash_map::Entry::Occupied(e) => groups[*e.get()].push(i),
-            std::collections::hash_map::Entry::Vacant(e) => {
-                e.insert(groups.len());
+        shape_into(d, &mut key);
+        match by_shape.get(key.as_str()) {
+            Some(&g) => groups[g].push(i),
+            None => {
+                by_shape.insert(key.clone(), groups.len());
                 groups.push(vec![i]);
             }
         }
@@ -421,6 +485,19 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    proptest::proptest! {
+        /// The shape cut a byte at a time equals the shape cut a character at a time.
+        #[test]
+        fn ascii_shapes_are_the_shapes_cut_by_characters(
+            m in "[a-zA-Z0-9 .,()`/\\-\t\n\x0b\x0c\r_:;]{0,60}|[UR0-9 .`-]{0,20}|\\PC{0,30}"
+        ) {
+            let d = Diag::warning("floating-cmos-input", m.clone());
+            let mut want = format!("{}|{:?}|", d.code, d.severity);
+            shape_chars(&m, &mut want);
+            proptest::prop_assert_eq!(shape(&d), want);
+        }
+    }
 
     #[test]
     fn stand_ins_keep_every_byte_offset() {

@@ -14,14 +14,14 @@ use std::io::{self, Write};
 #[cfg(test)]
 use serde::Serialize;
 
-use super::pretty::PrettyOut;
+use super::pretty::{PrettyOut, Repeats};
 use super::{
-    fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, Place,
+    fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, Places,
     ReportOptions, Totals, TOOL_NAME, TOOL_VERSION,
 };
 use crate::diag::Diag;
 use crate::pipeline::FileOutcome;
-use crate::source::{LineCursor, SourceFile, Span};
+use crate::source::Span;
 
 /// The version of this document's layout.
 pub const FORMAT_VERSION: u32 = 1;
@@ -55,11 +55,10 @@ impl PlaceOut<'_> {
 }
 
 impl<'a> PlaceOut<'a> {
-    fn of(lines: Option<&mut LineCursor<'a>>, span: Option<Span>) -> PlaceOut<'a> {
-        match (lines, span) {
-            (Some(lines), Some(span)) => {
-                let p = Place::at(lines, span);
-                let src = lines.source();
+    fn of(places: &mut Places<'a>, span: Option<Span>) -> PlaceOut<'a> {
+        match (span, places.source()) {
+            (Some(span), Some(src)) => {
+                let p = places.of(span).expect("the text is known");
                 PlaceOut {
                     file: (!src.files().is_empty()).then(|| src.file_at(span.start as usize)),
                     line: Some(p.line),
@@ -73,13 +72,30 @@ impl<'a> PlaceOut<'a> {
             _ => PlaceOut::default(),
         }
     }
+
+    /// The place's fields, copied from `kept` when the same span was written in the same
+    /// state before (the fields depend on nothing but the span and the source).
+    fn write_at(
+        w: &mut PrettyOut<'_>,
+        places: &mut Places<'a>,
+        kept: &mut Repeats,
+        span: Option<Span>,
+    ) {
+        match span {
+            Some(span) if places.source().is_some() => {
+                w.repeat(kept, span, |w| PlaceOut::of(places, Some(span)).write(w))
+            }
+            _ => PlaceOut::default().write(w),
+        }
+    }
 }
 
 /// One finding as an object: its place's fields sit among its own.
 fn write_finding<'a>(
     w: &mut PrettyOut<'_>,
     d: &'a Diag,
-    mut lines: Option<&mut LineCursor<'a>>,
+    places: &mut Places<'a>,
+    kept: &mut Repeats,
     fingerprint: u64,
 ) {
     let primary = primary_label(d);
@@ -91,13 +107,13 @@ fn write_finding<'a>(
     w.key("pins").strs(d.pins.iter().map(|p| &**p));
     w.key("label")
         .opt_str(primary.map(|l| &*l.text).filter(|t| !t.is_empty()));
-    PlaceOut::of(lines.as_deref_mut(), primary.map(|l| l.span)).write(w);
+    PlaceOut::write_at(w, places, kept, primary.map(|l| l.span));
     w.key("help").opt_str(d.help.as_deref());
     w.key("related").open_array();
     for l in related_labels(d) {
         w.item().open_object();
         w.key("message").str(&l.text);
-        PlaceOut::of(lines.as_deref_mut(), Some(l.span)).write(w);
+        PlaceOut::write_at(w, places, kept, Some(l.span));
         w.close_object();
     }
     w.close_array();
@@ -368,7 +384,7 @@ fn write_run(
         match &f.fatal {
             Some(d) => {
                 let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
-                write_finding(&mut w, d, src.map(SourceFile::cursor).as_mut(), fp);
+                write_finding(&mut w, d, &mut Places::new(src), &mut Repeats::new(), fp);
             }
             None => w.null(),
         }
@@ -387,10 +403,11 @@ fn write_run(
         }
         w.key("findings").open_array();
         // findings of one part come together: their lines are looked up near each other
-        let mut lines = src.map(SourceFile::cursor);
+        let mut places = Places::new(src);
+        let mut kept = Repeats::new();
         for (d, fp) in f.diags.iter().zip(fingerprint_hashes(f)) {
             w.item();
-            write_finding(&mut w, d, lines.as_mut(), fp);
+            write_finding(&mut w, d, &mut places, &mut kept, fp);
             w.flush_some()?;
         }
         w.close_array();

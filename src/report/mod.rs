@@ -143,6 +143,56 @@ impl Place {
     }
 }
 
+/// The places of one file's findings, looked up one after another: a cursor over the line
+/// index, and a small table of the spans looked up lately with their places (findings of one
+/// kind point at the same pins of a part's description, over and over). A place is worked out
+/// the same way whether it comes from the table or not.
+pub(crate) struct Places<'a> {
+    lines: Option<LineCursor<'a>>,
+    recent: Vec<Option<(Span, Place)>>,
+}
+
+impl<'a> Places<'a> {
+    /// Spans kept (a power of two): a table slot per span, by its offsets.
+    pub(crate) const KEPT: usize = 64;
+
+    /// Places in `source` (`None`: the text is not known, so there are none).
+    pub(crate) fn new(source: Option<&'a SourceFile>) -> Places<'a> {
+        Places {
+            lines: source.map(SourceFile::cursor),
+            recent: Vec::new(),
+        }
+    }
+
+    /// The source looked up in.
+    pub(crate) fn source(&self) -> Option<&'a SourceFile> {
+        self.lines.as_ref().map(LineCursor::source)
+    }
+
+    /// The slot of `span` in the table.
+    pub(crate) fn slot(span: Span) -> usize {
+        let h = (span.start ^ span.end.rotate_left(16)).wrapping_mul(0x9e37_79b1);
+        (h >> 26) as usize % Self::KEPT
+    }
+
+    /// [`Place::of`] `span`, when the text is known.
+    pub(crate) fn of(&mut self, span: Span) -> Option<Place> {
+        let lines = self.lines.as_mut()?;
+        if self.recent.is_empty() {
+            self.recent = vec![None; Self::KEPT];
+        }
+        let slot = &mut self.recent[Self::slot(span)];
+        match slot {
+            Some((s, p)) if *s == span => Some(*p),
+            _ => {
+                let p = Place::at(lines, span);
+                *slot = Some((span, p));
+                Some(p)
+            }
+        }
+    }
+}
+
 /// The primary label of a diagnostic (the first primary one, else the first).
 pub fn primary_label(d: &Diag) -> Option<&Label> {
     d.labels.iter().find(|l| l.primary).or(d.labels.first())
@@ -168,6 +218,27 @@ pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: &Diag) -> &'a str {
 /// The place of the diagnostic's primary span, when it has one and the text is known.
 pub fn primary_place(d: &Diag, source: Option<&SourceFile>) -> Option<Place> {
     Some(Place::of(source?, primary_label(d)?.span))
+}
+
+/// The name of a file as the line formats show it ([`file_name`] of each finding), worked
+/// out once for each name and kept while the findings name the same file.
+pub(crate) struct ShownName<'a> {
+    last: Option<(&'a str, String)>,
+}
+
+impl<'a> ShownName<'a> {
+    pub(crate) fn new() -> ShownName<'a> {
+        ShownName { last: None }
+    }
+
+    /// `show(name)`, from the last call's result when `name` is the same.
+    pub(crate) fn get(&mut self, name: &'a str, show: impl FnOnce(&str) -> String) -> &str {
+        match &self.last {
+            Some((n, _)) if *n == name => {}
+            _ => self.last = Some((name, show(name))),
+        }
+        &self.last.as_ref().expect("set above").1
+    }
 }
 
 // ---------------------------------------------------------------------------
@@ -234,7 +305,7 @@ pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
 
 /// [`fingerprints`] as numbers, for a reporter that writes each as it goes.
 pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
-    key_ranks(f, fnv1a64)
+    key_ranks(f, fingerprint_hash)
         .into_iter()
         .map(|(h, n)| {
             // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
@@ -247,12 +318,31 @@ pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
         .collect()
 }
 
+/// FNV-1a 64 of [`fingerprint_key`]: of its pieces one after another, with no key written,
+/// when the finding names a net or a pin (`key` is then left as it was); otherwise of the key
+/// written into `key`.
+fn fingerprint_hash(d: &Diag, source: Option<&SourceFile>, key: &mut String) -> u64 {
+    if d.net.is_none() && d.pins.is_empty() {
+        write_fingerprint_key(d, source, key);
+        return fnv1a64(key.as_bytes());
+    }
+    let mut h = fnv1a64_more(fnv1a64(d.code.as_bytes()), b"\x1f");
+    h = fnv1a64_more(h, d.net.as_deref().unwrap_or("").as_bytes());
+    for p in &d.pins {
+        h = fnv1a64_more(fnv1a64_more(h, b"\x1f"), p.as_bytes());
+    }
+    h
+}
+
 /// Each finding's `hash` of its key, and its rank among the file's findings with that key.
 ///
 /// Keys are counted by their hash, each hash with the first finding that had it; a hash met
 /// again is checked against that finding's key, and a different key with the same hash is
 /// counted apart by its text. No key is kept as text unless two differ with one hash.
-fn key_ranks(f: &FileOutcome, hash: fn(&[u8]) -> u64) -> Vec<(u64, usize)> {
+fn key_ranks(
+    f: &FileOutcome,
+    hash: fn(&Diag, Option<&SourceFile>, &mut String) -> u64,
+) -> Vec<(u64, usize)> {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
     // hash -> (the first finding with it, how many findings had its key so far)
@@ -264,8 +354,7 @@ fn key_ranks(f: &FileOutcome, hash: fn(&[u8]) -> u64) -> Vec<(u64, usize)> {
         .iter()
         .enumerate()
         .map(|(i, d)| {
-            write_fingerprint_key(d, source, &mut key);
-            let h = hash(key.as_bytes());
+            let h = hash(d, source, &mut key);
             let n = match seen.entry(h) {
                 Entry::Vacant(e) => {
                     e.insert((i, 1));
@@ -273,6 +362,7 @@ fn key_ranks(f: &FileOutcome, hash: fn(&[u8]) -> u64) -> Vec<(u64, usize)> {
                 }
                 Entry::Occupied(mut e) => {
                     let (first, count) = e.get_mut();
+                    write_fingerprint_key(d, source, &mut key);
                     write_fingerprint_key(&f.diags[*first], source, &mut first_key);
                     if first_key == key {
                         *count += 1;
@@ -448,6 +538,66 @@ pub(crate) fn count(n: usize, one: &str, many: &str) -> String {
     format!("{n} {}", if n == 1 { one } else { many })
 }
 
+/// Outcomes with what the line formats must take care of: a schematic's sheets (findings in
+/// each), names and messages with characters to escape, findings with no place, a help over
+/// lines, a file that could not be read, and more text than one piece handed on at once.
+#[cfg(test)]
+pub(crate) fn sample_outcomes() -> Vec<FileOutcome> {
+    let sheets = vec![
+        (
+            "top,1:a%.kicad_sch".to_string(),
+            "(a)\n(b \"Ω\" x)\n".repeat(50),
+        ),
+        (
+            "sub/\u{1b}[2Jb.kicad_sch".to_string(),
+            "(c)\r\n(d)\n".repeat(50),
+        ),
+    ];
+    let source = SourceFile::from_files("top,1:a%.kicad_sch", sheets);
+    let len = source.text().len();
+    let mut diags = Vec::new();
+    for i in 0..3000usize {
+        let at = (i * 37) % len;
+        let mut d = Diag::warning(
+            "floating-cmos-input",
+            format!("U{i} pin {} % 100: line\nbreak \u{202e}Ω, `N{i}`", i % 14),
+        )
+        .with_pins([format!("U{i}.1")]);
+        if i % 5 != 0 {
+            d = d.at(Span::new(at, (at + i % 9).min(len)), "open input");
+        }
+        if i % 3 == 0 {
+            d = d.with_help("tie it\r\nto GND: 0 V, 100%");
+        }
+        if i % 7 == 0 {
+            d.severity = Severity::Info;
+        }
+        diags.push(d);
+    }
+    let checked = FileOutcome {
+        name: "top,1:a%.kicad_sch".into(),
+        source: Some(source),
+        fatal: None,
+        diags,
+        summary: Default::default(),
+        coverage: None,
+        waived: 0,
+    };
+    let unread = FileOutcome {
+        name: "gone\u{7}.net".into(),
+        source: None,
+        fatal: Some(Diag::error(
+            "unreadable",
+            "cannot read gone.net: no such file",
+        )),
+        diags: Vec::new(),
+        summary: Default::default(),
+        coverage: None,
+        waived: 0,
+    };
+    vec![checked, unread]
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -511,9 +661,35 @@ mod tests {
             })
             .collect();
         assert_eq!(want, [0, 0, 1, 0, 1, 2, 0, 1]);
-        for hash in [fnv1a64 as fn(&[u8]) -> u64, |_| 7, |k| k.len() as u64] {
+        type Hash = fn(&Diag, Option<&SourceFile>, &mut String) -> u64;
+        for hash in [
+            fingerprint_hash as Hash,
+            |_, _, _| 7,
+            |d, s, k| {
+                write_fingerprint_key(d, s, k);
+                k.len() as u64
+            },
+        ] {
             let got: Vec<usize> = key_ranks(&f, hash).into_iter().map(|(_, n)| n).collect();
             assert_eq!(got, want);
+        }
+        // the hash of the pieces is the hash of the key, for findings with a net, pins, both
+        // or neither (whose key holds the text at their place)
+        let mut key = String::new();
+        for d in f
+            .diags
+            .iter()
+            .chain(&sample_outcomes()[0].diags[..40])
+            .chain([
+                &Diag::warning("floating-cmos-input", "m"),
+                &Diag::warning("floating-cmos-input", "m").at(Span::new(0, 9), "x"),
+            ])
+        {
+            let src = SourceFile::new("t", "(a  b\n c)");
+            for source in [None, Some(&src)] {
+                let want = fnv1a64(fingerprint_key(d, source).as_bytes());
+                assert_eq!(fingerprint_hash(d, source, &mut key), want);
+            }
         }
     }
 
@@ -545,6 +721,34 @@ mod tests {
             rooted_path("<stdin>", root, Path::new("/repo")),
             RootedPath::Stdin
         );
+    }
+
+    /// Places from the table equal places worked out afresh, whatever the order of the
+    /// spans and however many share a slot.
+    #[test]
+    fn places_kept_equal_places_worked_out() {
+        let text: String = (0..300)
+            .map(|i| format!("(pin (num {i}) (name \"Ω{i}\"))\n"))
+            .collect();
+        let src = SourceFile::new("t", text.as_str());
+        let len = text.len();
+        let mut places = Places::new(Some(&src));
+        let mut state = 12345u64;
+        for _ in 0..5000 {
+            state = state
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            let start = (state >> 33) as usize % (len + 10);
+            let end = start + (state >> 20) as usize % 90;
+            // a few spans again and again, and many once
+            let span = if state & 3 == 0 {
+                Span::new(start, end)
+            } else {
+                Span::new(start % 7 * 40, start % 7 * 40 + 12)
+            };
+            assert_eq!(places.of(span), Some(Place::of(&src, span)), "{span:?}");
+        }
+        assert_eq!(Places::new(None).of(Span::new(0, 1)), None);
     }
 
     #[test]

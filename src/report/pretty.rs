@@ -15,8 +15,33 @@ use std::io::{self, Write};
 
 use serde::Serialize;
 
+use crate::source::Span;
+
 /// How much text is gathered before it is handed on.
 const CHUNK: usize = 1 << 16;
+
+/// Pieces of text that many records repeat (the fields of a place many findings point at),
+/// each kept with the span it was written for and the writer's state it was written in: a
+/// small table with a slot per span, by its offsets.
+pub(crate) struct Repeats {
+    slots: Vec<Option<Kept>>,
+}
+
+struct Kept {
+    span: Span,
+    /// The depth, and whether the open object had no member, before the piece.
+    depth: usize,
+    first: bool,
+    /// Whether it still had none after.
+    first_after: bool,
+    text: Vec<u8>,
+}
+
+impl Repeats {
+    pub(crate) fn new() -> Repeats {
+        Repeats { slots: Vec::new() }
+    }
+}
 
 /// A JSON writer in the reports' pretty layout. Callers open and close objects and arrays
 /// and write keys and values in order; the layout (commas, line breaks, indents) is its own.
@@ -62,8 +87,11 @@ impl<'o> PrettyOut<'o> {
     /// Hands the gathered text on once there is a chunk of it. Call between records.
     pub(crate) fn flush_some(&mut self) -> io::Result<()> {
         if self.buf.len() >= CHUNK {
-            self.out.write_all(&self.buf)?;
-            self.buf.clear();
+            // up to the last line break: a line-buffered standard output then hands the
+            // piece on in one write and keeps nothing back to write before the next
+            let cut = memchr::memrchr(b'\n', &self.buf).map_or(self.buf.len(), |i| i + 1);
+            self.out.write_all(&self.buf[..cut])?;
+            self.buf.drain(..cut);
         }
         Ok(())
     }
@@ -80,38 +108,54 @@ impl<'o> PrettyOut<'o> {
     pub(crate) fn key(&mut self, key: &'static str) -> &mut Self {
         debug_assert!(clean(key.as_bytes()), "a key is a plain word");
         self.line();
-        self.buf.push(b'"');
-        self.buf.extend_from_slice(key.as_bytes());
-        self.buf.extend_from_slice(b"\": ");
+        // `"key": ` as one copy of a known length (most keys are short)
+        const ROOM: usize = 24;
+        if key.len() + 4 <= ROOM {
+            let mut quoted = [b' '; ROOM];
+            quoted[0] = b'"';
+            quoted[1..1 + key.len()].copy_from_slice(key.as_bytes());
+            quoted[1 + key.len()..3 + key.len()].copy_from_slice(b"\":");
+            self.buf.extend_from_slice(&quoted[..key.len() + 4]);
+        } else {
+            self.buf.push(b'"');
+            self.buf.extend_from_slice(key.as_bytes());
+            self.buf.extend_from_slice(b"\": ");
+        }
         self
     }
 
     /// Starts the next item of an array.
+    #[inline]
     pub(crate) fn item(&mut self) -> &mut Self {
         self.line();
         self
     }
 
+    #[inline]
     pub(crate) fn open_object(&mut self) {
         self.depth += 1;
         self.first = true;
         self.buf.push(b'{');
     }
 
+    #[inline]
     pub(crate) fn close_object(&mut self) {
         self.close(b'}');
     }
 
+    #[inline]
     pub(crate) fn open_array(&mut self) {
         self.depth += 1;
         self.first = true;
         self.buf.push(b'[');
     }
 
+    #[inline]
     pub(crate) fn close_array(&mut self) {
         self.close(b']');
     }
 
+    #[inline]
     fn close(&mut self, bracket: u8) {
         self.depth -= 1;
         if !self.first {
@@ -184,12 +228,44 @@ impl<'o> PrettyOut<'o> {
 
     /// A fingerprint, as 16 hex digits.
     pub(crate) fn hex64(&mut self, h: u64) {
-        const HEX: &[u8; 16] = b"0123456789abcdef";
         let mut digits = [b'"'; 18];
-        for (i, d) in digits[1..17].iter_mut().enumerate() {
-            *d = HEX[((h >> (60 - 4 * i)) & 0xf) as usize];
-        }
+        digits[1..9].copy_from_slice(&hex8(h >> 32));
+        digits[9..17].copy_from_slice(&hex8(h & 0xffff_ffff));
         self.buf.extend_from_slice(&digits);
+    }
+
+    /// What `write` writes for `span` here, copied from `kept` when it was written for the
+    /// same span at the same depth and place in its object. `write` must write the same text
+    /// whenever it is given the same span in the same state, close what it opens and not hand
+    /// anything on.
+    pub(crate) fn repeat(&mut self, kept: &mut Repeats, span: Span, write: impl FnOnce(&mut Self)) {
+        if kept.slots.is_empty() {
+            kept.slots = (0..crate::report::Places::KEPT).map(|_| None).collect();
+        }
+        let slot = &mut kept.slots[crate::report::Places::slot(span)];
+        if let Some(k) = slot {
+            if k.span == span && k.depth == self.depth && k.first == self.first {
+                self.buf.extend_from_slice(&k.text);
+                self.first = k.first_after;
+                return;
+            }
+        }
+        let (depth, first, from) = (self.depth, self.first, self.buf.len());
+        write(self);
+        debug_assert_eq!(self.depth, depth, "a repeated piece is closed");
+        let k = slot.get_or_insert_with(|| Kept {
+            span,
+            depth,
+            first,
+            first_after: first,
+            text: Vec::new(),
+        });
+        k.span = span;
+        k.depth = depth;
+        k.first = first;
+        k.first_after = self.first;
+        k.text.clear();
+        k.text.extend_from_slice(&self.buf[from..]);
     }
 
     /// Any value, through serde_json in the same layout and escaped as [`PrettyOut::str`]
@@ -208,6 +284,18 @@ impl<'o> PrettyOut<'o> {
     }
 }
 
+/// The 8 lower-case hex digits of 32-bit `x`, most significant first: each nibble spread into
+/// a byte of its own, then made a digit, 8 at a time.
+fn hex8(x: u64) -> [u8; 8] {
+    let x = (x | (x << 16)) & 0x0000_ffff_0000_ffff;
+    let x = (x | (x << 8)) & 0x00ff_00ff_00ff_00ff;
+    let x = (x | (x << 4)) & 0x0f0f_0f0f_0f0f_0f0f;
+    // 1 in each byte whose nibble is 10 or more
+    let letters = ((x + 0x0606_0606_0606_0606) >> 4) & 0x0101_0101_0101_0101;
+    // nibble i sits in byte i: the first digit is the highest byte
+    (x + 0x3030_3030_3030_3030 + letters * (b'a' - b'0' - 10) as u64).to_be_bytes()
+}
+
 /// `s` as a JSON string, the way the serde path writes it.
 fn escaped(s: &str) -> String {
     super::json::escape_unsafe(serde_json::to_string(s).expect("a string serializes"))
@@ -218,8 +306,21 @@ fn escaped(s: &str) -> String {
 /// few strings with those bytes are clean all the same (`µ`, `Ω`); they take the slow way.
 fn clean(bytes: &[u8]) -> bool {
     const BLOCK: usize = 16;
-    if bytes.len() < BLOCK {
-        return !bytes.iter().any(|&b| special(b));
+    let n = bytes.len();
+    if n < BLOCK {
+        // a short string (a pin, a label) in one block: its first and last 8 (or 4) bytes,
+        // overlapping, which cover it, with plain bytes after
+        let mut block = [b'a'; BLOCK];
+        if n >= 8 {
+            block[..8].copy_from_slice(&bytes[..8]);
+            block[8..].copy_from_slice(&bytes[n - 8..]);
+        } else if n >= 4 {
+            block[..4].copy_from_slice(&bytes[..4]);
+            block[4..8].copy_from_slice(&bytes[n - 4..]);
+        } else {
+            return !bytes.iter().any(|&b| special(b));
+        }
+        return !any_special(&block);
     }
     let mut blocks = bytes.chunks_exact(BLOCK);
     if (&mut blocks).any(any_special) {
@@ -295,6 +396,43 @@ mod tests {
             }
         }
     }
+
+    /// The digits of a fingerprint are those `format!` writes, for every nibble at every place.
+    #[test]
+    fn hex_digits_are_those_format_writes() {
+        let mut values: Vec<u64> = (0..16u64)
+            .flat_map(|n| (0..16).map(move |i| n << (4 * i)))
+            .collect();
+        let mut state = 7u64;
+        for _ in 0..1000 {
+            state = state.wrapping_mul(6364136223846793005).wrapping_add(1);
+            values.push(state);
+        }
+        for h in values.into_iter().chain([0, u64::MAX]) {
+            let mut out = Vec::new();
+            let mut w = PrettyOut::new(&mut out);
+            w.hex64(h);
+            w.finish().unwrap();
+            assert_eq!(String::from_utf8(out).unwrap(), format!("\"{h:016x}\"\n"));
+        }
+    }
+
+    /// Strings shorter than a block are checked whole: any special byte, at any place of a
+    /// string of any short length, is seen.
+    #[test]
+    fn short_strings_are_checked_at_every_byte() {
+        for len in 0..BLOCK_TEST {
+            for at in 0..len {
+                for b in 0..=255u8 {
+                    let mut s = vec![b'a'; len];
+                    s[at] = b;
+                    assert_eq!(clean(&s), !special(b), "byte {b:#x} at {at} of {len}");
+                }
+            }
+            assert!(clean(&vec![b'a'; len]));
+        }
+    }
+    const BLOCK_TEST: usize = 17;
 
     #[test]
     fn every_character_that_is_escaped_is_escaped_as_the_serde_way() {

@@ -19,15 +19,14 @@ use std::io::{self, Write};
 
 use serde::Serialize;
 
-use super::pretty::PrettyOut;
+use super::pretty::{PrettyOut, Repeats};
 use super::{
     fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, rooted_path,
-    Place, ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
+    Place, Places, ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
 };
 use crate::checks::REGISTRY;
 use crate::diag::{Diag, Severity, INPUT_CODES};
 use crate::pipeline::FileOutcome;
-use crate::source::{LineCursor, SourceFile};
 
 /// The OASIS schema of SARIF 2.1.0 (with its errata), named in `$schema`.
 pub const SCHEMA_URI: &str =
@@ -266,12 +265,12 @@ fn artifact(name: &str, opts: &ReportOptions) -> ArtifactLocation {
 fn write_result(
     w: &mut PrettyOut<'_>,
     d: &Diag,
-    mut lines: Option<&mut LineCursor<'_>>,
+    places: &mut Places<'_>,
+    kept: &mut Repeats,
     art: &ArtifactLocation,
     index: &BTreeMap<&str, usize>,
     fingerprint: u64,
 ) {
-    let mut place = |span| lines.as_deref_mut().map(|l| Place::at(l, span));
     let mut location = |w: &mut PrettyOut<'_>,
                         id: Option<usize>,
                         span: Option<crate::source::Span>,
@@ -283,9 +282,12 @@ fn write_result(
         w.key("physicalLocation").open_object();
         w.key("artifactLocation");
         art.write(w);
-        if let Some(p) = span.and_then(&mut place) {
-            w.key("region");
-            write_region(w, p);
+        if let Some(span) = span.filter(|_| places.source().is_some()) {
+            // a region depends on nothing but its span
+            w.repeat(kept, span, |w| {
+                w.key("region");
+                write_region(w, places.of(span).expect("the text is known"));
+            });
         }
         w.close_object();
         if let Some(text) = text {
@@ -406,7 +408,8 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
             &arts[sheet.map_or(0, |i| i + 1)]
         };
         // findings of one part come together: their lines are looked up near each other
-        let mut lines = src.map(SourceFile::cursor);
+        let mut places = Places::new(src);
+        let mut kept = Repeats::new();
         let fatal = f
             .fatal
             .as_ref()
@@ -416,7 +419,7 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
             .chain(f.diags.iter().zip(fingerprint_hashes(f)))
         {
             w.item();
-            write_result(&mut w, d, lines.as_mut(), art_of(d), &index, fp);
+            write_result(&mut w, d, &mut places, &mut kept, art_of(d), &index, fp);
             w.flush_some()?;
         }
     }
