@@ -88,7 +88,7 @@ fn write_finding<'a>(
     w.key("severity").word(d.severity.as_str());
     w.key("message").str(&d.message);
     w.key("net").opt_str(d.net.as_deref());
-    w.key("pins").strs(d.pins.iter().map(|p| &**p));
+    w.key("pins").strs(d.pins());
     w.key("label")
         .opt_str(primary.map(|l| &*l.text).filter(|t| !t.is_empty()));
     PlaceOut::of(lines.as_deref_mut(), primary.map(|l| l.span)).write(w);

@@ -202,11 +202,11 @@ fn write_fingerprint_key(d: &Diag, source: Option<&SourceFile>, key: &mut String
     key.push_str(&d.code);
     key.push('\u{1f}');
     key.push_str(d.net.as_deref().unwrap_or(""));
-    for p in &d.pins {
+    for p in d.pins() {
         key.push('\u{1f}');
         key.push_str(p);
     }
-    if d.net.is_none() && d.pins.is_empty() {
+    if d.net.is_none() && !d.has_pins() {
         key.push('\u{1e}');
         if let (Some(src), Some(l)) = (source, primary_label(d)) {
             let text = src.text().get(l.span.range()).unwrap_or("");
@@ -478,7 +478,7 @@ mod tests {
         let mk = |code: &'static str, net: Option<&str>, pins: &[&str]| {
             let mut d = Diag::warning(code, "m");
             d.net = net.map(Into::into);
-            d.pins = pins.iter().map(|p| p.to_string()).collect();
+            d.set_pins(pins);
             d
         };
         let diags = vec![
