@@ -331,13 +331,13 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
         let n_loads: usize = c.loads.iter().map(|l| l.1).sum();
         assert_eq!(nm.loads.len(), n_loads, "{}: loads in the model", c.name);
         assert_eq!(
-            nm.pulls.len(),
+            nm.pulls().len(),
             c.resistors.len(),
             "{}: pull resistors in the model",
             c.name
         );
-        let has_up = nm.pulls.iter().any(|p| p.up);
-        let has_down = nm.pulls.iter().any(|p| !p.up);
+        let has_up = nm.pulls().iter().any(|p| p.up);
+        let has_down = nm.pulls().iter().any(|p| !p.up);
         let mut sub = 0;
         let mut open = |deck: &mut String| {
             sub += 1;
@@ -377,7 +377,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     }
                 }
                 for (i, pl) in nm
-                    .pulls
+                    .pulls()
                     .iter()
                     .enumerate()
                     .filter(|(_, pl)| pl.up == low || !low && d.role == PinRole::OpenCollector)
@@ -442,7 +442,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     // each item as ngspice sees it: the current in that element
                     let v = if matches!(it.kind, ItemKind::PullDown { .. }) {
                         let k = nm
-                            .pulls
+                            .pulls()
                             .iter()
                             .position(|pl| pl.at == it.at(cx))
                             .expect("the item's resistor");
@@ -507,9 +507,9 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     "{}: the pull-up sets the high level",
                     c.name
                 );
-                for (i, _) in nm.pulls.iter().enumerate().filter(|(_, pl)| pl.up) {
+                for (i, _) in nm.pulls().iter().enumerate().filter(|(_, pl)| pl.up) {
                     // one pull-up, or equal ones in parallel: each carries its share
-                    let share = pu.current * pu.ohms / nm.pulls[i].ohms;
+                    let share = pu.current * pu.ohms / nm.pulls()[i].ohms;
                     probes.push(Probe {
                         case: c.name,
                         what: format!("pull-up {i} current"),

@@ -609,7 +609,7 @@ fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {
             .supplies
             .iter()
             .flatten()
-            .filter(|s| s.supply_net == Some(i) || s.ground_net == Some(i))
+            .filter(|s| s.supply_net() == Some(i) || s.ground_net() == Some(i))
             .count();
         rows.push(SupplyRow {
             net: cx.net_name(i),
@@ -683,7 +683,8 @@ fn gather_interface(
         let d = &nm.drivers[db.driver];
         let s = cx.supplies[d.at.comp].as_ref();
         let mut loads: Vec<LoadGroup> = Vec::new();
-        for m in b.margins.iter().filter(|m| m.driver == db.driver) {
+        for m in b.margins(cx, net).filter(|m| m.driver == db.driver) {
+            let m = &m;
             let l = &nm.loads[m.load];
             let family = l.family.as_deref().unwrap_or("unknown").to_string();
             let vcc = l.levels.as_ref().map(|lv| lv.vcc);
@@ -700,7 +701,7 @@ fn gather_interface(
                     g.pins.push(cx.pin_name(l.at));
                     g.high_margin = worst(g.high_margin, m.high_margin);
                     g.low_margin = worst(g.low_margin, m.low_margin);
-                    g.input_limit = worst(g.input_limit, l.input_limit);
+                    g.input_limit = worst(g.input_limit, cx.input_limit(l));
                 }
                 None => loads.push(LoadGroup {
                     family,
@@ -710,7 +711,7 @@ fn gather_interface(
                     vil: m.vil,
                     high_margin: m.high_margin,
                     low_margin: m.low_margin,
-                    input_limit: l.input_limit,
+                    input_limit: cx.input_limit(l),
                 }),
             }
         }
@@ -723,7 +724,7 @@ fn gather_interface(
                 .map(|s| s.vcc)
                 .or_else(|| d.levels.as_ref().map(|l| l.vcc)),
             supply_known: s.is_some_and(|s| s.known),
-            low_level: db.low_level,
+            low_level: db.low_level(),
             high_level: db.high_level,
             low: db.low.as_ref().map(Usage::of),
             high: db.high.as_ref().map(Usage::of),

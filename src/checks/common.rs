@@ -83,10 +83,10 @@ pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> O
             let nm = &cx.nets[net];
             if nm.has_source() {
                 None
-            } else if nm.floats_open.is_empty() {
+            } else if nm.floats_open().is_empty() {
                 Some(Float::Undriven(net))
             } else {
-                Some(Float::SwitchOpen(net, nm.floats_open.to_vec()))
+                Some(Float::SwitchOpen(net, nm.floats_open().to_vec()))
             }
         }
         _ => None,
@@ -378,7 +378,7 @@ fn numbered_list<'p>(pins: impl ExactSizeIterator<Item = (&'p str, Option<&'p st
 pub fn supply_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
     ctx.cx.supplies[comp]
         .as_ref()
-        .and_then(|s| s.supply_net.filter(|_| s.known))
+        .and_then(|s| s.supply_net().filter(|_| s.known))
 }
 
 /// The positive rail a part's supply pin sits on, by name, for fix messages.
@@ -393,7 +393,7 @@ pub fn ground_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
     let cx = ctx.cx;
     cx.supplies[comp]
         .as_ref()
-        .and_then(|s| s.ground_net)
+        .and_then(|s| s.ground_net())
         .filter(|&n| cx.nets[n].rail.is_some())
 }
 

@@ -42,7 +42,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .map(|&pin| PinRef { comp: d.comp, pin })
             .filter(|p| {
                 c.pins[p.pin].connection.net().is_some_and(|n| {
-                    drives(n) || cx.nets[n].series.iter().any(|s| drives(s.other_net))
+                    drives(n) || cx.nets[n].series().iter().any(|s| drives(s.other_net))
                 })
             })
             .collect();

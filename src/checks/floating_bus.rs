@@ -93,10 +93,10 @@ fn floating_bus(cx: &Circuit<'_, '_>, net: usize) -> bool {
     let nm = &cx.nets[net];
     nm.rail.is_none()
         && !nm.drivers.is_empty()
-        && nm.pulls.is_empty()
-        && nm.unreadable.is_empty()
-        && nm.held.is_empty()
-        && nm.unknown.is_empty()
+        && nm.pulls().is_empty()
+        && nm.unreadable().is_empty()
+        && nm.held().is_empty()
+        && nm.unknown().is_empty()
         && nm
             .drivers
             .iter()

@@ -154,7 +154,7 @@ pub(super) fn sources(cx: &Circuit<'_, '_>, net: usize) -> Vec<Source> {
             cmos,
         });
     }
-    for (i, p) in nm.pulls.iter().enumerate().filter(|(_, p)| p.up) {
+    for (i, p) in nm.pulls().iter().enumerate().filter(|(_, p)| p.up) {
         out.push(Source::PullUp {
             index: i,
             level: cx.rail_range(p.rail_volts).1,
@@ -183,11 +183,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 let src_rail = match &src {
                     Source::Rail { .. } => Some(net),
                     Source::Driver { at, .. } => {
-                        cx.supplies[at.comp].as_ref().and_then(|x| x.supply_net)
+                        cx.supplies[at.comp].as_ref().and_then(|x| x.supply_net())
                     }
-                    Source::PullUp { index, .. } => Some(nm.pulls[*index].rail_net),
+                    Source::PullUp { index, .. } => Some(nm.pulls()[*index].rail_net),
                 };
-                let same_rail = src_rail.is_some() && src_rail == s.supply_net;
+                let same_rail = src_rail.is_some() && src_rail == s.supply_net();
                 let end = if same_rail {
                     cx.rail_range(s.vcc).1
                 } else {
@@ -281,7 +281,7 @@ fn diag(
             )
         }
         Source::PullUp { index, .. } => {
-            let p = &nm.pulls[index];
+            let p = &nm.pulls()[index];
             (
                 format!(
                     "{} {} pulls {} up to {} ({}) into {loads}",

@@ -48,7 +48,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
         let nm = &cx.nets[net];
-        for m in &b.margins {
+        for m in b.margins(cx, net) {
+            let m = &m;
             let d = &nm.drivers[m.driver];
             let l = &nm.loads[m.load];
             let db = b
@@ -109,7 +110,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             }
             if let Some(lm) = m.low_margin {
                 if lm < 0.0 {
-                    let low = db.low_level.unwrap_or(0.0);
+                    let low = db.low_level().unwrap_or(0.0);
                     out.push(
                         Diag::error(
                             "level-mismatch",

@@ -116,15 +116,15 @@ fn load_parts(
     match l.kind {
         LoadKind::Led(i) => {
             let p = if op.high {
-                &nm.led_paths[i]
+                &nm.led_paths()[i]
             } else {
-                &nm.sink_paths[i]
+                &nm.sink_paths()[i]
             };
             let mut ids = p.resistors.clone();
             ids.extend(&p.leds);
             refs(ctx, &ids)
         }
-        LoadKind::Pull(i) => ctx.cx.nl.components[nm.pulls[i].resistor]
+        LoadKind::Pull(i) => ctx.cx.nl.components[nm.pulls()[i].resistor]
             .reference
             .to_string(),
     }
@@ -224,8 +224,7 @@ fn current(
     let over_abs_w = abs_w.is_some_and(|w| watts > w);
     // logic inputs on the net that the output no longer gives a level
     let lost: Vec<(PinRef, f64)> = ctx.budgets[net]
-        .margins
-        .iter()
+        .margins(cx, net)
         .filter(|m| m.driver == di)
         .filter_map(|m| {
             let short = if op.high {

@@ -482,14 +482,13 @@ mod tests {
     use crate::circuit::{Rail, RailSource};
 
     fn rail(volts: Option<f64>, ground: bool) -> NetModel {
-        NetModel {
-            rail: Some(Rail {
-                volts,
-                ground,
-                source: RailSource::Name,
-            }),
-            ..Default::default()
-        }
+        let mut nm = NetModel::default();
+        nm.rail = Some(Rail {
+            volts,
+            ground,
+            source: RailSource::Name,
+        });
+        nm
     }
 
     #[test]

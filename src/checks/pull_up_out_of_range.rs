@@ -32,7 +32,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let Some(fitted) = w.fitted else { continue };
         let nm = &cx.nets[net];
         let d = &nm.drivers[w.driver];
-        let pulls: Vec<_> = nm.pulls.iter().filter(|p| p.up).collect();
+        let pulls: Vec<_> = nm.pulls().iter().filter(|p| p.up).collect();
         let names: Vec<String> = pulls
             .iter()
             .map(|p| cx.nl.components[p.resistor].reference.to_string())

@@ -50,7 +50,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
         let nm = &cx.nets[net];
-        for m in &b.margins {
+        for m in b.margins(cx, net) {
+            let m = &m;
             let Some(hm) = m.high_margin else { continue };
             if hm >= 0.0 {
                 continue;
@@ -114,7 +115,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     };
                     if rmin < rmax {
                         let rail = s
-                            .supply_net
+                            .supply_net()
                             .filter(|_| s.known)
                             .map(|n| cx.net_name(n))
                             .unwrap_or_else(|| format_volts(v));

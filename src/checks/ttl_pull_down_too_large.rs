@@ -62,13 +62,13 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
     let nm = &cx.nets[net];
     if nm.rail.is_some()
         || !nm.drivers.is_empty()
-        || nm.pulls.is_empty()
-        || !nm.unknown.is_empty()
-        || !nm.unreadable.is_empty()
+        || nm.pulls().is_empty()
+        || !nm.unknown().is_empty()
+        || !nm.unreadable().is_empty()
     {
         return None;
     }
-    if nm.pulls.iter().any(|p| p.up || p.rail_volts != 0.0) {
+    if nm.pulls().iter().any(|p| p.up || p.rail_volts != 0.0) {
         return None; // a divider or a pull to another rail: not a pull-down
     }
     let vil = nm
@@ -80,7 +80,7 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
         .reduce(f64::min)?;
     let iil: f64 = nm.loads.iter().filter_map(|l| l.iil()).sum();
     let g: f64 = nm
-        .pulls
+        .pulls()
         .iter()
         .filter(|p| p.ohms > 0.0)
         .map(|p| 1.0 / p.ohms)
@@ -110,7 +110,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .collect();
         let first = ttl[0];
         let resistors: Vec<String> = nm
-            .pulls
+            .pulls()
             .iter()
             .map(|p| {
                 format!(
@@ -120,7 +120,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 )
             })
             .collect();
-        let rail = cx.net_name(nm.pulls[0].rail_net);
+        let rail = cx.net_name(nm.pulls()[0].rail_net);
         let n = nm.loads.iter().filter(|l| l.levels.is_some()).count();
         let who = if n == 1 {
             cx.describe(first)
@@ -213,9 +213,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         .filter(|l| l.at != first && l.levels.is_some())
                         .map(|l| cx.pin_name(l.at)),
                 )
-                .chain(nm.pulls.iter().map(|p| cx.pin_name(p.at))),
+                .chain(nm.pulls().iter().map(|p| cx.pin_name(p.at))),
         );
-        for p in &nm.pulls {
+        for p in nm.pulls() {
             d = d.also(
                 cx.pin_span(p.at),
                 format!("pull-down {}", format_ohms(p.ohms)),

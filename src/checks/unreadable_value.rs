@@ -53,7 +53,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         nets.dedup();
         for net in nets {
             let nm = &cx.nets[net];
-            if !nm.unreadable.iter().any(|(r, _)| *r == ci) {
+            if !nm.unreadable().iter().any(|(r, _)| *r == ci) {
                 continue;
             }
             let Some(pi) = c.pins.iter().position(|p| p.connection.net() == Some(net)) else {

@@ -133,11 +133,11 @@ pub(super) fn sink_resistor(vcc: f64, vf: f64, vol: f64, available: f64) -> Opti
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
-        if nm.led_paths.is_empty() {
+        if nm.led_paths().is_empty() {
             continue;
         }
         let paths: Vec<&LedPath> = nm
-            .led_paths
+            .led_paths()
             .iter()
             .filter(|p| !polarities(cx, p).contains(&Polarity::Reversed))
             .collect();

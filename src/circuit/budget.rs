@@ -51,9 +51,9 @@ impl Item {
         match self.kind {
             ItemKind::Input { net, load, .. } => cx.nets[net as usize].loads[load as usize].at,
             ItemKind::PullUp { net, pull, .. } | ItemKind::PullDown { net, pull, .. } => {
-                cx.nets[net as usize].pulls[pull as usize].at
+                cx.nets[net as usize].pulls()[pull as usize].at
             }
-            ItemKind::Sink { net, path, .. } => cx.nets[net as usize].sink_paths[path as usize].at,
+            ItemKind::Sink { net, path, .. } => cx.nets[net as usize].sink_paths()[path as usize].at,
             ItemKind::Leakage { pin, .. } => pin,
         }
     }
@@ -134,7 +134,7 @@ impl Item {
                 text
             }
             ItemKind::PullUp { net, pull, vol } => {
-                let p = &cx.nets[net as usize].pulls[pull as usize];
+                let p = &cx.nets[net as usize].pulls()[pull as usize];
                 format!(
                     "{} pull-up {} to {} ({:.2} V - {:.2} V) / R",
                     cx.nl.components[p.resistor].reference,
@@ -145,7 +145,7 @@ impl Item {
                 )
             }
             ItemKind::PullDown { net, pull, voh } => {
-                let p = &cx.nets[net as usize].pulls[pull as usize];
+                let p = &cx.nets[net as usize].pulls()[pull as usize];
                 format!(
                     "{} pull-down {} to {} ({:.2} V / R)",
                     cx.nl.components[p.resistor].reference,
@@ -155,7 +155,7 @@ impl Item {
                 )
             }
             ItemKind::Sink { net, path, vol } => {
-                let p = &cx.nets[net as usize].sink_paths[path as usize];
+                let p = &cx.nets[net as usize].sink_paths()[path as usize];
                 let names: Vec<&str> = p
                     .resistors
                     .iter()
@@ -235,13 +235,20 @@ pub struct DriverBudget {
     /// The level the net reaches in the high state: the driver's VOH, raised by a pull-up;
     /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
     pub high_level: Option<f64>,
-    pub low_level: Option<f64>,
     /// The output's operating point with the LEDs and resistors it lights or holds in its
     /// high state (LEDs to ground, pull-downs) and in its low state (LEDs from a rail,
     /// pull-ups); `None` when there are none in that state. Boxed: most outputs have none,
     /// and a budget is kept for every net.
     pub drive_high: Option<Box<OperatingPoint>>,
     pub drive_low: Option<Box<OperatingPoint>>,
+}
+
+impl DriverBudget {
+    /// The level the net reaches in the low state (the low state's guaranteed level); `None`
+    /// when nothing guarantees it.
+    pub fn low_level(&self) -> Option<f64> {
+        self.low.as_ref().and_then(|l| l.level)
+    }
 }
 
 /// What a resistive load on an output is.
@@ -458,7 +465,7 @@ fn drive_points(
             .map(|r| (r.v, r.a.abs()))
     };
     let high = if drives_high {
-        let knees = knees(&nm.led_paths, &nm.pulls, |p| !p.up);
+        let knees = knees(&nm.led_paths(), &nm.pulls(), |p| !p.up);
         // how far the high can go with no load: a CMOS output to its supply; a totem pole
         // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
         // (common practice; its guaranteed VOH is a minimum, not a ceiling)
@@ -471,7 +478,7 @@ fn drive_points(
     let low = if drives_low {
         // an open collector's pull-up is the open-collector window's (`PullUpWindow`)
         let own_pulls = d.role != PinRole::OpenCollector;
-        let knees = knees(&nm.sink_paths, &nm.pulls, |p| p.up && own_pulls);
+        let knees = knees(&nm.sink_paths(), &nm.pulls(), |p| p.up && own_pulls);
         // the low can go down to ground: LEDs that need more than their rail never light
         let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {
@@ -522,14 +529,73 @@ pub struct PullUpWindow {
     pub fitted: Option<f64>,
 }
 
-/// A net's budget. A budget is kept for every net: its lists are allocated to their length
-/// (two words each, none while empty).
+/// A net's budget. A budget is kept for every net: its list is allocated to its length (two
+/// words, none while empty). The loads' margins are not kept: each is two subtractions from
+/// the driver's levels and the load's thresholds, and a net holds one per driver and load,
+/// so [`NetBudget::margins`] works them out when asked.
 #[derive(Debug, Clone, Default)]
 pub struct NetBudget {
     pub drivers: Box<[DriverBudget]>,
-    pub margins: Box<[LoadMargin]>,
     /// Boxed: only an open-collector net has one.
     pub window: Option<Box<PullUpWindow>>,
+}
+
+impl NetBudget {
+    /// Each load's margins against each driver of net `net` (whose budget this is): by
+    /// driver, then by load; a load that is the driver's own pin, or of no known family, has
+    /// none.
+    ///
+    /// A CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is taken
+    /// at the top of it and VIL at the bottom (TTL thresholds do not move).
+    pub fn margins<'b, 'n, 'a>(
+        &'b self,
+        cx: &'b Circuit<'n, 'a>,
+        net: usize,
+    ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
+        let nm = &cx.nets[net];
+        let t = cx.opts.rail_tolerance.abs();
+        self.drivers.iter().flat_map(move |db| {
+            let d = &nm.drivers[db.driver];
+            nm.loads.iter().enumerate().filter_map(move |(li, l)| {
+                if l.at == d.at {
+                    return None;
+                }
+                let ll = l.levels.as_ref()?;
+                let scaled = if t > 0.0 {
+                    scaled_thresholds(cx, l)
+                } else {
+                    None
+                };
+                let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
+                Some(LoadMargin {
+                    driver: db.driver,
+                    load: li,
+                    vih,
+                    vil,
+                    high_margin: db.high_level.map(|h| h - vih),
+                    low_margin: db.low_level().map(|v| vil - v),
+                    thresholds_at: scaled.map(|(_, _, hi, lo)| Box::new((hi, lo))),
+                })
+            })
+        })
+    }
+}
+
+/// A CMOS load's thresholds at the worst ends of its supply under the rail tolerance: (VIH
+/// at the top, VIL at the bottom, the top, the bottom); `None` for any other load.
+fn scaled_thresholds(cx: &Circuit<'_, '_>, l: &super::Load) -> Option<(f64, f64, f64, f64)> {
+    match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
+        (Some(f), Some(s)) if f.is_cmos_input() => {
+            let (lo, hi) = cx.rail_range(s.vcc);
+            Some((
+                f.levels(hi, Drive::Standard).vih_min,
+                f.levels(lo, Drive::Standard).vil_max,
+                hi,
+                lo,
+            ))
+        }
+        _ => None,
+    }
 }
 
 /// True when input `l` counts against driver `d`'s rating: not the driver's own pin, and
@@ -577,19 +643,18 @@ fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
 pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let nm = &cx.nets[net];
     let mut drivers: Vec<DriverBudget> = Vec::with_capacity(nm.drivers.len());
-    let mut margins: Vec<LoadMargin> = Vec::new();
     let mut window = None;
-    let pullups: Vec<usize> = (0..nm.pulls.len()).filter(|&i| nm.pulls[i].up).collect();
-    let pulldowns: Vec<usize> = (0..nm.pulls.len()).filter(|&i| !nm.pulls[i].up).collect();
+    let pullups: Vec<usize> = (0..nm.pulls().len()).filter(|&i| nm.pulls()[i].up).collect();
+    let pulldowns: Vec<usize> = (0..nm.pulls().len()).filter(|&i| !nm.pulls()[i].up).collect();
     // the most items a state can hold: every input here and on the nets fed, every pull
     // resistor and LED path, every other driver
     let capacity = nm.loads.len()
-        + nm.feeds
+        + nm.feeds()
             .iter()
             .map(|&(m, _)| cx.nets[m as usize].loads.len())
             .sum::<usize>()
-        + nm.pulls.len()
-        + nm.sink_paths.len()
+        + nm.pulls().len()
+        + nm.sink_paths().len()
         + nm.drivers.len().saturating_sub(1);
     for (di, d) in nm.drivers.iter().enumerate() {
         // an open-emitter output (a display driver's emitter follower) only sources: it has no
@@ -604,7 +669,6 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 high: None,
                 pull_up: None,
                 high_level: None,
-                low_level: None,
                 drive_high: None,
                 drive_low: None,
             });
@@ -622,7 +686,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         // the own net's inputs' IIL, for the operating point below
         let iil: f64 = items.iter().map(|i| i.amps).sum();
         for &pi in &pullups {
-            let p = &nm.pulls[pi];
+            let p = &nm.pulls()[pi];
             let a = ((p.rail_volts - vol_rated) / p.ohms).max(0.0);
             items.push(Item {
                 kind: ItemKind::PullUp {
@@ -634,7 +698,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             });
         }
         // inputs on nets this one feeds through series resistors, beads or inductors
-        for &(m, part) in &nm.feeds {
+        for &(m, part) in nm.feeds() {
             let m = m as usize;
             for (li, l) in cx.nets[m].loads.iter().enumerate() {
                 items.extend(input_item(m, li, l, true, Some(part as usize)));
@@ -643,7 +707,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
         // state, (V_rail - VF - VOL) / R each
         for (si, p) in nm
-            .sink_paths
+            .sink_paths()
             .iter()
             .enumerate()
             .filter(|(_, p)| p.ohms > 0.0)
@@ -689,7 +753,6 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             rating: lv.iol_max.abs(),
             level: lv.vol_at(total),
         };
-        let low_level = low.level;
 
         // --- high state
         let mut high = None;
@@ -709,7 +772,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 items.push(it);
             }
         }
-        for &(m, part) in &nm.feeds {
+        for &(m, part) in nm.feeds() {
             let m = m as usize;
             for (li, l) in cx.nets[m].loads.iter().enumerate() {
                 if let Some(it) = input_item(m, li, l, false, Some(part as usize)) {
@@ -745,7 +808,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         }
         if drives_high {
             for &pi in &pulldowns {
-                let p = &nm.pulls[pi];
+                let p = &nm.pulls()[pi];
                 let a = (voh_light - p.rail_volts).max(0.0) / p.ohms;
                 items.push(Item {
                     kind: ItemKind::PullDown {
@@ -767,8 +830,8 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             });
         }
         // a pull-up raises (or, for an open collector, makes) the high level
-        let pull_up = parallel(pullups.iter().map(|&i| nm.pulls[i].ohms)).map(|r| {
-            let p = &nm.pulls[pullups[0]];
+        let pull_up = parallel(pullups.iter().map(|&i| nm.pulls()[i].ohms)).map(|r| {
+            let p = &nm.pulls()[pullups[0]];
             // leakage cannot pull the net below ground: a level of 0 V means no high at all
             let level = (p.rail_volts - r * load_high).max(0.0);
             PullUpHigh {
@@ -790,7 +853,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             };
         // read only when the high state has resistive loads (pull-downs, LEDs to ground):
         // with none there is no operating point to solve
-        let stops_short = (!nm.led_paths.is_empty() || !pulldowns.is_empty())
+        let stops_short = (!nm.led_paths().is_empty() || !pulldowns.is_empty())
             && cx.family(d.at.comp).is_some_and(|f| {
                 f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
             });
@@ -801,56 +864,9 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             high,
             pull_up: pull_up.map(Box::new),
             high_level,
-            low_level,
             drive_high: drive_high.map(Box::new),
             drive_low: drive_low.map(Box::new),
         });
-    }
-    // margins
-    // a CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is checked at
-    // the top of it and VIL at the bottom (TTL thresholds do not move); each load's, once
-    let t = cx.opts.rail_tolerance.abs();
-    let scaled_at: Vec<Option<(f64, f64, f64, f64)>> = if t > 0.0 {
-        nm.loads
-            .iter()
-            .map(
-                |l| match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
-                    (Some(f), Some(s)) if f.is_cmos_input() => {
-                        let (lo, hi) = cx.rail_range(s.vcc);
-                        Some((
-                            f.levels(hi, Drive::Standard).vih_min,
-                            f.levels(lo, Drive::Standard).vil_max,
-                            hi,
-                            lo,
-                        ))
-                    }
-                    _ => None,
-                },
-            )
-            .collect()
-    } else {
-        Vec::new()
-    };
-    margins.reserve_exact(drivers.len() * nm.loads.len());
-    for db in &drivers {
-        let d = &nm.drivers[db.driver];
-        for (li, l) in nm.loads.iter().enumerate() {
-            if l.at == d.at {
-                continue;
-            }
-            let Some(ll) = &l.levels else { continue };
-            let scaled = scaled_at.get(li).copied().flatten();
-            let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
-            margins.push(LoadMargin {
-                driver: db.driver,
-                load: li,
-                vih,
-                vil,
-                high_margin: db.high_level.map(|h| h - vih),
-                low_margin: db.low_level.map(|v| vil - v),
-                thresholds_at: scaled.map(|(_, _, hi, lo)| Box::new((hi, lo))),
-            });
-        }
     }
     // open-collector window
     let oc: Vec<usize> = (0..nm.drivers.len())
@@ -858,14 +874,14 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
         .collect();
     if !oc.is_empty() && oc.len() == nm.drivers.len() {
         let rail = nm
-            .pulls
+            .pulls()
             .iter()
             .find(|p| p.up)
             .map(|p| (p.rail_net, p.rail_volts))
             .or_else(|| {
                 // no pull-up: use the drivers' supply for the window the fix needs
                 let s = cx.supplies[nm.drivers[oc[0]].at.comp].as_ref()?;
-                Some((s.supply_net?, s.vcc))
+                Some((s.supply_net()?, s.vcc))
             });
         if let Some((rail_net, v)) = rail {
             let weakest = *oc
@@ -904,7 +920,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             let r_max = vih_max
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
-            let fitted = parallel(nm.pulls.iter().filter(|p| p.up).map(|p| p.ohms));
+            let fitted = parallel(nm.pulls().iter().filter(|p| p.up).map(|p| p.ohms));
             window = Some(Box::new(PullUpWindow {
                 rail_net,
                 rail_volts: v,
@@ -924,7 +940,6 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     }
     NetBudget {
         drivers: drivers.into_boxed_slice(),
-        margins: margins.into_boxed_slice(),
         window,
     }
 }
@@ -1032,5 +1047,70 @@ mod tests {
             Some(2.0),
             "the 74LS73 clock's low unit loads"
         );
+    }
+
+    /// Margins are worked out when asked: each driver against each load but its own pin, by
+    /// driver then load, from the driver's levels and the load's thresholds.
+    #[test]
+    fn margins_pair_each_driver_with_each_other_load() {
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        let n = nl.net_by_name("/BUS").expect("net");
+        let b = net_budget(&cx, n);
+        let ms: Vec<LoadMargin> = b.margins(&cx, n).collect();
+        // two 74LS125 outputs; the 74LS00 input and the 74LS73 clock
+        let pairs: Vec<(usize, usize)> = ms.iter().map(|m| (m.driver, m.load)).collect();
+        assert_eq!(pairs, [(0, 0), (0, 1), (1, 0), (1, 1)]);
+        for m in &ms {
+            let db = &b.drivers[m.driver];
+            // 74LS VIH 2.0 V, VIL 0.8 V (TI SDLS025, SN74LS00; from memory)
+            assert!((m.vih - 2.0).abs() < 1e-9 && (m.vil - 0.8).abs() < 1e-9, "{m:?}");
+            assert_eq!(m.high_margin, db.high_level.map(|h| h - m.vih));
+            assert_eq!(m.low_margin, db.low_level().map(|v| m.vil - v));
+            assert!(m.thresholds_at.is_none());
+        }
+        // the low level is the low state's
+        assert_eq!(
+            b.drivers[0].low_level(),
+            b.drivers[0].low.as_ref().and_then(|l| l.level)
+        );
+    }
+
+    /// With a rail tolerance a CMOS load's VIH is taken at the top of its supply and its VIL
+    /// at the bottom.
+    #[test]
+    fn margins_take_cmos_thresholds_at_the_worst_end_of_the_rail() {
+        const HC: &str = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74HC04") (libsource (lib "x") (part "74HC04")))
+    (comp (ref "U2") (value "74HC00") (libsource (lib "x") (part "74HC00"))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "U2") (pin "14")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "U2") (pin "7")))
+    (net (code "3") (name "/A") (node (ref "U1") (pin "2")) (node (ref "U2") (pin "1")))))
+"#;
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(HC).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let opts = crate::circuit::ModelOptions {
+            rail_tolerance: 0.1,
+            ..Default::default()
+        };
+        let cx = crate::circuit::build(&nl, &cl, &rules, opts);
+        let n = nl.net_by_name("/A").expect("net");
+        let b = net_budget(&cx, n);
+        let ms: Vec<LoadMargin> = b.margins(&cx, n).collect();
+        assert_eq!(ms.len(), 1, "{ms:?}");
+        let m = &ms[0];
+        let (top, bottom) = *m.thresholds_at.as_deref().expect("thresholds at the ends");
+        assert!((top - 5.5).abs() < 1e-9 && (bottom - 4.5).abs() < 1e-9);
+        // 74HC VIH 3.15 V at 4.5 V and 4.2 V at 6.0 V, VIL 1.35 V at 4.5 V (onsemi MM74HC04):
+        // at 5.5 V, 3.15 + 1.05 x 1.0 / 1.5 = 3.85 V
+        assert!((m.vih - 3.85).abs() < 1e-9, "{}", m.vih);
+        assert!((m.vil - 1.35).abs() < 1e-9, "{}", m.vil);
     }
 }

@@ -115,9 +115,47 @@ pub struct PartSupply {
     pub vcc: f64,
     /// True when `vcc` comes from a rail; false when it is the family's nominal supply.
     pub known: bool,
-    /// The net of the (first connected) supply pin, and its name.
-    pub supply_net: Option<usize>,
-    pub ground_net: Option<usize>,
+    /// The net of the (first connected) supply pin and of the ground pin ([`Self::supply_net`],
+    /// [`Self::ground_net`]), held as `u32`s: a board has one per part.
+    supply_net: Option<u32>,
+    ground_net: Option<u32>,
+}
+
+impl PartSupply {
+    /// The net of the (first connected) supply pin.
+    pub fn supply_net(&self) -> Option<usize> {
+        self.supply_net.map(|n| n as usize)
+    }
+
+    /// The net of the (first connected) ground pin.
+    pub fn ground_net(&self) -> Option<usize> {
+        self.ground_net.map(|n| n as usize)
+    }
+}
+
+/// A part's family id as a driver or load holds it: one shared copy per family behind a
+/// one-word pointer (a board holds one per logic pin), read as a `str`
+/// (`d.family.as_deref()`).
+#[derive(Clone, PartialEq, Eq)]
+pub struct FamilyId(Arc<Box<str>>);
+
+impl FamilyId {
+    pub fn new(id: &str) -> Self {
+        FamilyId(Arc::new(Box::from(id)))
+    }
+}
+
+impl std::ops::Deref for FamilyId {
+    type Target = str;
+    fn deref(&self) -> &str {
+        &self.0
+    }
+}
+
+impl std::fmt::Debug for FamilyId {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        std::fmt::Debug::fmt(&**self, f)
+    }
 }
 
 /// A driving pin on a net.
@@ -130,8 +168,8 @@ pub struct Driver {
     pub symbol_only: bool,
     /// The family's figures at the part's supply, when the part is classified.
     pub levels: Option<Arc<Levels>>,
-    /// The part's family id, one shared copy per part.
-    pub family: Option<Arc<str>>,
+    /// The part's family id, one shared copy per family.
+    pub family: Option<FamilyId>,
 }
 
 /// A logic input on a net.
@@ -140,10 +178,8 @@ pub struct Load {
     pub at: PinRef,
     pub role: PinRole,
     pub levels: Option<Arc<Levels>>,
-    /// The part's family id, one shared copy per part.
-    pub family: Option<Arc<str>>,
-    /// The highest voltage this input takes at its supply.
-    pub input_limit: Option<f64>,
+    /// The part's family id, one shared copy per family.
+    pub family: Option<FamilyId>,
     /// True for TTL (bipolar) inputs that source current when low.
     pub ttl: bool,
     /// How many of its family's input currents this input draws, low and high: (1, 1) for
@@ -200,41 +236,51 @@ pub struct LedPath {
     pub open_common: Option<usize>,
 }
 
-/// Everything on one net. Its lists are `ThinVec`s (one pointer, no allocation while empty:
-/// most of them are on most nets), each trimmed to its length once the model is built.
+/// Everything on one net. Its lists are `ThinVec`s (one pointer, no allocation while empty),
+/// each trimmed to its length once the model is built. The lists most nets leave empty (pull
+/// resistors, series and switch links, LED paths ...) are kept apart in one boxed
+/// [`NetExtras`], allocated only for a net that has one of them, and read through accessors
+/// (`nm.pulls()`, `nm.series()` ...): a board has about as many nets as it has pins.
 #[derive(Debug, Clone, Default)]
 pub struct NetModel {
     pub rail: Option<Rail>,
     pub drivers: ThinVec<Driver>,
     pub loads: ThinVec<Load>,
-    pub pulls: ThinVec<Pull>,
     /// Connector pins: the net leaves the board.
     pub connectors: ThinVec<PinRef>,
+    /// Capacitors, diodes and other passives not counted above.
+    pub passives: ThinVec<PinRef>,
+    /// Supply and ground pins on this net.
+    pub power_pins: ThinVec<PinRef>,
+    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
+    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
+    pub rail_named_local: bool,
+    /// What sets the level, as the model found it (`None`: nothing, in some state).
+    pub source: Option<Source>,
+    /// The rarer lists; `None` while all of them are empty.
+    extras: Option<Box<NetExtras>>,
+}
+
+/// The lists of a net that most nets leave empty (see [`NetModel`]).
+#[derive(Debug, Clone, Default)]
+pub struct NetExtras {
+    pub pulls: ThinVec<Pull>,
     /// Pins whose role no source could tell.
     pub unknown: ThinVec<PinRef>,
     /// Resistors whose value could not be read.
     pub unreadable: ThinVec<(usize, ValueError)>,
-    /// Capacitors, diodes and other passives not counted above.
-    pub passives: ThinVec<PinRef>,
     pub led_paths: ThinVec<LedPath>,
     /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
     /// their current in its low state.
     pub sink_paths: ThinVec<LedPath>,
-    /// Supply and ground pins on this net.
-    pub power_pins: ThinVec<PinRef>,
     /// Resistors from this net to a rail whose voltage is unknown, and one-pin pull-up or
     /// pull-down parts: they hold the net at a level that cannot be computed.
     pub held: ThinVec<usize>,
-    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
-    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
-    pub rail_named_local: bool,
     /// Series elements (a resistor, a resistor-network element, an inductor or ferrite bead)
     /// from this net to another net that is not a rail.
     pub series: ThinVec<SeriesLink>,
     /// Switch and jumper elements from this net to another net.
     pub switches: ThinVec<SwitchLink>,
-    /// What sets the level, as the model found it (`None`: nothing, in some state).
-    pub source: Option<Source>,
     /// Switch elements whose opening leaves this net with nothing to set its level (the
     /// net is held only through them): it floats when all of them are open.
     pub floats_open: ThinVec<SwitchLink>,
@@ -242,6 +288,95 @@ pub struct NetModel {
     /// further series elements): their loads are this net's drivers' loads too. Each is
     /// (the net fed, the series part its own source runs through).
     pub feeds: ThinVec<(u32, u32)>,
+}
+
+impl NetExtras {
+    fn is_empty(&self) -> bool {
+        self.pulls.is_empty()
+            && self.unknown.is_empty()
+            && self.unreadable.is_empty()
+            && self.led_paths.is_empty()
+            && self.sink_paths.is_empty()
+            && self.held.is_empty()
+            && self.series.is_empty()
+            && self.switches.is_empty()
+            && self.floats_open.is_empty()
+            && self.feeds.is_empty()
+    }
+
+    fn fit(&mut self) {
+        self.pulls.shrink_to_fit();
+        self.unknown.shrink_to_fit();
+        self.unreadable.shrink_to_fit();
+        self.led_paths.shrink_to_fit();
+        self.sink_paths.shrink_to_fit();
+        self.held.shrink_to_fit();
+        self.series.shrink_to_fit();
+        self.switches.shrink_to_fit();
+        self.floats_open.shrink_to_fit();
+        self.feeds.shrink_to_fit();
+    }
+}
+
+/// A list of the net's [`NetExtras`], empty when the net has none.
+macro_rules! extra_list {
+    ($(#[$doc:meta])* $name:ident: $t:ty) => {
+        $(#[$doc])*
+        pub fn $name(&self) -> &[$t] {
+            match &self.extras {
+                Some(e) => &e.$name,
+                None => &[],
+            }
+        }
+    };
+}
+
+impl NetModel {
+    extra_list!(
+        /// Resistors from this net to a rail of known voltage.
+        pulls: Pull
+    );
+    extra_list!(
+        /// Pins whose role no source could tell.
+        unknown: PinRef
+    );
+    extra_list!(
+        /// Resistors whose value could not be read.
+        unreadable: (usize, ValueError)
+    );
+    extra_list!(
+        /// LED paths from this net to ground (or a lower rail).
+        led_paths: LedPath
+    );
+    extra_list!(
+        /// LEDs (with their resistors) from a positive rail down to this net.
+        sink_paths: LedPath
+    );
+    extra_list!(
+        /// Resistors to a rail of unknown voltage, and one-pin pull parts.
+        held: usize
+    );
+    extra_list!(
+        /// Series elements from this net to another net that is not a rail.
+        series: SeriesLink
+    );
+    extra_list!(
+        /// Switch and jumper elements from this net to another net.
+        switches: SwitchLink
+    );
+    extra_list!(
+        /// Switch elements whose opening leaves this net with nothing to set its level.
+        floats_open: SwitchLink
+    );
+    extra_list!(
+        /// Nets whose only source is this net through a series element: (net fed, series part).
+        feeds: (u32, u32)
+    );
+
+    /// The rarer lists, to be filled while the model is built (allocated on first use).
+    fn extras_mut(&mut self) -> &mut NetExtras {
+        self.extras.get_or_insert_with(Default::default)
+    }
 }
 
 /// A two-terminal series element from one net to another.
@@ -277,23 +412,18 @@ pub enum Source {
 
 impl NetModel {
     /// Trims every list to its length: a list grown by pushes holds room for four or more,
-    /// and a board has as many nets as it has pins.
+    /// and a board has as many nets as it has pins. Extras left empty are dropped.
     fn fit(&mut self) {
         self.drivers.shrink_to_fit();
         self.loads.shrink_to_fit();
-        self.pulls.shrink_to_fit();
         self.connectors.shrink_to_fit();
-        self.unknown.shrink_to_fit();
-        self.unreadable.shrink_to_fit();
         self.passives.shrink_to_fit();
-        self.led_paths.shrink_to_fit();
-        self.sink_paths.shrink_to_fit();
         self.power_pins.shrink_to_fit();
-        self.held.shrink_to_fit();
-        self.series.shrink_to_fit();
-        self.switches.shrink_to_fit();
-        self.floats_open.shrink_to_fit();
-        self.feeds.shrink_to_fit();
+        match &mut self.extras {
+            Some(e) if e.is_empty() => self.extras = None,
+            Some(e) => e.fit(),
+            None => {}
+        }
     }
 
     /// True when something on the net itself can set its level.
@@ -305,11 +435,11 @@ impl NetModel {
                 .drivers
                 .iter()
                 .any(|d| !(d.symbol_only && self.rail_named_local))
-            || !self.pulls.is_empty()
-            || !self.held.is_empty()
+            || !self.pulls().is_empty()
+            || !self.held().is_empty()
             || !self.connectors.is_empty()
-            || !self.unreadable.is_empty()
-            || !self.unknown.is_empty()
+            || !self.unreadable().is_empty()
+            || !self.unknown().is_empty()
     }
 
     /// True when something on this board or off it can set the net's level in every
@@ -426,6 +556,15 @@ impl<'n, 'a> Circuit<'n, 'a> {
         self.roles[p.comp][p.pin]
     }
 
+    /// The highest voltage input `l` takes at its part's supply (its family's limit there);
+    /// `None` for an input of no known family or supply.
+    pub fn input_limit(&self, l: &Load) -> Option<f64> {
+        let vcc = self.supplies[l.at.comp].as_ref().map(|s| s.vcc);
+        self.family(l.at.comp)
+            .zip(vcc)
+            .map(|(f, v)| f.input_limit_v(v))
+    }
+
     /// `U4.6`
     pub fn pin_name(&self, p: PinRef) -> String {
         let c = &self.nl.components[p.comp];
@@ -507,11 +646,11 @@ impl<'n, 'a> Circuit<'n, 'a> {
     pub fn supply_text(&self, comp: usize) -> String {
         match &self.supplies[comp] {
             Some(s) if s.known => {
-                let net = s.supply_net.map(|n| self.net_name(n)).unwrap_or_default();
+                let net = s.supply_net().map(|n| self.net_name(n)).unwrap_or_default();
                 format!("{net} ({})", values::format_volts(s.vcc))
             }
             Some(s) => {
-                let why = match s.supply_net {
+                let why = match s.supply_net() {
                     Some(n) if self.nets[n].rail.is_some() => format!(
                         "the voltage of {} is not known: declare it with --rail",
                         self.net_name(n)
@@ -686,12 +825,13 @@ pub fn build<'n, 'a>(
                 continue;
             };
             match part.roles[pi] {
-                PinRole::Supply if supply_net.is_none() => supply_net = Some(net),
-                PinRole::Ground if ground_net.is_none() => ground_net = Some(net),
+                PinRole::Supply if supply_net.is_none() => supply_net = Some(small(net)),
+                PinRole::Ground if ground_net.is_none() => ground_net = Some(small(net)),
                 _ => {}
             }
         }
         let railv = supply_net
+            .map(|n: u32| n as usize)
             .and_then(|n| rail[n])
             .and_then(|r| r.v())
             .filter(|v| *v > 0.0);
@@ -734,7 +874,7 @@ pub fn build<'n, 'a>(
         Some(lv.clone())
     };
     // one copy of each family id
-    let mut family_ids: rustc_hash::FxHashMap<&str, Arc<str>> = Default::default();
+    let mut family_ids: rustc_hash::FxHashMap<&str, FamilyId> = Default::default();
 
     // each pin's place in its net's lists, counted first so that every list is allocated
     // once at its length (a list grown by pushes holds room for four)
@@ -780,7 +920,6 @@ pub fn build<'n, 'a>(
                 connectors: ThinVec::with_capacity(list(Slot::Connector)),
                 passives: ThinVec::with_capacity(list(Slot::Passive)),
                 power_pins: ThinVec::with_capacity(list(Slot::Power)),
-                unknown: ThinVec::with_capacity(list(Slot::Unknown)),
                 ..Default::default()
             }
         })
@@ -788,10 +927,10 @@ pub fn build<'n, 'a>(
     drop(counts);
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
-        let family: Option<Arc<str>> = part
+        let family: Option<FamilyId> = part
             .family
             .as_deref()
-            .map(|f| family_ids.entry(f).or_insert_with(|| Arc::from(f)).clone());
+            .map(|f| family_ids.entry(f).or_insert_with(|| FamilyId::new(f)).clone());
         let fam = families[ci];
         let pull_part = part.kind == PartKind::Other && is_pull_part(c);
         // the part's figures at its supply, looked up once per part
@@ -808,11 +947,9 @@ pub fn build<'n, 'a>(
             let slot = pin_slot(part.kind, pull_part, role);
             let mut lv = || part_levels.get_or_insert_with(|| levels(ci)).clone();
             let load = |lv: Option<Arc<Levels>>| {
-                let vcc = supplies[ci].as_ref().map(|s| s.vcc);
                 Load {
                     at,
                     role,
-                    input_limit: fam.zip(vcc).map(|(f, v)| f.input_limit_v(v)),
                     ttl: fam.is_some_and(|f| !f.is_cmos_input()),
                     levels: lv,
                     family: family.clone(),
@@ -828,7 +965,7 @@ pub fn build<'n, 'a>(
                             role: PinRole::PushPull,
                             symbol_only: false,
                             levels: Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard))),
-                            family: Some(Arc::from(f.id.as_str())),
+                            family: Some(FamilyId::new(f.id.as_str())),
                         });
                     }
                 }
@@ -857,7 +994,7 @@ pub fn build<'n, 'a>(
                     nm.loads.push(l);
                 }
                 Slot::Power => nm.power_pins.push(at),
-                Slot::Unknown => nm.unknown.push(at),
+                Slot::Unknown => nm.extras_mut().unknown.push(at),
             }
         }
     }
@@ -891,7 +1028,7 @@ pub fn build<'n, 'a>(
                     pin: p_here,
                 };
                 let Some(r) = rail[n_other] else {
-                    nets[n_here].series.push(SeriesLink {
+                    nets[n_here].extras_mut().series.push(SeriesLink {
                         part: ci,
                         at,
                         other_net: n_other,
@@ -901,7 +1038,7 @@ pub fn build<'n, 'a>(
                 };
                 match (ohms, &err) {
                     (Some(o), _) => match r.v() {
-                        Some(v) => nets[n_here].pulls.push(Pull {
+                        Some(v) => nets[n_here].extras_mut().pulls.push(Pull {
                             resistor: ci,
                             at,
                             rail_net: n_other,
@@ -909,9 +1046,9 @@ pub fn build<'n, 'a>(
                             ohms: o,
                             up: v > 0.0,
                         }),
-                        None => nets[n_here].held.push(ci),
+                        None => nets[n_here].extras_mut().held.push(ci),
                     },
-                    (None, Some(e)) => nets[n_here].unreadable.push((ci, e.clone())),
+                    (None, Some(e)) => nets[n_here].extras_mut().unreadable.push((ci, e.clone())),
                     _ => {}
                 }
             }
@@ -921,7 +1058,7 @@ pub fn build<'n, 'a>(
     for (ci, c) in nl.components.iter().enumerate() {
         if is_pull_part(c) {
             if let Some(net) = c.pins[0].connection.net() {
-                nets[net].held.push(ci);
+                nets[net].extras_mut().held.push(ci);
             }
         }
     }
@@ -946,7 +1083,7 @@ pub fn build<'n, 'a>(
         }
         for (pi, here, other) in [(0, na, nb), (1, nb, na)] {
             if rail[here].is_none() {
-                nets[here].series.push(SeriesLink {
+                nets[here].extras_mut().series.push(SeriesLink {
                     part: ci,
                     at: PinRef { comp: ci, pin: pi },
                     other_net: other,
@@ -969,7 +1106,7 @@ pub fn build<'n, 'a>(
                 continue;
             }
             for (pi, here, other) in [(pa, na, nb), (pb, nb, na)] {
-                nets[here].switches.push(SwitchLink {
+                nets[here].extras_mut().switches.push(SwitchLink {
                     part: ci,
                     at: PinRef { comp: ci, pin: pi },
                     other_net: other,
@@ -1007,8 +1144,11 @@ pub fn build<'n, 'a>(
                 }
             }
         }
-        nets[net].led_paths = found;
-        nets[net].sink_paths = sinks;
+        if !found.is_empty() || !sinks.is_empty() {
+            let e = nets[net].extras_mut();
+            e.led_paths = found;
+            e.sink_paths = sinks;
+        }
     }
     rail_notes.retain(|n| n.by_usage || n.volts.is_some());
     for nm in &mut nets {
@@ -1183,7 +1323,7 @@ fn settle_sources(nets: &mut [NetModel]) {
                 continue;
             }
             let through = nets[i]
-                .series
+                .series()
                 .iter()
                 .position(|l| nets[l.other_net].source.is_some());
             if let Some(l) = through {
@@ -1195,7 +1335,7 @@ fn settle_sources(nets: &mut [NetModel]) {
             // two positions of one switch or jumper that each join a net with a source:
             // the net is set in every position the part is made for
             let links: Vec<&SwitchLink> = nets[i]
-                .switches
+                .switches()
                 .iter()
                 .filter(|l| nets[l.other_net].source.is_some())
                 .collect();
@@ -1216,7 +1356,7 @@ fn settle_sources(nets: &mut [NetModel]) {
         .iter()
         .map(|nm| match nm.source {
             Some(Source::Through(l)) => {
-                let l = &nm.series[l as usize];
+                let l = &nm.series()[l as usize];
                 Some((l.other_net, small(l.part)))
             }
             _ => None,
@@ -1226,7 +1366,7 @@ fn settle_sources(nets: &mut [NetModel]) {
         let Some((mut up, part)) = *d else { continue };
         // walk up to the net with a source of its own; every net on the way feeds m
         for _ in 0..nets.len() {
-            nets[up].feeds.push((small(m), part));
+            nets[up].extras_mut().feeds.push((small(m), part));
             match direct[up] {
                 Some((next, _)) => up = next,
                 None => break,
@@ -1238,12 +1378,14 @@ fn settle_sources(nets: &mut [NetModel]) {
             continue;
         }
         let links: ThinVec<SwitchLink> = nets[i]
-            .switches
+            .switches()
             .iter()
             .filter(|l| nets[l.other_net].source.is_some())
             .copied()
             .collect();
-        nets[i].floats_open = links;
+        if !links.is_empty() {
+            nets[i].extras_mut().floats_open = links;
+        }
     }
 }
 
@@ -1673,23 +1815,37 @@ mod size_tests {
     use super::NetModel;
 
     /// A board has about as many nets as it has pins, and the model keeps a `NetModel` and a
-    /// `NetBudget` (with a `DriverBudget` per driver, two items and a margin per load) for
-    /// each: their size is held here so it cannot regrow unnoticed (440, 176 and 408 bytes
-    /// when their lists were `Vec`s and the rare parts were inline; 200, 56 and 216, with
-    /// 72-byte items and 88-byte margins, before a series link became an index, an item lost
-    /// its copies of what the model holds and the rare pull-up level was boxed).
+    /// `NetBudget` (with a `DriverBudget` per driver and two items per load) for each: their
+    /// size is held here so it cannot regrow unnoticed (440, 176 and 408 bytes when their
+    /// lists were `Vec`s and the rare parts were inline; 200, 56 and 216, with 72-byte items
+    /// and 88-byte margins, before a series link became an index, an item lost its copies of
+    /// what the model holds and the rare pull-up level was boxed; 160, 40 and 160, with a
+    /// 72-byte margin kept per driver and load, 48-byte drivers and 80-byte loads, before the
+    /// rarer lists moved into one boxed `NetExtras`, margins were worked out when asked, the
+    /// low level was read from the low state, a family id became one word and a load's input
+    /// limit was read from its part's family and supply; a part's supply was 48 bytes while
+    /// its nets were `usize`s).
     #[test]
     fn per_net_structures_stay_small() {
         use super::budget::{Item, LoadMargin};
-        assert!(size_of::<NetModel>() <= 160, "{}", size_of::<NetModel>());
-        assert!(size_of::<NetBudget>() <= 40, "{}", size_of::<NetBudget>());
+        use super::{Driver, Load};
+        assert!(size_of::<NetModel>() <= 88, "{}", size_of::<NetModel>());
+        assert!(size_of::<NetBudget>() <= 24, "{}", size_of::<NetBudget>());
         assert!(
-            size_of::<DriverBudget>() <= 160,
+            size_of::<DriverBudget>() <= 144,
             "{}",
             size_of::<DriverBudget>()
         );
         assert!(size_of::<Item>() <= 32, "{}", size_of::<Item>());
         assert!(size_of::<LoadMargin>() <= 72, "{}", size_of::<LoadMargin>());
+        assert!(size_of::<Driver>() <= 40, "{}", size_of::<Driver>());
+        assert!(size_of::<Load>() <= 56, "{}", size_of::<Load>());
+        // one per part
+        assert!(
+            size_of::<Option<super::PartSupply>>() <= 32,
+            "{}",
+            size_of::<Option<super::PartSupply>>()
+        );
     }
 
     /// An empty list costs one pointer and no allocation; a filled one is trimmed to its
@@ -1698,11 +1854,19 @@ mod size_tests {
     fn a_net_model_fits_its_lists() {
         let mut nm = NetModel::default();
         for i in 0..5 {
-            nm.held.push(i);
+            nm.extras_mut().held.push(i);
         }
         nm.fit();
-        assert_eq!(nm.held.capacity(), 5);
-        assert_eq!(&nm.held[..], &[0, 1, 2, 3, 4]);
+        let extras = nm.extras.as_ref().expect("a net with a held list keeps its extras");
+        assert_eq!(extras.held.capacity(), 5);
+        assert_eq!(nm.held(), &[0, 1, 2, 3, 4]);
+        assert_eq!(extras.pulls.capacity(), 0);
         assert_eq!(nm.drivers.capacity(), 0);
+        // extras left empty are dropped: a net without them costs one pointer
+        let mut bare = NetModel::default();
+        bare.extras_mut();
+        bare.fit();
+        assert!(bare.extras.is_none());
+        assert!(bare.pulls().is_empty() && bare.series().is_empty());
     }
 }

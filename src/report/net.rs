@@ -140,9 +140,9 @@ pub fn write_net(
             fig
         )?;
     }
-    if !nm.pulls.is_empty() {
+    if !nm.pulls().is_empty() {
         writeln!(out, "  pull resistors:")?;
-        for p in &nm.pulls {
+        for p in nm.pulls() {
             writeln!(
                 out,
                 "    {} {} to {} ({})",
@@ -153,7 +153,7 @@ pub fn write_net(
             )?;
         }
     }
-    for (ci, e) in &nm.unreadable {
+    for (ci, e) in nm.unreadable() {
         writeln!(
             out,
             "  unreadable resistor value: {} `{}`: {}",
@@ -165,7 +165,7 @@ pub fn write_net(
     for j in &nm.connectors {
         writeln!(out, "  leaves the board through {}", cx.pin_name(*j))?;
     }
-    for p in &nm.led_paths {
+    for p in nm.led_paths() {
         writeln!(
             out,
             "  LED load: {} LED(s), {} in series to ground (Vf {} assumed)",
@@ -210,13 +210,13 @@ pub fn write_net(
                 let parts: Vec<usize> = match l.kind {
                     LoadKind::Led(i) => {
                         let p = if op.high {
-                            &nm.led_paths[i]
+                            &nm.led_paths()[i]
                         } else {
-                            &nm.sink_paths[i]
+                            &nm.sink_paths()[i]
                         };
                         p.resistors.iter().chain(&p.leds).copied().collect()
                     }
-                    LoadKind::Pull(i) => vec![nm.pulls[i].resistor],
+                    LoadKind::Pull(i) => vec![nm.pulls()[i].resistor],
                 };
                 let names: Vec<String> = parts
                     .iter()
@@ -240,7 +240,8 @@ pub fn write_net(
                 )?;
             }
         }
-        for m in b.margins.iter().filter(|m| m.driver == db.driver) {
+        for m in b.margins(cx, net).filter(|m| m.driver == db.driver) {
+            let m = &m;
             let l = &nm.loads[m.load];
             let f = |x: Option<f64>| x.map_or("-".to_string(), |v| format!("{v:+.2} V"));
             writeln!(
