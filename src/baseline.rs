@@ -133,7 +133,7 @@ pub fn entries(f: &FileOutcome) -> Vec<Entry> {
             fingerprint: fp,
             check: d.code.to_string(),
             net: d.net.as_deref().map(String::from),
-            pins: d.pins.clone(),
+            pins: d.pins().map(String::from).collect(),
             message: d.message.to_string(),
         })
         .collect()

@@ -118,18 +118,15 @@ impl Waiver {
             return false;
         }
         let refs: Vec<&str> = d
-            .pins
-            .iter()
-            .map(|p| p.split_once('.').map_or(p.as_str(), |(r, _)| r))
+            .pins()
+            .map(|p| p.split_once('.').map_or(p, |(r, _)| r))
             .collect();
         let refs_ok = self.refs.is_empty()
             || refs
                 .iter()
                 .any(|r| self.refs.iter().any(|g| glob_match(g, r)));
-        let pins_ok = self.pins.is_empty()
-            || d.pins
-                .iter()
-                .any(|p| self.pins.iter().any(|g| glob_match(g, p)));
+        let pins_ok =
+            self.pins.is_empty() || d.pins().any(|p| self.pins.iter().any(|g| glob_match(g, p)));
         let nets_ok = self.nets.is_empty()
             || d.net
                 .as_deref()

@@ -116,9 +116,104 @@ pub struct Diag {
     pub help: Option<Text>,
     /// The net the finding is about, by name.
     pub net: Option<Box<str>>,
-    /// The pins involved, as `REF.PIN`, the offending one first.
-    pub pins: Vec<String>,
+    /// The pins involved, as `REF.PIN`, the offending one first (read with [`Diag::pins`]).
+    pub pins: PinList,
 }
+
+/// The pins a finding names, held as one text: the names joined by NUL, which no name holds
+/// (the reader refuses a file with a NUL byte and no escape makes one; a NUL given anyway is
+/// written as U+FFFD). `None` is no pins, so one empty name is still one pin. One allocation
+/// for all of a finding's pins, in place of one per pin and one for the list.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct PinList(Option<Box<str>>);
+
+const PIN_SEP: char = '\0';
+
+impl PinList {
+    /// The list of `names`, in order.
+    pub fn of<I: IntoIterator<Item = S>, S: AsRef<str>>(names: I) -> PinList {
+        let mut w = PinListWriter::default();
+        for n in names {
+            let n = n.as_ref();
+            let out = w.next_pin();
+            if n.contains(PIN_SEP) {
+                out.push_str(&n.replace(PIN_SEP, "\u{fffd}"));
+            } else {
+                out.push_str(n);
+            }
+        }
+        w.finish()
+    }
+
+    /// The names, in order.
+    pub fn iter(&self) -> Pins<'_> {
+        Pins(self.0.as_deref())
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.0.is_none()
+    }
+}
+
+/// Writes a [`PinList`] name by name, straight into its text (no text per name).
+#[derive(Debug, Default)]
+pub struct PinListWriter {
+    text: String,
+    any: bool,
+}
+
+impl PinListWriter {
+    /// A writer with room for `bytes` of text (the names and one separator between each two).
+    pub fn with_capacity(bytes: usize) -> PinListWriter {
+        PinListWriter {
+            text: String::with_capacity(bytes),
+            any: false,
+        }
+    }
+
+    /// Starts the next name and gives the text to write it into (the name must hold no NUL).
+    pub fn next_pin(&mut self) -> &mut String {
+        if self.any {
+            self.text.push(PIN_SEP);
+        }
+        self.any = true;
+        &mut self.text
+    }
+
+    pub fn finish(self) -> PinList {
+        PinList(self.any.then(|| self.text.into_boxed_str()))
+    }
+}
+
+/// The names of a [`PinList`], in order.
+#[derive(Debug, Clone)]
+pub struct Pins<'a>(Option<&'a str>);
+
+impl<'a> Iterator for Pins<'a> {
+    type Item = &'a str;
+    fn next(&mut self) -> Option<&'a str> {
+        let s = self.0?;
+        // names are a few bytes: a plain scan is cheaper than a search routine's set-up
+        match s.bytes().position(|b| b == PIN_SEP as u8) {
+            Some(at) => {
+                self.0 = Some(&s[at + 1..]);
+                Some(&s[..at])
+            }
+            None => {
+                self.0 = None;
+                Some(s)
+            }
+        }
+    }
+    fn size_hint(&self) -> (usize, Option<usize>) {
+        let n = self
+            .0
+            .map_or(0, |s| 1 + s.bytes().filter(|&b| b == 0).count());
+        (n, Some(n))
+    }
+}
+
+impl ExactSizeIterator for Pins<'_> {}
 
 impl Diag {
     pub fn new(
@@ -134,7 +229,7 @@ impl Diag {
             labels: Box::default(),
             help: None,
             net: None,
-            pins: Vec::new(),
+            pins: PinList::default(),
         }
     }
     pub fn error(code: impl Into<Cow<'static, str>>, message: impl Into<String>) -> Diag {
@@ -187,12 +282,36 @@ impl Diag {
         m.push_str(more);
         self.message = m.into_boxed_str();
     }
-    pub fn with_pins<I: IntoIterator<Item = S>, S: Into<String>>(mut self, pins: I) -> Diag {
-        let pins = pins.into_iter();
-        // room for what is given, not a growing list's spare
-        self.pins.reserve_exact(pins.size_hint().0);
-        self.pins.extend(pins.map(Into::into));
+    /// Adds `pins` to the end of the pin list.
+    pub fn with_pins<I: IntoIterator<Item = S>, S: AsRef<str>>(mut self, pins: I) -> Diag {
+        if self.pins.is_empty() {
+            self.pins = PinList::of(pins);
+        } else {
+            let pins: Vec<S> = pins.into_iter().collect();
+            self.pins = PinList::of(self.pins.iter().chain(pins.iter().map(AsRef::as_ref)));
+        }
         self
+    }
+    /// Adds the pins of `pins` (a list written by a [`PinListWriter`]) to the pin list.
+    pub fn with_pin_list(mut self, pins: PinList) -> Diag {
+        if self.pins.is_empty() {
+            self.pins = pins;
+            self
+        } else {
+            self.with_pins(pins.iter())
+        }
+    }
+    /// Replaces the pin list.
+    pub fn set_pins<I: IntoIterator<Item = S>, S: AsRef<str>>(&mut self, pins: I) {
+        self.pins = PinList::of(pins);
+    }
+    /// The pins involved, as `REF.PIN`, the offending one first.
+    pub fn pins(&self) -> Pins<'_> {
+        self.pins.iter()
+    }
+    /// True when the finding names any pin.
+    pub fn has_pins(&self) -> bool {
+        !self.pins.is_empty()
     }
     /// The primary span, if any.
     pub fn primary_span(&self) -> Option<Span> {
@@ -425,8 +544,45 @@ mod tests {
     /// A board can have hundreds of thousands of findings: a finding stays this small.
     #[test]
     fn a_finding_is_small() {
-        assert!(size_of::<Diag>() <= 128, "{}", size_of::<Diag>());
+        assert!(size_of::<Diag>() <= 120, "{}", size_of::<Diag>());
+        assert!(size_of::<PinList>() <= 16);
         assert!(size_of::<Text>() <= 24);
+    }
+
+    #[test]
+    fn pin_lists_give_back_their_names_in_order() {
+        // an invented code, held in a variable so that no code is named here
+        let code = "code-a";
+        let cases: &[&[&str]] = &[
+            &[],
+            &["U1.1"],
+            &[""],
+            &["", ""],
+            &["U1.9", "U1.10", "U22.3"],
+        ];
+        for names in cases {
+            let d = Diag::warning(code, "m").with_pins(names.iter());
+            assert_eq!(d.pins().collect::<Vec<_>>(), *names);
+            assert_eq!(d.pins().len(), names.len());
+            assert_eq!(d.has_pins(), !names.is_empty());
+            // written name by name, the same list
+            let mut w = PinListWriter::default();
+            for n in *names {
+                w.next_pin().push_str(n);
+            }
+            assert_eq!(Diag::warning(code, "m").with_pin_list(w.finish()), d);
+        }
+        // added to, in order
+        let d = Diag::warning(code, "m")
+            .with_pins(["U1.1"])
+            .with_pins(["U2.2", "U3.3"]);
+        assert_eq!(d.pins().collect::<Vec<_>>(), ["U1.1", "U2.2", "U3.3"]);
+        // a NUL cannot split a name in two
+        let d = Diag::warning(code, "m").with_pins(["U1\0.1"]);
+        assert_eq!(d.pins().collect::<Vec<_>>(), ["U1\u{fffd}.1"]);
+        let mut d = d;
+        d.set_pins(["R1.2"]);
+        assert_eq!(d.pins().collect::<Vec<_>>(), ["R1.2"]);
     }
 
     #[test]

@@ -503,7 +503,7 @@ fn fingerprints_follow_check_net_and_pins_not_places() {
     assert_eq!(fp(moved), a);
     // a different pin, net or check changes it
     let mut other_pin = base[0].clone();
-    other_pin.pins = vec!["U1.5".into()];
+    other_pin.set_pins(["U1.5"]);
     assert_ne!(fp(other_pin), a);
     let mut other_net = base[0].clone();
     other_net.net = Some("/RESET_N".into());

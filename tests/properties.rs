@@ -377,7 +377,7 @@ fn fingerprint(nl: &Netlist<'_>) -> Fingerprint {
         .map(|d| {
             let mut words: Vec<String> = d.message.split_whitespace().map(String::from).collect();
             words.sort();
-            let mut pins = d.pins.clone();
+            let mut pins: Vec<String> = d.pins().map(String::from).collect();
             pins.sort();
             (
                 d.code.to_string(),
@@ -498,7 +498,7 @@ fn finding_key(d: &Diag) -> (String, String, Option<String>, Vec<String>, Vec<St
         .filter(|w| !w.is_empty() && w != "and")
         .collect();
     words.sort();
-    let mut pins = d.pins.clone();
+    let mut pins: Vec<String> = d.pins().map(String::from).collect();
     pins.sort();
     (
         d.code.to_string(),
@@ -611,7 +611,8 @@ proptest! {
             .iter()
             .map(|d| {
                 let mut d = d.clone();
-                d.pins = d.pins.iter().map(|p| rename_word(p)).collect();
+                let renamed: Vec<String> = d.pins().map(rename_word).collect();
+                d.set_pins(renamed);
                 // net names are strings in the file: they keep their text (even `Net-(U5-Pad4)`)
                 d.message = d.message.split(' ').map(|w| if w.contains("Net-(") || w.contains("unconnected-(") { w.to_string() } else { rename_word(w) }).collect::<Vec<_>>().join(" ").into();
                 finding_key(&d)

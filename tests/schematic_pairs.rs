@@ -209,7 +209,7 @@ fn checks_find_the_same_on_a_schematic_as_on_its_netlist() {
                 .diags
                 .iter()
                 .map(|d| {
-                    let mut pins = d.pins.clone();
+                    let mut pins: Vec<&str> = d.pins().collect();
                     pins.sort();
                     format!("{} {} {}", d.code, d.severity, pins.join(","))
                 })

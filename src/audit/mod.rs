@@ -544,7 +544,7 @@ fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
         .map(|(i, d)| {
             let (line, line_text) = line_of(source, d);
             let mut parts: Vec<String> = Vec::new();
-            for p in &d.pins {
+            for p in d.pins() {
                 let r = ref_of(p).to_string();
                 if !parts.contains(&r) {
                     parts.push(r);
@@ -557,7 +557,7 @@ fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
                 message: d.message.to_string(),
                 help: d.help.as_deref().map(String::from),
                 net: d.net.as_deref().map(String::from),
-                pins: d.pins.clone(),
+                pins: d.pins().map(String::from).collect(),
                 parts,
                 line,
                 line_text,
@@ -884,8 +884,8 @@ fn block_from(
 ) -> Block {
     let row = |d: &Diag, waived: bool| Row {
         subject: d
-            .pins
-            .first()
+            .pins()
+            .next()
             .map(|p| ref_of(p).to_string())
             .or_else(|| part_at(&a.nl, d))
             .or_else(|| d.net.as_deref().map(String::from))

@@ -4,7 +4,7 @@ use super::Context;
 use crate::circuit::Circuit;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
-use crate::diag::{Diag, Label, Text};
+use crate::diag::{Diag, Label, PinList, PinListWriter, Text};
 use crate::netlist::Connection;
 
 /// Why an input floats.
@@ -258,7 +258,7 @@ pub fn unused_gate_finding(
     ]);
     let mut d = make(code, message)
         .with_help(help.clone())
-        .with_pins(g.inputs.iter().map(|f| cx.pin_name(f.at)));
+        .with_pin_list(pin_names(cx, g.inputs.iter().map(|f| f.at)));
     // one place per input, allocated at once: the first input's, then the others beside it
     let place = |f: &Floating, text: &'static str, primary| Label {
         span: cx.pin_span(f.at),
@@ -270,6 +270,70 @@ pub fn unused_gate_finding(
     labels.extend(g.inputs[1..].iter().map(|f| place(f, "", false)));
     d.labels = labels.into_boxed_slice();
     d
+}
+
+/// The pins' names (`U4.6`, as [`Circuit::pin_name`] writes them) as a finding's pin list,
+/// written straight into one text of its length: no text per pin.
+pub fn pin_names<I>(cx: &Circuit<'_, '_>, pins: I) -> PinList
+where
+    I: IntoIterator<Item = PinRef>,
+    I::IntoIter: Clone,
+{
+    let pins = pins.into_iter();
+    let name = |p: PinRef| {
+        let c = &cx.nl.components[p.comp];
+        (c.reference.as_str(), c.pins[p.pin].num(cx.nl))
+    };
+    // each name, a `.`, and a separator between each two
+    let len: usize = pins
+        .clone()
+        .map(|p| {
+            let (r, n) = name(p);
+            r.len() + n.len() + 2
+        })
+        .sum();
+    let mut w = PinListWriter::with_capacity(len.saturating_sub(1));
+    for p in pins {
+        push_pin_name(w.next_pin(), cx, p);
+    }
+    w.finish()
+}
+
+/// Adds a pin's name (`U4.6`, as [`Circuit::pin_name`] writes it) to the end of `s`.
+pub fn push_pin_name(s: &mut String, cx: &Circuit<'_, '_>, p: PinRef) {
+    let c = &cx.nl.components[p.comp];
+    push_all(s, &[c.reference.as_str(), ".", c.pins[p.pin].num(cx.nl)]);
+}
+
+/// A net's display name, as [`Circuit::net_name`] gives it, borrowed from the netlist when
+/// the net is named (no text made for a net a check only looks at).
+pub fn net_name_of<'n>(cx: &'n Circuit<'_, '_>, net: usize) -> std::borrow::Cow<'n, str> {
+    let name = cx.nl.nets[net].name.as_str();
+    if name.is_empty() {
+        cx.net_name(net).into()
+    } else {
+        name.into()
+    }
+}
+
+/// Adds the pieces to the end of `s`.
+pub fn push_all(s: &mut String, pieces: &[&str]) {
+    s.reserve(pieces.iter().map(|p| p.len()).sum());
+    for p in pieces {
+        s.push_str(p);
+    }
+}
+
+/// Writes the items into `s` as `a`, `a and b`, `a, b and c` (each by `item`), straight into
+/// the text: no text per item.
+pub fn write_and<T>(s: &mut String, items: &[T], mut item: impl FnMut(&mut String, &T)) {
+    let n = items.len();
+    for (i, x) in items.iter().enumerate() {
+        if i > 0 {
+            s.push_str(if i + 1 == n { " and " } else { ", " });
+        }
+        item(s, x);
+    }
 }
 
 /// The pieces joined into one string allocated to its length (a finding holds its words to
@@ -455,6 +519,24 @@ mod tests {
             }
             other => panic!("not shared: {other:?}"),
         }
+    }
+
+    #[test]
+    fn lists_written_in_place_read_as_joined() {
+        let items = ["7 (GND)", "14 (VCC)", "8 (VEE)", "16 (VDD)"];
+        for n in 0..=items.len() {
+            let want = match n {
+                0 => String::new(),
+                1 => items[0].to_string(),
+                _ => format!("{} and {}", items[..n - 1].join(", "), items[n - 1]),
+            };
+            let mut s = String::from("x");
+            super::write_and(&mut s, &items[..n], |s, i| s.push_str(i));
+            assert_eq!(s, format!("x{want}"), "{n} items");
+        }
+        let mut s = String::new();
+        super::push_all(&mut s, &["pin ", "7", " (", "GND", ")"]);
+        assert_eq!(s, "pin 7 (GND)");
     }
 
     #[test]

@@ -23,11 +23,11 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 };
 
 use super::common::{
-    agree, floating_inputs, ground_rail_name, pin_list, supply_rail_name, unused_gate_finding,
-    Float, GateKey, Words,
+    agree, floating_inputs, ground_rail_name, net_name_of, pin_list, push_all, push_pin_name,
+    supply_rail_name, unused_gate_finding, Float, GateKey, Words,
 };
 use super::Context;
-use crate::diag::Diag;
+use crate::diag::{Diag, Text};
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
@@ -75,7 +75,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     }
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
-    let mut part_text: Option<(usize, &str, String)> = None;
+    let mut part_text: Option<(usize, &str, Text)> = None;
     for f in found.singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
             // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
@@ -92,25 +92,21 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ground_rail_name(ctx, f.at.comp),
                 supply_rail_name(ctx, f.at.comp)
             );
-            part_text = Some((f.at.comp, input, help));
+            part_text = Some((f.at.comp, input, Text::from(help)));
         }
         let (_, input, help) = part_text.as_ref().expect("set above");
         let input = *input;
         let (msg, label): (String, std::borrow::Cow<'static, str>) = match f.why {
-            Float::Absent => (
-                format!(
-                    "{} is on no net: {input} must never float",
-                    cx.describe(f.at)
-                ),
-                "on no net".into(),
-            ),
-            Float::Alone(_) => (
-                format!(
-                    "{} is connected to nothing: {input} must never float",
-                    cx.describe(f.at)
-                ),
-                "connected to nothing".into(),
-            ),
+            Float::Absent => {
+                let mut m = cx.describe(f.at);
+                push_all(&mut m, &[" is on no net: ", input, " must never float"]);
+                (m, "on no net".into())
+            }
+            Float::Alone(_) => {
+                let mut m = cx.describe(f.at);
+                push_all(&mut m, &[" is connected to nothing: ", input, " must never float"]);
+                (m, "connected to nothing".into())
+            }
             Float::SwitchOpen(net, ref l) => (
                 format!(
                     "{} is on net `{}`, which only {} sets, and only while closed: in the open position the CMOS input floats",
@@ -122,31 +118,35 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             ),
             Float::Undriven(net) => {
                 let nm = &cx.nets[net];
-                let others: Vec<String> = nm
+                // the other pins on the net, written in place
+                let mut m = cx.describe(f.at);
+                push_all(&mut m, &[" is on net `", &net_name_of(cx, net), "`, which nothing drives: no output, rail or pull resistor (only "]);
+                let mut others = nm
                     .loads
                     .iter()
-                    .filter(|l| l.at != f.at)
-                    .map(|l| cx.pin_name(l.at))
-                    .chain(nm.passives.iter().map(|p| cx.pin_name(*p)))
-                    .collect();
-                (
-                    format!(
-                        "{} is on net `{}`, which nothing drives: no output, rail or pull resistor (only {})",
-                        cx.describe(f.at),
-                        cx.net_name(net),
-                        if others.is_empty() { "this input".to_string() } else { others.join(", ") }
-                    ),
-                    "no driver on this net".into(),
-                )
+                    .map(|l| l.at)
+                    .filter(|&at| at != f.at)
+                    .chain(nm.passives.iter().copied())
+                    .peekable();
+                if others.peek().is_none() {
+                    m.push_str("this input");
+                }
+                for (i, p) in others.enumerate() {
+                    if i > 0 {
+                        m.push_str(", ");
+                    }
+                    push_pin_name(&mut m, cx, p);
+                }
+                m.push(')');
+                (m, "no driver on this net".into())
             }
         };
         let mut d = Diag::error("floating-cmos-input", msg)
             .at(cx.pin_span(f.at), label)
             .with_help(help.clone())
-            .with_pins([cx.pin_name(f.at)]);
+            .with_pin_list(super::common::pin_names(cx, [f.at]));
         if let Float::Undriven(net) | Float::Alone(net) | Float::SwitchOpen(net, _) = &f.why {
-            let net = *net;
-            d = d.on_net(cx.net_name(net));
+            d = d.on_net(net_name_of(cx, *net));
         }
         out.push(d);
     }

@@ -24,7 +24,7 @@ use super::common::{
     agree, floating_inputs, pin_list, supply_rail_name, unused_gate_finding, Float, GateKey, Words,
 };
 use super::Context;
-use crate::diag::Diag;
+use crate::diag::{Diag, Text};
 use crate::values::format_ohms;
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
@@ -77,10 +77,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     }
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
-    let mut part_text: Option<(usize, String, String)> = None;
+    let mut part_text: Option<(usize, String, Text)> = None;
     for f in found.singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
-            part_text = Some((f.at.comp, inside(f.at.comp), tie(f.at.comp)));
+            part_text = Some((f.at.comp, inside(f.at.comp), Text::from(tie(f.at.comp))));
         }
         let (_, inside, tie) = part_text.as_ref().expect("set above");
         let nc = cx.nl.components[f.at.comp].pins[f.at.pin].no_connect;
@@ -135,9 +135,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             .with_help(tie.clone())
         }
         .at(cx.pin_span(f.at), "open TTL input")
-        .with_pins([cx.pin_name(f.at)]);
+        .with_pin_list(super::common::pin_names(cx, [f.at]));
         if let Some(n) = net {
-            d = d.on_net(cx.net_name(n));
+            d = d.on_net(super::common::net_name_of(cx, n));
         }
         out.push(d);
     }

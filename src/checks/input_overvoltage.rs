@@ -336,7 +336,10 @@ fn diag(
             format!("takes at most {}", format_volts(lim)),
         )
         .on_net(cx.net_name(net))
-        .with_pins(pins.iter().chain(at.iter()).map(|p| cx.pin_name(*p)));
+        .with_pin_list(super::common::pin_names(
+            cx,
+            pins.iter().chain(at.iter()).copied(),
+        ));
     for p in &pins[1..] {
         d = d.also(cx.pin_span(*p), "input");
     }

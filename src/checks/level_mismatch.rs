@@ -103,7 +103,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                             format!("high level {}", format_volts(high)),
                         )
                         .on_net(cx.net_name(net))
-                        .with_pins([cx.pin_name(l.at), cx.pin_name(d.at)])
+                        .with_pin_list(super::common::pin_names(cx, [l.at, d.at]))
                         .with_help(high_fix(ctx, b, db.high.is_none())),
                     );
                 }
@@ -130,7 +130,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         .at(cx.pin_span(l.at), format!("VIL {}", format_volts(m.vil)))
                         .also(cx.pin_span(d.at), format!("low level {}", format_volts(low)))
                         .on_net(cx.net_name(net))
-                        .with_pins([cx.pin_name(l.at), cx.pin_name(d.at)])
+                        .with_pin_list(super::common::pin_names(cx, [l.at, d.at]))
                         .with_help("lighten the driver's low-state load (fewer loads, a larger pull-up) or use a driver with a lower VOL"),
                     );
                 }

@@ -112,7 +112,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             )
             .at(cx.pin_span(at), format!("must be held {level}"))
             .with_help(help)
-            .with_pins([cx.pin_name(at)]);
+            .with_pin_list(super::common::pin_names(cx, [at]));
             if let Float::Undriven(net) | Float::Alone(net) | Float::SwitchOpen(net, _) = why {
                 d = d.on_net(cx.net_name(net));
             }

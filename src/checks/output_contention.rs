@@ -422,7 +422,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             )
             .at(cx.pin_span(*p), format!("output on {name}"))
             .on_net(name)
-            .with_pins([cx.pin_name(*p)])
+            .with_pin_list(super::common::pin_names(cx, [*p]))
             .with_help("lift the output off the rail: an unused output is left open; if a fixed level was wanted, set it through the gate's inputs")
         }
         Finding::AgainstEnabled { always, gated } => {

@@ -192,7 +192,7 @@ fn dark(
             Diag::new(INFO.id, sev, message)
                 .at(cx.pin_span(l.at), "LEDs that never light")
                 .on_net(cx.net_name(net))
-                .with_pins([cx.pin_name(at), cx.pin_name(l.at)])
+                .with_pin_list(super::common::pin_names(cx, [at, l.at]))
                 .also(cx.pin_span(at), "the output")
                 .with_help(
                     "put fewer LEDs in series (or parallel strings, each with its own resistor), or drive the string from a higher supply through a transistor",

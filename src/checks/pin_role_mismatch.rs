@@ -262,7 +262,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             format!("{} ({value}): the symbol disagrees with the {value} pinout at {} pin{}: {}", c.reference.as_str(), bad.len(), if bad.len() == 1 { "" } else { "s" }, clauses.join("; ")),
         )
         .at(cx.pin_span(first), format!("the symbol's pin {} is typed {}", c.pins[bad[0]].num(cx.nl), c.pins[bad[0]].ptype.as_str()))
-        .with_pins(bad.iter().map(|&i| cx.pin_name(PinRef { comp: ci, pin: i })))
+        .with_pin_list(super::common::pin_names(cx, bad.iter().map(|&i| PinRef { comp: ci, pin: i })))
         .with_help(format!(
             "likely cause: {}; use a symbol for the {value} (or correct the pin types); netmargin goes by the value and reads these pins as the {value} pinout gives them",
             likely_cause(&pairs)

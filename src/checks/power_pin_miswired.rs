@@ -31,6 +31,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a supply pin on ground, a ground pin on a supply, or a supply pin on no net",
 };
 
+use super::common::{concat, push_all, push_pin_name};
 use super::Context;
 use crate::circuit::{NetModel, PinRef};
 use crate::classify::classifier::{is_ground_name, PartKind, RoleSource};
@@ -171,7 +172,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 Connection::Net { net, .. } => {
                     let net = net as usize;
                     let nm = &cx.nets[net];
-                    let name = cx.net_name(net);
+                    let name = super::common::net_name_of(cx, net);
                     let kind = net_kind(nm, &name);
                     let Some(fault) = misplaced(side, kind) else {
                         continue;
@@ -179,31 +180,35 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     wrong = true;
                     let (what, fix) = match kind {
                         NetKind::Signal => {
-                            let pins_of = |v: Vec<PinRef>| -> Vec<String> {
-                                v.into_iter()
-                                    .filter(|q| q.comp != ci)
-                                    .take(3)
-                                    .map(|q| cx.pin_name(q))
-                                    .collect()
+                            // `the signal net /S (driven by U1.3; read by U2.1, U3.4)`, the
+                            // other parts' pins, up to three of each, written in place
+                            let mut what = String::new();
+                            push_all(&mut what, &["the ", fault, " ", &name]);
+                            let mut open = false;
+                            let mut list = |what: &mut String,
+                                            word: &str,
+                                            pins: &mut dyn Iterator<Item = PinRef>| {
+                                for (i, q) in pins.filter(|q| q.comp != ci).take(3).enumerate() {
+                                    if i == 0 {
+                                        what.push_str(if open { "; " } else { " (" });
+                                        open = true;
+                                        what.push_str(word);
+                                    } else {
+                                        what.push_str(", ");
+                                    }
+                                    push_pin_name(what, cx, q);
+                                }
                             };
-                            let drivers = pins_of(nm.drivers.iter().map(|d| d.at).collect());
-                            let loads = pins_of(nm.loads.iter().map(|l| l.at).collect());
-                            let mut parts = Vec::new();
-                            if !drivers.is_empty() {
-                                parts.push(format!("driven by {}", drivers.join(", ")));
+                            list(
+                                &mut what,
+                                "driven by ",
+                                &mut nm.drivers.iter().map(|d| d.at),
+                            );
+                            list(&mut what, "read by ", &mut nm.loads.iter().map(|l| l.at));
+                            if open {
+                                what.push(')');
                             }
-                            if !loads.is_empty() {
-                                parts.push(format!("read by {}", loads.join(", ")));
-                            }
-                            let with = if parts.is_empty() {
-                                String::new()
-                            } else {
-                                format!(" ({})", parts.join("; "))
-                            };
-                            (
-                                format!("the {fault} {name}{with}"),
-                                format!("move it to {}", rails.get(ctx, ci, side)),
-                            )
+                            (what, concat(&["move it to ", rails.get(ctx, ci, side)]))
                         }
                         NetKind::Positive(v) | NetKind::Negative(v) => (
                             format!("the {fault} {}", rail_text(&name, v)),
@@ -223,10 +228,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     };
                     // an unclassified part's pin names and types are a hint, never proof
                     let mut d = if part.role_source[pi] == RoleSource::Table {
-                        Diag::error(
-                            "power-pin-miswired",
-                            format!("{} is on {what}{consequence}", cx.describe(at)),
-                        )
+                        let mut m = cx.describe(at);
+                        push_all(&mut m, &[" is on ", &what, consequence]);
+                        Diag::error("power-pin-miswired", m)
                     } else {
                         Diag::warning(
                             "power-pin-miswired",
@@ -237,9 +241,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                             ),
                         )
                     }
-                    .at(cx.pin_span(at), format!("{side_word} pin on the {fault}"))
+                    .at(cx.pin_span(at), concat(&[side_word, " pin on the ", fault]))
                     .on_net(name)
-                    .with_pins([cx.pin_name(at)])
+                    .with_pin_list(super::common::pin_names(cx, [at]))
                     .with_help(fix);
                     if let NetKind::Signal = kind {
                         for q in nm
@@ -306,7 +310,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                                 format!("{side_word} pin wired to nothing")
                             },
                         )
-                        .with_pins([cx.pin_name(at)])
+                        .with_pin_list(super::common::pin_names(cx, [at]))
                         .with_help(format!("wire it to {}", rails.get(ctx, ci, side))),
                     );
                 }
@@ -407,7 +411,7 @@ fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut Vec<Diag>) {
         )
         .at(cx.pin_span(at), format!("{} supply pin on {}", fam.id, cx.net_name(snet)))
         .on_net(cx.net_name(snet))
-        .with_pins([cx.pin_name(at)])
+        .with_pin_list(super::common::pin_names(cx, [at]))
         .with_help(format!("run it from a rail within {} to {}{alt}", format_volts(fam.supply_min), format_volts(fam.supply_max))),
     );
 }

@@ -162,7 +162,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 format!("guarantees {}", format_volts(high)),
             )
             .on_net(cx.net_name(net))
-            .with_pins([cx.pin_name(l.at), cx.pin_name(d.at)])
+            .with_pin_list(super::common::pin_names(cx, [l.at, d.at]))
             .with_help(if fixes.is_empty() {
                 "use a CMOS load with TTL thresholds, or a level translator".to_string()
             } else {

@@ -21,6 +21,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a classified part whose supply or ground pin is on no net or absent",
 };
 
+use super::common::{push_all, write_and};
 use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::function::PinDef;
@@ -95,11 +96,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let kinds: Vec<Missing> = found.iter().map(|f| f.1).collect();
         let unplaced = power_unit_unplaced(&kinds, power.len());
         let value = c.value_str();
-        let names: Vec<String> = found
-            .iter()
-            .map(|(d, _, _)| format!("{} ({})", d.pin, d.name))
-            .collect();
-        let list = join_and(&names);
+        let reference = c.reference.as_str();
+        // the words are written piece by piece into one text each: a board can have a part
+        // like this in every cell
+        let list = |s: &mut String| {
+            write_and(s, &found, |s, (d, _, _)| {
+                push_all(s, &[&d.pin, " (", &d.name, ")"]);
+            })
+        };
         let plural = found.len() > 1;
         let (pin_word, verb) = if plural {
             ("pins", "are")
@@ -108,36 +112,72 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         };
         let no_symbol = c.libpart.is_none();
         let all_missing = kinds.iter().all(|m| *m == Missing::NoSuchPin);
-        let what = if unplaced && all_missing && no_symbol {
-            format!(
-                "{} ({value}) has no power in the netlist: {pin_word} {list} {verb} in no net, and the netlist has no library part for it",
-                c.reference.as_str()
-            )
+        let mut what = String::new();
+        if unplaced && all_missing && no_symbol {
+            push_all(
+                &mut what,
+                &[
+                    reference,
+                    " (",
+                    value,
+                    ") has no power in the netlist: ",
+                    pin_word,
+                    " ",
+                ],
+            );
+            list(&mut what);
+            push_all(
+                &mut what,
+                &[
+                    " ",
+                    verb,
+                    " in no net, and the netlist has no library part for it",
+                ],
+            );
         } else if unplaced && all_missing {
-            format!(
-                "{} ({value}) has no power: its symbol has no {pin_word} {list}",
-                c.reference.as_str()
-            )
+            push_all(
+                &mut what,
+                &[
+                    reference,
+                    " (",
+                    value,
+                    ") has no power: its symbol has no ",
+                    pin_word,
+                    " ",
+                ],
+            );
+            list(&mut what);
         } else if unplaced {
-            format!("{} ({value}) has no power: {pin_word} {list} {verb} on no net; the symbol's power unit seems never placed", c.reference.as_str())
+            push_all(
+                &mut what,
+                &[reference, " (", value, ") has no power: ", pin_word, " "],
+            );
+            list(&mut what);
+            push_all(
+                &mut what,
+                &[
+                    " ",
+                    verb,
+                    " on no net; the symbol's power unit seems never placed",
+                ],
+            );
         } else {
-            let parts: Vec<String> = found
-                .iter()
-                .map(|(d, m, _)| {
-                    let how = match m {
-                        Missing::NoSuchPin => "is not in the symbol",
-                        Missing::Absent => "is on no net",
-                        Missing::Unwired => "is placed but wired to nothing",
-                    };
-                    format!("pin {} ({}) {how}", d.pin, d.name)
-                })
-                .collect();
-            format!(
-                "{} ({value}) is not fully powered: {}",
-                c.reference.as_str(),
-                parts.join(", ")
-            )
-        };
+            push_all(
+                &mut what,
+                &[reference, " (", value, ") is not fully powered: "],
+            );
+            for (i, (d, m, _)) in found.iter().enumerate() {
+                let how = match m {
+                    Missing::NoSuchPin => "is not in the symbol",
+                    Missing::Absent => "is on no net",
+                    Missing::Unwired => "is placed but wired to nothing",
+                };
+                if i > 0 {
+                    what.push_str(", ");
+                }
+                push_all(&mut what, &["pin ", &d.pin, " (", &d.name, ") ", how]);
+            }
+        }
         let supply_rail = cx.family(ci).and_then(|fam| {
             ctx.rails
                 .find(|r| {
@@ -145,48 +185,54 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         && r.volts
                             .is_some_and(|v| (v - fam.supply_nominal).abs() < 1e-9)
                 })
-                .map(|(n, _)| (cx.net_name(n), fam.supply_nominal))
+                .map(|(n, _)| {
+                    (
+                        super::common::net_name_of(cx, n),
+                        format_volts(fam.supply_nominal),
+                    )
+                })
         });
         let ground_rail = ctx
             .rails
             .find(|r| r.ground)
-            .map(|(n, _)| cx.net_name(n))
-            .unwrap_or_else(|| "GND".into());
-        let wires: Vec<String> = found
-            .iter()
-            .map(|(d, _, _)| {
+            .map_or("GND".into(), |(n, _)| super::common::net_name_of(cx, n));
+        let wires = |s: &mut String| {
+            write_and(s, &found, |s, (d, _, _)| {
+                push_all(s, &["pin ", &d.pin, " (", &d.name, ") to "]);
                 if d.role == PinRole::Ground {
-                    format!("pin {} ({}) to {ground_rail}", d.pin, d.name)
+                    s.push_str(&ground_rail);
                 } else {
                     match &supply_rail {
-                        Some((n, v)) => {
-                            format!("pin {} ({}) to {n} ({})", d.pin, d.name, format_volts(*v))
-                        }
-                        None => format!("pin {} ({}) to the family's supply", d.pin, d.name),
+                        Some((n, v)) => push_all(s, &[n, " (", v, ")"]),
+                        None => s.push_str("the family's supply"),
                     }
                 }
             })
-            .collect();
-        let help = if unplaced && all_missing && no_symbol {
-            format!(
-                "give {} its library part, then wire {}",
-                c.reference.as_str(),
-                join_and(&wires)
-            )
-        } else if unplaced && all_missing {
-            format!(
-                "use a symbol with the {value}'s power pins (or add them to this one) and wire {}",
-                join_and(&wires)
-            )
-        } else if unplaced {
-            format!(
-                "place the power unit of {} and wire {}",
-                c.reference.as_str(),
-                join_and(&wires)
-            )
-        } else {
-            format!("wire {}", join_and(&wires))
         };
+        let mut help = String::new();
+        if unplaced && all_missing && no_symbol {
+            push_all(
+                &mut help,
+                &["give ", reference, " its library part, then wire "],
+            );
+        } else if unplaced && all_missing {
+            push_all(
+                &mut help,
+                &[
+                    "use a symbol with the ",
+                    value,
+                    "'s power pins (or add them to this one) and wire ",
+                ],
+            );
+        } else if unplaced {
+            push_all(
+                &mut help,
+                &["place the power unit of ", reference, " and wire "],
+            );
+        } else {
+            help.push_str("wire ");
+        }
+        wires(&mut help);
         let span_of = |idx: Option<usize>| match idx {
             Some(i) => cx.pin_span(PinRef { comp: ci, pin: i }),
             None => c.reference.span(),
@@ -200,11 +246,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let (_, m0, i0) = found[0];
         let mut diag = Diag::error("unpowered-part", what)
             .at(span_of(i0), label(m0))
-            .with_pins(
-                found
-                    .iter()
-                    .map(|(d, _, _)| format!("{}.{}", c.reference.as_str(), d.pin)),
-            )
+            .with_pin_list({
+                let mut w = crate::diag::PinListWriter::default();
+                for (d, _, _) in &found {
+                    push_all(w.next_pin(), &[reference, ".", &d.pin]);
+                }
+                w.finish()
+            })
             .with_help(help);
         for (_, m, i) in found.iter().skip(1) {
             if i.is_some() {
@@ -212,18 +260,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             }
         }
         out.push(diag);
-    }
-}
-
-fn join_and(items: &[String]) -> String {
-    match items.len() {
-        0 => String::new(),
-        1 => items[0].clone(),
-        _ => format!(
-            "{} and {}",
-            items[..items.len() - 1].join(", "),
-            items[items.len() - 1]
-        ),
     }
 }
 

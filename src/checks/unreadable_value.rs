@@ -22,6 +22,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a resistor whose value cannot be read, so its pull current is unknown",
 };
 
+use super::common::{net_name_of, push_all};
 use super::Context;
 use crate::circuit::PinRef;
 use crate::circuit::ValueReading;
@@ -65,35 +66,46 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 .find(|&n| n != net && cx.nets[n].rail.is_some());
             pulled.push((net, PinRef { comp: ci, pin: pi }, rail));
         }
-        let effect = if pulled.is_empty() {
-            "it is left out of every budget".to_string()
+        // `the pull-up on /S to +5V, the pull on /T is left out ...`, written in place
+        let mut effect = String::new();
+        if pulled.is_empty() {
+            effect.push_str("it is left out of every budget");
         } else {
-            let each: Vec<String> = pulled
-                .iter()
-                .map(|(net, _, rail)| match rail {
+            for (i, (net, _, rail)) in pulled.iter().enumerate() {
+                if i > 0 {
+                    effect.push_str(", ");
+                }
+                match rail {
                     Some(r) => {
                         let dir = match cx.nets[*r].rail.and_then(|x| x.v()) {
                             Some(v) if v > 0.0 => "pull-up",
                             Some(0.0) => "pull-down",
                             _ => "pull",
                         };
-                        format!("the {dir} on {} to {}", cx.net_name(*net), cx.net_name(*r))
+                        push_all(
+                            &mut effect,
+                            &[
+                                "the ",
+                                dir,
+                                " on ",
+                                &net_name_of(cx, *net),
+                                " to ",
+                                &net_name_of(cx, *r),
+                            ],
+                        );
                     }
-                    None => format!("the pull on {}", cx.net_name(*net)),
-                })
-                .collect();
-            format!(
-                "{} is left out of that net's budget, so its pull current is unknown",
-                each.join(", ")
-            )
-        };
+                    None => push_all(&mut effect, &["the pull on ", &net_name_of(cx, *net)]),
+                }
+            }
+            effect.push_str(" is left out of that net's budget, so its pull current is unknown");
+        }
         let span = c.value.as_ref().map_or(c.reference.span(), |v| v.span());
         let mut diag = Diag::warning("unreadable-value", format!("{reference}: {err}; {effect}"))
             .at(span, "unreadable value")
-            .with_pins(pulled.iter().map(|(_, p, _)| cx.pin_name(*p)))
+            .with_pin_list(super::common::pin_names(cx, pulled.iter().map(|(_, p, _)| *p)))
             .with_help("write the value in one form: the IEC 60062 code (`4K7`, `R47`, `1M0`) or a number with an SI prefix (`4.7k`, `10 kOhm`); netmargin does not guess which was meant");
         if let Some((net, _, _)) = pulled.first() {
-            diag = diag.on_net(cx.net_name(*net));
+            diag = diag.on_net(net_name_of(cx, *net));
         }
         for (_, p, _) in pulled.iter().take(3) {
             diag = diag.also(cx.pin_span(*p), "pulls this net");

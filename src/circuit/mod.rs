@@ -581,12 +581,10 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let c = &self.nl.components[p.comp];
         let part = &self.cl.parts[p.comp];
         let pin = &c.pins[p.pin];
-        let mut s = format!("{} pin {}", c.reference, pin.num(self.nl));
         let name = part.table_names[p.pin]
             .as_deref()
-            .map(String::from)
-            .or_else(|| pin.name(self.nl).map(|n| n.to_string()))
-            .filter(|n| n != "~" && !n.is_empty());
+            .or_else(|| pin.name(self.nl))
+            .filter(|n| *n != "~" && !n.is_empty());
         let what = match part.roles[p.pin] {
             PinRole::Input | PinRole::SchmittInput => "input",
             PinRole::PushPull => "output",
@@ -598,11 +596,19 @@ impl<'n, 'a> Circuit<'n, 'a> {
             PinRole::Ground => "ground pin",
             _ => "pin",
         };
-        let value = c.value_str();
-        match name {
-            Some(n) => s.push_str(&format!(" ({value} {what} {n})")),
-            None => s.push_str(&format!(" ({value} {what})")),
+        // written piece by piece into one text of its length (a finding's message quotes it)
+        let (r, num, value) = (c.reference.as_str(), pin.num(self.nl), c.value_str());
+        let pieces = [r, " pin ", num, " (", value, " ", what];
+        let tail = name.map_or(0, |n| n.len() + 1) + 1;
+        let mut s = String::with_capacity(pieces.iter().map(|x| x.len()).sum::<usize>() + tail);
+        for x in pieces {
+            s.push_str(x);
         }
+        if let Some(n) = name {
+            s.push(' ');
+            s.push_str(n);
+        }
+        s.push(')');
         s
     }
 

@@ -73,7 +73,7 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
             });
         }
         if facts.finding.is_none() {
-            let is_check = |d: &&Diag| crate::checks::info(&d.code).is_some() && !d.pins.is_empty();
+            let is_check = |d: &&Diag| crate::checks::info(&d.code).is_some() && d.has_pins();
             facts.finding = board
                 .findings()
                 .diags
@@ -81,7 +81,7 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
                 .find(is_check)
                 .map(|d| FindingSeen {
                     check: d.code.to_string(),
-                    pins: d.pins.clone(),
+                    pins: d.pins().map(String::from).collect(),
                 });
         }
     }

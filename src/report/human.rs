@@ -94,7 +94,7 @@ pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> S
                 None
             },
             net: None,
-            pins: Vec::new(),
+            pins: Default::default(),
         };
         s.push_str(&render_one(h, &part, source));
     }
@@ -254,7 +254,7 @@ fn write_file_with(
                 let at = o
                     .net
                     .as_deref()
-                    .or_else(|| o.pins.first().map(|p| &**p))
+                    .or_else(|| o.pins().next())
                     .or_else(|| o.message.split_whitespace().next())
                     .map(sanitize)
                     .unwrap_or_default();

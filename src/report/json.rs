@@ -104,7 +104,7 @@ fn write_finding<'a>(
     w.key("severity").word(d.severity.as_str());
     w.key("message").str(&d.message);
     w.key("net").opt_str(d.net.as_deref());
-    w.key("pins").strs(d.pins.iter().map(|p| &**p));
+    w.key("pins").strs(d.pins());
     w.key("label")
         .opt_str(primary.map(|l| &*l.text).filter(|t| !t.is_empty()));
     PlaceOut::write_at(w, places, kept, primary.map(|l| l.span));

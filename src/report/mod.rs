@@ -273,11 +273,11 @@ fn write_fingerprint_key(d: &Diag, source: Option<&SourceFile>, key: &mut String
     key.push_str(&d.code);
     key.push('\u{1f}');
     key.push_str(d.net.as_deref().unwrap_or(""));
-    for p in &d.pins {
+    for p in d.pins() {
         key.push('\u{1f}');
         key.push_str(p);
     }
-    if d.net.is_none() && d.pins.is_empty() {
+    if d.net.is_none() && !d.has_pins() {
         key.push('\u{1e}');
         if let (Some(src), Some(l)) = (source, primary_label(d)) {
             let text = src.text().get(l.span.range()).unwrap_or("");
@@ -322,13 +322,13 @@ pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
 /// when the finding names a net or a pin (`key` is then left as it was); otherwise of the key
 /// written into `key`.
 fn fingerprint_hash(d: &Diag, source: Option<&SourceFile>, key: &mut String) -> u64 {
-    if d.net.is_none() && d.pins.is_empty() {
+    if d.net.is_none() && !d.has_pins() {
         write_fingerprint_key(d, source, key);
         return fnv1a64(key.as_bytes());
     }
     let mut h = fnv1a64_more(fnv1a64(d.code.as_bytes()), b"\x1f");
     h = fnv1a64_more(h, d.net.as_deref().unwrap_or("").as_bytes());
-    for p in &d.pins {
+    for p in d.pins() {
         h = fnv1a64_more(fnv1a64_more(h, b"\x1f"), p.as_bytes());
     }
     h
@@ -628,7 +628,7 @@ mod tests {
         let mk = |code: &'static str, net: Option<&str>, pins: &[&str]| {
             let mut d = Diag::warning(code, "m");
             d.net = net.map(Into::into);
-            d.pins = pins.iter().map(|p| p.to_string()).collect();
+            d.set_pins(pins);
             d
         };
         let diags = vec![

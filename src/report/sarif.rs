@@ -326,13 +326,13 @@ fn write_result(
     w.key("partialFingerprints").open_object();
     w.key(FINGERPRINT_KEY).hex64(fingerprint);
     w.close_object();
-    if d.net.is_some() || !d.pins.is_empty() || d.help.is_some() {
+    if d.net.is_some() || d.has_pins() || d.help.is_some() {
         w.key("properties").open_object();
         if let Some(net) = &d.net {
             w.key("net").str(net);
         }
-        if !d.pins.is_empty() {
-            w.key("pins").strs(d.pins.iter().map(|p| &**p));
+        if d.has_pins() {
+            w.key("pins").strs(d.pins());
         }
         if let Some(help) = &d.help {
             w.key("help").str(help);
