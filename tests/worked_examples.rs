@@ -215,12 +215,7 @@ fn ls_high_into_hc_input_at_4v5_and_5v() {
                 .next()
                 .expect("a margin");
             close(m.vih, vih, 1e-9, "74HC VIH");
-            close(
-                m.high_margin.expect("margin"),
-                -short,
-                1e-9,
-                "high margin",
-            );
+            close(m.high_margin.expect("margin"), -short, 1e-9, "high margin");
         });
         let f = findings(
             &ls_into_hc(rail),

@@ -138,7 +138,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         let reference = c.reference.as_str();
         let diag = match stated {
             Stated::Footprint(n, pkg) => {
-                let span = c.footprint.as_ref().map_or(c.reference.span(), |f| f.span());
+                let span = c
+                    .footprint
+                    .as_ref()
+                    .map_or(c.reference.span(), |f| f.span());
                 Diag::warning(
                     "package-mismatch",
                     format!("{reference} ({value}) is a {want}-pin part ({}) on the {n}-pin footprint `{}`", func.summary, fp.unwrap_or("")),

@@ -53,7 +53,9 @@ impl Item {
             ItemKind::PullUp { net, pull, .. } | ItemKind::PullDown { net, pull, .. } => {
                 cx.nets[net as usize].pulls()[pull as usize].at
             }
-            ItemKind::Sink { net, path, .. } => cx.nets[net as usize].sink_paths()[path as usize].at,
+            ItemKind::Sink { net, path, .. } => {
+                cx.nets[net as usize].sink_paths()[path as usize].at
+            }
             ItemKind::Leakage { pin, .. } => pin,
         }
     }
@@ -644,8 +646,12 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
     let nm = &cx.nets[net];
     let mut drivers: Vec<DriverBudget> = Vec::with_capacity(nm.drivers.len());
     let mut window = None;
-    let pullups: Vec<usize> = (0..nm.pulls().len()).filter(|&i| nm.pulls()[i].up).collect();
-    let pulldowns: Vec<usize> = (0..nm.pulls().len()).filter(|&i| !nm.pulls()[i].up).collect();
+    let pullups: Vec<usize> = (0..nm.pulls().len())
+        .filter(|&i| nm.pulls()[i].up)
+        .collect();
+    let pulldowns: Vec<usize> = (0..nm.pulls().len())
+        .filter(|&i| !nm.pulls()[i].up)
+        .collect();
     // the most items a state can hold: every input here and on the nets fed, every pull
     // resistor and LED path, every other driver
     let capacity = nm.loads.len()
@@ -1067,7 +1073,10 @@ mod tests {
         for m in &ms {
             let db = &b.drivers[m.driver];
             // 74LS VIH 2.0 V, VIL 0.8 V (TI SDLS025, SN74LS00; from memory)
-            assert!((m.vih - 2.0).abs() < 1e-9 && (m.vil - 0.8).abs() < 1e-9, "{m:?}");
+            assert!(
+                (m.vih - 2.0).abs() < 1e-9 && (m.vil - 0.8).abs() < 1e-9,
+                "{m:?}"
+            );
             assert_eq!(m.high_margin, db.high_level.map(|h| h - m.vih));
             assert_eq!(m.low_margin, db.low_level().map(|v| m.vil - v));
             assert!(m.thresholds_at.is_none());

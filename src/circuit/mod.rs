@@ -927,10 +927,12 @@ pub fn build<'n, 'a>(
     drop(counts);
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
-        let family: Option<FamilyId> = part
-            .family
-            .as_deref()
-            .map(|f| family_ids.entry(f).or_insert_with(|| FamilyId::new(f)).clone());
+        let family: Option<FamilyId> = part.family.as_deref().map(|f| {
+            family_ids
+                .entry(f)
+                .or_insert_with(|| FamilyId::new(f))
+                .clone()
+        });
         let fam = families[ci];
         let pull_part = part.kind == PartKind::Other && is_pull_part(c);
         // the part's figures at its supply, looked up once per part
@@ -946,15 +948,13 @@ pub fn build<'n, 'a>(
             let nm = &mut nets[net];
             let slot = pin_slot(part.kind, pull_part, role);
             let mut lv = || part_levels.get_or_insert_with(|| levels(ci)).clone();
-            let load = |lv: Option<Arc<Levels>>| {
-                Load {
-                    at,
-                    role,
-                    ttl: fam.is_some_and(|f| !f.is_cmos_input()),
-                    levels: lv,
-                    family: family.clone(),
-                    unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
-                }
+            let load = |lv: Option<Arc<Levels>>| Load {
+                at,
+                role,
+                ttl: fam.is_some_and(|f| !f.is_cmos_input()),
+                levels: lv,
+                family: family.clone(),
+                unit_loads: part.input_loads[pi].unwrap_or((1.0, 1.0)),
             };
             match slot {
                 Slot::Connector => {
@@ -1857,7 +1857,10 @@ mod size_tests {
             nm.extras_mut().held.push(i);
         }
         nm.fit();
-        let extras = nm.extras.as_ref().expect("a net with a held list keeps its extras");
+        let extras = nm
+            .extras
+            .as_ref()
+            .expect("a net with a held list keeps its extras");
         assert_eq!(extras.held.capacity(), 5);
         assert_eq!(nm.held(), &[0, 1, 2, 3, 4]);
         assert_eq!(extras.pulls.capacity(), 0);

@@ -295,7 +295,10 @@ mod tests {
         let atom = Text::token(file, 5, 8, false);
         assert_eq!((atom.as_str(), atom.span()), ("U12", Span::new(5, 8)));
         let quoted = Text::token(file, 17, 25, true);
-        assert_eq!((quoted.as_str(), quoted.span()), ("74HC00", Span::new(17, 25)));
+        assert_eq!(
+            (quoted.as_str(), quoted.span()),
+            ("74HC00", Span::new(17, 25))
+        );
         assert!(atom.is_borrowed() && quoted.is_borrowed());
     }
 

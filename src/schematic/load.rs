@@ -656,7 +656,10 @@ mod tests {
             assert_eq!(scan.in_reader(&bytes[..], block), None, "blocks of {block}");
         }
         // a character cut off at the very end
-        assert_eq!(scan.in_reader("x é".as_bytes().split_last().unwrap().1, 2), None);
+        assert_eq!(
+            scan.in_reader("x é".as_bytes().split_last().unwrap().1, 2),
+            None
+        );
         assert_eq!(
             scan.in_reader(&b"(property \"Sheetfile\" \"a\")"[..], 3),
             Some(vec!["a".to_string()])

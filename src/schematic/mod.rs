@@ -172,7 +172,16 @@ fn pin_net_name(
         let has_multiple = symbol::unit_pins(pl.lib, pl.unit, pl.placed.style)
             .any(|p| p.name == pin.name && p.num != pin.num);
         if unconnected || has_multiple {
-            cat(&[head, &pl.reference, &letters, "-", shown, "-Pad", &pin.num, ")"])
+            cat(&[
+                head,
+                &pl.reference,
+                &letters,
+                "-",
+                shown,
+                "-Pad",
+                &pin.num,
+                ")",
+            ])
         } else {
             cat(&[head, &pl.reference, &letters, "-", shown, ")"])
         }
@@ -952,8 +961,12 @@ mod tests {
                 while j < b.len() && b[j].is_ascii_digit() {
                     j += 1;
                 }
-                let da = std::str::from_utf8(&a[si..i]).unwrap().trim_start_matches('0');
-                let db = std::str::from_utf8(&b[sj..j]).unwrap().trim_start_matches('0');
+                let da = std::str::from_utf8(&a[si..i])
+                    .unwrap()
+                    .trim_start_matches('0');
+                let db = std::str::from_utf8(&b[sj..j])
+                    .unwrap()
+                    .trim_start_matches('0');
                 let o = da.len().cmp(&db.len()).then_with(|| da.cmp(db));
                 if o != Ordering::Equal {
                     return o;
@@ -974,7 +987,9 @@ mod tests {
     /// with shared prefixes that end inside and after runs of digits.
     #[test]
     fn natural_order_from_the_first_difference_is_the_same() {
-        let atoms = ["", "0", "1", "9", "10", "09", "00", "a", "/", "R", "-Pad", "2"];
+        let atoms = [
+            "", "0", "1", "9", "10", "09", "00", "a", "/", "R", "-Pad", "2",
+        ];
         let mut names: Vec<String> = Vec::new();
         for x in atoms {
             for y in atoms {
