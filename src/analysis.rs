@@ -385,9 +385,16 @@ impl<'n, 'a> Board<'n, 'a> {
     }
 
     /// The findings, owned: computed if they were not yet, and the board given up.
-    pub fn into_findings(self) -> Findings {
+    pub fn into_findings(mut self) -> Findings {
+        self.take_findings()
+    }
+
+    /// The findings, moved out of the board (computed if they were not yet), so that the
+    /// caller chooses what becomes of the circuit and its budgets: dropped, or left to the
+    /// process's exit ([`crate::pipeline::Model::LeftToExit`]).
+    pub fn take_findings(&mut self) -> Findings {
         self.findings();
-        self.findings.into_inner().unwrap_or_default()
+        self.findings.take().unwrap_or_default()
     }
 
     /// The worst severity of the findings.

@@ -243,8 +243,15 @@ pub fn outcome_leaving(
     model: Model,
 ) -> (FileOutcome, Usage) {
     let result = Analysis::new(&source, settings).map(|a| {
-        // the findings are moved out, and the model dropped before the next stage
-        let f = a.circuit().into_findings();
+        // the findings are moved out; the circuit and its budgets are dropped before the
+        // next stage, or, like the model, left to the exit
+        let mut board = a.circuit();
+        let f = board.take_findings();
+        if model == Model::LeftToExit {
+            std::mem::forget(board);
+        } else {
+            drop(board);
+        }
         let usage = Usage {
             rules: a.used(),
             waivers: f.waivers_used,
