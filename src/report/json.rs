@@ -488,24 +488,6 @@ mod tests {
     }
 
     #[test]
-    fn fingerprints_are_written_as_the_report_formats_them() {
-        for h in [
-            0u64,
-            1,
-            0xf,
-            0x0123_4567_89ab_cdef,
-            u64::MAX,
-            0x8000_0000_0000_0000,
-        ] {
-            let mut out = Vec::new();
-            let mut w = PrettyOut::new(&mut out);
-            w.hex64(h);
-            w.finish().unwrap();
-            assert_eq!(String::from_utf8(out).unwrap(), format!("\"{h:016x}\"\n"));
-        }
-    }
-
-    #[test]
     fn escapes_what_serde_json_leaves_raw_and_reads_back_the_same() {
         let s = "a\u{7f}b\u{9b}c\u{202e}d\u{2028}e µΩ \u{1b}";
         let json = escape_unsafe(serde_json::to_string(s).unwrap());

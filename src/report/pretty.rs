@@ -408,7 +408,14 @@ mod tests {
             state = state.wrapping_mul(6364136223846793005).wrapping_add(1);
             values.push(state);
         }
-        for h in values.into_iter().chain([0, u64::MAX]) {
+        for h in values.into_iter().chain([
+            0,
+            1,
+            0xf,
+            0x0123_4567_89ab_cdef,
+            0x8000_0000_0000_0000,
+            u64::MAX,
+        ]) {
             let mut out = Vec::new();
             let mut w = PrettyOut::new(&mut out);
             w.hex64(h);
