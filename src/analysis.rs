@@ -19,7 +19,7 @@ use crate::circuit::budget::{net_budget, NetBudget};
 use crate::circuit::{self, Circuit, ModelOptions};
 use crate::classify::classifier::{classify, Classified, Rules};
 use crate::config::{self, Config, ConfigError, Setting, Waiver};
-use crate::diag::{Diag, Severity};
+use crate::diag::{Diag, DiagList, Severity};
 use crate::input::ReadOptions;
 use crate::netlist::{self, Netlist};
 use crate::sexpr;
@@ -333,9 +333,9 @@ pub struct Board<'n, 'a> {
 #[derive(Debug, Clone, Default)]
 pub struct Findings {
     /// The model's diagnostics, then the checks' findings, in file order; waived ones left out.
-    pub diags: Vec<Diag>,
+    pub diags: DiagList,
     /// The findings waivers took out.
-    pub waived: Vec<Diag>,
+    pub waived: DiagList,
     /// For each waiver of the settings, whether it covered a finding here.
     pub waivers_used: Vec<bool>,
 }
@@ -347,17 +347,9 @@ impl<'n, 'a> Board<'n, 'a> {
         self.findings.get_or_init(|| {
             let _phase = crate::phases::start("checks");
             let s = self.analysis.settings;
-            let found = checks::run_all(&self.cx, &self.budgets, &s.run.checks);
-            let model = &self.analysis.nl.diagnostics;
-            // the findings are moved, not copied, when nothing goes before them
-            let all = if model.is_empty() {
-                found
-            } else {
-                let mut all = Vec::with_capacity(model.len() + found.len());
-                all.extend(model.iter().cloned());
-                all.extend(found);
-                all
-            };
+            let mut all = checks::run_all(&self.cx, &self.budgets, &s.run.checks);
+            // the model's diagnostics go first; the findings stay where they are
+            all.prepend(self.analysis.nl.diagnostics.iter().cloned());
             let mut out = Findings {
                 waivers_used: vec![false; s.waivers.len()],
                 ..Default::default()
@@ -367,19 +359,26 @@ impl<'n, 'a> Board<'n, 'a> {
                 return out;
             }
             let today = config::today();
-            for d in all {
+            let Findings {
+                waived,
+                waivers_used,
+                ..
+            } = &mut out;
+            all.retain(|d| {
                 match s
                     .waivers
                     .iter()
-                    .position(|w| !w.expired(today) && w.covers(&d))
+                    .position(|w| !w.expired(today) && w.covers(d))
                 {
                     Some(i) => {
-                        out.waivers_used[i] = true;
-                        out.waived.push(d);
+                        waivers_used[i] = true;
+                        waived.push_ref(d);
+                        false
                     }
-                    None => out.diags.push(d),
+                    None => true,
                 }
-            }
+            });
+            out.diags = all;
             out
         })
     }
@@ -399,6 +398,6 @@ impl<'n, 'a> Board<'n, 'a> {
 
     /// The worst severity of the findings.
     pub fn worst(&self) -> Option<Severity> {
-        self.findings().diags.iter().map(|d| d.severity).max()
+        self.findings().diags.iter().map(|d| d.severity()).max()
     }
 }

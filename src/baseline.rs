@@ -131,10 +131,10 @@ pub fn entries(f: &FileOutcome) -> Vec<Entry> {
         .zip(fingerprints(f))
         .map(|(d, fp)| Entry {
             fingerprint: fp,
-            check: d.code.to_string(),
-            net: d.net.as_deref().map(String::from),
+            check: d.code().to_string(),
+            net: d.net().map(String::from),
             pins: d.pins().map(String::from).collect(),
-            message: d.message.to_string(),
+            message: d.message().into_owned(),
         })
         .collect()
 }
@@ -238,7 +238,7 @@ pub fn parse(source: &SourceFile) -> Result<BTreeMap<String, Vec<Entry>>, Config
     } else {
         Err(ConfigError {
             source: source.clone(),
-            diags,
+            diags: diags.into(),
         })
     }
 }
@@ -334,7 +334,7 @@ impl Baseline {
             name: self.path.display().to_string(),
             source: Some(self.source.clone()),
             fatal: None,
-            diags,
+            diags: diags.into(),
             summary: Default::default(),
             coverage: None,
             waived: 0,
@@ -356,7 +356,7 @@ mod tests {
             name: name.into(),
             source: Some(SourceFile::new(name, "(export)")),
             fatal: None,
-            diags,
+            diags: diags.into(),
             summary: Default::default(),
             coverage: None,
             waived: 0,
@@ -428,11 +428,11 @@ mod tests {
         );
         assert_eq!(now[0].waived, 1);
         assert_eq!(now[0].diags.len(), 1);
-        assert_eq!(now[0].diags[0].net.as_deref(), Some("N9"));
+        assert_eq!(now[0].diags.get(0).unwrap().net(), Some("N9"));
         let stale = stale.expect("an entry is gone");
         assert_eq!(stale.diags.len(), 1);
         assert_eq!(
-            &*stale.diags[0].message,
+            stale.diags.get(0).unwrap().message(),
             "a.net: 1 of its 2 baseline entries match no finding now"
         );
         // verbose: one line per gone entry, at the entry's fingerprint
@@ -442,13 +442,13 @@ mod tests {
         let stale = stale.expect("both gone");
         assert_eq!(stale.diags.len(), 2);
         assert!(
-            stale.diags[1]
-                .message
+            stale.diags.get(1).unwrap()
+                .message()
                 .contains("`fanout-overrun` on U3.6, U4.1 (net N2)"),
             "{}",
-            stale.diags[1].message
+            stale.diags.get(1).unwrap().message()
         );
-        let span = stale.diags[0].primary_span().unwrap();
+        let span = stale.diags.get(0).unwrap().primary_span().unwrap();
         assert_eq!(
             &text[span.range()],
             format!("\"{}\"", b.files["a.net"][0].fingerprint)

@@ -113,8 +113,8 @@ pub struct Waiver {
 
 impl Waiver {
     /// True when the waiver covers the finding.
-    pub fn covers(&self, d: &Diag) -> bool {
-        if self.check != "*" && self.check != d.code {
+    pub fn covers(&self, d: crate::diag::DiagRef<'_>) -> bool {
+        if self.check != "*" && self.check != d.code() {
             return false;
         }
         let refs: Vec<&str> = d
@@ -128,8 +128,7 @@ impl Waiver {
         let pins_ok =
             self.pins.is_empty() || d.pins().any(|p| self.pins.iter().any(|g| glob_match(g, p)));
         let nets_ok = self.nets.is_empty()
-            || d.net
-                .as_deref()
+            || d.net()
                 .is_some_and(|n| self.nets.iter().any(|g| glob_match(g, n)));
         refs_ok && pins_ok && nets_ok
     }
@@ -875,9 +874,9 @@ expires = 2027-06-30
         assert_eq!(c.checks.len(), 2);
         assert_eq!(c.waivers[0].expires, Some((2027, 6, 30)));
         let d = Diag::warning("floating-ttl-input", "x").with_pins(["U24.9"]);
-        assert!(c.waivers[0].covers(&d));
+        assert!(c.waivers[0].covers(d.view()));
         let d2 = Diag::warning("floating-ttl-input", "x").with_pins(["U9.5"]);
-        assert!(!c.waivers[0].covers(&d2));
+        assert!(!c.waivers[0].covers(d2.view()));
     }
 
     #[test]

@@ -13,6 +13,9 @@ use serde::Serialize;
 
 use crate::source::{SourceFile, Span};
 
+mod list;
+pub use list::{cmp_parts, Around, DiagList, DiagRef, LabelRef, Labels, Raw};
+
 /// How serious a diagnostic is. Ordered: `Info < Warning < Error`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
 #[serde(rename_all = "lowercase")]
@@ -321,17 +324,21 @@ impl Diag {
             .or(self.labels.first())
             .map(|l| l.span)
     }
+    /// The diagnostic read as a finding of a list is read ([`DiagRef`]).
+    pub fn view(&self) -> DiagRef<'_> {
+        DiagRef::from(self)
+    }
 }
 
 /// A diagnostic bound to its source, ready for miette's graphical handler.
 pub struct Rendered<'a> {
-    pub diag: &'a Diag,
+    pub diag: DiagRef<'a>,
     pub source: &'a SourceFile,
 }
 
 impl fmt::Debug for Rendered<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        fmt::Debug::fmt(self.diag, f)
+        fmt::Debug::fmt(&self.diag, f)
     }
 }
 
@@ -342,7 +349,8 @@ const MAX_SHOWN_MESSAGE: usize = 1000;
 
 impl fmt::Display for Rendered<'_> {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let m = crate::text::sanitize(&self.diag.message);
+        let m = self.diag.message();
+        let m = crate::text::sanitize(&m);
         let n = m.chars().count();
         if n <= MAX_SHOWN_MESSAGE {
             return f.write_str(&m);
@@ -377,8 +385,7 @@ impl Rendered<'_> {
         };
         if !self
             .diag
-            .labels
-            .iter()
+            .labels()
             .any(|l| far(l.span.start as usize) || far(l.span.end as usize))
         {
             return None;
@@ -399,17 +406,18 @@ impl Rendered<'_> {
 impl Diagnostic for Rendered<'_> {
     fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
         // an excerpt continuing a finding carries no code of its own
-        (!self.diag.code.is_empty()).then(|| Box::new(&self.diag.code) as Box<dyn fmt::Display>)
+        let code = self.diag.code();
+        (!code.is_empty()).then(|| Box::new(code) as Box<dyn fmt::Display>)
     }
     fn severity(&self) -> Option<miette::Severity> {
-        Some(match self.diag.severity {
+        Some(match self.diag.severity() {
             Severity::Error => miette::Severity::Error,
             Severity::Warning => miette::Severity::Warning,
             Severity::Info => miette::Severity::Advice,
         })
     }
     fn help<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        let help = self.diag.help.as_ref().map(|h| crate::text::sanitize(h));
+        let help = self.diag.help().map(crate::text::sanitize);
         if let Some(place) = self.too_far() {
             let note = format!("the place, {place}, is too far along its line to draw");
             return Some(Box::new(match help {
@@ -420,21 +428,21 @@ impl Diagnostic for Rendered<'_> {
         help.map(|h| Box::new(h) as Box<dyn fmt::Display>)
     }
     fn source_code(&self) -> Option<&dyn SourceCode> {
-        if self.diag.labels.is_empty() || self.too_far().is_some() {
+        if self.diag.labels().len() == 0 || self.too_far().is_some() {
             None
         } else {
             Some(self.source)
         }
     }
     fn labels(&self) -> Option<Box<dyn Iterator<Item = LabeledSpan> + '_>> {
-        if self.diag.labels.is_empty() || self.too_far().is_some() {
+        if self.diag.labels().len() == 0 || self.too_far().is_some() {
             return None;
         }
-        Some(Box::new(self.diag.labels.iter().map(|l| {
+        Some(Box::new(self.diag.labels().map(|l| {
             let text = if l.text.is_empty() {
                 None
             } else {
-                Some(crate::text::sanitize(&l.text).into_owned())
+                Some(crate::text::sanitize(l.text).into_owned())
             };
             if l.primary {
                 LabeledSpan::new_primary_with_span(text, l.span)

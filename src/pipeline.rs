@@ -8,7 +8,7 @@ use std::path::Path;
 use crate::analysis::{Analysis, Settings};
 pub use crate::analysis::{RunOptions, UsedRules};
 use crate::classify::classifier::Rules;
-use crate::diag::{Diag, Severity};
+use crate::diag::{Diag, DiagList, Severity};
 use crate::input;
 pub use crate::input::ReadOptions;
 use crate::netlist::Summary;
@@ -25,7 +25,7 @@ pub struct FileOutcome {
     /// A problem that stopped this file (unreadable, not a netlist, malformed).
     pub fatal: Option<Diag>,
     /// Diagnostics from reading the model (reading went on).
-    pub diags: Vec<Diag>,
+    pub diags: DiagList,
     pub summary: Summary,
     /// Classification coverage of IC-like parts: (classified, IC-like), once the
     /// classifier has run.
@@ -40,7 +40,7 @@ impl FileOutcome {
             .as_ref()
             .map(|d| d.severity)
             .into_iter()
-            .chain(self.diags.iter().map(|d| d.severity))
+            .chain(self.diags.iter().map(|d| d.severity()))
             .max()
     }
 }
@@ -114,7 +114,7 @@ pub fn open_source(path: &str, opts: &ReadOptions) -> Result<SourceFile, Box<Fil
             name: name.clone(),
             source,
             fatal: Some(fatal),
-            diags: Vec::new(),
+            diags: DiagList::new(),
             summary: Summary::default(),
             coverage: None,
             waived: 0,
@@ -160,7 +160,7 @@ pub fn fatal_outcome(source: &SourceFile, fatal: Diag) -> FileOutcome {
         name: source.name().to_string(),
         source: Some(source.clone()),
         fatal: Some(fatal),
-        diags: Vec::new(),
+        diags: DiagList::new(),
         summary: Summary::default(),
         coverage: None,
         waived: 0,
@@ -289,7 +289,7 @@ pub fn outcome_leaving(
 #[derive(Debug, Clone)]
 pub struct Checked {
     /// The model's diagnostics, then the checks' findings, in file order.
-    pub diags: Vec<Diag>,
+    pub diags: DiagList,
     pub summary: Summary,
     pub coverage: (usize, usize),
     pub used: UsedRules,

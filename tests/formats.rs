@@ -82,7 +82,7 @@ fn outcome(
         name: name.to_string(),
         source: Some(SourceFile::new(name, text)),
         fatal: None,
-        diags,
+        diags: diags.into(),
         summary: Summary {
             parts: 4,
             nets: 3,
@@ -119,7 +119,7 @@ fn hand_built() -> Vec<FileOutcome> {
             "unreadable",
             "cannot read `boards/gone.net`: no such file",
         )),
-        diags: Vec::new(),
+        diags: Default::default(),
         summary: Summary::default(),
         coverage: None,
         waived: 0,
@@ -317,8 +317,8 @@ fn json_byte_offsets_point_at_the_spans() {
         let len = j["byte_length"].as_u64().expect("length") as usize;
         let span = d.primary_span().expect("a span");
         assert_eq!(&BOARD[off..off + len], &BOARD[span.range()]);
-        assert_eq!(j["check"], d.code.as_ref());
-        assert_eq!(j["message"], &*d.message);
+        assert_eq!(j["check"], d.code());
+        assert_eq!(j["message"], &*d.message());
     }
     // `(node (ref "U1") (pin "3"))`: the 15th line, from column 7 to just after the `)`
     let line15 = BOARD.lines().nth(14).expect("15 lines");
@@ -438,7 +438,7 @@ fn fingerprints_of(name: &str, text: &str) -> Vec<(String, String)> {
         name: name.into(),
         source: Some(src),
         fatal: None,
-        diags,
+        diags: diags.into(),
         summary,
         coverage: None,
         waived: 0,
@@ -446,7 +446,7 @@ fn fingerprints_of(name: &str, text: &str) -> Vec<(String, String)> {
     let fps = report::fingerprints(&f);
     f.diags
         .iter()
-        .map(|d| d.code.to_string())
+        .map(|d| d.code().to_string())
         .zip(fps)
         .collect()
 }
@@ -654,7 +654,7 @@ fn hostile_outcome() -> FileOutcome {
         name: name.into(),
         source: Some(src),
         fatal: None,
-        diags,
+        diags: diags.into(),
         summary,
         coverage: Some((1, 2)),
         waived: 0,
@@ -669,7 +669,7 @@ fn is_steering(c: char) -> bool {
 #[test]
 fn hostile_text_escapes_no_format() {
     let f = hostile_outcome();
-    let codes: Vec<&str> = f.diags.iter().map(|d| d.code.as_ref()).collect();
+    let codes: Vec<&str> = f.diags.iter().map(|d| d.code()).collect();
     // the netlist must actually carry its text into the findings
     for code in [
         "duplicate-ref",
@@ -680,11 +680,11 @@ fn hostile_text_escapes_no_format() {
         assert!(codes.contains(&code), "{code} not found in {codes:?}");
     }
     assert!(
-        f.diags.iter().any(|d| d.message.contains('\u{1b}')),
+        f.diags.iter().any(|d| d.message().contains('\u{1b}')),
         "a message holds an ESC"
     );
     assert!(
-        f.diags.iter().any(|d| d.message.contains("\r\n::error")),
+        f.diags.iter().any(|d| d.message().contains("\r\n::error")),
         "a net name holds CR LF"
     );
     let files = [f];
@@ -753,7 +753,7 @@ fn hostile_text_escapes_no_format() {
     let findings = doc["files"][0]["findings"].as_array().expect("findings");
     assert_eq!(findings.len(), n);
     for (d, j) in files[0].diags.iter().zip(findings) {
-        assert_eq!(j["message"], &*d.message);
+        assert_eq!(j["message"], &*d.message());
     }
     assert_eq!(doc["files"][0]["path"], files[0].name.as_str());
     let last = &findings[n - 1];
@@ -764,7 +764,7 @@ fn hostile_text_escapes_no_format() {
     let results = log["runs"][0]["results"].as_array().expect("results");
     assert_eq!(results.len(), n);
     for (d, r) in files[0].diags.iter().zip(results) {
-        assert_eq!(r["message"]["text"], &*d.message);
+        assert_eq!(r["message"]["text"], &*d.message());
     }
     assert_eq!(
         results[n - 1]["relatedLocations"][0]["message"]["text"],
@@ -780,7 +780,7 @@ fn severity_counts_in_the_run_summary() {
         (3, 1, 1, 1, 1)
     );
     assert_eq!(t.coverage, Some((5, 6)));
-    let sev: Vec<Severity> = hand_built()[0].diags.iter().map(|d| d.severity).collect();
+    let sev: Vec<Severity> = hand_built()[0].diags.iter().map(|d| d.severity()).collect();
     assert_eq!(sev, [Severity::Error, Severity::Warning, Severity::Info]);
 }
 

@@ -514,7 +514,7 @@ fn findings(text: &str) -> Vec<(String, String, Option<String>, Vec<String>, Vec
     let rules = netmargin::classify::classifier::Rules::builtin();
     let out = netmargin::pipeline::check_source(&src, &rules, &Default::default())
         .expect("fixture checks");
-    let mut v: Vec<_> = out.diags.iter().map(finding_key).collect();
+    let mut v: Vec<_> = out.diags.to_vec().iter().map(finding_key).collect();
     v.sort();
     v
 }
@@ -608,6 +608,7 @@ proptest! {
         let before = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
         let mut want: Vec<_> = before
             .diags
+            .to_vec()
             .iter()
             .map(|d| {
                 let mut d = d.clone();

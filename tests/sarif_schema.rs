@@ -149,7 +149,8 @@ fn outcomes() -> Vec<FileOutcome> {
         .also(Span::new(node.start as usize, node.start as usize), "")
         .with_help("buffer the net")
         .on_net("/CLK")
-        .with_pins(["U1.1"])],
+        .with_pins(["U1.1"])]
+        .into(),
         summary: Summary {
             parts: 1,
             nets: 1,

@@ -12,7 +12,7 @@ fn findings(shape: &str, bytes: usize) -> Vec<netmargin::diag::Diag> {
     let settings = Settings::builtin(&Default::default(), &Default::default());
     let (outcome, _) = outcome_of(SourceFile::from_string("board.net", text), &settings);
     assert!(outcome.fatal.is_none(), "{:?}", outcome.fatal);
-    outcome.diags
+    outcome.diags.to_vec()
 }
 
 #[test]

@@ -211,7 +211,7 @@ fn checks_find_the_same_on_a_schematic_as_on_its_netlist() {
                 .map(|d| {
                     let mut pins: Vec<&str> = d.pins().collect();
                     pins.sort();
-                    format!("{} {} {}", d.code, d.severity, pins.join(","))
+                    format!("{} {} {}", d.code(), d.severity(), pins.join(","))
                 })
                 .collect();
             v.sort();

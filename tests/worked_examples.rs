@@ -385,7 +385,7 @@ fn a_rail_net_holding_only_the_pull_resistor_still_counts() {
     let src = netmargin::source::SourceFile::new("t.net", text);
     let rules = netmargin::classify::classifier::Rules::builtin();
     let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
-    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_ref()).collect();
+    let codes: Vec<&str> = out.diags.iter().map(|d| d.code()).collect();
     assert!(codes.contains(&"ttl-pull-down-too-large"), "{codes:?}");
     assert!(!codes.contains(&"floating-ttl-input"), "{codes:?}");
 }
@@ -449,7 +449,7 @@ fn a_bussed_resistor_network_is_one_pull_up_per_element() {
         );
     }
     let out = netmargin::pipeline::check_source(&src, &rules, &Default::default()).unwrap();
-    let codes: Vec<&str> = out.diags.iter().map(|d| d.code.as_ref()).collect();
+    let codes: Vec<&str> = out.diags.iter().map(|d| d.code()).collect();
     assert!(
         !codes.contains(&"missing-pull-up") && !codes.contains(&"pull-up-out-of-range"),
         "{codes:?}"
@@ -518,8 +518,8 @@ fn a_rail_tolerance_takes_a_cmos_vih_at_the_top_of_the_supply() {
         let out = netmargin::pipeline::check_source(&src, &rules, opts).unwrap();
         out.diags
             .iter()
-            .find(|d| d.code == "ttl-high-into-cmos")
-            .map(|d| d.message.clone())
+            .find(|d| d.code() == "ttl-high-into-cmos")
+            .map(|d| d.message().into_owned())
             .expect("the finding")
     };
     let nominal = msg(&opts);

@@ -24,7 +24,7 @@ use crate::classify::classifier::{PartKind, Rules};
 use crate::classify::family::Drive;
 use crate::classify::PinRole;
 use crate::config;
-use crate::diag::{Diag, Severity};
+use crate::diag::{Diag, DiagRef, Severity};
 use crate::netlist::{self, Connection};
 use crate::source::SourceFile;
 
@@ -388,7 +388,7 @@ pub struct AuditOptions {
     pub config: Option<String>,
 }
 
-fn line_of(source: &SourceFile, d: &Diag) -> (Option<usize>, Option<String>) {
+fn line_of(source: &SourceFile, d: DiagRef<'_>) -> (Option<usize>, Option<String>) {
     match crate::report::primary_place(d, Some(source)) {
         Some(p) => (
             Some(p.line),
@@ -537,7 +537,7 @@ pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag>
     })
 }
 
-fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
+fn gather_findings(source: &SourceFile, diags: &crate::diag::DiagList) -> Vec<Finding> {
     diags
         .iter()
         .enumerate()
@@ -552,11 +552,11 @@ fn gather_findings(source: &SourceFile, diags: &[Diag]) -> Vec<Finding> {
             }
             Finding {
                 id: format!("f{}", i + 1),
-                code: d.code.to_string(),
-                severity: d.severity,
-                message: d.message.to_string(),
-                help: d.help.as_deref().map(String::from),
-                net: d.net.as_deref().map(String::from),
+                code: d.code().to_string(),
+                severity: d.severity(),
+                message: d.message().into_owned(),
+                help: d.help().map(String::from),
+                net: d.net().map(String::from),
                 pins: d.pins().map(String::from).collect(),
                 parts,
                 line,
@@ -868,7 +868,7 @@ fn gather_matrix(cx: &Circuit<'_, '_>, marginal_v: f64) -> Matrix {
 
 /// The component whose node holds `d`'s primary place (a finding about a whole part points
 /// at the part).
-fn part_at(nl: &netlist::Netlist<'_>, d: &Diag) -> Option<String> {
+fn part_at(nl: &netlist::Netlist<'_>, d: DiagRef<'_>) -> Option<String> {
     let at = d.primary_span()?.start;
     nl.components
         .iter()
@@ -882,22 +882,22 @@ fn block_from(
     found: &crate::analysis::Findings,
     checks: &[&'static str],
 ) -> Block {
-    let row = |d: &Diag, waived: bool| Row {
+    let row = |d: DiagRef<'_>, waived: bool| Row {
         subject: d
             .pins()
             .next()
             .map(|p| ref_of(p).to_string())
             .or_else(|| part_at(&a.nl, d))
-            .or_else(|| d.net.as_deref().map(String::from))
+            .or_else(|| d.net().map(String::from))
             .unwrap_or_default(),
         text: if waived {
-            format!("{} (waived)", d.message)
+            format!("{} (waived)", d.message())
         } else {
-            d.message.to_string()
+            d.message().into_owned()
         },
         line: line_of(a.source, d).0,
     };
-    let mine = |d: &&Diag| checks.contains(&&*d.code);
+    let mine = |d: &DiagRef<'_>| checks.contains(&d.code());
     let mut rows: Vec<(Option<usize>, Row)> = found
         .diags
         .iter()

@@ -4,7 +4,7 @@ use super::Context;
 use crate::circuit::Circuit;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
-use crate::diag::{Diag, Label, PinList, PinListWriter, Text};
+use crate::diag::{Around, DiagList, PinList, PinListWriter, Raw, Severity, Text};
 use crate::netlist::Connection;
 
 /// Why an input floats.
@@ -197,6 +197,7 @@ pub struct GateKey<'n> {
     supply: Option<usize>,
     ground: Option<usize>,
     absent: bool,
+    value: &'n str,
 }
 
 impl<'n> GateKey<'n> {
@@ -212,64 +213,81 @@ impl<'n> GateKey<'n> {
             supply: supply_rail(ctx, g.comp),
             ground: ground_rail(ctx, g.comp),
             absent: g.inputs.iter().all(|f| matches!(f.why, Float::Absent)),
+            value: cx.nl.components[g.comp].value_str(),
         }
     }
 }
 
-/// Words made once per key: a text handed out as copies, and a help shared by every finding
-/// that is given it (one allocation for all the parts of a kind).
-pub struct Words<K>(rustc_hash::FxHashMap<K, (String, Text)>);
+/// Words made once per key and shared by every finding that is given them (one text for
+/// all the parts of a kind).
+pub struct Words<K, V>(rustc_hash::FxHashMap<K, V>);
 
-impl<K: std::hash::Hash + Eq> Words<K> {
-    pub fn new() -> Words<K> {
+impl<K: std::hash::Hash + Eq, V> Words<K, V> {
+    pub fn new() -> Words<K, V> {
         Words(Default::default())
     }
 
     /// The words for `key`, made by `make` the first time it is asked.
-    pub fn get(&mut self, key: K, make: impl FnOnce() -> (String, String)) -> &(String, Text) {
-        self.0.entry(key).or_insert_with(|| {
-            let (text, help) = make();
-            (text, help.into())
-        })
+    pub fn get(&mut self, key: K, make: impl FnOnce() -> V) -> &V {
+        self.0.entry(key).or_insert_with(make)
+    }
+}
+
+/// The words of an unused gate's finding that parts alike share: the message before the
+/// part's reference and after it, and the help.
+pub struct GateWords {
+    head: Text,
+    tail: Text,
+    help: Text,
+}
+
+impl GateWords {
+    /// The words for `g`: "gate B of {reference} (74HC00) is unused and {tail}", and `help`.
+    pub fn new(cx: &Circuit<'_, '_>, g: &UnusedGate<'_, '_>, tail: &str, help: String) -> GateWords {
+        let c = &cx.nl.components[g.comp];
+        GateWords {
+            head: concat(&["gate ", g.unit, " of "]).into(),
+            tail: concat(&[" (", c.value_str(), ") is unused and ", tail]).into(),
+            help: help.into(),
+        }
     }
 }
 
 /// The finding for an unused gate whose inputs float: "gate B of U1 (74HC00) is unused and
 /// {tail}", at its first floating input (labelled "unused gate"), its other inputs beside it,
-/// its pins listed, with the help the caller worded for parts alike.
-pub fn unused_gate_finding(
+/// its pins listed, with the words the caller made for parts alike ([`GateWords`], of the
+/// same key: its reference is the finding's only words of its own).
+pub fn push_unused_gate(
+    out: &mut DiagList,
     cx: &Circuit<'_, '_>,
     g: &UnusedGate<'_, '_>,
-    make: fn(&'static str, String) -> Diag,
+    severity: Severity,
     code: &'static str,
-    tail: &str,
-    help: &Text,
-) -> Diag {
+    words: &GateWords,
+) {
     let c = &cx.nl.components[g.comp];
-    let message = concat(&[
-        "gate ",
-        g.unit,
-        " of ",
-        c.reference.as_str(),
-        " (",
-        c.value_str(),
-        ") is unused and ",
-        tail,
-    ]);
-    let mut d = make(code, message)
-        .with_help(help.clone())
-        .with_pin_list(pin_names(cx, g.inputs.iter().map(|f| f.at)));
-    // one place per input, allocated at once: the first input's, then the others beside it
-    let place = |f: &Floating, text: &'static str, primary| Label {
-        span: cx.pin_span(f.at),
-        text: text.into(),
-        primary,
-    };
-    let mut labels = Vec::with_capacity(g.inputs.len());
-    labels.push(place(&g.inputs[0], "unused gate", true));
-    labels.extend(g.inputs[1..].iter().map(|f| place(f, "", false)));
-    d.labels = labels.into_boxed_slice();
-    d
+    let reference = c.reference.as_str();
+    out.push_raw(
+        Raw {
+            code,
+            severity,
+            around: Around {
+                head: Some(&words.head),
+                tail: Some(&words.tail),
+            },
+            own: reference,
+            help: Some(&words.help),
+            net: None,
+        },
+        g.inputs
+            .iter()
+            .map(|f| [reference, ".", c.pins[f.at.pin].num(cx.nl)]),
+        // one place per input: the first input's, then the others beside it
+        g.inputs.iter().enumerate().map(|(i, f)| {
+            let text = if i == 0 { "unused gate" } else { "" };
+            (cx.pin_span(f.at), text, i == 0)
+        }),
+    );
 }
 
 /// The pins' names (`U4.6`, as [`Circuit::pin_name`] writes them) as a finding's pin list,
@@ -500,7 +518,7 @@ mod tests {
         for key in [1, 2, 1, 1, 2, 3] {
             let w = words.get(key, || {
                 made += 1;
-                (format!("tail {key}"), format!("help {key}"))
+                (format!("tail {key}"), super::Text::from(format!("help {key}")))
             });
             assert_eq!(
                 (w.0.as_str(), &*w.1),

@@ -30,7 +30,7 @@ use crate::circuit::PinRef;
 use crate::diag::{Diag, Severity};
 use crate::netlist::Connection;
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for d in cx.displays.iter().filter(|d| d.commons_open) {
         let c = &cx.nl.components[d.comp];

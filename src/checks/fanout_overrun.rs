@@ -61,7 +61,7 @@ fn fits(rating: f64, each: f64, derating: f64) -> usize {
     (derating * rating / each * (1.0 + SLACK)).floor() as usize
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
         let nm = &cx.nets[net];

@@ -166,7 +166,7 @@ fn clocks(name: &str) -> bool {
         || n.contains("CLOCK")
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for net in 0..cx.nets.len() {
         if !floating_bus(cx, net) {

@@ -24,25 +24,27 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 
 use super::common::{
     agree, floating_inputs, ground_rail_name, net_name_of, pin_list, push_all, push_pin_name,
-    supply_rail_name, unused_gate_finding, Float, GateKey, Words,
+    supply_rail_name, push_unused_gate, Float, GateKey, GateWords, Words,
 };
 use super::Context;
 use crate::diag::{Diag, Text};
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     let found = floating_inputs(ctx, false);
     // the words every part alike shares (the tail of the message, the help), made once
     let mut words = Words::new();
     for g in found.gates() {
         let key = GateKey::of(ctx, &g);
-        let (tail, help) = words.get(key, || {
+        let words = words.get(key, || {
             let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
             let list = pin_list(ctx, &pins);
             let n = pins.len();
             let absent = g.inputs.iter().all(|f| matches!(f.why, Float::Absent));
-            (
-                format!(
+            GateWords::new(
+                cx,
+                &g,
+                &format!(
                     "{}: {}{}",
                     agree(n, "its CMOS input floats", "its CMOS inputs float"),
                     list,
@@ -64,14 +66,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ),
             )
         });
-        out.push(unused_gate_finding(
+        push_unused_gate(
+            out,
             cx,
             &g,
-            Diag::error,
+            crate::diag::Severity::Error,
             "floating-cmos-input",
-            tail,
-            help,
-        ));
+            words,
+        );
     }
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)

@@ -21,13 +21,13 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 };
 
 use super::common::{
-    agree, floating_inputs, pin_list, supply_rail_name, unused_gate_finding, Float, GateKey, Words,
+    agree, floating_inputs, pin_list, supply_rail_name, push_unused_gate, Float, GateKey, GateWords, Words,
 };
 use super::Context;
 use crate::diag::{Diag, Text};
 use crate::values::format_ohms;
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     let found = floating_inputs(ctx, true);
     let inside = |comp: usize| {
@@ -46,12 +46,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     // the words every part alike shares (the tail of the message, the help), made once
     let mut words = Words::new();
     for g in found.gates() {
-        let (tail, help) = words.get(GateKey::of(ctx, &g), || {
+        let words = words.get(GateKey::of(ctx, &g), || {
             let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
             let list = pin_list(ctx, &pins);
             let n = pins.len();
-            (
-                format!(
+            GateWords::new(
+                cx,
+                &g,
+                &format!(
                     "{}: {} {} high{} and {} up noise",
                     agree(n, "its TTL input is open", "its TTL inputs are open"),
                     list,
@@ -66,14 +68,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 ),
             )
         });
-        out.push(unused_gate_finding(
+        push_unused_gate(
+            out,
             cx,
             &g,
-            Diag::warning,
+            crate::diag::Severity::Warning,
             "floating-ttl-input",
-            tail,
-            help,
-        ));
+            words,
+        );
     }
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)

@@ -26,7 +26,7 @@ use crate::circuit::Inferred;
 use crate::diag::Diag;
 use crate::values::format_volts;
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for note in &cx.rail_notes {
         let name = cx.net_name(note.net);

@@ -163,7 +163,7 @@ pub(super) fn sources(cx: &Circuit<'_, '_>, net: usize) -> Vec<Source> {
     out
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for net in 0..cx.nets.len() {
         let nm = &cx.nets[net];

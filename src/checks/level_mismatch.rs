@@ -44,7 +44,7 @@ fn high_fix(
     }
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
         let nm = &cx.nets[net];

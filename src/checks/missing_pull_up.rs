@@ -24,7 +24,7 @@ use crate::classify::PinRole;
 use crate::diag::Diag;
 use crate::values::format_ohms;
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
         // a pull-up to a rail of unknown voltage, or a pull-up part, still sets the high

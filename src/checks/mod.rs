@@ -42,33 +42,8 @@ mod tests {
     use super::*;
 
     #[test]
-    fn apply_order_moves_each_item_to_its_place() {
-        // every permutation of five items, against building the ordered list afresh
-        let mut perms = vec![vec![]];
-        for n in 0..5usize {
-            perms = perms
-                .into_iter()
-                .flat_map(|p: Vec<usize>| {
-                    (0..=p.len()).map(move |at| {
-                        let mut q = p.clone();
-                        q.insert(at, n);
-                        q
-                    })
-                })
-                .collect();
-        }
-        assert_eq!(perms.len(), 120);
-        for p in perms {
-            let items: Vec<char> = "abcde".chars().collect();
-            let want: Vec<char> = p.iter().map(|&i| items[i]).collect();
-            let mut got = items.clone();
-            apply_order(&mut got, &mut p.clone());
-            assert_eq!(got, want, "{p:?}");
-        }
-    }
-
-    #[test]
     fn findings_sort_by_place_then_code_then_message_keeping_ties_in_order() {
+        use crate::diag::Diag;
         use crate::source::Span;
         let d = |at: u32, code: &'static str, msg: &str, help: &'static str| {
             Diag::warning(code, msg)
@@ -78,16 +53,18 @@ mod tests {
         // invented codes (`b` after `a`), so that no check's id is named here
         let (a, b) = ("code-a", "code-b");
         let unplaced = |code: &'static str| Diag::info(code, "no place").with_help("5");
-        let mut v = vec![
+        let mut v: DiagList = [
             d(9, b, "x", "1"),
             d(3, b, "y", "2"),
             d(3, a, "z", "3"),
             d(9, b, "x", "4"),
             unplaced("code-c"),
             d(3, b, "x", "6"),
-        ];
+        ]
+        .into_iter()
+        .collect();
         sort_in_file_order(&mut v);
-        let helps: Vec<&str> = v.iter().map(|d| d.help.as_deref().unwrap()).collect();
+        let helps: Vec<&str> = v.iter().map(|d| d.help().unwrap()).collect();
         assert_eq!(helps, ["5", "3", "6", "2", "1", "4"]);
     }
 
@@ -141,7 +118,7 @@ mod weak_high_drive;
 
 use crate::circuit::budget::NetBudget;
 use crate::circuit::Circuit;
-use crate::diag::Diag;
+use crate::diag::DiagList;
 
 /// Options that change what the checks report.
 #[derive(Debug, Clone)]
@@ -177,18 +154,18 @@ pub struct Context<'c, 'n, 'a> {
     pub rails: common::RailIndex,
 }
 
-type CheckFn = fn(&Context<'_, '_, '_>, &mut Vec<Diag>);
+type CheckFn = fn(&Context<'_, '_, '_>, &mut DiagList);
 
 /// Runs every enabled check on the circuit and its budgets (computed once by the caller,
 /// [`crate::analysis`]) and returns the findings in file order.
-pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> Vec<Diag> {
+pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> DiagList {
     let ctx = Context {
         cx,
         budgets,
         opts,
         rails: common::RailIndex::new(cx),
     };
-    let mut out = Vec::new();
+    let mut out = DiagList::new();
     for (info, f) in RUNS {
         let id = info.id;
         if opts.disabled.iter().any(|d| d == id) {
@@ -197,11 +174,12 @@ pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions)
         let start = out.len();
         f(&ctx, &mut out);
         let sev = opts.severity.iter().find(|(i, _)| i == id).map(|(_, s)| *s);
-        for d in &mut out[start..] {
-            debug_assert_eq!(d.code, id, "a check reports under its own id");
-            if let Some(s) = sev {
-                d.severity = s;
-            }
+        debug_assert!(
+            out.iter().skip(start).all(|d| d.code() == id),
+            "a check reports under its own id"
+        );
+        if let Some(s) = sev {
+            out.set_severity_from(start, s);
         }
     }
     sort_in_file_order(&mut out);
@@ -215,7 +193,7 @@ pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions)
 /// order with no text compared); only findings that share a place are then ordered by code
 /// and message. The findings are moved into place by swaps: no copy of the list is made,
 /// however many findings there are.
-fn sort_in_file_order(out: &mut [Diag]) {
+fn sort_in_file_order(out: &mut DiagList) {
     let mut keys: Vec<u64> = out
         .iter()
         .enumerate()
@@ -235,35 +213,14 @@ fn sort_in_file_order(out: &mut [Diag]) {
         }
         if j - i > 1 {
             order[i..j].sort_by(|&a, &b| {
-                out[a]
-                    .code
-                    .cmp(&out[b].code)
-                    .then_with(|| out[a].message.cmp(&out[b].message))
+                let (a, b) = (out.get(a).expect("in the list"), out.get(b).expect("in the list"));
+                a.code()
+                    .cmp(b.code())
+                    .then_with(|| crate::diag::cmp_parts(a.message_parts(), b.message_parts()))
             });
         }
         i = j;
     }
     drop(keys);
-    apply_order(out, &mut order);
-}
-
-/// Rearranges `items` so that the item at `i` is the one that was at `order[i]` (`order` a
-/// permutation; it is used up). Each cycle of the permutation is followed once.
-fn apply_order<T>(items: &mut [T], order: &mut [usize]) {
-    const DONE: usize = usize::MAX;
-    for i in 0..items.len() {
-        if order[i] == DONE {
-            continue;
-        }
-        let mut cur = i;
-        loop {
-            let next = std::mem::replace(&mut order[cur], DONE);
-            if next == i {
-                break;
-            }
-            // `next` still holds its original item; what was at `i` moves on to `next`
-            items.swap(cur, next);
-            cur = next;
-        }
-    }
+    out.apply_order(&mut order);
 }

@@ -52,7 +52,7 @@ fn pull_value(ctx: &Context<'_, '_, '_>, comp: usize, high: bool) -> Option<(f64
     Some((r, r.min(10e3)))
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];

@@ -255,7 +255,7 @@ fn together_text(cx: &Circuit<'_, '_>, p: PinRef) -> String {
     }
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for net in 0..cx.nets.len() {
         for f in assess(cx, net) {

@@ -77,7 +77,7 @@ fn lower(s: Severity) -> Severity {
     }
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
         for db in &ctx.budgets[net].drivers {
@@ -146,7 +146,7 @@ fn dark(
     net: usize,
     at: PinRef,
     op: &OperatingPoint,
-    out: &mut Vec<Diag>,
+    out: &mut crate::diag::DiagList,
 ) {
     let cx = ctx.cx;
     for l in op.loads.iter().filter(|l| l.dark) {
@@ -207,7 +207,7 @@ fn current(
     net: usize,
     di: usize,
     op: &OperatingPoint,
-    out: &mut Vec<Diag>,
+    out: &mut crate::diag::DiagList,
 ) {
     let cx = ctx.cx;
     let nm = &cx.nets[net];

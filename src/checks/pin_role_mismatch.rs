@@ -159,7 +159,7 @@ pub fn likely_cause(pairs: &[(PinType, PinRole)]) -> &'static str {
     }
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];

@@ -137,7 +137,7 @@ fn rail_text(name: &str, v: Option<f64>) -> String {
     }
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     let mut rails = Suggestions::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
@@ -324,7 +324,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
 }
 
 /// A classified logic part on a rail outside its family's supply range.
-fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut Vec<Diag>) {
+fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     let part = &cx.cl.parts[ci];
     let Some(fam) = cx.family(ci).filter(|_| part.is_logic()) else {

@@ -25,7 +25,7 @@ use super::Context;
 use crate::diag::Diag;
 use crate::values::{format_amps, format_ohms, format_volts};
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
         let Some(w) = &b.window else { continue };

@@ -28,7 +28,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 use super::Context;
 use crate::diag::Diag;
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];

@@ -95,7 +95,7 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
     })
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for net in 0..cx.nets.len() {
         let Some(pd) = pull_down(cx, net).filter(|p| p.too_large()) else {

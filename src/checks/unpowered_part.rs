@@ -61,7 +61,7 @@ pub fn power_unit_unplaced(found: &[Missing], power_pins: usize) -> bool {
             .all(|m| matches!(m, Missing::Absent | Missing::NoSuchPin))
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];

@@ -38,7 +38,7 @@ fn unreadable_reading(reading: Option<&ValueReading>) -> Option<&ValueError> {
         .filter(|e| !matches!(e, ValueError::NotFitted(_)))
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let Some(err) = unreadable_reading(cx.resistor_value(ci)) else {

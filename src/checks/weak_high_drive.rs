@@ -130,7 +130,7 @@ pub(super) fn sink_resistor(vcc: f64, vf: f64, vol: f64, available: f64) -> Opti
     series_at_least(v / available, &E12)
 }
 
-pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
+pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
         if nm.led_paths().is_empty() {

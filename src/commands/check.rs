@@ -158,7 +158,7 @@ pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Ru
                             cp.as_ref().expect("some").display()
                         ),
                     )),
-                    diags: Vec::new(),
+                    diags: Default::default(),
                     summary: Default::default(),
                     coverage: None,
                     waived: 0,
@@ -277,7 +277,7 @@ pub fn check_files(files: &[String], over: &Overrides, read: &ReadOptions) -> Ru
                 name: path.display().to_string(),
                 source: l.config.as_ref().and_then(|c| c.source.clone()),
                 fatal: None,
-                diags,
+                diags: diags.into(),
                 summary: Default::default(),
                 coverage: None,
                 waived: 0,
@@ -301,7 +301,7 @@ pub fn exit_code(outcomes: &[FileOutcome], config_failed: bool, fail_on: Severit
         2
     } else if outcomes
         .iter()
-        .any(|o| o.diags.iter().any(|d| d.severity >= fail_on))
+        .any(|o| o.diags.iter().any(|d| d.severity() >= fail_on))
     {
         1
     } else {

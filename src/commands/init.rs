@@ -8,7 +8,7 @@ use crate::analysis::{Analysis, Overrides, Settings};
 use crate::classify::classifier::PartKind;
 use crate::cli::{ColorChoice, InitArgs};
 use crate::config;
-use crate::diag::Diag;
+use crate::diag::DiagRef;
 use crate::input::ReadOptions;
 use crate::pipeline::{self, FileOutcome};
 use crate::report::starter::{ConnectorSeen, Facts, FindingSeen, RailSeen};
@@ -73,14 +73,14 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
             });
         }
         if facts.finding.is_none() {
-            let is_check = |d: &&Diag| crate::checks::info(&d.code).is_some() && d.has_pins();
+            let is_check = |d: &DiagRef<'_>| crate::checks::info(d.code()).is_some() && d.has_pins();
             facts.finding = board
                 .findings()
                 .diags
                 .iter()
                 .find(is_check)
                 .map(|d| FindingSeen {
-                    check: d.code.to_string(),
+                    check: d.code().to_string(),
                     pins: d.pins().map(String::from).collect(),
                 });
         }

@@ -11,7 +11,7 @@
 use std::io::{self, Write};
 
 use super::{display_path, primary_label, primary_place, Places, ReportOptions, ShownName};
-use crate::diag::{Diag, Severity};
+use crate::diag::{Diag, DiagRef, Severity};
 use crate::pipeline::FileOutcome;
 
 /// The command for a severity.
@@ -68,7 +68,7 @@ pub fn escape_property(s: &str) -> String {
 }
 
 /// The command line for one diagnostic (without the line end).
-pub fn line(f: &FileOutcome, d: &Diag, opts: &ReportOptions) -> String {
+pub fn line(f: &FileOutcome, d: DiagRef<'_>, opts: &ReportOptions) -> String {
     let mut props = vec![format!(
         "file={}",
         escape_property(&display_path(super::file_name(f, d), opts))
@@ -81,16 +81,16 @@ pub fn line(f: &FileOutcome, d: &Diag, opts: &ReportOptions) -> String {
     }
     props.push(format!(
         "title={}",
-        escape_property(&format!("{} {}", super::TOOL_NAME, d.code))
+        escape_property(&format!("{} {}", super::TOOL_NAME, d.code()))
     ));
-    let mut message = d.message.to_string();
-    if let Some(h) = &d.help {
+    let mut message = d.message().into_owned();
+    if let Some(h) = d.help() {
         message.push_str("\nhelp: ");
         message.push_str(h);
     }
     format!(
         "::{} {}::{}",
-        command(d.severity),
+        command(d.severity()),
         props.join(","),
         escape_data(&message)
     )
@@ -103,9 +103,9 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
     for f in files {
         let mut places = Places::new(f.source.as_ref());
         let mut shown = ShownName::new();
-        for d in f.fatal.iter().chain(&f.diags) {
+        for d in f.fatal.iter().map(Diag::view).chain(&f.diags) {
             buf.push_str("::");
-            buf.push_str(command(d.severity));
+            buf.push_str(command(d.severity()));
             buf.push_str(" file=");
             buf.push_str(shown.get(super::file_name(f, d), |n| {
                 escape_property(&display_path(n, opts))
@@ -125,10 +125,10 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
             buf.push_str(",title=");
             escape_into(&mut buf, super::TOOL_NAME, true);
             escape_into(&mut buf, " ", true);
-            escape_into(&mut buf, &d.code, true);
+            escape_into(&mut buf, d.code(), true);
             buf.push_str("::");
-            escape_into(&mut buf, &d.message, false);
-            if let Some(h) = &d.help {
+            escape_into(&mut buf, &d.message(), false);
+            if let Some(h) = d.help() {
                 escape_into(&mut buf, "\nhelp: ", false);
                 escape_into(&mut buf, h, false);
             }
@@ -157,7 +157,7 @@ mod tests {
         let opts = ReportOptions::new(super::super::Format::Github, "/repo");
         let mut want = String::new();
         for f in &files {
-            for d in f.fatal.iter().chain(&f.diags) {
+            for d in f.fatal.iter().map(Diag::view).chain(&f.diags) {
                 want.push_str(&line(f, d, &opts));
                 want.push('\n');
             }

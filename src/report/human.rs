@@ -11,7 +11,7 @@ use std::io::{self, Write};
 use miette::{GraphicalReportHandler, GraphicalTheme};
 
 use super::{count, ReportOptions, Totals};
-use crate::diag::{Diag, Rendered};
+use crate::diag::{Diag, DiagRef, Rendered};
 use crate::pipeline::FileOutcome;
 use crate::source::SourceFile;
 use crate::text::sanitize;
@@ -42,11 +42,12 @@ pub const EXCERPT_GAP_LINES: usize = 8;
 /// the source through [`safe_source`] first (once per file). Labels far apart are shown as
 /// one excerpt each, the primary one first, with a marker that says how many lines were left
 /// out between them.
-pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
+pub fn render(h: &GraphicalReportHandler, diag: DiagRef<'_>, source: &SourceFile) -> String {
     let groups = label_groups(diag, source);
     if groups.len() <= 1 {
         return render_one(h, diag, source);
     }
+    let diag = &diag.to_diag();
     let pick = |g: &[usize]| {
         g.iter()
             .map(|&i| diag.labels[i].clone())
@@ -58,7 +59,7 @@ pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> S
         help: None,
         ..diag.clone()
     };
-    let mut s = render_one(h, &main, source);
+    let mut s = render_one(h, main.view(), source);
     for (i, (lines, g)) in groups.iter().enumerate().skip(1) {
         let primary = groups[0].0;
         let message = if lines.0 > primary.1 {
@@ -96,28 +97,27 @@ pub fn render(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> S
             net: None,
             pins: Default::default(),
         };
-        s.push_str(&render_one(h, &part, source));
+        s.push_str(&render_one(h, part.view(), source));
     }
     s
 }
 
-fn render_one(h: &GraphicalReportHandler, diag: &Diag, source: &SourceFile) -> String {
+fn render_one(h: &GraphicalReportHandler, diag: DiagRef<'_>, source: &SourceFile) -> String {
     let mut s = String::new();
     let r = Rendered { diag, source };
     if h.render_report(&mut s, &r).is_err() {
-        s = format!("{}: {}\n", diag.severity, sanitize(&diag.message));
+        s = format!("{}: {}\n", diag.severity(), sanitize(&diag.message()));
     }
     s
 }
 
 /// The labels in groups of nearby lines: ((first line, last line), label indices), the
 /// primary label's group first, the rest in file order.
-fn label_groups(diag: &Diag, source: &SourceFile) -> Vec<((usize, usize), Vec<usize>)> {
+fn label_groups(diag: DiagRef<'_>, source: &SourceFile) -> Vec<((usize, usize), Vec<usize>)> {
     let len = source.text().len();
     let line = |off: u32| source.line_index((off as usize).min(len)) + 1;
     let mut order: Vec<(usize, usize, usize)> = diag
-        .labels
-        .iter()
+        .labels()
         .enumerate()
         .map(|(i, l)| (line(l.span.start), line(l.span.end.max(l.span.start)), i))
         .collect();
@@ -134,7 +134,7 @@ fn label_groups(diag: &Diag, source: &SourceFile) -> Vec<((usize, usize), Vec<us
     }
     if let Some(p) = groups
         .iter()
-        .position(|(_, g)| g.iter().any(|&i| diag.labels[i].primary))
+        .position(|(_, g)| g.iter().any(|&i| diag.labels().nth(i).is_some_and(|l| l.primary)))
     {
         let first = groups.remove(p);
         groups.insert(0, first);
@@ -218,7 +218,7 @@ fn write_file_with(
     let source: &SourceFile = &shown;
     if let Some(d) = &f.fatal {
         // a configuration or baseline holds every problem found in it: show them all
-        for d in std::iter::once(d).chain(&f.diags) {
+        for d in std::iter::once(d.view()).chain(&f.diags) {
             write!(out, "{}", render(h, d, source))?;
         }
         if !quiet {
@@ -241,7 +241,7 @@ fn write_file_with(
         return Ok(());
     }
     for group in fold(&f.diags) {
-        let d = &f.diags[group[0]];
+        let d = f.diags.get(group[0]).expect("a finding of the file");
         write!(out, "{}", render(h, d, source))?;
         if group.len() > 1 {
             // where each other finding is: its net, else its first pin, else the part its
@@ -250,12 +250,12 @@ fn write_file_with(
             // where each place is in `nets` (a group can hold a finding on every net)
             let mut at_index: rustc_hash::FxHashMap<String, usize> = Default::default();
             for &i in &group[1..] {
-                let o = &f.diags[i];
+                let o = f.diags.get(i).expect("a finding of the file");
+                let message = o.message();
                 let at = o
-                    .net
-                    .as_deref()
+                    .net()
                     .or_else(|| o.pins().next())
-                    .or_else(|| o.message.split_whitespace().next())
+                    .or_else(|| message.split_whitespace().next())
                     .map(sanitize)
                     .unwrap_or_default();
                 match at_index.get(&*at) {
@@ -278,7 +278,7 @@ fn write_file_with(
                 "  ... and {} more {} like it ({}): {}{}\n",
                 count,
                 if count == 1 { "finding" } else { "findings" },
-                d.code,
+                d.code(),
                 nets[..shown].join(", "),
                 if nets.len() > shown {
                     format!(
@@ -316,7 +316,7 @@ const FOLD_LIST: usize = 12;
 /// while figures with a decimal point (`2.70 V`) stay: findings of one shape are one cause
 /// repeated across a bus or a row of parts.
 #[cfg(test)]
-fn shape(d: &Diag) -> String {
+fn shape(d: DiagRef<'_>) -> String {
     let mut out = String::new();
     shape_into(d, &mut out);
     out
@@ -325,24 +325,25 @@ fn shape(d: &Diag) -> String {
 /// [`shape`] written into `out` (cleared first), so one buffer serves every finding. A
 /// message in ASCII (most) is cut into words a byte at a time; any other goes the way of
 /// [`shape_chars`].
-fn shape_into(d: &Diag, out: &mut String) {
+fn shape_into(d: DiagRef<'_>, out: &mut String) {
     out.clear();
-    out.push_str(&d.code);
+    out.push_str(d.code());
     out.push('|');
-    out.push_str(match d.severity {
+    out.push_str(match d.severity() {
         crate::diag::Severity::Info => "Info",
         crate::diag::Severity::Warning => "Warning",
         crate::diag::Severity::Error => "Error",
     });
     out.push('|');
-    if !d.message.is_ascii() {
-        shape_chars(&d.message, out);
+    let message = d.message();
+    if !message.is_ascii() {
+        shape_chars(&message, out);
         return;
     }
     // the separators of `shape_chars`, in ASCII (`char::is_whitespace` takes 0x09-0x0d and
     // the space)
     let sep = |b: u8| matches!(b, b'\t'..=b'\r' | b' ' | b'`' | b',' | b'(' | b')');
-    let (m, bytes) = (&*d.message, d.message.as_bytes());
+    let (m, bytes) = (&*message, message.as_bytes());
     let mut in_quote = false;
     // the text up to `run` is written; the word being read starts at `from`, and whether it
     // holds a digit or a point so far (a separator is neither)
@@ -406,13 +407,13 @@ fn shape_chars(message: &str, out: &mut String) {
 
 /// Groups findings of one shape, in the order of their first appearance; groups smaller than
 /// [`FOLD_AT`] are split back into single findings.
-fn fold(diags: &[Diag]) -> Vec<Vec<usize>> {
+fn fold(diags: &crate::diag::DiagList) -> Vec<Vec<usize>> {
     let mut by_shape: rustc_hash::FxHashMap<String, usize> = Default::default();
     let mut key = String::new();
     let mut groups: Vec<Vec<usize>> = Vec::new();
     for (i, d) in diags.iter().enumerate() {
         // only the checks' findings fold: every problem with the input is shown in full
-        if crate::checks::info(&d.code).is_none() {
+        if crate::checks::info(d.code()).is_none() {
             groups.push(vec![i]);
             continue;
         }
@@ -495,7 +496,7 @@ mod tests {
             let d = Diag::warning("floating-cmos-input", m.clone());
             let mut want = format!("{}|{:?}|", d.code, d.severity);
             shape_chars(&m, &mut want);
-            proptest::prop_assert_eq!(shape(&d), want);
+            proptest::prop_assert_eq!(shape(d.view()), want);
         }
     }
 
@@ -522,7 +523,7 @@ mod tests {
         let mk = |msg: &str, net: &str| {
             crate::diag::Diag::error("ttl-high-into-cmos", msg).on_net(net.to_string())
         };
-        let diags: Vec<crate::diag::Diag> = (0..8)
+        let diags: crate::diag::DiagList = (0..8)
             .map(|i| {
                 mk(
                     &format!("U{} pin {} (74HC245 input A{i}) needs 3.50 V; U7 pin {} (74LS574 output {i}Q) guarantees 2.70 V: short by 0.80 V", 20 + i, 2 + i, 12 + i),
@@ -537,7 +538,7 @@ mod tests {
         let groups = fold(&diags);
         assert_eq!(groups, vec![(0..8).collect::<Vec<_>>(), vec![8]]);
         // three of a kind stay apart
-        let few: Vec<_> = diags[..3].to_vec();
+        let few: crate::diag::DiagList = diags.iter().take(3).map(|d| d.to_diag()).collect();
         assert_eq!(fold(&few).len(), 3);
     }
 

@@ -19,7 +19,7 @@ use super::{
     fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, Places,
     ReportOptions, Totals, TOOL_NAME, TOOL_VERSION,
 };
-use crate::diag::Diag;
+use crate::diag::DiagRef;
 use crate::pipeline::FileOutcome;
 use crate::source::Span;
 
@@ -93,22 +93,22 @@ impl<'a> PlaceOut<'a> {
 /// One finding as an object: its place's fields sit among its own.
 fn write_finding<'a>(
     w: &mut PrettyOut<'_>,
-    d: &'a Diag,
+    d: DiagRef<'a>,
     places: &mut Places<'a>,
     kept: &mut Repeats,
     fingerprint: u64,
 ) {
     let primary = primary_label(d);
     w.open_object();
-    w.key("check").str(&d.code);
-    w.key("severity").word(d.severity.as_str());
-    w.key("message").str(&d.message);
-    w.key("net").opt_str(d.net.as_deref());
+    w.key("check").str(d.code());
+    w.key("severity").word(d.severity().as_str());
+    w.key("message").str_parts(d.message_parts());
+    w.key("net").opt_str(d.net());
     w.key("pins").strs(d.pins());
     w.key("label")
         .opt_str(primary.map(|l| &*l.text).filter(|t| !t.is_empty()));
     PlaceOut::write_at(w, places, kept, primary.map(|l| l.span));
-    w.key("help").opt_str(d.help.as_deref());
+    w.key("help").opt_str(d.help());
     w.key("related").open_array();
     for l in related_labels(d) {
         w.item().open_object();
@@ -383,6 +383,7 @@ fn write_run(
         w.key("error");
         match &f.fatal {
             Some(d) => {
+                let d = d.view();
                 let fp = fnv1a64(fingerprint_key(d, src).as_bytes());
                 write_finding(&mut w, d, &mut Places::new(src), &mut Repeats::new(), fp);
             }

@@ -28,7 +28,7 @@ use std::path::{Component, Path, PathBuf};
 
 use clap::ValueEnum;
 
-use crate::diag::{Diag, Label, Severity};
+use crate::diag::{Diag, DiagRef, LabelRef, Severity};
 use crate::pipeline::FileOutcome;
 use crate::source::{LineCursor, SourceFile, Span};
 
@@ -194,21 +194,28 @@ impl<'a> Places<'a> {
 }
 
 /// The primary label of a diagnostic (the first primary one, else the first).
-pub fn primary_label(d: &Diag) -> Option<&Label> {
-    d.labels.iter().find(|l| l.primary).or(d.labels.first())
+pub fn primary_label(d: DiagRef<'_>) -> Option<LabelRef<'_>> {
+    primary_index(d).and_then(|i| d.labels().nth(i))
+}
+
+fn primary_index(d: DiagRef<'_>) -> Option<usize> {
+    let mut labels = d.labels();
+    let any = labels.len() > 0;
+    labels.position(|l| l.primary).or(any.then_some(0))
 }
 
 /// The labels other than the primary one: the secondary places (driver, resistor, other loads).
-pub fn related_labels(d: &Diag) -> impl Iterator<Item = &Label> {
-    let primary = primary_label(d).map(|l| l as *const Label);
-    d.labels
-        .iter()
-        .filter(move |l| Some(*l as *const Label) != primary)
+pub fn related_labels(d: DiagRef<'_>) -> impl Iterator<Item = LabelRef<'_>> {
+    let primary = primary_index(d);
+    d.labels()
+        .enumerate()
+        .filter(move |(i, _)| Some(*i) != primary)
+        .map(|(_, l)| l)
 }
 
 /// The file a diagnostic points into: for a schematic project (a source made of several
 /// sheet files) the sheet where its primary span lies, otherwise the input's own name.
-pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: &Diag) -> &'a str {
+pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: DiagRef<'_>) -> &'a str {
     match (f.source.as_ref(), primary_label(d)) {
         (Some(src), Some(l)) if !src.files().is_empty() => src.file_at(l.span.start as usize),
         _ => &f.name,
@@ -216,7 +223,7 @@ pub fn file_name<'a>(f: &'a crate::pipeline::FileOutcome, d: &Diag) -> &'a str {
 }
 
 /// The place of the diagnostic's primary span, when it has one and the text is known.
-pub fn primary_place(d: &Diag, source: Option<&SourceFile>) -> Option<Place> {
+pub fn primary_place(d: DiagRef<'_>, source: Option<&SourceFile>) -> Option<Place> {
     Some(Place::of(source?, primary_label(d)?.span))
 }
 
@@ -261,23 +268,23 @@ fn fnv1a64_more(mut h: u64, bytes: &[u8]) -> u64 {
 /// What identifies a finding regardless of where it sits in the file: the check, the net and
 /// the pins (which name the parts); when it names neither a net nor a pin, the text of its
 /// primary element with white space collapsed. Never a line number or an offset.
-pub fn fingerprint_key(d: &Diag, source: Option<&SourceFile>) -> String {
+pub fn fingerprint_key(d: DiagRef<'_>, source: Option<&SourceFile>) -> String {
     let mut key = String::new();
     write_fingerprint_key(d, source, &mut key);
     key
 }
 
 /// [`fingerprint_key`] written into `key` (cleared first), so one buffer serves every finding.
-fn write_fingerprint_key(d: &Diag, source: Option<&SourceFile>, key: &mut String) {
+fn write_fingerprint_key(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut String) {
     key.clear();
-    key.push_str(&d.code);
+    key.push_str(d.code());
     key.push('\u{1f}');
-    key.push_str(d.net.as_deref().unwrap_or(""));
+    key.push_str(d.net().unwrap_or(""));
     for p in d.pins() {
         key.push('\u{1f}');
         key.push_str(p);
     }
-    if d.net.is_none() && !d.has_pins() {
+    if d.net().is_none() && !d.has_pins() {
         key.push('\u{1e}');
         if let (Some(src), Some(l)) = (source, primary_label(d)) {
             let text = src.text().get(l.span.range()).unwrap_or("");
@@ -321,13 +328,13 @@ pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
 /// FNV-1a 64 of [`fingerprint_key`]: of its pieces one after another, with no key written,
 /// when the finding names a net or a pin (`key` is then left as it was); otherwise of the key
 /// written into `key`.
-fn fingerprint_hash(d: &Diag, source: Option<&SourceFile>, key: &mut String) -> u64 {
-    if d.net.is_none() && !d.has_pins() {
+fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut String) -> u64 {
+    if d.net().is_none() && !d.has_pins() {
         write_fingerprint_key(d, source, key);
         return fnv1a64(key.as_bytes());
     }
-    let mut h = fnv1a64_more(fnv1a64(d.code.as_bytes()), b"\x1f");
-    h = fnv1a64_more(h, d.net.as_deref().unwrap_or("").as_bytes());
+    let mut h = fnv1a64_more(fnv1a64(d.code().as_bytes()), b"\x1f");
+    h = fnv1a64_more(h, d.net().unwrap_or("").as_bytes());
     for p in d.pins() {
         h = fnv1a64_more(fnv1a64_more(h, b"\x1f"), p.as_bytes());
     }
@@ -341,7 +348,7 @@ fn fingerprint_hash(d: &Diag, source: Option<&SourceFile>, key: &mut String) -> 
 /// counted apart by its text. No key is kept as text unless two differ with one hash.
 fn key_ranks(
     f: &FileOutcome,
-    hash: fn(&Diag, Option<&SourceFile>, &mut String) -> u64,
+    hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64,
 ) -> Vec<(u64, usize)> {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
@@ -363,7 +370,8 @@ fn key_ranks(
                 Entry::Occupied(mut e) => {
                     let (first, count) = e.get_mut();
                     write_fingerprint_key(d, source, &mut key);
-                    write_fingerprint_key(&f.diags[*first], source, &mut first_key);
+                    let first_d = f.diags.get(*first).expect("an earlier finding");
+                    write_fingerprint_key(first_d, source, &mut first_key);
                     if first_key == key {
                         *count += 1;
                         *count - 1
@@ -381,7 +389,7 @@ fn key_ranks(
 
 /// The fingerprint of a file's fatal diagnostic.
 pub fn fatal_fingerprint(d: &Diag, source: Option<&SourceFile>) -> String {
-    format!("{:016x}", fnv1a64(fingerprint_key(d, source).as_bytes()))
+    format!("{:016x}", fnv1a64(fingerprint_key(d.view(), source).as_bytes()))
 }
 
 // ---------------------------------------------------------------------------
@@ -518,7 +526,7 @@ impl Totals {
             t.pins += f.summary.pins;
             t.waived += f.waived;
             for d in &f.diags {
-                match d.severity {
+                match d.severity() {
                     Severity::Error => t.errors += 1,
                     Severity::Warning => t.warnings += 1,
                     Severity::Info => t.infos += 1,
@@ -578,7 +586,7 @@ pub(crate) fn sample_outcomes() -> Vec<FileOutcome> {
         name: "top,1:a%.kicad_sch".into(),
         source: Some(source),
         fatal: None,
-        diags,
+        diags: diags.into(),
         summary: Default::default(),
         coverage: None,
         waived: 0,
@@ -590,7 +598,7 @@ pub(crate) fn sample_outcomes() -> Vec<FileOutcome> {
             "unreadable",
             "cannot read gone.net: no such file",
         )),
-        diags: Vec::new(),
+        diags: Default::default(),
         summary: Default::default(),
         coverage: None,
         waived: 0,
@@ -645,7 +653,7 @@ mod tests {
             name: "t.net".into(),
             source: None,
             fatal: None,
-            diags,
+            diags: diags.into(),
             summary: Default::default(),
             coverage: None,
             waived: 0,
@@ -661,7 +669,7 @@ mod tests {
             })
             .collect();
         assert_eq!(want, [0, 0, 1, 0, 1, 2, 0, 1]);
-        type Hash = fn(&Diag, Option<&SourceFile>, &mut String) -> u64;
+        type Hash = fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64;
         for hash in [
             fingerprint_hash as Hash,
             |_, _, _| 7,
@@ -679,10 +687,10 @@ mod tests {
         for d in f
             .diags
             .iter()
-            .chain(&sample_outcomes()[0].diags[..40])
+            .chain(sample_outcomes()[0].diags.iter().take(40))
             .chain([
-                &Diag::warning("floating-cmos-input", "m"),
-                &Diag::warning("floating-cmos-input", "m").at(Span::new(0, 9), "x"),
+                Diag::warning("floating-cmos-input", "m").view(),
+                Diag::warning("floating-cmos-input", "m").at(Span::new(0, 9), "x").view(),
             ])
         {
             let src = SourceFile::new("t", "(a  b\n c)");

@@ -187,6 +187,21 @@ impl<'o> PrettyOut<'o> {
         }
     }
 
+    /// The string made of `parts` one after another, written with no copy of it made when
+    /// no part needs an escape.
+    pub(crate) fn str_parts(&mut self, parts: [&str; 3]) {
+        if parts.iter().all(|p| clean(p.as_bytes())) {
+            self.buf.reserve(parts.iter().map(|p| p.len()).sum::<usize>() + 2);
+            self.buf.push(b'"');
+            for p in parts {
+                self.buf.extend_from_slice(p.as_bytes());
+            }
+            self.buf.push(b'"');
+        } else {
+            self.str(&parts.concat());
+        }
+    }
+
     pub(crate) fn opt_str(&mut self, s: Option<&str>) {
         match s {
             Some(s) => self.str(s),

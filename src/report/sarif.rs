@@ -25,7 +25,7 @@ use super::{
     Place, Places, ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
 };
 use crate::checks::REGISTRY;
-use crate::diag::{Diag, Severity, INPUT_CODES};
+use crate::diag::{DiagRef, Severity, INPUT_CODES};
 use crate::pipeline::FileOutcome;
 
 /// The OASIS schema of SARIF 2.1.0 (with its errata), named in `$schema`.
@@ -264,7 +264,7 @@ fn artifact(name: &str, opts: &ReportOptions) -> ArtifactLocation {
 /// One result: the finding at its primary place, its other places as related locations.
 fn write_result(
     w: &mut PrettyOut<'_>,
-    d: &Diag,
+    d: DiagRef<'_>,
     places: &mut Places<'_>,
     kept: &mut Repeats,
     art: &ArtifactLocation,
@@ -298,13 +298,13 @@ fn write_result(
     };
     let primary = primary_label(d);
     w.open_object();
-    w.key("ruleId").str(&d.code);
-    if let Some(&i) = index.get(&*d.code) {
+    w.key("ruleId").str(d.code());
+    if let Some(&i) = index.get(d.code()) {
         w.key("ruleIndex").num(i);
     }
-    w.key("level").word(level(d.severity));
+    w.key("level").word(level(d.severity()));
     w.key("message");
-    write_message(w, &d.message);
+    write_message(w, &d.message());
     w.key("locations").open_array();
     w.item();
     location(
@@ -326,15 +326,15 @@ fn write_result(
     w.key("partialFingerprints").open_object();
     w.key(FINGERPRINT_KEY).hex64(fingerprint);
     w.close_object();
-    if d.net.is_some() || d.has_pins() || d.help.is_some() {
+    if d.net().is_some() || d.has_pins() || d.help().is_some() {
         w.key("properties").open_object();
-        if let Some(net) = &d.net {
+        if let Some(net) = d.net() {
             w.key("net").str(net);
         }
         if d.has_pins() {
             w.key("pins").strs(d.pins());
         }
-        if let Some(help) = &d.help {
+        if let Some(help) = d.help() {
             w.key("help").str(help);
         }
         w.close_object();
@@ -403,7 +403,7 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
     for (f, arts) in files.iter().zip(&artifacts) {
         let src = f.source.as_ref();
         // a schematic's findings point into the sheet file where the item is drawn
-        let art_of = |d: &Diag| {
+        let art_of = |d: DiagRef<'_>| {
             let sheet = primary_label(d).and_then(|l| src?.part_index_at(l.span.start as usize));
             &arts[sheet.map_or(0, |i| i + 1)]
         };
@@ -413,7 +413,7 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
         let fatal = f
             .fatal
             .as_ref()
-            .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
+            .map(|d| (d.view(), fnv1a64(fingerprint_key(d.view(), src).as_bytes())));
         for (d, fp) in fatal
             .into_iter()
             .chain(f.diags.iter().zip(fingerprint_hashes(f)))

@@ -8,12 +8,12 @@
 use std::io::{self, Write};
 
 use super::{primary_label, primary_place, Places, ShownName};
-use crate::diag::Diag;
+use crate::diag::{Diag, DiagRef};
 use crate::pipeline::FileOutcome;
 use crate::text::sanitize;
 
 /// The line for one diagnostic (without the line end).
-pub fn line(f: &FileOutcome, d: &Diag) -> String {
+pub fn line(f: &FileOutcome, d: DiagRef<'_>) -> String {
     let path = sanitize(super::file_name(f, d));
     let place = match primary_place(d, f.source.as_ref()) {
         Some(p) => format!(":{}:{}", p.line, p.column),
@@ -21,9 +21,9 @@ pub fn line(f: &FileOutcome, d: &Diag) -> String {
     };
     format!(
         "{path}{place}: {}: {} [{}]",
-        d.severity,
-        sanitize(&d.message),
-        sanitize(&d.code)
+        d.severity(),
+        sanitize(&d.message()),
+        sanitize(d.code())
     )
 }
 
@@ -34,7 +34,7 @@ pub fn write(files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
     for f in files {
         let mut places = Places::new(f.source.as_ref());
         let mut shown = ShownName::new();
-        for d in f.fatal.iter().chain(&f.diags) {
+        for d in f.fatal.iter().map(Diag::view).chain(&f.diags) {
             buf.extend_from_slice(
                 shown
                     .get(super::file_name(f, d), |n| sanitize(n).into_owned())
@@ -48,11 +48,11 @@ pub fn write(files: &[FileOutcome], out: &mut dyn Write) -> io::Result<()> {
                 buf.extend_from_slice(n.format(p.column).as_bytes());
             }
             buf.extend_from_slice(b": ");
-            buf.extend_from_slice(d.severity.as_str().as_bytes());
+            buf.extend_from_slice(d.severity().as_str().as_bytes());
             buf.extend_from_slice(b": ");
-            buf.extend_from_slice(sanitize(&d.message).as_bytes());
+            buf.extend_from_slice(sanitize(&d.message()).as_bytes());
             buf.extend_from_slice(b" [");
-            buf.extend_from_slice(sanitize(&d.code).as_bytes());
+            buf.extend_from_slice(sanitize(d.code()).as_bytes());
             buf.extend_from_slice(b"]\n");
             if buf.len() >= CHUNK {
                 out.write_all(&buf)?;
@@ -76,7 +76,7 @@ mod tests {
         let files = super::super::sample_outcomes();
         let mut want = String::new();
         for f in &files {
-            for d in f.fatal.iter().chain(&f.diags) {
+            for d in f.fatal.iter().map(Diag::view).chain(&f.diags) {
                 want.push_str(&line(f, d));
                 want.push('\n');
             }

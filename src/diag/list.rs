@@ -1,0 +1,1060 @@
+//! A file's findings held together: one fixed-size record per finding, one text for all
+//! their own words (messages, nets, pins), one list of all their places, and one table of
+//! the texts many findings say alike (codes, label words, helps, the shared parts of a
+//! message), each kept once. A board can have hundreds of thousands of findings; held this
+//! way a finding costs its record, its own words and its places, and no allocation of its
+//! own.
+//!
+//! Read a finding through [`DiagRef`], which reads a single [`Diag`] the same way.
+
+use std::borrow::Cow;
+use std::hash::BuildHasher;
+
+use super::{Diag, Label, Pins, Severity, Text};
+use crate::source::Span;
+
+/// No text: a length or a shared text's number that is not there.
+const NONE: u32 = u32::MAX;
+
+/// One finding: where its words are. Its own texts follow each other in one piece of the
+/// list's text: message, net, pins.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct Rec {
+    /// Where its own texts start in [`DiagList::text`]: the piece (high 32 bits) and the
+    /// offset in it.
+    start: u64,
+    /// Lengths of the message's own part, the net and the pin list (`NONE`: none).
+    message: u32,
+    net: u32,
+    pins: u32,
+    /// Shared texts (numbers in [`DiagList::shared`]; `NONE`: none): the code, the help, and
+    /// the parts of the message before and after its own part.
+    code: u32,
+    help: u32,
+    head: u32,
+    tail: u32,
+    /// Its places: `labels` from `first_label` on, in one piece of [`DiagList::labels`] (the
+    /// piece above [`LABEL_SHIFT`] bits, the offset in it below).
+    first_label: u32,
+    labels: u16,
+    severity: Severity,
+}
+
+/// A place of a finding in the list.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct LabelRec {
+    span: Span,
+    /// A shared text's number.
+    text: u32,
+    primary: bool,
+}
+
+/// Records a piece of [`DiagList::recs`] holds (a power of two).
+const REC_CHUNK: usize = 1 << 14;
+/// A piece of the places or of the text is left for a new one once it holds this many (a
+/// finding's places, or texts, are never split between two pieces, so a piece may hold more).
+const LABEL_CHUNK: usize = 1 << 16;
+const TEXT_CHUNK: usize = 1 << 20;
+/// A place's offset in its piece: below `LABEL_CHUNK` plus the most places of one finding.
+const LABEL_SHIFT: u32 = 17;
+
+/// The findings of a file, in order (see the module's documentation).
+///
+/// Records, places and texts are each held in pieces of a fixed size, added as the list
+/// grows: a list of hundreds of thousands of findings is never copied to grow, and never held
+/// twice.
+#[derive(Default, Clone)]
+pub struct DiagList {
+    /// The records, `REC_CHUNK` to a piece.
+    recs: Vec<Vec<Rec>>,
+    len: usize,
+    labels: Vec<Vec<LabelRec>>,
+    text: Vec<String>,
+    shared: Vec<Text>,
+    /// The shared texts by content, as numbers into `shared`.
+    index: hashbrown::HashTable<u32>,
+    /// The last text shared and its number, by its address and length: findings in a row say
+    /// the same fixed words, found again with no hashing.
+    last: [(usize, usize, u32); SLOTS],
+}
+
+/// Texts remembered by address: the code, the help, the message's head and tail, the first
+/// label and the others.
+const SLOTS: usize = 6;
+
+/// Orders the texts made of `a`'s parts and of `b`'s as the texts themselves are ordered
+/// (byte by byte), with no text made.
+pub fn cmp_parts(a: [&str; 3], b: [&str; 3]) -> std::cmp::Ordering {
+    let (mut a, mut b) = (a.map(str::as_bytes), b.map(str::as_bytes));
+    let (mut i, mut j) = (0, 0);
+    loop {
+        while i < 3 && a[i].is_empty() {
+            i += 1;
+        }
+        while j < 3 && b[j].is_empty() {
+            j += 1;
+        }
+        match (i < 3, j < 3) {
+            (false, false) => return std::cmp::Ordering::Equal,
+            (false, true) => return std::cmp::Ordering::Less,
+            (true, false) => return std::cmp::Ordering::Greater,
+            _ => {}
+        }
+        let n = a[i].len().min(b[j].len());
+        match a[i][..n].cmp(&b[j][..n]) {
+            std::cmp::Ordering::Equal => {}
+            other => return other,
+        }
+        a[i] = &a[i][n..];
+        b[j] = &b[j][n..];
+    }
+}
+
+/// The parts of a message said by many findings, around the words of one finding.
+#[derive(Debug, Clone, Default)]
+pub struct Around<'t> {
+    pub head: Option<&'t Text>,
+    pub tail: Option<&'t Text>,
+}
+
+/// What a finding written straight into a list ([`DiagList::push_raw`]) says besides its pins
+/// and places.
+#[derive(Debug, Clone)]
+pub struct Raw<'t> {
+    pub code: &'static str,
+    pub severity: Severity,
+    /// The message: `around.head`, `own`, `around.tail`.
+    pub around: Around<'t>,
+    pub own: &'t str,
+    pub help: Option<&'t Text>,
+    pub net: Option<&'t str>,
+}
+
+fn hash(s: &str) -> u64 {
+    rustc_hash::FxBuildHasher.hash_one(s)
+}
+
+impl DiagList {
+    pub fn new() -> DiagList {
+        DiagList::default()
+    }
+
+    pub fn len(&self) -> usize {
+        self.len
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.len == 0
+    }
+
+    fn rec(&self, i: usize) -> &Rec {
+        &self.recs[i / REC_CHUNK][i % REC_CHUNK]
+    }
+
+    fn rec_mut(&mut self, i: usize) -> &mut Rec {
+        &mut self.recs[i / REC_CHUNK][i % REC_CHUNK]
+    }
+
+    fn push_rec(&mut self, r: Rec) {
+        if self.len % REC_CHUNK == 0 {
+            // the first piece grows as a small list does; the others are made whole
+            self.recs.push(if self.len == 0 {
+                Vec::new()
+            } else {
+                Vec::with_capacity(REC_CHUNK)
+            });
+        }
+        self.recs.last_mut().expect("a piece").push(r);
+        self.len += 1;
+    }
+
+    fn swap(&mut self, i: usize, j: usize) {
+        let (a, b) = (*self.rec(i), *self.rec(j));
+        *self.rec_mut(i) = b;
+        *self.rec_mut(j) = a;
+    }
+
+    /// Starts a finding's texts and places: in the last pieces, or in new ones when those
+    /// are full. Gives where its texts start and its first place.
+    fn begin(&mut self) -> (u64, u32) {
+        // the first piece grows as a small list does; the others are made whole
+        match self.text.last() {
+            None => self.text.push(String::new()),
+            Some(t) if t.len() >= TEXT_CHUNK => self.text.push(String::with_capacity(TEXT_CHUNK)),
+            _ => {}
+        }
+        match self.labels.last() {
+            None => self.labels.push(Vec::new()),
+            Some(l) if l.len() >= LABEL_CHUNK => {
+                self.labels.push(Vec::with_capacity(LABEL_CHUNK))
+            }
+            _ => {}
+        }
+        let t = self.text.len() - 1;
+        let l = self.labels.len() - 1;
+        (
+            ((t as u64) << 32) | self.text[t].len() as u64,
+            ((l as u32) << LABEL_SHIFT) | self.labels[l].len() as u32,
+        )
+    }
+
+    fn text_mut(&mut self) -> &mut String {
+        self.text.last_mut().expect("begun")
+    }
+
+    /// The number of the shared text `s` (added the first time it is given). `slot` says
+    /// which of the remembered last texts to try first.
+    fn share(&mut self, s: &str, owned: Option<&Text>, slot: usize) -> u32 {
+        let key = (s.as_ptr() as usize, s.len());
+        let (p, l, id) = self.last[slot];
+        if (p, l) == key && id != 0 {
+            return id - 1;
+        }
+        let h = hash(s);
+        let shared = &self.shared;
+        let id = match self.index.find(h, |&i| &*shared[i as usize] == s) {
+            Some(&i) => i,
+            None => {
+                let i = self.shared.len() as u32;
+                let t = match owned {
+                    Some(t) => t.clone(),
+                    None => Text::Shared(s.into()),
+                };
+                self.shared.push(t);
+                let shared = &self.shared;
+                self.index
+                    .insert_unique(h, i, |&j| hash(&shared[j as usize]));
+                i
+            }
+        };
+        // a text held by the list keeps its address: remember it by that
+        if let Some(t) = owned.filter(|t| matches!(t, Text::Fixed(_))) {
+            self.last[slot] = (t.as_ptr() as usize, t.len(), id + 1);
+        } else {
+            let held = &self.shared[id as usize];
+            self.last[slot] = (held.as_ptr() as usize, held.len(), id + 1);
+        }
+        id
+    }
+
+    fn share_cow(&mut self, s: &Cow<'static, str>, slot: usize) -> u32 {
+        match s {
+            Cow::Borrowed(b) => self.share(b, Some(&Text::Fixed(b)), slot),
+            Cow::Owned(o) => self.share(o, None, slot),
+        }
+    }
+
+    fn own(&mut self, s: Option<&str>) -> u32 {
+        match s {
+            Some(s) => {
+                self.text_mut().push_str(s);
+                s.len() as u32
+            }
+            None => NONE,
+        }
+    }
+
+    /// Adds a finding at the end.
+    pub fn push(&mut self, d: Diag) {
+        self.push_parts(&d, &d.message, Around::default());
+    }
+
+    /// Adds `d` at the end with the message `around.head`, `message`, `around.tail`, the
+    /// message of `d` left out: the parts shared by many findings are kept once.
+    pub fn push_parts(&mut self, d: &Diag, message: &str, around: Around<'_>) {
+        self.push_view(d.view(), message, around);
+    }
+
+    fn push_view(&mut self, d: DiagRef<'_>, message: &str, around: Around<'_>) {
+        let (start, first_label) = self.begin();
+        let message = self.own(Some(message));
+        let net = self.own(d.net());
+        let pins = self.own(d.pin_text());
+        let code = match d.0 {
+            Inner::One(one) => self.share_cow(&one.code, 0),
+            Inner::In(..) => self.share(d.code(), None, 0),
+        };
+        let help = match d.0 {
+            Inner::One(one) => one.help.as_ref().map(|h| self.share(h, Some(h), 1)),
+            Inner::In(..) => d.help().map(|h| self.share(h, None, 1)),
+        };
+        let head = around.head.map(|t| self.share(t, Some(t), 2));
+        let tail = around.tail.map(|t| self.share(t, Some(t), 3));
+        let mut labels = 0u16;
+        match d.0 {
+            Inner::One(one) => {
+                for (k, l) in one.labels.iter().enumerate() {
+                    let text = self.share_cow(&l.text, 4 + k.min(1));
+                    self.push_label(l.span, text, l.primary, &mut labels);
+                }
+            }
+            Inner::In(..) => {
+                for (k, l) in d.labels().enumerate() {
+                    let text = self.share(l.text, None, 4 + k.min(1));
+                    self.push_label(l.span, text, l.primary, &mut labels);
+                }
+            }
+        }
+        self.push_rec(Rec {
+            start,
+            message,
+            net,
+            pins,
+            code,
+            help: help.unwrap_or(NONE),
+            head: head.unwrap_or(NONE),
+            tail: tail.unwrap_or(NONE),
+            first_label,
+            labels,
+            severity: d.severity(),
+        });
+    }
+
+    fn push_label(&mut self, span: Span, text: u32, primary: bool, n: &mut u16) {
+        // more places than a record counts are left out (no finding has near so many)
+        if *n < u16::MAX {
+            self.labels.last_mut().expect("begun").push(LabelRec {
+                span,
+                text,
+                primary,
+            });
+            *n += 1;
+        }
+    }
+
+    /// Adds a finding written straight into the list, with no diagnostic of its own made
+    /// first: its pins each as pieces joined (`["U4", ".", "6"]`, holding no NUL), its places
+    /// as (span, fixed words, primary).
+    pub fn push_raw<'p>(
+        &mut self,
+        raw: Raw<'_>,
+        pins: impl IntoIterator<Item = [&'p str; 3]>,
+        labels: impl IntoIterator<Item = (Span, &'static str, bool)>,
+    ) {
+        let (start, first_label) = self.begin();
+        let message = self.own(Some(raw.own));
+        let net = self.own(raw.net);
+        let text = self.text_mut();
+        let pins_at = text.len();
+        let mut any = false;
+        for p in pins {
+            if any {
+                text.push(super::PIN_SEP);
+            }
+            any = true;
+            for piece in p {
+                text.push_str(piece);
+            }
+        }
+        let pins = if any {
+            (text.len() - pins_at) as u32
+        } else {
+            NONE
+        };
+        let code = self.share(raw.code, Some(&Text::Fixed(raw.code)), 0);
+        let help = raw.help.map(|h| self.share(h, Some(h), 1));
+        let head = raw.around.head.map(|t| self.share(t, Some(t), 2));
+        let tail = raw.around.tail.map(|t| self.share(t, Some(t), 3));
+        let mut n = 0u16;
+        for (k, (span, text, primary)) in labels.into_iter().enumerate() {
+            let text = self.share(text, Some(&Text::Fixed(text)), 4 + k.min(1));
+            self.push_label(span, text, primary, &mut n);
+        }
+        self.push_rec(Rec {
+            start,
+            message,
+            net,
+            pins,
+            code,
+            help: help.unwrap_or(NONE),
+            head: head.unwrap_or(NONE),
+            tail: tail.unwrap_or(NONE),
+            first_label,
+            labels: n,
+            severity: raw.severity,
+        });
+    }
+
+    /// Adds a copy of a finding read from another list (or a single one).
+    pub fn push_ref(&mut self, d: DiagRef<'_>) {
+        let message = d.own_message();
+        let around_head = d.head().map(|s| Text::Shared(s.into()));
+        let around_tail = d.tail().map(|s| Text::Shared(s.into()));
+        self.push_view(
+            d,
+            message,
+            Around {
+                head: around_head.as_ref(),
+                tail: around_tail.as_ref(),
+            },
+        );
+    }
+
+    /// The finding at `i`.
+    pub fn get(&self, i: usize) -> Option<DiagRef<'_>> {
+        (i < self.len).then(|| DiagRef(Inner::In(self, self.rec(i))))
+    }
+
+    /// The findings, in order.
+    pub fn iter(&self) -> Iter<'_> {
+        Iter {
+            list: self,
+            front: 0,
+            back: self.len,
+        }
+    }
+
+    /// The findings as single diagnostics of their own, each copied out.
+    pub fn to_vec(&self) -> Vec<Diag> {
+        self.iter().map(|d| d.to_diag()).collect()
+    }
+
+    /// Sets the severity of the findings from `from` on.
+    pub fn set_severity_from(&mut self, from: usize, severity: Severity) {
+        for i in from..self.len {
+            self.rec_mut(i).severity = severity;
+        }
+    }
+
+    /// Keeps the findings `keep` says yes to, in order.
+    pub fn retain(&mut self, mut keep: impl FnMut(DiagRef<'_>) -> bool) {
+        // the kept records are moved down in place
+        let mut kept = 0;
+        for i in 0..self.len {
+            if keep(DiagRef(Inner::In(self, self.rec(i)))) {
+                let r = *self.rec(i);
+                *self.rec_mut(kept) = r;
+                kept += 1;
+            }
+        }
+        self.len = kept;
+        self.recs.truncate(kept.div_ceil(REC_CHUNK));
+        let pieces = self.recs.len();
+        if let Some(last) = self.recs.last_mut() {
+            last.truncate(kept - (pieces - 1) * REC_CHUNK);
+        }
+    }
+
+    /// Puts the findings of `first` before this list's.
+    pub fn prepend(&mut self, first: impl IntoIterator<Item = Diag>) {
+        let at = self.len;
+        for d in first {
+            self.push(d);
+        }
+        // rotated left by `at`, in place: each part turned round, then the whole
+        let n = self.len;
+        for (from, to) in [(0, at), (at, n), (0, n)] {
+            let (mut i, mut j) = (from, to);
+            while i + 1 < j {
+                self.swap(i, j - 1);
+                i += 1;
+                j -= 1;
+            }
+        }
+    }
+
+    /// Rearranges the findings so that the finding at `i` is the one that was at `order[i]`
+    /// (`order` a permutation; it is used up).
+    pub(crate) fn apply_order(&mut self, order: &mut [usize]) {
+        const DONE: usize = usize::MAX;
+        for i in 0..self.len {
+            if order[i] == DONE {
+                continue;
+            }
+            let mut cur = i;
+            loop {
+                let next = std::mem::replace(&mut order[cur], DONE);
+                if next == i {
+                    break;
+                }
+                self.swap(cur, next);
+                cur = next;
+            }
+        }
+    }
+
+    /// The list held to its length (it is kept to the end of the run).
+    pub fn shrink_to_fit(&mut self) {
+        // the pieces stay as they are: shrinking one would copy it
+        self.recs.shrink_to_fit();
+        self.labels.shrink_to_fit();
+        self.text.shrink_to_fit();
+    }
+
+    /// The bytes the list holds, for measuring.
+    pub fn heap_bytes(&self) -> usize {
+        self.recs.iter().map(|r| r.capacity()).sum::<usize>() * size_of::<Rec>()
+            + self.labels.iter().map(|l| l.capacity()).sum::<usize>() * size_of::<LabelRec>()
+            + self.text.iter().map(|t| t.capacity()).sum::<usize>()
+            + self.shared.capacity() * size_of::<Text>()
+            + self.index.capacity() * size_of::<u32>()
+    }
+}
+
+impl std::fmt::Debug for DiagList {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_list().entries(self.iter()).finish()
+    }
+}
+
+impl PartialEq for DiagList {
+    fn eq(&self, other: &DiagList) -> bool {
+        self.len() == other.len() && self.iter().zip(other.iter()).all(|(a, b)| a == b)
+    }
+}
+
+impl FromIterator<Diag> for DiagList {
+    fn from_iter<I: IntoIterator<Item = Diag>>(iter: I) -> DiagList {
+        let mut l = DiagList::new();
+        for d in iter {
+            l.push(d);
+        }
+        l
+    }
+}
+
+impl From<Vec<Diag>> for DiagList {
+    fn from(v: Vec<Diag>) -> DiagList {
+        v.into_iter().collect()
+    }
+}
+
+impl Extend<Diag> for DiagList {
+    fn extend<I: IntoIterator<Item = Diag>>(&mut self, iter: I) {
+        for d in iter {
+            self.push(d);
+        }
+    }
+}
+
+/// The findings as single diagnostics of their own, each copied out (for tools and tests:
+/// a report reads the list through [`DiagList::iter`]).
+impl IntoIterator for DiagList {
+    type Item = Diag;
+    type IntoIter = std::vec::IntoIter<Diag>;
+    fn into_iter(self) -> Self::IntoIter {
+        self.to_vec().into_iter()
+    }
+}
+
+impl<'a> IntoIterator for &'a DiagList {
+    type Item = DiagRef<'a>;
+    type IntoIter = Iter<'a>;
+    fn into_iter(self) -> Iter<'a> {
+        self.iter()
+    }
+}
+
+/// The findings of a [`DiagList`], in order.
+#[derive(Clone)]
+pub struct Iter<'a> {
+    list: &'a DiagList,
+    front: usize,
+    back: usize,
+}
+
+impl<'a> Iterator for Iter<'a> {
+    type Item = DiagRef<'a>;
+    fn next(&mut self) -> Option<DiagRef<'a>> {
+        if self.front == self.back {
+            return None;
+        }
+        self.front += 1;
+        Some(DiagRef(Inner::In(self.list, self.list.rec(self.front - 1))))
+    }
+    fn size_hint(&self) -> (usize, Option<usize>) {
+        (self.back - self.front, Some(self.back - self.front))
+    }
+}
+
+impl ExactSizeIterator for Iter<'_> {}
+
+impl<'a> DoubleEndedIterator for Iter<'a> {
+    fn next_back(&mut self) -> Option<DiagRef<'a>> {
+        if self.front == self.back {
+            return None;
+        }
+        self.back -= 1;
+        Some(DiagRef(Inner::In(self.list, self.list.rec(self.back))))
+    }
+}
+
+/// One finding, read: from a [`DiagList`] or a single [`Diag`] alike.
+#[derive(Clone, Copy)]
+pub struct DiagRef<'a>(Inner<'a>);
+
+#[derive(Clone, Copy)]
+enum Inner<'a> {
+    One(&'a Diag),
+    In(&'a DiagList, &'a Rec),
+}
+
+/// A place of a finding, read.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct LabelRef<'a> {
+    pub span: Span,
+    pub text: &'a str,
+    pub primary: bool,
+}
+
+impl<'a> From<&'a Diag> for DiagRef<'a> {
+    fn from(d: &'a Diag) -> DiagRef<'a> {
+        DiagRef(Inner::One(d))
+    }
+}
+
+impl<'a> DiagRef<'a> {
+    fn own(list: &'a DiagList, r: &Rec, skip: usize, len: u32) -> Option<&'a str> {
+        if len == NONE {
+            return None;
+        }
+        let text = &list.text[(r.start >> 32) as usize];
+        let mut at = (r.start & 0xffff_ffff) as usize;
+        for l in [r.message, r.net, r.pins].into_iter().take(skip) {
+            if l != NONE {
+                at += l as usize;
+            }
+        }
+        Some(&text[at..at + len as usize])
+    }
+
+    fn shared(list: &'a DiagList, id: u32) -> Option<&'a str> {
+        (id != NONE).then(|| &*list.shared[id as usize])
+    }
+
+    /// Stable kebab-case id, e.g. `unclosed-list` or `floating-cmos-input`.
+    pub fn code(&self) -> &'a str {
+        match self.0 {
+            Inner::One(d) => &d.code,
+            Inner::In(l, r) => &l.shared[r.code as usize],
+        }
+    }
+
+    pub fn severity(&self) -> Severity {
+        match self.0 {
+            Inner::One(d) => d.severity,
+            Inner::In(_, r) => r.severity,
+        }
+    }
+
+    /// The finding's own words of the message (without the parts it shares).
+    fn own_message(&self) -> &'a str {
+        match self.0 {
+            Inner::One(d) => &d.message,
+            Inner::In(l, r) => Self::own(l, r, 0, r.message).unwrap_or(""),
+        }
+    }
+
+    fn head(&self) -> Option<&'a str> {
+        match self.0 {
+            Inner::One(_) => None,
+            Inner::In(l, r) => Self::shared(l, r.head),
+        }
+    }
+
+    fn tail(&self) -> Option<&'a str> {
+        match self.0 {
+            Inner::One(_) => None,
+            Inner::In(l, r) => Self::shared(l, r.tail),
+        }
+    }
+
+    /// The message, with the numbers.
+    pub fn message(&self) -> Cow<'a, str> {
+        let own = self.own_message();
+        let (head, tail) = (self.head(), self.tail());
+        if head.is_none() && tail.is_none() {
+            return Cow::Borrowed(own);
+        }
+        let (head, tail) = (head.unwrap_or(""), tail.unwrap_or(""));
+        let mut m = String::with_capacity(head.len() + own.len() + tail.len());
+        m.push_str(head);
+        m.push_str(own);
+        m.push_str(tail);
+        Cow::Owned(m)
+    }
+
+    /// The message's parts in order (their concatenation is [`DiagRef::message`]).
+    pub fn message_parts(&self) -> [&'a str; 3] {
+        [
+            self.head().unwrap_or(""),
+            self.own_message(),
+            self.tail().unwrap_or(""),
+        ]
+    }
+
+    /// The places; the first primary one is the finding's location.
+    pub fn labels(&self) -> Labels<'a> {
+        match self.0 {
+            Inner::One(d) => Labels(LabelsInner::One(d.labels.iter())),
+            Inner::In(l, r) => {
+                let piece = &l.labels[(r.first_label >> LABEL_SHIFT) as usize];
+                let from = (r.first_label & ((1 << LABEL_SHIFT) - 1)) as usize;
+                Labels(LabelsInner::In(
+                    l,
+                    piece[from..from + r.labels as usize].iter(),
+                ))
+            }
+        }
+    }
+
+    pub fn help(&self) -> Option<&'a str> {
+        match self.0 {
+            Inner::One(d) => d.help.as_deref(),
+            Inner::In(l, r) => Self::shared(l, r.help),
+        }
+    }
+
+    /// The net the finding is about, by name.
+    pub fn net(&self) -> Option<&'a str> {
+        match self.0 {
+            Inner::One(d) => d.net.as_deref(),
+            Inner::In(l, r) => Self::own(l, r, 1, r.net),
+        }
+    }
+
+    fn pin_text(&self) -> Option<&'a str> {
+        match self.0 {
+            Inner::One(d) => d.pins.0.as_deref(),
+            Inner::In(l, r) => Self::own(l, r, 2, r.pins),
+        }
+    }
+
+    /// The pins involved, as `REF.PIN`, the offending one first.
+    pub fn pins(&self) -> Pins<'a> {
+        Pins(self.pin_text())
+    }
+
+    /// True when the finding names any pin.
+    pub fn has_pins(&self) -> bool {
+        self.pin_text().is_some()
+    }
+
+    /// The primary span, if any.
+    pub fn primary_span(&self) -> Option<Span> {
+        let mut first = None;
+        for l in self.labels() {
+            if l.primary {
+                return Some(l.span);
+            }
+            first = first.or(Some(l.span));
+        }
+        first
+    }
+
+    /// The finding as a single diagnostic of its own.
+    pub fn to_diag(&self) -> Diag {
+        if let Inner::One(d) = self.0 {
+            return d.clone();
+        }
+        let mut d = Diag::new(
+            Cow::Owned(self.code().to_string()),
+            self.severity(),
+            self.message().into_owned(),
+        );
+        d.labels = self
+            .labels()
+            .map(|l| Label {
+                span: l.span,
+                text: Cow::Owned(l.text.to_string()),
+                primary: l.primary,
+            })
+            .collect();
+        d.help = self.help().map(|h| Text::Shared(h.into()));
+        d.net = self.net().map(Into::into);
+        d.pins = super::PinList(self.pin_text().map(Into::into));
+        d
+    }
+}
+
+impl PartialEq for DiagRef<'_> {
+    fn eq(&self, o: &DiagRef<'_>) -> bool {
+        self.code() == o.code()
+            && self.severity() == o.severity()
+            && self.message() == o.message()
+            && self.labels().eq(o.labels())
+            && self.help() == o.help()
+            && self.net() == o.net()
+            && self.pin_text() == o.pin_text()
+    }
+}
+
+impl std::fmt::Debug for DiagRef<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Diag")
+            .field("code", &self.code())
+            .field("severity", &self.severity())
+            .field("message", &self.message())
+            .field("labels", &self.labels().collect::<Vec<_>>())
+            .field("help", &self.help())
+            .field("net", &self.net())
+            .field("pins", &self.pins().collect::<Vec<_>>())
+            .finish()
+    }
+}
+
+/// The places of a finding, in order.
+#[derive(Clone)]
+pub struct Labels<'a>(LabelsInner<'a>);
+
+#[derive(Clone)]
+enum LabelsInner<'a> {
+    One(std::slice::Iter<'a, Label>),
+    In(&'a DiagList, std::slice::Iter<'a, LabelRec>),
+}
+
+impl<'a> Iterator for Labels<'a> {
+    type Item = LabelRef<'a>;
+    fn next(&mut self) -> Option<LabelRef<'a>> {
+        match &mut self.0 {
+            LabelsInner::One(it) => it.next().map(|l| LabelRef {
+                span: l.span,
+                text: &l.text,
+                primary: l.primary,
+            }),
+            LabelsInner::In(list, it) => it.next().map(|l| LabelRef {
+                span: l.span,
+                text: &list.shared[l.text as usize],
+                primary: l.primary,
+            }),
+        }
+    }
+    fn size_hint(&self) -> (usize, Option<usize>) {
+        match &self.0 {
+            LabelsInner::One(it) => it.size_hint(),
+            LabelsInner::In(_, it) => it.size_hint(),
+        }
+    }
+}
+
+impl ExactSizeIterator for Labels<'_> {}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A finding held in a list costs its record and its places, and no allocation.
+    #[test]
+    fn records_stay_small() {
+        assert!(size_of::<Rec>() <= 48, "{}", size_of::<Rec>());
+        assert!(size_of::<LabelRec>() <= 16, "{}", size_of::<LabelRec>());
+        assert!(size_of::<DiagRef>() <= 24);
+    }
+
+    fn sample(i: usize) -> Diag {
+        let d = Diag::warning(if i % 2 == 0 { "code-a" } else { "code-b" }, format!("message {i}"))
+            .at(Span::new(i, i + 1), "first")
+            .also(Span::new(i + 2, i + 3), Cow::Owned(format!("made {i}")));
+        let d = if i % 3 == 0 { d.on_net(format!("N{i}")) } else { d };
+        let d = if i % 4 == 0 {
+            d.with_help("fixed help")
+        } else {
+            d.with_help(format!("help {}", i % 2))
+        };
+        if i % 5 == 0 {
+            d
+        } else {
+            d.with_pins([format!("U{i}.1"), String::new(), format!("R{i}.2")])
+        }
+    }
+
+    #[test]
+    fn a_finding_reads_back_as_it_was_pushed() {
+        let all: Vec<Diag> = (0..40).map(sample).collect();
+        let list: DiagList = all.iter().cloned().collect();
+        assert_eq!(list.len(), all.len());
+        for (d, r) in all.iter().zip(list.iter()) {
+            assert_eq!(DiagRef::from(d), r);
+            assert_eq!(&r.to_diag(), d);
+            assert_eq!(r.code(), &*d.code);
+            assert_eq!(r.message(), &*d.message);
+            assert_eq!(r.net(), d.net.as_deref());
+            assert_eq!(r.help(), d.help.as_deref());
+            assert_eq!(r.pins().collect::<Vec<_>>(), d.pins().collect::<Vec<_>>());
+            assert_eq!(r.has_pins(), d.has_pins());
+            assert_eq!(r.primary_span(), d.primary_span());
+            let texts: Vec<&str> = r.labels().map(|l| l.text).collect();
+            let want: Vec<&str> = d.labels.iter().map(|l| &*l.text).collect();
+            assert_eq!(texts, want);
+        }
+        // texts said alike are held once: two codes, two label words and 20 made ones, and
+        // three helps
+        assert_eq!(list.shared.len(), 2 + 1 + 40 + 3);
+        // copied from one list to another, the same
+        let mut copy = DiagList::new();
+        for r in list.iter().rev() {
+            copy.push_ref(r);
+        }
+        assert!(copy.iter().rev().eq(list.iter()));
+    }
+
+    #[test]
+    fn a_message_in_parts_reads_whole() {
+        let head = Text::Fixed("gate A of ");
+        let tail = Text::from(String::from(" (74HC00) is unused"));
+        let mut list = DiagList::new();
+        let d = Diag::error("code-a", "").at(Span::new(1, 2), "x");
+        list.push_parts(
+            &d,
+            "U1",
+            Around {
+                head: Some(&head),
+                tail: Some(&tail),
+            },
+        );
+        list.push_parts(&d, "U2", Around { head: None, tail: Some(&tail) });
+        list.push(Diag::error("code-a", "whole"));
+        let m: Vec<String> = list.iter().map(|r| r.message().into_owned()).collect();
+        assert_eq!(m, ["gate A of U1 (74HC00) is unused", "U2 (74HC00) is unused", "whole"]);
+        assert_eq!(list.get(0).unwrap().message_parts(), ["gate A of ", "U1", " (74HC00) is unused"]);
+        // a copy keeps the words
+        let mut copy = DiagList::new();
+        copy.push_ref(list.get(0).unwrap());
+        assert_eq!(copy.get(0).unwrap(), list.get(0).unwrap());
+    }
+
+    #[test]
+    fn apply_order_moves_each_item_to_its_place() {
+        // every permutation of five items, against building the ordered list afresh
+        let mut perms = vec![vec![]];
+        for n in 0..5usize {
+            perms = perms
+                .into_iter()
+                .flat_map(|p: Vec<usize>| {
+                    (0..=p.len()).map(move |at| {
+                        let mut q = p.clone();
+                        q.insert(at, n);
+                        q
+                    })
+                })
+                .collect();
+        }
+        assert_eq!(perms.len(), 120);
+        for p in perms {
+            let items: Vec<char> = "abcde".chars().collect();
+            let want: Vec<String> = p.iter().map(|&i| items[i].to_string()).collect();
+            let mut got: DiagList = items.iter().map(|c| Diag::info("code-a", c.to_string())).collect();
+            got.apply_order(&mut p.clone());
+            let got: Vec<String> = got.iter().map(|d| d.message().into_owned()).collect();
+            assert_eq!(got, want, "{p:?}");
+        }
+    }
+
+    /// Across the pieces records, places and texts are held in, a list reads, reorders, keeps
+    /// and prepends as one list of its findings does.
+    #[test]
+    fn lists_of_many_pieces_read_as_one() {
+        let n = 2 * REC_CHUNK + 77;
+        let big = "x".repeat(TEXT_CHUNK / 3);
+        let mk = |i: usize| {
+            let d = Diag::warning("code-a", format!("m{i}")).with_pins([format!("U{i}.1")]);
+            // a few findings with many places or a long net, to fill those pieces early
+            let d = if i % 5000 == 1 {
+                (0..30_000).fold(d, |d, k| d.also(Span::new(k, k + 1), ""))
+            } else {
+                d.at(Span::new(i, i + 1), "p")
+            };
+            if i % 9000 == 2 {
+                d.on_net(big.clone())
+            } else {
+                d
+            }
+        };
+        let mut list: DiagList = (0..n).map(mk).collect();
+        assert!(list.recs.len() == 3 && list.text.len() > 1 && list.labels.len() > 1);
+        for i in (0..n).step_by(97).chain([n - 1, REC_CHUNK - 1, REC_CHUNK]) {
+            assert_eq!(list.get(i).unwrap(), mk(i).view(), "{i}");
+        }
+        assert!(list.get(n).is_none());
+        assert_eq!(list.iter().rev().count(), n);
+        // reversed
+        let mut order: Vec<usize> = (0..n).rev().collect();
+        list.apply_order(&mut order);
+        assert_eq!(list.get(0).unwrap(), mk(n - 1).view());
+        assert_eq!(list.get(n - 1).unwrap(), mk(0).view());
+        // every third kept
+        list.retain(|d| d.message()[1..].parse::<usize>().unwrap() % 3 == 0);
+        let want: Vec<usize> = (0..n).rev().filter(|i| i % 3 == 0).collect();
+        assert_eq!(list.len(), want.len());
+        list.prepend([mk(7)]);
+        let got: Vec<String> = list.iter().map(|d| d.message().into_owned()).collect();
+        let want: Vec<String> = [7].into_iter().chain(want).map(|i| format!("m{i}")).collect();
+        assert_eq!(got, want);
+    }
+
+    #[test]
+    fn a_finding_written_straight_in_reads_as_one_pushed() {
+        let (head, tail, help) = (Text::Fixed("gate A of "), Text::from(String::from(" is unused")), Text::Fixed("tie it"));
+        let d = Diag::error("code-a", "gate A of U1 is unused")
+            .at(Span::new(1, 2), "unused gate")
+            .also(Span::new(3, 4), "")
+            .with_help("tie it")
+            .on_net("N1")
+            .with_pins(["U1.1", "U1.2"]);
+        let mut list = DiagList::new();
+        for net in [Some("N1"), None] {
+            list.push_raw(
+                Raw {
+                    code: "code-a",
+                    severity: Severity::Error,
+                    around: Around { head: Some(&head), tail: Some(&tail) },
+                    own: "U1",
+                    help: Some(&help),
+                    net,
+                },
+                [["U1", ".", "1"], ["U1", ".", "2"]],
+                [(Span::new(1, 2), "unused gate", true), (Span::new(3, 4), "", false)],
+            );
+        }
+        list.push_raw(
+            Raw { code: "code-a", severity: Severity::Info, around: Around::default(), own: "m", help: None, net: None },
+            [],
+            [],
+        );
+        assert_eq!(list.get(0).unwrap(), d.view());
+        assert_eq!(list.get(1).unwrap().net(), None);
+        assert_eq!(list.get(1).unwrap().pins().collect::<Vec<_>>(), ["U1.1", "U1.2"]);
+        let last = list.get(2).unwrap();
+        assert_eq!((last.has_pins(), last.labels().len(), last.help()), (false, 0, None));
+        assert_eq!(last.to_diag(), Diag::info("code-a", "m"));
+    }
+
+    #[test]
+    fn texts_in_parts_order_as_the_whole_texts() {
+        let texts = ["", "a", "ab", "abc", "b", "ba", "Ω", "a\u{0}"];
+        let mut splits = Vec::new();
+        for t in texts {
+            for i in 0..=t.len() {
+                for j in i..=t.len() {
+                    if t.is_char_boundary(i) && t.is_char_boundary(j) {
+                        splits.push((t, [&t[..i], &t[i..j], &t[j..]]));
+                    }
+                }
+            }
+        }
+        for (x, xs) in &splits {
+            for (y, ys) in &splits {
+                assert_eq!(cmp_parts(*xs, *ys), x.cmp(y), "{xs:?} {ys:?}");
+            }
+        }
+    }
+
+    #[test]
+    fn lists_reorder_keep_and_prepend() {
+        let mut list: DiagList = (0..6).map(sample).collect();
+        let mut order = vec![5, 4, 3, 2, 1, 0];
+        list.apply_order(&mut order);
+        let m: Vec<String> = list.iter().map(|r| r.message().into_owned()).collect();
+        assert_eq!(m[0], "message 5");
+        assert_eq!(m[5], "message 0");
+        list.retain(|r| r.code() == "code-a");
+        let m: Vec<String> = list.iter().map(|r| r.message().into_owned()).collect();
+        assert_eq!(m, ["message 4", "message 2", "message 0"]);
+        list.prepend([sample(9)]);
+        let m: Vec<String> = list.iter().map(|r| r.message().into_owned()).collect();
+        assert_eq!(m, ["message 9", "message 4", "message 2", "message 0"]);
+        list.set_severity_from(1, Severity::Error);
+        let s: Vec<Severity> = list.iter().map(|r| r.severity()).collect();
+        assert_eq!(s, [Severity::Warning, Severity::Error, Severity::Error, Severity::Error]);
+    }
+}
