@@ -15,7 +15,7 @@ use std::cell::OnceCell;
 use std::path::{Path, PathBuf};
 
 use crate::checks::{self, CheckOptions};
-use crate::circuit::budget::{net_budget, NetBudget};
+use crate::circuit::budget::{net_budget_with, NetBudget};
 use crate::circuit::{self, Circuit, ModelOptions};
 use crate::classify::classifier::{classify, Classified, Rules};
 use crate::config::{self, Config, ConfigError, Setting, Waiver};
@@ -240,7 +240,11 @@ impl<'a> Analysis<'a> {
             &self.settings.rules,
             self.settings.run.model.clone(),
         );
-        let budgets = (0..cx.nets.len()).map(|n| net_budget(&cx, n)).collect();
+        // one buffer for a state's items while its total is added up, reused from net to net
+        let mut scratch = Vec::new();
+        let budgets = (0..cx.nets.len())
+            .map(|n| net_budget_with(&cx, n, &mut scratch))
+            .collect();
         Board {
             analysis: self,
             cx,

@@ -81,17 +81,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
         for db in &ctx.budgets[net].drivers {
-            let d = &nm.drivers[db.driver];
+            let d = &nm.drivers[db.driver()];
             if d.symbol_only || d.levels.is_none() || gate(cx, d.at) == Gate::Never {
                 continue;
             }
-            for op in [&db.drive_high, &db.drive_low].into_iter().flatten() {
+            for op in [db.drive_high(), db.drive_low()].into_iter().flatten() {
                 dark(ctx, net, d.at, op, out);
                 let cmos = cx
                     .family(d.at.comp)
                     .is_some_and(|f| f.technology == Technology::Cmos);
                 if cmos {
-                    current(ctx, net, db.driver, op, out);
+                    current(ctx, net, db.driver(), op, out);
                 }
             }
         }

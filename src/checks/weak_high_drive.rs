@@ -156,8 +156,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let Some(lv) = &d.levels else { continue };
             let voh = lv.voh.first().map_or(2.4, |p| p.v);
             let ioh = lv.ioh_max.abs();
-            let db = ctx.budgets[net].drivers.iter().find(|b| b.driver == di);
-            let logic = db.and_then(|b| b.high.as_ref()).map_or(0.0, |h| h.total);
+            let db = ctx.budgets[net].drivers.iter().find(|b| b.driver() == di);
+            let logic = db.and_then(|b| b.high()).map_or(0.0, |h| h.total);
             let currents: Vec<f64> = paths
                 .iter()
                 .map(|p| led_current(voh, p.vf, p.ohms))
@@ -261,8 +261,8 @@ fn diag(
     let low_inputs = ctx.budgets[net]
         .drivers
         .iter()
-        .find(|b| b.driver == di)
-        .and_then(|b| b.low.as_ref())
+        .find(|b| b.driver() == di)
+        .and_then(|b| b.low())
         .map_or(0.0, |l| l.total);
     let vf = paths[0].vf;
     let available = (ctx.opts.derating * iol - low_inputs) / paths.len() as f64;

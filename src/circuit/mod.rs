@@ -1832,7 +1832,7 @@ mod size_tests {
         assert!(size_of::<NetModel>() <= 88, "{}", size_of::<NetModel>());
         assert!(size_of::<NetBudget>() <= 24, "{}", size_of::<NetBudget>());
         assert!(
-            size_of::<DriverBudget>() <= 144,
+            size_of::<DriverBudget>() <= 72,
             "{}",
             size_of::<DriverBudget>()
         );
