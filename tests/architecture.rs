@@ -198,7 +198,7 @@ fn only_the_analysis_runs_the_stages() {
 #[test]
 fn budgets_are_computed_once() {
     let mut found = files_with("net_budget(");
-    found.extend(files_with("net_budget_with("));
+    found.extend(files_with("Budgets::build("));
     found.sort();
     found.dedup();
     let mut found: Vec<&str> = found.iter().map(String::as_str).collect();

@@ -141,7 +141,9 @@ fn open_collector_high_level_counts_its_own_leakage() {
         );
         close(pu.level, 5.0 - 8200.0 * 350e-6, 1e-9, "high level");
         close(
-            b.drivers[0].high_level().expect("the pull-up sets the high"),
+            b.drivers[0]
+                .high_level()
+                .expect("the pull-up sets the high"),
             2.13,
             1e-9,
             "high level",
@@ -209,7 +211,12 @@ fn ls_high_into_hc_input_at_4v5_and_5v() {
     for (rail, vih, short) in [("+4V5", 3.15, 0.45), ("+5V", 3.50, 0.80)] {
         with_circuit(&ls_into_hc(rail).text(), ModelOptions::default(), |cx| {
             let b = budget(cx, "/CLK");
-            close(b.drivers[0].high_level().expect("VOH"), 2.7, 1e-9, "74LS VOH");
+            close(
+                b.drivers[0].high_level().expect("VOH"),
+                2.7,
+                1e-9,
+                "74LS VOH",
+            );
             let m = b
                 .margins(cx, net_index(cx, "/CLK"))
                 .next()

@@ -18,7 +18,7 @@ use std::io;
 use std::path::{Path, PathBuf};
 
 use crate::analysis::{Analysis, Board, RunOptions, Settings};
-use crate::circuit::budget::{NetBudget, StateBudget};
+use crate::circuit::budget::{NetBudgetRef, StateBudget};
 use crate::circuit::{Circuit, RailSource};
 use crate::classify::classifier::{PartKind, Rules};
 use crate::classify::family::Drive;
@@ -501,7 +501,7 @@ pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag>
     }
     let interfaces = chart_nets
         .into_iter()
-        .map(|(n, why)| gather_interface(cx, &board.budgets[n], n, why))
+        .map(|(n, why)| gather_interface(cx, board.budgets.net(n), n, why))
         .collect();
 
     let run = &a.settings.run;
@@ -673,7 +673,7 @@ fn gather_parts(cx: &Circuit<'_, '_>) -> (Vec<FamilyCount>, Vec<(&'static str, u
 
 fn gather_interface(
     cx: &Circuit<'_, '_>,
-    b: &NetBudget,
+    b: NetBudgetRef<'_>,
     net: usize,
     why: Vec<String>,
 ) -> Interface {

@@ -30,10 +30,10 @@ use crate::values::{format_ohms, format_volts};
 /// a translator or a driver on the load's supply.
 fn high_fix(
     ctx: &Context<'_, '_, '_>,
-    b: &crate::circuit::budget::NetBudget,
+    b: crate::circuit::budget::NetBudgetRef<'_>,
     pulled_up: bool,
 ) -> String {
-    match b.window.as_ref().filter(|_| pulled_up).and_then(|w| w.r_max.map(|r| (w, r))) {
+    match b.window.filter(|_| pulled_up).and_then(|w| w.r_max.map(|r| (w, r))) {
         Some((w, rmax)) if rmax > w.r_min => format!(
             "a smaller pull-up: between {} and {} to {} reaches every load's VIH",
             format_ohms(w.r_min),

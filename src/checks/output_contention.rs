@@ -342,7 +342,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
         }
         Finding::Paralleled(ps) => {
             let comp = ps[0].comp;
-            let b = &ctx.budgets[net];
+            let b = ctx.budgets.net(net);
             let nm = &cx.nets[net];
             let first = nm.drivers.iter().position(|d| d.at == ps[0]);
             let db = first.and_then(|i| b.drivers.iter().find(|x| x.driver() == i));

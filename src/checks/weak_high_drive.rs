@@ -156,7 +156,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let Some(lv) = &d.levels else { continue };
             let voh = lv.voh.first().map_or(2.4, |p| p.v);
             let ioh = lv.ioh_max.abs();
-            let db = ctx.budgets[net].drivers.iter().find(|b| b.driver() == di);
+            let db = ctx
+                .budgets
+                .net(net)
+                .drivers
+                .iter()
+                .find(|b| b.driver() == di);
             let logic = db.and_then(|b| b.high()).map_or(0.0, |h| h.total);
             let currents: Vec<f64> = paths
                 .iter()
@@ -258,7 +263,9 @@ fn diag(
     let vcc = cx.supplies[d.at.comp].as_ref().map_or(5.0, |s| s.vcc);
     let vol = lv.vol.last().map_or(0.4, |p| p.v);
     let iol = lv.iol_max.abs();
-    let low_inputs = ctx.budgets[net]
+    let low_inputs = ctx
+        .budgets
+        .net(net)
         .drivers
         .iter()
         .find(|b| b.driver() == di)

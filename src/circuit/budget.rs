@@ -11,7 +11,8 @@ use crate::values::{format_amps, format_ohms};
 
 /// One contribution to a state's current. What it is stays structured; its pin
 /// ([`Item::at`]), unit loads ([`Item::unit_loads`]) and words ([`Item::describe`]) are read
-/// from the model only when asked: a budget holds one item per input of every net, twice.
+/// from the model only when asked. A budget keeps no items: [`DriverBudget::items`] lists
+/// them when a check, the `net` report or the audit asks.
 #[derive(Debug, Clone)]
 pub struct Item {
     pub kind: ItemKind,
@@ -409,6 +410,17 @@ pub struct OperatingPoint {
     pub loads: Vec<ResistiveLoad>,
 }
 
+/// What a board's budgets reuse from net to net: a buffer for a state's items while its total
+/// is added up, and the operating points' levels solved so far, by the numbers each follows
+/// from (the output's state, supply, resistance and logic current, and each resistive load's
+/// forward voltage, resistance and rail, as bits).
+#[derive(Default)]
+struct Scratch {
+    items: Vec<Item>,
+    key: Vec<u64>,
+    levels: rustc_hash::FxHashMap<Box<[u64]>, f64>,
+}
+
 /// The voltage at which `f` (decreasing in v) crosses zero in [lo, hi], by bisection.
 fn crossing(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> f64 {
     let (mut a, mut b) = (lo, hi);
@@ -420,6 +432,11 @@ fn crossing(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> f64 {
     }
     for _ in 0..60 {
         let m = 0.5 * (a + b);
+        // a and b are neighbouring numbers: every further step would leave them as they are
+        // (f(a) > 0 and f(b) <= 0 hold throughout), so the answer is already fixed
+        if m == a || m == b {
+            break;
+        }
         if f(m) > 0.0 {
             a = m;
         } else {
@@ -472,6 +489,7 @@ fn knees(
 
 /// Solves the output's operating point in one state. `knees` conduct towards their rail;
 /// `logic` is the logic inputs' current (IIH or IIL), drawn at any level.
+#[allow(clippy::too_many_arguments)]
 fn operating_point(
     high: bool,
     vcc: f64,
@@ -480,6 +498,7 @@ fn operating_point(
     logic: f64,
     reach: f64,
     knees: Vec<Knee>,
+    solved: &mut Scratch,
 ) -> Option<OperatingPoint> {
     if knees.is_empty() || row.1 <= 0.0 {
         return None;
@@ -501,16 +520,36 @@ fn operating_point(
             ((k.rail_volts - k.vf - v) / r).max(0.0)
         }
     };
-    let level = if high {
-        crossing(0.0, vcc, |v| {
-            (vcc - v) / r_out - logic - knees.iter().map(|k| conduct(k, v)).sum::<f64>()
-        })
-    } else {
-        // the low state rises from 0 V: the sunk current grows, the loads' current falls
-        let top = knees.iter().map(|k| k.rail_volts).fold(vcc, f64::max);
-        crossing(0.0, top, |v| {
-            logic + knees.iter().map(|k| conduct(k, v)).sum::<f64>() - v / r_out
-        })
+    // outputs alike with loads alike (a board of many alike cells) meet at the same level:
+    // it is solved once for each set of numbers it follows from
+    let key = &mut solved.key;
+    key.clear();
+    key.extend([
+        u64::from(high),
+        vcc.to_bits(),
+        r_out.to_bits(),
+        logic.to_bits(),
+    ]);
+    for k in &knees {
+        key.extend([k.vf.to_bits(), k.ohms.to_bits(), k.rail_volts.to_bits()]);
+    }
+    let level = match solved.levels.get(key.as_slice()) {
+        Some(&level) => level,
+        None => {
+            let level = if high {
+                crossing(0.0, vcc, |v| {
+                    (vcc - v) / r_out - logic - knees.iter().map(|k| conduct(k, v)).sum::<f64>()
+                })
+            } else {
+                // the low state rises from 0 V: the sunk current grows, the loads' current falls
+                let top = knees.iter().map(|k| k.rail_volts).fold(vcc, f64::max);
+                crossing(0.0, top, |v| {
+                    logic + knees.iter().map(|k| conduct(k, v)).sum::<f64>() - v / r_out
+                })
+            };
+            solved.levels.insert(key.clone().into_boxed_slice(), level);
+            level
+        }
     };
     let loads: Vec<ResistiveLoad> = knees
         .iter()
@@ -555,6 +594,7 @@ fn drive_points(
     iih: f64,
     iil: f64,
     stops_short: bool,
+    solved: &mut Scratch,
 ) -> (Option<OperatingPoint>, Option<OperatingPoint>) {
     let drives_high = matches!(
         d.role,
@@ -572,8 +612,18 @@ fn drive_points(
         // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
         // (common practice; its guaranteed VOH is a minimum, not a ceiling)
         let reach = if stops_short { lv.vcc - 1.4 } else { lv.vcc };
-        strongest(&lv.voh)
-            .and_then(|row| operating_point(true, lv.vcc, row, lv.ioh_max.abs(), iih, reach, knees))
+        strongest(&lv.voh).and_then(|row| {
+            operating_point(
+                true,
+                lv.vcc,
+                row,
+                lv.ioh_max.abs(),
+                iih,
+                reach,
+                knees,
+                solved,
+            )
+        })
     } else {
         None
     };
@@ -584,7 +634,16 @@ fn drive_points(
         // the low can go down to ground: LEDs that need more than their rail never light
         let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {
-            operating_point(false, lv.vcc, row, lv.iol_max.abs(), iil, reach, knees)
+            operating_point(
+                false,
+                lv.vcc,
+                row,
+                lv.iol_max.abs(),
+                iil,
+                reach,
+                knees,
+                solved,
+            )
         })
     } else {
         None
@@ -631,10 +690,8 @@ pub struct PullUpWindow {
     pub fitted: Option<f64>,
 }
 
-/// A net's budget. A budget is kept for every net: its list is allocated to its length (two
-/// words, none while empty). The loads' margins are not kept: each is two subtractions from
-/// the driver's levels and the load's thresholds, and a net holds one per driver and load,
-/// so [`NetBudget::margins`] works them out when asked.
+/// One net's budget, owned: what [`net_budget`] works out for a single net. A whole board's
+/// are kept in one [`Budgets`] and read as [`NetBudgetRef`]s (`b.as_ref()` reads this one so).
 #[derive(Debug, Clone, Default)]
 pub struct NetBudget {
     pub drivers: Box<[DriverBudget]>,
@@ -643,14 +700,43 @@ pub struct NetBudget {
 }
 
 impl NetBudget {
+    /// The budget as the board's store gives it.
+    pub fn as_ref(&self) -> NetBudgetRef<'_> {
+        NetBudgetRef {
+            drivers: &self.drivers,
+            window: self.window.as_deref(),
+        }
+    }
+
+    /// Each load's margins against each driver of net `net` ([`NetBudgetRef::margins`]).
+    pub fn margins<'b, 'n, 'a>(
+        &'b self,
+        cx: &'b Circuit<'n, 'a>,
+        net: usize,
+    ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
+        self.as_ref().margins(cx, net)
+    }
+}
+
+/// One net's budget as the board keeps it: its drivers' budgets and, for an open-collector
+/// net, the pull-up window. The loads' margins are not kept: each is two subtractions from
+/// the driver's levels and the load's thresholds, and a net holds one per driver and load,
+/// so [`NetBudgetRef::margins`] works them out when asked.
+#[derive(Debug, Clone, Copy)]
+pub struct NetBudgetRef<'b> {
+    pub drivers: &'b [DriverBudget],
+    pub window: Option<&'b PullUpWindow>,
+}
+
+impl<'b> NetBudgetRef<'b> {
     /// Each load's margins against each driver of net `net` (whose budget this is): by
     /// driver, then by load; a load that is the driver's own pin, or of no known family, has
     /// none.
     ///
     /// A CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is taken
     /// at the top of it and VIL at the bottom (TTL thresholds do not move).
-    pub fn margins<'b, 'n, 'a>(
-        &'b self,
+    pub fn margins<'n, 'a>(
+        self,
         cx: &'b Circuit<'n, 'a>,
         net: usize,
     ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
@@ -680,6 +766,53 @@ impl NetBudget {
                 })
             })
         })
+    }
+}
+
+/// Every net's budget, worked out once for the board ([`Budgets::build`], called by the
+/// analysis only) and read by net ([`Budgets::net`], [`Budgets::iter`]). Each net's drivers'
+/// budgets are one allocation at its length (none for a net with no driver): small blocks
+/// that reuse the room the reader freed, where one list for the board would need a block
+/// of its own.
+#[derive(Debug, Clone, Default)]
+pub struct Budgets {
+    nets: Vec<NetBudget>,
+}
+
+impl Budgets {
+    /// Every net's budget, with one buffer and one table of solved levels for the board.
+    pub fn build(cx: &Circuit<'_, '_>) -> Budgets {
+        let mut scratch = Scratch::default();
+        let nets = (0..cx.nets.len())
+            .map(|net| {
+                let mut drivers = Vec::with_capacity(cx.nets[net].drivers.len());
+                let window = budget_into(cx, net, &mut scratch, &mut drivers);
+                NetBudget {
+                    drivers: drivers.into_boxed_slice(),
+                    window: window.map(Box::new),
+                }
+            })
+            .collect();
+        Budgets { nets }
+    }
+
+    /// How many nets the store holds.
+    pub fn len(&self) -> usize {
+        self.nets.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.nets.is_empty()
+    }
+
+    /// Net `net`'s budget.
+    pub fn net(&self, net: usize) -> NetBudgetRef<'_> {
+        self.nets[net].as_ref()
+    }
+
+    /// Every net's budget, in net order.
+    pub fn iter(&self) -> impl Iterator<Item = NetBudgetRef<'_>> + '_ {
+        (0..self.len()).map(|n| self.net(n))
     }
 }
 
@@ -888,19 +1021,29 @@ fn high_items(
     before
 }
 
-/// Computes the budget of one net. `scratch` holds a state's items while its total is
-/// added up (reused from net to net; the items are not kept).
+/// Computes the budget of one net (the board's are in [`Budgets`]).
 pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
-    net_budget_with(cx, net, &mut Vec::new())
+    let mut drivers = Vec::new();
+    let window = budget_into(cx, net, &mut Scratch::default(), &mut drivers);
+    NetBudget {
+        drivers: drivers.into_boxed_slice(),
+        window: window.map(Box::new),
+    }
 }
 
-/// [`net_budget`] with a buffer for the items, reused from net to net.
-pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Vec<Item>) -> NetBudget {
+/// Works out net `net`'s budget: its drivers' budgets are pushed onto `drivers`, its
+/// open-collector window returned. `scratch` holds a state's items while its total is added
+/// up (the items are not kept).
+fn budget_into(
+    cx: &Circuit<'_, '_>,
+    net: usize,
+    scratch: &mut Scratch,
+    drivers: &mut Vec<DriverBudget>,
+) -> Option<PullUpWindow> {
     let nm = &cx.nets[net];
     if nm.drivers.is_empty() {
-        return NetBudget::default();
+        return None;
     }
-    let mut drivers: Vec<DriverBudget> = Vec::with_capacity(nm.drivers.len());
     let mut window = None;
     let pulls = nm.pulls();
     let has_pulldowns = pulls.iter().any(|p| !p.up);
@@ -909,18 +1052,21 @@ pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Ve
         // low state to budget, and its high is rated by its own data sheet, not by its
         // family's logic outputs (a 4511 segment sources 25 mA where a 4000B gate gives
         // under 1 mA), so neither state is judged against the family's figures
-        let levels = d.levels.as_deref().filter(|_| d.role != PinRole::OpenEmitter);
+        let levels = d
+            .levels
+            .as_deref()
+            .filter(|_| d.role != PinRole::OpenEmitter);
         let Some(lv) = levels else {
             drivers.push(DriverBudget::none(di));
             continue;
         };
         let mut flags = HAS_LOW;
         // --- low state: this driver low, every other driver high or off
-        scratch.clear();
-        let own = low_items(cx, net, di, lv, scratch);
+        scratch.items.clear();
+        let own = low_items(cx, net, di, lv, &mut scratch.items);
         // the own net's inputs' IIL, for the operating point below
-        let iil: f64 = scratch[..own].iter().map(|i| i.amps).sum();
-        let low_total: f64 = scratch.iter().map(|i| i.amps).sum();
+        let iil: f64 = scratch.items[..own].iter().map(|i| i.amps).sum();
+        let low_total: f64 = scratch.items.iter().map(|i| i.amps).sum();
         let low_level = lv.vol_at(low_total);
         if low_level.is_some() {
             flags |= HAS_LOW_LEVEL;
@@ -931,10 +1077,10 @@ pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Ve
             d.role,
             PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional | PinRole::OpenEmitter
         );
-        scratch.clear();
-        let before = high_items(cx, net, di, lv, drives_high, scratch);
+        scratch.items.clear();
+        let before = high_items(cx, net, di, lv, drives_high, &mut scratch.items);
         let mut load_high: f64 = 0.0;
-        for it in &scratch[..before] {
+        for it in &scratch.items[..before] {
             load_high += it.amps;
         }
         // an open collector's high state is the output turned off: its own off-state
@@ -946,7 +1092,7 @@ pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Ve
         let (mut high_total, mut high_state_level) = (0.0, None);
         if drives_high {
             flags |= HAS_HIGH;
-            high_total = scratch.iter().map(|i| i.amps).sum();
+            high_total = scratch.items.iter().map(|i| i.amps).sum();
             high_state_level = lv.voh_at(-high_total);
             high_level = high_state_level;
         }
@@ -978,7 +1124,7 @@ pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Ve
             && cx.family(d.at.comp).is_some_and(|f| {
                 f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
             });
-        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
+        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short, scratch);
         if high_state_level.is_some() {
             flags |= HAS_HIGH_STATE_LEVEL;
         }
@@ -1058,7 +1204,7 @@ pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Ve
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls().iter().filter(|p| p.up).map(|p| p.ohms));
-            window = Some(Box::new(PullUpWindow {
+            window = Some(PullUpWindow {
                 rail_net,
                 rail_volts: v,
                 v_high,
@@ -1072,13 +1218,10 @@ pub(crate) fn net_budget_with(cx: &Circuit<'_, '_>, net: usize, scratch: &mut Ve
                 r_min,
                 r_max,
                 fitted,
-            }));
+            });
         }
     }
-    NetBudget {
-        drivers: drivers.into_boxed_slice(),
-        window,
-    }
+    window
 }
 
 #[cfg(test)]
@@ -1199,10 +1342,21 @@ mod tests {
         let cl = crate::classify::classifier::classify(&nl, &rules);
         let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
         let mut states = 0;
-        let mut scratch = Vec::new();
+        let all = Budgets::build(&cx);
+        assert_eq!(all.len(), nl.nets.len());
         for n in 0..nl.nets.len() {
-            let b = net_budget_with(&cx, n, &mut scratch);
+            let b = net_budget(&cx, n);
             assert_eq!(b.drivers.len(), cx.nets[n].drivers.len());
+            // the board's store holds the same budget at the net's place
+            let stored = all.net(n);
+            assert_eq!(stored.drivers.len(), b.drivers.len(), "net {n}");
+            assert_eq!(stored.window.is_some(), b.window.is_some(), "net {n}");
+            for (x, y) in stored.drivers.iter().zip(b.drivers.iter()) {
+                assert_eq!(x.driver(), y.driver());
+                let bits = |s: Option<StateBudget>| s.map(|s| s.total.to_bits());
+                assert_eq!(bits(x.low()), bits(y.low()));
+                assert_eq!(bits(x.high()), bits(y.high()));
+            }
             for db in b.drivers.iter() {
                 for (low, sb) in [(true, db.low()), (false, db.high())] {
                     let items = db.items(&cx, n, low);
@@ -1220,8 +1374,16 @@ mod tests {
         // and the other nets' outputs
         assert!(states >= 6, "{states}");
         // the /OC open collectors have no high state, the /BUS outputs have one
-        let oc = net_budget(&cx, nl.net_by_name("/OC").expect("net"));
-        assert!(oc.drivers.iter().all(|d| d.high().is_none() && d.low().is_some()));
+        let oc_net = nl.net_by_name("/OC").expect("net");
+        assert!(
+            all.net(oc_net).window.is_some(),
+            "an open-collector net's window"
+        );
+        let oc = net_budget(&cx, oc_net);
+        assert!(oc
+            .drivers
+            .iter()
+            .all(|d| d.high().is_none() && d.low().is_some()));
         let bus = net_budget(&cx, nl.net_by_name("/BUS").expect("net"));
         assert!(bus.drivers.iter().all(|d| d.high().is_some()));
         assert!(bus.drivers[0].pull_up().is_some() && oc.drivers[0].pull_up().is_none());

@@ -564,7 +564,12 @@ pub fn is_enable_input_name(name: &str) -> bool {
 
 /// A pin or net name that means ground: GND, GNDD, AGND, DGND, 0V, VSS, VEE ...
 pub fn is_ground_name(name: &str) -> bool {
-    let n = name.trim_start_matches('/').to_ascii_uppercase();
+    is_ground_name_upper(&name.to_ascii_uppercase())
+}
+
+/// [`is_ground_name`] for a name already in capitals (no copy made).
+pub fn is_ground_name_upper(name: &str) -> bool {
+    let n = name.trim_start_matches('/');
     n.starts_with("GND")
         || n.ends_with("GND")
         || n == "0V"

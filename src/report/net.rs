@@ -3,7 +3,7 @@
 
 use std::io::{self, Write};
 
-use crate::circuit::budget::{Item, LoadKind, NetBudget, StateBudget};
+use crate::circuit::budget::{Item, LoadKind, NetBudgetRef, StateBudget};
 use crate::circuit::Circuit;
 use crate::text::sanitize;
 use crate::values::{format_amps, format_ohms, format_volts};
@@ -49,7 +49,7 @@ fn state(
 pub fn write_net(
     out: &mut dyn Write,
     cx: &Circuit<'_, '_>,
-    b: &NetBudget,
+    b: NetBudgetRef<'_>,
     net: usize,
 ) -> io::Result<()> {
     let nm = &cx.nets[net];
