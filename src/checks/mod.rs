@@ -116,7 +116,7 @@ mod unpowered_part;
 mod unreadable_value;
 mod weak_high_drive;
 
-use crate::circuit::budget::NetBudget;
+use crate::circuit::budget::Budgets;
 use crate::circuit::Circuit;
 use crate::diag::DiagList;
 
@@ -148,7 +148,7 @@ impl Default for CheckOptions {
 pub struct Context<'c, 'n, 'a> {
     pub cx: &'c Circuit<'n, 'a>,
     /// Every net's budget, by net index, computed once by the caller (`circuit::budget`).
-    pub budgets: &'c [NetBudget],
+    pub budgets: &'c Budgets,
     pub opts: &'c CheckOptions,
     /// The rail nets, gathered once.
     pub rails: common::RailIndex,
@@ -158,7 +158,7 @@ type CheckFn = fn(&Context<'_, '_, '_>, &mut DiagList);
 
 /// Runs every enabled check on the circuit and its budgets (computed once by the caller,
 /// [`crate::analysis`]) and returns the findings in file order.
-pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> DiagList {
+pub fn run_all(cx: &Circuit<'_, '_>, budgets: &Budgets, opts: &CheckOptions) -> DiagList {
     let ctx = Context {
         cx,
         budgets,
