@@ -442,7 +442,10 @@ mod tests {
         let stale = stale.expect("both gone");
         assert_eq!(stale.diags.len(), 2);
         assert!(
-            stale.diags.get(1).unwrap()
+            stale
+                .diags
+                .get(1)
+                .unwrap()
                 .message()
                 .contains("`fanout-overrun` on U3.6, U4.1 (net N2)"),
             "{}",

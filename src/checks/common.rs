@@ -243,7 +243,12 @@ pub struct GateWords {
 
 impl GateWords {
     /// The words for `g`: "gate B of {reference} (74HC00) is unused and {tail}", and `help`.
-    pub fn new(cx: &Circuit<'_, '_>, g: &UnusedGate<'_, '_>, tail: &str, help: String) -> GateWords {
+    pub fn new(
+        cx: &Circuit<'_, '_>,
+        g: &UnusedGate<'_, '_>,
+        tail: &str,
+        help: String,
+    ) -> GateWords {
         let c = &cx.nl.components[g.comp];
         GateWords {
             head: concat(&["gate ", g.unit, " of "]).into(),
@@ -518,7 +523,10 @@ mod tests {
         for key in [1, 2, 1, 1, 2, 3] {
             let w = words.get(key, || {
                 made += 1;
-                (format!("tail {key}"), super::Text::from(format!("help {key}")))
+                (
+                    format!("tail {key}"),
+                    super::Text::from(format!("help {key}")),
+                )
             });
             assert_eq!(
                 (w.0.as_str(), &*w.1),

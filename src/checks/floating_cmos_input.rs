@@ -24,7 +24,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 
 use super::common::{
     agree, floating_inputs, ground_rail_name, net_name_of, pin_list, push_all, push_pin_name,
-    supply_rail_name, push_unused_gate, Float, GateKey, GateWords, Words,
+    push_unused_gate, supply_rail_name, Float, GateKey, GateWords, Words,
 };
 use super::Context;
 use crate::diag::{Diag, Text};

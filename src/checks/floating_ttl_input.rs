@@ -21,7 +21,8 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 };
 
 use super::common::{
-    agree, floating_inputs, pin_list, supply_rail_name, push_unused_gate, Float, GateKey, GateWords, Words,
+    agree, floating_inputs, pin_list, push_unused_gate, supply_rail_name, Float, GateKey,
+    GateWords, Words,
 };
 use super::Context;
 use crate::diag::{Diag, Text};

@@ -213,7 +213,10 @@ fn sort_in_file_order(out: &mut DiagList) {
         }
         if j - i > 1 {
             order[i..j].sort_by(|&a, &b| {
-                let (a, b) = (out.get(a).expect("in the list"), out.get(b).expect("in the list"));
+                let (a, b) = (
+                    out.get(a).expect("in the list"),
+                    out.get(b).expect("in the list"),
+                );
                 a.code()
                     .cmp(b.code())
                     .then_with(|| crate::diag::cmp_parts(a.message_parts(), b.message_parts()))

@@ -73,7 +73,8 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
             });
         }
         if facts.finding.is_none() {
-            let is_check = |d: &DiagRef<'_>| crate::checks::info(d.code()).is_some() && d.has_pins();
+            let is_check =
+                |d: &DiagRef<'_>| crate::checks::info(d.code()).is_some() && d.has_pins();
             facts.finding = board
                 .findings()
                 .diags

@@ -132,10 +132,10 @@ fn label_groups(diag: DiagRef<'_>, source: &SourceFile) -> Vec<((usize, usize), 
             _ => groups.push(((a, b), vec![i])),
         }
     }
-    if let Some(p) = groups
-        .iter()
-        .position(|(_, g)| g.iter().any(|&i| diag.labels().nth(i).is_some_and(|l| l.primary)))
-    {
+    if let Some(p) = groups.iter().position(|(_, g)| {
+        g.iter()
+            .any(|&i| diag.labels().nth(i).is_some_and(|l| l.primary))
+    }) {
         let first = groups.remove(p);
         groups.insert(0, first);
     }

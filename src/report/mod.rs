@@ -391,7 +391,10 @@ fn key_ranks(
 
 /// The fingerprint of a file's fatal diagnostic.
 pub fn fatal_fingerprint(d: &Diag, source: Option<&SourceFile>) -> String {
-    format!("{:016x}", fnv1a64(fingerprint_key(d.view(), source).as_bytes()))
+    format!(
+        "{:016x}",
+        fnv1a64(fingerprint_key(d.view(), source).as_bytes())
+    )
 }
 
 // ---------------------------------------------------------------------------
@@ -692,7 +695,9 @@ mod tests {
             .chain(sample_outcomes()[0].diags.iter().take(40))
             .chain([
                 Diag::warning("floating-cmos-input", "m").view(),
-                Diag::warning("floating-cmos-input", "m").at(Span::new(0, 9), "x").view(),
+                Diag::warning("floating-cmos-input", "m")
+                    .at(Span::new(0, 9), "x")
+                    .view(),
             ])
         {
             let src = SourceFile::new("t", "(a  b\n c)");

@@ -191,7 +191,8 @@ impl<'o> PrettyOut<'o> {
     /// no part needs an escape.
     pub(crate) fn str_parts(&mut self, parts: [&str; 3]) {
         if parts.iter().all(|p| clean(p.as_bytes())) {
-            self.buf.reserve(parts.iter().map(|p| p.len()).sum::<usize>() + 2);
+            self.buf
+                .reserve(parts.iter().map(|p| p.len()).sum::<usize>() + 2);
             self.buf.push(b'"');
             for p in parts {
                 self.buf.extend_from_slice(p.as_bytes());
