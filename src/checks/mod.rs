@@ -212,15 +212,18 @@ fn sort_in_file_order(out: &mut DiagList) {
             j += 1;
         }
         if j - i > 1 {
-            order[i..j].sort_by(|&a, &b| {
-                let (a, b) = (
-                    out.get(a).expect("in the list"),
-                    out.get(b).expect("in the list"),
-                );
-                a.code()
-                    .cmp(b.code())
-                    .then_with(|| crate::diag::cmp_parts(a.message_parts(), b.message_parts()))
-            });
+            // each finding's code and message parts read once, then sorted (stably)
+            let mut run: Vec<(&str, [&str; 3], usize)> = order[i..j]
+                .iter()
+                .map(|&k| {
+                    let d = out.get(k).expect("in the list");
+                    (d.code(), d.message_parts(), k)
+                })
+                .collect();
+            run.sort_by(|a, b| a.0.cmp(b.0).then_with(|| crate::diag::cmp_parts(a.1, b.1)));
+            for (slot, (.., k)) in order[i..j].iter_mut().zip(run) {
+                *slot = k;
+            }
         }
         i = j;
     }
