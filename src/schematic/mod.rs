@@ -108,6 +108,12 @@ fn cat(parts: &[&str]) -> String {
     s
 }
 
+/// Two indices kept as `u32` (a pin's placement and library pin; a node's use and pin), as
+/// indices.
+fn wide((a, b): (u32, u32)) -> (usize, usize) {
+    (a as usize, b as usize)
+}
+
 /// The paths a use of a sheet is known by in instance data, made once per use.
 struct UsePaths {
     /// `/uuid/uuid` of the sheet symbols from the root down (empty for the root).
@@ -218,7 +224,7 @@ fn pin_net_name(
 #[derive(Default)]
 struct Pool {
     cands: Vec<Candidate>,
-    pins: Vec<(usize, bool)>,
+    pins: Vec<(u32, bool)>,
 }
 
 /// The first KiCad 7 file version: automatic names carry pin names from it on.
@@ -252,7 +258,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
 
     // placements and pieces, per use
     let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
-    let mut pins_of: Vec<Vec<(usize, usize)>> = Vec::new(); // (placement, libpin) per placed pin
+    let mut pins_of: Vec<Vec<(u32, u32)>> = Vec::new(); // (placement, libpin) per placed pin
     let mut pieces: Vec<Vec<connect::Piece>> = Vec::new();
     let v6 = v6_index(&project.sheets[0]);
     for u in &project.uses {
@@ -260,7 +266,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let paths = UsePaths::of(&project.sheets[0], u);
         let mut pls = Vec::with_capacity(sh.symbols.len());
         let mut at: Vec<PinAt> = Vec::new();
-        let mut which: Vec<(usize, usize)> = Vec::new();
+        let mut which: Vec<(u32, u32)> = Vec::new();
         for placed in &sh.symbols {
             let Some(lib) = sh.lib.get(&placed.lib_key) else {
                 return Err(Diag::error(
@@ -303,7 +309,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                         libpin: k,
                         at: symbol::pin_point(placed, lp),
                     });
-                    which.push((pi, k));
+                    which.push((pi as u32, k as u32));
                 }
             }
             let listed = !reference.starts_with('#') && placed.on_board;
@@ -314,14 +320,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 reference_span,
                 unit,
                 value: inst
-                    .and_then(|i| i.value.clone())
+                    .and_then(|i| i.value.as_deref().cloned())
                     .filter(|_| !modern)
                     .map(|(v, s)| {
                         let s = own_span("Value", &v, s);
                         (v, s)
                     }),
                 footprint: inst
-                    .and_then(|i| i.footprint.clone())
+                    .and_then(|i| i.footprint.as_deref().cloned())
                     .filter(|_| !modern)
                     .map(|(v, s)| {
                         let s = own_span("Footprint", &v, s);
@@ -374,7 +380,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 }
             }
             for &k in &p.pins {
-                let (s, lpi) = pins_of[ui][k];
+                let (s, lpi) = wide(pins_of[ui][k]);
                 let pl = &placements[ui][s];
                 let lp = &pl.lib.pins[lpi];
                 if is_power_pin(pl, lp) {
@@ -389,7 +395,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             for &k in &piece.pins {
                 let name = &power_names[ui][k];
                 if !name.is_empty() {
-                    let (s, _) = pins_of[ui][k];
+                    let (s, _) = wide(pins_of[ui][k]);
                     let local = placements[ui][s].lib.power == Power::Local;
                     let key = if local {
                         Key::Local(ui, name.as_str())
@@ -586,7 +592,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
     let mut pools: HashMap<(usize, usize), Pool> = HashMap::default();
-    let mut nodes_of: HashMap<usize, Vec<(usize, usize, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
+    let mut nodes_of: HashMap<usize, Vec<(u32, u32, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
     let mut group_order: Vec<usize> = Vec::new();
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
@@ -632,7 +638,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 });
             }
             for &k in &p.pins {
-                let (s, lpi) = pins_of[ui][k];
+                let (s, lpi) = wide(pins_of[ui][k]);
                 let pl = &placements[ui][s];
                 let lp = &pl.lib.pins[lpi];
                 let pname = &power_names[ui][k];
@@ -651,14 +657,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 } else if pl.listed {
                     let alone = p.pins.len() == 1 && p.labels.is_empty() && p.sheet_pins.is_empty();
                     let nc = p.no_connect || lp.ptype == PinType::NoConnect || alone;
-                    pool.pins.push((k, nc));
+                    pool.pins.push((k as u32, nc));
                 }
                 if pl.listed {
                     let e = nodes_of.entry(g).or_insert_with(|| {
                         group_order.push(g);
                         Vec::new()
                     });
-                    e.push((ui, k, p.no_connect));
+                    e.push((ui as u32, k as u32, p.no_connect));
                 }
             }
         }
@@ -675,7 +681,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .pins
                 .iter()
                 .map(|&(k, nc)| {
-                    let (s, lpi) = pins_of[ui][k];
+                    let (s, lpi) = wide(pins_of[ui][k as usize]);
                     let pl = &placements[ui][s];
                     Candidate {
                         strength: Strength::Pin,
@@ -725,7 +731,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
         };
         for &(ui, k, nc) in &nodes_of[&g] {
-            let (s, lpi) = pins_of[ui][k];
+            let (ui, k) = wide((ui, k));
+            let (s, lpi) = wide(pins_of[ui][k]);
             let pl = &placements[ui][s];
             let lp = &pl.lib.pins[lpi];
             let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
@@ -1071,6 +1078,13 @@ mod tests {
         assert_eq!(natural_cmp("/cells_12/R9", "/cells_12/R10"), Ordering::Less);
         assert_eq!(natural_cmp("N10", "N010"), Ordering::Equal);
         assert_eq!(natural_cmp("N199", "N20"), Ordering::Greater);
+    }
+
+    /// A symbol's instance, held four times over for a sheet used four times, keeps the
+    /// value and footprint only KiCad 6 writes in a box.
+    #[test]
+    fn an_instance_is_small() {
+        assert!(std::mem::size_of::<sheet::Instance<'_>>() <= 80);
     }
 
     /// A KiCad 6 path listed twice in the root's instances is found at its first entry.
