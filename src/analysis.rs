@@ -15,7 +15,7 @@ use std::cell::OnceCell;
 use std::path::{Path, PathBuf};
 
 use crate::checks::{self, CheckOptions};
-use crate::circuit::budget::{net_budget, NetBudget};
+use crate::circuit::budget::Budgets;
 use crate::circuit::{self, Circuit, ModelOptions};
 use crate::classify::classifier::{classify, Classified, Rules};
 use crate::config::{self, Config, ConfigError, Setting, Waiver};
@@ -240,7 +240,7 @@ impl<'a> Analysis<'a> {
             &self.settings.rules,
             self.settings.run.model.clone(),
         );
-        let budgets = (0..cx.nets.len()).map(|n| net_budget(&cx, n)).collect();
+        let budgets = Budgets::build(&cx);
         Board {
             analysis: self,
             cx,
@@ -325,7 +325,7 @@ pub struct Board<'n, 'a> {
     pub cx: Circuit<'n, 'a>,
     /// Every net's budget, by net index: computed once, read by the checks, `net` and the
     /// audit's charts.
-    pub budgets: Vec<NetBudget>,
+    pub budgets: Budgets,
     findings: OnceCell<Findings>,
 }
 

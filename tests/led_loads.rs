@@ -30,11 +30,10 @@ fn point(net: &str, high: bool) -> OperatingPoint {
         let b = net_budget(cx, net_index(cx, net));
         let d = &b.drivers[0];
         if high {
-            d.drive_high.clone()
+            d.drive_high().cloned()
         } else {
-            d.drive_low.clone()
+            d.drive_low().cloned()
         }
-        .map(|p| *p)
         .unwrap_or_else(|| panic!("{net}: no operating point"))
     })
 }

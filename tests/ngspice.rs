@@ -346,7 +346,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
             p
         };
         for db in &b.drivers {
-            let d = &nm.drivers[db.driver];
+            let d = &nm.drivers[db.driver()];
             let lv = d.levels.as_ref().expect("classified driver");
             // the elements other than this driver, in one state
             let others = |deck: &mut String, p: &str, node: &str, low: bool| {
@@ -362,7 +362,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     .drivers
                     .iter()
                     .enumerate()
-                    .filter(|(i, _)| *i != db.driver)
+                    .filter(|(i, _)| *i != db.driver())
                 {
                     let ol = o.levels.as_ref().expect("classified driver");
                     let a = match o.role {
@@ -387,7 +387,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 }
             };
             // low state: an ideal source at the rated VOL
-            let low = db.low.as_ref().expect("a low state");
+            let low = db.low().expect("a low state");
             if !has_down {
                 let p = open(deck);
                 let node = format!("{p}n");
@@ -396,7 +396,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 others(deck, &p, &node, true);
                 probes.push(Probe {
                     case: c.name,
-                    what: format!("driver {} low-state sink current", db.driver),
+                    what: format!("driver {} low-state sink current", db.driver()),
                     vector: format!("i(v{p}d)"),
                     want: low.total,
                     tol: I_TOL,
@@ -416,7 +416,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 others(deck, &p, &node, true);
                 probes.push(Probe {
                     case: c.name,
-                    what: format!("driver {} VOL at {:e} A", db.driver, low.total),
+                    what: format!("driver {} VOL at {:e} A", db.driver(), low.total),
                     vector: format!("v({node})"),
                     want: level,
                     tol: V_TOL,
@@ -424,7 +424,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 });
             }
             // high state of a push-pull or three-state driver
-            if let Some(high) = db.high.as_ref().filter(|_| !has_up) {
+            if let Some(high) = db.high().filter(|_| !has_up) {
                 let p = open(deck);
                 let node = format!("{p}n");
                 let voh = lv.voh.first().expect("VOH rows").v;
@@ -432,13 +432,13 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 others(deck, &p, &node, false);
                 probes.push(Probe {
                     case: c.name,
-                    what: format!("driver {} high-state source current", db.driver),
+                    what: format!("driver {} high-state source current", db.driver()),
                     vector: format!("i(v{p}d)"),
                     want: high.total,
                     tol: I_TOL,
                     sign: -1.0,
                 });
-                for (i, it) in high.items.iter().enumerate() {
+                for (i, it) in db.items(cx, net, false).iter().enumerate() {
                     // each item as ngspice sees it: the current in that element
                     let v = if matches!(it.kind, ItemKind::PullDown { .. }) {
                         let k = nm
@@ -470,7 +470,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     others(deck, &p, &node, false);
                     probes.push(Probe {
                         case: c.name,
-                        what: format!("driver {} VOH at {:e} A", db.driver, high.total),
+                        what: format!("driver {} VOH at {:e} A", db.driver(), high.total),
                         vector: format!("v({node})"),
                         want: level,
                         tol: V_TOL,
@@ -481,8 +481,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
             // high state of an open collector: every open-collector output off, the pull-ups
             if d.role == PinRole::OpenCollector {
                 let pu = db
-                    .pull_up
-                    .as_ref()
+                    .pull_up()
                     .expect("the cases give every open collector a pull-up");
                 assert!(
                     pu.level > 0.0,
@@ -495,14 +494,14 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                 others(deck, &p, &node, false);
                 probes.push(Probe {
                     case: c.name,
-                    what: format!("driver {} open-collector high level", db.driver),
+                    what: format!("driver {} open-collector high level", db.driver()),
                     vector: format!("v({node})"),
                     want: pu.level,
                     tol: V_TOL,
                     sign: 1.0,
                 });
                 assert_eq!(
-                    db.high_level,
+                    db.high_level(),
                     Some(pu.level),
                     "{}: the pull-up sets the high level",
                     c.name

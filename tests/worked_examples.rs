@@ -132,7 +132,7 @@ fn open_collector_high_level_counts_its_own_leakage() {
     // = 5.0 - 8.2 kOhm x 350 uA = 2.13 V for the 7403 and five 74LS loads.
     with_circuit(&oc_board(&["8K2"]).text(), ModelOptions::default(), |cx| {
         let b = budget(cx, "/WIRED_N");
-        let pu = b.drivers[0].pull_up.as_ref().expect("a pull-up");
+        let pu = b.drivers[0].pull_up().expect("a pull-up");
         close(
             pu.current,
             350e-6,
@@ -141,7 +141,9 @@ fn open_collector_high_level_counts_its_own_leakage() {
         );
         close(pu.level, 5.0 - 8200.0 * 350e-6, 1e-9, "high level");
         close(
-            b.drivers[0].high_level.expect("the pull-up sets the high"),
+            b.drivers[0]
+                .high_level()
+                .expect("the pull-up sets the high"),
             2.13,
             1e-9,
             "high level",
@@ -209,7 +211,12 @@ fn ls_high_into_hc_input_at_4v5_and_5v() {
     for (rail, vih, short) in [("+4V5", 3.15, 0.45), ("+5V", 3.50, 0.80)] {
         with_circuit(&ls_into_hc(rail).text(), ModelOptions::default(), |cx| {
             let b = budget(cx, "/CLK");
-            close(b.drivers[0].high_level.expect("VOH"), 2.7, 1e-9, "74LS VOH");
+            close(
+                b.drivers[0].high_level().expect("VOH"),
+                2.7,
+                1e-9,
+                "74LS VOH",
+            );
             let m = b
                 .margins(cx, net_index(cx, "/CLK"))
                 .next()
@@ -264,8 +271,8 @@ fn fan_out(drv: &str, load: &str) -> (usize, &'static str) {
                 let b = budget(cx, "/FAN");
                 let d = &b.drivers[0];
                 (
-                    d.low.as_ref().expect("low").ratio(),
-                    d.high.as_ref().expect("high").ratio(),
+                    d.low().expect("low").ratio(),
+                    d.high().expect("high").ratio(),
                 )
             },
         );

@@ -18,7 +18,7 @@ use std::io;
 use std::path::{Path, PathBuf};
 
 use crate::analysis::{Analysis, Board, RunOptions, Settings};
-use crate::circuit::budget::{NetBudget, StateBudget};
+use crate::circuit::budget::{NetBudgetRef, StateBudget};
 use crate::circuit::{Circuit, RailSource};
 use crate::classify::classifier::{PartKind, Rules};
 use crate::classify::family::Drive;
@@ -144,12 +144,12 @@ pub struct Usage {
 }
 
 impl Usage {
-    fn of(sb: &StateBudget) -> Usage {
+    fn of(sb: &StateBudget, items: usize) -> Usage {
         Usage {
             total: sb.total,
             rating: sb.rating,
             ratio: sb.ratio(),
-            items: sb.items.len(),
+            items,
         }
     }
 }
@@ -501,7 +501,7 @@ pub fn from_board(board: &Board<'_, '_>, nets: &[String]) -> Result<Audit, Diag>
     }
     let interfaces = chart_nets
         .into_iter()
-        .map(|(n, why)| gather_interface(cx, &board.budgets[n], n, why))
+        .map(|(n, why)| gather_interface(cx, board.budgets.net(n), n, why))
         .collect();
 
     let run = &a.settings.run;
@@ -673,17 +673,17 @@ fn gather_parts(cx: &Circuit<'_, '_>) -> (Vec<FamilyCount>, Vec<(&'static str, u
 
 fn gather_interface(
     cx: &Circuit<'_, '_>,
-    b: &NetBudget,
+    b: NetBudgetRef<'_>,
     net: usize,
     why: Vec<String>,
 ) -> Interface {
     let nm = &cx.nets[net];
     let mut drivers = Vec::new();
-    for db in &b.drivers {
-        let d = &nm.drivers[db.driver];
+    for db in b.drivers.iter() {
+        let d = &nm.drivers[db.driver()];
         let s = cx.supplies[d.at.comp].as_ref();
         let mut loads: Vec<LoadGroup> = Vec::new();
-        for m in b.margins(cx, net).filter(|m| m.driver == db.driver) {
+        for m in b.margins(cx, net).filter(|m| m.driver == db.driver()) {
             let m = &m;
             let l = &nm.loads[m.load];
             let family = l.family.as_deref().unwrap_or("unknown").to_string();
@@ -725,17 +725,21 @@ fn gather_interface(
                 .or_else(|| d.levels.as_ref().map(|l| l.vcc)),
             supply_known: s.is_some_and(|s| s.known),
             low_level: db.low_level(),
-            high_level: db.high_level,
-            low: db.low.as_ref().map(Usage::of),
-            high: db.high.as_ref().map(Usage::of),
-            pull_up: db.pull_up.as_ref().map(|p| (p.ohms, p.rail_volts)),
+            high_level: db.high_level(),
+            low: db
+                .low()
+                .map(|sb| Usage::of(&sb, db.items(cx, net, true).len())),
+            high: db
+                .high()
+                .map(|sb| Usage::of(&sb, db.items(cx, net, false).len())),
+            pull_up: db.pull_up().map(|p| (p.ohms, p.rail_volts)),
             top_level: match d.role {
-                PinRole::OpenCollector => db.high_level,
+                PinRole::OpenCollector => db.high_level(),
                 _ => d
                     .levels
                     .as_ref()
                     .and_then(|l| l.voh.first().map(|p| p.v))
-                    .or(db.high_level),
+                    .or(db.high_level()),
             },
             rated_low: d
                 .levels

@@ -65,9 +65,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, b) in ctx.budgets.iter().enumerate() {
         let nm = &cx.nets[net];
-        for db in &b.drivers {
-            let d = &nm.drivers[db.driver];
-            for (state, sb) in [("low", db.low.as_ref()), ("high", db.high.as_ref())] {
+        for db in b.drivers.iter() {
+            let d = &nm.drivers[db.driver()];
+            for (state, sb) in [("low", db.low()), ("high", db.high())] {
                 let Some(sb) = sb else { continue };
                 // a pull-up below R_min is reported by `pull-up-out-of-range`, with the window
                 if state == "low"
@@ -86,26 +86,26 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 } else {
                     ("source", "IOH")
                 };
-                let n_inputs = sb.items.iter().filter(|i| i.is_input()).count();
-                let same = sb
-                    .items
+                // the items are listed only for an output over its rating
+                let items = db.items(cx, net, state == "low");
+                let n_inputs = items.iter().filter(|i| i.is_input()).count();
+                let same = items
                     .windows(2)
                     .all(|w| (w[0].amps - w[1].amps).abs() < 1e-12)
-                    && n_inputs == sb.items.len();
-                let through = sb.items.iter().filter(|i| i.is_through()).count();
+                    && n_inputs == items.len();
+                let through = items.iter().filter(|i| i.is_through()).count();
                 let through_note = if through > 0 {
                     format!(" ({through} of them through a series element)")
                 } else {
                     String::new()
                 };
                 // inputs that draw more than one unit load (a counter's clock): say how many
-                let heavy: Vec<&crate::circuit::budget::Item> = sb
-                    .items
+                let heavy: Vec<&crate::circuit::budget::Item> = items
                     .iter()
                     .filter(|i| i.unit_loads(cx).is_some())
                     .collect();
                 let heavy_note = match heavy.first().and_then(|i| i.unit_loads(cx)) {
-                    Some(u) if heavy.len() == sb.items.len() && same => {
+                    Some(u) if heavy.len() == items.len() && same => {
                         format!(", {} unit loads each", unit_text(u))
                     }
                     Some(u) if heavy.iter().all(|i| i.unit_loads(cx) == Some(u)) => {
@@ -121,15 +121,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     }
                     None => String::new(),
                 };
-                let detail = if same && !sb.items.is_empty() {
+                let detail = if same && !items.is_empty() {
                     format!(
                         "{} input{} x {}{heavy_note}{through_note}",
                         n_inputs,
                         if n_inputs == 1 { "" } else { "s" },
-                        format_amps(sb.items[0].amps)
+                        format_amps(items[0].amps)
                     )
                 } else {
-                    let other = sb.items.len() - n_inputs;
+                    let other = items.len() - n_inputs;
                     let inputs = format!(
                         "{} input{}{heavy_note}{through_note}",
                         n_inputs,
@@ -168,20 +168,20 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                 )
                 .at(cx.pin_span(d.at), format!("{} {} against {}", verb, format_amps(sb.total), format_amps(sb.rating)))
                 .on_net(cx.net_name(net))
-                .with_pins(std::iter::once(cx.pin_name(d.at)).chain(sb.items.iter().map(|i| cx.pin_name(i.at(cx)))));
+                .with_pins(std::iter::once(cx.pin_name(d.at)).chain(items.iter().map(|i| cx.pin_name(i.at(cx)))));
                 let keep = fits(
                     sb.rating,
-                    sb.total / sb.items.len().max(1) as f64,
+                    sb.total / items.len().max(1) as f64,
                     ctx.opts.derating,
                 );
                 diag = diag.with_help(format!(
                     "split the load: at about {} per item this output can take {} of the {} within the {} derating; drive the rest from a second output or a bus driver (a 74LS244 sinks 24 mA)",
-                    format_amps(sb.total / sb.items.len().max(1) as f64),
+                    format_amps(sb.total / items.len().max(1) as f64),
                     keep,
-                    sb.items.len(),
+                    items.len(),
                     pct(ctx.opts.derating)
                 ));
-                for it in sb.items.iter().map(|i| i.at(cx)).take(3) {
+                for it in items.iter().map(|i| i.at(cx)).take(3) {
                     diag = diag.also(cx.pin_span(it), "load");
                 }
                 out.push(diag);

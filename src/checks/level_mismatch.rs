@@ -30,10 +30,10 @@ use crate::values::{format_ohms, format_volts};
 /// a translator or a driver on the load's supply.
 fn high_fix(
     ctx: &Context<'_, '_, '_>,
-    b: &crate::circuit::budget::NetBudget,
+    b: crate::circuit::budget::NetBudgetRef<'_>,
     pulled_up: bool,
 ) -> String {
-    match b.window.as_ref().filter(|_| pulled_up).and_then(|w| w.r_max.map(|r| (w, r))) {
+    match b.window.filter(|_| pulled_up).and_then(|w| w.r_max.map(|r| (w, r))) {
         Some((w, rmax)) if rmax > w.r_min => format!(
             "a smaller pull-up: between {} and {} to {} reaches every load's VIH",
             format_ohms(w.r_min),
@@ -55,7 +55,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let db = b
                 .drivers
                 .iter()
-                .find(|x| x.driver == m.driver)
+                .find(|x| x.driver() == m.driver)
                 .expect("margin has a driver budget");
             if let Some(hm) = m.high_margin {
                 let covered = ctx.cx.ttl_output(d.at.comp) && !l.ttl;
@@ -67,8 +67,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                     None
                 };
                 if let Some(sev) = sev {
-                    let high = db.high_level.unwrap_or(0.0);
-                    let how = if db.high.is_none() {
+                    let high = db.high_level().unwrap_or(0.0);
+                    let how = if db.high().is_none() {
                         "pulls the net up to".to_string()
                     } else {
                         "guarantees".to_string()
@@ -104,7 +104,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
                         )
                         .on_net(cx.net_name(net))
                         .with_pin_list(super::common::pin_names(cx, [l.at, d.at]))
-                        .with_help(high_fix(ctx, b, db.high.is_none())),
+                        .with_help(high_fix(ctx, b, db.high().is_none())),
                     );
                 }
             }

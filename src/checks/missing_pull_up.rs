@@ -64,7 +64,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
         if loads.is_empty() && nm.connectors.is_empty() {
             continue;
         }
-        let window = ctx.budgets[net].window.as_ref();
+        let window = ctx.budgets.net(net).window;
         let fix = match window {
             Some(w) => match w.r_max {
                 Some(rmax) if rmax > w.r_min => format!(

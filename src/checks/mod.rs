@@ -139,7 +139,7 @@ mod unpowered_part;
 mod unreadable_value;
 mod weak_high_drive;
 
-use crate::circuit::budget::NetBudget;
+use crate::circuit::budget::Budgets;
 use crate::circuit::Circuit;
 use crate::diag::Diag;
 
@@ -171,7 +171,7 @@ impl Default for CheckOptions {
 pub struct Context<'c, 'n, 'a> {
     pub cx: &'c Circuit<'n, 'a>,
     /// Every net's budget, by net index, computed once by the caller (`circuit::budget`).
-    pub budgets: &'c [NetBudget],
+    pub budgets: &'c Budgets,
     pub opts: &'c CheckOptions,
     /// The rail nets, gathered once.
     pub rails: common::RailIndex,
@@ -181,7 +181,7 @@ type CheckFn = fn(&Context<'_, '_, '_>, &mut Vec<Diag>);
 
 /// Runs every enabled check on the circuit and its budgets (computed once by the caller,
 /// [`crate::analysis`]) and returns the findings in file order.
-pub fn run_all(cx: &Circuit<'_, '_>, budgets: &[NetBudget], opts: &CheckOptions) -> Vec<Diag> {
+pub fn run_all(cx: &Circuit<'_, '_>, budgets: &Budgets, opts: &CheckOptions) -> Vec<Diag> {
     let ctx = Context {
         cx,
         budgets,

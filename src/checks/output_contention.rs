@@ -342,10 +342,10 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
         }
         Finding::Paralleled(ps) => {
             let comp = ps[0].comp;
-            let b = &ctx.budgets[net];
+            let b = ctx.budgets.net(net);
             let nm = &cx.nets[net];
             let first = nm.drivers.iter().position(|d| d.at == ps[0]);
-            let db = first.and_then(|i| b.drivers.iter().find(|x| x.driver == i));
+            let db = first.and_then(|i| b.drivers.iter().find(|x| x.driver() == i));
             let (iol, ioh): (f64, f64) = ps
                 .iter()
                 .filter_map(|p| {
@@ -358,7 +358,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
                     (l + lv.iol_max.abs(), h + lv.ioh_max.abs())
                 });
             let units: Vec<String> = paralleled_units(cx, ps).unwrap_or_default();
-            let budget = match db.and_then(|db| db.low.as_ref().zip(db.high.as_ref())) {
+            let budget = match db.and_then(|db| db.low().zip(db.high())) {
                 Some((lo, hi)) => format!(
                     "; combined budget: low {} of {} IOL ({}), high {} of {} IOH ({}) at {}",
                     format_amps(lo.total),

@@ -80,18 +80,18 @@ fn lower(s: Severity) -> Severity {
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
-        for db in &ctx.budgets[net].drivers {
-            let d = &nm.drivers[db.driver];
+        for db in ctx.budgets.net(net).drivers {
+            let d = &nm.drivers[db.driver()];
             if d.symbol_only || d.levels.is_none() || gate(cx, d.at) == Gate::Never {
                 continue;
             }
-            for op in [&db.drive_high, &db.drive_low].into_iter().flatten() {
+            for op in [db.drive_high(), db.drive_low()].into_iter().flatten() {
                 dark(ctx, net, d.at, op, out);
                 let cmos = cx
                     .family(d.at.comp)
                     .is_some_and(|f| f.technology == Technology::Cmos);
                 if cmos {
-                    current(ctx, net, db.driver, op, out);
+                    current(ctx, net, db.driver(), op, out);
                 }
             }
         }
@@ -223,7 +223,9 @@ fn current(
     let over_abs_i = abs_i.is_some_and(|a| op.total > a);
     let over_abs_w = abs_w.is_some_and(|w| watts > w);
     // logic inputs on the net that the output no longer gives a level
-    let lost: Vec<(PinRef, f64)> = ctx.budgets[net]
+    let lost: Vec<(PinRef, f64)> = ctx
+        .budgets
+        .net(net)
         .margins(cx, net)
         .filter(|m| m.driver == di)
         .filter_map(|m| {

@@ -64,9 +64,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let db = &b
                 .drivers
                 .iter()
-                .find(|x| x.driver == m.driver)
+                .find(|x| x.driver() == m.driver)
                 .expect("margin has a driver budget");
-            let high = db.high_level.unwrap_or(0.0);
+            let high = db.high_level().unwrap_or(0.0);
             let load_comp = &cx.nl.components[l.at.comp];
             let load_vcc = cx.supplies[l.at.comp].as_ref().map_or(5.0, |s| s.vcc);
             let mut fixes = Vec::new();

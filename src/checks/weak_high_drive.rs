@@ -156,8 +156,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut Vec<Diag>) {
             let Some(lv) = &d.levels else { continue };
             let voh = lv.voh.first().map_or(2.4, |p| p.v);
             let ioh = lv.ioh_max.abs();
-            let db = ctx.budgets[net].drivers.iter().find(|b| b.driver == di);
-            let logic = db.and_then(|b| b.high.as_ref()).map_or(0.0, |h| h.total);
+            let db = ctx
+                .budgets
+                .net(net)
+                .drivers
+                .iter()
+                .find(|b| b.driver() == di);
+            let logic = db.and_then(|b| b.high()).map_or(0.0, |h| h.total);
             let currents: Vec<f64> = paths
                 .iter()
                 .map(|p| led_current(voh, p.vf, p.ohms))
@@ -258,11 +263,13 @@ fn diag(
     let vcc = cx.supplies[d.at.comp].as_ref().map_or(5.0, |s| s.vcc);
     let vol = lv.vol.last().map_or(0.4, |p| p.v);
     let iol = lv.iol_max.abs();
-    let low_inputs = ctx.budgets[net]
+    let low_inputs = ctx
+        .budgets
+        .net(net)
         .drivers
         .iter()
-        .find(|b| b.driver == di)
-        .and_then(|b| b.low.as_ref())
+        .find(|b| b.driver() == di)
+        .and_then(|b| b.low())
         .map_or(0.0, |l| l.total);
     let vf = paths[0].vf;
     let available = (ctx.opts.derating * iol - low_inputs) / paths.len() as f64;

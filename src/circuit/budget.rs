@@ -11,7 +11,8 @@ use crate::values::{format_amps, format_ohms};
 
 /// One contribution to a state's current. What it is stays structured; its pin
 /// ([`Item::at`]), unit loads ([`Item::unit_loads`]) and words ([`Item::describe`]) are read
-/// from the model only when asked: a budget holds one item per input of every net, twice.
+/// from the model only when asked. A budget keeps no items: [`DriverBudget::items`] lists
+/// them when a check, the `net` report or the audit asks.
 #[derive(Debug, Clone)]
 pub struct Item {
     pub kind: ItemKind,
@@ -188,11 +189,11 @@ fn several(units: f64) -> Option<f64> {
     ((units - 1.0).abs() > 1e-9).then_some(units)
 }
 
-/// One state (low or high) of one driver.
-#[derive(Debug, Clone)]
+/// One state (low or high) of one driver: its total against its rating and the level it
+/// guarantees there. Returned by value ([`DriverBudget::low`], [`DriverBudget::high`]); its
+/// items are listed when asked ([`DriverBudget::items`]).
+#[derive(Debug, Clone, Copy)]
 pub struct StateBudget {
-    /// Allocated to its length.
-    pub items: Box<[Item]>,
     /// Total current magnitude, amperes.
     pub total: f64,
     /// The driver's rated current magnitude in this state.
@@ -225,31 +226,131 @@ pub struct PullUpHigh {
     pub level: f64,
 }
 
+/// One driver's budget. A board keeps one for every driver of every net, so it holds its
+/// numbers flat (which of them are present in `flags`) and its rarer parts (a pull-up's high
+/// level, the operating points with LEDs and resistors) in one box, allocated only for the
+/// outputs that have one. Its items are not kept: [`DriverBudget::items`] lists them, from
+/// the model, when asked (a board holds two for every input).
 #[derive(Debug, Clone)]
 pub struct DriverBudget {
+    low_total: f64,
+    low_rating: f64,
+    low_level: f64,
+    high_total: f64,
+    high_rating: f64,
+    high_state_level: f64,
+    high_level: f64,
     /// Index into the net's drivers.
-    pub driver: usize,
-    pub low: Option<StateBudget>,
-    /// `None` for an open-collector output (it does not drive high).
-    pub high: Option<StateBudget>,
-    /// Boxed: only a net with a pull-up has one.
-    pub pull_up: Option<Box<PullUpHigh>>,
-    /// The level the net reaches in the high state: the driver's VOH, raised by a pull-up;
-    /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
-    pub high_level: Option<f64>,
-    /// The output's operating point with the LEDs and resistors it lights or holds in its
-    /// high state (LEDs to ground, pull-downs) and in its low state (LEDs from a rail,
-    /// pull-ups); `None` when there are none in that state. Boxed: most outputs have none,
-    /// and a budget is kept for every net.
-    pub drive_high: Option<Box<OperatingPoint>>,
-    pub drive_low: Option<Box<OperatingPoint>>,
+    driver: u32,
+    flags: u8,
+    rare: Option<Box<RareBudget>>,
 }
 
+/// The parts of a driver's budget that most outputs lack.
+#[derive(Debug, Clone, Default)]
+struct RareBudget {
+    pull_up: Option<PullUpHigh>,
+    drive_high: Option<OperatingPoint>,
+    drive_low: Option<OperatingPoint>,
+}
+
+/// [`DriverBudget::flags`]: which of its numbers are present.
+const HAS_LOW: u8 = 1;
+const HAS_HIGH: u8 = 2;
+const HAS_LOW_LEVEL: u8 = 4;
+const HAS_HIGH_STATE_LEVEL: u8 = 8;
+const HAS_HIGH_LEVEL: u8 = 16;
+
 impl DriverBudget {
+    /// A driver with nothing to budget (no family figures, or an open-emitter output).
+    fn none(driver: usize) -> Self {
+        DriverBudget {
+            low_total: 0.0,
+            low_rating: 0.0,
+            low_level: 0.0,
+            high_total: 0.0,
+            high_rating: 0.0,
+            high_state_level: 0.0,
+            high_level: 0.0,
+            driver: index(driver),
+            flags: 0,
+            rare: None,
+        }
+    }
+
+    /// Index into the net's drivers.
+    pub fn driver(&self) -> usize {
+        self.driver as usize
+    }
+
+    /// The low state (this driver low, every other driver high or off).
+    pub fn low(&self) -> Option<StateBudget> {
+        (self.flags & HAS_LOW != 0).then(|| StateBudget {
+            total: self.low_total,
+            rating: self.low_rating,
+            level: (self.flags & HAS_LOW_LEVEL != 0).then_some(self.low_level),
+        })
+    }
+
+    /// The high state; `None` for an output that does not drive high (an open collector).
+    pub fn high(&self) -> Option<StateBudget> {
+        (self.flags & HAS_HIGH != 0).then(|| StateBudget {
+            total: self.high_total,
+            rating: self.high_rating,
+            level: (self.flags & HAS_HIGH_STATE_LEVEL != 0).then_some(self.high_state_level),
+        })
+    }
+
     /// The level the net reaches in the low state (the low state's guaranteed level); `None`
     /// when nothing guarantees it.
     pub fn low_level(&self) -> Option<f64> {
-        self.low.as_ref().and_then(|l| l.level)
+        self.low().and_then(|l| l.level)
+    }
+
+    /// The level the net reaches in the high state: the driver's VOH, raised by a pull-up;
+    /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
+    pub fn high_level(&self) -> Option<f64> {
+        (self.flags & HAS_HIGH_LEVEL != 0).then_some(self.high_level)
+    }
+
+    /// The pull-up's effect on the high level, when the net has a pull-up.
+    pub fn pull_up(&self) -> Option<&PullUpHigh> {
+        self.rare.as_ref()?.pull_up.as_ref()
+    }
+
+    /// The output's operating point with the LEDs and resistors it lights or holds in its
+    /// high state (LEDs to ground, pull-downs); `None` when there are none.
+    pub fn drive_high(&self) -> Option<&OperatingPoint> {
+        self.rare.as_ref()?.drive_high.as_ref()
+    }
+
+    /// The output's operating point with the LEDs and resistors it sinks or holds in its low
+    /// state (LEDs from a rail, pull-ups); `None` when there are none.
+    pub fn drive_low(&self) -> Option<&OperatingPoint> {
+        self.rare.as_ref()?.drive_low.as_ref()
+    }
+
+    /// The items of the low (`low`) or high state of this driver of net `net`, in the order
+    /// they add up to the state's total; empty when the driver has no such state. Listed
+    /// from the model each time: the budget keeps only the totals.
+    pub fn items(&self, cx: &Circuit<'_, '_>, net: usize, low: bool) -> Vec<Item> {
+        let mut items = Vec::new();
+        let state = if low { HAS_LOW } else { HAS_HIGH };
+        if self.flags & state == 0 {
+            return items;
+        }
+        let nm = &cx.nets[net];
+        let di = self.driver();
+        let d = &nm.drivers[di];
+        let Some(lv) = d.levels.as_deref() else {
+            return items;
+        };
+        if low {
+            low_items(cx, net, di, lv, &mut items);
+        } else {
+            high_items(cx, net, di, lv, true, &mut items);
+        }
+        items
     }
 }
 
@@ -309,6 +410,17 @@ pub struct OperatingPoint {
     pub loads: Vec<ResistiveLoad>,
 }
 
+/// What a board's budgets reuse from net to net: a buffer for a state's items while its total
+/// is added up, and the operating points' levels solved so far, by the numbers each follows
+/// from (the output's state, supply, resistance and logic current, and each resistive load's
+/// forward voltage, resistance and rail, as bits).
+#[derive(Default)]
+struct Scratch {
+    items: Vec<Item>,
+    key: Vec<u64>,
+    levels: rustc_hash::FxHashMap<Box<[u64]>, f64>,
+}
+
 /// The voltage at which `f` (decreasing in v) crosses zero in [lo, hi], by bisection.
 fn crossing(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> f64 {
     let (mut a, mut b) = (lo, hi);
@@ -320,6 +432,11 @@ fn crossing(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> f64 {
     }
     for _ in 0..60 {
         let m = 0.5 * (a + b);
+        // a and b are neighbouring numbers: every further step would leave them as they are
+        // (f(a) > 0 and f(b) <= 0 hold throughout), so the answer is already fixed
+        if m == a || m == b {
+            break;
+        }
         if f(m) > 0.0 {
             a = m;
         } else {
@@ -372,6 +489,7 @@ fn knees(
 
 /// Solves the output's operating point in one state. `knees` conduct towards their rail;
 /// `logic` is the logic inputs' current (IIH or IIL), drawn at any level.
+#[allow(clippy::too_many_arguments)]
 fn operating_point(
     high: bool,
     vcc: f64,
@@ -380,6 +498,7 @@ fn operating_point(
     logic: f64,
     reach: f64,
     knees: Vec<Knee>,
+    solved: &mut Scratch,
 ) -> Option<OperatingPoint> {
     if knees.is_empty() || row.1 <= 0.0 {
         return None;
@@ -401,16 +520,36 @@ fn operating_point(
             ((k.rail_volts - k.vf - v) / r).max(0.0)
         }
     };
-    let level = if high {
-        crossing(0.0, vcc, |v| {
-            (vcc - v) / r_out - logic - knees.iter().map(|k| conduct(k, v)).sum::<f64>()
-        })
-    } else {
-        // the low state rises from 0 V: the sunk current grows, the loads' current falls
-        let top = knees.iter().map(|k| k.rail_volts).fold(vcc, f64::max);
-        crossing(0.0, top, |v| {
-            logic + knees.iter().map(|k| conduct(k, v)).sum::<f64>() - v / r_out
-        })
+    // outputs alike with loads alike (a board of many alike cells) meet at the same level:
+    // it is solved once for each set of numbers it follows from
+    let key = &mut solved.key;
+    key.clear();
+    key.extend([
+        u64::from(high),
+        vcc.to_bits(),
+        r_out.to_bits(),
+        logic.to_bits(),
+    ]);
+    for k in &knees {
+        key.extend([k.vf.to_bits(), k.ohms.to_bits(), k.rail_volts.to_bits()]);
+    }
+    let level = match solved.levels.get(key.as_slice()) {
+        Some(&level) => level,
+        None => {
+            let level = if high {
+                crossing(0.0, vcc, |v| {
+                    (vcc - v) / r_out - logic - knees.iter().map(|k| conduct(k, v)).sum::<f64>()
+                })
+            } else {
+                // the low state rises from 0 V: the sunk current grows, the loads' current falls
+                let top = knees.iter().map(|k| k.rail_volts).fold(vcc, f64::max);
+                crossing(0.0, top, |v| {
+                    logic + knees.iter().map(|k| conduct(k, v)).sum::<f64>() - v / r_out
+                })
+            };
+            solved.levels.insert(key.clone().into_boxed_slice(), level);
+            level
+        }
     };
     let loads: Vec<ResistiveLoad> = knees
         .iter()
@@ -455,6 +594,7 @@ fn drive_points(
     iih: f64,
     iil: f64,
     stops_short: bool,
+    solved: &mut Scratch,
 ) -> (Option<OperatingPoint>, Option<OperatingPoint>) {
     let drives_high = matches!(
         d.role,
@@ -472,8 +612,18 @@ fn drive_points(
         // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
         // (common practice; its guaranteed VOH is a minimum, not a ceiling)
         let reach = if stops_short { lv.vcc - 1.4 } else { lv.vcc };
-        strongest(&lv.voh)
-            .and_then(|row| operating_point(true, lv.vcc, row, lv.ioh_max.abs(), iih, reach, knees))
+        strongest(&lv.voh).and_then(|row| {
+            operating_point(
+                true,
+                lv.vcc,
+                row,
+                lv.ioh_max.abs(),
+                iih,
+                reach,
+                knees,
+                solved,
+            )
+        })
     } else {
         None
     };
@@ -484,7 +634,16 @@ fn drive_points(
         // the low can go down to ground: LEDs that need more than their rail never light
         let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {
-            operating_point(false, lv.vcc, row, lv.iol_max.abs(), iil, reach, knees)
+            operating_point(
+                false,
+                lv.vcc,
+                row,
+                lv.iol_max.abs(),
+                iil,
+                reach,
+                knees,
+                solved,
+            )
         })
     } else {
         None
@@ -531,10 +690,8 @@ pub struct PullUpWindow {
     pub fitted: Option<f64>,
 }
 
-/// A net's budget. A budget is kept for every net: its list is allocated to its length (two
-/// words, none while empty). The loads' margins are not kept: each is two subtractions from
-/// the driver's levels and the load's thresholds, and a net holds one per driver and load,
-/// so [`NetBudget::margins`] works them out when asked.
+/// One net's budget, owned: what [`net_budget`] works out for a single net. A whole board's
+/// are kept in one [`Budgets`] and read as [`NetBudgetRef`]s (`b.as_ref()` reads this one so).
 #[derive(Debug, Clone, Default)]
 pub struct NetBudget {
     pub drivers: Box<[DriverBudget]>,
@@ -543,21 +700,50 @@ pub struct NetBudget {
 }
 
 impl NetBudget {
+    /// The budget as the board's store gives it.
+    pub fn as_ref(&self) -> NetBudgetRef<'_> {
+        NetBudgetRef {
+            drivers: &self.drivers,
+            window: self.window.as_deref(),
+        }
+    }
+
+    /// Each load's margins against each driver of net `net` ([`NetBudgetRef::margins`]).
+    pub fn margins<'b, 'n, 'a>(
+        &'b self,
+        cx: &'b Circuit<'n, 'a>,
+        net: usize,
+    ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
+        self.as_ref().margins(cx, net)
+    }
+}
+
+/// One net's budget as the board keeps it: its drivers' budgets and, for an open-collector
+/// net, the pull-up window. The loads' margins are not kept: each is two subtractions from
+/// the driver's levels and the load's thresholds, and a net holds one per driver and load,
+/// so [`NetBudgetRef::margins`] works them out when asked.
+#[derive(Debug, Clone, Copy)]
+pub struct NetBudgetRef<'b> {
+    pub drivers: &'b [DriverBudget],
+    pub window: Option<&'b PullUpWindow>,
+}
+
+impl<'b> NetBudgetRef<'b> {
     /// Each load's margins against each driver of net `net` (whose budget this is): by
     /// driver, then by load; a load that is the driver's own pin, or of no known family, has
     /// none.
     ///
     /// A CMOS input's thresholds scale with its supply: with a rail tolerance, VIH is taken
     /// at the top of it and VIL at the bottom (TTL thresholds do not move).
-    pub fn margins<'b, 'n, 'a>(
-        &'b self,
+    pub fn margins<'n, 'a>(
+        self,
         cx: &'b Circuit<'n, 'a>,
         net: usize,
     ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
         let nm = &cx.nets[net];
         let t = cx.opts.rail_tolerance.abs();
         self.drivers.iter().flat_map(move |db| {
-            let d = &nm.drivers[db.driver];
+            let d = &nm.drivers[db.driver()];
             nm.loads.iter().enumerate().filter_map(move |(li, l)| {
                 if l.at == d.at {
                     return None;
@@ -570,16 +756,63 @@ impl NetBudget {
                 };
                 let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
                 Some(LoadMargin {
-                    driver: db.driver,
+                    driver: db.driver(),
                     load: li,
                     vih,
                     vil,
-                    high_margin: db.high_level.map(|h| h - vih),
+                    high_margin: db.high_level().map(|h| h - vih),
                     low_margin: db.low_level().map(|v| vil - v),
                     thresholds_at: scaled.map(|(_, _, hi, lo)| Box::new((hi, lo))),
                 })
             })
         })
+    }
+}
+
+/// Every net's budget, worked out once for the board ([`Budgets::build`], called by the
+/// analysis only) and read by net ([`Budgets::net`], [`Budgets::iter`]). Each net's drivers'
+/// budgets are one allocation at its length (none for a net with no driver): small blocks
+/// that reuse the room the reader freed, where one list for the board would need a block
+/// of its own.
+#[derive(Debug, Clone, Default)]
+pub struct Budgets {
+    nets: Vec<NetBudget>,
+}
+
+impl Budgets {
+    /// Every net's budget, with one buffer and one table of solved levels for the board.
+    pub fn build(cx: &Circuit<'_, '_>) -> Budgets {
+        let mut scratch = Scratch::default();
+        let nets = (0..cx.nets.len())
+            .map(|net| {
+                let mut drivers = Vec::with_capacity(cx.nets[net].drivers.len());
+                let window = budget_into(cx, net, &mut scratch, &mut drivers);
+                NetBudget {
+                    drivers: drivers.into_boxed_slice(),
+                    window: window.map(Box::new),
+                }
+            })
+            .collect();
+        Budgets { nets }
+    }
+
+    /// How many nets the store holds.
+    pub fn len(&self) -> usize {
+        self.nets.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.nets.is_empty()
+    }
+
+    /// Net `net`'s budget.
+    pub fn net(&self, net: usize) -> NetBudgetRef<'_> {
+        self.nets[net].as_ref()
+    }
+
+    /// Every net's budget, in net order.
+    pub fn iter(&self) -> impl Iterator<Item = NetBudgetRef<'_>> + '_ {
+        (0..self.len()).map(|n| self.net(n))
     }
 }
 
@@ -641,203 +874,231 @@ fn parallel(rs: impl Iterator<Item = f64>) -> Option<f64> {
     (g > 0.0).then(|| 1.0 / g)
 }
 
-/// Computes the budget of one net.
-pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
+/// The low-state items of driver `di` of net `net` (whose figures are `lv`), pushed onto
+/// `items` in the order they add up: the inputs on the net, the pull-ups, the inputs on the
+/// nets it feeds, the LEDs it sinks, the other outputs' leakage. Returns how many of them
+/// are the inputs on the net itself (the first ones).
+fn low_items(
+    cx: &Circuit<'_, '_>,
+    net: usize,
+    di: usize,
+    lv: &crate::classify::family::Levels,
+    items: &mut Vec<Item>,
+) -> usize {
     let nm = &cx.nets[net];
-    let mut drivers: Vec<DriverBudget> = Vec::with_capacity(nm.drivers.len());
+    let d = &nm.drivers[di];
+    let vol_rated = lv.vol.last().map_or(0.4, |p| p.v);
+    let start = items.len();
+    for (li, l) in nm.loads.iter().enumerate() {
+        if counted(cx, d, l) {
+            items.extend(input_item(net, li, l, true, None));
+        }
+    }
+    let own = items.len() - start;
+    for (pi, p) in nm.pulls().iter().enumerate().filter(|(_, p)| p.up) {
+        let a = ((p.rail_volts - vol_rated) / p.ohms).max(0.0);
+        items.push(Item {
+            kind: ItemKind::PullUp {
+                net: index(net),
+                pull: index(pi),
+                vol: vol_rated,
+            },
+            amps: a,
+        });
+    }
+    // inputs on nets this one feeds through series resistors, beads or inductors
+    for &(m, part) in nm.feeds() {
+        let m = m as usize;
+        for (li, l) in cx.nets[m].loads.iter().enumerate() {
+            items.extend(input_item(m, li, l, true, Some(part as usize)));
+        }
+    }
+    // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
+    // state, (V_rail - VF - VOL) / R each
+    for (si, p) in nm
+        .sink_paths()
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.ohms > 0.0)
+    {
+        let a = ((p.rail_volts - p.vf - vol_rated) / p.ohms).max(0.0);
+        items.push(Item {
+            kind: ItemKind::Sink {
+                net: index(net),
+                path: index(si),
+                vol: vol_rated,
+            },
+            amps: a,
+        });
+    }
+    for (oi, o) in nm.drivers.iter().enumerate() {
+        if oi == di {
+            continue;
+        }
+        if let Some(ol) = &o.levels {
+            match o.role {
+                PinRole::ThreeState | PinRole::Bidirectional => items.push(Item {
+                    kind: ItemKind::Leakage {
+                        pin: o.at,
+                        ioz: true,
+                    },
+                    amps: ol.ioz.abs(),
+                }),
+                PinRole::OpenCollector => items.push(Item {
+                    kind: ItemKind::Leakage {
+                        pin: o.at,
+                        ioz: false,
+                    },
+                    amps: ol.oc_leakage.abs(),
+                }),
+                _ => {}
+            }
+        }
+    }
+    own
+}
+
+/// The high-state items of driver `di` of net `net` (whose figures are `lv`), pushed onto
+/// `items` in the order they add up: the inputs on the net and on the nets it feeds, the
+/// other outputs' leakage, then (with `pulldowns`) the pull-downs. Returns how many come
+/// before the pull-downs (what a pull-up supplies).
+fn high_items(
+    cx: &Circuit<'_, '_>,
+    net: usize,
+    di: usize,
+    lv: &crate::classify::family::Levels,
+    pulldowns: bool,
+    items: &mut Vec<Item>,
+) -> usize {
+    let nm = &cx.nets[net];
+    let d = &nm.drivers[di];
+    let start = items.len();
+    for (li, l) in nm.loads.iter().enumerate() {
+        if counted(cx, d, l) {
+            items.extend(input_item(net, li, l, false, None));
+        }
+    }
+    for &(m, part) in nm.feeds() {
+        let m = m as usize;
+        for (li, l) in cx.nets[m].loads.iter().enumerate() {
+            items.extend(input_item(m, li, l, false, Some(part as usize)));
+        }
+    }
+    for (oi, o) in nm.drivers.iter().enumerate() {
+        if oi == di {
+            continue;
+        }
+        if let Some(ol) = &o.levels {
+            let a = match o.role {
+                PinRole::ThreeState | PinRole::Bidirectional => ol.ioz.abs(),
+                PinRole::OpenCollector => ol.oc_leakage.abs(),
+                _ => continue,
+            };
+            items.push(Item {
+                kind: ItemKind::Leakage {
+                    pin: o.at,
+                    ioz: false,
+                },
+                amps: a,
+            });
+        }
+    }
+    let before = items.len() - start;
+    if pulldowns {
+        let voh_light = lv.voh.first().map_or(2.4, |p| p.v);
+        for (pi, p) in nm.pulls().iter().enumerate().filter(|(_, p)| !p.up) {
+            let a = (voh_light - p.rail_volts).max(0.0) / p.ohms;
+            items.push(Item {
+                kind: ItemKind::PullDown {
+                    net: index(net),
+                    pull: index(pi),
+                    voh: voh_light,
+                },
+                amps: a,
+            });
+        }
+    }
+    before
+}
+
+/// Computes the budget of one net (the board's are in [`Budgets`]).
+pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
+    let mut drivers = Vec::new();
+    let window = budget_into(cx, net, &mut Scratch::default(), &mut drivers);
+    NetBudget {
+        drivers: drivers.into_boxed_slice(),
+        window: window.map(Box::new),
+    }
+}
+
+/// Works out net `net`'s budget: its drivers' budgets are pushed onto `drivers`, its
+/// open-collector window returned. `scratch` holds a state's items while its total is added
+/// up (the items are not kept).
+fn budget_into(
+    cx: &Circuit<'_, '_>,
+    net: usize,
+    scratch: &mut Scratch,
+    drivers: &mut Vec<DriverBudget>,
+) -> Option<PullUpWindow> {
+    let nm = &cx.nets[net];
+    if nm.drivers.is_empty() {
+        return None;
+    }
     let mut window = None;
-    let pullups: Vec<usize> = (0..nm.pulls().len())
-        .filter(|&i| nm.pulls()[i].up)
-        .collect();
-    let pulldowns: Vec<usize> = (0..nm.pulls().len())
-        .filter(|&i| !nm.pulls()[i].up)
-        .collect();
-    // the most items a state can hold: every input here and on the nets fed, every pull
-    // resistor and LED path, every other driver
-    let capacity = nm.loads.len()
-        + nm.feeds()
-            .iter()
-            .map(|&(m, _)| cx.nets[m as usize].loads.len())
-            .sum::<usize>()
-        + nm.pulls().len()
-        + nm.sink_paths().len()
-        + nm.drivers.len().saturating_sub(1);
+    let pulls = nm.pulls();
+    let has_pulldowns = pulls.iter().any(|p| !p.up);
     for (di, d) in nm.drivers.iter().enumerate() {
         // an open-emitter output (a display driver's emitter follower) only sources: it has no
         // low state to budget, and its high is rated by its own data sheet, not by its
         // family's logic outputs (a 4511 segment sources 25 mA where a 4000B gate gives
         // under 1 mA), so neither state is judged against the family's figures
-        let levels = d.levels.as_ref().filter(|_| d.role != PinRole::OpenEmitter);
+        let levels = d
+            .levels
+            .as_deref()
+            .filter(|_| d.role != PinRole::OpenEmitter);
         let Some(lv) = levels else {
-            drivers.push(DriverBudget {
-                driver: di,
-                low: None,
-                high: None,
-                pull_up: None,
-                high_level: None,
-                drive_high: None,
-                drive_low: None,
-            });
+            drivers.push(DriverBudget::none(di));
             continue;
         };
-        let vol_rated = lv.vol.last().map_or(0.4, |p| p.v);
-        let voh_light = lv.voh.first().map_or(2.4, |p| p.v);
+        let mut flags = HAS_LOW;
         // --- low state: this driver low, every other driver high or off
-        let mut items = Vec::with_capacity(capacity);
-        for (li, l) in nm.loads.iter().enumerate() {
-            if counted(cx, d, l) {
-                items.extend(input_item(net, li, l, true, None));
-            }
-        }
+        scratch.items.clear();
+        let own = low_items(cx, net, di, lv, &mut scratch.items);
         // the own net's inputs' IIL, for the operating point below
-        let iil: f64 = items.iter().map(|i| i.amps).sum();
-        for &pi in &pullups {
-            let p = &nm.pulls()[pi];
-            let a = ((p.rail_volts - vol_rated) / p.ohms).max(0.0);
-            items.push(Item {
-                kind: ItemKind::PullUp {
-                    net: index(net),
-                    pull: index(pi),
-                    vol: vol_rated,
-                },
-                amps: a,
-            });
+        let iil: f64 = scratch.items[..own].iter().map(|i| i.amps).sum();
+        let low_total: f64 = scratch.items.iter().map(|i| i.amps).sum();
+        let low_level = lv.vol_at(low_total);
+        if low_level.is_some() {
+            flags |= HAS_LOW_LEVEL;
         }
-        // inputs on nets this one feeds through series resistors, beads or inductors
-        for &(m, part) in nm.feeds() {
-            let m = m as usize;
-            for (li, l) in cx.nets[m].loads.iter().enumerate() {
-                items.extend(input_item(m, li, l, true, Some(part as usize)));
-            }
-        }
-        // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
-        // state, (V_rail - VF - VOL) / R each
-        for (si, p) in nm
-            .sink_paths()
-            .iter()
-            .enumerate()
-            .filter(|(_, p)| p.ohms > 0.0)
-        {
-            let a = ((p.rail_volts - p.vf - vol_rated) / p.ohms).max(0.0);
-            items.push(Item {
-                kind: ItemKind::Sink {
-                    net: index(net),
-                    path: index(si),
-                    vol: vol_rated,
-                },
-                amps: a,
-            });
-        }
-        for (oi, o) in nm.drivers.iter().enumerate() {
-            if oi == di {
-                continue;
-            }
-            if let Some(ol) = &o.levels {
-                match o.role {
-                    PinRole::ThreeState | PinRole::Bidirectional => items.push(Item {
-                        kind: ItemKind::Leakage {
-                            pin: o.at,
-                            ioz: true,
-                        },
-                        amps: ol.ioz.abs(),
-                    }),
-                    PinRole::OpenCollector => items.push(Item {
-                        kind: ItemKind::Leakage {
-                            pin: o.at,
-                            ioz: false,
-                        },
-                        amps: ol.oc_leakage.abs(),
-                    }),
-                    _ => {}
-                }
-            }
-        }
-        let total: f64 = items.iter().map(|i| i.amps).sum();
-        let low = StateBudget {
-            items: items.into_boxed_slice(),
-            total,
-            rating: lv.iol_max.abs(),
-            level: lv.vol_at(total),
-        };
 
         // --- high state
-        let mut high = None;
-        let mut high_level = None;
         let drives_high = matches!(
             d.role,
             PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional | PinRole::OpenEmitter
         );
+        scratch.items.clear();
+        let before = high_items(cx, net, di, lv, drives_high, &mut scratch.items);
         let mut load_high: f64 = 0.0;
-        let mut items = Vec::with_capacity(capacity);
-        for (li, l) in nm.loads.iter().enumerate() {
-            if !counted(cx, d, l) {
-                continue;
-            }
-            if let Some(it) = input_item(net, li, l, false, None) {
-                load_high += it.amps;
-                items.push(it);
-            }
-        }
-        for &(m, part) in nm.feeds() {
-            let m = m as usize;
-            for (li, l) in cx.nets[m].loads.iter().enumerate() {
-                if let Some(it) = input_item(m, li, l, false, Some(part as usize)) {
-                    load_high += it.amps;
-                    items.push(it);
-                }
-            }
-        }
-        for (oi, o) in nm.drivers.iter().enumerate() {
-            if oi == di {
-                continue;
-            }
-            if let Some(ol) = &o.levels {
-                let a = match o.role {
-                    PinRole::ThreeState | PinRole::Bidirectional => ol.ioz.abs(),
-                    PinRole::OpenCollector => ol.oc_leakage.abs(),
-                    _ => continue,
-                };
-                load_high += a;
-                items.push(Item {
-                    kind: ItemKind::Leakage {
-                        pin: o.at,
-                        ioz: false,
-                    },
-                    amps: a,
-                });
-            }
+        for it in &scratch.items[..before] {
+            load_high += it.amps;
         }
         // an open collector's high state is the output turned off: its own off-state
         // leakage flows through the pull-up too (the data books' N1 x IOH term)
         if d.role == PinRole::OpenCollector {
             load_high += lv.oc_leakage.abs();
         }
+        let mut high_level = None;
+        let (mut high_total, mut high_state_level) = (0.0, None);
         if drives_high {
-            for &pi in &pulldowns {
-                let p = &nm.pulls()[pi];
-                let a = (voh_light - p.rail_volts).max(0.0) / p.ohms;
-                items.push(Item {
-                    kind: ItemKind::PullDown {
-                        net: index(net),
-                        pull: index(pi),
-                        voh: voh_light,
-                    },
-                    amps: a,
-                });
-            }
-            let total: f64 = items.iter().map(|i| i.amps).sum();
-            let level = lv.voh_at(-total);
-            high_level = level;
-            high = Some(StateBudget {
-                items: items.into_boxed_slice(),
-                total,
-                rating: lv.ioh_max.abs(),
-                level,
-            });
+            flags |= HAS_HIGH;
+            high_total = scratch.items.iter().map(|i| i.amps).sum();
+            high_state_level = lv.voh_at(-high_total);
+            high_level = high_state_level;
         }
         // a pull-up raises (or, for an open collector, makes) the high level
-        let pull_up = parallel(pullups.iter().map(|&i| nm.pulls()[i].ohms)).map(|r| {
-            let p = &nm.pulls()[pullups[0]];
+        let pull_up = parallel(pulls.iter().filter(|p| p.up).map(|p| p.ohms)).map(|r| {
+            let p = pulls.iter().find(|p| p.up).expect("a pull-up");
             // leakage cannot pull the net below ground: a level of 0 V means no high at all
             let level = (p.rail_volts - r * load_high).max(0.0);
             PullUpHigh {
@@ -859,19 +1120,35 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
             };
         // read only when the high state has resistive loads (pull-downs, LEDs to ground):
         // with none there is no operating point to solve
-        let stops_short = (!nm.led_paths().is_empty() || !pulldowns.is_empty())
+        let stops_short = (!nm.led_paths().is_empty() || has_pulldowns)
             && cx.family(d.at.comp).is_some_and(|f| {
                 f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
             });
-        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short);
+        let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short, scratch);
+        if high_state_level.is_some() {
+            flags |= HAS_HIGH_STATE_LEVEL;
+        }
+        if high_level.is_some() {
+            flags |= HAS_HIGH_LEVEL;
+        }
+        let rare = (pull_up.is_some() || drive_high.is_some() || drive_low.is_some()).then(|| {
+            Box::new(RareBudget {
+                pull_up,
+                drive_high,
+                drive_low,
+            })
+        });
         drivers.push(DriverBudget {
-            driver: di,
-            low: Some(low),
-            high,
-            pull_up: pull_up.map(Box::new),
-            high_level,
-            drive_high: drive_high.map(Box::new),
-            drive_low: drive_low.map(Box::new),
+            low_total,
+            low_rating: lv.iol_max.abs(),
+            low_level: low_level.unwrap_or(0.0),
+            high_total,
+            high_rating: if drives_high { lv.ioh_max.abs() } else { 0.0 },
+            high_state_level: high_state_level.unwrap_or(0.0),
+            high_level: high_level.unwrap_or(0.0),
+            driver: index(di),
+            flags,
+            rare,
         });
     }
     // open-collector window
@@ -927,7 +1204,7 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 .filter(|_| sum_high > 0.0)
                 .map(|vih| (v_low - vih) / sum_high);
             let fitted = parallel(nm.pulls().iter().filter(|p| p.up).map(|p| p.ohms));
-            window = Some(Box::new(PullUpWindow {
+            window = Some(PullUpWindow {
                 rail_net,
                 rail_volts: v,
                 v_high,
@@ -941,13 +1218,10 @@ pub fn net_budget(cx: &Circuit<'_, '_>, net: usize) -> NetBudget {
                 r_min,
                 r_max,
                 fitted,
-            }));
+            });
         }
     }
-    NetBudget {
-        drivers: drivers.into_boxed_slice(),
-        window,
-    }
+    window
 }
 
 #[cfg(test)]
@@ -991,12 +1265,13 @@ mod tests {
         let n = nl.net_by_name(net).expect("net on the test board");
         let b = net_budget(&cx, n);
         let db = &b.drivers[0];
-        let text = |sb: Option<&StateBudget>| -> Vec<String> {
-            sb.map_or(Vec::new(), |sb| {
-                sb.items.iter().map(|i| i.describe(&cx)).collect()
-            })
+        let text = |low: bool| -> Vec<String> {
+            db.items(&cx, n, low)
+                .iter()
+                .map(|i| i.describe(&cx))
+                .collect()
         };
-        (text(db.low.as_ref()), text(db.high.as_ref()))
+        (text(true), text(false))
     }
 
     /// The words are those the `net` report printed when each item carried its text, built
@@ -1042,17 +1317,76 @@ mod tests {
         let nl = crate::netlist::build(&tree).expect("test board builds");
         let cl = crate::classify::classifier::classify(&nl, &rules);
         let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
-        let b = net_budget(&cx, nl.net_by_name("/BUS").expect("net"));
-        let low = b.drivers[0].low.as_ref().expect("a low state");
-        let inputs: Vec<bool> = low.items.iter().map(Item::is_input).collect();
+        let n = nl.net_by_name("/BUS").expect("net");
+        let b = net_budget(&cx, n);
+        let low = b.drivers[0].items(&cx, n, true);
+        let inputs: Vec<bool> = low.iter().map(Item::is_input).collect();
         assert_eq!(inputs, [true, true, false, true, false, false]);
-        let through: Vec<bool> = low.items.iter().map(Item::is_through).collect();
+        let through: Vec<bool> = low.iter().map(Item::is_through).collect();
         assert_eq!(through, [false, false, false, true, false, false]);
         assert_eq!(
-            low.items[1].unit_loads(&cx),
+            low[1].unit_loads(&cx),
             Some(2.0),
             "the 74LS73 clock's low unit loads"
         );
+    }
+
+    /// The budget keeps each state's total, not its items: the items listed when asked add
+    /// up, in their order, to the total kept, on every net of the test board; a state the
+    /// driver does not have lists none.
+    #[test]
+    fn items_listed_when_asked_add_up_to_the_kept_totals() {
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        let mut states = 0;
+        let all = Budgets::build(&cx);
+        assert_eq!(all.len(), nl.nets.len());
+        for n in 0..nl.nets.len() {
+            let b = net_budget(&cx, n);
+            assert_eq!(b.drivers.len(), cx.nets[n].drivers.len());
+            // the board's store holds the same budget at the net's place
+            let stored = all.net(n);
+            assert_eq!(stored.drivers.len(), b.drivers.len(), "net {n}");
+            assert_eq!(stored.window.is_some(), b.window.is_some(), "net {n}");
+            for (x, y) in stored.drivers.iter().zip(b.drivers.iter()) {
+                assert_eq!(x.driver(), y.driver());
+                let bits = |s: Option<StateBudget>| s.map(|s| s.total.to_bits());
+                assert_eq!(bits(x.low()), bits(y.low()));
+                assert_eq!(bits(x.high()), bits(y.high()));
+            }
+            for db in b.drivers.iter() {
+                for (low, sb) in [(true, db.low()), (false, db.high())] {
+                    let items = db.items(&cx, n, low);
+                    let Some(sb) = sb else {
+                        assert!(items.is_empty(), "{items:?}");
+                        continue;
+                    };
+                    states += 1;
+                    let sum: f64 = items.iter().map(|i| i.amps).sum();
+                    assert_eq!(sum.to_bits(), sb.total.to_bits(), "net {n}");
+                }
+            }
+        }
+        // /BUS: two three-state outputs, both states; /OC: two open collectors, low only;
+        // and the other nets' outputs
+        assert!(states >= 6, "{states}");
+        // the /OC open collectors have no high state, the /BUS outputs have one
+        let oc_net = nl.net_by_name("/OC").expect("net");
+        assert!(
+            all.net(oc_net).window.is_some(),
+            "an open-collector net's window"
+        );
+        let oc = net_budget(&cx, oc_net);
+        assert!(oc
+            .drivers
+            .iter()
+            .all(|d| d.high().is_none() && d.low().is_some()));
+        let bus = net_budget(&cx, nl.net_by_name("/BUS").expect("net"));
+        assert!(bus.drivers.iter().all(|d| d.high().is_some()));
+        assert!(bus.drivers[0].pull_up().is_some() && oc.drivers[0].pull_up().is_none());
     }
 
     /// Margins are worked out when asked: each driver against each load but its own pin, by
@@ -1077,14 +1411,14 @@ mod tests {
                 (m.vih - 2.0).abs() < 1e-9 && (m.vil - 0.8).abs() < 1e-9,
                 "{m:?}"
             );
-            assert_eq!(m.high_margin, db.high_level.map(|h| h - m.vih));
+            assert_eq!(m.high_margin, db.high_level().map(|h| h - m.vih));
             assert_eq!(m.low_margin, db.low_level().map(|v| m.vil - v));
             assert!(m.thresholds_at.is_none());
         }
         // the low level is the low state's
         assert_eq!(
             b.drivers[0].low_level(),
-            b.drivers[0].low.as_ref().and_then(|l| l.level)
+            b.drivers[0].low().and_then(|l| l.level)
         );
     }
 

@@ -85,9 +85,22 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
     if t.is_empty() || starts("NET-(") || starts("UNCONNECTED-(") {
         return None;
     }
-    let n = t.to_ascii_uppercase();
-    // `n` is in capitals already: no second copy to look for VEE
-    if crate::classify::classifier::is_ground_name(&n) && !n.contains("VEE") {
+    // in capitals, on the stack for a name of usual length (every net's name is read)
+    let mut buf = [0u8; 64];
+    let owned;
+    let n: &str = match buf.get_mut(..t.len()) {
+        Some(b) => {
+            b.copy_from_slice(t.as_bytes());
+            b.make_ascii_uppercase();
+            std::str::from_utf8(b).expect("a change of ASCII case keeps UTF-8")
+        }
+        None => {
+            owned = t.to_ascii_uppercase();
+            &owned
+        }
+    };
+    // `n` is in capitals already: no second copy to look for VEE, nor to look for ground
+    if crate::classify::classifier::is_ground_name_upper(n) && !n.contains("VEE") {
         return Some(NameRail::Ground);
     }
     // a supply is named by a supply word or starts with its voltage (`+5V`, `3V3`): any other
@@ -135,6 +148,27 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// A name longer than the stack buffer it is read in is read the same, from a copy.
+    #[test]
+    fn long_names_read_as_short_ones() {
+        let tail = "A".repeat(70);
+        for (name, want) in [
+            (format!("VCC_{tail}"), Some(NameRail::Supply(None))),
+            (
+                format!("/vcc_{}", tail.to_lowercase()),
+                Some(NameRail::Supply(None)),
+            ),
+            (format!("GND_{tail}"), Some(NameRail::Ground)),
+            (format!("DATA_{tail}"), None),
+        ] {
+            assert!(name.len() > 64);
+            assert_eq!(rail_from_name(&name), want, "{name}");
+        }
+        // and the same words, short
+        assert_eq!(rail_from_name("VCC_A"), Some(NameRail::Supply(None)));
+        assert_eq!(rail_from_name("/gnd_a"), Some(NameRail::Ground));
+    }
 
     #[test]
     fn voltages_from_common_rail_names() {

@@ -226,7 +226,9 @@ impl PartClass {
 /// The whole board, classified.
 #[derive(Debug, Clone)]
 pub struct Classified {
-    pub parts: Vec<PartClass>,
+    /// Each component's classification, by component index (read as `cl.parts[i].kind`). Parts
+    /// alike share one: a board of many alike holds one pointer per part.
+    pub parts: Vec<Arc<PartClass>>,
     /// (classified, IC-like): how many IC-like parts have a family or a known non-logic entry.
     pub coverage: (usize, usize),
     /// Parts drawn as a function with no part number (`Method::FunctionSymbol`), left out of
@@ -562,7 +564,12 @@ pub fn is_enable_input_name(name: &str) -> bool {
 
 /// A pin or net name that means ground: GND, GNDD, AGND, DGND, 0V, VSS, VEE ...
 pub fn is_ground_name(name: &str) -> bool {
-    let n = name.trim_start_matches('/').to_ascii_uppercase();
+    is_ground_name_upper(&name.to_ascii_uppercase())
+}
+
+/// [`is_ground_name`] for a name already in capitals (no copy made).
+pub fn is_ground_name_upper(name: &str) -> bool {
+    let n = name.trim_start_matches('/');
     n.starts_with("GND")
         || n.ends_with("GND")
         || n == "0V"
@@ -602,7 +609,7 @@ fn parse_function_field(s: &str) -> (Series, String) {
 
 /// Classifies every component of a netlist.
 pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
-    let mut parts: Vec<PartClass> = Vec::with_capacity(nl.components.len());
+    let mut parts: Vec<Arc<PartClass>> = Vec::with_capacity(nl.components.len());
     let mut used_entries = vec![false; rules.parts.entries.len()];
     let (mut classified, mut ic_like, mut function_symbols) = (0, 0, 0);
     // many parts share a value: each distinct value meets the entries' globs and the value
@@ -855,7 +862,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             }
             _ => None,
         };
-        parts.push(PartClass {
+        parts.push(Arc::new(PartClass {
             symbol_reads_as,
             kind,
             method,
@@ -867,7 +874,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             ic_like: is_ic,
             pins,
             entry,
-        });
+        }));
     }
     let unused_project_entries = rules
         .parts

@@ -23,7 +23,7 @@ pub fn command(args: &NetArgs, read: &ReadOptions, color: ColorChoice) -> std::i
     };
     let board = a.circuit();
     let mut out = std::io::stdout().lock();
-    crate::report::net::write_net(&mut out, &board.cx, &board.budgets[net], net)?;
+    crate::report::net::write_net(&mut out, &board.cx, board.budgets.net(net), net)?;
     out.flush()?;
     Ok(0)
 }

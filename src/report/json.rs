@@ -16,7 +16,7 @@ use serde::Serialize;
 
 use super::pretty::{PrettyOut, Repeats};
 use super::{
-    fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, Places,
+    fingerprint_hash_iter, fingerprint_key, fnv1a64, primary_label, related_labels, Places,
     ReportOptions, Totals, TOOL_NAME, TOOL_VERSION,
 };
 use crate::diag::Diag;
@@ -405,7 +405,7 @@ fn write_run(
         // findings of one part come together: their lines are looked up near each other
         let mut places = Places::new(src);
         let mut kept = Repeats::new();
-        for (d, fp) in f.diags.iter().zip(fingerprint_hashes(f)) {
+        for (d, fp) in f.diags.iter().zip(fingerprint_hash_iter(f)) {
             w.item();
             write_finding(&mut w, d, &mut places, &mut kept, fp);
             w.flush_some()?;

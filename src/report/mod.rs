@@ -303,19 +303,22 @@ pub fn fingerprints(f: &FileOutcome) -> Vec<String> {
         .collect()
 }
 
-/// [`fingerprints`] as numbers, for a reporter that writes each as it goes.
+/// [`fingerprints`] as numbers.
 pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
-    key_ranks(f, fingerprint_hash)
-        .into_iter()
-        .map(|(h, n)| {
-            // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
-            if n > 0 {
-                fnv1a64_more(h, format!("\u{1d}{n}").as_bytes())
-            } else {
-                h
-            }
-        })
-        .collect()
+    fingerprint_hash_iter(f).collect()
+}
+
+/// [`fingerprint_hashes`] one at a time, in order, for a reporter that writes each as it
+/// goes: only the table of the keys met so far is held, not a list as long as the findings.
+pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ {
+    key_ranks(f, fingerprint_hash).map(|(h, n)| {
+        // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
+        if n > 0 {
+            fnv1a64_more(h, format!("\u{1d}{n}").as_bytes())
+        } else {
+            h
+        }
+    })
 }
 
 /// FNV-1a 64 of [`fingerprint_key`]: of its pieces one after another, with no key written,
@@ -334,49 +337,48 @@ fn fingerprint_hash(d: &Diag, source: Option<&SourceFile>, key: &mut String) -> 
     h
 }
 
-/// Each finding's `hash` of its key, and its rank among the file's findings with that key.
+/// Each finding's `hash` of its key, and its rank among the file's findings with that key,
+/// in order.
 ///
 /// Keys are counted by their hash, each hash with the first finding that had it; a hash met
 /// again is checked against that finding's key, and a different key with the same hash is
-/// counted apart by its text. No key is kept as text unless two differ with one hash.
+/// counted apart by its text. No key is kept as text unless two differ with one hash. The
+/// table holds the first finding and the count in two `u32`s (a file's findings are counted
+/// in `u32` everywhere a reporter numbers them), sixteen bytes a key with its hash.
 fn key_ranks(
     f: &FileOutcome,
     hash: fn(&Diag, Option<&SourceFile>, &mut String) -> u64,
-) -> Vec<(u64, usize)> {
+) -> impl Iterator<Item = (u64, usize)> + '_ {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
     // hash -> (the first finding with it, how many findings had its key so far)
-    let mut seen: rustc_hash::FxHashMap<u64, (usize, usize)> = rustc_hash::FxHashMap::default();
+    let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
     seen.reserve(f.diags.len());
     let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
     let (mut key, mut first_key) = (String::new(), String::new());
-    f.diags
-        .iter()
-        .enumerate()
-        .map(|(i, d)| {
-            let h = hash(d, source, &mut key);
-            let n = match seen.entry(h) {
-                Entry::Vacant(e) => {
-                    e.insert((i, 1));
-                    0
+    f.diags.iter().enumerate().map(move |(i, d)| {
+        let h = hash(d, source, &mut key);
+        let n = match seen.entry(h) {
+            Entry::Vacant(e) => {
+                e.insert((i as u32, 1));
+                0
+            }
+            Entry::Occupied(mut e) => {
+                let (first, count) = e.get_mut();
+                write_fingerprint_key(d, source, &mut key);
+                write_fingerprint_key(&f.diags[*first as usize], source, &mut first_key);
+                if first_key == key {
+                    *count += 1;
+                    *count as usize - 1
+                } else {
+                    let n = collided.entry(key.clone()).or_insert(0);
+                    *n += 1;
+                    *n - 1
                 }
-                Entry::Occupied(mut e) => {
-                    let (first, count) = e.get_mut();
-                    write_fingerprint_key(d, source, &mut key);
-                    write_fingerprint_key(&f.diags[*first], source, &mut first_key);
-                    if first_key == key {
-                        *count += 1;
-                        *count - 1
-                    } else {
-                        let n = collided.entry(key.clone()).or_insert(0);
-                        *n += 1;
-                        *n - 1
-                    }
-                }
-            };
-            (h, n)
-        })
-        .collect()
+            }
+        };
+        (h, n)
+    })
 }
 
 /// The fingerprint of a file's fatal diagnostic.
@@ -670,7 +672,7 @@ mod tests {
                 k.len() as u64
             },
         ] {
-            let got: Vec<usize> = key_ranks(&f, hash).into_iter().map(|(_, n)| n).collect();
+            let got: Vec<usize> = key_ranks(&f, hash).map(|(_, n)| n).collect();
             assert_eq!(got, want);
         }
         // the hash of the pieces is the hash of the key, for findings with a net, pins, both

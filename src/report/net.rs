@@ -3,7 +3,7 @@
 
 use std::io::{self, Write};
 
-use crate::circuit::budget::{LoadKind, NetBudget, StateBudget};
+use crate::circuit::budget::{Item, LoadKind, NetBudgetRef, StateBudget};
 use crate::circuit::Circuit;
 use crate::text::sanitize;
 use crate::values::{format_amps, format_ohms, format_volts};
@@ -14,6 +14,7 @@ fn state(
     name: &str,
     verb: &str,
     sb: &StateBudget,
+    items: &[Item],
 ) -> io::Result<()> {
     writeln!(
         out,
@@ -22,7 +23,7 @@ fn state(
         format_amps(sb.rating),
         sb.ratio() * 100.0
     )?;
-    for it in &sb.items {
+    for it in items {
         writeln!(
             out,
             "      {:>10}  {}",
@@ -48,7 +49,7 @@ fn state(
 pub fn write_net(
     out: &mut dyn Write,
     cx: &Circuit<'_, '_>,
-    b: &NetBudget,
+    b: NetBudgetRef<'_>,
     net: usize,
 ) -> io::Result<()> {
     let nm = &cx.nets[net];
@@ -174,16 +175,16 @@ pub fn write_net(
             format_volts(p.vf)
         )?;
     }
-    for db in &b.drivers {
-        let d = &nm.drivers[db.driver];
+    for db in b.drivers.iter() {
+        let d = &nm.drivers[db.driver()];
         writeln!(out, "  budget of {}:", cx.pin_name(d.at))?;
-        if let Some(sb) = &db.low {
-            state(out, cx, "low", "sink", sb)?;
+        if let Some(sb) = &db.low() {
+            state(out, cx, "low", "sink", sb, &db.items(cx, net, true))?;
         }
-        if let Some(sb) = &db.high {
-            state(out, cx, "high", "source", sb)?;
+        if let Some(sb) = &db.high() {
+            state(out, cx, "high", "source", sb, &db.items(cx, net, false))?;
         }
-        if let Some(pu) = &db.pull_up {
+        if let Some(pu) = db.pull_up() {
             writeln!(
                 out,
                 "    pull-up {} to {}: supplies {} to the loads, high level {}",
@@ -193,7 +194,7 @@ pub fn write_net(
                 format_volts(pu.level)
             )?;
         }
-        for op in [&db.drive_high, &db.drive_low].into_iter().flatten() {
+        for op in [db.drive_high(), db.drive_low()].into_iter().flatten() {
             writeln!(
                 out,
                 "    {} state with its LEDs and resistors: {} behind {} (from {} at {}) stands at {} and {} {}",
@@ -240,7 +241,7 @@ pub fn write_net(
                 )?;
             }
         }
-        for m in b.margins(cx, net).filter(|m| m.driver == db.driver) {
+        for m in b.margins(cx, net).filter(|m| m.driver == db.driver()) {
             let m = &m;
             let l = &nm.loads[m.load];
             let f = |x: Option<f64>| x.map_or("-".to_string(), |v| format!("{v:+.2} V"));

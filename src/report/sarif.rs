@@ -21,7 +21,7 @@ use serde::Serialize;
 
 use super::pretty::{PrettyOut, Repeats};
 use super::{
-    fingerprint_hashes, fingerprint_key, fnv1a64, primary_label, related_labels, rooted_path,
+    fingerprint_hash_iter, fingerprint_key, fnv1a64, primary_label, related_labels, rooted_path,
     Place, Places, ReportOptions, RootedPath, TOOL_NAME, TOOL_VERSION,
 };
 use crate::checks::REGISTRY;
@@ -416,7 +416,7 @@ pub fn write(opts: &ReportOptions, files: &[FileOutcome], out: &mut dyn Write) -
             .map(|d| (d, fnv1a64(fingerprint_key(d, src).as_bytes())));
         for (d, fp) in fatal
             .into_iter()
-            .chain(f.diags.iter().zip(fingerprint_hashes(f)))
+            .chain(f.diags.iter().zip(fingerprint_hash_iter(f)))
         {
             w.item();
             write_result(&mut w, d, &mut places, &mut kept, art_of(d), &index, fp);
