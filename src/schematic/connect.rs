@@ -103,7 +103,7 @@ pub fn on_segment(s: &Segment, p: Pt) -> bool {
 }
 
 /// Joins each label that lies inside a wire (or bus) to it.
-fn join_along(sheet: &Sheet<'_>, items: &[Item], at: &HashMap<Pt, Vec<u32>>, dsu: &mut Dsu) {
+fn join_along(sheet: &Sheet<'_>, items: &[Item], at: &[(Pt, u32)], dsu: &mut Dsu) {
     // axis-aligned segments by their line, the rest checked one by one
     let mut horiz: HashMap<i64, Vec<(i64, i64, usize)>> = HashMap::default();
     let mut vert: HashMap<i64, Vec<(i64, i64, usize)>> = HashMap::default();
@@ -130,15 +130,16 @@ fn join_along(sheet: &Sheet<'_>, items: &[Item], at: &HashMap<Pt, Vec<u32>>, dsu
             &sheet.buses[i - first_bus]
         }
     };
-    for (p, ids) in at {
+    for group in points(at) {
+        let p = &group[0].0;
         // a label at the end of a wire or bus joins that one only
-        if ids
+        if group
             .iter()
-            .any(|&i| matches!(items[i as usize], Item::Wire(_) | Item::Bus(_)))
+            .any(|&(_, i)| matches!(items[i as usize], Item::Wire(_) | Item::Bus(_)))
         {
             continue;
         }
-        for &id in ids {
+        for &(_, id) in group {
             let Item::Label(_, is_bus) = items[id as usize] else {
                 continue;
             };
@@ -159,18 +160,32 @@ fn join_along(sheet: &Sheet<'_>, items: &[Item], at: &HashMap<Pt, Vec<u32>>, dsu
     }
 }
 
+/// The runs of pairs at one point, of pairs sorted by point.
+fn points(at: &[(Pt, u32)]) -> impl Iterator<Item = &[(Pt, u32)]> {
+    at.chunk_by(|a, b| a.0 == b.0)
+}
+
 /// Joins the items of one use of `sheet`, whose placed pins are `pins`.
 pub fn pieces(sheet: &Sheet<'_>, pins: &[PinAt]) -> Vec<Piece> {
-    let mut items: Vec<Item> = Vec::new();
-    let mut at: HashMap<Pt, Vec<u32>> = HashMap::default();
+    let segments = sheet.wires.len() + sheet.buses.len() + sheet.entries.len();
+    let sheet_pins: usize = sheet.sheets.iter().map(|s| s.pins.len()).sum();
+    let count = segments
+        + sheet.junctions.len()
+        + sheet.no_connects.len()
+        + sheet.labels.len()
+        + pins.len()
+        + sheet_pins;
+    let mut items: Vec<Item> = Vec::with_capacity(count);
+    // every (point, item) pair, grouped by point once all are in
+    let mut at: Vec<(Pt, u32)> = Vec::with_capacity(count + segments);
     let mut put = |items: &mut Vec<Item>, it: Item, p: Pt| {
         let id = items.len() as u32;
         items.push(it);
-        at.entry(p).or_default().push(id);
+        at.push((p, id));
         id
     };
     // an item with two points goes in once and is found from both
-    let mut second: Vec<(Pt, u32)> = Vec::new();
+    let mut second: Vec<(Pt, u32)> = Vec::with_capacity(segments);
     for (i, w) in sheet.wires.iter().enumerate() {
         let id = put(&mut items, Item::Wire(i), w.a);
         second.push((w.b, id));
@@ -219,23 +234,25 @@ pub fn pieces(sheet: &Sheet<'_>, pins: &[PinAt]) -> Vec<Piece> {
             );
         }
     }
-    for (p, id) in second {
-        at.entry(p).or_default().push(id);
-    }
+    at.extend(second);
+    // which items meet at a point is all that is read from a group: neither the order of
+    // the groups nor the order within one changes the pieces (each piece lists its items
+    // in item order below)
+    at.sort_unstable_by_key(|e| e.0);
 
     let mut dsu = Dsu::new(items.len());
     // a label lands anywhere along a wire or bus, not only at its ends
     join_along(sheet, &items, &at, &mut dsu);
-    for ids in at.values() {
+    for ids in points(&at) {
         let has_wire = ids
             .iter()
-            .any(|&i| matches!(items[i as usize], Item::Wire(_)));
+            .any(|&(_, i)| matches!(items[i as usize], Item::Wire(_)));
         let has_bus = ids
             .iter()
-            .any(|&i| matches!(items[i as usize], Item::Bus(_)));
+            .any(|&(_, i)| matches!(items[i as usize], Item::Bus(_)));
         let mut net_first: Option<usize> = None;
         let mut bus_first: Option<usize> = None;
-        for &i in ids {
+        for &(_, i) in ids {
             let i = i as usize;
             let to_bus = match items[i] {
                 Item::Bus(_) => true,
@@ -258,15 +275,17 @@ pub fn pieces(sheet: &Sheet<'_>, pins: &[PinAt]) -> Vec<Piece> {
     }
 
     // group into pieces
-    let mut piece_of: HashMap<usize, usize> = HashMap::default();
+    // the piece of each group, by its root item
+    let mut piece_of: Vec<usize> = vec![usize::MAX; items.len()];
     let mut out: Vec<Piece> = Vec::new();
     let mut piece_index: Vec<usize> = vec![usize::MAX; items.len()];
     for i in 0..items.len() {
         let r = dsu.find(i);
-        let pi = *piece_of.entry(r).or_insert_with(|| {
+        if piece_of[r] == usize::MAX {
+            piece_of[r] = out.len();
             out.push(Piece::default());
-            out.len() - 1
-        });
+        }
+        let pi = piece_of[r];
         piece_index[i] = pi;
         let p = &mut out[pi];
         match items[i] {

@@ -10,7 +10,7 @@ use rustc_hash::FxHashMap as HashMap;
 
 use crate::diag::Diag;
 use crate::input;
-use crate::sexpr::{self, Tree};
+use crate::sexpr::{self, NodeId, Tree};
 use crate::source::{SourceFile, Span};
 
 use super::sheet::{Reader, Sheet};
@@ -136,21 +136,54 @@ fn sheet_files(tree: &Tree<'_>) -> Vec<(String, Span)> {
         if tree.head(c) != Some("sheet") {
             continue;
         }
-        for p in tree.children(c) {
-            if tree.head(p) != Some("property") {
-                continue;
-            }
-            let mut it = tree.children(p).skip(1);
-            let (Some(n), Some(v)) = (it.next(), it.next()) else {
-                continue;
-            };
-            let name = tree.text(n).unwrap_or_default();
-            if name == "Sheetfile" || name == "Sheet file" {
-                out.push((tree.text(v).unwrap_or_default().into_owned(), tree.span(v)));
-            }
-        }
+        sheet_file_props(tree, c, 0, &mut out);
     }
     out
+}
+
+/// The file names in the properties of the sheet symbol `c`, their spans moved by `base`.
+fn sheet_file_props(tree: &Tree<'_>, c: NodeId, base: u32, out: &mut Vec<(String, Span)>) {
+    for p in tree.children(c) {
+        if tree.head(p) != Some("property") {
+            continue;
+        }
+        let mut it = tree.children(p).skip(1);
+        let (Some(n), Some(v)) = (it.next(), it.next()) else {
+            continue;
+        };
+        let name = tree.text(n).unwrap_or_default();
+        if name == "Sheetfile" || name == "Sheet file" {
+            let span = tree.span(v);
+            out.push((
+                tree.text(v).unwrap_or_default().into_owned(),
+                Span {
+                    start: span.start + base,
+                    end: span.end + base,
+                },
+            ));
+        }
+    }
+}
+
+/// [`sheet_files`] of a sheet's text, or the error of reading it. The text is read whole
+/// later, with the project's other files: here only its sheet symbols are read into trees,
+/// found by [`sexpr::root_lists`]; a text that finds fails is read whole at once, for its
+/// error (or, should a sheet symbol alone not read, for its names).
+fn sheet_files_in(text: &str) -> Result<Vec<(String, Span)>, Diag> {
+    if let Some(spans) = sexpr::root_lists(text, "sheet") {
+        let mut out = Vec::new();
+        let all_read = spans.iter().all(|s| match sexpr::parse(&text[s.range()]) {
+            Ok(tree) => {
+                sheet_file_props(&tree, tree.root(), s.start, &mut out);
+                true
+            }
+            Err(_) => false,
+        });
+        if all_read {
+            return Ok(out);
+        }
+    }
+    sexpr::parse(text).map(|tree| sheet_files(&tree))
 }
 
 /// Resolves a sheet file named in `parent` (a path relative to the project folder, or
@@ -225,8 +258,8 @@ pub fn read_files_from(
                 source: Some(src),
             }));
         }
-        let refs = match sexpr::parse(&text) {
-            Ok(tree) => sheet_files(&tree),
+        let refs = match sheet_files_in(&text) {
+            Ok(refs) => refs,
             Err(d) => {
                 let src = SourceFile::from_string(names[i].as_str(), text);
                 return Err(Box::new(Failed {
@@ -642,6 +675,38 @@ mod tests {
         let mut got = named_sheets(text);
         got.sort();
         assert_eq!(got, want);
+    }
+
+    /// The sheet files found from the sheet symbols alone are those a reading of the whole
+    /// tree finds, at the same places; a text that does not read fails with the whole
+    /// reading's error. Every sheet of the fixtures and the project's own test texts.
+    #[test]
+    fn sheet_files_from_the_sheet_symbols_are_the_whole_trees() {
+        let mut texts: Vec<String> = vec![
+            "(kicad_sch (sheet (property \"Sheetfile\" \"a.kicad_sch\" (at 1 2 0)))\n (sheet (property \"Sheet file\" \"b\\\"c.kicad_sch\")) (sheet (property Sheetfile (x))) (sheet (property \"Sheetfile\")))".into(),
+            "(kicad_sch (sheet (property \"Sheetfile\" \"a.kicad_sch\"))".into(),
+            "(kicad_sch (sheet (property \"Sheetfile\" \"a.kicad_sch\"))) x".into(),
+        ];
+        let mut dirs = vec![std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("fixtures")];
+        while let Some(d) = dirs.pop() {
+            for e in std::fs::read_dir(&d).into_iter().flatten().flatten() {
+                let p = e.path();
+                if p.is_dir() {
+                    dirs.push(p);
+                } else if p.extension().is_some_and(|x| x == "kicad_sch") {
+                    texts.extend(std::fs::read_to_string(&p).ok());
+                }
+            }
+        }
+        assert!(texts.len() > 10, "{}", texts.len());
+        let mut names = 0;
+        for t in &texts {
+            let whole = sexpr::parse(t).map(|tree| sheet_files(&tree));
+            let got = sheet_files_in(t);
+            assert_eq!(got, whole, "{t}");
+            names += got.map_or(0, |v| v.len());
+        }
+        assert!(names >= 3);
     }
 
     /// A file that is not UTF-8 names nothing (as one that cannot be read as text), wherever

@@ -62,6 +62,29 @@ fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
     }
 }
 
+/// [`txt`] of a text the sheet holds, without a copy of an owned one on the way.
+fn txt_of<'a>(s: &Cow<'a, str>, span: Span) -> Text<'a> {
+    match s {
+        Cow::Borrowed(s) => Text::borrowed(s, span),
+        Cow::Owned(s) => Text::owned(s, span),
+    }
+}
+
+/// A symbol's library and part names (`lib:part`; no library without a colon), borrowed
+/// from the file when its identifier is.
+fn lib_and_part<'a>(id: &Cow<'a, str>) -> (Cow<'a, str>, Cow<'a, str>) {
+    match id {
+        Cow::Borrowed(s) => match s.split_once(':') {
+            Some((l, p)) => (Cow::Borrowed(l), Cow::Borrowed(p)),
+            None => (Cow::Borrowed(""), Cow::Borrowed(s)),
+        },
+        Cow::Owned(s) => match s.split_once(':') {
+            Some((l, p)) => (Cow::Owned(l.to_string()), Cow::Owned(p.to_string())),
+            None => (Cow::Borrowed(""), Cow::Owned(s.clone())),
+        },
+    }
+}
+
 /// One placed symbol in one use of a sheet, with its instance data resolved.
 struct Placement<'p, 'a> {
     placed: &'p Placed<'a>,
@@ -83,6 +106,12 @@ fn cat(parts: &[&str]) -> String {
         s.push_str(p);
     }
     s
+}
+
+/// Two indices kept as `u32` (a pin's placement and library pin; a node's use and pin), as
+/// indices.
+fn wide((a, b): (u32, u32)) -> (usize, usize) {
+    (a as usize, b as usize)
 }
 
 /// The paths a use of a sheet is known by in instance data, made once per use.
@@ -195,7 +224,7 @@ fn pin_net_name(
 #[derive(Default)]
 struct Pool {
     cands: Vec<Candidate>,
-    pins: Vec<(usize, bool)>,
+    pins: Vec<(u32, bool)>,
 }
 
 /// The first KiCad 7 file version: automatic names carry pin names from it on.
@@ -229,7 +258,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
 
     // placements and pieces, per use
     let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
-    let mut pins_of: Vec<Vec<(usize, usize)>> = Vec::new(); // (placement, libpin) per placed pin
+    let mut pins_of: Vec<Vec<(u32, u32)>> = Vec::new(); // (placement, libpin) per placed pin
     let mut pieces: Vec<Vec<connect::Piece>> = Vec::new();
     let v6 = v6_index(&project.sheets[0]);
     for u in &project.uses {
@@ -237,7 +266,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let paths = UsePaths::of(&project.sheets[0], u);
         let mut pls = Vec::with_capacity(sh.symbols.len());
         let mut at: Vec<PinAt> = Vec::new();
-        let mut which: Vec<(usize, usize)> = Vec::new();
+        let mut which: Vec<(u32, u32)> = Vec::new();
         for placed in &sh.symbols {
             let Some(lib) = sh.lib.get(&placed.lib_key) else {
                 return Err(Diag::error(
@@ -280,7 +309,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                         libpin: k,
                         at: symbol::pin_point(placed, lp),
                     });
-                    which.push((pi, k));
+                    which.push((pi as u32, k as u32));
                 }
             }
             let listed = !reference.starts_with('#') && placed.on_board;
@@ -291,14 +320,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 reference_span,
                 unit,
                 value: inst
-                    .and_then(|i| i.value.clone())
+                    .and_then(|i| i.value.as_deref().cloned())
                     .filter(|_| !modern)
                     .map(|(v, s)| {
                         let s = own_span("Value", &v, s);
                         (v, s)
                     }),
                 footprint: inst
-                    .and_then(|i| i.footprint.clone())
+                    .and_then(|i| i.footprint.as_deref().cloned())
                     .filter(|_| !modern)
                     .map(|(v, s)| {
                         let s = own_span("Footprint", &v, s);
@@ -351,7 +380,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 }
             }
             for &k in &p.pins {
-                let (s, lpi) = pins_of[ui][k];
+                let (s, lpi) = wide(pins_of[ui][k]);
                 let pl = &placements[ui][s];
                 let lp = &pl.lib.pins[lpi];
                 if is_power_pin(pl, lp) {
@@ -366,7 +395,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             for &k in &piece.pins {
                 let name = &power_names[ui][k];
                 if !name.is_empty() {
-                    let (s, _) = pins_of[ui][k];
+                    let (s, _) = wide(pins_of[ui][k]);
                     let local = placements[ui][s].lib.power == Power::Local;
                     let key = if local {
                         Key::Local(ui, name.as_str())
@@ -563,7 +592,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
     let mut pools: HashMap<(usize, usize), Pool> = HashMap::default();
-    let mut nodes_of: HashMap<usize, Vec<(usize, usize, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
+    let mut nodes_of: HashMap<usize, Vec<(u32, u32, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
     let mut group_order: Vec<usize> = Vec::new();
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
@@ -609,7 +638,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 });
             }
             for &k in &p.pins {
-                let (s, lpi) = pins_of[ui][k];
+                let (s, lpi) = wide(pins_of[ui][k]);
                 let pl = &placements[ui][s];
                 let lp = &pl.lib.pins[lpi];
                 let pname = &power_names[ui][k];
@@ -628,14 +657,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 } else if pl.listed {
                     let alone = p.pins.len() == 1 && p.labels.is_empty() && p.sheet_pins.is_empty();
                     let nc = p.no_connect || lp.ptype == PinType::NoConnect || alone;
-                    pool.pins.push((k, nc));
+                    pool.pins.push((k as u32, nc));
                 }
                 if pl.listed {
                     let e = nodes_of.entry(g).or_insert_with(|| {
                         group_order.push(g);
                         Vec::new()
                     });
-                    e.push((ui, k, p.no_connect));
+                    e.push((ui as u32, k as u32, p.no_connect));
                 }
             }
         }
@@ -652,7 +681,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .pins
                 .iter()
                 .map(|&(k, nc)| {
-                    let (s, lpi) = pins_of[ui][k];
+                    let (s, lpi) = wide(pins_of[ui][k as usize]);
                     let pl = &placements[ui][s];
                     Candidate {
                         strength: Strength::Pin,
@@ -670,7 +699,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             by_group.entry(g).or_default().push((ui, b));
         }
     }
-    let mut net_of_name: HashMap<String, usize> = HashMap::default();
+    let mut net_of_name: HashMap<&str, usize> = HashMap::default();
     let mut nets: Vec<Net<'_>> = Vec::new();
     for g in group_order {
         let Some(chosen) = by_group.get(&g) else {
@@ -685,16 +714,16 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 depth: depth(*u),
             })
             .collect();
-        let Some(name) = names::chain(&ch).map(|c| c.name.clone()) else {
+        let Some(name) = names::chain(&ch).map(|c| c.name.as_str()) else {
             continue;
         };
-        let idx = match net_of_name.get(&name) {
+        let idx = match net_of_name.get(name) {
             Some(&i) => i,
             None => {
-                net_of_name.insert(name.clone(), nets.len());
+                net_of_name.insert(name, nets.len());
                 nets.push(Net {
                     code: None,
-                    name: txt(name, Span::default()),
+                    name: Text::owned(name, Span::default()),
                     nodes: Vec::new(),
                     span: Span::default(),
                 });
@@ -702,7 +731,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
         };
         for &(ui, k, nc) in &nodes_of[&g] {
-            let (s, lpi) = pins_of[ui][k];
+            let (ui, k) = wide((ui, k));
+            let (s, lpi) = wide(pins_of[ui][k]);
             let pl = &placements[ui][s];
             let lp = &pl.lib.pins[lpi];
             let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
@@ -712,7 +742,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 net.name.set_span(span);
             }
             net.nodes.push(Node {
-                reference: txt(pl.reference.clone(), pl.reference_span),
+                reference: txt_of(&pl.reference, pl.reference_span),
                 pin: lp.num.clone().into(),
                 pinfunction: (!lp.name.is_empty() && lp.name != "~")
                     .then(|| lp.name.clone().into()),
@@ -724,11 +754,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
 
-    drop((by_group, nodes_of, net_of_name, pins_of));
+    drop(net_of_name);
+    drop((by_group, nodes_of, pins_of));
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
-    nets.sort_by(|a, b| natural_cmp(a.name.as_str(), b.name.as_str()));
+    nets.sort_by_cached_key(|n| natural_key(n.name.as_str()));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
     fn key<'n>(n: &'n Node<'_>) -> (&'n str, &'n str, Option<&'n str>) {
@@ -787,10 +818,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 continue;
             }
             let placed = pl.placed;
-            let (lib, part) = match placed.lib_id.split_once(':') {
-                Some((l, p)) => (l, p),
-                None => ("", placed.lib_id.as_ref()),
-            };
+            let (lib, part) = lib_and_part(&placed.lib_id);
             let key = placed.lib_key.as_ref();
             if !lib_of.contains_key(key) {
                 lib_of.insert(key, libparts.len());
@@ -800,15 +828,15 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                         continue;
                     }
                     pins.push(ModelLibPin {
-                        num: txt(lp.num.clone(), lp.span),
-                        name: (!lp.name.is_empty()).then(|| txt(lp.name.clone(), lp.span)),
+                        num: txt_of(&lp.num, lp.span),
+                        name: (!lp.name.is_empty()).then(|| txt_of(&lp.name, lp.span)),
                         ptype: lp.ptype,
                         span: lp.span,
                     });
                 }
                 libparts.push(LibPart {
-                    lib: Some(txt(lib.to_string(), placed.lib_key_span)),
-                    part: txt(part.to_string(), placed.lib_key_span),
+                    lib: Some(txt_of(&lib, placed.lib_key_span)),
+                    part: txt_of(&part, placed.lib_key_span),
                     aliases: Vec::new(),
                     description: None,
                     docs: None,
@@ -822,18 +850,18 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 placed
                     .prop(name)
                     .filter(|p| !p.value.is_empty())
-                    .map(|p| txt(p.value.clone(), p.value_span))
+                    .map(|p| txt_of(&p.value, p.value_span))
             };
             let value = pl
                 .value
-                .clone()
-                .map(|(v, s)| txt(v, s))
+                .as_ref()
+                .map(|(v, s)| txt_of(v, *s))
                 .or_else(|| prop_text("Value"));
             let footprint = pl
                 .footprint
-                .clone()
+                .as_ref()
                 .filter(|f| !f.0.is_empty())
-                .map(|(v, s)| txt(v, s))
+                .map(|(v, s)| txt_of(v, *s))
                 .or_else(|| prop_text("Footprint"));
             let fields = placed
                 .props
@@ -845,13 +873,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     )
                 })
                 .map(|p| Field {
-                    name: txt(p.name.clone(), p.name_span),
-                    value: Some(txt(p.value.clone(), p.value_span)),
+                    name: txt_of(&p.name, p.name_span),
+                    value: Some(txt_of(&p.value, p.value_span)),
                     span: p.name_span,
                 })
                 .collect();
             components.push(Component {
-                reference: txt(pl.reference.clone(), pl.reference_span),
+                reference: txt_of(&pl.reference, pl.reference_span),
                 value,
                 footprint,
                 datasheet: prop_text("Datasheet"),
@@ -867,15 +895,15 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     ThinVec::new()
                 },
                 libsource: Some(LibSource {
-                    lib: Some(txt(lib.to_string(), placed.lib_key_span)),
-                    part: Some(txt(part.to_string(), placed.lib_key_span)),
+                    lib: Some(txt_of(&lib, placed.lib_key_span)),
+                    part: Some(txt_of(&part, placed.lib_key_span)),
                     description: None,
                 }),
                 sheetpath: Some(SheetPath {
-                    names: Some(txt(u.path.clone(), placed.span)),
+                    names: Some(Text::owned(&u.path, placed.span)),
                     tstamps: None,
                 }),
-                tstamps: Texts::one(txt(placed.uuid.clone(), placed.span)),
+                tstamps: Texts::one(txt_of(&placed.uuid, placed.span)),
                 span: placed.span,
                 libpart: None,
                 pins: Box::default(),
@@ -917,12 +945,8 @@ pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
             while j < b.len() && b[j].is_ascii_digit() {
                 j += 1;
             }
-            let da = std::str::from_utf8(&a[si..i])
-                .unwrap_or("")
-                .trim_start_matches('0');
-            let db = std::str::from_utf8(&b[sj..j])
-                .unwrap_or("")
-                .trim_start_matches('0');
+            // digits are ASCII: the runs compare as bytes, without their leading zeros
+            let (da, db) = (trim_zeros(&a[si..i]), trim_zeros(&b[sj..j]));
             let o = da.len().cmp(&db.len()).then_with(|| da.cmp(db));
             if o != Ordering::Equal {
                 return o;
@@ -936,6 +960,38 @@ pub fn natural_cmp(a: &str, b: &str) -> std::cmp::Ordering {
         }
     }
     (a.len() - i).cmp(&(b.len() - j))
+}
+
+fn trim_zeros(digits: &[u8]) -> &[u8] {
+    let z = digits.iter().take_while(|&&d| d == b'0').count();
+    &digits[z..]
+}
+
+/// A key whose byte order is [`natural_cmp`]'s order of the names: each run of digits is
+/// written as one `0` (any digit compares with any other byte as a `0` does), its length
+/// without leading zeros (four bytes, most significant first) and those digits; every
+/// other byte as it is. Sorting many names by their keys compares each pair with one
+/// `memcmp` instead of reading the names token by token.
+pub fn natural_key(name: &str) -> Vec<u8> {
+    let b = name.as_bytes();
+    let mut key = Vec::with_capacity(b.len() + 8);
+    let mut i = 0;
+    while i < b.len() {
+        if b[i].is_ascii_digit() {
+            let s = i;
+            while i < b.len() && b[i].is_ascii_digit() {
+                i += 1;
+            }
+            let d = trim_zeros(&b[s..i]);
+            key.push(b'0');
+            key.extend_from_slice(&(d.len() as u32).to_be_bytes());
+            key.extend_from_slice(d);
+        } else {
+            key.push(b[i]);
+            i += 1;
+        }
+    }
+    key
 }
 
 /// Where a span of a project points: the sheet file's name.
@@ -1007,9 +1063,28 @@ mod tests {
             }
         }
         assert!(seen > 100_000);
+        // the sort key orders every pair as the comparison does
+        let keys: Vec<Vec<u8>> = names.iter().map(|n| natural_key(n)).collect();
+        for (a, ka) in names.iter().zip(&keys) {
+            for (b, kb) in names.iter().zip(&keys).step_by(5) {
+                assert_eq!(ka.cmp(kb), natural_cmp(a, b), "{a:?} {b:?}");
+            }
+        }
+        let long = "9".repeat(300);
+        assert_eq!(
+            natural_key(&format!("N{long}")).cmp(&natural_key("N1")),
+            Ordering::Greater
+        );
         assert_eq!(natural_cmp("/cells_12/R9", "/cells_12/R10"), Ordering::Less);
         assert_eq!(natural_cmp("N10", "N010"), Ordering::Equal);
         assert_eq!(natural_cmp("N199", "N20"), Ordering::Greater);
+    }
+
+    /// A symbol's instance, held four times over for a sheet used four times, keeps the
+    /// value and footprint only KiCad 6 writes in a box.
+    #[test]
+    fn an_instance_is_small() {
+        assert!(std::mem::size_of::<sheet::Instance<'_>>() <= 80);
     }
 
     /// A KiCad 6 path listed twice in the root's instances is found at its first entry.

@@ -69,8 +69,9 @@ pub struct Instance<'a> {
     pub reference: Cow<'a, str>,
     pub reference_span: Span,
     pub unit: Option<u32>,
-    pub value: Option<(Cow<'a, str>, Span)>,
-    pub footprint: Option<(Cow<'a, str>, Span)>,
+    /// KiCad 6 only, and rare there: boxed, so the many instances of later files stay small.
+    pub value: Option<Box<(Cow<'a, str>, Span)>>,
+    pub footprint: Option<Box<(Cow<'a, str>, Span)>>,
 }
 
 #[derive(Debug, Clone)]
@@ -527,8 +528,8 @@ impl<'t, 'a> Reader<'t, 'a> {
             reference: self.text(rv)?,
             reference_span: self.span(rv),
             unit: self.value_of(id, "unit").and_then(|u| u.parse().ok()),
-            value: with_span("value"),
-            footprint: with_span("footprint"),
+            value: with_span("value").map(Box::new),
+            footprint: with_span("footprint").map(Box::new),
         })
     }
 

@@ -354,6 +354,106 @@ pub fn sniff(text: &str) -> Option<Diag> {
     }
 }
 
+/// The lists among the root list's children whose head is the atom `head`, as spans,
+/// found without building a tree: the text is read by the lexical rules of [`parse`], but
+/// only brackets and strings are looked at (atoms and white space inside lists cannot make
+/// a text unreadable). `None` when the text is not one root list that [`parse`] reads
+/// without an error (or when in doubt): [`parse`] it then, for the tree or the error.
+pub fn root_lists(text: &str, head: &str) -> Option<Vec<Span>> {
+    let b = text.as_bytes();
+    let n = b.len();
+    if n >= NEXT_MASK as usize {
+        return None;
+    }
+    let mut i = bom_len(text);
+    while i < n && CLASS[b[i] as usize] == WS {
+        i += 1;
+    }
+    if i == n || b[i] != b'(' {
+        return None;
+    }
+    let mut out = Vec::new();
+    let mut depth = 0usize;
+    // the start of the root's child being kept, and the end of the last quoted string
+    let mut open: Option<usize> = None;
+    let mut string_end = usize::MAX;
+    // brackets come every few bytes in these files: a byte at a time beats a search
+    while i < n {
+        let p = i;
+        match b[p] {
+            b'(' => {
+                depth += 1;
+                if depth > MAX_DEPTH {
+                    return None;
+                }
+                if depth == 2 {
+                    let mut j = p + 1;
+                    while j < n && CLASS[b[j] as usize] == WS {
+                        j += 1;
+                    }
+                    let mut k = j;
+                    while k < n && CLASS[b[k] as usize] == 0 {
+                        k += 1;
+                    }
+                    // an atom head (a string is not one), spelled as asked
+                    if j < n && b[j] != b'"' && &b[j..k] == head.as_bytes() {
+                        open = Some(p);
+                    }
+                }
+                i = p + 1;
+            }
+            b')' => {
+                if depth == 0 {
+                    return None;
+                }
+                depth -= 1;
+                if depth == 1 {
+                    if let Some(start) = open.take() {
+                        out.push(Span::new(start, p + 1));
+                    }
+                }
+                if depth == 0 {
+                    // the root is closed: only white space may follow
+                    return b[p + 1..]
+                        .iter()
+                        .all(|&c| CLASS[c as usize] == WS)
+                        .then_some(out);
+                }
+                i = p + 1;
+            }
+            b'"' => {
+                // a quote starts a string where a token starts (after white space, a bracket
+                // or another string); anywhere else it is inside an atom, which runs to the
+                // next white space or bracket
+                let starts = CLASS[b[p - 1] as usize] != 0 || string_end == p;
+                if starts {
+                    let mut j = p + 1;
+                    loop {
+                        let at = j + memchr::memchr2(b'"', b'\\', &b[j..])?;
+                        if b[at] == b'\\' {
+                            j = (at + 2).min(n);
+                        } else {
+                            j = at + 1;
+                            break;
+                        }
+                    }
+                    string_end = j;
+                    i = j;
+                } else {
+                    let mut k = p + 1;
+                    while k < n && CLASS[b[k] as usize] == 0 {
+                        k += 1;
+                    }
+                    i = k;
+                }
+            }
+            _ => i += 1,
+        }
+    }
+    // a list left open
+    None
+}
+
 /// Reads `text` (already known to be UTF-8) into a tree. One root list is expected, with
 /// only white space around it.
 pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {
