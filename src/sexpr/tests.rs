@@ -227,9 +227,19 @@ fn root_lists_agree_with_the_tree_on_every_cut_and_insertion() {
             texts.push(format!("{}{ins}{}", &base[..cut], &base[cut..]));
         }
     }
-    let deep = format!("(a {}{})", "(".repeat(MAX_DEPTH - 1), ")".repeat(MAX_DEPTH - 1));
+    let deep = format!(
+        "(a {}{})",
+        "(".repeat(MAX_DEPTH - 1),
+        ")".repeat(MAX_DEPTH - 1)
+    );
     let too_deep = format!("(a {}{})", "(".repeat(MAX_DEPTH), ")".repeat(MAX_DEPTH));
-    texts.extend([deep, too_deep, "(a) (b)".into(), "x (a)".into(), String::new()]);
+    texts.extend([
+        deep,
+        too_deep,
+        "(a) (b)".into(),
+        "x (a)".into(),
+        String::new(),
+    ]);
     let mut found = 0;
     for t in &texts {
         let want = heads_in_tree(t, "sheet");
