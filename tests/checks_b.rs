@@ -669,3 +669,69 @@ fn a_one_pin_pull_up_part_holds_its_net_and_drives_nothing() {
     assert_eq!(floats(&board(true)), 0);
     assert!(run(&board(true), "floating-bus", 0.0).is_empty());
 }
+
+/// `n` 74HC04s whose first inputs share the undriven net `/FLOAT`; each first gate's output
+/// drives its second gate, so the first gate is in use and its input is a single finding.
+fn undriven_inputs(n: usize) -> String {
+    let comps: String = (0..n)
+        .map(|i| {
+            format!("    (comp (ref U{i}) (value 74HC04) (libsource (lib 74xx) (part 74HC04)))\n")
+        })
+        .collect();
+    let inputs: String = (0..n)
+        .map(|i| format!("      (node (ref U{i}) (pin 1) (pintype input))\n"))
+        .collect();
+    let rail = |pin: u32| -> String {
+        (0..n)
+            .map(|i| format!("      (node (ref U{i}) (pin {pin}) (pintype power_in))\n"))
+            .collect()
+    };
+    let outs: String = (0..n)
+        .map(|i| {
+            format!(
+                "    (net (code {}) (name \"/O{i}\")\n      (node (ref U{i}) (pin 2) (pintype output))\n      (node (ref U{i}) (pin 3) (pintype input)))\n",
+                10 + i
+            )
+        })
+        .collect();
+    format!(
+        "(export (version D)\n  (components\n{comps}  )\n  (nets\n    (net (code 1) (name \"/FLOAT\")\n{inputs}    )\n    (net (code 2) (name \"GND\")\n{}    )\n    (net (code 3) (name \"+5V\")\n{}    )\n{outs}  )\n)\n",
+        rail(7),
+        rail(14)
+    )
+}
+
+/// A finding about an input on an undriven net names at most eight of the net's other pins
+/// and counts the rest: every input of the net is a finding, so naming them all in each
+/// would make the report grow with the square of the net.
+#[test]
+fn an_undriven_net_names_eight_other_pins_and_counts_the_rest() {
+    let tolerance = RunOptions::default().model.rail_tolerance;
+    let on_float = |d: &Diag| d.message.contains("on net `/FLOAT`");
+    // 40 inputs: 39 others, 8 named and 31 counted
+    let found = run(&undriven_inputs(40), "floating-cmos-input", tolerance);
+    let undriven: Vec<&Diag> = found.iter().filter(|d| on_float(d)).collect();
+    assert_eq!(undriven.len(), 40, "{found:#?}");
+    for d in &undriven {
+        let (_, listed) = d.message.split_once("(only ").expect("names the others");
+        let (names, more) = listed.split_once(" and ").expect("counts the rest");
+        assert_eq!(names.split(", ").count(), 8, "{}", d.message);
+        assert_eq!(more, "31 more)", "{}", d.message);
+        let own = d.pins().next().expect("the finding's pin").to_string();
+        assert!(!names.split(", ").any(|n| n == own), "{}", d.message);
+    }
+    // 9 inputs: 8 others, all named, nothing counted
+    let found = run(&undriven_inputs(9), "floating-cmos-input", tolerance);
+    let undriven: Vec<&Diag> = found.iter().filter(|d| on_float(d)).collect();
+    assert_eq!(undriven.len(), 9);
+    for d in &undriven {
+        let (_, listed) = d.message.split_once("(only ").expect("names the others");
+        assert_eq!(
+            listed.trim_end_matches(')').split(", ").count(),
+            8,
+            "{}",
+            d.message
+        );
+        assert!(!listed.contains(" more"), "{}", d.message);
+    }
+}

@@ -78,6 +78,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
     let mut part_text: Option<(usize, &str, Text)> = None;
+    let mut big_nets = LoadsOf::default();
     for f in found.singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
             // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
@@ -133,11 +134,21 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 if others.peek().is_none() {
                     m.push_str("this input");
                 }
-                for (i, p) in others.enumerate() {
-                    if i > 0 {
+                let mut listed = 0;
+                for p in others.by_ref().take(LISTED) {
+                    if listed > 0 {
                         m.push_str(", ");
                     }
                     push_pin_name(&mut m, cx, p);
+                    listed += 1;
+                }
+                // the rest are counted, not named: every input of a big undriven net is a
+                // finding, and naming all the others in each would grow with the square of
+                // the net
+                if others.peek().is_some() {
+                    let own = big_nets.holds(nm, net, f.at);
+                    let more = nm.loads.len() + nm.passives.len() - usize::from(own) - listed;
+                    push_all(&mut m, &[" and ", &more.to_string(), " more"]);
                 }
                 m.push(')');
                 (m, "no driver on this net".into())
@@ -151,5 +162,30 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             d = d.on_net(net_name_of(cx, *net));
         }
         out.push(d);
+    }
+}
+
+/// The most other pins a finding about an undriven net names; it counts the rest.
+const LISTED: usize = 8;
+
+/// The loads of each big net asked about, sorted once, to tell whether a pin is one of them
+/// without a walk of the net for each of its findings.
+#[derive(Default)]
+struct LoadsOf(rustc_hash::FxHashMap<usize, Vec<crate::circuit::PinRef>>);
+
+impl LoadsOf {
+    /// True when `at` is one of `nm`'s loads (`nm` is net `net`).
+    fn holds(
+        &mut self,
+        nm: &crate::circuit::NetModel,
+        net: usize,
+        at: crate::circuit::PinRef,
+    ) -> bool {
+        let sorted = self.0.entry(net).or_insert_with(|| {
+            let mut v: Vec<_> = nm.loads.iter().map(|l| l.at).collect();
+            v.sort_unstable();
+            v
+        });
+        sorted.binary_search(&at).is_ok()
     }
 }
