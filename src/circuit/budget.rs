@@ -1254,14 +1254,22 @@ mod tests {
   ))
 "#;
 
+    /// The test board read, classified and built into a circuit: binds its netlist and
+    /// circuit to the two names given.
+    macro_rules! test_board {
+        ($nl:ident, $cx:ident) => {
+            let rules = crate::classify::classifier::Rules::builtin();
+            let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+            let $nl = crate::netlist::build(&tree).expect("test board builds");
+            let cl = crate::classify::classifier::classify(&$nl, &rules);
+            let $cx = crate::circuit::build(&$nl, &cl, &rules, Default::default());
+        };
+    }
+
     /// Each budget item of the first driver of `net`, low state then high state: (kind of
     /// item, its words).
     fn words(net: &str) -> (Vec<String>, Vec<String>) {
-        let rules = crate::classify::classifier::Rules::builtin();
-        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
-        let nl = crate::netlist::build(&tree).expect("test board builds");
-        let cl = crate::classify::classifier::classify(&nl, &rules);
-        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        test_board!(nl, cx);
         let n = nl.net_by_name(net).expect("net on the test board");
         let b = net_budget(&cx, n);
         let db = &b.drivers[0];
@@ -1312,11 +1320,7 @@ mod tests {
     /// `fanout-overrun` counts inputs and inputs through a series part by the item's kind.
     #[test]
     fn items_say_whether_they_are_inputs_and_through_a_series_part() {
-        let rules = crate::classify::classifier::Rules::builtin();
-        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
-        let nl = crate::netlist::build(&tree).expect("test board builds");
-        let cl = crate::classify::classifier::classify(&nl, &rules);
-        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        test_board!(nl, cx);
         let n = nl.net_by_name("/BUS").expect("net");
         let b = net_budget(&cx, n);
         let low = b.drivers[0].items(&cx, n, true);
@@ -1336,11 +1340,7 @@ mod tests {
     /// driver does not have lists none.
     #[test]
     fn items_listed_when_asked_add_up_to_the_kept_totals() {
-        let rules = crate::classify::classifier::Rules::builtin();
-        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
-        let nl = crate::netlist::build(&tree).expect("test board builds");
-        let cl = crate::classify::classifier::classify(&nl, &rules);
-        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        test_board!(nl, cx);
         let mut states = 0;
         let all = Budgets::build(&cx);
         assert_eq!(all.len(), nl.nets.len());
@@ -1393,11 +1393,7 @@ mod tests {
     /// driver then load, from the driver's levels and the load's thresholds.
     #[test]
     fn margins_pair_each_driver_with_each_other_load() {
-        let rules = crate::classify::classifier::Rules::builtin();
-        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
-        let nl = crate::netlist::build(&tree).expect("test board builds");
-        let cl = crate::classify::classifier::classify(&nl, &rules);
-        let cx = crate::circuit::build(&nl, &cl, &rules, Default::default());
+        test_board!(nl, cx);
         let n = nl.net_by_name("/BUS").expect("net");
         let b = net_budget(&cx, n);
         let ms: Vec<LoadMargin> = b.margins(&cx, n).collect();
