@@ -640,26 +640,21 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     // the pin tables made so far, by the hash of what they follow from
     let mut pin_tables: rustc_hash::FxHashMap<u64, Vec<SeenPins>> = Default::default();
     // parts alike classify alike: each distinct part is classified once, the others copy it
-    let mut first_alike: rustc_hash::FxHashMap<Alike<'_, '_>, usize> = Default::default();
-    for c in &nl.components {
-        match first_alike.entry(Alike::of(nl, c)) {
-            std::collections::hash_map::Entry::Occupied(first) => {
-                let part = parts[*first.get()].clone();
-                if part.ic_like {
-                    ic_like += 1;
-                    if matches!(part.kind, PartKind::Logic | PartKind::NotLogic) {
-                        classified += 1;
-                    }
+    let mut alike = Alike::new(nl);
+    for (i, c) in nl.components.iter().enumerate() {
+        if let Some(first) = alike.first_of(i, c) {
+            let part = parts[first].clone();
+            if part.ic_like {
+                ic_like += 1;
+                if matches!(part.kind, PartKind::Logic | PartKind::NotLogic) {
+                    classified += 1;
                 }
-                if part.method == Method::FunctionSymbol {
-                    function_symbols += 1;
-                }
-                parts.push(part);
-                continue;
             }
-            std::collections::hash_map::Entry::Vacant(v) => {
-                v.insert(parts.len());
+            if part.method == Method::FunctionSymbol {
+                function_symbols += 1;
             }
+            parts.push(part);
+            continue;
         }
         let mut kind = kind_by_reference(nl, c);
         let mut method = Method::Reference;
@@ -892,27 +887,49 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
     }
 }
 
-/// A component by what its classification follows from: the letters of its reference, its
-/// value, footprint and library symbol (library, part, description), its logic family and
-/// function fields, and its pins' numbers, types and names. Two components equal in these
-/// classify alike. The texts are gathered once ([`Alike::of`]): hashing and each comparison
-/// read them, not the component's fields again.
+/// Components by what their classification follows from: the letters of the reference, the
+/// value, footprint and library symbol (library, part, description), the logic family and
+/// function fields, and the pins' numbers, types and names, in order. Two components equal in
+/// these classify alike: [`Alike::first_of`] gives the first one of each kind.
+///
+/// A component's key is written out as bytes (each text with its length, so no two keys
+/// run together), hashed in one piece and compared in full when the hashes agree; only each
+/// kind's first key is kept. The hash is keyed afresh for every run (std's `RandomState`:
+/// SipHash with random keys), and so is the table of pin texts, so a crafted file cannot
+/// choose components whose keys collide to make the look-ups quadratic. A pin enters the key
+/// as its type and one number, its (number, name) texts' number in a table of the distinct
+/// pairs: the texts of a library pin that names its pin are numbered once for all the pins
+/// drawn from it (parts alike are drawn from the same library pins), the others (a pin named
+/// by its node, a pin only the nets have) are looked up each time.
 struct Alike<'c, 'a> {
     nl: &'c Netlist<'a>,
-    c: &'c Component<'a>,
-    texts: AlikeTexts<'c>,
+    state: std::hash::RandomState,
+    /// Per library pin ([`crate::netlist::CompPin::lib_pin_number`]): its texts' number,
+    /// [`Alike::UNSET`] before it is met, [`Alike::FROM_NODE`] when its name is its node's.
+    lib_texts: Vec<u32>,
+    /// The distinct (number, name) texts of pins, numbered in the order met.
+    pin_texts: std::collections::HashMap<(&'c str, Option<&'c str>), u32, std::hash::RandomState>,
+    /// Each kind's first component: (hash, kind).
+    table: hashbrown::HashTable<(u64, u32)>,
+    /// Each kind's first component and where its key lies in `keys`.
+    kinds: Vec<(u32, std::ops::Range<usize>)>,
+    /// The kinds' keys, one after the other.
+    keys: Vec<u8>,
+    /// The key of the component being looked up.
+    buf: Vec<u8>,
 }
 
-/// [`Alike`]'s texts: reference letters, value, footprint, library symbol (library, part,
-/// description), logic family and function fields.
-type AlikeTexts<'c> = (
-    &'c str,
-    &'c str,
-    Option<&'c str>,
-    Option<(Option<&'c str>, Option<&'c str>, Option<&'c str>)>,
-    Option<&'c str>,
-    Option<&'c str>,
-);
+/// Writes an optional text into a key: a mark, then its length and its bytes.
+fn put_text(key: &mut Vec<u8>, t: Option<&str>) {
+    match t {
+        None => key.push(0),
+        Some(t) => {
+            key.push(1);
+            key.extend_from_slice(&(t.len() as u32).to_le_bytes());
+            key.extend_from_slice(t.as_bytes());
+        }
+    }
+}
 
 /// The text of an optional item.
 fn text<'t>(t: &'t Option<crate::netlist::Text<'_>>) -> Option<&'t str> {
@@ -920,46 +937,103 @@ fn text<'t>(t: &'t Option<crate::netlist::Text<'_>>) -> Option<&'t str> {
 }
 
 impl<'c, 'a> Alike<'c, 'a> {
-    fn of(nl: &'c Netlist<'a>, c: &'c Component<'a>) -> Alike<'c, 'a> {
+    const UNSET: u32 = u32::MAX;
+    const FROM_NODE: u32 = u32::MAX - 1;
+
+    fn new(nl: &'c Netlist<'a>) -> Alike<'c, 'a> {
+        Alike {
+            nl,
+            state: std::hash::RandomState::new(),
+            lib_texts: vec![Self::UNSET; nl.lib_pin_count()],
+            pin_texts: std::collections::HashMap::with_hasher(std::hash::RandomState::new()),
+            table: hashbrown::HashTable::new(),
+            kinds: Vec::new(),
+            keys: Vec::new(),
+            buf: Vec::new(),
+        }
+    }
+
+    /// The number of the texts (number, name) of pin `p`.
+    fn texts_of(&mut self, p: &crate::netlist::CompPin) -> u32 {
+        let nl = self.nl;
+        let lib = p.lib_pin_number();
+        if let Some(g) = lib {
+            let t = self.lib_texts[g as usize];
+            if t < Self::FROM_NODE {
+                return t;
+            }
+        }
+        let next = self.pin_texts.len() as u32;
+        let t = *self
+            .pin_texts
+            .entry((p.num(nl), p.name(nl)))
+            .or_insert(next);
+        if let Some(g) = lib {
+            if self.lib_texts[g as usize] == Self::UNSET {
+                // the texts are the library pin's own only when it names the pin
+                self.lib_texts[g as usize] = if nl.lib_pin(g).name.is_some() {
+                    t
+                } else {
+                    Self::FROM_NODE
+                };
+            }
+        }
+        t
+    }
+
+    /// The first component alike component `i` (`c`) in the order given, or `None` when `c`
+    /// is the first of its kind (it is then remembered as such).
+    fn first_of(&mut self, i: usize, c: &'c Component<'a>) -> Option<usize> {
+        use std::hash::{BuildHasher, Hasher};
         let field = |name| {
             c.field(name)
                 .and_then(|f| f.value.as_ref())
                 .map(|v| v.as_str())
         };
-        Alike {
-            nl,
-            c,
-            texts: (
-                ref_prefix(c.reference.as_str()),
-                c.value_str(),
-                text(&c.footprint),
-                c.libsource
-                    .as_ref()
-                    .map(|l| (text(&l.lib), text(&l.part), text(&l.description))),
-                field("Logic family"),
-                field("Logic function"),
-            ),
+        let mut key = std::mem::take(&mut self.buf);
+        key.clear();
+        put_text(&mut key, Some(ref_prefix(c.reference.as_str())));
+        put_text(&mut key, Some(c.value_str()));
+        put_text(&mut key, text(&c.footprint));
+        match &c.libsource {
+            None => key.push(0),
+            Some(l) => {
+                key.push(1);
+                put_text(&mut key, text(&l.lib));
+                put_text(&mut key, text(&l.part));
+                put_text(&mut key, text(&l.description));
+            }
         }
-    }
-}
-
-impl std::hash::Hash for Alike<'_, '_> {
-    fn hash<H: std::hash::Hasher>(&self, h: &mut H) {
-        self.texts.hash(h);
-        self.c.pins.len().hash(h);
-        for p in &self.c.pins {
-            (p.num(self.nl), p.ptype, p.name(self.nl)).hash(h);
+        put_text(&mut key, field("Logic family"));
+        put_text(&mut key, field("Logic function"));
+        key.extend_from_slice(&(c.pins.len() as u32).to_le_bytes());
+        for p in &c.pins {
+            let t = self.texts_of(p);
+            key.extend_from_slice(&t.to_le_bytes());
+            key.push(p.ptype as u8);
         }
+        let mut hasher = self.state.build_hasher();
+        hasher.write(&key);
+        let h = hasher.finish();
+        let (kinds, keys) = (&self.kinds, &self.keys);
+        let found = self.table.find(h, |&(kh, k)| {
+            kh == h && keys[kinds[k as usize].1.clone()] == key[..]
+        });
+        let first = match found {
+            Some(&(_, k)) => Some(self.kinds[k as usize].0 as usize),
+            None => {
+                let at = self.keys.len();
+                self.keys.extend_from_slice(&key);
+                let k = self.kinds.len() as u32;
+                self.kinds.push((i as u32, at..self.keys.len()));
+                self.table.insert_unique(h, (h, k), |&(kh, _)| kh);
+                None
+            }
+        };
+        self.buf = key;
+        first
     }
 }
-
-impl PartialEq for Alike<'_, '_> {
-    fn eq(&self, other: &Self) -> bool {
-        self.texts == other.texts && same_pins(self.nl, &self.c.pins, &other.c.pins)
-    }
-}
-
-impl Eq for Alike<'_, '_> {}
 
 /// A part whose pin table is kept for the parts alike that follow: what the table follows
 /// from, and the table.
@@ -1253,7 +1327,6 @@ mod tests {
     /// part of its own.
     #[test]
     fn parts_alike_classify_once_and_alike() {
-        use std::hash::BuildHasher;
         let text = r#"(export (version D)
   (components
     (comp (ref U1) (value 74HC00) (libsource (lib x) (part 74HC00)))
@@ -1274,16 +1347,18 @@ mod tests {
         let nl = crate::netlist::read(text).expect("reads");
         assert_eq!(nl.components.len(), 6);
         let c = &nl.components;
-        let hash = |a: &super::Alike<'_, '_>| rustc_hash::FxBuildHasher.hash_one(a);
-        let (u1, u2) = (super::Alike::of(&nl, &c[0]), super::Alike::of(&nl, &c[1]));
-        assert!(u1 == u2 && hash(&u1) == hash(&u2));
+        let mut alike = super::Alike::new(&nl);
+        assert_eq!(alike.first_of(0, &c[0]), None);
+        assert_eq!(alike.first_of(1, &c[1]), Some(0));
         for (i, why) in [
             (2, "reference letters"),
             (3, "value"),
             (4, "logic family field"),
             (5, "library and pin name"),
         ] {
-            assert!(u1 != super::Alike::of(&nl, &c[i]), "{why}");
+            assert_eq!(alike.first_of(i, &c[i]), None, "{why}");
+            // and is remembered as the first of its kind
+            assert_eq!(alike.first_of(i + 10, &c[i]), Some(i), "{why}");
         }
         let rules = super::Rules::shipped();
         let cl = super::classify(&nl, rules);

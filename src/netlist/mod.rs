@@ -143,6 +143,12 @@ impl CompPin {
             no_connect,
         }
     }
+    /// The library pin's number in the netlist's numbering of all library parts' pins
+    /// (below [`Netlist::lib_pin_count`]; read it with [`Netlist::lib_pin`]), `None` for a
+    /// pin only the nets name. Pins of one library pin share it.
+    pub fn lib_pin_number(&self) -> Option<u32> {
+        (self.libpin != NONE).then_some(self.libpin)
+    }
     /// Index into the component's library part's pins.
     pub fn libpin(&self, nl: &Netlist<'_>) -> Option<u32> {
         (self.libpin != NONE).then(|| nl.lib_pin_of(self.libpin).1)
@@ -406,6 +412,15 @@ impl<'a> Netlist<'a> {
     #[inline]
     fn lib_pin_of(&self, g: u32) -> (u32, u32) {
         self.lib_pin_part[g as usize]
+    }
+    /// How many library pins all library parts have ([`CompPin::lib_pin_number`]).
+    pub fn lib_pin_count(&self) -> usize {
+        self.lib_pin_part.len()
+    }
+    /// The library pin numbered `g` ([`CompPin::lib_pin_number`]).
+    pub fn lib_pin(&self, g: u32) -> &LibPin<'a> {
+        let (part, pin) = self.lib_pin_of(g);
+        &self.libparts[part as usize].pins[pin as usize]
     }
     /// Numbers every library part's pins in one sequence, for [`CompPin`].
     pub(crate) fn number_lib_pins(&mut self) {
