@@ -14,7 +14,7 @@ use serde::Serialize;
 use crate::source::{SourceFile, Span};
 
 mod list;
-pub use list::{cmp_parts, Around, DiagList, DiagRef, LabelRef, Labels, Raw};
+pub use list::{cmp_parts, Around, DiagList, DiagRef, LabelRef, Labels, Raw, RawShared, SharedId};
 
 /// How serious a diagnostic is. Ordered: `Info < Warning < Error`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]

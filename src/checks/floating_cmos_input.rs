@@ -42,8 +42,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             let n = pins.len();
             let absent = g.inputs.iter().all(|f| matches!(f.why, Float::Absent));
             GateWords::new(
+                out,
                 cx,
                 &g,
+                INFO.id,
                 &format!(
                     "{}: {}{}",
                     agree(n, "its CMOS input floats", "its CMOS inputs float"),
@@ -71,7 +73,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             cx,
             &g,
             crate::diag::Severity::Error,
-            "floating-cmos-input",
             words,
         );
     }

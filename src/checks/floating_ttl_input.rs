@@ -52,8 +52,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             let list = pin_list(ctx, &pins);
             let n = pins.len();
             GateWords::new(
+                out,
                 cx,
                 &g,
+                INFO.id,
                 &format!(
                     "{}: {} {} high{} and {} up noise",
                     agree(n, "its TTL input is open", "its TTL inputs are open"),
@@ -74,7 +76,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             cx,
             &g,
             crate::diag::Severity::Warning,
-            "floating-ttl-input",
             words,
         );
     }

@@ -220,7 +220,15 @@ fn sort_in_file_order(out: &mut DiagList) {
                     (d.code(), d.message_parts(), k)
                 })
                 .collect();
-            run.sort_by(|a, b| a.0.cmp(b.0).then_with(|| crate::diag::cmp_parts(a.1, b.1)));
+            // a code is one shared text: the same text is not compared byte by byte
+            run.sort_by(|a, b| {
+                let code = if std::ptr::eq(a.0, b.0) {
+                    std::cmp::Ordering::Equal
+                } else {
+                    a.0.cmp(b.0)
+                };
+                code.then_with(|| crate::diag::cmp_parts(a.1, b.1))
+            });
             for (slot, (.., k)) in order[i..j].iter_mut().zip(run) {
                 *slot = k;
             }

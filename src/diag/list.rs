@@ -76,6 +76,34 @@ pub struct DiagList {
     /// The last text shared and its number, by its address and length: findings in a row say
     /// the same fixed words, found again with no hashing.
     last: [(usize, usize, u32); SLOTS],
+    /// This list's mark in its [`SharedId`]s (0 until the first is given).
+    token: u32,
+}
+
+/// A text shared once in a list ([`DiagList::share_id`]) and given by number to the findings
+/// pushed into it afterwards ([`DiagList::push_shared`]): no text is looked up per finding.
+/// It holds the mark of the list that gave it, and only that list (or a copy of it) takes it.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SharedId {
+    list: u32,
+    id: u32,
+}
+
+/// The marks of lists that gave out [`SharedId`]s.
+static TOKENS: std::sync::atomic::AtomicU32 = std::sync::atomic::AtomicU32::new(1);
+
+/// What a finding written straight into a list with its shared texts given by number
+/// ([`DiagList::push_shared`]) says besides its pins and places.
+#[derive(Debug, Clone)]
+pub struct RawShared<'t> {
+    pub code: SharedId,
+    pub severity: Severity,
+    /// The message: `head`, `own`, `tail`.
+    pub head: Option<SharedId>,
+    pub own: &'t str,
+    pub tail: Option<SharedId>,
+    pub help: Option<SharedId>,
+    pub net: Option<&'t str>,
 }
 
 /// Texts remembered by address: the code, the help, the message's head and tail, the first
@@ -99,6 +127,12 @@ pub fn cmp_parts(a: [&str; 3], b: [&str; 3]) -> std::cmp::Ordering {
             (false, true) => return std::cmp::Ordering::Less,
             (true, false) => return std::cmp::Ordering::Greater,
             _ => {}
+        }
+        // one text on both sides (the shared words of findings alike): passed over unread
+        if std::ptr::eq(a[i], b[j]) {
+            i += 1;
+            j += 1;
+            continue;
         }
         let n = a[i].len().min(b[j].len());
         match a[i][..n].cmp(&b[j][..n]) {
@@ -208,6 +242,19 @@ impl DiagList {
         if (p, l) == key && id != 0 {
             return id - 1;
         }
+        let id = self.intern(s, owned);
+        // a text held by the list keeps its address: remember it by that
+        if let Some(t) = owned.filter(|t| matches!(t, Text::Fixed(_))) {
+            self.last[slot] = (t.as_ptr() as usize, t.len(), id + 1);
+        } else {
+            let held = &self.shared[id as usize];
+            self.last[slot] = (held.as_ptr() as usize, held.len(), id + 1);
+        }
+        id
+    }
+
+    /// The number of the shared text `s`, found by content (added the first time).
+    fn intern(&mut self, s: &str, owned: Option<&Text>) -> u32 {
         let h = hash(s);
         let shared = &self.shared;
         let id = match self.index.find(h, |&i| &*shared[i as usize] == s) {
@@ -225,14 +272,25 @@ impl DiagList {
                 i
             }
         };
-        // a text held by the list keeps its address: remember it by that
-        if let Some(t) = owned.filter(|t| matches!(t, Text::Fixed(_))) {
-            self.last[slot] = (t.as_ptr() as usize, t.len(), id + 1);
-        } else {
-            let held = &self.shared[id as usize];
-            self.last[slot] = (held.as_ptr() as usize, held.len(), id + 1);
-        }
         id
+    }
+
+    /// Shares `t` once in the list and gives its number, for the findings pushed with
+    /// [`DiagList::push_shared`].
+    pub fn share_id(&mut self, t: &Text) -> SharedId {
+        if self.token == 0 {
+            self.token = TOKENS.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+        }
+        SharedId {
+            list: self.token,
+            id: self.intern(t, Some(t)),
+        }
+    }
+
+    /// The number in this list of a text it gave out.
+    fn shared_id(&self, s: SharedId) -> u32 {
+        assert_eq!(s.list, self.token, "a shared text of another list");
+        s.id
     }
 
     fn share_cow(&mut self, s: &Cow<'static, str>, slot: usize) -> u32 {
@@ -329,26 +387,7 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
         labels: impl IntoIterator<Item = (Span, &'static str, bool)>,
     ) {
-        let (start, first_label) = self.begin();
-        let message = self.own(Some(raw.own));
-        let net = self.own(raw.net);
-        let text = self.text_mut();
-        let pins_at = text.len();
-        let mut any = false;
-        for p in pins {
-            if any {
-                text.push(super::PIN_SEP);
-            }
-            any = true;
-            for piece in p {
-                text.push_str(piece);
-            }
-        }
-        let pins = if any {
-            (text.len() - pins_at) as u32
-        } else {
-            NONE
-        };
+        let (start, first_label, message, net, pins) = self.begin_raw(raw.own, raw.net, pins);
         let code = self.share(raw.code, Some(&Text::Fixed(raw.code)), 0);
         let help = raw.help.map(|h| self.share(h, Some(h), 1));
         let head = raw.around.head.map(|t| self.share(t, Some(t), 2));
@@ -371,6 +410,75 @@ impl DiagList {
             labels: n,
             severity: raw.severity,
         });
+    }
+
+    /// Adds a finding written straight into the list as [`DiagList::push_raw`] does, its
+    /// shared texts given by the numbers the list gave them ([`DiagList::share_id`]): no
+    /// text is looked up.
+    pub fn push_shared<'p>(
+        &mut self,
+        raw: RawShared<'_>,
+        pins: impl IntoIterator<Item = [&'p str; 3]>,
+        labels: impl IntoIterator<Item = (Span, SharedId, bool)>,
+    ) {
+        let (start, first_label, message, net, pins) = self.begin_raw(raw.own, raw.net, pins);
+        let mut n = 0u16;
+        for (span, text, primary) in labels {
+            let text = self.shared_id(text);
+            self.push_label(span, text, primary, &mut n);
+        }
+        let id = |s: Option<SharedId>| s.map_or(NONE, |s| self.shared_id(s));
+        let (code, help, head, tail) = (
+            self.shared_id(raw.code),
+            id(raw.help),
+            id(raw.head),
+            id(raw.tail),
+        );
+        self.push_rec(Rec {
+            start,
+            message,
+            net,
+            pins,
+            code,
+            help,
+            head,
+            tail,
+            first_label,
+            labels: n,
+            severity: raw.severity,
+        });
+    }
+
+    /// Starts a finding written straight into the list: its own words, net and pins (each
+    /// as pieces joined). Gives where its texts start, its first place and the lengths of
+    /// its message, net and pins.
+    fn begin_raw<'p>(
+        &mut self,
+        own: &str,
+        net: Option<&str>,
+        pins: impl IntoIterator<Item = [&'p str; 3]>,
+    ) -> (u64, u32, u32, u32, u32) {
+        let (start, first_label) = self.begin();
+        let message = self.own(Some(own));
+        let net = self.own(net);
+        let text = self.text_mut();
+        let pins_at = text.len();
+        let mut any = false;
+        for p in pins {
+            if any {
+                text.push(super::PIN_SEP);
+            }
+            any = true;
+            for piece in p {
+                text.push_str(piece);
+            }
+        }
+        let pins = if any {
+            (text.len() - pins_at) as u32
+        } else {
+            NONE
+        };
+        (start, first_label, message, net, pins)
     }
 
     /// Adds a copy of a finding read from another list (or a single one).
@@ -1067,6 +1175,72 @@ mod tests {
             (false, 0, None)
         );
         assert_eq!(last.to_diag(), Diag::info(A, "m"));
+    }
+
+    #[test]
+    fn a_finding_pushed_with_shared_numbers_reads_as_one_pushed() {
+        let d = Diag::error(A, "gate A of U1 (74HC00) is unused")
+            .at(Span::new(1, 2), "unused gate")
+            .also(Span::new(3, 4), "")
+            .with_help("tie it")
+            .with_pins(["U1.1", "U1.2"]);
+        let mut list = DiagList::new();
+        // a finding pushed before, whose texts the numbers must not be confused with
+        list.push(Diag::warning("code-b", "other").with_help("not this"));
+        let code = list.share_id(&Text::Fixed(A));
+        let head = list.share_id(&Text::from(String::from("gate A of ")));
+        let tail = list.share_id(&Text::from(String::from(" (74HC00) is unused")));
+        let help = list.share_id(&Text::Fixed("tie it"));
+        let (first, other) = (
+            list.share_id(&Text::Fixed("unused gate")),
+            list.share_id(&Text::Fixed("")),
+        );
+        // the same text shared again has the same number
+        assert_eq!(list.share_id(&Text::from(String::from("tie it"))), help);
+        assert_ne!(head, tail);
+        for own in ["U1", "U2"] {
+            list.push_shared(
+                RawShared {
+                    code,
+                    severity: Severity::Error,
+                    head: Some(head),
+                    own,
+                    tail: Some(tail),
+                    help: Some(help),
+                    net: None,
+                },
+                [[own, ".", "1"], [own, ".", "2"]],
+                [(Span::new(1, 2), first, true), (Span::new(3, 4), other, false)],
+            );
+        }
+        assert_eq!(list.len(), 3);
+        assert_eq!(list.get(1).unwrap(), d.view());
+        let second = list.get(2).unwrap();
+        assert_eq!(second.message(), "gate A of U2 (74HC00) is unused");
+        assert_eq!(second.pins().collect::<Vec<_>>(), ["U2.1", "U2.2"]);
+        assert_eq!(list.get(0).unwrap().help(), Some("not this"));
+    }
+
+    #[test]
+    #[should_panic(expected = "another list")]
+    fn a_shared_number_of_another_list_is_refused() {
+        let mut one = DiagList::new();
+        let mut two = DiagList::new();
+        let _ = two.share_id(&Text::Fixed("x"));
+        let code = one.share_id(&Text::Fixed(A));
+        two.push_shared(
+            RawShared {
+                code,
+                severity: Severity::Info,
+                head: None,
+                own: "m",
+                tail: None,
+                help: None,
+                net: None,
+            },
+            [],
+            [],
+        );
     }
 
     #[test]
