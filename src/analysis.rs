@@ -252,7 +252,13 @@ impl<'a> Analysis<'a> {
     /// The project mapping entries, families and functions the classification used.
     pub fn used(&self) -> UsedRules {
         let mut used = UsedRules::default();
+        // parts alike share one classification: each is read once
+        let mut seen: rustc_hash::FxHashSet<*const crate::classify::classifier::PartClass> =
+            Default::default();
         for p in &self.cl.parts {
+            if !seen.insert(std::sync::Arc::as_ptr(p)) {
+                continue;
+            }
             if let Some(e) = p.entry {
                 used.entries.push(e);
             }

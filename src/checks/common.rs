@@ -4,7 +4,7 @@ use super::Context;
 use crate::circuit::Circuit;
 use crate::circuit::PinRef;
 use crate::classify::PinRole;
-use crate::diag::{Around, DiagList, PinList, PinListWriter, Raw, Severity, Text};
+use crate::diag::{DiagList, PinList, PinListWriter, RawShared, Severity, SharedId, Text};
 use crate::netlist::Connection;
 
 /// Why an input floats.
@@ -138,13 +138,15 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
         if found.is_empty() {
             continue;
         }
-        // stable: pin order within a unit
-        found.sort_by(|a, b| a.0.cmp(&b.0));
+        // stable: pin order within a unit (a part's inputs mostly come unit by unit already)
+        if !found.is_sorted_by(|a, b| !unit_after(a.0, b.0)) {
+            found.sort_by(|a, b| a.0.cmp(&b.0));
+        }
         let mut i = 0;
         while i < found.len() {
             let unit = found[i].0;
             let mut j = i + 1;
-            while j < found.len() && found[j].0 == unit {
+            while j < found.len() && same_unit(found[j].0, unit) {
                 j += 1;
             }
             let group = found[i..j].iter().map(|(_, f)| f.clone());
@@ -158,7 +160,7 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
             let mut outputs_unused = true;
             let outputs_from = out.gate_outputs.len();
             for k in 0..c.pins.len() {
-                if part.units[k].as_deref() != Some(unit) {
+                if !same_unit(part.units[k].as_deref(), Some(unit)) {
                     continue;
                 }
                 if is_logic_input(roles[k]) {
@@ -181,6 +183,26 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
         }
     }
     out
+}
+
+/// Whether two units' names are the same. A part's units are shared texts, so the same name
+/// is mostly the same text, and different ones mostly differ in their first letter: the
+/// bytes are compared only when neither tells.
+#[inline]
+fn same_unit(a: Option<&str>, b: Option<&str>) -> bool {
+    match (a, b) {
+        (Some(a), Some(b)) => {
+            std::ptr::eq(a, b)
+                || (a.len() == b.len() && a.as_bytes().first() == b.as_bytes().first() && a == b)
+        }
+        (a, b) => a.is_none() && b.is_none(),
+    }
+}
+
+/// Whether unit `a` sorts after unit `b` (no unit first, then by name).
+#[inline]
+fn unit_after(a: Option<&str>, b: Option<&str>) -> bool {
+    !same_unit(a, b) && a > b
 }
 
 /// What the words of an unused gate's finding follow from, beside its part's reference and
@@ -220,40 +242,89 @@ impl<'n> GateKey<'n> {
 
 /// Words made once per key and shared by every finding that is given them (one text for
 /// all the parts of a kind).
-pub struct Words<K, V>(rustc_hash::FxHashMap<K, V>);
+///
+/// The keys asked for last are tried first, with no hashing: a part's gates ask for their
+/// words in turn, and the next part of the kind asks for the same ones again.
+pub struct Words<K, V> {
+    items: Vec<(K, V)>,
+    /// Each key's place in `items`.
+    index: rustc_hash::FxHashMap<K, usize>,
+    /// The places asked for last, the latest first (`usize::MAX`: none).
+    recent: [usize; RECENT],
+}
 
-impl<K: std::hash::Hash + Eq, V> Words<K, V> {
+/// How many keys [`Words`] remembers as asked for last (a part has up to eight gates).
+const RECENT: usize = 8;
+
+impl<K: std::hash::Hash + Eq + Clone, V> Words<K, V> {
     pub fn new() -> Words<K, V> {
-        Words(Default::default())
+        Words {
+            items: Vec::new(),
+            index: Default::default(),
+            recent: [usize::MAX; RECENT],
+        }
     }
 
     /// The words for `key`, made by `make` the first time it is asked.
     pub fn get(&mut self, key: K, make: impl FnOnce() -> V) -> &V {
-        self.0.entry(key).or_insert_with(make)
+        let known = self
+            .recent
+            .iter()
+            .position(|&i| i != usize::MAX && self.items[i].0 == key);
+        let i = match known {
+            Some(r) => {
+                let i = self.recent[r];
+                self.recent.copy_within(0..r, 1);
+                self.recent[0] = i;
+                return &self.items[i].1;
+            }
+            None => match self.index.get(&key) {
+                Some(&i) => i,
+                None => {
+                    let i = self.items.len();
+                    self.index.insert(key.clone(), i);
+                    self.items.push((key, make()));
+                    i
+                }
+            },
+        };
+        self.recent.copy_within(0..RECENT - 1, 1);
+        self.recent[0] = i;
+        &self.items[i].1
     }
 }
 
-/// The words of an unused gate's finding that parts alike share: the message before the
-/// part's reference and after it, and the help.
+/// The words of an unused gate's finding that parts alike share, each shared once in the
+/// findings list and given to every finding by number: the code, the message before the
+/// part's reference and after it, the help, and the places' words.
 pub struct GateWords {
-    head: Text,
-    tail: Text,
-    help: Text,
+    code: SharedId,
+    head: SharedId,
+    tail: SharedId,
+    help: SharedId,
+    first: SharedId,
+    other: SharedId,
 }
 
 impl GateWords {
-    /// The words for `g`: "gate B of {reference} (74HC00) is unused and {tail}", and `help`.
+    /// The words for `g` reported under `code` in `out`: "gate B of {reference} (74HC00) is
+    /// unused and {tail}", and `help`.
     pub fn new(
+        out: &mut DiagList,
         cx: &Circuit<'_, '_>,
         g: &UnusedGate<'_, '_>,
+        code: &'static str,
         tail: &str,
         help: String,
     ) -> GateWords {
         let c = &cx.nl.components[g.comp];
         GateWords {
-            head: concat(&["gate ", g.unit, " of "]).into(),
-            tail: concat(&[" (", c.value_str(), ") is unused and ", tail]).into(),
-            help: help.into(),
+            code: out.share_id(&Text::Fixed(code)),
+            head: out.share_id(&concat(&["gate ", g.unit, " of "]).into()),
+            tail: out.share_id(&concat(&[" (", c.value_str(), ") is unused and ", tail]).into()),
+            help: out.share_id(&help.into()),
+            first: out.share_id(&Text::Fixed("unused gate")),
+            other: out.share_id(&Text::Fixed("")),
         }
     }
 }
@@ -261,27 +332,24 @@ impl GateWords {
 /// The finding for an unused gate whose inputs float: "gate B of U1 (74HC00) is unused and
 /// {tail}", at its first floating input (labelled "unused gate"), its other inputs beside it,
 /// its pins listed, with the words the caller made for parts alike ([`GateWords`], of the
-/// same key: its reference is the finding's only words of its own).
+/// same key, shared in `out`: its reference is the finding's only words of its own).
 pub fn push_unused_gate(
     out: &mut DiagList,
     cx: &Circuit<'_, '_>,
     g: &UnusedGate<'_, '_>,
     severity: Severity,
-    code: &'static str,
     words: &GateWords,
 ) {
     let c = &cx.nl.components[g.comp];
     let reference = c.reference.as_str();
-    out.push_raw(
-        Raw {
-            code,
+    out.push_shared(
+        RawShared {
+            code: words.code,
             severity,
-            around: Around {
-                head: Some(&words.head),
-                tail: Some(&words.tail),
-            },
+            head: Some(words.head),
             own: reference,
-            help: Some(&words.help),
+            tail: Some(words.tail),
+            help: Some(words.help),
             net: None,
         },
         g.inputs
@@ -289,7 +357,7 @@ pub fn push_unused_gate(
             .map(|f| [reference, ".", c.pins[f.at.pin].num(cx.nl)]),
         // one place per input: the first input's, then the others beside it
         g.inputs.iter().enumerate().map(|(i, f)| {
-            let text = if i == 0 { "unused gate" } else { "" };
+            let text = if i == 0 { words.first } else { words.other };
             (cx.pin_span(f.at), text, i == 0)
         }),
     );
@@ -446,6 +514,42 @@ pub fn pct(x: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::agree;
+
+    /// Words are made once per key, and each key gets its own, however the keys are asked
+    /// for (in turn, again and again, more than are remembered as recent).
+    #[test]
+    fn words_asked_in_any_order_are_made_once_per_key() {
+        let mut words = super::Words::new();
+        let mut made = 0;
+        let order: Vec<u32> = (0..200)
+            .map(|i| [i % 3, i % 11, (i * 7) % 13][i as usize % 3])
+            .collect();
+        for &k in &order {
+            let w = words.get(k, || {
+                made += 1;
+                format!("w{k}")
+            });
+            assert_eq!(*w, format!("w{k}"));
+        }
+        let distinct: std::collections::HashSet<u32> = order.iter().copied().collect();
+        assert_eq!(made, distinct.len());
+    }
+
+    /// Units compare as their names do, whether or not they are one text.
+    #[test]
+    fn units_compare_by_name() {
+        use super::{same_unit, unit_after};
+        let a = String::from("A");
+        let a2 = String::from("A");
+        let (b, ab) = (String::from("B"), String::from("AB"));
+        let units = [None, Some(a.as_str()), Some(a2.as_str()), Some(b.as_str()), Some(ab.as_str()), Some("")];
+        for x in units {
+            for y in units {
+                assert_eq!(same_unit(x, y), x == y, "{x:?} {y:?}");
+                assert_eq!(unit_after(x, y), x > y, "{x:?} {y:?}");
+            }
+        }
+    }
 
     /// The list as it was built before (items joined with `, ` and a final ` and `).
     fn joined(items: &[&str]) -> String {

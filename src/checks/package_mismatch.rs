@@ -24,6 +24,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 };
 
 use super::Context;
+use crate::classify::classifier::PartClass;
 use crate::diag::Diag;
 
 /// Dual-row package families whose pin count is the chip's DIP pin count.
@@ -107,12 +108,14 @@ pub fn disagreement(
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
+    // what a kind of part's footprint says, worked out once per kind: its classification
+    // (shared by parts alike), its symbol and its footprint
+    type Said<'f> = Option<(&'f crate::classify::function::Function, Stated)>;
+    let mut by_kind: rustc_hash::FxHashMap<(*const PartClass, Option<u32>, Option<&str>), Said> =
+        Default::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];
         let Some((series, id)) = &part.function else {
-            continue;
-        };
-        let Some(func) = cx.rules.functions.get(*series, id) else {
             continue;
         };
         let fp = c
@@ -120,17 +123,23 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             .as_ref()
             .map(|f| f.as_str())
             .filter(|f| !f.trim().is_empty());
-        let filters: Vec<&str> = c
-            .libpart
-            .map(|lp| {
-                cx.nl.libparts[lp as usize]
-                    .footprints
-                    .iter()
-                    .map(|t| t.as_str())
-                    .collect()
-            })
-            .unwrap_or_default();
-        let Some(stated) = disagreement(fp, &filters, func.package_pins) else {
+        let said = by_kind
+            .entry((std::sync::Arc::as_ptr(part), c.libpart, fp))
+            .or_insert_with(|| {
+                let func = cx.rules.functions.get(*series, id)?;
+                let filters: Vec<&str> = c
+                    .libpart
+                    .map(|lp| {
+                        cx.nl.libparts[lp as usize]
+                            .footprints
+                            .iter()
+                            .map(|t| t.as_str())
+                            .collect()
+                    })
+                    .unwrap_or_default();
+                Some((func, disagreement(fp, &filters, func.package_pins)?))
+            });
+        let Some((func, stated)) = said.clone() else {
             continue;
         };
         let value = c.value_str();

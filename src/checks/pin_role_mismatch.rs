@@ -30,7 +30,7 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
 
 use super::Context;
 use crate::circuit::PinRef;
-use crate::classify::classifier::{is_ground_name, RoleSource};
+use crate::classify::classifier::{is_ground_name_upper, RoleSource};
 use crate::classify::PinRole;
 use crate::diag::Diag;
 use crate::netlist::PinType;
@@ -77,7 +77,7 @@ pub fn names_disagree(role: PinRole, name: Option<&str>) -> bool {
     };
     let up = n.to_ascii_uppercase();
     let supply = up.starts_with("VCC") || up.starts_with("VDD");
-    let ground = is_ground_name(n) && up != "COM";
+    let ground = is_ground_name_upper(&up) && up != "COM";
     match role {
         PinRole::Supply => ground,
         PinRole::Ground => supply,
@@ -161,27 +161,39 @@ pub fn likely_cause(pairs: &[(PinType, PinRole)]) -> &'static str {
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
+    // the pins whose symbol disagrees with the table, found once per kind of part: parts
+    // that share one classification are alike in their pins' types and names
+    let mut by_kind: rustc_hash::FxHashMap<*const crate::classify::classifier::PartClass, Vec<usize>> =
+        Default::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];
         if part.function.is_none() {
             continue;
         }
-        let mut bad: Vec<usize> = Vec::new();
-        for (pi, p) in c.pins.iter().enumerate() {
-            if part.role_source[pi] != RoleSource::Table || p.ptype == PinType::Unknown {
-                continue;
+        let disagreeing = || {
+            let mut bad: Vec<usize> = Vec::new();
+            for (pi, p) in c.pins.iter().enumerate() {
+                if part.role_source[pi] != RoleSource::Table || p.ptype == PinType::Unknown {
+                    continue;
+                }
+                let role = part.roles[pi];
+                if extra_supply(role, p.ptype, part.table_names[pi].as_deref()) {
+                    continue;
+                }
+                if !types_agree(role, p.ptype) || names_disagree(role, p.name(cx.nl)) {
+                    bad.push(pi);
+                }
             }
-            let role = part.roles[pi];
-            if extra_supply(role, p.ptype, part.table_names[pi].as_deref()) {
-                continue;
-            }
-            if !types_agree(role, p.ptype) || names_disagree(role, p.name(cx.nl)) {
-                bad.push(pi);
-            }
-        }
+            bad
+        };
+        let bad = by_kind
+            .entry(std::sync::Arc::as_ptr(part))
+            .or_insert_with(disagreeing);
+        debug_assert_eq!(*bad, disagreeing());
         if bad.is_empty() {
             continue;
         }
+        let bad = bad.clone();
         let value = c.value_str();
         // groups of (symbol type, table role), in pin order of their first pin
         let mut groups: Vec<((PinType, PinRole), Vec<usize>)> = Vec::new();

@@ -159,7 +159,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             if part.role_source[pi] != RoleSource::Table && p.ptype == PinType::PowerOut {
                 continue; // a power output makes its own rail
             }
-            let Some(side) = side_of(part.roles[pi], part.role_source[pi], p.name(cx.nl)) else {
+            // a table's role says the side alone: the name is read only for other pins
+            let source = part.role_source[pi];
+            let name = if source == RoleSource::Table {
+                None
+            } else {
+                p.name(cx.nl)
+            };
+            let Some(side) = side_of(part.roles[pi], source, name) else {
                 continue;
             };
             let at = PinRef { comp: ci, pin: pi };

@@ -63,23 +63,37 @@ pub fn power_unit_unplaced(found: &[Missing], power_pins: usize) -> bool {
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
+    // a kind of part's power pins (its function's, in pin order, each with the index of the
+    // symbol's pin of that number), found once per kind: parts that share one classification
+    // are alike in their function and their pins' numbers, in order
+    type Power<'f> = Option<Vec<(&'f PinDef, Option<usize>)>>;
+    let mut by_kind: rustc_hash::FxHashMap<*const crate::classify::classifier::PartClass, Power> =
+        Default::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];
         if !part.is_logic() {
             continue;
         }
-        let Some(func) = part
-            .function
-            .as_ref()
-            .and_then(|(s, id)| cx.rules.functions.get(*s, id))
-        else {
+        let power = by_kind.entry(std::sync::Arc::as_ptr(part)).or_insert_with(|| {
+            let func = part
+                .function
+                .as_ref()
+                .and_then(|(s, id)| cx.rules.functions.get(*s, id))?;
+            let mut power: Vec<&PinDef> = func.supply_pins().chain(func.ground_pins()).collect();
+            power.sort_by_key(|d| d.pin.parse::<u32>().unwrap_or(u32::MAX));
+            Some(
+                power
+                    .into_iter()
+                    .map(|d| (d, c.pins.iter().position(|p| p.num(cx.nl) == d.pin)))
+                    .collect(),
+            )
+        });
+        let Some(power) = power.as_ref() else {
             continue;
         };
-        let mut power: Vec<&PinDef> = func.supply_pins().chain(func.ground_pins()).collect();
-        power.sort_by_key(|d| d.pin.parse::<u32>().unwrap_or(u32::MAX));
         let mut found: Vec<(&PinDef, Missing, Option<usize>)> = Vec::new();
-        for d in &power {
-            let idx = c.pins.iter().position(|p| p.num(cx.nl) == d.pin);
+        for &(d, idx) in power {
+            debug_assert_eq!(idx, c.pins.iter().position(|p| p.num(cx.nl) == d.pin));
             // alone on a rail net (one power symbol on one chip): on that rail
             if let Some(Connection::Alone { net, .. }) = idx.map(|i| c.pins[i].connection) {
                 if cx.nets[net as usize].rail.is_some() {
