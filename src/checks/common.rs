@@ -242,55 +242,16 @@ impl<'n> GateKey<'n> {
 
 /// Words made once per key and shared by every finding that is given them (one text for
 /// all the parts of a kind).
-///
-/// The keys asked for last are tried first, with no hashing: a part's gates ask for their
-/// words in turn, and the next part of the kind asks for the same ones again.
-pub struct Words<K, V> {
-    items: Vec<(K, V)>,
-    /// Each key's place in `items`.
-    index: rustc_hash::FxHashMap<K, usize>,
-    /// The places asked for last, the latest first (`usize::MAX`: none).
-    recent: [usize; RECENT],
-}
+pub struct Words<K, V>(rustc_hash::FxHashMap<K, V>);
 
-/// How many keys [`Words`] remembers as asked for last (a part has up to eight gates).
-const RECENT: usize = 8;
-
-impl<K: std::hash::Hash + Eq + Clone, V> Words<K, V> {
+impl<K: std::hash::Hash + Eq, V> Words<K, V> {
     pub fn new() -> Words<K, V> {
-        Words {
-            items: Vec::new(),
-            index: Default::default(),
-            recent: [usize::MAX; RECENT],
-        }
+        Words(Default::default())
     }
 
     /// The words for `key`, made by `make` the first time it is asked.
     pub fn get(&mut self, key: K, make: impl FnOnce() -> V) -> &V {
-        let known = self
-            .recent
-            .iter()
-            .position(|&i| i != usize::MAX && self.items[i].0 == key);
-        let i = match known {
-            Some(r) => {
-                let i = self.recent[r];
-                self.recent.copy_within(0..r, 1);
-                self.recent[0] = i;
-                return &self.items[i].1;
-            }
-            None => match self.index.get(&key) {
-                Some(&i) => i,
-                None => {
-                    let i = self.items.len();
-                    self.index.insert(key.clone(), i);
-                    self.items.push((key, make()));
-                    i
-                }
-            },
-        };
-        self.recent.copy_within(0..RECENT - 1, 1);
-        self.recent[0] = i;
-        &self.items[i].1
+        self.0.entry(key).or_insert_with(make)
     }
 }
 
@@ -514,26 +475,6 @@ pub fn pct(x: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::agree;
-
-    /// Words are made once per key, and each key gets its own, however the keys are asked
-    /// for (in turn, again and again, more than are remembered as recent).
-    #[test]
-    fn words_asked_in_any_order_are_made_once_per_key() {
-        let mut words = super::Words::new();
-        let mut made = 0;
-        let order: Vec<u32> = (0..200)
-            .map(|i| [i % 3, i % 11, (i * 7) % 13][i as usize % 3])
-            .collect();
-        for &k in &order {
-            let w = words.get(k, || {
-                made += 1;
-                format!("w{k}")
-            });
-            assert_eq!(*w, format!("w{k}"));
-        }
-        let distinct: std::collections::HashSet<u32> = order.iter().copied().collect();
-        assert_eq!(made, distinct.len());
-    }
 
     /// Units compare as their names do, whether or not they are one text.
     #[test]

@@ -124,6 +124,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 let nm = &cx.nets[net];
                 // the other pins on the net, written in place
                 let mut m = cx.describe(f.at);
+                // room for the words and the pins named below at once (the message is
+                // copied into the findings list and dropped)
+                m.reserve(256);
                 push_all(&mut m, &[" is on net `", &net_name_of(cx, net), "`, which nothing drives: no output, rail or pull resistor (only "]);
                 let mut others = nm
                     .loads

@@ -126,7 +126,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         };
         let no_symbol = c.libpart.is_none();
         let all_missing = kinds.iter().all(|m| *m == Missing::NoSuchPin);
-        let mut what = String::new();
+        // room for the usual message and help at once (both are copied into the findings
+        // list and dropped)
+        let mut what = String::with_capacity(256);
         if unplaced && all_missing && no_symbol {
             push_all(
                 &mut what,
@@ -223,7 +225,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 }
             })
         };
-        let mut help = String::new();
+        let mut help = String::with_capacity(256);
         if unplaced && all_missing && no_symbol {
             push_all(
                 &mut help,

@@ -40,10 +40,15 @@ fn unreadable_reading(reading: Option<&ValueReading>) -> Option<&ValueError> {
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
+    // each reading's words, written once: parts with one value text share its reading
+    let mut said: rustc_hash::FxHashMap<*const ValueError, String> = Default::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let Some(err) = unreadable_reading(cx.resistor_value(ci)) else {
             continue;
         };
+        let err: &str = said
+            .entry(std::ptr::from_ref(err))
+            .or_insert_with(|| err.to_string());
         let reference = c.reference.as_str();
         // the nets it would pull, each with the resistor's pin there and the rail
         let mut pulled: Vec<(usize, PinRef, Option<usize>)> = Vec::new();
@@ -100,7 +105,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             effect.push_str(" is left out of that net's budget, so its pull current is unknown");
         }
         let span = c.value.as_ref().map_or(c.reference.span(), |v| v.span());
-        let mut diag = Diag::warning("unreadable-value", format!("{reference}: {err}; {effect}"))
+        let message = super::common::concat(&[reference, ": ", err, "; ", &effect]);
+        let mut diag = Diag::warning("unreadable-value", message)
             .at(span, "unreadable value")
             .with_pin_list(super::common::pin_names(cx, pulled.iter().map(|(_, p, _)| *p)))
             .with_help("write the value in one form: the IEC 60062 code (`4K7`, `R47`, `1M0`) or a number with an SI prefix (`4.7k`, `10 kOhm`); netmargin does not guess which was meant");
