@@ -483,7 +483,14 @@ mod tests {
         let a = String::from("A");
         let a2 = String::from("A");
         let (b, ab) = (String::from("B"), String::from("AB"));
-        let units = [None, Some(a.as_str()), Some(a2.as_str()), Some(b.as_str()), Some(ab.as_str()), Some("")];
+        let units = [
+            None,
+            Some(a.as_str()),
+            Some(a2.as_str()),
+            Some(b.as_str()),
+            Some(ab.as_str()),
+            Some(""),
+        ];
         for x in units {
             for y in units {
                 assert_eq!(same_unit(x, y), x == y, "{x:?} {y:?}");

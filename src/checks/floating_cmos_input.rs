@@ -68,13 +68,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 ),
             )
         });
-        push_unused_gate(
-            out,
-            cx,
-            &g,
-            crate::diag::Severity::Error,
-            words,
-        );
+        push_unused_gate(out, cx, &g, crate::diag::Severity::Error, words);
     }
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)

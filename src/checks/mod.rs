@@ -220,8 +220,12 @@ fn sort_in_file_order(out: &mut DiagList) {
                     (d.code(), d.message_parts(), k)
                 })
                 .collect();
-            // a code is one shared text: the same text is not compared byte by byte
-            run.sort_by(|a, b| {
+            // their places in the run are sorted (stably, so ties keep their order), not
+            // the entries; a code is one shared text: the same text is not compared byte by
+            // byte
+            let mut by: Vec<u32> = (0..run.len() as u32).collect();
+            by.sort_by(|&a, &b| {
+                let (a, b) = (&run[a as usize], &run[b as usize]);
                 let code = if std::ptr::eq(a.0, b.0) {
                     std::cmp::Ordering::Equal
                 } else {
@@ -229,8 +233,8 @@ fn sort_in_file_order(out: &mut DiagList) {
                 };
                 code.then_with(|| crate::diag::cmp_parts(a.1, b.1))
             });
-            for (slot, (.., k)) in order[i..j].iter_mut().zip(run) {
-                *slot = k;
+            for (slot, &r) in order[i..j].iter_mut().zip(&by) {
+                *slot = run[r as usize].2;
             }
         }
         i = j;

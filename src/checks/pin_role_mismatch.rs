@@ -163,8 +163,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     // the pins whose symbol disagrees with the table, found once per kind of part: parts
     // that share one classification are alike in their pins' types and names
-    let mut by_kind: rustc_hash::FxHashMap<*const crate::classify::classifier::PartClass, Vec<usize>> =
-        Default::default();
+    let mut by_kind: rustc_hash::FxHashMap<
+        *const crate::classify::classifier::PartClass,
+        Vec<usize>,
+    > = Default::default();
     for (ci, c) in cx.nl.components.iter().enumerate() {
         let part = &cx.cl.parts[ci];
         if part.function.is_none() {

@@ -74,20 +74,23 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         if !part.is_logic() {
             continue;
         }
-        let power = by_kind.entry(std::sync::Arc::as_ptr(part)).or_insert_with(|| {
-            let func = part
-                .function
-                .as_ref()
-                .and_then(|(s, id)| cx.rules.functions.get(*s, id))?;
-            let mut power: Vec<&PinDef> = func.supply_pins().chain(func.ground_pins()).collect();
-            power.sort_by_key(|d| d.pin.parse::<u32>().unwrap_or(u32::MAX));
-            Some(
-                power
-                    .into_iter()
-                    .map(|d| (d, c.pins.iter().position(|p| p.num(cx.nl) == d.pin)))
-                    .collect(),
-            )
-        });
+        let power = by_kind
+            .entry(std::sync::Arc::as_ptr(part))
+            .or_insert_with(|| {
+                let func = part
+                    .function
+                    .as_ref()
+                    .and_then(|(s, id)| cx.rules.functions.get(*s, id))?;
+                let mut power: Vec<&PinDef> =
+                    func.supply_pins().chain(func.ground_pins()).collect();
+                power.sort_by_key(|d| d.pin.parse::<u32>().unwrap_or(u32::MAX));
+                Some(
+                    power
+                        .into_iter()
+                        .map(|d| (d, c.pins.iter().position(|p| p.num(cx.nl) == d.pin)))
+                        .collect(),
+                )
+            });
         let Some(power) = power.as_ref() else {
             continue;
         };

@@ -1186,7 +1186,7 @@ mod tests {
             .with_pins(["U1.1", "U1.2"]);
         let mut list = DiagList::new();
         // a finding pushed before, whose texts the numbers must not be confused with
-        list.push(Diag::warning("code-b", "other").with_help("not this"));
+        list.push(Diag::warning(B, "other").with_help("not this"));
         let code = list.share_id(&Text::Fixed(A));
         let head = list.share_id(&Text::from(String::from("gate A of ")));
         let tail = list.share_id(&Text::from(String::from(" (74HC00) is unused")));
@@ -1210,7 +1210,10 @@ mod tests {
                     net: None,
                 },
                 [[own, ".", "1"], [own, ".", "2"]],
-                [(Span::new(1, 2), first, true), (Span::new(3, 4), other, false)],
+                [
+                    (Span::new(1, 2), first, true),
+                    (Span::new(3, 4), other, false),
+                ],
             );
         }
         assert_eq!(list.len(), 3);
