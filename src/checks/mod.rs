@@ -213,7 +213,7 @@ fn sort_in_file_order(out: &mut DiagList) {
         }
         if j - i > 1 {
             // each finding's code and message parts read once, then sorted (stably)
-            let mut run: Vec<(&str, [&str; 3], usize)> = order[i..j]
+            let run: Vec<(&str, [&str; 3], usize)> = order[i..j]
                 .iter()
                 .map(|&k| {
                     let d = out.get(k).expect("in the list");
