@@ -13,6 +13,7 @@ pub mod rails;
 
 use std::sync::Arc;
 
+use smallvec::SmallVec;
 use thin_vec::ThinVec;
 
 use crate::classify::classifier::{Classified, PartKind, RoleSource, Rules};
@@ -299,16 +300,20 @@ pub struct LedPath {
     pub open_common: Option<usize>,
 }
 
-/// Everything on one net. Its lists are `ThinVec`s (one pointer, no allocation while empty),
-/// each trimmed to its length once the model is built. The lists most nets leave empty (pull
+/// Everything on one net. Its drivers and loads are `SmallVec`s holding the first one or two
+/// in place (most nets have one driver and a load or two); its other lists are `ThinVec`s
+/// (one pointer, no allocation while empty); each is trimmed to its length once the model is
+/// built. The lists most nets leave empty (pull
 /// resistors, series and switch links, LED paths ...) are kept apart in one boxed
 /// [`NetExtras`], allocated only for a net that has one of them, and read through accessors
 /// (`nm.pulls()`, `nm.series()` ...): a board has about as many nets as it has pins.
 #[derive(Debug, Clone, Default)]
 pub struct NetModel {
     pub rail: Option<Rail>,
-    pub drivers: ThinVec<Driver>,
-    pub loads: ThinVec<Load>,
+    /// Its outputs (and bidirectional pins): the first in place.
+    pub drivers: SmallVec<[Driver; 1]>,
+    /// Its logic inputs (and bidirectional pins): the first two in place.
+    pub loads: SmallVec<[Load; 2]>,
     /// Connector pins: the net leaves the board.
     pub connectors: ThinVec<PinRef>,
     /// Capacitors, diodes and other passives not counted above.
@@ -987,8 +992,8 @@ pub fn build<'n, 'a>(
             let list = |slot: Slot| n[slot as usize] as usize;
             NetModel {
                 rail: rail[i],
-                drivers: ThinVec::with_capacity(list(Slot::Driver)),
-                loads: ThinVec::with_capacity(list(Slot::Load)),
+                drivers: SmallVec::with_capacity(list(Slot::Driver)),
+                loads: SmallVec::with_capacity(list(Slot::Load)),
                 connectors: ThinVec::with_capacity(list(Slot::Connector)),
                 passives: ThinVec::with_capacity(list(Slot::Passive)),
                 power_pins: ThinVec::with_capacity(list(Slot::Power)),
@@ -1902,7 +1907,9 @@ mod size_tests {
     fn per_net_structures_stay_small() {
         use super::budget::{Item, LoadMargin};
         use super::{Driver, Load};
-        assert!(size_of::<NetModel>() <= 88, "{}", size_of::<NetModel>());
+        // 88 with its drivers and loads in lists of their own; a net with one driver and two
+        // loads then held two blocks of 48 bytes besides
+        assert!(size_of::<NetModel>() <= 128, "{}", size_of::<NetModel>());
         assert!(size_of::<NetBudget>() <= 24, "{}", size_of::<NetBudget>());
         assert!(
             size_of::<DriverBudget>() <= 72,
