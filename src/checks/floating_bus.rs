@@ -102,7 +102,7 @@ fn floating_bus(cx: &Circuit<'_, '_>, net: usize) -> bool {
             .iter()
             .all(|d| matches!(d.role, PinRole::ThreeState | PinRole::Bidirectional))
         && nm.drivers.iter().all(|d| gate(cx, d.at) != Gate::Always)
-        && nm.loads.iter().any(|l| !l.ttl(cx) && l.levels(cx).is_some())
+        && nm.loads.iter().any(|l| !l.ttl() && l.levels(cx).is_some())
 }
 
 fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
@@ -124,7 +124,7 @@ fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
     let lv = nm.loads.iter().filter_map(|l| l.levels(cx));
     let vil = lv.clone().map(|l| l.vil_max).reduce(f64::min)?;
     let vih = lv.map(|l| l.vih_min).reduce(f64::max)?;
-    let ttl = nm.loads.iter().any(|l| l.ttl(cx));
+    let ttl = nm.loads.iter().any(|l| l.ttl());
     Some(Leakage {
         ioz,
         inputs_low,
@@ -179,7 +179,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let cmos: Vec<PinRef> = nm
             .loads
             .iter()
-            .filter(|l| !l.ttl(cx) && l.levels(cx).is_some())
+            .filter(|l| !l.ttl() && l.levels(cx).is_some())
             .map(|l| l.at)
             .collect();
         let first = cmos[0];

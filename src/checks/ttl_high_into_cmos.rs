@@ -58,7 +58,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             }
             let d = &nm.drivers[m.driver];
             let l = &nm.loads[m.load];
-            if !ctx.cx.ttl_output(d.at.comp()) || l.ttl(cx) || l.levels(cx).is_none() {
+            if !ctx.cx.ttl_output(d.at.comp()) || l.ttl() || l.levels(cx).is_none() {
                 continue;
             }
             let db = &b

@@ -74,7 +74,7 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
     let vil = nm
         .loads
         .iter()
-        .filter(|l| l.ttl(cx))
+        .filter(|l| l.ttl())
         .filter_map(|l| l.levels(cx))
         .map(|l| l.vil_max)
         .reduce(f64::min)?;
@@ -105,7 +105,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let ttl: Vec<PinRef> = nm
             .loads
             .iter()
-            .filter(|l| l.ttl(cx) && l.levels(cx).is_some())
+            .filter(|l| l.ttl() && l.levels(cx).is_some())
             .map(|l| l.at)
             .collect();
         let first = ttl[0];

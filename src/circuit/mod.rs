@@ -219,6 +219,11 @@ impl Driver {
 pub struct Load {
     pub at: PinRef,
     pub role: PinRole,
+    /// Two flags read often, kept in what would be padding: a TTL (bipolar) input, and an
+    /// input that draws one of its family's input currents in each state (no entry in its
+    /// part's unit loads).
+    ttl: bool,
+    one_unit: bool,
 }
 
 impl Load {
@@ -233,14 +238,17 @@ impl Load {
     }
 
     /// True for TTL (bipolar) inputs that source current when low.
-    pub fn ttl(&self, cx: &Circuit<'_, '_>) -> bool {
-        cx.family(self.at.comp()).is_some_and(|f| !f.is_cmos_input())
+    pub fn ttl(&self) -> bool {
+        self.ttl
     }
 
     /// How many of its family's input currents this input draws, low and high: (1, 1) for
     /// most inputs; more for those the function table names (a counter's clock, a
     /// flip-flop's clear).
     pub fn unit_loads(&self, cx: &Circuit<'_, '_>) -> (f64, f64) {
+        if self.one_unit {
+            return (1.0, 1.0);
+        }
         cx.cl.parts[self.at.comp()].input_loads[self.at.pin()].unwrap_or((1.0, 1.0))
     }
 
@@ -1026,6 +1034,7 @@ pub fn build<'n, 'a>(
             logic.levels = Some(Arc::new(f.levels(f.supply_nominal, Drive::Standard)));
             logic.family = Some(FamilyId::new(f.id.as_str()));
         }
+        let ttl = families[ci].is_some_and(|f| !f.is_cmos_input());
         let mut looked_up = false;
         for (pi, p) in c.pins.iter().enumerate() {
             let Connection::Net { net, .. } = p.connection else {
@@ -1037,6 +1046,12 @@ pub fn build<'n, 'a>(
             let symbol_only = part.role_source[pi] != RoleSource::Table;
             let nm = &mut nets[net];
             let slot = pin_slot(part.kind, pull_part, role);
+            let load = || Load {
+                at,
+                role,
+                ttl,
+                one_unit: part.input_loads[pi].is_none(),
+            };
             if matches!(slot, Slot::Load | Slot::Driver | Slot::DriverAndLoad) && !looked_up {
                 looked_up = true;
                 logic.levels = levels(ci);
@@ -1053,7 +1068,7 @@ pub fn build<'n, 'a>(
                     }
                 }
                 Slot::Passive => nm.passives.push(at),
-                Slot::Load => nm.loads.push(Load { at, role }),
+                Slot::Load => nm.loads.push(load()),
                 Slot::Driver => nm.drivers.push(Driver {
                     at,
                     role,
@@ -1065,7 +1080,7 @@ pub fn build<'n, 'a>(
                         role,
                         symbol_only,
                     });
-                    nm.loads.push(Load { at, role });
+                    nm.loads.push(load());
                 }
                 Slot::Power => nm.power_pins.push(at),
                 Slot::Unknown => nm.extras_mut().unknown.push(at),
@@ -1952,7 +1967,8 @@ mod size_tests {
         assert_eq!(extras.held.capacity(), 5);
         assert_eq!(nm.held(), &[0, 1, 2, 3, 4]);
         assert_eq!(extras.pulls.capacity(), 0);
-        assert_eq!(nm.drivers.capacity(), 0);
+        // no driver: its list holds no block
+        assert!(!nm.drivers.spilled());
         // extras left empty are dropped: a net without them costs one pointer
         let mut bare = NetModel::default();
         bare.extras_mut();
