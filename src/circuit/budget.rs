@@ -770,79 +770,49 @@ impl<'b> NetBudgetRef<'b> {
 }
 
 /// Every net's budget, worked out once for the board ([`Budgets::build`], called by the
-/// analysis only) and read by net ([`Budgets::net`], [`Budgets::iter`]). The drivers' budgets
-/// of every net are one list, net after net, each net's found by where it starts (a `u32`
-/// per net, where a list per net cost a block, its length and its allocator's header); the
-/// open-collector windows, a few nets' at most, are kept by net.
+/// analysis only) and read by net ([`Budgets::net`], [`Budgets::iter`]). Each net's drivers'
+/// budgets are one allocation at its length (none for a net with no driver): small blocks
+/// that reuse the room the reader freed, where one list for the board would need a block
+/// of its own.
 #[derive(Debug, Clone, Default)]
 pub struct Budgets {
-    drivers: Vec<DriverBudget>,
-    /// Where each net's budgets start in `drivers`, and after the last net the end.
-    starts: Vec<u32>,
-    /// The open-collector windows, by net in net order.
-    windows: Vec<(u32, PullUpWindow)>,
+    nets: Vec<NetBudget>,
 }
 
 impl Budgets {
     /// Every net's budget, with one buffer and one table of solved levels for the board.
     pub fn build(cx: &Circuit<'_, '_>) -> Budgets {
         let mut scratch = Scratch::default();
-        let total: usize = cx.nets.iter().map(|nm| nm.drivers.len()).sum();
-        let mut drivers = Vec::with_capacity(total);
-        let mut starts = Vec::with_capacity(cx.nets.len() + 1);
-        let mut windows = Vec::new();
-        starts.push(0);
-        for net in 0..cx.nets.len() {
-            if let Some(w) = budget_into(cx, net, &mut scratch, &mut drivers) {
-                windows.push((index(net), w));
-            }
-            starts.push(index(drivers.len()));
-        }
-        drivers.shrink_to_fit();
-        windows.shrink_to_fit();
-        Budgets {
-            drivers,
-            starts,
-            windows,
-        }
+        let nets = (0..cx.nets.len())
+            .map(|net| {
+                let mut drivers = Vec::with_capacity(cx.nets[net].drivers.len());
+                let window = budget_into(cx, net, &mut scratch, &mut drivers);
+                NetBudget {
+                    drivers: drivers.into_boxed_slice(),
+                    window: window.map(Box::new),
+                }
+            })
+            .collect();
+        Budgets { nets }
     }
 
     /// How many nets the store holds.
     pub fn len(&self) -> usize {
-        self.starts.len().saturating_sub(1)
+        self.nets.len()
     }
 
     pub fn is_empty(&self) -> bool {
-        self.len() == 0
+        self.nets.is_empty()
     }
 
     /// Net `net`'s budget.
     pub fn net(&self, net: usize) -> NetBudgetRef<'_> {
-        let window = match self.windows.is_empty() {
-            true => None,
-            false => self
-                .windows
-                .binary_search_by_key(&index(net), |w| w.0)
-                .ok()
-                .map(|i| &self.windows[i].1),
-        };
-        NetBudgetRef {
-            drivers: &self.drivers[self.starts[net] as usize..self.starts[net + 1] as usize],
-            window,
-        }
+        self.nets[net].as_ref()
     }
 
     /// Every net's budget, in net order.
     pub fn iter(&self) -> impl Iterator<Item = NetBudgetRef<'_>> + '_ {
-        // the windows are in net order: each is met once, with no search
-        let mut windows = self.windows.iter().peekable();
-        self.starts
-            .windows(2)
-            .enumerate()
-            .map(move |(net, ends)| NetBudgetRef {
-                drivers: &self.drivers[ends[0] as usize..ends[1] as usize],
-                window: windows.next_if(|w| w.0 as usize == net).map(|w| &w.1),
-            })
+        (0..self.len()).map(|n| self.net(n))
     }
 }
 

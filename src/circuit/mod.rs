@@ -115,11 +115,14 @@ mod pin_ref {
     }
 
     impl PinRef {
+        /// Every part and pin is read from a source of under 4 GiB (whose places are `u32`s
+        /// too, `Span`), so both indices fit.
+        #[inline]
         pub fn new(comp: usize, pin: usize) -> PinRef {
-            let small = |i: usize| u32::try_from(i).expect("fewer than 2^32 parts and pins");
+            debug_assert!(comp <= u32::MAX as usize && pin <= u32::MAX as usize);
             PinRef {
-                comp: small(comp),
-                pin: small(pin),
+                comp: comp as u32,
+                pin: pin as u32,
             }
         }
 
@@ -204,11 +207,13 @@ pub struct Driver {
 impl Driver {
     /// The family's figures at the part's supply, when the part is classified (a connector's
     /// pins driven by a configured family: that family's at its nominal supply).
+    #[inline]
     pub fn levels<'c>(&self, cx: &'c Circuit<'_, '_>) -> Option<&'c Arc<Levels>> {
         cx.part_logic[self.at.comp()].levels.as_ref()
     }
 
     /// The part's family id (a driven connector's: its configured family).
+    #[inline]
     pub fn family<'c>(&self, cx: &'c Circuit<'_, '_>) -> Option<&'c str> {
         cx.part_logic[self.at.comp()].family.as_deref()
     }
@@ -228,16 +233,19 @@ pub struct Load {
 
 impl Load {
     /// The family's figures at the part's supply, when the part is classified.
+    #[inline]
     pub fn levels<'c>(&self, cx: &'c Circuit<'_, '_>) -> Option<&'c Arc<Levels>> {
         cx.part_logic[self.at.comp()].levels.as_ref()
     }
 
     /// The part's family id.
+    #[inline]
     pub fn family<'c>(&self, cx: &'c Circuit<'_, '_>) -> Option<&'c str> {
         cx.part_logic[self.at.comp()].family.as_deref()
     }
 
     /// True for TTL (bipolar) inputs that source current when low.
+    #[inline]
     pub fn ttl(&self) -> bool {
         self.ttl
     }
@@ -245,6 +253,7 @@ impl Load {
     /// How many of its family's input currents this input draws, low and high: (1, 1) for
     /// most inputs; more for those the function table names (a counter's clock, a
     /// flip-flop's clear).
+    #[inline]
     pub fn unit_loads(&self, cx: &Circuit<'_, '_>) -> (f64, f64) {
         if self.one_unit {
             return (1.0, 1.0);
@@ -253,12 +262,14 @@ impl Load {
     }
 
     /// The input's low-state current magnitude (its family's IIL times its unit loads).
+    #[inline]
     pub fn iil(&self, cx: &Circuit<'_, '_>) -> Option<f64> {
         self.levels(cx)
             .map(|l| l.iil_max.abs() * self.unit_loads(cx).0)
     }
 
     /// The input's high-state current magnitude (its family's IIH times its unit loads).
+    #[inline]
     pub fn iih(&self, cx: &Circuit<'_, '_>) -> Option<f64> {
         self.levels(cx)
             .map(|l| l.iih_max.abs() * self.unit_loads(cx).1)
