@@ -720,9 +720,7 @@ fn gather_interface(
             describe: cx.describe(d.at),
             role: d.role,
             family: d.family(cx).map(String::from),
-            vcc: s
-                .map(|s| s.vcc)
-                .or_else(|| d.levels(cx).map(|l| l.vcc)),
+            vcc: s.map(|s| s.vcc).or_else(|| d.levels(cx).map(|l| l.vcc)),
             supply_known: s.is_some_and(|s| s.known),
             low_level: db.low_level(),
             high_level: db.high_level(),

@@ -82,7 +82,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let mut part_text: Option<(usize, String, Text)> = None;
     for f in singles {
         if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp()) {
-            part_text = Some((f.at.comp(), inside(f.at.comp()), Text::from(tie(f.at.comp()))));
+            part_text = Some((
+                f.at.comp(),
+                inside(f.at.comp()),
+                Text::from(tie(f.at.comp())),
+            ));
         }
         let (_, inside, tie) = part_text.as_ref().expect("set above");
         let nc = cx.nl.components[f.at.comp()].pins[f.at.pin()].no_connect;

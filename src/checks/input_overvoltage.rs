@@ -171,10 +171,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             // loads over the limit, by component
             let mut over: BTreeMap<usize, (Vec<PinRef>, f64, String)> = BTreeMap::new();
             for l in &nm.loads {
-                if matches!(src, Source::Driver { at, .. } if at == l.at || at.comp() == l.at.comp()) {
+                if matches!(src, Source::Driver { at, .. } if at == l.at || at.comp() == l.at.comp())
+                {
                     continue;
                 }
-                let (Some(fam), Some(s)) = (cx.family(l.at.comp()), cx.supplies[l.at.comp()].as_ref())
+                let (Some(fam), Some(s)) =
+                    (cx.family(l.at.comp()), cx.supplies[l.at.comp()].as_ref())
                 else {
                     continue;
                 };

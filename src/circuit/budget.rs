@@ -67,7 +67,11 @@ impl Item {
         match self.kind {
             ItemKind::Input { net, load, low, .. } => {
                 let l = &cx.nets[net as usize].loads[load as usize];
-                several(if low { l.unit_loads(cx).0 } else { l.unit_loads(cx).1 })
+                several(if low {
+                    l.unit_loads(cx).0
+                } else {
+                    l.unit_loads(cx).1
+                })
             }
             _ => None,
         }
@@ -1154,7 +1158,9 @@ fn budget_into(
     }
     // open-collector window
     let oc: Vec<usize> = (0..nm.drivers.len())
-        .filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels(cx).is_some())
+        .filter(|&i| {
+            nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels(cx).is_some()
+        })
         .collect();
     if !oc.is_empty() && oc.len() == nm.drivers.len() {
         let rail = nm
@@ -1176,9 +1182,7 @@ fn budget_into(
                     ia.partial_cmp(&ib).unwrap_or(std::cmp::Ordering::Equal)
                 })
                 .expect("oc is not empty");
-            let lv = nm.drivers[weakest]
-                .levels(cx)
-                .expect("filtered on levels");
+            let lv = nm.drivers[weakest].levels(cx).expect("filtered on levels");
             let vol = lv.vol.last().map_or(0.4, |p| p.v);
             let iol = lv.iol_max.abs();
             let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.iil(cx)).sum();
@@ -1350,7 +1354,11 @@ mod tests {
         for (n, b) in all.iter().enumerate() {
             let at = all.net(n);
             assert!(std::ptr::eq(b.drivers, at.drivers), "net {n}");
-            assert_eq!(b.window.map(std::ptr::from_ref), at.window.map(std::ptr::from_ref), "net {n}");
+            assert_eq!(
+                b.window.map(std::ptr::from_ref),
+                at.window.map(std::ptr::from_ref),
+                "net {n}"
+            );
         }
         for n in 0..nl.nets.len() {
             let b = net_budget(&cx, n);

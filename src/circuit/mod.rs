@@ -1946,7 +1946,11 @@ mod size_tests {
         assert!(size_of::<LoadMargin>() <= 72, "{}", size_of::<LoadMargin>());
         // a pin is two u32s; a driver or load adds its role (and a flag), its part's data is
         // read from the circuit's per-part table
-        assert!(size_of::<super::PinRef>() <= 8, "{}", size_of::<super::PinRef>());
+        assert!(
+            size_of::<super::PinRef>() <= 8,
+            "{}",
+            size_of::<super::PinRef>()
+        );
         assert!(size_of::<Driver>() <= 12, "{}", size_of::<Driver>());
         assert!(size_of::<Load>() <= 12, "{}", size_of::<Load>());
         assert!(

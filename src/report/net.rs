@@ -114,24 +114,22 @@ pub fn write_net(
         writeln!(out, "    (none)")?;
     }
     for l in &nm.loads {
-        let fig = l
-            .levels(cx)
-            .map_or("no family data".to_string(), |lv| {
-                // an input that draws more than one unit load shows its own currents
-                let (low, high) = l.unit_loads(cx);
-                let units = if low != 1.0 || high != 1.0 {
-                    format!(" ({low} and {high} unit loads, low and high)")
-                } else {
-                    String::new()
-                };
-                format!(
-                    "VIH {} VIL {} IIH {} IIL {}{units}",
-                    format_volts(lv.vih_min),
-                    format_volts(lv.vil_max),
-                    format_amps(lv.iih_max * high),
-                    format_amps(lv.iil_max * low)
-                )
-            });
+        let fig = l.levels(cx).map_or("no family data".to_string(), |lv| {
+            // an input that draws more than one unit load shows its own currents
+            let (low, high) = l.unit_loads(cx);
+            let units = if low != 1.0 || high != 1.0 {
+                format!(" ({low} and {high} unit loads, low and high)")
+            } else {
+                String::new()
+            };
+            format!(
+                "VIH {} VIL {} IIH {} IIL {}{units}",
+                format_volts(lv.vih_min),
+                format_volts(lv.vil_max),
+                format_amps(lv.iih_max * high),
+                format_amps(lv.iil_max * low)
+            )
+        });
         writeln!(
             out,
             "    {} [{}]: {}",
