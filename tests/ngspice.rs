@@ -347,11 +347,11 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
         };
         for db in &b.drivers {
             let d = &nm.drivers[db.driver()];
-            let lv = d.levels.as_ref().expect("classified driver");
+            let lv = d.levels(cx).expect("classified driver");
             // the elements other than this driver, in one state
             let others = |deck: &mut String, p: &str, node: &str, low: bool| {
                 for (i, l) in nm.loads.iter().enumerate() {
-                    let ll = l.levels.as_ref().expect("classified load");
+                    let ll = l.levels(cx).expect("classified load");
                     if low {
                         let _ = writeln!(deck, "i{p}l{i} 0 {node} DC {:e}", ll.iil_max.abs());
                     } else {
@@ -364,7 +364,7 @@ fn add_case(k: usize, c: &Case, deck: &mut String, probes: &mut Vec<Probe>) {
                     .enumerate()
                     .filter(|(i, _)| *i != db.driver())
                 {
-                    let ol = o.levels.as_ref().expect("classified driver");
+                    let ol = o.levels(cx).expect("classified driver");
                     let a = match o.role {
                         PinRole::ThreeState | PinRole::Bidirectional => ol.ioz.abs(),
                         PinRole::OpenCollector => ol.oc_leakage.abs(),

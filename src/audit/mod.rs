@@ -681,13 +681,13 @@ fn gather_interface(
     let mut drivers = Vec::new();
     for db in b.drivers.iter() {
         let d = &nm.drivers[db.driver()];
-        let s = cx.supplies[d.at.comp].as_ref();
+        let s = cx.supplies[d.at.comp()].as_ref();
         let mut loads: Vec<LoadGroup> = Vec::new();
         for m in b.margins(cx, net).filter(|m| m.driver == db.driver()) {
             let m = &m;
             let l = &nm.loads[m.load];
-            let family = l.family.as_deref().unwrap_or("unknown").to_string();
-            let vcc = l.levels.as_ref().map(|lv| lv.vcc);
+            let family = l.family(cx).unwrap_or("unknown").to_string();
+            let vcc = l.levels(cx).map(|lv| lv.vcc);
             let same = |g: &LoadGroup| {
                 g.family == family && (g.vih - m.vih).abs() < 1e-6 && (g.vil - m.vil).abs() < 1e-6
             };
@@ -719,10 +719,8 @@ fn gather_interface(
             pin: cx.pin_name(d.at),
             describe: cx.describe(d.at),
             role: d.role,
-            family: d.family.as_deref().map(String::from),
-            vcc: s
-                .map(|s| s.vcc)
-                .or_else(|| d.levels.as_ref().map(|l| l.vcc)),
+            family: d.family(cx).map(String::from),
+            vcc: s.map(|s| s.vcc).or_else(|| d.levels(cx).map(|l| l.vcc)),
             supply_known: s.is_some_and(|s| s.known),
             low_level: db.low_level(),
             high_level: db.high_level(),
@@ -736,18 +734,15 @@ fn gather_interface(
             top_level: match d.role {
                 PinRole::OpenCollector => db.high_level(),
                 _ => d
-                    .levels
-                    .as_ref()
+                    .levels(cx)
                     .and_then(|l| l.voh.first().map(|p| p.v))
                     .or(db.high_level()),
             },
             rated_low: d
-                .levels
-                .as_ref()
+                .levels(cx)
                 .and_then(|l| l.vol.last().map(|p| (p.v, p.a.abs()))),
             rated_high: d
-                .levels
-                .as_ref()
+                .levels(cx)
                 .filter(|_| d.role != PinRole::OpenCollector)
                 .and_then(|l| l.voh.last().map(|p| (p.v, p.a.abs()))),
             loads,
@@ -756,7 +751,7 @@ fn gather_interface(
     let unknown_loads = nm
         .loads
         .iter()
-        .filter(|l| l.levels.is_none())
+        .filter(|l| l.levels(cx).is_none())
         .map(|l| cx.pin_name(l.at))
         .collect();
     Interface {

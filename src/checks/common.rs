@@ -39,12 +39,11 @@ pub struct UnusedGate<'n, 'g> {
     pub outputs: &'g [PinRef],
 }
 
-/// The floating inputs of one kind of part ([`floating_inputs`]): the single inputs, and the
-/// unused gates, whose pins are kept in two lists for all of them (a board can have one
-/// on every part).
+/// One part's unused gates as [`floating_inputs`] gathers them, whose pins are kept in two
+/// lists for all of them; reused from part to part, so the check phase never holds a board's
+/// gates at once (a board can have one on every part).
 #[derive(Debug, Default)]
-pub struct FloatingInputs<'n> {
-    pub singles: Vec<Floating>,
+struct FloatingInputs<'n> {
     gate_inputs: Vec<Floating>,
     gate_outputs: Vec<PinRef>,
     /// (part, unit, end of its inputs, end of its outputs): each gate's pins follow the
@@ -54,7 +53,7 @@ pub struct FloatingInputs<'n> {
 
 impl<'n> FloatingInputs<'n> {
     /// The unused gates, in the order found.
-    pub fn gates(&self) -> impl Iterator<Item = UnusedGate<'n, '_>> + '_ {
+    fn gates(&self) -> impl Iterator<Item = UnusedGate<'n, '_>> + '_ {
         let mut from = (0, 0);
         self.gates.iter().map(move |&(comp, unit, ins, outs)| {
             let g = UnusedGate {
@@ -66,6 +65,12 @@ impl<'n> FloatingInputs<'n> {
             from = (ins, outs);
             g
         })
+    }
+
+    fn clear(&mut self) {
+        self.gate_inputs.clear();
+        self.gate_outputs.clear();
+        self.gates.clear();
     }
 }
 
@@ -98,11 +103,18 @@ fn is_logic_input(role: PinRole) -> bool {
 }
 
 /// Floating logic inputs of classified parts whose family has TTL inputs (`ttl` true) or
-/// CMOS inputs (`ttl` false), with the whole unused gates gathered up (in unit-name order,
-/// each part's inputs outside a unit first among its singles).
-pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInputs<'n> {
+/// CMOS inputs (`ttl` false), with the whole unused gates gathered up: each unused gate is
+/// handed to `on_gate` as its part is read (in part order, then unit-name order), and the
+/// single inputs are returned (each part's inputs outside a unit first among its singles).
+pub fn floating_inputs<'n>(
+    ctx: &Context<'_, 'n, '_>,
+    ttl: bool,
+    mut on_gate: impl FnMut(UnusedGate<'n, '_>),
+) -> Vec<Floating> {
     let cx = ctx.cx;
     let cl: &'n crate::classify::classifier::Classified = cx.cl;
+    let mut singles = Vec::new();
+    // the part's unused gates, handed on once the part is read: reused
     let mut out = FloatingInputs::default();
     // one part's floating inputs by unit (none first), each unit's in pin order: reused
     let mut found: Vec<(Option<&'n str>, Floating)> = Vec::new();
@@ -130,7 +142,7 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
                 continue;
             };
             let f = Floating {
-                at: PinRef { comp: ci, pin: pi },
+                at: PinRef::new(ci, pi),
                 why,
             };
             found.push((part.units[pi].as_deref(), f));
@@ -151,7 +163,7 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
             }
             let group = found[i..j].iter().map(|(_, f)| f.clone());
             let Some(unit) = unit else {
-                out.singles.extend(group);
+                singles.extend(group);
                 i = j;
                 continue;
             };
@@ -168,7 +180,7 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
                 }
                 if roles[k].is_output() {
                     outputs_unused &= c.pins[k].connection.is_unconnected();
-                    out.gate_outputs.push(PinRef { comp: ci, pin: k });
+                    out.gate_outputs.push(PinRef::new(ci, k));
                 }
             }
             if j - i == unit_inputs && unit_inputs > 0 && outputs_unused {
@@ -177,12 +189,16 @@ pub fn floating_inputs<'n>(ctx: &Context<'_, 'n, '_>, ttl: bool) -> FloatingInpu
                     .push((ci, unit, out.gate_inputs.len(), out.gate_outputs.len()));
             } else {
                 out.gate_outputs.truncate(outputs_from);
-                out.singles.extend(group);
+                singles.extend(group);
             }
             i = j;
         }
+        for g in out.gates() {
+            on_gate(g);
+        }
+        out.clear();
     }
-    out
+    singles
 }
 
 /// Whether two units' names are the same. A part's units are shared texts, so the same name
@@ -315,7 +331,7 @@ pub fn push_unused_gate(
         },
         g.inputs
             .iter()
-            .map(|f| [reference, ".", c.pins[f.at.pin].num(cx.nl)]),
+            .map(|f| [reference, ".", c.pins[f.at.pin()].num(cx.nl)]),
         // one place per input: the first input's, then the others beside it
         g.inputs.iter().enumerate().map(|(i, f)| {
             let text = if i == 0 { words.first } else { words.other };
@@ -333,8 +349,8 @@ where
 {
     let pins = pins.into_iter();
     let name = |p: PinRef| {
-        let c = &cx.nl.components[p.comp];
-        (c.reference.as_str(), c.pins[p.pin].num(cx.nl))
+        let c = &cx.nl.components[p.comp()];
+        (c.reference.as_str(), c.pins[p.pin()].num(cx.nl))
     };
     // each name, a `.`, and a separator between each two
     let len: usize = pins
@@ -353,8 +369,8 @@ where
 
 /// Adds a pin's name (`U4.6`, as [`Circuit::pin_name`] writes it) to the end of `s`.
 pub fn push_pin_name(s: &mut String, cx: &Circuit<'_, '_>, p: PinRef) {
-    let c = &cx.nl.components[p.comp];
-    push_all(s, &[c.reference.as_str(), ".", c.pins[p.pin].num(cx.nl)]);
+    let c = &cx.nl.components[p.comp()];
+    push_all(s, &[c.reference.as_str(), ".", c.pins[p.pin()].num(cx.nl)]);
 }
 
 /// A net's display name, as [`Circuit::net_name`] gives it, borrowed from the netlist when
@@ -403,8 +419,8 @@ pub fn pin_list(ctx: &Context<'_, '_, '_>, pins: &[PinRef]) -> String {
     let cx = ctx.cx;
     numbered_list(pins.iter().map(|p| {
         (
-            cx.nl.components[p.comp].pins[p.pin].num(cx.nl),
-            cx.cl.parts[p.comp].table_names[p.pin].as_deref(),
+            cx.nl.components[p.comp()].pins[p.pin()].num(cx.nl),
+            cx.cl.parts[p.comp()].table_names[p.pin()].as_deref(),
         )
     }))
 }
@@ -546,13 +562,12 @@ mod tests {
     #[test]
     fn unused_gates_read_their_own_pins_from_the_shared_lists() {
         use super::{Float, Floating, FloatingInputs, PinRef};
-        let pin = |comp, pin| PinRef { comp, pin };
+        let pin = |comp, pin| PinRef::new(comp, pin);
         let input = |comp, p| Floating {
             at: pin(comp, p),
             why: Float::Absent,
         };
         let found = FloatingInputs {
-            singles: vec![input(9, 9)],
             gate_inputs: vec![input(1, 0), input(1, 1), input(2, 4)],
             gate_outputs: vec![pin(1, 2), pin(2, 5), pin(2, 6)],
             gates: vec![(1, "A", 2, 1), (2, "B", 3, 3)],

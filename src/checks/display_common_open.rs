@@ -39,9 +39,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let driven: Vec<PinRef> = d
             .segments
             .iter()
-            .map(|&pin| PinRef { comp: d.comp, pin })
+            .map(|&pin| PinRef::new(d.comp, pin))
             .filter(|p| {
-                c.pins[p.pin].connection.net().is_some_and(|n| {
+                c.pins[p.pin()].connection.net().is_some_and(|n| {
                     drives(n) || cx.nets[n].series().iter().any(|s| drives(s.other_net))
                 })
             })
@@ -107,19 +107,16 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             driven.len(),
             if driven.len() == 1 { "is" } else { "are" },
         );
-        let first = PinRef {
-            comp: d.comp,
-            pin: d.commons[0],
-        };
+        let first = PinRef::new(d.comp, d.commons[0]);
         let mut diag = Diag::new(INFO.id, sev, message)
             .at(cx.pin_span(first), "common reaches nothing")
             .with_pins(
                 d.commons
                     .iter()
-                    .map(|&pin| cx.pin_name(PinRef { comp: d.comp, pin })),
+                    .map(|&pin| cx.pin_name(PinRef::new(d.comp, pin))),
             );
         for &pin in d.commons.iter().skip(1) {
-            diag = diag.also(cx.pin_span(PinRef { comp: d.comp, pin }), "common");
+            diag = diag.also(cx.pin_span(PinRef::new(d.comp, pin)), "common");
         }
         out.push(diag.with_help(format!(
             "wire the commons {whither}, and remove any no-connect flag from them"

@@ -162,7 +162,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                         cx.describe(d.at),
                         format_amps(sb.total),
                         format_amps(sb.rating),
-                        cx.supply_text(d.at.comp),
+                        cx.supply_text(d.at.comp()),
                         pct(r),
                     ),
                 )

@@ -102,7 +102,7 @@ fn floating_bus(cx: &Circuit<'_, '_>, net: usize) -> bool {
             .iter()
             .all(|d| matches!(d.role, PinRole::ThreeState | PinRole::Bidirectional))
         && nm.drivers.iter().all(|d| gate(cx, d.at) != Gate::Always)
-        && nm.loads.iter().any(|l| !l.ttl && l.levels.is_some())
+        && nm.loads.iter().any(|l| !l.ttl() && l.levels(cx).is_some())
 }
 
 fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
@@ -110,7 +110,7 @@ fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
     let ioz: f64 = nm
         .drivers
         .iter()
-        .filter_map(|d| d.levels.as_ref())
+        .filter_map(|d| d.levels(cx))
         .map(|l| l.ioz.abs())
         .sum();
     // a bidirectional pin's leakage is its IOZ, counted once
@@ -119,12 +119,12 @@ fn leakage(cx: &Circuit<'_, '_>, net: usize) -> Option<Leakage> {
         .iter()
         .filter(|l| !nm.drivers.iter().any(|d| d.at == l.at));
     let others: Vec<_> = others.collect();
-    let inputs_low: f64 = others.iter().filter_map(|l| l.iil()).sum();
-    let inputs_high: f64 = others.iter().filter_map(|l| l.iih()).sum();
-    let lv = nm.loads.iter().filter_map(|l| l.levels.as_ref());
+    let inputs_low: f64 = others.iter().filter_map(|l| l.iil(cx)).sum();
+    let inputs_high: f64 = others.iter().filter_map(|l| l.iih(cx)).sum();
+    let lv = nm.loads.iter().filter_map(|l| l.levels(cx));
     let vil = lv.clone().map(|l| l.vil_max).reduce(f64::min)?;
     let vih = lv.map(|l| l.vih_min).reduce(f64::max)?;
-    let ttl = nm.loads.iter().any(|l| l.ttl);
+    let ttl = nm.loads.iter().any(|l| l.ttl());
     Some(Leakage {
         ioz,
         inputs_low,
@@ -142,7 +142,7 @@ fn off_text(cx: &Circuit<'_, '_>, p: PinRef) -> String {
         Gate::When(l) => format!(
             "off when {}",
             l.iter()
-                .map(|x| literal_text(cx, p.comp, x, false))
+                .map(|x| literal_text(cx, p.comp(), x, false))
                 .collect::<Vec<_>>()
                 .join(" or ")
         ),
@@ -179,7 +179,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let cmos: Vec<PinRef> = nm
             .loads
             .iter()
-            .filter(|l| !l.ttl && l.levels.is_some())
+            .filter(|l| !l.ttl() && l.levels(cx).is_some())
             .map(|l| l.at)
             .collect();
         let first = cmos[0];
@@ -208,22 +208,22 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 format_amps(inputs)
             )
         };
-        let at = cx.supply_text(first.comp);
+        let at = cx.supply_text(first.comp());
         let help = if leak.ttl {
             // TTL inputs float high and draw their IIL from a pull-down: pull up instead
-            let vcc = cx.supplies[first.comp].as_ref().map_or(5.0, |s| s.vcc);
+            let vcc = cx.supplies[first.comp()].as_ref().map_or(5.0, |s| s.vcc);
             let rmax = pull_up_max(&leak, vcc);
             let (total, parts) = (leak.high(), parts(leak.high(), leak.inputs_high));
             match suggest(rmax) {
                 Some(r) => format!(
                     "fit a pull-up of {} to {}: the {parts} holds the net at {}, above VIH {} at {at} (the largest that holds VIH is {}); a pull-down would have to sink the TTL inputs' IIL",
                     format_ohms(r),
-                    supply_rail_name(ctx, first.comp),
+                    supply_rail_name(ctx, first.comp()),
                     format_volts(vcc - r * total),
                     format_volts(leak.vih),
                     format_ohms(rmax)
                 ),
-                None => format!("fit a pull-up to {}: no round value holds VIH {} against {parts}", supply_rail_name(ctx, first.comp), format_volts(leak.vih)),
+                None => format!("fit a pull-up to {}: no round value holds VIH {} against {parts}", supply_rail_name(ctx, first.comp()), format_volts(leak.vih)),
             }
         } else {
             let rmax = pull_down_max(&leak);
@@ -232,12 +232,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 Some(r) => format!(
                     "fit a pull-down of {} to {}: the {parts} holds the net at {}, below VIL {} at {at} (the largest that holds VIL is {})",
                     format_ohms(r),
-                    ground_rail_name(ctx, first.comp),
+                    ground_rail_name(ctx, first.comp()),
                     format_volts(r * total),
                     format_volts(leak.vil),
                     format_ohms(rmax)
                 ),
-                None => format!("fit a pull-down to {}: no round value holds VIL {} against {parts}", ground_rail_name(ctx, first.comp), format_volts(leak.vil)),
+                None => format!("fit a pull-down to {}: no round value holds VIL {} against {parts}", ground_rail_name(ctx, first.comp()), format_volts(leak.vil)),
             }
         };
         let help = match &leaves {
@@ -256,7 +256,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             .iter()
             .copied()
             .filter(|p| {
-                cx.cl.parts[p.comp].table_names[p.pin]
+                cx.cl.parts[p.comp()].table_names[p.pin()]
                     .as_deref()
                     .is_some_and(clocks)
             })

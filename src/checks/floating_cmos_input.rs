@@ -31,10 +31,9 @@ use crate::diag::{Diag, Text};
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
-    let found = floating_inputs(ctx, false);
     // the words every part alike shares (the tail of the message, the help), made once
     let mut words = Words::new();
-    for g in found.gates() {
+    let singles = floating_inputs(ctx, false, |g| {
         let key = GateKey::of(ctx, &g);
         let words = words.get(key, || {
             let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
@@ -69,16 +68,16 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             )
         });
         push_unused_gate(out, cx, &g, crate::diag::Severity::Error, words);
-    }
+    });
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
     let mut part_text: Option<(usize, &str, Text)> = None;
     let mut big_nets = LoadsOf::default();
-    for f in found.singles {
-        if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
+    for f in singles {
+        if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp()) {
             // an NMOS part's input (a processor, an EPROM) is no CMOS pair, but floats the same
             let input = if cx
-                .family(f.at.comp)
+                .family(f.at.comp())
                 .is_some_and(|fam| fam.id.starts_with("NMOS"))
             {
                 "an NMOS input"
@@ -87,10 +86,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             };
             let help = format!(
                 "drive it, or tie it to {} or {} (or to a used input of the same gate)",
-                ground_rail_name(ctx, f.at.comp),
-                supply_rail_name(ctx, f.at.comp)
+                ground_rail_name(ctx, f.at.comp()),
+                supply_rail_name(ctx, f.at.comp())
             );
-            part_text = Some((f.at.comp, input, Text::from(help)));
+            part_text = Some((f.at.comp(), input, Text::from(help)));
         }
         let (_, input, help) = part_text.as_ref().expect("set above");
         let input = *input;

@@ -30,7 +30,6 @@ use crate::values::format_ohms;
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
-    let found = floating_inputs(ctx, true);
     let inside = |comp: usize| {
         cx.family(comp)
             .and_then(|f| f.internal_input_pullup_ohm)
@@ -46,7 +45,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     };
     // the words every part alike shares (the tail of the message, the help), made once
     let mut words = Words::new();
-    for g in found.gates() {
+    let singles = floating_inputs(ctx, true, |g| {
         let words = words.get(GateKey::of(ctx, &g), || {
             let pins: Vec<_> = g.inputs.iter().map(|f| f.at).collect();
             let list = pin_list(ctx, &pins);
@@ -72,16 +71,20 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             )
         });
         push_unused_gate(out, cx, &g, crate::diag::Severity::Warning, words);
-    }
+    });
     // the wording that depends on the part alone, made once per part (a part has many
     // findings, in a row)
     let mut part_text: Option<(usize, String, Text)> = None;
-    for f in found.singles {
-        if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp) {
-            part_text = Some((f.at.comp, inside(f.at.comp), Text::from(tie(f.at.comp))));
+    for f in singles {
+        if part_text.as_ref().is_none_or(|(c, ..)| *c != f.at.comp()) {
+            part_text = Some((
+                f.at.comp(),
+                inside(f.at.comp()),
+                Text::from(tie(f.at.comp())),
+            ));
         }
         let (_, inside, tie) = part_text.as_ref().expect("set above");
-        let nc = cx.nl.components[f.at.comp].pins[f.at.pin].no_connect;
+        let nc = cx.nl.components[f.at.comp()].pins[f.at.pin()].no_connect;
         let flag = if nc {
             " (its no-connect flag leaves it open; it does not tie it)"
         } else {
@@ -104,7 +107,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 Some(n),
             ),
         };
-        let holds = cx.cl.parts[f.at.comp].table_names[f.at.pin]
+        let holds = cx.cl.parts[f.at.comp()].table_names[f.at.pin()]
             .as_deref()
             .is_some_and(holds_when_high)
             && partner_lets_it_hold(ctx, f.at);
@@ -119,7 +122,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             )
             .with_help(format!(
                 "tie it to {} (or drive it) so the part runs",
-                super::common::ground_rail_name(ctx, f.at.comp)
+                super::common::ground_rail_name(ctx, f.at.comp())
             ))
         } else {
             Diag::warning(
@@ -147,8 +150,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
 /// active-high reset holds on its own.
 fn partner_lets_it_hold(ctx: &Context<'_, '_, '_>, at: crate::circuit::PinRef) -> bool {
     let cx = ctx.cx;
-    let part = &cx.cl.parts[at.comp];
-    let Some(name) = part.table_names[at.pin].as_deref() else {
+    let part = &cx.cl.parts[at.comp()];
+    let Some(name) = part.table_names[at.pin()].as_deref() else {
         return true;
     };
     let partner = match name {
@@ -165,7 +168,7 @@ fn partner_lets_it_hold(ctx: &Context<'_, '_, '_>, at: crate::circuit::PinRef) -
     else {
         return true;
     };
-    match cx.nl.components[at.comp].pins[q].connection.net() {
+    match cx.nl.components[at.comp()].pins[q].connection.net() {
         Some(n) => !cx.nets[n].rail.is_some_and(|r| r.ground),
         None => true,
     }

@@ -136,9 +136,9 @@ pub(super) fn sources(cx: &Circuit<'_, '_>, net: usize) -> Vec<Source> {
             continue;
         }
         let (Some(lv), Some(fam), Some(s)) = (
-            &d.levels,
-            cx.family(d.at.comp),
-            cx.supplies[d.at.comp].as_ref(),
+            &d.levels(cx),
+            cx.family(d.at.comp()),
+            cx.supplies[d.at.comp()].as_ref(),
         ) else {
             continue;
         };
@@ -171,10 +171,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             // loads over the limit, by component
             let mut over: BTreeMap<usize, (Vec<PinRef>, f64, String)> = BTreeMap::new();
             for l in &nm.loads {
-                if matches!(src, Source::Driver { at, .. } if at == l.at || at.comp == l.at.comp) {
+                if matches!(src, Source::Driver { at, .. } if at == l.at || at.comp() == l.at.comp())
+                {
                     continue;
                 }
-                let (Some(fam), Some(s)) = (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref())
+                let (Some(fam), Some(s)) =
+                    (cx.family(l.at.comp()), cx.supplies[l.at.comp()].as_ref())
                 else {
                     continue;
                 };
@@ -183,7 +185,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 let src_rail = match &src {
                     Source::Rail { .. } => Some(net),
                     Source::Driver { at, .. } => {
-                        cx.supplies[at.comp].as_ref().and_then(|x| x.supply_net())
+                        cx.supplies[at.comp()].as_ref().and_then(|x| x.supply_net())
                     }
                     Source::PullUp { index, .. } => Some(nm.pulls()[*index].rail_net),
                 };
@@ -195,7 +197,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 };
                 // the limit's words only for an input over it
                 if src.level() > limit_volts(fam, end) + 1e-9 {
-                    over.entry(l.at.comp)
+                    over.entry(l.at.comp())
                         .or_insert_with(|| {
                             let (lim, text) = limit(fam, end);
                             (Vec::new(), lim, text)
@@ -243,14 +245,14 @@ fn diag(
                 format!(
                     "a high of {} (its supply {}; {} guaranteed at light load)",
                     format_volts(level),
-                    cx.supply_text(at.comp),
+                    cx.supply_text(at.comp()),
                     format_volts(light)
                 )
             } else {
                 format!(
                     "a high of at least {} (its guaranteed VOH at {})",
                     format_volts(level),
-                    cx.supply_text(at.comp)
+                    cx.supply_text(at.comp())
                 )
             };
             (
@@ -273,7 +275,7 @@ fn diag(
                     };
                     format!(
                         "run {} from {load_rail}, or {shift}",
-                        cx.nl.components[at.comp].reference
+                        cx.nl.components[at.comp()].reference
                     )
                 },
                 Some(at),

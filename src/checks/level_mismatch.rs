@@ -58,7 +58,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 .find(|x| x.driver() == m.driver)
                 .expect("margin has a driver budget");
             if let Some(hm) = m.high_margin {
-                let covered = ctx.cx.ttl_output(d.at.comp) && !l.ttl;
+                let covered = ctx.cx.ttl_output(d.at.comp()) && !l.ttl();
                 let sev = if hm < 0.0 && !covered {
                     Some(Severity::Error)
                 } else if hm >= 0.0 && hm < ctx.opts.min_margin_v {
@@ -90,7 +90,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                                 "{} needs {} for a high at {}{}; {} {} {}: {gap}",
                                 cx.describe(l.at),
                                 format_volts(m.vih),
-                                cx.supply_text(l.at.comp),
+                                cx.supply_text(l.at.comp()),
                                 super::common::vih_supply_note(m),
                                 cx.describe(d.at),
                                 how,

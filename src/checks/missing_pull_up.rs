@@ -46,10 +46,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         // wired-OR outputs: name them all, the first by reference (not by file order)
         let mut oc = oc;
         oc.sort_by_key(|d| {
-            let c = &cx.nl.components[d.at.comp];
+            let c = &cx.nl.components[d.at.comp()];
             (
                 c.reference.as_str().to_string(),
-                c.pins[d.at.pin].num(cx.nl).to_string(),
+                c.pins[d.at.pin()].num(cx.nl).to_string(),
             )
         });
         let d = oc[0];
@@ -87,8 +87,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 format!(
                     "{} has no pull-up on this board and no input here reads it; the net leaves through {} pin {}, where the pull-up belongs to the other side",
                     cx.describe(d.at),
-                    cx.nl.components[j.comp].reference,
-                    cx.nl.components[j.comp].pins[j.pin].num(cx.nl)
+                    cx.nl.components[j.comp()].reference,
+                    cx.nl.components[j.comp()].pins[j.pin()].num(cx.nl)
                 ),
             )
             .also(cx.pin_span(j), "leaves the board")
@@ -99,8 +99,8 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 format!(
                     "{} has no pull-up on this board; the net leaves through {} pin {}, where one may be fitted",
                     cx.describe(d.at),
-                    cx.nl.components[j.comp].reference,
-                    cx.nl.components[j.comp].pins[j.pin].num(cx.nl)
+                    cx.nl.components[j.comp()].reference,
+                    cx.nl.components[j.comp()].pins[j.pin()].num(cx.nl)
                 ),
             )
             .also(cx.pin_span(j), "leaves the board")
@@ -125,7 +125,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let known_reader = nm
             .loads
             .iter()
-            .any(|l| l.family.is_some() && !oc.iter().any(|o| o.at == l.at));
+            .any(|l| l.family(cx).is_some() && !oc.iter().any(|o| o.at == l.at));
         if !known_reader && !loads.is_empty() && diag.severity == crate::diag::Severity::Error {
             diag.severity = crate::diag::Severity::Warning;
             diag.extend_message(" (assuming the symbol is right that these pins are inputs: the parts are ones netmargin does not know)");
@@ -134,7 +134,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             diag.severity = crate::diag::Severity::Info;
             diag.extend_message(&format!(
                 " (this rests on the symbol, which types the pin open-collector; {} is a part netmargin does not know)",
-                cx.nl.components[d.at.comp].reference
+                cx.nl.components[d.at.comp()].reference
             ));
         }
         diag = diag

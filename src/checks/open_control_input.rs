@@ -69,7 +69,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             let Some(why) = super::common::floats(cx, p.connection) else {
                 continue;
             };
-            let at = PinRef { comp: ci, pin: pi };
+            let at = PinRef::new(ci, pi);
             let name = part.table_names[pi].clone().unwrap_or_default();
             let level = if high { "high" } else { "low" };
             let how = match &why {

@@ -43,8 +43,8 @@ use crate::values::format_amps;
 /// output and its inputs on the same nets as the others', and the package sharing nothing
 /// between units but its supply pins (a gate package, not a register with a common clock).
 pub(super) fn paralleled_units(cx: &Circuit<'_, '_>, outs: &[PinRef]) -> Option<Vec<String>> {
-    let comp = outs.first()?.comp;
-    if outs.len() < 2 || outs.iter().any(|o| o.comp != comp) {
+    let comp = outs.first()?.comp();
+    if outs.len() < 2 || outs.iter().any(|o| o.comp() != comp) {
         return None;
     }
     let part = &cx.cl.parts[comp];
@@ -63,10 +63,10 @@ pub(super) fn paralleled_units(cx: &Circuit<'_, '_>, outs: &[PinRef]) -> Option<
     let mut units: Vec<String> = Vec::new();
     let mut inputs: Option<Vec<usize>> = None;
     for o in outs {
-        if part.roles[o.pin] != PinRole::PushPull {
+        if part.roles[o.pin()] != PinRole::PushPull {
             return None;
         }
-        let unit = part.units[o.pin].as_deref().map(String::from)?;
+        let unit = part.units[o.pin()].as_deref().map(String::from)?;
         if units.contains(&unit) {
             return None;
         }
@@ -210,13 +210,13 @@ fn ratings(cx: &Circuit<'_, '_>, net: usize, p: PinRef) -> String {
         .drivers
         .iter()
         .find(|d| d.at == p)
-        .and_then(|d| d.levels.as_ref())
+        .and_then(|d| d.levels(cx))
     {
         Some(lv) => format!(
             "each rated to source {} (IOH) and sink {} (IOL) at {}",
             format_amps(lv.ioh_max.abs()),
             format_amps(lv.iol_max.abs()),
-            cx.supply_text(p.comp)
+            cx.supply_text(p.comp())
         ),
         None => "with ratings unknown: its family is not known".to_string(),
     }
@@ -228,7 +228,7 @@ fn on_text(cx: &Circuit<'_, '_>, p: PinRef) -> String {
         Gate::When(l) => format!(
             "when {}",
             l.iter()
-                .map(|x| literal_text(cx, p.comp, x, true))
+                .map(|x| literal_text(cx, p.comp(), x, true))
                 .collect::<Vec<_>>()
                 .join(" and ")
         ),
@@ -281,7 +281,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 };
                 let mut refs: Vec<&str> = hinted
                     .iter()
-                    .map(|p| cx.nl.components[p.comp].reference.as_str())
+                    .map(|p| cx.nl.components[p.comp()].reference.as_str())
                     .collect();
                 refs.dedup();
                 d.extend_message(&format!(
@@ -332,7 +332,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             for p in &ps[1..] {
                 d = d.also(cx.pin_span(*p), "another push-pull output");
             }
-            let same_pkg = ps.iter().all(|p| p.comp == ps[0].comp);
+            let same_pkg = ps.iter().all(|p| p.comp() == ps[0].comp());
             let help = if same_pkg {
                 format!("{combine} (these gates share a package, but their inputs are on different nets, so they are not a paralleled pair)")
             } else {
@@ -341,7 +341,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             d.with_help(help)
         }
         Finding::Paralleled(ps) => {
-            let comp = ps[0].comp;
+            let comp = ps[0].comp();
             let b = ctx.budgets.net(net);
             let nm = &cx.nets[net];
             let first = nm.drivers.iter().position(|d| d.at == ps[0]);
@@ -352,7 +352,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
                     nm.drivers
                         .iter()
                         .find(|d| d.at == *p)
-                        .and_then(|d| d.levels.as_ref())
+                        .and_then(|d| d.levels(cx))
                 })
                 .fold((0.0, 0.0), |(l, h), lv| {
                     (l + lv.iol_max.abs(), h + lv.ioh_max.abs())
@@ -396,7 +396,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
                 .drivers
                 .iter()
                 .find(|d| d.at == *p)
-                .and_then(|d| d.levels.as_ref());
+                .and_then(|d| d.levels(cx));
             let (state, what, rating) = if rail.ground {
                 (
                     "high",

@@ -82,13 +82,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     for (net, nm) in cx.nets.iter().enumerate() {
         for db in ctx.budgets.net(net).drivers {
             let d = &nm.drivers[db.driver()];
-            if d.symbol_only || d.levels.is_none() || gate(cx, d.at) == Gate::Never {
+            if d.symbol_only || d.levels(cx).is_none() || gate(cx, d.at) == Gate::Never {
                 continue;
             }
             for op in [db.drive_high(), db.drive_low()].into_iter().flatten() {
                 dark(ctx, net, d.at, op, out);
                 let cmos = cx
-                    .family(d.at.comp)
+                    .family(d.at.comp())
                     .is_some_and(|f| f.technology == Technology::Cmos);
                 if cmos {
                     current(ctx, net, db.driver(), op, out);
@@ -216,7 +216,7 @@ fn current(
     if lit.is_empty() {
         return;
     }
-    let fam = cx.family(d.at.comp);
+    let fam = cx.family(d.at.comp());
     let abs_i = fam.and_then(|f| f.output_abs_max_a);
     let abs_w = fam.and_then(|f| f.output_transistor_abs_max_w);
     let watts = op.total * (op.rail - op.level).abs();
@@ -255,7 +255,7 @@ fn current(
         return;
     }
     let assumed = lit.iter().any(|l| l.open_common.is_some());
-    let supply_known = cx.supplies[d.at.comp].as_ref().is_some_and(|s| s.known);
+    let supply_known = cx.supplies[d.at.comp()].as_ref().is_some_and(|s| s.known);
     if assumed && sev == Severity::Warning {
         // a dark display's segments over the rating: `display-common-open` says enough
         return;
@@ -330,7 +330,7 @@ fn current(
         },
         format_amps(op.total),
         format_amps(op.rating),
-        cx.supply_text(d.at.comp),
+        cx.supply_text(d.at.comp()),
         pct(op.total / op.rating.max(f64::MIN_POSITIVE))
     );
     if let Some(a) = abs_i {

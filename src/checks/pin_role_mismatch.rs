@@ -267,23 +267,20 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             })
             .collect();
         let pairs: Vec<(PinType, PinRole)> = groups.iter().map(|(k, _)| *k).collect();
-        let first = PinRef {
-            comp: ci,
-            pin: bad[0],
-        };
+        let first = PinRef::new(ci, bad[0]);
         let mut diag = Diag::warning(
             "pin-role-mismatch",
             format!("{} ({value}): the symbol disagrees with the {value} pinout at {} pin{}: {}", c.reference.as_str(), bad.len(), if bad.len() == 1 { "" } else { "s" }, clauses.join("; ")),
         )
         .at(cx.pin_span(first), format!("the symbol's pin {} is typed {}", c.pins[bad[0]].num(cx.nl), c.pins[bad[0]].ptype.as_str()))
-        .with_pin_list(super::common::pin_names(cx, bad.iter().map(|&i| PinRef { comp: ci, pin: i })))
+        .with_pin_list(super::common::pin_names(cx, bad.iter().map(|&i| PinRef::new(ci, i))))
         .with_help(format!(
             "likely cause: {}; use a symbol for the {value} (or correct the pin types); netmargin goes by the value and reads these pins as the {value} pinout gives them",
             likely_cause(&pairs)
         ));
         for &pi in bad.iter().skip(1).take(3) {
             diag = diag.also(
-                cx.pin_span(PinRef { comp: ci, pin: pi }),
+                cx.pin_span(PinRef::new(ci, pi)),
                 format!("typed {}", c.pins[pi].ptype.as_str()),
             );
         }

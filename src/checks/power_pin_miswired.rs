@@ -169,7 +169,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             let Some(side) = side_of(part.roles[pi], source, name) else {
                 continue;
             };
-            let at = PinRef { comp: ci, pin: pi };
+            let at = PinRef::new(ci, pi);
             let side_word = if side == Side::Supply {
                 "supply"
             } else {
@@ -195,7 +195,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                             let mut list = |what: &mut String,
                                             word: &str,
                                             pins: &mut dyn Iterator<Item = PinRef>| {
-                                for (i, q) in pins.filter(|q| q.comp != ci).take(3).enumerate() {
+                                for (i, q) in pins.filter(|q| q.comp() != ci).take(3).enumerate() {
                                     if i == 0 {
                                         what.push_str(if open { "; " } else { " (" });
                                         open = true;
@@ -257,7 +257,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                             .drivers
                             .iter()
                             .map(|d| d.at)
-                            .filter(|q| q.comp != ci)
+                            .filter(|q| q.comp() != ci)
                             .take(2)
                         {
                             d = d.also(cx.pin_span(q), "drives the net");
@@ -360,7 +360,7 @@ fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut crate::diag::Dia
     if !outside_range(lo, hi, fam.supply_min, fam.supply_max) {
         return;
     }
-    let at = PinRef { comp: ci, pin: spi };
+    let at = PinRef::new(ci, spi);
     let level = if (hi - lo).abs() < 1e-12 {
         format_volts(hi)
     } else {

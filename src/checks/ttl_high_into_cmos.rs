@@ -58,7 +58,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             }
             let d = &nm.drivers[m.driver];
             let l = &nm.loads[m.load];
-            if !ctx.cx.ttl_output(d.at.comp) || l.ttl || l.levels.is_none() {
+            if !ctx.cx.ttl_output(d.at.comp()) || l.ttl() || l.levels(cx).is_none() {
                 continue;
             }
             let db = &b
@@ -67,14 +67,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 .find(|x| x.driver() == m.driver)
                 .expect("margin has a driver budget");
             let high = db.high_level().unwrap_or(0.0);
-            let load_comp = &cx.nl.components[l.at.comp];
-            let load_vcc = cx.supplies[l.at.comp].as_ref().map_or(5.0, |s| s.vcc);
+            let load_comp = &cx.nl.components[l.at.comp()];
+            let load_vcc = cx.supplies[l.at.comp()].as_ref().map_or(5.0, |s| s.vcc);
             let mut fixes = Vec::new();
-            if let Some(alt) = l.family.as_deref().and_then(ttl_threshold_variant) {
+            if let Some(alt) = l.family(cx).and_then(ttl_threshold_variant) {
                 if let Some(af) = cx.rules.families.get(alt) {
                     let alv = af.levels(load_vcc, crate::classify::family::Drive::Standard);
                     let value = load_comp.value_str();
-                    let from = l.family.as_deref().unwrap_or("");
+                    let from = l.family(cx).unwrap_or("");
                     let suffix = from.trim_start_matches("74");
                     let alt_value =
                         value
@@ -94,16 +94,16 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 }
             }
             // a pull-up to the load's supply
-            if let (Some(dl), Some(s)) = (&d.levels, cx.supplies[l.at.comp].as_ref()) {
+            if let (Some(dl), Some(s)) = (d.levels(cx), cx.supplies[l.at.comp()].as_ref()) {
                 let v = s.vcc;
                 let vol = dl.vol.last().map_or(0.4, |p| p.v);
                 let iol = dl.iol_max.abs();
-                let sum_iil: f64 = nm.loads.iter().filter_map(|x| x.iil()).sum();
-                let sum_iih: f64 = nm.loads.iter().filter_map(|x| x.iih()).sum();
+                let sum_iil: f64 = nm.loads.iter().filter_map(|x| x.iil(cx)).sum();
+                let sum_iih: f64 = nm.loads.iter().filter_map(|x| x.iih(cx)).sum();
                 let vih_max = nm
                     .loads
                     .iter()
-                    .filter_map(|x| x.levels.as_ref())
+                    .filter_map(|x| x.levels(cx))
                     .map(|x| x.vih_min)
                     .fold(0.0, f64::max);
                 if iol > sum_iil && v > vih_max {
@@ -129,7 +129,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                     }
                 }
             }
-            let rated = rated_at_ttl(ctx, d.at.comp);
+            let rated = rated_at_ttl(ctx, d.at.comp());
             let diag = Diag::new(
                 "ttl-high-into-cmos",
                 if rated {
@@ -141,7 +141,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                     "{} needs {} for a high at {}{}; {} guarantees {}: short by {}{}",
                     cx.describe(l.at),
                     format_volts(m.vih),
-                    cx.supply_text(l.at.comp),
+                    cx.supply_text(l.at.comp()),
                     super::common::vih_supply_note(m),
                     cx.describe(d.at),
                     format_volts(high),
@@ -149,7 +149,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                     if rated {
                         format!(
                             " (assuming the {} family's high is no better at this light load than its guarantee at its rated current: its data sheet gives no light-load figure)",
-                            cx.family(d.at.comp).map_or("driver's", |f| f.id.as_str())
+                            cx.family(d.at.comp()).map_or("driver's", |f| f.id.as_str())
                         )
                     } else {
                         String::new()

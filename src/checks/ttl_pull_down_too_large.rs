@@ -74,11 +74,11 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
     let vil = nm
         .loads
         .iter()
-        .filter(|l| l.ttl)
-        .filter_map(|l| l.levels.as_ref())
+        .filter(|l| l.ttl())
+        .filter_map(|l| l.levels(cx))
         .map(|l| l.vil_max)
         .reduce(f64::min)?;
-    let iil: f64 = nm.loads.iter().filter_map(|l| l.iil()).sum();
+    let iil: f64 = nm.loads.iter().filter_map(|l| l.iil(cx)).sum();
     let g: f64 = nm
         .pulls()
         .iter()
@@ -105,7 +105,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let ttl: Vec<PinRef> = nm
             .loads
             .iter()
-            .filter(|l| l.ttl && l.levels.is_some())
+            .filter(|l| l.ttl() && l.levels(cx).is_some())
             .map(|l| l.at)
             .collect();
         let first = ttl[0];
@@ -121,7 +121,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             })
             .collect();
         let rail = cx.net_name(nm.pulls()[0].rail_net);
-        let n = nm.loads.iter().filter(|l| l.levels.is_some()).count();
+        let n = nm.loads.iter().filter(|l| l.levels(cx).is_some()).count();
         let who = if n == 1 {
             cx.describe(first)
         } else {
@@ -146,7 +146,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             .first()
             .map(|j| format!(" while nothing drives the net through {}", cx.pin_name(*j)))
             .unwrap_or_default();
-        let vcc = cx.supplies[first.comp].as_ref().map_or(5.0, |s| s.vcc);
+        let vcc = cx.supplies[first.comp()].as_ref().map_or(5.0, |s| s.vcc);
         let reads = if pd.level() >= vcc {
             // the product is only a budget: the input cannot rise above its open level
             "the resistor cannot hold it low at all, and it sits at its open-input level (a high)"
@@ -160,15 +160,15 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             format_ohms(pd.ohms),
             format_volts(pd.level()),
             format_volts(pd.vil),
-            cx.supply_text(first.comp)
+            cx.supply_text(first.comp())
         );
         // a capacitor from the net to the supply beside the pull-down: a power-on delay,
         // drawn on purpose (the input is high at power-on and is meant to be)
         let rc = nm.passives.iter().find_map(|p| {
-            let c = &cx.nl.components[p.comp];
-            (cx.cl.parts[p.comp].kind == crate::classify::classifier::PartKind::Capacitor
+            let c = &cx.nl.components[p.comp()];
+            (cx.cl.parts[p.comp()].kind == crate::classify::classifier::PartKind::Capacitor
                 && c.pins.len() == 2)
-                .then(|| c.pins[1 - p.pin].connection.net())
+                .then(|| c.pins[1 - p.pin()].connection.net())
                 .flatten()
                 .filter(|&n| cx.nets[n].rail.is_some_and(|r| !r.ground))
                 .map(|_| c.reference.as_str().to_string())
@@ -210,7 +210,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 .chain(
                     nm.loads
                         .iter()
-                        .filter(|l| l.at != first && l.levels.is_some())
+                        .filter(|l| l.at != first && l.levels(cx).is_some())
                         .map(|l| cx.pin_name(l.at)),
                 )
                 .chain(nm.pulls().iter().map(|p| cx.pin_name(p.at))),
@@ -224,7 +224,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         for l in nm
             .loads
             .iter()
-            .filter(|l| l.at != first && l.levels.is_some())
+            .filter(|l| l.at != first && l.levels(cx).is_some())
         {
             d = d.also(cx.pin_span(l.at), "input");
         }

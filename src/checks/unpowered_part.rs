@@ -253,7 +253,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         }
         wires(&mut help);
         let span_of = |idx: Option<usize>| match idx {
-            Some(i) => cx.pin_span(PinRef { comp: ci, pin: i }),
+            Some(i) => cx.pin_span(PinRef::new(ci, i)),
             None => c.reference.span(),
         };
         let label = |m: Missing| match m {

@@ -69,7 +69,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 .iter()
                 .filter_map(|p| p.connection.net())
                 .find(|&n| n != net && cx.nets[n].rail.is_some());
-            pulled.push((net, PinRef { comp: ci, pin: pi }, rail));
+            pulled.push((net, PinRef::new(ci, pi), rail));
         }
         // `the pull-up on /S to +5V, the pull on /T is left out ...`, written in place
         let mut effect = String::new();

@@ -66,19 +66,19 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
     let mut out = Vec::new();
     let mut cur = path.at;
     for _ in 0..(path.leds.len() + path.resistors.len()) {
-        let c = &nl.components[cur.comp];
+        let c = &nl.components[cur.comp()];
         if c.pins.len() != 2 {
             break;
         }
-        if cx.cl.parts[cur.comp].kind == PartKind::Led {
-            let side = c.pins[cur.pin].name(nl).and_then(pin_side);
+        if cx.cl.parts[cur.comp()].kind == PartKind::Led {
+            let side = c.pins[cur.pin()].name(nl).and_then(pin_side);
             out.push(match side {
                 Some(true) => Polarity::Forward,
                 Some(false) => Polarity::Reversed,
                 None => Polarity::Unknown,
             });
         }
-        let Connection::Net { net, .. } = c.pins[1 - cur.pin].connection else {
+        let Connection::Net { net, .. } = c.pins[1 - cur.pin()].connection else {
             break;
         };
         let net = net as usize;
@@ -88,7 +88,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
         let Some(next) = nl.nets[net]
             .nodes
             .iter()
-            .find(|n| n.component() != Some(cur.comp as u32))
+            .find(|n| n.component() != Some(cur.comp() as u32))
         else {
             break;
         };
@@ -102,7 +102,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
         else {
             break;
         };
-        cur = PinRef { comp: ci, pin: pi };
+        cur = PinRef::new(ci, pi);
     }
     out
 }
@@ -148,12 +148,12 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             if !matches!(
                 d.role,
                 PinRole::PushPull | PinRole::ThreeState | PinRole::Bidirectional
-            ) || !ctx.cx.ttl_output(d.at.comp)
+            ) || !ctx.cx.ttl_output(d.at.comp())
                 || gate(cx, d.at) == Gate::Never
             {
                 continue;
             }
-            let Some(lv) = &d.levels else { continue };
+            let Some(lv) = d.levels(cx) else { continue };
             let voh = lv.voh.first().map_or(2.4, |p| p.v);
             let ioh = lv.ioh_max.abs();
             let db = ctx
@@ -189,7 +189,7 @@ fn diag(
     let cx = ctx.cx;
     let nm = &cx.nets[net];
     let d = &nm.drivers[di];
-    let lv = d.levels.as_ref().expect("checked by the caller");
+    let lv = d.levels(cx).expect("checked by the caller");
     let ioh = lv.ioh_max.abs();
     let led: f64 = currents.iter().sum();
     let total = led + logic;
@@ -257,10 +257,10 @@ fn diag(
         cx.describe(d.at),
         terms.join(" and "),
         format_amps(ioh),
-        cx.supply_text(d.at.comp)
+        cx.supply_text(d.at.comp())
     );
     // the fix: sink the LED from the supply, within the derated IOL less the inputs' IIL
-    let vcc = cx.supplies[d.at.comp].as_ref().map_or(5.0, |s| s.vcc);
+    let vcc = cx.supplies[d.at.comp()].as_ref().map_or(5.0, |s| s.vcc);
     let vol = lv.vol.last().map_or(0.4, |p| p.v);
     let iol = lv.iol_max.abs();
     let low_inputs = ctx
@@ -273,7 +273,7 @@ fn diag(
         .map_or(0.0, |l| l.total);
     let vf = paths[0].vf;
     let available = (ctx.opts.derating * iol - low_inputs) / paths.len() as f64;
-    let rail = super::common::supply_rail_name(ctx, d.at.comp);
+    let rail = super::common::supply_rail_name(ctx, d.at.comp());
     let sink = match sink_resistor(vcc, vf, vol, available) {
         Some(r) => {
             let i = (vcc - vf - vol) / r;

@@ -67,7 +67,11 @@ impl Item {
         match self.kind {
             ItemKind::Input { net, load, low, .. } => {
                 let l = &cx.nets[net as usize].loads[load as usize];
-                several(if low { l.unit_loads.0 } else { l.unit_loads.1 })
+                several(if low {
+                    l.unit_loads(cx).0
+                } else {
+                    l.unit_loads(cx).1
+                })
             }
             _ => None,
         }
@@ -103,14 +107,14 @@ impl Item {
                 let l = &cx.nets[net as usize].loads[load as usize];
                 let (each, units, what) = if low {
                     (
-                        l.levels.as_ref().map_or(0.0, |ll| ll.iil_max.abs()),
-                        l.unit_loads.0,
+                        l.levels(cx).map_or(0.0, |ll| ll.iil_max.abs()),
+                        l.unit_loads(cx).0,
                         "input low current (IIL)",
                     )
                 } else {
                     (
-                        l.levels.as_ref().map_or(0.0, |ll| ll.iih_max.abs()),
-                        l.unit_loads.1,
+                        l.levels(cx).map_or(0.0, |ll| ll.iih_max.abs()),
+                        l.unit_loads(cx).1,
                         "input high current (IIH)",
                     )
                 };
@@ -125,10 +129,10 @@ impl Item {
                     } else {
                         format!("{units:.1}")
                     };
-                    let name = cx.cl.parts[l.at.comp].table_names[l.at.pin]
+                    let name = cx.cl.parts[l.at.comp()].table_names[l.at.pin()]
                         .as_deref()
                         .unwrap_or("the input");
-                    let family = l.family.as_deref().unwrap_or("its family");
+                    let family = l.family(cx).unwrap_or("its family");
                     text.push_str(&format!(
                         ": {name} draws {n} unit loads ({n} x the {family} input's {})",
                         format_amps(each)
@@ -342,7 +346,7 @@ impl DriverBudget {
         let nm = &cx.nets[net];
         let di = self.driver();
         let d = &nm.drivers[di];
-        let Some(lv) = d.levels.as_deref() else {
+        let Some(lv) = d.levels(cx).map(|l| &**l) else {
             return items;
         };
         if low {
@@ -748,7 +752,7 @@ impl<'b> NetBudgetRef<'b> {
                 if l.at == d.at {
                     return None;
                 }
-                let ll = l.levels.as_ref()?;
+                let ll = l.levels(cx)?;
                 let scaled = if t > 0.0 {
                     scaled_thresholds(cx, l)
                 } else {
@@ -819,7 +823,7 @@ impl Budgets {
 /// A CMOS load's thresholds at the worst ends of its supply under the rail tolerance: (VIH
 /// at the top, VIL at the bottom, the top, the bottom); `None` for any other load.
 fn scaled_thresholds(cx: &Circuit<'_, '_>, l: &super::Load) -> Option<(f64, f64, f64, f64)> {
-    match (cx.family(l.at.comp), cx.supplies[l.at.comp].as_ref()) {
+    match (cx.family(l.at.comp()), cx.supplies[l.at.comp()].as_ref()) {
         (Some(f), Some(s)) if f.is_cmos_input() => {
             let (lo, hi) = cx.rail_range(s.vcc);
             Some((
@@ -838,21 +842,22 @@ fn scaled_thresholds(cx: &Circuit<'_, '_>, l: &super::Load) -> Option<(f64, f64,
 /// counter's QA is tested at IOL plus its second clock's IIL).
 fn counted(cx: &Circuit<'_, '_>, d: &super::Driver, l: &super::Load) -> bool {
     l.at != d.at
-        && !(l.at.comp == d.at.comp
-            && cx.cl.parts[d.at.comp].rated_with[d.at.pin].contains(&l.at.pin))
+        && !(l.at.comp() == d.at.comp()
+            && cx.cl.parts[d.at.comp()].rated_with[d.at.pin()].contains(&l.at.pin()))
 }
 
 /// A logic input's line in a state's budget: load `load` of net `net`, its current, and
 /// when it draws more than one of its family's input currents, how many (`6 unit loads: 6 x
 /// 0.40 mA` in its words).
 fn input_item(
+    cx: &Circuit<'_, '_>,
     net: usize,
     load: usize,
     l: &super::Load,
     low: bool,
     through: Option<usize>,
 ) -> Option<Item> {
-    let amps = if low { l.iil()? } else { l.iih()? };
+    let amps = if low { l.iil(cx)? } else { l.iih(cx)? };
     Some(Item {
         kind: ItemKind::Input {
             net: index(net),
@@ -891,7 +896,7 @@ fn low_items(
     let start = items.len();
     for (li, l) in nm.loads.iter().enumerate() {
         if counted(cx, d, l) {
-            items.extend(input_item(net, li, l, true, None));
+            items.extend(input_item(cx, net, li, l, true, None));
         }
     }
     let own = items.len() - start;
@@ -910,7 +915,7 @@ fn low_items(
     for &(m, part) in nm.feeds() {
         let m = m as usize;
         for (li, l) in cx.nets[m].loads.iter().enumerate() {
-            items.extend(input_item(m, li, l, true, Some(part as usize)));
+            items.extend(input_item(cx, m, li, l, true, Some(part as usize)));
         }
     }
     // LEDs (lamps, relays) from a positive rail through their resistors: sunk in the low
@@ -935,7 +940,7 @@ fn low_items(
         if oi == di {
             continue;
         }
-        if let Some(ol) = &o.levels {
+        if let Some(ol) = o.levels(cx) {
             match o.role {
                 PinRole::ThreeState | PinRole::Bidirectional => items.push(Item {
                     kind: ItemKind::Leakage {
@@ -975,20 +980,20 @@ fn high_items(
     let start = items.len();
     for (li, l) in nm.loads.iter().enumerate() {
         if counted(cx, d, l) {
-            items.extend(input_item(net, li, l, false, None));
+            items.extend(input_item(cx, net, li, l, false, None));
         }
     }
     for &(m, part) in nm.feeds() {
         let m = m as usize;
         for (li, l) in cx.nets[m].loads.iter().enumerate() {
-            items.extend(input_item(m, li, l, false, Some(part as usize)));
+            items.extend(input_item(cx, m, li, l, false, Some(part as usize)));
         }
     }
     for (oi, o) in nm.drivers.iter().enumerate() {
         if oi == di {
             continue;
         }
-        if let Some(ol) = &o.levels {
+        if let Some(ol) = o.levels(cx) {
             let a = match o.role {
                 PinRole::ThreeState | PinRole::Bidirectional => ol.ioz.abs(),
                 PinRole::OpenCollector => ol.oc_leakage.abs(),
@@ -1053,8 +1058,8 @@ fn budget_into(
         // family's logic outputs (a 4511 segment sources 25 mA where a 4000B gate gives
         // under 1 mA), so neither state is judged against the family's figures
         let levels = d
-            .levels
-            .as_deref()
+            .levels(cx)
+            .map(|l| &**l)
             .filter(|_| d.role != PinRole::OpenEmitter);
         let Some(lv) = levels else {
             drivers.push(DriverBudget::none(di));
@@ -1121,7 +1126,7 @@ fn budget_into(
         // read only when the high state has resistive loads (pull-downs, LEDs to ground):
         // with none there is no operating point to solve
         let stops_short = (!nm.led_paths().is_empty() || has_pulldowns)
-            && cx.family(d.at.comp).is_some_and(|f| {
+            && cx.family(d.at.comp()).is_some_and(|f| {
                 f.technology != Technology::Cmos || f.high_output == HighOutput::Ttl
             });
         let (drive_high, drive_low) = drive_points(nm, d, lv, iih, iil, stops_short, scratch);
@@ -1153,7 +1158,9 @@ fn budget_into(
     }
     // open-collector window
     let oc: Vec<usize> = (0..nm.drivers.len())
-        .filter(|&i| nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels.is_some())
+        .filter(|&i| {
+            nm.drivers[i].role == PinRole::OpenCollector && nm.drivers[i].levels(cx).is_some()
+        })
         .collect();
     if !oc.is_empty() && oc.len() == nm.drivers.len() {
         let rail = nm
@@ -1163,34 +1170,31 @@ fn budget_into(
             .map(|p| (p.rail_net, p.rail_volts))
             .or_else(|| {
                 // no pull-up: use the drivers' supply for the window the fix needs
-                let s = cx.supplies[nm.drivers[oc[0]].at.comp].as_ref()?;
+                let s = cx.supplies[nm.drivers[oc[0]].at.comp()].as_ref()?;
                 Some((s.supply_net()?, s.vcc))
             });
         if let Some((rail_net, v)) = rail {
             let weakest = *oc
                 .iter()
                 .min_by(|&&a, &&b| {
-                    let ia = nm.drivers[a].levels.as_ref().map_or(0.0, |l| l.iol_max);
-                    let ib = nm.drivers[b].levels.as_ref().map_or(0.0, |l| l.iol_max);
+                    let ia = nm.drivers[a].levels(cx).map_or(0.0, |l| l.iol_max);
+                    let ib = nm.drivers[b].levels(cx).map_or(0.0, |l| l.iol_max);
                     ia.partial_cmp(&ib).unwrap_or(std::cmp::Ordering::Equal)
                 })
                 .expect("oc is not empty");
-            let lv = nm.drivers[weakest]
-                .levels
-                .as_ref()
-                .expect("filtered on levels");
+            let lv = nm.drivers[weakest].levels(cx).expect("filtered on levels");
             let vol = lv.vol.last().map_or(0.4, |p| p.v);
             let iol = lv.iol_max.abs();
-            let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.iil()).sum();
-            let sum_high: f64 = nm.loads.iter().filter_map(|l| l.iih()).sum::<f64>()
+            let sum_iil: f64 = nm.loads.iter().filter_map(|l| l.iil(cx)).sum();
+            let sum_high: f64 = nm.loads.iter().filter_map(|l| l.iih(cx)).sum::<f64>()
                 + oc.iter()
-                    .filter_map(|&i| nm.drivers[i].levels.as_ref())
+                    .filter_map(|&i| nm.drivers[i].levels(cx))
                     .map(|l| l.oc_leakage.abs())
                     .sum::<f64>();
             let vih_max = nm
                 .loads
                 .iter()
-                .filter_map(|l| l.levels.as_ref())
+                .filter_map(|l| l.levels(cx))
                 .map(|l| l.vih_min)
                 .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
             // each end at the supply that is worst for it (the data books' VCC max and min)
@@ -1344,6 +1348,18 @@ mod tests {
         let mut states = 0;
         let all = Budgets::build(&cx);
         assert_eq!(all.len(), nl.nets.len());
+        // reading the store in net order gives each net's budget as reading it by net does:
+        // the same drivers' budgets and the same window
+        assert_eq!(all.iter().count(), nl.nets.len());
+        for (n, b) in all.iter().enumerate() {
+            let at = all.net(n);
+            assert!(std::ptr::eq(b.drivers, at.drivers), "net {n}");
+            assert_eq!(
+                b.window.map(std::ptr::from_ref),
+                at.window.map(std::ptr::from_ref),
+                "net {n}"
+            );
+        }
         for n in 0..nl.nets.len() {
             let b = net_budget(&cx, n);
             assert_eq!(b.drivers.len(), cx.nets[n].drivers.len());

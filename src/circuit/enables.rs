@@ -35,19 +35,19 @@ pub enum Gate {
 /// `DIR` (a transceiver's direction input) turns the A side on when low and the B side on when
 /// high (Motorola SN74LS245 truth table: DIR L, bus B data to bus A).
 pub fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
-    let part = &cx.cl.parts[p.comp];
+    let part = &cx.cl.parts[p.comp()];
     match cx.role(p) {
         PinRole::PushPull => return Gate::Always,
         PinRole::ThreeState | PinRole::Bidirectional => {}
         _ => return Gate::Unknown,
     }
-    let enables = &part.enables[p.pin];
-    let comp = &cx.nl.components[p.comp];
+    let enables = &part.enables[p.pin()];
+    let comp = &cx.nl.components[p.comp()];
     let def = part
         .function
         .as_ref()
         .and_then(|(s, id)| cx.rules.functions.get(*s, id))
-        .and_then(|f| f.pin(comp.pins[p.pin].num(cx.nl)));
+        .and_then(|f| f.pin(comp.pins[p.pin()].num(cx.nl)));
     let Some(def) = def.filter(|_| !enables.is_empty()) else {
         return Gate::Unknown;
     };
@@ -100,7 +100,7 @@ pub fn enabled_together(a: &[Literal], b: &[Literal]) -> bool {
 
 /// `U4.1 (1OE~) on /EN_A is low`
 pub fn literal_text(cx: &Circuit<'_, '_>, comp: usize, l: &Literal, on: bool) -> String {
-    let pin = PinRef { comp, pin: l.pin };
+    let pin = PinRef::new(comp, l.pin);
     let name = cx.cl.parts[comp].table_names[l.pin]
         .as_deref()
         .map(|n| format!(" ({n})"))

@@ -66,9 +66,9 @@ pub fn write_net(
         writeln!(out, "    (none)")?;
     }
     for d in &nm.drivers {
-        let fam = d.family.as_deref().unwrap_or("unknown family");
+        let fam = d.family(cx).unwrap_or("unknown family");
         let oc = d.role == crate::classify::PinRole::OpenCollector;
-        let ratings = d.levels.as_ref().map_or(String::new(), |l| {
+        let ratings = d.levels(cx).map_or(String::new(), |l| {
             if oc {
                 return format!(
                     "; IOL {} (VOL {}), off-state leakage {}, {}",
@@ -105,7 +105,7 @@ pub fn write_net(
             sanitize(&cx.describe(d.at)),
             d.role,
             fam,
-            sanitize(&cx.supply_text(d.at.comp)),
+            sanitize(&cx.supply_text(d.at.comp())),
             ratings
         )?;
     }
@@ -114,30 +114,27 @@ pub fn write_net(
         writeln!(out, "    (none)")?;
     }
     for l in &nm.loads {
-        let fig = l
-            .levels
-            .as_ref()
-            .map_or("no family data".to_string(), |lv| {
-                // an input that draws more than one unit load shows its own currents
-                let (low, high) = l.unit_loads;
-                let units = if low != 1.0 || high != 1.0 {
-                    format!(" ({low} and {high} unit loads, low and high)")
-                } else {
-                    String::new()
-                };
-                format!(
-                    "VIH {} VIL {} IIH {} IIL {}{units}",
-                    format_volts(lv.vih_min),
-                    format_volts(lv.vil_max),
-                    format_amps(lv.iih_max * high),
-                    format_amps(lv.iil_max * low)
-                )
-            });
+        let fig = l.levels(cx).map_or("no family data".to_string(), |lv| {
+            // an input that draws more than one unit load shows its own currents
+            let (low, high) = l.unit_loads(cx);
+            let units = if low != 1.0 || high != 1.0 {
+                format!(" ({low} and {high} unit loads, low and high)")
+            } else {
+                String::new()
+            };
+            format!(
+                "VIH {} VIL {} IIH {} IIL {}{units}",
+                format_volts(lv.vih_min),
+                format_volts(lv.vil_max),
+                format_amps(lv.iih_max * high),
+                format_amps(lv.iil_max * low)
+            )
+        });
         writeln!(
             out,
             "    {} [{}]: {}",
             sanitize(&cx.describe(l.at)),
-            l.family.as_deref().unwrap_or("unknown family"),
+            l.family(cx).unwrap_or("unknown family"),
             fig
         )?;
     }
