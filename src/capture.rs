@@ -92,8 +92,8 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
                         .nodes
                         .iter()
                         .map(|x| NodeOut {
-                            reference: x.reference.as_str(),
-                            pin: &x.pin,
+                            reference: x.reference(nl),
+                            pin: x.pin(nl),
                         })
                         .collect(),
                 })
@@ -106,7 +106,7 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
         let pins: Vec<String> = n
             .nodes
             .iter()
-            .map(|x| sanitize(&format!("{}.{}", x.reference, x.pin)).into_owned())
+            .map(|x| sanitize(&format!("{}.{}", x.reference(nl), x.pin(nl))).into_owned())
             .collect();
         writeln!(out, "{}: {}", sanitize(n.name.as_str()), pins.join(" "))?;
     }
@@ -139,7 +139,7 @@ fn side(nl: &Netlist<'_>) -> Side {
         let pins: BTreeSet<Pin> = n
             .nodes
             .iter()
-            .map(|x| (x.reference.as_str().to_string(), x.pin.to_string()))
+            .map(|x| (x.reference(nl).to_string(), x.pin(nl).to_string()))
             .collect();
         let i = s.nets.len();
         for p in &pins {

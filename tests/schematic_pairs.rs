@@ -55,7 +55,7 @@ fn partition(nl: &Netlist<'_>) -> BTreeMap<BTreeSet<(String, String)>, String> {
         let pins: BTreeSet<(String, String)> = n
             .nodes
             .iter()
-            .map(|x| (x.reference.as_str().to_string(), x.pin.to_string()))
+            .map(|x| (x.reference(nl).to_string(), x.pin(nl).to_string()))
             .collect();
         if !pins.is_empty() {
             out.insert(pins, n.name.as_str().to_string());

@@ -210,7 +210,7 @@ fn the_synthetic_schematic_reads_into_its_nets() {
     let pins: Vec<String> = nl.nets[n1]
         .nodes
         .iter()
-        .map(|n| format!("{}.{}", n.reference, n.pin))
+        .map(|n| format!("{}.{}", n.reference(&nl), n.pin(&nl)))
         .collect();
     assert_eq!(pins, ["R1.2", "R2.1"]);
 }
@@ -244,7 +244,7 @@ fn the_synthetic_hierarchy_reads_into_its_nets() {
     let mut pins: Vec<String> = nl.nets[l1]
         .nodes
         .iter()
-        .map(|n| format!("{}.{}", n.reference, n.pin))
+        .map(|n| format!("{}.{}", n.reference(&nl), n.pin(&nl)))
         .collect();
     pins.sort();
     assert_eq!(pins, ["R0_119.2", "R1_0.1"]);

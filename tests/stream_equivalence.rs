@@ -36,7 +36,14 @@ fn dump(nl: &Netlist<'_>) -> String {
             nl.net_by_name(net.name.as_str())
         );
         for (k, node) in net.nodes.iter().enumerate() {
-            let _ = writeln!(s, "  node {k} {node:?}");
+            let _ = writeln!(
+                s,
+                "  node {k} {node:?} ref {:?} at {:?} pin {:?} function {:?}",
+                node.reference(nl),
+                node.reference_span(nl),
+                node.pin(nl),
+                node.pinfunction(nl)
+            );
         }
     }
     for d in &nl.diagnostics {

@@ -987,7 +987,7 @@ fn gather_recapture(
         let node = &n.nodes[0];
         label_nets.push(Row {
             subject: cx.net_name(i),
-            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference.as_str(), &*node.pin),
+            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference(cx.nl), node.pin(cx.nl)),
             line: Some(source.line_col(n.span.start as usize).line),
         });
     }

@@ -98,7 +98,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
         let Some(pi) = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num(nl) == &*next.pin)
+            .position(|p| p.num(nl) == next.pin(nl))
         else {
             break;
         };

@@ -1696,7 +1696,7 @@ fn follow_to_ground<'n>(
         let pi = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num(nl) == &*next.pin)?;
+            .position(|p| p.num(nl) == next.pin(nl))?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef { comp: ci, pin: pi };
         } else {

@@ -29,6 +29,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
     let b = Builder {
         t: tree,
         diags: RefCell::new(Vec::new()),
+        node_texts: RefCell::new(NodeTexts::new(tree.source())),
     };
     let mut nl = Netlist {
         version: None,
@@ -39,6 +40,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         nets: Vec::new(),
         diagnostics: Vec::new(),
         span: tree.span(root),
+        node_texts: NodeTexts::default(),
         by_ref: hashbrown::HashTable::new(),
         by_net_name: hashbrown::HashTable::new(),
         lib_pin_at: Vec::new(),
@@ -102,6 +104,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         }
     };
     let mut diags = b.diags.into_inner();
+    nl.node_texts = b.node_texts.into_inner();
     super::stream::link(tree.source(), &mut nl, &mut diags);
     nl.diagnostics = diags;
     Ok(nl)
@@ -110,6 +113,7 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
 struct Builder<'t, 'a> {
     t: &'t Tree<'a>,
     diags: RefCell<Vec<Diag>>,
+    node_texts: RefCell<NodeTexts<'a>>,
 }
 
 impl<'a> Builder<'_, 'a> {
@@ -430,15 +434,16 @@ impl<'a> Builder<'_, 'a> {
                         }
                     }
                     match (reference, pin) {
-                        (Some(reference), Some(pin)) => net.nodes.push(Node {
-                            reference,
-                            pin: pin.to_str(),
-                            pinfunction: pinfunction.map(|f| f.to_str()),
-                            pintype,
-                            no_connect,
-                            span: self.t.span(n),
-                            comp: None,
-                        }),
+                        (Some(reference), Some(pin)) => {
+                            net.nodes.push(self.node_texts.borrow_mut().node(
+                                self.t.span(n),
+                                &reference,
+                                &pin,
+                                pinfunction.as_ref(),
+                                pintype,
+                                no_connect,
+                            ))
+                        }
                         (r, _) => self.diags.borrow_mut().push(
                             Diag::error(
                                 "missing-field",

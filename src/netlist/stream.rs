@@ -272,8 +272,8 @@ struct LibPartAcc<'a> {
 #[derive(Default)]
 struct NodeAcc<'a> {
     reference: Option<Text<'a>>,
-    pin: Option<Str<'a>>,
-    pinfunction: Option<Str<'a>>,
+    pin: Option<Text<'a>>,
+    pinfunction: Option<Text<'a>>,
     pintype: Option<PinType>,
     no_connect: bool,
 }
@@ -347,6 +347,7 @@ impl<'a> Reader<'a> {
                 nets: Vec::new(),
                 diagnostics: Vec::new(),
                 span,
+                node_texts: NodeTexts::new(text),
                 by_ref: hashbrown::HashTable::new(),
                 by_net_name: hashbrown::HashTable::new(),
                 lib_pin_at: Vec::new(),
@@ -676,8 +677,8 @@ impl<'a> Reader<'a> {
                 }
             }
             Slot::NodeRef => self.node.reference = v,
-            Slot::NodePin => self.node.pin = v.map(|t| t.to_str()),
-            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.to_str()),
+            Slot::NodePin => self.node.pin = v,
+            Slot::NodeFunction => self.node.pinfunction = v,
             Slot::NodeType => {
                 if let Some(v) = v {
                     let (t, nc) = PinType::parse(v.as_str());
@@ -871,17 +872,20 @@ impl<'a> Reader<'a> {
     }
 
     fn end_node(&mut self, span: Span) {
-        let nd = std::mem::take(&mut self.node);
-        match (nd.reference, nd.pin) {
-            (Some(reference), Some(pin)) => self.nodes.push(Node {
-                reference,
-                pin,
-                pinfunction: nd.pinfunction,
-                pintype: nd.pintype,
-                no_connect: nd.no_connect,
-                span,
-                comp: None,
-            }),
+        // read in place: the next `(node ...)` starts from a new `NodeAcc`
+        let nd = &self.node;
+        match (&nd.reference, &nd.pin) {
+            (Some(reference), Some(pin)) => {
+                let node = self.nl.node_texts.node(
+                    span,
+                    reference,
+                    pin,
+                    nd.pinfunction.as_ref(),
+                    nd.pintype,
+                    nd.no_connect,
+                );
+                self.nodes.push(node);
+            }
             (r, _) => self.diags.push(
                 Diag::error(
                     "missing-field",
@@ -960,15 +964,19 @@ pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag
 /// gives every node the pin `""`: keyed by number, all its pins would collapse into one pin
 /// "on many nets". Such pins are keyed by their name instead, in the nodes and the libpart.
 fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
+    let texts = &mut nl.node_texts;
     for net in &mut nl.nets {
         for nd in &mut net.nodes {
-            if nd.pin.trim().is_empty() {
-                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.trim().is_empty()) {
-                    nd.pin = f.clone();
-                }
+            if nd.pin_is_blank_in(texts)
+                && nd
+                    .pinfunction_in(texts)
+                    .is_some_and(|f| !f.trim().is_empty())
+            {
+                nd.number_by_function(texts);
             }
         }
     }
+    texts.shrink_to_fit();
     for lp in &mut nl.libparts {
         for p in &mut lp.pins {
             if p.num.as_str().trim().is_empty() {
@@ -1078,7 +1086,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
         }
         for (k, node) in net.nodes.iter_mut().enumerate() {
-            let r = node.reference.as_str();
+            let r = node.reference_in(&nl.node_texts);
             let comps = &nl.components;
             match by_ref.find(text_hash(r), |&j| comps[j as usize].reference.as_str() == r) {
                 Some(&ci) => {
@@ -1091,10 +1099,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         "unknown-component",
                         format!(
                             "net `{}` names {}, which is not among the components",
-                            net.name, node.reference
+                            net.name, r
                         ),
                     )
-                    .at(node.reference.span(), "no component has this reference")
+                    .at(
+                        node.reference_span_in(&nl.node_texts),
+                        "no component has this reference",
+                    )
                     .with_help("the netlist is out of step with the schematic: export it again"),
                 ),
             }
@@ -1122,12 +1133,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
     let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
     for &(_, ni, k) in &entries {
-        let pin = &nl.nets[ni as usize].nodes[k as usize].pin;
+        let node = &nl.nets[ni as usize].nodes[k as usize];
+        let pin = node.pin_in(&nl.node_texts);
         let next = pin_ids.len() as u32;
-        let id = match pin_ids.get(pin.as_ref()) {
+        let id = match pin_ids.get(pin) {
             Some(&id) => id,
             None => {
-                pin_ids.insert(pin.clone(), next);
+                pin_ids.insert(node.pin_str_in(&nl.node_texts), next);
                 next
             }
         };
@@ -1206,7 +1218,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                     f.1 as usize,
                     e.1 as usize,
                     node.span,
-                    format!("{}.{}", node.reference, node.pin),
+                    format!(
+                        "{}.{}",
+                        node.reference_in(&nl.node_texts),
+                        node.pin_in(&nl.node_texts)
+                    ),
                 ));
             }
         }

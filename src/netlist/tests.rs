@@ -228,7 +228,7 @@ fn model_items_stay_small() {
         size_of::<CompPin>()
     );
     assert!(
-        size_of::<Node<'_>>() <= 64,
+        size_of::<Node<'_>>() <= 28,
         "Node: {}",
         size_of::<Node<'_>>()
     );
@@ -262,6 +262,56 @@ fn texts_borrow_the_file_unless_unescaped() {
         assert_eq!(c.pins[0].num(&nl), "1");
         assert_eq!(c.pins[0].connection, Connection::Alone { net: 0, node: 0 });
         assert_eq!(nl.nets[0].nodes[0].component(), Some(0));
+    }
+}
+
+/// A node's texts are read where they are written in its span (atoms and quoted strings
+/// alike); one that had to be unescaped is kept apart, and a node whose pin number is empty
+/// takes its pin function as its number either way. Both readers agree.
+#[test]
+fn node_texts_are_read_in_place_unless_unescaped() {
+    let text = r#"(export (version "E")
+  (components (comp (ref "U1")) (comp (ref "R\\1")) (comp (ref Q1)))
+  (nets
+    (net (code "1") (name "A")
+      (node (ref "U1") (pin "1") (pinfunction "IN") (pintype "input"))
+      (node (ref "R\\1") (pin "2"))
+      (node (ref Q1) (pin "") (pinfunction B)))
+    (net (code "2") (name "B")
+      (node (ref "R\\1") (pin "") (pinfunction "X\\Y"))
+      (node (ref "U9") (pin 3)))))"#;
+    for nl in [read(text), super::read(text).unwrap()] {
+        let a = &nl.nets[0].nodes;
+        let b = &nl.nets[1].nodes;
+        let texts = |n: &Node<'_>| {
+            (
+                n.reference(&nl).to_string(),
+                n.pin(&nl).to_string(),
+                n.pinfunction(&nl).map(str::to_string),
+                &text[n.reference_span(&nl).range()],
+            )
+        };
+        let s = |x: &str| x.to_string();
+        assert_eq!(texts(&a[0]), (s("U1"), s("1"), Some(s("IN")), r#""U1""#));
+        assert_eq!(texts(&a[1]), (s("R\\1"), s("2"), None, r#""R\\1""#));
+        assert_eq!(texts(&a[2]), (s("Q1"), s("B"), Some(s("B")), "Q1"));
+        assert_eq!(
+            texts(&b[0]),
+            (s("R\\1"), s("X\\Y"), Some(s("X\\Y")), r#""R\\1""#)
+        );
+        // a node naming no component is left out of its net, named by a diagnostic
+        assert_eq!(b.len(), 1);
+        assert_eq!(a[0].pintype, Some(PinType::Input));
+        assert_eq!((a[0].component(), a[1].component()), (Some(0), Some(1)));
+        // the two nodes with an escaped text, and only they, keep their texts apart
+        assert_eq!(nl.node_texts().apart_count(), 2);
+        // the unknown reference is named at its token
+        let d = nl
+            .diagnostics
+            .iter()
+            .find(|d| d.message.contains("U9"))
+            .expect("a diagnostic for U9");
+        assert_eq!(&text[d.primary_span().unwrap().range()], r#""U9""#);
     }
 }
 

@@ -30,8 +30,8 @@ use thin_vec::ThinVec;
 
 use crate::diag::Diag;
 use crate::netlist::{
-    Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, PinType,
-    SheetPath, Text, Texts,
+    Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, NodeTexts,
+    PinType, SheetPath, Text, Texts,
 };
 use crate::source::{SourceFile, Span};
 
@@ -701,6 +701,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     }
     let mut net_of_name: HashMap<&str, usize> = HashMap::default();
     let mut nets: Vec<Net<'_>> = Vec::new();
+    let mut node_texts = NodeTexts::new(text);
     for g in group_order {
         let Some(chosen) = by_group.get(&g) else {
             continue;
@@ -741,16 +742,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 net.span = span;
                 net.name.set_span(span);
             }
-            net.nodes.push(Node {
-                reference: txt_of(&pl.reference, pl.reference_span),
-                pin: lp.num.clone().into(),
-                pinfunction: (!lp.name.is_empty() && lp.name != "~")
-                    .then(|| lp.name.clone().into()),
-                pintype: Some(lp.ptype),
-                no_connect: nc || lp.ptype == PinType::NoConnect,
+            net.nodes.push(node_texts.apart(
                 span,
-                comp: None,
-            });
+                txt_of(&pl.reference, pl.reference_span),
+                lp.num.clone().into(),
+                (!lp.name.is_empty() && lp.name != "~").then(|| lp.name.clone().into()),
+                Some(lp.ptype),
+                nc || lp.ptype == PinType::NoConnect,
+            ));
         }
     }
 
@@ -762,13 +761,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     nets.sort_by_cached_key(|n| natural_key(n.name.as_str()));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
-    fn key<'n>(n: &'n Node<'_>) -> (&'n str, &'n str, Option<&'n str>) {
-        (n.reference.as_str(), &n.pin, n.pinfunction.as_deref())
+    let t = &node_texts;
+    fn key<'n, 'a>(n: &Node<'a>, t: &'n NodeTexts<'a>) -> (&'n str, &'n str, Option<&'n str>) {
+        (n.reference_in(t), n.pin_in(t), n.pinfunction_in(t))
     }
     for n in &mut nets {
-        n.nodes.sort_by(|a, b| key(a).cmp(&key(b)));
+        n.nodes.sort_by(|a, b| key(a, t).cmp(&key(b, t)));
         n.nodes
-            .dedup_by(|b, a| a.reference.as_str() == b.reference.as_str() && a.pin == b.pin);
+            .dedup_by(|b, a| a.reference_in(t) == b.reference_in(t) && a.pin_in(t) == b.pin_in(t));
     }
 
     // components (one per reference, units merged) and library parts, as KiCad lists
@@ -913,7 +913,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let root_span = project.sheets[0].span;
     diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
     Ok(Netlist::assemble(
-        text, components, libparts, nets, diags, root_span,
+        text, components, libparts, nets, node_texts, diags, root_span,
     ))
 }
 
