@@ -89,7 +89,7 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
                 .map(|n| NetOut {
                     name: n.name.as_str(),
                     nodes: n
-                        .nodes
+                        .nodes(nl)
                         .iter()
                         .map(|x| NodeOut {
                             reference: x.reference(nl),
@@ -104,7 +104,7 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
     }
     for n in &nl.nets {
         let pins: Vec<String> = n
-            .nodes
+            .nodes(nl)
             .iter()
             .map(|x| sanitize(&format!("{}.{}", x.reference(nl), x.pin(nl))).into_owned())
             .collect();
@@ -137,7 +137,7 @@ fn side(nl: &Netlist<'_>) -> Side {
     };
     for n in &nl.nets {
         let pins: BTreeSet<Pin> = n
-            .nodes
+            .nodes(nl)
             .iter()
             .map(|x| (x.reference(nl).to_string(), x.pin(nl).to_string()))
             .collect();

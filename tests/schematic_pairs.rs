@@ -53,7 +53,7 @@ fn partition(nl: &Netlist<'_>) -> BTreeMap<BTreeSet<(String, String)>, String> {
     let mut out = BTreeMap::new();
     for n in &nl.nets {
         let pins: BTreeSet<(String, String)> = n
-            .nodes
+            .nodes(nl)
             .iter()
             .map(|x| (x.reference(nl).to_string(), x.pin(nl).to_string()))
             .collect();

@@ -208,7 +208,7 @@ fn the_synthetic_schematic_reads_into_its_nets() {
     // N0 holds the first resistor's outer pin alone; N1 joins cell 0's last pin to cell 1's first
     let n1 = nl.net_by_name("/N1").expect("/N1");
     let pins: Vec<String> = nl.nets[n1]
-        .nodes
+        .nodes(&nl)
         .iter()
         .map(|n| format!("{}.{}", n.reference(&nl), n.pin(&nl)))
         .collect();
@@ -242,7 +242,7 @@ fn the_synthetic_hierarchy_reads_into_its_nets() {
     // L1 joins sheet 0's last resistor (its OUT) to sheet 1's first (its IN)
     let l1 = nl.net_by_name("/L1").expect("/L1");
     let mut pins: Vec<String> = nl.nets[l1]
-        .nodes
+        .nodes(&nl)
         .iter()
         .map(|n| format!("{}.{}", n.reference(&nl), n.pin(&nl)))
         .collect();

@@ -35,7 +35,7 @@ fn dump(nl: &Netlist<'_>) -> String {
             net.span,
             nl.net_by_name(net.name.as_str())
         );
-        for (k, node) in net.nodes.iter().enumerate() {
+        for (k, node) in net.nodes(nl).iter().enumerate() {
             let _ = writeln!(
                 s,
                 "  node {k} {node:?} ref {:?} at {:?} pin {:?} function {:?}",

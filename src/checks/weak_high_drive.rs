@@ -86,7 +86,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
             break;
         }
         let Some(next) = nl.nets[net]
-            .nodes
+            .nodes(nl)
             .iter()
             .find(|n| n.component() != Some(cur.comp as u32))
         else {

@@ -632,7 +632,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let c = &self.nl.components[p.comp];
         match c.pins[p.pin].connection {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
-                self.nl.nets[net as usize].nodes[node as usize].span
+                self.nl.node(net as usize, node as usize).span
             }
             Connection::Absent => match (c.libpart, c.pins[p.pin].libpin(self.nl)) {
                 (Some(lp), Some(li)) => self.nl.libparts[lp as usize].pins[li as usize].span,
@@ -1444,7 +1444,7 @@ fn rails_by_usage(
         }
         let name = nl.nets[net].name.as_str();
         // a pin alone on its net is wired to nothing, whatever its type
-        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].nodes.len() < 2 {
+        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].node_count() < 2 {
             continue;
         }
         let (s, g) = (supply_pins[net], ground_pins[net]);
@@ -1685,7 +1685,7 @@ fn follow_to_ground<'n>(
             });
         }
         // the next part: exactly one other passive on a two-node net
-        let nodes = &nl.nets[net].nodes;
+        let nodes = nl.nets[net].nodes(nl);
         if nodes.len() != 2 {
             return None;
         }

@@ -161,7 +161,7 @@ impl CompPin {
     fn node<'n, 'a>(&self, nl: &'n Netlist<'a>) -> Option<&'n Node<'a>> {
         match self.connection {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
-                Some(&nl.nets[net as usize].nodes[node as usize])
+                Some(nl.node(net as usize, node as usize))
             }
             Connection::Absent => None,
         }
@@ -625,9 +625,43 @@ pub struct Net<'a> {
     pub code: Option<Text<'a>>,
     /// May be empty; may hold KiCad markup (`~{RESET}`, `A_{8}`, `{slash}`).
     pub name: Text<'a>,
-    /// De-duplicated: a (ref, pin) appears once.
-    pub nodes: Vec<Node<'a>>,
     pub span: Span,
+    /// Where the net's nodes are in the netlist's one list of all nodes (`first`, then
+    /// `count` of them): read them with [`Net::nodes`].
+    first: u32,
+    count: u32,
+}
+
+impl<'a> Net<'a> {
+    /// A net with no nodes yet.
+    pub fn new(code: Option<Text<'a>>, name: Text<'a>, span: Span) -> Net<'a> {
+        Net {
+            code,
+            name,
+            span,
+            first: 0,
+            count: 0,
+        }
+    }
+    /// The net's nodes; de-duplicated: a (ref, pin) appears once.
+    #[inline]
+    pub fn nodes<'n>(&self, nl: &'n Netlist<'a>) -> &'n [Node<'a>] {
+        &nl.nodes[self.range()]
+    }
+    /// How many nodes the net has.
+    #[inline]
+    pub fn node_count(&self) -> usize {
+        self.count as usize
+    }
+    #[inline]
+    fn range(&self) -> std::ops::Range<usize> {
+        self.first as usize..(self.first + self.count) as usize
+    }
+    /// The net's nodes are `count` of the netlist's nodes from `first`.
+    fn set_nodes(&mut self, first: usize, count: usize) {
+        self.first = u32::try_from(first).expect("fewer than 2^32 nodes");
+        self.count = u32::try_from(count).expect("fewer than 2^32 nodes");
+    }
 }
 
 /// A whole netlist.
@@ -639,6 +673,9 @@ pub struct Netlist<'a> {
     pub components: Vec<Component<'a>>,
     pub libparts: Vec<LibPart<'a>>,
     pub nets: Vec<Net<'a>>,
+    /// Every net's nodes, net after net ([`Net::nodes`]): one list where a list per net
+    /// would take a header and a block of its own.
+    nodes: Vec<Node<'a>>,
     /// Problems found while reading (reading went on).
     pub diagnostics: Vec<Diag>,
     pub span: Span,
@@ -680,11 +717,21 @@ impl<'a> Netlist<'a> {
         text: &'a str,
         components: Vec<Component<'a>>,
         libparts: Vec<LibPart<'a>>,
-        nets: Vec<Net<'a>>,
+        nets_and_nodes: Vec<(Net<'a>, Vec<Node<'a>>)>,
         node_texts: NodeTexts<'a>,
         mut diagnostics: Vec<Diag>,
         span: Span,
     ) -> Netlist<'a> {
+        let total = nets_and_nodes.iter().map(|(_, n)| n.len()).sum();
+        let mut nodes = Vec::with_capacity(total);
+        let nets = nets_and_nodes
+            .into_iter()
+            .map(|(mut net, list)| {
+                net.set_nodes(nodes.len(), list.len());
+                nodes.extend(list);
+                net
+            })
+            .collect();
         let mut nl = Netlist {
             version: None,
             dialect: Dialect::E,
@@ -692,6 +739,7 @@ impl<'a> Netlist<'a> {
             components,
             libparts,
             nets,
+            nodes,
             diagnostics: Vec::new(),
             span,
             node_texts,
@@ -709,6 +757,16 @@ impl<'a> Netlist<'a> {
     /// that holds a part of the netlist mutably).
     pub fn node_texts(&self) -> &NodeTexts<'a> {
         &self.node_texts
+    }
+
+    /// Node `k` of net `net`.
+    #[inline]
+    pub fn node(&self, net: usize, k: usize) -> &Node<'a> {
+        &self.nodes[self.nets[net].first as usize + k]
+    }
+    /// Every net's nodes, net after net.
+    pub fn all_nodes(&self) -> &[Node<'a>] {
+        &self.nodes
     }
 
     /// The (library part, pin) of pin `g` in the numbering of all library pins.

@@ -700,7 +700,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
     let mut net_of_name: HashMap<&str, usize> = HashMap::default();
-    let mut nets: Vec<Net<'_>> = Vec::new();
+    // each net with its nodes, until the model lays them out one net after another
+    let mut nets: Vec<(Net<'_>, Vec<Node<'_>>)> = Vec::new();
     let mut node_texts = NodeTexts::new(text);
     for g in group_order {
         let Some(chosen) = by_group.get(&g) else {
@@ -722,12 +723,10 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             Some(&i) => i,
             None => {
                 net_of_name.insert(name, nets.len());
-                nets.push(Net {
-                    code: None,
-                    name: Text::owned(name, Span::default()),
-                    nodes: Vec::new(),
-                    span: Span::default(),
-                });
+                nets.push((
+                    Net::new(None, Text::owned(name, Span::default()), Span::default()),
+                    Vec::new(),
+                ));
                 nets.len() - 1
             }
         };
@@ -737,12 +736,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             let pl = &placements[ui][s];
             let lp = &pl.lib.pins[lpi];
             let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
-            let net = &mut nets[idx];
-            if net.nodes.is_empty() {
+            let (net, nodes) = &mut nets[idx];
+            if nodes.is_empty() {
                 net.span = span;
                 net.name.set_span(span);
             }
-            net.nodes.push(node_texts.apart(
+            nodes.push(node_texts.apart(
                 span,
                 txt_of(&pl.reference, pl.reference_span),
                 lp.num.clone().into(),
@@ -758,17 +757,16 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
-    nets.sort_by_cached_key(|n| natural_key(n.name.as_str()));
+    nets.sort_by_cached_key(|(n, _)| natural_key(n.name.as_str()));
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
     let t = &node_texts;
     fn key<'n, 'a>(n: &Node<'a>, t: &'n NodeTexts<'a>) -> (&'n str, &'n str, Option<&'n str>) {
         (n.reference_in(t), n.pin_in(t), n.pinfunction_in(t))
     }
-    for n in &mut nets {
-        n.nodes.sort_by(|a, b| key(a, t).cmp(&key(b, t)));
-        n.nodes
-            .dedup_by(|b, a| a.reference_in(t) == b.reference_in(t) && a.pin_in(t) == b.pin_in(t));
+    for (_, nodes) in &mut nets {
+        nodes.sort_by(|a, b| key(a, t).cmp(&key(b, t)));
+        nodes.dedup_by(|b, a| a.reference_in(t) == b.reference_in(t) && a.pin_in(t) == b.pin_in(t));
     }
 
     // components (one per reference, units merged) and library parts, as KiCad lists
