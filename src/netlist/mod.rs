@@ -710,28 +710,34 @@ pub struct Summary {
 
 impl<'a> Netlist<'a> {
     /// A netlist made by another reader (the schematic reader): its components, library
-    /// parts and nets, cross-referenced by the same linking pass the netlist readers end
-    /// with (duplicate references, pins on two nets and the like become diagnostics).
+    /// parts and nets, and every node with its net's index (sorted by net), cross-referenced
+    /// by the same linking pass the netlist readers end with (duplicate references, pins on
+    /// two nets and the like become diagnostics).
     /// `text` is the text every span points into.
     pub fn assemble(
         text: &'a str,
         components: Vec<Component<'a>>,
         libparts: Vec<LibPart<'a>>,
-        nets_and_nodes: Vec<(Net<'a>, Vec<Node<'a>>)>,
+        mut nets: Vec<Net<'a>>,
+        nodes: Vec<(u32, Node<'a>)>,
         node_texts: NodeTexts<'a>,
         mut diagnostics: Vec<Diag>,
         span: Span,
     ) -> Netlist<'a> {
-        let total = nets_and_nodes.iter().map(|(_, n)| n.len()).sum();
-        let mut nodes = Vec::with_capacity(total);
-        let nets = nets_and_nodes
-            .into_iter()
-            .map(|(mut net, list)| {
-                net.set_nodes(nodes.len(), list.len());
-                nodes.extend(list);
-                net
-            })
-            .collect();
+        debug_assert!(nodes.windows(2).all(|w| w[0].0 <= w[1].0));
+        let mut count = vec![0usize; nets.len()];
+        for (n, _) in &nodes {
+            count[*n as usize] += 1;
+        }
+        let mut first = 0;
+        for (net, &c) in nets.iter_mut().zip(&count) {
+            net.set_nodes(first, c);
+            first += c;
+        }
+        drop(count);
+        // in place: a node and its net's index take no more room than the pair did
+        let mut nodes: Vec<Node<'a>> = nodes.into_iter().map(|(_, n)| n).collect();
+        nodes.shrink_to_fit();
         let mut nl = Netlist {
             version: None,
             dialect: Dialect::E,
