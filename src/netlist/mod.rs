@@ -712,10 +712,9 @@ impl<'a> Netlist<'a> {
     /// A netlist made by another reader (the schematic reader): its components, library
     /// parts and nets, and every node with its net's index (sorted by net), cross-referenced
     /// by the same linking pass the netlist readers end with (duplicate references, pins on
-    /// two nets and the like become diagnostics).
-    /// `text` is the text every span points into.
+    /// two nets and the like become diagnostics). The text every span points into is
+    /// `node_texts`'.
     pub fn assemble(
-        text: &'a str,
         components: Vec<Component<'a>>,
         libparts: Vec<LibPart<'a>>,
         mut nets: Vec<Net<'a>>,
@@ -754,6 +753,7 @@ impl<'a> Netlist<'a> {
             lib_pin_at: Vec::new(),
             lib_pin_part: Vec::new(),
         };
+        let text = nl.node_texts.text;
         stream::link(text, &mut nl, &mut diagnostics);
         nl.diagnostics = diagnostics;
         nl

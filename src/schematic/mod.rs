@@ -936,7 +936,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let root_span = project.sheets[0].span;
     diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
     Ok(Netlist::assemble(
-        text, components, libparts, nets, nodes, node_texts, diags, root_span,
+        components, libparts, nets, nodes, node_texts, diags, root_span,
     ))
 }
 
