@@ -89,11 +89,11 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
                 .map(|n| NetOut {
                     name: n.name.as_str(),
                     nodes: n
-                        .nodes
+                        .nodes(nl)
                         .iter()
                         .map(|x| NodeOut {
-                            reference: x.reference.as_str(),
-                            pin: &x.pin,
+                            reference: x.reference(nl),
+                            pin: x.pin(nl),
                         })
                         .collect(),
                 })
@@ -104,9 +104,9 @@ pub fn write_nets(out: &mut dyn Write, nl: &Netlist<'_>, json: bool) -> io::Resu
     }
     for n in &nl.nets {
         let pins: Vec<String> = n
-            .nodes
+            .nodes(nl)
             .iter()
-            .map(|x| sanitize(&format!("{}.{}", x.reference, x.pin)).into_owned())
+            .map(|x| sanitize(&format!("{}.{}", x.reference(nl), x.pin(nl))).into_owned())
             .collect();
         writeln!(out, "{}: {}", sanitize(n.name.as_str()), pins.join(" "))?;
     }
@@ -137,9 +137,9 @@ fn side(nl: &Netlist<'_>) -> Side {
     };
     for n in &nl.nets {
         let pins: BTreeSet<Pin> = n
-            .nodes
+            .nodes(nl)
             .iter()
-            .map(|x| (x.reference.as_str().to_string(), x.pin.to_string()))
+            .map(|x| (x.reference(nl).to_string(), x.pin(nl).to_string()))
             .collect();
         let i = s.nets.len();
         for p in &pins {

@@ -53,9 +53,9 @@ fn partition(nl: &Netlist<'_>) -> BTreeMap<BTreeSet<(String, String)>, String> {
     let mut out = BTreeMap::new();
     for n in &nl.nets {
         let pins: BTreeSet<(String, String)> = n
-            .nodes
+            .nodes(nl)
             .iter()
-            .map(|x| (x.reference.as_str().to_string(), x.pin.to_string()))
+            .map(|x| (x.reference(nl).to_string(), x.pin(nl).to_string()))
             .collect();
         if !pins.is_empty() {
             out.insert(pins, n.name.as_str().to_string());

@@ -208,9 +208,9 @@ fn the_synthetic_schematic_reads_into_its_nets() {
     // N0 holds the first resistor's outer pin alone; N1 joins cell 0's last pin to cell 1's first
     let n1 = nl.net_by_name("/N1").expect("/N1");
     let pins: Vec<String> = nl.nets[n1]
-        .nodes
+        .nodes(&nl)
         .iter()
-        .map(|n| format!("{}.{}", n.reference, n.pin))
+        .map(|n| format!("{}.{}", n.reference(&nl), n.pin(&nl)))
         .collect();
     assert_eq!(pins, ["R1.2", "R2.1"]);
 }
@@ -242,9 +242,9 @@ fn the_synthetic_hierarchy_reads_into_its_nets() {
     // L1 joins sheet 0's last resistor (its OUT) to sheet 1's first (its IN)
     let l1 = nl.net_by_name("/L1").expect("/L1");
     let mut pins: Vec<String> = nl.nets[l1]
-        .nodes
+        .nodes(&nl)
         .iter()
-        .map(|n| format!("{}.{}", n.reference, n.pin))
+        .map(|n| format!("{}.{}", n.reference(&nl), n.pin(&nl)))
         .collect();
     pins.sort();
     assert_eq!(pins, ["R0_119.2", "R1_0.1"]);

@@ -35,8 +35,15 @@ fn dump(nl: &Netlist<'_>) -> String {
             net.span,
             nl.net_by_name(net.name.as_str())
         );
-        for (k, node) in net.nodes.iter().enumerate() {
-            let _ = writeln!(s, "  node {k} {node:?}");
+        for (k, node) in net.nodes(nl).iter().enumerate() {
+            let _ = writeln!(
+                s,
+                "  node {k} {node:?} ref {:?} at {:?} pin {:?} function {:?}",
+                node.reference(nl),
+                node.reference_span(nl),
+                node.pin(nl),
+                node.pinfunction(nl)
+            );
         }
     }
     for d in &nl.diagnostics {

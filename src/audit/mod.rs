@@ -621,7 +621,7 @@ fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {
                 RailSource::User => "declared",
                 RailSource::Usage => "supply pins on it",
             },
-            pins: cx.nl.nets[i].nodes.len(),
+            pins: cx.nl.nets[i].node_count(),
             parts,
         });
     }
@@ -969,7 +969,7 @@ fn gather_recapture(
     let mut label_nets = Vec::new();
     for (i, n) in nl.nets.iter().enumerate() {
         let name = n.name.as_str();
-        if n.nodes.len() != 1 || name.is_empty() {
+        if n.node_count() != 1 || name.is_empty() {
             continue;
         }
         let bare = name.trim_start_matches('/');
@@ -979,10 +979,10 @@ fn gather_recapture(
         if auto {
             continue;
         }
-        let node = &n.nodes[0];
+        let node = &n.nodes(cx.nl)[0];
         label_nets.push(Row {
             subject: cx.net_name(i),
-            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference.as_str(), &*node.pin),
+            text: format!("only {}.{} is on it: a label used once, probably meant to connect to a label of the same name", node.reference(cx.nl), node.pin(cx.nl)),
             line: Some(source.line_col(n.span.start as usize).line),
         });
     }

@@ -86,7 +86,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
             break;
         }
         let Some(next) = nl.nets[net]
-            .nodes
+            .nodes(nl)
             .iter()
             .find(|n| n.component() != Some(cur.comp() as u32))
         else {
@@ -98,7 +98,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
         let Some(pi) = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num(nl) == &*next.pin)
+            .position(|p| p.num(nl) == next.pin(nl))
         else {
             break;
         };

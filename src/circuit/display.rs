@@ -98,7 +98,7 @@ pub fn find(nl: &Netlist<'_>, cl: &Classified) -> Vec<Display> {
         let commons_open = common_nets.iter().all(|n| match n {
             None => true,
             Some(net) => nl.nets[*net]
-                .nodes
+                .nodes(nl)
                 .iter()
                 .all(|node| node.component() == Some(ci as u32)),
         });

@@ -722,7 +722,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
         let c = &self.nl.components[p.comp()];
         match c.pins[p.pin()].connection {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
-                self.nl.nets[net as usize].nodes[node as usize].span
+                self.nl.node(net as usize, node as usize).span
             }
             Connection::Absent => match (c.libpart, c.pins[p.pin()].libpin(self.nl)) {
                 (Some(lp), Some(li)) => self.nl.libparts[lp as usize].pins[li as usize].span,
@@ -1537,7 +1537,7 @@ fn rails_by_usage(
         }
         let name = nl.nets[net].name.as_str();
         // a pin alone on its net is wired to nothing, whatever its type
-        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].nodes.len() < 2 {
+        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].node_count() < 2 {
             continue;
         }
         let (s, g) = (supply_pins[net], ground_pins[net]);
@@ -1778,7 +1778,7 @@ fn follow_to_ground<'n>(
             });
         }
         // the next part: exactly one other passive on a two-node net
-        let nodes = &nl.nets[net].nodes;
+        let nodes = nl.nets[net].nodes(nl);
         if nodes.len() != 2 {
             return None;
         }
@@ -1789,7 +1789,7 @@ fn follow_to_ground<'n>(
         let pi = nl.components[ci]
             .pins
             .iter()
-            .position(|p| p.num(nl) == &*next.pin)?;
+            .position(|p| p.num(nl) == next.pin(nl))?;
         if component_kind_passive(cl.parts[ci].kind) {
             cur = PinRef::new(ci, pi);
         } else {

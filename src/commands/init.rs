@@ -50,7 +50,7 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
                 name,
                 volts: if inferred { None } else { rail.v() },
                 ground: rail.ground,
-                pins: nl.nets[i].nodes.len(),
+                pins: nl.nets[i].node_count(),
             });
         }
         for (ci, c) in nl.components.iter().enumerate() {

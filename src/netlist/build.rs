@@ -29,6 +29,8 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
     let b = Builder {
         t: tree,
         diags: RefCell::new(Vec::new()),
+        node_texts: RefCell::new(NodeTexts::new(tree.source())),
+        nodes: RefCell::new(Vec::new()),
     };
     let mut nl = Netlist {
         version: None,
@@ -37,8 +39,10 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         components: Vec::new(),
         libparts: Vec::new(),
         nets: Vec::new(),
+        nodes: Vec::new(),
         diagnostics: Vec::new(),
         span: tree.span(root),
+        node_texts: NodeTexts::default(),
         by_ref: hashbrown::HashTable::new(),
         by_net_name: hashbrown::HashTable::new(),
         lib_pin_at: Vec::new(),
@@ -102,6 +106,8 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
         }
     };
     let mut diags = b.diags.into_inner();
+    nl.node_texts = b.node_texts.into_inner();
+    nl.nodes = b.nodes.into_inner();
     super::stream::link(tree.source(), &mut nl, &mut diags);
     nl.diagnostics = diags;
     Ok(nl)
@@ -110,6 +116,9 @@ pub fn build<'a>(tree: &Tree<'a>) -> Result<Netlist<'a>, Diag> {
 struct Builder<'t, 'a> {
     t: &'t Tree<'a>,
     diags: RefCell<Vec<Diag>>,
+    node_texts: RefCell<NodeTexts<'a>>,
+    /// Every net's nodes, net after net.
+    nodes: RefCell<Vec<Node<'a>>>,
 }
 
 impl<'a> Builder<'_, 'a> {
@@ -392,12 +401,8 @@ impl<'a> Builder<'_, 'a> {
     }
 
     fn net(&self, c: NodeId) -> Net<'a> {
-        let mut net = Net {
-            code: None,
-            name: Text::empty(self.t.span(c)),
-            nodes: Vec::new(),
-            span: self.t.span(c),
-        };
+        let mut net = Net::new(None, Text::empty(self.t.span(c)), self.t.span(c));
+        let first = self.nodes.borrow().len();
         let mut have_name = false;
         for n in self.t.children(c).skip(1) {
             match self.t.head(n) {
@@ -430,15 +435,18 @@ impl<'a> Builder<'_, 'a> {
                         }
                     }
                     match (reference, pin) {
-                        (Some(reference), Some(pin)) => net.nodes.push(Node {
-                            reference,
-                            pin: pin.to_str(),
-                            pinfunction: pinfunction.map(|f| f.to_str()),
-                            pintype,
-                            no_connect,
-                            span: self.t.span(n),
-                            comp: None,
-                        }),
+                        (Some(reference), Some(pin)) => {
+                            self.nodes
+                                .borrow_mut()
+                                .push(self.node_texts.borrow_mut().node(
+                                    self.t.span(n),
+                                    &reference,
+                                    &pin,
+                                    pinfunction.as_ref(),
+                                    pintype,
+                                    no_connect,
+                                ))
+                        }
                         (r, _) => self.diags.borrow_mut().push(
                             Diag::error(
                                 "missing-field",
@@ -476,7 +484,7 @@ impl<'a> Builder<'_, 'a> {
                 .at(self.t.span(c), "no name"),
             );
         }
-        net.nodes.shrink_to_fit();
+        net.set_nodes(first, self.nodes.borrow().len() - first);
         net
     }
 }

@@ -13,6 +13,8 @@ mod pintype;
 pub mod stream;
 mod ties;
 
+use std::marker::PhantomData;
+
 use hashbrown::HashTable;
 use thin_vec::ThinVec;
 
@@ -162,10 +164,10 @@ impl CompPin {
         Some(&nl.libparts[part as usize].pins[pin as usize])
     }
     #[inline]
-    fn node<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n Node<'n>> {
+    fn node<'n, 'a>(&self, nl: &'n Netlist<'a>) -> Option<&'n Node<'a>> {
         match self.connection {
             Connection::Net { net, node } | Connection::Alone { net, node } => {
-                Some(&nl.nets[net as usize].nodes[node as usize])
+                Some(nl.node(net as usize, node as usize))
             }
             Connection::Absent => None,
         }
@@ -175,7 +177,7 @@ impl CompPin {
     pub fn num<'n>(&self, nl: &'n Netlist<'_>) -> &'n str {
         match self.lib(nl) {
             Some(lp) => lp.num.as_str(),
-            None => self.node(nl).map_or("", |n| &n.pin),
+            None => self.node(nl).map_or("", |n| n.pin(nl)),
         }
     }
     /// The symbol's pin name (`~` or empty when unnamed), from the libpart or the node's
@@ -184,7 +186,7 @@ impl CompPin {
     pub fn name<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n str> {
         self.lib(nl)
             .and_then(|lp| lp.name.as_ref().map(|n| n.as_str()))
-            .or_else(|| self.node(nl).and_then(|n| n.pinfunction.as_deref()))
+            .or_else(|| self.node(nl).and_then(|n| n.pinfunction(nl)))
     }
     /// True when both pins have the same number and name (of parts alike, most often the
     /// same library pin, which is not read twice).
@@ -301,22 +303,194 @@ pub struct LibPart<'a> {
     pub span: Span,
 }
 
+/// Where one of a node's texts lies: its offset from the node's span's start and its
+/// length, in bytes.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+struct At {
+    off: u16,
+    len: u16,
+}
+
+/// A node's texts kept beside the nodes, for the few nodes whose texts are not tokens within
+/// their own span (unescaped, in a node longer than 64 kB, or made by the schematic reader).
 #[derive(Debug, Clone)]
+struct ApartTexts<'a> {
+    reference: Text<'a>,
+    pin: Str<'a>,
+    pinfunction: Option<Str<'a>>,
+}
+
+/// Where the nodes' texts are read: the file's text, which holds nearly all of them as
+/// tokens within each node's span, and a list of the others.
+#[derive(Debug, Clone, Default)]
+pub struct NodeTexts<'a> {
+    text: &'a str,
+    apart: Vec<ApartTexts<'a>>,
+}
+
+/// Where text `t` lies from `base` in `text` (within its quotes with `inner`), and whether
+/// it is a quoted string: `None` unless it is a token of `text` at most 64 kB from `base`.
+#[inline(always)]
+fn place(text: &str, base: u32, t: &Text<'_>, inner: bool) -> Option<(At, bool)> {
+    let (s, e, q) = t.token_in(text)?;
+    let d = u32::from(q & inner);
+    let off = (s + d).wrapping_sub(base);
+    let len = (e - s) - 2 * d;
+    if off > 0xFFFF || len > 0xFFFF {
+        return None;
+    }
+    Some((
+        At {
+            off: off as u16,
+            len: len as u16,
+        },
+        q,
+    ))
+}
+
+/// [`Node`]'s `bits`: the reference is a quoted string, the node has a pin function, its
+/// texts are kept apart.
+const REF_QUOTED: u8 = 1;
+const HAS_FUNCTION: u8 = 2;
+const APART: u8 = 4;
+
+impl<'a> NodeTexts<'a> {
+    /// The texts of the nodes of a file whose text is `text`.
+    pub fn new(text: &'a str) -> NodeTexts<'a> {
+        NodeTexts {
+            text,
+            apart: Vec::new(),
+        }
+    }
+
+    /// A node at `span` of the file, from the texts read within it: kept as their places in
+    /// the file's text (from the span's start) when they are tokens of it, else copied
+    /// beside the nodes.
+    #[inline]
+    pub fn node(
+        &mut self,
+        span: Span,
+        reference: &Text<'a>,
+        pin: &Text<'a>,
+        pinfunction: Option<&Text<'a>>,
+        pintype: Option<PinType>,
+        no_connect: bool,
+    ) -> Node<'a> {
+        let (text, base) = (self.text, span.start);
+        let r = place(text, base, reference, false);
+        let p = place(text, base, pin, true);
+        let f = match pinfunction {
+            None => Some((At::default(), false)),
+            Some(t) => place(text, base, t, true),
+        };
+        if let (Some((r, rq)), Some((p, _)), Some((f, _))) = (r, p, f) {
+            let mut bits = if rq { REF_QUOTED } else { 0 };
+            if pinfunction.is_some() {
+                bits |= HAS_FUNCTION;
+            }
+            return Node {
+                span,
+                comp: None,
+                at: [r, p, f],
+                pintype,
+                no_connect,
+                bits,
+                _text: PhantomData,
+            };
+        }
+        self.copied(span, reference, pin, pinfunction, pintype, no_connect)
+    }
+
+    /// A node whose texts are not all tokens of the file: they are kept apart.
+    #[cold]
+    #[inline(never)]
+    fn copied(
+        &mut self,
+        span: Span,
+        reference: &Text<'a>,
+        pin: &Text<'a>,
+        pinfunction: Option<&Text<'a>>,
+        pintype: Option<PinType>,
+        no_connect: bool,
+    ) -> Node<'a> {
+        self.apart(
+            span,
+            reference.clone(),
+            pin.to_str(),
+            pinfunction.map(|f| f.to_str()),
+            pintype,
+            no_connect,
+        )
+    }
+
+    /// A node at `span` whose texts are kept beside the nodes (the schematic reader's).
+    pub fn apart(
+        &mut self,
+        span: Span,
+        reference: Text<'a>,
+        pin: Str<'a>,
+        pinfunction: Option<Str<'a>>,
+        pintype: Option<PinType>,
+        no_connect: bool,
+    ) -> Node<'a> {
+        let i = u32::try_from(self.apart.len()).expect("fewer than 2^32 nodes");
+        self.apart.push(ApartTexts {
+            reference,
+            pin,
+            pinfunction,
+        });
+        Node {
+            span,
+            comp: None,
+            at: [
+                At {
+                    off: (i >> 16) as u16,
+                    len: i as u16,
+                },
+                At::default(),
+                At::default(),
+            ],
+            pintype,
+            no_connect,
+            bits: APART,
+            _text: PhantomData,
+        }
+    }
+
+    /// The nodes' texts not kept in place, once the nodes are built (none for a netlist as
+    /// KiCad writes it).
+    pub(crate) fn shrink_to_fit(&mut self) {
+        self.apart.shrink_to_fit();
+    }
+
+    /// How many nodes keep their texts apart.
+    pub fn apart_count(&self) -> usize {
+        self.apart.len()
+    }
+}
+
+/// One `(node ...)` of a net: a component's pin. Its texts are not copied here (a board
+/// has one node for nearly every pin): they are read through the netlist
+/// ([`Node::reference`], [`Node::pin`], [`Node::pinfunction`]), which finds them in the
+/// file's text within the node's span or, for the few nodes whose texts are not tokens
+/// there, in a list beside the nodes ([`NodeTexts`]).
+#[derive(Clone)]
 pub struct Node<'a> {
-    pub reference: Text<'a>,
-    /// The pin number (no span of its own: a diagnostic about a pin points at its node).
-    pub pin: Str<'a>,
-    pub pinfunction: Option<Str<'a>>,
-    pub pintype: Option<PinType>,
-    /// The node's pintype ended in `+no_connect`.
-    pub no_connect: bool,
     pub span: Span,
     /// The component this node names, if it exists, plus one (four bytes where an
     /// `Option<u32>` takes eight); read it with [`Node::component`].
-    pub(crate) comp: Option<std::num::NonZeroU32>,
+    comp: Option<std::num::NonZeroU32>,
+    /// The reference's token, the pin number and the pin function in the span; with
+    /// `APART`, the first two halves hold the index of the texts kept apart.
+    at: [At; 3],
+    pub pintype: Option<PinType>,
+    /// The node's pintype ended in `+no_connect`.
+    pub no_connect: bool,
+    bits: u8,
+    _text: PhantomData<&'a str>,
 }
 
-impl Node<'_> {
+impl<'a> Node<'a> {
     /// The component this node names, if it exists.
     pub fn component(&self) -> Option<u32> {
         self.comp.map(|c| c.get() - 1)
@@ -325,6 +499,131 @@ impl Node<'_> {
     pub(crate) fn set_component(&mut self, ci: u32) {
         self.comp = std::num::NonZeroU32::new(ci.wrapping_add(1));
     }
+
+    #[inline]
+    fn apart<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n ApartTexts<'a>> {
+        (self.bits & APART != 0).then(|| {
+            let i = (u32::from(self.at[0].off) << 16) | u32::from(self.at[0].len);
+            &t.apart[i as usize]
+        })
+    }
+    #[inline]
+    fn in_span<'n>(&self, t: &NodeTexts<'n>, at: At) -> &'n str {
+        let s = (self.span.start + u32::from(at.off)) as usize;
+        &t.text[s..s + usize::from(at.len)]
+    }
+
+    /// The component reference the node names.
+    #[inline]
+    pub fn reference<'n>(&self, nl: &'n Netlist<'a>) -> &'n str {
+        self.reference_in(&nl.node_texts)
+    }
+    /// The place of the reference's token in the file.
+    pub fn reference_span(&self, nl: &Netlist<'a>) -> Span {
+        self.reference_span_in(&nl.node_texts)
+    }
+    /// The pin number (no span of its own: a diagnostic about a pin points at its node).
+    #[inline]
+    pub fn pin<'n>(&self, nl: &'n Netlist<'a>) -> &'n str {
+        self.pin_in(&nl.node_texts)
+    }
+    /// The pin's function (name), when the node gives one.
+    #[inline]
+    pub fn pinfunction<'n>(&self, nl: &'n Netlist<'a>) -> Option<&'n str> {
+        self.pinfunction_in(&nl.node_texts)
+    }
+
+    #[inline]
+    pub fn reference_in<'n>(&self, t: &'n NodeTexts<'a>) -> &'n str {
+        match self.apart(t) {
+            Some(a) => a.reference.as_str(),
+            None => {
+                let q = u16::from(self.bits & REF_QUOTED != 0);
+                let at = self.at[0];
+                self.in_span(
+                    t,
+                    At {
+                        off: at.off + q,
+                        len: at.len - 2 * q,
+                    },
+                )
+            }
+        }
+    }
+    pub fn reference_span_in(&self, t: &NodeTexts<'a>) -> Span {
+        match self.apart(t) {
+            Some(a) => a.reference.span(),
+            None => {
+                let s = self.span.start + u32::from(self.at[0].off);
+                Span {
+                    start: s,
+                    end: s + u32::from(self.at[0].len),
+                }
+            }
+        }
+    }
+    #[inline]
+    pub fn pin_in<'n>(&self, t: &'n NodeTexts<'a>) -> &'n str {
+        match self.apart(t) {
+            Some(a) => &a.pin,
+            None => self.in_span(t, self.at[1]),
+        }
+    }
+    /// The pin number as a model string, for as long as the file's text.
+    pub(crate) fn pin_str_in(&self, t: &NodeTexts<'a>) -> Str<'a> {
+        match self.apart(t) {
+            Some(a) => a.pin.clone(),
+            None => Str::borrowed(self.in_span(t, self.at[1])),
+        }
+    }
+    #[inline]
+    pub fn pinfunction_in<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n str> {
+        match self.apart(t) {
+            Some(a) => a.pinfunction.as_deref(),
+            None => (self.bits & HAS_FUNCTION != 0).then(|| self.in_span(t, self.at[2])),
+        }
+    }
+    /// The pin number is empty or white space (`pin.trim().is_empty()`), read without
+    /// slicing the text for a pin number that starts with a printable ASCII character.
+    pub(crate) fn pin_is_blank_in(&self, t: &NodeTexts<'a>) -> bool {
+        if self.bits & APART == 0 {
+            let at = self.at[1];
+            if at.len == 0 {
+                return true;
+            }
+            let first = t
+                .text
+                .as_bytes()
+                .get((self.span.start + u32::from(at.off)) as usize);
+            if first.is_some_and(|b| b.is_ascii_graphic()) {
+                return false;
+            }
+        }
+        self.pin_in(t).chars().all(char::is_whitespace)
+    }
+    /// The pin function becomes the pin number too (a symbol with unnumbered pins).
+    pub(crate) fn number_by_function(&mut self, t: &mut NodeTexts<'a>) {
+        if self.bits & APART != 0 {
+            let i = (u32::from(self.at[0].off) << 16) | u32::from(self.at[0].len);
+            let a = &mut t.apart[i as usize];
+            if let Some(f) = a.pinfunction.clone() {
+                a.pin = f;
+            }
+        } else if self.bits & HAS_FUNCTION != 0 {
+            self.at[1] = self.at[2];
+        }
+    }
+}
+
+impl std::fmt::Debug for Node<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Node")
+            .field("span", &self.span)
+            .field("component", &self.component())
+            .field("pintype", &self.pintype)
+            .field("no_connect", &self.no_connect)
+            .finish_non_exhaustive()
+    }
 }
 
 #[derive(Debug, Clone)]
@@ -332,9 +631,43 @@ pub struct Net<'a> {
     pub code: Option<Text<'a>>,
     /// May be empty; may hold KiCad markup (`~{RESET}`, `A_{8}`, `{slash}`).
     pub name: Text<'a>,
-    /// De-duplicated: a (ref, pin) appears once.
-    pub nodes: Vec<Node<'a>>,
     pub span: Span,
+    /// Where the net's nodes are in the netlist's one list of all nodes (`first`, then
+    /// `count` of them): read them with [`Net::nodes`].
+    first: u32,
+    count: u32,
+}
+
+impl<'a> Net<'a> {
+    /// A net with no nodes yet.
+    pub fn new(code: Option<Text<'a>>, name: Text<'a>, span: Span) -> Net<'a> {
+        Net {
+            code,
+            name,
+            span,
+            first: 0,
+            count: 0,
+        }
+    }
+    /// The net's nodes; de-duplicated: a (ref, pin) appears once.
+    #[inline]
+    pub fn nodes<'n>(&self, nl: &'n Netlist<'a>) -> &'n [Node<'a>] {
+        &nl.nodes[self.range()]
+    }
+    /// How many nodes the net has.
+    #[inline]
+    pub fn node_count(&self) -> usize {
+        self.count as usize
+    }
+    #[inline]
+    fn range(&self) -> std::ops::Range<usize> {
+        self.first as usize..(self.first + self.count) as usize
+    }
+    /// The net's nodes are `count` of the netlist's nodes from `first`.
+    fn set_nodes(&mut self, first: usize, count: usize) {
+        self.first = u32::try_from(first).expect("fewer than 2^32 nodes");
+        self.count = u32::try_from(count).expect("fewer than 2^32 nodes");
+    }
 }
 
 /// A whole netlist.
@@ -346,9 +679,14 @@ pub struct Netlist<'a> {
     pub components: Vec<Component<'a>>,
     pub libparts: Vec<LibPart<'a>>,
     pub nets: Vec<Net<'a>>,
+    /// Every net's nodes, net after net ([`Net::nodes`]): one list where a list per net
+    /// would take a header and a block of its own.
+    nodes: Vec<Node<'a>>,
     /// Problems found while reading (reading went on).
     pub diagnostics: Vec<Diag>,
     pub span: Span,
+    /// Where the nodes' texts are read.
+    pub(crate) node_texts: NodeTexts<'a>,
     /// Components by reference: indices into `components`, hashed by the reference's text
     /// (the first component of a reference used twice).
     by_ref: HashTable<u32>,
@@ -378,17 +716,33 @@ pub struct Summary {
 
 impl<'a> Netlist<'a> {
     /// A netlist made by another reader (the schematic reader): its components, library
-    /// parts and nets, cross-referenced by the same linking pass the netlist readers end
-    /// with (duplicate references, pins on two nets and the like become diagnostics).
-    /// `text` is the text every span points into.
+    /// parts and nets, and every node with its net's index (sorted by net), cross-referenced
+    /// by the same linking pass the netlist readers end with (duplicate references, pins on
+    /// two nets and the like become diagnostics). The text every span points into is
+    /// `node_texts`'.
     pub fn assemble(
-        text: &'a str,
         components: Vec<Component<'a>>,
         libparts: Vec<LibPart<'a>>,
-        nets: Vec<Net<'a>>,
+        mut nets: Vec<Net<'a>>,
+        nodes: Vec<(u32, Node<'a>)>,
+        node_texts: NodeTexts<'a>,
         mut diagnostics: Vec<Diag>,
         span: Span,
     ) -> Netlist<'a> {
+        debug_assert!(nodes.windows(2).all(|w| w[0].0 <= w[1].0));
+        let mut count = vec![0usize; nets.len()];
+        for (n, _) in &nodes {
+            count[*n as usize] += 1;
+        }
+        let mut first = 0;
+        for (net, &c) in nets.iter_mut().zip(&count) {
+            net.set_nodes(first, c);
+            first += c;
+        }
+        drop(count);
+        // in place: a node and its net's index take no more room than the pair did
+        let mut nodes: Vec<Node<'a>> = nodes.into_iter().map(|(_, n)| n).collect();
+        nodes.shrink_to_fit();
         let mut nl = Netlist {
             version: None,
             dialect: Dialect::E,
@@ -396,16 +750,35 @@ impl<'a> Netlist<'a> {
             components,
             libparts,
             nets,
+            nodes,
             diagnostics: Vec::new(),
             span,
+            node_texts,
             by_ref: HashTable::new(),
             by_net_name: HashTable::new(),
             lib_pin_at: Vec::new(),
             lib_pin_part: Vec::new(),
         };
+        let text = nl.node_texts.text;
         stream::link(text, &mut nl, &mut diagnostics);
         nl.diagnostics = diagnostics;
         nl
+    }
+
+    /// Where the nodes' texts are read ([`Node::reference_in`] and the like, for a caller
+    /// that holds a part of the netlist mutably).
+    pub fn node_texts(&self) -> &NodeTexts<'a> {
+        &self.node_texts
+    }
+
+    /// Node `k` of net `net`.
+    #[inline]
+    pub fn node(&self, net: usize, k: usize) -> &Node<'a> {
+        &self.nodes[self.nets[net].first as usize + k]
+    }
+    /// Every net's nodes, net after net.
+    pub fn all_nodes(&self) -> &[Node<'a>] {
+        &self.nodes
     }
 
     /// The (library part, pin) of pin `g` in the numbering of all library pins.

@@ -209,6 +209,26 @@ impl<'a> Text<'a> {
         }
     }
 
+    /// The token `(start, end, quoted)` this text is when it is borrowed from `text` where
+    /// its span says (`None` for a copy or a text borrowed from elsewhere).
+    #[inline]
+    pub(crate) fn token_in(&self, text: &str) -> Option<(u32, u32, bool)> {
+        let kind = self.kind();
+        if kind == OWNED {
+            return None;
+        }
+        let end = self.tail & END;
+        let quoted = kind == QUOTED;
+        // a borrowed text's span holds it (and its quotes): `start + quoted <= end`
+        let at = self.start as usize + usize::from(quoted);
+        (end as usize <= text.len()
+            && std::ptr::eq(
+                self.ptr.as_ptr().cast_const(),
+                text.as_ptr().wrapping_add(at),
+            ))
+        .then_some((self.start, end, quoted))
+    }
+
     /// True when the text is borrowed from the file's text.
     pub fn is_borrowed(&self) -> bool {
         self.kind() != OWNED
@@ -300,6 +320,27 @@ mod tests {
             ("74HC00", Span::new(17, 25))
         );
         assert!(atom.is_borrowed() && quoted.is_borrowed());
+    }
+
+    #[test]
+    fn a_token_is_found_in_its_own_file_only() {
+        let file = "(ref U12) (value \"74HC00\")";
+        assert_eq!(
+            Text::token(file, 5, 8, false).token_in(file),
+            Some((5, 8, false))
+        );
+        assert_eq!(
+            Text::token(file, 17, 25, true).token_in(file),
+            Some((17, 25, true))
+        );
+        // the same characters in another string, a copy, a span elsewhere
+        let other = file.to_string();
+        assert_eq!(Text::token(&other, 5, 8, false).token_in(file), None);
+        assert_eq!(Text::owned("U12", Span::new(5, 8)).token_in(file), None);
+        assert_eq!(
+            Text::borrowed(&file[5..8], Span::new(1, 4)).token_in(file),
+            None
+        );
     }
 
     #[test]

@@ -272,8 +272,8 @@ struct LibPartAcc<'a> {
 #[derive(Default)]
 struct NodeAcc<'a> {
     reference: Option<Text<'a>>,
-    pin: Option<Str<'a>>,
-    pinfunction: Option<Str<'a>>,
+    pin: Option<Text<'a>>,
+    pinfunction: Option<Text<'a>>,
     pintype: Option<PinType>,
     no_connect: bool,
 }
@@ -324,11 +324,12 @@ struct Reader<'a> {
     net: Net<'a>,
     have_name: bool,
     node: NodeAcc<'a>,
-    /// The open component's and net's lists, gathered here and moved into the model with
-    /// one allocation of their exact length when the list closes (no growing, no trimming).
+    /// The open component's lists, gathered here and moved into the model with one
+    /// allocation of their exact length when the list closes (no growing, no trimming).
     fields: Vec<Field<'a>>,
     properties: Vec<Field<'a>>,
-    nodes: Vec<Node<'a>>,
+    /// Where the open net's nodes start in the model's list of all nodes.
+    net_first: usize,
 }
 
 impl<'a> Reader<'a> {
@@ -345,8 +346,10 @@ impl<'a> Reader<'a> {
                 components: Vec::new(),
                 libparts: Vec::new(),
                 nets: Vec::new(),
+                nodes: Vec::new(),
                 diagnostics: Vec::new(),
                 span,
+                node_texts: NodeTexts::new(text),
                 by_ref: hashbrown::HashTable::new(),
                 by_net_name: hashbrown::HashTable::new(),
                 lib_pin_at: Vec::new(),
@@ -374,17 +377,12 @@ impl<'a> Reader<'a> {
             pin_num: None,
             pin_name: None,
             pin_type: PinType::Unknown,
-            net: Net {
-                code: None,
-                name: Text::empty(span),
-                nodes: Vec::new(),
-                span,
-            },
+            net: Net::new(None, Text::empty(span), span),
             have_name: false,
             node: NodeAcc::default(),
             fields: Vec::new(),
             properties: Vec::new(),
-            nodes: Vec::new(),
+            net_first: 0,
         }
     }
 
@@ -586,13 +584,8 @@ impl<'a> Reader<'a> {
             (Role::Pin, "name") => value(self, Slot::PinName),
             (Role::Pin, "type") => value(self, Slot::PinType),
             (Role::Nets, "net") => {
-                self.net = Net {
-                    code: None,
-                    name: Text::empty(span),
-                    nodes: Vec::new(),
-                    span,
-                };
-                self.nodes.clear();
+                self.net = Net::new(None, Text::empty(span), span);
+                self.net_first = self.nl.nodes.len();
                 self.have_name = false;
                 Role::Net
             }
@@ -676,8 +669,8 @@ impl<'a> Reader<'a> {
                 }
             }
             Slot::NodeRef => self.node.reference = v,
-            Slot::NodePin => self.node.pin = v.map(|t| t.to_str()),
-            Slot::NodeFunction => self.node.pinfunction = v.map(|t| t.to_str()),
+            Slot::NodePin => self.node.pin = v,
+            Slot::NodeFunction => self.node.pinfunction = v,
             Slot::NodeType => {
                 if let Some(v) = v {
                     let (t, nc) = PinType::parse(v.as_str());
@@ -834,15 +827,7 @@ impl<'a> Reader<'a> {
     }
 
     fn end_net(&mut self, span: Span) {
-        let mut net = std::mem::replace(
-            &mut self.net,
-            Net {
-                code: None,
-                name: Text::empty(span),
-                nodes: Vec::new(),
-                span,
-            },
-        );
+        let mut net = std::mem::replace(&mut self.net, Net::new(None, Text::empty(span), span));
         net.span = span;
         if net.code.is_none() {
             self.diags.push(
@@ -859,29 +844,25 @@ impl<'a> Reader<'a> {
                 .at(span, "no name"),
             );
         }
-        net.nodes = if self.nodes.len() <= 256 {
-            self.nodes.drain(..).collect()
-        } else {
-            // a large net is moved out and trimmed where it lies, never held twice
-            let mut nodes = std::mem::take(&mut self.nodes);
-            nodes.shrink_to_fit();
-            nodes
-        };
+        net.set_nodes(self.net_first, self.nl.nodes.len() - self.net_first);
         self.nl.nets.push(net);
     }
 
     fn end_node(&mut self, span: Span) {
-        let nd = std::mem::take(&mut self.node);
-        match (nd.reference, nd.pin) {
-            (Some(reference), Some(pin)) => self.nodes.push(Node {
-                reference,
-                pin,
-                pinfunction: nd.pinfunction,
-                pintype: nd.pintype,
-                no_connect: nd.no_connect,
-                span,
-                comp: None,
-            }),
+        // read in place: the next `(node ...)` starts from a new `NodeAcc`
+        let nd = &self.node;
+        match (&nd.reference, &nd.pin) {
+            (Some(reference), Some(pin)) => {
+                let node = self.nl.node_texts.node(
+                    span,
+                    reference,
+                    pin,
+                    nd.pinfunction.as_ref(),
+                    nd.pintype,
+                    nd.no_connect,
+                );
+                self.nl.nodes.push(node);
+            }
             (r, _) => self.diags.push(
                 Diag::error(
                     "missing-field",
@@ -960,15 +941,17 @@ pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag
 /// gives every node the pin `""`: keyed by number, all its pins would collapse into one pin
 /// "on many nets". Such pins are keyed by their name instead, in the nodes and the libpart.
 fn name_unnumbered_pins(nl: &mut Netlist<'_>) {
-    for net in &mut nl.nets {
-        for nd in &mut net.nodes {
-            if nd.pin.trim().is_empty() {
-                if let Some(f) = nd.pinfunction.as_ref().filter(|f| !f.trim().is_empty()) {
-                    nd.pin = f.clone();
-                }
-            }
+    let texts = &mut nl.node_texts;
+    for nd in &mut nl.nodes {
+        if nd.pin_is_blank_in(texts)
+            && nd
+                .pinfunction_in(texts)
+                .is_some_and(|f| !f.trim().is_empty())
+        {
+            nd.number_by_function(texts);
         }
     }
+    texts.shrink_to_fit();
     for lp in &mut nl.libparts {
         for p in &mut lp.pins {
             if p.num.as_str().trim().is_empty() {
@@ -1058,8 +1041,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut codes: HashMap<&str, usize> =
         HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
     // (component, net, node)
-    let mut entries: Vec<(u32, u32, u32)> =
-        Vec::with_capacity(nl.nets.iter().map(|n| n.nodes.len()).sum());
+    let mut entries: Vec<(u32, u32, u32)> = Vec::with_capacity(nl.nodes.len());
     for (ni, net) in nl.nets.iter_mut().enumerate() {
         if let Some(code) = &net.code {
             if let Some(&first) = codes.get(code.as_str()) {
@@ -1077,8 +1059,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 );
             }
         }
-        for (k, node) in net.nodes.iter_mut().enumerate() {
-            let r = node.reference.as_str();
+        for (k, node) in nl.nodes[net.range()].iter_mut().enumerate() {
+            let r = node.reference_in(&nl.node_texts);
             let comps = &nl.components;
             match by_ref.find(text_hash(r), |&j| comps[j as usize].reference.as_str() == r) {
                 Some(&ci) => {
@@ -1091,10 +1073,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         "unknown-component",
                         format!(
                             "net `{}` names {}, which is not among the components",
-                            net.name, node.reference
+                            net.name, r
                         ),
                     )
-                    .at(node.reference.span(), "no component has this reference")
+                    .at(
+                        node.reference_span_in(&nl.node_texts),
+                        "no component has this reference",
+                    )
                     .with_help("the netlist is out of step with the schematic: export it again"),
                 ),
             }
@@ -1122,12 +1107,13 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
     let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
     for &(_, ni, k) in &entries {
-        let pin = &nl.nets[ni as usize].nodes[k as usize].pin;
+        let node = nl.node(ni as usize, k as usize);
+        let pin = node.pin_in(&nl.node_texts);
         let next = pin_ids.len() as u32;
-        let id = match pin_ids.get(pin.as_ref()) {
+        let id = match pin_ids.get(pin) {
             Some(&id) => id,
             None => {
-                pin_ids.insert(pin.clone(), next);
+                pin_ids.insert(node.pin_str_in(&nl.node_texts), next);
                 next
             }
         };
@@ -1176,14 +1162,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
 
-    // Flat per-node tables: node `k` of net `ni` is at `net_at[ni] + k`.
-    let mut net_at: Vec<u32> = Vec::with_capacity(nl.nets.len() + 1);
-    let mut total = 0u32;
-    for net in &nl.nets {
-        net_at.push(total);
-        total += net.nodes.len() as u32;
-    }
-    net_at.push(total);
+    // Per-node tables in the model's order: node `k` of net `ni` is at `net_at[ni] + k`.
+    let net_at: Vec<u32> = nl.nets.iter().map(|n| n.first).collect();
+    let total = nl.nodes.len() as u32;
 
     // keep the first (component, pin) of each group; a repeat in the same net is dropped
     // quietly, one in another net is a diagnostic
@@ -1201,22 +1182,27 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
             let f = group[first_of_run];
             if f.1 != e.1 && group[i - 1].1 != e.1 {
-                let node = &nl.nets[e.1 as usize].nodes[e.2 as usize];
+                let node = nl.node(e.1 as usize, e.2 as usize);
                 twice.push((
                     f.1 as usize,
                     e.1 as usize,
                     node.span,
-                    format!("{}.{}", node.reference, node.pin),
+                    format!(
+                        "{}.{}",
+                        node.reference_in(&nl.node_texts),
+                        node.pin_in(&nl.node_texts)
+                    ),
                 ));
             }
         }
     }
     // drop the repeats and renumber the kept nodes (`new_index` reuses the flat layout)
     let mut new_index = vec![u32::MAX; total as usize];
-    for (ni, net) in nl.nets.iter_mut().enumerate() {
+    let mut dropped = false;
+    for (ni, net) in nl.nets.iter().enumerate() {
         let base = net_at[ni] as usize;
-        let keep = &keep[base..base + net.nodes.len()];
-        let map = &mut new_index[base..base + net.nodes.len()];
+        let keep = &keep[base..base + net.node_count()];
+        let map = &mut new_index[base..base + net.node_count()];
         let mut n = 0u32;
         for (k, &kp) in keep.iter().enumerate() {
             if kp {
@@ -1224,14 +1210,24 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 n += 1;
             }
         }
-        if (n as usize) < keep.len() {
-            let mut k = 0;
-            net.nodes.retain(|_| {
-                k += 1;
-                keep[k - 1]
-            });
-        }
+        dropped |= (n as usize) < keep.len();
     }
+    if dropped {
+        // the nets' nodes lie net after net: move each kept node down over the dropped
+        let mut w = 0;
+        for net in &mut nl.nets {
+            let start = w;
+            for k in net.range() {
+                if keep[k] {
+                    nl.nodes.swap(w, k);
+                    w += 1;
+                }
+            }
+            net.set_nodes(start, w - start);
+        }
+        nl.nodes.truncate(w);
+    }
+    nl.nodes.shrink_to_fit();
     drop(keep);
     // per component, its kept (pin rank, net, node), still sorted by pin
     let mut pin_nets: Vec<(u32, u32, u32)> = Vec::with_capacity(sorted.len());
@@ -1287,7 +1283,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // component pins: the libpart's, then any the nets name that it lacks
     for (ci, c) in nl.components.iter_mut().enumerate() {
         let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
-        let nets = &nl.nets;
+        let (nets, nodes) = (&nl.nets, &nl.nodes);
         let mut pins: Vec<CompPin> = Vec::new();
         used.clear();
         used.resize(mine.len(), false);
@@ -1322,7 +1318,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 let mut ptype = lpin.ptype;
                 let mut no_connect = lpin.ptype == PinType::NoConnect;
                 if let Some(i) = found {
-                    let nd = &nets[mine[i].1 as usize].nodes[mine[i].2 as usize];
+                    let nd = &nodes[nets[mine[i].1 as usize].first as usize + mine[i].2 as usize];
                     if let Some(t) = nd.pintype {
                         ptype = t;
                     }
@@ -1342,7 +1338,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             if used[i] {
                 continue;
             }
-            let node = &nets[e.1 as usize].nodes[e.2 as usize];
+            let node = &nodes[nets[e.1 as usize].first as usize + e.2 as usize];
             pins.push(CompPin::from_node(
                 node.pintype.unwrap_or(PinType::Unknown),
                 node.no_connect,
@@ -1356,7 +1352,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
 }
 
 fn connection(nets: &[Net<'_>], net: u32, node: u32) -> Connection {
-    if nets[net as usize].nodes.len() > 1 {
+    if nets[net as usize].node_count() > 1 {
         Connection::Net { net, node }
     } else {
         Connection::Alone { net, node }

@@ -69,7 +69,7 @@ fn reads_kicad5_with_alias_resolution_and_absent_pins() {
     assert_eq!(u1.tstamps[0].as_str(), "5ACE05B6");
     assert_eq!(u1.pins.len(), 5);
     // pin 1 listed twice in /A: once
-    assert_eq!(nl.nets[1].nodes.len(), 3);
+    assert_eq!(nl.nets[1].node_count(), 3);
     assert!(matches!(
         u1.pin(&nl, "1").unwrap().connection,
         Connection::Net { net: 1, .. }
@@ -228,7 +228,7 @@ fn model_items_stay_small() {
         size_of::<CompPin>()
     );
     assert!(
-        size_of::<Node<'_>>() <= 64,
+        size_of::<Node<'_>>() <= 28,
         "Node: {}",
         size_of::<Node<'_>>()
     );
@@ -237,7 +237,7 @@ fn model_items_stay_small() {
         "Component: {}",
         size_of::<Component<'_>>()
     );
-    assert!(size_of::<Net<'_>>() <= 64, "Net: {}", size_of::<Net<'_>>());
+    assert!(size_of::<Net<'_>>() <= 48, "Net: {}", size_of::<Net<'_>>());
 }
 
 /// A text borrows the file where it is written as it reads, and owns its value only where
@@ -261,7 +261,108 @@ fn texts_borrow_the_file_unless_unescaped() {
         assert_eq!(nl.component("U1"), Some(0));
         assert_eq!(c.pins[0].num(&nl), "1");
         assert_eq!(c.pins[0].connection, Connection::Alone { net: 0, node: 0 });
-        assert_eq!(nl.nets[0].nodes[0].component(), Some(0));
+        assert_eq!(nl.node(0, 0).component(), Some(0));
+    }
+}
+
+/// A node's texts are read where they are written in its span (atoms and quoted strings
+/// alike); one that had to be unescaped is kept apart, and a node whose pin number is empty
+/// takes its pin function as its number either way. Both readers agree.
+#[test]
+fn node_texts_are_read_in_place_unless_unescaped() {
+    let text = r#"(export (version "E")
+  (components (comp (ref "U1")) (comp (ref "R\\1")) (comp (ref Q1)))
+  (nets
+    (net (code "1") (name "A")
+      (node (ref "U1") (pin "1") (pinfunction "IN") (pintype "input"))
+      (node (ref "R\\1") (pin "2"))
+      (node (ref Q1) (pin "") (pinfunction B)))
+    (net (code "2") (name "B")
+      (node (ref "R\\1") (pin "") (pinfunction "X\\Y"))
+      (node (ref "U9") (pin 3)))))"#;
+    for nl in [read(text), super::read(text).unwrap()] {
+        let a = nl.nets[0].nodes(&nl);
+        let b = nl.nets[1].nodes(&nl);
+        let texts = |n: &Node<'_>| {
+            (
+                n.reference(&nl).to_string(),
+                n.pin(&nl).to_string(),
+                n.pinfunction(&nl).map(str::to_string),
+                &text[n.reference_span(&nl).range()],
+            )
+        };
+        let s = |x: &str| x.to_string();
+        assert_eq!(texts(&a[0]), (s("U1"), s("1"), Some(s("IN")), r#""U1""#));
+        assert_eq!(texts(&a[1]), (s("R\\1"), s("2"), None, r#""R\\1""#));
+        assert_eq!(texts(&a[2]), (s("Q1"), s("B"), Some(s("B")), "Q1"));
+        assert_eq!(
+            texts(&b[0]),
+            (s("R\\1"), s("X\\Y"), Some(s("X\\Y")), r#""R\\1""#)
+        );
+        // a node naming no component is left out of its net, named by a diagnostic
+        assert_eq!(b.len(), 1);
+        assert_eq!(a[0].pintype, Some(PinType::Input));
+        assert_eq!((a[0].component(), a[1].component()), (Some(0), Some(1)));
+        // the two nodes with an escaped text, and only they, keep their texts apart
+        assert_eq!(nl.node_texts().apart_count(), 2);
+        // the unknown reference is named at its token
+        let d = nl
+            .diagnostics
+            .iter()
+            .find(|d| d.message.contains("U9"))
+            .expect("a diagnostic for U9");
+        assert_eq!(&text[d.primary_span().unwrap().range()], r#""U9""#);
+    }
+}
+
+/// Every net's nodes lie in one list, net after net: a pin repeated in its net is dropped
+/// and one on a second net is left in the first only, the nets after them moving down with
+/// their connections still finding their own nodes.
+#[test]
+fn nets_share_one_list_of_nodes() {
+    let text = r#"(export (version "E")
+  (components (comp (ref "U1")) (comp (ref "R1")) (comp (ref "R2")))
+  (nets
+    (net (code "1") (name "A")
+      (node (ref "U1") (pin "1")) (node (ref "R1") (pin "1")) (node (ref "U1") (pin "1")))
+    (net (code "2") (name "B")
+      (node (ref "R1") (pin "2")) (node (ref "U1") (pin "1")) (node (ref "R2") (pin "1")))
+    (net (code "3") (name "C"))
+    (net (code "4") (name "D")
+      (node (ref "R2") (pin "2")) (node (ref "U1") (pin "2")))))"#;
+    for nl in [read(text), super::read(text).unwrap()] {
+        let on = |n: usize| -> Vec<String> {
+            nl.nets[n]
+                .nodes(&nl)
+                .iter()
+                .map(|x| format!("{}.{}", x.reference(&nl), x.pin(&nl)))
+                .collect()
+        };
+        assert_eq!(on(0), ["U1.1", "R1.1"]);
+        assert_eq!(on(1), ["R1.2", "R2.1"]);
+        assert!(on(2).is_empty());
+        assert_eq!(on(3), ["R2.2", "U1.2"]);
+        assert_eq!(nl.all_nodes().len(), 6);
+        assert_eq!(
+            nl.nets.iter().map(|n| n.node_count()).collect::<Vec<_>>(),
+            [2, 2, 0, 2]
+        );
+        assert!(nl
+            .diagnostics
+            .iter()
+            .any(|d| d.message.contains("two nets")));
+        for c in &nl.components {
+            for p in c.pins.iter() {
+                let Connection::Net { net, node } = p.connection else {
+                    panic!("{} is on a net", c.reference);
+                };
+                let x = nl.node(net as usize, node as usize);
+                assert_eq!(
+                    (x.reference(&nl), x.pin(&nl)),
+                    (c.reference.as_str(), p.num(&nl))
+                );
+            }
+        }
     }
 }
 
@@ -315,7 +416,30 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
         );
         assert_eq!(u1.pins[3].connection, Connection::Absent);
         // the net tie joined N2 into N1: the nodes moved, the names still resolve
-        assert_eq!(nl.nets[1].nodes.len(), 0);
+        assert_eq!(nl.nets[1].node_count(), 0);
+        // N1 holds its own nodes, then N2's (less the pins only a name keyed twice)
+        let on = |n: usize| -> Vec<String> {
+            nl.nets[n]
+                .nodes(&nl)
+                .iter()
+                .map(|x| format!("{}.{}", x.reference(&nl), x.pin(&nl)))
+                .collect()
+        };
+        assert_eq!(
+            on(0),
+            ["U1.1", "NT1.1", "NT1.2", "U1.2", "U1.9", "Q1.B", "Q1.C"]
+        );
+        assert_eq!(nl.all_nodes().len(), 7);
+        // every pin's connection finds its own node in the joined net
+        for c in &nl.components {
+            for p in c.pins.iter() {
+                if let Connection::Net { net, node } = p.connection {
+                    let x = nl.node(net as usize, node as usize);
+                    assert_eq!(x.reference(&nl), c.reference.as_str());
+                    assert_eq!(x.pin(&nl), p.num(&nl));
+                }
+            }
+        }
         assert!(matches!(
             u1.pins[1].connection,
             Connection::Net { net: 0, .. }

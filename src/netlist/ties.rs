@@ -71,19 +71,38 @@ pub fn join_net_ties(nl: &mut Netlist<'_>) {
         parent[i] = b;
         parent[b] = b;
     }
-    // move the nodes; remember where each moved net's nodes start in its new net
+    // move the nodes: each kept net's own, then those of the nets joined into it in net
+    // order; remember where each moved net's nodes start in its new net
     let mut moved_to: Vec<Option<(usize, usize)>> = vec![None; n];
+    let mut joined: Vec<Vec<usize>> = vec![Vec::new(); n];
+    let mut count: Vec<usize> = nl.nets.iter().map(|net| net.node_count()).collect();
     for i in 0..n {
         let r = find(&mut parent, i);
         if r == i {
             continue;
         }
-        let nodes = std::mem::take(&mut nl.nets[i].nodes);
-        let base = nl.nets[r].nodes.len();
-        nl.nets[r].nodes.extend(nodes);
-        moved_to[i] = Some((r, base));
+        moved_to[i] = Some((r, count[r]));
+        count[r] += count[i];
+        count[i] = 0;
+        joined[r].push(i);
         nl.name_finds(i, r);
     }
+    let old = std::mem::take(&mut nl.nodes);
+    let mut nodes = Vec::with_capacity(old.len());
+    let ranges: Vec<std::ops::Range<usize>> = nl.nets.iter().map(|net| net.range()).collect();
+    for r in 0..n {
+        if moved_to[r].is_some() {
+            nl.nets[r].set_nodes(nodes.len(), 0);
+            continue;
+        }
+        let start = nodes.len();
+        for &i in std::iter::once(&r).chain(&joined[r]) {
+            nodes.extend(old[ranges[i].clone()].iter().cloned());
+        }
+        nl.nets[r].set_nodes(start, nodes.len() - start);
+    }
+    drop(old);
+    nl.nodes = nodes;
     let nets = &nl.nets;
     for c in &mut nl.components {
         for p in &mut c.pins {
@@ -98,7 +117,7 @@ pub fn join_net_ties(nl: &mut Netlist<'_>) {
                 None => (net, node),
             };
             let (net, node) = (net as u32, node as u32);
-            p.connection = if nets[net as usize].nodes.len() > 1 {
+            p.connection = if nets[net as usize].node_count() > 1 {
                 Connection::Net { net, node }
             } else {
                 Connection::Alone { net, node }

@@ -30,8 +30,8 @@ use thin_vec::ThinVec;
 
 use crate::diag::Diag;
 use crate::netlist::{
-    Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, PinType,
-    SheetPath, Text, Texts,
+    Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, NodeTexts,
+    PinType, SheetPath, Text, Texts,
 };
 use crate::source::{SourceFile, Span};
 
@@ -700,7 +700,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
     let mut net_of_name: HashMap<&str, usize> = HashMap::default();
+    // the nets, and every node with its net's index in one list (sorted by net below)
     let mut nets: Vec<Net<'_>> = Vec::new();
+    let mut has_nodes: Vec<bool> = Vec::new();
+    let mut nodes: Vec<(u32, Node<'_>)> = Vec::new();
+    let mut node_texts = NodeTexts::new(text);
     for g in group_order {
         let Some(chosen) = by_group.get(&g) else {
             continue;
@@ -721,12 +725,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             Some(&i) => i,
             None => {
                 net_of_name.insert(name, nets.len());
-                nets.push(Net {
-                    code: None,
-                    name: Text::owned(name, Span::default()),
-                    nodes: Vec::new(),
-                    span: Span::default(),
-                });
+                nets.push(Net::new(
+                    None,
+                    Text::owned(name, Span::default()),
+                    Span::default(),
+                ));
+                has_nodes.push(false);
                 nets.len() - 1
             }
         };
@@ -736,21 +740,21 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             let pl = &placements[ui][s];
             let lp = &pl.lib.pins[lpi];
             let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
-            let net = &mut nets[idx];
-            if net.nodes.is_empty() {
+            if !has_nodes[idx] {
+                has_nodes[idx] = true;
+                let net = &mut nets[idx];
                 net.span = span;
                 net.name.set_span(span);
             }
-            net.nodes.push(Node {
-                reference: txt_of(&pl.reference, pl.reference_span),
-                pin: lp.num.clone().into(),
-                pinfunction: (!lp.name.is_empty() && lp.name != "~")
-                    .then(|| lp.name.clone().into()),
-                pintype: Some(lp.ptype),
-                no_connect: nc || lp.ptype == PinType::NoConnect,
+            let node = node_texts.apart(
                 span,
-                comp: None,
-            });
+                txt_of(&pl.reference, pl.reference_span),
+                lp.num.clone().into(),
+                (!lp.name.is_empty() && lp.name != "~").then(|| lp.name.clone().into()),
+                Some(lp.ptype),
+                nc || lp.ptype == PinType::NoConnect,
+            );
+            nodes.push((idx as u32, node));
         }
     }
 
@@ -759,17 +763,36 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
-    nets.sort_by_cached_key(|n| natural_key(n.name.as_str()));
+    let mut order: Vec<usize> = (0..nets.len()).collect();
+    order.sort_by_cached_key(|&i| natural_key(nets[i].name.as_str()));
+    let mut rank = vec![0u32; nets.len()];
+    for (r, &i) in order.iter().enumerate() {
+        rank[i] = r as u32;
+    }
+    let mut slots: Vec<Option<Net<'_>>> = nets.into_iter().map(Some).collect();
+    let nets: Vec<Net<'_>> = order
+        .iter()
+        .map(|&i| slots[i].take().expect("each net once"))
+        .collect();
+    drop((slots, order, has_nodes));
+    for e in &mut nodes {
+        e.0 = rank[e.0 as usize];
+    }
+    drop(rank);
+    // by net, in the order each net's nodes were found
+    nodes.sort_by_key(|e| e.0);
     // one node per (reference, pin number) in a net, as KiCad writes it (of unnumbered pins
     // on one net, the one with the lowest name)
-    fn key<'n>(n: &'n Node<'_>) -> (&'n str, &'n str, Option<&'n str>) {
-        (n.reference.as_str(), &n.pin, n.pinfunction.as_deref())
+    let t = &node_texts;
+    fn key<'n, 'a>(n: &Node<'a>, t: &'n NodeTexts<'a>) -> (&'n str, &'n str, Option<&'n str>) {
+        (n.reference_in(t), n.pin_in(t), n.pinfunction_in(t))
     }
-    for n in &mut nets {
-        n.nodes.sort_by(|a, b| key(a).cmp(&key(b)));
-        n.nodes
-            .dedup_by(|b, a| a.reference.as_str() == b.reference.as_str() && a.pin == b.pin);
+    for run in nodes.chunk_by_mut(|a, b| a.0 == b.0) {
+        run.sort_by(|(_, a), (_, b)| key(a, t).cmp(&key(b, t)));
     }
+    nodes.dedup_by(|(nb, b), (na, a)| {
+        na == nb && a.reference_in(t) == b.reference_in(t) && a.pin_in(t) == b.pin_in(t)
+    });
 
     // components (one per reference, units merged) and library parts, as KiCad lists
     // them: sheet by sheet in page order, by reference within a sheet
@@ -913,7 +936,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let root_span = project.sheets[0].span;
     diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
     Ok(Netlist::assemble(
-        text, components, libparts, nets, diags, root_span,
+        components, libparts, nets, nodes, node_texts, diags, root_span,
     ))
 }
 
