@@ -13,10 +13,11 @@
 //! time and CPU time per run). With
 //! `NETMARGIN_BENCH_BASELINE=<another netmargin binary>` that binary (an earlier build) runs
 //! on the same files in the same run, for before-and-after columns.
-//! The files are written under `<target>/bench-scale/`. CPU time (user + system) and peak
-//! memory (maximum resident set size) are each child's own, from `wait4` (microsecond CPU
-//! times, so even the 0.05 s runs of the smallest files compare); where the system has no
-//! `wait4` they are shown as n/a.
+//! The files are written under `<target>/bench-scale/`, each by a child of the bench (so that
+//! the bench's own peak memory, which Linux counts into every later child's, stays small).
+//! CPU time (user + system) and peak memory (maximum resident set size) are each child's own,
+//! from `wait4` (microsecond CPU times, so even the 0.05 s runs of the smallest files
+//! compare); where the system has no `wait4` they are shown as n/a.
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
@@ -98,11 +99,63 @@ fn run(program: &Path, args: &[&std::ffi::OsStr], envs: &[(&str, Option<&str>)])
 fn big_file(dir: &Path, shape: &str, mb: usize) -> (PathBuf, u64) {
     let path = dir.join(format!("{shape}-{mb}MB.net"));
     if !path.exists() {
-        let text = netmargin::synth::shape(shape, mb * 1_000_000).expect("a known shape");
-        std::fs::write(&path, &text).expect("bench file");
+        let bytes = (mb * 1_000_000).to_string();
+        generate(&["shape", shape, &bytes, &path.to_string_lossy()]);
     }
     let len = std::fs::metadata(&path).expect("bench file").len();
     (path, len)
+}
+
+/// The environment variable that makes the bench, run as a child of itself, write one
+/// generated input (its fields separated by tabs, see [`write_generated`]) and print what the
+/// parent needs to know of it.
+const GENERATE: &str = "NETMARGIN_BENCH_GENERATE";
+
+/// Writes a generated input in a child process and returns what it printed. A child does it
+/// so that the bench's own memory stays small: on Linux a child's peak memory (`wait4`'s
+/// maximum resident set size) is never less than its parent's peak when it was started, so a
+/// bench that had held a 500 MB text would report at least that for every later run.
+fn generate(fields: &[&str]) -> String {
+    let exe = std::env::current_exe().expect("the bench's own path");
+    let out = Command::new(exe)
+        .env(GENERATE, fields.join("\t"))
+        .stderr(Stdio::inherit())
+        .output()
+        .expect("the bench runs itself");
+    assert!(out.status.success(), "writing {fields:?} failed");
+    String::from_utf8(out.stdout).expect("the child's answer")
+}
+
+/// The child's side of [`generate`]: `shape<TAB>name<TAB>bytes<TAB>path` writes one netlist
+/// of a shape; `schematic<TAB>bytes<TAB>path` one sheet and prints its net count;
+/// `hierarchy<TAB>bytes<TAB>folder` a project and prints its net count, then each file's path
+/// (the root first), one a line.
+fn write_generated(spec: &str) {
+    let f: Vec<&str> = spec.split('\t').collect();
+    let bytes = |s: &str| s.parse::<usize>().expect("a size in bytes");
+    match f.as_slice() {
+        ["shape", shape, size, path] => {
+            let text = netmargin::synth::shape(shape, bytes(size)).expect("a known shape");
+            std::fs::write(path, &text).expect("bench file");
+        }
+        ["schematic", size, path] => {
+            let (text, nets) = netmargin::synth::schematic(bytes(size));
+            std::fs::write(path, &text).expect("bench file");
+            println!("{nets}");
+        }
+        ["hierarchy", size, folder] => {
+            let folder = Path::new(folder);
+            std::fs::create_dir_all(folder).expect("bench folder");
+            let (texts, nets) = netmargin::synth::hierarchy(bytes(size));
+            println!("{nets}");
+            for (name, text) in &texts {
+                let p = folder.join(name);
+                std::fs::write(&p, text).expect("bench file");
+                println!("{}", p.display());
+            }
+        }
+        _ => panic!("unknown {GENERATE} request: {spec:?}"),
+    }
 }
 
 /// The environment variable that makes the bench, run as a child of itself, only read and
@@ -147,6 +200,10 @@ fn mb(kb: Option<u64>) -> String {
 fn main() {
     if let Ok(path) = std::env::var(READ_ONLY) {
         read_and_model(&path);
+        return;
+    }
+    if let Ok(spec) = std::env::var(GENERATE) {
+        write_generated(&spec);
         return;
     }
     let args: Vec<String> = std::env::args()
@@ -491,24 +548,20 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize) {
         for &size in sizes {
             let size_mb = (size / 10).max(1);
             // the files written: the root first
+            let size_bytes = (size_mb * 1_000_000).to_string();
             let (files, nets): (Vec<PathBuf>, usize) = if kind == "one sheet" {
                 let path = dir.join(format!("synthetic-{size_mb}MB.kicad_sch"));
-                let (text, nets) = netmargin::synth::schematic(size_mb * 1_000_000);
-                std::fs::write(&path, &text).expect("bench file");
-                (vec![path], nets)
+                let answer = generate(&["schematic", &size_bytes, &path.to_string_lossy()]);
+                (vec![path], answer.trim().parse().expect("a net count"))
             } else {
                 let folder = dir.join(format!("hierarchy-{size_mb}MB"));
-                std::fs::create_dir_all(&folder).expect("bench folder");
-                let (texts, nets) = netmargin::synth::hierarchy(size_mb * 1_000_000);
-                let paths = texts
-                    .iter()
-                    .map(|(name, text)| {
-                        let p = folder.join(name);
-                        std::fs::write(&p, text).expect("bench file");
-                        p
-                    })
-                    .collect();
-                (paths, nets)
+                let answer = generate(&["hierarchy", &size_bytes, &folder.to_string_lossy()]);
+                let mut lines = answer.lines();
+                let nets = lines
+                    .next()
+                    .and_then(|l| l.parse().ok())
+                    .expect("a net count");
+                (lines.map(PathBuf::from).collect(), nets)
             };
             let bytes: u64 = files
                 .iter()
