@@ -9,7 +9,6 @@
 //! none of its contents is kept. Nothing recurses, and no input makes it panic.
 
 use rustc_hash::FxHashMap as HashMap;
-use thin_vec::ThinVec;
 
 use super::*;
 use crate::sexpr::{bom_len, errors, unescape, MAX_DEPTH};
@@ -280,20 +279,7 @@ struct NodeAcc<'a> {
 
 fn empty_component<'a>() -> Component<'a> {
     let span = Span { start: 0, end: 0 };
-    Component {
-        reference: Text::empty(span),
-        value: None,
-        footprint: None,
-        datasheet: None,
-        fields: ThinVec::new(),
-        properties: ThinVec::new(),
-        libsource: None,
-        sheetpath: None,
-        tstamps: Texts::default(),
-        span,
-        libpart: None,
-        pins: Box::default(),
-    }
+    Component::new(Text::empty(span), span)
 }
 
 /// The model being built, and the open lists it cares about.
@@ -316,7 +302,6 @@ struct Reader<'a> {
     field_name: Option<Text<'a>>,
     field_value: Option<Text<'a>>,
     libsource: LibSource<'a>,
-    sheetpath: SheetPath<'a>,
     libpart: LibPartAcc<'a>,
     pin_num: Option<Text<'a>>,
     pin_name: Option<Text<'a>>,
@@ -368,10 +353,6 @@ impl<'a> Reader<'a> {
                 lib: None,
                 part: None,
                 description: None,
-            },
-            sheetpath: SheetPath {
-                names: None,
-                tstamps: None,
             },
             libpart: LibPartAcc::default(),
             pin_num: None,
@@ -543,13 +524,7 @@ impl<'a> Reader<'a> {
                 };
                 Role::LibSource
             }
-            (Role::Comp, "sheetpath") => {
-                self.sheetpath = SheetPath {
-                    names: None,
-                    tstamps: None,
-                };
-                Role::SheetPath
-            }
+            (Role::Comp, "sheetpath") => Role::SheetPath,
             (Role::Comp, "tstamp" | "tstamps") => value(self, Slot::Tstamp),
             (Role::CompFields, "field") => self.start_field(Owner::CompField),
             (Role::Field(_), "name") => value(self, Slot::FieldName),
@@ -627,19 +602,14 @@ impl<'a> Reader<'a> {
             }
             Slot::Value => self.comp.value = v,
             Slot::Footprint => self.comp.footprint = v,
-            Slot::Datasheet => self.comp.datasheet = v,
-            Slot::Tstamp => {
-                if let Some(v) = v {
-                    self.comp.tstamps.push(v);
-                }
-            }
+            // read (a list where the value belongs is a diagnostic) but not kept: nothing
+            // reads them after reading
+            Slot::Datasheet | Slot::Tstamp | Slot::SpNames | Slot::SpTstamps => {}
             Slot::FieldName => self.field_name = v,
             Slot::FieldValue => self.field_value = v,
             Slot::LsLib => self.libsource.lib = v,
             Slot::LsPart => self.libsource.part = v,
             Slot::LsDescription => self.libsource.description = v,
-            Slot::SpNames => self.sheetpath.names = v,
-            Slot::SpTstamps => self.sheetpath.tstamps = v,
             Slot::LpLib => self.libpart.lib = v,
             Slot::LpPart => self.libpart.part = v,
             Slot::LpDescription => self.libpart.description = v,
@@ -733,13 +703,7 @@ impl<'a> Reader<'a> {
                 };
                 self.comp.libsource = Some(ls);
             }
-            Role::SheetPath => {
-                let sp = SheetPath {
-                    names: self.sheetpath.names.take(),
-                    tstamps: self.sheetpath.tstamps.take(),
-                };
-                self.comp.sheetpath = Some(sp);
-            }
+            Role::SheetPath => {}
             Role::LibPart => self.end_libpart(span),
             Role::Pin => match self.pin_num.take() {
                 Some(num) => self.libpart.pins.push(LibPin {
@@ -772,8 +736,7 @@ impl<'a> Reader<'a> {
             return;
         }
         comp.span = span;
-        comp.fields = self.fields.drain(..).collect();
-        comp.properties = self.properties.drain(..).collect();
+        comp.set_fields(self.fields.drain(..), self.properties.drain(..));
         self.nl.components.push(comp);
     }
 
@@ -1229,20 +1192,24 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     }
     nl.nodes.shrink_to_fit();
     drop(keep);
-    // per component, its kept (pin rank, net, node), still sorted by pin
-    let mut pin_nets: Vec<(u32, u32, u32)> = Vec::with_capacity(sorted.len());
+    // per component, its kept (pin rank, net, node), still sorted by pin: written over
+    // `sorted` in place (an entry moves down or stays), with no second list
     let mut pins_at: Vec<u32> = Vec::with_capacity(ncomp + 1);
+    let mut w = 0;
     for c in 0..ncomp {
-        pins_at.push(pin_nets.len() as u32);
-        for &(rank, ni, k) in &sorted[comp_at[c] as usize..comp_at[c + 1] as usize] {
+        pins_at.push(w as u32);
+        for r in comp_at[c] as usize..comp_at[c + 1] as usize {
+            let (rank, ni, k) = sorted[r];
             let nk = new_index[(net_at[ni as usize] + k) as usize];
             if nk != u32::MAX {
-                pin_nets.push((rank, ni, nk));
+                sorted[w] = (rank, ni, nk);
+                w += 1;
             }
         }
     }
-    pins_at.push(pin_nets.len() as u32);
-    drop(sorted);
+    pins_at.push(w as u32);
+    sorted.truncate(w);
+    let mut pin_nets = sorted;
     drop(new_index);
     drop(comp_at);
     drop(net_at);
@@ -1280,9 +1247,20 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut used: Vec<bool> = Vec::new();
     nl.number_lib_pins();
     let lib_pin_at = &nl.lib_pin_at;
-    // component pins: the libpart's, then any the nets name that it lacks
-    for (ci, c) in nl.components.iter_mut().enumerate() {
-        let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
+    // component pins: the libpart's, then any the nets name that it lacks. Made from the
+    // last component to the first, so what is left to read of `pin_nets` is always its
+    // start: its end is given back as the pins are made, and the two are never held whole
+    // at once (a step of at least 64 Ki entries: a small board gives nothing back early).
+    let step = (pin_nets.len() / 8).max(1 << 16);
+    let mut kept = pin_nets.len();
+    for (ci, c) in nl.components.iter_mut().enumerate().rev() {
+        let end = pins_at[ci + 1] as usize;
+        if kept - end >= step {
+            pin_nets.truncate(end);
+            pin_nets.shrink_to_fit();
+            kept = end;
+        }
+        let mine = &pin_nets[pins_at[ci] as usize..end];
         let (nets, nodes) = (&nl.nets, &nl.nodes);
         let mut pins: Vec<CompPin> = Vec::new();
         used.clear();
@@ -1297,8 +1275,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 if repeats[pi]
                     && pins.len() < 64
                     && pins.iter().any(|p| {
-                        p.libpin != NONE
-                            && lpins[(p.libpin - first) as usize].num.as_str() == lpin.num.as_str()
+                        p.lib_pin_number().is_some_and(|g| {
+                            lpins[(g - first) as usize].num.as_str() == lpin.num.as_str()
+                        })
                     })
                 {
                     continue; // stacked pins listed twice
