@@ -898,6 +898,9 @@ pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag
     name_unnumbered_pins(nl);
     link_pins(text, nl, diags);
     super::ties::join_net_ties(nl);
+    // grown by doubling as they were read: give back what the lists hold no item in
+    nl.components.shrink_to_fit();
+    nl.nets.shrink_to_fit();
 }
 
 /// A symbol drawn with pin names but no pin numbers (simulation and sketch libraries do it)
@@ -1003,8 +1006,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
     let mut codes: HashMap<&str, usize> =
         HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
-    // (component, net, node)
-    let mut entries: Vec<(u32, u32, u32)> = Vec::with_capacity(nl.nodes.len());
+    // how many nodes name each component (from index 1, for the counting sort below); the
+    // component itself is kept in the node
+    let ncomp = nl.components.len();
+    let mut comp_at = vec![0u32; ncomp + 1];
+    let mut linked = 0usize;
     for (ni, net) in nl.nets.iter_mut().enumerate() {
         if let Some(code) = &net.code {
             if let Some(&first) = codes.get(code.as_str()) {
@@ -1022,14 +1028,14 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 );
             }
         }
-        for (k, node) in nl.nodes[net.range()].iter_mut().enumerate() {
+        for node in &mut nl.nodes[net.range()] {
             let r = node.reference_in(&nl.node_texts);
             let comps = &nl.components;
             match by_ref.find(text_hash(r), |&j| comps[j as usize].reference.as_str() == r) {
                 Some(&ci) => {
-                    let ci = ci as usize;
-                    node.set_component(ci as u32);
-                    entries.push((ci as u32, ni as u32, k as u32));
+                    node.set_component(ci);
+                    comp_at[ci as usize + 1] += 1;
+                    linked += 1;
                 }
                 None => diags.push(
                     Diag::error(
@@ -1068,9 +1074,14 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // Pin numbers as integers: each distinct pin text gets its rank in text order, so
     // sorting by rank sorts exactly as comparing the texts would.
     let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
-    let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
-    for &(_, ni, k) in &entries {
-        let node = nl.node(ni as usize, k as usize);
+    // per node in the model's order: its pin's id, then rank (unused for a node naming no
+    // component)
+    let mut pin_of: Vec<u32> = Vec::with_capacity(nl.nodes.len());
+    for node in &nl.nodes {
+        if node.component().is_none() {
+            pin_of.push(u32::MAX);
+            continue;
+        }
         let pin = node.pin_in(&nl.node_texts);
         let next = pin_ids.len() as u32;
         let id = match pin_ids.get(pin) {
@@ -1093,31 +1104,32 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         *id = rank_of_id[*id as usize];
     }
     for p in &mut pin_of {
-        *p = rank_of_id[*p as usize];
+        if let Some(&rank) = rank_of_id.get(*p as usize) {
+            *p = rank;
+        }
     }
     drop(rank_of_id);
 
-    // Group the entries by component (a counting sort: linear, and it keeps each
-    // component's entries in net and node order), then sort each group by pin rank.
-    let ncomp = nl.components.len();
-    let mut comp_at = vec![0u32; ncomp + 1];
-    for e in &entries {
-        comp_at[e.0 as usize + 1] += 1;
-    }
+    // Group the linked nodes by component (a counting sort: linear, and it keeps each
+    // component's nodes in net and node order), then sort each group by pin rank.
     for c in 0..ncomp {
         comp_at[c + 1] += comp_at[c];
     }
     let mut fill: Vec<u32> = comp_at[..ncomp].to_vec();
     // (pin rank, net, node)
-    let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); entries.len()];
-    for (e, &rank) in entries.iter().zip(&pin_of) {
-        let at = &mut fill[e.0 as usize];
-        sorted[*at as usize] = (rank, e.1, e.2);
-        *at += 1;
+    let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); linked];
+    for (ni, net) in nl.nets.iter().enumerate() {
+        let base = net.first as usize;
+        for (k, node) in nl.nodes[net.range()].iter().enumerate() {
+            if let Some(ci) = node.component() {
+                let at = &mut fill[ci as usize];
+                sorted[*at as usize] = (pin_of[base + k], ni as u32, k as u32);
+                *at += 1;
+            }
+        }
     }
     drop(fill);
     drop(pin_of);
-    drop(entries);
     for c in 0..ncomp {
         let group = &mut sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
         if group.len() > 1 {
@@ -1159,23 +1171,24 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
         }
     }
-    // drop the repeats and renumber the kept nodes (`new_index` reuses the flat layout)
-    let mut new_index = vec![u32::MAX; total as usize];
-    let mut dropped = false;
-    for (ni, net) in nl.nets.iter().enumerate() {
-        let base = net_at[ni] as usize;
-        let keep = &keep[base..base + net.node_count()];
-        let map = &mut new_index[base..base + net.node_count()];
-        let mut n = 0u32;
-        for (k, &kp) in keep.iter().enumerate() {
-            if kp {
-                map[k] = n;
-                n += 1;
+    // drop the repeats (and the nodes naming no component) and renumber the kept nodes
+    // (`new_index` reuses the flat layout; none is needed when every node is kept)
+    let dropped = keep.contains(&false);
+    let mut new_index = Vec::new();
+    if dropped {
+        new_index = vec![u32::MAX; total as usize];
+        for (ni, net) in nl.nets.iter().enumerate() {
+            let base = net_at[ni] as usize;
+            let keep = &keep[base..base + net.node_count()];
+            let map = &mut new_index[base..base + net.node_count()];
+            let mut n = 0u32;
+            for (k, &kp) in keep.iter().enumerate() {
+                if kp {
+                    map[k] = n;
+                    n += 1;
+                }
             }
         }
-        dropped |= (n as usize) < keep.len();
-    }
-    if dropped {
         // the nets' nodes lie net after net: move each kept node down over the dropped
         let mut w = 0;
         for net in &mut nl.nets {
@@ -1200,7 +1213,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         pins_at.push(w as u32);
         for r in comp_at[c] as usize..comp_at[c + 1] as usize {
             let (rank, ni, k) = sorted[r];
-            let nk = new_index[(net_at[ni as usize] + k) as usize];
+            let nk = if dropped {
+                new_index[(net_at[ni as usize] + k) as usize]
+            } else {
+                k
+            };
             if nk != u32::MAX {
                 sorted[w] = (rank, ni, nk);
                 w += 1;

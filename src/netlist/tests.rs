@@ -512,3 +512,27 @@ fn fields_then_properties_in_one_list() {
         assert!(u1.field("datasheet").is_none(), "the data-sheet link is not a field");
     }
 }
+
+/// On a board large enough that the list of each component's nets is given back in steps
+/// as the pins are made (`link_pins`, from 64 Ki entries), every pin on a net still points at
+/// a node naming its own component and its own number, and every node is one pin's.
+#[test]
+fn every_pin_points_at_its_own_node_on_a_large_board() {
+    let text = crate::synth::netlist(20 << 20);
+    let nl = stream::read(&text).unwrap();
+    let nodes = nl.all_nodes().len();
+    assert!(nodes > 2 << 16, "{nodes} nodes: too few to give the list back in steps");
+    let mut on_nets = 0;
+    for (ci, c) in nl.components.iter().enumerate() {
+        for p in c.pins.iter() {
+            if let Connection::Net { net, node } | Connection::Alone { net, node } = p.connection {
+                let nd = nl.node(net as usize, node as usize);
+                assert_eq!(nd.component(), Some(ci as u32), "{}", c.reference);
+                assert_eq!(nd.pin(&nl), p.num(&nl), "{}", c.reference);
+                on_nets += 1;
+            }
+        }
+    }
+    assert_eq!(on_nets, nodes, "every node is one pin's");
+    assert_eq!(nl.components.capacity(), nl.components.len());
+}
