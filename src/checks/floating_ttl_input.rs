@@ -84,7 +84,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             ));
         }
         let (_, inside, tie) = part_text.as_ref().expect("set above");
-        let nc = cx.nl.components[f.at.comp()].pins[f.at.pin()].no_connect;
+        let nc = cx.nl.components[f.at.comp()].pins[f.at.pin()].no_connect();
         let flag = if nc {
             " (its no-connect flag leaves it open; it does not tie it)"
         } else {

@@ -175,14 +175,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let disagreeing = || {
             let mut bad: Vec<usize> = Vec::new();
             for (pi, p) in c.pins.iter().enumerate() {
-                if part.role_source[pi] != RoleSource::Table || p.ptype == PinType::Unknown {
+                if part.role_source[pi] != RoleSource::Table || p.ptype() == PinType::Unknown {
                     continue;
                 }
                 let role = part.roles[pi];
-                if extra_supply(role, p.ptype, part.table_names[pi].as_deref()) {
+                if extra_supply(role, p.ptype(), part.table_names[pi].as_deref()) {
                     continue;
                 }
-                if !types_agree(role, p.ptype) || names_disagree(role, p.name(cx.nl)) {
+                if !types_agree(role, p.ptype()) || names_disagree(role, p.name(cx.nl)) {
                     bad.push(pi);
                 }
             }
@@ -200,7 +200,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         // groups of (symbol type, table role), in pin order of their first pin
         let mut groups: Vec<((PinType, PinRole), Vec<usize>)> = Vec::new();
         for &pi in &bad {
-            let key = (c.pins[pi].ptype, role_group(part.roles[pi]));
+            let key = (c.pins[pi].ptype(), role_group(part.roles[pi]));
             match groups.iter_mut().find(|(k, _)| *k == key) {
                 Some((_, v)) => v.push(pi),
                 None => groups.push((key, vec![pi])),
@@ -272,7 +272,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             "pin-role-mismatch",
             format!("{} ({value}): the symbol disagrees with the {value} pinout at {} pin{}: {}", c.reference.as_str(), bad.len(), if bad.len() == 1 { "" } else { "s" }, clauses.join("; ")),
         )
-        .at(cx.pin_span(first), format!("the symbol's pin {} is typed {}", c.pins[bad[0]].num(cx.nl), c.pins[bad[0]].ptype.as_str()))
+        .at(cx.pin_span(first), format!("the symbol's pin {} is typed {}", c.pins[bad[0]].num(cx.nl), c.pins[bad[0]].ptype().as_str()))
         .with_pin_list(super::common::pin_names(cx, bad.iter().map(|&i| PinRef::new(ci, i))))
         .with_help(format!(
             "likely cause: {}; use a symbol for the {value} (or correct the pin types); netmargin goes by the value and reads these pins as the {value} pinout gives them",
@@ -281,7 +281,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         for &pi in bad.iter().skip(1).take(3) {
             diag = diag.also(
                 cx.pin_span(PinRef::new(ci, pi)),
-                format!("typed {}", c.pins[pi].ptype.as_str()),
+                format!("typed {}", c.pins[pi].ptype().as_str()),
             );
         }
         out.push(diag);

@@ -156,7 +156,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         }
         let mut wrong = false;
         for (pi, p) in c.pins.iter().enumerate() {
-            if part.role_source[pi] != RoleSource::Table && p.ptype == PinType::PowerOut {
+            if part.role_source[pi] != RoleSource::Table && p.ptype() == PinType::PowerOut {
                 continue; // a power output makes its own rail
             }
             // a table's role says the side alone: the name is read only for other pins
@@ -273,7 +273,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                     wrong = true;
                     let how = if matches!(p.connection, Connection::Absent) {
                         "is on no net (its unit was never placed, or the pin is not in the netlist)"
-                    } else if p.no_connect {
+                    } else if p.no_connect() {
                         "carries a no-connect flag, which leaves it open"
                     } else {
                         "is placed but wired to nothing"

@@ -884,7 +884,7 @@ pub fn build<'n, 'a>(
     }
     for (ci, c) in nl.components.iter().enumerate() {
         for p in &c.pins {
-            if p.ptype == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
+            if p.ptype() == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
                 if let Connection::Net { net, .. } = p.connection {
                     let net = net as usize;
                     if rail[net].is_none() {

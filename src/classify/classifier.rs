@@ -473,7 +473,7 @@ fn kind_by_reference(nl: &Netlist<'_>, c: &Component<'_>) -> PartKind {
             let active = c.pins.len() >= 3
                 && c.pins.iter().any(|p| {
                     matches!(
-                        p.ptype,
+                        p.ptype(),
                         PinType::Output
                             | PinType::TriState
                             | PinType::Bidirectional
@@ -782,7 +782,7 @@ pub fn classify(nl: &Netlist<'_>, rules: &Rules) -> Classified {
             }
             method = if c.pins.iter().any(|p| {
                 !matches!(
-                    p.ptype,
+                    p.ptype(),
                     PinType::Unknown | PinType::Unspecified | PinType::Passive
                 )
             }) {
@@ -1010,7 +1010,7 @@ impl<'c, 'a> Alike<'c, 'a> {
         for p in &c.pins {
             let t = self.texts_of(p);
             key.extend_from_slice(&t.to_le_bytes());
-            key.push(p.ptype as u8);
+            key.push(p.ptype() as u8);
         }
         let mut hasher = self.state.build_hasher();
         hasher.write(&key);
@@ -1058,7 +1058,7 @@ fn pin_table_key(
     let mut h = rustc_hash::FxHasher::default();
     (function, family, passive_kind, c.pins.len()).hash(&mut h);
     for p in &c.pins {
-        (p.num(nl), p.ptype, p.name(nl)).hash(&mut h);
+        (p.num(nl), p.ptype(), p.name(nl)).hash(&mut h);
     }
     h.finish()
 }
@@ -1072,7 +1072,7 @@ fn same_pins(
     a.len() == b.len()
         && a.iter()
             .zip(b)
-            .all(|(x, y)| x.ptype == y.ptype && x.same_texts(y, nl))
+            .all(|(x, y)| x.ptype() == y.ptype() && x.same_texts(y, nl))
 }
 
 /// A part's per-pin data: from the function table for a pin the table has, else from the
@@ -1123,7 +1123,7 @@ fn pin_table(
                     roles.push(PinRole::Passive);
                     role_source.push(RoleSource::Netlist);
                 } else {
-                    let (mut r, s) = role_from_netlist(p.ptype, p.name(nl));
+                    let (mut r, s) = role_from_netlist(p.ptype(), p.name(nl));
                     // a memory's chip, output or write enable is an input whatever
                     // the symbol types it
                     if r.is_output() && p.name(nl).is_some_and(is_enable_input_name) {

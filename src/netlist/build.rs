@@ -1,7 +1,6 @@
 //! Building the [`Netlist`] from a syntax tree.
 
 use std::cell::RefCell;
-use thin_vec::ThinVec;
 
 use super::*;
 use crate::sexpr::{NodeId, Tree};
@@ -214,20 +213,8 @@ impl<'a> Builder<'_, 'a> {
     }
 
     fn component(&self, c: NodeId) -> Option<Component<'a>> {
-        let mut comp = Component {
-            reference: Text::empty(self.t.span(c)),
-            value: None,
-            footprint: None,
-            datasheet: None,
-            fields: ThinVec::new(),
-            properties: ThinVec::new(),
-            libsource: None,
-            sheetpath: None,
-            tstamps: Texts::default(),
-            span: self.t.span(c),
-            libpart: None,
-            pins: Box::default(),
-        };
+        let mut comp = Component::new(Text::empty(self.t.span(c)), self.t.span(c));
+        let (mut fields, mut properties) = (Vec::new(), Vec::new());
         let mut have_ref = false;
         for (k, n) in self.each(c) {
             match k {
@@ -239,17 +226,18 @@ impl<'a> Builder<'_, 'a> {
                 }
                 "value" => comp.value = self.value(n),
                 "footprint" => comp.footprint = self.value(n),
-                "datasheet" => comp.datasheet = self.value(n),
+                // read (a list where the value belongs is a diagnostic) but not kept
+                "datasheet" => drop(self.value(n)),
                 "fields" => {
                     for f in self.each(n).filter(|(k, _)| *k == "field").map(|(_, f)| f) {
                         if let Some(f) = self.field(f) {
-                            comp.fields.push(f);
+                            fields.push(f);
                         }
                     }
                 }
                 "property" => {
                     if let Some(f) = self.field(n) {
-                        comp.properties.push(f);
+                        properties.push(f);
                     }
                 }
                 "libsource" => {
@@ -269,24 +257,13 @@ impl<'a> Builder<'_, 'a> {
                     comp.libsource = Some(ls);
                 }
                 "sheetpath" => {
-                    let mut sp = SheetPath {
-                        names: None,
-                        tstamps: None,
-                    };
                     for (k2, c2) in self.each(n) {
-                        match k2 {
-                            "names" => sp.names = self.value(c2),
-                            "tstamps" => sp.tstamps = self.value(c2),
-                            _ => {}
+                        if matches!(k2, "names" | "tstamps") {
+                            drop(self.value(c2));
                         }
                     }
-                    comp.sheetpath = Some(sp);
                 }
-                "tstamp" | "tstamps" => {
-                    if let Some(v) = self.value(n) {
-                        comp.tstamps.push(v);
-                    }
-                }
+                "tstamp" | "tstamps" => drop(self.value(n)),
                 _ => {}
             }
         }
@@ -298,9 +275,7 @@ impl<'a> Builder<'_, 'a> {
             );
             return None;
         }
-        // a vector grows to 4 items at its first push; give back what one or two don't use
-        comp.fields.shrink_to_fit();
-        comp.properties.shrink_to_fit();
+        comp.set_fields(fields.into_iter(), properties.into_iter());
         Some(comp)
     }
 

@@ -70,12 +70,6 @@ pub struct LibSource<'a> {
     pub description: Option<Text<'a>>,
 }
 
-#[derive(Debug, Clone)]
-pub struct SheetPath<'a> {
-    pub names: Option<Text<'a>>,
-    pub tstamps: Option<Text<'a>>,
-}
-
 /// Where one pin of a component is connected.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Connection {
@@ -105,22 +99,37 @@ impl Connection {
 /// One pin of a placed component, merged from its library part and the nets. Its number
 /// and name are not copied here (a board has several pins for every node): they are read
 /// through the library pin or the node it stands for ([`CompPin::num`], [`CompPin::name`]).
+/// Sixteen bytes: its library pin, pin type and no-connect mark share one word.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct CompPin {
     pub connection: Connection,
-    /// The library pin: an index into [`Netlist`]'s table of every library part's pins
-    /// (one number where a library part's and its pin's would take two), `NONE` when the
-    /// pin is only the nets'.
-    libpin: u32,
-    /// The symbol's pin type (the node's `pintype` when present, else the libpart's).
-    pub ptype: PinType,
-    /// The node's pintype carried `+no_connect`, or the symbol marks the pin no-connect.
-    pub no_connect: bool,
+    /// The library pin (bits 0 to 26): an index into [`Netlist`]'s table of every library
+    /// part's pins (one number where a library part's and its pin's would take two), `NONE`
+    /// when the pin is only the nets'; the symbol's pin type (bits 27 to 30: the node's
+    /// `pintype` when present, else the libpart's; read it with [`CompPin::ptype`]); and
+    /// the no-connect mark (bit 31: [`CompPin::no_connect`]).
+    bits: u32,
 }
 
-const NONE: u32 = u32::MAX;
+/// How many library pins [`CompPin`] can number: more than a file under 1 GiB can list,
+/// since a library pin takes at least 12 bytes (`(pin(num 1))`).
+const LIB_PIN_BITS: u32 = 27;
+const LIB_PIN_MASK: u32 = (1 << LIB_PIN_BITS) - 1;
+/// No library pin.
+const NONE: u32 = LIB_PIN_MASK;
+const NO_CONNECT_BIT: u32 = 1 << 31;
 
 impl CompPin {
+    fn pack(libpin: u32, ptype: PinType, no_connect: bool, connection: Connection) -> CompPin {
+        // a file the readers accept cannot number `NONE` library pins (see `LIB_PIN_BITS`)
+        debug_assert!(libpin <= NONE);
+        CompPin {
+            connection,
+            bits: libpin.min(NONE)
+                | (u32::from(ptype as u8) << LIB_PIN_BITS)
+                | if no_connect { NO_CONNECT_BIT } else { 0 },
+        }
+    }
     /// A pin from library pin `libpin`, in the numbering of all library pins
     /// ([`Netlist::number_lib_pins`]).
     pub(crate) fn from_libpin(
@@ -129,38 +138,44 @@ impl CompPin {
         no_connect: bool,
         connection: Connection,
     ) -> CompPin {
-        CompPin {
-            connection,
-            libpin,
-            ptype,
-            no_connect,
-        }
+        CompPin::pack(libpin, ptype, no_connect, connection)
     }
     /// A pin the nets name but no library part lists: `connection` holds its node.
     pub(crate) fn from_node(ptype: PinType, no_connect: bool, connection: Connection) -> CompPin {
-        CompPin {
-            connection,
-            libpin: NONE,
-            ptype,
-            no_connect,
-        }
+        CompPin::pack(NONE, ptype, no_connect, connection)
+    }
+    /// The library pin's number, or `NONE`.
+    #[inline]
+    fn lib_pin_raw(&self) -> u32 {
+        self.bits & LIB_PIN_MASK
+    }
+    /// The symbol's pin type (the node's `pintype` when present, else the libpart's).
+    #[inline]
+    pub fn ptype(&self) -> PinType {
+        PinType::ALL[((self.bits >> LIB_PIN_BITS) & 0xF) as usize]
+    }
+    /// The node's pintype carried `+no_connect`, or the symbol marks the pin no-connect.
+    #[inline]
+    pub fn no_connect(&self) -> bool {
+        self.bits & NO_CONNECT_BIT != 0
     }
     /// The library pin's number in the netlist's numbering of all library parts' pins
     /// (below [`Netlist::lib_pin_count`]; read it with [`Netlist::lib_pin`]), `None` for a
     /// pin only the nets name. Pins of one library pin share it.
     pub fn lib_pin_number(&self) -> Option<u32> {
-        (self.libpin != NONE).then_some(self.libpin)
+        (self.lib_pin_raw() != NONE).then_some(self.lib_pin_raw())
     }
     /// Index into the component's library part's pins.
     pub fn libpin(&self, nl: &Netlist<'_>) -> Option<u32> {
-        (self.libpin != NONE).then(|| nl.lib_pin_of(self.libpin).1)
+        (self.lib_pin_raw() != NONE).then(|| nl.lib_pin_of(self.lib_pin_raw()).1)
     }
     #[inline]
     fn lib<'n>(&self, nl: &'n Netlist<'_>) -> Option<&'n LibPin<'n>> {
-        if self.libpin == NONE {
+        let g = self.lib_pin_raw();
+        if g == NONE {
             return None;
         }
-        let (part, pin) = nl.lib_pin_of(self.libpin);
+        let (part, pin) = nl.lib_pin_of(g);
         Some(&nl.libparts[part as usize].pins[pin as usize])
     }
     #[inline]
@@ -191,7 +206,7 @@ impl CompPin {
     /// True when both pins have the same number and name (of parts alike, most often the
     /// same library pin, which is not read twice).
     pub fn same_texts(&self, other: &CompPin, nl: &Netlist<'_>) -> bool {
-        if self.libpin != NONE && self.libpin == other.libpin {
+        if self.lib_pin_raw() != NONE && self.lib_pin_raw() == other.lib_pin_raw() {
             if self.lib(nl).is_some_and(|lp| lp.name.is_some()) {
                 return true;
             }
@@ -201,63 +216,17 @@ impl CompPin {
     }
 }
 
-/// A short list of texts (a component's time stamps: nearly always one), the first kept in
-/// place: no allocation for a list of one.
-#[derive(Debug, Clone, Default, PartialEq)]
-pub struct Texts<'a> {
-    first: Option<Text<'a>>,
-    rest: ThinVec<Text<'a>>,
-}
-
-impl<'a> Texts<'a> {
-    pub fn one(t: Text<'a>) -> Texts<'a> {
-        Texts {
-            first: Some(t),
-            rest: ThinVec::new(),
-        }
-    }
-    pub fn push(&mut self, t: Text<'a>) {
-        if self.first.is_none() {
-            self.first = Some(t);
-        } else {
-            self.rest.push(t);
-        }
-    }
-    pub fn len(&self) -> usize {
-        usize::from(self.first.is_some()) + self.rest.len()
-    }
-    pub fn is_empty(&self) -> bool {
-        self.first.is_none()
-    }
-    pub fn iter(&self) -> impl Iterator<Item = &Text<'a>> {
-        self.first.iter().chain(self.rest.iter())
-    }
-    pub fn get(&self, i: usize) -> Option<&Text<'a>> {
-        match i {
-            0 => self.first.as_ref(),
-            _ => self.rest.get(i - 1),
-        }
-    }
-}
-
-impl<'a> std::ops::Index<usize> for Texts<'a> {
-    type Output = Text<'a>;
-    fn index(&self, i: usize) -> &Text<'a> {
-        self.get(i).expect("an index within the list")
-    }
-}
-
+/// A placed component. What nothing reads after reading (the data-sheet link, the sheet
+/// path, the time stamps) is not kept: the component's span covers it in the file.
 #[derive(Debug, Clone)]
 pub struct Component<'a> {
     pub reference: Text<'a>,
     pub value: Option<Text<'a>>,
     pub footprint: Option<Text<'a>>,
-    pub datasheet: Option<Text<'a>>,
-    pub fields: ThinVec<Field<'a>>,
-    pub properties: ThinVec<Field<'a>>,
+    /// The `(fields (field ...))`, then the `(property ...)` items, in one list: they are
+    /// looked up together ([`Component::field`]), fields first.
+    fields: ThinVec<Field<'a>>,
     pub libsource: Option<LibSource<'a>>,
-    pub sheetpath: Option<SheetPath<'a>>,
-    pub tstamps: Texts<'a>,
     pub span: Span,
     /// The resolved library part (by lib and part, or through an alias).
     pub libpart: Option<u32>,
@@ -266,6 +235,35 @@ pub struct Component<'a> {
 }
 
 impl<'a> Component<'a> {
+    /// A component with reference `reference` at `span`, and nothing else yet.
+    pub(crate) fn new(reference: Text<'a>, span: Span) -> Component<'a> {
+        Component {
+            reference,
+            value: None,
+            footprint: None,
+            fields: ThinVec::new(),
+            libsource: None,
+            span,
+            libpart: None,
+            pins: Box::default(),
+        }
+    }
+    /// Sets the component's fields and properties, read in that order: one allocation of
+    /// their exact length.
+    pub(crate) fn set_fields(
+        &mut self,
+        fields: impl ExactSizeIterator<Item = Field<'a>>,
+        properties: impl ExactSizeIterator<Item = Field<'a>>,
+    ) {
+        let mut all = ThinVec::with_capacity(fields.len() + properties.len());
+        all.extend(fields);
+        all.extend(properties);
+        self.fields = all;
+    }
+    /// The fields, then the properties.
+    pub fn fields(&self) -> &[Field<'a>] {
+        &self.fields
+    }
     pub fn value_str(&self) -> &str {
         self.value.as_ref().map_or("", |v| v.as_str())
     }
@@ -273,7 +271,6 @@ impl<'a> Component<'a> {
     pub fn field(&self, name: &str) -> Option<&Field<'a>> {
         self.fields
             .iter()
-            .chain(self.properties.iter())
             .find(|f| f.name.as_str().eq_ignore_ascii_case(name))
     }
     /// A pin by number.

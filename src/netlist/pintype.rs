@@ -21,6 +21,23 @@ pub enum PinType {
 }
 
 impl PinType {
+    /// Every pin type, in the order of their numbers (`t as u8`): `ALL[t as usize] == t`.
+    pub const ALL: [PinType; 13] = [
+        PinType::Input,
+        PinType::Output,
+        PinType::Bidirectional,
+        PinType::TriState,
+        PinType::Passive,
+        PinType::Unspecified,
+        PinType::Free,
+        PinType::PowerIn,
+        PinType::PowerOut,
+        PinType::OpenCollector,
+        PinType::OpenEmitter,
+        PinType::NoConnect,
+        PinType::Unknown,
+    ];
+
     /// Reads a pin type from either dialect: version "D" (`input output BiDi 3state passive
     /// unspc power_in power_out openCol openEm NotConnected`) and version "E" (`input output
     /// bidirectional tri_state passive unspecified free power_in power_out open_collector

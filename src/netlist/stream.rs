@@ -9,7 +9,6 @@
 //! none of its contents is kept. Nothing recurses, and no input makes it panic.
 
 use rustc_hash::FxHashMap as HashMap;
-use thin_vec::ThinVec;
 
 use super::*;
 use crate::sexpr::{bom_len, errors, unescape, MAX_DEPTH};
@@ -280,20 +279,7 @@ struct NodeAcc<'a> {
 
 fn empty_component<'a>() -> Component<'a> {
     let span = Span { start: 0, end: 0 };
-    Component {
-        reference: Text::empty(span),
-        value: None,
-        footprint: None,
-        datasheet: None,
-        fields: ThinVec::new(),
-        properties: ThinVec::new(),
-        libsource: None,
-        sheetpath: None,
-        tstamps: Texts::default(),
-        span,
-        libpart: None,
-        pins: Box::default(),
-    }
+    Component::new(Text::empty(span), span)
 }
 
 /// The model being built, and the open lists it cares about.
@@ -316,7 +302,6 @@ struct Reader<'a> {
     field_name: Option<Text<'a>>,
     field_value: Option<Text<'a>>,
     libsource: LibSource<'a>,
-    sheetpath: SheetPath<'a>,
     libpart: LibPartAcc<'a>,
     pin_num: Option<Text<'a>>,
     pin_name: Option<Text<'a>>,
@@ -368,10 +353,6 @@ impl<'a> Reader<'a> {
                 lib: None,
                 part: None,
                 description: None,
-            },
-            sheetpath: SheetPath {
-                names: None,
-                tstamps: None,
             },
             libpart: LibPartAcc::default(),
             pin_num: None,
@@ -543,13 +524,7 @@ impl<'a> Reader<'a> {
                 };
                 Role::LibSource
             }
-            (Role::Comp, "sheetpath") => {
-                self.sheetpath = SheetPath {
-                    names: None,
-                    tstamps: None,
-                };
-                Role::SheetPath
-            }
+            (Role::Comp, "sheetpath") => Role::SheetPath,
             (Role::Comp, "tstamp" | "tstamps") => value(self, Slot::Tstamp),
             (Role::CompFields, "field") => self.start_field(Owner::CompField),
             (Role::Field(_), "name") => value(self, Slot::FieldName),
@@ -627,19 +602,14 @@ impl<'a> Reader<'a> {
             }
             Slot::Value => self.comp.value = v,
             Slot::Footprint => self.comp.footprint = v,
-            Slot::Datasheet => self.comp.datasheet = v,
-            Slot::Tstamp => {
-                if let Some(v) = v {
-                    self.comp.tstamps.push(v);
-                }
-            }
+            // read (a list where the value belongs is a diagnostic) but not kept: nothing
+            // reads them after reading
+            Slot::Datasheet | Slot::Tstamp | Slot::SpNames | Slot::SpTstamps => {}
             Slot::FieldName => self.field_name = v,
             Slot::FieldValue => self.field_value = v,
             Slot::LsLib => self.libsource.lib = v,
             Slot::LsPart => self.libsource.part = v,
             Slot::LsDescription => self.libsource.description = v,
-            Slot::SpNames => self.sheetpath.names = v,
-            Slot::SpTstamps => self.sheetpath.tstamps = v,
             Slot::LpLib => self.libpart.lib = v,
             Slot::LpPart => self.libpart.part = v,
             Slot::LpDescription => self.libpart.description = v,
@@ -733,13 +703,7 @@ impl<'a> Reader<'a> {
                 };
                 self.comp.libsource = Some(ls);
             }
-            Role::SheetPath => {
-                let sp = SheetPath {
-                    names: self.sheetpath.names.take(),
-                    tstamps: self.sheetpath.tstamps.take(),
-                };
-                self.comp.sheetpath = Some(sp);
-            }
+            Role::SheetPath => {}
             Role::LibPart => self.end_libpart(span),
             Role::Pin => match self.pin_num.take() {
                 Some(num) => self.libpart.pins.push(LibPin {
@@ -772,8 +736,7 @@ impl<'a> Reader<'a> {
             return;
         }
         comp.span = span;
-        comp.fields = self.fields.drain(..).collect();
-        comp.properties = self.properties.drain(..).collect();
+        comp.set_fields(self.fields.drain(..), self.properties.drain(..));
         self.nl.components.push(comp);
     }
 
@@ -935,6 +898,9 @@ pub(crate) fn link<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag
     name_unnumbered_pins(nl);
     link_pins(text, nl, diags);
     super::ties::join_net_ties(nl);
+    // grown by doubling as they were read: give back what the lists hold no item in
+    nl.components.shrink_to_fit();
+    nl.nets.shrink_to_fit();
 }
 
 /// A symbol drawn with pin names but no pin numbers (simulation and sketch libraries do it)
@@ -1040,8 +1006,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // (component, pin, net, node) once keeps this O(n log n) whatever the shape.
     let mut codes: HashMap<&str, usize> =
         HashMap::with_capacity_and_hasher(nl.nets.len(), Default::default());
-    // (component, net, node)
-    let mut entries: Vec<(u32, u32, u32)> = Vec::with_capacity(nl.nodes.len());
+    // how many nodes name each component (from index 1, for the counting sort below); the
+    // component itself is kept in the node
+    let ncomp = nl.components.len();
+    let mut comp_at = vec![0u32; ncomp + 1];
+    let mut linked = 0usize;
     for (ni, net) in nl.nets.iter_mut().enumerate() {
         if let Some(code) = &net.code {
             if let Some(&first) = codes.get(code.as_str()) {
@@ -1059,14 +1028,14 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 );
             }
         }
-        for (k, node) in nl.nodes[net.range()].iter_mut().enumerate() {
+        for node in &mut nl.nodes[net.range()] {
             let r = node.reference_in(&nl.node_texts);
             let comps = &nl.components;
             match by_ref.find(text_hash(r), |&j| comps[j as usize].reference.as_str() == r) {
                 Some(&ci) => {
-                    let ci = ci as usize;
-                    node.set_component(ci as u32);
-                    entries.push((ci as u32, ni as u32, k as u32));
+                    node.set_component(ci);
+                    comp_at[ci as usize + 1] += 1;
+                    linked += 1;
                 }
                 None => diags.push(
                     Diag::error(
@@ -1105,9 +1074,14 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // Pin numbers as integers: each distinct pin text gets its rank in text order, so
     // sorting by rank sorts exactly as comparing the texts would.
     let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
-    let mut pin_of: Vec<u32> = Vec::with_capacity(entries.len()); // id, then rank, per entry
-    for &(_, ni, k) in &entries {
-        let node = nl.node(ni as usize, k as usize);
+    // per node in the model's order: its pin's id, then rank (unused for a node naming no
+    // component)
+    let mut pin_of: Vec<u32> = Vec::with_capacity(nl.nodes.len());
+    for node in &nl.nodes {
+        if node.component().is_none() {
+            pin_of.push(u32::MAX);
+            continue;
+        }
         let pin = node.pin_in(&nl.node_texts);
         let next = pin_ids.len() as u32;
         let id = match pin_ids.get(pin) {
@@ -1130,31 +1104,32 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         *id = rank_of_id[*id as usize];
     }
     for p in &mut pin_of {
-        *p = rank_of_id[*p as usize];
+        if let Some(&rank) = rank_of_id.get(*p as usize) {
+            *p = rank;
+        }
     }
     drop(rank_of_id);
 
-    // Group the entries by component (a counting sort: linear, and it keeps each
-    // component's entries in net and node order), then sort each group by pin rank.
-    let ncomp = nl.components.len();
-    let mut comp_at = vec![0u32; ncomp + 1];
-    for e in &entries {
-        comp_at[e.0 as usize + 1] += 1;
-    }
+    // Group the linked nodes by component (a counting sort: linear, and it keeps each
+    // component's nodes in net and node order), then sort each group by pin rank.
     for c in 0..ncomp {
         comp_at[c + 1] += comp_at[c];
     }
     let mut fill: Vec<u32> = comp_at[..ncomp].to_vec();
     // (pin rank, net, node)
-    let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); entries.len()];
-    for (e, &rank) in entries.iter().zip(&pin_of) {
-        let at = &mut fill[e.0 as usize];
-        sorted[*at as usize] = (rank, e.1, e.2);
-        *at += 1;
+    let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); linked];
+    for (ni, net) in nl.nets.iter().enumerate() {
+        let base = net.first as usize;
+        for (k, node) in nl.nodes[net.range()].iter().enumerate() {
+            if let Some(ci) = node.component() {
+                let at = &mut fill[ci as usize];
+                sorted[*at as usize] = (pin_of[base + k], ni as u32, k as u32);
+                *at += 1;
+            }
+        }
     }
     drop(fill);
     drop(pin_of);
-    drop(entries);
     for c in 0..ncomp {
         let group = &mut sorted[comp_at[c] as usize..comp_at[c + 1] as usize];
         if group.len() > 1 {
@@ -1196,23 +1171,24 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
         }
     }
-    // drop the repeats and renumber the kept nodes (`new_index` reuses the flat layout)
-    let mut new_index = vec![u32::MAX; total as usize];
-    let mut dropped = false;
-    for (ni, net) in nl.nets.iter().enumerate() {
-        let base = net_at[ni] as usize;
-        let keep = &keep[base..base + net.node_count()];
-        let map = &mut new_index[base..base + net.node_count()];
-        let mut n = 0u32;
-        for (k, &kp) in keep.iter().enumerate() {
-            if kp {
-                map[k] = n;
-                n += 1;
+    // drop the repeats (and the nodes naming no component) and renumber the kept nodes
+    // (`new_index` reuses the flat layout; none is needed when every node is kept)
+    let dropped = keep.contains(&false);
+    let mut new_index = Vec::new();
+    if dropped {
+        new_index = vec![u32::MAX; total as usize];
+        for (ni, net) in nl.nets.iter().enumerate() {
+            let base = net_at[ni] as usize;
+            let keep = &keep[base..base + net.node_count()];
+            let map = &mut new_index[base..base + net.node_count()];
+            let mut n = 0u32;
+            for (k, &kp) in keep.iter().enumerate() {
+                if kp {
+                    map[k] = n;
+                    n += 1;
+                }
             }
         }
-        dropped |= (n as usize) < keep.len();
-    }
-    if dropped {
         // the nets' nodes lie net after net: move each kept node down over the dropped
         let mut w = 0;
         for net in &mut nl.nets {
@@ -1229,20 +1205,28 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     }
     nl.nodes.shrink_to_fit();
     drop(keep);
-    // per component, its kept (pin rank, net, node), still sorted by pin
-    let mut pin_nets: Vec<(u32, u32, u32)> = Vec::with_capacity(sorted.len());
+    // per component, its kept (pin rank, net, node), still sorted by pin: written over
+    // `sorted` in place (an entry moves down or stays), with no second list
     let mut pins_at: Vec<u32> = Vec::with_capacity(ncomp + 1);
+    let mut w = 0;
     for c in 0..ncomp {
-        pins_at.push(pin_nets.len() as u32);
-        for &(rank, ni, k) in &sorted[comp_at[c] as usize..comp_at[c + 1] as usize] {
-            let nk = new_index[(net_at[ni as usize] + k) as usize];
+        pins_at.push(w as u32);
+        for r in comp_at[c] as usize..comp_at[c + 1] as usize {
+            let (rank, ni, k) = sorted[r];
+            let nk = if dropped {
+                new_index[(net_at[ni as usize] + k) as usize]
+            } else {
+                k
+            };
             if nk != u32::MAX {
-                pin_nets.push((rank, ni, nk));
+                sorted[w] = (rank, ni, nk);
+                w += 1;
             }
         }
     }
-    pins_at.push(pin_nets.len() as u32);
-    drop(sorted);
+    pins_at.push(w as u32);
+    sorted.truncate(w);
+    let mut pin_nets = sorted;
     drop(new_index);
     drop(comp_at);
     drop(net_at);
@@ -1280,9 +1264,20 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut used: Vec<bool> = Vec::new();
     nl.number_lib_pins();
     let lib_pin_at = &nl.lib_pin_at;
-    // component pins: the libpart's, then any the nets name that it lacks
-    for (ci, c) in nl.components.iter_mut().enumerate() {
-        let mine = &pin_nets[pins_at[ci] as usize..pins_at[ci + 1] as usize];
+    // component pins: the libpart's, then any the nets name that it lacks. Made from the
+    // last component to the first, so what is left to read of `pin_nets` is always its
+    // start: its end is given back as the pins are made, and the two are never held whole
+    // at once (a step of at least 64 Ki entries: a small board gives nothing back early).
+    let step = (pin_nets.len() / 8).max(1 << 16);
+    let mut kept = pin_nets.len();
+    for (ci, c) in nl.components.iter_mut().enumerate().rev() {
+        let end = pins_at[ci + 1] as usize;
+        if kept - end >= step {
+            pin_nets.truncate(end);
+            pin_nets.shrink_to_fit();
+            kept = end;
+        }
+        let mine = &pin_nets[pins_at[ci] as usize..end];
         let (nets, nodes) = (&nl.nets, &nl.nodes);
         let mut pins: Vec<CompPin> = Vec::new();
         used.clear();
@@ -1297,8 +1292,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 if repeats[pi]
                     && pins.len() < 64
                     && pins.iter().any(|p| {
-                        p.libpin != NONE
-                            && lpins[(p.libpin - first) as usize].num.as_str() == lpin.num.as_str()
+                        p.lib_pin_number().is_some_and(|g| {
+                            lpins[(g - first) as usize].num.as_str() == lpin.num.as_str()
+                        })
                     })
                 {
                     continue; // stacked pins listed twice

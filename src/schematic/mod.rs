@@ -26,12 +26,11 @@ pub mod symbol;
 use std::borrow::Cow;
 
 use rustc_hash::FxHashMap as HashMap;
-use thin_vec::ThinVec;
 
 use crate::diag::Diag;
 use crate::netlist::{
     Component, Field, LibPart, LibPin as ModelLibPin, LibSource, Net, Netlist, Node, NodeTexts,
-    PinType, SheetPath, Text, Texts,
+    PinType, Text,
 };
 use crate::source::{SourceFile, Span};
 
@@ -833,7 +832,6 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
     for &(ui, _) in &order {
-        let u = &project.uses[ui];
         let mut pls: Vec<&Placement<'_, '_>> = placements[ui].iter().collect();
         pls.sort_by(|a, b| natural_cmp(&a.reference, &b.reference));
         for pl in pls {
@@ -886,7 +884,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .filter(|f| !f.0.is_empty())
                 .map(|(v, s)| txt_of(v, *s))
                 .or_else(|| prop_text("Footprint"));
-            let fields = placed
+            let fields: Vec<Field<'_>> = placed
                 .props
                 .iter()
                 .filter(|p| {
@@ -901,36 +899,22 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     span: p.name_span,
                 })
                 .collect();
-            components.push(Component {
-                reference: txt_of(&pl.reference, pl.reference_span),
-                value,
-                footprint,
-                datasheet: prop_text("Datasheet"),
-                fields,
-                // as KiCad 8 and later write it in a netlist: `(property (name "dnp"))`
-                properties: if placed.dnp {
-                    thin_vec::thin_vec![Field {
-                        name: txt("dnp", placed.span),
-                        value: None,
-                        span: placed.span,
-                    }]
-                } else {
-                    ThinVec::new()
-                },
-                libsource: Some(LibSource {
-                    lib: Some(txt_of(&lib, placed.lib_key_span)),
-                    part: Some(txt_of(&part, placed.lib_key_span)),
-                    description: None,
-                }),
-                sheetpath: Some(SheetPath {
-                    names: Some(Text::owned(&u.path, placed.span)),
-                    tstamps: None,
-                }),
-                tstamps: Texts::one(txt_of(&placed.uuid, placed.span)),
+            // as KiCad 8 and later write it in a netlist: `(property (name "dnp"))`
+            let dnp = placed.dnp.then(|| Field {
+                name: txt("dnp", placed.span),
+                value: None,
                 span: placed.span,
-                libpart: None,
-                pins: Box::default(),
             });
+            let mut comp = Component::new(txt_of(&pl.reference, pl.reference_span), placed.span);
+            comp.value = value;
+            comp.footprint = footprint;
+            comp.set_fields(fields.into_iter(), dnp.into_iter());
+            comp.libsource = Some(LibSource {
+                lib: Some(txt_of(&lib, placed.lib_key_span)),
+                part: Some(txt_of(&part, placed.lib_key_span)),
+                description: None,
+            });
+            components.push(comp);
         }
     }
     let root_span = project.sheets[0].span;
