@@ -511,16 +511,28 @@ struct Scratch {
     key: Vec<u64>,
     levels: rustc_hash::FxHashMap<Box<[u64]>, f64>,
     numbers: rustc_hash::FxHashMap<[u64; 7], Arc<Numbers>>,
+    /// The last few distinct numbers made or found, looked at before the table: alike
+    /// nets often come in turn (a board of cells repeats each cell's nets in order).
+    recent: [Option<Arc<Numbers>>; 4],
+    next_recent: usize,
     rare: rustc_hash::FxHashMap<Box<[u64]>, Arc<RareBudget>>,
 }
 
 impl Scratch {
     /// The shared copy of `nums`: the first driver with these numbers makes it.
     fn numbers(&mut self, nums: Numbers) -> Arc<Numbers> {
-        self.numbers
-            .entry(nums.bits())
+        let bits = nums.bits();
+        if let Some(n) = self.recent.iter().flatten().find(|n| n.bits() == bits) {
+            return n.clone();
+        }
+        let n = self
+            .numbers
+            .entry(bits)
             .or_insert_with(|| Arc::new(nums))
-            .clone()
+            .clone();
+        self.recent[self.next_recent] = Some(n.clone());
+        self.next_recent = (self.next_recent + 1) % self.recent.len();
+        n
     }
 
     /// The shared copy of `rare`: the first driver with these rare parts makes it.
@@ -853,10 +865,13 @@ impl<'b> NetBudgetRef<'b> {
     ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
         let nm = &cx.nets[net];
         let t = cx.opts.rail_tolerance.abs();
+        // the net's lists and each driver's levels are read once, not for every load
+        let (drivers, loads): (&'b [super::Driver], &'b [super::Load]) = (&nm.drivers, &nm.loads);
         self.drivers.iter().flat_map(move |db| {
-            let d = &nm.drivers[db.driver()];
-            nm.loads.iter().enumerate().filter_map(move |(li, l)| {
-                if l.at == d.at {
+            let (di, at) = (db.driver(), drivers[db.driver()].at);
+            let (high, low) = (db.high_level(), db.low_level());
+            loads.iter().enumerate().filter_map(move |(li, l)| {
+                if l.at == at {
                     return None;
                 }
                 let ll = l.levels(cx)?;
@@ -867,12 +882,12 @@ impl<'b> NetBudgetRef<'b> {
                 };
                 let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
                 Some(LoadMargin {
-                    driver: db.driver(),
+                    driver: di,
                     load: li,
                     vih,
                     vil,
-                    high_margin: db.high_level().map(|h| h - vih),
-                    low_margin: db.low_level().map(|v| vil - v),
+                    high_margin: high.map(|h| h - vih),
+                    low_margin: low.map(|v| vil - v),
                     thresholds_at: scaled.map(|(_, _, hi, lo)| Box::new((hi, lo))),
                 })
             })
