@@ -968,18 +968,13 @@ impl Budgets {
     /// Every net's budget, in net order (the windows walked alongside, not searched).
     pub fn iter(&self) -> impl Iterator<Item = NetBudgetRef<'_>> + '_ {
         let mut windows = self.windows.iter().peekable();
-        self.starts
-            .windows(2)
-            .enumerate()
-            .map(move |(net, ends)| {
-                let window = windows
-                    .next_if(|(n, _)| *n as usize == net)
-                    .map(|(_, w)| w);
-                NetBudgetRef {
-                    drivers: &self.drivers[ends[0] as usize..ends[1] as usize],
-                    window,
-                }
-            })
+        self.starts.windows(2).enumerate().map(move |(net, ends)| {
+            let window = windows.next_if(|(n, _)| *n as usize == net).map(|(_, w)| w);
+            NetBudgetRef {
+                drivers: &self.drivers[ends[0] as usize..ends[1] as usize],
+                window,
+            }
+        })
     }
 }
 
@@ -1636,11 +1631,19 @@ mod tests {
                 }
                 None => assert!(cx.family(ci).is_none() || !cl.parts[ci].is_logic()),
             }
-            assert_eq!(&cx.roles[ci][..], &cl.parts[ci].roles[..], "{}", c.reference);
+            assert_eq!(
+                &cx.roles[ci][..],
+                &cl.parts[ci].roles[..],
+                "{}",
+                c.reference
+            );
         }
         let all: Vec<_> = cx.supplies.iter().collect();
         assert_eq!(all.len(), parts);
-        assert!(all.iter().enumerate().all(|(ci, s)| std::ptr::eq(*s, &cx.supplies[ci])));
+        assert!(all
+            .iter()
+            .enumerate()
+            .all(|(ci, s)| std::ptr::eq(*s, &cx.supplies[ci])));
     }
 
     /// Drivers whose numbers are the same share one copy of them, and drivers whose numbers

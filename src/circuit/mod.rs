@@ -21,10 +21,10 @@ use crate::classify::classifier::{Classified, PartKind, RoleSource, Rules};
 use crate::classify::family::{Drive, Family, Levels};
 use crate::classify::function::DriveClass;
 use crate::classify::PinRole;
-use in_place::{InPlace1, InPlace2};
-use per_part::{PerPart, PerPartBuilder};
 use crate::netlist::{Connection, Netlist};
 use crate::values::{self, ValueError};
+use in_place::{InPlace1, InPlace2};
+use per_part::{PerPart, PerPartBuilder};
 
 /// Options that change the model.
 #[derive(Debug, Clone)]
@@ -544,7 +544,7 @@ impl NetModel {
 /// are kept in the nets' models from the start, with no table of their own.
 pub struct RailsOf<N>(N);
 
-impl<'x> std::ops::Index<usize> for RailsOf<&'x [NetModel]> {
+impl std::ops::Index<usize> for RailsOf<&[NetModel]> {
     type Output = Option<Rail>;
     #[inline]
     fn index(&self, net: usize) -> &Option<Rail> {
@@ -552,7 +552,7 @@ impl<'x> std::ops::Index<usize> for RailsOf<&'x [NetModel]> {
     }
 }
 
-impl<'x> std::ops::Index<usize> for RailsOf<&'x mut [NetModel]> {
+impl std::ops::Index<usize> for RailsOf<&mut [NetModel]> {
     type Output = Option<Rail>;
     #[inline]
     fn index(&self, net: usize) -> &Option<Rail> {
@@ -560,7 +560,7 @@ impl<'x> std::ops::Index<usize> for RailsOf<&'x mut [NetModel]> {
     }
 }
 
-impl<'x> std::ops::IndexMut<usize> for RailsOf<&'x mut [NetModel]> {
+impl std::ops::IndexMut<usize> for RailsOf<&mut [NetModel]> {
     #[inline]
     fn index_mut(&mut self, net: usize) -> &mut Option<Rail> {
         &mut self.0[net].rail
@@ -1278,17 +1278,15 @@ pub fn build<'n, 'a>(
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
-            if let Some(path) =
-                follow_to_ground(
-                    nl,
-                    cl,
-                    &RailsOf(&nets[..]),
-                    &displays,
-                    &mut readings,
-                    start,
-                    opts.led_vf,
-                )
-            {
+            if let Some(path) = follow_to_ground(
+                nl,
+                cl,
+                &RailsOf(&nets[..]),
+                &displays,
+                &mut readings,
+                start,
+                opts.led_vf,
+            ) {
                 if path.leds.is_empty() {
                     continue;
                 }
