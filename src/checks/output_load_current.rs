@@ -149,7 +149,9 @@ fn dark(
     out: &mut crate::diag::DiagList,
 ) {
     let cx = ctx.cx;
+    let nm = &cx.nets[net];
     for l in op.loads.iter().filter(|l| l.dark) {
+        let l_at = l.at(nm, op.high);
         let parts = load_parts(ctx, net, op, l);
         let (need, reach) = if op.high {
             (
@@ -190,9 +192,9 @@ fn dark(
         );
         out.push(
             Diag::new(INFO.id, sev, message)
-                .at(cx.pin_span(l.at), "LEDs that never light")
+                .at(cx.pin_span(l_at), "LEDs that never light")
                 .on_net(cx.net_name(net))
-                .with_pin_list(super::common::pin_names(cx, [at, l.at]))
+                .with_pin_list(super::common::pin_names(cx, [at, l_at]))
                 .also(cx.pin_span(at), "the output")
                 .with_help(
                     "put fewer LEDs in series (or parallel strings, each with its own resistor), or drive the string from a higher supply through a transistor",
@@ -424,11 +426,11 @@ fn current(
         .on_net(cx.net_name(net))
         .with_pins(
             std::iter::once(cx.pin_name(d.at))
-                .chain(lit.iter().map(|l| cx.pin_name(l.at)))
+                .chain(lit.iter().map(|l| cx.pin_name(l.at(nm, op.high))))
                 .chain(lost.iter().map(|(p, _)| cx.pin_name(*p))),
         );
     for l in &lit {
-        diag = diag.also(cx.pin_span(l.at), "load");
+        diag = diag.also(cx.pin_span(l.at(nm, op.high)), "load");
     }
     out.push(diag.with_help(help));
 }

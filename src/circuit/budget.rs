@@ -4,6 +4,8 @@
 //! them. The checks, the `net` command and the audit charts all read these numbers; none
 //! recomputes them.
 
+use std::sync::Arc;
+
 use super::{Circuit, PinRef};
 use crate::classify::family::{Drive, HighOutput, Technology};
 use crate::classify::PinRole;
@@ -230,32 +232,108 @@ pub struct PullUpHigh {
     pub level: f64,
 }
 
-/// One driver's budget. A board keeps one for every driver of every net, so it holds its
-/// numbers flat (which of them are present in `flags`) and its rarer parts (a pull-up's high
-/// level, the operating points with LEDs and resistors) in one box, allocated only for the
-/// outputs that have one. Its items are not kept: [`DriverBudget::items`] lists them, from
-/// the model, when asked (a board holds two for every input).
+/// One driver's budget. A board keeps one for every driver of every net, so its numbers
+/// (which of them are present in `flags`) are one shared copy for every driver whose numbers
+/// are the same (outputs alike driving loads alike: a board of alike cells has a few), and
+/// its rarer parts (a pull-up's high level, the operating points with LEDs and resistors)
+/// are one shared copy too, made only for the outputs that have them. Its items are not kept: [`DriverBudget::items`] lists
+/// them, from the model, when asked (a board holds two for every input).
 #[derive(Debug, Clone)]
 pub struct DriverBudget {
+    nums: Arc<Numbers>,
+    /// Index into the net's drivers.
+    driver: u32,
+    flags: u8,
+    rare: Option<Arc<RareBudget>>,
+}
+
+/// A driver budget's numbers, shared by the drivers whose numbers are the same (a number
+/// the driver does not have is 0).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+struct Numbers {
     low_total: f64,
     low_rating: f64,
     low_level: f64,
     high_total: f64,
     high_rating: f64,
     high_state_level: f64,
+    /// The level the net reaches in the high state (the driver's, raised by a pull-up).
     high_level: f64,
-    /// Index into the net's drivers.
-    driver: u32,
-    flags: u8,
-    rare: Option<Box<RareBudget>>,
 }
 
-/// The parts of a driver's budget that most outputs lack.
+impl Numbers {
+    /// The numbers as bits: drivers whose numbers have the same bits share one copy.
+    fn bits(&self) -> [u64; 7] {
+        [
+            self.low_total.to_bits(),
+            self.low_rating.to_bits(),
+            self.low_level.to_bits(),
+            self.high_total.to_bits(),
+            self.high_rating.to_bits(),
+            self.high_state_level.to_bits(),
+            self.high_level.to_bits(),
+        ]
+    }
+}
+
+/// The parts of a driver's budget that most outputs lack. The operating points are a list
+/// of their own (each says which state it is, `OperatingPoint::high`), holding only those
+/// the output has: a pulled-up output has a low one and no high one. Drivers whose rare
+/// parts are the same share one copy (outputs alike with pull-ups alike).
 #[derive(Debug, Clone, Default)]
 struct RareBudget {
     pull_up: Option<PullUpHigh>,
-    drive_high: Option<OperatingPoint>,
-    drive_low: Option<OperatingPoint>,
+    points: thin_vec::ThinVec<OperatingPoint>,
+}
+
+impl RareBudget {
+    /// Every number and index it holds, as bits, onto `key`: two with the same key are the
+    /// same.
+    fn key(&self, key: &mut Vec<u64>) {
+        key.clear();
+        match &self.pull_up {
+            Some(p) => key.extend([
+                1,
+                p.rail_net as u64,
+                p.rail_volts.to_bits(),
+                p.ohms.to_bits(),
+                p.current.to_bits(),
+                p.level.to_bits(),
+            ]),
+            None => key.push(0),
+        }
+        for op in &self.points {
+            key.extend([
+                u64::from(op.high),
+                op.rail.to_bits(),
+                op.row.0.to_bits(),
+                op.row.1.to_bits(),
+                op.r_out.to_bits(),
+                op.level.to_bits(),
+                op.total.to_bits(),
+                op.logic.to_bits(),
+                op.rating.to_bits(),
+                op.reach.to_bits(),
+                op.loads.len() as u64,
+            ]);
+            for l in &op.loads {
+                let (led, i) = match l.kind {
+                    LoadKind::Led(i) => (1, i),
+                    LoadKind::Pull(i) => (0, i),
+                };
+                key.extend([
+                    led,
+                    i as u64,
+                    l.amps.to_bits(),
+                    l.vf.to_bits(),
+                    l.ohms.to_bits(),
+                    l.rail_volts.to_bits(),
+                    u64::from(l.dark),
+                    l.open_common.map_or(0, |c| c as u64 + 1),
+                ]);
+            }
+        }
+    }
 }
 
 /// [`DriverBudget::flags`]: which of its numbers are present.
@@ -267,15 +345,9 @@ const HAS_HIGH_LEVEL: u8 = 16;
 
 impl DriverBudget {
     /// A driver with nothing to budget (no family figures, or an open-emitter output).
-    fn none(driver: usize) -> Self {
+    fn none(driver: usize, solved: &mut Scratch) -> Self {
         DriverBudget {
-            low_total: 0.0,
-            low_rating: 0.0,
-            low_level: 0.0,
-            high_total: 0.0,
-            high_rating: 0.0,
-            high_state_level: 0.0,
-            high_level: 0.0,
+            nums: solved.numbers(Numbers::default()),
             driver: index(driver),
             flags: 0,
             rare: None,
@@ -290,18 +362,18 @@ impl DriverBudget {
     /// The low state (this driver low, every other driver high or off).
     pub fn low(&self) -> Option<StateBudget> {
         (self.flags & HAS_LOW != 0).then(|| StateBudget {
-            total: self.low_total,
-            rating: self.low_rating,
-            level: (self.flags & HAS_LOW_LEVEL != 0).then_some(self.low_level),
+            total: self.nums.low_total,
+            rating: self.nums.low_rating,
+            level: (self.flags & HAS_LOW_LEVEL != 0).then_some(self.nums.low_level),
         })
     }
 
     /// The high state; `None` for an output that does not drive high (an open collector).
     pub fn high(&self) -> Option<StateBudget> {
         (self.flags & HAS_HIGH != 0).then(|| StateBudget {
-            total: self.high_total,
-            rating: self.high_rating,
-            level: (self.flags & HAS_HIGH_STATE_LEVEL != 0).then_some(self.high_state_level),
+            total: self.nums.high_total,
+            rating: self.nums.high_rating,
+            level: (self.flags & HAS_HIGH_STATE_LEVEL != 0).then_some(self.nums.high_state_level),
         })
     }
 
@@ -314,7 +386,7 @@ impl DriverBudget {
     /// The level the net reaches in the high state: the driver's VOH, raised by a pull-up;
     /// for an open collector, the pull-up's level. `None` when nothing guarantees it.
     pub fn high_level(&self) -> Option<f64> {
-        (self.flags & HAS_HIGH_LEVEL != 0).then_some(self.high_level)
+        (self.flags & HAS_HIGH_LEVEL != 0).then_some(self.nums.high_level)
     }
 
     /// The pull-up's effect on the high level, when the net has a pull-up.
@@ -325,13 +397,13 @@ impl DriverBudget {
     /// The output's operating point with the LEDs and resistors it lights or holds in its
     /// high state (LEDs to ground, pull-downs); `None` when there are none.
     pub fn drive_high(&self) -> Option<&OperatingPoint> {
-        self.rare.as_ref()?.drive_high.as_ref()
+        self.rare.as_ref()?.points.iter().find(|p| p.high)
     }
 
     /// The output's operating point with the LEDs and resistors it sinks or holds in its low
     /// state (LEDs from a rail, pull-ups); `None` when there are none.
     pub fn drive_low(&self) -> Option<&OperatingPoint> {
-        self.rare.as_ref()?.drive_low.as_ref()
+        self.rare.as_ref()?.points.iter().find(|p| !p.high)
     }
 
     /// The items of the low (`low`) or high state of this driver of net `net`, in the order
@@ -367,11 +439,12 @@ pub enum LoadKind {
     Pull(usize),
 }
 
-/// One resistive load at the operating point.
+/// One resistive load at the operating point. It holds what it is (`kind`) and its numbers,
+/// not its pin ([`ResistiveLoad::at`] reads it from the net's model): outputs alike with
+/// loads alike then have equal operating points, which their budgets share.
 #[derive(Debug, Clone)]
 pub struct ResistiveLoad {
     pub kind: LoadKind,
-    pub at: PinRef,
     /// Current through it at the operating point, amperes (0 when it cannot conduct).
     pub amps: f64,
     /// Its LEDs' forward voltages added (0 for a resistor).
@@ -383,6 +456,19 @@ pub struct ResistiveLoad {
     pub dark: bool,
     /// The path runs into a display whose common is open (`LedPath::open_common`).
     pub open_common: Option<usize>,
+}
+
+impl ResistiveLoad {
+    /// The load's first pin on net `nm` (the LED path's or the pull resistor's) in the
+    /// operating point of the high (`high`) or low state: an LED load is one of the net's
+    /// LED paths in the high state and one of its sink paths in the low state.
+    pub fn at(&self, nm: &super::NetModel, high: bool) -> PinRef {
+        match self.kind {
+            LoadKind::Led(i) if high => nm.led_paths()[i].at,
+            LoadKind::Led(i) => nm.sink_paths()[i].at,
+            LoadKind::Pull(i) => nm.pulls()[i].at,
+        }
+    }
 }
 
 /// An output's operating point with resistive loads: the output is taken as a source of its
@@ -417,12 +503,49 @@ pub struct OperatingPoint {
 /// What a board's budgets reuse from net to net: a buffer for a state's items while its total
 /// is added up, and the operating points' levels solved so far, by the numbers each follows
 /// from (the output's state, supply, resistance and logic current, and each resistive load's
-/// forward voltage, resistance and rail, as bits).
+/// forward voltage, resistance and rail, as bits), and one copy of each distinct set of a
+/// driver budget's numbers.
 #[derive(Default)]
 struct Scratch {
     items: Vec<Item>,
     key: Vec<u64>,
     levels: rustc_hash::FxHashMap<Box<[u64]>, f64>,
+    numbers: rustc_hash::FxHashMap<[u64; 7], Arc<Numbers>>,
+    /// The last few distinct numbers made or found, looked at before the table: alike
+    /// nets often come in turn (a board of cells repeats each cell's nets in order).
+    recent: [Option<Arc<Numbers>>; 4],
+    next_recent: usize,
+    rare: rustc_hash::FxHashMap<Box<[u64]>, Arc<RareBudget>>,
+}
+
+impl Scratch {
+    /// The shared copy of `nums`: the first driver with these numbers makes it.
+    fn numbers(&mut self, nums: Numbers) -> Arc<Numbers> {
+        let bits = nums.bits();
+        if let Some(n) = self.recent.iter().flatten().find(|n| n.bits() == bits) {
+            return n.clone();
+        }
+        let n = self
+            .numbers
+            .entry(bits)
+            .or_insert_with(|| Arc::new(nums))
+            .clone();
+        self.recent[self.next_recent] = Some(n.clone());
+        self.next_recent = (self.next_recent + 1) % self.recent.len();
+        n
+    }
+
+    /// The shared copy of `rare`: the first driver with these rare parts makes it.
+    fn rare(&mut self, rare: RareBudget) -> Arc<RareBudget> {
+        rare.key(&mut self.key);
+        if let Some(r) = self.rare.get(self.key.as_slice()) {
+            return r.clone();
+        }
+        let r = Arc::new(rare);
+        self.rare
+            .insert(self.key.clone().into_boxed_slice(), r.clone());
+        r
+    }
 }
 
 /// The voltage at which `f` (decreasing in v) crosses zero in [lo, hi], by bisection.
@@ -454,7 +577,6 @@ fn crossing(lo: f64, hi: f64, f: impl Fn(f64) -> f64) -> f64 {
 /// in the high state, below it in the low state) through `ohms`.
 struct Knee {
     kind: LoadKind,
-    at: PinRef,
     vf: f64,
     ohms: f64,
     rail_volts: f64,
@@ -470,7 +592,6 @@ fn knees(
 ) -> Vec<Knee> {
     let leds = paths.iter().enumerate().map(|(i, p)| Knee {
         kind: LoadKind::Led(i),
-        at: p.at,
         vf: p.vf,
         ohms: p.ohms,
         rail_volts: p.rail_volts,
@@ -482,7 +603,6 @@ fn knees(
         .filter(|(_, p)| keep(p))
         .map(|(i, p)| Knee {
             kind: LoadKind::Pull(i),
-            at: p.at,
             vf: 0.0,
             ohms: p.ohms,
             rail_volts: p.rail_volts,
@@ -566,7 +686,6 @@ fn operating_point(
                 };
             ResistiveLoad {
                 kind: k.kind,
-                at: k.at,
                 amps: conduct(k, level),
                 vf: k.vf,
                 ohms: k.ohms,
@@ -746,10 +865,13 @@ impl<'b> NetBudgetRef<'b> {
     ) -> impl Iterator<Item = LoadMargin> + use<'b, 'n, 'a> {
         let nm = &cx.nets[net];
         let t = cx.opts.rail_tolerance.abs();
+        // the net's lists and each driver's levels are read once, not for every load
+        let (drivers, loads): (&'b [super::Driver], &'b [super::Load]) = (&nm.drivers, &nm.loads);
         self.drivers.iter().flat_map(move |db| {
-            let d = &nm.drivers[db.driver()];
-            nm.loads.iter().enumerate().filter_map(move |(li, l)| {
-                if l.at == d.at {
+            let (di, at) = (db.driver(), drivers[db.driver()].at);
+            let (high, low) = (db.high_level(), db.low_level());
+            loads.iter().enumerate().filter_map(move |(li, l)| {
+                if l.at == at {
                     return None;
                 }
                 let ll = l.levels(cx)?;
@@ -760,12 +882,12 @@ impl<'b> NetBudgetRef<'b> {
                 };
                 let (vih, vil) = scaled.map_or((ll.vih_min, ll.vil_max), |(h, l, _, _)| (h, l));
                 Some(LoadMargin {
-                    driver: db.driver(),
+                    driver: di,
                     load: li,
                     vih,
                     vil,
-                    high_margin: db.high_level().map(|h| h - vih),
-                    low_margin: db.low_level().map(|v| vil - v),
+                    high_margin: high.map(|h| h - vih),
+                    low_margin: low.map(|v| vil - v),
                     thresholds_at: scaled.map(|(_, _, hi, lo)| Box::new((hi, lo))),
                 })
             })
@@ -774,49 +896,85 @@ impl<'b> NetBudgetRef<'b> {
 }
 
 /// Every net's budget, worked out once for the board ([`Budgets::build`], called by the
-/// analysis only) and read by net ([`Budgets::net`], [`Budgets::iter`]). Each net's drivers'
-/// budgets are one allocation at its length (none for a net with no driver): small blocks
-/// that reuse the room the reader freed, where one list for the board would need a block
-/// of its own.
+/// analysis only) and read by net ([`Budgets::net`], [`Budgets::iter`]). Every net's drivers'
+/// budgets are held in one list, net after net, each net's found by where it starts (one
+/// `u32` a net, where a list of its own would cost a pointer, a length and a block); the
+/// open-collector windows, which few nets have, are a list of their own by net.
 #[derive(Debug, Clone, Default)]
 pub struct Budgets {
-    nets: Vec<NetBudget>,
+    /// Every net's drivers' budgets, net after net, each net's in the order of its drivers.
+    drivers: Vec<DriverBudget>,
+    /// Where each net's drivers' budgets start in `drivers`, and one more: where they end.
+    starts: Vec<u32>,
+    /// The open-collector windows, by net, in net order.
+    windows: Vec<(u32, PullUpWindow)>,
 }
 
 impl Budgets {
     /// Every net's budget, with one buffer and one table of solved levels for the board.
     pub fn build(cx: &Circuit<'_, '_>) -> Budgets {
         let mut scratch = Scratch::default();
-        let nets = (0..cx.nets.len())
-            .map(|net| {
-                let mut drivers = Vec::with_capacity(cx.nets[net].drivers.len());
-                let window = budget_into(cx, net, &mut scratch, &mut drivers);
-                NetBudget {
-                    drivers: drivers.into_boxed_slice(),
-                    window: window.map(Box::new),
-                }
-            })
-            .collect();
-        Budgets { nets }
+        // one budget for each driver of each net: the list is allocated once at its length
+        let total: usize = cx.nets.iter().map(|nm| nm.drivers.len()).sum();
+        let mut drivers = Vec::with_capacity(total);
+        let mut starts = Vec::with_capacity(cx.nets.len() + 1);
+        let mut windows = Vec::new();
+        for net in 0..cx.nets.len() {
+            starts.push(index(drivers.len()));
+            if let Some(w) = budget_into(cx, net, &mut scratch, &mut drivers) {
+                windows.push((index(net), w));
+            }
+        }
+        starts.push(index(drivers.len()));
+        windows.shrink_to_fit();
+        Budgets {
+            drivers,
+            starts,
+            windows,
+        }
     }
 
     /// How many nets the store holds.
     pub fn len(&self) -> usize {
-        self.nets.len()
+        self.starts.len().saturating_sub(1)
     }
 
     pub fn is_empty(&self) -> bool {
-        self.nets.is_empty()
+        self.len() == 0
+    }
+
+    /// Net `net`'s drivers' budgets.
+    #[inline]
+    fn drivers_of(&self, net: usize) -> &[DriverBudget] {
+        &self.drivers[self.starts[net] as usize..self.starts[net + 1] as usize]
     }
 
     /// Net `net`'s budget.
+    #[inline]
     pub fn net(&self, net: usize) -> NetBudgetRef<'_> {
-        self.nets[net].as_ref()
+        let drivers = self.drivers_of(net);
+        // only a net with drivers has a window
+        let window = if drivers.is_empty() {
+            None
+        } else {
+            self.windows
+                .binary_search_by_key(&index(net), |(n, _)| *n)
+                .ok()
+                .map(|i| &self.windows[i].1)
+        };
+        NetBudgetRef { drivers, window }
     }
 
-    /// Every net's budget, in net order.
+    /// Every net's budget, in net order (the windows walked alongside, not searched).
     pub fn iter(&self) -> impl Iterator<Item = NetBudgetRef<'_>> + '_ {
-        (0..self.len()).map(|n| self.net(n))
+        let mut windows = self.windows.iter().peekable();
+        self.starts.windows(2).enumerate().map(move |(net, ends)| {
+            let window = windows.next_if(|(n, _)| *n as usize == net).map(|(_, w)| w);
+            NetBudgetRef {
+                drivers: &self.drivers[ends[0] as usize..ends[1] as usize],
+                window,
+            }
+        })
     }
 }
 
@@ -1062,7 +1220,7 @@ fn budget_into(
             .map(|l| &**l)
             .filter(|_| d.role != PinRole::OpenEmitter);
         let Some(lv) = levels else {
-            drivers.push(DriverBudget::none(di));
+            drivers.push(DriverBudget::none(di, scratch));
             continue;
         };
         let mut flags = HAS_LOW;
@@ -1093,14 +1251,13 @@ fn budget_into(
         if d.role == PinRole::OpenCollector {
             load_high += lv.oc_leakage.abs();
         }
-        let mut high_level = None;
         let (mut high_total, mut high_state_level) = (0.0, None);
         if drives_high {
             flags |= HAS_HIGH;
             high_total = scratch.items.iter().map(|i| i.amps).sum();
             high_state_level = lv.voh_at(-high_total);
-            high_level = high_state_level;
         }
+        let mut high_level = high_state_level;
         // a pull-up raises (or, for an open collector, makes) the high level
         let pull_up = parallel(pulls.iter().filter(|p| p.up).map(|p| p.ohms)).map(|r| {
             let p = pulls.iter().find(|p| p.up).expect("a pull-up");
@@ -1137,13 +1294,12 @@ fn budget_into(
             flags |= HAS_HIGH_LEVEL;
         }
         let rare = (pull_up.is_some() || drive_high.is_some() || drive_low.is_some()).then(|| {
-            Box::new(RareBudget {
+            scratch.rare(RareBudget {
                 pull_up,
-                drive_high,
-                drive_low,
+                points: drive_high.into_iter().chain(drive_low).collect(),
             })
         });
-        drivers.push(DriverBudget {
+        let nums = scratch.numbers(Numbers {
             low_total,
             low_rating: lv.iol_max.abs(),
             low_level: low_level.unwrap_or(0.0),
@@ -1151,6 +1307,9 @@ fn budget_into(
             high_rating: if drives_high { lv.ioh_max.abs() } else { 0.0 },
             high_state_level: high_state_level.unwrap_or(0.0),
             high_level: high_level.unwrap_or(0.0),
+        });
+        drivers.push(DriverBudget {
+            nums,
             driver: index(di),
             flags,
             rare,
@@ -1367,12 +1526,35 @@ mod tests {
             let stored = all.net(n);
             assert_eq!(stored.drivers.len(), b.drivers.len(), "net {n}");
             assert_eq!(stored.window.is_some(), b.window.is_some(), "net {n}");
-            for (x, y) in stored.drivers.iter().zip(b.drivers.iter()) {
+            for (di, (x, y)) in stored.drivers.iter().zip(b.drivers.iter()).enumerate() {
+                // the store's list holds each net's budgets in the order of its drivers
+                assert_eq!(x.driver(), di, "net {n}");
                 assert_eq!(x.driver(), y.driver());
-                let bits = |s: Option<StateBudget>| s.map(|s| s.total.to_bits());
+                let bits = |s: Option<StateBudget>| {
+                    s.map(|s| {
+                        (
+                            s.total.to_bits(),
+                            s.rating.to_bits(),
+                            s.level.map(f64::to_bits),
+                        )
+                    })
+                };
                 assert_eq!(bits(x.low()), bits(y.low()));
                 assert_eq!(bits(x.high()), bits(y.high()));
+                let level = |v: Option<f64>| v.map(f64::to_bits);
+                assert_eq!(level(x.high_level()), level(y.high_level()), "net {n}");
+                let point = |p: Option<&OperatingPoint>| p.map(|p| (p.high, p.level.to_bits()));
+                assert_eq!(point(x.drive_high()), point(y.drive_high()), "net {n}");
+                assert_eq!(point(x.drive_low()), point(y.drive_low()), "net {n}");
+                // an operating point is read back as the state it was solved for
+                assert!(x.drive_high().is_none_or(|p| p.high), "net {n}");
+                assert!(x.drive_low().is_none_or(|p| !p.high), "net {n}");
             }
+            assert_eq!(
+                stored.window.map(|w| (w.r_min.to_bits(), w.driver)),
+                b.window.as_deref().map(|w| (w.r_min.to_bits(), w.driver)),
+                "net {n}"
+            );
             for db in b.drivers.iter() {
                 for (low, sb) in [(true, db.low()), (false, db.high())] {
                     let items = db.items(&cx, n, low);
@@ -1403,6 +1585,102 @@ mod tests {
         let bus = net_budget(&cx, nl.net_by_name("/BUS").expect("net"));
         assert!(bus.drivers.iter().all(|d| d.high().is_some()));
         assert!(bus.drivers[0].pull_up().is_some() && oc.drivers[0].pull_up().is_none());
+        // the level the net reaches high is the higher of the driver's and the pull-up's
+        // (an open collector's, the pull-up's alone)
+        for db in bus.drivers.iter().chain(oc.drivers.iter()) {
+            let state = db.high().and_then(|h| h.level);
+            let pulled = db.pull_up().map(|p| p.level);
+            let want = match (state, pulled) {
+                (Some(h), Some(p)) => Some(h.max(p)),
+                (h, p) => h.or(p),
+            };
+            assert_eq!(db.high_level(), want);
+        }
+        let oc_level = oc.drivers[0].high_level();
+        assert!(oc_level.is_none(), "/OC has no pull-up: {oc_level:?}");
+    }
+
+    /// The per-part tables keep each distinct entry once and give every part its own: each
+    /// logic part's supply is on the net of its first supply pin (read here from the netlist
+    /// and the classifier's roles), and its roles are the classifier's where the wiring
+    /// changes none.
+    #[test]
+    fn per_part_tables_give_every_part_its_own_entry() {
+        test_board!(nl, cx);
+        let parts = nl.components.len();
+        assert_eq!(cx.supplies.len(), parts);
+        assert_eq!(cx.roles.len(), parts);
+        assert_eq!(cx.part_logic.len(), parts);
+        // U1 and U2 are alike on the same rails, as are the five resistors and the LED's
+        // none: fewer entries than parts
+        assert!(cx.supplies.distinct() < parts, "{}", cx.supplies.distinct());
+        assert!(cx.roles.distinct() < parts, "{}", cx.roles.distinct());
+        let cl = cx.cl;
+        for (ci, c) in nl.components.iter().enumerate() {
+            let first = |role: PinRole| {
+                c.pins
+                    .iter()
+                    .enumerate()
+                    .find(|(pi, p)| cl.parts[ci].roles[*pi] == role && p.connection.net().is_some())
+                    .and_then(|(_, p)| p.connection.net())
+            };
+            match &cx.supplies[ci] {
+                Some(s) => {
+                    assert_eq!(s.supply_net(), first(PinRole::Supply), "{}", c.reference);
+                    assert_eq!(s.ground_net(), first(PinRole::Ground), "{}", c.reference);
+                }
+                None => assert!(cx.family(ci).is_none() || !cl.parts[ci].is_logic()),
+            }
+            assert_eq!(
+                &cx.roles[ci][..],
+                &cl.parts[ci].roles[..],
+                "{}",
+                c.reference
+            );
+        }
+        let all: Vec<_> = cx.supplies.iter().collect();
+        assert_eq!(all.len(), parts);
+        assert!(all
+            .iter()
+            .enumerate()
+            .all(|(ci, s)| std::ptr::eq(*s, &cx.supplies[ci])));
+    }
+
+    /// Drivers whose numbers are the same share one copy of them, and drivers whose numbers
+    /// differ do not: every driver reads back its own.
+    #[test]
+    fn drivers_with_the_same_numbers_share_one_copy() {
+        test_board!(nl, cx);
+        let all = Budgets::build(&cx);
+        let budgets: Vec<&DriverBudget> = all.iter().flat_map(|b| b.drivers.iter()).collect();
+        assert!(budgets.len() >= 4, "{}", budgets.len());
+        let mut shared = 0;
+        for a in &budgets {
+            for b in &budgets {
+                let same = a.nums.bits() == b.nums.bits();
+                assert_eq!(Arc::ptr_eq(&a.nums, &b.nums), same);
+                shared += usize::from(same && !std::ptr::eq(*a, *b));
+            }
+        }
+        // the two /OC open collectors sink the same loads: one copy between them
+        assert!(shared > 0, "no two drivers share their numbers");
+        // the same for the rare parts (pull-ups, operating points)
+        let mut rare = 0;
+        let (mut ka, mut kb) = (Vec::new(), Vec::new());
+        for a in &budgets {
+            for b in &budgets {
+                let (Some(ra), Some(rb)) = (&a.rare, &b.rare) else {
+                    continue;
+                };
+                ra.key(&mut ka);
+                rb.key(&mut kb);
+                assert_eq!(Arc::ptr_eq(ra, rb), ka == kb);
+                rare += 1;
+            }
+        }
+        assert!(rare > 0, "the test board has pull-ups");
+        let oc = all.net(nl.net_by_name("/OC").expect("net"));
+        assert!(Arc::ptr_eq(&oc.drivers[0].nums, &oc.drivers[1].nums));
     }
 
     /// Margins are worked out when asked: each driver against each load but its own pin, by

@@ -126,9 +126,11 @@ fn rail_high(r: &super::Rail) -> bool {
 pub fn wired_roles(
     nl: &crate::netlist::Netlist<'_>,
     cl: &crate::classify::classifier::Classified,
-    rail: &[Option<super::Rail>],
-) -> Vec<Arc<[PinRole]>> {
-    let mut out = Vec::with_capacity(nl.components.len());
+    rail: &super::RailsOf<&[super::NetModel]>,
+) -> super::PerPart<Arc<[PinRole]>> {
+    // a part's list is told by where it is: parts that share the classifier's list share
+    // one entry
+    let mut out = super::PerPartBuilder::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         // a copy only once a role changes
@@ -165,7 +167,8 @@ pub fn wired_roles(
                     PinRole::Input
                 };
         }
-        out.push(changed.map_or_else(|| part.roles.clone(), Arc::from));
+        let roles: Arc<[PinRole]> = changed.map_or_else(|| part.roles.clone(), Arc::from);
+        out.push(Arc::as_ptr(&roles) as *const PinRole as usize, || roles);
     }
-    out
+    out.finish()
 }

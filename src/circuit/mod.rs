@@ -9,11 +9,12 @@
 pub mod budget;
 pub mod display;
 pub mod enables;
+pub mod in_place;
+pub mod per_part;
 pub mod rails;
 
 use std::sync::Arc;
 
-use smallvec::SmallVec;
 use thin_vec::ThinVec;
 
 use crate::classify::classifier::{Classified, PartKind, RoleSource, Rules};
@@ -22,6 +23,8 @@ use crate::classify::function::DriveClass;
 use crate::classify::PinRole;
 use crate::netlist::{Connection, Netlist};
 use crate::values::{self, ValueError};
+use in_place::{InPlace1, InPlace2};
+use per_part::{PerPart, PerPartBuilder};
 
 /// Options that change the model.
 #[derive(Debug, Clone)]
@@ -319,8 +322,8 @@ pub struct LedPath {
     pub open_common: Option<usize>,
 }
 
-/// Everything on one net. Its drivers and loads are `SmallVec`s holding the first one or two
-/// in place (most nets have one driver and a load or two); its other lists are `ThinVec`s
+/// Everything on one net. Its drivers and loads hold the first one or two in place
+/// ([`in_place`]: most nets have one driver and a load or two); its other lists are `ThinVec`s
 /// (one pointer, no allocation while empty); each is trimmed to its length once the model is
 /// built. The lists most nets leave empty (pull
 /// resistors, series and switch links, LED paths ...) are kept apart in one boxed
@@ -330,9 +333,9 @@ pub struct LedPath {
 pub struct NetModel {
     pub rail: Option<Rail>,
     /// Its outputs (and bidirectional pins): the first in place.
-    pub drivers: SmallVec<[Driver; 1]>,
+    pub drivers: InPlace1<Driver>,
     /// Its logic inputs (and bidirectional pins): the first two in place.
-    pub loads: SmallVec<[Load; 2]>,
+    pub loads: InPlace2<Load>,
     /// Connector pins: the net leaves the board.
     pub connectors: ThinVec<PinRef>,
     /// Capacitors, diodes and other passives not counted above.
@@ -536,18 +539,49 @@ impl NetModel {
     }
 }
 
+/// Each net's rail as its model holds it (`nets[i].rail`), read by net index (`rail[i]`)
+/// while the model is built, and written while rails are inferred from their pins: the rails
+/// are kept in the nets' models from the start, with no table of their own.
+pub struct RailsOf<N>(N);
+
+impl std::ops::Index<usize> for RailsOf<&[NetModel]> {
+    type Output = Option<Rail>;
+    #[inline]
+    fn index(&self, net: usize) -> &Option<Rail> {
+        &self.0[net].rail
+    }
+}
+
+impl std::ops::Index<usize> for RailsOf<&mut [NetModel]> {
+    type Output = Option<Rail>;
+    #[inline]
+    fn index(&self, net: usize) -> &Option<Rail> {
+        &self.0[net].rail
+    }
+}
+
+impl std::ops::IndexMut<usize> for RailsOf<&mut [NetModel]> {
+    #[inline]
+    fn index_mut(&mut self, net: usize) -> &mut Option<Rail> {
+        &mut self.0[net].rail
+    }
+}
+
 /// The classified circuit.
 pub struct Circuit<'n, 'a> {
     pub nl: &'n Netlist<'a>,
     pub cl: &'n Classified,
     pub rules: &'n Rules,
     pub opts: ModelOptions,
-    pub supplies: Vec<Option<PartSupply>>,
+    /// Each part's supply, read by part (`supplies[comp]`); parts on the same rails with the
+    /// same supply share one entry ([`PerPart`]).
+    pub supplies: PerPart<Option<PartSupply>>,
     pub nets: Vec<NetModel>,
     /// Each pin's role once the wiring is known: a transceiver whose direction pin is tied to
     /// a rail has inputs on one side and outputs on the other.
-    /// Shared with the classification for a part whose wiring changes none of its roles.
-    pub roles: Vec<Arc<[PinRole]>>,
+    /// Shared with the classification for a part whose wiring changes none of its roles, and
+    /// read by part (`roles[comp]`) from one entry per distinct list ([`PerPart`]).
+    pub roles: PerPart<Arc<[PinRole]>>,
     /// Rails the model inferred (by their pins, or their voltage), for the info finding.
     pub rail_notes: Vec<RailNote>,
     /// LED displays: their commons, segments and whether the commons reach anything.
@@ -822,6 +856,13 @@ fn pin_slot(kind: PartKind, pull_part: bool, role: PinRole) -> Slot {
     }
 }
 
+/// Counts one more pin for a list: a byte, which stops at 255 (a longer list grows from
+/// there, and is trimmed once built).
+#[inline]
+fn count(n: &mut u8) {
+    *n = n.saturating_add(1);
+}
+
 /// An index as the model's compact lists hold it.
 fn small(i: usize) -> u32 {
     u32::try_from(i).expect("fewer than 2^32 nets and parts")
@@ -850,8 +891,12 @@ pub fn build<'n, 'a>(
 ) -> Circuit<'n, 'a> {
     let n_nets = nl.nets.len();
     let families = part_families(cl, rules);
+    // every net's model is made first, empty, and holds the net's rail from the start: the
+    // model keeps no table by net beside it while it is built (a table freed once the model
+    // stands leaves a hole the rest of the board's data does not fill)
+    let mut nets: Vec<NetModel> = (0..n_nets).map(|_| NetModel::default()).collect();
     // rails: user declarations, names, power outputs, then the pins on them
-    let mut rail: Vec<Option<Rail>> = vec![None; n_nets];
+    let mut rail = RailsOf(&mut nets[..]);
     for (i, net) in nl.nets.iter().enumerate() {
         if let Some((_, v)) = opts.rails.iter().find(|(n, _)| {
             n == net.name.as_str()
@@ -899,13 +944,15 @@ pub fn build<'n, 'a>(
         }
     }
     let mut rail_notes = rails_by_usage(nl, cl, &families, &mut rail);
+    let rail = RailsOf(&nets[..]);
 
     // supplies
-    let mut supplies = Vec::with_capacity(nl.components.len());
+    // parts alike on the same rails share one entry, told by its numbers
+    let mut supplies = PerPartBuilder::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let Some(fam) = families[ci].filter(|_| part.is_logic()) else {
-            supplies.push(None);
+            supplies.push(None, || None);
             continue;
         };
         let mut supply_net = None;
@@ -931,13 +978,16 @@ pub fn build<'n, 'a>(
             Some(v) => (v, true),
             None => (fam.supply_nominal, false),
         };
-        supplies.push(Some(PartSupply {
+        let supply = PartSupply {
             vcc,
             known,
             supply_net: supply_net.unwrap_or(NO_NET),
             ground_net: ground_net.unwrap_or(NO_NET),
-        }));
+        };
+        let key = (vcc.to_bits(), known, supply.supply_net, supply.ground_net);
+        supplies.push(Some(key), || Some(supply));
     }
+    let supplies = supplies.finish();
 
     // roles once the wiring is known
     let roles = enables::wired_roles(nl, cl, &rail);
@@ -973,7 +1023,8 @@ pub fn build<'n, 'a>(
     let mut family_ids: rustc_hash::FxHashMap<&str, FamilyId> = Default::default();
 
     // each pin's place in its net's lists, counted first so that every list is allocated
-    // once at its length (a list grown by pushes holds room for four)
+    // once at its length (a list grown by pushes holds room for four); a count is a byte
+    // (a board has as many nets as pins), and a list of 255 or more grows from there
     let connector_family = |ci: usize| -> Option<&'n Family> {
         let reference = nl.components[ci].reference.as_str();
         let (_, fam) = opts
@@ -982,7 +1033,7 @@ pub fn build<'n, 'a>(
             .find(|(r, _)| r == reference)?;
         rules.families.get(fam)
     };
-    let mut counts: Vec<[u32; SLOT_LISTS]> = vec![[0; SLOT_LISTS]; n_nets];
+    let mut counts: Vec<[u8; SLOT_LISTS]> = vec![[0; SLOT_LISTS]; n_nets];
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let pull_part = part.kind == PartKind::Other && is_pull_part(c);
@@ -994,32 +1045,27 @@ pub fn build<'n, 'a>(
             let n = &mut counts[net as usize];
             match pin_slot(part.kind, pull_part, roles[ci][pi]) {
                 Slot::Connector => {
-                    n[Slot::Connector as usize] += 1;
-                    n[Slot::Driver as usize] += u32::from(fed);
+                    count(&mut n[Slot::Connector as usize]);
+                    if fed {
+                        count(&mut n[Slot::Driver as usize]);
+                    }
                 }
                 Slot::DriverAndLoad => {
-                    n[Slot::Driver as usize] += 1;
-                    n[Slot::Load as usize] += 1;
+                    count(&mut n[Slot::Driver as usize]);
+                    count(&mut n[Slot::Load as usize]);
                 }
-                slot => n[slot as usize] += 1,
+                slot => count(&mut n[slot as usize]),
             }
         }
     }
-    let mut nets: Vec<NetModel> = (0..n_nets)
-        .map(|i| {
-            let n = &counts[i];
-            let list = |slot: Slot| n[slot as usize] as usize;
-            NetModel {
-                rail: rail[i],
-                drivers: SmallVec::with_capacity(list(Slot::Driver)),
-                loads: SmallVec::with_capacity(list(Slot::Load)),
-                connectors: ThinVec::with_capacity(list(Slot::Connector)),
-                passives: ThinVec::with_capacity(list(Slot::Passive)),
-                power_pins: ThinVec::with_capacity(list(Slot::Power)),
-                ..Default::default()
-            }
-        })
-        .collect();
+    for (nm, n) in nets.iter_mut().zip(&counts) {
+        let list = |slot: Slot| usize::from(n[slot as usize]);
+        nm.drivers = InPlace1::with_capacity(list(Slot::Driver));
+        nm.loads = InPlace2::with_capacity(list(Slot::Load));
+        nm.connectors = ThinVec::with_capacity(list(Slot::Connector));
+        nm.passives = ThinVec::with_capacity(list(Slot::Passive));
+        nm.power_pins = ThinVec::with_capacity(list(Slot::Power));
+    }
     drop(counts);
     let mut part_logic: Vec<PartLogic> = Vec::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
@@ -1116,16 +1162,16 @@ pub fn build<'n, 'a>(
         if matches!(err, Some(ValueError::NotFitted(_))) {
             continue; // not on the board
         }
-        for ((pa, na), (pb, nb)) in resistor_elements(nl, c, part.kind, &rail) {
+        for ((pa, na), (pb, nb)) in resistor_elements(nl, c, part.kind, &RailsOf(&nets[..])) {
             if na == nb {
                 continue;
             }
             for ((p_here, n_here), n_other) in [((pa, na), nb), ((pb, nb), na)] {
-                if rail[n_here].is_some() {
+                if nets[n_here].rail.is_some() {
                     continue;
                 }
                 let at = PinRef::new(ci, p_here);
-                let Some(r) = rail[n_other] else {
+                let Some(r) = nets[n_other].rail else {
                     nets[n_here].extras_mut().series.push(SeriesLink {
                         part: ci,
                         at,
@@ -1165,7 +1211,7 @@ pub fn build<'n, 'a>(
     for (i, net) in nl.nets.iter().enumerate() {
         let name = net.name.as_str();
         let local = name.trim_start_matches('/').contains('/');
-        if local && rail[i].is_none() {
+        if local && nets[i].rail.is_none() {
             let last = name.rsplit('/').next().unwrap_or("");
             nets[i].rail_named_local = *rail_named
                 .entry(last)
@@ -1184,7 +1230,7 @@ pub fn build<'n, 'a>(
             continue;
         }
         for (pi, here, other) in [(0, na, nb), (1, nb, na)] {
-            if rail[here].is_none() {
+            if nets[here].rail.is_none() {
                 nets[here].extras_mut().series.push(SeriesLink {
                     part: ci,
                     at: PinRef::new(ci, pi),
@@ -1232,9 +1278,15 @@ pub fn build<'n, 'a>(
             if !matches!(kind, PartKind::Resistor | PartKind::Led | PartKind::Display) {
                 continue;
             }
-            if let Some(path) =
-                follow_to_ground(nl, cl, &rail, &displays, &mut readings, start, opts.led_vf)
-            {
+            if let Some(path) = follow_to_ground(
+                nl,
+                cl,
+                &RailsOf(&nets[..]),
+                &displays,
+                &mut readings,
+                start,
+                opts.led_vf,
+            ) {
                 if path.leds.is_empty() {
                     continue;
                 }
@@ -1318,7 +1370,7 @@ fn resistor_elements(
     nl: &Netlist<'_>,
     c: &crate::netlist::Component<'_>,
     kind: PartKind,
-    rail: &[Option<Rail>],
+    rail: &RailsOf<&[NetModel]>,
 ) -> Vec<((usize, usize), (usize, usize))> {
     // a rail net may hold nothing but this resistor (a `-5V` label with one pull-down): its
     // one-node net still counts when it is a rail
@@ -1500,7 +1552,7 @@ fn rails_by_usage(
     nl: &Netlist<'_>,
     cl: &Classified,
     families: &[Option<&Family>],
-    rail: &mut [Option<Rail>],
+    rail: &mut RailsOf<&mut [NetModel]>,
 ) -> Vec<RailNote> {
     let n_nets = nl.nets.len();
     let mut supply_pins = vec![0usize; n_nets];
@@ -1679,7 +1731,7 @@ fn note_for(notes: &mut Vec<RailNote>, net: usize, volts: f64, why: Inferred) {
 fn follow_to_ground<'n>(
     nl: &'n Netlist<'_>,
     cl: &Classified,
-    rail: &[Option<Rail>],
+    rail: &RailsOf<&[NetModel]>,
     displays: &[display::Display],
     readings: &mut ValueReadings<'n>,
     start: PinRef,
@@ -1928,17 +1980,29 @@ mod size_tests {
     /// low level was read from the low state, a family id became one word and a load's input
     /// limit was read from its part's family and supply; a part's supply was 48 bytes while
     /// its nets were `usize`s; a driver's budget was 144 bytes, with two boxed item lists,
-    /// before it kept its numbers flat, its rare parts in one box and no items).
+    /// before it kept its numbers flat, its rare parts in one box and no items; 72 while each
+    /// kept its own numbers, where drivers with the same numbers now share one copy).
     #[test]
     fn per_net_structures_stay_small() {
         use super::budget::{Item, LoadMargin};
         use super::{Driver, Load};
         // 88 with its drivers and loads in lists of their own; a net with one driver and two
-        // loads then held two blocks of 48 bytes besides
-        assert!(size_of::<NetModel>() <= 128, "{}", size_of::<NetModel>());
+        // loads then held two blocks of 48 bytes besides; 128 while its drivers and loads
+        // were `SmallVec`s (24 and 32 bytes, where its own lists take 16 and 24)
+        assert!(size_of::<NetModel>() <= 112, "{}", size_of::<NetModel>());
+        assert!(
+            size_of::<super::in_place::InPlace1<Driver>>() <= 16,
+            "{}",
+            size_of::<super::in_place::InPlace1<Driver>>()
+        );
+        assert!(
+            size_of::<super::in_place::InPlace2<Load>>() <= 24,
+            "{}",
+            size_of::<super::in_place::InPlace2<Load>>()
+        );
         assert!(size_of::<NetBudget>() <= 24, "{}", size_of::<NetBudget>());
         assert!(
-            size_of::<DriverBudget>() <= 72,
+            size_of::<DriverBudget>() <= 24,
             "{}",
             size_of::<DriverBudget>()
         );
