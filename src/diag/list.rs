@@ -1,9 +1,10 @@
 //! A file's findings held together: one fixed-size record per finding, one text for all
-//! their own words (messages, nets, pins), one list of all their places, and one table of
-//! the texts many findings say alike (codes, label words, helps, the shared parts of a
-//! message), each kept once. A board can have hundreds of thousands of findings; held this
-//! way a finding costs its record, its own words and its places, and no allocation of its
-//! own.
+//! their own words (messages, nets, pins), one list of all their places, one table of the
+//! texts many findings say alike (codes, label words, helps, the shared parts of a message),
+//! each kept once, and one table of the sets of those texts findings of one kind share (a
+//! code, a help, a message's head and tail). A board can have hundreds of thousands of
+//! findings; held this way a finding costs a record of twenty bytes, its own words with their
+//! lengths and twelve bytes a place, and no allocation of its own.
 //!
 //! Read a finding through [`DiagRef`], which reads a single [`Diag`] the same way.
 
@@ -17,45 +18,110 @@ use crate::source::Span;
 const NONE: u32 = u32::MAX;
 
 /// One finding: where its words are. Its own texts follow each other in one piece of the
-/// list's text: message, net, pins.
+/// list's text, after their lengths ([`put_len`]): the length of the message's own part, of
+/// the net (when it has one) and of the pin list (when it has one), then the message's own
+/// part, the net and the pin list.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct Rec {
-    /// Where its own texts start in [`DiagList::text`]: the piece (high 32 bits) and the
-    /// offset in it.
-    start: u64,
-    /// Lengths of the message's own part, the net and the pin list (`NONE`: none).
-    message: u32,
-    net: u32,
-    pins: u32,
-    /// Shared texts (numbers in [`DiagList::shared`]; `NONE`: none): the code, the help, and
-    /// the parts of the message before and after its own part.
+    /// Where its texts start in [`DiagList::text`]: the offset in the piece `piece`.
+    at: u32,
+    piece: u16,
+    /// How many places it has, from `first_label` on in one piece of [`DiagList::labels`]
+    /// (the piece above [`LABEL_SHIFT`] bits, the offset in it below).
+    labels: u16,
+    first_label: u32,
+    /// Its shared texts: a number in [`DiagList::shapes`].
+    shape: u32,
+    severity: Severity,
+    /// Whether it names a net ([`HAS_NET`]) and pins ([`HAS_PINS`]).
+    has: u8,
+}
+
+const HAS_NET: u8 = 1;
+const HAS_PINS: u8 = 2;
+
+/// The shared texts of a finding (numbers in [`DiagList::shared`]; `NONE`: none): the code,
+/// the help, and the parts of the message before and after its own part. Findings of one
+/// kind have the same, so it is kept once in the list for all of them.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+struct Shape {
     code: u32,
     help: u32,
     head: u32,
     tail: u32,
-    /// Its places: `labels` from `first_label` on, in one piece of [`DiagList::labels`] (the
-    /// piece above [`LABEL_SHIFT`] bits, the offset in it below).
-    first_label: u32,
-    labels: u16,
-    severity: Severity,
 }
 
 /// A place of a finding in the list.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct LabelRec {
     span: Span,
-    /// A shared text's number.
+    /// A shared text's number, times two, plus one for a primary place.
     text: u32,
-    primary: bool,
+}
+
+impl LabelRec {
+    fn new(span: Span, text: u32, primary: bool) -> LabelRec {
+        LabelRec {
+            span,
+            text: (text << 1) | u32::from(primary),
+        }
+    }
+
+    fn text(self) -> u32 {
+        self.text >> 1
+    }
+
+    fn primary(self) -> bool {
+        self.text & 1 == 1
+    }
+}
+
+/// Writes the length `n` in as few bytes as it takes, six bits to a byte, lowest first: a
+/// byte of `0x40` and above says more follow. Every byte is ASCII, so the text holding it
+/// stays UTF-8 and the texts after it start on a character boundary.
+fn put_len(t: &mut String, mut n: usize) {
+    while n >= 0x40 {
+        t.push(char::from(0x40 | (n & 0x3f) as u8));
+        n >>= 6;
+    }
+    t.push(char::from(n as u8));
+}
+
+/// The bytes [`put_len`] writes for `n`.
+fn len_size(mut n: usize) -> usize {
+    let mut k = 1;
+    while n >= 0x40 {
+        n >>= 6;
+        k += 1;
+    }
+    k
+}
+
+/// Reads a length written by [`put_len`] at `*at`, and moves `*at` past it.
+fn get_len(b: &[u8], at: &mut usize) -> usize {
+    let (mut n, mut shift) = (0, 0);
+    loop {
+        let x = b[*at];
+        *at += 1;
+        n |= usize::from(x & 0x3f) << shift;
+        if x < 0x40 {
+            return n;
+        }
+        shift += 6;
+    }
 }
 
 /// Records a piece of [`DiagList::recs`] holds (a power of two).
 const REC_CHUNK: usize = 1 << 14;
-/// A piece of the places or of the text is left for a new one once it holds this many (a
-/// finding's places, or texts, are never split between two pieces, so a piece may hold more).
+/// The size of a piece of the places or of the text. A finding's places, or texts, are never
+/// split between two pieces: a finding that does not fit in what is left of the last piece
+/// starts a new one, made whole at once (or as large as the finding, if it is larger), so a
+/// piece never grows past the size it was made with. The first piece grows as a small list
+/// does, up to this size.
 const LABEL_CHUNK: usize = 1 << 16;
 const TEXT_CHUNK: usize = 1 << 20;
-/// A place's offset in its piece: below `LABEL_CHUNK` plus the most places of one finding.
+/// A place's offset in its piece: below `LABEL_CHUNK` (a finding starts in a piece only where
+/// it fits, and a piece made for one larger finding holds it from offset 0).
 const LABEL_SHIFT: u32 = 17;
 
 /// The findings of a file, in order (see the module's documentation).
@@ -73,6 +139,15 @@ pub struct DiagList {
     shared: Vec<Text>,
     /// The shared texts by content, as numbers into `shared`.
     index: hashbrown::HashTable<u32>,
+    /// The sets of shared texts of the findings, each kept once, and the last one given (a
+    /// check pushes findings of one kind in a row).
+    shapes: Vec<Shape>,
+    shape_index: hashbrown::HashTable<u32>,
+    last_shape: Option<(Shape, u32)>,
+    /// A finding's pin list and places, gathered before they are written into the pieces
+    /// (their sizes are then known, and a piece is never grown past its size).
+    pin_buf: String,
+    label_buf: Vec<LabelRec>,
     /// The last text shared and its number, by its address and length: findings in a row say
     /// the same fixed words, found again with no hashing.
     last: [(usize, usize, u32); SLOTS],
@@ -208,30 +283,122 @@ impl DiagList {
         *self.rec_mut(j) = a;
     }
 
-    /// Starts a finding's texts and places: in the last pieces, or in new ones when those
-    /// are full. Gives where its texts start and its first place.
-    fn begin(&mut self) -> (u64, u32) {
-        // the first piece grows as a small list does; the others are made whole
-        match self.text.last() {
-            None => self.text.push(String::new()),
-            Some(t) if t.len() >= TEXT_CHUNK => self.text.push(String::with_capacity(TEXT_CHUNK)),
-            _ => {}
+    /// The piece of the text `need` more bytes are written into: the last, when they fit in
+    /// it; the last grown, when it is smaller than a whole piece (the first piece of a list
+    /// grows as a small list does) and they fit in a whole one; else a new one.
+    fn text_room(&mut self, need: usize) -> usize {
+        if self.text.is_empty() {
+            self.text.push(String::new());
         }
-        match self.labels.last() {
-            None => self.labels.push(Vec::new()),
-            Some(l) if l.len() >= LABEL_CHUNK => self.labels.push(Vec::with_capacity(LABEL_CHUNK)),
-            _ => {}
+        let last = self.text.len() - 1;
+        let t = &mut self.text[last];
+        let len = t.len();
+        if len + need <= t.capacity() {
+            return last;
         }
-        let t = self.text.len() - 1;
-        let l = self.labels.len() - 1;
-        (
-            ((t as u64) << 32) | self.text[t].len() as u64,
-            ((l as u32) << LABEL_SHIFT) | self.labels[l].len() as u32,
-        )
+        if t.capacity() < TEXT_CHUNK && len + need <= TEXT_CHUNK {
+            let want = (t.capacity() * 2).max(len + need).max(64).min(TEXT_CHUNK);
+            t.reserve_exact(want - len);
+            return last;
+        }
+        self.text.push(String::with_capacity(need.max(TEXT_CHUNK)));
+        last + 1
     }
 
-    fn text_mut(&mut self) -> &mut String {
-        self.text.last_mut().expect("begun")
+    /// Writes a finding's own texts, after their lengths (see [`Rec`]). Gives the piece,
+    /// where they start in it, and which of net and pins the finding has.
+    fn put_texts(&mut self, message: &str, net: Option<&str>, pins: Option<&str>) -> (u16, u32, u8) {
+        let mut need = len_size(message.len()) + message.len();
+        for t in [net, pins].into_iter().flatten() {
+            need += len_size(t.len()) + t.len();
+        }
+        let piece = self.text_room(need);
+        let t = &mut self.text[piece];
+        let at = t.len() as u32;
+        put_len(t, message.len());
+        for x in [net, pins].into_iter().flatten() {
+            put_len(t, x.len());
+        }
+        t.push_str(message);
+        for x in [net, pins].into_iter().flatten() {
+            t.push_str(x);
+        }
+        let has = net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS);
+        // 65 536 pieces of a mebibyte or more: more finding text than a machine holds
+        let piece = u16::try_from(piece).expect("at most 65 536 pieces of text");
+        (piece, at, has)
+    }
+
+    /// Writes the places gathered in `label_buf` into the last piece of the places, or a new
+    /// one as [`DiagList::text_room`] chooses for the text. Gives where the first is and how
+    /// many there are.
+    fn put_labels(&mut self) -> (u32, u16) {
+        let n = self.label_buf.len();
+        if n == 0 {
+            return (0, 0);
+        }
+        if self.labels.is_empty() {
+            self.labels.push(Vec::new());
+        }
+        let mut last = self.labels.len() - 1;
+        let l = &mut self.labels[last];
+        let len = l.len();
+        if len + n > l.capacity() {
+            if l.capacity() < LABEL_CHUNK && len + n <= LABEL_CHUNK {
+                let want = (l.capacity() * 2).max(len + n).max(16).min(LABEL_CHUNK);
+                l.reserve_exact(want - len);
+            } else {
+                self.labels.push(Vec::with_capacity(n.max(LABEL_CHUNK)));
+                last += 1;
+            }
+        }
+        let l = &mut self.labels[last];
+        let from = l.len() as u32;
+        l.extend_from_slice(&self.label_buf);
+        self.label_buf.clear();
+        // `push_label` keeps at most `u16::MAX` places
+        (((last as u32) << LABEL_SHIFT) | from, n as u16)
+    }
+
+    /// The number of the set of shared texts `s` (added the first time).
+    fn shape(&mut self, s: Shape) -> u32 {
+        if let Some((last, id)) = self.last_shape {
+            if last == s {
+                return id;
+            }
+        }
+        let h = rustc_hash::FxBuildHasher.hash_one(s);
+        let shapes = &self.shapes;
+        let id = match self.shape_index.find(h, |&i| shapes[i as usize] == s) {
+            Some(&i) => i,
+            None => {
+                let i = self.shapes.len() as u32;
+                self.shapes.push(s);
+                let shapes = &self.shapes;
+                self.shape_index.insert_unique(h, i, |&j| {
+                    rustc_hash::FxBuildHasher.hash_one(shapes[j as usize])
+                });
+                i
+            }
+        };
+        self.last_shape = Some((s, id));
+        id
+    }
+
+    /// Ends a finding whose texts are written and whose places are gathered.
+    fn finish(&mut self, texts: (u16, u32, u8), shape: Shape, severity: Severity) {
+        let (first_label, labels) = self.put_labels();
+        let shape = self.shape(shape);
+        let (piece, at, has) = texts;
+        self.push_rec(Rec {
+            at,
+            piece,
+            labels,
+            first_label,
+            shape,
+            severity,
+            has,
+        });
     }
 
     /// The number of the shared text `s` (added the first time it is given). `slot` says
@@ -300,16 +467,6 @@ impl DiagList {
         }
     }
 
-    fn own(&mut self, s: Option<&str>) -> u32 {
-        match s {
-            Some(s) => {
-                self.text_mut().push_str(s);
-                s.len() as u32
-            }
-            None => NONE,
-        }
-    }
-
     /// Adds a finding at the end.
     pub fn push(&mut self, d: Diag) {
         self.push_parts(&d, &d.message, Around::default());
@@ -322,10 +479,7 @@ impl DiagList {
     }
 
     fn push_view(&mut self, d: DiagRef<'_>, message: &str, around: Around<'_>) {
-        let (start, first_label) = self.begin();
-        let message = self.own(Some(message));
-        let net = self.own(d.net());
-        let pins = self.own(d.pin_text());
+        let texts = self.put_texts(message, d.net(), d.pin_text());
         let code = match d.0 {
             Inner::One(one) => self.share_cow(&one.code, 0),
             Inner::In(..) => self.share(d.code(), None, 0),
@@ -336,45 +490,34 @@ impl DiagList {
         };
         let head = around.head.map(|t| self.share(t, Some(t), 2));
         let tail = around.tail.map(|t| self.share(t, Some(t), 3));
-        let mut labels = 0u16;
         match d.0 {
             Inner::One(one) => {
                 for (k, l) in one.labels.iter().enumerate() {
                     let text = self.share_cow(&l.text, 4 + k.min(1));
-                    self.push_label(l.span, text, l.primary, &mut labels);
+                    self.push_label(l.span, text, l.primary);
                 }
             }
             Inner::In(..) => {
                 for (k, l) in d.labels().enumerate() {
                     let text = self.share(l.text, None, 4 + k.min(1));
-                    self.push_label(l.span, text, l.primary, &mut labels);
+                    self.push_label(l.span, text, l.primary);
                 }
             }
         }
-        self.push_rec(Rec {
-            start,
-            message,
-            net,
-            pins,
+        let shape = Shape {
             code,
             help: help.unwrap_or(NONE),
             head: head.unwrap_or(NONE),
             tail: tail.unwrap_or(NONE),
-            first_label,
-            labels,
-            severity: d.severity(),
-        });
+        };
+        self.finish(texts, shape, d.severity());
     }
 
-    fn push_label(&mut self, span: Span, text: u32, primary: bool, n: &mut u16) {
+    /// Gathers a place of the finding being pushed.
+    fn push_label(&mut self, span: Span, text: u32, primary: bool) {
         // more places than a record counts are left out (no finding has near so many)
-        if *n < u16::MAX {
-            self.labels.last_mut().expect("begun").push(LabelRec {
-                span,
-                text,
-                primary,
-            });
-            *n += 1;
+        if self.label_buf.len() < usize::from(u16::MAX) {
+            self.label_buf.push(LabelRec::new(span, text, primary));
         }
     }
 
@@ -387,29 +530,22 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
         labels: impl IntoIterator<Item = (Span, &'static str, bool)>,
     ) {
-        let (start, first_label, message, net, pins) = self.begin_raw(raw.own, raw.net, pins);
+        let texts = self.put_raw_texts(raw.own, raw.net, pins);
         let code = self.share(raw.code, Some(&Text::Fixed(raw.code)), 0);
         let help = raw.help.map(|h| self.share(h, Some(h), 1));
         let head = raw.around.head.map(|t| self.share(t, Some(t), 2));
         let tail = raw.around.tail.map(|t| self.share(t, Some(t), 3));
-        let mut n = 0u16;
         for (k, (span, text, primary)) in labels.into_iter().enumerate() {
             let text = self.share(text, Some(&Text::Fixed(text)), 4 + k.min(1));
-            self.push_label(span, text, primary, &mut n);
+            self.push_label(span, text, primary);
         }
-        self.push_rec(Rec {
-            start,
-            message,
-            net,
-            pins,
+        let shape = Shape {
             code,
             help: help.unwrap_or(NONE),
             head: head.unwrap_or(NONE),
             tail: tail.unwrap_or(NONE),
-            first_label,
-            labels: n,
-            severity: raw.severity,
-        });
+        };
+        self.finish(texts, shape, raw.severity);
     }
 
     /// Adds a finding written straight into the list as [`DiagList::push_raw`] does, its
@@ -421,64 +557,44 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
         labels: impl IntoIterator<Item = (Span, SharedId, bool)>,
     ) {
-        let (start, first_label, message, net, pins) = self.begin_raw(raw.own, raw.net, pins);
-        let mut n = 0u16;
+        let texts = self.put_raw_texts(raw.own, raw.net, pins);
         for (span, text, primary) in labels {
             let text = self.shared_id(text);
-            self.push_label(span, text, primary, &mut n);
+            self.push_label(span, text, primary);
         }
         let id = |s: Option<SharedId>| s.map_or(NONE, |s| self.shared_id(s));
-        let (code, help, head, tail) = (
-            self.shared_id(raw.code),
-            id(raw.help),
-            id(raw.head),
-            id(raw.tail),
-        );
-        self.push_rec(Rec {
-            start,
-            message,
-            net,
-            pins,
-            code,
-            help,
-            head,
-            tail,
-            first_label,
-            labels: n,
-            severity: raw.severity,
-        });
+        let shape = Shape {
+            code: self.shared_id(raw.code),
+            help: id(raw.help),
+            head: id(raw.head),
+            tail: id(raw.tail),
+        };
+        self.finish(texts, shape, raw.severity);
     }
 
-    /// Starts a finding written straight into the list: its own words, net and pins (each
-    /// as pieces joined). Gives where its texts start, its first place and the lengths of
-    /// its message, net and pins.
-    fn begin_raw<'p>(
+    /// Writes the own texts of a finding written straight into the list: its own words, net
+    /// and pins (each as pieces joined, gathered first in `pin_buf`).
+    fn put_raw_texts<'p>(
         &mut self,
         own: &str,
         net: Option<&str>,
         pins: impl IntoIterator<Item = [&'p str; 3]>,
-    ) -> (u64, u32, u32, u32, u32) {
-        let (start, first_label) = self.begin();
-        let message = self.own(Some(own));
-        let net = self.own(net);
-        let text = self.text_mut();
-        let pins_at = text.len();
+    ) -> (u16, u32, u8) {
+        let mut buf = std::mem::take(&mut self.pin_buf);
+        buf.clear();
         let mut any = false;
         for p in pins {
             if any {
-                text.push(super::PIN_SEP);
+                buf.push(super::PIN_SEP);
             }
             any = true;
             for piece in p {
-                text.push_str(piece);
+                buf.push_str(piece);
             }
         }
-        let pins = if any {
-            (text.len() - pins_at) as u32
-        } else {
-            NONE
-        };
-        (start, first_label, message, net, pins)
+        let texts = self.put_texts(own, net, any.then_some(buf.as_str()));
+        self.pin_buf = buf;
+        texts
     }
 
     /// Adds a copy of a finding read from another list (or a single one).
@@ -581,10 +697,24 @@ impl DiagList {
 
     /// The list held to its length (it is kept to the end of the run).
     pub fn shrink_to_fit(&mut self) {
-        // the pieces stay as they are: shrinking one would copy it
+        // only the last pieces have room left (a finding that did not fit in a piece started
+        // a new one, and the others are full but for less than a finding); the allocator
+        // gives the end of a block back in place
+        if let Some(r) = self.recs.last_mut() {
+            r.shrink_to_fit();
+        }
+        if let Some(l) = self.labels.last_mut() {
+            l.shrink_to_fit();
+        }
+        if let Some(t) = self.text.last_mut() {
+            t.shrink_to_fit();
+        }
         self.recs.shrink_to_fit();
         self.labels.shrink_to_fit();
         self.text.shrink_to_fit();
+        self.shapes.shrink_to_fit();
+        self.pin_buf = String::new();
+        self.label_buf = Vec::new();
     }
 
     /// The bytes the list holds, for measuring.
@@ -594,6 +724,10 @@ impl DiagList {
             + self.text.iter().map(|t| t.capacity()).sum::<usize>()
             + self.shared.capacity() * size_of::<Text>()
             + self.index.capacity() * size_of::<u32>()
+            + self.shapes.capacity() * size_of::<Shape>()
+            + self.shape_index.capacity() * size_of::<u32>()
+            + self.pin_buf.capacity()
+            + self.label_buf.capacity() * size_of::<LabelRec>()
     }
 }
 
@@ -710,18 +844,24 @@ impl<'a> From<&'a Diag> for DiagRef<'a> {
 }
 
 impl<'a> DiagRef<'a> {
-    fn own(list: &'a DiagList, r: &Rec, skip: usize, len: u32) -> Option<&'a str> {
-        if len == NONE {
-            return None;
-        }
-        let text = &list.text[(r.start >> 32) as usize];
-        let mut at = (r.start & 0xffff_ffff) as usize;
-        for l in [r.message, r.net, r.pins].into_iter().take(skip) {
-            if l != NONE {
-                at += l as usize;
-            }
-        }
-        Some(&text[at..at + len as usize])
+    /// A finding's own texts in the list: the message's own part, the net and the pins.
+    fn own(list: &'a DiagList, r: &Rec) -> (&'a str, Option<&'a str>, Option<&'a str>) {
+        let text = &list.text[usize::from(r.piece)];
+        let b = text.as_bytes();
+        let mut at = r.at as usize;
+        let message = get_len(b, &mut at);
+        let net = (r.has & HAS_NET != 0).then(|| get_len(b, &mut at));
+        let pins = (r.has & HAS_PINS != 0).then(|| get_len(b, &mut at));
+        let mut next = |n: usize| {
+            let t = &text[at..at + n];
+            at += n;
+            t
+        };
+        (next(message), net.map(&mut next), pins.map(next))
+    }
+
+    fn shape(list: &'a DiagList, r: &Rec) -> Shape {
+        list.shapes[r.shape as usize]
     }
 
     fn shared(list: &'a DiagList, id: u32) -> Option<&'a str> {
@@ -732,7 +872,7 @@ impl<'a> DiagRef<'a> {
     pub fn code(&self) -> &'a str {
         match self.0 {
             Inner::One(d) => &d.code,
-            Inner::In(l, r) => &l.shared[r.code as usize],
+            Inner::In(l, r) => &l.shared[Self::shape(l, r).code as usize],
         }
     }
 
@@ -747,21 +887,21 @@ impl<'a> DiagRef<'a> {
     fn own_message(&self) -> &'a str {
         match self.0 {
             Inner::One(d) => &d.message,
-            Inner::In(l, r) => Self::own(l, r, 0, r.message).unwrap_or(""),
+            Inner::In(l, r) => Self::own(l, r).0,
         }
     }
 
     fn head(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(_) => None,
-            Inner::In(l, r) => Self::shared(l, r.head),
+            Inner::In(l, r) => Self::shared(l, Self::shape(l, r).head),
         }
     }
 
     fn tail(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(_) => None,
-            Inner::In(l, r) => Self::shared(l, r.tail),
+            Inner::In(l, r) => Self::shared(l, Self::shape(l, r).tail),
         }
     }
 
@@ -793,6 +933,7 @@ impl<'a> DiagRef<'a> {
     pub fn labels(&self) -> Labels<'a> {
         match self.0 {
             Inner::One(d) => Labels(LabelsInner::One(d.labels.iter())),
+            Inner::In(l, r) if r.labels == 0 => Labels(LabelsInner::In(l, [].iter())),
             Inner::In(l, r) => {
                 let piece = &l.labels[(r.first_label >> LABEL_SHIFT) as usize];
                 let from = (r.first_label & ((1 << LABEL_SHIFT) - 1)) as usize;
@@ -807,7 +948,7 @@ impl<'a> DiagRef<'a> {
     pub fn help(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.help.as_deref(),
-            Inner::In(l, r) => Self::shared(l, r.help),
+            Inner::In(l, r) => Self::shared(l, Self::shape(l, r).help),
         }
     }
 
@@ -815,14 +956,14 @@ impl<'a> DiagRef<'a> {
     pub fn net(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.net.as_deref(),
-            Inner::In(l, r) => Self::own(l, r, 1, r.net),
+            Inner::In(l, r) => Self::own(l, r).1,
         }
     }
 
     fn pin_text(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.pins.0.as_deref(),
-            Inner::In(l, r) => Self::own(l, r, 2, r.pins),
+            Inner::In(l, r) => Self::own(l, r).2,
         }
     }
 
@@ -920,8 +1061,8 @@ impl<'a> Iterator for Labels<'a> {
             }),
             LabelsInner::In(list, it) => it.next().map(|l| LabelRef {
                 span: l.span,
-                text: &list.shared[l.text as usize],
-                primary: l.primary,
+                text: &list.shared[l.text() as usize],
+                primary: l.primary(),
             }),
         }
     }
@@ -946,8 +1087,8 @@ mod tests {
     /// A finding held in a list costs its record and its places, and no allocation.
     #[test]
     fn records_stay_small() {
-        assert!(size_of::<Rec>() <= 48, "{}", size_of::<Rec>());
-        assert!(size_of::<LabelRec>() <= 16, "{}", size_of::<LabelRec>());
+        assert!(size_of::<Rec>() <= 20, "{}", size_of::<Rec>());
+        assert!(size_of::<LabelRec>() <= 12, "{}", size_of::<LabelRec>());
         assert!(size_of::<DiagRef>() <= 24);
     }
 
