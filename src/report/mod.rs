@@ -316,7 +316,8 @@ pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
 }
 
 /// [`fingerprint_hashes`] one at a time, in order, for a reporter that writes each as it
-/// goes: only the table of the keys met so far is held, not a list as long as the findings.
+/// goes: while they are written only the keys met more than once are held, not a list as
+/// long as the findings ([`key_ranks`]).
 pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ {
     key_ranks(f, fingerprint_hash).map(|(h, n)| {
         // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
@@ -347,24 +348,41 @@ fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut Strin
 /// Each finding's `hash` of its key, and its rank among the file's findings with that key,
 /// in order.
 ///
-/// Keys are counted by their hash, each hash with the first finding that had it; a hash met
-/// again is checked against that finding's key, and a different key with the same hash is
-/// counted apart by its text. No key is kept as text unless two differ with one hash. The
-/// table holds the first finding and the count in two `u32`s (a file's findings are counted
-/// in `u32` everywhere a reporter numbers them), sixteen bytes a key with its hash.
+/// Most keys are met once. The hashes are first worked out for every finding and sorted, to
+/// find the few met more than once; that list is then let go, and the findings are read
+/// again in order, hashing each anew: a finding whose hash is met once has rank 0 with no
+/// table looked at. Only the repeated hashes are counted, each with the first finding that
+/// had it; a repeated hash is checked against that finding's key, and a different key with
+/// the same hash is counted apart by its text. So what is held while the report is written
+/// grows with the repeated keys, not with the findings, and no key is kept as text unless
+/// two differ with one hash.
 fn key_ranks(
     f: &FileOutcome,
     hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64,
 ) -> impl Iterator<Item = (u64, usize)> + '_ {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
-    // hash -> (the first finding with it, how many findings had its key so far)
-    let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
-    seen.reserve(f.diags.len());
-    let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
     let (mut key, mut first_key) = (String::new(), String::new());
+    // the hashes met more than once, sorted
+    let repeated: Vec<u64> = {
+        let mut all: Vec<u64> = f.diags.iter().map(|d| hash(d, source, &mut key)).collect();
+        all.sort_unstable();
+        let mut repeated: Vec<u64> = all
+            .windows(2)
+            .filter(|w| w[0] == w[1])
+            .map(|w| w[0])
+            .collect();
+        repeated.dedup();
+        repeated
+    };
+    // a repeated hash -> (the first finding with it, how many findings had its key so far)
+    let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
+    let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
     f.diags.iter().enumerate().map(move |(i, d)| {
         let h = hash(d, source, &mut key);
+        if repeated.binary_search(&h).is_err() {
+            return (h, 0);
+        }
         let n = match seen.entry(h) {
             Entry::Vacant(e) => {
                 e.insert((i as u32, 1));
