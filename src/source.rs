@@ -377,33 +377,36 @@ impl LineIndex {
     pub(crate) fn new(bytes: &[u8]) -> LineIndex {
         let mut bases = Vec::new();
         let mut wide_at = Vec::new();
-        let mut steps = Vec::with_capacity(bytes.len() / 48 + 1);
+        let mut steps: Vec<u8> = Vec::with_capacity(bytes.len() / 32 + 1);
         let mut wide = Vec::new();
+        // the starts of the group being read, and whether it has a long line
         let mut group = [0u32; GROUP];
-        let mut n = 0;
-        let mut end_group = |group: &[u32]| {
+        let (mut n, mut long) = (0, false);
+        let mut end_group = |group: &[u32], long: bool, steps: &mut Vec<u8>| {
             bases.push(group[0]);
-            let long = group.windows(2).any(|w| w[1] - w[0] > u32::from(u8::MAX));
             if long {
+                // its steps are left at 0, its starts kept in full
+                let from = steps.len() - group.len();
+                steps[from..].fill(0);
                 wide_at.push(wide.len() as u32);
                 wide.extend_from_slice(group);
-                steps.extend(std::iter::repeat_n(0, group.len()));
             } else {
                 wide_at.push(u32::MAX);
-                steps.push(0);
-                steps.extend(group.windows(2).map(|w| (w[1] - w[0]) as u8));
             }
         };
         for_each_line_start(bytes, |at| {
+            let step = if n == 0 { 0 } else { at - group[n - 1] };
+            long |= step > u32::from(u8::MAX);
+            steps.push(step as u8);
             group[n] = at;
             n += 1;
             if n == GROUP {
-                end_group(&group);
-                n = 0;
+                end_group(&group, long, &mut steps);
+                (n, long) = (0, false);
             }
         });
         if n > 0 {
-            end_group(&group[..n]);
+            end_group(&group[..n], long, &mut steps);
         }
         LineIndex {
             bases: bases.into(),

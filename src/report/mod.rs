@@ -316,8 +316,8 @@ pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
 }
 
 /// [`fingerprint_hashes`] one at a time, in order, for a reporter that writes each as it
-/// goes: while they are written only the keys met more than once are held, not a list as
-/// long as the findings ([`key_ranks`]).
+/// goes: the hashes are worked out once, and only keys that may be met more than once are
+/// looked up ([`key_ranks`]).
 pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ {
     key_ranks(f, fingerprint_hash).map(|(h, n)| {
         // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
@@ -348,14 +348,15 @@ fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut Strin
 /// Each finding's `hash` of its key, and its rank among the file's findings with that key,
 /// in order.
 ///
-/// Most keys are met once. The hashes are first worked out for every finding and sorted, to
-/// find the few met more than once; that list is then let go, and the findings are read
-/// again in order, hashing each anew: a finding whose hash is met once has rank 0 with no
-/// table looked at. Only the repeated hashes are counted, each with the first finding that
-/// had it; a repeated hash is checked against that finding's key, and a different key with
-/// the same hash is counted apart by its text. So what is held while the report is written
-/// grows with the repeated keys, not with the findings, and no key is kept as text unless
-/// two differ with one hash.
+/// Most keys are met once. The hashes are worked out first, in order, and each marks a slot
+/// of a table of two bits a slot (eight slots a finding), by its hash: met, and met again. A
+/// finding whose slot was met once has a key no other finding has: rank 0, with nothing
+/// looked up. Only the others are counted, by hash, each hash with the first finding that had
+/// it; a hash met again is checked against that finding's key, and a different key with the
+/// same hash is counted apart by its text. Findings with one key have one hash and one slot,
+/// so all of them are counted. What is held is eight bytes a finding for its hash, a quarter
+/// of that for the slots, and the table of the findings counted; no key is kept as text
+/// unless two differ with one hash.
 fn key_ranks(
     f: &FileOutcome,
     hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64,
@@ -363,24 +364,28 @@ fn key_ranks(
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
     let (mut key, mut first_key) = (String::new(), String::new());
-    // the hashes met more than once, sorted
-    let repeated: Vec<u64> = {
-        let mut all: Vec<u64> = f.diags.iter().map(|d| hash(d, source, &mut key)).collect();
-        all.sort_unstable();
-        let mut repeated: Vec<u64> = all
-            .windows(2)
-            .filter(|w| w[0] == w[1])
-            .map(|w| w[0])
-            .collect();
-        repeated.dedup();
-        repeated
+    let hashes: Vec<u64> = f.diags.iter().map(|d| hash(d, source, &mut key)).collect();
+    // a power of two, at least eight slots a finding
+    let bits = (hashes.len() * 8).next_power_of_two().max(64).trailing_zeros();
+    let slot = move |h: u64| (h.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - bits)) as usize;
+    let mut slots = vec![0u64; (1usize << bits) / 32];
+    for &h in &hashes {
+        let s = slot(h);
+        let (word, at) = (s / 32, 2 * (s % 32));
+        // met (01), then met again (11)
+        let met = (slots[word] >> at) & 1;
+        slots[word] |= (1 | (met << 1)) << at;
+    }
+    let again = move |h: u64| {
+        let s = slot(h);
+        (slots[s / 32] >> (2 * (s % 32))) & 2 != 0
     };
-    // a repeated hash -> (the first finding with it, how many findings had its key so far)
+    // a hash of a finding counted -> (the first finding with it, how many findings had its
+    // key so far)
     let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
     let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
-    f.diags.iter().enumerate().map(move |(i, d)| {
-        let h = hash(d, source, &mut key);
-        if repeated.binary_search(&h).is_err() {
+    f.diags.iter().zip(hashes).enumerate().map(move |(i, (d, h))| {
+        if !again(h) {
             return (h, 0);
         }
         let n = match seen.entry(h) {
