@@ -371,48 +371,64 @@ pub(crate) struct LineIndex {
     wide: Box<[u32]>,
 }
 
+/// A [`LineIndex`] being built.
+#[derive(Default)]
+struct Builder {
+    bases: Vec<u32>,
+    wide_at: Vec<u32>,
+    steps: Vec<u8>,
+    wide: Vec<u32>,
+}
+
+impl Builder {
+    /// Adds the lines starting at `starts`, in groups (only the last may be short).
+    fn add(&mut self, starts: &[u32]) {
+        for group in starts.chunks(GROUP) {
+            self.bases.push(group[0]);
+            // the steps written at once, taken back if one does not fit in a byte
+            let from = self.steps.len();
+            let mut long = 0;
+            self.steps.push(0);
+            self.steps.extend(group.windows(2).map(|w| {
+                let step = w[1] - w[0];
+                long |= step >> 8;
+                step as u8
+            }));
+            if long != 0 {
+                self.steps[from..].fill(0);
+                self.wide_at.push(self.wide.len() as u32);
+                self.wide.extend_from_slice(group);
+            } else {
+                self.wide_at.push(u32::MAX);
+            }
+        }
+    }
+}
+
 impl LineIndex {
     /// The index of the lines of `bytes`, built as they are found: the offsets are never all
     /// held at once.
     pub(crate) fn new(bytes: &[u8]) -> LineIndex {
-        let mut bases = Vec::new();
-        let mut wide_at = Vec::new();
-        let mut steps: Vec<u8> = Vec::with_capacity(bytes.len() / 32 + 1);
-        let mut wide = Vec::new();
-        // the starts of the group being read, and whether it has a long line
-        let mut group = [0u32; GROUP];
-        let (mut n, mut long) = (0, false);
-        let mut end_group = |group: &[u32], long: bool, steps: &mut Vec<u8>| {
-            bases.push(group[0]);
-            if long {
-                // its steps are left at 0, its starts kept in full
-                let from = steps.len() - group.len();
-                steps[from..].fill(0);
-                wide_at.push(wide.len() as u32);
-                wide.extend_from_slice(group);
-            } else {
-                wide_at.push(u32::MAX);
-            }
+        let mut index = Builder {
+            steps: Vec::with_capacity(bytes.len() / 32 + 1),
+            ..Builder::default()
         };
+        // the starts gathered a block at a time (whole groups), then put in groups
+        const BLOCK: usize = 64 * GROUP;
+        let mut block: Vec<u32> = Vec::with_capacity(BLOCK);
         for_each_line_start(bytes, |at| {
-            let step = if n == 0 { 0 } else { at - group[n - 1] };
-            long |= step > u32::from(u8::MAX);
-            steps.push(step as u8);
-            group[n] = at;
-            n += 1;
-            if n == GROUP {
-                end_group(&group, long, &mut steps);
-                (n, long) = (0, false);
+            block.push(at);
+            if block.len() == BLOCK {
+                index.add(&block);
+                block.clear();
             }
         });
-        if n > 0 {
-            end_group(&group[..n], long, &mut steps);
-        }
+        index.add(&block);
         LineIndex {
-            bases: bases.into(),
-            wide_at: wide_at.into(),
-            steps: steps.into(),
-            wide: wide.into(),
+            bases: index.bases.into(),
+            wide_at: index.wide_at.into(),
+            steps: index.steps.into(),
+            wide: index.wide.into(),
         }
     }
 

@@ -164,7 +164,8 @@ pub struct DiagList {
     /// check pushes findings of one kind in a row).
     shapes: Vec<Shape>,
     shape_index: hashbrown::HashTable<u32>,
-    last_shapes: [Option<(Shape, u32)>; RECENT_SHAPES],
+    /// By a shared text's number, the set last given whose most telling text it is.
+    shape_hint: Vec<u32>,
     /// A finding's pin list and places, gathered before they are written into the pieces
     /// (their sizes are then known, and a piece is never grown past its size).
     pin_buf: String,
@@ -201,9 +202,6 @@ pub struct RawShared<'t> {
     pub help: Option<SharedId>,
     pub net: Option<&'t str>,
 }
-
-/// Sets of shared texts remembered ([`DiagList::shape`]).
-const RECENT_SHAPES: usize = 16;
 
 /// Texts remembered by address: the code, the help, the message's head and tail, the first
 /// label and the others.
@@ -418,13 +416,15 @@ impl DiagList {
 
     /// The number of the set of shared texts `s` (added the first time).
     fn shape(&mut self, s: Shape) -> u32 {
-        // findings of a few kinds come in turn (the gates of a part): a small table of the
-        // sets given lately, a slot each by a mix of their numbers
-        let slot = (s.code ^ s.help.rotate_left(7) ^ s.head.rotate_left(14) ^ s.tail.rotate_left(21))
-            as usize
-            % RECENT_SHAPES;
-        if let Some((last, id)) = self.last_shapes[slot] {
-            if last == s {
+        // findings of many kinds come in turn (the gates of parts): the set last given with
+        // the same most telling text (the message's tail, else its head, help or code) is
+        // tried first, with no hashing
+        let key = [s.tail, s.head, s.help]
+            .into_iter()
+            .find(|&t| t != NONE)
+            .unwrap_or(s.code) as usize;
+        if let Some(&id) = self.shape_hint.get(key) {
+            if self.shapes.get(id as usize) == Some(&s) {
                 return id;
             }
         }
@@ -442,7 +442,10 @@ impl DiagList {
                 i
             }
         };
-        self.last_shapes[slot] = Some((s, id));
+        if self.shape_hint.len() <= key {
+            self.shape_hint.resize(self.shared.len().max(key + 1), NONE);
+        }
+        self.shape_hint[key] = id;
         id
     }
 
@@ -850,6 +853,7 @@ impl DiagList {
             + self.index.capacity() * size_of::<u32>()
             + self.shapes.capacity() * size_of::<Shape>()
             + self.shape_index.capacity() * size_of::<u32>()
+            + self.shape_hint.capacity() * size_of::<u32>()
             + self.pin_buf.capacity()
             + self.label_buf.capacity() * size_of::<LabelRec>()
     }
