@@ -308,7 +308,17 @@ impl DiagList {
     /// The piece of the text `need` more bytes are written into: the last, when they fit in
     /// it; the last grown, when it is smaller than a whole piece (the first piece of a list
     /// grows as a small list does) and they fit in a whole one; else a new one.
+    #[inline]
     fn text_room(&mut self, need: usize) -> usize {
+        match self.text.last() {
+            Some(t) if t.len() + need <= t.capacity() => self.text.len() - 1,
+            _ => self.text_room_new(need),
+        }
+    }
+
+    /// [`DiagList::text_room`] when the last piece is full (or there is none).
+    #[cold]
+    fn text_room_new(&mut self, need: usize) -> usize {
         if self.text.is_empty() {
             self.text.push(String::new());
         }
@@ -395,7 +405,17 @@ impl DiagList {
 
     /// The piece of the places `n` more are written into, chosen as [`DiagList::text_room`]
     /// chooses for the text.
+    #[inline]
     fn label_room(&mut self, n: usize) -> usize {
+        match self.labels.last() {
+            Some(l) if l.len() + n <= l.capacity() => self.labels.len() - 1,
+            _ => self.label_room_new(n),
+        }
+    }
+
+    /// [`DiagList::label_room`] when the last piece is full (or there is none).
+    #[cold]
+    fn label_room_new(&mut self, n: usize) -> usize {
         if self.labels.is_empty() {
             self.labels.push(Vec::new());
         }
@@ -419,10 +439,15 @@ impl DiagList {
         // findings of many kinds come in turn (the gates of parts): the set last given with
         // the same most telling text (the message's tail, else its head, help or code) is
         // tried first, with no hashing
-        let key = [s.tail, s.head, s.help]
-            .into_iter()
-            .find(|&t| t != NONE)
-            .unwrap_or(s.code) as usize;
+        let key = if s.tail != NONE {
+            s.tail
+        } else if s.head != NONE {
+            s.head
+        } else if s.help != NONE {
+            s.help
+        } else {
+            s.code
+        } as usize;
         if let Some(&id) = self.shape_hint.get(key) {
             if self.shapes.get(id as usize) == Some(&s) {
                 return id;
@@ -678,8 +703,12 @@ impl DiagList {
         let piece = self.text_room(own.len() + net_text.len());
         let t = &mut self.text[piece];
         let at = t.len();
-        t.push_str(own);
-        t.push_str(net_text);
+        if !own.is_empty() {
+            t.push_str(own);
+        }
+        if !net_text.is_empty() {
+            t.push_str(net_text);
+        }
         let pins_at = t.len();
         let mut pins = pins.into_iter();
         let (mut any, mut spilt) = (false, None);
@@ -1009,6 +1038,7 @@ impl<'a> DiagRef<'a> {
     }
 
     /// Stable kebab-case id, e.g. `unclosed-list` or `floating-cmos-input`.
+    #[inline]
     pub fn code(&self) -> &'a str {
         match self.0 {
             Inner::One(d) => &d.code,
@@ -1016,6 +1046,7 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    #[inline]
     pub fn severity(&self) -> Severity {
         match self.0 {
             Inner::One(d) => d.severity,
@@ -1024,6 +1055,7 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The finding's own words of the message (without the parts it shares).
+    #[inline]
     fn own_message(&self) -> &'a str {
         match self.0 {
             Inner::One(d) => &d.message,
@@ -1034,6 +1066,7 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    #[inline]
     fn head(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(_) => None,
@@ -1041,6 +1074,7 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    #[inline]
     fn tail(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(_) => None,
@@ -1088,6 +1122,7 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    #[inline]
     pub fn help(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.help.as_deref(),
@@ -1096,6 +1131,7 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The net the finding is about, by name.
+    #[inline]
     pub fn net(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.net.as_deref(),
@@ -1106,6 +1142,7 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    #[inline]
     fn pin_text(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.pins.0.as_deref(),
@@ -1117,11 +1154,13 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The pins involved, as `REF.PIN`, the offending one first.
+    #[inline]
     pub fn pins(&self) -> Pins<'a> {
         Pins(self.pin_text())
     }
 
     /// True when the finding names any pin.
+    #[inline]
     pub fn has_pins(&self) -> bool {
         self.pin_text().is_some()
     }

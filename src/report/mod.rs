@@ -333,12 +333,13 @@ pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ 
 /// when the finding names a net or a pin (`key` is then left as it was); otherwise of the key
 /// written into `key`.
 fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut String) -> u64 {
-    if d.net().is_none() && !d.has_pins() {
+    let net = d.net();
+    if net.is_none() && !d.has_pins() {
         write_fingerprint_key(d, source, key);
         return fnv1a64(key.as_bytes());
     }
     let mut h = fnv1a64_more(fnv1a64(d.code().as_bytes()), b"\x1f");
-    h = fnv1a64_more(h, d.net().unwrap_or("").as_bytes());
+    h = fnv1a64_more(h, net.unwrap_or("").as_bytes());
     for p in d.pins() {
         h = fnv1a64_more(fnv1a64_more(h, b"\x1f"), p.as_bytes());
     }
