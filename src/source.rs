@@ -657,7 +657,11 @@ mod tests {
     #[test]
     fn line_columns_from_the_index_equal_those_from_the_line_starts() {
         let line = (0usize..300, 0usize..3, proptest::bool::ANY).prop_map(|(len, end, wide)| {
-            let mut l = if wide { "\u{e7}".repeat(len / 2) } else { "y".repeat(len) };
+            let mut l = if wide {
+                "\u{e7}".repeat(len / 2)
+            } else {
+                "y".repeat(len)
+            };
             l.push_str(["\n", "\r\n", "\r"][end]);
             l
         });

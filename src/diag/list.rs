@@ -340,7 +340,11 @@ impl DiagList {
     /// Writes a finding's own texts (see [`Rec`]). Gives where they are: the piece, where
     /// they start in it, their lengths and which of net and pins the finding has.
     fn put_texts(&mut self, message: &str, net: Option<&str>, pins: Option<&str>) -> Texts {
-        let lens = [message.len(), net.map_or(0, str::len), pins.map_or(0, str::len)];
+        let lens = [
+            message.len(),
+            net.map_or(0, str::len),
+            pins.map_or(0, str::len),
+        ];
         let long = lens.iter().any(|&l| l >= usize::from(u16::MAX));
         if !long {
             let piece = self.text_room(lens[0] + lens[1] + lens[2]);
@@ -375,9 +379,8 @@ impl DiagList {
         for x in [net, pins].into_iter().flatten() {
             t.push_str(x);
         }
-        let has = net.map_or(0, |_| HAS_NET)
-            | pins.map_or(0, |_| HAS_PINS)
-            | if long { LONG } else { 0 };
+        let has =
+            net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS) | if long { LONG } else { 0 };
         Texts {
             piece: piece_number(piece),
             at,
@@ -481,7 +484,14 @@ impl DiagList {
     }
 
     /// Ends a finding whose texts and places are written.
-    fn end(&mut self, texts: Texts, first_label: u32, labels: u16, shape: Shape, severity: Severity) {
+    fn end(
+        &mut self,
+        texts: Texts,
+        first_label: u32,
+        labels: u16,
+        shape: Shape,
+        severity: Severity,
+    ) {
         let shape = self.shape(shape);
         let [message, net, pins] = texts.lens;
         self.push_rec(Rec {
@@ -684,7 +694,10 @@ impl DiagList {
                 assert_eq!(text.list, token, "a shared text of another list");
                 l.push(LabelRec::new(span, text.id, primary));
             }
-            (((piece as u32) << LABEL_SHIFT) | from as u32, (l.len() - from) as u16)
+            (
+                ((piece as u32) << LABEL_SHIFT) | from as u32,
+                (l.len() - from) as u16,
+            )
         };
         self.end(texts, first_label, count, shape, raw.severity);
     }
@@ -1024,8 +1037,16 @@ impl<'a> DiagRef<'a> {
         let mut at = r.at as usize;
         let b = text.as_bytes();
         let message = get_len(b, &mut at);
-        let net = if r.has & HAS_NET != 0 { get_len(b, &mut at) } else { 0 };
-        let pins = if r.has & HAS_PINS != 0 { get_len(b, &mut at) } else { 0 };
+        let net = if r.has & HAS_NET != 0 {
+            get_len(b, &mut at)
+        } else {
+            0
+        };
+        let pins = if r.has & HAS_PINS != 0 {
+            get_len(b, &mut at)
+        } else {
+            0
+        };
         (text, at, [message, net, pins])
     }
 
@@ -1329,6 +1350,112 @@ mod tests {
             copy.push_ref(r);
         }
         assert!(copy.iter().rev().eq(list.iter()));
+    }
+
+    /// Every way into the list (a `Diag`, a finding written straight in, one with shared
+    /// numbers, a copy from another list) reads back as the `Diag` it stands for: short
+    /// findings, findings with a message, net or pin list of 65 535 bytes or more (their
+    /// lengths written before their words), and findings whose pins do not fit in what is left
+    /// of a piece. No piece grows past the size it was made with, but a piece made for one
+    /// finding larger than a whole piece.
+    #[test]
+    fn every_way_in_reads_back_as_the_finding_it_stands_for() {
+        let long = |c: &str, n: usize| c.repeat(n);
+        let mut list = DiagList::new();
+        let code = list.share_id(&Text::Fixed(A));
+        let (head, tail) = (
+            list.share_id(&Text::Fixed("gate A of ")),
+            list.share_id(&Text::from(String::from(" is unused"))),
+        );
+        let (first, other) = (
+            list.share_id(&Text::Fixed("unused gate")),
+            list.share_id(&Text::Fixed("")),
+        );
+        let mut want = Vec::new();
+        for i in 0..200usize {
+            // own words, net and pins: short mostly, long now and then, in every mix
+            let own = if i % 37 == 3 {
+                long("o", 70_000)
+            } else {
+                format!("U{i}")
+            };
+            let net = match i % 5 {
+                0 => None,
+                1 if i % 3 == 0 => Some(long("n", 66_000)),
+                _ => Some(format!("N{i}")),
+            };
+            let pin_count = if i % 23 == 5 { 10_000 } else { i % 4 };
+            let pins: Vec<String> = (0..pin_count).map(|k| format!("{own}.{k}")).collect();
+            let spans = [Span::new(i, i + 1), Span::new(i + 5, i + 9)];
+            let mut d = Diag::error(A, format!("gate A of {own} is unused"))
+                .at(spans[0], "unused gate")
+                .also(spans[1], "")
+                .with_pins(&pins);
+            if let Some(n) = &net {
+                d = d.on_net(n.clone());
+            }
+            match i % 4 {
+                0 => list.push_shared(
+                    RawShared {
+                        code,
+                        severity: Severity::Error,
+                        head: Some(head),
+                        own: &own,
+                        tail: Some(tail),
+                        help: None,
+                        net: net.as_deref(),
+                    },
+                    pins.iter().map(|p| {
+                        let (r, n) = p.split_once('.').unwrap();
+                        [r, ".", n]
+                    }),
+                    // an iterator that does not tell its length, now and then
+                    [(spans[0], first, true), (spans[1], other, false)]
+                        .into_iter()
+                        .filter(|_| true)
+                        .take(if i % 8 == 0 { 2 } else { usize::MAX }),
+                ),
+                1 => list.push_raw(
+                    Raw {
+                        code: A,
+                        severity: Severity::Error,
+                        around: Around {
+                            head: Some(&Text::Fixed("gate A of ")),
+                            tail: Some(&Text::Fixed(" is unused")),
+                        },
+                        own: &own,
+                        help: None,
+                        net: net.as_deref(),
+                    },
+                    pins.iter().map(|p| {
+                        let (r, n) = p.split_once('.').unwrap();
+                        [r, ".", n]
+                    }),
+                    [(spans[0], "unused gate", true), (spans[1], "", false)],
+                ),
+                2 => list.push(d.clone()),
+                _ => {
+                    let mut one = DiagList::new();
+                    one.push(d.clone());
+                    list.push_ref(one.get(0).unwrap());
+                }
+            }
+            want.push(d);
+        }
+        assert_eq!(list.len(), want.len());
+        for (i, (r, d)) in list.iter().zip(&want).enumerate() {
+            assert_eq!(r, d.view(), "{i}");
+            assert_eq!(r.to_diag().view(), d.view(), "{i}");
+        }
+        for t in &list.text {
+            assert!(t.capacity() <= TEXT_CHUNK || t.len() == t.capacity());
+        }
+        for l in &list.labels {
+            assert!(l.capacity() <= LABEL_CHUNK);
+        }
+        // cut to their length, the same findings
+        list.shrink_to_fit();
+        assert!(list.iter().zip(&want).all(|(r, d)| r == d.view()));
     }
 
     #[test]

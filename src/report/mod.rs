@@ -367,7 +367,10 @@ fn key_ranks(
     let (mut key, mut first_key) = (String::new(), String::new());
     let hashes: Vec<u64> = f.diags.iter().map(|d| hash(d, source, &mut key)).collect();
     // a power of two, at least eight slots a finding
-    let bits = (hashes.len() * 8).next_power_of_two().max(64).trailing_zeros();
+    let bits = (hashes.len() * 8)
+        .next_power_of_two()
+        .max(64)
+        .trailing_zeros();
     let slot = move |h: u64| (h.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - bits)) as usize;
     let mut slots = vec![0u64; (1usize << bits) / 32];
     for &h in &hashes {
@@ -385,32 +388,36 @@ fn key_ranks(
     // key so far)
     let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
     let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
-    f.diags.iter().zip(hashes).enumerate().map(move |(i, (d, h))| {
-        if !again(h) {
-            return (h, 0);
-        }
-        let n = match seen.entry(h) {
-            Entry::Vacant(e) => {
-                e.insert((i as u32, 1));
-                0
+    f.diags
+        .iter()
+        .zip(hashes)
+        .enumerate()
+        .map(move |(i, (d, h))| {
+            if !again(h) {
+                return (h, 0);
             }
-            Entry::Occupied(mut e) => {
-                let (first, count) = e.get_mut();
-                write_fingerprint_key(d, source, &mut key);
-                let first_d = f.diags.get(*first as usize).expect("an earlier finding");
-                write_fingerprint_key(first_d, source, &mut first_key);
-                if first_key == key {
-                    *count += 1;
-                    *count as usize - 1
-                } else {
-                    let n = collided.entry(key.clone()).or_insert(0);
-                    *n += 1;
-                    *n - 1
+            let n = match seen.entry(h) {
+                Entry::Vacant(e) => {
+                    e.insert((i as u32, 1));
+                    0
                 }
-            }
-        };
-        (h, n)
-    })
+                Entry::Occupied(mut e) => {
+                    let (first, count) = e.get_mut();
+                    write_fingerprint_key(d, source, &mut key);
+                    let first_d = f.diags.get(*first as usize).expect("an earlier finding");
+                    write_fingerprint_key(first_d, source, &mut first_key);
+                    if first_key == key {
+                        *count += 1;
+                        *count as usize - 1
+                    } else {
+                        let n = collided.entry(key.clone()).or_insert(0);
+                        *n += 1;
+                        *n - 1
+                    }
+                }
+            };
+            (h, n)
+        })
 }
 
 /// The fingerprint of a file's fatal diagnostic.
