@@ -48,7 +48,7 @@ pub struct SourceFile {
     /// `Arc<str>` handed out by [`SourceFile::shared_text`], made on first call.
     shared: Arc<OnceLock<Arc<str>>>,
     /// Built on first use.
-    line_starts: Arc<OnceLock<Box<[u32]>>>,
+    line_starts: Arc<OnceLock<LineIndex>>,
     /// For a source made of several files (a schematic's sheets, see
     /// [`SourceFile::from_files`]): where each file starts in the text, in order. Empty for
     /// a single file.
@@ -174,9 +174,9 @@ impl SourceFile {
         }
     }
 
-    fn starts(&self) -> &[u32] {
+    fn starts(&self) -> &LineIndex {
         self.line_starts
-            .get_or_init(|| line_starts(self.text.as_bytes()).into_boxed_slice())
+            .get_or_init(|| LineIndex::new(self.text.as_bytes()))
     }
 
     pub fn name(&self) -> &str {
@@ -196,18 +196,19 @@ impl SourceFile {
 
     /// The 0-based line holding byte `offset`.
     pub fn line_index(&self, offset: usize) -> usize {
-        match self.starts().binary_search(&(offset as u32)) {
-            Ok(i) => i,
-            Err(i) => i - 1,
-        }
+        self.starts().line_of(offset as u32).0
     }
 
     /// 1-based line and character column of byte `offset` (clamped to the text), within
     /// the file that holds it ([`SourceFile::file_at`]).
     pub fn line_col(&self, offset: usize) -> LineCol {
-        let mut lc = line_col_in(self.text.as_bytes(), self.starts(), offset);
-        lc.line -= self.first_line_of(offset.min(self.text.len()));
-        lc
+        let bytes = self.text.as_bytes();
+        let offset = offset.min(bytes.len());
+        let (i, line_start, _) = self.starts().line_of(offset as u32);
+        LineCol {
+            line: i + 1 - self.first_line_of(offset),
+            column: count_columns(&bytes[line_start..offset]) + 1,
+        }
     }
 
     /// The text of the line holding byte `offset`, without its line ending.
@@ -221,11 +222,12 @@ impl SourceFile {
     pub fn line_text(&self, line: usize) -> &str {
         let starts = self.starts();
         let i = line.saturating_sub(1).min(starts.len() - 1);
-        let start = starts[i] as usize;
-        let end = starts
-            .get(i + 1)
-            .map(|&e| e as usize)
-            .unwrap_or(self.text.len());
+        let start = starts.start(i);
+        let end = if i + 1 < starts.len() {
+            starts.start(i + 1)
+        } else {
+            self.text.len()
+        };
         self.text[start..end].trim_end_matches(['\n', '\r'])
     }
 
@@ -235,10 +237,18 @@ impl SourceFile {
 
     /// A cursor for many [`SourceFile::line_col`] lookups in a row (a report's places).
     pub fn cursor(&self) -> LineCursor<'_> {
+        let starts = self.starts();
+        let next = if starts.len() > 1 {
+            starts.start(1)
+        } else {
+            usize::MAX
+        };
         LineCursor {
             source: self,
-            starts: self.starts(),
+            starts,
             line: 0,
+            line_start: 0,
+            next,
         }
     }
 
@@ -254,9 +264,12 @@ impl SourceFile {
 /// findings of one part. The line of the last lookup is tried before a binary search.
 pub struct LineCursor<'a> {
     source: &'a SourceFile,
-    starts: &'a [u32],
-    /// 0-based index of the line of the last lookup.
+    starts: &'a LineIndex,
+    /// 0-based index of the line of the last lookup, where it starts and where the next
+    /// starts (`usize::MAX` after the last line).
     line: usize,
+    line_start: usize,
+    next: usize,
 }
 
 impl<'a> LineCursor<'a> {
@@ -269,16 +282,11 @@ impl<'a> LineCursor<'a> {
     pub fn line_col(&mut self, offset: usize) -> LineCol {
         let bytes = self.source.text.as_bytes();
         let offset = offset.min(bytes.len());
-        let o = offset as u32;
-        let starts = self.starts;
-        let here = starts[self.line] <= o && starts.get(self.line + 1).is_none_or(|&next| o < next);
+        let here = self.line_start <= offset && offset < self.next;
         if !here {
-            self.line = match starts.binary_search(&o) {
-                Ok(i) => i,
-                Err(i) => i - 1,
-            };
+            (self.line, self.line_start, self.next) = self.starts.line_of(offset as u32);
         }
-        let line_start = starts[self.line] as usize;
+        let line_start = self.line_start;
         let column = count_columns(&bytes[line_start..offset]) + 1;
         let first = if self.source.files.is_empty() {
             0
@@ -297,11 +305,7 @@ impl<'a> LineCursor<'a> {
     pub fn line_col_after(&mut self, from: usize, at: LineCol, offset: usize) -> LineCol {
         let bytes = self.source.text.as_bytes();
         let offset = offset.min(bytes.len());
-        let same_line = from <= offset
-            && self
-                .starts
-                .get(self.line + 1)
-                .is_none_or(|&next| offset < next as usize);
+        let same_line = from <= offset && offset < self.next;
         if !same_line {
             return self.line_col(offset);
         }
@@ -321,7 +325,13 @@ fn count_columns(bytes: &[u8]) -> usize {
 /// (as miette counts them).
 pub fn line_starts(bytes: &[u8]) -> Vec<u32> {
     let mut v = Vec::with_capacity(bytes.len() / 64 + 1);
-    v.push(0);
+    for_each_line_start(bytes, |at| v.push(at));
+    v
+}
+
+/// Calls `f` with the offset where each line starts ([`line_starts`]), in order.
+fn for_each_line_start(bytes: &[u8], mut f: impl FnMut(u32)) {
+    f(0);
     // the `\n` of a `\r\n`, already counted with its `\r`
     let mut skip = usize::MAX;
     for_each_break(bytes, |at| {
@@ -334,9 +344,149 @@ pub fn line_starts(bytes: &[u8]) -> Vec<u32> {
         } else {
             at + 1
         };
-        v.push(next as u32);
+        f(next as u32);
     });
-    v
+}
+
+/// Lines a group of the [`LineIndex`] holds.
+const GROUP: usize = 32;
+
+/// Where each line of a text starts ([`line_starts`]), held in about a byte and a quarter a
+/// line where the offsets take four: the lines in groups of [`GROUP`], each group's first
+/// line's start in full, and each other line's start as the length of the line before it
+/// (one byte: a line of a netlist or schematic is some fifty bytes). A group with a line of
+/// 256 bytes or more keeps its starts in full instead.
+#[derive(Debug, Default)]
+pub(crate) struct LineIndex {
+    /// The start of each group's first line.
+    bases: Box<[u32]>,
+    /// For each group, where its starts are in `wide` (`u32::MAX`: it has none there, its
+    /// lines are in `steps`).
+    wide_at: Box<[u32]>,
+    /// For each line, its start less the start of the line before it (0 for a group's first
+    /// line, and for every line of a group kept in `wide`).
+    steps: Box<[u8]>,
+    /// The starts of the groups with a long line, [`GROUP`] to a group (the last group's
+    /// lines only, for the last).
+    wide: Box<[u32]>,
+}
+
+/// A [`LineIndex`] being built.
+#[derive(Default)]
+struct Builder {
+    bases: Vec<u32>,
+    wide_at: Vec<u32>,
+    steps: Vec<u8>,
+    wide: Vec<u32>,
+}
+
+impl Builder {
+    /// Adds the lines starting at `starts`, in groups (only the last may be short).
+    fn add(&mut self, starts: &[u32]) {
+        for group in starts.chunks(GROUP) {
+            self.bases.push(group[0]);
+            // the steps written at once, taken back if one does not fit in a byte
+            let from = self.steps.len();
+            let mut long = 0;
+            self.steps.push(0);
+            self.steps.extend(group.windows(2).map(|w| {
+                let step = w[1] - w[0];
+                long |= step >> 8;
+                step as u8
+            }));
+            if long != 0 {
+                self.steps[from..].fill(0);
+                self.wide_at.push(self.wide.len() as u32);
+                self.wide.extend_from_slice(group);
+            } else {
+                self.wide_at.push(u32::MAX);
+            }
+        }
+    }
+}
+
+impl LineIndex {
+    /// The index of the lines of `bytes`, built as they are found: the offsets are never all
+    /// held at once.
+    pub(crate) fn new(bytes: &[u8]) -> LineIndex {
+        let mut index = Builder {
+            steps: Vec::with_capacity(bytes.len() / 32 + 1),
+            ..Builder::default()
+        };
+        // the starts gathered a block at a time (whole groups), then put in groups
+        const BLOCK: usize = 64 * GROUP;
+        let mut block: Vec<u32> = Vec::with_capacity(BLOCK);
+        for_each_line_start(bytes, |at| {
+            block.push(at);
+            if block.len() == BLOCK {
+                index.add(&block);
+                block.clear();
+            }
+        });
+        index.add(&block);
+        LineIndex {
+            bases: index.bases.into(),
+            wide_at: index.wide_at.into(),
+            steps: index.steps.into(),
+            wide: index.wide.into(),
+        }
+    }
+
+    /// How many lines (at least one).
+    pub(crate) fn len(&self) -> usize {
+        self.steps.len()
+    }
+
+    /// Where line `i` (0-based, below [`LineIndex::len`]) starts.
+    pub(crate) fn start(&self, i: usize) -> usize {
+        let (g, k) = (i / GROUP, i % GROUP);
+        let w = self.wide_at[g];
+        if w != u32::MAX {
+            return self.wide[w as usize + k] as usize;
+        }
+        let from = g * GROUP;
+        self.bases[g] as usize
+            + self.steps[from + 1..=from + k]
+                .iter()
+                .map(|&s| usize::from(s))
+                .sum::<usize>()
+    }
+
+    /// The line holding byte `offset` (the last line starting at or before it), where it
+    /// starts, and where the next line starts (`usize::MAX` for the last line).
+    pub(crate) fn line_of(&self, offset: u32) -> (usize, usize, usize) {
+        // the first group starts at 0, so one starts at or before any offset
+        let g = self.bases.partition_point(|&b| b <= offset) - 1;
+        let from = g * GROUP;
+        let lines = (self.len() - from).min(GROUP);
+        let after = match self.bases.get(g + 1) {
+            Some(&b) => b as usize,
+            None => usize::MAX,
+        };
+        let w = self.wide_at[g];
+        if w != u32::MAX {
+            let starts = &self.wide[w as usize..w as usize + lines];
+            let k = starts.partition_point(|&s| s <= offset) - 1;
+            let next = starts.get(k + 1).map_or(after, |&s| s as usize);
+            return (from + k, starts[k] as usize, next);
+        }
+        let offset = offset as usize;
+        let mut start = self.bases[g] as usize;
+        for k in 1..lines {
+            let next = start + usize::from(self.steps[from + k]);
+            if next > offset {
+                return (from + k - 1, start, next);
+            }
+            start = next;
+        }
+        (from + lines - 1, start, after)
+    }
+
+    /// The bytes the index holds, for measuring.
+    #[cfg(test)]
+    pub(crate) fn heap_bytes(&self) -> usize {
+        self.bases.len() * 4 + self.wide_at.len() * 4 + self.steps.len() + self.wide.len() * 4
+    }
 }
 
 /// Calls `f` with the offset of every `\n` and `\r` in `bytes`, in order. Lines are short
@@ -404,11 +554,12 @@ impl SourceCode for SourceFile {
         let first_line = self.line_index(start).saturating_sub(context_lines_before);
         let last_line = self.line_index(end.saturating_sub(1).max(start)) + context_lines_after + 1;
         let starts = self.starts();
-        let win_start = starts[first_line] as usize;
-        let win_end = starts
-            .get(last_line + 1)
-            .map(|&e| e as usize)
-            .unwrap_or(bytes.len());
+        let win_start = starts.start(first_line);
+        let win_end = if last_line + 1 < starts.len() {
+            starts.start(last_line + 1)
+        } else {
+            bytes.len()
+        };
         let window = &bytes[win_start..win_end];
         let local = SourceSpan::new((start - win_start).into(), span.len());
         let inner = window.read_span(&local, context_lines_before, context_lines_after)?;
@@ -430,6 +581,7 @@ impl SourceCode for SourceFile {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use proptest::prelude::Strategy;
 
     /// Line starts found by the scan equal those of a byte-by-byte reading: `\n`, `\r\n` and a
     /// lone `\r` end a line, at the start, the end and side by side.
@@ -455,6 +607,86 @@ mod tests {
             proptest::prop_assert_eq!(line_starts(s.as_bytes()), by_bytes(s.as_bytes()));
         });
         assert_eq!(line_starts(b"\r\n\r\r\n\n"), [0, 2, 3, 5, 6]);
+    }
+
+    /// The compact line index gives every line's start, and the line of every offset with
+    /// its start and the next line's, as the plain list of line starts does: texts of many
+    /// groups of lines, short lines and lines of 256 bytes and more mixed, every line ending.
+    #[test]
+    fn the_line_index_equals_the_line_starts() {
+        fn check(text: &[u8]) -> Result<(), proptest::test_runner::TestCaseError> {
+            let starts = line_starts(text);
+            let index = LineIndex::new(text);
+            proptest::prop_assert_eq!(index.len(), starts.len());
+            for (i, &s) in starts.iter().enumerate() {
+                proptest::prop_assert_eq!(index.start(i), s as usize);
+            }
+            for o in 0..=text.len() {
+                let i = match starts.binary_search(&(o as u32)) {
+                    Ok(i) => i,
+                    Err(i) => i - 1,
+                };
+                let next = starts.get(i + 1).map_or(usize::MAX, |&n| n as usize);
+                proptest::prop_assert_eq!(index.line_of(o as u32), (i, starts[i] as usize, next));
+            }
+            // at worst (every group with a long line) five bytes a line and eight a group
+            let most = 5 * starts.len() + 8 * starts.len().div_ceil(GROUP);
+            proptest::prop_assert!(index.heap_bytes() <= most);
+            Ok(())
+        }
+        let line = (0usize..300, 0usize..3).prop_map(|(len, end)| {
+            let mut l = "x".repeat(len);
+            l.push_str(["\n", "\r\n", "\r"][end]);
+            l
+        });
+        proptest::proptest!(|(lines in proptest::collection::vec(line, 0..120), last in "[ab]{0,3}")| {
+            let text = lines.concat() + &last;
+            check(text.as_bytes())?;
+        });
+        // short lines only: about a byte and a quarter a line
+        let text = "ab\n".repeat(10 * GROUP);
+        check(text.as_bytes()).unwrap();
+        let index = LineIndex::new(text.as_bytes());
+        let groups = index.len().div_ceil(GROUP);
+        assert_eq!(index.heap_bytes(), index.len() + 8 * groups);
+        check(b"").unwrap();
+    }
+
+    /// Line and column from a source (one lookup at a time, and by a cursor going forward,
+    /// back and within a line) equal those read from the plain list of line starts.
+    #[test]
+    fn line_columns_from_the_index_equal_those_from_the_line_starts() {
+        let line = (0usize..300, 0usize..3, proptest::bool::ANY).prop_map(|(len, end, wide)| {
+            let mut l = if wide {
+                "\u{e7}".repeat(len / 2)
+            } else {
+                "y".repeat(len)
+            };
+            l.push_str(["\n", "\r\n", "\r"][end]);
+            l
+        });
+        proptest::proptest!(|(lines in proptest::collection::vec(line, 1..80), jumps in proptest::collection::vec(0usize..100_000, 1..40))| {
+            let text = lines.concat();
+            let starts = line_starts(text.as_bytes());
+            let f = SourceFile::new("t", text.as_str());
+            let mut cursor = f.cursor();
+            let mut last = None;
+            for j in jumps {
+                let o = j % (text.len() + 1);
+                let want = line_col_in(text.as_bytes(), &starts, o);
+                proptest::prop_assert_eq!(f.line_col(o), want);
+                proptest::prop_assert_eq!(f.line_index(o), want.line - 1);
+                // the end of a place after its start, then the next place
+                if let Some((from, at)) = last {
+                    if from <= o {
+                        proptest::prop_assert_eq!(cursor.line_col(from), at);
+                        proptest::prop_assert_eq!(cursor.line_col_after(from, at, o), want);
+                    }
+                }
+                proptest::prop_assert_eq!(cursor.line_col(o), want);
+                last = Some((o, want));
+            }
+        });
     }
 
     #[test]

@@ -1,9 +1,10 @@
 //! A file's findings held together: one fixed-size record per finding, one text for all
-//! their own words (messages, nets, pins), one list of all their places, and one table of
-//! the texts many findings say alike (codes, label words, helps, the shared parts of a
-//! message), each kept once. A board can have hundreds of thousands of findings; held this
-//! way a finding costs its record, its own words and its places, and no allocation of its
-//! own.
+//! their own words (messages, nets, pins), one list of all their places, one table of the
+//! texts many findings say alike (codes, label words, helps, the shared parts of a message),
+//! each kept once, and one table of the sets of those texts findings of one kind share (a
+//! code, a help, a message's head and tail). A board can have hundreds of thousands of
+//! findings; held this way a finding costs a record of 24 bytes, its own words
+//! and twelve bytes a place, and no allocation of its own.
 //!
 //! Read a finding through [`DiagRef`], which reads a single [`Diag`] the same way.
 
@@ -17,45 +18,131 @@ use crate::source::Span;
 const NONE: u32 = u32::MAX;
 
 /// One finding: where its words are. Its own texts follow each other in one piece of the
-/// list's text: message, net, pins.
+/// list's text: the message's own part, the net (when it has one) and the pin list (when it
+/// has one). Their lengths are in the record; a finding with a text of 65 535 bytes or more
+/// ([`LONG`]) has them written before its texts instead ([`put_len`]).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct Rec {
-    /// Where its own texts start in [`DiagList::text`]: the piece (high 32 bits) and the
-    /// offset in it.
-    start: u64,
-    /// Lengths of the message's own part, the net and the pin list (`NONE`: none).
-    message: u32,
-    net: u32,
-    pins: u32,
-    /// Shared texts (numbers in [`DiagList::shared`]; `NONE`: none): the code, the help, and
-    /// the parts of the message before and after its own part.
+    /// Where its texts start in [`DiagList::text`]: the offset in the piece `piece`.
+    at: u32,
+    piece: u16,
+    /// How many places it has, from `first_label` on in one piece of [`DiagList::labels`]
+    /// (the piece above [`LABEL_SHIFT`] bits, the offset in it below).
+    labels: u16,
+    first_label: u32,
+    /// Its shared texts: a number in [`DiagList::shapes`].
+    shape: u32,
+    /// The lengths of the message's own part, the net and the pin list (0 for none; not
+    /// used for a [`LONG`] finding).
+    message: u16,
+    net: u16,
+    pins: u16,
+    severity: Severity,
+    /// Whether it names a net ([`HAS_NET`]) and pins ([`HAS_PINS`]), and whether its
+    /// lengths are written before its texts ([`LONG`]).
+    has: u8,
+}
+
+const HAS_NET: u8 = 1;
+const HAS_PINS: u8 = 2;
+const LONG: u8 = 4;
+
+/// The shared texts of a finding (numbers in [`DiagList::shared`]; `NONE`: none): the code,
+/// the help, and the parts of the message before and after its own part. Findings of one
+/// kind have the same, so it is kept once in the list for all of them.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+struct Shape {
     code: u32,
     help: u32,
     head: u32,
     tail: u32,
-    /// Its places: `labels` from `first_label` on, in one piece of [`DiagList::labels`] (the
-    /// piece above [`LABEL_SHIFT`] bits, the offset in it below).
-    first_label: u32,
-    labels: u16,
-    severity: Severity,
+}
+
+/// The number of a piece of text in a record.
+fn piece_number(piece: usize) -> u16 {
+    // 65 536 pieces of a mebibyte or more: more finding text than a machine holds
+    u16::try_from(piece).expect("at most 65 536 pieces of text")
+}
+
+/// Where a finding's own texts were written ([`DiagList::put_texts`]).
+struct Texts {
+    piece: u16,
+    at: u32,
+    lens: [u16; 3],
+    has: u8,
 }
 
 /// A place of a finding in the list.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct LabelRec {
     span: Span,
-    /// A shared text's number.
+    /// A shared text's number, times two, plus one for a primary place.
     text: u32,
-    primary: bool,
+}
+
+impl LabelRec {
+    fn new(span: Span, text: u32, primary: bool) -> LabelRec {
+        LabelRec {
+            span,
+            text: (text << 1) | u32::from(primary),
+        }
+    }
+
+    fn text(self) -> u32 {
+        self.text >> 1
+    }
+
+    fn primary(self) -> bool {
+        self.text & 1 == 1
+    }
+}
+
+/// Writes the length `n` in as few bytes as it takes, six bits to a byte, lowest first: a
+/// byte of `0x40` and above says more follow. Every byte is ASCII, so the text holding it
+/// stays UTF-8 and the texts after it start on a character boundary.
+fn put_len(t: &mut String, mut n: usize) {
+    while n >= 0x40 {
+        t.push(char::from(0x40 | (n & 0x3f) as u8));
+        n >>= 6;
+    }
+    t.push(char::from(n as u8));
+}
+
+/// The bytes [`put_len`] writes for `n`.
+fn len_size(mut n: usize) -> usize {
+    let mut k = 1;
+    while n >= 0x40 {
+        n >>= 6;
+        k += 1;
+    }
+    k
+}
+
+/// Reads a length written by [`put_len`] at `*at`, and moves `*at` past it.
+fn get_len(b: &[u8], at: &mut usize) -> usize {
+    let (mut n, mut shift) = (0, 0);
+    loop {
+        let x = b[*at];
+        *at += 1;
+        n |= usize::from(x & 0x3f) << shift;
+        if x < 0x40 {
+            return n;
+        }
+        shift += 6;
+    }
 }
 
 /// Records a piece of [`DiagList::recs`] holds (a power of two).
 const REC_CHUNK: usize = 1 << 14;
-/// A piece of the places or of the text is left for a new one once it holds this many (a
-/// finding's places, or texts, are never split between two pieces, so a piece may hold more).
+/// The size of a piece of the places or of the text. A finding's places, or texts, are never
+/// split between two pieces: a finding that does not fit in what is left of the last piece
+/// starts a new one, made whole at once (or as large as the finding, if it is larger), so a
+/// piece never grows past the size it was made with. The first piece grows as a small list
+/// does, up to this size.
 const LABEL_CHUNK: usize = 1 << 16;
 const TEXT_CHUNK: usize = 1 << 20;
-/// A place's offset in its piece: below `LABEL_CHUNK` plus the most places of one finding.
+/// A place's offset in its piece: below `LABEL_CHUNK` (a finding starts in a piece only where
+/// it fits, and a piece made for one larger finding holds it from offset 0).
 const LABEL_SHIFT: u32 = 17;
 
 /// The findings of a file, in order (see the module's documentation).
@@ -73,6 +160,16 @@ pub struct DiagList {
     shared: Vec<Text>,
     /// The shared texts by content, as numbers into `shared`.
     index: hashbrown::HashTable<u32>,
+    /// The sets of shared texts of the findings, each kept once, and the last one given (a
+    /// check pushes findings of one kind in a row).
+    shapes: Vec<Shape>,
+    shape_index: hashbrown::HashTable<u32>,
+    /// By a shared text's number, the set last given whose most telling text it is.
+    shape_hint: Vec<u32>,
+    /// A finding's pin list and places, gathered before they are written into the pieces
+    /// (their sizes are then known, and a piece is never grown past its size).
+    pin_buf: String,
+    label_buf: Vec<LabelRec>,
     /// The last text shared and its number, by its address and length: findings in a row say
     /// the same fixed words, found again with no hashing.
     last: [(usize, usize, u32); SLOTS],
@@ -208,30 +305,207 @@ impl DiagList {
         *self.rec_mut(j) = a;
     }
 
-    /// Starts a finding's texts and places: in the last pieces, or in new ones when those
-    /// are full. Gives where its texts start and its first place.
-    fn begin(&mut self) -> (u64, u32) {
-        // the first piece grows as a small list does; the others are made whole
+    /// The piece of the text `need` more bytes are written into: the last, when they fit in
+    /// it; the last grown, when it is smaller than a whole piece (the first piece of a list
+    /// grows as a small list does) and they fit in a whole one; else a new one.
+    #[inline]
+    fn text_room(&mut self, need: usize) -> usize {
         match self.text.last() {
-            None => self.text.push(String::new()),
-            Some(t) if t.len() >= TEXT_CHUNK => self.text.push(String::with_capacity(TEXT_CHUNK)),
-            _ => {}
+            Some(t) if t.len() + need <= t.capacity() => self.text.len() - 1,
+            _ => self.text_room_new(need),
         }
-        match self.labels.last() {
-            None => self.labels.push(Vec::new()),
-            Some(l) if l.len() >= LABEL_CHUNK => self.labels.push(Vec::with_capacity(LABEL_CHUNK)),
-            _ => {}
-        }
-        let t = self.text.len() - 1;
-        let l = self.labels.len() - 1;
-        (
-            ((t as u64) << 32) | self.text[t].len() as u64,
-            ((l as u32) << LABEL_SHIFT) | self.labels[l].len() as u32,
-        )
     }
 
-    fn text_mut(&mut self) -> &mut String {
-        self.text.last_mut().expect("begun")
+    /// [`DiagList::text_room`] when the last piece is full (or there is none).
+    #[cold]
+    fn text_room_new(&mut self, need: usize) -> usize {
+        if self.text.is_empty() {
+            self.text.push(String::new());
+        }
+        let last = self.text.len() - 1;
+        let t = &mut self.text[last];
+        let len = t.len();
+        if len + need <= t.capacity() {
+            return last;
+        }
+        if t.capacity() < TEXT_CHUNK && len + need <= TEXT_CHUNK {
+            let want = (t.capacity() * 2).max(len + need).max(64).min(TEXT_CHUNK);
+            t.reserve_exact(want - len);
+            return last;
+        }
+        self.text.push(String::with_capacity(need.max(TEXT_CHUNK)));
+        last + 1
+    }
+
+    /// Writes a finding's own texts (see [`Rec`]). Gives where they are: the piece, where
+    /// they start in it, their lengths and which of net and pins the finding has.
+    fn put_texts(&mut self, message: &str, net: Option<&str>, pins: Option<&str>) -> Texts {
+        let lens = [
+            message.len(),
+            net.map_or(0, str::len),
+            pins.map_or(0, str::len),
+        ];
+        let long = lens.iter().any(|&l| l >= usize::from(u16::MAX));
+        if !long {
+            let piece = self.text_room(lens[0] + lens[1] + lens[2]);
+            let t = &mut self.text[piece];
+            let at = t.len() as u32;
+            for x in [message, net.unwrap_or(""), pins.unwrap_or("")] {
+                if !x.is_empty() {
+                    t.push_str(x);
+                }
+            }
+            return Texts {
+                piece: piece_number(piece),
+                at,
+                lens: lens.map(|l| l as u16),
+                has: net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS),
+            };
+        }
+        let mut need = lens.iter().sum::<usize>();
+        if long {
+            need += lens.iter().map(|&l| len_size(l)).sum::<usize>();
+        }
+        let piece = self.text_room(need);
+        let t = &mut self.text[piece];
+        let at = t.len() as u32;
+        if long {
+            put_len(t, message.len());
+            for x in [net, pins].into_iter().flatten() {
+                put_len(t, x.len());
+            }
+        }
+        t.push_str(message);
+        for x in [net, pins].into_iter().flatten() {
+            t.push_str(x);
+        }
+        let has =
+            net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS) | if long { LONG } else { 0 };
+        Texts {
+            piece: piece_number(piece),
+            at,
+            lens: if long { [0; 3] } else { lens.map(|l| l as u16) },
+            has,
+        }
+    }
+
+    /// Writes the places gathered in `label_buf` into the last piece of the places, or a new
+    /// one as [`DiagList::text_room`] chooses for the text. Gives where the first is and how
+    /// many there are.
+    fn put_labels(&mut self) -> (u32, u16) {
+        let n = self.label_buf.len();
+        if n == 0 {
+            return (0, 0);
+        }
+        let last = self.label_room(n);
+        let l = &mut self.labels[last];
+        let from = l.len() as u32;
+        l.extend_from_slice(&self.label_buf);
+        self.label_buf.clear();
+        // `push_label` keeps at most `u16::MAX` places
+        (((last as u32) << LABEL_SHIFT) | from, n as u16)
+    }
+
+    /// The piece of the places `n` more are written into, chosen as [`DiagList::text_room`]
+    /// chooses for the text.
+    #[inline]
+    fn label_room(&mut self, n: usize) -> usize {
+        match self.labels.last() {
+            Some(l) if l.len() + n <= l.capacity() => self.labels.len() - 1,
+            _ => self.label_room_new(n),
+        }
+    }
+
+    /// [`DiagList::label_room`] when the last piece is full (or there is none).
+    #[cold]
+    fn label_room_new(&mut self, n: usize) -> usize {
+        if self.labels.is_empty() {
+            self.labels.push(Vec::new());
+        }
+        let last = self.labels.len() - 1;
+        let l = &mut self.labels[last];
+        let len = l.len();
+        if len + n <= l.capacity() {
+            return last;
+        }
+        if l.capacity() < LABEL_CHUNK && len + n <= LABEL_CHUNK {
+            let want = (l.capacity() * 2).max(len + n).max(16).min(LABEL_CHUNK);
+            l.reserve_exact(want - len);
+            return last;
+        }
+        self.labels.push(Vec::with_capacity(n.max(LABEL_CHUNK)));
+        last + 1
+    }
+
+    /// The number of the set of shared texts `s` (added the first time).
+    fn shape(&mut self, s: Shape) -> u32 {
+        // findings of many kinds come in turn (the gates of parts): the set last given with
+        // the same most telling text (the message's tail, else its head, help or code) is
+        // tried first, with no hashing
+        let key = if s.tail != NONE {
+            s.tail
+        } else if s.head != NONE {
+            s.head
+        } else if s.help != NONE {
+            s.help
+        } else {
+            s.code
+        } as usize;
+        if let Some(&id) = self.shape_hint.get(key) {
+            if self.shapes.get(id as usize) == Some(&s) {
+                return id;
+            }
+        }
+        let h = rustc_hash::FxBuildHasher.hash_one(s);
+        let shapes = &self.shapes;
+        let id = match self.shape_index.find(h, |&i| shapes[i as usize] == s) {
+            Some(&i) => i,
+            None => {
+                let i = self.shapes.len() as u32;
+                self.shapes.push(s);
+                let shapes = &self.shapes;
+                self.shape_index.insert_unique(h, i, |&j| {
+                    rustc_hash::FxBuildHasher.hash_one(shapes[j as usize])
+                });
+                i
+            }
+        };
+        if self.shape_hint.len() <= key {
+            self.shape_hint.resize(self.shared.len().max(key + 1), NONE);
+        }
+        self.shape_hint[key] = id;
+        id
+    }
+
+    /// Ends a finding whose texts are written and whose places are gathered.
+    fn finish(&mut self, texts: Texts, shape: Shape, severity: Severity) {
+        let (first_label, labels) = self.put_labels();
+        self.end(texts, first_label, labels, shape, severity);
+    }
+
+    /// Ends a finding whose texts and places are written.
+    fn end(
+        &mut self,
+        texts: Texts,
+        first_label: u32,
+        labels: u16,
+        shape: Shape,
+        severity: Severity,
+    ) {
+        let shape = self.shape(shape);
+        let [message, net, pins] = texts.lens;
+        self.push_rec(Rec {
+            at: texts.at,
+            piece: texts.piece,
+            labels,
+            first_label,
+            shape,
+            message,
+            net,
+            pins,
+            severity,
+            has: texts.has,
+        });
     }
 
     /// The number of the shared text `s` (added the first time it is given). `slot` says
@@ -300,16 +574,6 @@ impl DiagList {
         }
     }
 
-    fn own(&mut self, s: Option<&str>) -> u32 {
-        match s {
-            Some(s) => {
-                self.text_mut().push_str(s);
-                s.len() as u32
-            }
-            None => NONE,
-        }
-    }
-
     /// Adds a finding at the end.
     pub fn push(&mut self, d: Diag) {
         self.push_parts(&d, &d.message, Around::default());
@@ -322,10 +586,7 @@ impl DiagList {
     }
 
     fn push_view(&mut self, d: DiagRef<'_>, message: &str, around: Around<'_>) {
-        let (start, first_label) = self.begin();
-        let message = self.own(Some(message));
-        let net = self.own(d.net());
-        let pins = self.own(d.pin_text());
+        let texts = self.put_texts(message, d.net(), d.pin_text());
         let code = match d.0 {
             Inner::One(one) => self.share_cow(&one.code, 0),
             Inner::In(..) => self.share(d.code(), None, 0),
@@ -336,45 +597,34 @@ impl DiagList {
         };
         let head = around.head.map(|t| self.share(t, Some(t), 2));
         let tail = around.tail.map(|t| self.share(t, Some(t), 3));
-        let mut labels = 0u16;
         match d.0 {
             Inner::One(one) => {
                 for (k, l) in one.labels.iter().enumerate() {
                     let text = self.share_cow(&l.text, 4 + k.min(1));
-                    self.push_label(l.span, text, l.primary, &mut labels);
+                    self.push_label(l.span, text, l.primary);
                 }
             }
             Inner::In(..) => {
                 for (k, l) in d.labels().enumerate() {
                     let text = self.share(l.text, None, 4 + k.min(1));
-                    self.push_label(l.span, text, l.primary, &mut labels);
+                    self.push_label(l.span, text, l.primary);
                 }
             }
         }
-        self.push_rec(Rec {
-            start,
-            message,
-            net,
-            pins,
+        let shape = Shape {
             code,
             help: help.unwrap_or(NONE),
             head: head.unwrap_or(NONE),
             tail: tail.unwrap_or(NONE),
-            first_label,
-            labels,
-            severity: d.severity(),
-        });
+        };
+        self.finish(texts, shape, d.severity());
     }
 
-    fn push_label(&mut self, span: Span, text: u32, primary: bool, n: &mut u16) {
+    /// Gathers a place of the finding being pushed.
+    fn push_label(&mut self, span: Span, text: u32, primary: bool) {
         // more places than a record counts are left out (no finding has near so many)
-        if *n < u16::MAX {
-            self.labels.last_mut().expect("begun").push(LabelRec {
-                span,
-                text,
-                primary,
-            });
-            *n += 1;
+        if self.label_buf.len() < usize::from(u16::MAX) {
+            self.label_buf.push(LabelRec::new(span, text, primary));
         }
     }
 
@@ -387,29 +637,22 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
         labels: impl IntoIterator<Item = (Span, &'static str, bool)>,
     ) {
-        let (start, first_label, message, net, pins) = self.begin_raw(raw.own, raw.net, pins);
+        let texts = self.put_raw_texts(raw.own, raw.net, pins);
         let code = self.share(raw.code, Some(&Text::Fixed(raw.code)), 0);
         let help = raw.help.map(|h| self.share(h, Some(h), 1));
         let head = raw.around.head.map(|t| self.share(t, Some(t), 2));
         let tail = raw.around.tail.map(|t| self.share(t, Some(t), 3));
-        let mut n = 0u16;
         for (k, (span, text, primary)) in labels.into_iter().enumerate() {
             let text = self.share(text, Some(&Text::Fixed(text)), 4 + k.min(1));
-            self.push_label(span, text, primary, &mut n);
+            self.push_label(span, text, primary);
         }
-        self.push_rec(Rec {
-            start,
-            message,
-            net,
-            pins,
+        let shape = Shape {
             code,
             help: help.unwrap_or(NONE),
             head: head.unwrap_or(NONE),
             tail: tail.unwrap_or(NONE),
-            first_label,
-            labels: n,
-            severity: raw.severity,
-        });
+        };
+        self.finish(texts, shape, raw.severity);
     }
 
     /// Adds a finding written straight into the list as [`DiagList::push_raw`] does, its
@@ -421,64 +664,106 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
         labels: impl IntoIterator<Item = (Span, SharedId, bool)>,
     ) {
-        let (start, first_label, message, net, pins) = self.begin_raw(raw.own, raw.net, pins);
-        let mut n = 0u16;
-        for (span, text, primary) in labels {
-            let text = self.shared_id(text);
-            self.push_label(span, text, primary, &mut n);
-        }
+        let texts = self.put_raw_texts(raw.own, raw.net, pins);
         let id = |s: Option<SharedId>| s.map_or(NONE, |s| self.shared_id(s));
-        let (code, help, head, tail) = (
-            self.shared_id(raw.code),
-            id(raw.help),
-            id(raw.head),
-            id(raw.tail),
-        );
-        self.push_rec(Rec {
-            start,
-            message,
-            net,
-            pins,
-            code,
-            help,
-            head,
-            tail,
-            first_label,
-            labels: n,
-            severity: raw.severity,
-        });
+        let shape = Shape {
+            code: self.shared_id(raw.code),
+            help: id(raw.help),
+            head: id(raw.head),
+            tail: id(raw.tail),
+        };
+        let labels = labels.into_iter();
+        let (n, most) = labels.size_hint();
+        if most != Some(n) || n > usize::from(u16::MAX) {
+            for (span, text, primary) in labels {
+                let text = self.shared_id(text);
+                self.push_label(span, text, primary);
+            }
+            self.finish(texts, shape, raw.severity);
+            return;
+        }
+        // as many places as the iterator tells: written straight into their piece
+        let token = self.token;
+        let (first_label, count) = if n == 0 {
+            (0, 0)
+        } else {
+            let piece = self.label_room(n);
+            let l = &mut self.labels[piece];
+            let from = l.len();
+            for (span, text, primary) in labels.take(n) {
+                assert_eq!(text.list, token, "a shared text of another list");
+                l.push(LabelRec::new(span, text.id, primary));
+            }
+            (
+                ((piece as u32) << LABEL_SHIFT) | from as u32,
+                (l.len() - from) as u16,
+            )
+        };
+        self.end(texts, first_label, count, shape, raw.severity);
     }
 
-    /// Starts a finding written straight into the list: its own words, net and pins (each
-    /// as pieces joined). Gives where its texts start, its first place and the lengths of
-    /// its message, net and pins.
-    fn begin_raw<'p>(
+    /// Writes the own texts of a finding written straight into the list: its own words, net
+    /// and pins (each as pieces joined, gathered first in `pin_buf`).
+    fn put_raw_texts<'p>(
         &mut self,
         own: &str,
         net: Option<&str>,
         pins: impl IntoIterator<Item = [&'p str; 3]>,
-    ) -> (u64, u32, u32, u32, u32) {
-        let (start, first_label) = self.begin();
-        let message = self.own(Some(own));
-        let net = self.own(net);
-        let text = self.text_mut();
-        let pins_at = text.len();
-        let mut any = false;
-        for p in pins {
+    ) -> Texts {
+        // written straight into the last piece while they fit in it; otherwise (the piece
+        // is full, or a text is long) gathered in `pin_buf` and written as a whole
+        let net_text = net.unwrap_or("");
+        let piece = self.text_room(own.len() + net_text.len());
+        let t = &mut self.text[piece];
+        let at = t.len();
+        if !own.is_empty() {
+            t.push_str(own);
+        }
+        if !net_text.is_empty() {
+            t.push_str(net_text);
+        }
+        let pins_at = t.len();
+        let mut pins = pins.into_iter();
+        let (mut any, mut spilt) = (false, None);
+        for p in pins.by_ref() {
+            let need = usize::from(any) + p[0].len() + p[1].len() + p[2].len();
+            if t.len() + need > t.capacity() {
+                spilt = Some(p);
+                break;
+            }
             if any {
-                text.push(super::PIN_SEP);
+                t.push(super::PIN_SEP);
             }
             any = true;
-            for piece in p {
-                text.push_str(piece);
+            for x in p {
+                t.push_str(x);
             }
         }
-        let pins = if any {
-            (text.len() - pins_at) as u32
-        } else {
-            NONE
-        };
-        (start, first_label, message, net, pins)
+        let lens = [own.len(), net_text.len(), t.len() - pins_at];
+        if spilt.is_none() && lens.iter().all(|&l| l < usize::from(u16::MAX)) {
+            return Texts {
+                piece: piece_number(piece),
+                at: at as u32,
+                lens: lens.map(|l| l as u16),
+                has: net.map_or(0, |_| HAS_NET) | if any { HAS_PINS } else { 0 },
+            };
+        }
+        let mut buf = std::mem::take(&mut self.pin_buf);
+        buf.clear();
+        buf.push_str(&t[pins_at..]);
+        t.truncate(at);
+        for p in spilt.into_iter().chain(pins) {
+            if any {
+                buf.push(super::PIN_SEP);
+            }
+            any = true;
+            for x in p {
+                buf.push_str(x);
+            }
+        }
+        let texts = self.put_texts(own, net, any.then_some(buf.as_str()));
+        self.pin_buf = buf;
+        texts
     }
 
     /// Adds a copy of a finding read from another list (or a single one).
@@ -498,7 +783,7 @@ impl DiagList {
 
     /// The finding at `i`.
     pub fn get(&self, i: usize) -> Option<DiagRef<'_>> {
-        (i < self.len).then(|| DiagRef(Inner::In(self, self.rec(i))))
+        (i < self.len).then(|| DiagRef::in_list(self, self.rec(i)))
     }
 
     /// The findings, in order.
@@ -527,7 +812,7 @@ impl DiagList {
         // the kept records are moved down in place
         let mut kept = 0;
         for i in 0..self.len {
-            if keep(DiagRef(Inner::In(self, self.rec(i)))) {
+            if keep(DiagRef::in_list(self, self.rec(i))) {
                 let r = *self.rec(i);
                 *self.rec_mut(kept) = r;
                 kept += 1;
@@ -581,10 +866,24 @@ impl DiagList {
 
     /// The list held to its length (it is kept to the end of the run).
     pub fn shrink_to_fit(&mut self) {
-        // the pieces stay as they are: shrinking one would copy it
+        // only the last pieces have room left (a finding that did not fit in a piece started
+        // a new one, and the others are full but for less than a finding); the allocator
+        // gives the end of a block back in place
+        if let Some(r) = self.recs.last_mut() {
+            r.shrink_to_fit();
+        }
+        if let Some(l) = self.labels.last_mut() {
+            l.shrink_to_fit();
+        }
+        if let Some(t) = self.text.last_mut() {
+            t.shrink_to_fit();
+        }
         self.recs.shrink_to_fit();
         self.labels.shrink_to_fit();
         self.text.shrink_to_fit();
+        self.shapes.shrink_to_fit();
+        self.pin_buf = String::new();
+        self.label_buf = Vec::new();
     }
 
     /// The bytes the list holds, for measuring.
@@ -594,6 +893,11 @@ impl DiagList {
             + self.text.iter().map(|t| t.capacity()).sum::<usize>()
             + self.shared.capacity() * size_of::<Text>()
             + self.index.capacity() * size_of::<u32>()
+            + self.shapes.capacity() * size_of::<Shape>()
+            + self.shape_index.capacity() * size_of::<u32>()
+            + self.shape_hint.capacity() * size_of::<u32>()
+            + self.pin_buf.capacity()
+            + self.label_buf.capacity() * size_of::<LabelRec>()
     }
 }
 
@@ -666,7 +970,7 @@ impl<'a> Iterator for Iter<'a> {
             return None;
         }
         self.front += 1;
-        Some(DiagRef(Inner::In(self.list, self.list.rec(self.front - 1))))
+        Some(DiagRef::in_list(self.list, self.list.rec(self.front - 1)))
     }
     fn size_hint(&self) -> (usize, Option<usize>) {
         (self.back - self.front, Some(self.back - self.front))
@@ -681,7 +985,7 @@ impl<'a> DoubleEndedIterator for Iter<'a> {
             return None;
         }
         self.back -= 1;
-        Some(DiagRef(Inner::In(self.list, self.list.rec(self.back))))
+        Some(DiagRef::in_list(self.list, self.list.rec(self.back)))
     }
 }
 
@@ -710,18 +1014,44 @@ impl<'a> From<&'a Diag> for DiagRef<'a> {
 }
 
 impl<'a> DiagRef<'a> {
-    fn own(list: &'a DiagList, r: &Rec, skip: usize, len: u32) -> Option<&'a str> {
-        if len == NONE {
-            return None;
+    /// The finding of `list` whose record is `r`.
+    fn in_list(list: &'a DiagList, r: &'a Rec) -> DiagRef<'a> {
+        DiagRef(Inner::In(list, r))
+    }
+
+    /// A finding's own texts in the list: its piece of text, where they start in it, and the
+    /// lengths of the message's own part, the net and the pin list (0 for none).
+    #[inline]
+    fn own(list: &'a DiagList, r: &Rec) -> (&'a str, usize, [usize; 3]) {
+        let text = &list.text[usize::from(r.piece)];
+        if r.has & LONG == 0 {
+            let lens = [r.message, r.net, r.pins].map(usize::from);
+            return (text, r.at as usize, lens);
         }
-        let text = &list.text[(r.start >> 32) as usize];
-        let mut at = (r.start & 0xffff_ffff) as usize;
-        for l in [r.message, r.net, r.pins].into_iter().take(skip) {
-            if l != NONE {
-                at += l as usize;
-            }
-        }
-        Some(&text[at..at + len as usize])
+        Self::own_long(text, r)
+    }
+
+    /// [`DiagRef::own`] of a finding whose lengths are written before its texts.
+    #[cold]
+    fn own_long(text: &'a str, r: &Rec) -> (&'a str, usize, [usize; 3]) {
+        let mut at = r.at as usize;
+        let b = text.as_bytes();
+        let message = get_len(b, &mut at);
+        let net = if r.has & HAS_NET != 0 {
+            get_len(b, &mut at)
+        } else {
+            0
+        };
+        let pins = if r.has & HAS_PINS != 0 {
+            get_len(b, &mut at)
+        } else {
+            0
+        };
+        (text, at, [message, net, pins])
+    }
+
+    fn shape(list: &'a DiagList, r: &Rec) -> Shape {
+        list.shapes[r.shape as usize]
     }
 
     fn shared(list: &'a DiagList, id: u32) -> Option<&'a str> {
@@ -729,13 +1059,15 @@ impl<'a> DiagRef<'a> {
     }
 
     /// Stable kebab-case id, e.g. `unclosed-list` or `floating-cmos-input`.
+    #[inline]
     pub fn code(&self) -> &'a str {
         match self.0 {
             Inner::One(d) => &d.code,
-            Inner::In(l, r) => &l.shared[r.code as usize],
+            Inner::In(l, r) => &l.shared[Self::shape(l, r).code as usize],
         }
     }
 
+    #[inline]
     pub fn severity(&self) -> Severity {
         match self.0 {
             Inner::One(d) => d.severity,
@@ -744,24 +1076,30 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The finding's own words of the message (without the parts it shares).
+    #[inline]
     fn own_message(&self) -> &'a str {
         match self.0 {
             Inner::One(d) => &d.message,
-            Inner::In(l, r) => Self::own(l, r, 0, r.message).unwrap_or(""),
+            Inner::In(l, r) => {
+                let (text, at, [m, _, _]) = Self::own(l, r);
+                &text[at..at + m]
+            }
         }
     }
 
+    #[inline]
     fn head(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(_) => None,
-            Inner::In(l, r) => Self::shared(l, r.head),
+            Inner::In(l, r) => Self::shared(l, Self::shape(l, r).head),
         }
     }
 
+    #[inline]
     fn tail(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(_) => None,
-            Inner::In(l, r) => Self::shared(l, r.tail),
+            Inner::In(l, r) => Self::shared(l, Self::shape(l, r).tail),
         }
     }
 
@@ -793,6 +1131,7 @@ impl<'a> DiagRef<'a> {
     pub fn labels(&self) -> Labels<'a> {
         match self.0 {
             Inner::One(d) => Labels(LabelsInner::One(d.labels.iter())),
+            Inner::In(l, r) if r.labels == 0 => Labels(LabelsInner::In(l, [].iter())),
             Inner::In(l, r) => {
                 let piece = &l.labels[(r.first_label >> LABEL_SHIFT) as usize];
                 let from = (r.first_label & ((1 << LABEL_SHIFT) - 1)) as usize;
@@ -804,34 +1143,45 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    #[inline]
     pub fn help(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.help.as_deref(),
-            Inner::In(l, r) => Self::shared(l, r.help),
+            Inner::In(l, r) => Self::shared(l, Self::shape(l, r).help),
         }
     }
 
     /// The net the finding is about, by name.
+    #[inline]
     pub fn net(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.net.as_deref(),
-            Inner::In(l, r) => Self::own(l, r, 1, r.net),
+            Inner::In(l, r) => (r.has & HAS_NET != 0).then(|| {
+                let (text, at, [m, n, _]) = Self::own(l, r);
+                &text[at + m..at + m + n]
+            }),
         }
     }
 
+    #[inline]
     fn pin_text(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.pins.0.as_deref(),
-            Inner::In(l, r) => Self::own(l, r, 2, r.pins),
+            Inner::In(l, r) => (r.has & HAS_PINS != 0).then(|| {
+                let (text, at, [m, n, p]) = Self::own(l, r);
+                &text[at + m + n..at + m + n + p]
+            }),
         }
     }
 
     /// The pins involved, as `REF.PIN`, the offending one first.
+    #[inline]
     pub fn pins(&self) -> Pins<'a> {
         Pins(self.pin_text())
     }
 
     /// True when the finding names any pin.
+    #[inline]
     pub fn has_pins(&self) -> bool {
         self.pin_text().is_some()
     }
@@ -920,8 +1270,8 @@ impl<'a> Iterator for Labels<'a> {
             }),
             LabelsInner::In(list, it) => it.next().map(|l| LabelRef {
                 span: l.span,
-                text: &list.shared[l.text as usize],
-                primary: l.primary,
+                text: &list.shared[l.text() as usize],
+                primary: l.primary(),
             }),
         }
     }
@@ -946,8 +1296,8 @@ mod tests {
     /// A finding held in a list costs its record and its places, and no allocation.
     #[test]
     fn records_stay_small() {
-        assert!(size_of::<Rec>() <= 48, "{}", size_of::<Rec>());
-        assert!(size_of::<LabelRec>() <= 16, "{}", size_of::<LabelRec>());
+        assert!(size_of::<Rec>() <= 24, "{}", size_of::<Rec>());
+        assert!(size_of::<LabelRec>() <= 12, "{}", size_of::<LabelRec>());
         assert!(size_of::<DiagRef>() <= 24);
     }
 
@@ -1000,6 +1350,112 @@ mod tests {
             copy.push_ref(r);
         }
         assert!(copy.iter().rev().eq(list.iter()));
+    }
+
+    /// Every way into the list (a `Diag`, a finding written straight in, one with shared
+    /// numbers, a copy from another list) reads back as the `Diag` it stands for: short
+    /// findings, findings with a message, net or pin list of 65 535 bytes or more (their
+    /// lengths written before their words), and findings whose pins do not fit in what is left
+    /// of a piece. No piece grows past the size it was made with, but a piece made for one
+    /// finding larger than a whole piece.
+    #[test]
+    fn every_way_in_reads_back_as_the_finding_it_stands_for() {
+        let long = |c: &str, n: usize| c.repeat(n);
+        let mut list = DiagList::new();
+        let code = list.share_id(&Text::Fixed(A));
+        let (head, tail) = (
+            list.share_id(&Text::Fixed("gate A of ")),
+            list.share_id(&Text::from(String::from(" is unused"))),
+        );
+        let (first, other) = (
+            list.share_id(&Text::Fixed("unused gate")),
+            list.share_id(&Text::Fixed("")),
+        );
+        let mut want = Vec::new();
+        for i in 0..200usize {
+            // own words, net and pins: short mostly, long now and then, in every mix
+            let own = if i % 37 == 3 {
+                long("o", 70_000)
+            } else {
+                format!("U{i}")
+            };
+            let net = match i % 5 {
+                0 => None,
+                1 if i % 3 == 0 => Some(long("n", 66_000)),
+                _ => Some(format!("N{i}")),
+            };
+            let pin_count = if i % 23 == 5 { 10_000 } else { i % 4 };
+            let pins: Vec<String> = (0..pin_count).map(|k| format!("{own}.{k}")).collect();
+            let spans = [Span::new(i, i + 1), Span::new(i + 5, i + 9)];
+            let mut d = Diag::error(A, format!("gate A of {own} is unused"))
+                .at(spans[0], "unused gate")
+                .also(spans[1], "")
+                .with_pins(&pins);
+            if let Some(n) = &net {
+                d = d.on_net(n.clone());
+            }
+            match i % 4 {
+                0 => list.push_shared(
+                    RawShared {
+                        code,
+                        severity: Severity::Error,
+                        head: Some(head),
+                        own: &own,
+                        tail: Some(tail),
+                        help: None,
+                        net: net.as_deref(),
+                    },
+                    pins.iter().map(|p| {
+                        let (r, n) = p.split_once('.').unwrap();
+                        [r, ".", n]
+                    }),
+                    // an iterator that does not tell its length, now and then
+                    [(spans[0], first, true), (spans[1], other, false)]
+                        .into_iter()
+                        .filter(|_| true)
+                        .take(if i % 8 == 0 { 2 } else { usize::MAX }),
+                ),
+                1 => list.push_raw(
+                    Raw {
+                        code: A,
+                        severity: Severity::Error,
+                        around: Around {
+                            head: Some(&Text::Fixed("gate A of ")),
+                            tail: Some(&Text::Fixed(" is unused")),
+                        },
+                        own: &own,
+                        help: None,
+                        net: net.as_deref(),
+                    },
+                    pins.iter().map(|p| {
+                        let (r, n) = p.split_once('.').unwrap();
+                        [r, ".", n]
+                    }),
+                    [(spans[0], "unused gate", true), (spans[1], "", false)],
+                ),
+                2 => list.push(d.clone()),
+                _ => {
+                    let mut one = DiagList::new();
+                    one.push(d.clone());
+                    list.push_ref(one.get(0).unwrap());
+                }
+            }
+            want.push(d);
+        }
+        assert_eq!(list.len(), want.len());
+        for (i, (r, d)) in list.iter().zip(&want).enumerate() {
+            assert_eq!(r, d.view(), "{i}");
+            assert_eq!(r.to_diag().view(), d.view(), "{i}");
+        }
+        for t in &list.text {
+            assert!(t.capacity() <= TEXT_CHUNK || t.len() == t.capacity());
+        }
+        for l in &list.labels {
+            assert!(l.capacity() <= LABEL_CHUNK);
+        }
+        // cut to their length, the same findings
+        list.shrink_to_fit();
+        assert!(list.iter().zip(&want).all(|(r, d)| r == d.view()));
     }
 
     #[test]

@@ -316,7 +316,8 @@ pub fn fingerprint_hashes(f: &FileOutcome) -> Vec<u64> {
 }
 
 /// [`fingerprint_hashes`] one at a time, in order, for a reporter that writes each as it
-/// goes: only the table of the keys met so far is held, not a list as long as the findings.
+/// goes: the hashes are worked out once, and only keys that may be met more than once are
+/// looked up ([`key_ranks`]).
 pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ {
     key_ranks(f, fingerprint_hash).map(|(h, n)| {
         // the hash of the key, carried on over `\u{1d}<rank>` for a repeated key
@@ -332,12 +333,13 @@ pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ 
 /// when the finding names a net or a pin (`key` is then left as it was); otherwise of the key
 /// written into `key`.
 fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut String) -> u64 {
-    if d.net().is_none() && !d.has_pins() {
+    let net = d.net();
+    if net.is_none() && !d.has_pins() {
         write_fingerprint_key(d, source, key);
         return fnv1a64(key.as_bytes());
     }
     let mut h = fnv1a64_more(fnv1a64(d.code().as_bytes()), b"\x1f");
-    h = fnv1a64_more(h, d.net().unwrap_or("").as_bytes());
+    h = fnv1a64_more(h, net.unwrap_or("").as_bytes());
     for p in d.pins() {
         h = fnv1a64_more(fnv1a64_more(h, b"\x1f"), p.as_bytes());
     }
@@ -347,46 +349,75 @@ fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut Strin
 /// Each finding's `hash` of its key, and its rank among the file's findings with that key,
 /// in order.
 ///
-/// Keys are counted by their hash, each hash with the first finding that had it; a hash met
-/// again is checked against that finding's key, and a different key with the same hash is
-/// counted apart by its text. No key is kept as text unless two differ with one hash. The
-/// table holds the first finding and the count in two `u32`s (a file's findings are counted
-/// in `u32` everywhere a reporter numbers them), sixteen bytes a key with its hash.
+/// Most keys are met once. The hashes are worked out first, in order, and each marks a slot
+/// of a table of two bits a slot (eight slots a finding), by its hash: met, and met again. A
+/// finding whose slot was met once has a key no other finding has: rank 0, with nothing
+/// looked up. Only the others are counted, by hash, each hash with the first finding that had
+/// it; a hash met again is checked against that finding's key, and a different key with the
+/// same hash is counted apart by its text. Findings with one key have one hash and one slot,
+/// so all of them are counted. What is held is eight bytes a finding for its hash, a quarter
+/// of that for the slots, and the table of the findings counted; no key is kept as text
+/// unless two differ with one hash.
 fn key_ranks(
     f: &FileOutcome,
     hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64,
 ) -> impl Iterator<Item = (u64, usize)> + '_ {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
-    // hash -> (the first finding with it, how many findings had its key so far)
-    let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
-    seen.reserve(f.diags.len());
-    let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
     let (mut key, mut first_key) = (String::new(), String::new());
-    f.diags.iter().enumerate().map(move |(i, d)| {
-        let h = hash(d, source, &mut key);
-        let n = match seen.entry(h) {
-            Entry::Vacant(e) => {
-                e.insert((i as u32, 1));
-                0
+    let hashes: Vec<u64> = f.diags.iter().map(|d| hash(d, source, &mut key)).collect();
+    // a power of two, at least eight slots a finding
+    let bits = (hashes.len() * 8)
+        .next_power_of_two()
+        .max(64)
+        .trailing_zeros();
+    let slot = move |h: u64| (h.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - bits)) as usize;
+    let mut slots = vec![0u64; (1usize << bits) / 32];
+    for &h in &hashes {
+        let s = slot(h);
+        let (word, at) = (s / 32, 2 * (s % 32));
+        // met (01), then met again (11)
+        let met = (slots[word] >> at) & 1;
+        slots[word] |= (1 | (met << 1)) << at;
+    }
+    let again = move |h: u64| {
+        let s = slot(h);
+        (slots[s / 32] >> (2 * (s % 32))) & 2 != 0
+    };
+    // a hash of a finding counted -> (the first finding with it, how many findings had its
+    // key so far)
+    let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
+    let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
+    f.diags
+        .iter()
+        .zip(hashes)
+        .enumerate()
+        .map(move |(i, (d, h))| {
+            if !again(h) {
+                return (h, 0);
             }
-            Entry::Occupied(mut e) => {
-                let (first, count) = e.get_mut();
-                write_fingerprint_key(d, source, &mut key);
-                let first_d = f.diags.get(*first as usize).expect("an earlier finding");
-                write_fingerprint_key(first_d, source, &mut first_key);
-                if first_key == key {
-                    *count += 1;
-                    *count as usize - 1
-                } else {
-                    let n = collided.entry(key.clone()).or_insert(0);
-                    *n += 1;
-                    *n - 1
+            let n = match seen.entry(h) {
+                Entry::Vacant(e) => {
+                    e.insert((i as u32, 1));
+                    0
                 }
-            }
-        };
-        (h, n)
-    })
+                Entry::Occupied(mut e) => {
+                    let (first, count) = e.get_mut();
+                    write_fingerprint_key(d, source, &mut key);
+                    let first_d = f.diags.get(*first as usize).expect("an earlier finding");
+                    write_fingerprint_key(first_d, source, &mut first_key);
+                    if first_key == key {
+                        *count += 1;
+                        *count as usize - 1
+                    } else {
+                        let n = collided.entry(key.clone()).or_insert(0);
+                        *n += 1;
+                        *n - 1
+                    }
+                }
+            };
+            (h, n)
+        })
 }
 
 /// The fingerprint of a file's fatal diagnostic.
