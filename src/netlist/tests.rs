@@ -463,7 +463,10 @@ fn pin_numbers_and_names_resolve_through_libpin_or_node() {
 fn a_pin_reads_back_what_it_was_made_from() {
     let conn = Connection::Net { net: 7, node: 3 };
     for (i, &t) in PinType::ALL.iter().enumerate() {
-        assert_eq!(t as usize, i, "PinType::ALL is in the order of the types' numbers");
+        assert_eq!(
+            t as usize, i,
+            "PinType::ALL is in the order of the types' numbers"
+        );
         for nc in [false, true] {
             for g in [0, 1, 12_345, NONE - 1] {
                 let p = CompPin::from_libpin(g, t, nc, conn);
@@ -507,9 +510,15 @@ fn fields_then_properties_in_one_list() {
                 ("dnp", None)
             ]
         );
-        assert_eq!(u1.field("note").unwrap().value.as_ref().unwrap().as_str(), "a");
+        assert_eq!(
+            u1.field("note").unwrap().value.as_ref().unwrap().as_str(),
+            "a"
+        );
         assert!(u1.field("DNP").is_some_and(|f| f.value.is_none()));
-        assert!(u1.field("datasheet").is_none(), "the data-sheet link is not a field");
+        assert!(
+            u1.field("datasheet").is_none(),
+            "the data-sheet link is not a field"
+        );
     }
 }
 
@@ -521,7 +530,10 @@ fn every_pin_points_at_its_own_node_on_a_large_board() {
     let text = crate::synth::netlist(20 << 20);
     let nl = stream::read(&text).unwrap();
     let nodes = nl.all_nodes().len();
-    assert!(nodes > 2 << 16, "{nodes} nodes: too few to give the list back in steps");
+    assert!(
+        nodes > 2 << 16,
+        "{nodes} nodes: too few to give the list back in steps"
+    );
     let mut on_nets = 0;
     for (ci, c) in nl.components.iter().enumerate() {
         for p in c.pins.iter() {
