@@ -17,7 +17,12 @@
 //! the bench's own peak memory, which Linux counts into every later child's, stays small).
 //! CPU time (user + system) and peak memory (maximum resident set size) are each child's own,
 //! from `wait4` (microsecond CPU times, so even the 0.05 s runs of the smallest files
-//! compare); where the system has no `wait4` they are shown as n/a.
+//! compare); where the system has no `wait4` they are shown as n/a. A second table splits
+//! each check's CPU time into user and system time and sets beside it what this machine
+//! takes to give a process that does nothing else the check's peak of fresh memory
+//! (`NETMARGIN_BENCH_TOUCH`: the bench, as a child of itself, takes that many bytes and touches
+//! each page once), so the part of a time ratio that is the system's page faults shows apart
+//! from the check's own work.
 
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
@@ -33,6 +38,10 @@ fn median(mut v: Vec<f64>) -> f64 {
 struct Timed {
     secs: f64,
     cpu: Option<f64>,
+    /// The CPU time's two parts: in the program itself, and in the kernel for it (mostly
+    /// giving it memory: a page's first touch).
+    user: Option<f64>,
+    sys: Option<f64>,
     peak_kb: Option<u64>,
     code: Option<i32>,
 }
@@ -77,6 +86,8 @@ fn run(program: &Path, args: &[&std::ffi::OsStr], envs: &[(&str, Option<&str>)])
         Timed {
             secs,
             cpu: Some(tv(usage.ru_utime) + tv(usage.ru_stime)),
+            user: Some(tv(usage.ru_utime)),
+            sys: Some(tv(usage.ru_stime)),
             // Linux reports kilobytes
             peak_kb: Some(usage.ru_maxrss as u64),
             code: std::process::ExitStatus::from_raw(status).code(),
@@ -89,6 +100,8 @@ fn run(program: &Path, args: &[&std::ffi::OsStr], envs: &[(&str, Option<&str>)])
         Timed {
             secs: t.elapsed().as_secs_f64(),
             cpu: None,
+            user: None,
+            sys: None,
             peak_kb: None,
             code: status.code(),
         }
@@ -167,6 +180,20 @@ const READ_ONLY: &str = "NETMARGIN_BENCH_READ_AND_MODEL";
 /// same files in the same run, for before-and-after figures.
 const BASELINE: &str = "NETMARGIN_BENCH_BASELINE";
 
+/// The environment variable that makes the bench, run as a child of itself, only take the
+/// number of bytes it gives from the system and touch each page once: what giving a process
+/// that much fresh memory costs on this machine, the check's work left out.
+const TOUCH: &str = "NETMARGIN_BENCH_TOUCH";
+
+fn touch(bytes: usize) {
+    // zeroed: the allocator maps fresh pages and writes none of them
+    let mut v = vec![0u8; bytes];
+    for i in (0..bytes).step_by(4096) {
+        v[i] = 1;
+    }
+    std::hint::black_box(&v);
+}
+
 fn read_and_model(path: &str) {
     let text = std::fs::read_to_string(path).expect("bench file");
     let nl = netmargin::netlist::read(&text).expect("a netlist");
@@ -200,6 +227,10 @@ fn mb(kb: Option<u64>) -> String {
 fn main() {
     if let Ok(path) = std::env::var(READ_ONLY) {
         read_and_model(&path);
+        return;
+    }
+    if let Some(bytes) = std::env::var(TOUCH).ok().and_then(|b| b.parse().ok()) {
+        touch(bytes);
         return;
     }
     if let Ok(spec) = std::env::var(GENERATE) {
@@ -278,8 +309,11 @@ fn main() {
     println!(
         "| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |{bs}"
     );
+    // where the check's CPU time goes, a row per file, printed after the main table
+    let mut split_rows: Vec<String> = Vec::new();
     for shape in &shapes {
         let mut prev: Option<(usize, f64)> = None;
+        let mut prev_split: Option<(usize, [f64; 4])> = None;
         let mut prev_base: Option<(usize, f64)> = None;
         for &size in &sizes {
             let (path, len) = big_file(&dir, shape, size);
@@ -310,6 +344,11 @@ fn main() {
             let (mut t_check, mut t_floor, mut peak) = (Vec::new(), Vec::new(), first.peak_kb);
             let mut floor_peak = floor_first.peak_kb;
             let (mut t_cpu, mut f_cpu) = (Vec::new(), Vec::new());
+            let (mut t_user, mut t_sys, mut t_touch) = (Vec::new(), Vec::new(), Vec::new());
+            // the fresh memory of the check's peak, taken and touched by a process that does
+            // nothing else
+            let touch_bytes = (first.peak_kb.unwrap_or(0) * 1024).to_string();
+            let touch_env = [(TOUCH, Some(touch_bytes.as_str()))];
             let (mut b_cost, mut b_peak) = (Vec::new(), None);
             // the smallest files run in well under a second: more runs steady their medians
             let n_runs = if size <= 5 { runs.max(5) } else { runs };
@@ -323,6 +362,11 @@ fn main() {
                 peak = peak.max(c.peak_kb);
                 t_check.push(c.secs);
                 t_cpu.extend(c.cpu);
+                t_user.extend(c.user);
+                t_sys.extend(c.sys);
+                if MEASURED {
+                    t_touch.extend(run(&exe, &[], &touch_env).cpu);
+                }
                 let f = run(&exe, &[], &floor_env);
                 floor_peak = floor_peak.max(f.peak_kb);
                 f_cpu.extend(f.cpu);
@@ -357,6 +401,35 @@ fn main() {
             } else {
                 String::new()
             };
+            if let (Some(cpu), false, false, false) =
+                (cpu, t_user.is_empty(), t_sys.is_empty(), t_touch.is_empty())
+            {
+                let now = [
+                    median(t_user.clone()),
+                    median(t_sys.clone()),
+                    median(t_touch.clone()),
+                    (cpu - median(t_touch.clone())).max(0.0),
+                ];
+                let x = |i: usize| match prev_split {
+                    Some((s0, t0)) if size == s0 * 10 && t0[i] > 0.0 => {
+                        format!("{:.1}", now[i] / t0[i])
+                    }
+                    _ => String::new(),
+                };
+                split_rows.push(format!(
+                    "| {shape} | {:.1} MB | {:.3} s | {:.3} s | {} | {} | {:.3} s | {} | {:.3} s | {} |",
+                    len as f64 / 1e6,
+                    now[0],
+                    now[1],
+                    x(0),
+                    x(1),
+                    now[2],
+                    x(2),
+                    now[3],
+                    x(3),
+                ));
+                prev_split = Some((size, now));
+            }
             let per_file = |k: Option<u64>| {
                 k.map_or("n/a".to_string(), |k| {
                     format!("{:.2} x", k as f64 * 1024.0 / len as f64)
@@ -378,6 +451,17 @@ fn main() {
                 per_file(peak),
                 per_file(floor_peak),
             );
+        }
+    }
+
+    if !split_rows.is_empty() {
+        println!();
+        println!("where the check's CPU time goes: user (the program) and system (the kernel, mostly giving it memory), medians; \"fresh memory\" is a process of the bench taking the check's peak from the system and touching each page once, nothing else; the last two columns are the check's CPU less that");
+        println!();
+        println!("| shape | file | user | system | user x for 10 x data | system x for 10 x data | fresh memory (CPU) | its x for 10 x data | check less fresh memory | its x for 10 x data |");
+        println!("| --- | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: | ---: |");
+        for row in &split_rows {
+            println!("{row}");
         }
     }
 
