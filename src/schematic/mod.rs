@@ -218,6 +218,44 @@ fn pin_net_name(
     }
 }
 
+/// Lists made for a use of a sheet, kept once for all the uses that share them and read by
+/// use (`x[use]`, `x.iter()` in the order of the uses).
+struct PerUse<T> {
+    sets: Vec<T>,
+    /// Each use's set.
+    of: Vec<u32>,
+}
+
+impl<T> Default for PerUse<T> {
+    fn default() -> Self {
+        PerUse {
+            sets: Vec::new(),
+            of: Vec::new(),
+        }
+    }
+}
+
+impl<T> PerUse<T> {
+    fn iter(&self) -> impl Iterator<Item = &T> {
+        self.of.iter().map(|&s| &self.sets[s as usize])
+    }
+}
+
+impl<T> std::ops::Index<usize> for PerUse<T> {
+    type Output = T;
+    fn index(&self, u: usize) -> &T {
+        &self.sets[self.of[u] as usize]
+    }
+}
+
+/// The power name of placed pin `k` among a set's (pin, name) pairs sorted by pin; empty
+/// for a pin that names no power net.
+fn power_name_of(names: &[(u32, String)], k: usize) -> &str {
+    names
+        .binary_search_by_key(&(k as u32), |e| e.0)
+        .map_or("", |i| names[i].1.as_str())
+}
+
 /// The candidate names of a piece group in one use: pins (placed pin, no-connect) apart,
 /// named only when nothing stronger names the group.
 #[derive(Default)]
@@ -255,10 +293,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut diags = project.diags.clone();
     let modern = project.sheets[0].version >= KICAD7;
 
-    // placements and pieces, per use
+    // placements per use; placed pins and pieces per use, kept once for the uses of a sheet
+    // file that place the same pins (a file used by several sheets, its units the same)
     let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
-    let mut pins_of: Vec<Vec<(u32, u32)>> = Vec::new(); // (placement, libpin) per placed pin
-    let mut pieces: Vec<Vec<connect::Piece>> = Vec::new();
+    // (placement, libpin) per placed pin
+    let mut pins_of: PerUse<Vec<(u32, u32)>> = PerUse::default();
+    let mut pieces: PerUse<Vec<connect::Piece>> = PerUse::default();
+    // the sets of pins made for each file so far
+    let mut sets_of_file: Vec<Vec<u32>> = vec![Vec::new(); project.sheets.len()];
     let v6 = v6_index(&project.sheets[0]);
     for u in &project.uses {
         let sh = &project.sheets[u.file];
@@ -335,15 +377,31 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 listed,
             });
         }
-        pieces.push(connect::pieces(sh, &at));
         placements.push(pls);
-        pins_of.push(which);
+        let known = sets_of_file[u.file]
+            .iter()
+            .copied()
+            .find(|&s| pins_of.sets[s as usize] == which);
+        match known {
+            Some(s) => {
+                pins_of.of.push(s);
+                pieces.of.push(s);
+            }
+            None => {
+                let s = pins_of.sets.len() as u32;
+                sets_of_file[u.file].push(s);
+                pieces.sets.push(connect::pieces(sh, &at));
+                pins_of.sets.push(which);
+                pins_of.of.push(s);
+                pieces.of.push(s);
+            }
+        }
     }
 
     // every piece of every use, then keys, in one union-find
-    let mut first: Vec<usize> = Vec::with_capacity(pieces.len());
+    let mut first: Vec<usize> = Vec::with_capacity(pieces.of.len());
     let mut n = 0;
-    for p in &pieces {
+    for p in pieces.iter() {
         first.push(n);
         n += p.len();
     }
@@ -362,10 +420,36 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let is_power_pin = |pl: &Placement<'_, '_>, lp: &sheet::LibPin<'_>| {
         lp.ptype == PinType::PowerIn && (lp.hidden || pl.lib.power != Power::No)
     };
-    let mut power_names: Vec<Vec<String>> = Vec::new();
+    // the power names of each set of pins, read in a use that has it
+    let mut power_names: PerUse<Vec<(u32, String)>> = PerUse {
+        sets: Vec::with_capacity(pieces.sets.len()),
+        of: pieces.of.clone(),
+    };
+    let mut first_use = vec![usize::MAX; pieces.sets.len()];
+    for (ui, &s) in pieces.of.iter().enumerate().rev() {
+        first_use[s as usize] = ui;
+    }
+    for (s, &ui) in first_use.iter().enumerate() {
+        let mut names_here = Vec::new();
+        for p in &pieces.sets[s] {
+            if p.is_bus {
+                continue;
+            }
+            for &k in &p.pins {
+                let (s, lpi) = wide(pins_of[ui][k]);
+                let pl = &placements[ui][s];
+                let lp = &pl.lib.pins[lpi];
+                if is_power_pin(pl, lp) {
+                    names_here.push((k as u32, power_name(pl, lp)));
+                }
+            }
+        }
+        names_here.sort_unstable_by_key(|e| e.0);
+        power_names.sets.push(names_here);
+    }
+    drop(first_use);
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
-        let mut names_here = vec![String::new(); pins_of[ui].len()];
         for (pi, p) in pieces[ui].iter().enumerate() {
             let g = first[ui] + pi;
             if p.is_bus {
@@ -378,28 +462,19 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     _ => join_key(&mut dsu, &mut keys, Key::Local(ui, &lab.text), g),
                 }
             }
-            for &k in &p.pins {
-                let (s, lpi) = wide(pins_of[ui][k]);
-                let pl = &placements[ui][s];
-                let lp = &pl.lib.pins[lpi];
-                if is_power_pin(pl, lp) {
-                    names_here[k] = power_name(pl, lp);
-                }
-            }
         }
-        power_names.push(names_here);
     }
     for (ui, p) in pieces.iter().enumerate() {
         for (pi, piece) in p.iter().enumerate() {
             for &k in &piece.pins {
-                let name = &power_names[ui][k];
+                let name = power_name_of(&power_names[ui], k);
                 if !name.is_empty() {
                     let (s, _) = wide(pins_of[ui][k]);
                     let local = placements[ui][s].lib.power == Power::Local;
                     let key = if local {
-                        Key::Local(ui, name.as_str())
+                        Key::Local(ui, name)
                     } else {
-                        Key::Global(name.as_str())
+                        Key::Global(name)
                     };
                     join_key(&mut dsu, &mut keys, key, first[ui] + pi);
                 }
@@ -640,12 +715,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 let (s, lpi) = wide(pins_of[ui][k]);
                 let pl = &placements[ui][s];
                 let lp = &pl.lib.pins[lpi];
-                let pname = &power_names[ui][k];
+                let pname = power_name_of(&power_names[ui], k);
                 if !pname.is_empty() {
                     let name = if pl.lib.power == Power::Local {
                         cat(&[&u.path, pname])
                     } else {
-                        pname.clone()
+                        pname.to_string()
                     };
                     pool.cands.push(Candidate {
                         strength: Strength::Power,
