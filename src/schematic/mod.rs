@@ -666,8 +666,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
     let mut pools: HashMap<(usize, usize), Pool> = HashMap::default();
-    let mut nodes_of: HashMap<usize, Vec<(u32, u32, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
-    let mut group_order: Vec<usize> = Vec::new();
+    // each group with a listed pin numbered in the order its first such pin is found (the
+    // order of the nets before sorting), by the group's root in the union-find
+    let mut rank_of: Vec<u32> = vec![u32::MAX; dsu.len()];
+    let mut groups = 0u32;
+    // (group's number, use, placed pin, no-connect) of every listed pin, as found
+    let mut found: Vec<(u32, u32, u32, bool)> = Vec::new();
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
         for (pi, p) in pieces[ui].iter().enumerate() {
@@ -734,11 +738,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     pool.pins.push((k as u32, nc));
                 }
                 if pl.listed {
-                    let e = nodes_of.entry(g).or_insert_with(|| {
-                        group_order.push(g);
-                        Vec::new()
-                    });
-                    e.push((ui as u32, k as u32, p.no_connect));
+                    if rank_of[g] == u32::MAX {
+                        rank_of[g] = groups;
+                        groups += 1;
+                    }
+                    found.push((rank_of[g], ui as u32, k as u32, p.no_connect));
                 }
             }
         }
@@ -746,10 +750,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     // what only the candidates needed
     drop((keys, global_member_of));
     drop((pieces, power_names, dsu, on_sheet_pin));
-    // the name of each group with pins; a pin's name is made only where no stronger
-    // candidate names the piece (a pin is the weakest)
-    let mut by_group: HashMap<usize, Vec<(usize, Candidate)>> = HashMap::default();
+    // the name of each group with pins in each use, as (group's number, use, name); a pin's
+    // name is made only where no stronger candidate names the piece (a pin is the weakest)
+    let mut by_group: Vec<(u32, u32, Candidate)> = Vec::new();
     for ((g, ui), pool) in pools {
+        let rank = rank_of[g];
+        if rank == u32::MAX {
+            continue;
+        }
         let best = if pool.cands.is_empty() {
             let named: Vec<Candidate> = pool
                 .pins
@@ -770,26 +778,28 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             names::best(&pool.cands).cloned()
         };
         if let Some(b) = best {
-            by_group.entry(g).or_default().push((ui, b));
+            by_group.push((rank, ui as u32, b));
         }
     }
+    drop(rank_of);
+    by_group.sort_unstable_by_key(|e| (e.0, e.1));
+    // the pins by group, each group's in the order found
+    found.sort_by_key(|e| e.0);
     let mut net_of_name: HashMap<&str, usize> = HashMap::default();
     // the nets, and every node with its net's index in one list (sorted by net below)
     let mut nets: Vec<Net<'_>> = Vec::new();
     let mut has_nodes: Vec<bool> = Vec::new();
     let mut nodes: Vec<(u32, Node<'_>)> = Vec::new();
     let mut node_texts = NodeTexts::new(text);
-    for g in group_order {
-        let Some(chosen) = by_group.get(&g) else {
-            continue;
-        };
-        let mut list: Vec<(usize, &Candidate)> = chosen.iter().map(|(u, c)| (*u, c)).collect();
-        list.sort_by_key(|(u, _)| *u);
-        let ch: Vec<Chosen<'_>> = list
+    for chosen in by_group.chunk_by(|a, b| a.0 == b.0) {
+        let rank = chosen[0].0;
+        let pins = &found[found.partition_point(|e| e.0 < rank)..];
+        let pins = &pins[..pins.partition_point(|e| e.0 == rank)];
+        let ch: Vec<Chosen<'_>> = chosen
             .iter()
-            .map(|(u, c)| Chosen {
+            .map(|(_, u, c)| Chosen {
                 cand: c,
-                depth: depth(*u),
+                depth: depth(*u as usize),
             })
             .collect();
         let Some(name) = names::chain(&ch).map(|c| c.name.as_str()) else {
@@ -808,7 +818,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 nets.len() - 1
             }
         };
-        for &(ui, k, nc) in &nodes_of[&g] {
+        for &(_, ui, k, nc) in pins {
             let (ui, k) = wide((ui, k));
             let (s, lpi) = wide(pins_of[ui][k]);
             let pl = &placements[ui][s];
@@ -833,7 +843,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     }
 
     drop(net_of_name);
-    drop((by_group, nodes_of, pins_of));
+    drop((by_group, found, pins_of));
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
