@@ -84,15 +84,20 @@ fn lib_and_part<'a>(id: &Cow<'a, str>) -> (Cow<'a, str>, Cow<'a, str>) {
     }
 }
 
+/// The reference of a symbol with neither instance data nor a `Reference` property.
+static NO_REFERENCE: Cow<'static, str> = Cow::Borrowed("?");
+
 /// One placed symbol in one use of a sheet, with its instance data resolved.
 struct Placement<'p, 'a> {
     placed: &'p Placed<'a>,
     lib: &'p LibSym<'a>,
-    reference: Cow<'a, str>,
+    /// The texts are the sheet's, borrowed: a placement is made for every symbol in every
+    /// use of its sheet.
+    reference: &'p Cow<'a, str>,
     reference_span: Span,
     unit: u32,
-    value: Option<(Cow<'a, str>, Span)>,
-    footprint: Option<(Cow<'a, str>, Span)>,
+    value: Option<(&'p Cow<'a, str>, Span)>,
+    footprint: Option<(&'p Cow<'a, str>, Span)>,
     /// In the netlist: not a `#` reference (power symbols, flags) and on the board.
     listed: bool,
 }
@@ -332,12 +337,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             };
             let (reference, reference_span) = match inst {
                 Some(i) => (
-                    i.reference.clone(),
+                    &i.reference,
                     own_span("Reference", &i.reference, i.reference_span),
                 ),
                 None => match placed.prop("Reference") {
-                    Some(p) => (p.value.clone(), p.value_span),
-                    None => (Cow::Borrowed("?"), placed.span),
+                    Some(p) => (&p.value, p.value_span),
+                    None => (&NO_REFERENCE, placed.span),
                 },
             };
             let unit = inst.and_then(|i| i.unit).unwrap_or(placed.unit);
@@ -361,19 +366,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 reference_span,
                 unit,
                 value: inst
-                    .and_then(|i| i.value.as_deref().cloned())
+                    .and_then(|i| i.value.as_deref())
                     .filter(|_| !modern)
-                    .map(|(v, s)| {
-                        let s = own_span("Value", &v, s);
-                        (v, s)
-                    }),
+                    .map(|(v, s)| (v, own_span("Value", v, *s))),
                 footprint: inst
-                    .and_then(|i| i.footprint.as_deref().cloned())
+                    .and_then(|i| i.footprint.as_deref())
                     .filter(|_| !modern)
-                    .map(|(v, s)| {
-                        let s = own_span("Footprint", &v, s);
-                        (v, s)
-                    }),
+                    .map(|(v, s)| (v, own_span("Footprint", v, *s))),
                 listed,
             });
         }
@@ -787,9 +786,10 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     found.sort_by_key(|e| e.0);
     let mut net_of_name: HashMap<&str, usize> = HashMap::default();
     // the nets, and every node with its net's index in one list (sorted by net below)
-    let mut nets: Vec<Net<'_>> = Vec::new();
-    let mut has_nodes: Vec<bool> = Vec::new();
-    let mut nodes: Vec<(u32, Node<'_>)> = Vec::new();
+    // at most one net per group and one node per pin found: allocated once
+    let mut nets: Vec<Net<'_>> = Vec::with_capacity(groups as usize);
+    let mut has_nodes: Vec<bool> = Vec::with_capacity(groups as usize);
+    let mut nodes: Vec<(u32, Node<'_>)> = Vec::with_capacity(found.len());
     let mut node_texts = NodeTexts::new(text);
     for chosen in by_group.chunk_by(|a, b| a.0 == b.0) {
         let rank = chosen[0].0;
@@ -912,7 +912,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             .cmp(&(b.0 != 0))
             .then_with(|| natural_cmp(&a.1, &b.1))
     });
-    let mut components: Vec<Component<'_>> = Vec::new();
+    // at most one component per listed placement: allocated once
+    let listed = placements.iter().flatten().filter(|p| p.listed).count();
+    let mut components: Vec<Component<'_>> = Vec::with_capacity(listed);
     let mut comp_of: rustc_hash::FxHashSet<&str> = rustc_hash::FxHashSet::default();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
