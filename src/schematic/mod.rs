@@ -37,7 +37,7 @@ use crate::source::{SourceFile, Span};
 use connect::{Dsu, PinAt};
 use load::{Failed, Files, Project};
 use names::{Candidate, Chosen, Strength};
-use sheet::{LabelKind, LibSym, Placed, Power};
+use sheet::{LabelKind, LibSym, Placed, Power, SText};
 
 pub use load::sniff_sheet;
 
@@ -62,30 +62,33 @@ fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
 }
 
 /// [`txt`] of a text the sheet holds, without a copy of an owned one on the way.
-fn txt_of<'a>(s: &Cow<'a, str>, span: Span) -> Text<'a> {
-    match s {
-        Cow::Borrowed(s) => Text::borrowed(s, span),
-        Cow::Owned(s) => Text::owned(s, span),
+fn txt_of<'a>(s: &SText<'a>, span: Span) -> Text<'a> {
+    if s.is_borrowed() {
+        Text::borrowed(s.clone().unwrap_borrowed(), span)
+    } else {
+        Text::owned(s, span)
     }
 }
 
 /// A symbol's library and part names (`lib:part`; no library without a colon), borrowed
 /// from the file when its identifier is.
-fn lib_and_part<'a>(id: &Cow<'a, str>) -> (Cow<'a, str>, Cow<'a, str>) {
-    match id {
-        Cow::Borrowed(s) => match s.split_once(':') {
-            Some((l, p)) => (Cow::Borrowed(l), Cow::Borrowed(p)),
-            None => (Cow::Borrowed(""), Cow::Borrowed(s)),
-        },
-        Cow::Owned(s) => match s.split_once(':') {
-            Some((l, p)) => (Cow::Owned(l.to_string()), Cow::Owned(p.to_string())),
-            None => (Cow::Borrowed(""), Cow::Owned(s.clone())),
-        },
+fn lib_and_part<'a>(id: &SText<'a>) -> (SText<'a>, SText<'a>) {
+    if id.is_borrowed() {
+        let s = id.clone().unwrap_borrowed();
+        match s.split_once(':') {
+            Some((l, p)) => (SText::borrowed(l), SText::borrowed(p)),
+            None => (SText::borrowed(""), SText::borrowed(s)),
+        }
+    } else {
+        match id.split_once(':') {
+            Some((l, p)) => (SText::owned(l.to_string()), SText::owned(p.to_string())),
+            None => (SText::borrowed(""), SText::owned(id.to_string())),
+        }
     }
 }
 
 /// The reference of a symbol with neither instance data nor a `Reference` property.
-static NO_REFERENCE: Cow<'static, str> = Cow::Borrowed("?");
+static NO_REFERENCE: SText<'static> = SText::const_str("?");
 
 /// One placed symbol in one use of a sheet, with its instance data resolved.
 struct Placement<'p, 'a> {
@@ -93,11 +96,11 @@ struct Placement<'p, 'a> {
     lib: &'p LibSym<'a>,
     /// The texts are the sheet's, borrowed: a placement is made for every symbol in every
     /// use of its sheet.
-    reference: &'p Cow<'a, str>,
+    reference: &'p SText<'a>,
     reference_span: Span,
     unit: u32,
-    value: Option<(&'p Cow<'a, str>, Span)>,
-    footprint: Option<(&'p Cow<'a, str>, Span)>,
+    value: Option<(&'p SText<'a>, Span)>,
+    footprint: Option<(&'p SText<'a>, Span)>,
     /// In the netlist: not a `#` reference (power symbols, flags) and on the board.
     listed: bool,
 }

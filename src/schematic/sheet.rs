@@ -3,14 +3,17 @@
 //! labels and sub-sheets. Nothing is connected here; every item keeps its span (offsets into
 //! the project's joined text, so they point into this sheet's file).
 
-use std::borrow::Cow;
-
 use rustc_hash::FxHashMap as HashMap;
 
 use crate::diag::Diag;
 use crate::netlist::PinType;
 use crate::sexpr::{self, NodeId, Tree};
 use crate::source::Span;
+
+/// A text of a sheet: borrowed from the file's text where it is written as it reads
+/// (almost always), owned where it had escapes to undo. Two words where `std`'s
+/// `Cow<str>` takes three: a sheet holds several for every symbol placed on it.
+pub type SText<'a> = crate::netlist::Str<'a>;
 
 /// A point in the sheet, in 0.1 µm (KiCad's own schematic unit), so positions read from
 /// millimetres compare exactly.
@@ -29,8 +32,8 @@ pub enum Power {
 
 #[derive(Debug, Clone)]
 pub struct LibPin<'a> {
-    pub num: Cow<'a, str>,
-    pub name: Cow<'a, str>,
+    pub num: SText<'a>,
+    pub name: SText<'a>,
     pub ptype: PinType,
     pub hidden: bool,
     /// The connection point, in the symbol's own coordinates (y up).
@@ -44,7 +47,7 @@ pub struct LibPin<'a> {
 
 #[derive(Debug, Clone)]
 pub struct LibSym<'a> {
-    pub name: Cow<'a, str>,
+    pub name: SText<'a>,
     pub power: Power,
     pub pins: Vec<LibPin<'a>>,
     /// Highest unit number of its sub-symbols (1 for a single-unit symbol).
@@ -55,9 +58,9 @@ pub struct LibSym<'a> {
 /// A property of a placed symbol.
 #[derive(Debug, Clone)]
 pub struct Prop<'a> {
-    pub name: Cow<'a, str>,
+    pub name: SText<'a>,
     pub name_span: Span,
-    pub value: Cow<'a, str>,
+    pub value: SText<'a>,
     pub value_span: Span,
 }
 
@@ -65,22 +68,22 @@ pub struct Prop<'a> {
 /// KiCad 6 in the root sheet's `symbol_instances`).
 #[derive(Debug, Clone)]
 pub struct Instance<'a> {
-    pub path: Cow<'a, str>,
-    pub reference: Cow<'a, str>,
+    pub path: SText<'a>,
+    pub reference: SText<'a>,
     pub reference_span: Span,
     pub unit: Option<u32>,
     /// KiCad 6 only, and rare there: boxed, so the many instances of later files stay small.
-    pub value: Option<Box<(Cow<'a, str>, Span)>>,
-    pub footprint: Option<Box<(Cow<'a, str>, Span)>>,
+    pub value: Option<Box<(SText<'a>, Span)>>,
+    pub footprint: Option<Box<(SText<'a>, Span)>>,
 }
 
 #[derive(Debug, Clone)]
 pub struct Placed<'a> {
     /// The key of its library symbol in `lib_symbols` (`lib_name` when present, else
     /// `lib_id`).
-    pub lib_key: Cow<'a, str>,
+    pub lib_key: SText<'a>,
     pub lib_key_span: Span,
-    pub lib_id: Cow<'a, str>,
+    pub lib_id: SText<'a>,
     pub at: Pt,
     pub rot: i32,
     pub mirror_x: bool,
@@ -90,10 +93,10 @@ pub struct Placed<'a> {
     pub in_bom: bool,
     pub on_board: bool,
     pub dnp: bool,
-    pub uuid: Cow<'a, str>,
+    pub uuid: SText<'a>,
     pub props: Box<[Prop<'a>]>,
     /// The `(pin "N" (uuid ..))` entries: where each pin of this symbol is written.
-    pub pin_spans: Box<[(Cow<'a, str>, Span)]>,
+    pub pin_spans: Box<[(SText<'a>, Span)]>,
     pub instances: Box<[Instance<'a>]>,
     pub span: Span,
 }
@@ -117,28 +120,28 @@ pub enum LabelKind {
 #[derive(Debug, Clone)]
 pub struct Label<'a> {
     pub kind: LabelKind,
-    pub text: Cow<'a, str>,
+    pub text: SText<'a>,
     pub at: Pt,
     pub span: Span,
 }
 
 #[derive(Debug, Clone)]
 pub struct SheetPin<'a> {
-    pub text: Cow<'a, str>,
+    pub text: SText<'a>,
     pub at: Pt,
     pub span: Span,
 }
 
 #[derive(Debug, Clone)]
 pub struct SubSheet<'a> {
-    pub uuid: Cow<'a, str>,
-    pub name: Cow<'a, str>,
-    pub file: Cow<'a, str>,
+    pub uuid: SText<'a>,
+    pub name: SText<'a>,
+    pub file: SText<'a>,
     /// The sheet-file property's value, to point at when the file cannot be read.
     pub file_span: Span,
     pub pins: Vec<SheetPin<'a>>,
     /// KiCad 7 and later: (sheet path, page number) of each use of this sheet symbol.
-    pub pages: Vec<(Cow<'a, str>, Cow<'a, str>)>,
+    pub pages: Vec<(SText<'a>, SText<'a>)>,
     pub span: Span,
 }
 
@@ -151,8 +154,8 @@ pub struct Segment {
 #[derive(Debug, Clone, Default)]
 pub struct Sheet<'a> {
     pub version: u32,
-    pub uuid: Cow<'a, str>,
-    pub lib: HashMap<Cow<'a, str>, LibSym<'a>>,
+    pub uuid: SText<'a>,
+    pub lib: HashMap<SText<'a>, LibSym<'a>>,
     pub symbols: Vec<Placed<'a>>,
     pub wires: Vec<Segment>,
     pub buses: Vec<Segment>,
@@ -164,7 +167,7 @@ pub struct Sheet<'a> {
     /// KiCad 6: the root sheet's `symbol_instances`, by path.
     pub symbol_instances: Vec<Instance<'a>>,
     /// KiCad 6: the root sheet's `sheet_instances`, (path, page number).
-    pub sheet_instances: Vec<(Cow<'a, str>, Cow<'a, str>)>,
+    pub sheet_instances: Vec<(SText<'a>, SText<'a>)>,
     pub span: Span,
 }
 
@@ -211,8 +214,8 @@ impl<'t, 'a> Reader<'t, 'a> {
     fn nth(&self, id: NodeId, n: usize) -> Option<NodeId> {
         self.t.children(id).nth(n)
     }
-    fn text(&self, id: NodeId) -> Option<Cow<'a, str>> {
-        self.t.text(id)
+    fn text(&self, id: NodeId) -> Option<SText<'a>> {
+        self.t.text(id).map(SText::from)
     }
     /// The first child list with head `head`.
     fn child(&self, id: NodeId, head: &str) -> Option<NodeId> {
@@ -221,7 +224,7 @@ impl<'t, 'a> Reader<'t, 'a> {
             .find(|&c| self.t.is_list(c) && self.t.head(c) == Some(head))
     }
     /// `(head value)`: the value's text.
-    fn value_of(&self, id: NodeId, head: &str) -> Option<Cow<'a, str>> {
+    fn value_of(&self, id: NodeId, head: &str) -> Option<SText<'a>> {
         self.child(id, head)
             .and_then(|c| self.nth(c, 1))
             .and_then(|v| self.text(v))
@@ -578,7 +581,7 @@ impl<'t, 'a> Reader<'t, 'a> {
     }
 
     /// `(path "/a/b" (page "3"))`.
-    fn page(&self, id: NodeId) -> Option<(Cow<'a, str>, Cow<'a, str>)> {
+    fn page(&self, id: NodeId) -> Option<(SText<'a>, SText<'a>)> {
         if self.t.head(id) != Some("path") {
             return None;
         }
