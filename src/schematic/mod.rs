@@ -1184,6 +1184,54 @@ mod tests {
         assert!(std::mem::size_of::<sheet::Instance<'_>>() <= 80);
     }
 
+    /// A sheet file used by two sheets whose instance data place different units of one
+    /// symbol gets each use's own pins: the placed pins and pieces are shared between uses
+    /// only when they are the same.
+    #[test]
+    fn uses_of_a_file_with_different_units_keep_their_own_pins() {
+        let root = "(kicad_sch (version 20231120) (uuid \"r\") (lib_symbols)\n\
+            (sheet (at 0 0) (size 9 9) (uuid \"sa\") (property \"Sheetname\" \"a\") (property \"Sheetfile\" \"child.kicad_sch\"))\n\
+            (sheet (at 20 0) (size 9 9) (uuid \"sb\") (property \"Sheetname\" \"b\") (property \"Sheetfile\" \"child.kicad_sch\"))\n\
+            (sheet (at 40 0) (size 9 9) (uuid \"sc\") (property \"Sheetname\" \"c\") (property \"Sheetfile\" \"child.kicad_sch\")))\n";
+        let child = "(kicad_sch (version 20231120) (uuid \"c\")\n\
+            (lib_symbols (symbol \"D:U\" (symbol \"U_1_1\" (pin passive line (at 0 2.54 270) (name \"~\") (number \"1\")))\n\
+              (symbol \"U_2_1\" (pin passive line (at 0 2.54 270) (name \"~\") (number \"2\")))))\n\
+            (symbol (lib_id \"D:U\") (at 10 10 0) (unit 1) (uuid \"s1\") (property \"Reference\" \"U\" (at 0 0 0))\n\
+              (property \"Value\" \"x\" (at 0 0 0)) (pin \"1\" (uuid \"p1\")) (pin \"2\" (uuid \"p2\"))\n\
+              (instances (project \"p\" (path \"/r/sa\" (reference \"U1\") (unit 1)) (path \"/r/sb\" (reference \"U1\") (unit 2))\n\
+                (path \"/r/sc\" (reference \"U2\") (unit 1)))))\n\
+            (label \"A\" (at 10 7.46 0)))\n";
+        let source = SourceFile::from_files(
+            "t/root.kicad_sch",
+            vec![
+                ("t/root.kicad_sch".to_string(), root.to_string()),
+                ("t/child.kicad_sch".to_string(), child.to_string()),
+            ],
+        );
+        let nl = read_source(&source).unwrap();
+        let nets: Vec<(String, Vec<(String, String)>)> = nl
+            .nets
+            .iter()
+            .map(|n| {
+                let pins = n
+                    .nodes(&nl)
+                    .iter()
+                    .map(|x| (x.reference(&nl).to_string(), x.pin(&nl).to_string()))
+                    .collect();
+                (n.name.as_str().to_string(), pins)
+            })
+            .collect();
+        let pin = |r: &str, p: &str| (r.to_string(), p.to_string());
+        assert_eq!(
+            nets,
+            vec![
+                ("/a/A".to_string(), vec![pin("U1", "1")]),
+                ("/b/A".to_string(), vec![pin("U1", "2")]),
+                ("/c/A".to_string(), vec![pin("U2", "1")]),
+            ]
+        );
+    }
+
     /// A KiCad 6 path listed twice in the root's instances is found at its first entry.
     #[test]
     fn kicad6_instances_by_path_take_the_first() {
