@@ -264,14 +264,6 @@ fn power_name_of(names: &[(u32, String)], k: usize) -> &str {
         .map_or("", |i| names[i].1.as_str())
 }
 
-/// The candidate names of a piece group in one use: pins (placed pin, no-connect) apart,
-/// named only when nothing stronger names the group.
-#[derive(Default)]
-struct Pool {
-    cands: Vec<Candidate>,
-    pins: Vec<(u32, bool)>,
-}
-
 /// The first KiCad 7 file version: automatic names carry pin names from it on.
 const KICAD7: u32 = 20_220_000;
 /// The file version of KiCad 7 releases: later versions name power nets by the symbol's
@@ -667,7 +659,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     }
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
-    let mut pools: HashMap<(usize, usize), Pool> = HashMap::default();
+    // the candidate names of each piece group in each use, as ((group, use), candidate) in
+    // the order found; its pins (placed pin, no-connect) apart, named only when nothing
+    // stronger names the group
+    let mut cands: Vec<((u32, u32), Candidate)> = Vec::new();
+    let mut pin_cands: Vec<((u32, u32), u32, bool)> = Vec::new();
     // each group with a listed pin numbered in the order its first such pin is found (the
     // order of the nets before sorting), by the group's root in the union-find
     let mut rank_of: Vec<u32> = vec![u32::MAX; dsu.len()];
@@ -681,18 +677,21 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 continue;
             }
             let g = dsu.find(first[ui] + pi);
-            let pool = pools.entry((g, ui)).or_default();
+            let key = (g as u32, ui as u32);
             for m in global_member_of
                 .get(&(first[ui] + pi))
                 .into_iter()
                 .flatten()
             {
-                pool.cands.push(Candidate {
-                    strength: Strength::Global,
-                    name: m.to_string(),
-                    power_symbol: false,
-                    output: false,
-                });
+                cands.push((
+                    key,
+                    Candidate {
+                        strength: Strength::Global,
+                        name: m.to_string(),
+                        power_symbol: false,
+                        output: false,
+                    },
+                ));
             }
             for &l in &p.labels {
                 let lab = &sh.labels[l];
@@ -701,21 +700,27 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     LabelKind::Local => (Strength::LocalLabel, cat(&[&u.path, &lab.text])),
                     LabelKind::Hier => (Strength::HierLabel, cat(&[&u.path, &lab.text])),
                 };
-                pool.cands.push(Candidate {
-                    strength,
-                    name,
-                    power_symbol: false,
-                    output: false,
-                });
+                cands.push((
+                    key,
+                    Candidate {
+                        strength,
+                        name,
+                        power_symbol: false,
+                        output: false,
+                    },
+                ));
             }
             for &(s, k) in &p.sheet_pins {
                 let t = &sh.sheets[s].pins[k].text;
-                pool.cands.push(Candidate {
-                    strength: Strength::SheetPin,
-                    name: cat(&[&u.path, t]),
-                    power_symbol: false,
-                    output: false,
-                });
+                cands.push((
+                    key,
+                    Candidate {
+                        strength: Strength::SheetPin,
+                        name: cat(&[&u.path, t]),
+                        power_symbol: false,
+                        output: false,
+                    },
+                ));
             }
             for &k in &p.pins {
                 let (s, lpi) = wide(pins_of[ui][k]);
@@ -728,16 +733,19 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     } else {
                         pname.to_string()
                     };
-                    pool.cands.push(Candidate {
-                        strength: Strength::Power,
-                        name,
-                        power_symbol: pl.lib.power != Power::No,
-                        output: false,
-                    });
+                    cands.push((
+                        key,
+                        Candidate {
+                            strength: Strength::Power,
+                            name,
+                            power_symbol: pl.lib.power != Power::No,
+                            output: false,
+                        },
+                    ));
                 } else if pl.listed {
                     let alone = p.pins.len() == 1 && p.labels.is_empty() && p.sheet_pins.is_empty();
                     let nc = p.no_connect || lp.ptype == PinType::NoConnect || alone;
-                    pool.pins.push((k as u32, nc));
+                    pin_cands.push((key, k as u32, nc));
                 }
                 if pl.listed {
                     if rank_of[g] == u32::MAX {
@@ -754,17 +762,28 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     drop((pieces, power_names, dsu, on_sheet_pin));
     // the name of each group with pins in each use, as (group's number, use, name); a pin's
     // name is made only where no stronger candidate names the piece (a pin is the weakest)
+    // only groups with listed pins become nets; each (group, use) in one run, in the order
+    // found within it
+    cands.retain(|e| rank_of[e.0 .0 as usize] != u32::MAX);
+    pin_cands.retain(|e| rank_of[e.0 .0 as usize] != u32::MAX);
+    cands.sort_by_key(|e| e.0);
+    pin_cands.sort_by_key(|e| e.0);
     let mut by_group: Vec<(u32, u32, Candidate)> = Vec::new();
-    for ((g, ui), pool) in pools {
-        let rank = rank_of[g];
-        if rank == u32::MAX {
-            continue;
-        }
-        let best = if pool.cands.is_empty() {
-            let named: Vec<Candidate> = pool
-                .pins
+    let (mut ci, mut pj) = (0, 0);
+    while ci < cands.len() || pj < pin_cands.len() {
+        let key = match (cands.get(ci), pin_cands.get(pj)) {
+            (Some(c), Some(p)) => c.0.min(p.0),
+            (Some(c), None) => c.0,
+            (None, Some(p)) => p.0,
+            (None, None) => break,
+        };
+        let c_end = ci + cands[ci..].iter().take_while(|e| e.0 == key).count();
+        let p_end = pj + pin_cands[pj..].iter().take_while(|e| e.0 == key).count();
+        let (g, ui) = (key.0 as usize, key.1 as usize);
+        let best = if c_end == ci {
+            let named: Vec<Candidate> = pin_cands[pj..p_end]
                 .iter()
-                .map(|&(k, nc)| {
+                .map(|&(_, k, nc)| {
                     let (s, lpi) = wide(pins_of[ui][k as usize]);
                     let pl = &placements[ui][s];
                     Candidate {
@@ -777,13 +796,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .collect();
             names::best(&named).cloned()
         } else {
-            names::best(&pool.cands).cloned()
+            names::best_of(cands[ci..c_end].iter().map(|e| &e.1)).cloned()
         };
         if let Some(b) = best {
-            by_group.push((rank, ui as u32, b));
+            by_group.push((rank_of[g], key.1, b));
         }
+        (ci, pj) = (c_end, p_end);
     }
-    drop(rank_of);
+    drop((rank_of, cands, pin_cands));
     by_group.sort_unstable_by_key(|e| (e.0, e.1));
     // the pins by group, each group's in the order found
     found.sort_by_key(|e| e.0);

@@ -53,7 +53,11 @@ fn better(a: &Candidate, b: &Candidate) -> bool {
 
 /// The name a piece takes from its candidates.
 pub fn best(cands: &[Candidate]) -> Option<&Candidate> {
-    let mut it = cands.iter();
+    best_of(cands.iter())
+}
+
+/// [`best`] of candidates given in order.
+pub fn best_of<'c>(mut it: impl Iterator<Item = &'c Candidate>) -> Option<&'c Candidate> {
     let mut b = it.next()?;
     for c in it {
         if better(c, b) {
