@@ -264,6 +264,14 @@ fn power_name_of(names: &[(u32, String)], k: usize) -> &str {
         .map_or("", |i| names[i].1.as_str())
 }
 
+/// A candidate moved out of its place, an empty name left behind.
+fn take_candidate(c: &mut Candidate) -> Candidate {
+    Candidate {
+        name: std::mem::take(&mut c.name),
+        ..*c
+    }
+}
+
 /// The first KiCad 7 file version: automatic names carry pin names from it on.
 const KICAD7: u32 = 20_220_000;
 /// The file version of KiCad 7 releases: later versions name power nets by the symbol's
@@ -780,8 +788,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let c_end = ci + cands[ci..].iter().take_while(|e| e.0 == key).count();
         let p_end = pj + pin_cands[pj..].iter().take_while(|e| e.0 == key).count();
         let (g, ui) = (key.0 as usize, key.1 as usize);
+        // the best name is moved out of its list, not copied
         let best = if c_end == ci {
-            let named: Vec<Candidate> = pin_cands[pj..p_end]
+            let mut named: Vec<Candidate> = pin_cands[pj..p_end]
                 .iter()
                 .map(|&(_, k, nc)| {
                     let (s, lpi) = wide(pins_of[ui][k as usize]);
@@ -794,9 +803,10 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     }
                 })
                 .collect();
-            names::best(&named).cloned()
+            names::best_at(named.iter()).map(|i| named.swap_remove(i))
         } else {
-            names::best_of(cands[ci..c_end].iter().map(|e| &e.1)).cloned()
+            names::best_at(cands[ci..c_end].iter().map(|e| &e.1))
+                .map(|i| take_candidate(&mut cands[ci + i].1))
         };
         if let Some(b) = best {
             by_group.push((rank_of[g], key.1, b));
