@@ -5,7 +5,7 @@
 //! * [`load`]: the root sheet and every sheet below it, read once each and joined into one
 //!   [`SourceFile`] made of several files (spans point into the sheet where an item is
 //!   drawn); the uses of sheets as a tree of sheet paths; missing sheets and recursion.
-//! * [`sheet`]: one sheet file's items from its syntax tree.
+//! * [`sheet`]: one sheet file's items, each root item read from a syntax tree of its own.
 //! * [`symbol`]: units, body styles and pin positions under rotation and mirroring.
 //! * [`connect`]: items joined at their connection points into pieces, per use of a sheet.
 //! * [`bus`]: bus names and their members.
