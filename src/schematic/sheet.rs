@@ -1,7 +1,7 @@
 //! One sheet file read a root item at a time, each from its own syntax tree (or from the
-//! whole sheet's tree where that stops, for the error): the library symbols embedded in it, the placed
-//! symbols with their instance data, wires, buses, bus entries, junctions, no-connect flags,
-//! labels and sub-sheets. Nothing is connected here; every item keeps its span (offsets into
+//! whole sheet's tree where that stops, for the error): the library symbols embedded in it,
+//! the placed symbols with their instance data, wires, buses, bus entries, junctions,
+//! no-connect flags, labels and sub-sheets. Nothing is connected here; every item keeps its span (offsets into
 //! the project's joined text, so they point into this sheet's file).
 
 use rustc_hash::FxHashMap as HashMap;
