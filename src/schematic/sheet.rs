@@ -750,7 +750,7 @@ mod tests {
         let (mut same, mut whole_only) = (0, 0);
         for t in &texts {
             let want = whole(t, 7);
-            let mut diags = vec![Diag::error("x", "before")];
+            let mut diags = vec![Diag::error("malformed-schematic", "read before")];
             match read_by_items(t, 7, &mut diags) {
                 Some(sheet) => {
                     diags.remove(0);
