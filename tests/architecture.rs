@@ -214,8 +214,8 @@ fn budgets_are_computed_once() {
 fn the_tree_reader_is_only_a_reference() {
     for needle in ["sexpr::parse(", "netlist::build("] {
         for f in files_with(needle) {
-            // the schematic reader reads each sheet from its tree: sheets are small, and it
-            // looks items up by head, in any order, several times over
+            // the schematic reader reads each root item of a sheet from its own tree (it looks
+            // an item's parts up by head, in any order), and a whole sheet's tree for its error
             assert!(
                 f.starts_with("src/sexpr/")
                     || f.starts_with("src/netlist/")

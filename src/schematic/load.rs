@@ -13,7 +13,7 @@ use crate::input;
 use crate::sexpr::{self, NodeId, Tree};
 use crate::source::{SourceFile, Span};
 
-use super::sheet::{Reader, Sheet};
+use super::sheet::{self, Reader, Sheet};
 
 /// Where a project failed: the diagnostic, and the text to show it in when there is one.
 #[derive(Debug)]
@@ -353,12 +353,19 @@ pub fn project(source: &SourceFile) -> Result<Project<'_>, Diag> {
     for (i, part) in parts.iter().enumerate() {
         let start = part.start as usize;
         let own = &text[start..start + part.len as usize];
-        let tree = sexpr::parse(own).map_err(|d| shift(d, part.start))?;
-        let reader = Reader {
-            t: &tree,
-            base: part.start,
+        // item by item, so the sheet is never held as one tree; read whole where that
+        // stops, for the error
+        let sheet = match sheet::read_by_items(own, part.start, &mut diags) {
+            Some(sheet) => sheet,
+            None => {
+                let tree = sexpr::parse(own).map_err(|d| shift(d, part.start))?;
+                let reader = Reader {
+                    t: &tree,
+                    base: part.start,
+                };
+                reader.sheet(&mut diags)?
+            }
         };
-        let sheet = reader.sheet(&mut diags)?;
         sheets.push(sheet);
         index_of.insert(names[i], i);
     }

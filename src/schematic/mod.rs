@@ -5,7 +5,7 @@
 //! * [`load`]: the root sheet and every sheet below it, read once each and joined into one
 //!   [`SourceFile`] made of several files (spans point into the sheet where an item is
 //!   drawn); the uses of sheets as a tree of sheet paths; missing sheets and recursion.
-//! * [`sheet`]: one sheet file's items from its syntax tree.
+//! * [`sheet`]: one sheet file's items, each root item read from a syntax tree of its own.
 //! * [`symbol`]: units, body styles and pin positions under rotation and mirroring.
 //! * [`connect`]: items joined at their connection points into pieces, per use of a sheet.
 //! * [`bus`]: bus names and their members.
@@ -37,7 +37,7 @@ use crate::source::{SourceFile, Span};
 use connect::{Dsu, PinAt};
 use load::{Failed, Files, Project};
 use names::{Candidate, Chosen, Strength};
-use sheet::{LabelKind, LibSym, Placed, Power};
+use sheet::{LabelKind, LibSym, Placed, Power, SText};
 
 pub use load::sniff_sheet;
 
@@ -62,37 +62,45 @@ fn txt<'a>(s: impl Into<Cow<'a, str>>, span: Span) -> Text<'a> {
 }
 
 /// [`txt`] of a text the sheet holds, without a copy of an owned one on the way.
-fn txt_of<'a>(s: &Cow<'a, str>, span: Span) -> Text<'a> {
-    match s {
-        Cow::Borrowed(s) => Text::borrowed(s, span),
-        Cow::Owned(s) => Text::owned(s, span),
+fn txt_of<'a>(s: &SText<'a>, span: Span) -> Text<'a> {
+    if s.is_borrowed() {
+        Text::borrowed(s.clone().unwrap_borrowed(), span)
+    } else {
+        Text::owned(s, span)
     }
 }
 
 /// A symbol's library and part names (`lib:part`; no library without a colon), borrowed
 /// from the file when its identifier is.
-fn lib_and_part<'a>(id: &Cow<'a, str>) -> (Cow<'a, str>, Cow<'a, str>) {
-    match id {
-        Cow::Borrowed(s) => match s.split_once(':') {
-            Some((l, p)) => (Cow::Borrowed(l), Cow::Borrowed(p)),
-            None => (Cow::Borrowed(""), Cow::Borrowed(s)),
-        },
-        Cow::Owned(s) => match s.split_once(':') {
-            Some((l, p)) => (Cow::Owned(l.to_string()), Cow::Owned(p.to_string())),
-            None => (Cow::Borrowed(""), Cow::Owned(s.clone())),
-        },
+fn lib_and_part<'a>(id: &SText<'a>) -> (SText<'a>, SText<'a>) {
+    if id.is_borrowed() {
+        let s = id.clone().unwrap_borrowed();
+        match s.split_once(':') {
+            Some((l, p)) => (SText::borrowed(l), SText::borrowed(p)),
+            None => (SText::borrowed(""), SText::borrowed(s)),
+        }
+    } else {
+        match id.split_once(':') {
+            Some((l, p)) => (SText::owned(l.to_string()), SText::owned(p.to_string())),
+            None => (SText::borrowed(""), SText::owned(id.to_string())),
+        }
     }
 }
+
+/// The reference of a symbol with neither instance data nor a `Reference` property.
+static NO_REFERENCE: SText<'static> = SText::const_str("?");
 
 /// One placed symbol in one use of a sheet, with its instance data resolved.
 struct Placement<'p, 'a> {
     placed: &'p Placed<'a>,
     lib: &'p LibSym<'a>,
-    reference: Cow<'a, str>,
+    /// The texts are the sheet's, borrowed: a placement is made for every symbol in every
+    /// use of its sheet.
+    reference: &'p SText<'a>,
     reference_span: Span,
     unit: u32,
-    value: Option<(Cow<'a, str>, Span)>,
-    footprint: Option<(Cow<'a, str>, Span)>,
+    value: Option<(&'p SText<'a>, Span)>,
+    footprint: Option<(&'p SText<'a>, Span)>,
     /// In the netlist: not a `#` reference (power symbols, flags) and on the board.
     listed: bool,
 }
@@ -218,12 +226,50 @@ fn pin_net_name(
     }
 }
 
-/// The candidate names of a piece group in one use: pins (placed pin, no-connect) apart,
-/// named only when nothing stronger names the group.
-#[derive(Default)]
-struct Pool {
-    cands: Vec<Candidate>,
-    pins: Vec<(u32, bool)>,
+/// Lists made for a use of a sheet, kept once for all the uses that share them and read by
+/// use (`x[use]`, `x.iter()` in the order of the uses).
+struct PerUse<T> {
+    sets: Vec<T>,
+    /// Each use's set.
+    of: Vec<u32>,
+}
+
+impl<T> Default for PerUse<T> {
+    fn default() -> Self {
+        PerUse {
+            sets: Vec::new(),
+            of: Vec::new(),
+        }
+    }
+}
+
+impl<T> PerUse<T> {
+    fn iter(&self) -> impl Iterator<Item = &T> {
+        self.of.iter().map(|&s| &self.sets[s as usize])
+    }
+}
+
+impl<T> std::ops::Index<usize> for PerUse<T> {
+    type Output = T;
+    fn index(&self, u: usize) -> &T {
+        &self.sets[self.of[u] as usize]
+    }
+}
+
+/// The power name of placed pin `k` among a set's (pin, name) pairs sorted by pin; empty
+/// for a pin that names no power net.
+fn power_name_of(names: &[(u32, String)], k: usize) -> &str {
+    names
+        .binary_search_by_key(&(k as u32), |e| e.0)
+        .map_or("", |i| names[i].1.as_str())
+}
+
+/// A candidate moved out of its place, an empty name left behind.
+fn take_candidate(c: &mut Candidate) -> Candidate {
+    Candidate {
+        name: std::mem::take(&mut c.name),
+        ..*c
+    }
 }
 
 /// The first KiCad 7 file version: automatic names carry pin names from it on.
@@ -255,10 +301,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut diags = project.diags.clone();
     let modern = project.sheets[0].version >= KICAD7;
 
-    // placements and pieces, per use
+    // placements per use; placed pins and pieces per use, kept once for the uses of a sheet
+    // file that place the same pins (a file used by several sheets, its units the same)
     let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
-    let mut pins_of: Vec<Vec<(u32, u32)>> = Vec::new(); // (placement, libpin) per placed pin
-    let mut pieces: Vec<Vec<connect::Piece>> = Vec::new();
+    // (placement, libpin) per placed pin
+    let mut pins_of: PerUse<Vec<(u32, u32)>> = PerUse::default();
+    let mut pieces: PerUse<Vec<connect::Piece>> = PerUse::default();
+    // the sets of pins made for each file so far
+    let mut sets_of_file: Vec<Vec<u32>> = vec![Vec::new(); project.sheets.len()];
     let v6 = v6_index(&project.sheets[0]);
     for u in &project.uses {
         let sh = &project.sheets[u.file];
@@ -290,12 +340,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             };
             let (reference, reference_span) = match inst {
                 Some(i) => (
-                    i.reference.clone(),
+                    &i.reference,
                     own_span("Reference", &i.reference, i.reference_span),
                 ),
                 None => match placed.prop("Reference") {
-                    Some(p) => (p.value.clone(), p.value_span),
-                    None => (Cow::Borrowed("?"), placed.span),
+                    Some(p) => (&p.value, p.value_span),
+                    None => (&NO_REFERENCE, placed.span),
                 },
             };
             let unit = inst.and_then(|i| i.unit).unwrap_or(placed.unit);
@@ -319,31 +369,41 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 reference_span,
                 unit,
                 value: inst
-                    .and_then(|i| i.value.as_deref().cloned())
+                    .and_then(|i| i.value.as_deref())
                     .filter(|_| !modern)
-                    .map(|(v, s)| {
-                        let s = own_span("Value", &v, s);
-                        (v, s)
-                    }),
+                    .map(|(v, s)| (v, own_span("Value", v, *s))),
                 footprint: inst
-                    .and_then(|i| i.footprint.as_deref().cloned())
+                    .and_then(|i| i.footprint.as_deref())
                     .filter(|_| !modern)
-                    .map(|(v, s)| {
-                        let s = own_span("Footprint", &v, s);
-                        (v, s)
-                    }),
+                    .map(|(v, s)| (v, own_span("Footprint", v, *s))),
                 listed,
             });
         }
-        pieces.push(connect::pieces(sh, &at));
         placements.push(pls);
-        pins_of.push(which);
+        let known = sets_of_file[u.file]
+            .iter()
+            .copied()
+            .find(|&s| pins_of.sets[s as usize] == which);
+        match known {
+            Some(s) => {
+                pins_of.of.push(s);
+                pieces.of.push(s);
+            }
+            None => {
+                let s = pins_of.sets.len() as u32;
+                sets_of_file[u.file].push(s);
+                pieces.sets.push(connect::pieces(sh, &at));
+                pins_of.sets.push(which);
+                pins_of.of.push(s);
+                pieces.of.push(s);
+            }
+        }
     }
 
     // every piece of every use, then keys, in one union-find
-    let mut first: Vec<usize> = Vec::with_capacity(pieces.len());
+    let mut first: Vec<usize> = Vec::with_capacity(pieces.of.len());
     let mut n = 0;
-    for p in &pieces {
+    for p in pieces.iter() {
         first.push(n);
         n += p.len();
     }
@@ -362,10 +422,36 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let is_power_pin = |pl: &Placement<'_, '_>, lp: &sheet::LibPin<'_>| {
         lp.ptype == PinType::PowerIn && (lp.hidden || pl.lib.power != Power::No)
     };
-    let mut power_names: Vec<Vec<String>> = Vec::new();
+    // the power names of each set of pins, read in a use that has it
+    let mut power_names: PerUse<Vec<(u32, String)>> = PerUse {
+        sets: Vec::with_capacity(pieces.sets.len()),
+        of: pieces.of.clone(),
+    };
+    let mut first_use = vec![usize::MAX; pieces.sets.len()];
+    for (ui, &s) in pieces.of.iter().enumerate().rev() {
+        first_use[s as usize] = ui;
+    }
+    for (s, &ui) in first_use.iter().enumerate() {
+        let mut names_here = Vec::new();
+        for p in &pieces.sets[s] {
+            if p.is_bus {
+                continue;
+            }
+            for &k in &p.pins {
+                let (s, lpi) = wide(pins_of[ui][k]);
+                let pl = &placements[ui][s];
+                let lp = &pl.lib.pins[lpi];
+                if is_power_pin(pl, lp) {
+                    names_here.push((k as u32, power_name(pl, lp)));
+                }
+            }
+        }
+        names_here.sort_unstable_by_key(|e| e.0);
+        power_names.sets.push(names_here);
+    }
+    drop(first_use);
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
-        let mut names_here = vec![String::new(); pins_of[ui].len()];
         for (pi, p) in pieces[ui].iter().enumerate() {
             let g = first[ui] + pi;
             if p.is_bus {
@@ -378,28 +464,19 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     _ => join_key(&mut dsu, &mut keys, Key::Local(ui, &lab.text), g),
                 }
             }
-            for &k in &p.pins {
-                let (s, lpi) = wide(pins_of[ui][k]);
-                let pl = &placements[ui][s];
-                let lp = &pl.lib.pins[lpi];
-                if is_power_pin(pl, lp) {
-                    names_here[k] = power_name(pl, lp);
-                }
-            }
         }
-        power_names.push(names_here);
     }
     for (ui, p) in pieces.iter().enumerate() {
         for (pi, piece) in p.iter().enumerate() {
             for &k in &piece.pins {
-                let name = &power_names[ui][k];
+                let name = power_name_of(&power_names[ui], k);
                 if !name.is_empty() {
                     let (s, _) = wide(pins_of[ui][k]);
                     let local = placements[ui][s].lib.power == Power::Local;
                     let key = if local {
-                        Key::Local(ui, name.as_str())
+                        Key::Local(ui, name)
                     } else {
-                        Key::Global(name.as_str())
+                        Key::Global(name)
                     };
                     join_key(&mut dsu, &mut keys, key, first[ui] + pi);
                 }
@@ -590,9 +667,17 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     }
     // candidates per (group, use)
     let depth = |ui: usize| project.uses[ui].uuids.len();
-    let mut pools: HashMap<(usize, usize), Pool> = HashMap::default();
-    let mut nodes_of: HashMap<usize, Vec<(u32, u32, bool)>> = HashMap::default(); // group -> (use, placed pin, no-connect)
-    let mut group_order: Vec<usize> = Vec::new();
+    // the candidate names of each piece group in each use, as ((group, use), candidate) in
+    // the order found; its pins (placed pin, no-connect) apart, named only when nothing
+    // stronger names the group
+    let mut cands: Vec<((u32, u32), Candidate)> = Vec::new();
+    let mut pin_cands: Vec<((u32, u32), u32, bool)> = Vec::new();
+    // each group with a listed pin numbered in the order its first such pin is found (the
+    // order of the nets before sorting), by the group's root in the union-find
+    let mut rank_of: Vec<u32> = vec![u32::MAX; dsu.len()];
+    let mut groups = 0u32;
+    // (group's number, use, placed pin, no-connect) of every listed pin, as found
+    let mut found: Vec<(u32, u32, u32, bool)> = Vec::new();
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
         for (pi, p) in pieces[ui].iter().enumerate() {
@@ -600,18 +685,21 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 continue;
             }
             let g = dsu.find(first[ui] + pi);
-            let pool = pools.entry((g, ui)).or_default();
+            let key = (g as u32, ui as u32);
             for m in global_member_of
                 .get(&(first[ui] + pi))
                 .into_iter()
                 .flatten()
             {
-                pool.cands.push(Candidate {
-                    strength: Strength::Global,
-                    name: m.to_string(),
-                    power_symbol: false,
-                    output: false,
-                });
+                cands.push((
+                    key,
+                    Candidate {
+                        strength: Strength::Global,
+                        name: m.to_string(),
+                        power_symbol: false,
+                        output: false,
+                    },
+                ));
             }
             for &l in &p.labels {
                 let lab = &sh.labels[l];
@@ -620,50 +708,59 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     LabelKind::Local => (Strength::LocalLabel, cat(&[&u.path, &lab.text])),
                     LabelKind::Hier => (Strength::HierLabel, cat(&[&u.path, &lab.text])),
                 };
-                pool.cands.push(Candidate {
-                    strength,
-                    name,
-                    power_symbol: false,
-                    output: false,
-                });
+                cands.push((
+                    key,
+                    Candidate {
+                        strength,
+                        name,
+                        power_symbol: false,
+                        output: false,
+                    },
+                ));
             }
             for &(s, k) in &p.sheet_pins {
                 let t = &sh.sheets[s].pins[k].text;
-                pool.cands.push(Candidate {
-                    strength: Strength::SheetPin,
-                    name: cat(&[&u.path, t]),
-                    power_symbol: false,
-                    output: false,
-                });
+                cands.push((
+                    key,
+                    Candidate {
+                        strength: Strength::SheetPin,
+                        name: cat(&[&u.path, t]),
+                        power_symbol: false,
+                        output: false,
+                    },
+                ));
             }
             for &k in &p.pins {
                 let (s, lpi) = wide(pins_of[ui][k]);
                 let pl = &placements[ui][s];
                 let lp = &pl.lib.pins[lpi];
-                let pname = &power_names[ui][k];
+                let pname = power_name_of(&power_names[ui], k);
                 if !pname.is_empty() {
                     let name = if pl.lib.power == Power::Local {
                         cat(&[&u.path, pname])
                     } else {
-                        pname.clone()
+                        pname.to_string()
                     };
-                    pool.cands.push(Candidate {
-                        strength: Strength::Power,
-                        name,
-                        power_symbol: pl.lib.power != Power::No,
-                        output: false,
-                    });
+                    cands.push((
+                        key,
+                        Candidate {
+                            strength: Strength::Power,
+                            name,
+                            power_symbol: pl.lib.power != Power::No,
+                            output: false,
+                        },
+                    ));
                 } else if pl.listed {
                     let alone = p.pins.len() == 1 && p.labels.is_empty() && p.sheet_pins.is_empty();
                     let nc = p.no_connect || lp.ptype == PinType::NoConnect || alone;
-                    pool.pins.push((k as u32, nc));
+                    pin_cands.push((key, k as u32, nc));
                 }
                 if pl.listed {
-                    let e = nodes_of.entry(g).or_insert_with(|| {
-                        group_order.push(g);
-                        Vec::new()
-                    });
-                    e.push((ui as u32, k as u32, p.no_connect));
+                    if rank_of[g] == u32::MAX {
+                        rank_of[g] = groups;
+                        groups += 1;
+                    }
+                    found.push((rank_of[g], ui as u32, k as u32, p.no_connect));
                 }
             }
         }
@@ -671,15 +768,31 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     // what only the candidates needed
     drop((keys, global_member_of));
     drop((pieces, power_names, dsu, on_sheet_pin));
-    // the name of each group with pins; a pin's name is made only where no stronger
-    // candidate names the piece (a pin is the weakest)
-    let mut by_group: HashMap<usize, Vec<(usize, Candidate)>> = HashMap::default();
-    for ((g, ui), pool) in pools {
-        let best = if pool.cands.is_empty() {
-            let named: Vec<Candidate> = pool
-                .pins
+    // the name of each group with pins in each use, as (group's number, use, name); a pin's
+    // name is made only where no stronger candidate names the piece (a pin is the weakest)
+    // only groups with listed pins become nets; each (group, use) in one run, in the order
+    // found within it
+    cands.retain(|e| rank_of[e.0 .0 as usize] != u32::MAX);
+    pin_cands.retain(|e| rank_of[e.0 .0 as usize] != u32::MAX);
+    cands.sort_by_key(|e| e.0);
+    pin_cands.sort_by_key(|e| e.0);
+    let mut by_group: Vec<(u32, u32, Candidate)> = Vec::new();
+    let (mut ci, mut pj) = (0, 0);
+    while ci < cands.len() || pj < pin_cands.len() {
+        let key = match (cands.get(ci), pin_cands.get(pj)) {
+            (Some(c), Some(p)) => c.0.min(p.0),
+            (Some(c), None) => c.0,
+            (None, Some(p)) => p.0,
+            (None, None) => break,
+        };
+        let c_end = ci + cands[ci..].iter().take_while(|e| e.0 == key).count();
+        let p_end = pj + pin_cands[pj..].iter().take_while(|e| e.0 == key).count();
+        let (g, ui) = (key.0 as usize, key.1 as usize);
+        // the best name is moved out of its list, not copied
+        let best = if c_end == ci {
+            let mut named: Vec<Candidate> = pin_cands[pj..p_end]
                 .iter()
-                .map(|&(k, nc)| {
+                .map(|&(_, k, nc)| {
                     let (s, lpi) = wide(pins_of[ui][k as usize]);
                     let pl = &placements[ui][s];
                     Candidate {
@@ -690,31 +803,36 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     }
                 })
                 .collect();
-            names::best(&named).cloned()
+            names::best_at(named.iter()).map(|i| named.swap_remove(i))
         } else {
-            names::best(&pool.cands).cloned()
+            names::best_at(cands[ci..c_end].iter().map(|e| &e.1))
+                .map(|i| take_candidate(&mut cands[ci + i].1))
         };
         if let Some(b) = best {
-            by_group.entry(g).or_default().push((ui, b));
+            by_group.push((rank_of[g], key.1, b));
         }
+        (ci, pj) = (c_end, p_end);
     }
+    drop((rank_of, cands, pin_cands));
+    by_group.sort_unstable_by_key(|e| (e.0, e.1));
+    // the pins by group, each group's in the order found
+    found.sort_by_key(|e| e.0);
     let mut net_of_name: HashMap<&str, usize> = HashMap::default();
     // the nets, and every node with its net's index in one list (sorted by net below)
-    let mut nets: Vec<Net<'_>> = Vec::new();
-    let mut has_nodes: Vec<bool> = Vec::new();
-    let mut nodes: Vec<(u32, Node<'_>)> = Vec::new();
+    // at most one net per group and one node per pin found: allocated once
+    let mut nets: Vec<Net<'_>> = Vec::with_capacity(groups as usize);
+    let mut has_nodes: Vec<bool> = Vec::with_capacity(groups as usize);
+    let mut nodes: Vec<(u32, Node<'_>)> = Vec::with_capacity(found.len());
     let mut node_texts = NodeTexts::new(text);
-    for g in group_order {
-        let Some(chosen) = by_group.get(&g) else {
-            continue;
-        };
-        let mut list: Vec<(usize, &Candidate)> = chosen.iter().map(|(u, c)| (*u, c)).collect();
-        list.sort_by_key(|(u, _)| *u);
-        let ch: Vec<Chosen<'_>> = list
+    for chosen in by_group.chunk_by(|a, b| a.0 == b.0) {
+        let rank = chosen[0].0;
+        let pins = &found[found.partition_point(|e| e.0 < rank)..];
+        let pins = &pins[..pins.partition_point(|e| e.0 == rank)];
+        let ch: Vec<Chosen<'_>> = chosen
             .iter()
-            .map(|(u, c)| Chosen {
+            .map(|(_, u, c)| Chosen {
                 cand: c,
-                depth: depth(*u),
+                depth: depth(*u as usize),
             })
             .collect();
         let Some(name) = names::chain(&ch).map(|c| c.name.as_str()) else {
@@ -733,7 +851,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 nets.len() - 1
             }
         };
-        for &(ui, k, nc) in &nodes_of[&g] {
+        for &(_, ui, k, nc) in pins {
             let (ui, k) = wide((ui, k));
             let (s, lpi) = wide(pins_of[ui][k]);
             let pl = &placements[ui][s];
@@ -758,7 +876,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     }
 
     drop(net_of_name);
-    drop((by_group, nodes_of, pins_of));
+    drop((by_group, found, pins_of));
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
     // by reference and number; a pin on two nets is kept in the first, as in its export
@@ -827,7 +945,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             .cmp(&(b.0 != 0))
             .then_with(|| natural_cmp(&a.1, &b.1))
     });
-    let mut components: Vec<Component<'_>> = Vec::new();
+    // at most one component per listed placement: allocated once
+    let listed = placements.iter().flatten().filter(|p| p.listed).count();
+    let mut components: Vec<Component<'_>> = Vec::with_capacity(listed);
     let mut comp_of: rustc_hash::FxHashSet<&str> = rustc_hash::FxHashSet::default();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
@@ -1092,6 +1212,54 @@ mod tests {
     #[test]
     fn an_instance_is_small() {
         assert!(std::mem::size_of::<sheet::Instance<'_>>() <= 80);
+    }
+
+    /// A sheet file used by two sheets whose instance data place different units of one
+    /// symbol gets each use's own pins: the placed pins and pieces are shared between uses
+    /// only when they are the same.
+    #[test]
+    fn uses_of_a_file_with_different_units_keep_their_own_pins() {
+        let root = "(kicad_sch (version 20231120) (uuid \"r\") (lib_symbols)\n\
+            (sheet (at 0 0) (size 9 9) (uuid \"sa\") (property \"Sheetname\" \"a\") (property \"Sheetfile\" \"child.kicad_sch\"))\n\
+            (sheet (at 20 0) (size 9 9) (uuid \"sb\") (property \"Sheetname\" \"b\") (property \"Sheetfile\" \"child.kicad_sch\"))\n\
+            (sheet (at 40 0) (size 9 9) (uuid \"sc\") (property \"Sheetname\" \"c\") (property \"Sheetfile\" \"child.kicad_sch\")))\n";
+        let child = "(kicad_sch (version 20231120) (uuid \"c\")\n\
+            (lib_symbols (symbol \"D:U\" (symbol \"U_1_1\" (pin passive line (at 0 2.54 270) (name \"~\") (number \"1\")))\n\
+              (symbol \"U_2_1\" (pin passive line (at 0 2.54 270) (name \"~\") (number \"2\")))))\n\
+            (symbol (lib_id \"D:U\") (at 10 10 0) (unit 1) (uuid \"s1\") (property \"Reference\" \"U\" (at 0 0 0))\n\
+              (property \"Value\" \"x\" (at 0 0 0)) (pin \"1\" (uuid \"p1\")) (pin \"2\" (uuid \"p2\"))\n\
+              (instances (project \"p\" (path \"/r/sa\" (reference \"U1\") (unit 1)) (path \"/r/sb\" (reference \"U1\") (unit 2))\n\
+                (path \"/r/sc\" (reference \"U2\") (unit 1)))))\n\
+            (label \"A\" (at 10 7.46 0)))\n";
+        let source = SourceFile::from_files(
+            "t/root.kicad_sch",
+            vec![
+                ("t/root.kicad_sch".to_string(), root.to_string()),
+                ("t/child.kicad_sch".to_string(), child.to_string()),
+            ],
+        );
+        let nl = read_source(&source).unwrap();
+        let nets: Vec<(String, Vec<(String, String)>)> = nl
+            .nets
+            .iter()
+            .map(|n| {
+                let pins = n
+                    .nodes(&nl)
+                    .iter()
+                    .map(|x| (x.reference(&nl).to_string(), x.pin(&nl).to_string()))
+                    .collect();
+                (n.name.as_str().to_string(), pins)
+            })
+            .collect();
+        let pin = |r: &str, p: &str| (r.to_string(), p.to_string());
+        assert_eq!(
+            nets,
+            vec![
+                ("/a/A".to_string(), vec![pin("U1", "1")]),
+                ("/b/A".to_string(), vec![pin("U1", "2")]),
+                ("/c/A".to_string(), vec![pin("U2", "1")]),
+            ]
+        );
     }
 
     /// A KiCad 6 path listed twice in the root's instances is found at its first entry.

@@ -53,14 +53,20 @@ fn better(a: &Candidate, b: &Candidate) -> bool {
 
 /// The name a piece takes from its candidates.
 pub fn best(cands: &[Candidate]) -> Option<&Candidate> {
-    let mut it = cands.iter();
+    best_at(cands.iter()).map(|i| &cands[i])
+}
+
+/// Where [`best`] is among candidates given in order.
+pub fn best_at<'c>(mut it: impl Iterator<Item = &'c Candidate>) -> Option<usize> {
     let mut b = it.next()?;
-    for c in it {
+    let mut at = 0;
+    for (i, c) in it.enumerate() {
         if better(c, b) {
             b = c;
+            at = i + 1;
         }
     }
-    Some(b)
+    Some(at)
 }
 
 /// A piece's chosen name in a chain across the hierarchy, with its sheet depth.

@@ -454,6 +454,219 @@ pub fn root_lists(text: &str, head: &str) -> Option<Vec<Span>> {
     None
 }
 
+/// The root list's children read one at a time, so a large file is never held as one tree:
+/// each list among them is parsed into a tree of its own (the list is node 0, its spans
+/// offsets into the whole text, as [`parse`] gives them), which the next list's tree
+/// replaces; atoms and strings among them are passed over. The lexical rules are those of
+/// [`parse`]; where [`parse`] would fail (or in doubt) the reading stops with `Err(())`, and
+/// the caller parses the whole text for the error.
+pub struct Items<'a> {
+    text: &'a str,
+    /// The next byte to read inside the root list.
+    pos: usize,
+    root_start: usize,
+    /// The root list's end, once read.
+    root_end: Option<usize>,
+    head: Option<&'a str>,
+    /// The last list read; its nodes are reused for the next.
+    tree: Tree<'a>,
+    /// The lists open within the one being read: (node, last child or 0).
+    stack: Vec<(u32, u32)>,
+}
+
+impl<'a> Items<'a> {
+    /// Starts reading `text`: `None` when it does not begin (after a byte-order mark and
+    /// white space) with the root's `(`, or is too large for [`parse`].
+    pub fn new(text: &'a str) -> Option<Items<'a>> {
+        let b = text.as_bytes();
+        let n = b.len();
+        if n >= NEXT_MASK as usize {
+            return None;
+        }
+        let mut i = bom_len(text);
+        while i < n && CLASS[b[i] as usize] == WS {
+            i += 1;
+        }
+        if i == n || b[i] != b'(' {
+            return None;
+        }
+        let root_start = i;
+        i += 1;
+        while i < n && CLASS[b[i] as usize] == WS {
+            i += 1;
+        }
+        // the head: the first child when it is an atom (it runs to white space or a bracket)
+        let mut head = None;
+        if i < n && CLASS[b[i] as usize] == 0 && b[i] != b'"' {
+            let s = i;
+            while i < n && CLASS[b[i] as usize] == 0 {
+                i += 1;
+            }
+            head = Some(&text[s..i]);
+        }
+        Some(Items {
+            text,
+            pos: i,
+            root_start,
+            root_end: None,
+            head,
+            tree: Tree {
+                text,
+                nodes: Vec::new(),
+            },
+            stack: Vec::new(),
+        })
+    }
+
+    /// The root list's head (`kicad_sch`), as [`Tree::head`] gives it.
+    pub fn head(&self) -> Option<&'a str> {
+        self.head
+    }
+
+    /// The root list's span, once [`Items::next_list`] has read to its end.
+    pub fn root_span(&self) -> Option<Span> {
+        self.root_end.map(|e| Span::new(self.root_start, e))
+    }
+
+    /// The next list among the root's children, as a tree whose node 0 is the list;
+    /// `Ok(None)` once the root list has closed with only white space after it; `Err(())`
+    /// where [`parse`] would fail.
+    #[allow(clippy::result_unit_err)]
+    pub fn next_list(&mut self) -> Result<Option<&Tree<'a>>, ()> {
+        if self.root_end.is_some() {
+            return Ok(None);
+        }
+        let b = self.text.as_bytes();
+        let n = b.len();
+        let mut i = self.pos;
+        loop {
+            while i < n && CLASS[b[i] as usize] == WS {
+                i += 1;
+            }
+            if i == n {
+                return Err(());
+            }
+            match b[i] {
+                b'(' => break,
+                b')' => {
+                    if !b[i + 1..].iter().all(|&c| CLASS[c as usize] == WS) {
+                        return Err(());
+                    }
+                    self.root_end = Some(i + 1);
+                    self.pos = n;
+                    return Ok(None);
+                }
+                b'"' => i = string_end(b, i).ok_or(())?,
+                _ => {
+                    while i < n && CLASS[b[i] as usize] == 0 {
+                        i += 1;
+                    }
+                }
+            }
+        }
+        self.pos = self.list(i)?;
+        Ok(Some(&self.tree))
+    }
+
+    /// Reads the list opening at `i` (a child of the root) into `self.tree`; returns the
+    /// byte after its `)`.
+    fn list(&mut self, mut i: usize) -> Result<usize, ()> {
+        let b = self.text.as_bytes();
+        let n = b.len();
+        let nodes = &mut self.tree.nodes;
+        let stack = &mut self.stack;
+        nodes.clear();
+        stack.clear();
+        macro_rules! link {
+            ($idx:expr) => {
+                if let Some(top) = stack.last_mut() {
+                    if top.1 != 0 {
+                        let prev = top.1 as usize;
+                        nodes[prev].next_kind |= $idx;
+                    }
+                    top.1 = $idx;
+                }
+            };
+        }
+        loop {
+            if i == n {
+                return Err(());
+            }
+            let c = b[i];
+            if CLASS[c as usize] == WS {
+                i += 1;
+                continue;
+            }
+            match c {
+                b'(' => {
+                    // the root list is open around this one
+                    if stack.len() + 1 >= MAX_DEPTH {
+                        return Err(());
+                    }
+                    let idx = nodes.len() as u32;
+                    link!(idx);
+                    nodes.push(Node {
+                        start: i as u32,
+                        end: 0,
+                        next_kind: 0,
+                    });
+                    stack.push((idx, 0));
+                    i += 1;
+                }
+                b')' => {
+                    let (idx, _) = stack.pop().ok_or(())?;
+                    nodes[idx as usize].end = (i + 1) as u32;
+                    i += 1;
+                    if stack.is_empty() {
+                        return Ok(i);
+                    }
+                }
+                b'"' => {
+                    let j = string_end(b, i).ok_or(())?;
+                    let idx = nodes.len() as u32;
+                    link!(idx);
+                    nodes.push(Node {
+                        start: i as u32,
+                        end: j as u32,
+                        next_kind: 2 << KIND_SHIFT,
+                    });
+                    i = j;
+                }
+                _ => {
+                    let start = i;
+                    let mut j = i + 1;
+                    while j < n && CLASS[b[j] as usize] == 0 {
+                        j += 1;
+                    }
+                    let idx = nodes.len() as u32;
+                    link!(idx);
+                    nodes.push(Node {
+                        start: start as u32,
+                        end: j as u32,
+                        next_kind: 1 << KIND_SHIFT,
+                    });
+                    i = j;
+                }
+            }
+        }
+    }
+}
+
+/// The byte after the quoted string opening at `start`, by [`parse`]'s rules (a backslash
+/// escapes the next byte); `None` when it is never closed.
+fn string_end(b: &[u8], start: usize) -> Option<usize> {
+    let n = b.len();
+    let mut j = start + 1;
+    loop {
+        let at = j + memchr::memchr2(b'"', b'\\', &b[j..])?;
+        if b[at] == b'\\' {
+            j = (at + 2).min(n);
+        } else {
+            return Some(at + 1);
+        }
+    }
+}
+
 /// Reads `text` (already known to be UTF-8) into a tree. One root list is expected, with
 /// only white space around it.
 pub fn parse(text: &str) -> Result<Tree<'_>, Diag> {

@@ -250,3 +250,99 @@ fn root_lists_agree_with_the_tree_on_every_cut_and_insertion() {
     assert_eq!(heads_in_tree(base, "sheet").map(|v| v.len()), Some(3));
     assert!(found > 1000);
 }
+
+/// What a list's tree holds, node by node in pre-order: kind, span, and where its first
+/// child and next sibling are counted from the list's own node (none for the list's own
+/// sibling, which lies outside it).
+fn shape_of(t: &Tree<'_>, list: NodeId) -> Vec<(Kind, Span, Option<u32>, Option<u32>)> {
+    let end = t.span(list).end;
+    let mut out = Vec::new();
+    let mut id = list;
+    while (id as usize) < t.len()
+        && t.span(id).start < end
+        && (id == list || t.span(id).start > t.span(list).start)
+    {
+        let sib = if id == list {
+            None
+        } else {
+            t.next_sibling(id).map(|s| s - list)
+        };
+        out.push((
+            t.kind(id),
+            t.span(id),
+            t.first_child(id).map(|c| c - list),
+            sib,
+        ));
+        id += 1;
+    }
+    out
+}
+
+/// Reading the root's lists one at a time gives each list the tree the whole reading gives
+/// it (every node's kind, span and links), the same head and root span, and stops exactly
+/// where the whole reading fails: a small sheet with strings holding brackets, quotes and
+/// escapes, atoms and strings among the root's children, cut at every byte and with a
+/// bracket, quote, backslash, space or letter put in at every byte; lists at the depth limit.
+#[test]
+fn items_agree_with_the_tree_on_every_cut_and_insertion() {
+    let base = "\u{feff} (kicad_sch (version 1) \"s(\" at (sheet (at 1 2) (property \"Sheetfile\" \"a (1).kicad_sch\"))\n\
+                (symbol (property \"x\\\"(\" \"y\\\\\") a\"b\"c) (wire(pts(xy 1 2)(xy 3 4)))\"s\"\"t\"u\"v\n\
+                () (\"q\" x) ( sheet ) (a (b (c \"d\")) e))\n";
+    let mut texts: Vec<String> = vec![base.to_string()];
+    for (cut, _) in base.char_indices() {
+        texts.push(base[..cut].to_string());
+        for ins in ["(", ")", "\"", "\\", " ", "x"] {
+            texts.push(format!("{}{ins}{}", &base[..cut], &base[cut..]));
+        }
+    }
+    let nest = |n: usize| format!("(a {}{})", "(".repeat(n), ")".repeat(n));
+    texts.extend([
+        nest(MAX_DEPTH - 1),
+        nest(MAX_DEPTH),
+        "(a) (b)".into(),
+        "(a)".into(),
+        "(\"a\" (b))".into(),
+        "((a) b)".into(),
+        "(a (b)".into(),
+        "x (a)".into(),
+        String::new(),
+    ]);
+    let (mut lists, mut failed) = (0, 0);
+    for t in &texts {
+        let whole = parse(t);
+        let Some(mut items) = Items::new(t) else {
+            assert!(whole.is_err(), "{t:?}");
+            continue;
+        };
+        let mut got = Vec::new();
+        let read = loop {
+            match items.next_list() {
+                Ok(Some(tree)) => got.push(shape_of(tree, tree.root())),
+                Ok(None) => break Ok(()),
+                Err(()) => break Err(()),
+            }
+        };
+        match (&whole, read) {
+            (Ok(tree), Ok(())) => {
+                let root = tree.root();
+                let want: Vec<_> = tree
+                    .children(root)
+                    .filter(|&c| tree.is_list(c))
+                    .map(|c| shape_of(tree, c))
+                    .collect();
+                // the links are counted from each list's own node, as in an item's tree
+                assert_eq!(want, got, "{t:?}");
+                assert_eq!(
+                    tree.children(root).filter(|&c| tree.is_list(c)).count(),
+                    got.len()
+                );
+                assert_eq!(items.head(), tree.head(root), "{t:?}");
+                assert_eq!(items.root_span(), Some(tree.span(root)), "{t:?}");
+                lists += got.len();
+            }
+            (Err(_), Err(())) => failed += 1,
+            (w, r) => panic!("whole {:?}, by items {r:?}: {t:?}", w.as_ref().map(|_| ())),
+        }
+    }
+    assert!(lists > 1000 && failed > 100, "{lists} {failed}");
+}
