@@ -46,6 +46,10 @@ struct Rec {
 const HAS_NET: u8 = 1;
 const HAS_PINS: u8 = 2;
 const LONG: u8 = 4;
+/// The message's own part is the start of the pin list (an unused gate's reference, `U4`,
+/// before `U4.1`): only the pin list is written, and the message is read from its first bytes.
+/// Only for a finding with no net and no [`LONG`] text.
+const OWN_IN_PINS: u8 = 8;
 
 /// The shared texts of a finding (numbers in [`DiagList::shared`]; `NONE`: none): the code,
 /// the help, and the parts of the message before and after its own part. Findings of one
@@ -166,6 +170,11 @@ pub struct DiagList {
     shape_index: hashbrown::HashTable<u32>,
     /// By a shared text's number, the set last given whose most telling text it is.
     shape_hint: Vec<u32>,
+    /// By a set of shared texts' number, the places last written for a finding of that set
+    /// (where the first is and how many, as in [`Rec`]): a finding of that set with the same
+    /// places points at them instead of writing them again (findings of one kind of part, on
+    /// pins that are on no net, point at the same pins of the library part).
+    shape_labels: Vec<(u32, u16)>,
     /// A finding's pin list and places, gathered before they are written into the pieces
     /// (their sizes are then known, and a piece is never grown past its size).
     pin_buf: String,
@@ -346,6 +355,21 @@ impl DiagList {
             pins.map_or(0, str::len),
         ];
         let long = lens.iter().any(|&l| l >= usize::from(u16::MAX));
+        if !long && net.is_none() && !message.is_empty() {
+            if let Some(p) = pins.filter(|p| p.starts_with(message)) {
+                // the message's own part is the start of the pin list: written once
+                let piece = self.text_room(p.len());
+                let t = &mut self.text[piece];
+                let at = t.len() as u32;
+                t.push_str(p);
+                return Texts {
+                    piece: piece_number(piece),
+                    at,
+                    lens: lens.map(|l| l as u16),
+                    has: HAS_PINS | OWN_IN_PINS,
+                };
+            }
+        }
         if !long {
             let piece = self.text_room(lens[0] + lens[1] + lens[2]);
             let t = &mut self.text[piece];
@@ -479,20 +503,56 @@ impl DiagList {
 
     /// Ends a finding whose texts are written and whose places are gathered.
     fn finish(&mut self, texts: Texts, shape: Shape, severity: Severity) {
+        let shape = self.shape(shape);
         let (first_label, labels) = self.put_labels();
+        let (first_label, labels) = self.same_labels(shape, first_label, labels);
         self.end(texts, first_label, labels, shape, severity);
     }
 
-    /// Ends a finding whose texts and places are written.
+    /// The places just written for a finding of the set of shared texts `shape` (the last
+    /// `labels` of their piece, from `first_label` on): when they are the places last written
+    /// for a finding of that set, those are given and these taken back; else they are
+    /// remembered for the set.
+    fn same_labels(&mut self, shape: u32, first_label: u32, labels: u16) -> (u32, u16) {
+        if labels == 0 {
+            return (first_label, labels);
+        }
+        let at = |first: u32| {
+            (
+                (first >> LABEL_SHIFT) as usize,
+                (first & ((1 << LABEL_SHIFT) - 1)) as usize,
+            )
+        };
+        let shape = shape as usize;
+        if let Some(&(last, n)) = self.shape_labels.get(shape) {
+            if n == labels {
+                let (p, from) = at(last);
+                let (q, new) = at(first_label);
+                let n = usize::from(n);
+                if self.labels[p][from..from + n] == self.labels[q][new..new + n] {
+                    // the new ones are the last of their piece
+                    self.labels[q].truncate(new);
+                    return (last, labels);
+                }
+            }
+        }
+        if self.shape_labels.len() <= shape {
+            self.shape_labels.resize(self.shapes.len().max(shape + 1), (0, 0));
+        }
+        self.shape_labels[shape] = (first_label, labels);
+        (first_label, labels)
+    }
+
+    /// Ends a finding whose texts and places are written (`shape`: the number of its set of
+    /// shared texts).
     fn end(
         &mut self,
         texts: Texts,
         first_label: u32,
         labels: u16,
-        shape: Shape,
+        shape: u32,
         severity: Severity,
     ) {
-        let shape = self.shape(shape);
         let [message, net, pins] = texts.lens;
         self.push_rec(Rec {
             at: texts.at,
@@ -672,6 +732,7 @@ impl DiagList {
             head: id(raw.head),
             tail: id(raw.tail),
         };
+        let shape = self.shape(shape);
         let labels = labels.into_iter();
         let (n, most) = labels.size_hint();
         if most != Some(n) || n > usize::from(u16::MAX) {
@@ -679,7 +740,9 @@ impl DiagList {
                 let text = self.shared_id(text);
                 self.push_label(span, text, primary);
             }
-            self.finish(texts, shape, raw.severity);
+            let (first_label, labels) = self.put_labels();
+            let (first_label, labels) = self.same_labels(shape, first_label, labels);
+            self.end(texts, first_label, labels, shape, raw.severity);
             return;
         }
         // as many places as the iterator tells: written straight into their piece
@@ -699,6 +762,7 @@ impl DiagList {
                 (l.len() - from) as u16,
             )
         };
+        let (first_label, count) = self.same_labels(shape, first_label, count);
         self.end(texts, first_label, count, shape, raw.severity);
     }
 
@@ -713,17 +777,25 @@ impl DiagList {
         // written straight into the last piece while they fit in it; otherwise (the piece
         // is full, or a text is long) gathered in `pin_buf` and written as a whole
         let net_text = net.unwrap_or("");
-        let piece = self.text_room(own.len() + net_text.len());
+        let mut pins = pins.into_iter().peekable();
+        // the own words are the first pin's reference (an unused gate's): only the pins are
+        // written, the message read from their start
+        let own_in_pins = net.is_none()
+            && !own.is_empty()
+            && pins
+                .peek()
+                .is_some_and(|p| std::ptr::eq(p[0], own) || p[0] == own);
+        let own_text = if own_in_pins { "" } else { own };
+        let piece = self.text_room(own_text.len() + net_text.len());
         let t = &mut self.text[piece];
         let at = t.len();
-        if !own.is_empty() {
-            t.push_str(own);
+        if !own_text.is_empty() {
+            t.push_str(own_text);
         }
         if !net_text.is_empty() {
             t.push_str(net_text);
         }
         let pins_at = t.len();
-        let mut pins = pins.into_iter();
         let (mut any, mut spilt) = (false, None);
         for p in pins.by_ref() {
             let need = usize::from(any) + p[0].len() + p[1].len() + p[2].len();
@@ -745,7 +817,9 @@ impl DiagList {
                 piece: piece_number(piece),
                 at: at as u32,
                 lens: lens.map(|l| l as u16),
-                has: net.map_or(0, |_| HAS_NET) | if any { HAS_PINS } else { 0 },
+                has: net.map_or(0, |_| HAS_NET)
+                    | if any { HAS_PINS } else { 0 }
+                    | if own_in_pins { OWN_IN_PINS } else { 0 },
             };
         }
         let mut buf = std::mem::take(&mut self.pin_buf);
@@ -846,15 +920,15 @@ impl DiagList {
 
     /// Rearranges the findings so that the finding at `i` is the one that was at `order[i]`
     /// (`order` a permutation; it is used up).
-    pub(crate) fn apply_order(&mut self, order: &mut [usize]) {
-        const DONE: usize = usize::MAX;
+    pub(crate) fn apply_order(&mut self, order: &mut [u64]) {
+        const DONE: u64 = u64::MAX;
         for i in 0..self.len {
             if order[i] == DONE {
                 continue;
             }
             let mut cur = i;
             loop {
-                let next = std::mem::replace(&mut order[cur], DONE);
+                let next = std::mem::replace(&mut order[cur], DONE) as usize;
                 if next == i {
                     break;
                 }
@@ -882,6 +956,8 @@ impl DiagList {
         self.labels.shrink_to_fit();
         self.text.shrink_to_fit();
         self.shapes.shrink_to_fit();
+        // the places of the findings pushed after this are not looked for among these
+        self.shape_labels = Vec::new();
         self.pin_buf = String::new();
         self.label_buf = Vec::new();
     }
@@ -896,6 +972,7 @@ impl DiagList {
             + self.shapes.capacity() * size_of::<Shape>()
             + self.shape_index.capacity() * size_of::<u32>()
             + self.shape_hint.capacity() * size_of::<u32>()
+            + self.shape_labels.capacity() * size_of::<(u32, u16)>()
             + self.pin_buf.capacity()
             + self.label_buf.capacity() * size_of::<LabelRec>()
     }
@@ -1019,21 +1096,26 @@ impl<'a> DiagRef<'a> {
         DiagRef(Inner::In(list, r))
     }
 
-    /// A finding's own texts in the list: its piece of text, where they start in it, and the
-    /// lengths of the message's own part, the net and the pin list (0 for none).
+    /// A finding's own texts in the list: its piece of text, where the message's own part,
+    /// the net and the pin list start in it, and their lengths (0 for none).
     #[inline]
-    fn own(list: &'a DiagList, r: &Rec) -> (&'a str, usize, [usize; 3]) {
+    fn own(list: &'a DiagList, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
         let text = &list.text[usize::from(r.piece)];
-        if r.has & LONG == 0 {
-            let lens = [r.message, r.net, r.pins].map(usize::from);
-            return (text, r.at as usize, lens);
+        let at = r.at as usize;
+        if r.has & (LONG | OWN_IN_PINS) == 0 {
+            let [m, n, p] = [r.message, r.net, r.pins].map(usize::from);
+            return (text, [at, at + m, at + m + n], [m, n, p]);
+        }
+        if r.has & OWN_IN_PINS != 0 {
+            let [m, n, p] = [r.message, r.net, r.pins].map(usize::from);
+            return (text, [at, at, at], [m, n, p]);
         }
         Self::own_long(text, r)
     }
 
     /// [`DiagRef::own`] of a finding whose lengths are written before its texts.
     #[cold]
-    fn own_long(text: &'a str, r: &Rec) -> (&'a str, usize, [usize; 3]) {
+    fn own_long(text: &'a str, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
         let mut at = r.at as usize;
         let b = text.as_bytes();
         let message = get_len(b, &mut at);
@@ -1047,7 +1129,11 @@ impl<'a> DiagRef<'a> {
         } else {
             0
         };
-        (text, at, [message, net, pins])
+        (
+            text,
+            [at, at + message, at + message + net],
+            [message, net, pins],
+        )
     }
 
     fn shape(list: &'a DiagList, r: &Rec) -> Shape {
@@ -1081,7 +1167,7 @@ impl<'a> DiagRef<'a> {
         match self.0 {
             Inner::One(d) => &d.message,
             Inner::In(l, r) => {
-                let (text, at, [m, _, _]) = Self::own(l, r);
+                let (text, [at, _, _], [m, _, _]) = Self::own(l, r);
                 &text[at..at + m]
             }
         }
@@ -1157,8 +1243,8 @@ impl<'a> DiagRef<'a> {
         match self.0 {
             Inner::One(d) => d.net.as_deref(),
             Inner::In(l, r) => (r.has & HAS_NET != 0).then(|| {
-                let (text, at, [m, n, _]) = Self::own(l, r);
-                &text[at + m..at + m + n]
+                let (text, [_, at, _], [_, n, _]) = Self::own(l, r);
+                &text[at..at + n]
             }),
         }
     }
@@ -1168,8 +1254,8 @@ impl<'a> DiagRef<'a> {
         match self.0 {
             Inner::One(d) => d.pins.0.as_deref(),
             Inner::In(l, r) => (r.has & HAS_PINS != 0).then(|| {
-                let (text, at, [m, n, p]) = Self::own(l, r);
-                &text[at + m + n..at + m + n + p]
+                let (text, [_, _, at], [_, _, p]) = Self::own(l, r);
+                &text[at..at + p]
             }),
         }
     }
@@ -1458,6 +1544,75 @@ mod tests {
         assert!(list.iter().zip(&want).all(|(r, d)| r == d.view()));
     }
 
+    /// Findings of one set of shared texts at the same places point at one copy of them; an
+    /// unused gate's reference, the start of its pin list, is not written twice. They read
+    /// back as pushed, in any mix with findings at other places.
+    #[test]
+    fn places_said_again_and_references_in_pins_are_held_once() {
+        let mut list = DiagList::new();
+        let code = list.share_id(&Text::Fixed(A));
+        let (head, tail) = (
+            list.share_id(&Text::Fixed("gate A of ")),
+            list.share_id(&Text::Fixed(" is unused")),
+        );
+        let (first, other) = (
+            list.share_id(&Text::Fixed("unused gate")),
+            list.share_id(&Text::Fixed("")),
+        );
+        let mut want = Vec::new();
+        for i in 0..300usize {
+            let own = format!("U{i}");
+            // the first two hundred parts on the same two pins of the library part, the others
+            // at their own
+            let at = if i >= 200 { 100 + i } else { 7 };
+            let spans = [Span::new(at, at + 2), Span::new(at + 3, at + 5)];
+            let pins = [format!("{own}.1"), format!("{own}.2")];
+            let d = Diag::error(A, format!("gate A of {own} is unused"))
+                .at(spans[0], "unused gate")
+                .also(spans[1], "")
+                .with_pins(&pins);
+            if i % 2 == 0 {
+                list.push_shared(
+                    RawShared {
+                        code,
+                        severity: Severity::Error,
+                        head: Some(head),
+                        own: &own,
+                        tail: Some(tail),
+                        help: None,
+                        net: None,
+                    },
+                    [[own.as_str(), ".", "1"], [own.as_str(), ".", "2"]],
+                    [(spans[0], first, true), (spans[1], other, false)],
+                );
+            } else {
+                list.push_parts(
+                    &d,
+                    &own,
+                    Around {
+                        head: Some(&Text::Fixed("gate A of ")),
+                        tail: Some(&Text::Fixed(" is unused")),
+                    },
+                );
+            }
+            want.push(d);
+        }
+        for (i, (r, d)) in list.iter().zip(&want).enumerate() {
+            assert_eq!(r, d.view(), "{i}");
+        }
+        // the places at 7 written once, the others each time
+        let places: usize = list.labels.iter().map(Vec::len).sum();
+        assert_eq!(places, 2 + 2 * 100);
+        // each finding's text is its pin list alone
+        let text: usize = list.text.iter().map(String::len).sum();
+        let pins: usize = want.iter().map(|d| d.pins.0.as_deref().unwrap().len()).sum();
+        assert_eq!(text, pins);
+        // a finding with a net keeps its own words apart
+        let d = Diag::error(A, "U1 x").on_net("N").with_pins(["U1.1"]);
+        list.push(d.clone());
+        assert_eq!(list.get(300).unwrap(), d.view());
+    }
+
     #[test]
     fn a_message_in_parts_reads_whole() {
         let head = Text::Fixed("gate A of ");
@@ -1521,7 +1676,7 @@ mod tests {
             let items: Vec<char> = "abcde".chars().collect();
             let want: Vec<String> = p.iter().map(|&i| items[i].to_string()).collect();
             let mut got: DiagList = items.iter().map(|c| Diag::info(A, c.to_string())).collect();
-            got.apply_order(&mut p.clone());
+            got.apply_order(&mut p.iter().map(|&i| i as u64).collect::<Vec<_>>());
             let got: Vec<String> = got.iter().map(|d| d.message().into_owned()).collect();
             assert_eq!(got, want, "{p:?}");
         }
@@ -1555,7 +1710,7 @@ mod tests {
         assert!(list.get(n).is_none());
         assert_eq!(list.iter().rev().count(), n);
         // reversed
-        let mut order: Vec<usize> = (0..n).rev().collect();
+        let mut order: Vec<u64> = (0..n as u64).rev().collect();
         list.apply_order(&mut order);
         assert_eq!(list.get(0).unwrap(), mk(n - 1).view());
         assert_eq!(list.get(n - 1).unwrap(), mk(0).view());
@@ -1725,7 +1880,7 @@ mod tests {
     #[test]
     fn lists_reorder_keep_and_prepend() {
         let mut list: DiagList = (0..6).map(sample).collect();
-        let mut order = vec![5, 4, 3, 2, 1, 0];
+        let mut order: Vec<u64> = vec![5, 4, 3, 2, 1, 0];
         list.apply_order(&mut order);
         let m: Vec<String> = list.iter().map(|r| r.message().into_owned()).collect();
         assert_eq!(m[0], "message 5");
