@@ -94,6 +94,9 @@ mod tests {
             for (k, (at, how, code, own, head, tail)) in items.iter().enumerate() {
                 let head = heads.get(*head);
                 let tail = tails.get(*tail);
+                // one in three with its own words in two pieces, words said alike between
+                let (a, b) = own.split_at(own.len().min(1));
+                let own = if k % 3 == 0 { format!("{a} x {b}") } else { own.clone() };
                 let whole = format!(
                     "{}{own}{}",
                     head.map_or("", |t| t),
@@ -106,7 +109,13 @@ mod tests {
                     1 => d.at(span, "x"),
                     _ => d.also(span, "y"),
                 };
-                list.push_parts(&d, own, Around { head, tail });
+                if k % 3 == 0 {
+                    use crate::diag::Piece::{Own, Said};
+                    let (h, t) = (head.map_or("", |t| t), tail.map_or("", |t| t));
+                    list.push_pieces(&d, &[Said(h), Own(a), Said(" x "), Own(b), Said(t)]);
+                } else {
+                    list.push_parts(&d, &own, Around { head, tail });
+                }
                 want.push(d);
             }
             sort_in_file_order(&mut list);
@@ -270,24 +279,42 @@ fn sort_in_file_order(out: &mut DiagList) {
             // each finding's code and message parts read once, then sorted (stably, so
             // ties keep their order); a code is one shared text: the same text is not
             // compared byte by byte
+            let mut plain = true;
             let run: Vec<(&str, [&str; 3], u32)> = keys[i..j]
                 .iter()
                 .map(|&k| {
                     let d = out.get((k & 0xffff_ffff) as usize).expect("in the list");
-                    (d.code(), d.message_parts(), k as u32)
+                    let parts = d.message_parts();
+                    plain &= parts.three().is_some();
+                    (d.code(), parts.three().unwrap_or_default(), k as u32)
                 })
                 .collect();
             // their places in the run are sorted, not the entries
             let mut by: Vec<u32> = (0..run.len() as u32).collect();
-            by.sort_by(|&a, &b| {
-                let (a, b) = (&run[a as usize], &run[b as usize]);
-                let code = if std::ptr::eq(a.0, b.0) {
+            let code = |a: &(&str, [&str; 3], u32), b: &(&str, [&str; 3], u32)| {
+                if std::ptr::eq(a.0, b.0) {
                     std::cmp::Ordering::Equal
                 } else {
                     a.0.cmp(b.0)
-                };
-                code.then_with(|| crate::diag::cmp_parts(a.1, b.1))
-            });
+                }
+            };
+            if plain {
+                by.sort_by(|&a, &b| {
+                    let (a, b) = (&run[a as usize], &run[b as usize]);
+                    code(a, b).then_with(|| crate::diag::cmp_parts(a.1, b.1))
+                });
+            } else {
+                // some messages with own words in pieces: their parts read as they are compared
+                by.sort_by(|&a, &b| {
+                    let (a, b) = (&run[a as usize], &run[b as usize]);
+                    code(a, b).then_with(|| {
+                        let parts = |r: &(&str, [&str; 3], u32)| {
+                            out.get(r.2 as usize).expect("in the list").message_parts()
+                        };
+                        crate::diag::cmp_part_lists(parts(a).iter(), parts(b).iter())
+                    })
+                });
+            }
             for (slot, &r) in keys[i..j].iter_mut().zip(&by) {
                 *slot = (*slot & !0xffff_ffff) | u64::from(run[r as usize].2);
             }

@@ -52,14 +52,17 @@ const LONG: u8 = 4;
 const OWN_IN_PINS: u8 = 8;
 
 /// The shared texts of a finding (numbers in [`DiagList::shared`]; `NONE`: none): the code,
-/// the help, and the parts of the message before and after its own part. Findings of one
-/// kind have the same, so it is kept once in the list for all of them.
+/// the help, the parts of the message before and after its own part, and the words between
+/// the pieces of its own part (a number in [`DiagList::join_sets`]; `NONE`: its own part is
+/// one piece). Findings of one kind have the same, so it is kept once in the list for all of
+/// them.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 struct Shape {
     code: u32,
     help: u32,
     head: u32,
     tail: u32,
+    joins: u32,
 }
 
 /// The number of a piece of text in a record.
@@ -175,6 +178,20 @@ pub struct DiagList {
     /// places points at them instead of writing them again (findings of one kind of part, on
     /// pins that are on no net, point at the same pins of the library part).
     shape_labels: Vec<(u32, u16)>,
+    /// The words said between the pieces of a message's own part ([`DiagList::push_pieces`]),
+    /// as numbers in `shared`, each list of them once: where it starts in `joins` and how
+    /// long it is, by its number; found by content, the last one given first.
+    joins: Vec<u32>,
+    join_sets: Vec<(u32, u32)>,
+    join_index: hashbrown::HashTable<u32>,
+    /// A message given in pieces, gathered: its pieces' words one after another, and each
+    /// run of pieces of one kind (said alike, and where its words are in `piece_buf`).
+    piece_buf: String,
+    piece_runs: Vec<(bool, u32, u32)>,
+    /// The own part of a message in pieces, as it is written (see [`DiagList::push_pieces`]),
+    /// and the numbers of the words between its pieces.
+    own_buf: String,
+    join_buf: Vec<u32>,
     /// A finding's pin list and places, gathered before they are written into the pieces
     /// (their sizes are then known, and a piece is never grown past its size).
     pin_buf: String,
@@ -255,6 +272,14 @@ pub fn cmp_parts(a: [&str; 3], b: [&str; 3]) -> std::cmp::Ordering {
 pub struct Around<'t> {
     pub head: Option<&'t Text>,
     pub tail: Option<&'t Text>,
+}
+
+/// A piece of a message given in pieces ([`DiagList::push_pieces`]): words many findings say
+/// alike, or the finding's own.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Piece<'t> {
+    Own(&'t str),
+    Said(&'t str),
 }
 
 /// What a finding written straight into a list ([`DiagList::push_raw`]) says besides its pins
@@ -348,14 +373,22 @@ impl DiagList {
 
     /// Writes a finding's own texts (see [`Rec`]). Gives where they are: the piece, where
     /// they start in it, their lengths and which of net and pins the finding has.
-    fn put_texts(&mut self, message: &str, net: Option<&str>, pins: Option<&str>) -> Texts {
+    /// `plain`: the message's own part is words of its own (not pieces with their lengths), so
+    /// it may be read from the start of the pin list.
+    fn put_texts(
+        &mut self,
+        message: &str,
+        net: Option<&str>,
+        pins: Option<&str>,
+        plain: bool,
+    ) -> Texts {
         let lens = [
             message.len(),
             net.map_or(0, str::len),
             pins.map_or(0, str::len),
         ];
         let long = lens.iter().any(|&l| l >= usize::from(u16::MAX));
-        if !long && net.is_none() && !message.is_empty() {
+        if plain && !long && net.is_none() && !message.is_empty() {
             if let Some(p) = pins.filter(|p| p.starts_with(message)) {
                 // the message's own part is the start of the pin list: written once
                 let piece = self.text_room(p.len());
@@ -504,43 +537,37 @@ impl DiagList {
     /// Ends a finding whose texts are written and whose places are gathered.
     fn finish(&mut self, texts: Texts, shape: Shape, severity: Severity) {
         let shape = self.shape(shape);
-        let (first_label, labels) = self.put_labels();
-        let (first_label, labels) = self.same_labels(shape, first_label, labels);
+        let (first_label, labels) = self.put_labels_of(shape);
         self.end(texts, first_label, labels, shape, severity);
     }
 
-    /// The places just written for a finding of the set of shared texts `shape` (the last
-    /// `labels` of their piece, from `first_label` on): when they are the places last written
-    /// for a finding of that set, those are given and these taken back; else they are
-    /// remembered for the set.
-    fn same_labels(&mut self, shape: u32, first_label: u32, labels: u16) -> (u32, u16) {
-        if labels == 0 {
-            return (first_label, labels);
+    /// Writes the places gathered in `label_buf` for a finding of the set of shared texts
+    /// `shape`, as [`DiagList::put_labels`] does; when they are the places last written for a
+    /// finding of that set, those are given instead, and nothing is written. Gives where the
+    /// first is and how many there are.
+    fn put_labels_of(&mut self, shape: u32) -> (u32, u16) {
+        let n = self.label_buf.len();
+        if n == 0 {
+            return (0, 0);
         }
-        let at = |first: u32| {
-            (
-                (first >> LABEL_SHIFT) as usize,
-                (first & ((1 << LABEL_SHIFT) - 1)) as usize,
-            )
-        };
         let shape = shape as usize;
-        if let Some(&(last, n)) = self.shape_labels.get(shape) {
-            if n == labels {
-                let (p, from) = at(last);
-                let (q, new) = at(first_label);
-                let n = usize::from(n);
-                if self.labels[p][from..from + n] == self.labels[q][new..new + n] {
-                    // the new ones are the last of their piece
-                    self.labels[q].truncate(new);
-                    return (last, labels);
+        if let Some(&(last, count)) = self.shape_labels.get(shape) {
+            if usize::from(count) == n {
+                let piece = &self.labels[(last >> LABEL_SHIFT) as usize];
+                let from = (last & ((1 << LABEL_SHIFT) - 1)) as usize;
+                if piece[from..from + n] == self.label_buf[..] {
+                    self.label_buf.clear();
+                    return (last, count);
                 }
             }
         }
+        let (first, count) = self.put_labels();
         if self.shape_labels.len() <= shape {
-            self.shape_labels.resize(self.shapes.len().max(shape + 1), (0, 0));
+            self.shape_labels
+                .resize(self.shapes.len().max(shape + 1), (0, 0));
         }
-        self.shape_labels[shape] = (first_label, labels);
-        (first_label, labels)
+        self.shape_labels[shape] = (first, count);
+        (first, count)
     }
 
     /// Ends a finding whose texts and places are written (`shape`: the number of its set of
@@ -646,7 +673,15 @@ impl DiagList {
     }
 
     fn push_view(&mut self, d: DiagRef<'_>, message: &str, around: Around<'_>) {
-        let texts = self.put_texts(message, d.net(), d.pin_text());
+        let texts = self.put_texts(message, d.net(), d.pin_text(), true);
+        let head = around.head.map(|t| self.share(t, Some(t), 2));
+        let tail = around.tail.map(|t| self.share(t, Some(t), 3));
+        self.push_rest(d, texts, head.unwrap_or(NONE), tail.unwrap_or(NONE), NONE);
+    }
+
+    /// Ends [`DiagList::push_view`] and [`DiagList::push_pieces`]: the code, the help and the
+    /// places of `d`, with its texts written and its message's shared parts given.
+    fn push_rest(&mut self, d: DiagRef<'_>, texts: Texts, head: u32, tail: u32, joins: u32) {
         let code = match d.0 {
             Inner::One(one) => self.share_cow(&one.code, 0),
             Inner::In(..) => self.share(d.code(), None, 0),
@@ -655,8 +690,6 @@ impl DiagList {
             Inner::One(one) => one.help.as_ref().map(|h| self.share(h, Some(h), 1)),
             Inner::In(..) => d.help().map(|h| self.share(h, None, 1)),
         };
-        let head = around.head.map(|t| self.share(t, Some(t), 2));
-        let tail = around.tail.map(|t| self.share(t, Some(t), 3));
         match d.0 {
             Inner::One(one) => {
                 for (k, l) in one.labels.iter().enumerate() {
@@ -674,10 +707,122 @@ impl DiagList {
         let shape = Shape {
             code,
             help: help.unwrap_or(NONE),
-            head: head.unwrap_or(NONE),
-            tail: tail.unwrap_or(NONE),
+            head,
+            tail,
+            joins,
         };
         self.finish(texts, shape, d.severity());
+    }
+
+    /// Adds `d` at the end with its message in `pieces`, the message of `d` left out: the
+    /// words said alike by many findings (a part's pin and value, a net's rail) kept once in
+    /// the list, the finding's own (a reference, a net's name) written with it. The pieces
+    /// before the first of its own and after the last are the message's head and tail; those
+    /// between are kept once as a list for all the findings that say them, and the own pieces
+    /// are written one after another, the lengths of all but the last before them (as
+    /// [`put_len`] writes a length). Empty pieces are left out and neighbours of one kind read
+    /// as one.
+    pub fn push_pieces(&mut self, d: &Diag, pieces: &[Piece<'_>]) {
+        self.push_view_pieces(d.view(), pieces.iter().copied());
+    }
+
+    fn push_view_pieces<'p>(&mut self, d: DiagRef<'_>, pieces: impl Iterator<Item = Piece<'p>>) {
+        let mut buf = std::mem::take(&mut self.piece_buf);
+        let mut runs = std::mem::take(&mut self.piece_runs);
+        buf.clear();
+        runs.clear();
+        for p in pieces {
+            let (said, words) = match p {
+                Piece::Own(w) => (false, w),
+                Piece::Said(w) => (true, w),
+            };
+            if words.is_empty() {
+                continue;
+            }
+            let from = buf.len() as u32;
+            buf.push_str(words);
+            match runs.last_mut() {
+                Some(r) if r.0 == said => r.2 = buf.len() as u32,
+                _ => runs.push((said, from, buf.len() as u32)),
+            }
+        }
+        let words = |r: &(bool, u32, u32)| &buf[r.1 as usize..r.2 as usize];
+        let mut mid = &runs[..];
+        let head = match mid.first() {
+            Some(r) if r.0 => {
+                mid = &mid[1..];
+                self.share(words(r), None, 2)
+            }
+            _ => NONE,
+        };
+        let tail = match mid.last() {
+            Some(r) if r.0 => {
+                mid = &mid[..mid.len() - 1];
+                self.share(words(r), None, 3)
+            }
+            _ => NONE,
+        };
+        // `mid` is own words, then (words said alike, own words) pairs
+        let mut own = std::mem::take(&mut self.own_buf);
+        let mut joins = std::mem::take(&mut self.join_buf);
+        own.clear();
+        joins.clear();
+        let texts = if mid.len() <= 1 {
+            let message = mid.first().map_or("", words);
+            self.put_texts(message, d.net(), d.pin_text(), true)
+        } else {
+            for r in mid.iter().step_by(2).take(mid.len() / 2) {
+                put_len(&mut own, words(r).len());
+            }
+            for r in mid {
+                if r.0 {
+                    joins.push(self.intern(words(r), None));
+                } else {
+                    own.push_str(words(r));
+                }
+            }
+            self.put_texts(&own, d.net(), d.pin_text(), false)
+        };
+        let join_set = if joins.is_empty() {
+            NONE
+        } else {
+            self.join_set(&joins)
+        };
+        self.piece_buf = buf;
+        self.piece_runs = runs;
+        self.own_buf = own;
+        self.join_buf = joins;
+        self.push_rest(d, texts, head, tail, join_set);
+    }
+
+    /// The number of the list of words between the pieces of a message's own part (added the
+    /// first time it is given).
+    fn join_set(&mut self, ids: &[u32]) -> u32 {
+        let (joins, sets) = (&self.joins, &self.join_sets);
+        let set = |i: u32| {
+            let (from, n) = sets[i as usize];
+            &joins[from as usize..(from + n) as usize]
+        };
+        // findings of one kind come in a row: the last set given first
+        if let Some(last) = sets.len().checked_sub(1) {
+            if set(last as u32) == ids {
+                return last as u32;
+            }
+        }
+        let h = rustc_hash::FxBuildHasher.hash_one(ids);
+        if let Some(&i) = self.join_index.find(h, |&i| set(i) == ids) {
+            return i;
+        }
+        let i = self.join_sets.len() as u32;
+        self.join_sets
+            .push((self.joins.len() as u32, ids.len() as u32));
+        self.joins.extend_from_slice(ids);
+        let (joins, sets) = (&self.joins, &self.join_sets);
+        self.join_index.insert_unique(h, i, |&j| {
+            let (from, n) = sets[j as usize];
+            rustc_hash::FxBuildHasher.hash_one(&joins[from as usize..(from + n) as usize])
+        });
+        i
     }
 
     /// Gathers a place of the finding being pushed.
@@ -711,6 +856,7 @@ impl DiagList {
             help: help.unwrap_or(NONE),
             head: head.unwrap_or(NONE),
             tail: tail.unwrap_or(NONE),
+            joins: NONE,
         };
         self.finish(texts, shape, raw.severity);
     }
@@ -731,39 +877,17 @@ impl DiagList {
             help: id(raw.help),
             head: id(raw.head),
             tail: id(raw.tail),
+            joins: NONE,
         };
         let shape = self.shape(shape);
-        let labels = labels.into_iter();
-        let (n, most) = labels.size_hint();
-        if most != Some(n) || n > usize::from(u16::MAX) {
-            for (span, text, primary) in labels {
-                let text = self.shared_id(text);
-                self.push_label(span, text, primary);
-            }
-            let (first_label, labels) = self.put_labels();
-            let (first_label, labels) = self.same_labels(shape, first_label, labels);
-            self.end(texts, first_label, labels, shape, raw.severity);
-            return;
+        // gathered first: findings of one kind of part on pins that are on no net have the
+        // places the last of their kind had, and those are not written again
+        for (span, text, primary) in labels {
+            let text = self.shared_id(text);
+            self.push_label(span, text, primary);
         }
-        // as many places as the iterator tells: written straight into their piece
-        let token = self.token;
-        let (first_label, count) = if n == 0 {
-            (0, 0)
-        } else {
-            let piece = self.label_room(n);
-            let l = &mut self.labels[piece];
-            let from = l.len();
-            for (span, text, primary) in labels.take(n) {
-                assert_eq!(text.list, token, "a shared text of another list");
-                l.push(LabelRec::new(span, text.id, primary));
-            }
-            (
-                ((piece as u32) << LABEL_SHIFT) | from as u32,
-                (l.len() - from) as u16,
-            )
-        };
-        let (first_label, count) = self.same_labels(shape, first_label, count);
-        self.end(texts, first_label, count, shape, raw.severity);
+        let (first_label, labels) = self.put_labels_of(shape);
+        self.end(texts, first_label, labels, shape, raw.severity);
     }
 
     /// Writes the own texts of a finding written straight into the list: its own words, net
@@ -835,13 +959,31 @@ impl DiagList {
                 buf.push_str(x);
             }
         }
-        let texts = self.put_texts(own, net, any.then_some(buf.as_str()));
+        let texts = self.put_texts(own, net, any.then_some(buf.as_str()), true);
         self.pin_buf = buf;
         texts
     }
 
     /// Adds a copy of a finding read from another list (or a single one).
     pub fn push_ref(&mut self, d: DiagRef<'_>) {
+        let parts = d.message_parts();
+        if parts.three().is_none() {
+            // its own words in pieces: given as they are read
+            let mut i = 0;
+            self.push_view_pieces(
+                d,
+                parts.iter().map(|p| {
+                    // head, own, said, own ... own, tail
+                    i += 1;
+                    if i % 2 == 0 {
+                        Piece::Own(p)
+                    } else {
+                        Piece::Said(p)
+                    }
+                }),
+            );
+            return;
+        }
         let message = d.own_message();
         let around_head = d.head().map(|s| Text::Shared(s.into()));
         let around_tail = d.tail().map(|s| Text::Shared(s.into()));
@@ -958,6 +1100,12 @@ impl DiagList {
         self.shapes.shrink_to_fit();
         // the places of the findings pushed after this are not looked for among these
         self.shape_labels = Vec::new();
+        self.joins.shrink_to_fit();
+        self.join_sets.shrink_to_fit();
+        self.piece_buf = String::new();
+        self.piece_runs = Vec::new();
+        self.own_buf = String::new();
+        self.join_buf = Vec::new();
         self.pin_buf = String::new();
         self.label_buf = Vec::new();
     }
@@ -973,6 +1121,11 @@ impl DiagList {
             + self.shape_index.capacity() * size_of::<u32>()
             + self.shape_hint.capacity() * size_of::<u32>()
             + self.shape_labels.capacity() * size_of::<(u32, u16)>()
+            + self.joins.capacity() * size_of::<u32>()
+            + self.join_sets.capacity() * size_of::<(u32, u32)>()
+            + self.join_index.capacity() * size_of::<u32>()
+            + self.piece_buf.capacity()
+            + self.own_buf.capacity()
             + self.pin_buf.capacity()
             + self.label_buf.capacity() * size_of::<LabelRec>()
     }
@@ -1074,6 +1227,131 @@ pub struct DiagRef<'a>(Inner<'a>);
 enum Inner<'a> {
     One(&'a Diag),
     In(&'a DiagList, &'a Rec),
+}
+
+/// The parts of a finding's message, read ([`DiagRef::message_parts`]): the head, the
+/// finding's own words and the tail; own words in pieces have the words said between them.
+#[derive(Debug, Clone, Copy)]
+pub struct MessageParts<'a> {
+    head: &'a str,
+    /// The own words; in pieces, the lengths of all but the last piece before them.
+    own: &'a str,
+    tail: &'a str,
+    /// The words between the pieces, as numbers in `shared` (none: one piece).
+    joins: &'a [u32],
+    shared: &'a [Text],
+}
+
+impl<'a> MessageParts<'a> {
+    /// The head, own words and tail, when the own words are one piece.
+    #[inline]
+    pub fn three(&self) -> Option<[&'a str; 3]> {
+        self.joins
+            .is_empty()
+            .then_some([self.head, self.own, self.tail])
+    }
+
+    /// Every part in order: the head, the own pieces with the words between them, the tail.
+    pub fn iter(&self) -> PartsIter<'a> {
+        // the own pieces' words start after their lengths
+        let mut data = 0;
+        for _ in self.joins {
+            get_len(self.own.as_bytes(), &mut data);
+        }
+        PartsIter {
+            parts: *self,
+            step: 0,
+            lens: 0,
+            data,
+        }
+    }
+}
+
+/// The parts of a message in order ([`MessageParts::iter`]).
+#[derive(Debug, Clone)]
+pub struct PartsIter<'a> {
+    parts: MessageParts<'a>,
+    /// 0: the head; then the own pieces and the words between them, each in turn; then the
+    /// tail.
+    step: usize,
+    /// Where the next own piece's length and words are in the own words.
+    lens: usize,
+    data: usize,
+}
+
+impl<'a> Iterator for PartsIter<'a> {
+    type Item = &'a str;
+    fn next(&mut self) -> Option<&'a str> {
+        let p = &self.parts;
+        let k = p.joins.len();
+        let step = self.step;
+        self.step += 1;
+        if step == 0 {
+            return Some(p.head);
+        }
+        let i = step - 1;
+        if i > 2 * k + 1 {
+            return None;
+        }
+        if i == 2 * k + 1 {
+            return Some(p.tail);
+        }
+        if i % 2 == 1 {
+            return Some(&p.shared[p.joins[i / 2] as usize]);
+        }
+        if k == 0 {
+            return Some(p.own);
+        }
+        let from = self.data;
+        if i / 2 == k {
+            // the last piece: the rest
+            self.data = p.own.len();
+        } else {
+            self.data += get_len(p.own.as_bytes(), &mut self.lens);
+        }
+        Some(&p.own[from..self.data])
+    }
+}
+
+/// Orders the texts made of the parts `a` and `b` give as the texts themselves are ordered
+/// (byte by byte), with no text made; as [`cmp_parts`], for messages of any number of parts.
+pub fn cmp_part_lists<'x>(
+    mut a: impl Iterator<Item = &'x str>,
+    mut b: impl Iterator<Item = &'x str>,
+) -> std::cmp::Ordering {
+    let (mut x, mut y): (&[u8], &[u8]) = (b"", b"");
+    loop {
+        while x.is_empty() {
+            match a.next() {
+                Some(p) => x = p.as_bytes(),
+                None => break,
+            }
+        }
+        while y.is_empty() {
+            match b.next() {
+                Some(p) => y = p.as_bytes(),
+                None => break,
+            }
+        }
+        match (x.is_empty(), y.is_empty()) {
+            (true, true) => return std::cmp::Ordering::Equal,
+            (true, false) => return std::cmp::Ordering::Less,
+            (false, true) => return std::cmp::Ordering::Greater,
+            _ => {}
+        }
+        // one text on both sides (the shared words of findings alike): passed over unread
+        if std::ptr::eq(x, y) {
+            (x, y) = (b"", b"");
+            continue;
+        }
+        let n = x.len().min(y.len());
+        match x[..n].cmp(&y[..n]) {
+            std::cmp::Ordering::Equal => {}
+            other => return other,
+        }
+        x = &x[n..];
+        y = &y[n..];
+    }
 }
 
 /// A place of a finding, read.
@@ -1189,10 +1467,28 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    /// The words between the pieces of the message's own part (none: it is one piece).
+    #[inline]
+    fn joins(&self) -> &'a [u32] {
+        match self.0 {
+            Inner::One(_) => &[],
+            Inner::In(l, r) => match Self::shape(l, r).joins {
+                NONE => &[],
+                i => {
+                    let (from, n) = l.join_sets[i as usize];
+                    &l.joins[from as usize..(from + n) as usize]
+                }
+            },
+        }
+    }
+
     /// The message, with the numbers.
     pub fn message(&self) -> Cow<'a, str> {
         let own = self.own_message();
         let (head, tail) = (self.head(), self.tail());
+        if !self.joins().is_empty() {
+            return Cow::Owned(self.message_parts().iter().collect());
+        }
         if head.is_none() && tail.is_none() {
             return Cow::Borrowed(own);
         }
@@ -1205,12 +1501,18 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The message's parts in order (their concatenation is [`DiagRef::message`]).
-    pub fn message_parts(&self) -> [&'a str; 3] {
-        [
-            self.head().unwrap_or(""),
-            self.own_message(),
-            self.tail().unwrap_or(""),
-        ]
+    pub fn message_parts(&self) -> MessageParts<'a> {
+        let shared: &'a [Text] = match self.0 {
+            Inner::One(_) => &[],
+            Inner::In(l, _) => &l.shared,
+        };
+        MessageParts {
+            head: self.head().unwrap_or(""),
+            own: self.own_message(),
+            tail: self.tail().unwrap_or(""),
+            joins: self.joins(),
+            shared,
+        }
     }
 
     /// The places; the first primary one is the finding's location.
@@ -1373,6 +1675,7 @@ impl ExactSizeIterator for Labels<'_> {}
 
 #[cfg(test)]
 mod tests {
+    use super::Piece::{Own, Said};
     use super::*;
 
     // invented codes, held in constants so that no code is named where a finding is made
@@ -1613,6 +1916,69 @@ mod tests {
         assert_eq!(list.get(300).unwrap(), d.view());
     }
 
+    /// A message given in pieces reads whole, in its parts, and ordered as its text; copied
+    /// into another list, the same. Pieces of one kind side by side, empty pieces, pieces said
+    /// alike first or last or not at all, own words long enough to take lengths of two bytes.
+    #[test]
+    fn a_message_in_pieces_reads_as_its_text() {
+        let long = "n".repeat(300);
+        let cases: Vec<Vec<Piece>> = vec![
+            vec![Own("U1"), Said(" pin 1 is on net `"), Own("/A"), Said("`")],
+            vec![Said("the "), Own("U2"), Said(" on "), Own(&long), Said(" to +5V")],
+            vec![Own("R1"), Said(": "), Said("why"), Own(""), Said("; "), Own("N"), Own("2")],
+            vec![Said("only said")],
+            vec![Own("only own")],
+            vec![],
+            vec![Own("a"), Said("\u{0}"), Own("b"), Said("Ω"), Own("c")],
+            vec![Said(""), Own("U3"), Said(" and "), Own("U4"), Said("")],
+        ];
+        let mut list = DiagList::new();
+        let mut want = Vec::new();
+        for (i, pieces) in cases.iter().enumerate() {
+            let text: String = pieces
+                .iter()
+                .map(|p| match p {
+                    Own(w) | Said(w) => *w,
+                })
+                .collect();
+            let d = Diag::warning(A, String::new())
+                .at(Span::new(i, i + 1), "x")
+                .with_pins([format!("U{i}.1")]);
+            list.push_pieces(&d, pieces);
+            let mut whole = d.clone();
+            whole.message = text.clone().into_boxed_str();
+            want.push(whole);
+        }
+        for (i, (r, d)) in list.iter().zip(&want).enumerate() {
+            assert_eq!(r, d.view(), "{i}");
+            assert_eq!(r.message_parts().iter().collect::<String>(), &*d.message, "{i}");
+        }
+        // ordered as their texts, each against each
+        for a in list.iter() {
+            for b in list.iter() {
+                assert_eq!(
+                    cmp_part_lists(a.message_parts().iter(), b.message_parts().iter()),
+                    a.message().cmp(&b.message()),
+                    "{a:?} {b:?}"
+                );
+            }
+        }
+        // copied, the same
+        let mut copy = DiagList::new();
+        for r in list.iter() {
+            copy.push_ref(r);
+        }
+        assert!(copy.iter().eq(list.iter()));
+        // the words said alike between own pieces are held once for findings that say them
+        let sets = list.join_sets.len();
+        list.push_pieces(
+            &Diag::warning(A, String::new()),
+            &[Own("U9"), Said(" pin 1 is on net `"), Own("/B"), Said("`")],
+        );
+        assert_eq!(list.join_sets.len(), sets);
+        assert_eq!(list.get(list.len() - 1).unwrap().message(), "U9 pin 1 is on net `/B`");
+    }
+
     #[test]
     fn a_message_in_parts_reads_whole() {
         let head = Text::Fixed("gate A of ");
@@ -1646,7 +2012,7 @@ mod tests {
             ]
         );
         assert_eq!(
-            list.get(0).unwrap().message_parts(),
+            list.get(0).unwrap().message_parts().three().unwrap(),
             ["gate A of ", "U1", " (74HC00) is unused"]
         );
         // a copy keeps the words
