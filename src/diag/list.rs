@@ -1487,7 +1487,10 @@ impl<'a> DiagRef<'a> {
         let own = self.own_message();
         let (head, tail) = (self.head(), self.tail());
         if !self.joins().is_empty() {
-            return Cow::Owned(self.message_parts().iter().collect());
+            let parts = self.message_parts().iter();
+            let mut m = String::with_capacity(parts.clone().map(str::len).sum());
+            parts.for_each(|p| m.push_str(p));
+            return Cow::Owned(m);
         }
         if head.is_none() && tail.is_none() {
             return Cow::Borrowed(own);

@@ -105,7 +105,7 @@ fn write_finding<'a>(
     let parts = d.message_parts();
     match parts.three() {
         Some(three) => w.key("message").str_parts(three),
-        None => w.key("message").str(&d.message()),
+        None => w.key("message").str_part_list(parts.iter()),
     }
     w.key("net").opt_str(d.net());
     w.key("pins").strs(d.pins());
