@@ -17,39 +17,96 @@ use crate::source::Span;
 /// No text: a length or a shared text's number that is not there.
 const NONE: u32 = u32::MAX;
 
-/// One finding: where its words are. Its own texts follow each other in one piece of the
-/// list's text: the message's own part, the net (when it has one) and the pin list (when it
-/// has one). Their lengths are in the record; a finding with a text of 65 535 bytes or more
-/// ([`LONG`]) has them written before its texts instead ([`put_len`]).
+/// One finding: where its words are, in 16 bytes. Its own texts follow each other in one
+/// piece of the list's text, after their lengths ([`put_len`]): the length of the message's
+/// own part (unless [`REF_IN_PINS`]), of the net (when it has one) and of the pin list (when
+/// it is [`LONG`]; else it is in the record), then the message's own part, the net and the
+/// pin list. A finding with [`MANY_LABELS`] places or more has their count written after
+/// its texts.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct Rec {
-    /// Where its texts start in [`DiagList::text`]: the offset in the piece `piece`.
+    /// Where its texts start in [`DiagList::text`]: the piece above [`TEXT_SHIFT`] bits, the
+    /// offset in it below.
     at: u32,
-    piece: u16,
-    /// How many places it has, from `first_label` on in one piece of [`DiagList::labels`]
-    /// (the piece above [`LABEL_SHIFT`] bits, the offset in it below).
-    labels: u16,
+    /// Where its first place is, in one piece of [`DiagList::labels`] (the piece above
+    /// [`LABEL_SHIFT`] bits, the offset in it below).
     first_label: u32,
     /// Its shared texts: a number in [`DiagList::shapes`].
     shape: u32,
-    /// The lengths of the message's own part, the net and the pin list (0 for none; not
-    /// used for a [`LONG`] finding).
-    message: u16,
-    net: u16,
-    pins: u16,
-    severity: Severity,
-    /// Whether it names a net ([`HAS_NET`]) and pins ([`HAS_PINS`]), and whether its
-    /// lengths are written before its texts ([`LONG`]).
-    has: u8,
+    /// Its severity in the top two bits; below, how many places it has (from `first_label`
+    /// on), or [`MANY_LABELS`]; for a [`REF_IN_PINS`] finding, the length of its message's
+    /// own part in the next seven bits and the count of places in the last seven (or
+    /// [`MANY_REF_LABELS`]).
+    sev_labels: u16,
+    /// Whether it names a net ([`HAS_NET`]) and pins ([`HAS_PINS`]), whether its pin list's
+    /// length is written before its texts ([`LONG`]) and whether its message is read from
+    /// its pin list ([`REF_IN_PINS`]), in the top four bits; below, its pin list's length
+    /// (below [`PINS_MAX`]; not used for a [`LONG`] one).
+    has_pins: u16,
 }
 
 const HAS_NET: u8 = 1;
 const HAS_PINS: u8 = 2;
 const LONG: u8 = 4;
 /// The message's own part is the start of the pin list (an unused gate's reference, `U4`,
-/// before `U4.1`): only the pin list is written, and the message is read from its first bytes.
-/// Only for a finding with no net and no [`LONG`] text.
-const OWN_IN_PINS: u8 = 8;
+/// before `U4.1`), and shorter than 128 bytes: only the pin list is written, and the message
+/// is read from it, its length held in the record. Only for a finding with no net.
+const REF_IN_PINS: u8 = 8;
+/// A count of places of a [`REF_IN_PINS`] finding that is written after the texts.
+const MANY_REF_LABELS: u16 = (1 << 7) - 1;
+/// A pin list this long or longer has its length written before the texts.
+const PINS_MAX: usize = (1 << 12) - 1;
+/// A count of places that is written after the texts.
+const MANY_LABELS: u16 = (1 << 14) - 1;
+/// The bits of a text's offset in its piece, in [`Rec::at`].
+const TEXT_SHIFT: u32 = 20;
+
+impl Rec {
+    #[inline]
+    fn severity(&self) -> Severity {
+        match self.sev_labels >> 14 {
+            0 => Severity::Info,
+            1 => Severity::Warning,
+            _ => Severity::Error,
+        }
+    }
+
+    fn set_severity(&mut self, s: Severity) {
+        let bits = match s {
+            Severity::Info => 0,
+            Severity::Warning => 1,
+            Severity::Error => 2,
+        };
+        self.sev_labels = (self.sev_labels & MANY_LABELS) | (bits << 14);
+    }
+
+    /// The count of places the record holds, and whether it is the mark of a count written
+    /// after the texts.
+    #[inline]
+    fn labels(&self) -> (usize, bool) {
+        let (n, many) = if self.has() & REF_IN_PINS != 0 {
+            (self.sev_labels & MANY_REF_LABELS, MANY_REF_LABELS)
+        } else {
+            (self.sev_labels & MANY_LABELS, MANY_LABELS)
+        };
+        (usize::from(n), n == many)
+    }
+
+    #[inline]
+    fn has(&self) -> u8 {
+        (self.has_pins >> 12) as u8
+    }
+
+    #[inline]
+    fn piece(&self) -> usize {
+        (self.at >> TEXT_SHIFT) as usize
+    }
+
+    #[inline]
+    fn offset(&self) -> usize {
+        (self.at & ((1 << TEXT_SHIFT) - 1)) as usize
+    }
+}
 
 /// The shared texts of a finding (numbers in [`DiagList::shared`]; `NONE`: none): the code,
 /// the help, the parts of the message before and after its own part, and the words between
@@ -65,18 +122,33 @@ struct Shape {
     joins: u32,
 }
 
-/// The number of a piece of text in a record.
-fn piece_number(piece: usize) -> u16 {
-    // 65 536 pieces of a mebibyte or more: more finding text than a machine holds
-    u16::try_from(piece).expect("at most 65 536 pieces of text")
+/// Where a text at `offset` in the piece `piece` is, as a record holds it.
+fn text_at(piece: usize, offset: usize) -> u32 {
+    // 4 096 pieces of a mebibyte or more: more finding text than a machine holds
+    assert!(piece < 1 << (32 - TEXT_SHIFT), "at most 4 096 pieces of text");
+    debug_assert!(offset < 1 << TEXT_SHIFT);
+    ((piece as u32) << TEXT_SHIFT) | offset as u32
 }
 
 /// Where a finding's own texts were written ([`DiagList::put_texts`]).
 struct Texts {
-    piece: u16,
+    /// As [`Rec::at`].
     at: u32,
-    lens: [u16; 3],
-    has: u8,
+    /// As [`Rec::has_pins`].
+    has_pins: u16,
+    /// The length of the message's own part, for a [`REF_IN_PINS`] finding.
+    own: u16,
+}
+
+impl Texts {
+    fn new(piece: usize, offset: usize, has: u8, pins: usize, own: usize) -> Texts {
+        let pins = if has & LONG != 0 { 0 } else { pins };
+        Texts {
+            at: text_at(piece, offset),
+            has_pins: (u16::from(has) << 12) | pins as u16,
+            own: if has & REF_IN_PINS != 0 { own as u16 } else { 0 },
+        }
+    }
 }
 
 /// A place of a finding in the list.
@@ -137,6 +209,12 @@ fn get_len(b: &[u8], at: &mut usize) -> usize {
         }
         shift += 6;
     }
+}
+
+/// Whether the message's own part `own` is read from the start of the pin list `pins`
+/// ([`REF_IN_PINS`]).
+fn ref_in_pins(own: &str, pins: &[u8]) -> bool {
+    !own.is_empty() && own.len() <= usize::from(MANY_REF_LABELS) && pins.starts_with(own.as_bytes())
 }
 
 /// Records a piece of [`DiagList::recs`] holds (a power of two).
@@ -345,7 +423,9 @@ impl DiagList {
     #[inline]
     fn text_room(&mut self, need: usize) -> usize {
         match self.text.last() {
-            Some(t) if t.len() + need <= t.capacity() => self.text.len() - 1,
+            Some(t) if t.len() + need <= t.capacity() && t.len() < TEXT_CHUNK => {
+                self.text.len() - 1
+            }
             _ => self.text_room_new(need),
         }
     }
@@ -359,7 +439,7 @@ impl DiagList {
         let last = self.text.len() - 1;
         let t = &mut self.text[last];
         let len = t.len();
-        if len + need <= t.capacity() {
+        if len + need <= t.capacity() && len < TEXT_CHUNK {
             return last;
         }
         if t.capacity() < TEXT_CHUNK && len + need <= TEXT_CHUNK {
@@ -371,8 +451,8 @@ impl DiagList {
         last + 1
     }
 
-    /// Writes a finding's own texts (see [`Rec`]). Gives where they are: the piece, where
-    /// they start in it, their lengths and which of net and pins the finding has.
+    /// Writes a finding's own texts and their lengths (see [`Rec`]). Gives where they are,
+    /// which of net and pins the finding has, and its pin list's length.
     /// `plain`: the message's own part is words of its own (not pieces with their lengths), so
     /// it may be read from the start of the pin list.
     fn put_texts(
@@ -382,68 +462,47 @@ impl DiagList {
         pins: Option<&str>,
         plain: bool,
     ) -> Texts {
-        let lens = [
-            message.len(),
-            net.map_or(0, str::len),
-            pins.map_or(0, str::len),
-        ];
-        let long = lens.iter().any(|&l| l >= usize::from(u16::MAX));
-        if plain && !long && net.is_none() && !message.is_empty() {
-            if let Some(p) = pins.filter(|p| p.starts_with(message)) {
-                // the message's own part is the start of the pin list: written once
-                let piece = self.text_room(p.len());
-                let t = &mut self.text[piece];
-                let at = t.len() as u32;
-                t.push_str(p);
-                return Texts {
-                    piece: piece_number(piece),
-                    at,
-                    lens: lens.map(|l| l as u16),
-                    has: HAS_PINS | OWN_IN_PINS,
-                };
-            }
+        let ref_in = plain
+            && net.is_none()
+            && pins.is_some_and(|p| ref_in_pins(message, p.as_bytes()));
+        let pins_len = pins.map_or(0, str::len);
+        let long = pins_len >= PINS_MAX;
+        let mut need = pins_len;
+        if !ref_in {
+            need += len_size(message.len()) + message.len();
         }
-        if !long {
-            let piece = self.text_room(lens[0] + lens[1] + lens[2]);
-            let t = &mut self.text[piece];
-            let at = t.len() as u32;
-            for x in [message, net.unwrap_or(""), pins.unwrap_or("")] {
-                if !x.is_empty() {
-                    t.push_str(x);
-                }
-            }
-            return Texts {
-                piece: piece_number(piece),
-                at,
-                lens: lens.map(|l| l as u16),
-                has: net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS),
-            };
+        if let Some(n) = net {
+            need += len_size(n.len()) + n.len();
         }
-        let mut need = lens.iter().sum::<usize>();
         if long {
-            need += lens.iter().map(|&l| len_size(l)).sum::<usize>();
+            need += len_size(pins_len);
         }
         let piece = self.text_room(need);
         let t = &mut self.text[piece];
-        let at = t.len() as u32;
-        if long {
+        let at = t.len();
+        if !ref_in {
             put_len(t, message.len());
-            for x in [net, pins].into_iter().flatten() {
-                put_len(t, x.len());
-            }
         }
-        t.push_str(message);
-        for x in [net, pins].into_iter().flatten() {
-            t.push_str(x);
+        if let Some(n) = net {
+            put_len(t, n.len());
         }
-        let has =
-            net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS) | if long { LONG } else { 0 };
-        Texts {
-            piece: piece_number(piece),
-            at,
-            lens: if long { [0; 3] } else { lens.map(|l| l as u16) },
-            has,
+        if long {
+            put_len(t, pins_len);
         }
+        if !ref_in {
+            t.push_str(message);
+        }
+        if let Some(n) = net {
+            t.push_str(n);
+        }
+        if let Some(p) = pins {
+            t.push_str(p);
+        }
+        let has = net.map_or(0, |_| HAS_NET)
+            | pins.map_or(0, |_| HAS_PINS)
+            | if long { LONG } else { 0 }
+            | if ref_in { REF_IN_PINS } else { 0 };
+        Texts::new(piece, at, has, pins_len, message.len())
     }
 
     /// Writes the places gathered in `label_buf` into the last piece of the places, or a new
@@ -580,19 +639,28 @@ impl DiagList {
         shape: u32,
         severity: Severity,
     ) {
-        let [message, net, pins] = texts.lens;
-        self.push_rec(Rec {
+        let many = if texts.has_pins >> 12 & u16::from(REF_IN_PINS) != 0 {
+            MANY_REF_LABELS
+        } else {
+            MANY_LABELS
+        };
+        let mut count = if labels >= many {
+            // written after the finding's texts, the last in their piece
+            put_len(&mut self.text[(texts.at >> TEXT_SHIFT) as usize], usize::from(labels));
+            many
+        } else {
+            labels
+        };
+        count |= texts.own << 7;
+        let mut r = Rec {
             at: texts.at,
-            piece: texts.piece,
-            labels,
             first_label,
             shape,
-            message,
-            net,
-            pins,
-            severity,
-            has: texts.has,
-        });
+            sev_labels: count,
+            has_pins: texts.has_pins,
+        };
+        r.set_severity(severity);
+        self.push_rec(r);
     }
 
     /// The number of the shared text `s` (added the first time it is given). `slot` says
@@ -899,20 +967,34 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
     ) -> Texts {
         // written straight into the last piece while they fit in it; otherwise (the piece
-        // is full, or a text is long) gathered in `pin_buf` and written as a whole
+        // is full, or the pin list is long) gathered in `pin_buf` and written as a whole
         let net_text = net.unwrap_or("");
         let mut pins = pins.into_iter().peekable();
         // the own words are the first pin's reference (an unused gate's): only the pins are
         // written, the message read from their start
-        let own_in_pins = net.is_none()
+        let ref_in = net.is_none()
             && !own.is_empty()
+            && own.len() <= usize::from(MANY_REF_LABELS)
             && pins
                 .peek()
                 .is_some_and(|p| std::ptr::eq(p[0], own) || p[0] == own);
-        let own_text = if own_in_pins { "" } else { own };
-        let piece = self.text_room(own_text.len() + net_text.len());
+        let own_text = if ref_in { "" } else { own };
+        let mut need = own_text.len() + net_text.len();
+        if !ref_in {
+            need += len_size(own.len());
+        }
+        if net.is_some() {
+            need += len_size(net_text.len());
+        }
+        let piece = self.text_room(need);
         let t = &mut self.text[piece];
         let at = t.len();
+        if !ref_in {
+            put_len(t, own.len());
+        }
+        if net.is_some() {
+            put_len(t, net_text.len());
+        }
         if !own_text.is_empty() {
             t.push_str(own_text);
         }
@@ -923,7 +1005,7 @@ impl DiagList {
         let (mut any, mut spilt) = (false, None);
         for p in pins.by_ref() {
             let need = usize::from(any) + p[0].len() + p[1].len() + p[2].len();
-            if t.len() + need > t.capacity() {
+            if t.len() + need > t.capacity() || t.len() + need - pins_at >= PINS_MAX {
                 spilt = Some(p);
                 break;
             }
@@ -935,16 +1017,11 @@ impl DiagList {
                 t.push_str(x);
             }
         }
-        let lens = [own.len(), net_text.len(), t.len() - pins_at];
-        if spilt.is_none() && lens.iter().all(|&l| l < usize::from(u16::MAX)) {
-            return Texts {
-                piece: piece_number(piece),
-                at: at as u32,
-                lens: lens.map(|l| l as u16),
-                has: net.map_or(0, |_| HAS_NET)
-                    | if any { HAS_PINS } else { 0 }
-                    | if own_in_pins { OWN_IN_PINS } else { 0 },
-            };
+        if spilt.is_none() {
+            let has = net.map_or(0, |_| HAS_NET)
+                | if any { HAS_PINS } else { 0 }
+                | if ref_in { REF_IN_PINS } else { 0 };
+            return Texts::new(piece, at, has, t.len() - pins_at, own.len());
         }
         let mut buf = std::mem::take(&mut self.pin_buf);
         buf.clear();
@@ -1019,7 +1096,7 @@ impl DiagList {
     /// Sets the severity of the findings from `from` on.
     pub fn set_severity_from(&mut self, from: usize, severity: Severity) {
         for i in from..self.len {
-            self.rec_mut(i).severity = severity;
+            self.rec_mut(i).set_severity(severity);
         }
     }
 
@@ -1378,40 +1455,72 @@ impl<'a> DiagRef<'a> {
     /// the net and the pin list start in it, and their lengths (0 for none).
     #[inline]
     fn own(list: &'a DiagList, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
-        let text = &list.text[usize::from(r.piece)];
-        let at = r.at as usize;
-        if r.has & (LONG | OWN_IN_PINS) == 0 {
-            let [m, n, p] = [r.message, r.net, r.pins].map(usize::from);
-            return (text, [at, at + m, at + m + n], [m, n, p]);
+        let text = &list.text[r.piece()];
+        let b = text.as_bytes();
+        let at = r.offset();
+        let has = r.has();
+        let p = usize::from(r.has_pins & 0x0fff);
+        if has & (REF_IN_PINS | LONG) == REF_IN_PINS {
+            // an unused gate's: its pin list alone, its reference at its start
+            let m = usize::from((r.sev_labels >> 7) & MANY_REF_LABELS);
+            return (text, [at, at, at], [m, 0, p]);
         }
-        if r.has & OWN_IN_PINS != 0 {
-            let [m, n, p] = [r.message, r.net, r.pins].map(usize::from);
-            return (text, [at, at, at], [m, n, p]);
+        if has & (REF_IN_PINS | LONG | HAS_NET) == 0 && b[at] < 0x40 {
+            // a message of fewer than 64 bytes, no net
+            let m = usize::from(b[at]);
+            return (text, [at + 1, at + 1 + m, at + 1 + m], [m, 0, p]);
         }
-        Self::own_long(text, r)
+        Self::own_slow(text, r)
     }
 
-    /// [`DiagRef::own`] of a finding whose lengths are written before its texts.
-    #[cold]
-    fn own_long(text: &'a str, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
-        let mut at = r.at as usize;
+    /// [`DiagRef::own`] for the other findings.
+    fn own_slow(text: &'a str, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
         let b = text.as_bytes();
-        let message = get_len(b, &mut at);
-        let net = if r.has & HAS_NET != 0 {
+        let mut at = r.offset();
+        let has = r.has();
+        let short = |at: &mut usize| {
+            let x = b[*at];
+            if x < 0x40 {
+                *at += 1;
+                usize::from(x)
+            } else {
+                get_len(b, at)
+            }
+        };
+        let m = if has & REF_IN_PINS != 0 { 0 } else { short(&mut at) };
+        let n = if has & HAS_NET != 0 { short(&mut at) } else { 0 };
+        let p = if has & HAS_PINS == 0 {
+            0
+        } else if has & LONG != 0 {
             get_len(b, &mut at)
         } else {
-            0
+            usize::from(r.has_pins & 0x0fff)
         };
-        let pins = if r.has & HAS_PINS != 0 {
-            get_len(b, &mut at)
-        } else {
-            0
-        };
-        (
-            text,
-            [at, at + message, at + message + net],
-            [message, net, pins],
-        )
+        if has & REF_IN_PINS != 0 {
+            let m = usize::from((r.sev_labels >> 7) & MANY_REF_LABELS);
+            return (text, [at, at, at], [m, 0, p]);
+        }
+        (text, [at, at + m, at + m + n], [m, n, p])
+    }
+
+    /// How many places the finding has.
+    #[inline]
+    fn label_count(list: &'a DiagList, r: &Rec) -> usize {
+        match r.labels() {
+            (n, false) => n,
+            _ => Self::many_labels(list, r),
+        }
+    }
+
+    /// [`DiagRef::label_count`] of a finding whose count is written after its texts.
+    #[cold]
+    fn many_labels(list: &'a DiagList, r: &Rec) -> usize {
+        let (text, starts, lens) = Self::own(list, r);
+        let mut end = starts[2] + lens[2];
+        if r.has() & HAS_PINS == 0 {
+            end = starts[1] + lens[1];
+        }
+        get_len(text.as_bytes(), &mut end)
     }
 
     fn shape(list: &'a DiagList, r: &Rec) -> Shape {
@@ -1435,7 +1544,7 @@ impl<'a> DiagRef<'a> {
     pub fn severity(&self) -> Severity {
         match self.0 {
             Inner::One(d) => d.severity,
-            Inner::In(_, r) => r.severity,
+            Inner::In(_, r) => r.severity(),
         }
     }
 
@@ -1519,16 +1628,19 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The places; the first primary one is the finding's location.
+    #[inline]
     pub fn labels(&self) -> Labels<'a> {
         match self.0 {
             Inner::One(d) => Labels(LabelsInner::One(d.labels.iter())),
-            Inner::In(l, r) if r.labels == 0 => Labels(LabelsInner::In(l, [].iter())),
+            Inner::In(l, r) if r.labels().0 == 0 => {
+                Labels(LabelsInner::In(l, [].iter()))
+            }
             Inner::In(l, r) => {
                 let piece = &l.labels[(r.first_label >> LABEL_SHIFT) as usize];
                 let from = (r.first_label & ((1 << LABEL_SHIFT) - 1)) as usize;
                 Labels(LabelsInner::In(
                     l,
-                    piece[from..from + r.labels as usize].iter(),
+                    piece[from..from + Self::label_count(l, r)].iter(),
                 ))
             }
         }
@@ -1547,7 +1659,7 @@ impl<'a> DiagRef<'a> {
     pub fn net(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.net.as_deref(),
-            Inner::In(l, r) => (r.has & HAS_NET != 0).then(|| {
+            Inner::In(l, r) => (r.has() & HAS_NET != 0).then(|| {
                 let (text, [_, at, _], [_, n, _]) = Self::own(l, r);
                 &text[at..at + n]
             }),
@@ -1558,7 +1670,7 @@ impl<'a> DiagRef<'a> {
     fn pin_text(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.pins.0.as_deref(),
-            Inner::In(l, r) => (r.has & HAS_PINS != 0).then(|| {
+            Inner::In(l, r) => (r.has() & HAS_PINS != 0).then(|| {
                 let (text, [_, _, at], [_, _, p]) = Self::own(l, r);
                 &text[at..at + p]
             }),
@@ -1688,7 +1800,7 @@ mod tests {
     /// A finding held in a list costs its record and its places, and no allocation.
     #[test]
     fn records_stay_small() {
-        assert!(size_of::<Rec>() <= 24, "{}", size_of::<Rec>());
+        assert!(size_of::<Rec>() <= 16, "{}", size_of::<Rec>());
         assert!(size_of::<LabelRec>() <= 12, "{}", size_of::<LabelRec>());
         assert!(size_of::<DiagRef>() <= 24);
     }
@@ -1980,6 +2092,41 @@ mod tests {
         );
         assert_eq!(list.join_sets.len(), sets);
         assert_eq!(list.get(list.len() - 1).unwrap().message(), "U9 pin 1 is on net `/B`");
+    }
+
+    /// A record of 16 bytes holds its counts in few bits: a finding whose message is read
+    /// from its pin list, or not, with more places than those bits count, and a pin list
+    /// longer than the record counts, read back as pushed; and a severity set afterwards
+    /// leaves the rest as it was.
+    #[test]
+    fn counts_beyond_the_record_s_bits_read_back() {
+        let mut list = DiagList::new();
+        let mut want = Vec::new();
+        for (i, places) in [1usize, 126, 127, 128, 300, 16_382, 16_383, 20_000]
+            .into_iter()
+            .enumerate()
+        {
+            for own in [format!("U{i}"), format!("m{i}")] {
+                let pins: Vec<String> = (0..(if i == 4 { 900 } else { 2 }))
+                    .map(|k| format!("U{i}.{k}"))
+                    .collect();
+                let d = (0..places)
+                    .fold(Diag::warning(A, own.clone()), |d, k| {
+                        d.also(Span::new(k, k + 1), "")
+                    })
+                    .with_pins(&pins);
+                list.push(d.clone());
+                want.push(d);
+            }
+        }
+        list.set_severity_from(3, Severity::Error);
+        for (i, d) in want.iter_mut().enumerate().skip(3) {
+            d.severity = Severity::Error;
+            assert_eq!(list.get(i).unwrap(), d.view(), "{i}");
+        }
+        for (i, d) in want.iter().enumerate() {
+            assert_eq!(list.get(i).unwrap(), d.view(), "{i}");
+        }
     }
 
     #[test]
