@@ -76,7 +76,10 @@ mod tests {
     fn the_sort_is_a_stable_sort_by_place_code_and_message() {
         use crate::diag::{Around, Diag, Text};
         use crate::source::Span;
-        let heads = [Text::Fixed("gate A of "), Text::from(String::from("gate B of "))];
+        let heads = [
+            Text::Fixed("gate A of "),
+            Text::from(String::from("gate B of ")),
+        ];
         let tails = [Text::Fixed(" is open"), Text::from(String::from(" is"))];
         // (place: none, primary or secondary only; code; own words; head; tail; help)
         let finding = (

@@ -166,10 +166,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             );
             list(&mut what);
         } else if unplaced {
-            push_all(
-                &mut what,
-                &[" (", value, ") has no power: ", pin_word, " "],
-            );
+            push_all(&mut what, &[" (", value, ") has no power: ", pin_word, " "]);
             list(&mut what);
             push_all(
                 &mut what,
@@ -180,10 +177,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 ],
             );
         } else {
-            push_all(
-                &mut what,
-                &[" (", value, ") is not fully powered: "],
-            );
+            push_all(&mut what, &[" (", value, ") is not fully powered: "]);
             for (i, (d, m, _)) in found.iter().enumerate() {
                 let how = match m {
                     Missing::NoSuchPin => "is not in the symbol",

@@ -125,7 +125,10 @@ struct Shape {
 /// Where a text at `offset` in the piece `piece` is, as a record holds it.
 fn text_at(piece: usize, offset: usize) -> u32 {
     // 4 096 pieces of a mebibyte or more: more finding text than a machine holds
-    assert!(piece < 1 << (32 - TEXT_SHIFT), "at most 4 096 pieces of text");
+    assert!(
+        piece < 1 << (32 - TEXT_SHIFT),
+        "at most 4 096 pieces of text"
+    );
     debug_assert!(offset < 1 << TEXT_SHIFT);
     ((piece as u32) << TEXT_SHIFT) | offset as u32
 }
@@ -146,7 +149,11 @@ impl Texts {
         Texts {
             at: text_at(piece, offset),
             has_pins: (u16::from(has) << 12) | pins as u16,
-            own: if has & REF_IN_PINS != 0 { own as u16 } else { 0 },
+            own: if has & REF_IN_PINS != 0 {
+                own as u16
+            } else {
+                0
+            },
         }
     }
 }
@@ -462,9 +469,8 @@ impl DiagList {
         pins: Option<&str>,
         plain: bool,
     ) -> Texts {
-        let ref_in = plain
-            && net.is_none()
-            && pins.is_some_and(|p| ref_in_pins(message, p.as_bytes()));
+        let ref_in =
+            plain && net.is_none() && pins.is_some_and(|p| ref_in_pins(message, p.as_bytes()));
         let pins_len = pins.map_or(0, str::len);
         let long = pins_len >= PINS_MAX;
         let mut need = pins_len;
@@ -631,14 +637,7 @@ impl DiagList {
 
     /// Ends a finding whose texts and places are written (`shape`: the number of its set of
     /// shared texts).
-    fn end(
-        &mut self,
-        texts: Texts,
-        first_label: u32,
-        labels: u16,
-        shape: u32,
-        severity: Severity,
-    ) {
+    fn end(&mut self, texts: Texts, first_label: u32, labels: u16, shape: u32, severity: Severity) {
         let many = if texts.has_pins >> 12 & u16::from(REF_IN_PINS) != 0 {
             MANY_REF_LABELS
         } else {
@@ -646,7 +645,10 @@ impl DiagList {
         };
         let mut count = if labels >= many {
             // written after the finding's texts, the last in their piece
-            put_len(&mut self.text[(texts.at >> TEXT_SHIFT) as usize], usize::from(labels));
+            put_len(
+                &mut self.text[(texts.at >> TEXT_SHIFT) as usize],
+                usize::from(labels),
+            );
             many
         } else {
             labels
@@ -1487,8 +1489,16 @@ impl<'a> DiagRef<'a> {
                 get_len(b, at)
             }
         };
-        let m = if has & REF_IN_PINS != 0 { 0 } else { short(&mut at) };
-        let n = if has & HAS_NET != 0 { short(&mut at) } else { 0 };
+        let m = if has & REF_IN_PINS != 0 {
+            0
+        } else {
+            short(&mut at)
+        };
+        let n = if has & HAS_NET != 0 {
+            short(&mut at)
+        } else {
+            0
+        };
         let p = if has & HAS_PINS == 0 {
             0
         } else if has & LONG != 0 {
@@ -1632,9 +1642,7 @@ impl<'a> DiagRef<'a> {
     pub fn labels(&self) -> Labels<'a> {
         match self.0 {
             Inner::One(d) => Labels(LabelsInner::One(d.labels.iter())),
-            Inner::In(l, r) if r.labels().0 == 0 => {
-                Labels(LabelsInner::In(l, [].iter()))
-            }
+            Inner::In(l, r) if r.labels().0 == 0 => Labels(LabelsInner::In(l, [].iter())),
             Inner::In(l, r) => {
                 let piece = &l.labels[(r.first_label >> LABEL_SHIFT) as usize];
                 let from = (r.first_label & ((1 << LABEL_SHIFT) - 1)) as usize;
@@ -2023,7 +2031,10 @@ mod tests {
         assert_eq!(places, 2 + 2 * 100);
         // each finding's text is its pin list alone
         let text: usize = list.text.iter().map(String::len).sum();
-        let pins: usize = want.iter().map(|d| d.pins.0.as_deref().unwrap().len()).sum();
+        let pins: usize = want
+            .iter()
+            .map(|d| d.pins.0.as_deref().unwrap().len())
+            .sum();
         assert_eq!(text, pins);
         // a finding with a net keeps its own words apart
         let d = Diag::error(A, "U1 x").on_net("N").with_pins(["U1.1"]);
@@ -2039,8 +2050,22 @@ mod tests {
         let long = "n".repeat(300);
         let cases: Vec<Vec<Piece>> = vec![
             vec![Own("U1"), Said(" pin 1 is on net `"), Own("/A"), Said("`")],
-            vec![Said("the "), Own("U2"), Said(" on "), Own(&long), Said(" to +5V")],
-            vec![Own("R1"), Said(": "), Said("why"), Own(""), Said("; "), Own("N"), Own("2")],
+            vec![
+                Said("the "),
+                Own("U2"),
+                Said(" on "),
+                Own(&long),
+                Said(" to +5V"),
+            ],
+            vec![
+                Own("R1"),
+                Said(": "),
+                Said("why"),
+                Own(""),
+                Said("; "),
+                Own("N"),
+                Own("2"),
+            ],
             vec![Said("only said")],
             vec![Own("only own")],
             vec![],
@@ -2066,7 +2091,11 @@ mod tests {
         }
         for (i, (r, d)) in list.iter().zip(&want).enumerate() {
             assert_eq!(r, d.view(), "{i}");
-            assert_eq!(r.message_parts().iter().collect::<String>(), &*d.message, "{i}");
+            assert_eq!(
+                r.message_parts().iter().collect::<String>(),
+                &*d.message,
+                "{i}"
+            );
         }
         // ordered as their texts, each against each
         for a in list.iter() {
@@ -2091,7 +2120,10 @@ mod tests {
             &[Own("U9"), Said(" pin 1 is on net `"), Own("/B"), Said("`")],
         );
         assert_eq!(list.join_sets.len(), sets);
-        assert_eq!(list.get(list.len() - 1).unwrap().message(), "U9 pin 1 is on net `/B`");
+        assert_eq!(
+            list.get(list.len() - 1).unwrap().message(),
+            "U9 pin 1 is on net `/B`"
+        );
     }
 
     /// A record of 16 bytes holds its counts in few bits: a finding whose message is read
