@@ -14,7 +14,10 @@ use serde::Serialize;
 use crate::source::{SourceFile, Span};
 
 mod list;
-pub use list::{cmp_parts, Around, DiagList, DiagRef, LabelRef, Labels, Raw, RawShared, SharedId};
+pub use list::{
+    cmp_part_lists, cmp_parts, Around, DiagList, DiagRef, LabelRef, Labels, MessageParts,
+    PartsIter, Piece, Raw, RawShared, SharedId,
+};
 
 /// How serious a diagnostic is. Ordered: `Info < Warning < Error`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]

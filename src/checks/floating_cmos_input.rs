@@ -27,6 +27,7 @@ use super::common::{
     push_unused_gate, supply_rail_name, Float, GateKey, GateWords, Words,
 };
 use super::Context;
+use crate::diag::Piece::{Own, Said};
 use crate::diag::{Diag, Text};
 
 pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
@@ -93,72 +94,105 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         }
         let (_, input, help) = part_text.as_ref().expect("set above");
         let input = *input;
-        let (msg, label): (String, std::borrow::Cow<'static, str>) = match f.why {
+        // the message in pieces: the part's reference and the net's name are the finding's
+        // own words, the words about the pin and the net's state are said alike by every
+        // part of a kind (held once in the list)
+        let describe = cx.describe(f.at);
+        let r = cx.nl.components[f.at.comp()].reference.as_str().len();
+        let (reference, pin) = describe.split_at(r);
+        let d = |label: std::borrow::Cow<'static, str>| {
+            Diag::error("floating-cmos-input", String::new())
+                .at(cx.pin_span(f.at), label)
+                .with_help(help.clone())
+                .with_pin_list(super::common::pin_names(cx, [f.at]))
+        };
+        match f.why {
             Float::Absent => {
-                let mut m = cx.describe(f.at);
-                push_all(&mut m, &[" is on no net: ", input, " must never float"]);
-                (m, "on no net".into())
+                out.push_pieces(
+                    &d("on no net".into()),
+                    &[
+                        Own(reference),
+                        Said(pin),
+                        Said(" is on no net: "),
+                        Said(input),
+                        Said(" must never float"),
+                    ],
+                );
             }
-            Float::Alone(_) => {
-                let mut m = cx.describe(f.at);
-                push_all(&mut m, &[" is connected to nothing: ", input, " must never float"]);
-                (m, "connected to nothing".into())
+            Float::Alone(net) => {
+                out.push_pieces(
+                    &d("connected to nothing".into()).on_net(net_name_of(cx, net)),
+                    &[
+                        Own(reference),
+                        Said(pin),
+                        Said(" is connected to nothing: "),
+                        Said(input),
+                        Said(" must never float"),
+                    ],
+                );
             }
-            Float::SwitchOpen(net, ref l) => (
-                format!(
-                    "{} is on net `{}`, which only {} sets, and only while closed: in the open position the CMOS input floats",
-                    cx.describe(f.at),
-                    cx.net_name(net),
-                    super::common::switch_names(ctx, l)
-                ),
-                format!("floats while {} open", super::common::switch_names(ctx, l)).into(),
+            Float::SwitchOpen(net, ref l) => out.push(
+                Diag::error(
+                    "floating-cmos-input",
+                    format!(
+                        "{describe} is on net `{}`, which only {} sets, and only while closed: in the open position the CMOS input floats",
+                        cx.net_name(net),
+                        super::common::switch_names(ctx, l)
+                    ),
+                )
+                .at(
+                    cx.pin_span(f.at),
+                    format!("floats while {} open", super::common::switch_names(ctx, l)),
+                )
+                .with_help(help.clone())
+                .with_pin_list(super::common::pin_names(cx, [f.at]))
+                .on_net(net_name_of(cx, net)),
             ),
             Float::Undriven(net) => {
                 let nm = &cx.nets[net];
                 // the other pins on the net, written in place
-                let mut m = cx.describe(f.at);
-                // room for the words and the pins named below at once (the message is
-                // copied into the findings list and dropped)
-                m.reserve(256);
-                push_all(&mut m, &[" is on net `", &net_name_of(cx, net), "`, which nothing drives: no output, rail or pull resistor (only "]);
-                let mut others = nm
+                let mut others = String::new();
+                let mut rest = nm
                     .loads
                     .iter()
                     .map(|l| l.at)
                     .filter(|&at| at != f.at)
                     .chain(nm.passives.iter().copied())
                     .peekable();
-                if others.peek().is_none() {
-                    m.push_str("this input");
+                if rest.peek().is_none() {
+                    others.push_str("this input");
                 }
                 let mut listed = 0;
-                for p in others.by_ref().take(LISTED) {
+                for p in rest.by_ref().take(LISTED) {
                     if listed > 0 {
-                        m.push_str(", ");
+                        others.push_str(", ");
                     }
-                    push_pin_name(&mut m, cx, p);
+                    push_pin_name(&mut others, cx, p);
                     listed += 1;
                 }
                 // the rest are counted, not named: every input of a big undriven net is a
                 // finding, and naming all the others in each would grow with the square of
                 // the net
-                if others.peek().is_some() {
+                if rest.peek().is_some() {
                     let own = big_nets.holds(nm, net, f.at);
                     let more = nm.loads.len() + nm.passives.len() - usize::from(own) - listed;
-                    push_all(&mut m, &[" and ", &more.to_string(), " more"]);
+                    push_all(&mut others, &[" and ", &more.to_string(), " more"]);
                 }
-                m.push(')');
-                (m, "no driver on this net".into())
+                let name = net_name_of(cx, net);
+                out.push_pieces(
+                    &d("no driver on this net".into()).on_net(name.clone()),
+                    &[
+                        Own(reference),
+                        Said(pin),
+                        Said(" is on net `"),
+                        Own(&name),
+                        Said("`, which nothing drives: no output, rail or pull resistor (only "),
+                        Own(&others),
+                        Said(")"),
+                    ],
+                );
             }
-        };
-        let mut d = Diag::error("floating-cmos-input", msg)
-            .at(cx.pin_span(f.at), label)
-            .with_help(help.clone())
-            .with_pin_list(super::common::pin_names(cx, [f.at]));
-        if let Float::Undriven(net) | Float::Alone(net) | Float::SwitchOpen(net, _) = &f.why {
-            d = d.on_net(net_name_of(cx, *net));
         }
-        out.push(d);
     }
 }
 

@@ -68,6 +68,73 @@ mod tests {
         assert_eq!(helps, ["5", "3", "6", "2", "1", "4"]);
     }
 
+    /// The sort gives the order a plain stable sort of whole findings by (place, code,
+    /// message) gives, on findings in any order: many at one place, messages in parts or
+    /// whole (a part's words compare as the whole message's), findings with no place or no
+    /// primary place.
+    #[test]
+    fn the_sort_is_a_stable_sort_by_place_code_and_message() {
+        use crate::diag::{Around, Diag, Text};
+        use crate::source::Span;
+        let heads = [
+            Text::Fixed("gate A of "),
+            Text::from(String::from("gate B of ")),
+        ];
+        let tails = [Text::Fixed(" is open"), Text::from(String::from(" is"))];
+        // (place: none, primary or secondary only; code; own words; head; tail; help)
+        let finding = (
+            0..4u32,
+            0..3usize,
+            0..3usize,
+            "[ab]{0,3}",
+            0..3usize,
+            0..3usize,
+        );
+        proptest::proptest!(|(items in proptest::collection::vec(finding, 0..60))| {
+            let codes = ["code-a", "code-b", "code-ab"];
+            let mut list = DiagList::new();
+            let mut want = Vec::new();
+            for (k, (at, how, code, own, head, tail)) in items.iter().enumerate() {
+                let head = heads.get(*head);
+                let tail = tails.get(*tail);
+                // one in three with its own words in two pieces, words said alike between
+                let (a, b) = own.split_at(own.len().min(1));
+                let own = if k % 3 == 0 { format!("{a} x {b}") } else { own.clone() };
+                let whole = format!(
+                    "{}{own}{}",
+                    head.map_or("", |t| t),
+                    tail.map_or("", |t| t)
+                );
+                let span = Span::new(*at as usize, *at as usize + 1);
+                let d = Diag::warning(codes[*code], whole).with_help(k.to_string());
+                let d = match how {
+                    0 => d,
+                    1 => d.at(span, "x"),
+                    _ => d.also(span, "y"),
+                };
+                if k % 3 == 0 {
+                    use crate::diag::Piece::{Own, Said};
+                    let (h, t) = (head.map_or("", |t| t), tail.map_or("", |t| t));
+                    list.push_pieces(&d, &[Said(h), Own(a), Said(" x "), Own(b), Said(t)]);
+                } else {
+                    list.push_parts(&d, &own, Around { head, tail });
+                }
+                want.push(d);
+            }
+            sort_in_file_order(&mut list);
+            // the reference: the whole findings, sorted stably by their own fields
+            want.sort_by(|a, b| {
+                let place = |d: &Diag| d.primary_span().map_or(0, |s| s.start);
+                place(a)
+                    .cmp(&place(b))
+                    .then_with(|| a.code.cmp(&b.code))
+                    .then_with(|| a.message.cmp(&b.message))
+            });
+            let got: Vec<Diag> = list.to_vec();
+            proptest::prop_assert_eq!(got, want);
+        });
+    }
+
     #[test]
     fn ids_are_unique_kebab_case_and_summaries_follow_the_style() {
         let mut seen = std::collections::HashSet::new();
@@ -191,8 +258,9 @@ pub fn run_all(cx: &Circuit<'_, '_>, budgets: &Budgets, opts: &CheckOptions) -> 
 /// Sorts findings, stably, by the start of their primary place, then code, then message.
 /// The places are looked up once and sorted as plain numbers (place, then index: a stable
 /// order with no text compared); only findings that share a place are then ordered by code
-/// and message. The findings are moved into place by swaps: no copy of the list is made,
-/// however many findings there are.
+/// and message. One list of a word per finding is made: its key (place, then index), sorted,
+/// then cut to the index it holds, which is the order the records are moved into by swaps; no
+/// copy of the findings is made, however many there are.
 fn sort_in_file_order(out: &mut DiagList) {
     let mut keys: Vec<u64> = out
         .iter()
@@ -203,7 +271,6 @@ fn sort_in_file_order(out: &mut DiagList) {
         })
         .collect();
     keys.sort_unstable();
-    let mut order: Vec<usize> = keys.iter().map(|k| (k & 0xffff_ffff) as usize).collect();
     // runs of one place: by code, then message, in their first order otherwise
     let mut i = 0;
     while i < keys.len() {
@@ -212,33 +279,54 @@ fn sort_in_file_order(out: &mut DiagList) {
             j += 1;
         }
         if j - i > 1 {
-            // each finding's code and message parts read once, then sorted (stably)
-            let run: Vec<(&str, [&str; 3], usize)> = order[i..j]
+            // each finding's code and message parts read once, then sorted (stably, so
+            // ties keep their order); a code is one shared text: the same text is not
+            // compared byte by byte
+            let mut plain = true;
+            let run: Vec<(&str, [&str; 3], u32)> = keys[i..j]
                 .iter()
                 .map(|&k| {
-                    let d = out.get(k).expect("in the list");
-                    (d.code(), d.message_parts(), k)
+                    let d = out.get((k & 0xffff_ffff) as usize).expect("in the list");
+                    let parts = d.message_parts();
+                    plain &= parts.three().is_some();
+                    (d.code(), parts.three().unwrap_or_default(), k as u32)
                 })
                 .collect();
-            // their places in the run are sorted (stably, so ties keep their order), not
-            // the entries; a code is one shared text: the same text is not compared byte by
-            // byte
+            // their places in the run are sorted, not the entries
             let mut by: Vec<u32> = (0..run.len() as u32).collect();
-            by.sort_by(|&a, &b| {
-                let (a, b) = (&run[a as usize], &run[b as usize]);
-                let code = if std::ptr::eq(a.0, b.0) {
+            let code = |a: &(&str, [&str; 3], u32), b: &(&str, [&str; 3], u32)| {
+                if std::ptr::eq(a.0, b.0) {
                     std::cmp::Ordering::Equal
                 } else {
                     a.0.cmp(b.0)
-                };
-                code.then_with(|| crate::diag::cmp_parts(a.1, b.1))
-            });
-            for (slot, &r) in order[i..j].iter_mut().zip(&by) {
-                *slot = run[r as usize].2;
+                }
+            };
+            if plain {
+                by.sort_by(|&a, &b| {
+                    let (a, b) = (&run[a as usize], &run[b as usize]);
+                    code(a, b).then_with(|| crate::diag::cmp_parts(a.1, b.1))
+                });
+            } else {
+                // some messages with own words in pieces: their parts read as they are compared
+                by.sort_by(|&a, &b| {
+                    let (a, b) = (&run[a as usize], &run[b as usize]);
+                    code(a, b).then_with(|| {
+                        let parts = |r: &(&str, [&str; 3], u32)| {
+                            out.get(r.2 as usize).expect("in the list").message_parts()
+                        };
+                        crate::diag::cmp_part_lists(parts(a).iter(), parts(b).iter())
+                    })
+                });
+            }
+            for (slot, &r) in keys[i..j].iter_mut().zip(&by) {
+                *slot = (*slot & !0xffff_ffff) | u64::from(run[r as usize].2);
             }
         }
         i = j;
     }
-    drop(keys);
-    out.apply_order(&mut order);
+    // the keys become the order: each the index it holds
+    for k in &mut keys {
+        *k &= 0xffff_ffff;
+    }
+    out.apply_order(&mut keys);
 }

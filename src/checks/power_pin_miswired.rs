@@ -37,6 +37,7 @@ use crate::circuit::{NetModel, PinRef};
 use crate::classify::classifier::{is_ground_name, PartKind, RoleSource};
 use crate::classify::PinRole;
 use crate::diag::Diag;
+use crate::diag::Piece::{Own, Said};
 use crate::netlist::{Connection, PinType};
 use crate::values::format_volts;
 
@@ -185,12 +186,17 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                         continue;
                     };
                     wrong = true;
+                    // where the names of nets and pins are in `what`: a finding's own words,
+                    // the rest is said alike by many
+                    let mut owns: Vec<(usize, usize)> = Vec::new();
                     let (what, fix) = match kind {
                         NetKind::Signal => {
                             // `the signal net /S (driven by U1.3; read by U2.1, U3.4)`, the
                             // other parts' pins, up to three of each, written in place
                             let mut what = String::new();
-                            push_all(&mut what, &["the ", fault, " ", &name]);
+                            push_all(&mut what, &["the ", fault, " "]);
+                            owns.push((what.len(), what.len() + name.len()));
+                            what.push_str(&name);
                             let mut open = false;
                             let mut list = |what: &mut String,
                                             word: &str,
@@ -203,7 +209,9 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                                     } else {
                                         what.push_str(", ");
                                     }
+                                    let from = what.len();
                                     push_pin_name(what, cx, q);
+                                    owns.push((from, what.len()));
                                 }
                             };
                             list(
@@ -234,10 +242,10 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                         _ => "",
                     };
                     // an unclassified part's pin names and types are a hint, never proof
-                    let mut d = if part.role_source[pi] == RoleSource::Table {
-                        let mut m = cx.describe(at);
-                        push_all(&mut m, &[" is on ", &what, consequence]);
-                        Diag::error("power-pin-miswired", m)
+                    let table = part.role_source[pi] == RoleSource::Table;
+                    let mut d = if table {
+                        // the message is given in pieces below
+                        Diag::error("power-pin-miswired", String::new())
                     } else {
                         Diag::warning(
                             "power-pin-miswired",
@@ -263,7 +271,22 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                             d = d.also(cx.pin_span(q), "drives the net");
                         }
                     }
-                    out.push(d);
+                    if !table {
+                        out.push(d);
+                        continue;
+                    }
+                    // `U4 pin 14 (74LS04 supply pin VCC) is on {what}{consequence}`: the
+                    // reference and the names in `what` are the finding's own words
+                    let describe = cx.describe(at);
+                    let (reference, pin) = describe.split_at(c.reference.as_str().len());
+                    let mut pieces = vec![Own(reference), Said(pin), Said(" is on ")];
+                    let mut from = 0;
+                    for &(a, b) in &owns {
+                        pieces.extend([Said(&what[from..a]), Own(&what[a..b])]);
+                        from = b;
+                    }
+                    pieces.extend([Said(&what[from..]), Said(consequence)]);
+                    out.push_pieces(&d, &pieces);
                 }
                 // a supply pin alone on a rail net (one power symbol on one chip) is on the rail
                 Connection::Alone { net, .. } if cx.nets[net as usize].rail.is_some() => {}

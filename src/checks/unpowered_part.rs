@@ -26,7 +26,7 @@ use super::Context;
 use crate::circuit::PinRef;
 use crate::classify::function::PinDef;
 use crate::classify::PinRole;
-use crate::diag::Diag;
+use crate::diag::{Diag, Text};
 use crate::netlist::Connection;
 use crate::values::format_volts;
 
@@ -130,13 +130,13 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         let no_symbol = c.libpart.is_none();
         let all_missing = kinds.iter().all(|m| *m == Missing::NoSuchPin);
         // room for the usual message and help at once (both are copied into the findings
-        // list and dropped)
+        // list and dropped). The message is the part's reference, then words that parts alike
+        // wired alike say alike: those are `what`, held once in the list for all of them
         let mut what = String::with_capacity(256);
         if unplaced && all_missing && no_symbol {
             push_all(
                 &mut what,
                 &[
-                    reference,
                     " (",
                     value,
                     ") has no power in the netlist: ",
@@ -157,7 +157,6 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             push_all(
                 &mut what,
                 &[
-                    reference,
                     " (",
                     value,
                     ") has no power: its symbol has no ",
@@ -167,10 +166,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             );
             list(&mut what);
         } else if unplaced {
-            push_all(
-                &mut what,
-                &[reference, " (", value, ") has no power: ", pin_word, " "],
-            );
+            push_all(&mut what, &[" (", value, ") has no power: ", pin_word, " "]);
             list(&mut what);
             push_all(
                 &mut what,
@@ -181,10 +177,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 ],
             );
         } else {
-            push_all(
-                &mut what,
-                &[reference, " (", value, ") is not fully powered: "],
-            );
+            push_all(&mut what, &[" (", value, ") is not fully powered: "]);
             for (i, (d, m, _)) in found.iter().enumerate() {
                 let how = match m {
                     Missing::NoSuchPin => "is not in the symbol",
@@ -263,7 +256,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             Missing::Unwired => "power pin wired to nothing",
         };
         let (_, m0, i0) = found[0];
-        let mut diag = Diag::error("unpowered-part", what)
+        let mut diag = Diag::error("unpowered-part", String::new())
             .at(span_of(i0), label(m0))
             .with_pin_list({
                 let mut w = crate::diag::PinListWriter::default();
@@ -278,7 +271,14 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 diag = diag.also(span_of(*i), label(*m));
             }
         }
-        out.push(diag);
+        out.push_parts(
+            &diag,
+            reference,
+            crate::diag::Around {
+                head: None,
+                tail: Some(&Text::from(what)),
+            },
+        );
     }
 }
 

@@ -22,11 +22,12 @@ pub(super) const INFO: super::CheckInfo = super::CheckInfo {
     summary: "a resistor whose value cannot be read, so its pull current is unknown",
 };
 
-use super::common::{net_name_of, push_all};
+use super::common::net_name_of;
 use super::Context;
 use crate::circuit::PinRef;
 use crate::circuit::ValueReading;
 use crate::diag::Diag;
+use crate::diag::Piece::{Own, Said};
 use crate::values::ValueError;
 
 /// Why a resistor's value, as the model read it, cannot be read: `None` when it reads, or
@@ -71,42 +72,47 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 .find(|&n| n != net && cx.nets[n].rail.is_some());
             pulled.push((net, PinRef::new(ci, pi), rail));
         }
-        // `the pull-up on /S to +5V, the pull on /T is left out ...`, written in place
-        let mut effect = String::new();
-        if pulled.is_empty() {
-            effect.push_str("it is left out of every budget");
-        } else {
-            for (i, (net, _, rail)) in pulled.iter().enumerate() {
-                if i > 0 {
-                    effect.push_str(", ");
-                }
-                match rail {
-                    Some(r) => {
-                        let dir = match cx.nets[*r].rail.and_then(|x| x.v()) {
+        // `R4: {why}; the pull-up on /S to +5V, the pull on /T is left out ...`, in pieces:
+        // the reference and the pulled nets' names are the finding's own words, the rest is
+        // said alike by every resistor with that value on those rails (held once in the list)
+        let names: Vec<_> = pulled
+            .iter()
+            .map(|(net, _, rail)| {
+                (
+                    net_name_of(cx, *net),
+                    rail.map(|r| {
+                        let dir = match cx.nets[r].rail.and_then(|x| x.v()) {
                             Some(v) if v > 0.0 => "pull-up",
                             Some(0.0) => "pull-down",
                             _ => "pull",
                         };
-                        push_all(
-                            &mut effect,
-                            &[
-                                "the ",
-                                dir,
-                                " on ",
-                                &net_name_of(cx, *net),
-                                " to ",
-                                &net_name_of(cx, *r),
-                            ],
-                        );
+                        (dir, net_name_of(cx, r))
+                    }),
+                )
+            })
+            .collect();
+        let mut pieces = vec![Own(reference), Said(": "), Said(err), Said("; ")];
+        if names.is_empty() {
+            pieces.push(Said("it is left out of every budget"));
+        } else {
+            for (i, (net, rail)) in names.iter().enumerate() {
+                if i > 0 {
+                    pieces.push(Said(", "));
+                }
+                match rail {
+                    Some((dir, r)) => {
+                        pieces.extend([Said("the "), Said(dir), Said(" on "), Own(net)]);
+                        pieces.extend([Said(" to "), Said(r)]);
                     }
-                    None => push_all(&mut effect, &["the pull on ", &net_name_of(cx, *net)]),
+                    None => pieces.extend([Said("the pull on "), Own(net)]),
                 }
             }
-            effect.push_str(" is left out of that net's budget, so its pull current is unknown");
+            pieces.push(Said(
+                " is left out of that net's budget, so its pull current is unknown",
+            ));
         }
         let span = c.value.as_ref().map_or(c.reference.span(), |v| v.span());
-        let message = super::common::concat(&[reference, ": ", err, "; ", &effect]);
-        let mut diag = Diag::warning("unreadable-value", message)
+        let mut diag = Diag::warning("unreadable-value", String::new())
             .at(span, "unreadable value")
             .with_pin_list(super::common::pin_names(cx, pulled.iter().map(|(_, p, _)| *p)))
             .with_help("write the value in one form: the IEC 60062 code (`4K7`, `R47`, `1M0`) or a number with an SI prefix (`4.7k`, `10 kOhm`); netmargin does not guess which was meant");
@@ -116,7 +122,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         for (_, p, _) in pulled.iter().take(3) {
             diag = diag.also(cx.pin_span(*p), "pulls this net");
         }
-        out.push(diag);
+        out.push_pieces(&diag, &pieces);
     }
 }
 

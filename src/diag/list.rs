@@ -17,59 +17,145 @@ use crate::source::Span;
 /// No text: a length or a shared text's number that is not there.
 const NONE: u32 = u32::MAX;
 
-/// One finding: where its words are. Its own texts follow each other in one piece of the
-/// list's text: the message's own part, the net (when it has one) and the pin list (when it
-/// has one). Their lengths are in the record; a finding with a text of 65 535 bytes or more
-/// ([`LONG`]) has them written before its texts instead ([`put_len`]).
+/// One finding: where its words are, in 16 bytes. Its own texts follow each other in one
+/// piece of the list's text, after their lengths ([`put_len`]): the length of the message's
+/// own part (unless [`REF_IN_PINS`]), of the net (when it has one) and of the pin list (when
+/// it is [`LONG`]; else it is in the record), then the message's own part, the net and the
+/// pin list. A finding with [`MANY_LABELS`] places or more has their count written after
+/// its texts.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 struct Rec {
-    /// Where its texts start in [`DiagList::text`]: the offset in the piece `piece`.
+    /// Where its texts start in [`DiagList::text`]: the piece above [`TEXT_SHIFT`] bits, the
+    /// offset in it below.
     at: u32,
-    piece: u16,
-    /// How many places it has, from `first_label` on in one piece of [`DiagList::labels`]
-    /// (the piece above [`LABEL_SHIFT`] bits, the offset in it below).
-    labels: u16,
+    /// Where its first place is, in one piece of [`DiagList::labels`] (the piece above
+    /// [`LABEL_SHIFT`] bits, the offset in it below).
     first_label: u32,
     /// Its shared texts: a number in [`DiagList::shapes`].
     shape: u32,
-    /// The lengths of the message's own part, the net and the pin list (0 for none; not
-    /// used for a [`LONG`] finding).
-    message: u16,
-    net: u16,
-    pins: u16,
-    severity: Severity,
-    /// Whether it names a net ([`HAS_NET`]) and pins ([`HAS_PINS`]), and whether its
-    /// lengths are written before its texts ([`LONG`]).
-    has: u8,
+    /// Its severity in the top two bits; below, how many places it has (from `first_label`
+    /// on), or [`MANY_LABELS`]; for a [`REF_IN_PINS`] finding, the length of its message's
+    /// own part in the next seven bits and the count of places in the last seven (or
+    /// [`MANY_REF_LABELS`]).
+    sev_labels: u16,
+    /// Whether it names a net ([`HAS_NET`]) and pins ([`HAS_PINS`]), whether its pin list's
+    /// length is written before its texts ([`LONG`]) and whether its message is read from
+    /// its pin list ([`REF_IN_PINS`]), in the top four bits; below, its pin list's length
+    /// (below [`PINS_MAX`]; not used for a [`LONG`] one).
+    has_pins: u16,
 }
 
 const HAS_NET: u8 = 1;
 const HAS_PINS: u8 = 2;
 const LONG: u8 = 4;
+/// The message's own part is the start of the pin list (an unused gate's reference, `U4`,
+/// before `U4.1`), and shorter than 128 bytes: only the pin list is written, and the message
+/// is read from it, its length held in the record. Only for a finding with no net.
+const REF_IN_PINS: u8 = 8;
+/// A count of places of a [`REF_IN_PINS`] finding that is written after the texts.
+const MANY_REF_LABELS: u16 = (1 << 7) - 1;
+/// A pin list this long or longer has its length written before the texts.
+const PINS_MAX: usize = (1 << 12) - 1;
+/// A count of places that is written after the texts.
+const MANY_LABELS: u16 = (1 << 14) - 1;
+/// The bits of a text's offset in its piece, in [`Rec::at`].
+const TEXT_SHIFT: u32 = 20;
+
+impl Rec {
+    #[inline]
+    fn severity(&self) -> Severity {
+        match self.sev_labels >> 14 {
+            0 => Severity::Info,
+            1 => Severity::Warning,
+            _ => Severity::Error,
+        }
+    }
+
+    fn set_severity(&mut self, s: Severity) {
+        let bits = match s {
+            Severity::Info => 0,
+            Severity::Warning => 1,
+            Severity::Error => 2,
+        };
+        self.sev_labels = (self.sev_labels & MANY_LABELS) | (bits << 14);
+    }
+
+    /// The count of places the record holds, and whether it is the mark of a count written
+    /// after the texts.
+    #[inline]
+    fn labels(&self) -> (usize, bool) {
+        let (n, many) = if self.has() & REF_IN_PINS != 0 {
+            (self.sev_labels & MANY_REF_LABELS, MANY_REF_LABELS)
+        } else {
+            (self.sev_labels & MANY_LABELS, MANY_LABELS)
+        };
+        (usize::from(n), n == many)
+    }
+
+    #[inline]
+    fn has(&self) -> u8 {
+        (self.has_pins >> 12) as u8
+    }
+
+    #[inline]
+    fn piece(&self) -> usize {
+        (self.at >> TEXT_SHIFT) as usize
+    }
+
+    #[inline]
+    fn offset(&self) -> usize {
+        (self.at & ((1 << TEXT_SHIFT) - 1)) as usize
+    }
+}
 
 /// The shared texts of a finding (numbers in [`DiagList::shared`]; `NONE`: none): the code,
-/// the help, and the parts of the message before and after its own part. Findings of one
-/// kind have the same, so it is kept once in the list for all of them.
+/// the help, the parts of the message before and after its own part, and the words between
+/// the pieces of its own part (a number in [`DiagList::join_sets`]; `NONE`: its own part is
+/// one piece). Findings of one kind have the same, so it is kept once in the list for all of
+/// them.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 struct Shape {
     code: u32,
     help: u32,
     head: u32,
     tail: u32,
+    joins: u32,
 }
 
-/// The number of a piece of text in a record.
-fn piece_number(piece: usize) -> u16 {
-    // 65 536 pieces of a mebibyte or more: more finding text than a machine holds
-    u16::try_from(piece).expect("at most 65 536 pieces of text")
+/// Where a text at `offset` in the piece `piece` is, as a record holds it.
+fn text_at(piece: usize, offset: usize) -> u32 {
+    // 4 096 pieces of a mebibyte or more: more finding text than a machine holds
+    assert!(
+        piece < 1 << (32 - TEXT_SHIFT),
+        "at most 4 096 pieces of text"
+    );
+    debug_assert!(offset < 1 << TEXT_SHIFT);
+    ((piece as u32) << TEXT_SHIFT) | offset as u32
 }
 
 /// Where a finding's own texts were written ([`DiagList::put_texts`]).
 struct Texts {
-    piece: u16,
+    /// As [`Rec::at`].
     at: u32,
-    lens: [u16; 3],
-    has: u8,
+    /// As [`Rec::has_pins`].
+    has_pins: u16,
+    /// The length of the message's own part, for a [`REF_IN_PINS`] finding.
+    own: u16,
+}
+
+impl Texts {
+    fn new(piece: usize, offset: usize, has: u8, pins: usize, own: usize) -> Texts {
+        let pins = if has & LONG != 0 { 0 } else { pins };
+        Texts {
+            at: text_at(piece, offset),
+            has_pins: (u16::from(has) << 12) | pins as u16,
+            own: if has & REF_IN_PINS != 0 {
+                own as u16
+            } else {
+                0
+            },
+        }
+    }
 }
 
 /// A place of a finding in the list.
@@ -132,6 +218,12 @@ fn get_len(b: &[u8], at: &mut usize) -> usize {
     }
 }
 
+/// Whether the message's own part `own` is read from the start of the pin list `pins`
+/// ([`REF_IN_PINS`]).
+fn ref_in_pins(own: &str, pins: &[u8]) -> bool {
+    !own.is_empty() && own.len() <= usize::from(MANY_REF_LABELS) && pins.starts_with(own.as_bytes())
+}
+
 /// Records a piece of [`DiagList::recs`] holds (a power of two).
 const REC_CHUNK: usize = 1 << 14;
 /// The size of a piece of the places or of the text. A finding's places, or texts, are never
@@ -166,6 +258,25 @@ pub struct DiagList {
     shape_index: hashbrown::HashTable<u32>,
     /// By a shared text's number, the set last given whose most telling text it is.
     shape_hint: Vec<u32>,
+    /// By a set of shared texts' number, the places last written for a finding of that set
+    /// (where the first is and how many, as in [`Rec`]): a finding of that set with the same
+    /// places points at them instead of writing them again (findings of one kind of part, on
+    /// pins that are on no net, point at the same pins of the library part).
+    shape_labels: Vec<(u32, u16)>,
+    /// The words said between the pieces of a message's own part ([`DiagList::push_pieces`]),
+    /// as numbers in `shared`, each list of them once: where it starts in `joins` and how
+    /// long it is, by its number; found by content, the last one given first.
+    joins: Vec<u32>,
+    join_sets: Vec<(u32, u32)>,
+    join_index: hashbrown::HashTable<u32>,
+    /// A message given in pieces, gathered: its pieces' words one after another, and each
+    /// run of pieces of one kind (said alike, and where its words are in `piece_buf`).
+    piece_buf: String,
+    piece_runs: Vec<(bool, u32, u32)>,
+    /// The own part of a message in pieces, as it is written (see [`DiagList::push_pieces`]),
+    /// and the numbers of the words between its pieces.
+    own_buf: String,
+    join_buf: Vec<u32>,
     /// A finding's pin list and places, gathered before they are written into the pieces
     /// (their sizes are then known, and a piece is never grown past its size).
     pin_buf: String,
@@ -248,6 +359,14 @@ pub struct Around<'t> {
     pub tail: Option<&'t Text>,
 }
 
+/// A piece of a message given in pieces ([`DiagList::push_pieces`]): words many findings say
+/// alike, or the finding's own.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Piece<'t> {
+    Own(&'t str),
+    Said(&'t str),
+}
+
 /// What a finding written straight into a list ([`DiagList::push_raw`]) says besides its pins
 /// and places.
 #[derive(Debug, Clone)]
@@ -311,7 +430,9 @@ impl DiagList {
     #[inline]
     fn text_room(&mut self, need: usize) -> usize {
         match self.text.last() {
-            Some(t) if t.len() + need <= t.capacity() => self.text.len() - 1,
+            Some(t) if t.len() + need <= t.capacity() && t.len() < TEXT_CHUNK => {
+                self.text.len() - 1
+            }
             _ => self.text_room_new(need),
         }
     }
@@ -325,7 +446,7 @@ impl DiagList {
         let last = self.text.len() - 1;
         let t = &mut self.text[last];
         let len = t.len();
-        if len + need <= t.capacity() {
+        if len + need <= t.capacity() && len < TEXT_CHUNK {
             return last;
         }
         if t.capacity() < TEXT_CHUNK && len + need <= TEXT_CHUNK {
@@ -337,56 +458,57 @@ impl DiagList {
         last + 1
     }
 
-    /// Writes a finding's own texts (see [`Rec`]). Gives where they are: the piece, where
-    /// they start in it, their lengths and which of net and pins the finding has.
-    fn put_texts(&mut self, message: &str, net: Option<&str>, pins: Option<&str>) -> Texts {
-        let lens = [
-            message.len(),
-            net.map_or(0, str::len),
-            pins.map_or(0, str::len),
-        ];
-        let long = lens.iter().any(|&l| l >= usize::from(u16::MAX));
-        if !long {
-            let piece = self.text_room(lens[0] + lens[1] + lens[2]);
-            let t = &mut self.text[piece];
-            let at = t.len() as u32;
-            for x in [message, net.unwrap_or(""), pins.unwrap_or("")] {
-                if !x.is_empty() {
-                    t.push_str(x);
-                }
-            }
-            return Texts {
-                piece: piece_number(piece),
-                at,
-                lens: lens.map(|l| l as u16),
-                has: net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS),
-            };
+    /// Writes a finding's own texts and their lengths (see [`Rec`]). Gives where they are,
+    /// which of net and pins the finding has, and its pin list's length.
+    /// `plain`: the message's own part is words of its own (not pieces with their lengths), so
+    /// it may be read from the start of the pin list.
+    fn put_texts(
+        &mut self,
+        message: &str,
+        net: Option<&str>,
+        pins: Option<&str>,
+        plain: bool,
+    ) -> Texts {
+        let ref_in =
+            plain && net.is_none() && pins.is_some_and(|p| ref_in_pins(message, p.as_bytes()));
+        let pins_len = pins.map_or(0, str::len);
+        let long = pins_len >= PINS_MAX;
+        let mut need = pins_len;
+        if !ref_in {
+            need += len_size(message.len()) + message.len();
         }
-        let mut need = lens.iter().sum::<usize>();
+        if let Some(n) = net {
+            need += len_size(n.len()) + n.len();
+        }
         if long {
-            need += lens.iter().map(|&l| len_size(l)).sum::<usize>();
+            need += len_size(pins_len);
         }
         let piece = self.text_room(need);
         let t = &mut self.text[piece];
-        let at = t.len() as u32;
-        if long {
+        let at = t.len();
+        if !ref_in {
             put_len(t, message.len());
-            for x in [net, pins].into_iter().flatten() {
-                put_len(t, x.len());
-            }
         }
-        t.push_str(message);
-        for x in [net, pins].into_iter().flatten() {
-            t.push_str(x);
+        if let Some(n) = net {
+            put_len(t, n.len());
         }
-        let has =
-            net.map_or(0, |_| HAS_NET) | pins.map_or(0, |_| HAS_PINS) | if long { LONG } else { 0 };
-        Texts {
-            piece: piece_number(piece),
-            at,
-            lens: if long { [0; 3] } else { lens.map(|l| l as u16) },
-            has,
+        if long {
+            put_len(t, pins_len);
         }
+        if !ref_in {
+            t.push_str(message);
+        }
+        if let Some(n) = net {
+            t.push_str(n);
+        }
+        if let Some(p) = pins {
+            t.push_str(p);
+        }
+        let has = net.map_or(0, |_| HAS_NET)
+            | pins.map_or(0, |_| HAS_PINS)
+            | if long { LONG } else { 0 }
+            | if ref_in { REF_IN_PINS } else { 0 };
+        Texts::new(piece, at, has, pins_len, message.len())
     }
 
     /// Writes the places gathered in `label_buf` into the last piece of the places, or a new
@@ -479,33 +601,68 @@ impl DiagList {
 
     /// Ends a finding whose texts are written and whose places are gathered.
     fn finish(&mut self, texts: Texts, shape: Shape, severity: Severity) {
-        let (first_label, labels) = self.put_labels();
+        let shape = self.shape(shape);
+        let (first_label, labels) = self.put_labels_of(shape);
         self.end(texts, first_label, labels, shape, severity);
     }
 
-    /// Ends a finding whose texts and places are written.
-    fn end(
-        &mut self,
-        texts: Texts,
-        first_label: u32,
-        labels: u16,
-        shape: Shape,
-        severity: Severity,
-    ) {
-        let shape = self.shape(shape);
-        let [message, net, pins] = texts.lens;
-        self.push_rec(Rec {
+    /// Writes the places gathered in `label_buf` for a finding of the set of shared texts
+    /// `shape`, as [`DiagList::put_labels`] does; when they are the places last written for a
+    /// finding of that set, those are given instead, and nothing is written. Gives where the
+    /// first is and how many there are.
+    fn put_labels_of(&mut self, shape: u32) -> (u32, u16) {
+        let n = self.label_buf.len();
+        if n == 0 {
+            return (0, 0);
+        }
+        let shape = shape as usize;
+        if let Some(&(last, count)) = self.shape_labels.get(shape) {
+            if usize::from(count) == n {
+                let piece = &self.labels[(last >> LABEL_SHIFT) as usize];
+                let from = (last & ((1 << LABEL_SHIFT) - 1)) as usize;
+                if piece[from..from + n] == self.label_buf[..] {
+                    self.label_buf.clear();
+                    return (last, count);
+                }
+            }
+        }
+        let (first, count) = self.put_labels();
+        if self.shape_labels.len() <= shape {
+            self.shape_labels
+                .resize(self.shapes.len().max(shape + 1), (0, 0));
+        }
+        self.shape_labels[shape] = (first, count);
+        (first, count)
+    }
+
+    /// Ends a finding whose texts and places are written (`shape`: the number of its set of
+    /// shared texts).
+    fn end(&mut self, texts: Texts, first_label: u32, labels: u16, shape: u32, severity: Severity) {
+        let many = if texts.has_pins >> 12 & u16::from(REF_IN_PINS) != 0 {
+            MANY_REF_LABELS
+        } else {
+            MANY_LABELS
+        };
+        let mut count = if labels >= many {
+            // written after the finding's texts, the last in their piece
+            put_len(
+                &mut self.text[(texts.at >> TEXT_SHIFT) as usize],
+                usize::from(labels),
+            );
+            many
+        } else {
+            labels
+        };
+        count |= texts.own << 7;
+        let mut r = Rec {
             at: texts.at,
-            piece: texts.piece,
-            labels,
             first_label,
             shape,
-            message,
-            net,
-            pins,
-            severity,
-            has: texts.has,
-        });
+            sev_labels: count,
+            has_pins: texts.has_pins,
+        };
+        r.set_severity(severity);
+        self.push_rec(r);
     }
 
     /// The number of the shared text `s` (added the first time it is given). `slot` says
@@ -586,7 +743,15 @@ impl DiagList {
     }
 
     fn push_view(&mut self, d: DiagRef<'_>, message: &str, around: Around<'_>) {
-        let texts = self.put_texts(message, d.net(), d.pin_text());
+        let texts = self.put_texts(message, d.net(), d.pin_text(), true);
+        let head = around.head.map(|t| self.share(t, Some(t), 2));
+        let tail = around.tail.map(|t| self.share(t, Some(t), 3));
+        self.push_rest(d, texts, head.unwrap_or(NONE), tail.unwrap_or(NONE), NONE);
+    }
+
+    /// Ends [`DiagList::push_view`] and [`DiagList::push_pieces`]: the code, the help and the
+    /// places of `d`, with its texts written and its message's shared parts given.
+    fn push_rest(&mut self, d: DiagRef<'_>, texts: Texts, head: u32, tail: u32, joins: u32) {
         let code = match d.0 {
             Inner::One(one) => self.share_cow(&one.code, 0),
             Inner::In(..) => self.share(d.code(), None, 0),
@@ -595,8 +760,6 @@ impl DiagList {
             Inner::One(one) => one.help.as_ref().map(|h| self.share(h, Some(h), 1)),
             Inner::In(..) => d.help().map(|h| self.share(h, None, 1)),
         };
-        let head = around.head.map(|t| self.share(t, Some(t), 2));
-        let tail = around.tail.map(|t| self.share(t, Some(t), 3));
         match d.0 {
             Inner::One(one) => {
                 for (k, l) in one.labels.iter().enumerate() {
@@ -614,10 +777,122 @@ impl DiagList {
         let shape = Shape {
             code,
             help: help.unwrap_or(NONE),
-            head: head.unwrap_or(NONE),
-            tail: tail.unwrap_or(NONE),
+            head,
+            tail,
+            joins,
         };
         self.finish(texts, shape, d.severity());
+    }
+
+    /// Adds `d` at the end with its message in `pieces`, the message of `d` left out: the
+    /// words said alike by many findings (a part's pin and value, a net's rail) kept once in
+    /// the list, the finding's own (a reference, a net's name) written with it. The pieces
+    /// before the first of its own and after the last are the message's head and tail; those
+    /// between are kept once as a list for all the findings that say them, and the own pieces
+    /// are written one after another, the lengths of all but the last before them (as
+    /// [`put_len`] writes a length). Empty pieces are left out and neighbours of one kind read
+    /// as one.
+    pub fn push_pieces(&mut self, d: &Diag, pieces: &[Piece<'_>]) {
+        self.push_view_pieces(d.view(), pieces.iter().copied());
+    }
+
+    fn push_view_pieces<'p>(&mut self, d: DiagRef<'_>, pieces: impl Iterator<Item = Piece<'p>>) {
+        let mut buf = std::mem::take(&mut self.piece_buf);
+        let mut runs = std::mem::take(&mut self.piece_runs);
+        buf.clear();
+        runs.clear();
+        for p in pieces {
+            let (said, words) = match p {
+                Piece::Own(w) => (false, w),
+                Piece::Said(w) => (true, w),
+            };
+            if words.is_empty() {
+                continue;
+            }
+            let from = buf.len() as u32;
+            buf.push_str(words);
+            match runs.last_mut() {
+                Some(r) if r.0 == said => r.2 = buf.len() as u32,
+                _ => runs.push((said, from, buf.len() as u32)),
+            }
+        }
+        let words = |r: &(bool, u32, u32)| &buf[r.1 as usize..r.2 as usize];
+        let mut mid = &runs[..];
+        let head = match mid.first() {
+            Some(r) if r.0 => {
+                mid = &mid[1..];
+                self.share(words(r), None, 2)
+            }
+            _ => NONE,
+        };
+        let tail = match mid.last() {
+            Some(r) if r.0 => {
+                mid = &mid[..mid.len() - 1];
+                self.share(words(r), None, 3)
+            }
+            _ => NONE,
+        };
+        // `mid` is own words, then (words said alike, own words) pairs
+        let mut own = std::mem::take(&mut self.own_buf);
+        let mut joins = std::mem::take(&mut self.join_buf);
+        own.clear();
+        joins.clear();
+        let texts = if mid.len() <= 1 {
+            let message = mid.first().map_or("", words);
+            self.put_texts(message, d.net(), d.pin_text(), true)
+        } else {
+            for r in mid.iter().step_by(2).take(mid.len() / 2) {
+                put_len(&mut own, words(r).len());
+            }
+            for r in mid {
+                if r.0 {
+                    joins.push(self.intern(words(r), None));
+                } else {
+                    own.push_str(words(r));
+                }
+            }
+            self.put_texts(&own, d.net(), d.pin_text(), false)
+        };
+        let join_set = if joins.is_empty() {
+            NONE
+        } else {
+            self.join_set(&joins)
+        };
+        self.piece_buf = buf;
+        self.piece_runs = runs;
+        self.own_buf = own;
+        self.join_buf = joins;
+        self.push_rest(d, texts, head, tail, join_set);
+    }
+
+    /// The number of the list of words between the pieces of a message's own part (added the
+    /// first time it is given).
+    fn join_set(&mut self, ids: &[u32]) -> u32 {
+        let (joins, sets) = (&self.joins, &self.join_sets);
+        let set = |i: u32| {
+            let (from, n) = sets[i as usize];
+            &joins[from as usize..(from + n) as usize]
+        };
+        // findings of one kind come in a row: the last set given first
+        if let Some(last) = sets.len().checked_sub(1) {
+            if set(last as u32) == ids {
+                return last as u32;
+            }
+        }
+        let h = rustc_hash::FxBuildHasher.hash_one(ids);
+        if let Some(&i) = self.join_index.find(h, |&i| set(i) == ids) {
+            return i;
+        }
+        let i = self.join_sets.len() as u32;
+        self.join_sets
+            .push((self.joins.len() as u32, ids.len() as u32));
+        self.joins.extend_from_slice(ids);
+        let (joins, sets) = (&self.joins, &self.join_sets);
+        self.join_index.insert_unique(h, i, |&j| {
+            let (from, n) = sets[j as usize];
+            rustc_hash::FxBuildHasher.hash_one(&joins[from as usize..(from + n) as usize])
+        });
+        i
     }
 
     /// Gathers a place of the finding being pushed.
@@ -651,6 +926,7 @@ impl DiagList {
             help: help.unwrap_or(NONE),
             head: head.unwrap_or(NONE),
             tail: tail.unwrap_or(NONE),
+            joins: NONE,
         };
         self.finish(texts, shape, raw.severity);
     }
@@ -671,35 +947,17 @@ impl DiagList {
             help: id(raw.help),
             head: id(raw.head),
             tail: id(raw.tail),
+            joins: NONE,
         };
-        let labels = labels.into_iter();
-        let (n, most) = labels.size_hint();
-        if most != Some(n) || n > usize::from(u16::MAX) {
-            for (span, text, primary) in labels {
-                let text = self.shared_id(text);
-                self.push_label(span, text, primary);
-            }
-            self.finish(texts, shape, raw.severity);
-            return;
+        let shape = self.shape(shape);
+        // gathered first: findings of one kind of part on pins that are on no net have the
+        // places the last of their kind had, and those are not written again
+        for (span, text, primary) in labels {
+            let text = self.shared_id(text);
+            self.push_label(span, text, primary);
         }
-        // as many places as the iterator tells: written straight into their piece
-        let token = self.token;
-        let (first_label, count) = if n == 0 {
-            (0, 0)
-        } else {
-            let piece = self.label_room(n);
-            let l = &mut self.labels[piece];
-            let from = l.len();
-            for (span, text, primary) in labels.take(n) {
-                assert_eq!(text.list, token, "a shared text of another list");
-                l.push(LabelRec::new(span, text.id, primary));
-            }
-            (
-                ((piece as u32) << LABEL_SHIFT) | from as u32,
-                (l.len() - from) as u16,
-            )
-        };
-        self.end(texts, first_label, count, shape, raw.severity);
+        let (first_label, labels) = self.put_labels_of(shape);
+        self.end(texts, first_label, labels, shape, raw.severity);
     }
 
     /// Writes the own texts of a finding written straight into the list: its own words, net
@@ -711,23 +969,45 @@ impl DiagList {
         pins: impl IntoIterator<Item = [&'p str; 3]>,
     ) -> Texts {
         // written straight into the last piece while they fit in it; otherwise (the piece
-        // is full, or a text is long) gathered in `pin_buf` and written as a whole
+        // is full, or the pin list is long) gathered in `pin_buf` and written as a whole
         let net_text = net.unwrap_or("");
-        let piece = self.text_room(own.len() + net_text.len());
+        let mut pins = pins.into_iter().peekable();
+        // the own words are the first pin's reference (an unused gate's): only the pins are
+        // written, the message read from their start
+        let ref_in = net.is_none()
+            && !own.is_empty()
+            && own.len() <= usize::from(MANY_REF_LABELS)
+            && pins
+                .peek()
+                .is_some_and(|p| std::ptr::eq(p[0], own) || p[0] == own);
+        let own_text = if ref_in { "" } else { own };
+        let mut need = own_text.len() + net_text.len();
+        if !ref_in {
+            need += len_size(own.len());
+        }
+        if net.is_some() {
+            need += len_size(net_text.len());
+        }
+        let piece = self.text_room(need);
         let t = &mut self.text[piece];
         let at = t.len();
-        if !own.is_empty() {
-            t.push_str(own);
+        if !ref_in {
+            put_len(t, own.len());
+        }
+        if net.is_some() {
+            put_len(t, net_text.len());
+        }
+        if !own_text.is_empty() {
+            t.push_str(own_text);
         }
         if !net_text.is_empty() {
             t.push_str(net_text);
         }
         let pins_at = t.len();
-        let mut pins = pins.into_iter();
         let (mut any, mut spilt) = (false, None);
         for p in pins.by_ref() {
             let need = usize::from(any) + p[0].len() + p[1].len() + p[2].len();
-            if t.len() + need > t.capacity() {
+            if t.len() + need > t.capacity() || t.len() + need - pins_at >= PINS_MAX {
                 spilt = Some(p);
                 break;
             }
@@ -739,14 +1019,11 @@ impl DiagList {
                 t.push_str(x);
             }
         }
-        let lens = [own.len(), net_text.len(), t.len() - pins_at];
-        if spilt.is_none() && lens.iter().all(|&l| l < usize::from(u16::MAX)) {
-            return Texts {
-                piece: piece_number(piece),
-                at: at as u32,
-                lens: lens.map(|l| l as u16),
-                has: net.map_or(0, |_| HAS_NET) | if any { HAS_PINS } else { 0 },
-            };
+        if spilt.is_none() {
+            let has = net.map_or(0, |_| HAS_NET)
+                | if any { HAS_PINS } else { 0 }
+                | if ref_in { REF_IN_PINS } else { 0 };
+            return Texts::new(piece, at, has, t.len() - pins_at, own.len());
         }
         let mut buf = std::mem::take(&mut self.pin_buf);
         buf.clear();
@@ -761,13 +1038,31 @@ impl DiagList {
                 buf.push_str(x);
             }
         }
-        let texts = self.put_texts(own, net, any.then_some(buf.as_str()));
+        let texts = self.put_texts(own, net, any.then_some(buf.as_str()), true);
         self.pin_buf = buf;
         texts
     }
 
     /// Adds a copy of a finding read from another list (or a single one).
     pub fn push_ref(&mut self, d: DiagRef<'_>) {
+        let parts = d.message_parts();
+        if parts.three().is_none() {
+            // its own words in pieces: given as they are read
+            let mut i = 0;
+            self.push_view_pieces(
+                d,
+                parts.iter().map(|p| {
+                    // head, own, said, own ... own, tail
+                    i += 1;
+                    if i % 2 == 0 {
+                        Piece::Own(p)
+                    } else {
+                        Piece::Said(p)
+                    }
+                }),
+            );
+            return;
+        }
         let message = d.own_message();
         let around_head = d.head().map(|s| Text::Shared(s.into()));
         let around_tail = d.tail().map(|s| Text::Shared(s.into()));
@@ -803,7 +1098,7 @@ impl DiagList {
     /// Sets the severity of the findings from `from` on.
     pub fn set_severity_from(&mut self, from: usize, severity: Severity) {
         for i in from..self.len {
-            self.rec_mut(i).severity = severity;
+            self.rec_mut(i).set_severity(severity);
         }
     }
 
@@ -846,15 +1141,15 @@ impl DiagList {
 
     /// Rearranges the findings so that the finding at `i` is the one that was at `order[i]`
     /// (`order` a permutation; it is used up).
-    pub(crate) fn apply_order(&mut self, order: &mut [usize]) {
-        const DONE: usize = usize::MAX;
+    pub(crate) fn apply_order(&mut self, order: &mut [u64]) {
+        const DONE: u64 = u64::MAX;
         for i in 0..self.len {
             if order[i] == DONE {
                 continue;
             }
             let mut cur = i;
             loop {
-                let next = std::mem::replace(&mut order[cur], DONE);
+                let next = std::mem::replace(&mut order[cur], DONE) as usize;
                 if next == i {
                     break;
                 }
@@ -882,6 +1177,14 @@ impl DiagList {
         self.labels.shrink_to_fit();
         self.text.shrink_to_fit();
         self.shapes.shrink_to_fit();
+        // the places of the findings pushed after this are not looked for among these
+        self.shape_labels = Vec::new();
+        self.joins.shrink_to_fit();
+        self.join_sets.shrink_to_fit();
+        self.piece_buf = String::new();
+        self.piece_runs = Vec::new();
+        self.own_buf = String::new();
+        self.join_buf = Vec::new();
         self.pin_buf = String::new();
         self.label_buf = Vec::new();
     }
@@ -896,6 +1199,12 @@ impl DiagList {
             + self.shapes.capacity() * size_of::<Shape>()
             + self.shape_index.capacity() * size_of::<u32>()
             + self.shape_hint.capacity() * size_of::<u32>()
+            + self.shape_labels.capacity() * size_of::<(u32, u16)>()
+            + self.joins.capacity() * size_of::<u32>()
+            + self.join_sets.capacity() * size_of::<(u32, u32)>()
+            + self.join_index.capacity() * size_of::<u32>()
+            + self.piece_buf.capacity()
+            + self.own_buf.capacity()
             + self.pin_buf.capacity()
             + self.label_buf.capacity() * size_of::<LabelRec>()
     }
@@ -999,6 +1308,131 @@ enum Inner<'a> {
     In(&'a DiagList, &'a Rec),
 }
 
+/// The parts of a finding's message, read ([`DiagRef::message_parts`]): the head, the
+/// finding's own words and the tail; own words in pieces have the words said between them.
+#[derive(Debug, Clone, Copy)]
+pub struct MessageParts<'a> {
+    head: &'a str,
+    /// The own words; in pieces, the lengths of all but the last piece before them.
+    own: &'a str,
+    tail: &'a str,
+    /// The words between the pieces, as numbers in `shared` (none: one piece).
+    joins: &'a [u32],
+    shared: &'a [Text],
+}
+
+impl<'a> MessageParts<'a> {
+    /// The head, own words and tail, when the own words are one piece.
+    #[inline]
+    pub fn three(&self) -> Option<[&'a str; 3]> {
+        self.joins
+            .is_empty()
+            .then_some([self.head, self.own, self.tail])
+    }
+
+    /// Every part in order: the head, the own pieces with the words between them, the tail.
+    pub fn iter(&self) -> PartsIter<'a> {
+        // the own pieces' words start after their lengths
+        let mut data = 0;
+        for _ in self.joins {
+            get_len(self.own.as_bytes(), &mut data);
+        }
+        PartsIter {
+            parts: *self,
+            step: 0,
+            lens: 0,
+            data,
+        }
+    }
+}
+
+/// The parts of a message in order ([`MessageParts::iter`]).
+#[derive(Debug, Clone)]
+pub struct PartsIter<'a> {
+    parts: MessageParts<'a>,
+    /// 0: the head; then the own pieces and the words between them, each in turn; then the
+    /// tail.
+    step: usize,
+    /// Where the next own piece's length and words are in the own words.
+    lens: usize,
+    data: usize,
+}
+
+impl<'a> Iterator for PartsIter<'a> {
+    type Item = &'a str;
+    fn next(&mut self) -> Option<&'a str> {
+        let p = &self.parts;
+        let k = p.joins.len();
+        let step = self.step;
+        self.step += 1;
+        if step == 0 {
+            return Some(p.head);
+        }
+        let i = step - 1;
+        if i > 2 * k + 1 {
+            return None;
+        }
+        if i == 2 * k + 1 {
+            return Some(p.tail);
+        }
+        if i % 2 == 1 {
+            return Some(&p.shared[p.joins[i / 2] as usize]);
+        }
+        if k == 0 {
+            return Some(p.own);
+        }
+        let from = self.data;
+        if i / 2 == k {
+            // the last piece: the rest
+            self.data = p.own.len();
+        } else {
+            self.data += get_len(p.own.as_bytes(), &mut self.lens);
+        }
+        Some(&p.own[from..self.data])
+    }
+}
+
+/// Orders the texts made of the parts `a` and `b` give as the texts themselves are ordered
+/// (byte by byte), with no text made; as [`cmp_parts`], for messages of any number of parts.
+pub fn cmp_part_lists<'x>(
+    mut a: impl Iterator<Item = &'x str>,
+    mut b: impl Iterator<Item = &'x str>,
+) -> std::cmp::Ordering {
+    let (mut x, mut y): (&[u8], &[u8]) = (b"", b"");
+    loop {
+        while x.is_empty() {
+            match a.next() {
+                Some(p) => x = p.as_bytes(),
+                None => break,
+            }
+        }
+        while y.is_empty() {
+            match b.next() {
+                Some(p) => y = p.as_bytes(),
+                None => break,
+            }
+        }
+        match (x.is_empty(), y.is_empty()) {
+            (true, true) => return std::cmp::Ordering::Equal,
+            (true, false) => return std::cmp::Ordering::Less,
+            (false, true) => return std::cmp::Ordering::Greater,
+            _ => {}
+        }
+        // one text on both sides (the shared words of findings alike): passed over unread
+        if std::ptr::eq(x, y) {
+            (x, y) = (b"", b"");
+            continue;
+        }
+        let n = x.len().min(y.len());
+        match x[..n].cmp(&y[..n]) {
+            std::cmp::Ordering::Equal => {}
+            other => return other,
+        }
+        x = &x[n..];
+        y = &y[n..];
+    }
+}
+
 /// A place of a finding, read.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct LabelRef<'a> {
@@ -1019,35 +1453,84 @@ impl<'a> DiagRef<'a> {
         DiagRef(Inner::In(list, r))
     }
 
-    /// A finding's own texts in the list: its piece of text, where they start in it, and the
-    /// lengths of the message's own part, the net and the pin list (0 for none).
+    /// A finding's own texts in the list: its piece of text, where the message's own part,
+    /// the net and the pin list start in it, and their lengths (0 for none).
     #[inline]
-    fn own(list: &'a DiagList, r: &Rec) -> (&'a str, usize, [usize; 3]) {
-        let text = &list.text[usize::from(r.piece)];
-        if r.has & LONG == 0 {
-            let lens = [r.message, r.net, r.pins].map(usize::from);
-            return (text, r.at as usize, lens);
+    fn own(list: &'a DiagList, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
+        let text = &list.text[r.piece()];
+        let b = text.as_bytes();
+        let at = r.offset();
+        let has = r.has();
+        let p = usize::from(r.has_pins & 0x0fff);
+        if has & (REF_IN_PINS | LONG) == REF_IN_PINS {
+            // an unused gate's: its pin list alone, its reference at its start
+            let m = usize::from((r.sev_labels >> 7) & MANY_REF_LABELS);
+            return (text, [at, at, at], [m, 0, p]);
         }
-        Self::own_long(text, r)
+        if has & (REF_IN_PINS | LONG | HAS_NET) == 0 && b[at] < 0x40 {
+            // a message of fewer than 64 bytes, no net
+            let m = usize::from(b[at]);
+            return (text, [at + 1, at + 1 + m, at + 1 + m], [m, 0, p]);
+        }
+        Self::own_slow(text, r)
     }
 
-    /// [`DiagRef::own`] of a finding whose lengths are written before its texts.
-    #[cold]
-    fn own_long(text: &'a str, r: &Rec) -> (&'a str, usize, [usize; 3]) {
-        let mut at = r.at as usize;
+    /// [`DiagRef::own`] for the other findings.
+    fn own_slow(text: &'a str, r: &Rec) -> (&'a str, [usize; 3], [usize; 3]) {
         let b = text.as_bytes();
-        let message = get_len(b, &mut at);
-        let net = if r.has & HAS_NET != 0 {
-            get_len(b, &mut at)
+        let mut at = r.offset();
+        let has = r.has();
+        let short = |at: &mut usize| {
+            let x = b[*at];
+            if x < 0x40 {
+                *at += 1;
+                usize::from(x)
+            } else {
+                get_len(b, at)
+            }
+        };
+        let m = if has & REF_IN_PINS != 0 {
+            0
+        } else {
+            short(&mut at)
+        };
+        let n = if has & HAS_NET != 0 {
+            short(&mut at)
         } else {
             0
         };
-        let pins = if r.has & HAS_PINS != 0 {
+        let p = if has & HAS_PINS == 0 {
+            0
+        } else if has & LONG != 0 {
             get_len(b, &mut at)
         } else {
-            0
+            usize::from(r.has_pins & 0x0fff)
         };
-        (text, at, [message, net, pins])
+        if has & REF_IN_PINS != 0 {
+            let m = usize::from((r.sev_labels >> 7) & MANY_REF_LABELS);
+            return (text, [at, at, at], [m, 0, p]);
+        }
+        (text, [at, at + m, at + m + n], [m, n, p])
+    }
+
+    /// How many places the finding has.
+    #[inline]
+    fn label_count(list: &'a DiagList, r: &Rec) -> usize {
+        match r.labels() {
+            (n, false) => n,
+            _ => Self::many_labels(list, r),
+        }
+    }
+
+    /// [`DiagRef::label_count`] of a finding whose count is written after its texts.
+    #[cold]
+    fn many_labels(list: &'a DiagList, r: &Rec) -> usize {
+        let (text, starts, lens) = Self::own(list, r);
+        let mut end = starts[2] + lens[2];
+        if r.has() & HAS_PINS == 0 {
+            end = starts[1] + lens[1];
+        }
+        get_len(text.as_bytes(), &mut end)
     }
 
     fn shape(list: &'a DiagList, r: &Rec) -> Shape {
@@ -1071,7 +1554,7 @@ impl<'a> DiagRef<'a> {
     pub fn severity(&self) -> Severity {
         match self.0 {
             Inner::One(d) => d.severity,
-            Inner::In(_, r) => r.severity,
+            Inner::In(_, r) => r.severity(),
         }
     }
 
@@ -1081,7 +1564,7 @@ impl<'a> DiagRef<'a> {
         match self.0 {
             Inner::One(d) => &d.message,
             Inner::In(l, r) => {
-                let (text, at, [m, _, _]) = Self::own(l, r);
+                let (text, [at, _, _], [m, _, _]) = Self::own(l, r);
                 &text[at..at + m]
             }
         }
@@ -1103,10 +1586,31 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    /// The words between the pieces of the message's own part (none: it is one piece).
+    #[inline]
+    fn joins(&self) -> &'a [u32] {
+        match self.0 {
+            Inner::One(_) => &[],
+            Inner::In(l, r) => match Self::shape(l, r).joins {
+                NONE => &[],
+                i => {
+                    let (from, n) = l.join_sets[i as usize];
+                    &l.joins[from as usize..(from + n) as usize]
+                }
+            },
+        }
+    }
+
     /// The message, with the numbers.
     pub fn message(&self) -> Cow<'a, str> {
         let own = self.own_message();
         let (head, tail) = (self.head(), self.tail());
+        if !self.joins().is_empty() {
+            let parts = self.message_parts().iter();
+            let mut m = String::with_capacity(parts.clone().map(str::len).sum());
+            parts.for_each(|p| m.push_str(p));
+            return Cow::Owned(m);
+        }
         if head.is_none() && tail.is_none() {
             return Cow::Borrowed(own);
         }
@@ -1119,25 +1623,32 @@ impl<'a> DiagRef<'a> {
     }
 
     /// The message's parts in order (their concatenation is [`DiagRef::message`]).
-    pub fn message_parts(&self) -> [&'a str; 3] {
-        [
-            self.head().unwrap_or(""),
-            self.own_message(),
-            self.tail().unwrap_or(""),
-        ]
+    pub fn message_parts(&self) -> MessageParts<'a> {
+        let shared: &'a [Text] = match self.0 {
+            Inner::One(_) => &[],
+            Inner::In(l, _) => &l.shared,
+        };
+        MessageParts {
+            head: self.head().unwrap_or(""),
+            own: self.own_message(),
+            tail: self.tail().unwrap_or(""),
+            joins: self.joins(),
+            shared,
+        }
     }
 
     /// The places; the first primary one is the finding's location.
+    #[inline]
     pub fn labels(&self) -> Labels<'a> {
         match self.0 {
             Inner::One(d) => Labels(LabelsInner::One(d.labels.iter())),
-            Inner::In(l, r) if r.labels == 0 => Labels(LabelsInner::In(l, [].iter())),
+            Inner::In(l, r) if r.labels().0 == 0 => Labels(LabelsInner::In(l, [].iter())),
             Inner::In(l, r) => {
                 let piece = &l.labels[(r.first_label >> LABEL_SHIFT) as usize];
                 let from = (r.first_label & ((1 << LABEL_SHIFT) - 1)) as usize;
                 Labels(LabelsInner::In(
                     l,
-                    piece[from..from + r.labels as usize].iter(),
+                    piece[from..from + Self::label_count(l, r)].iter(),
                 ))
             }
         }
@@ -1156,9 +1667,9 @@ impl<'a> DiagRef<'a> {
     pub fn net(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.net.as_deref(),
-            Inner::In(l, r) => (r.has & HAS_NET != 0).then(|| {
-                let (text, at, [m, n, _]) = Self::own(l, r);
-                &text[at + m..at + m + n]
+            Inner::In(l, r) => (r.has() & HAS_NET != 0).then(|| {
+                let (text, [_, at, _], [_, n, _]) = Self::own(l, r);
+                &text[at..at + n]
             }),
         }
     }
@@ -1167,9 +1678,9 @@ impl<'a> DiagRef<'a> {
     fn pin_text(&self) -> Option<&'a str> {
         match self.0 {
             Inner::One(d) => d.pins.0.as_deref(),
-            Inner::In(l, r) => (r.has & HAS_PINS != 0).then(|| {
-                let (text, at, [m, n, p]) = Self::own(l, r);
-                &text[at + m + n..at + m + n + p]
+            Inner::In(l, r) => (r.has() & HAS_PINS != 0).then(|| {
+                let (text, [_, _, at], [_, _, p]) = Self::own(l, r);
+                &text[at..at + p]
             }),
         }
     }
@@ -1287,6 +1798,7 @@ impl ExactSizeIterator for Labels<'_> {}
 
 #[cfg(test)]
 mod tests {
+    use super::Piece::{Own, Said};
     use super::*;
 
     // invented codes, held in constants so that no code is named where a finding is made
@@ -1296,7 +1808,7 @@ mod tests {
     /// A finding held in a list costs its record and its places, and no allocation.
     #[test]
     fn records_stay_small() {
-        assert!(size_of::<Rec>() <= 24, "{}", size_of::<Rec>());
+        assert!(size_of::<Rec>() <= 16, "{}", size_of::<Rec>());
         assert!(size_of::<LabelRec>() <= 12, "{}", size_of::<LabelRec>());
         assert!(size_of::<DiagRef>() <= 24);
     }
@@ -1458,6 +1970,197 @@ mod tests {
         assert!(list.iter().zip(&want).all(|(r, d)| r == d.view()));
     }
 
+    /// Findings of one set of shared texts at the same places point at one copy of them; an
+    /// unused gate's reference, the start of its pin list, is not written twice. They read
+    /// back as pushed, in any mix with findings at other places.
+    #[test]
+    fn places_said_again_and_references_in_pins_are_held_once() {
+        let mut list = DiagList::new();
+        let code = list.share_id(&Text::Fixed(A));
+        let (head, tail) = (
+            list.share_id(&Text::Fixed("gate A of ")),
+            list.share_id(&Text::Fixed(" is unused")),
+        );
+        let (first, other) = (
+            list.share_id(&Text::Fixed("unused gate")),
+            list.share_id(&Text::Fixed("")),
+        );
+        let mut want = Vec::new();
+        for i in 0..300usize {
+            let own = format!("U{i}");
+            // the first two hundred parts on the same two pins of the library part, the others
+            // at their own
+            let at = if i >= 200 { 100 + i } else { 7 };
+            let spans = [Span::new(at, at + 2), Span::new(at + 3, at + 5)];
+            let pins = [format!("{own}.1"), format!("{own}.2")];
+            let d = Diag::error(A, format!("gate A of {own} is unused"))
+                .at(spans[0], "unused gate")
+                .also(spans[1], "")
+                .with_pins(&pins);
+            if i % 2 == 0 {
+                list.push_shared(
+                    RawShared {
+                        code,
+                        severity: Severity::Error,
+                        head: Some(head),
+                        own: &own,
+                        tail: Some(tail),
+                        help: None,
+                        net: None,
+                    },
+                    [[own.as_str(), ".", "1"], [own.as_str(), ".", "2"]],
+                    [(spans[0], first, true), (spans[1], other, false)],
+                );
+            } else {
+                list.push_parts(
+                    &d,
+                    &own,
+                    Around {
+                        head: Some(&Text::Fixed("gate A of ")),
+                        tail: Some(&Text::Fixed(" is unused")),
+                    },
+                );
+            }
+            want.push(d);
+        }
+        for (i, (r, d)) in list.iter().zip(&want).enumerate() {
+            assert_eq!(r, d.view(), "{i}");
+        }
+        // the places at 7 written once, the others each time
+        let places: usize = list.labels.iter().map(Vec::len).sum();
+        assert_eq!(places, 2 + 2 * 100);
+        // each finding's text is its pin list alone
+        let text: usize = list.text.iter().map(String::len).sum();
+        let pins: usize = want
+            .iter()
+            .map(|d| d.pins.0.as_deref().unwrap().len())
+            .sum();
+        assert_eq!(text, pins);
+        // a finding with a net keeps its own words apart
+        let d = Diag::error(A, "U1 x").on_net("N").with_pins(["U1.1"]);
+        list.push(d.clone());
+        assert_eq!(list.get(300).unwrap(), d.view());
+    }
+
+    /// A message given in pieces reads whole, in its parts, and ordered as its text; copied
+    /// into another list, the same. Pieces of one kind side by side, empty pieces, pieces said
+    /// alike first or last or not at all, own words long enough to take lengths of two bytes.
+    #[test]
+    fn a_message_in_pieces_reads_as_its_text() {
+        let long = "n".repeat(300);
+        let cases: Vec<Vec<Piece>> = vec![
+            vec![Own("U1"), Said(" pin 1 is on net `"), Own("/A"), Said("`")],
+            vec![
+                Said("the "),
+                Own("U2"),
+                Said(" on "),
+                Own(&long),
+                Said(" to +5V"),
+            ],
+            vec![
+                Own("R1"),
+                Said(": "),
+                Said("why"),
+                Own(""),
+                Said("; "),
+                Own("N"),
+                Own("2"),
+            ],
+            vec![Said("only said")],
+            vec![Own("only own")],
+            vec![],
+            vec![Own("a"), Said("\u{0}"), Own("b"), Said("Ω"), Own("c")],
+            vec![Said(""), Own("U3"), Said(" and "), Own("U4"), Said("")],
+        ];
+        let mut list = DiagList::new();
+        let mut want = Vec::new();
+        for (i, pieces) in cases.iter().enumerate() {
+            let text: String = pieces
+                .iter()
+                .map(|p| match p {
+                    Own(w) | Said(w) => *w,
+                })
+                .collect();
+            let d = Diag::warning(A, String::new())
+                .at(Span::new(i, i + 1), "x")
+                .with_pins([format!("U{i}.1")]);
+            list.push_pieces(&d, pieces);
+            let mut whole = d.clone();
+            whole.message = text.clone().into_boxed_str();
+            want.push(whole);
+        }
+        for (i, (r, d)) in list.iter().zip(&want).enumerate() {
+            assert_eq!(r, d.view(), "{i}");
+            assert_eq!(
+                r.message_parts().iter().collect::<String>(),
+                &*d.message,
+                "{i}"
+            );
+        }
+        // ordered as their texts, each against each
+        for a in list.iter() {
+            for b in list.iter() {
+                assert_eq!(
+                    cmp_part_lists(a.message_parts().iter(), b.message_parts().iter()),
+                    a.message().cmp(&b.message()),
+                    "{a:?} {b:?}"
+                );
+            }
+        }
+        // copied, the same
+        let mut copy = DiagList::new();
+        for r in list.iter() {
+            copy.push_ref(r);
+        }
+        assert!(copy.iter().eq(list.iter()));
+        // the words said alike between own pieces are held once for findings that say them
+        let sets = list.join_sets.len();
+        list.push_pieces(
+            &Diag::warning(A, String::new()),
+            &[Own("U9"), Said(" pin 1 is on net `"), Own("/B"), Said("`")],
+        );
+        assert_eq!(list.join_sets.len(), sets);
+        assert_eq!(
+            list.get(list.len() - 1).unwrap().message(),
+            "U9 pin 1 is on net `/B`"
+        );
+    }
+
+    /// A record of 16 bytes holds its counts in few bits: a finding whose message is read
+    /// from its pin list, or not, with more places than those bits count, and a pin list
+    /// longer than the record counts, read back as pushed; and a severity set afterwards
+    /// leaves the rest as it was.
+    #[test]
+    fn counts_beyond_the_record_s_bits_read_back() {
+        let mut list = DiagList::new();
+        let mut want = Vec::new();
+        for (i, places) in [1usize, 126, 127, 128, 300, 16_382, 16_383, 20_000]
+            .into_iter()
+            .enumerate()
+        {
+            for own in [format!("U{i}"), format!("m{i}")] {
+                let pins: Vec<String> = (0..(if i == 4 { 900 } else { 2 }))
+                    .map(|k| format!("U{i}.{k}"))
+                    .collect();
+                let d = (0..places)
+                    .fold(Diag::warning(A, own.clone()), |d, k| {
+                        d.also(Span::new(k, k + 1), "")
+                    })
+                    .with_pins(&pins);
+                list.push(d.clone());
+                want.push(d);
+            }
+        }
+        list.set_severity_from(3, Severity::Error);
+        for (i, d) in want.iter_mut().enumerate().skip(3) {
+            d.severity = Severity::Error;
+            assert_eq!(list.get(i).unwrap(), d.view(), "{i}");
+        }
+        for (i, d) in want.iter().enumerate() {
+            assert_eq!(list.get(i).unwrap(), d.view(), "{i}");
+        }
+    }
+
     #[test]
     fn a_message_in_parts_reads_whole() {
         let head = Text::Fixed("gate A of ");
@@ -1491,7 +2194,7 @@ mod tests {
             ]
         );
         assert_eq!(
-            list.get(0).unwrap().message_parts(),
+            list.get(0).unwrap().message_parts().three().unwrap(),
             ["gate A of ", "U1", " (74HC00) is unused"]
         );
         // a copy keeps the words
@@ -1521,7 +2224,7 @@ mod tests {
             let items: Vec<char> = "abcde".chars().collect();
             let want: Vec<String> = p.iter().map(|&i| items[i].to_string()).collect();
             let mut got: DiagList = items.iter().map(|c| Diag::info(A, c.to_string())).collect();
-            got.apply_order(&mut p.clone());
+            got.apply_order(&mut p.iter().map(|&i| i as u64).collect::<Vec<_>>());
             let got: Vec<String> = got.iter().map(|d| d.message().into_owned()).collect();
             assert_eq!(got, want, "{p:?}");
         }
@@ -1555,7 +2258,7 @@ mod tests {
         assert!(list.get(n).is_none());
         assert_eq!(list.iter().rev().count(), n);
         // reversed
-        let mut order: Vec<usize> = (0..n).rev().collect();
+        let mut order: Vec<u64> = (0..n as u64).rev().collect();
         list.apply_order(&mut order);
         assert_eq!(list.get(0).unwrap(), mk(n - 1).view());
         assert_eq!(list.get(n - 1).unwrap(), mk(0).view());
@@ -1725,7 +2428,7 @@ mod tests {
     #[test]
     fn lists_reorder_keep_and_prepend() {
         let mut list: DiagList = (0..6).map(sample).collect();
-        let mut order = vec![5, 4, 3, 2, 1, 0];
+        let mut order: Vec<u64> = vec![5, 4, 3, 2, 1, 0];
         list.apply_order(&mut order);
         let m: Vec<String> = list.iter().map(|r| r.message().into_owned()).collect();
         assert_eq!(m[0], "message 5");

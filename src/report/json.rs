@@ -102,7 +102,11 @@ fn write_finding<'a>(
     w.open_object();
     w.key("check").str(d.code());
     w.key("severity").word(d.severity().as_str());
-    w.key("message").str_parts(d.message_parts());
+    let parts = d.message_parts();
+    match parts.three() {
+        Some(three) => w.key("message").str_parts(three),
+        None => w.key("message").str_part_list(parts.iter()),
+    }
     w.key("net").opt_str(d.net());
     w.key("pins").strs(d.pins());
     w.key("label")

@@ -203,6 +203,19 @@ impl<'o> PrettyOut<'o> {
         }
     }
 
+    /// [`PrettyOut::str_parts`] for any number of parts.
+    pub(crate) fn str_part_list<'s>(&mut self, parts: impl Iterator<Item = &'s str> + Clone) {
+        if parts.clone().all(|p| clean(p.as_bytes())) {
+            self.buf.push(b'"');
+            for p in parts {
+                self.buf.extend_from_slice(p.as_bytes());
+            }
+            self.buf.push(b'"');
+        } else {
+            self.str(&parts.collect::<String>());
+        }
+    }
+
     pub(crate) fn opt_str(&mut self, s: Option<&str>) {
         match s {
             Some(s) => self.str(s),
@@ -484,6 +497,17 @@ mod tests {
         #[test]
         fn strings_are_written_as_the_serde_way(s in "\\PC*|[\\x00-\\x7f\u{80}-\u{a0}\u{2000}-\u{2070}µΩ\"\\\\]{0,80}") {
             prop_assert_eq!(written(&s), serde_way(&s));
+        }
+
+        /// A string in parts, of any number, is written as the whole string.
+        #[test]
+        fn strings_in_parts_are_written_as_the_whole(parts in proptest::collection::vec("[a-c\"\u{2028}\\x01]{0,5}", 0..6)) {
+            let whole: String = parts.concat();
+            let mut out = Vec::new();
+            let mut w = PrettyOut::new(&mut out);
+            w.str_part_list(parts.iter().map(String::as_str));
+            w.finish().unwrap();
+            prop_assert_eq!(String::from_utf8(out).unwrap(), serde_way(&whole));
         }
     }
 
