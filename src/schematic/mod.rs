@@ -191,7 +191,7 @@ impl<'p, 'a> Placements<'p, 'a> {
     }
 
     /// Symbol `s` of use `ui`, with that use's instance data.
-    #[inline]
+    #[inline(always)]
     fn get(&self, ui: usize, s: usize) -> Placement<'p, 'a> {
         let sym = &self.syms[self.file[ui] as usize][s];
         let placed = sym.placed;
@@ -1161,6 +1161,10 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
     let root_span = project.sheets[0].span;
+    // the sheets and what was read from them are done with: given back before the model
+    // is linked, which needs lists of its own
+    drop((comp_of, lib_of, order, placements));
+    drop(project);
     diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
     Ok(Netlist::assemble(
         components, libparts, nets, nodes, node_texts, diags, root_span,
