@@ -447,6 +447,11 @@ impl<'a> NodeTexts<'a> {
         i
     }
 
+    /// The reference kept beside the nodes at `i` ([`NodeTexts::reference`]).
+    pub fn reference_at(&self, i: u32) -> &Text<'a> {
+        &self.refs[i as usize]
+    }
+
     /// How many pin entries are kept beside the nodes: the index the next one takes.
     pub fn pin_count(&self) -> u32 {
         u32::try_from(self.pins.len()).expect("fewer than 2^32 nodes")

@@ -35,7 +35,7 @@ use crate::netlist::{
 use crate::source::{SourceFile, Span};
 
 use connect::{Dsu, PinAt};
-use load::{Failed, Files, Project};
+use load::{Failed, Files};
 use names::{Candidate, Chosen, Strength};
 use sheet::{LabelKind, LibSym, Placed, Power, SText};
 
@@ -96,61 +96,39 @@ static NO_REFERENCE: SText<'static> = SText::const_str("?");
 struct Placement<'p, 'a> {
     placed: &'p Placed<'a>,
     lib: &'p LibSym<'a>,
-    /// The texts are the sheet's, borrowed.
-    reference: &'p SText<'a>,
-    reference_span: Span,
+    /// The use's reference, with the span a diagnostic points at.
+    reference: &'p Text<'a>,
     unit: u32,
-    /// The instance data of this use, when there is some.
-    inst: Option<&'p sheet::Instance<'a>>,
+    /// Where this placement is among all placements of all uses (its reference's index).
+    at: usize,
     /// In the netlist: not a `#` reference (power symbols, flags) and on the board.
     listed: bool,
 }
 
-impl<'p, 'a> Placement<'p, 'a> {
-    /// The span of the symbol's own property `name` in the sheet where it is drawn, when its
-    /// text is `text` (a KiCad 6 instance lives in the root sheet), else `or`.
-    fn own_span(&self, name: &str, text: &str, or: Span) -> Span {
-        self.placed
-            .prop(name)
-            .filter(|p| p.value == text)
-            .map_or(or, |p| p.value_span)
-    }
-    /// The value a KiCad 6 instance gives (`None` in a later file).
-    fn value(&self, modern: bool) -> Option<(&'p SText<'a>, Span)> {
-        let (v, s) = self
-            .inst
-            .and_then(|i| i.value.as_deref())
-            .filter(|_| !modern)?;
-        Some((v, self.own_span("Value", v, *s)))
-    }
-    /// The footprint a KiCad 6 instance gives (`None` in a later file).
-    fn footprint(&self, modern: bool) -> Option<(&'p SText<'a>, Span)> {
-        let (v, s) = self
-            .inst
-            .and_then(|i| i.footprint.as_deref())
-            .filter(|_| !modern)?;
-        Some((v, self.own_span("Footprint", v, *s)))
-    }
-}
-
-/// What a placed symbol is in every use of its sheet: its library symbol and its
-/// `Reference` property, found once per sheet file.
+/// What a placed symbol is in every use of its sheet: its library symbol, found once per
+/// sheet file.
 struct Sym<'p, 'a> {
     placed: &'p Placed<'a>,
     lib: &'p LibSym<'a>,
-    reference: Option<&'p sheet::Prop<'a>>,
 }
 
 /// The placed symbols of every use of a sheet: what is the same in every use kept once per
-/// sheet file, and per use only the instance data found for each symbol (a file used by
-/// four sheets would otherwise hold four of everything).
+/// sheet file, and per use only what its instance data says of each symbol (a file used by
+/// four sheets would otherwise hold four of everything). The instance data itself is read
+/// once, as the uses are laid out, and given back then.
 struct Placements<'p, 'a> {
     /// Per sheet file (empty for a file with no use yet), per placed symbol.
     syms: Vec<Vec<Sym<'p, 'a>>>,
-    /// Each use's sheet file, and where its symbols' instances start in `inst`.
+    /// Each use's sheet file, and where its symbols start in the lists below.
     file: Vec<u32>,
     first: Vec<u32>,
-    inst: Vec<Option<&'p sheet::Instance<'a>>>,
+    /// Per placement: its unit. Its reference (the text of its instance, else of its
+    /// `Reference` property; the span of its own `Reference` property where it has one) is
+    /// kept among the node texts at the same index, for its nodes to name.
+    units: Vec<u32>,
+    /// KiCad 6 only (empty in a later file): per placement, the value and footprint its
+    /// instance gives, with the span of the symbol's own property where it says the same.
+    kicad6: Vec<[Option<(SText<'a>, Span)>; 2]>,
 }
 
 impl<'p, 'a> Placements<'p, 'a> {
@@ -170,13 +148,50 @@ impl<'p, 'a> Placements<'p, 'a> {
                 .at(placed.lib_key_span, "no library symbol with this name in the file")
                 .with_help("open the sheet in KiCad and save it, or update the symbol from its library, so the file carries the symbol it uses"));
             };
-            out.push(Sym {
-                placed,
-                lib,
-                reference: placed.prop("Reference"),
-            });
+            out.push(Sym { placed, lib });
         }
         Ok(out)
+    }
+
+    /// Keeps what the instance data `inst` of `placed` says for one use (`None`: the symbol
+    /// has none for it), the reference among the node texts `t`.
+    fn add(
+        &mut self,
+        t: &mut NodeTexts<'a>,
+        placed: &Placed<'a>,
+        inst: Option<&sheet::Instance<'a>>,
+        modern: bool,
+    ) {
+        let own = placed.prop("Reference");
+        // a KiCad 6 instance lives in the root sheet: the reference points at the symbol's
+        // own property in the sheet where it is drawn (even when that sheet's text is another
+        // use's reference or `R?`)
+        let (reference, span) = match (inst, own) {
+            (Some(i), Some(p)) => (&i.reference, p.value_span),
+            (Some(i), None) => (&i.reference, i.reference_span),
+            (None, Some(p)) => (&p.value, p.value_span),
+            (None, None) => (&NO_REFERENCE, placed.span),
+        };
+        let at = t.reference(txt_of(reference, span));
+        debug_assert_eq!(at as usize, self.units.len());
+        self.units
+            .push(inst.and_then(|i| i.unit).unwrap_or(placed.unit));
+        if !modern {
+            // the span of the symbol's own property `name` when its text is the instance's
+            let own_span = |name: &str, (v, s): &(SText<'a>, Span)| {
+                let s = placed
+                    .prop(name)
+                    .filter(|p| p.value == *v)
+                    .map_or(*s, |p| p.value_span);
+                (v.clone(), s)
+            };
+            self.kicad6.push([
+                inst.and_then(|i| i.value.as_deref())
+                    .map(|v| own_span("Value", v)),
+                inst.and_then(|i| i.footprint.as_deref())
+                    .map(|v| own_span("Footprint", v)),
+            ]);
+        }
     }
 
     /// How many symbols use `ui` places.
@@ -190,30 +205,36 @@ impl<'p, 'a> Placements<'p, 'a> {
         self.syms[self.file[ui] as usize][s].lib
     }
 
-    /// Symbol `s` of use `ui`, with that use's instance data.
+    /// Symbol `s` of use `ui`: the symbol, its library symbol, and where the placement is
+    /// among all placements of all uses.
     #[inline(always)]
-    fn get(&self, ui: usize, s: usize) -> Placement<'p, 'a> {
+    fn sym(&self, ui: usize, s: usize) -> (&'p Placed<'a>, &'p LibSym<'a>, usize) {
+        let sym = &self.syms[self.file[ui] as usize][s];
+        (sym.placed, sym.lib, self.first[ui] as usize + s)
+    }
+
+    /// Symbol `s` of use `ui`, with that use's instance data (its reference among the node
+    /// texts `t`).
+    #[inline(always)]
+    fn get<'r>(&'r self, t: &'r NodeTexts<'a>, ui: usize, s: usize) -> Placement<'r, 'a> {
         let sym = &self.syms[self.file[ui] as usize][s];
         let placed = sym.placed;
-        let inst = self.inst[self.first[ui] as usize + s];
-        // a KiCad 6 instance lives in the root sheet: the reference points at the symbol's
-        // own property in the sheet where it is drawn (even when that sheet's text is another
-        // use's reference or `R?`)
-        let (reference, reference_span) = match (inst, sym.reference) {
-            (Some(i), Some(p)) => (&i.reference, p.value_span),
-            (Some(i), None) => (&i.reference, i.reference_span),
-            (None, Some(p)) => (&p.value, p.value_span),
-            (None, None) => (&NO_REFERENCE, placed.span),
-        };
+        let at = self.first[ui] as usize + s;
+        let reference = t.reference_at(at as u32);
         Placement {
             placed,
             lib: sym.lib,
             reference,
-            reference_span,
-            unit: inst.and_then(|i| i.unit).unwrap_or(placed.unit),
-            inst,
-            listed: !reference.starts_with('#') && placed.on_board,
+            unit: self.units[at],
+            at,
+            listed: !reference.as_str().starts_with('#') && placed.on_board,
         }
+    }
+
+    /// The value and footprint a KiCad 6 instance gives placement `at` (none in a later
+    /// file).
+    fn kicad6(&self, at: usize) -> [Option<(SText<'a>, Span)>; 2] {
+        self.kicad6.get(at).cloned().unwrap_or_default()
     }
 }
 
@@ -255,42 +276,44 @@ impl UsePaths {
 
 /// The KiCad 6 instances of the root sheet's list, by path (`/sheet uuids/symbol uuid`): the
 /// first of each path, as a search of the list in order finds it.
-fn v6_index<'s>(root: &'s sheet::Sheet<'_>) -> HashMap<&'s str, usize> {
+fn v6_index<'s>(list: &'s [sheet::Instance<'_>]) -> HashMap<&'s str, usize> {
     let mut ix: HashMap<&str, usize> = HashMap::default();
-    ix.reserve(root.symbol_instances.len());
-    for (i, inst) in root.symbol_instances.iter().enumerate() {
+    ix.reserve(list.len());
+    for (i, inst) in list.iter().enumerate() {
         ix.entry(inst.path.as_ref()).or_insert(i);
     }
     ix
 }
 
-/// The instance data of `placed` in `use_`: its reference, unit, value and footprint.
-fn instance<'p, 'a>(
-    project: &'p Project<'a>,
+/// The instance data of `placed` in the use whose paths are `paths`: its reference, unit,
+/// value and footprint. `own` are the symbol's instances (KiCad 7 and later), `v6_list` the
+/// root sheet's (KiCad 6) and `v6` their index.
+fn instance<'i, 'a>(
+    v6_list: &'i [sheet::Instance<'a>],
     v6: &HashMap<&str, usize>,
     paths: &UsePaths,
-    placed: &'p Placed<'a>,
-) -> Option<&'p sheet::Instance<'a>> {
-    let root = &project.sheets[0];
+    placed: &Placed<'a>,
+    own: &'i [sheet::Instance<'a>],
+) -> Option<&'i sheet::Instance<'a>> {
     let chain = paths.chain.as_str();
     // KiCad 7 and later: in the symbol, by the path of sheets from the root's uuid
-    if let Some(i) = placed.instances.iter().find(|i| i.path == paths.full) {
+    if let Some(i) = own.iter().find(|i| i.path == paths.full) {
         return Some(i);
     }
     // KiCad 6: in the root's list, by the sheet path and the symbol's uuid
     if !v6.is_empty() {
         let v6_path = cat(&[chain, "/", &placed.uuid]);
         if let Some(&i) = v6.get(v6_path.as_str()) {
-            return Some(&root.symbol_instances[i]);
+            return Some(&v6_list[i]);
         }
     }
     // another project's root: the same sheets below it
     if !chain.is_empty() {
-        if let Some(i) = placed.instances.iter().find(|i| i.path.ends_with(chain)) {
+        if let Some(i) = own.iter().find(|i| i.path.ends_with(chain)) {
             return Some(i);
         }
-    } else if placed.instances.len() == 1 {
-        return placed.instances.first();
+    } else if own.len() == 1 {
+        return own.first();
     }
     None
 }
@@ -309,7 +332,7 @@ fn pin_net_name(
     };
     let shown: &str = if pin.name == "~" { "" } else { &pin.name };
     if !modern {
-        return cat(&[head, &pl.reference, "-Pad", &pin.num, ")"]);
+        return cat(&[head, pl.reference.as_str(), "-Pad", &pin.num, ")"]);
     }
     if !shown.is_empty() && shown != pin.num {
         let letters = if pl.lib.unit_count > 1 {
@@ -322,7 +345,7 @@ fn pin_net_name(
         if unconnected || has_multiple {
             cat(&[
                 head,
-                &pl.reference,
+                pl.reference.as_str(),
                 &letters,
                 "-",
                 shown,
@@ -331,10 +354,10 @@ fn pin_net_name(
                 ")",
             ])
         } else {
-            cat(&[head, &pl.reference, &letters, "-", shown, ")"])
+            cat(&[head, pl.reference.as_str(), &letters, "-", shown, ")"])
         }
     } else {
-        cat(&[head, &pl.reference, "-Pad", &pin.num, ")"])
+        cat(&[head, pl.reference.as_str(), "-Pad", &pin.num, ")"])
     }
 }
 
@@ -409,10 +432,26 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
 /// Reads a project's joined sheets (or a single sheet's text) into the netlist model.
 pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let text = source.text();
-    let project = load::project(source)?;
+    let mut project = load::project(source)?;
     let mut diags = project.diags.clone();
     let modern = project.sheets[0].version >= KICAD7;
+    // the instance data (each placed symbol's, and KiCad 6's list in the root sheet), taken
+    // out of the sheets: read once for each use as the uses are laid out, then given back
+    let own_instances: Vec<Vec<Box<[sheet::Instance<'_>]>>> = project
+        .sheets
+        .iter_mut()
+        .map(|sh| {
+            sh.symbols
+                .iter_mut()
+                .map(|p| std::mem::take(&mut p.instances))
+                .collect()
+        })
+        .collect();
+    let v6_list = std::mem::take(&mut project.sheets[0].symbol_instances);
 
+    // the nodes' texts: each placement's reference as the uses are laid out, each library
+    // pin's number and name as its first node is made
+    let mut node_texts = NodeTexts::new(text);
     // placements per use; placed pins and pieces per use, kept once for the uses of a sheet
     // file that place the same pins (a file used by several sheets, its units the same)
     let symbols: usize = project
@@ -424,14 +463,15 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         syms: (0..project.sheets.len()).map(|_| Vec::new()).collect(),
         file: Vec::with_capacity(project.uses.len()),
         first: Vec::with_capacity(project.uses.len()),
-        inst: Vec::with_capacity(symbols),
+        units: Vec::with_capacity(symbols),
+        kicad6: Vec::new(),
     };
     // (placement, libpin) per placed pin
     let mut pins_of: PerUse<Vec<(u32, u32)>> = PerUse::default();
     let mut pieces: PerUse<Vec<connect::Piece>> = PerUse::default();
     // the sets of pins made for each file so far
     let mut sets_of_file: Vec<Vec<u32>> = vec![Vec::new(); project.sheets.len()];
-    let v6 = v6_index(&project.sheets[0]);
+    let v6 = v6_index(&v6_list);
     let mut which: Vec<(u32, u32)> = Vec::new();
     for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
@@ -440,18 +480,17 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
         let paths = UsePaths::of(&project.sheets[0], u);
         placements.file.push(u.file as u32);
-        placements.first.push(placements.inst.len() as u32);
-        placements.inst.extend(
-            sh.symbols
-                .iter()
-                .map(|placed| instance(&project, &v6, &paths, placed)),
-        );
+        placements.first.push(placements.units.len() as u32);
+        for (placed, own) in sh.symbols.iter().zip(&own_instances[u.file]) {
+            let inst = instance(&v6_list, &v6, &paths, placed, own);
+            placements.add(&mut node_texts, placed, inst, modern);
+        }
         which.clear();
         for pi in 0..sh.symbols.len() {
-            let pl = placements.get(ui, pi);
-            for (k, lp) in pl.lib.pins.iter().enumerate() {
-                if (lp.unit == 0 || lp.unit == pl.unit)
-                    && (lp.style == 0 || lp.style == pl.placed.style)
+            let (placed, lib, at) = placements.sym(ui, pi);
+            let unit = placements.units[at];
+            for (k, lp) in lib.pins.iter().enumerate() {
+                if (lp.unit == 0 || lp.unit == unit) && (lp.style == 0 || lp.style == placed.style)
                 {
                     which.push((pi as u32, k as u32));
                 }
@@ -472,11 +511,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     .iter()
                     .map(|&(pi, k)| {
                         let (pi, k) = wide((pi, k));
-                        let pl = placements.get(ui, pi);
+                        let (placed, lib, _) = placements.sym(ui, pi);
                         PinAt {
                             symbol: pi,
                             libpin: k,
-                            at: symbol::pin_point(pl.placed, &pl.lib.pins[k]),
+                            at: symbol::pin_point(placed, &lib.pins[k]),
                         }
                     })
                     .collect();
@@ -492,6 +531,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
     drop(which);
+    drop(v6);
+    drop((v6_list, own_instances));
 
     // every piece of every use, then keys, in one union-find
     let mut first: Vec<usize> = Vec::with_capacity(pieces.of.len());
@@ -532,7 +573,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             for &k in &p.pins {
                 let (s, lpi) = wide(pins_of[ui][k]);
-                let pl = &placements.get(ui, s);
+                let pl = &placements.get(&node_texts, ui, s);
                 let lp = &pl.lib.pins[lpi];
                 if is_power_pin(pl, lp) {
                     names_here.push((k as u32, power_name(pl, lp)));
@@ -825,7 +866,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             for &k in &p.pins {
                 let (s, lpi) = wide(pins_of[ui][k]);
-                let pl = &placements.get(ui, s);
+                let pl = &placements.get(&node_texts, ui, s);
                 let lp = &pl.lib.pins[lpi];
                 let pname = power_name_of(&power_names[ui], k);
                 if !pname.is_empty() {
@@ -887,7 +928,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .iter()
                 .map(|&(_, k, nc)| {
                     let (s, lpi) = wide(pins_of[ui][k as usize]);
-                    let pl = &placements.get(ui, s);
+                    let pl = &placements.get(&node_texts, ui, s);
                     Candidate {
                         strength: Strength::Pin,
                         name: pin_net_name(modern, pl, &pl.lib.pins[lpi], nc),
@@ -916,10 +957,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut nets: Vec<Net<'_>> = Vec::with_capacity(groups as usize);
     let mut has_nodes: Vec<bool> = Vec::with_capacity(groups as usize);
     let mut nodes: Vec<(u32, Node<'_>)> = Vec::with_capacity(found.len());
-    let mut node_texts = NodeTexts::new(text);
-    // each placement's reference among the node texts (by its place in `placements.inst`),
-    // and where each library symbol's pins start among them
-    let mut ref_of: Vec<u32> = vec![u32::MAX; placements.inst.len()];
+    // where each library symbol's pins start among the node texts; a node's reference is its
+    // placement's, kept there as the uses were laid out
     let mut pins_from: HashMap<*const LibSym<'_>, u32> = HashMap::default();
     for chosen in by_group.chunk_by(|a, b| a.0 == b.0) {
         let rank = chosen[0].0;
@@ -939,9 +978,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let span_of = |&(_, ui, k, _): &(u32, u32, u32, bool)| {
             let (ui, k) = wide((ui, k));
             let (s, lpi) = wide(pins_of[ui][k]);
-            let pl = placements.get(ui, s);
-            let lp = &pl.lib.pins[lpi];
-            pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span)
+            let (placed, lib, _) = placements.sym(ui, s);
+            placed.pin_span(&lib.pins[lpi].num).unwrap_or(placed.span)
         };
         let idx = match net_of_name.get(name) {
             Some(&i) => i,
@@ -957,9 +995,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         for &(_, ui, k, nc) in pins {
             let (ui, k) = wide((ui, k));
             let (s, lpi) = wide(pins_of[ui][k]);
-            let pl = &placements.get(ui, s);
-            let lp = &pl.lib.pins[lpi];
-            let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
+            let (placed, lib, at) = placements.sym(ui, s);
+            let lp = &lib.pins[lpi];
+            let span = placed.pin_span(&lp.num).unwrap_or(placed.span);
             if !has_nodes[idx] {
                 has_nodes[idx] = true;
                 let net = &mut nets[idx];
@@ -967,15 +1005,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 net.name.set_span(span);
             }
             // the reference kept once per placement, the pin texts once per library pin
-            let at = placements.first[ui] as usize + s;
-            if ref_of[at] == u32::MAX {
-                ref_of[at] = node_texts.reference(txt_of(pl.reference, pl.reference_span));
-            }
             let base = *pins_from
-                .entry(pl.lib as *const LibSym<'_>)
+                .entry(lib as *const LibSym<'_>)
                 .or_insert_with(|| {
                     let base = node_texts.pin_count();
-                    for lp in &pl.lib.pins {
+                    for lp in &lib.pins {
                         let name = (!lp.name.is_empty() && lp.name != "~").then(|| lp.name.clone());
                         node_texts.pin(lp.num.clone(), name);
                     }
@@ -983,7 +1017,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 });
             let node = node_texts.shared(
                 span,
-                ref_of[at],
+                at as u32,
                 base + lpi as u32,
                 Some(lp.ptype),
                 nc || lp.ptype == PinType::NoConnect,
@@ -992,7 +1026,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
 
-    drop((net_of_name, ref_of, pins_from));
+    drop((net_of_name, pins_from));
     drop((by_group, found, pins_of));
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
@@ -1066,7 +1100,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let listed = (0..project.uses.len())
         .map(|ui| {
             (0..placements.count(ui))
-                .filter(|&s| placements.get(ui, s).listed)
+                .filter(|&s| placements.get(&node_texts, ui, s).listed)
                 .count()
         })
         .sum();
@@ -1076,11 +1110,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
     for &(ui, _) in &order {
         let mut pls: Vec<Placement<'_, '_>> = (0..placements.count(ui))
-            .map(|s| placements.get(ui, s))
+            .map(|s| placements.get(&node_texts, ui, s))
             .collect();
-        pls.sort_by(|a, b| natural_cmp(a.reference, b.reference));
+        pls.sort_by(|a, b| natural_cmp(a.reference.as_str(), b.reference.as_str()));
         for pl in pls {
-            if !pl.listed || !comp_of.insert(pl.reference) {
+            if !pl.listed || !comp_of.insert(pl.reference.as_str()) {
                 continue;
             }
             let placed = pl.placed;
@@ -1118,14 +1152,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     .filter(|p| !p.value.is_empty())
                     .map(|p| txt_of(&p.value, p.value_span))
             };
-            let value = pl
-                .value(modern)
-                .map(|(v, s)| txt_of(v, s))
+            let [kicad6_value, kicad6_footprint] = placements.kicad6(pl.at);
+            let value = kicad6_value
+                .map(|(v, s)| txt_of(&v, s))
                 .or_else(|| prop_text("Value"));
-            let footprint = pl
-                .footprint(modern)
+            let footprint = kicad6_footprint
                 .filter(|f| !f.0.is_empty())
-                .map(|(v, s)| txt_of(v, s))
+                .map(|(v, s)| txt_of(&v, s))
                 .or_else(|| prop_text("Footprint"));
             let fields: Vec<Field<'_>> = placed
                 .props
@@ -1148,7 +1181,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 value: None,
                 span: placed.span,
             });
-            let mut comp = Component::new(txt_of(&pl.reference, pl.reference_span), placed.span);
+            let mut comp = Component::new(pl.reference.clone(), placed.span);
             comp.value = value;
             comp.footprint = footprint;
             comp.set_fields(fields.into_iter(), dnp.into_iter());
@@ -1163,7 +1196,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let root_span = project.sheets[0].span;
     // the sheets and what was read from them are done with: given back before the model
     // is linked, which needs lists of its own
-    drop((comp_of, lib_of, order, placements));
+    drop((comp_of, lib_of, order));
+    drop(placements);
     drop(project);
     diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
     Ok(Netlist::assemble(
@@ -1476,7 +1510,7 @@ mod tests {
             symbol_instances: vec![inst("/a/x", "R1"), inst("/b/x", "R2"), inst("/a/x", "R3")],
             ..Default::default()
         };
-        let ix = v6_index(&root);
+        let ix = v6_index(&root.symbol_instances);
         assert_eq!(root.symbol_instances[ix["/a/x"]].reference, "R1");
         assert_eq!(root.symbol_instances[ix["/b/x"]].reference, "R2");
         assert_eq!(ix.len(), 2);
