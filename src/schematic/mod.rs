@@ -126,6 +126,10 @@ struct Placements<'p, 'a> {
     /// `Reference` property; the span of its own `Reference` property where it has one) is
     /// kept among the node texts at the same index, for its nodes to name.
     units: Vec<u32>,
+    /// Per placement: listed in the netlist (not a `#` reference, such as a power symbol's
+    /// or a flag's, and on the board); and how many are.
+    listed: Vec<bool>,
+    listed_count: usize,
     /// KiCad 6 only (empty in a later file): per placement, the value and footprint its
     /// instance gives, with the span of the symbol's own property where it says the same.
     kicad6: Vec<[Option<(SText<'a>, Span)>; 2]>,
@@ -172,6 +176,9 @@ impl<'p, 'a> Placements<'p, 'a> {
             (None, Some(p)) => (&p.value, p.value_span),
             (None, None) => (&NO_REFERENCE, placed.span),
         };
+        let listed = !reference.starts_with('#') && placed.on_board;
+        self.listed.push(listed);
+        self.listed_count += usize::from(listed);
         let at = t.reference(txt_of(reference, span));
         debug_assert_eq!(at as usize, self.units.len());
         self.units
@@ -227,7 +234,7 @@ impl<'p, 'a> Placements<'p, 'a> {
             reference,
             unit: self.units[at],
             at,
-            listed: !reference.as_str().starts_with('#') && placed.on_board,
+            listed: self.listed[at],
         }
     }
 
@@ -464,6 +471,8 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         file: Vec::with_capacity(project.uses.len()),
         first: Vec::with_capacity(project.uses.len()),
         units: Vec::with_capacity(symbols),
+        listed: Vec::with_capacity(symbols),
+        listed_count: 0,
         kicad6: Vec::new(),
     };
     // (placement, libpin) per placed pin
@@ -1097,13 +1106,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             .then_with(|| natural_cmp(&a.1, &b.1))
     });
     // at most one component per listed placement: allocated once
-    let listed = (0..project.uses.len())
-        .map(|ui| {
-            (0..placements.count(ui))
-                .filter(|&s| placements.get(&node_texts, ui, s).listed)
-                .count()
-        })
-        .sum();
+    let listed = placements.listed_count;
     let mut components: Vec<Component<'_>> = Vec::with_capacity(listed);
     let mut comp_of: rustc_hash::FxHashSet<&str> = rustc_hash::FxHashSet::default();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
