@@ -308,21 +308,17 @@ struct At {
     len: u16,
 }
 
-/// A node's texts kept beside the nodes, for the few nodes whose texts are not tokens within
-/// their own span (unescaped, in a node longer than 64 kB, or made by the schematic reader).
-#[derive(Debug, Clone)]
-struct ApartTexts<'a> {
-    reference: Text<'a>,
-    pin: Str<'a>,
-    pinfunction: Option<Str<'a>>,
-}
-
 /// Where the nodes' texts are read: the file's text, which holds nearly all of them as
-/// tokens within each node's span, and a list of the others.
+/// tokens within each node's span, and two lists for the others (unescaped, in a node longer
+/// than 64 kB, or made by the schematic reader): references, and (pin number, pin function)
+/// pairs. A node whose texts are kept apart holds an index into each, so nodes that name the
+/// same reference (the pins of one placed symbol in one use of its sheet) or the same library
+/// pin share one entry.
 #[derive(Debug, Clone, Default)]
 pub struct NodeTexts<'a> {
     text: &'a str,
-    apart: Vec<ApartTexts<'a>>,
+    refs: Vec<Text<'a>>,
+    pins: Vec<(Str<'a>, Option<Str<'a>>)>,
 }
 
 /// Where text `t` lies from `base` in `text` (within its quotes with `inner`), and whether
@@ -356,14 +352,15 @@ impl<'a> NodeTexts<'a> {
     pub fn new(text: &'a str) -> NodeTexts<'a> {
         NodeTexts {
             text,
-            apart: Vec::new(),
+            refs: Vec::new(),
+            pins: Vec::new(),
         }
     }
 
     /// A node at `span` of the file, from the texts read within it: kept as their places in
     /// the file's text (from the span's start) when they are tokens of it, else copied
     /// beside the nodes.
-    #[inline]
+    #[inline(always)]
     pub fn node(
         &mut self,
         span: Span,
@@ -420,7 +417,7 @@ impl<'a> NodeTexts<'a> {
         )
     }
 
-    /// A node at `span` whose texts are kept beside the nodes (the schematic reader's).
+    /// A node at `span` whose texts are kept beside the nodes, in entries of its own.
     pub fn apart(
         &mut self,
         span: Span,
@@ -430,40 +427,76 @@ impl<'a> NodeTexts<'a> {
         pintype: Option<PinType>,
         no_connect: bool,
     ) -> Node<'a> {
-        let i = u32::try_from(self.apart.len()).expect("fewer than 2^32 nodes");
-        self.apart.push(ApartTexts {
-            reference,
-            pin,
-            pinfunction,
-        });
-        Node {
-            span,
-            comp: None,
-            at: [
-                At {
-                    off: (i >> 16) as u16,
-                    len: i as u16,
-                },
-                At::default(),
-                At::default(),
-            ],
-            pintype,
-            no_connect,
-            bits: APART,
-            _text: PhantomData,
-        }
+        let r = self.reference(reference);
+        let p = self.pin(pin, pinfunction);
+        Node::apart(span, r, p, pintype, no_connect)
+    }
+
+    /// Keeps a reference beside the nodes, for the nodes that name it ([`NodeTexts::shared`]).
+    pub fn reference(&mut self, reference: Text<'a>) -> u32 {
+        let i = u32::try_from(self.refs.len()).expect("fewer than 2^32 nodes");
+        self.refs.push(reference);
+        i
+    }
+
+    /// Keeps a pin number and pin function beside the nodes, for the nodes of that pin
+    /// ([`NodeTexts::shared`]).
+    pub fn pin(&mut self, pin: Str<'a>, pinfunction: Option<Str<'a>>) -> u32 {
+        let i = u32::try_from(self.pins.len()).expect("fewer than 2^32 nodes");
+        self.pins.push((pin, pinfunction));
+        i
+    }
+
+    /// The reference kept beside the nodes at `i` ([`NodeTexts::reference`]).
+    pub fn reference_at(&self, i: u32) -> &Text<'a> {
+        &self.refs[i as usize]
+    }
+
+    /// How many pin entries are kept beside the nodes: the index the next one takes.
+    pub fn pin_count(&self) -> u32 {
+        u32::try_from(self.pins.len()).expect("fewer than 2^32 nodes")
+    }
+
+    /// A node at `span` whose reference and pin texts are entries kept beside the nodes
+    /// ([`NodeTexts::reference`], [`NodeTexts::pin`]), shared with other nodes.
+    pub fn shared(
+        &self,
+        span: Span,
+        reference: u32,
+        pin: u32,
+        pintype: Option<PinType>,
+        no_connect: bool,
+    ) -> Node<'a> {
+        debug_assert!((reference as usize) < self.refs.len() && (pin as usize) < self.pins.len());
+        Node::apart(span, reference, pin, pintype, no_connect)
     }
 
     /// The nodes' texts not kept in place, once the nodes are built (none for a netlist as
     /// KiCad writes it).
     pub(crate) fn shrink_to_fit(&mut self) {
-        self.apart.shrink_to_fit();
+        self.refs.shrink_to_fit();
+        self.pins.shrink_to_fit();
     }
 
-    /// How many nodes keep their texts apart.
+    /// How many references are kept apart (one for each node whose texts are not in its
+    /// span, unless nodes share them).
     pub fn apart_count(&self) -> usize {
-        self.apart.len()
+        self.refs.len()
     }
+}
+
+/// An index into a list of [`NodeTexts`] in the two halves of an [`At`].
+#[inline]
+fn split(i: u32) -> At {
+    At {
+        off: (i >> 16) as u16,
+        len: i as u16,
+    }
+}
+
+#[inline]
+fn joined(at: At) -> usize {
+    ((u32::from(at.off) << 16) | u32::from(at.len)) as usize
 }
 
 /// One `(node ...)` of a net: a component's pin. Its texts are not copied here (a board
@@ -478,7 +511,8 @@ pub struct Node<'a> {
     /// `Option<u32>` takes eight); read it with [`Node::component`].
     comp: Option<std::num::NonZeroU32>,
     /// The reference's token, the pin number and the pin function in the span; with
-    /// `APART`, the first two halves hold the index of the texts kept apart.
+    /// `APART`, the indices of the reference and of the pin texts kept apart
+    /// ([`NodeTexts`]), each in the two halves of one `At`.
     at: [At; 3],
     pub pintype: Option<PinType>,
     /// The node's pintype ended in `+no_connect`.
@@ -497,12 +531,34 @@ impl<'a> Node<'a> {
         self.comp = std::num::NonZeroU32::new(ci.wrapping_add(1));
     }
 
+    /// A node whose texts are entries `reference` and `pin` of [`NodeTexts`].
+    fn apart(
+        span: Span,
+        reference: u32,
+        pin: u32,
+        pintype: Option<PinType>,
+        no_connect: bool,
+    ) -> Node<'a> {
+        Node {
+            span,
+            comp: None,
+            at: [split(reference), split(pin), At::default()],
+            pintype,
+            no_connect,
+            bits: APART,
+            _text: PhantomData,
+        }
+    }
+
+    /// The reference kept apart, for a node whose texts are.
     #[inline]
-    fn apart<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n ApartTexts<'a>> {
-        (self.bits & APART != 0).then(|| {
-            let i = (u32::from(self.at[0].off) << 16) | u32::from(self.at[0].len);
-            &t.apart[i as usize]
-        })
+    fn apart_ref<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n Text<'a>> {
+        (self.bits & APART != 0).then(|| &t.refs[joined(self.at[0])])
+    }
+    /// The pin number and function kept apart, for a node whose texts are.
+    #[inline]
+    fn apart_pin<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n (Str<'a>, Option<Str<'a>>)> {
+        (self.bits & APART != 0).then(|| &t.pins[joined(self.at[1])])
     }
     #[inline]
     fn in_span<'n>(&self, t: &NodeTexts<'n>, at: At) -> &'n str {
@@ -532,8 +588,8 @@ impl<'a> Node<'a> {
 
     #[inline]
     pub fn reference_in<'n>(&self, t: &'n NodeTexts<'a>) -> &'n str {
-        match self.apart(t) {
-            Some(a) => a.reference.as_str(),
+        match self.apart_ref(t) {
+            Some(a) => a.as_str(),
             None => {
                 let q = u16::from(self.bits & REF_QUOTED != 0);
                 let at = self.at[0];
@@ -548,8 +604,8 @@ impl<'a> Node<'a> {
         }
     }
     pub fn reference_span_in(&self, t: &NodeTexts<'a>) -> Span {
-        match self.apart(t) {
-            Some(a) => a.reference.span(),
+        match self.apart_ref(t) {
+            Some(a) => a.span(),
             None => {
                 let s = self.span.start + u32::from(self.at[0].off);
                 Span {
@@ -561,22 +617,22 @@ impl<'a> Node<'a> {
     }
     #[inline]
     pub fn pin_in<'n>(&self, t: &'n NodeTexts<'a>) -> &'n str {
-        match self.apart(t) {
-            Some(a) => &a.pin,
+        match self.apart_pin(t) {
+            Some(a) => &a.0,
             None => self.in_span(t, self.at[1]),
         }
     }
     /// The pin number as a model string, for as long as the file's text.
     pub(crate) fn pin_str_in(&self, t: &NodeTexts<'a>) -> Str<'a> {
-        match self.apart(t) {
-            Some(a) => a.pin.clone(),
+        match self.apart_pin(t) {
+            Some(a) => a.0.clone(),
             None => Str::borrowed(self.in_span(t, self.at[1])),
         }
     }
     #[inline]
     pub fn pinfunction_in<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n str> {
-        match self.apart(t) {
-            Some(a) => a.pinfunction.as_deref(),
+        match self.apart_pin(t) {
+            Some(a) => a.1.as_deref(),
             None => (self.bits & HAS_FUNCTION != 0).then(|| self.in_span(t, self.at[2])),
         }
     }
@@ -601,10 +657,10 @@ impl<'a> Node<'a> {
     /// The pin function becomes the pin number too (a symbol with unnumbered pins).
     pub(crate) fn number_by_function(&mut self, t: &mut NodeTexts<'a>) {
         if self.bits & APART != 0 {
-            let i = (u32::from(self.at[0].off) << 16) | u32::from(self.at[0].len);
-            let a = &mut t.apart[i as usize];
-            if let Some(f) = a.pinfunction.clone() {
-                a.pin = f;
+            // an entry shared by nodes of one library pin: each of them would take the same
+            let a = &mut t.pins[joined(self.at[1])];
+            if let Some(f) = a.1.clone() {
+                a.0 = f;
             }
         } else if self.bits & HAS_FUNCTION != 0 {
             self.at[1] = self.at[2];

@@ -4,9 +4,12 @@
 //! read from: an atom (the span is the text) or a quoted string with no escape (the span is
 //! the text and its two quotes). For those the text's length follows from the span, so a
 //! `Text` keeps a pointer, the span's start, and the span's end with two bits saying which
-//! of the two it is (spans end below 1 GiB: both readers refuse larger files). Any other
-//! text (unescaped, made by the schematic reader, or with a span of another place) is
-//! copied once into a block of its own that also holds its length and the span's end.
+//! of the two it is (spans end below 1 GiB: both readers refuse larger files). A text
+//! borrowed from the file with a span of another place (the schematic reader's: a library
+//! name within a symbol's `lib_id`, with the span of the item) keeps the span's length and its
+//! own beside its kind instead, when they fit in 14 and 16 bits. Any other text (unescaped,
+//! made by the schematic reader, or with a span too long for that) is copied once into a
+//! block of its own that also holds its length and the span's end.
 //!
 //! Sixteen bytes where a copy-on-write string and a span take twenty-four; `Option<Text>`
 //! is sixteen bytes too. The model holds about ten of them for every component, one for
@@ -25,7 +28,14 @@ const ATOM: u32 = 0;
 const QUOTED: u32 = 1 << 30;
 /// The text is in a block of its own: `[len: u32][end: u32][bytes]`.
 const OWNED: u32 = 2 << 30;
+/// The text is borrowed from the file, its span is another place: the span's length (below
+/// `SLICE_SPAN`) and the text's (below `SLICE_LEN`) are kept beside the kind, the span's end
+/// follows from its start.
+const SLICE: u32 = 3 << 30;
 const KIND: u32 = 3 << 30;
+/// The longest span and text a `SLICE` keeps: 14 and 16 bits.
+const SLICE_SPAN: u32 = 1 << 14;
+const SLICE_LEN: u32 = 1 << 16;
 /// The largest span end kept in the 30 bits beside the kind.
 const END: u32 = (1 << 30) - 1;
 /// The owned block's header: the text's length and the span's end.
@@ -48,8 +58,10 @@ unsafe impl Send for Text<'_> {}
 unsafe impl Sync for Text<'_> {}
 
 impl<'a> Text<'a> {
-    /// A text borrowed from `s` (copied only when `span` is neither `s`'s length nor two
-    /// more).
+    /// A text borrowed from `s`. Its span is kept as its end where it is `s`'s length or two
+    /// more (the token the text was read from), else as its length; the text is copied only
+    /// when neither fits (a span ending at 1 GiB or more, or longer than 16 kB where the text
+    /// is not its token, a text of 64 kB or more).
     pub fn borrowed(s: &'a str, span: Span) -> Text<'a> {
         if span.end <= END && span.start <= span.end {
             let n = span.end - span.start;
@@ -68,6 +80,17 @@ impl<'a> Text<'a> {
                     _text: PhantomData,
                 };
             }
+        }
+        if span.start <= span.end
+            && span.end - span.start < SLICE_SPAN
+            && s.len() < SLICE_LEN as usize
+        {
+            return Text {
+                ptr: NonNull::from(s.as_bytes()).cast(),
+                start: span.start,
+                tail: SLICE | ((span.end - span.start) << 16) | s.len() as u32,
+                _text: PhantomData,
+            };
         }
         Text::owned(s, span)
     }
@@ -147,6 +170,16 @@ impl<'a> Text<'a> {
 
     #[inline]
     pub fn as_str(&self) -> &str {
+        if self.tail < OWNED {
+            return self.token_str();
+        }
+        self.other_str()
+    }
+
+    /// [`Text::as_str`] of a copy or of a text whose span is elsewhere: apart, so the
+    /// tokens' path stays small where it is inlined.
+    #[inline(never)]
+    fn other_str(&self) -> &str {
         if self.kind() == OWNED {
             let (len, _) = self.owned_header();
             // SAFETY: the block holds `len` bytes of a `str` after its header.
@@ -158,18 +191,36 @@ impl<'a> Text<'a> {
         self.borrowed_unchecked()
     }
 
+    /// An atom's or quoted string's `str`: its span's length, less the two quotes of a
+    /// quoted string.
+    #[inline(always)]
+    fn token_str(&self) -> &'a str {
+        debug_assert!(self.tail < OWNED);
+        // QUOTED >> 29 is 2, ATOM >> 29 is 0
+        let len = (self.tail & END) - self.start - (self.kind() >> 29);
+        // SAFETY: `borrowed` took the pointer from a `&'a str` of exactly this length.
+        unsafe {
+            std::str::from_utf8_unchecked(std::slice::from_raw_parts(
+                self.ptr.as_ptr(),
+                len as usize,
+            ))
+        }
+    }
+
     /// The text for the whole lifetime of the file's text, when it is borrowed from it.
     #[inline]
     pub fn as_borrowed(&self) -> Option<&'a str> {
         (self.kind() != OWNED).then(|| self.borrowed_unchecked())
     }
 
-    /// A borrowed text's `str`: its span's length, less the two quotes of a quoted string.
+    /// A borrowed text's `str`: a token's, or a `SLICE`'s of its own length.
     #[inline]
     fn borrowed_unchecked(&self) -> &'a str {
         debug_assert!(self.kind() != OWNED);
-        // QUOTED >> 29 is 2, ATOM >> 29 is 0
-        let len = (self.tail & END) - self.start - (self.kind() >> 29);
+        if self.tail < OWNED {
+            return self.token_str();
+        }
+        let len = self.tail & (SLICE_LEN - 1);
         // SAFETY: `borrowed` took the pointer from a `&'a str` of exactly this length.
         unsafe {
             std::str::from_utf8_unchecked(std::slice::from_raw_parts(
@@ -182,13 +233,24 @@ impl<'a> Text<'a> {
     /// Where the text is in the file.
     #[inline]
     pub fn span(&self) -> Span {
-        let end = match self.kind() {
-            OWNED => self.owned_header().1,
-            _ => self.tail & END,
+        let end = if self.tail < OWNED {
+            self.tail & END
+        } else {
+            self.other_end()
         };
         Span {
             start: self.start,
             end,
+        }
+    }
+
+    /// The span's end of a copy or of a text whose span is elsewhere.
+    #[inline(never)]
+    fn other_end(&self) -> u32 {
+        if self.kind() == OWNED {
+            self.owned_header().1
+        } else {
+            self.start + ((self.tail >> 16) & (SLICE_SPAN - 1))
         }
     }
 
@@ -213,10 +275,11 @@ impl<'a> Text<'a> {
     /// its span says (`None` for a copy or a text borrowed from elsewhere).
     #[inline]
     pub(crate) fn token_in(&self, text: &str) -> Option<(u32, u32, bool)> {
-        let kind = self.kind();
-        if kind == OWNED {
+        // neither a copy nor a text whose span is elsewhere
+        if self.tail >= OWNED {
             return None;
         }
+        let kind = self.kind();
         let end = self.tail & END;
         let quoted = kind == QUOTED;
         // a borrowed text's span holds it (and its quotes): `start + quoted <= end`
@@ -344,12 +407,34 @@ mod tests {
     }
 
     #[test]
-    fn other_texts_are_copied_with_their_span() {
-        // a span of another length than the text (the schematic reader's texts)
-        let t = Text::borrowed("U12", Span::new(100, 400));
+    fn a_span_elsewhere_keeps_the_text_borrowed() {
+        // a span of another length than the text (the schematic reader's texts: a library
+        // name within a symbol's `lib_id`, with the span of the whole item)
+        let file = "(lib_id \"Device:R\") (ref U12)";
+        let t = Text::borrowed(&file[9..15], Span::new(0, 19));
+        assert!(t.is_borrowed());
+        assert_eq!((t.as_str(), t.span()), ("Device", Span::new(0, 19)));
+        assert_eq!(t.as_borrowed(), Some("Device"));
+        assert_eq!(t.token_in(file), None);
+        assert_eq!(t.clone().span(), Span::new(0, 19));
+        assert_eq!(t, Text::owned("Device", Span::new(0, 19)));
+        // the longest span and text kept so, and the shortest copied
+        let long = "x".repeat(SLICE_LEN as usize);
+        let t = Text::borrowed(&long[1..], Span::new(7, 7 + SLICE_SPAN as usize - 1));
+        assert!(t.is_borrowed());
+        assert_eq!(t.span(), Span::new(7, 7 + SLICE_SPAN as usize - 1));
+        assert_eq!(t.as_str().len(), SLICE_LEN as usize - 1);
+        let t = Text::borrowed(&long[1..], Span::new(7, 7 + SLICE_SPAN as usize));
         assert!(!t.is_borrowed());
-        assert_eq!((t.as_str(), t.span()), ("U12", Span::new(100, 400)));
-        assert_eq!(t.as_borrowed(), None);
+        assert_eq!(t.span(), Span::new(7, 7 + SLICE_SPAN as usize));
+        assert_eq!(t.as_str().len(), SLICE_LEN as usize - 1);
+        let t = Text::borrowed(&long, Span::new(7, 9));
+        assert!(!t.is_borrowed());
+        assert_eq!((t.as_str(), t.span()), (long.as_str(), Span::new(7, 9)));
+    }
+
+    #[test]
+    fn other_texts_are_copied_with_their_span() {
         // an end beyond the 30 bits kept beside the kind
         let far = Span::new(5, (1 << 30) + 7);
         let t = Text::borrowed("x", far);
@@ -374,10 +459,14 @@ mod tests {
         t.set_span(Span::new(1, 5));
         assert!(t.is_borrowed());
         assert_eq!((t.as_str(), t.span()), ("/CLK", Span::new(1, 5)));
-        // another length makes a copy, which keeps any span from then on
+        // another length keeps it borrowed too, the span's length beside it
         t.set_span(Span::new(0, 13));
-        assert!(!t.is_borrowed());
+        assert!(t.is_borrowed());
         assert_eq!((t.as_str(), t.span()), ("/CLK", Span::new(0, 13)));
+        // a span too long for that makes a copy, which keeps any span from then on
+        t.set_span(Span::new(0, 40_000));
+        assert!(!t.is_borrowed());
+        assert_eq!((t.as_str(), t.span()), ("/CLK", Span::new(0, 40_000)));
         t.set_span(Span::new(6, 12));
         assert_eq!((t.as_str(), t.span()), ("/CLK", Span::new(6, 12)));
         let mut o = Text::owned("x\\y", Span::new(1, 2));

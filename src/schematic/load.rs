@@ -133,7 +133,7 @@ fn sheet_files(tree: &Tree<'_>) -> Vec<(String, Span)> {
     let mut out = Vec::new();
     let root = tree.root();
     for c in tree.children(root) {
-        if tree.head(c) != Some("sheet") {
+        if !tree.head_is(c, "sheet") {
             continue;
         }
         sheet_file_props(tree, c, 0, &mut out);
@@ -144,7 +144,7 @@ fn sheet_files(tree: &Tree<'_>) -> Vec<(String, Span)> {
 /// The file names in the properties of the sheet symbol `c`, their spans moved by `base`.
 fn sheet_file_props(tree: &Tree<'_>, c: NodeId, base: u32, out: &mut Vec<(String, Span)>) {
     for p in tree.children(c) {
-        if tree.head(p) != Some("property") {
+        if !tree.head_is(p, "property") {
             continue;
         }
         let mut it = tree.children(p).skip(1);

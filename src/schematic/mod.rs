@@ -35,7 +35,7 @@ use crate::netlist::{
 use crate::source::{SourceFile, Span};
 
 use connect::{Dsu, PinAt};
-use load::{Failed, Files, Project};
+use load::{Failed, Files};
 use names::{Candidate, Chosen, Strength};
 use sheet::{LabelKind, LibSym, Placed, Power, SText};
 
@@ -90,19 +90,159 @@ fn lib_and_part<'a>(id: &SText<'a>) -> (SText<'a>, SText<'a>) {
 /// The reference of a symbol with neither instance data nor a `Reference` property.
 static NO_REFERENCE: SText<'static> = SText::const_str("?");
 
-/// One placed symbol in one use of a sheet, with its instance data resolved.
+/// One placed symbol in one use of a sheet, with its instance data resolved: a view made
+/// when it is read ([`Placements::get`]), never kept.
+#[derive(Clone, Copy)]
 struct Placement<'p, 'a> {
     placed: &'p Placed<'a>,
     lib: &'p LibSym<'a>,
-    /// The texts are the sheet's, borrowed: a placement is made for every symbol in every
-    /// use of its sheet.
-    reference: &'p SText<'a>,
-    reference_span: Span,
+    /// The use's reference, with the span a diagnostic points at.
+    reference: &'p Text<'a>,
     unit: u32,
-    value: Option<(&'p SText<'a>, Span)>,
-    footprint: Option<(&'p SText<'a>, Span)>,
+    /// Where this placement is among all placements of all uses (its reference's index).
+    at: usize,
     /// In the netlist: not a `#` reference (power symbols, flags) and on the board.
     listed: bool,
+}
+
+/// What a placed symbol is in every use of its sheet: its library symbol, found once per
+/// sheet file.
+struct Sym<'p, 'a> {
+    placed: &'p Placed<'a>,
+    lib: &'p LibSym<'a>,
+}
+
+/// The placed symbols of every use of a sheet: what is the same in every use kept once per
+/// sheet file, and per use only what its instance data says of each symbol (a file used by
+/// four sheets would otherwise hold four of everything). The instance data itself is read
+/// once, as the uses are laid out, and given back then.
+struct Placements<'p, 'a> {
+    /// Per sheet file (empty for a file with no use yet), per placed symbol.
+    syms: Vec<Vec<Sym<'p, 'a>>>,
+    /// Each use's sheet file, and where its symbols start in the lists below.
+    file: Vec<u32>,
+    first: Vec<u32>,
+    /// Per placement: its unit. Its reference (the text of its instance, else of its
+    /// `Reference` property; the span of its own `Reference` property where it has one) is
+    /// kept among the node texts at the same index, for its nodes to name.
+    units: Vec<u32>,
+    /// Per placement: listed in the netlist (not a `#` reference, such as a power symbol's
+    /// or a flag's, and on the board); and how many are.
+    listed: Vec<bool>,
+    listed_count: usize,
+    /// KiCad 6 only (empty in a later file): per placement, the value and footprint its
+    /// instance gives, with the span of the symbol's own property where it says the same.
+    kicad6: Vec<[Option<(SText<'a>, Span)>; 2]>,
+}
+
+impl<'p, 'a> Placements<'p, 'a> {
+    /// The symbols of the sheet file `file`, each with its library symbol (a placed symbol
+    /// with none in the sheet is an error at its library name).
+    fn syms_of(sh: &'p sheet::Sheet<'a>) -> Result<Vec<Sym<'p, 'a>>, Diag> {
+        let mut out = Vec::with_capacity(sh.symbols.len());
+        for placed in &sh.symbols {
+            let Some(lib) = sh.lib.get(&placed.lib_key) else {
+                return Err(Diag::error(
+                    "missing-library-symbol",
+                    format!(
+                        "the symbol `{}` is placed but its library symbol is not in the sheet's `lib_symbols`",
+                        placed.lib_key
+                    ),
+                )
+                .at(placed.lib_key_span, "no library symbol with this name in the file")
+                .with_help("open the sheet in KiCad and save it, or update the symbol from its library, so the file carries the symbol it uses"));
+            };
+            out.push(Sym { placed, lib });
+        }
+        Ok(out)
+    }
+
+    /// Keeps what the instance data `inst` of `placed` says for one use (`None`: the symbol
+    /// has none for it), the reference among the node texts `t`.
+    fn add(
+        &mut self,
+        t: &mut NodeTexts<'a>,
+        placed: &Placed<'a>,
+        inst: Option<&sheet::Instance<'a>>,
+        modern: bool,
+    ) {
+        let own = placed.prop("Reference");
+        // a KiCad 6 instance lives in the root sheet: the reference points at the symbol's
+        // own property in the sheet where it is drawn (even when that sheet's text is another
+        // use's reference or `R?`)
+        let (reference, span) = match (inst, own) {
+            (Some(i), Some(p)) => (&i.reference, p.value_span),
+            (Some(i), None) => (&i.reference, i.reference_span),
+            (None, Some(p)) => (&p.value, p.value_span),
+            (None, None) => (&NO_REFERENCE, placed.span),
+        };
+        let listed = !reference.starts_with('#') && placed.on_board;
+        self.listed.push(listed);
+        self.listed_count += usize::from(listed);
+        let at = t.reference(txt_of(reference, span));
+        debug_assert_eq!(at as usize, self.units.len());
+        self.units
+            .push(inst.and_then(|i| i.unit).unwrap_or(placed.unit));
+        if !modern {
+            // the span of the symbol's own property `name` when its text is the instance's
+            let own_span = |name: &str, (v, s): &(SText<'a>, Span)| {
+                let s = placed
+                    .prop(name)
+                    .filter(|p| p.value == *v)
+                    .map_or(*s, |p| p.value_span);
+                (v.clone(), s)
+            };
+            self.kicad6.push([
+                inst.and_then(|i| i.value.as_deref())
+                    .map(|v| own_span("Value", v)),
+                inst.and_then(|i| i.footprint.as_deref())
+                    .map(|v| own_span("Footprint", v)),
+            ]);
+        }
+    }
+
+    /// How many symbols use `ui` places.
+    fn count(&self, ui: usize) -> usize {
+        self.syms[self.file[ui] as usize].len()
+    }
+
+    /// The library symbol of symbol `s` in use `ui`.
+    #[inline]
+    fn lib(&self, ui: usize, s: usize) -> &'p LibSym<'a> {
+        self.syms[self.file[ui] as usize][s].lib
+    }
+
+    /// Symbol `s` of use `ui`: the symbol, its library symbol, and where the placement is
+    /// among all placements of all uses.
+    #[inline(always)]
+    fn sym(&self, ui: usize, s: usize) -> (&'p Placed<'a>, &'p LibSym<'a>, usize) {
+        let sym = &self.syms[self.file[ui] as usize][s];
+        (sym.placed, sym.lib, self.first[ui] as usize + s)
+    }
+
+    /// Symbol `s` of use `ui`, with that use's instance data (its reference among the node
+    /// texts `t`).
+    #[inline(always)]
+    fn get<'r>(&'r self, t: &'r NodeTexts<'a>, ui: usize, s: usize) -> Placement<'r, 'a> {
+        let sym = &self.syms[self.file[ui] as usize][s];
+        let placed = sym.placed;
+        let at = self.first[ui] as usize + s;
+        let reference = t.reference_at(at as u32);
+        Placement {
+            placed,
+            lib: sym.lib,
+            reference,
+            unit: self.units[at],
+            at,
+            listed: self.listed[at],
+        }
+    }
+
+    /// The value and footprint a KiCad 6 instance gives placement `at` (none in a later
+    /// file).
+    fn kicad6(&self, at: usize) -> [Option<(SText<'a>, Span)>; 2] {
+        self.kicad6.get(at).cloned().unwrap_or_default()
+    }
 }
 
 /// Joins texts into one string (the many short names of a project, without the
@@ -143,42 +283,44 @@ impl UsePaths {
 
 /// The KiCad 6 instances of the root sheet's list, by path (`/sheet uuids/symbol uuid`): the
 /// first of each path, as a search of the list in order finds it.
-fn v6_index<'s>(root: &'s sheet::Sheet<'_>) -> HashMap<&'s str, usize> {
+fn v6_index<'s>(list: &'s [sheet::Instance<'_>]) -> HashMap<&'s str, usize> {
     let mut ix: HashMap<&str, usize> = HashMap::default();
-    ix.reserve(root.symbol_instances.len());
-    for (i, inst) in root.symbol_instances.iter().enumerate() {
+    ix.reserve(list.len());
+    for (i, inst) in list.iter().enumerate() {
         ix.entry(inst.path.as_ref()).or_insert(i);
     }
     ix
 }
 
-/// The instance data of `placed` in `use_`: its reference, unit, value and footprint.
-fn instance<'p, 'a>(
-    project: &'p Project<'a>,
+/// The instance data of `placed` in the use whose paths are `paths`: its reference, unit,
+/// value and footprint. `own` are the symbol's instances (KiCad 7 and later), `v6_list` the
+/// root sheet's (KiCad 6) and `v6` their index.
+fn instance<'i, 'a>(
+    v6_list: &'i [sheet::Instance<'a>],
     v6: &HashMap<&str, usize>,
     paths: &UsePaths,
-    placed: &'p Placed<'a>,
-) -> Option<&'p sheet::Instance<'a>> {
-    let root = &project.sheets[0];
+    placed: &Placed<'a>,
+    own: &'i [sheet::Instance<'a>],
+) -> Option<&'i sheet::Instance<'a>> {
     let chain = paths.chain.as_str();
     // KiCad 7 and later: in the symbol, by the path of sheets from the root's uuid
-    if let Some(i) = placed.instances.iter().find(|i| i.path == paths.full) {
+    if let Some(i) = own.iter().find(|i| i.path == paths.full) {
         return Some(i);
     }
     // KiCad 6: in the root's list, by the sheet path and the symbol's uuid
     if !v6.is_empty() {
         let v6_path = cat(&[chain, "/", &placed.uuid]);
         if let Some(&i) = v6.get(v6_path.as_str()) {
-            return Some(&root.symbol_instances[i]);
+            return Some(&v6_list[i]);
         }
     }
     // another project's root: the same sheets below it
     if !chain.is_empty() {
-        if let Some(i) = placed.instances.iter().find(|i| i.path.ends_with(chain)) {
+        if let Some(i) = own.iter().find(|i| i.path.ends_with(chain)) {
             return Some(i);
         }
-    } else if placed.instances.len() == 1 {
-        return placed.instances.first();
+    } else if own.len() == 1 {
+        return own.first();
     }
     None
 }
@@ -197,7 +339,7 @@ fn pin_net_name(
     };
     let shown: &str = if pin.name == "~" { "" } else { &pin.name };
     if !modern {
-        return cat(&[head, &pl.reference, "-Pad", &pin.num, ")"]);
+        return cat(&[head, pl.reference.as_str(), "-Pad", &pin.num, ")"]);
     }
     if !shown.is_empty() && shown != pin.num {
         let letters = if pl.lib.unit_count > 1 {
@@ -210,7 +352,7 @@ fn pin_net_name(
         if unconnected || has_multiple {
             cat(&[
                 head,
-                &pl.reference,
+                pl.reference.as_str(),
                 &letters,
                 "-",
                 shown,
@@ -219,10 +361,10 @@ fn pin_net_name(
                 ")",
             ])
         } else {
-            cat(&[head, &pl.reference, &letters, "-", shown, ")"])
+            cat(&[head, pl.reference.as_str(), &letters, "-", shown, ")"])
         }
     } else {
-        cat(&[head, &pl.reference, "-Pad", &pin.num, ")"])
+        cat(&[head, pl.reference.as_str(), "-Pad", &pin.num, ")"])
     }
 }
 
@@ -297,89 +439,72 @@ pub fn read(files: &Files) -> Result<Netlist<'_>, Diag> {
 /// Reads a project's joined sheets (or a single sheet's text) into the netlist model.
 pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let text = source.text();
-    let project = load::project(source)?;
+    let mut project = load::project(source)?;
     let mut diags = project.diags.clone();
     let modern = project.sheets[0].version >= KICAD7;
+    // the instance data (each placed symbol's, and KiCad 6's list in the root sheet), taken
+    // out of the sheets: read once for each use as the uses are laid out, then given back
+    let own_instances: Vec<Vec<Box<[sheet::Instance<'_>]>>> = project
+        .sheets
+        .iter_mut()
+        .map(|sh| {
+            sh.symbols
+                .iter_mut()
+                .map(|p| std::mem::take(&mut p.instances))
+                .collect()
+        })
+        .collect();
+    let v6_list = std::mem::take(&mut project.sheets[0].symbol_instances);
 
+    // the nodes' texts: each placement's reference as the uses are laid out, each library
+    // pin's number and name as its first node is made
+    let mut node_texts = NodeTexts::new(text);
     // placements per use; placed pins and pieces per use, kept once for the uses of a sheet
     // file that place the same pins (a file used by several sheets, its units the same)
-    let mut placements: Vec<Vec<Placement<'_, '_>>> = Vec::with_capacity(project.uses.len());
+    let symbols: usize = project
+        .uses
+        .iter()
+        .map(|u| project.sheets[u.file].symbols.len())
+        .sum();
+    let mut placements = Placements {
+        syms: (0..project.sheets.len()).map(|_| Vec::new()).collect(),
+        file: Vec::with_capacity(project.uses.len()),
+        first: Vec::with_capacity(project.uses.len()),
+        units: Vec::with_capacity(symbols),
+        listed: Vec::with_capacity(symbols),
+        listed_count: 0,
+        kicad6: Vec::new(),
+    };
     // (placement, libpin) per placed pin
     let mut pins_of: PerUse<Vec<(u32, u32)>> = PerUse::default();
     let mut pieces: PerUse<Vec<connect::Piece>> = PerUse::default();
     // the sets of pins made for each file so far
     let mut sets_of_file: Vec<Vec<u32>> = vec![Vec::new(); project.sheets.len()];
-    let v6 = v6_index(&project.sheets[0]);
-    for u in &project.uses {
+    let v6 = v6_index(&v6_list);
+    let mut which: Vec<(u32, u32)> = Vec::new();
+    for (ui, u) in project.uses.iter().enumerate() {
         let sh = &project.sheets[u.file];
+        if placements.syms[u.file].is_empty() && !sh.symbols.is_empty() {
+            placements.syms[u.file] = Placements::syms_of(sh)?;
+        }
         let paths = UsePaths::of(&project.sheets[0], u);
-        let mut pls = Vec::with_capacity(sh.symbols.len());
-        let mut at: Vec<PinAt> = Vec::new();
-        let mut which: Vec<(u32, u32)> = Vec::new();
-        for placed in &sh.symbols {
-            let Some(lib) = sh.lib.get(&placed.lib_key) else {
-                return Err(Diag::error(
-                    "missing-library-symbol",
-                    format!(
-                        "the symbol `{}` is placed but its library symbol is not in the sheet's `lib_symbols`",
-                        placed.lib_key
-                    ),
-                )
-                .at(placed.lib_key_span, "no library symbol with this name in the file")
-                .with_help("open the sheet in KiCad and save it, or update the symbol from its library, so the file carries the symbol it uses"));
-            };
-            let inst = instance(&project, &v6, &paths, placed);
-            // a KiCad 6 instance lives in the root sheet: point at the symbol's own property
-            // in the sheet where it is drawn (for the reference, even when that sheet's text
-            // is another use's reference or `R?`)
-            let own_span = |name: &str, text: &str, or: Span| {
-                placed
-                    .prop(name)
-                    .filter(|p| p.value == text || name == "Reference")
-                    .map_or(or, |p| p.value_span)
-            };
-            let (reference, reference_span) = match inst {
-                Some(i) => (
-                    &i.reference,
-                    own_span("Reference", &i.reference, i.reference_span),
-                ),
-                None => match placed.prop("Reference") {
-                    Some(p) => (&p.value, p.value_span),
-                    None => (&NO_REFERENCE, placed.span),
-                },
-            };
-            let unit = inst.and_then(|i| i.unit).unwrap_or(placed.unit);
-            let pi = pls.len();
+        placements.file.push(u.file as u32);
+        placements.first.push(placements.units.len() as u32);
+        for (placed, own) in sh.symbols.iter().zip(&own_instances[u.file]) {
+            let inst = instance(&v6_list, &v6, &paths, placed, own);
+            placements.add(&mut node_texts, placed, inst, modern);
+        }
+        which.clear();
+        for pi in 0..sh.symbols.len() {
+            let (placed, lib, at) = placements.sym(ui, pi);
+            let unit = placements.units[at];
             for (k, lp) in lib.pins.iter().enumerate() {
                 if (lp.unit == 0 || lp.unit == unit) && (lp.style == 0 || lp.style == placed.style)
                 {
-                    at.push(PinAt {
-                        symbol: pi,
-                        libpin: k,
-                        at: symbol::pin_point(placed, lp),
-                    });
                     which.push((pi as u32, k as u32));
                 }
             }
-            let listed = !reference.starts_with('#') && placed.on_board;
-            pls.push(Placement {
-                placed,
-                lib,
-                reference,
-                reference_span,
-                unit,
-                value: inst
-                    .and_then(|i| i.value.as_deref())
-                    .filter(|_| !modern)
-                    .map(|(v, s)| (v, own_span("Value", v, *s))),
-                footprint: inst
-                    .and_then(|i| i.footprint.as_deref())
-                    .filter(|_| !modern)
-                    .map(|(v, s)| (v, own_span("Footprint", v, *s))),
-                listed,
-            });
         }
-        placements.push(pls);
         let known = sets_of_file[u.file]
             .iter()
             .copied()
@@ -390,15 +515,33 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 pieces.of.push(s);
             }
             None => {
+                // the pins' points, only for a set of pins not made before
+                let at: Vec<PinAt> = which
+                    .iter()
+                    .map(|&(pi, k)| {
+                        let (pi, k) = wide((pi, k));
+                        let (placed, lib, _) = placements.sym(ui, pi);
+                        PinAt {
+                            symbol: pi,
+                            libpin: k,
+                            at: symbol::pin_point(placed, &lib.pins[k]),
+                        }
+                    })
+                    .collect();
                 let s = pins_of.sets.len() as u32;
                 sets_of_file[u.file].push(s);
                 pieces.sets.push(connect::pieces(sh, &at));
-                pins_of.sets.push(which);
+                let mut set = std::mem::take(&mut which);
+                set.shrink_to_fit();
+                pins_of.sets.push(set);
                 pins_of.of.push(s);
                 pieces.of.push(s);
             }
         }
     }
+    drop(which);
+    drop(v6);
+    drop((v6_list, own_instances));
 
     // every piece of every use, then keys, in one union-find
     let mut first: Vec<usize> = Vec::with_capacity(pieces.of.len());
@@ -439,7 +582,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             for &k in &p.pins {
                 let (s, lpi) = wide(pins_of[ui][k]);
-                let pl = &placements[ui][s];
+                let pl = &placements.get(&node_texts, ui, s);
                 let lp = &pl.lib.pins[lpi];
                 if is_power_pin(pl, lp) {
                     names_here.push((k as u32, power_name(pl, lp)));
@@ -472,7 +615,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 let name = power_name_of(&power_names[ui], k);
                 if !name.is_empty() {
                     let (s, _) = wide(pins_of[ui][k]);
-                    let local = placements[ui][s].lib.power == Power::Local;
+                    let local = placements.lib(ui, s).power == Power::Local;
                     let key = if local {
                         Key::Local(ui, name)
                     } else {
@@ -732,7 +875,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             }
             for &k in &p.pins {
                 let (s, lpi) = wide(pins_of[ui][k]);
-                let pl = &placements[ui][s];
+                let pl = &placements.get(&node_texts, ui, s);
                 let lp = &pl.lib.pins[lpi];
                 let pname = power_name_of(&power_names[ui], k);
                 if !pname.is_empty() {
@@ -794,7 +937,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 .iter()
                 .map(|&(_, k, nc)| {
                     let (s, lpi) = wide(pins_of[ui][k as usize]);
-                    let pl = &placements[ui][s];
+                    let pl = &placements.get(&node_texts, ui, s);
                     Candidate {
                         strength: Strength::Pin,
                         name: pin_net_name(modern, pl, &pl.lib.pins[lpi], nc),
@@ -823,7 +966,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     let mut nets: Vec<Net<'_>> = Vec::with_capacity(groups as usize);
     let mut has_nodes: Vec<bool> = Vec::with_capacity(groups as usize);
     let mut nodes: Vec<(u32, Node<'_>)> = Vec::with_capacity(found.len());
-    let mut node_texts = NodeTexts::new(text);
+    // where each library symbol's pins start among the node texts; a node's reference is its
+    // placement's, kept there as the uses were laid out
+    let mut pins_from: HashMap<*const LibSym<'_>, u32> = HashMap::default();
     for chosen in by_group.chunk_by(|a, b| a.0 == b.0) {
         let rank = chosen[0].0;
         let pins = &found[found.partition_point(|e| e.0 < rank)..];
@@ -838,36 +983,51 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         let Some(name) = names::chain(&ch).map(|c| c.name.as_str()) else {
             continue;
         };
+        // a net's span is its first node's: the pin of its first pin found
+        let span_of = |&(_, ui, k, _): &(u32, u32, u32, bool)| {
+            let (ui, k) = wide((ui, k));
+            let (s, lpi) = wide(pins_of[ui][k]);
+            let (placed, lib, _) = placements.sym(ui, s);
+            placed.pin_span(&lib.pins[lpi].num).unwrap_or(placed.span)
+        };
         let idx = match net_of_name.get(name) {
             Some(&i) => i,
             None => {
                 net_of_name.insert(name, nets.len());
-                nets.push(Net::new(
-                    None,
-                    Text::owned(name, Span::default()),
-                    Span::default(),
-                ));
-                has_nodes.push(false);
+                // named at its span at once where it has one, not copied again to move it
+                let span = pins.first().map_or(Span::default(), span_of);
+                nets.push(Net::new(None, Text::owned(name, span), span));
+                has_nodes.push(!pins.is_empty());
                 nets.len() - 1
             }
         };
         for &(_, ui, k, nc) in pins {
             let (ui, k) = wide((ui, k));
             let (s, lpi) = wide(pins_of[ui][k]);
-            let pl = &placements[ui][s];
-            let lp = &pl.lib.pins[lpi];
-            let span = pl.placed.pin_span(&lp.num).unwrap_or(pl.placed.span);
+            let (placed, lib, at) = placements.sym(ui, s);
+            let lp = &lib.pins[lpi];
+            let span = placed.pin_span(&lp.num).unwrap_or(placed.span);
             if !has_nodes[idx] {
                 has_nodes[idx] = true;
                 let net = &mut nets[idx];
                 net.span = span;
                 net.name.set_span(span);
             }
-            let node = node_texts.apart(
+            // the reference kept once per placement, the pin texts once per library pin
+            let base = *pins_from
+                .entry(lib as *const LibSym<'_>)
+                .or_insert_with(|| {
+                    let base = node_texts.pin_count();
+                    for lp in &lib.pins {
+                        let name = (!lp.name.is_empty() && lp.name != "~").then(|| lp.name.clone());
+                        node_texts.pin(lp.num.clone(), name);
+                    }
+                    base
+                });
+            let node = node_texts.shared(
                 span,
-                txt_of(&pl.reference, pl.reference_span),
-                lp.num.clone().into(),
-                (!lp.name.is_empty() && lp.name != "~").then(|| lp.name.clone().into()),
+                at as u32,
+                base + lpi as u32,
                 Some(lp.ptype),
                 nc || lp.ptype == PinType::NoConnect,
             );
@@ -875,7 +1035,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
 
-    drop(net_of_name);
+    drop((net_of_name, pins_from));
     drop((by_group, found, pins_of));
 
     // KiCad lists nets by name (numbers in names compared as numbers) and each net's pins
@@ -946,16 +1106,18 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             .then_with(|| natural_cmp(&a.1, &b.1))
     });
     // at most one component per listed placement: allocated once
-    let listed = placements.iter().flatten().filter(|p| p.listed).count();
+    let listed = placements.listed_count;
     let mut components: Vec<Component<'_>> = Vec::with_capacity(listed);
     let mut comp_of: rustc_hash::FxHashSet<&str> = rustc_hash::FxHashSet::default();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
     for &(ui, _) in &order {
-        let mut pls: Vec<&Placement<'_, '_>> = placements[ui].iter().collect();
-        pls.sort_by(|a, b| natural_cmp(&a.reference, &b.reference));
+        let mut pls: Vec<Placement<'_, '_>> = (0..placements.count(ui))
+            .map(|s| placements.get(&node_texts, ui, s))
+            .collect();
+        pls.sort_by(|a, b| natural_cmp(a.reference.as_str(), b.reference.as_str()));
         for pl in pls {
-            if !pl.listed || !comp_of.insert(&pl.reference) {
+            if !pl.listed || !comp_of.insert(pl.reference.as_str()) {
                 continue;
             }
             let placed = pl.placed;
@@ -993,16 +1155,13 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                     .filter(|p| !p.value.is_empty())
                     .map(|p| txt_of(&p.value, p.value_span))
             };
-            let value = pl
-                .value
-                .as_ref()
-                .map(|(v, s)| txt_of(v, *s))
+            let [kicad6_value, kicad6_footprint] = placements.kicad6(pl.at);
+            let value = kicad6_value
+                .map(|(v, s)| txt_of(&v, s))
                 .or_else(|| prop_text("Value"));
-            let footprint = pl
-                .footprint
-                .as_ref()
+            let footprint = kicad6_footprint
                 .filter(|f| !f.0.is_empty())
-                .map(|(v, s)| txt_of(v, *s))
+                .map(|(v, s)| txt_of(&v, s))
                 .or_else(|| prop_text("Footprint"));
             let fields: Vec<Field<'_>> = placed
                 .props
@@ -1025,7 +1184,7 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
                 value: None,
                 span: placed.span,
             });
-            let mut comp = Component::new(txt_of(&pl.reference, pl.reference_span), placed.span);
+            let mut comp = Component::new(pl.reference.clone(), placed.span);
             comp.value = value;
             comp.footprint = footprint;
             comp.set_fields(fields.into_iter(), dnp.into_iter());
@@ -1038,6 +1197,11 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         }
     }
     let root_span = project.sheets[0].span;
+    // the sheets and what was read from them are done with: given back before the model
+    // is linked, which needs lists of its own
+    drop((comp_of, lib_of, order));
+    drop(placements);
+    drop(project);
     diags.sort_by_key(|d| d.primary_span().map(|s| s.start));
     Ok(Netlist::assemble(
         components, libparts, nets, nodes, node_texts, diags, root_span,
@@ -1262,6 +1426,78 @@ mod tests {
         );
     }
 
+    /// Nodes keep their reference once per placed symbol and use, and their pin's texts once
+    /// per library pin, and each still reads its own: two uses of a sheet whose symbol has
+    /// named pins (one of them unnumbered, so numbered by its name) give each node its use's
+    /// reference, the span of the symbol's own `Reference` property, and its pin's number
+    /// and name.
+    #[test]
+    fn nodes_share_their_texts_and_keep_their_own() {
+        let root = "(kicad_sch (version 20231120) (uuid \"r\") (lib_symbols)\n\
+            (sheet (at 0 0) (size 9 9) (uuid \"sa\") (property \"Sheetname\" \"a\") (property \"Sheetfile\" \"child.kicad_sch\"))\n\
+            (sheet (at 20 0) (size 9 9) (uuid \"sb\") (property \"Sheetname\" \"b\") (property \"Sheetfile\" \"child.kicad_sch\")))\n";
+        let child = "(kicad_sch (version 20231120) (uuid \"c\")\n\
+            (lib_symbols (symbol \"D:U\" (symbol \"U_1_1\" (pin input line (at 0 2.54 270) (name \"IN\") (number \"1\"))\n\
+              (pin output line (at 0 -2.54 90) (name \"OUT\") (number \"2\")) (pin input line (at 2.54 0 180) (name \"EN\") (number \"\")))))\n\
+            (symbol (lib_id \"D:U\") (at 10 10 0) (unit 1) (uuid \"s1\") (property \"Reference\" \"U?\" (at 0 0 0))\n\
+              (property \"Value\" \"x\" (at 0 0 0)) (pin \"1\" (uuid \"p1\")) (pin \"2\" (uuid \"p2\")) (pin \"\" (uuid \"p3\"))\n\
+              (instances (project \"p\" (path \"/r/sa\" (reference \"U1\") (unit 1)) (path \"/r/sb\" (reference \"U7\") (unit 1)))))\n\
+            (label \"A\" (at 10 7.46 0)) (label \"B\" (at 10 12.54 0)) (label \"C\" (at 12.54 10 0)))\n";
+        let source = SourceFile::from_files(
+            "t/root.kicad_sch",
+            vec![
+                ("t/root.kicad_sch".to_string(), root.to_string()),
+                ("t/child.kicad_sch".to_string(), child.to_string()),
+            ],
+        );
+        let nl = read_source(&source).unwrap();
+        let text = source.text();
+        let mut got = Vec::new();
+        for n in &nl.nets {
+            for x in n.nodes(&nl) {
+                assert_eq!(&text[x.reference_span(&nl).range()], "\"U?\"");
+                got.push(format!(
+                    "{} {}.{}:{}",
+                    n.name,
+                    x.reference(&nl),
+                    x.pin(&nl),
+                    x.pinfunction(&nl).unwrap_or("-")
+                ));
+            }
+        }
+        assert_eq!(
+            got,
+            [
+                "/a/A U1.1:IN",
+                "/a/B U1.2:OUT",
+                "/a/C U1.EN:EN",
+                "/b/A U7.1:IN",
+                "/b/B U7.2:OUT",
+                "/b/C U7.EN:EN"
+            ]
+        );
+        // one reference kept for each placed symbol in each use, not one for each node
+        assert_eq!(nl.node_texts().apart_count(), 2);
+        let refs: Vec<&str> = nl.components.iter().map(|c| c.reference.as_str()).collect();
+        assert_eq!(refs, ["U1", "U7"]);
+        for c in &nl.components {
+            let pins: Vec<(&str, Option<&str>)> =
+                c.pins.iter().map(|p| (p.num(&nl), p.name(&nl))).collect();
+            assert_eq!(
+                pins,
+                [("1", Some("IN")), ("2", Some("OUT")), ("EN", Some("EN"))]
+            );
+            // the library and part names borrowed from the symbol's `lib_id`, with the
+            // span of the item
+            let ls = c.libsource.as_ref().unwrap();
+            let (lib, part) = (ls.lib.as_ref().unwrap(), ls.part.as_ref().unwrap());
+            assert_eq!((lib.as_str(), part.as_str()), ("D", "U"));
+            assert!(lib.is_borrowed() && part.is_borrowed());
+            assert_eq!(&text[lib.span().range()], "(lib_id \"D:U\")");
+            assert_eq!(part.span(), lib.span());
+        }
+    }
+
     /// A KiCad 6 path listed twice in the root's instances is found at its first entry.
     #[test]
     fn kicad6_instances_by_path_take_the_first() {
@@ -1277,7 +1513,7 @@ mod tests {
             symbol_instances: vec![inst("/a/x", "R1"), inst("/b/x", "R2"), inst("/a/x", "R3")],
             ..Default::default()
         };
-        let ix = v6_index(&root);
+        let ix = v6_index(&root.symbol_instances);
         assert_eq!(root.symbol_instances[ix["/a/x"]].reference, "R1");
         assert_eq!(root.symbol_instances[ix["/b/x"]].reference, "R2");
         assert_eq!(ix.len(), 2);

@@ -222,7 +222,7 @@ impl<'t, 'a> Reader<'t, 'a> {
     fn child(&self, id: NodeId, head: &str) -> Option<NodeId> {
         self.t
             .children(id)
-            .find(|&c| self.t.is_list(c) && self.t.head(c) == Some(head))
+            .find(|&c| self.t.is_list(c) && self.t.head_is(c, head))
     }
     /// `(head value)`: the value's text.
     fn value_of(&self, id: NodeId, head: &str) -> Option<SText<'a>> {
@@ -278,7 +278,7 @@ impl<'t, 'a> Reader<'t, 'a> {
     /// skipped, as the netlist reader does.
     pub fn sheet(&self, diags: &mut Vec<Diag>) -> Result<Sheet<'a>, Diag> {
         let root = self.t.root();
-        if self.t.head(root) != Some("kicad_sch") {
+        if !self.t.head_is(root, "kicad_sch") {
             return Err(Diag::error(
                 "not-a-schematic",
                 "this is not a KiCad schematic sheet: it does not begin with `(kicad_sch`",
@@ -311,7 +311,7 @@ impl<'t, 'a> Reader<'t, 'a> {
         match self.t.head(c).unwrap_or("") {
             "lib_symbols" => {
                 for s in self.t.children(c).skip(1) {
-                    if self.t.head(s) == Some("symbol") {
+                    if self.t.head_is(s, "symbol") {
                         match self.lib_symbol(s) {
                             Some(l) => {
                                 sh.lib.insert(l.name.clone(), l);
@@ -400,7 +400,7 @@ impl<'t, 'a> Reader<'t, 'a> {
             .t
             .children(pts)
             .skip(1)
-            .filter(|&c| self.t.head(c) == Some("xy"));
+            .filter(|&c| self.t.head_is(c, "xy"));
         let a = self.xy(it.next()?)?;
         let b = self.xy(it.next()?)?;
         Some(Segment { a, b })
@@ -423,8 +423,8 @@ impl<'t, 'a> Reader<'t, 'a> {
             span: self.span(id),
         };
         for sub in self.t.children(id).skip(1) {
-            if self.t.head(sub) != Some("symbol") {
-                if self.t.head(sub) == Some("pin") {
+            if !self.t.head_is(sub, "symbol") {
+                if self.t.head_is(sub, "pin") {
                     if let Some(p) = self.lib_pin(sub, 0, 0) {
                         sym.pins.push(p);
                     }
@@ -438,7 +438,7 @@ impl<'t, 'a> Reader<'t, 'a> {
             let unit = parts.next().and_then(|s| s.parse().ok()).unwrap_or(0);
             sym.unit_count = sym.unit_count.max(unit);
             for p in self.t.children(sub).skip(1) {
-                if self.t.head(p) == Some("pin") {
+                if self.t.head_is(p, "pin") {
                     sym.pins.push(self.lib_pin(p, unit, style)?);
                 }
             }
@@ -560,7 +560,7 @@ impl<'t, 'a> Reader<'t, 'a> {
 
     /// `(path "/a/b" (reference "R1") (unit 1) [(value ..) (footprint ..)])`.
     fn instance(&self, id: NodeId) -> Option<Instance<'a>> {
-        if self.t.head(id) != Some("path") {
+        if !self.t.head_is(id, "path") {
             return None;
         }
         let path = self.text(self.nth(id, 1)?)?;
@@ -583,7 +583,7 @@ impl<'t, 'a> Reader<'t, 'a> {
 
     /// `(path "/a/b" (page "3"))`.
     fn page(&self, id: NodeId) -> Option<(SText<'a>, SText<'a>)> {
-        if self.t.head(id) != Some("path") {
+        if !self.t.head_is(id, "path") {
             return None;
         }
         Some((self.text(self.nth(id, 1)?)?, self.value_of(id, "page")?))

@@ -142,6 +142,18 @@ impl<'a> Tree<'a> {
             _ => None,
         }
     }
+    /// True when `id` is a list whose head is the atom `name` (`head(id) == Some(name)`),
+    /// told by comparing bytes, without making the head's `str`.
+    #[inline]
+    pub fn head_is(&self, id: NodeId, name: &str) -> bool {
+        let Some(c) = self.first_child(id) else {
+            return false;
+        };
+        let n = self.nodes[c as usize];
+        n.kind() == Kind::Atom
+            && (n.end - n.start) as usize == name.len()
+            && self.text.as_bytes().get(n.start as usize..n.end as usize) == Some(name.as_bytes())
+    }
     /// Number of children.
     pub fn child_count(&self, id: NodeId) -> usize {
         self.children(id).count()

@@ -346,3 +346,32 @@ fn items_agree_with_the_tree_on_every_cut_and_insertion() {
     }
     assert!(lists > 1000 && failed > 100, "{lists} {failed}");
 }
+
+/// `head_is` answers as comparing `head` does, for every node: lists headed by an atom, by a
+/// string or by a list, empty lists, atoms and strings, with names of the same length,
+/// prefixes and longer names.
+#[test]
+fn head_is_agrees_with_head() {
+    let text = "(kicad_sch (symbol (pin \"1\")) (\"symbol\" x) ((pin) y) () (pins) (pi) sym \"pin\" (é (x)))";
+    let t = parse(text).unwrap();
+    let names = [
+        "kicad_sch",
+        "symbol",
+        "pin",
+        "pins",
+        "pi",
+        "",
+        "x",
+        "é",
+        "\"symbol\"",
+        "sym",
+    ];
+    let mut headed = 0;
+    for id in 0..t.len() as u32 {
+        for name in names {
+            assert_eq!(t.head_is(id, name), t.head(id) == Some(name), "{id} {name}");
+            headed += usize::from(t.head_is(id, name));
+        }
+    }
+    assert_eq!(headed, 8);
+}
