@@ -94,7 +94,7 @@ fn floating_bus(cx: &Circuit<'_, '_>, net: usize) -> bool {
     nm.rail.is_none()
         && !nm.drivers.is_empty()
         && nm.pulls().is_empty()
-        && nm.unreadable().is_empty()
+        && !nm.has_unreadable()
         && nm.held().is_empty()
         && nm.unknown().is_empty()
         && nm

@@ -64,7 +64,7 @@ pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
         || !nm.drivers.is_empty()
         || nm.pulls().is_empty()
         || !nm.unknown().is_empty()
-        || !nm.unreadable().is_empty()
+        || nm.has_unreadable()
     {
         return None;
     }

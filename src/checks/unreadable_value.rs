@@ -58,8 +58,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         nets.sort_unstable();
         nets.dedup();
         for net in nets {
-            let nm = &cx.nets[net];
-            if !nm.unreadable().iter().any(|(r, _)| *r == ci) {
+            if !cx.unreadable(net).any(|r| r == ci) {
                 continue;
             }
             let Some(pi) = c.pins.iter().position(|p| p.connection.net() == Some(net)) else {

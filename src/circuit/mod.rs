@@ -345,6 +345,10 @@ pub struct NetModel {
     /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
     /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
     pub rail_named_local: bool,
+    /// A resistor whose value could not be read joins it to a rail: the resistors are listed
+    /// by the circuit ([`Circuit::unreadable`]), since on most boards no net has one and on a
+    /// board of misread values every such net has one.
+    has_unreadable: bool,
     /// What sets the level, as the model found it (`None`: nothing, in some state).
     pub source: Option<Source>,
     /// The rarer lists; `None` while all of them are empty.
@@ -357,8 +361,6 @@ pub struct NetExtras {
     pub pulls: ThinVec<Pull>,
     /// Pins whose role no source could tell.
     pub unknown: ThinVec<PinRef>,
-    /// Resistors whose value could not be read.
-    pub unreadable: ThinVec<(usize, ValueError)>,
     pub led_paths: ThinVec<LedPath>,
     /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
     /// their current in its low state.
@@ -384,7 +386,6 @@ impl NetExtras {
     fn is_empty(&self) -> bool {
         self.pulls.is_empty()
             && self.unknown.is_empty()
-            && self.unreadable.is_empty()
             && self.led_paths.is_empty()
             && self.sink_paths.is_empty()
             && self.held.is_empty()
@@ -397,7 +398,6 @@ impl NetExtras {
     fn fit(&mut self) {
         self.pulls.shrink_to_fit();
         self.unknown.shrink_to_fit();
-        self.unreadable.shrink_to_fit();
         self.led_paths.shrink_to_fit();
         self.sink_paths.shrink_to_fit();
         self.held.shrink_to_fit();
@@ -429,10 +429,6 @@ impl NetModel {
     extra_list!(
         /// Pins whose role no source could tell.
         unknown: PinRef
-    );
-    extra_list!(
-        /// Resistors whose value could not be read.
-        unreadable: (usize, ValueError)
     );
     extra_list!(
         /// LED paths from this net to ground (or a lower rail).
@@ -528,8 +524,14 @@ impl NetModel {
             || !self.pulls().is_empty()
             || !self.held().is_empty()
             || !self.connectors.is_empty()
-            || !self.unreadable().is_empty()
+            || self.has_unreadable
             || !self.unknown().is_empty()
+    }
+
+    /// True when a resistor whose value could not be read joins the net to a rail (which
+    /// ones: [`Circuit::unreadable`]).
+    pub fn has_unreadable(&self) -> bool {
+        self.has_unreadable
     }
 
     /// True when something on this board or off it can set the net's level in every
@@ -589,6 +591,9 @@ pub struct Circuit<'n, 'a> {
     /// Every resistor's and resistor network's value as read, once per distinct text
     /// ([`Circuit::resistor_value`]).
     pub values: ValueReadings<'n>,
+    /// (net, resistor) for each resistor from a net to a rail whose value could not be read,
+    /// in net order ([`Circuit::unreadable`]).
+    unreadable: Vec<(u32, u32)>,
     /// Each part's family's table entry, looked up once ([`Circuit::family`]).
     families: Vec<Option<&'n Family>>,
     /// Each part's figures and family id as its drivers and loads read them
@@ -674,6 +679,20 @@ impl<'n, 'a> Circuit<'n, 'a> {
             self.cl.parts[comp].kind,
             self.nl.components[comp].value_str(),
         )
+    }
+
+    /// The resistors from net `net` to a rail whose values could not be read, in the order
+    /// the model found them (why each cannot be read: [`Circuit::resistor_value`]).
+    pub fn unreadable(&self, net: usize) -> impl Iterator<Item = usize> + '_ {
+        let found: &[(u32, u32)] = if self.nets[net].has_unreadable {
+            let net = small(net);
+            let from = self.unreadable.partition_point(|&(n, _)| n < net);
+            let to = from + self.unreadable[from..].partition_point(|&(n, _)| n == net);
+            &self.unreadable[from..to]
+        } else {
+            &[]
+        };
+        found.iter().map(|&(_, r)| r as usize)
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -1147,6 +1166,9 @@ pub fn build<'n, 'a>(
     }
 
     let mut readings = ValueReadings::default();
+    // (net, resistor) for each resistor to a rail whose value cannot be read, in the order
+    // found; put in net order once all are found
+    let mut unreadable: Vec<(u32, u32)> = Vec::new();
     // resistors: to a rail a pull (or a hold, when the rail's voltage is unknown), between
     // two signal nets a series element
     for (ci, c) in nl.components.iter().enumerate() {
@@ -1156,7 +1178,7 @@ pub fn build<'n, 'a>(
         }
         let (ohms, err) = match readings.read(part.kind, c.value_str()) {
             Some(Ok(ohms)) => (Some(*ohms), None),
-            Some(Err(e)) => (None, Some(e.clone())),
+            Some(Err(e)) => (None, Some(e)),
             None => (None, None),
         };
         if matches!(err, Some(ValueError::NotFitted(_))) {
@@ -1180,7 +1202,7 @@ pub fn build<'n, 'a>(
                     });
                     continue;
                 };
-                match (ohms, &err) {
+                match (ohms, err) {
                     (Some(o), _) => match r.v() {
                         Some(v) => nets[n_here].extras_mut().pulls.push(Pull {
                             resistor: ci,
@@ -1192,7 +1214,10 @@ pub fn build<'n, 'a>(
                         }),
                         None => nets[n_here].extras_mut().held.push(ci),
                     },
-                    (None, Some(e)) => nets[n_here].extras_mut().unreadable.push((ci, e.clone())),
+                    (None, Some(_)) => {
+                        unreadable.push((small(n_here), small(ci)));
+                        nets[n_here].has_unreadable = true;
+                    }
                     _ => {}
                 }
             }
@@ -1308,6 +1333,9 @@ pub fn build<'n, 'a>(
     for nm in &mut nets {
         nm.fit();
     }
+    // stable: each net's resistors stay in the order found
+    unreadable.sort_by_key(|&(net, _)| net);
+    unreadable.shrink_to_fit();
 
     Circuit {
         nl,
@@ -1320,6 +1348,7 @@ pub fn build<'n, 'a>(
         rail_notes,
         displays,
         values: readings,
+        unreadable,
         families,
         part_logic,
     }
@@ -2054,5 +2083,65 @@ mod size_tests {
         bare.fit();
         assert!(bare.extras.is_none());
         assert!(bare.pulls().is_empty() && bare.series().is_empty());
+    }
+}
+
+#[cfg(test)]
+mod unreadable_tests {
+    /// Resistors to a rail whose values do not read are listed by the circuit, net by net in
+    /// the order found (a resistor listed once for each of its elements on the net), each net
+    /// marked; the reading each gives is its value's, and a net with only them holds no
+    /// extras.
+    #[test]
+    fn each_net_lists_its_unreadable_resistors_in_order() {
+        // values that do not read as resistances (IEC 60062: one multiplier letter): `4K7Q`,
+        // `4K7K`; `4K7` reads
+        const BOARD: &str = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74HC00") (libsource (lib "x") (part "74HC00")))
+    (comp (ref "R1") (value "4K7Q") (libsource (lib "x") (part "R")))
+    (comp (ref "R2") (value "4K7K") (libsource (lib "x") (part "R")))
+    (comp (ref "R3") (value "4K7Q") (libsource (lib "x") (part "R")))
+    (comp (ref "R4") (value "4K7") (libsource (lib "x") (part "R")))
+    (comp (ref "R5") (value "4K7K") (libsource (lib "x") (part "R"))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "R1") (pin "2")) (node (ref "R2") (pin "2")) (node (ref "R3") (pin "2")) (node (ref "R4") (pin "2")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "R5") (pin "2")))
+    (net (code "3") (name "/A") (node (ref "U1") (pin "1")) (node (ref "R3") (pin "1")) (node (ref "R4") (pin "1")))
+    (net (code "4") (name "/B") (node (ref "U1") (pin "2")) (node (ref "R2") (pin "1")) (node (ref "R1") (pin "1")) (node (ref "R5") (pin "1")))
+    (net (code "5") (name "/C") (node (ref "U1") (pin "3")) (node (ref "U1") (pin "4")))))
+"#;
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = super::build(&nl, &cl, &rules, Default::default());
+        let net = |name: &str| nl.net_by_name(name).expect("net on the test board");
+        let refs = |n: usize| -> Vec<&str> {
+            cx.unreadable(n)
+                .map(|c| nl.components[c].reference.as_str())
+                .collect()
+        };
+        // in the order of the parts, whichever order the net's nodes are in
+        assert_eq!(refs(net("/B")), ["R1", "R2", "R5"]);
+        assert_eq!(refs(net("/A")), ["R3"]);
+        for n in [net("/C"), net("+5V"), net("GND")] {
+            assert!(refs(n).is_empty(), "{}", nl.nets[n].name.as_str());
+            assert!(!cx.nets[n].has_unreadable());
+        }
+        for n in [net("/A"), net("/B")] {
+            assert!(cx.nets[n].has_unreadable());
+            // something holds the net: the checks do not call its inputs floating as well
+            assert!(cx.nets[n].own_source());
+            for c in cx.unreadable(n) {
+                let value = nl.components[c].value_str();
+                let want = crate::values::parse_resistance(value).map(|r| r.ohms);
+                assert!(want.is_err(), "{value}");
+                assert_eq!(cx.resistor_value(c), Some(&want));
+            }
+        }
+        // /A's pull resistor R4 reads: a pull, in the net's extras; /B has nothing else
+        assert_eq!(cx.nets[net("/A")].pulls().len(), 1);
+        assert!(cx.nets[net("/B")].extras.is_none());
     }
 }
