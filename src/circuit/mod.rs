@@ -338,10 +338,9 @@ pub struct NetModel {
     pub loads: InPlace2<Load>,
     /// Connector pins: the net leaves the board.
     pub connectors: ThinVec<PinRef>,
-    /// Capacitors, diodes and other passives not counted above.
+    /// Capacitors, diodes and other passives not counted above. (Supply and ground pins are
+    /// in no list: what they power is read from the parts' supplies, [`Circuit::supplies`].)
     pub passives: ThinVec<PinRef>,
-    /// Supply and ground pins on this net.
-    pub power_pins: ThinVec<PinRef>,
     /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
     /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
     pub rail_named_local: bool,
@@ -504,7 +503,6 @@ impl NetModel {
         self.loads.shrink_to_fit();
         self.connectors.shrink_to_fit();
         self.passives.shrink_to_fit();
-        self.power_pins.shrink_to_fit();
         match &mut self.extras {
             Some(e) if e.is_empty() => self.extras = None,
             Some(e) => e.fit(),
@@ -825,14 +823,16 @@ enum Slot {
     Load,
     Connector,
     Passive,
+    /// A supply or ground pin: in no list of its net (the parts' supplies say what it powers).
     Power,
+    /// In the net's extras, allocated on first use.
     Unknown,
     /// A bidirectional pin: a driver and a load.
     DriverAndLoad,
 }
 
-/// The lists counted per net ([`Slot`] up to `Unknown`).
-const SLOT_LISTS: usize = 6;
+/// The lists counted per net ([`Slot`] up to `Passive`).
+const SLOT_LISTS: usize = 4;
 
 /// Where a pin of a part of `kind` with `role` goes: a connector's pins are the net leaving
 /// the board (a driver too, when the configuration names the family driving it); passives'
@@ -1073,6 +1073,7 @@ pub fn build<'n, 'a>(
                     count(&mut n[Slot::Driver as usize]);
                     count(&mut n[Slot::Load as usize]);
                 }
+                Slot::Power | Slot::Unknown => {}
                 slot => count(&mut n[slot as usize]),
             }
         }
@@ -1083,7 +1084,6 @@ pub fn build<'n, 'a>(
         nm.loads = InPlace2::with_capacity(list(Slot::Load));
         nm.connectors = ThinVec::with_capacity(list(Slot::Connector));
         nm.passives = ThinVec::with_capacity(list(Slot::Passive));
-        nm.power_pins = ThinVec::with_capacity(list(Slot::Power));
     }
     drop(counts);
     let mut part_logic: Vec<PartLogic> = Vec::with_capacity(nl.components.len());
@@ -1158,7 +1158,7 @@ pub fn build<'n, 'a>(
                     });
                     nm.loads.push(load());
                 }
-                Slot::Power => nm.power_pins.push(at),
+                Slot::Power => {}
                 Slot::Unknown => nm.extras_mut().unknown.push(at),
             }
         }
