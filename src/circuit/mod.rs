@@ -331,7 +331,19 @@ pub struct LedPath {
 /// (`nm.pulls()`, `nm.series()` ...): a board has about as many nets as it has pins.
 #[derive(Debug, Clone, Default)]
 pub struct NetModel {
-    pub rail: Option<Rail>,
+    /// Its rail's voltage, when it is a rail whose voltage is known ([`RAIL_VOLTS`]).
+    volts: f64,
+    /// Its rail, read as a [`Rail`] ([`NetModel::rail`]): whether it is one ([`RAIL`]), its
+    /// voltage known ([`RAIL_VOLTS`]), ground ([`RAIL_GROUND`]), and why it is one (a
+    /// [`RailSource`] above [`RAIL_SOURCE_SHIFT`]). The rail, the source and the flags take
+    /// what one `Option<Rail>` took: a board has about as many nets as it has pins.
+    rail_bits: u8,
+    /// What sets its level, read as a [`Source`] ([`NetModel::source`]): one of the
+    /// `SOURCE_*` kinds, with the link's index in `through` for [`Source::Through`].
+    source_kind: u8,
+    /// [`RAIL_NAMED_LOCAL`] and [`HAS_UNREADABLE`].
+    flags: u8,
+    through: u32,
     /// Its outputs (and bidirectional pins): the first in place.
     pub drivers: InPlace1<Driver>,
     /// Its logic inputs (and bidirectional pins): the first two in place.
@@ -341,18 +353,31 @@ pub struct NetModel {
     /// Capacitors, diodes and other passives not counted above. (Supply and ground pins are
     /// in no list: what they power is read from the parts' supplies, [`Circuit::supplies`].)
     pub passives: ThinVec<PinRef>,
-    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
-    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
-    pub rail_named_local: bool,
-    /// A resistor whose value could not be read joins it to a rail: the resistors are listed
-    /// by the circuit ([`Circuit::unreadable`]), since on most boards no net has one and on a
-    /// board of misread values every such net has one.
-    has_unreadable: bool,
-    /// What sets the level, as the model found it (`None`: nothing, in some state).
-    pub source: Option<Source>,
     /// The rarer lists; `None` while all of them are empty.
     extras: Option<Box<NetExtras>>,
 }
+
+/// [`NetModel::rail_bits`]: the net is a rail.
+const RAIL: u8 = 1;
+/// The rail's voltage is known (in [`NetModel::volts`]).
+const RAIL_VOLTS: u8 = 2;
+/// The rail is ground.
+const RAIL_GROUND: u8 = 4;
+/// The rail's [`RailSource`], in the bits above this.
+const RAIL_SOURCE_SHIFT: u32 = 3;
+/// [`NetModel::source_kind`]: nothing found sets the level (in some state).
+const SOURCE_NONE: u8 = 0;
+const SOURCE_OWN: u8 = 1;
+const SOURCE_THROUGH: u8 = 2;
+const SOURCE_SELECTOR: u8 = 3;
+/// [`NetModel::flags`]: the net's name says rail (`/disp/VDD`) but it is a sheet-local net
+/// that reaches no rail: outputs typed by an unknown symbol on it are taken as the symbol's
+/// slip.
+const RAIL_NAMED_LOCAL: u8 = 1;
+/// A resistor whose value could not be read joins it to a rail: the resistors are listed by
+/// the circuit ([`Circuit::unreadable`]), since on most boards no net has one and on a board
+/// of misread values every such net has one.
+const HAS_UNREADABLE: u8 = 2;
 
 /// The lists of a net that most nets leave empty (see [`NetModel`]).
 #[derive(Debug, Clone, Default)]
@@ -496,6 +521,79 @@ pub enum Source {
 }
 
 impl NetModel {
+    /// The net's rail, if it is one.
+    #[inline]
+    pub fn rail(&self) -> Option<Rail> {
+        if self.rail_bits & RAIL == 0 {
+            return None;
+        }
+        Some(Rail {
+            volts: (self.rail_bits & RAIL_VOLTS != 0).then_some(self.volts),
+            ground: self.rail_bits & RAIL_GROUND != 0,
+            source: match self.rail_bits >> RAIL_SOURCE_SHIFT {
+                0 => RailSource::Name,
+                1 => RailSource::PowerOutput,
+                2 => RailSource::User,
+                _ => RailSource::Usage,
+            },
+        })
+    }
+
+    /// Makes the net a rail (`Some`) or not (`None`).
+    pub fn set_rail(&mut self, rail: Option<Rail>) {
+        let Some(r) = rail else {
+            self.rail_bits = 0;
+            self.volts = 0.0;
+            return;
+        };
+        let source = match r.source {
+            RailSource::Name => 0,
+            RailSource::PowerOutput => 1,
+            RailSource::User => 2,
+            RailSource::Usage => 3,
+        };
+        self.volts = r.volts.unwrap_or(0.0);
+        self.rail_bits = RAIL
+            | if r.volts.is_some() { RAIL_VOLTS } else { 0 }
+            | if r.ground { RAIL_GROUND } else { 0 }
+            | source << RAIL_SOURCE_SHIFT;
+    }
+
+    /// What sets the level, as the model found it (`None`: nothing, in some state).
+    #[inline]
+    pub fn source(&self) -> Option<Source> {
+        match self.source_kind {
+            SOURCE_NONE => None,
+            SOURCE_OWN => Some(Source::Own),
+            SOURCE_THROUGH => Some(Source::Through(self.through)),
+            _ => Some(Source::Selector),
+        }
+    }
+
+    fn set_source(&mut self, source: Option<Source>) {
+        (self.source_kind, self.through) = match source {
+            None => (SOURCE_NONE, 0),
+            Some(Source::Own) => (SOURCE_OWN, 0),
+            Some(Source::Through(l)) => (SOURCE_THROUGH, l),
+            Some(Source::Selector) => (SOURCE_SELECTOR, 0),
+        };
+    }
+
+    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
+    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
+    #[inline]
+    pub fn rail_named_local(&self) -> bool {
+        self.flags & RAIL_NAMED_LOCAL != 0
+    }
+
+    fn set_flag(&mut self, flag: u8, on: bool) {
+        if on {
+            self.flags |= flag;
+        } else {
+            self.flags &= !flag;
+        }
+    }
+
     /// Trims every list to its length: a list grown by pushes holds room for four or more,
     /// and a board has as many nets as it has pins. Extras left empty are dropped.
     fn fit(&mut self) {
@@ -514,56 +612,54 @@ impl NetModel {
     pub fn own_source(&self) -> bool {
         // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
         // reports it); calling the inputs floating as well would be a cascade
-        self.rail.is_some()
+        self.rail_bits & RAIL != 0
             || self
                 .drivers
                 .iter()
-                .any(|d| !(d.symbol_only && self.rail_named_local))
+                .any(|d| !(d.symbol_only && self.rail_named_local()))
             || !self.pulls().is_empty()
             || !self.held().is_empty()
             || !self.connectors.is_empty()
-            || self.has_unreadable
+            || self.has_unreadable()
             || !self.unknown().is_empty()
     }
 
     /// True when a resistor whose value could not be read joins the net to a rail (which
     /// ones: [`Circuit::unreadable`]).
+    #[inline]
     pub fn has_unreadable(&self) -> bool {
-        self.has_unreadable
+        self.flags & HAS_UNREADABLE != 0
     }
 
     /// True when something on this board or off it can set the net's level in every
     /// position of its switches: on the net, through a series element, or by a selector.
     pub fn has_source(&self) -> bool {
-        self.source.is_some() || self.own_source()
+        self.source_kind != SOURCE_NONE || self.own_source()
     }
 }
 
-/// Each net's rail as its model holds it (`nets[i].rail`), read by net index (`rail[i]`)
-/// while the model is built, and written while rails are inferred from their pins: the rails
-/// are kept in the nets' models from the start, with no table of their own.
+/// Each net's rail as its model holds it (`nets[i].rail()`), read by net index
+/// (`rail.get(i)`) while the model is built, and written while rails are inferred from their
+/// pins (`rail.set(i, ...)`): the rails are kept in the nets' models from the start, with no
+/// table of their own.
 pub struct RailsOf<N>(N);
 
-impl std::ops::Index<usize> for RailsOf<&[NetModel]> {
-    type Output = Option<Rail>;
+impl RailsOf<&[NetModel]> {
     #[inline]
-    fn index(&self, net: usize) -> &Option<Rail> {
-        &self.0[net].rail
+    pub fn get(&self, net: usize) -> Option<Rail> {
+        self.0[net].rail()
     }
 }
 
-impl std::ops::Index<usize> for RailsOf<&mut [NetModel]> {
-    type Output = Option<Rail>;
+impl RailsOf<&mut [NetModel]> {
     #[inline]
-    fn index(&self, net: usize) -> &Option<Rail> {
-        &self.0[net].rail
+    pub fn get(&self, net: usize) -> Option<Rail> {
+        self.0[net].rail()
     }
-}
 
-impl std::ops::IndexMut<usize> for RailsOf<&mut [NetModel]> {
     #[inline]
-    fn index_mut(&mut self, net: usize) -> &mut Option<Rail> {
-        &mut self.0[net].rail
+    pub fn set(&mut self, net: usize, rail: Option<Rail>) {
+        self.0[net].set_rail(rail);
     }
 }
 
@@ -682,7 +778,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
     /// The resistors from net `net` to a rail whose values could not be read, in the order
     /// the model found them (why each cannot be read: [`Circuit::resistor_value`]).
     pub fn unreadable(&self, net: usize) -> impl Iterator<Item = usize> + '_ {
-        let found: &[(u32, u32)] = if self.nets[net].has_unreadable {
+        let found: &[(u32, u32)] = if self.nets[net].has_unreadable() {
             let net = small(net);
             let from = self.unreadable.partition_point(|&(n, _)| n < net);
             let to = from + self.unreadable[from..].partition_point(|&(n, _)| n == net);
@@ -792,7 +888,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
             }
             Some(s) => {
                 let why = match s.supply_net() {
-                    Some(n) if self.nets[n].rail.is_some() => format!(
+                    Some(n) if self.nets[n].rail().is_some() => format!(
                         "the voltage of {} is not known: declare it with --rail",
                         self.net_name(n)
                     ),
@@ -921,28 +1017,33 @@ pub fn build<'n, 'a>(
             n == net.name.as_str()
                 || n.trim_start_matches('/') == net.name.as_str().trim_start_matches('/')
         }) {
-            rail[i] = Some(Rail {
-                volts: Some(*v),
-                ground: *v == 0.0,
-                source: RailSource::User,
-            });
+            rail.set(
+                i,
+                Some(Rail {
+                    volts: Some(*v),
+                    ground: *v == 0.0,
+                    source: RailSource::User,
+                }),
+            );
             continue;
         }
         match rails::rail_from_name(net.name.as_str()) {
-            Some(rails::NameRail::Ground) => {
-                rail[i] = Some(Rail {
+            Some(rails::NameRail::Ground) => rail.set(
+                i,
+                Some(Rail {
                     volts: Some(0.0),
                     ground: true,
                     source: RailSource::Name,
-                })
-            }
-            Some(rails::NameRail::Supply(v)) => {
-                rail[i] = Some(Rail {
+                }),
+            ),
+            Some(rails::NameRail::Supply(v)) => rail.set(
+                i,
+                Some(Rail {
                     volts: v,
                     ground: false,
                     source: RailSource::Name,
-                })
-            }
+                }),
+            ),
             None => {}
         }
     }
@@ -951,12 +1052,15 @@ pub fn build<'n, 'a>(
             if p.ptype() == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
                 if let Connection::Net { net, .. } = p.connection {
                     let net = net as usize;
-                    if rail[net].is_none() {
-                        rail[net] = Some(Rail {
-                            volts: None,
-                            ground: false,
-                            source: RailSource::PowerOutput,
-                        });
+                    if rail.get(net).is_none() {
+                        rail.set(
+                            net,
+                            Some(Rail {
+                                volts: None,
+                                ground: false,
+                                source: RailSource::PowerOutput,
+                            }),
+                        );
                     }
                 }
             }
@@ -988,7 +1092,7 @@ pub fn build<'n, 'a>(
         }
         let railv = supply_net
             .map(|n: u32| n as usize)
-            .and_then(|n| rail[n])
+            .and_then(|n| rail.get(n))
             .and_then(|r| r.v())
             .filter(|v| *v > 0.0);
         // thresholds are taken against 0 V: a ground pin on a rail other than 0 V is the
@@ -1189,11 +1293,11 @@ pub fn build<'n, 'a>(
                 continue;
             }
             for ((p_here, n_here), n_other) in [((pa, na), nb), ((pb, nb), na)] {
-                if nets[n_here].rail.is_some() {
+                if nets[n_here].rail().is_some() {
                     continue;
                 }
                 let at = PinRef::new(ci, p_here);
-                let Some(r) = nets[n_other].rail else {
+                let Some(r) = nets[n_other].rail() else {
                     nets[n_here].extras_mut().series.push(SeriesLink {
                         part: ci,
                         at,
@@ -1216,7 +1320,7 @@ pub fn build<'n, 'a>(
                     },
                     (None, Some(_)) => {
                         unreadable.push((small(n_here), small(ci)));
-                        nets[n_here].has_unreadable = true;
+                        nets[n_here].set_flag(HAS_UNREADABLE, true);
                     }
                     _ => {}
                 }
@@ -1236,11 +1340,12 @@ pub fn build<'n, 'a>(
     for (i, net) in nl.nets.iter().enumerate() {
         let name = net.name.as_str();
         let local = name.trim_start_matches('/').contains('/');
-        if local && nets[i].rail.is_none() {
+        if local && nets[i].rail().is_none() {
             let last = name.rsplit('/').next().unwrap_or("");
-            nets[i].rail_named_local = *rail_named
+            let named = *rail_named
                 .entry(last)
                 .or_insert_with(|| rails::rail_from_name(last).is_some());
+            nets[i].set_flag(RAIL_NAMED_LOCAL, named);
         }
     }
     // inductors and ferrite beads: series elements of no resistance to speak of
@@ -1255,7 +1360,7 @@ pub fn build<'n, 'a>(
             continue;
         }
         for (pi, here, other) in [(0, na, nb), (1, nb, na)] {
-            if nets[here].rail.is_none() {
+            if nets[here].rail().is_none() {
                 nets[here].extras_mut().series.push(SeriesLink {
                     part: ci,
                     at: PinRef::new(ci, pi),
@@ -1409,7 +1514,7 @@ fn resistor_elements(
         .enumerate()
         .filter_map(|(pi, p)| match p.connection {
             Connection::Net { net, .. } => Some((pi, net as usize)),
-            Connection::Alone { net, .. } if rail[net as usize].is_some() => {
+            Connection::Alone { net, .. } if rail.get(net as usize).is_some() => {
                 Some((pi, net as usize))
             }
             _ => None,
@@ -1431,7 +1536,7 @@ fn resistor_elements(
     let isolated_symbol = symbol.starts_with("r_pack") || symbol.starts_with("r_array");
     let on_rail: Vec<&(usize, usize)> = pin_nets
         .iter()
-        .filter(|(_, n)| rail[*n].is_some())
+        .filter(|(_, n)| rail.get(*n).is_some())
         .collect();
     let common = if bussed_symbol {
         // the common pin is pin 1 on the usual SIP networks
@@ -1497,22 +1602,22 @@ fn switch_elements(nl: &Netlist<'_>, c: &crate::netlist::Component<'_>) -> Vec<(
 fn settle_sources(nets: &mut [NetModel]) {
     for nm in nets.iter_mut() {
         if nm.own_source() {
-            nm.source = Some(Source::Own);
+            nm.set_source(Some(Source::Own));
         }
     }
     loop {
         let mut changed = false;
         for i in 0..nets.len() {
-            if nets[i].source.is_some() {
+            if nets[i].source().is_some() {
                 continue;
             }
             let through = nets[i]
                 .series()
                 .iter()
-                .position(|l| nets[l.other_net].source.is_some());
+                .position(|l| nets[l.other_net].source().is_some());
             if let Some(l) = through {
                 let l = u32::try_from(l).expect("fewer than 2^32 series links on a net");
-                nets[i].source = Some(Source::Through(l));
+                nets[i].set_source(Some(Source::Through(l)));
                 changed = true;
                 continue;
             }
@@ -1521,13 +1626,13 @@ fn settle_sources(nets: &mut [NetModel]) {
             let links: Vec<&SwitchLink> = nets[i]
                 .switches()
                 .iter()
-                .filter(|l| nets[l.other_net].source.is_some())
+                .filter(|l| nets[l.other_net].source().is_some())
                 .collect();
             let selector = links
                 .iter()
                 .any(|a| links.iter().filter(|b| b.part == a.part).count() >= 2);
             if selector {
-                nets[i].source = Some(Source::Selector);
+                nets[i].set_source(Some(Source::Selector));
                 changed = true;
             }
         }
@@ -1538,7 +1643,7 @@ fn settle_sources(nets: &mut [NetModel]) {
     // the nets each net feeds through series elements, followed to the end of the chain
     let direct: Vec<Option<(usize, u32)>> = nets
         .iter()
-        .map(|nm| match nm.source {
+        .map(|nm| match nm.source() {
             Some(Source::Through(l)) => {
                 let l = &nm.series()[l as usize];
                 Some((l.other_net, small(l.part)))
@@ -1558,13 +1663,13 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
     }
     for i in 0..nets.len() {
-        if nets[i].source.is_some() {
+        if nets[i].source().is_some() {
             continue;
         }
         let links: ThinVec<SwitchLink> = nets[i]
             .switches()
             .iter()
-            .filter(|l| nets[l.other_net].source.is_some())
+            .filter(|l| nets[l.other_net].source().is_some())
             .copied()
             .collect();
         if !links.is_empty() {
@@ -1613,7 +1718,7 @@ fn rails_by_usage(
     }
     let mut notes = Vec::new();
     for net in 0..n_nets {
-        if rail[net].is_some() || outputs[net] {
+        if rail.get(net).is_some() || outputs[net] {
             continue;
         }
         let name = nl.nets[net].name.as_str();
@@ -1624,11 +1729,14 @@ fn rails_by_usage(
         let (s, g) = (supply_pins[net], ground_pins[net]);
         let enough = |k: usize| k >= 2 || (k == 1 && logic_pins[net] == 0);
         if g > 0 && s == 0 && enough(g) {
-            rail[net] = Some(Rail {
-                volts: Some(0.0),
-                ground: true,
-                source: RailSource::Usage,
-            });
+            rail.set(
+                net,
+                Some(Rail {
+                    volts: Some(0.0),
+                    ground: true,
+                    source: RailSource::Usage,
+                }),
+            );
             notes.push(RailNote {
                 net,
                 volts: Some(0.0),
@@ -1638,11 +1746,14 @@ fn rails_by_usage(
                 power_pins: g,
             });
         } else if s > 0 && g == 0 && enough(s) {
-            rail[net] = Some(Rail {
-                volts: None,
-                ground: false,
-                source: RailSource::Usage,
-            });
+            rail.set(
+                net,
+                Some(Rail {
+                    volts: None,
+                    ground: false,
+                    source: RailSource::Usage,
+                }),
+            );
             notes.push(RailNote {
                 net,
                 volts: None,
@@ -1678,22 +1789,26 @@ fn rails_by_usage(
         let Some(net) = pin.and_then(|p| p.connection.net()) else {
             continue;
         };
-        if let Some(r) = rail[net].as_mut() {
+        if let Some(mut r) = rail.get(net) {
             if r.volts.is_none() && !r.ground {
                 r.volts = Some(volts);
+                rail.set(net, Some(r));
                 note_for(&mut notes, net, volts, Inferred::Regulator { comp: ci });
             }
         } else {
-            rail[net] = Some(Rail {
-                volts: Some(volts),
-                ground: false,
-                source: RailSource::PowerOutput,
-            });
+            rail.set(
+                net,
+                Some(Rail {
+                    volts: Some(volts),
+                    ground: false,
+                    source: RailSource::PowerOutput,
+                }),
+            );
             note_for(&mut notes, net, volts, Inferred::Regulator { comp: ci });
         }
     }
     for net in 0..n_nets {
-        let Some(r) = rail[net].as_mut() else {
+        let Some(mut r) = rail.get(net) else {
             continue;
         };
         if r.volts.is_some() || r.ground || r.source == RailSource::User {
@@ -1722,6 +1837,7 @@ fn rails_by_usage(
         }
         if let (true, Some(v)) = (agree, single) {
             r.volts = Some(v);
+            rail.set(net, Some(r));
             let comps = powered[net].clone();
             note_for(
                 &mut notes,
@@ -1813,7 +1929,7 @@ fn follow_to_ground<'n>(
             }
             let (net, v) = d.commons.iter().find_map(|&pi| {
                 let n = c.pins[pi].connection.net()?;
-                Some((n, rail[n]?.v()?))
+                Some((n, rail.get(n)?.v()?))
             })?;
             // a common cathode on a positive rail, or a common anode on ground, never lights
             // from this side
@@ -1846,7 +1962,7 @@ fn follow_to_ground<'n>(
         }
         let other = 1 - cur.pin();
         let net = c.pins[other].connection.net()?;
-        if let Some(r) = rail[net] {
+        if let Some(r) = rail.get(net) {
             return Some(LedPath {
                 at: start,
                 vf: sum_vf(&leds),
@@ -2017,8 +2133,10 @@ mod size_tests {
         use super::{Driver, Load};
         // 88 with its drivers and loads in lists of their own; a net with one driver and two
         // loads then held two blocks of 48 bytes besides; 128 while its drivers and loads
-        // were `SmallVec`s (24 and 32 bytes, where its own lists take 16 and 24)
-        assert!(size_of::<NetModel>() <= 112, "{}", size_of::<NetModel>());
+        // were `SmallVec`s (24 and 32 bytes, where its own lists take 16 and 24); 112 while
+        // it kept a list of its supply pins and its rail (24 bytes), source (8) and flags
+        // apart
+        assert!(size_of::<NetModel>() <= 80, "{}", size_of::<NetModel>());
         assert!(
             size_of::<super::in_place::InPlace1<Driver>>() <= 16,
             "{}",
@@ -2143,5 +2261,85 @@ mod unreadable_tests {
         // /A's pull resistor R4 reads: a pull, in the net's extras; /B has nothing else
         assert_eq!(cx.nets[net("/A")].pulls().len(), 1);
         assert!(cx.nets[net("/B")].extras.is_none());
+    }
+}
+
+#[cfg(test)]
+mod packed_tests {
+    use super::{NetModel, Rail, RailSource, Source};
+
+    /// A net's rail, source and flags are held in a few bits beside one number: each reads
+    /// back as it was set, whatever was set before, and setting one leaves the others.
+    #[test]
+    fn a_net_s_rail_source_and_flags_read_back_as_set() {
+        let sources = [
+            RailSource::Name,
+            RailSource::PowerOutput,
+            RailSource::User,
+            RailSource::Usage,
+        ];
+        let mut rails = vec![None];
+        for volts in [
+            None,
+            Some(0.0),
+            Some(5.0),
+            Some(-12.0),
+            Some(3.3),
+            Some(f64::NAN),
+        ] {
+            for ground in [false, true] {
+                for source in sources {
+                    rails.push(Some(Rail {
+                        volts,
+                        ground,
+                        source,
+                    }));
+                }
+            }
+        }
+        let net_sources = [
+            None,
+            Some(Source::Own),
+            Some(Source::Through(0)),
+            Some(Source::Through(7)),
+            Some(Source::Through(u32::MAX)),
+            Some(Source::Selector),
+        ];
+        // a `Rail` with a NaN voltage equals no other: compare the bits
+        let same = |a: Option<Rail>, b: Option<Rail>| match (a, b) {
+            (None, None) => true,
+            (Some(a), Some(b)) => {
+                a.volts.map(f64::to_bits) == b.volts.map(f64::to_bits)
+                    && a.ground == b.ground
+                    && a.source == b.source
+            }
+            _ => false,
+        };
+        let mut nm = NetModel::default();
+        assert!(nm.rail().is_none() && nm.source().is_none());
+        assert!(!nm.rail_named_local() && !nm.has_unreadable());
+        for (k, &rail) in rails.iter().enumerate() {
+            for (j, &source) in net_sources.iter().enumerate() {
+                let (local, unreadable) = ((k + j) % 2 == 0, (k + j) % 3 == 0);
+                nm.set_rail(rail);
+                nm.set_source(source);
+                nm.set_flag(super::RAIL_NAMED_LOCAL, local);
+                nm.set_flag(super::HAS_UNREADABLE, unreadable);
+                assert!(same(nm.rail(), rail), "{rail:?}");
+                assert_eq!(nm.source(), source);
+                assert_eq!(nm.rail_named_local(), local);
+                assert_eq!(nm.has_unreadable(), unreadable);
+                // a rail, a source or an unreadable resistor holds the net
+                assert_eq!(
+                    nm.has_source(),
+                    rail.is_some() || source.is_some() || unreadable
+                );
+                // the rail set again leaves the source and the flags
+                nm.set_rail(rails[(k + 1) % rails.len()]);
+                assert_eq!(nm.source(), source);
+                assert_eq!(nm.rail_named_local(), local);
+                assert_eq!(nm.has_unreadable(), unreadable);
+            }
+        }
     }
 }

@@ -54,7 +54,7 @@ pub fn write_net(
 ) -> io::Result<()> {
     let nm = &cx.nets[net];
     writeln!(out, "net {}", sanitize(&cx.net_name(net)))?;
-    if let Some(r) = nm.rail {
+    if let Some(r) = nm.rail() {
         writeln!(
             out,
             "  a rail: {}",
