@@ -688,11 +688,13 @@ pub struct Circuit<'n, 'a> {
     /// (net, resistor) for each resistor from a net to a rail whose value could not be read,
     /// in net order ([`Circuit::unreadable`]).
     unreadable: Vec<(u32, u32)>,
-    /// Each part's family's table entry, looked up once ([`Circuit::family`]).
-    families: Vec<Option<&'n Family>>,
+    /// Each part's family's table entry, looked up once ([`Circuit::family`]), read by part
+    /// from one entry per family ([`PerPart`]).
+    families: PerPart<Option<&'n Family>>,
     /// Each part's figures and family id as its drivers and loads read them
     /// ([`Driver::levels`], [`Load::family`] ...).
-    pub part_logic: Vec<PartLogic>,
+    /// Parts alike on the same supply share one entry ([`PerPart`]).
+    pub part_logic: PerPart<PartLogic>,
 }
 
 /// A resistor's or resistor network's value as read: its ohms (each element's, for a
@@ -1190,7 +1192,8 @@ pub fn build<'n, 'a>(
         nm.passives = ThinVec::with_capacity(list(Slot::Passive));
     }
     drop(counts);
-    let mut part_logic: Vec<PartLogic> = Vec::with_capacity(nl.components.len());
+    // parts with the same figures and family share one entry, told by their addresses
+    let mut part_logic = PerPartBuilder::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let mut logic = PartLogic {
@@ -1266,8 +1269,13 @@ pub fn build<'n, 'a>(
                 Slot::Unknown => nm.extras_mut().unknown.push(at),
             }
         }
-        part_logic.push(logic);
+        let key = (
+            logic.levels.as_ref().map(Arc::as_ptr),
+            logic.family.as_ref().map(|f| Arc::as_ptr(&f.0)),
+        );
+        part_logic.push(key, || logic);
     }
+    let part_logic = part_logic.finish();
 
     let mut readings = ValueReadings::default();
     // (net, resistor) for each resistor to a rail whose value cannot be read, in the order
@@ -1461,22 +1469,22 @@ pub fn build<'n, 'a>(
 
 /// Each part's family's table entry: looked up once per distinct family text (parts alike
 /// share one), so the model and the checks never look a family up by its name again.
-fn part_families<'n>(cl: &Classified, rules: &'n Rules) -> Vec<Option<&'n Family>> {
+fn part_families<'n>(cl: &Classified, rules: &'n Rules) -> PerPart<Option<&'n Family>> {
     let mut last: Option<(&str, Option<&'n Family>)> = None;
-    cl.parts
-        .iter()
-        .map(|part| {
-            let id = part.family.as_deref()?;
-            match last {
-                Some((l, f)) if l == id => f,
-                _ => {
-                    let f = rules.families.get(id);
-                    last = Some((id, f));
-                    f
-                }
+    let mut table = PerPartBuilder::with_capacity(cl.parts.len());
+    for part in &cl.parts {
+        let f = part.family.as_deref().and_then(|id| match last {
+            Some((l, f)) if l == id => f,
+            _ => {
+                let f = rules.families.get(id);
+                last = Some((id, f));
+                f
             }
-        })
-        .collect()
+        });
+        // told by the entry's address: one family is one entry of the table
+        table.push(f.map(std::ptr::from_ref), || f);
+    }
+    table.finish()
 }
 
 /// A one-pin part that stands for a pull-up or pull-down (`PULLUP`, `rpullup`, `pull_down`).
@@ -1685,7 +1693,7 @@ fn settle_sources(nets: &mut [NetModel]) {
 fn rails_by_usage(
     nl: &Netlist<'_>,
     cl: &Classified,
-    families: &[Option<&Family>],
+    families: &PerPart<Option<&Family>>,
     rail: &mut RailsOf<&mut [NetModel]>,
 ) -> Vec<RailNote> {
     let n_nets = nl.nets.len();

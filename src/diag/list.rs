@@ -320,6 +320,7 @@ const SLOTS: usize = 6;
 
 /// Orders the texts made of `a`'s parts and of `b`'s as the texts themselves are ordered
 /// (byte by byte), with no text made.
+#[inline]
 pub fn cmp_parts(a: [&str; 3], b: [&str; 3]) -> std::cmp::Ordering {
     let (mut a, mut b) = (a.map(str::as_bytes), b.map(str::as_bytes));
     let (mut i, mut j) = (0, 0);
