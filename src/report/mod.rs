@@ -394,7 +394,8 @@ fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, st: &mut KeyHas
 /// looked up. Only the others are counted, by hash, each hash with the first finding that had
 /// it; a hash met again is checked against that finding's key, and a different key with the
 /// same hash is counted apart by its text. Findings with one key have one hash and one slot,
-/// so all of them are counted. What is held is a quarter of a word a finding for the slots,
+/// so all of them are counted. What is held is a quarter of a word a finding for the slots
+/// while the hashes are first worked out, then half that (only "met again" is read after),
 /// and the table of the findings counted: each hash is worked out again as its finding is
 /// given (the code's part of it once for a run of findings of one check), not kept, and no
 /// key is kept as text unless two differ with one hash.
@@ -420,9 +421,20 @@ fn key_ranks(
         let met = (slots[word] >> at) & 1;
         slots[word] |= (1 | (met << 1)) << at;
     }
+    // only "met again" is read from here on: one bit a slot, packed into the table's first
+    // half in place and the rest given back (each word's 32 bits are read from the words at
+    // and after it, which are not yet written over)
+    let words = slots.len().div_ceil(2);
+    for w in 0..words {
+        let low = again_bits(slots[2 * w]);
+        let high = slots.get(2 * w + 1).map_or(0, |&x| again_bits(x));
+        slots[w] = low | (high << 32);
+    }
+    slots.truncate(words);
+    slots.shrink_to_fit();
     let again = move |h: u64| {
         let s = slot(h);
-        (slots[s / 32] >> (2 * (s % 32))) & 2 != 0
+        (slots[s / 64] >> (s % 64)) & 1 != 0
     };
     // a hash of a finding counted -> (the first finding with it, how many findings had its
     // key so far)
@@ -455,6 +467,18 @@ fn key_ranks(
         };
         (h, n)
     })
+}
+
+/// The "met again" bits of a word of two-bit slots (the odd bits), gathered into its low
+/// 32 bits in order.
+#[inline]
+fn again_bits(x: u64) -> u64 {
+    let mut x = (x >> 1) & 0x5555_5555_5555_5555;
+    x = (x | (x >> 1)) & 0x3333_3333_3333_3333;
+    x = (x | (x >> 2)) & 0x0f0f_0f0f_0f0f_0f0f;
+    x = (x | (x >> 4)) & 0x00ff_00ff_00ff_00ff;
+    x = (x | (x >> 8)) & 0x0000_ffff_0000_ffff;
+    (x | (x >> 16)) & 0x0000_0000_ffff_ffff
 }
 
 /// The fingerprint of a file's fatal diagnostic.
@@ -700,6 +724,20 @@ mod tests {
             fnv1a64_more(fnv1a64(a.as_bytes()), b.as_bytes()),
             fnv1a64(whole.as_bytes())
         );
+    }
+
+    /// The "met again" bits of two-bit slots come out one bit a slot, in slot order.
+    #[test]
+    fn again_bits_keep_each_slot_s_second_bit_in_order() {
+        let mut x: u64 = 0x9e37_79b9_7f4a_7c15;
+        for _ in 0..200 {
+            x = x.rotate_left(13).wrapping_mul(0x0100_0000_01b3) ^ 0x5bd1_e995;
+            let want = (0..32).fold(0u64, |w, k| w | (((x >> (2 * k + 1)) & 1) << k));
+            assert_eq!(again_bits(x), want, "{x:#x}");
+        }
+        assert_eq!(again_bits(u64::MAX), 0xffff_ffff);
+        assert_eq!(again_bits(0x5555_5555_5555_5555), 0);
+        assert_eq!(again_bits(0b1000), 0b10);
     }
 
     /// Ranks counted by hash equal ranks counted by the key's text, even when every key
