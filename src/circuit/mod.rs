@@ -2213,66 +2213,6 @@ mod size_tests {
 }
 
 #[cfg(test)]
-mod unreadable_tests {
-    /// Resistors to a rail whose values do not read are listed by the circuit, net by net in
-    /// the order found (a resistor listed once for each of its elements on the net), each net
-    /// marked; the reading each gives is its value's, and a net with only them holds no
-    /// extras.
-    #[test]
-    fn each_net_lists_its_unreadable_resistors_in_order() {
-        // values that do not read as resistances (IEC 60062: one multiplier letter): `4K7Q`,
-        // `4K7K`; `4K7` reads
-        const BOARD: &str = r#"(export (version "E")
-  (components
-    (comp (ref "U1") (value "74HC00") (libsource (lib "x") (part "74HC00")))
-    (comp (ref "R1") (value "4K7Q") (libsource (lib "x") (part "R")))
-    (comp (ref "R2") (value "4K7K") (libsource (lib "x") (part "R")))
-    (comp (ref "R3") (value "4K7Q") (libsource (lib "x") (part "R")))
-    (comp (ref "R4") (value "4K7") (libsource (lib "x") (part "R")))
-    (comp (ref "R5") (value "4K7K") (libsource (lib "x") (part "R"))))
-  (nets
-    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "R1") (pin "2")) (node (ref "R2") (pin "2")) (node (ref "R3") (pin "2")) (node (ref "R4") (pin "2")))
-    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "R5") (pin "2")))
-    (net (code "3") (name "/A") (node (ref "U1") (pin "1")) (node (ref "R3") (pin "1")) (node (ref "R4") (pin "1")))
-    (net (code "4") (name "/B") (node (ref "U1") (pin "2")) (node (ref "R2") (pin "1")) (node (ref "R1") (pin "1")) (node (ref "R5") (pin "1")))
-    (net (code "5") (name "/C") (node (ref "U1") (pin "3")) (node (ref "U1") (pin "4")))))
-"#;
-        let rules = crate::classify::classifier::Rules::builtin();
-        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
-        let nl = crate::netlist::build(&tree).expect("test board builds");
-        let cl = crate::classify::classifier::classify(&nl, &rules);
-        let cx = super::build(&nl, &cl, &rules, Default::default());
-        let net = |name: &str| nl.net_by_name(name).expect("net on the test board");
-        let refs = |n: usize| -> Vec<&str> {
-            cx.unreadable(n)
-                .map(|c| nl.components[c].reference.as_str())
-                .collect()
-        };
-        // in the order of the parts, whichever order the net's nodes are in
-        assert_eq!(refs(net("/B")), ["R1", "R2", "R5"]);
-        assert_eq!(refs(net("/A")), ["R3"]);
-        for n in [net("/C"), net("+5V"), net("GND")] {
-            assert!(refs(n).is_empty(), "{}", nl.nets[n].name.as_str());
-            assert!(!cx.nets[n].has_unreadable());
-        }
-        for n in [net("/A"), net("/B")] {
-            assert!(cx.nets[n].has_unreadable());
-            // something holds the net: the checks do not call its inputs floating as well
-            assert!(cx.nets[n].own_source());
-            for c in cx.unreadable(n) {
-                let value = nl.components[c].value_str();
-                let want = crate::values::parse_resistance(value).map(|r| r.ohms);
-                assert!(want.is_err(), "{value}");
-                assert_eq!(cx.resistor_value(c), Some(&want));
-            }
-        }
-        // /A's pull resistor R4 reads: a pull, in the net's extras; /B has nothing else
-        assert_eq!(cx.nets[net("/A")].pulls().len(), 1);
-        assert!(cx.nets[net("/B")].extras.is_none());
-    }
-}
-
-#[cfg(test)]
 mod packed_tests {
     use super::{NetModel, Rail, RailSource, Source};
 
@@ -2349,5 +2289,65 @@ mod packed_tests {
                 assert_eq!(nm.has_unreadable(), unreadable);
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    /// Resistors to a rail whose values do not read are listed by the circuit, net by net in
+    /// the order found (a resistor listed once for each of its elements on the net), each net
+    /// marked; the reading each gives is its value's, and a net with only them holds no
+    /// extras.
+    #[test]
+    fn each_net_lists_its_unreadable_resistors_in_order() {
+        // values that do not read as resistances (IEC 60062: one multiplier letter): `4K7Q`,
+        // `4K7K`; `4K7` reads
+        const BOARD: &str = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74HC00") (libsource (lib "x") (part "74HC00")))
+    (comp (ref "R1") (value "4K7Q") (libsource (lib "x") (part "R")))
+    (comp (ref "R2") (value "4K7K") (libsource (lib "x") (part "R")))
+    (comp (ref "R3") (value "4K7Q") (libsource (lib "x") (part "R")))
+    (comp (ref "R4") (value "4K7") (libsource (lib "x") (part "R")))
+    (comp (ref "R5") (value "4K7K") (libsource (lib "x") (part "R"))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "R1") (pin "2")) (node (ref "R2") (pin "2")) (node (ref "R3") (pin "2")) (node (ref "R4") (pin "2")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "R5") (pin "2")))
+    (net (code "3") (name "/A") (node (ref "U1") (pin "1")) (node (ref "R3") (pin "1")) (node (ref "R4") (pin "1")))
+    (net (code "4") (name "/B") (node (ref "U1") (pin "2")) (node (ref "R2") (pin "1")) (node (ref "R1") (pin "1")) (node (ref "R5") (pin "1")))
+    (net (code "5") (name "/C") (node (ref "U1") (pin "3")) (node (ref "U1") (pin "4")))))
+"#;
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = super::build(&nl, &cl, &rules, Default::default());
+        let net = |name: &str| nl.net_by_name(name).expect("net on the test board");
+        let refs = |n: usize| -> Vec<&str> {
+            cx.unreadable(n)
+                .map(|c| nl.components[c].reference.as_str())
+                .collect()
+        };
+        // in the order of the parts, whichever order the net's nodes are in
+        assert_eq!(refs(net("/B")), ["R1", "R2", "R5"]);
+        assert_eq!(refs(net("/A")), ["R3"]);
+        for n in [net("/C"), net("+5V"), net("GND")] {
+            assert!(refs(n).is_empty(), "{}", nl.nets[n].name.as_str());
+            assert!(!cx.nets[n].has_unreadable());
+        }
+        for n in [net("/A"), net("/B")] {
+            assert!(cx.nets[n].has_unreadable());
+            // something holds the net: the checks do not call its inputs floating as well
+            assert!(cx.nets[n].own_source());
+            for c in cx.unreadable(n) {
+                let value = nl.components[c].value_str();
+                let want = crate::values::parse_resistance(value).map(|r| r.ohms);
+                assert!(want.is_err(), "{value}");
+                assert_eq!(cx.resistor_value(c), Some(&want));
+            }
+        }
+        // /A's pull resistor R4 reads: a pull, in the net's extras; /B has nothing else
+        assert_eq!(cx.nets[net("/A")].pulls().len(), 1);
+        assert!(cx.nets[net("/B")].extras.is_none());
     }
 }
