@@ -604,7 +604,7 @@ fn count_by_check(findings: &[Finding]) -> Vec<CheckCount> {
 fn gather_supplies(cx: &Circuit<'_, '_>) -> Vec<SupplyRow> {
     let mut rows: Vec<SupplyRow> = Vec::new();
     for (i, nm) in cx.nets.iter().enumerate() {
-        let Some(r) = nm.rail else { continue };
+        let Some(r) = nm.rail() else { continue };
         let parts = cx
             .supplies
             .iter()

@@ -80,7 +80,7 @@ impl<'n> FloatingInputs<'n> {
 pub fn floats(cx: &crate::circuit::Circuit<'_, '_>, connection: Connection) -> Option<Float> {
     match connection {
         Connection::Absent => Some(Float::Absent),
-        Connection::Alone { net, .. } if cx.nets[net as usize].rail.is_none() => {
+        Connection::Alone { net, .. } if cx.nets[net as usize].rail().is_none() => {
             Some(Float::Alone(net as usize))
         }
         Connection::Net { net, .. } => {
@@ -462,7 +462,7 @@ pub fn ground_rail(ctx: &Context<'_, '_, '_>, comp: usize) -> Option<usize> {
     cx.supplies[comp]
         .as_ref()
         .and_then(|s| s.ground_net())
-        .filter(|&n| cx.nets[n].rail.is_some())
+        .filter(|&n| cx.nets[n].rail().is_some())
 }
 
 /// The ground rail a part's ground pin sits on, by name.
@@ -694,7 +694,7 @@ impl RailIndex {
                 .nets
                 .iter()
                 .enumerate()
-                .filter_map(|(n, nm)| nm.rail.map(|r| (n, r)))
+                .filter_map(|(n, nm)| nm.rail().map(|r| (n, r)))
                 .filter(|(_, r)| seen.insert((r.ground, r.volts.map(f64::to_bits))))
                 .collect(),
         }

@@ -91,10 +91,10 @@ pub(super) fn suggest(r_max: f64) -> Option<f64> {
 /// nothing else to set the level.
 fn floating_bus(cx: &Circuit<'_, '_>, net: usize) -> bool {
     let nm = &cx.nets[net];
-    nm.rail.is_none()
+    nm.rail().is_none()
         && !nm.drivers.is_empty()
         && nm.pulls().is_empty()
-        && nm.unreadable().is_empty()
+        && !nm.has_unreadable()
         && nm.held().is_empty()
         && nm.unknown().is_empty()
         && nm

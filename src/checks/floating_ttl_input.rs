@@ -169,7 +169,7 @@ fn partner_lets_it_hold(ctx: &Context<'_, '_, '_>, at: crate::circuit::PinRef) -
         return true;
     };
     match cx.nl.components[at.comp()].pins[q].connection.net() {
-        Some(n) => !cx.nets[n].rail.is_some_and(|r| r.ground),
+        Some(n) => !cx.nets[n].rail().is_some_and(|r| r.ground),
         None => true,
     }
 }

@@ -122,7 +122,7 @@ pub(super) fn tolerant_families(cx: &Circuit<'_, '_>, level: f64, vcc: f64) -> V
 pub(super) fn sources(cx: &Circuit<'_, '_>, net: usize) -> Vec<Source> {
     let nm = &cx.nets[net];
     let mut out = Vec::new();
-    if let Some(v) = nm.rail.and_then(|r| r.v()) {
+    if let Some(v) = nm.rail().and_then(|r| r.v()) {
         out.push(Source::Rail {
             level: cx.rail_range(v).1,
         });

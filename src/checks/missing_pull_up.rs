@@ -28,11 +28,11 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
     let cx = ctx.cx;
     for (net, nm) in cx.nets.iter().enumerate() {
         // a pull-up to a rail of unknown voltage, or a pull-up part, still sets the high
-        if nm.rail.is_some() || nm.pulls().iter().any(|p| p.up) || !nm.held().is_empty() {
+        if nm.rail().is_some() || nm.pulls().iter().any(|p| p.up) || !nm.held().is_empty() {
             continue;
         }
         // a pull-up reached through a series resistor or a jumper counts too
-        if matches!(nm.source, Some(crate::circuit::Source::Through(_))) {
+        if matches!(nm.source(), Some(crate::circuit::Source::Through(_))) {
             continue;
         }
         let oc: Vec<_> = nm

@@ -123,7 +123,7 @@ pub(super) enum Finding {
 pub(super) fn assess(cx: &Circuit<'_, '_>, net: usize) -> Vec<Finding> {
     let nm = &cx.nets[net];
     let mut out = Vec::new();
-    if nm.rail.is_some() {
+    if nm.rail().is_some() {
         for d in &nm.drivers {
             let g = gate(cx, d.at);
             let report = match d.role {
@@ -391,7 +391,7 @@ fn diag(ctx: &Context<'_, '_, '_>, net: usize, f: &Finding) -> Diag {
             d.with_help("deliberate practice for more drive; the outputs of one package switch together, but do not count on them sharing the current evenly")
         }
         Finding::OnRail(p) => {
-            let rail = cx.nets[net].rail.expect("assessed as a rail");
+            let rail = cx.nets[net].rail().expect("assessed as a rail");
             let lv = cx.nets[net]
                 .drivers
                 .iter()

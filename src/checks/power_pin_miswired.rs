@@ -99,7 +99,7 @@ pub enum NetKind {
 /// Classifies a net: rails by their voltage (a rail with no voltage is negative when its
 /// name is a negative-supply name such as `VEE`), other nets by what is on them.
 pub fn net_kind(nm: &NetModel, name: &str) -> NetKind {
-    match nm.rail {
+    match nm.rail() {
         Some(r) if r.ground => NetKind::Ground,
         Some(r) => match r.volts {
             Some(v) if v < 0.0 => NetKind::Negative(Some(v)),
@@ -289,7 +289,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                     out.push_pieces(&d, &pieces);
                 }
                 // a supply pin alone on a rail net (one power symbol on one chip) is on the rail
-                Connection::Alone { net, .. } if cx.nets[net as usize].rail.is_some() => {}
+                Connection::Alone { net, .. } if cx.nets[net as usize].rail().is_some() => {}
                 Connection::Alone { .. } | Connection::Absent
                     if part.role_source[pi] != RoleSource::Table =>
                 {
@@ -309,7 +309,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                                 == Some(side)
                             && q.connection
                                 .net()
-                                .is_some_and(|n| cx.nets[n].rail.is_some())
+                                .is_some_and(|n| cx.nets[n].rail().is_some())
                     });
                     let d = if other_on_rail {
                         Diag::info(
@@ -365,7 +365,7 @@ fn supply_range(ctx: &Context<'_, '_, '_>, ci: usize, out: &mut crate::diag::Dia
         c.pins[pi]
             .connection
             .net()
-            .and_then(|n| cx.nets[n].rail.and_then(|r| r.v()).map(|v| (n, v)))
+            .and_then(|n| cx.nets[n].rail().and_then(|r| r.v()).map(|v| (n, v)))
     };
     let Some((spi, (snet, sv))) = (0..c.pins.len())
         .filter(|&pi| part.roles[pi] == PinRole::Supply)
@@ -513,11 +513,11 @@ mod tests {
 
     fn rail(volts: Option<f64>, ground: bool) -> NetModel {
         let mut nm = NetModel::default();
-        nm.rail = Some(Rail {
+        nm.set_rail(Some(Rail {
             volts,
             ground,
             source: RailSource::Name,
-        });
+        }));
         nm
     }
 

@@ -60,11 +60,11 @@ impl PullDown {
 /// ground, with a TTL input among them.
 pub(super) fn pull_down(cx: &Circuit<'_, '_>, net: usize) -> Option<PullDown> {
     let nm = &cx.nets[net];
-    if nm.rail.is_some()
+    if nm.rail().is_some()
         || !nm.drivers.is_empty()
         || nm.pulls().is_empty()
         || !nm.unknown().is_empty()
-        || !nm.unreadable().is_empty()
+        || nm.has_unreadable()
     {
         return None;
     }
@@ -170,7 +170,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 && c.pins.len() == 2)
                 .then(|| c.pins[1 - p.pin()].connection.net())
                 .flatten()
-                .filter(|&n| cx.nets[n].rail.is_some_and(|r| !r.ground))
+                .filter(|&n| cx.nets[n].rail().is_some_and(|r| !r.ground))
                 .map(|_| c.reference.as_str().to_string())
         });
         let message = match &rc {

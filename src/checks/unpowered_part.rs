@@ -99,7 +99,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
             debug_assert_eq!(idx, c.pins.iter().position(|p| p.num(cx.nl) == d.pin));
             // alone on a rail net (one power symbol on one chip): on that rail
             if let Some(Connection::Alone { net, .. }) = idx.map(|i| c.pins[i].connection) {
-                if cx.nets[net as usize].rail.is_some() {
+                if cx.nets[net as usize].rail().is_some() {
                     continue;
                 }
             }

@@ -58,8 +58,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
         nets.sort_unstable();
         nets.dedup();
         for net in nets {
-            let nm = &cx.nets[net];
-            if !nm.unreadable().iter().any(|(r, _)| *r == ci) {
+            if !cx.unreadable(net).any(|r| r == ci) {
                 continue;
             }
             let Some(pi) = c.pins.iter().position(|p| p.connection.net() == Some(net)) else {
@@ -69,7 +68,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 .pins
                 .iter()
                 .filter_map(|p| p.connection.net())
-                .find(|&n| n != net && cx.nets[n].rail.is_some());
+                .find(|&n| n != net && cx.nets[n].rail().is_some());
             pulled.push((net, PinRef::new(ci, pi), rail));
         }
         // `R4: {why}; the pull-up on /S to +5V, the pull on /T is left out ...`, in pieces:
@@ -81,7 +80,7 @@ pub fn run(ctx: &Context<'_, '_, '_>, out: &mut crate::diag::DiagList) {
                 (
                     net_name_of(cx, *net),
                     rail.map(|r| {
-                        let dir = match cx.nets[r].rail.and_then(|x| x.v()) {
+                        let dir = match cx.nets[r].rail().and_then(|x| x.v()) {
                             Some(v) if v > 0.0 => "pull-up",
                             Some(0.0) => "pull-down",
                             _ => "pull",

@@ -82,7 +82,7 @@ fn polarities(cx: &Circuit<'_, '_>, path: &LedPath) -> Vec<Polarity> {
             break;
         };
         let net = net as usize;
-        if cx.nets[net].rail.is_some() {
+        if cx.nets[net].rail().is_some() {
             break;
         }
         let Some(next) = nl.nets[net]

@@ -1637,7 +1637,21 @@ mod tests {
                 "{}",
                 c.reference
             );
+            // each part's family entry and figures are its own family's, at its own supply
+            let family = cl.parts[ci].family.as_deref();
+            assert_eq!(cx.family(ci).map(|f| f.id.as_str()), family);
+            assert_eq!(cx.part_logic[ci].family.as_deref(), family);
+            if let Some(l) = &cx.part_logic[ci].levels {
+                let (f, s) = (cx.family(ci).unwrap(), cx.supplies[ci].as_ref().unwrap());
+                assert_eq!(**l, f.levels(s.vcc, l.drive), "{}", c.reference);
+            }
         }
+        // U1 and U2 (74HC, one supply) share their figures; the resistors share none
+        assert!(
+            cx.part_logic.distinct() < parts,
+            "{}",
+            cx.part_logic.distinct()
+        );
         let all: Vec<_> = cx.supplies.iter().collect();
         assert_eq!(all.len(), parts);
         assert!(all

@@ -67,7 +67,7 @@ pub fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
             return Gate::Unknown;
         };
         let net = net as usize;
-        match cx.nets[net].rail {
+        match cx.nets[net].rail() {
             Some(r) => {
                 let high = !r.ground && r.volts.map_or(true, |v| v > 0.0);
                 if high != want_high {
@@ -157,7 +157,7 @@ pub fn wired_roles(
                 'B' => true,
                 _ => continue,
             };
-            let Some(r) = c.pins[dir].connection.net().and_then(|n| rail[n]) else {
+            let Some(r) = c.pins[dir].connection.net().and_then(|n| rail.get(n)) else {
                 continue;
             };
             changed.get_or_insert_with(|| part.roles.to_vec())[pi] =

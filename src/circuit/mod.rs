@@ -331,25 +331,53 @@ pub struct LedPath {
 /// (`nm.pulls()`, `nm.series()` ...): a board has about as many nets as it has pins.
 #[derive(Debug, Clone, Default)]
 pub struct NetModel {
-    pub rail: Option<Rail>,
+    /// Its rail's voltage, when it is a rail whose voltage is known ([`RAIL_VOLTS`]).
+    volts: f64,
+    /// Its rail, read as a [`Rail`] ([`NetModel::rail`]): whether it is one ([`RAIL`]), its
+    /// voltage known ([`RAIL_VOLTS`]), ground ([`RAIL_GROUND`]), and why it is one (a
+    /// [`RailSource`] above [`RAIL_SOURCE_SHIFT`]). The rail, the source and the flags take
+    /// what one `Option<Rail>` took: a board has about as many nets as it has pins.
+    rail_bits: u8,
+    /// What sets its level, read as a [`Source`] ([`NetModel::source`]): one of the
+    /// `SOURCE_*` kinds, with the link's index in `through` for [`Source::Through`].
+    source_kind: u8,
+    /// [`RAIL_NAMED_LOCAL`] and [`HAS_UNREADABLE`].
+    flags: u8,
+    through: u32,
     /// Its outputs (and bidirectional pins): the first in place.
     pub drivers: InPlace1<Driver>,
     /// Its logic inputs (and bidirectional pins): the first two in place.
     pub loads: InPlace2<Load>,
     /// Connector pins: the net leaves the board.
     pub connectors: ThinVec<PinRef>,
-    /// Capacitors, diodes and other passives not counted above.
+    /// Capacitors, diodes and other passives not counted above. (Supply and ground pins are
+    /// in no list: what they power is read from the parts' supplies, [`Circuit::supplies`].)
     pub passives: ThinVec<PinRef>,
-    /// Supply and ground pins on this net.
-    pub power_pins: ThinVec<PinRef>,
-    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
-    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
-    pub rail_named_local: bool,
-    /// What sets the level, as the model found it (`None`: nothing, in some state).
-    pub source: Option<Source>,
     /// The rarer lists; `None` while all of them are empty.
     extras: Option<Box<NetExtras>>,
 }
+
+/// [`NetModel::rail_bits`]: the net is a rail.
+const RAIL: u8 = 1;
+/// The rail's voltage is known (in [`NetModel::volts`]).
+const RAIL_VOLTS: u8 = 2;
+/// The rail is ground.
+const RAIL_GROUND: u8 = 4;
+/// The rail's [`RailSource`], in the bits above this.
+const RAIL_SOURCE_SHIFT: u32 = 3;
+/// [`NetModel::source_kind`]: nothing found sets the level (in some state).
+const SOURCE_NONE: u8 = 0;
+const SOURCE_OWN: u8 = 1;
+const SOURCE_THROUGH: u8 = 2;
+const SOURCE_SELECTOR: u8 = 3;
+/// [`NetModel::flags`]: the net's name says rail (`/disp/VDD`) but it is a sheet-local net
+/// that reaches no rail: outputs typed by an unknown symbol on it are taken as the symbol's
+/// slip.
+const RAIL_NAMED_LOCAL: u8 = 1;
+/// A resistor whose value could not be read joins it to a rail: the resistors are listed by
+/// the circuit ([`Circuit::unreadable`]), since on most boards no net has one and on a board
+/// of misread values every such net has one.
+const HAS_UNREADABLE: u8 = 2;
 
 /// The lists of a net that most nets leave empty (see [`NetModel`]).
 #[derive(Debug, Clone, Default)]
@@ -357,8 +385,6 @@ pub struct NetExtras {
     pub pulls: ThinVec<Pull>,
     /// Pins whose role no source could tell.
     pub unknown: ThinVec<PinRef>,
-    /// Resistors whose value could not be read.
-    pub unreadable: ThinVec<(usize, ValueError)>,
     pub led_paths: ThinVec<LedPath>,
     /// LEDs (with their resistors) from a positive rail down to this net: the driver sinks
     /// their current in its low state.
@@ -384,7 +410,6 @@ impl NetExtras {
     fn is_empty(&self) -> bool {
         self.pulls.is_empty()
             && self.unknown.is_empty()
-            && self.unreadable.is_empty()
             && self.led_paths.is_empty()
             && self.sink_paths.is_empty()
             && self.held.is_empty()
@@ -397,7 +422,6 @@ impl NetExtras {
     fn fit(&mut self) {
         self.pulls.shrink_to_fit();
         self.unknown.shrink_to_fit();
-        self.unreadable.shrink_to_fit();
         self.led_paths.shrink_to_fit();
         self.sink_paths.shrink_to_fit();
         self.held.shrink_to_fit();
@@ -429,10 +453,6 @@ impl NetModel {
     extra_list!(
         /// Pins whose role no source could tell.
         unknown: PinRef
-    );
-    extra_list!(
-        /// Resistors whose value could not be read.
-        unreadable: (usize, ValueError)
     );
     extra_list!(
         /// LED paths from this net to ground (or a lower rail).
@@ -501,6 +521,79 @@ pub enum Source {
 }
 
 impl NetModel {
+    /// The net's rail, if it is one.
+    #[inline]
+    pub fn rail(&self) -> Option<Rail> {
+        if self.rail_bits & RAIL == 0 {
+            return None;
+        }
+        Some(Rail {
+            volts: (self.rail_bits & RAIL_VOLTS != 0).then_some(self.volts),
+            ground: self.rail_bits & RAIL_GROUND != 0,
+            source: match self.rail_bits >> RAIL_SOURCE_SHIFT {
+                0 => RailSource::Name,
+                1 => RailSource::PowerOutput,
+                2 => RailSource::User,
+                _ => RailSource::Usage,
+            },
+        })
+    }
+
+    /// Makes the net a rail (`Some`) or not (`None`).
+    pub fn set_rail(&mut self, rail: Option<Rail>) {
+        let Some(r) = rail else {
+            self.rail_bits = 0;
+            self.volts = 0.0;
+            return;
+        };
+        let source = match r.source {
+            RailSource::Name => 0,
+            RailSource::PowerOutput => 1,
+            RailSource::User => 2,
+            RailSource::Usage => 3,
+        };
+        self.volts = r.volts.unwrap_or(0.0);
+        self.rail_bits = RAIL
+            | if r.volts.is_some() { RAIL_VOLTS } else { 0 }
+            | if r.ground { RAIL_GROUND } else { 0 }
+            | source << RAIL_SOURCE_SHIFT;
+    }
+
+    /// What sets the level, as the model found it (`None`: nothing, in some state).
+    #[inline]
+    pub fn source(&self) -> Option<Source> {
+        match self.source_kind {
+            SOURCE_NONE => None,
+            SOURCE_OWN => Some(Source::Own),
+            SOURCE_THROUGH => Some(Source::Through(self.through)),
+            _ => Some(Source::Selector),
+        }
+    }
+
+    fn set_source(&mut self, source: Option<Source>) {
+        (self.source_kind, self.through) = match source {
+            None => (SOURCE_NONE, 0),
+            Some(Source::Own) => (SOURCE_OWN, 0),
+            Some(Source::Through(l)) => (SOURCE_THROUGH, l),
+            Some(Source::Selector) => (SOURCE_SELECTOR, 0),
+        };
+    }
+
+    /// The net's name says rail (`/disp/VDD`) but it is a sheet-local net that reaches no
+    /// rail: outputs typed by an unknown symbol on it are taken as the symbol's slip.
+    #[inline]
+    pub fn rail_named_local(&self) -> bool {
+        self.flags & RAIL_NAMED_LOCAL != 0
+    }
+
+    fn set_flag(&mut self, flag: u8, on: bool) {
+        if on {
+            self.flags |= flag;
+        } else {
+            self.flags &= !flag;
+        }
+    }
+
     /// Trims every list to its length: a list grown by pushes holds room for four or more,
     /// and a board has as many nets as it has pins. Extras left empty are dropped.
     fn fit(&mut self) {
@@ -508,7 +601,6 @@ impl NetModel {
         self.loads.shrink_to_fit();
         self.connectors.shrink_to_fit();
         self.passives.shrink_to_fit();
-        self.power_pins.shrink_to_fit();
         match &mut self.extras {
             Some(e) if e.is_empty() => self.extras = None,
             Some(e) => e.fit(),
@@ -520,50 +612,54 @@ impl NetModel {
     pub fn own_source(&self) -> bool {
         // a resistor to a rail whose value cannot be read still holds the net (`unreadable-value`
         // reports it); calling the inputs floating as well would be a cascade
-        self.rail.is_some()
+        self.rail_bits & RAIL != 0
             || self
                 .drivers
                 .iter()
-                .any(|d| !(d.symbol_only && self.rail_named_local))
+                .any(|d| !(d.symbol_only && self.rail_named_local()))
             || !self.pulls().is_empty()
             || !self.held().is_empty()
             || !self.connectors.is_empty()
-            || !self.unreadable().is_empty()
+            || self.has_unreadable()
             || !self.unknown().is_empty()
+    }
+
+    /// True when a resistor whose value could not be read joins the net to a rail (which
+    /// ones: [`Circuit::unreadable`]).
+    #[inline]
+    pub fn has_unreadable(&self) -> bool {
+        self.flags & HAS_UNREADABLE != 0
     }
 
     /// True when something on this board or off it can set the net's level in every
     /// position of its switches: on the net, through a series element, or by a selector.
     pub fn has_source(&self) -> bool {
-        self.source.is_some() || self.own_source()
+        self.source_kind != SOURCE_NONE || self.own_source()
     }
 }
 
-/// Each net's rail as its model holds it (`nets[i].rail`), read by net index (`rail[i]`)
-/// while the model is built, and written while rails are inferred from their pins: the rails
-/// are kept in the nets' models from the start, with no table of their own.
+/// Each net's rail as its model holds it (`nets[i].rail()`), read by net index
+/// (`rail.get(i)`) while the model is built, and written while rails are inferred from their
+/// pins (`rail.set(i, ...)`): the rails are kept in the nets' models from the start, with no
+/// table of their own.
 pub struct RailsOf<N>(N);
 
-impl std::ops::Index<usize> for RailsOf<&[NetModel]> {
-    type Output = Option<Rail>;
+impl RailsOf<&[NetModel]> {
     #[inline]
-    fn index(&self, net: usize) -> &Option<Rail> {
-        &self.0[net].rail
+    pub fn get(&self, net: usize) -> Option<Rail> {
+        self.0[net].rail()
     }
 }
 
-impl std::ops::Index<usize> for RailsOf<&mut [NetModel]> {
-    type Output = Option<Rail>;
+impl RailsOf<&mut [NetModel]> {
     #[inline]
-    fn index(&self, net: usize) -> &Option<Rail> {
-        &self.0[net].rail
+    pub fn get(&self, net: usize) -> Option<Rail> {
+        self.0[net].rail()
     }
-}
 
-impl std::ops::IndexMut<usize> for RailsOf<&mut [NetModel]> {
     #[inline]
-    fn index_mut(&mut self, net: usize) -> &mut Option<Rail> {
-        &mut self.0[net].rail
+    pub fn set(&mut self, net: usize, rail: Option<Rail>) {
+        self.0[net].set_rail(rail);
     }
 }
 
@@ -589,11 +685,16 @@ pub struct Circuit<'n, 'a> {
     /// Every resistor's and resistor network's value as read, once per distinct text
     /// ([`Circuit::resistor_value`]).
     pub values: ValueReadings<'n>,
-    /// Each part's family's table entry, looked up once ([`Circuit::family`]).
-    families: Vec<Option<&'n Family>>,
+    /// (net, resistor) for each resistor from a net to a rail whose value could not be read,
+    /// in net order ([`Circuit::unreadable`]).
+    unreadable: Vec<(u32, u32)>,
+    /// Each part's family's table entry, looked up once ([`Circuit::family`]), read by part
+    /// from one entry per family ([`PerPart`]).
+    families: PerPart<Option<&'n Family>>,
     /// Each part's figures and family id as its drivers and loads read them
     /// ([`Driver::levels`], [`Load::family`] ...).
-    pub part_logic: Vec<PartLogic>,
+    /// Parts alike on the same supply share one entry ([`PerPart`]).
+    pub part_logic: PerPart<PartLogic>,
 }
 
 /// A resistor's or resistor network's value as read: its ohms (each element's, for a
@@ -674,6 +775,20 @@ impl<'n, 'a> Circuit<'n, 'a> {
             self.cl.parts[comp].kind,
             self.nl.components[comp].value_str(),
         )
+    }
+
+    /// The resistors from net `net` to a rail whose values could not be read, in the order
+    /// the model found them (why each cannot be read: [`Circuit::resistor_value`]).
+    pub fn unreadable(&self, net: usize) -> impl Iterator<Item = usize> + '_ {
+        let found: &[(u32, u32)] = if self.nets[net].has_unreadable() {
+            let net = small(net);
+            let from = self.unreadable.partition_point(|&(n, _)| n < net);
+            let to = from + self.unreadable[from..].partition_point(|&(n, _)| n == net);
+            &self.unreadable[from..to]
+        } else {
+            &[]
+        };
+        found.iter().map(|&(_, r)| r as usize)
     }
 
     pub fn role(&self, p: PinRef) -> PinRole {
@@ -775,7 +890,7 @@ impl<'n, 'a> Circuit<'n, 'a> {
             }
             Some(s) => {
                 let why = match s.supply_net() {
-                    Some(n) if self.nets[n].rail.is_some() => format!(
+                    Some(n) if self.nets[n].rail().is_some() => format!(
                         "the voltage of {} is not known: declare it with --rail",
                         self.net_name(n)
                     ),
@@ -806,14 +921,16 @@ enum Slot {
     Load,
     Connector,
     Passive,
+    /// A supply or ground pin: in no list of its net (the parts' supplies say what it powers).
     Power,
+    /// In the net's extras, allocated on first use.
     Unknown,
     /// A bidirectional pin: a driver and a load.
     DriverAndLoad,
 }
 
-/// The lists counted per net ([`Slot`] up to `Unknown`).
-const SLOT_LISTS: usize = 6;
+/// The lists counted per net ([`Slot`] up to `Passive`).
+const SLOT_LISTS: usize = 4;
 
 /// Where a pin of a part of `kind` with `role` goes: a connector's pins are the net leaving
 /// the board (a driver too, when the configuration names the family driving it); passives'
@@ -902,28 +1019,33 @@ pub fn build<'n, 'a>(
             n == net.name.as_str()
                 || n.trim_start_matches('/') == net.name.as_str().trim_start_matches('/')
         }) {
-            rail[i] = Some(Rail {
-                volts: Some(*v),
-                ground: *v == 0.0,
-                source: RailSource::User,
-            });
+            rail.set(
+                i,
+                Some(Rail {
+                    volts: Some(*v),
+                    ground: *v == 0.0,
+                    source: RailSource::User,
+                }),
+            );
             continue;
         }
         match rails::rail_from_name(net.name.as_str()) {
-            Some(rails::NameRail::Ground) => {
-                rail[i] = Some(Rail {
+            Some(rails::NameRail::Ground) => rail.set(
+                i,
+                Some(Rail {
                     volts: Some(0.0),
                     ground: true,
                     source: RailSource::Name,
-                })
-            }
-            Some(rails::NameRail::Supply(v)) => {
-                rail[i] = Some(Rail {
+                }),
+            ),
+            Some(rails::NameRail::Supply(v)) => rail.set(
+                i,
+                Some(Rail {
                     volts: v,
                     ground: false,
                     source: RailSource::Name,
-                })
-            }
+                }),
+            ),
             None => {}
         }
     }
@@ -932,12 +1054,15 @@ pub fn build<'n, 'a>(
             if p.ptype() == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
                 if let Connection::Net { net, .. } = p.connection {
                     let net = net as usize;
-                    if rail[net].is_none() {
-                        rail[net] = Some(Rail {
-                            volts: None,
-                            ground: false,
-                            source: RailSource::PowerOutput,
-                        });
+                    if rail.get(net).is_none() {
+                        rail.set(
+                            net,
+                            Some(Rail {
+                                volts: None,
+                                ground: false,
+                                source: RailSource::PowerOutput,
+                            }),
+                        );
                     }
                 }
             }
@@ -969,7 +1094,7 @@ pub fn build<'n, 'a>(
         }
         let railv = supply_net
             .map(|n: u32| n as usize)
-            .and_then(|n| rail[n])
+            .and_then(|n| rail.get(n))
             .and_then(|r| r.v())
             .filter(|v| *v > 0.0);
         // thresholds are taken against 0 V: a ground pin on a rail other than 0 V is the
@@ -1054,6 +1179,7 @@ pub fn build<'n, 'a>(
                     count(&mut n[Slot::Driver as usize]);
                     count(&mut n[Slot::Load as usize]);
                 }
+                Slot::Power | Slot::Unknown => {}
                 slot => count(&mut n[slot as usize]),
             }
         }
@@ -1064,10 +1190,10 @@ pub fn build<'n, 'a>(
         nm.loads = InPlace2::with_capacity(list(Slot::Load));
         nm.connectors = ThinVec::with_capacity(list(Slot::Connector));
         nm.passives = ThinVec::with_capacity(list(Slot::Passive));
-        nm.power_pins = ThinVec::with_capacity(list(Slot::Power));
     }
     drop(counts);
-    let mut part_logic: Vec<PartLogic> = Vec::with_capacity(nl.components.len());
+    // parts with the same figures and family share one entry, told by their addresses
+    let mut part_logic = PerPartBuilder::with_capacity(nl.components.len());
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let mut logic = PartLogic {
@@ -1139,14 +1265,22 @@ pub fn build<'n, 'a>(
                     });
                     nm.loads.push(load());
                 }
-                Slot::Power => nm.power_pins.push(at),
+                Slot::Power => {}
                 Slot::Unknown => nm.extras_mut().unknown.push(at),
             }
         }
-        part_logic.push(logic);
+        let key = (
+            logic.levels.as_ref().map(Arc::as_ptr),
+            logic.family.as_ref().map(|f| Arc::as_ptr(&f.0)),
+        );
+        part_logic.push(key, || logic);
     }
+    let part_logic = part_logic.finish();
 
     let mut readings = ValueReadings::default();
+    // (net, resistor) for each resistor to a rail whose value cannot be read, in the order
+    // found; put in net order once all are found
+    let mut unreadable: Vec<(u32, u32)> = Vec::new();
     // resistors: to a rail a pull (or a hold, when the rail's voltage is unknown), between
     // two signal nets a series element
     for (ci, c) in nl.components.iter().enumerate() {
@@ -1156,7 +1290,7 @@ pub fn build<'n, 'a>(
         }
         let (ohms, err) = match readings.read(part.kind, c.value_str()) {
             Some(Ok(ohms)) => (Some(*ohms), None),
-            Some(Err(e)) => (None, Some(e.clone())),
+            Some(Err(e)) => (None, Some(e)),
             None => (None, None),
         };
         if matches!(err, Some(ValueError::NotFitted(_))) {
@@ -1167,11 +1301,11 @@ pub fn build<'n, 'a>(
                 continue;
             }
             for ((p_here, n_here), n_other) in [((pa, na), nb), ((pb, nb), na)] {
-                if nets[n_here].rail.is_some() {
+                if nets[n_here].rail().is_some() {
                     continue;
                 }
                 let at = PinRef::new(ci, p_here);
-                let Some(r) = nets[n_other].rail else {
+                let Some(r) = nets[n_other].rail() else {
                     nets[n_here].extras_mut().series.push(SeriesLink {
                         part: ci,
                         at,
@@ -1180,7 +1314,7 @@ pub fn build<'n, 'a>(
                     });
                     continue;
                 };
-                match (ohms, &err) {
+                match (ohms, err) {
                     (Some(o), _) => match r.v() {
                         Some(v) => nets[n_here].extras_mut().pulls.push(Pull {
                             resistor: ci,
@@ -1192,7 +1326,10 @@ pub fn build<'n, 'a>(
                         }),
                         None => nets[n_here].extras_mut().held.push(ci),
                     },
-                    (None, Some(e)) => nets[n_here].extras_mut().unreadable.push((ci, e.clone())),
+                    (None, Some(_)) => {
+                        unreadable.push((small(n_here), small(ci)));
+                        nets[n_here].set_flag(HAS_UNREADABLE, true);
+                    }
                     _ => {}
                 }
             }
@@ -1211,11 +1348,12 @@ pub fn build<'n, 'a>(
     for (i, net) in nl.nets.iter().enumerate() {
         let name = net.name.as_str();
         let local = name.trim_start_matches('/').contains('/');
-        if local && nets[i].rail.is_none() {
+        if local && nets[i].rail().is_none() {
             let last = name.rsplit('/').next().unwrap_or("");
-            nets[i].rail_named_local = *rail_named
+            let named = *rail_named
                 .entry(last)
                 .or_insert_with(|| rails::rail_from_name(last).is_some());
+            nets[i].set_flag(RAIL_NAMED_LOCAL, named);
         }
     }
     // inductors and ferrite beads: series elements of no resistance to speak of
@@ -1230,7 +1368,7 @@ pub fn build<'n, 'a>(
             continue;
         }
         for (pi, here, other) in [(0, na, nb), (1, nb, na)] {
-            if nets[here].rail.is_none() {
+            if nets[here].rail().is_none() {
                 nets[here].extras_mut().series.push(SeriesLink {
                     part: ci,
                     at: PinRef::new(ci, pi),
@@ -1308,6 +1446,9 @@ pub fn build<'n, 'a>(
     for nm in &mut nets {
         nm.fit();
     }
+    // stable: each net's resistors stay in the order found
+    unreadable.sort_by_key(|&(net, _)| net);
+    unreadable.shrink_to_fit();
 
     Circuit {
         nl,
@@ -1320,6 +1461,7 @@ pub fn build<'n, 'a>(
         rail_notes,
         displays,
         values: readings,
+        unreadable,
         families,
         part_logic,
     }
@@ -1327,22 +1469,22 @@ pub fn build<'n, 'a>(
 
 /// Each part's family's table entry: looked up once per distinct family text (parts alike
 /// share one), so the model and the checks never look a family up by its name again.
-fn part_families<'n>(cl: &Classified, rules: &'n Rules) -> Vec<Option<&'n Family>> {
+fn part_families<'n>(cl: &Classified, rules: &'n Rules) -> PerPart<Option<&'n Family>> {
     let mut last: Option<(&str, Option<&'n Family>)> = None;
-    cl.parts
-        .iter()
-        .map(|part| {
-            let id = part.family.as_deref()?;
-            match last {
-                Some((l, f)) if l == id => f,
-                _ => {
-                    let f = rules.families.get(id);
-                    last = Some((id, f));
-                    f
-                }
+    let mut table = PerPartBuilder::with_capacity(cl.parts.len());
+    for part in &cl.parts {
+        let f = part.family.as_deref().and_then(|id| match last {
+            Some((l, f)) if l == id => f,
+            _ => {
+                let f = rules.families.get(id);
+                last = Some((id, f));
+                f
             }
-        })
-        .collect()
+        });
+        // told by the entry's address: one family is one entry of the table
+        table.push(f.map(std::ptr::from_ref), || f);
+    }
+    table.finish()
 }
 
 /// A one-pin part that stands for a pull-up or pull-down (`PULLUP`, `rpullup`, `pull_down`).
@@ -1380,7 +1522,7 @@ fn resistor_elements(
         .enumerate()
         .filter_map(|(pi, p)| match p.connection {
             Connection::Net { net, .. } => Some((pi, net as usize)),
-            Connection::Alone { net, .. } if rail[net as usize].is_some() => {
+            Connection::Alone { net, .. } if rail.get(net as usize).is_some() => {
                 Some((pi, net as usize))
             }
             _ => None,
@@ -1402,7 +1544,7 @@ fn resistor_elements(
     let isolated_symbol = symbol.starts_with("r_pack") || symbol.starts_with("r_array");
     let on_rail: Vec<&(usize, usize)> = pin_nets
         .iter()
-        .filter(|(_, n)| rail[*n].is_some())
+        .filter(|(_, n)| rail.get(*n).is_some())
         .collect();
     let common = if bussed_symbol {
         // the common pin is pin 1 on the usual SIP networks
@@ -1468,22 +1610,22 @@ fn switch_elements(nl: &Netlist<'_>, c: &crate::netlist::Component<'_>) -> Vec<(
 fn settle_sources(nets: &mut [NetModel]) {
     for nm in nets.iter_mut() {
         if nm.own_source() {
-            nm.source = Some(Source::Own);
+            nm.set_source(Some(Source::Own));
         }
     }
     loop {
         let mut changed = false;
         for i in 0..nets.len() {
-            if nets[i].source.is_some() {
+            if nets[i].source().is_some() {
                 continue;
             }
             let through = nets[i]
                 .series()
                 .iter()
-                .position(|l| nets[l.other_net].source.is_some());
+                .position(|l| nets[l.other_net].source().is_some());
             if let Some(l) = through {
                 let l = u32::try_from(l).expect("fewer than 2^32 series links on a net");
-                nets[i].source = Some(Source::Through(l));
+                nets[i].set_source(Some(Source::Through(l)));
                 changed = true;
                 continue;
             }
@@ -1492,13 +1634,13 @@ fn settle_sources(nets: &mut [NetModel]) {
             let links: Vec<&SwitchLink> = nets[i]
                 .switches()
                 .iter()
-                .filter(|l| nets[l.other_net].source.is_some())
+                .filter(|l| nets[l.other_net].source().is_some())
                 .collect();
             let selector = links
                 .iter()
                 .any(|a| links.iter().filter(|b| b.part == a.part).count() >= 2);
             if selector {
-                nets[i].source = Some(Source::Selector);
+                nets[i].set_source(Some(Source::Selector));
                 changed = true;
             }
         }
@@ -1509,7 +1651,7 @@ fn settle_sources(nets: &mut [NetModel]) {
     // the nets each net feeds through series elements, followed to the end of the chain
     let direct: Vec<Option<(usize, u32)>> = nets
         .iter()
-        .map(|nm| match nm.source {
+        .map(|nm| match nm.source() {
             Some(Source::Through(l)) => {
                 let l = &nm.series()[l as usize];
                 Some((l.other_net, small(l.part)))
@@ -1529,13 +1671,13 @@ fn settle_sources(nets: &mut [NetModel]) {
         }
     }
     for i in 0..nets.len() {
-        if nets[i].source.is_some() {
+        if nets[i].source().is_some() {
             continue;
         }
         let links: ThinVec<SwitchLink> = nets[i]
             .switches()
             .iter()
-            .filter(|l| nets[l.other_net].source.is_some())
+            .filter(|l| nets[l.other_net].source().is_some())
             .copied()
             .collect();
         if !links.is_empty() {
@@ -1551,7 +1693,7 @@ fn settle_sources(nets: &mut [NetModel]) {
 fn rails_by_usage(
     nl: &Netlist<'_>,
     cl: &Classified,
-    families: &[Option<&Family>],
+    families: &PerPart<Option<&Family>>,
     rail: &mut RailsOf<&mut [NetModel]>,
 ) -> Vec<RailNote> {
     let n_nets = nl.nets.len();
@@ -1584,7 +1726,7 @@ fn rails_by_usage(
     }
     let mut notes = Vec::new();
     for net in 0..n_nets {
-        if rail[net].is_some() || outputs[net] {
+        if rail.get(net).is_some() || outputs[net] {
             continue;
         }
         let name = nl.nets[net].name.as_str();
@@ -1595,11 +1737,14 @@ fn rails_by_usage(
         let (s, g) = (supply_pins[net], ground_pins[net]);
         let enough = |k: usize| k >= 2 || (k == 1 && logic_pins[net] == 0);
         if g > 0 && s == 0 && enough(g) {
-            rail[net] = Some(Rail {
-                volts: Some(0.0),
-                ground: true,
-                source: RailSource::Usage,
-            });
+            rail.set(
+                net,
+                Some(Rail {
+                    volts: Some(0.0),
+                    ground: true,
+                    source: RailSource::Usage,
+                }),
+            );
             notes.push(RailNote {
                 net,
                 volts: Some(0.0),
@@ -1609,11 +1754,14 @@ fn rails_by_usage(
                 power_pins: g,
             });
         } else if s > 0 && g == 0 && enough(s) {
-            rail[net] = Some(Rail {
-                volts: None,
-                ground: false,
-                source: RailSource::Usage,
-            });
+            rail.set(
+                net,
+                Some(Rail {
+                    volts: None,
+                    ground: false,
+                    source: RailSource::Usage,
+                }),
+            );
             notes.push(RailNote {
                 net,
                 volts: None,
@@ -1649,22 +1797,26 @@ fn rails_by_usage(
         let Some(net) = pin.and_then(|p| p.connection.net()) else {
             continue;
         };
-        if let Some(r) = rail[net].as_mut() {
+        if let Some(mut r) = rail.get(net) {
             if r.volts.is_none() && !r.ground {
                 r.volts = Some(volts);
+                rail.set(net, Some(r));
                 note_for(&mut notes, net, volts, Inferred::Regulator { comp: ci });
             }
         } else {
-            rail[net] = Some(Rail {
-                volts: Some(volts),
-                ground: false,
-                source: RailSource::PowerOutput,
-            });
+            rail.set(
+                net,
+                Some(Rail {
+                    volts: Some(volts),
+                    ground: false,
+                    source: RailSource::PowerOutput,
+                }),
+            );
             note_for(&mut notes, net, volts, Inferred::Regulator { comp: ci });
         }
     }
     for net in 0..n_nets {
-        let Some(r) = rail[net].as_mut() else {
+        let Some(mut r) = rail.get(net) else {
             continue;
         };
         if r.volts.is_some() || r.ground || r.source == RailSource::User {
@@ -1693,6 +1845,7 @@ fn rails_by_usage(
         }
         if let (true, Some(v)) = (agree, single) {
             r.volts = Some(v);
+            rail.set(net, Some(r));
             let comps = powered[net].clone();
             note_for(
                 &mut notes,
@@ -1784,7 +1937,7 @@ fn follow_to_ground<'n>(
             }
             let (net, v) = d.commons.iter().find_map(|&pi| {
                 let n = c.pins[pi].connection.net()?;
-                Some((n, rail[n]?.v()?))
+                Some((n, rail.get(n)?.v()?))
             })?;
             // a common cathode on a positive rail, or a common anode on ground, never lights
             // from this side
@@ -1817,7 +1970,7 @@ fn follow_to_ground<'n>(
         }
         let other = 1 - cur.pin();
         let net = c.pins[other].connection.net()?;
-        if let Some(r) = rail[net] {
+        if let Some(r) = rail.get(net) {
             return Some(LedPath {
                 at: start,
                 vf: sum_vf(&leds),
@@ -1988,8 +2141,10 @@ mod size_tests {
         use super::{Driver, Load};
         // 88 with its drivers and loads in lists of their own; a net with one driver and two
         // loads then held two blocks of 48 bytes besides; 128 while its drivers and loads
-        // were `SmallVec`s (24 and 32 bytes, where its own lists take 16 and 24)
-        assert!(size_of::<NetModel>() <= 112, "{}", size_of::<NetModel>());
+        // were `SmallVec`s (24 and 32 bytes, where its own lists take 16 and 24); 112 while
+        // it kept a list of its supply pins and its rail (24 bytes), source (8) and flags
+        // apart
+        assert!(size_of::<NetModel>() <= 80, "{}", size_of::<NetModel>());
         assert!(
             size_of::<super::in_place::InPlace1<Driver>>() <= 16,
             "{}",
@@ -2054,5 +2209,145 @@ mod size_tests {
         bare.fit();
         assert!(bare.extras.is_none());
         assert!(bare.pulls().is_empty() && bare.series().is_empty());
+    }
+}
+
+#[cfg(test)]
+mod packed_tests {
+    use super::{NetModel, Rail, RailSource, Source};
+
+    /// A net's rail, source and flags are held in a few bits beside one number: each reads
+    /// back as it was set, whatever was set before, and setting one leaves the others.
+    #[test]
+    fn a_net_s_rail_source_and_flags_read_back_as_set() {
+        let sources = [
+            RailSource::Name,
+            RailSource::PowerOutput,
+            RailSource::User,
+            RailSource::Usage,
+        ];
+        let mut rails = vec![None];
+        for volts in [
+            None,
+            Some(0.0),
+            Some(5.0),
+            Some(-12.0),
+            Some(3.3),
+            Some(f64::NAN),
+        ] {
+            for ground in [false, true] {
+                for source in sources {
+                    rails.push(Some(Rail {
+                        volts,
+                        ground,
+                        source,
+                    }));
+                }
+            }
+        }
+        let net_sources = [
+            None,
+            Some(Source::Own),
+            Some(Source::Through(0)),
+            Some(Source::Through(7)),
+            Some(Source::Through(u32::MAX)),
+            Some(Source::Selector),
+        ];
+        // a `Rail` with a NaN voltage equals no other: compare the bits
+        let same = |a: Option<Rail>, b: Option<Rail>| match (a, b) {
+            (None, None) => true,
+            (Some(a), Some(b)) => {
+                a.volts.map(f64::to_bits) == b.volts.map(f64::to_bits)
+                    && a.ground == b.ground
+                    && a.source == b.source
+            }
+            _ => false,
+        };
+        let mut nm = NetModel::default();
+        assert!(nm.rail().is_none() && nm.source().is_none());
+        assert!(!nm.rail_named_local() && !nm.has_unreadable());
+        for (k, &rail) in rails.iter().enumerate() {
+            for (j, &source) in net_sources.iter().enumerate() {
+                let (local, unreadable) = ((k + j) % 2 == 0, (k + j) % 3 == 0);
+                nm.set_rail(rail);
+                nm.set_source(source);
+                nm.set_flag(super::RAIL_NAMED_LOCAL, local);
+                nm.set_flag(super::HAS_UNREADABLE, unreadable);
+                assert!(same(nm.rail(), rail), "{rail:?}");
+                assert_eq!(nm.source(), source);
+                assert_eq!(nm.rail_named_local(), local);
+                assert_eq!(nm.has_unreadable(), unreadable);
+                // a rail, a source or an unreadable resistor holds the net
+                assert_eq!(
+                    nm.has_source(),
+                    rail.is_some() || source.is_some() || unreadable
+                );
+                // the rail set again leaves the source and the flags
+                nm.set_rail(rails[(k + 1) % rails.len()]);
+                assert_eq!(nm.source(), source);
+                assert_eq!(nm.rail_named_local(), local);
+                assert_eq!(nm.has_unreadable(), unreadable);
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    /// Resistors to a rail whose values do not read are listed by the circuit, net by net in
+    /// the order found (a resistor listed once for each of its elements on the net), each net
+    /// marked; the reading each gives is its value's, and a net with only them holds no
+    /// extras.
+    #[test]
+    fn each_net_lists_its_unreadable_resistors_in_order() {
+        // values that do not read as resistances (IEC 60062: one multiplier letter): `4K7Q`,
+        // `4K7K`; `4K7` reads
+        const BOARD: &str = r#"(export (version "E")
+  (components
+    (comp (ref "U1") (value "74HC00") (libsource (lib "x") (part "74HC00")))
+    (comp (ref "R1") (value "4K7Q") (libsource (lib "x") (part "R")))
+    (comp (ref "R2") (value "4K7K") (libsource (lib "x") (part "R")))
+    (comp (ref "R3") (value "4K7Q") (libsource (lib "x") (part "R")))
+    (comp (ref "R4") (value "4K7") (libsource (lib "x") (part "R")))
+    (comp (ref "R5") (value "4K7K") (libsource (lib "x") (part "R"))))
+  (nets
+    (net (code "1") (name "+5V") (node (ref "U1") (pin "14")) (node (ref "R1") (pin "2")) (node (ref "R2") (pin "2")) (node (ref "R3") (pin "2")) (node (ref "R4") (pin "2")))
+    (net (code "2") (name "GND") (node (ref "U1") (pin "7")) (node (ref "R5") (pin "2")))
+    (net (code "3") (name "/A") (node (ref "U1") (pin "1")) (node (ref "R3") (pin "1")) (node (ref "R4") (pin "1")))
+    (net (code "4") (name "/B") (node (ref "U1") (pin "2")) (node (ref "R2") (pin "1")) (node (ref "R1") (pin "1")) (node (ref "R5") (pin "1")))
+    (net (code "5") (name "/C") (node (ref "U1") (pin "3")) (node (ref "U1") (pin "4")))))
+"#;
+        let rules = crate::classify::classifier::Rules::builtin();
+        let tree = crate::sexpr::parse(BOARD).expect("test board parses");
+        let nl = crate::netlist::build(&tree).expect("test board builds");
+        let cl = crate::classify::classifier::classify(&nl, &rules);
+        let cx = super::build(&nl, &cl, &rules, Default::default());
+        let net = |name: &str| nl.net_by_name(name).expect("net on the test board");
+        let refs = |n: usize| -> Vec<&str> {
+            cx.unreadable(n)
+                .map(|c| nl.components[c].reference.as_str())
+                .collect()
+        };
+        // in the order of the parts, whichever order the net's nodes are in
+        assert_eq!(refs(net("/B")), ["R1", "R2", "R5"]);
+        assert_eq!(refs(net("/A")), ["R3"]);
+        for n in [net("/C"), net("+5V"), net("GND")] {
+            assert!(refs(n).is_empty(), "{}", nl.nets[n].name.as_str());
+            assert!(!cx.nets[n].has_unreadable());
+        }
+        for n in [net("/A"), net("/B")] {
+            assert!(cx.nets[n].has_unreadable());
+            // something holds the net: the checks do not call its inputs floating as well
+            assert!(cx.nets[n].own_source());
+            for c in cx.unreadable(n) {
+                let value = nl.components[c].value_str();
+                let want = crate::values::parse_resistance(value).map(|r| r.ohms);
+                assert!(want.is_err(), "{value}");
+                assert_eq!(cx.resistor_value(c), Some(&want));
+            }
+        }
+        // /A's pull resistor R4 reads: a pull, in the net's extras; /B has nothing else
+        assert_eq!(cx.nets[net("/A")].pulls().len(), 1);
+        assert!(cx.nets[net("/B")].extras.is_none());
     }
 }

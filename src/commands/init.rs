@@ -39,7 +39,7 @@ pub fn init_facts(files: &[String], read: &ReadOptions) -> Result<Facts, Box<Fil
         let board = a.circuit();
         let (nl, cx) = (&a.nl, &board.cx);
         for (i, net) in cx.nets.iter().enumerate() {
-            let Some(rail) = net.rail else { continue };
+            let Some(rail) = net.rail() else { continue };
             let name = nl.nets[i].name.as_str().to_string();
             if facts.rails.iter().any(|r| r.name == name) {
                 continue;

@@ -320,6 +320,7 @@ const SLOTS: usize = 6;
 
 /// Orders the texts made of `a`'s parts and of `b`'s as the texts themselves are ordered
 /// (byte by byte), with no text made.
+#[inline]
 pub fn cmp_parts(a: [&str; 3], b: [&str; 3]) -> std::cmp::Ordering {
     let (mut a, mut b) = (a.map(str::as_bytes), b.map(str::as_bytes));
     let (mut i, mut j) = (0, 0);
@@ -1674,6 +1675,26 @@ impl<'a> DiagRef<'a> {
         }
     }
 
+    /// The net ([`DiagRef::net`]) and the pins' names as the finding holds them, joined by
+    /// NUL bytes (no name holds one), read together.
+    #[inline]
+    pub fn net_and_pins_joined(&self) -> (Option<&'a str>, Option<&'a str>) {
+        match self.0 {
+            Inner::One(d) => (d.net.as_deref(), d.pins.0.as_deref()),
+            Inner::In(l, r) => {
+                let has = r.has();
+                if has & (HAS_NET | HAS_PINS) == 0 {
+                    return (None, None);
+                }
+                let (text, [_, n_at, p_at], [_, n, p]) = Self::own(l, r);
+                (
+                    (has & HAS_NET != 0).then(|| &text[n_at..n_at + n]),
+                    (has & HAS_PINS != 0).then(|| &text[p_at..p_at + p]),
+                )
+            }
+        }
+    }
+
     #[inline]
     fn pin_text(&self) -> Option<&'a str> {
         match self.0 {
@@ -1958,6 +1979,12 @@ mod tests {
         for (i, (r, d)) in list.iter().zip(&want).enumerate() {
             assert_eq!(r, d.view(), "{i}");
             assert_eq!(r.to_diag().view(), d.view(), "{i}");
+            // the net and the pins read together are those read apart
+            let (net, pins) = r.net_and_pins_joined();
+            assert_eq!(net, d.net.as_deref(), "{i}");
+            let pins: Option<Vec<&str>> = pins.map(|p| p.split('\0').collect());
+            let apart: Vec<&str> = d.pins().collect();
+            assert_eq!(pins, d.has_pins().then_some(apart), "{i}");
         }
         for t in &list.text {
             assert!(t.capacity() <= TEXT_CHUNK || t.len() == t.capacity());

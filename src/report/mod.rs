@@ -257,10 +257,26 @@ pub fn fnv1a64(bytes: &[u8]) -> u64 {
 }
 
 /// FNV-1a 64 of the bytes hashed into `h` followed by `bytes`.
-fn fnv1a64_more(mut h: u64, bytes: &[u8]) -> u64 {
-    for &b in bytes {
-        h ^= u64::from(b);
-        h = h.wrapping_mul(0x0100_0000_01b3);
+#[inline]
+fn fnv1a64_more(h: u64, bytes: &[u8]) -> u64 {
+    fnv1a64_mapped(h, bytes, |b| b)
+}
+
+/// FNV-1a 64 of the bytes hashed into `h` followed by `bytes`, each byte taken as `map` gives
+/// it. Eight bytes at a time, so the loop's own steps are taken once for eight.
+#[inline(always)]
+fn fnv1a64_mapped(mut h: u64, bytes: &[u8], map: impl Fn(u8) -> u8) -> u64 {
+    const PRIME: u64 = 0x0100_0000_01b3;
+    let mut chunks = bytes.chunks_exact(8);
+    for c in &mut chunks {
+        for &b in c {
+            h ^= u64::from(map(b));
+            h = h.wrapping_mul(PRIME);
+        }
+    }
+    for &b in chunks.remainder() {
+        h ^= u64::from(map(b));
+        h = h.wrapping_mul(PRIME);
     }
     h
 }
@@ -329,19 +345,42 @@ pub fn fingerprint_hash_iter(f: &FileOutcome) -> impl Iterator<Item = u64> + '_ 
     })
 }
 
+/// What [`fingerprint_hash`] keeps from one finding to the next: a buffer for a key that is
+/// written out, and the hash of the last code met with the separator after it, by the code's
+/// address and length (the findings of one check come in a row, and say their code with one
+/// text). Used for the findings of one file, which are not changed while it lives.
+#[derive(Default)]
+struct KeyHasher {
+    key: String,
+    code: Option<(usize, usize, u64)>,
+}
+
 /// FNV-1a 64 of [`fingerprint_key`]: of its pieces one after another, with no key written,
-/// when the finding names a net or a pin (`key` is then left as it was); otherwise of the key
-/// written into `key`.
-fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut String) -> u64 {
-    let net = d.net();
-    if net.is_none() && !d.has_pins() {
-        write_fingerprint_key(d, source, key);
-        return fnv1a64(key.as_bytes());
+/// when the finding names a net or a pin (the code's part taken from `st` when the last code
+/// was this one); otherwise of the key written into `st`.
+fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, st: &mut KeyHasher) -> u64 {
+    let (net, pins) = d.net_and_pins_joined();
+    if net.is_none() && pins.is_none() {
+        write_fingerprint_key(d, source, &mut st.key);
+        return fnv1a64(st.key.as_bytes());
     }
-    let mut h = fnv1a64_more(fnv1a64(d.code().as_bytes()), b"\x1f");
+    let code = d.code();
+    let at = (code.as_ptr() as usize, code.len());
+    let mut h = match st.code {
+        Some((p, n, h)) if (p, n) == at => h,
+        _ => {
+            let h = fnv1a64_more(fnv1a64(code.as_bytes()), b"\x1f");
+            st.code = Some((at.0, at.1, h));
+            h
+        }
+    };
     h = fnv1a64_more(h, net.unwrap_or("").as_bytes());
-    for p in d.pins() {
-        h = fnv1a64_more(fnv1a64_more(h, b"\x1f"), p.as_bytes());
+    // the key's pins are each after a separator; the list holds them joined by NUL bytes, so
+    // the separator before the first and the joined names with each NUL taken as one are
+    // the same bytes, hashed in one pass
+    if let Some(pins) = pins {
+        h = fnv1a64_more(h, b"\x1f");
+        h = fnv1a64_mapped(h, pins.as_bytes(), |b| if b == 0 { 0x1f } else { b });
     }
     h
 }
@@ -355,69 +394,91 @@ fn fingerprint_hash(d: DiagRef<'_>, source: Option<&SourceFile>, key: &mut Strin
 /// looked up. Only the others are counted, by hash, each hash with the first finding that had
 /// it; a hash met again is checked against that finding's key, and a different key with the
 /// same hash is counted apart by its text. Findings with one key have one hash and one slot,
-/// so all of them are counted. What is held is eight bytes a finding for its hash, a quarter
-/// of that for the slots, and the table of the findings counted; no key is kept as text
-/// unless two differ with one hash.
+/// so all of them are counted. What is held is a quarter of a word a finding for the slots
+/// while the hashes are first worked out, then half that (only "met again" is read after),
+/// and the table of the findings counted: each hash is worked out again as its finding is
+/// given (the code's part of it once for a run of findings of one check), not kept, and no
+/// key is kept as text unless two differ with one hash.
 fn key_ranks(
     f: &FileOutcome,
-    hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64,
+    hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut KeyHasher) -> u64,
 ) -> impl Iterator<Item = (u64, usize)> + '_ {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
     let (mut key, mut first_key) = (String::new(), String::new());
-    let hashes: Vec<u64> = f.diags.iter().map(|d| hash(d, source, &mut key)).collect();
+    let mut st = KeyHasher::default();
     // a power of two, at least eight slots a finding
-    let bits = (hashes.len() * 8)
+    let bits = (f.diags.len() * 8)
         .next_power_of_two()
         .max(64)
         .trailing_zeros();
     let slot = move |h: u64| (h.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - bits)) as usize;
     let mut slots = vec![0u64; (1usize << bits) / 32];
-    for &h in &hashes {
-        let s = slot(h);
+    for d in f.diags.iter() {
+        let s = slot(hash(d, source, &mut st));
         let (word, at) = (s / 32, 2 * (s % 32));
         // met (01), then met again (11)
         let met = (slots[word] >> at) & 1;
         slots[word] |= (1 | (met << 1)) << at;
     }
+    // only "met again" is read from here on: one bit a slot, packed into the table's first
+    // half in place and the rest given back (each word's 32 bits are read from the words at
+    // and after it, which are not yet written over)
+    let words = slots.len().div_ceil(2);
+    for w in 0..words {
+        let low = again_bits(slots[2 * w]);
+        let high = slots.get(2 * w + 1).map_or(0, |&x| again_bits(x));
+        slots[w] = low | (high << 32);
+    }
+    slots.truncate(words);
+    slots.shrink_to_fit();
     let again = move |h: u64| {
         let s = slot(h);
-        (slots[s / 32] >> (2 * (s % 32))) & 2 != 0
+        (slots[s / 64] >> (s % 64)) & 1 != 0
     };
     // a hash of a finding counted -> (the first finding with it, how many findings had its
     // key so far)
     let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
     let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
-    f.diags
-        .iter()
-        .zip(hashes)
-        .enumerate()
-        .map(move |(i, (d, h))| {
-            if !again(h) {
-                return (h, 0);
+    f.diags.iter().enumerate().map(move |(i, d)| {
+        let h = hash(d, source, &mut st);
+        if !again(h) {
+            return (h, 0);
+        }
+        let n = match seen.entry(h) {
+            Entry::Vacant(e) => {
+                e.insert((i as u32, 1));
+                0
             }
-            let n = match seen.entry(h) {
-                Entry::Vacant(e) => {
-                    e.insert((i as u32, 1));
-                    0
+            Entry::Occupied(mut e) => {
+                let (first, count) = e.get_mut();
+                write_fingerprint_key(d, source, &mut key);
+                let first_d = f.diags.get(*first as usize).expect("an earlier finding");
+                write_fingerprint_key(first_d, source, &mut first_key);
+                if first_key == key {
+                    *count += 1;
+                    *count as usize - 1
+                } else {
+                    let n = collided.entry(key.clone()).or_insert(0);
+                    *n += 1;
+                    *n - 1
                 }
-                Entry::Occupied(mut e) => {
-                    let (first, count) = e.get_mut();
-                    write_fingerprint_key(d, source, &mut key);
-                    let first_d = f.diags.get(*first as usize).expect("an earlier finding");
-                    write_fingerprint_key(first_d, source, &mut first_key);
-                    if first_key == key {
-                        *count += 1;
-                        *count as usize - 1
-                    } else {
-                        let n = collided.entry(key.clone()).or_insert(0);
-                        *n += 1;
-                        *n - 1
-                    }
-                }
-            };
-            (h, n)
-        })
+            }
+        };
+        (h, n)
+    })
+}
+
+/// The "met again" bits of a word of two-bit slots (the odd bits), gathered into its low
+/// 32 bits in order.
+#[inline]
+fn again_bits(x: u64) -> u64 {
+    let mut x = (x >> 1) & 0x5555_5555_5555_5555;
+    x = (x | (x >> 1)) & 0x3333_3333_3333_3333;
+    x = (x | (x >> 2)) & 0x0f0f_0f0f_0f0f_0f0f;
+    x = (x | (x >> 4)) & 0x00ff_00ff_00ff_00ff;
+    x = (x | (x >> 8)) & 0x0000_ffff_0000_ffff;
+    (x | (x >> 16)) & 0x0000_0000_ffff_ffff
 }
 
 /// The fingerprint of a file's fatal diagnostic.
@@ -665,6 +726,20 @@ mod tests {
         );
     }
 
+    /// The "met again" bits of two-bit slots come out one bit a slot, in slot order.
+    #[test]
+    fn again_bits_keep_each_slot_s_second_bit_in_order() {
+        let mut x: u64 = 0x9e37_79b9_7f4a_7c15;
+        for _ in 0..200 {
+            x = x.rotate_left(13).wrapping_mul(0x0100_0000_01b3) ^ 0x5bd1_e995;
+            let want = (0..32).fold(0u64, |w, k| w | (((x >> (2 * k + 1)) & 1) << k));
+            assert_eq!(again_bits(x), want, "{x:#x}");
+        }
+        assert_eq!(again_bits(u64::MAX), 0xffff_ffff);
+        assert_eq!(again_bits(0x5555_5555_5555_5555), 0);
+        assert_eq!(again_bits(0b1000), 0b10);
+    }
+
     /// Ranks counted by hash equal ranks counted by the key's text, even when every key
     /// has the same hash or keys of one length share one.
     #[test]
@@ -705,13 +780,13 @@ mod tests {
             })
             .collect();
         assert_eq!(want, [0, 0, 1, 0, 1, 2, 0, 1]);
-        type Hash = fn(DiagRef<'_>, Option<&SourceFile>, &mut String) -> u64;
+        type Hash = fn(DiagRef<'_>, Option<&SourceFile>, &mut KeyHasher) -> u64;
         for hash in [
             fingerprint_hash as Hash,
             |_, _, _| 7,
             |d, s, k| {
-                write_fingerprint_key(d, s, k);
-                k.len() as u64
+                write_fingerprint_key(d, s, &mut k.key);
+                k.key.len() as u64
             },
         ] {
             let got: Vec<usize> = key_ranks(&f, hash).map(|(_, n)| n).collect();
@@ -719,7 +794,7 @@ mod tests {
         }
         // the hash of the pieces is the hash of the key, for findings with a net, pins, both
         // or neither (whose key holds the text at their place)
-        let mut key = String::new();
+        let mut key = KeyHasher::default();
         for d in f
             .diags
             .iter()

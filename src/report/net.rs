@@ -54,7 +54,7 @@ pub fn write_net(
 ) -> io::Result<()> {
     let nm = &cx.nets[net];
     writeln!(out, "net {}", sanitize(&cx.net_name(net)))?;
-    if let Some(r) = nm.rail {
+    if let Some(r) = nm.rail() {
         writeln!(
             out,
             "  a rail: {}",
@@ -151,12 +151,16 @@ pub fn write_net(
             )?;
         }
     }
-    for (ci, e) in nm.unreadable() {
+    for ci in cx.unreadable(net) {
+        // the model lists a resistor here only when its reading is an error
+        let Some(Err(e)) = cx.resistor_value(ci) else {
+            continue;
+        };
         writeln!(
             out,
             "  unreadable resistor value: {} `{}`: {}",
-            cx.nl.components[*ci].reference,
-            sanitize(cx.nl.components[*ci].value_str()),
+            cx.nl.components[ci].reference,
+            sanitize(cx.nl.components[ci].value_str()),
             e
         )?;
     }
