@@ -694,17 +694,7 @@ mod tests {
             "(kicad_sch (sheet (property \"Sheetfile\" \"a.kicad_sch\"))".into(),
             "(kicad_sch (sheet (property \"Sheetfile\" \"a.kicad_sch\"))) x".into(),
         ];
-        let mut dirs = vec![std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("fixtures")];
-        while let Some(d) = dirs.pop() {
-            for e in std::fs::read_dir(&d).into_iter().flatten().flatten() {
-                let p = e.path();
-                if p.is_dir() {
-                    dirs.push(p);
-                } else if p.extension().is_some_and(|x| x == "kicad_sch") {
-                    texts.extend(std::fs::read_to_string(&p).ok());
-                }
-            }
-        }
+        texts.extend(crate::schematic::tests::fixture_sheets());
         assert!(texts.len() > 10, "{}", texts.len());
         let mut names = 0;
         for t in &texts {

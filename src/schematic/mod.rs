@@ -1295,6 +1295,18 @@ mod tests {
     use super::*;
     use std::cmp::Ordering;
 
+    /// A project of a root sheet and one child sheet, `t/root.kicad_sch` and
+    /// `t/child.kicad_sch`, joined into one source as the loader joins them.
+    fn root_and_child(root: &str, child: &str) -> SourceFile {
+        SourceFile::from_files(
+            "t/root.kicad_sch",
+            vec![
+                ("t/root.kicad_sch".to_string(), root.to_string()),
+                ("t/child.kicad_sch".to_string(), child.to_string()),
+            ],
+        )
+    }
+
     /// The comparison read token by token from the first byte (runs of digits by value).
     fn from_the_start(a: &str, b: &str) -> Ordering {
         let (a, b) = (a.as_bytes(), b.as_bytes());
@@ -1395,13 +1407,7 @@ mod tests {
               (instances (project \"p\" (path \"/r/sa\" (reference \"U1\") (unit 1)) (path \"/r/sb\" (reference \"U1\") (unit 2))\n\
                 (path \"/r/sc\" (reference \"U2\") (unit 1)))))\n\
             (label \"A\" (at 10 7.46 0)))\n";
-        let source = SourceFile::from_files(
-            "t/root.kicad_sch",
-            vec![
-                ("t/root.kicad_sch".to_string(), root.to_string()),
-                ("t/child.kicad_sch".to_string(), child.to_string()),
-            ],
-        );
+        let source = root_and_child(root, child);
         let nl = read_source(&source).unwrap();
         let nets: Vec<(String, Vec<(String, String)>)> = nl
             .nets
@@ -1443,13 +1449,7 @@ mod tests {
               (property \"Value\" \"x\" (at 0 0 0)) (pin \"1\" (uuid \"p1\")) (pin \"2\" (uuid \"p2\")) (pin \"\" (uuid \"p3\"))\n\
               (instances (project \"p\" (path \"/r/sa\" (reference \"U1\") (unit 1)) (path \"/r/sb\" (reference \"U7\") (unit 1)))))\n\
             (label \"A\" (at 10 7.46 0)) (label \"B\" (at 10 12.54 0)) (label \"C\" (at 12.54 10 0)))\n";
-        let source = SourceFile::from_files(
-            "t/root.kicad_sch",
-            vec![
-                ("t/root.kicad_sch".to_string(), root.to_string()),
-                ("t/child.kicad_sch".to_string(), child.to_string()),
-            ],
-        );
+        let source = root_and_child(root, child);
         let nl = read_source(&source).unwrap();
         let text = source.text();
         let mut got = Vec::new();
@@ -1518,5 +1518,23 @@ mod tests {
         assert_eq!(root.symbol_instances[ix["/b/x"]].reference, "R2");
         assert_eq!(ix.len(), 2);
         assert_eq!(cat(&["/", "top", "/"]), "/top/");
+    }
+
+    /// The text of every `.kicad_sch` file under `fixtures/`, for tests that hold a reading
+    /// to another over every sheet the project has.
+    pub(crate) fn fixture_sheets() -> Vec<String> {
+        let mut texts = Vec::new();
+        let mut dirs = vec![std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("fixtures")];
+        while let Some(d) = dirs.pop() {
+            for e in std::fs::read_dir(&d).into_iter().flatten().flatten() {
+                let p = e.path();
+                if p.is_dir() {
+                    dirs.push(p);
+                } else if p.extension().is_some_and(|x| x == "kicad_sch") {
+                    texts.extend(std::fs::read_to_string(&p).ok());
+                }
+            }
+        }
+        texts
     }
 }

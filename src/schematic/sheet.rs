@@ -718,18 +718,7 @@ mod tests {
     /// quote or letter put in at every byte.
     #[test]
     fn a_sheet_read_item_by_item_is_the_sheet_read_whole() {
-        let mut texts: Vec<String> = Vec::new();
-        let mut dirs = vec![std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("fixtures")];
-        while let Some(d) = dirs.pop() {
-            for e in std::fs::read_dir(&d).into_iter().flatten().flatten() {
-                let p = e.path();
-                if p.is_dir() {
-                    dirs.push(p);
-                } else if p.extension().is_some_and(|x| x == "kicad_sch") {
-                    texts.extend(std::fs::read_to_string(&p).ok());
-                }
-            }
-        }
+        let mut texts = crate::schematic::tests::fixture_sheets();
         let fixtures = texts.len();
         assert!(fixtures > 10, "{fixtures}");
         texts.push(crate::synth::schematic(40_000).0);

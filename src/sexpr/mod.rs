@@ -366,12 +366,9 @@ pub fn sniff(text: &str) -> Option<Diag> {
     }
 }
 
-/// The lists among the root list's children whose head is the atom `head`, as spans,
-/// found without building a tree: the text is read by the lexical rules of [`parse`], but
-/// only brackets and strings are looked at (atoms and white space inside lists cannot make
-/// a text unreadable). `None` when the text is not one root list that [`parse`] reads
-/// without an error (or when in doubt): [`parse`] it then, for the tree or the error.
-pub fn root_lists(text: &str, head: &str) -> Option<Vec<Span>> {
+/// Where the root list's `(` is: after a byte-order mark and white space. `None` when the
+/// text does not begin so, or is too large for [`parse`].
+fn root_open(text: &str) -> Option<usize> {
     let b = text.as_bytes();
     let n = b.len();
     if n >= NEXT_MASK as usize {
@@ -381,9 +378,18 @@ pub fn root_lists(text: &str, head: &str) -> Option<Vec<Span>> {
     while i < n && CLASS[b[i] as usize] == WS {
         i += 1;
     }
-    if i == n || b[i] != b'(' {
-        return None;
-    }
+    (i < n && b[i] == b'(').then_some(i)
+}
+
+/// The lists among the root list's children whose head is the atom `head`, as spans,
+/// found without building a tree: the text is read by the lexical rules of [`parse`], but
+/// only brackets and strings are looked at (atoms and white space inside lists cannot make
+/// a text unreadable). `None` when the text is not one root list that [`parse`] reads
+/// without an error (or when in doubt): [`parse`] it then, for the tree or the error.
+pub fn root_lists(text: &str, head: &str) -> Option<Vec<Span>> {
+    let b = text.as_bytes();
+    let n = b.len();
+    let mut i = root_open(text)?;
     let mut out = Vec::new();
     let mut depth = 0usize;
     // the start of the root's child being kept, and the end of the last quoted string
@@ -492,16 +498,7 @@ impl<'a> Items<'a> {
     pub fn new(text: &'a str) -> Option<Items<'a>> {
         let b = text.as_bytes();
         let n = b.len();
-        if n >= NEXT_MASK as usize {
-            return None;
-        }
-        let mut i = bom_len(text);
-        while i < n && CLASS[b[i] as usize] == WS {
-            i += 1;
-        }
-        if i == n || b[i] != b'(' {
-            return None;
-        }
+        let mut i = root_open(text)?;
         let root_start = i;
         i += 1;
         while i < n && CLASS[b[i] as usize] == WS {
