@@ -933,6 +933,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
     let comps = &nl.components;
     let ref_of = |i: &u32| comps[*i as usize].reference.as_str();
+    // kept in the netlist: made before the keys below, which are given back once the nodes
+    // are linked, so they leave no hole under it
+    let mut by_ref: hashbrown::HashTable<u32> = hashbrown::HashTable::with_capacity(comps.len());
     // each component's reference as a short key, in one compact list: a node's look-up
     // compares keys there instead of reading the component and its text in the file (both
     // far apart on a big board); only a reference too long for a key reads the component
@@ -940,7 +943,6 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         .iter()
         .map(|c| RefKey::of(c.reference.as_str()))
         .collect();
-    let mut by_ref: hashbrown::HashTable<u32> = hashbrown::HashTable::with_capacity(comps.len());
     for (i, c) in comps.iter().enumerate() {
         let h = text_hash(c.reference.as_str());
         let r = c.reference.as_str();
@@ -1099,7 +1101,6 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
 
-    // each distinct pin text's rank in text order, in place of its id
     let mut by_text: Vec<(&str, u32)> = pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
     by_text.sort_unstable();
     let mut rank_of_id = vec![0u32; by_text.len()];
@@ -1125,18 +1126,9 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut fill: Vec<u32> = comp_at[..ncomp].to_vec();
     // (pin rank, net, node)
     let mut sorted: Vec<(u32, u32, u32)> = vec![(0, 0, 0); linked];
-    // Per-node and per-net tables in the model's order, taken on the same walk: node `k` of
-    // net `ni` is at `net_nodes[ni].0 + k`, and the net has `net_nodes[ni].1` nodes; each
-    // node's (pin type, no-connect). The component pins made below read these compact lists
-    // by index instead of the nets' and nodes' own records (a component's pins lie on nets
-    // all over the board, and the records are several times larger).
-    let mut net_nodes: Vec<(u32, u32)> = Vec::with_capacity(nl.nets.len());
-    let mut node_types: Vec<(Option<PinType>, bool)> = vec![(None, false); nl.nodes.len()];
     for (ni, net) in nl.nets.iter().enumerate() {
         let base = net.first as usize;
-        net_nodes.push((net.first, net.node_count() as u32));
         for (k, node) in nl.nodes[net.range()].iter().enumerate() {
-            node_types[base + k] = (node.pintype, node.no_connect);
             if let Some(ci) = node.component() {
                 let at = &mut fill[ci as usize];
                 sorted[*at as usize] = (pin_of[base + k], ni as u32, k as u32);
@@ -1153,6 +1145,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
 
+    // Per-node tables in the model's order: node `k` of net `ni` is at `net_at[ni] + k`.
+    let net_at: Vec<u32> = nl.nets.iter().map(|n| n.first).collect();
     let total = nl.nodes.len() as u32;
 
     // keep the first (component, pin) of each group; a repeat in the same net is dropped
@@ -1166,7 +1160,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             let e = group[i];
             if i == 0 || group[first_of_run].0 != e.0 {
                 first_of_run = i;
-                keep[(net_nodes[e.1 as usize].0 + e.2) as usize] = true;
+                keep[(net_at[e.1 as usize] + e.2) as usize] = true;
                 continue;
             }
             let f = group[first_of_run];
@@ -1191,10 +1185,10 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut new_index = Vec::new();
     if dropped {
         new_index = vec![u32::MAX; total as usize];
-        for &(first, count) in &net_nodes {
-            let (base, count) = (first as usize, count as usize);
-            let keep = &keep[base..base + count];
-            let map = &mut new_index[base..base + count];
+        for (ni, net) in nl.nets.iter().enumerate() {
+            let base = net_at[ni] as usize;
+            let keep = &keep[base..base + net.node_count()];
+            let map = &mut new_index[base..base + net.node_count()];
             let mut n = 0u32;
             for (k, &kp) in keep.iter().enumerate() {
                 if kp {
@@ -1203,7 +1197,22 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 }
             }
         }
+        // the nets' nodes lie net after net: move each kept node down over the dropped
+        let mut w = 0;
+        for net in &mut nl.nets {
+            let start = w;
+            for k in net.range() {
+                if keep[k] {
+                    nl.nodes.swap(w, k);
+                    w += 1;
+                }
+            }
+            net.set_nodes(start, w - start);
+        }
+        nl.nodes.truncate(w);
     }
+    nl.nodes.shrink_to_fit();
+    drop(keep);
     // per component, its kept (pin rank, net, node), still sorted by pin: written over
     // `sorted` in place (an entry moves down or stays), with no second list
     let mut pins_at: Vec<u32> = Vec::with_capacity(ncomp + 1);
@@ -1213,7 +1222,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         for r in comp_at[c] as usize..comp_at[c + 1] as usize {
             let (rank, ni, k) = sorted[r];
             let nk = if dropped {
-                new_index[(net_nodes[ni as usize].0 + k) as usize]
+                new_index[(net_at[ni as usize] + k) as usize]
             } else {
                 k
             };
@@ -1228,28 +1237,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let mut pin_nets = sorted;
     drop(new_index);
     drop(comp_at);
-    if dropped {
-        // the nets' nodes lie net after net: move each kept node (and its pin type) down
-        // over the dropped
-        let mut w = 0;
-        for (net, at) in nl.nets.iter_mut().zip(&mut net_nodes) {
-            let start = w;
-            for k in net.range() {
-                if keep[k] {
-                    nl.nodes.swap(w, k);
-                    node_types[w] = node_types[k];
-                    w += 1;
-                }
-            }
-            net.set_nodes(start, w - start);
-            *at = (start as u32, (w - start) as u32);
-        }
-        nl.nodes.truncate(w);
-        node_types.truncate(w);
-    }
-    nl.nodes.shrink_to_fit();
-    node_types.shrink_to_fit();
-    drop(keep);
+    drop(net_at);
     for (first, second, span, pin) in twice {
         let (f, n) = (&nl.nets[first], &nl.nets[second]);
         diags.push(
@@ -1298,7 +1286,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             kept = end;
         }
         let mine = &pin_nets[pins_at[ci] as usize..end];
-        let nets = &net_nodes[..];
+        let (nets, nodes) = (&nl.nets, &nl.nodes);
         let mut pins: Vec<CompPin> = Vec::new();
         used.clear();
         used.resize(mine.len(), false);
@@ -1334,12 +1322,11 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 let mut ptype = lpin.ptype;
                 let mut no_connect = lpin.ptype == PinType::NoConnect;
                 if let Some(i) = found {
-                    let (t, nc) =
-                        node_types[nets[mine[i].1 as usize].0 as usize + mine[i].2 as usize];
-                    if let Some(t) = t {
+                    let nd = &nodes[nets[mine[i].1 as usize].first as usize + mine[i].2 as usize];
+                    if let Some(t) = nd.pintype {
                         ptype = t;
                     }
-                    no_connect |= nc;
+                    no_connect |= nd.no_connect;
                 }
                 // the number and name are read through the library pin, or the node
                 pins.push(CompPin::from_libpin(
@@ -1355,10 +1342,10 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             if used[i] {
                 continue;
             }
-            let (t, nc) = node_types[nets[e.1 as usize].0 as usize + e.2 as usize];
+            let node = &nodes[nets[e.1 as usize].first as usize + e.2 as usize];
             pins.push(CompPin::from_node(
-                t.unwrap_or(PinType::Unknown),
-                nc,
+                node.pintype.unwrap_or(PinType::Unknown),
+                node.no_connect,
                 connection(nets, e.1, e.2),
             ));
         }
@@ -1407,9 +1394,8 @@ fn same_ref(keys: &[RefKey], comps: &[Component<'_>], j: u32, r: &str, key: &Ref
     }
 }
 
-/// The connection to node `node` of net `net`, given each net's (first node, node count).
-fn connection(nets: &[(u32, u32)], net: u32, node: u32) -> Connection {
-    if nets[net as usize].1 > 1 {
+fn connection(nets: &[Net<'_>], net: u32, node: u32) -> Connection {
+    if nets[net as usize].node_count() > 1 {
         Connection::Net { net, node }
     } else {
         Connection::Alone { net, node }
