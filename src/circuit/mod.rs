@@ -1049,25 +1049,7 @@ pub fn build<'n, 'a>(
             None => {}
         }
     }
-    for (ci, c) in nl.components.iter().enumerate() {
-        for p in &c.pins {
-            if p.ptype() == crate::netlist::PinType::PowerOut && !cl.parts[ci].is_logic() {
-                if let Connection::Net { net, .. } = p.connection {
-                    let net = net as usize;
-                    if rail.get(net).is_none() {
-                        rail.set(
-                            net,
-                            Some(Rail {
-                                volts: None,
-                                ground: false,
-                                source: RailSource::PowerOutput,
-                            }),
-                        );
-                    }
-                }
-            }
-        }
-    }
+    // power outputs, then rails by the pins on them: one walk over the pins does both
     let mut rail_notes = rails_by_usage(nl, cl, &families, &mut rail);
     let rail = RailsOf(&nets[..]);
 
@@ -1194,6 +1176,9 @@ pub fn build<'n, 'a>(
     drop(counts);
     // parts with the same figures and family share one entry, told by their addresses
     let mut part_logic = PerPartBuilder::with_capacity(nl.components.len());
+    // (net, part) of each one-pin pull-up or pull-down part, in part order, found on the way
+    // (held once the resistors are): no walk over every part of its own
+    let mut pull_parts: Vec<(u32, u32)> = Vec::new();
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         let mut logic = PartLogic {
@@ -1205,7 +1190,13 @@ pub fn build<'n, 'a>(
                     .clone()
             }),
         };
-        let pull_part = part.kind == PartKind::Other && is_pull_part(c);
+        let one_pin_pull = is_pull_part(c);
+        if one_pin_pull {
+            if let Some(net) = c.pins[0].connection.net() {
+                pull_parts.push((small(net), small(ci)));
+            }
+        }
+        let pull_part = part.kind == PartKind::Other && one_pin_pull;
         // a connector's pins driven by a configured family take that family's figures at its
         // nominal supply; any other part's figures at its supply are looked up once, when a
         // pin of it is the first to drive or load a net
@@ -1336,12 +1327,8 @@ pub fn build<'n, 'a>(
         }
     }
     // one-pin pull-up and pull-down parts (simulation and sketch libraries)
-    for (ci, c) in nl.components.iter().enumerate() {
-        if is_pull_part(c) {
-            if let Some(net) = c.pins[0].connection.net() {
-                nets[net].extras_mut().held.push(ci);
-            }
-        }
+    for (net, ci) in pull_parts {
+        nets[net as usize].extras_mut().held.push(ci as usize);
     }
     // sheet-local nets share their last names (`/cell7/CLK`): each is read once
     let mut rail_named: rustc_hash::FxHashMap<&str, bool> = Default::default();
@@ -1705,6 +1692,24 @@ fn rails_by_usage(
     for (ci, c) in nl.components.iter().enumerate() {
         let part = &cl.parts[ci];
         for (pi, p) in c.pins.iter().enumerate() {
+            // a power output of a part that is not logic (a regulator, a supply symbol) makes
+            // its net a rail of unknown voltage, unless something already did; the counts
+            // below read no rail, so this is the same as a walk of its own before them
+            if p.ptype() == crate::netlist::PinType::PowerOut && !part.is_logic() {
+                if let Connection::Net { net, .. } = p.connection {
+                    let net = net as usize;
+                    if rail.get(net).is_none() {
+                        rail.set(
+                            net,
+                            Some(Rail {
+                                volts: None,
+                                ground: false,
+                                source: RailSource::PowerOutput,
+                            }),
+                        );
+                    }
+                }
+            }
             let Some(net) = p.connection.net() else {
                 continue;
             };

@@ -933,10 +933,20 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     // refs
     let comps = &nl.components;
     let ref_of = |i: &u32| comps[*i as usize].reference.as_str();
+    // kept in the netlist: made before the keys below, which are given back once the nodes
+    // are linked, so they leave no hole under it
     let mut by_ref: hashbrown::HashTable<u32> = hashbrown::HashTable::with_capacity(comps.len());
+    // each component's reference as a short key, in one compact list: a node's look-up
+    // compares keys there instead of reading the component and its text in the file (both
+    // far apart on a big board); only a reference too long for a key reads the component
+    let ref_keys: Vec<RefKey> = comps
+        .iter()
+        .map(|c| RefKey::of(c.reference.as_str()))
+        .collect();
     for (i, c) in comps.iter().enumerate() {
         let h = text_hash(c.reference.as_str());
-        if let Some(&first) = by_ref.find(h, |j| ref_of(j) == c.reference.as_str()) {
+        let r = c.reference.as_str();
+        if let Some(&first) = by_ref.find(h, |&j| same_ref(&ref_keys, comps, j, r, &ref_keys[i])) {
             let first = first as usize;
             diags.push(
                 Diag::error(
@@ -1011,7 +1021,16 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     let ncomp = nl.components.len();
     let mut comp_at = vec![0u32; ncomp + 1];
     let mut linked = 0usize;
+    // Pin numbers as integers: each distinct pin text gets its rank in text order, so
+    // sorting by rank sorts exactly as comparing the texts would. The texts are numbered
+    // here as each node is linked (its pin's text lies beside its reference in the file),
+    // then ranked below.
+    let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
+    // per node in the model's order: its pin's id, then rank (unused for a node naming no
+    // component)
+    let mut pin_of: Vec<u32> = vec![u32::MAX; nl.nodes.len()];
     for (ni, net) in nl.nets.iter_mut().enumerate() {
+        let base = net.first as usize;
         if let Some(code) = &net.code {
             if let Some(&first) = codes.get(code.as_str()) {
                 diags.push(
@@ -1028,14 +1047,24 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                 );
             }
         }
-        for node in &mut nl.nodes[net.range()] {
+        for (k, node) in nl.nodes[net.range()].iter_mut().enumerate() {
             let r = node.reference_in(&nl.node_texts);
+            let key = RefKey::of(r);
             let comps = &nl.components;
-            match by_ref.find(text_hash(r), |&j| comps[j as usize].reference.as_str() == r) {
+            match by_ref.find(text_hash(r), |&j| same_ref(&ref_keys, comps, j, r, &key)) {
                 Some(&ci) => {
                     node.set_component(ci);
                     comp_at[ci as usize + 1] += 1;
                     linked += 1;
+                    let pin = node.pin_in(&nl.node_texts);
+                    let next = pin_ids.len() as u32;
+                    pin_of[base + k] = match pin_ids.get(pin) {
+                        Some(&id) => id,
+                        None => {
+                            pin_ids.insert(node.pin_str_in(&nl.node_texts), next);
+                            next
+                        }
+                    };
                 }
                 None => diags.push(
                     Diag::error(
@@ -1055,6 +1084,7 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
     drop(codes);
+    drop(ref_keys);
     // nets by name: the first net of a name
     let nets = &nl.nets;
     let name_of = |k: &(u32, u32)| nets[k.0 as usize].name.as_str();
@@ -1071,28 +1101,6 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
         }
     }
 
-    // Pin numbers as integers: each distinct pin text gets its rank in text order, so
-    // sorting by rank sorts exactly as comparing the texts would.
-    let mut pin_ids: HashMap<Str<'a>, u32> = HashMap::default();
-    // per node in the model's order: its pin's id, then rank (unused for a node naming no
-    // component)
-    let mut pin_of: Vec<u32> = Vec::with_capacity(nl.nodes.len());
-    for node in &nl.nodes {
-        if node.component().is_none() {
-            pin_of.push(u32::MAX);
-            continue;
-        }
-        let pin = node.pin_in(&nl.node_texts);
-        let next = pin_ids.len() as u32;
-        let id = match pin_ids.get(pin) {
-            Some(&id) => id,
-            None => {
-                pin_ids.insert(node.pin_str_in(&nl.node_texts), next);
-                next
-            }
-        };
-        pin_of.push(id);
-    }
     let mut by_text: Vec<(&str, u32)> = pin_ids.iter().map(|(k, &id)| (k.as_ref(), id)).collect();
     by_text.sort_unstable();
     let mut rank_of_id = vec![0u32; by_text.len()];
@@ -1345,6 +1353,45 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
     }
     nl.by_ref = by_ref;
     nl.by_net_name = by_net_name;
+}
+
+/// A component reference of up to 15 bytes, held whole: its bytes, zeros after them, and
+/// its length in the last byte. Two references held whole are equal exactly when their keys
+/// are. A longer reference is marked by a length of 255 and compared as text.
+#[derive(Clone, Copy, PartialEq, Eq)]
+struct RefKey([u8; 16]);
+
+impl RefKey {
+    const LONG: u8 = u8::MAX;
+
+    #[inline]
+    fn of(r: &str) -> RefKey {
+        let mut k = [0u8; 16];
+        if r.len() < 16 {
+            k[..r.len()].copy_from_slice(r.as_bytes());
+            k[15] = r.len() as u8;
+        } else {
+            k[15] = Self::LONG;
+        }
+        RefKey(k)
+    }
+
+    /// True when the key holds the whole reference (it is not a long one).
+    #[inline]
+    fn is_whole(&self) -> bool {
+        self.0[15] != Self::LONG
+    }
+}
+
+/// Component `j`'s reference is `r`, whose key is `key`.
+#[inline]
+fn same_ref(keys: &[RefKey], comps: &[Component<'_>], j: u32, r: &str, key: &RefKey) -> bool {
+    let k = &keys[j as usize];
+    if k.is_whole() {
+        k == key
+    } else {
+        comps[j as usize].reference.as_str() == r
+    }
 }
 
 fn connection(nets: &[Net<'_>], net: u32, node: u32) -> Connection {

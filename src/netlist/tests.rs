@@ -548,3 +548,55 @@ fn every_pin_points_at_its_own_node_on_a_large_board() {
     assert_eq!(on_nets, nodes, "every node is one pin's");
     assert_eq!(nl.components.capacity(), nl.components.len());
 }
+
+/// References are matched whole whatever their length: up to 15 bytes they are compared as
+/// short keys, longer ones as text, and a key never matches a longer or shorter reference
+/// that shares its bytes.
+#[test]
+fn nodes_find_their_components_by_references_short_and_long() {
+    let text = r#"(export (version "E")
+  (components
+    (comp (ref "ABCDEFGHIJKLMN") (value "x"))
+    (comp (ref "ABCDEFGHIJKLMNO") (value "x"))
+    (comp (ref "ABCDEFGHIJKLMNOP") (value "x"))
+    (comp (ref "ABCDEFGHIJKLMNOPQ") (value "x"))
+    (comp (ref "ABCDEFGHIJKLMNOP") (value "y"))
+    (comp (ref "U1") (value "x")))
+  (nets
+    (net (code "1") (name "A")
+      (node (ref "ABCDEFGHIJKLMNOPQ") (pin "1"))
+      (node (ref "ABCDEFGHIJKLMNOP") (pin "1"))
+      (node (ref "ABCDEFGHIJKLMNO") (pin "1"))
+      (node (ref "ABCDEFGHIJKLMN") (pin "1"))
+      (node (ref "U1") (pin "1")))
+    (net (code "2") (name "B")
+      (node (ref "ABCDEFGHIJKLM") (pin "2"))
+      (node (ref "ABCDEFGHIJKLMNOQ") (pin "2"))
+      (node (ref "ABCDEFGHIJKLMNOPX") (pin "2"))
+      (node (ref "U") (pin "2"))
+      (node (ref "U10") (pin "2")))))"#;
+    let nl = read(text);
+    let codes: Vec<&str> = nl.diagnostics.iter().map(|d| &*d.code).collect();
+    assert_eq!(
+        codes,
+        [
+            "duplicate-ref",
+            "unknown-component",
+            "unknown-component",
+            "unknown-component",
+            "unknown-component",
+            "unknown-component"
+        ]
+    );
+    let linked: Vec<Option<u32>> = nl.nets[0]
+        .nodes(&nl)
+        .iter()
+        .map(|n| n.component())
+        .collect();
+    // the first of two components that share a reference is the one its nodes name
+    assert_eq!(linked, [Some(3), Some(2), Some(1), Some(0), Some(5)]);
+    assert_eq!(nl.nets[1].node_count(), 0);
+    assert_eq!(nl.component("ABCDEFGHIJKLMNOPQ"), Some(3));
+    assert_eq!(nl.component("ABCDEFGHIJKLMNOP"), Some(2));
+    assert_eq!(nl.component("ABCDEFGHIJKLMNOQ"), None);
+}
