@@ -2386,7 +2386,8 @@ mod tests {
         let n = 2 * REC_CHUNK + 77;
         let mk = |i: usize| Diag::warning(A, format!("m{i}")).with_pins([format!("U{i}.1")]);
         // keys of a place then the index: places with many findings, far apart and near
-        let place = |i: usize| ((i * 7919) % 1013) as u64 * if i % 3 == 0 { 1 << 20 } else { 5 };
+        let place =
+            |i: usize| ((i * 7919) % 1013) as u64 * if i.is_multiple_of(3) { 1 << 20 } else { 5 };
         for small in [1, 3, 40, SORT_SMALL] {
             let mut list: DiagList = (0..n).map(mk).collect();
             let mut keys: Vec<u64> = (0..n).map(|i| place(i) << 32 | i as u64).collect();
