@@ -226,9 +226,11 @@ fn ref_in_pins(own: &str, pins: &[u8]) -> bool {
 
 /// Records a piece of [`DiagList::recs`] holds (a power of two).
 const REC_CHUNK: usize = 1 << 14;
-/// The most findings [`DiagList::sort_by_keys`] sorts whole in a buffer (24 kB of keys and
-/// records, well within a core's own cache).
-const SORT_SMALL: usize = 1024;
+/// The most findings [`DiagList::sort_by_keys`] sorts whole, among themselves: by insertion
+/// up to [`SORT_INSERT`] (or in a small buffer, when they lie across two pieces).
+const SORT_SMALL: usize = 16;
+/// The most findings sorted by insertion.
+const SORT_INSERT: usize = 16;
 /// The size of a piece of the places or of the text. A finding's places, or texts, are never
 /// split between two pieces: a finding that does not fit in what is left of the last piece
 /// starts a new one, made whole at once (or as large as the finding, if it is larger), so a
@@ -1152,7 +1154,8 @@ impl DiagList {
     /// place: each pass counts the keys of a range by their next eight bits and moves every
     /// record into its group by swaps, so the writes go to 256 places that each advance in
     /// memory order, never to one place at random per record as a permutation by cycles
-    /// does; a group of [`SORT_SMALL`] or fewer is sorted whole in a small buffer.
+    /// does; each pass takes as many bits as make groups of about 16, up to eight, and a
+    /// group of [`SORT_SMALL`] or fewer is sorted whole by insertion.
     pub(crate) fn sort_by_keys(&mut self, keys: &mut [u64]) {
         self.sort_by_keys_small(keys, SORT_SMALL);
     }
@@ -1182,7 +1185,21 @@ impl DiagList {
             small.clear();
             // the records read and written as one slice when they lie in one piece
             let (piece, at) = (from / REC_CHUNK, from % REC_CHUNK);
-            if at + keys.len() <= REC_CHUNK {
+            if at + keys.len() <= REC_CHUNK && keys.len() <= SORT_INSERT {
+                // a few: each put in its place among those before it
+                let recs = &mut self.recs[piece][at..at + keys.len()];
+                for i in 1..keys.len() {
+                    let (k, r) = (keys[i], recs[i]);
+                    let mut j = i;
+                    while j > 0 && keys[j - 1] > k {
+                        keys[j] = keys[j - 1];
+                        recs[j] = recs[j - 1];
+                        j -= 1;
+                    }
+                    keys[j] = k;
+                    recs[j] = r;
+                }
+            } else if at + keys.len() <= REC_CHUNK {
                 let recs = &mut self.recs[piece][at..at + keys.len()];
                 small.extend(keys.iter().copied().zip(recs.iter().copied()));
                 small.sort_unstable_by_key(|e| e.0);
@@ -1203,8 +1220,13 @@ impl DiagList {
             }
             return;
         }
-        let shift = bits.saturating_sub(8);
-        let group = |k: u64| ((k >> shift) & 0xff) as usize;
+        // as many bits as make groups of about 16, up to eight (256 groups)
+        let width = (usize::BITS - (keys.len() / 16).leading_zeros())
+            .clamp(1, 8)
+            .min(bits);
+        let shift = bits - width;
+        let groups = 1usize << width;
+        let group = |k: u64| ((k >> shift) as usize) & (groups - 1);
         let mut count = [0usize; 256];
         for &k in keys.iter() {
             count[group(k)] += 1;
@@ -1212,12 +1234,12 @@ impl DiagList {
         // each group's next free place and its end
         let (mut next, mut end) = ([0usize; 256], [0usize; 256]);
         let mut at = 0;
-        for g in 0..256 {
+        for g in 0..groups {
             next[g] = at;
             at += count[g];
             end[g] = at;
         }
-        for g in 0..256 {
+        for g in 0..groups {
             while next[g] < end[g] {
                 // the key at the group's next place is carried to its own group's next
                 // place, and the one there taken up in turn, until one of this group is held
@@ -1239,7 +1261,7 @@ impl DiagList {
             }
         }
         let mut start = 0;
-        for &n in &count {
+        for &n in &count[..groups] {
             if n > 1 {
                 self.sort_range(
                     &mut keys[start..start + n],
