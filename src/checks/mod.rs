@@ -121,7 +121,11 @@ mod tests {
                 }
                 want.push(d);
             }
+            // both ways of moving the records give one order
+            let mut by_passes = list.clone();
             sort_in_file_order(&mut list);
+            sort_in_file_order_from(&mut by_passes, 0);
+            proptest::prop_assert_eq!(&list, &by_passes);
             // the reference: the whole findings, sorted stably by their own fields
             want.sort_by(|a, b| {
                 let place = |d: &Diag| d.primary_span().map_or(0, |s| s.start);
@@ -256,12 +260,23 @@ pub fn run_all(cx: &Circuit<'_, '_>, budgets: &Budgets, opts: &CheckOptions) -> 
 }
 
 /// Sorts findings, stably, by the start of their primary place, then code, then message.
-/// The places are looked up once and sorted as plain numbers (place, then index: a stable
-/// order with no text compared); only findings that share a place are then ordered by code
-/// and message. One list of a word per finding is made: its key (place, then index), sorted,
-/// then cut to the index it holds, which is the order the records are moved into by swaps; no
-/// copy of the findings is made, however many there are.
+/// The places are looked up once and the records sorted by them as plain numbers (place,
+/// then index: a stable order with no text compared) in place, by a radix sort that moves
+/// them in memory order (`DiagList::sort_by_keys`); findings that share a place are then
+/// next to each other and only they are ordered by code, and by message only among those
+/// of one code, their records moved within the run. One word per finding is held (its key);
+/// no copy of the findings is made, however many there are.
 fn sort_in_file_order(out: &mut DiagList) {
+    sort_in_file_order_from(out, SORT_IN_PLACE);
+}
+
+/// Above this many findings (512 kB of records) the records are sorted in place by their
+/// keys, in memory order; at or below it, their keys are sorted and the records moved after.
+const SORT_IN_PLACE: usize = 1 << 15;
+
+/// [`sort_in_file_order`] with the count of findings above which the records are sorted in
+/// place given (the tests try both ways on small lists).
+fn sort_in_file_order_from(out: &mut DiagList, in_place_above: usize) {
     let mut keys: Vec<u64> = out
         .iter()
         .enumerate()
@@ -270,8 +285,18 @@ fn sort_in_file_order(out: &mut DiagList) {
             (u64::from(start) << 32) | i as u64
         })
         .collect();
-    keys.sort_unstable();
-    // runs of one place: by code, then message, in their first order otherwise
+    if keys.len() > in_place_above {
+        out.sort_by_keys(&mut keys);
+    } else {
+        // few enough findings that their records stay in a core's cache: the keys alone are
+        // sorted and the records moved after them by cycles, which takes fewer steps
+        keys.sort_unstable();
+        let mut order: Vec<u64> = keys.iter().map(|k| k & 0xffff_ffff).collect();
+        out.apply_order_at(0, &mut order);
+    }
+    // runs of one place: by code, then message, in their first order otherwise; each run's
+    // records moved among themselves as it is ordered
+    let mut order: Vec<u64> = Vec::new();
     let mut i = 0;
     while i < keys.len() {
         let mut j = i + 1;
@@ -279,54 +304,62 @@ fn sort_in_file_order(out: &mut DiagList) {
             j += 1;
         }
         if j - i > 1 {
-            // each finding's code and message parts read once, then sorted (stably, so
-            // ties keep their order); a code is one shared text: the same text is not
-            // compared byte by byte
-            let mut plain = true;
-            let run: Vec<(&str, [&str; 3], u32)> = keys[i..j]
-                .iter()
-                .map(|&k| {
-                    let d = out.get((k & 0xffff_ffff) as usize).expect("in the list");
-                    let parts = d.message_parts();
-                    plain &= parts.three().is_some();
-                    (d.code(), parts.three().unwrap_or_default(), k as u32)
-                })
-                .collect();
-            // their places in the run are sorted, not the entries
-            let mut by: Vec<u32> = (0..run.len() as u32).collect();
-            let code = |a: &(&str, [&str; 3], u32), b: &(&str, [&str; 3], u32)| {
-                if std::ptr::eq(a.0, b.0) {
+            // a code is one shared text: the same text is not compared byte by byte
+            let code = |a: &str, b: &str| {
+                if std::ptr::eq(a, b) {
                     std::cmp::Ordering::Equal
                 } else {
-                    a.0.cmp(b.0)
+                    a.cmp(b)
                 }
             };
-            if plain {
-                by.sort_by(|&a, &b| {
-                    let (a, b) = (&run[a as usize], &run[b as usize]);
-                    code(a, b).then_with(|| crate::diag::cmp_parts(a.1, b.1))
-                });
+            let codes: Vec<&str> = (i..j)
+                .map(|at| out.get(at).expect("in the list").code())
+                .collect();
+            let one_code_twice = codes
+                .iter()
+                .enumerate()
+                .any(|(a, x)| codes[..a].iter().any(|y| code(x, y).is_eq()));
+            // their places in the run are sorted, not the entries
+            let mut by: Vec<u32> = (0..codes.len() as u32).collect();
+            if !one_code_twice {
+                // no messages are read when the codes alone order the run
+                by.sort_by(|&a, &b| code(codes[a as usize], codes[b as usize]));
             } else {
-                // some messages with own words in pieces: their parts read as they are compared
-                by.sort_by(|&a, &b| {
-                    let (a, b) = (&run[a as usize], &run[b as usize]);
-                    code(a, b).then_with(|| {
-                        let parts = |r: &(&str, [&str; 3], u32)| {
-                            out.get(r.2 as usize).expect("in the list").message_parts()
-                        };
-                        crate::diag::cmp_part_lists(parts(a).iter(), parts(b).iter())
+                // each finding's message parts read once, then sorted (stably, so ties
+                // keep their order)
+                let mut plain = true;
+                let run: Vec<[&str; 3]> = (i..j)
+                    .map(|at| {
+                        let parts = out.get(at).expect("in the list").message_parts();
+                        plain &= parts.three().is_some();
+                        parts.three().unwrap_or_default()
                     })
-                });
+                    .collect();
+                if plain {
+                    by.sort_by(|&a, &b| {
+                        let (a, b) = (a as usize, b as usize);
+                        code(codes[a], codes[b])
+                            .then_with(|| crate::diag::cmp_parts(run[a], run[b]))
+                    });
+                } else {
+                    // some messages with own words in pieces: their parts read as they are
+                    // compared
+                    by.sort_by(|&a, &b| {
+                        let (a, b) = (a as usize, b as usize);
+                        code(codes[a], codes[b]).then_with(|| {
+                            let parts =
+                                |r: usize| out.get(i + r).expect("in the list").message_parts();
+                            crate::diag::cmp_part_lists(parts(a).iter(), parts(b).iter())
+                        })
+                    });
+                }
             }
-            for (slot, &r) in keys[i..j].iter_mut().zip(&by) {
-                *slot = (*slot & !0xffff_ffff) | u64::from(run[r as usize].2);
+            if by.iter().enumerate().any(|(a, &r)| a != r as usize) {
+                order.clear();
+                order.extend(by.iter().map(|&r| u64::from(r)));
+                out.apply_order_at(i, &mut order);
             }
         }
         i = j;
     }
-    // the keys become the order: each the index it holds
-    for k in &mut keys {
-        *k &= 0xffff_ffff;
-    }
-    out.apply_order(&mut keys);
 }

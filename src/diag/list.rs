@@ -226,6 +226,11 @@ fn ref_in_pins(own: &str, pins: &[u8]) -> bool {
 
 /// Records a piece of [`DiagList::recs`] holds (a power of two).
 const REC_CHUNK: usize = 1 << 14;
+/// The most findings [`DiagList::sort_by_keys`] sorts whole, among themselves: by insertion
+/// up to [`SORT_INSERT`] (or in a small buffer, when they lie across two pieces).
+const SORT_SMALL: usize = 16;
+/// The most findings sorted by insertion.
+const SORT_INSERT: usize = 16;
 /// The size of a piece of the places or of the text. A finding's places, or texts, are never
 /// split between two pieces: a finding that does not fit in what is left of the last piece
 /// starts a new one, made whole at once (or as large as the finding, if it is larger), so a
@@ -1128,23 +1133,161 @@ impl DiagList {
         for d in first {
             self.push(d);
         }
-        // rotated left by `at`, in place: each part turned round, then the whole
-        let n = self.len;
-        for (from, to) in [(0, at), (at, n), (0, n)] {
-            let (mut i, mut j) = (from, to);
-            while i + 1 < j {
-                self.swap(i, j - 1);
-                i += 1;
-                j -= 1;
+        let added = self.len - at;
+        if added == 0 {
+            return;
+        }
+        // the new records (few: the model's diagnostics) set aside, the others moved up by
+        // their count in one pass from the end, and the new ones put first: each record is
+        // read and written once, in memory order
+        let new: Vec<Rec> = (at..self.len).map(|i| *self.rec(i)).collect();
+        for i in (0..at).rev() {
+            *self.rec_mut(i + added) = *self.rec(i);
+        }
+        for (i, r) in new.into_iter().enumerate() {
+            *self.rec_mut(i) = r;
+        }
+    }
+
+    /// Sorts the findings by `keys`, one a finding and all different, each record moved with
+    /// its key (`keys` ends sorted). A radix sort on the keys' top bits, eight at a time, in
+    /// place: each pass counts the keys of a range by their next eight bits and moves every
+    /// record into its group by swaps, so the writes go to 256 places that each advance in
+    /// memory order, never to one place at random per record as a permutation by cycles
+    /// does; each pass takes as many bits as make groups of about 16, up to eight, and a
+    /// group of [`SORT_SMALL`] or fewer is sorted whole by insertion.
+    pub(crate) fn sort_by_keys(&mut self, keys: &mut [u64]) {
+        self.sort_by_keys_small(keys, SORT_SMALL);
+    }
+
+    /// [`DiagList::sort_by_keys`] with groups of up to `small` sorted whole (the tests sort
+    /// small lists by passes too).
+    fn sort_by_keys_small(&mut self, keys: &mut [u64], small: usize) {
+        assert_eq!(keys.len(), self.len, "a key a finding");
+        let bits = 64 - keys.iter().fold(0, |a, &k| a | k).leading_zeros();
+        let mut buf = Vec::new();
+        self.sort_range(keys, 0, bits, (small, &mut buf));
+    }
+
+    /// [`DiagList::sort_by_keys`] of the records from `from` on, whose keys are `keys`, all
+    /// alike above their lowest `bits` bits; a group of up to `small.0` sorted whole in
+    /// `small.1`.
+    fn sort_range(
+        &mut self,
+        keys: &mut [u64],
+        from: usize,
+        bits: u32,
+        small: (usize, &mut Vec<(u64, Rec)>),
+    ) {
+        let (most, buf) = small;
+        if keys.len() <= most || bits == 0 {
+            let small = buf;
+            small.clear();
+            // the records read and written as one slice when they lie in one piece
+            let (piece, at) = (from / REC_CHUNK, from % REC_CHUNK);
+            if at + keys.len() <= REC_CHUNK && keys.len() <= SORT_INSERT {
+                // a few: each put in its place among those before it
+                let recs = &mut self.recs[piece][at..at + keys.len()];
+                for i in 1..keys.len() {
+                    let (k, r) = (keys[i], recs[i]);
+                    let mut j = i;
+                    while j > 0 && keys[j - 1] > k {
+                        keys[j] = keys[j - 1];
+                        recs[j] = recs[j - 1];
+                        j -= 1;
+                    }
+                    keys[j] = k;
+                    recs[j] = r;
+                }
+            } else if at + keys.len() <= REC_CHUNK {
+                let recs = &mut self.recs[piece][at..at + keys.len()];
+                small.extend(keys.iter().copied().zip(recs.iter().copied()));
+                small.sort_unstable_by_key(|e| e.0);
+                for ((k, r), &(sk, sr)) in keys.iter_mut().zip(recs).zip(small.iter()) {
+                    (*k, *r) = (sk, sr);
+                }
+            } else {
+                small.extend(
+                    keys.iter()
+                        .enumerate()
+                        .map(|(i, &k)| (k, *self.rec(from + i))),
+                );
+                small.sort_unstable_by_key(|e| e.0);
+                for (i, &(k, r)) in small.iter().enumerate() {
+                    keys[i] = k;
+                    *self.rec_mut(from + i) = r;
+                }
             }
+            return;
+        }
+        // as many bits as make groups of about 16, up to eight (256 groups)
+        let width = (usize::BITS - (keys.len() / 16).leading_zeros())
+            .clamp(1, 8)
+            .min(bits);
+        let shift = bits - width;
+        let groups = 1usize << width;
+        let group = |k: u64| ((k >> shift) as usize) & (groups - 1);
+        let mut count = [0usize; 256];
+        for &k in keys.iter() {
+            count[group(k)] += 1;
+        }
+        // each group's next free place and its end
+        let (mut next, mut end) = ([0usize; 256], [0usize; 256]);
+        let mut at = 0;
+        for g in 0..groups {
+            next[g] = at;
+            at += count[g];
+            end[g] = at;
+        }
+        for g in 0..groups {
+            while next[g] < end[g] {
+                // the key at the group's next place is carried to its own group's next
+                // place, and the one there taken up in turn, until one of this group is held
+                let mut k = keys[next[g]];
+                let mut r = *self.rec(from + next[g]);
+                loop {
+                    let to = group(k);
+                    if to == g {
+                        break;
+                    }
+                    let p = next[to];
+                    next[to] += 1;
+                    std::mem::swap(&mut k, &mut keys[p]);
+                    std::mem::swap(&mut r, self.rec_mut(from + p));
+                }
+                keys[next[g]] = k;
+                *self.rec_mut(from + next[g]) = r;
+                next[g] += 1;
+            }
+        }
+        let mut start = 0;
+        for &n in &count[..groups] {
+            if n > 1 {
+                self.sort_range(
+                    &mut keys[start..start + n],
+                    from + start,
+                    shift,
+                    (most, buf),
+                );
+            }
+            start += n;
         }
     }
 
     /// Rearranges the findings so that the finding at `i` is the one that was at `order[i]`
     /// (`order` a permutation; it is used up).
+    #[cfg(test)]
     pub(crate) fn apply_order(&mut self, order: &mut [u64]) {
+        assert_eq!(order.len(), self.len, "an order of every finding");
+        self.apply_order_at(0, order);
+    }
+
+    /// Rearranges the findings from `start` on, as many as `order` holds, so that the finding
+    /// at `start + i` is the one that was at `start + order[i]` (`order` a permutation; it is
+    /// used up).
+    pub(crate) fn apply_order_at(&mut self, start: usize, order: &mut [u64]) {
         const DONE: u64 = u64::MAX;
-        for i in 0..self.len {
+        for i in 0..order.len() {
             if order[i] == DONE {
                 continue;
             }
@@ -1154,7 +1297,7 @@ impl DiagList {
                 if next == i {
                     break;
                 }
-                self.swap(cur, next);
+                self.swap(start + cur, start + next);
                 cur = next;
             }
         }
@@ -2255,6 +2398,41 @@ mod tests {
             let got: Vec<String> = got.iter().map(|d| d.message().into_owned()).collect();
             assert_eq!(got, want, "{p:?}");
         }
+    }
+
+    /// Sorting the records by keys in place, by passes over groups of any size, gives the
+    /// order a plain sort of the keys gives, across the pieces the records are held in;
+    /// prepending moves the others up by the count prepended, or leaves them.
+    #[test]
+    fn records_sorted_by_keys_in_place_are_those_sorted_by_key() {
+        let n = 2 * REC_CHUNK + 77;
+        let mk = |i: usize| Diag::warning(A, format!("m{i}")).with_pins([format!("U{i}.1")]);
+        // keys of a place then the index: places with many findings, far apart and near
+        let place =
+            |i: usize| ((i * 7919) % 1013) as u64 * if i.is_multiple_of(3) { 1 << 20 } else { 5 };
+        for small in [1, 3, 40, SORT_SMALL] {
+            let mut list: DiagList = (0..n).map(mk).collect();
+            let mut keys: Vec<u64> = (0..n).map(|i| place(i) << 32 | i as u64).collect();
+            let mut want = keys.clone();
+            want.sort_unstable();
+            list.sort_by_keys_small(&mut keys, small);
+            assert_eq!(keys, want, "{small}");
+            for (at, k) in want.iter().enumerate() {
+                let i = (k & 0xffff_ffff) as usize;
+                assert_eq!(list.get(at).unwrap(), mk(i).view(), "{small} {at}");
+            }
+        }
+        let mut list: DiagList = (0..n).map(mk).collect();
+        list.prepend([]);
+        assert!(list.iter().enumerate().all(|(i, d)| d == mk(i).view()));
+        list.prepend([mk(n), mk(n + 1)]);
+        let got: Vec<String> = list.iter().map(|d| d.message().into_owned()).collect();
+        let want: Vec<String> = [n, n + 1]
+            .into_iter()
+            .chain(0..n)
+            .map(|i| format!("m{i}"))
+            .collect();
+        assert_eq!(got, want);
     }
 
     /// Across the pieces records, places and texts are held in, a list reads, reorders, keeps

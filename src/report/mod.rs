@@ -403,23 +403,73 @@ fn key_ranks(
     f: &FileOutcome,
     hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut KeyHasher) -> u64,
 ) -> impl Iterator<Item = (u64, usize)> + '_ {
+    key_ranks_in(f, hash, SLOT_BATCH, SLOTS_IN_CACHE)
+}
+
+/// Findings whose slots are looked up together when the table is grouped.
+const SLOT_BATCH: usize = 1 << 14;
+/// The largest table of slots (in bytes, at two bits a slot) marked and read in the
+/// findings' order; a larger one, which outgrows a core's own cache, is marked and read a
+/// batch of findings at a time, grouped by where their slots lie.
+const SLOTS_IN_CACHE: usize = 1 << 20;
+
+/// [`key_ranks`] with the batch and the size of table above which slots are grouped given
+/// (the tests try small batches and both ways).
+///
+/// A table larger than a core's cache is probed at random once per finding in each pass, and
+/// each probe waits on memory. Grouped, a batch of findings' slots are put in order of their
+/// top eight bits (a counting sort into a second buffer) and marked or read in that order, so
+/// the table is swept from its start to its end once a batch, in steps the processor sees
+/// coming. Marks do not depend on their order; a batch's "met again" bits are read so into a
+/// bit per finding and handed out in the findings' order with the hashes kept for the batch.
+fn key_ranks_in(
+    f: &FileOutcome,
+    hash: fn(DiagRef<'_>, Option<&SourceFile>, &mut KeyHasher) -> u64,
+    batch: usize,
+    grouped_above: usize,
+) -> impl Iterator<Item = (u64, usize)> + '_ {
     use std::collections::hash_map::Entry;
     let source = f.source.as_ref();
+    let n = f.diags.len();
     let (mut key, mut first_key) = (String::new(), String::new());
     let mut st = KeyHasher::default();
     // a power of two, at least eight slots a finding
-    let bits = (f.diags.len() * 8)
-        .next_power_of_two()
-        .max(64)
-        .trailing_zeros();
+    let bits = (n * 8).next_power_of_two().max(64).trailing_zeros();
     let slot = move |h: u64| (h.wrapping_mul(0x9e37_79b9_7f4a_7c15) >> (64 - bits)) as usize;
     let mut slots = vec![0u64; (1usize << bits) / 32];
-    for d in f.diags.iter() {
-        let s = slot(hash(d, source, &mut st));
+    let grouped = slots.len() * 8 > grouped_above;
+    let batch = batch.clamp(1, 1 << 16).min(n.max(1));
+    // a batch's slots (or hashes), and the same grouped by place: reused
+    let (mut at, mut by_place) = if grouped {
+        (Vec::with_capacity(batch), Vec::with_capacity(batch))
+    } else {
+        (Vec::new(), Vec::new())
+    };
+    // met (01), then met again (11)
+    let mark = |slots: &mut [u64], s: usize| {
         let (word, at) = (s / 32, 2 * (s % 32));
-        // met (01), then met again (11)
         let met = (slots[word] >> at) & 1;
         slots[word] |= (1 | (met << 1)) << at;
+    };
+    if grouped {
+        let mut from = 0;
+        while from < n {
+            let to = (from + batch).min(n);
+            at.clear();
+            at.extend((from..to).map(|i| {
+                let d = f.diags.get(i).expect("in the list");
+                slot(hash(d, source, &mut st)) as u64
+            }));
+            group_by_place(at.len(), |k| at[k], &mut by_place, bits, false);
+            for &s in &by_place {
+                mark(&mut slots, s as usize);
+            }
+            from = to;
+        }
+    } else {
+        for d in f.diags.iter() {
+            mark(&mut slots, slot(hash(d, source, &mut st)));
+        }
     }
     // only "met again" is read from here on: one bit a slot, packed into the table's first
     // half in place and the rest given back (each word's 32 bits are read from the words at
@@ -432,41 +482,97 @@ fn key_ranks(
     }
     slots.truncate(words);
     slots.shrink_to_fit();
-    let again = move |h: u64| {
-        let s = slot(h);
-        (slots[s / 64] >> (s % 64)) & 1 != 0
-    };
+    let again = move |s: usize| (slots[s / 64] >> (s % 64)) & 1 != 0;
     // a hash of a finding counted -> (the first finding with it, how many findings had its
     // key so far)
     let mut seen: rustc_hash::FxHashMap<u64, (u32, u32)> = rustc_hash::FxHashMap::default();
     let mut collided: rustc_hash::FxHashMap<String, usize> = rustc_hash::FxHashMap::default();
-    f.diags.iter().enumerate().map(move |(i, d)| {
-        let h = hash(d, source, &mut st);
-        if !again(h) {
+    let mut rank = move |i: usize, d: DiagRef<'_>, h: u64| match seen.entry(h) {
+        Entry::Vacant(e) => {
+            e.insert((i as u32, 1));
+            0
+        }
+        Entry::Occupied(mut e) => {
+            let (first, count) = e.get_mut();
+            write_fingerprint_key(d, source, &mut key);
+            let first_d = f.diags.get(*first as usize).expect("an earlier finding");
+            write_fingerprint_key(first_d, source, &mut first_key);
+            if first_key == key {
+                *count += 1;
+                *count as usize - 1
+            } else {
+                let n = collided.entry(key.clone()).or_insert(0);
+                *n += 1;
+                *n - 1
+            }
+        }
+    };
+    // grouped: the batch's hashes in order (in `at`), and a bit a finding of the batch
+    // whose slot was met again
+    let mut again_in: Vec<u64> = Vec::new();
+    let mut next = 0;
+    (0..n).map(move |i| {
+        let d = f.diags.get(i).expect("in the list");
+        let (h, met_again) = if grouped {
+            let k = i % batch;
+            if k == 0 {
+                at.clear();
+                at.extend(
+                    (i..(i + batch).min(n))
+                        .map(|j| hash(f.diags.get(j).expect("in the list"), source, &mut st)),
+                );
+                // (slot, place in the batch), grouped by the slot's place
+                group_by_place(at.len(), |k| slot(at[k]) as u64, &mut by_place, bits, true);
+                again_in.clear();
+                again_in.resize(at.len().div_ceil(64), 0);
+                for &x in &by_place {
+                    let k = (x & 0xffff) as usize;
+                    if again((x >> 16) as usize) {
+                        again_in[k / 64] |= 1 << (k % 64);
+                    }
+                }
+                next = i;
+            }
+            let k = i - next;
+            (at[k], (again_in[k / 64] >> (k % 64)) & 1 != 0)
+        } else {
+            let h = hash(d, source, &mut st);
+            (h, again(slot(h)))
+        };
+        if !met_again {
             return (h, 0);
         }
-        let n = match seen.entry(h) {
-            Entry::Vacant(e) => {
-                e.insert((i as u32, 1));
-                0
-            }
-            Entry::Occupied(mut e) => {
-                let (first, count) = e.get_mut();
-                write_fingerprint_key(d, source, &mut key);
-                let first_d = f.diags.get(*first as usize).expect("an earlier finding");
-                write_fingerprint_key(first_d, source, &mut first_key);
-                if first_key == key {
-                    *count += 1;
-                    *count as usize - 1
-                } else {
-                    let n = collided.entry(key.clone()).or_insert(0);
-                    *n += 1;
-                    *n - 1
-                }
-            }
-        };
-        (h, n)
+        (h, rank(i, d, h))
     })
+}
+
+/// The slots of a batch's `n` entries (`slot_of` the slot of each, in a table of `bits` bits
+/// of slots), put into `to` in order of their top eight bits by a counting sort; each with
+/// its entry's place in the batch in the low 16 bits beside it (`with_place`; a batch then
+/// holds at most 65 536), or alone.
+fn group_by_place(
+    n: usize,
+    slot_of: impl Fn(usize) -> u64,
+    to: &mut Vec<u64>,
+    bits: u32,
+    with_place: bool,
+) {
+    let shift = bits.saturating_sub(8);
+    let mut start = [0usize; 257];
+    for k in 0..n {
+        start[(slot_of(k) >> shift) as usize + 1] += 1;
+    }
+    for g in 1..257 {
+        start[g] += start[g - 1];
+    }
+    to.clear();
+    to.resize(n, 0);
+    for k in 0..n {
+        let s = slot_of(k);
+        let g = (s >> shift) as usize;
+        to[start[g]] = if with_place { (s << 16) | k as u64 } else { s };
+        start[g] += 1;
+    }
 }
 
 /// The "met again" bits of a word of two-bit slots (the odd bits), gathered into its low
@@ -791,6 +897,37 @@ mod tests {
         ] {
             let got: Vec<usize> = key_ranks(&f, hash).map(|(_, n)| n).collect();
             assert_eq!(got, want);
+            // the slots marked and read a batch at a time, grouped by place: the same ranks
+            // and hashes, whatever the batch
+            let plain: Vec<(u64, usize)> = key_ranks_in(&f, hash, 4, usize::MAX).collect();
+            for batch in [1, 3, 8, 1 << 16] {
+                let got: Vec<(u64, usize)> = key_ranks_in(&f, hash, batch, 0).collect();
+                assert_eq!(got, plain, "{batch}");
+            }
+        }
+        // many findings, many keys met more than once, across many batches and slots
+        let many = FileOutcome {
+            diags: (0..5000)
+                .map(|i| mk(["a", "b"][i % 2], Some(&format!("N{}", i % 1700)), &[]))
+                .collect::<Vec<_>>()
+                .into(),
+            ..f
+        };
+        let mut by_text: std::collections::HashMap<String, usize> = Default::default();
+        let want: Vec<usize> = many
+            .diags
+            .iter()
+            .map(|d| {
+                let n = by_text.entry(fingerprint_key(d, None)).or_insert(0);
+                *n += 1;
+                *n - 1
+            })
+            .collect();
+        for (batch, above) in [(SLOT_BATCH, usize::MAX), (SLOT_BATCH, 0), (777, 0), (64, 0)] {
+            let got: Vec<usize> = key_ranks_in(&many, fingerprint_hash, batch, above)
+                .map(|(_, n)| n)
+                .collect();
+            assert_eq!(got, want, "{batch} {above}");
         }
         // the hash of the pieces is the hash of the key, for findings with a net, pins, both
         // or neither (whose key holds the text at their place)
