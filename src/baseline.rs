@@ -238,7 +238,7 @@ pub fn parse(source: &SourceFile) -> Result<BTreeMap<String, Vec<Entry>>, Config
     } else {
         Err(ConfigError {
             source: source.clone(),
-            diags: diags.into(),
+            diags,
         })
     }
 }

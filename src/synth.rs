@@ -339,53 +339,6 @@ pub fn variant(base: &str, i: usize) -> String {
     text
 }
 
-#[cfg(test)]
-mod tests {
-    #[test]
-    fn every_shape_reads_cleanly_at_about_the_size_asked() {
-        for name in super::SHAPES {
-            let text = super::shape(name, 300_000).unwrap();
-            assert!(
-                // the cell sizes are estimates: within about a third of the size asked
-                text.len() > 180_000 && text.len() < 400_000,
-                "{name}: {}",
-                text.len()
-            );
-            let nl = crate::netlist::read(&text).unwrap();
-            assert!(
-                nl.diagnostics.is_empty(),
-                "{name}: {:?}",
-                nl.diagnostics.first()
-            );
-        }
-        assert!(super::shape("no such shape", 1000).is_none());
-    }
-
-    #[test]
-    fn generated_netlist_reads_cleanly_at_about_the_size_asked() {
-        let text = super::netlist(200_000);
-        assert!(
-            text.len() > 150_000 && text.len() < 260_000,
-            "{}",
-            text.len()
-        );
-        let tree = crate::sexpr::parse(&text).unwrap();
-        let nl = crate::netlist::build(&tree).unwrap();
-        assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
-        let s = nl.summary();
-        assert_eq!(s.parts % 4, 0);
-        assert_eq!(s.pins, s.parts / 4 * 32);
-        // a variant renames every reference and keeps the board
-        let v = super::variant(&text, 7);
-        assert_ne!(v, text);
-        assert!(v.contains("(ref \"U7_0\")") && !v.contains("(ref \"U0\")"));
-        let t2 = crate::sexpr::parse(&v).unwrap();
-        let nl2 = crate::netlist::build(&t2).unwrap();
-        assert!(nl2.diagnostics.is_empty());
-        assert_eq!(nl2.summary(), s);
-    }
-}
-
 /// The library symbols of a synthetic sheet: one resistor.
 const SHEET_LIB: &str = "  (lib_symbols\n    (symbol \"Device:R\" (in_bom yes) (on_board yes)\n      (property \"Reference\" \"R\" (at 0 0 0))\n      (symbol \"R_1_1\"\n        (pin passive line (at 0 3.81 270) (length 1.27) (name \"~\") (number \"1\"))\n        (pin passive line (at 0 -3.81 90) (length 1.27) (name \"~\") (number \"2\")))))\n";
 
@@ -412,9 +365,9 @@ fn write_cells(s: &mut String, cells: usize, uses: &[(String, String)], end_labe
             s.push_str(")))\n");
         }
         let wire = |s: &mut String, a: f64, b: f64, n: usize| {
-            let _ = write!(
+            let _ = writeln!(
                 s,
-                "  (wire (pts (xy {} {}) (xy {} {})) (stroke (width 0) (type default)) (uuid \"{:08x}-0003-4000-8000-{:012x}\"))\n",
+                "  (wire (pts (xy {} {}) (xy {} {})) (stroke (width 0) (type default)) (uuid \"{:08x}-0003-4000-8000-{:012x}\"))",
                 mm(a), mm(y), mm(b), mm(y), c, n
             );
         };
@@ -432,9 +385,9 @@ fn write_cells(s: &mut String, cells: usize, uses: &[(String, String)], end_labe
             } else {
                 " (shape passive)"
             };
-            let _ = write!(
+            let _ = writeln!(
                 s,
-                "  ({kind} \"{name}\"{shape} (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"{:08x}-0004-4000-8000-{:012x}\"))\n",
+                "  ({kind} \"{name}\"{shape} (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"{:08x}-0004-4000-8000-{:012x}\"))",
                 mm(at), mm(y), c, n
             );
         }
@@ -497,9 +450,9 @@ pub fn hierarchy(target_bytes: usize) -> (Vec<(String, String)>, usize) {
             mm(x), mm(pin_y), mm(right), mm(pin_y), i + 2
         );
         for (at, n) in [(x, i), (right, i + 1)] {
-            let _ = write!(
+            let _ = writeln!(
                 top,
-                "  (label \"L{n}\" (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"5eee0003-{:04x}-4000-8000-{i:012x}\"))\n",
+                "  (label \"L{n}\" (at {} {} 0) (effects (font (size 1.27 1.27))) (uuid \"5eee0003-{:04x}-4000-8000-{i:012x}\"))",
                 mm(at), mm(pin_y), n % 2
             );
         }
@@ -522,4 +475,51 @@ pub fn hierarchy(target_bytes: usize) -> (Vec<(String, String)>, usize) {
     // per sheet: one inner net per cell and the chain's inner labels; on the root, the
     // labels L0 .. L{sheets} that join the sheets
     (out, sheets * (2 * per_sheet - 1) + sheets + 1)
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn every_shape_reads_cleanly_at_about_the_size_asked() {
+        for name in super::SHAPES {
+            let text = super::shape(name, 300_000).unwrap();
+            assert!(
+                // the cell sizes are estimates: within about a third of the size asked
+                text.len() > 180_000 && text.len() < 400_000,
+                "{name}: {}",
+                text.len()
+            );
+            let nl = crate::netlist::read(&text).unwrap();
+            assert!(
+                nl.diagnostics.is_empty(),
+                "{name}: {:?}",
+                nl.diagnostics.first()
+            );
+        }
+        assert!(super::shape("no such shape", 1000).is_none());
+    }
+
+    #[test]
+    fn generated_netlist_reads_cleanly_at_about_the_size_asked() {
+        let text = super::netlist(200_000);
+        assert!(
+            text.len() > 150_000 && text.len() < 260_000,
+            "{}",
+            text.len()
+        );
+        let tree = crate::sexpr::parse(&text).unwrap();
+        let nl = crate::netlist::build(&tree).unwrap();
+        assert!(nl.diagnostics.is_empty(), "{:?}", nl.diagnostics.first());
+        let s = nl.summary();
+        assert_eq!(s.parts % 4, 0);
+        assert_eq!(s.pins, s.parts / 4 * 32);
+        // a variant renames every reference and keeps the board
+        let v = super::variant(&text, 7);
+        assert_ne!(v, text);
+        assert!(v.contains("(ref \"U7_0\")") && !v.contains("(ref \"U0\")"));
+        let t2 = crate::sexpr::parse(&v).unwrap();
+        let nl2 = crate::netlist::build(&t2).unwrap();
+        assert!(nl2.diagnostics.is_empty());
+        assert_eq!(nl2.summary(), s);
+    }
 }

@@ -703,7 +703,10 @@ fn a_reader_that_stops_early_is_a_clean_exit() {
     // `netmargin check ... | head -1`: far more output than a pipe holds, the reader gone
     // after one line; no panic, no error message, the run's own exit code (1: findings)
     let mut args = vec!["check".to_string(), "--color".into(), "never".into()];
-    args.extend(std::iter::repeat("fixtures/demo/counter-timer.net".to_string()).take(80));
+    args.extend(std::iter::repeat_n(
+        "fixtures/demo/counter-timer.net".to_string(),
+        80,
+    ));
     let mut child = Command::new(env!("CARGO_BIN_EXE_netmargin"))
         .args(&args)
         .current_dir(root())

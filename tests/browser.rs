@@ -495,12 +495,8 @@ mod png {
                                     lengths.push(prev);
                                 }
                             }
-                            17 => {
-                                lengths.extend(std::iter::repeat(0).take(3 + s.need(3)? as usize))
-                            }
-                            _ => {
-                                lengths.extend(std::iter::repeat(0).take(11 + s.need(7)? as usize))
-                            }
+                            17 => lengths.extend(std::iter::repeat_n(0, 3 + s.need(3)? as usize)),
+                            _ => lengths.extend(std::iter::repeat_n(0, 11 + s.need(7)? as usize)),
                         }
                     }
                     if lengths.len() > nlen + ndist {

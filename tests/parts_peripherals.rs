@@ -851,12 +851,12 @@ fn bipolar_proms_256x4_and_their_markings() {
     // Schottky open-collector versions are numbered 289)
     assert_eq!(got[3].2.as_deref(), None);
     assert!(
-        got[4].2.as_deref().map_or(true, |f| !f.starts_with("prom")),
+        got[4].2.as_deref().is_none_or(|f| !f.starts_with("prom")),
         "{:?}",
         got[4]
     );
     assert!(
-        got[5].2.as_deref().map_or(true, |f| !f.starts_with("prom")),
+        got[5].2.as_deref().is_none_or(|f| !f.starts_with("prom")),
         "{:?}",
         got[5]
     );
@@ -1082,8 +1082,5 @@ fn display_processor_tms9918a_and_9928a_pinouts() {
     );
     assert_eq!(got[1].2.as_deref(), Some("tms9928a"));
     assert_eq!(got[2].2.as_deref(), Some("tms9928a"));
-    assert!(got[3]
-        .2
-        .as_deref()
-        .map_or(true, |f| !f.starts_with("tms99")));
+    assert!(got[3].2.as_deref().is_none_or(|f| !f.starts_with("tms99")));
 }

@@ -353,7 +353,11 @@ fn print_shuffled(
     out.push('(');
     for (i, k) in kids.iter().enumerate() {
         if i > 0 {
-            out.push(if mix.next() % 4 == 0 { '\n' } else { ' ' });
+            out.push(if mix.next().is_multiple_of(4) {
+                '\n'
+            } else {
+                ' '
+            });
         }
         print_shuffled(t, *k, head, mix, out);
     }

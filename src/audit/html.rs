@@ -510,6 +510,15 @@ pub fn render(a: &Audit) -> String {
     o
 }
 
+/// The clause after the coverage figure about parts drawn as functions, if any.
+pub(crate) fn symbols_note(n: usize) -> String {
+    match n {
+        0 => String::new(),
+        1 => "; 1 part is drawn as a function with no part number and is not counted".into(),
+        n => format!("; {n} parts are drawn as functions with no part number and are not counted"),
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -521,14 +530,5 @@ mod tests {
             "&lt;script&gt;&quot;a&quot; &amp; &#39;b&#39;&lt;/script&gt;"
         );
         assert_eq!(esc("a\u{1b}[31m"), "a\\u{1b}[31m");
-    }
-}
-
-/// The clause after the coverage figure about parts drawn as functions, if any.
-pub(crate) fn symbols_note(n: usize) -> String {
-    match n {
-        0 => String::new(),
-        1 => "; 1 part is drawn as a function with no part number and is not counted".into(),
-        n => format!("; {n} parts are drawn as functions with no part number and are not counted"),
     }
 }

@@ -730,7 +730,7 @@ fn drive_points(
             .map(|r| (r.v, r.a.abs()))
     };
     let high = if drives_high {
-        let knees = knees(&nm.led_paths(), &nm.pulls(), |p| !p.up);
+        let knees = knees(nm.led_paths(), nm.pulls(), |p| !p.up);
         // how far the high can go with no load: a CMOS output to its supply; a totem pole
         // (bipolar, NMOS, a TTL-level stage) about two base-emitter drops, 1.4 V, below it
         // (common practice; its guaranteed VOH is a minimum, not a ceiling)
@@ -753,7 +753,7 @@ fn drive_points(
     let low = if drives_low {
         // an open collector's pull-up is the open-collector window's (`PullUpWindow`)
         let own_pulls = d.role != PinRole::OpenCollector;
-        let knees = knees(&nm.sink_paths(), &nm.pulls(), |p| p.up && own_pulls);
+        let knees = knees(nm.sink_paths(), nm.pulls(), |p| p.up && own_pulls);
         // the low can go down to ground: LEDs that need more than their rail never light
         let reach = 0.0;
         strongest(&lv.vol).and_then(|row| {

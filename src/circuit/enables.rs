@@ -69,7 +69,7 @@ pub fn gate(cx: &Circuit<'_, '_>, p: PinRef) -> Gate {
         let net = net as usize;
         match cx.nets[net].rail() {
             Some(r) => {
-                let high = !r.ground && r.volts.map_or(true, |v| v > 0.0);
+                let high = !r.ground && r.volts.is_none_or(|v| v > 0.0);
                 if high != want_high {
                     return Gate::Never;
                 }
@@ -115,7 +115,7 @@ pub fn literal_text(cx: &Circuit<'_, '_>, comp: usize, l: &Literal, on: bool) ->
 
 /// True when a rail sits high (a supply above 0 V, or one of unknown voltage).
 fn rail_high(r: &super::Rail) -> bool {
-    !r.ground && r.volts.map_or(true, |v| v > 0.0)
+    !r.ground && r.volts.is_none_or(|v| v > 0.0)
 }
 
 /// Each pin's role once the wiring is known. A transceiver's data pin (bidirectional, with

@@ -130,7 +130,7 @@ pub fn rail_from_name(name: &str) -> Option<NameRail> {
     {
         return None;
     }
-    let v = voltage_in_name(&n);
+    let v = voltage_in_name(n);
     let voltage_like = v.is_some()
         && (n.starts_with('+')
             || n.starts_with('-')

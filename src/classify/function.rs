@@ -763,7 +763,7 @@ fn build_pins(
             .map(|u| u.trim().to_string())
             .filter(|u| !u.is_empty() && !u.eq_ignore_ascii_case("common"));
         let has_enable_role = matches!(role, PinRole::ThreeState | PinRole::Bidirectional);
-        if role == PinRole::ThreeState && rp.enable.as_ref().map_or(true, |e| e.is_empty()) {
+        if role == PinRole::ThreeState && rp.enable.as_ref().is_none_or(|e| e.is_empty()) {
             errors.push(RuleError::new(
                 Some(sp.span()),
                 format!(

@@ -465,7 +465,7 @@ mod tests {
     }
 
     /// Every entry a linear scan of all globs finds, in the same order.
-    fn scan<'a>(t: &'a PartTable, value: &str) -> Vec<usize> {
+    fn scan(t: &PartTable, value: &str) -> Vec<usize> {
         let v = value.trim();
         (0..t.entries.len())
             .filter(|&i| t.entries[i].values.iter().any(|g| glob_match(g, v)))

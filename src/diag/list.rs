@@ -412,7 +412,7 @@ impl DiagList {
     }
 
     fn push_rec(&mut self, r: Rec) {
-        if self.len % REC_CHUNK == 0 {
+        if self.len.is_multiple_of(REC_CHUNK) {
             // the first piece grows as a small list does; the others are made whole
             self.recs.push(if self.len == 0 {
                 Vec::new()
@@ -1978,20 +1978,23 @@ mod tests {
     }
 
     fn sample(i: usize) -> Diag {
-        let d = Diag::warning(if i % 2 == 0 { A } else { B }, format!("message {i}"))
-            .at(Span::new(i, i + 1), "first")
-            .also(Span::new(i + 2, i + 3), Cow::Owned(format!("made {i}")));
-        let d = if i % 3 == 0 {
+        let d = Diag::warning(
+            if i.is_multiple_of(2) { A } else { B },
+            format!("message {i}"),
+        )
+        .at(Span::new(i, i + 1), "first")
+        .also(Span::new(i + 2, i + 3), Cow::Owned(format!("made {i}")));
+        let d = if i.is_multiple_of(3) {
             d.on_net(format!("N{i}"))
         } else {
             d
         };
-        let d = if i % 4 == 0 {
+        let d = if i.is_multiple_of(4) {
             d.with_help("fixed help")
         } else {
             d.with_help(format!("help {}", i % 2))
         };
-        if i % 5 == 0 {
+        if i.is_multiple_of(5) {
             d
         } else {
             d.with_pins([format!("U{i}.1"), String::new(), format!("R{i}.2")])

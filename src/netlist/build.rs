@@ -159,9 +159,9 @@ impl<'a> Builder<'_, 'a> {
                 "source" => d.source = self.value(c),
                 "date" => d.date = self.value(c),
                 "tool" => d.tool = self.value(c),
-                "sheet" => {
+                "sheet"
                     // the first sheet's title block names the board
-                    if d.title.is_none() {
+                    if d.title.is_none() => {
                         for (_, tbl) in self.each(c).filter(|(k, _)| *k == "title_block") {
                             for (k2, c2) in self.each(tbl) {
                                 match k2 {
@@ -173,7 +173,6 @@ impl<'a> Builder<'_, 'a> {
                             }
                         }
                     }
-                }
                 _ => {}
             }
         }

@@ -13,12 +13,9 @@ pub fn is_net_tie(c: &Component<'_>) -> bool {
         .and_then(|l| l.part.as_ref())
         .is_some_and(|p| starts(p.as_str()))
         || starts(c.value_str())
-        || c.footprint.as_ref().is_some_and(|f| {
-            f.as_str()
-                .rsplit(':')
-                .next()
-                .is_some_and(|name| starts(name))
-        })
+        || c.footprint
+            .as_ref()
+            .is_some_and(|f| f.as_str().rsplit(':').next().is_some_and(starts))
 }
 
 fn find(parent: &mut [usize], mut x: usize) -> usize {

@@ -110,13 +110,13 @@ fn write_finding<'a>(
     w.key("net").opt_str(d.net());
     w.key("pins").strs(d.pins());
     w.key("label")
-        .opt_str(primary.map(|l| &*l.text).filter(|t| !t.is_empty()));
+        .opt_str(primary.map(|l| l.text).filter(|t| !t.is_empty()));
     PlaceOut::write_at(w, places, kept, primary.map(|l| l.span));
     w.key("help").opt_str(d.help());
     w.key("related").open_array();
     for l in related_labels(d) {
         w.item().open_object();
-        w.key("message").str(&l.text);
+        w.key("message").str(l.text);
         PlaceOut::write_at(w, places, kept, Some(l.span));
         w.close_object();
     }

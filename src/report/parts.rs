@@ -178,9 +178,7 @@ pub fn write_families(
     // at a stated supply, only the families specified for it: a 74LS or 74AHCT row at 3.3 V
     // would print figures no part guarantees
     let specified = |f: &&crate::classify::family::Family| {
-        supply.map_or(true, |v| {
-            v >= f.supply_min - 1e-9 && v <= f.supply_max + 1e-9
-        })
+        supply.is_none_or(|v| v >= f.supply_min - 1e-9 && v <= f.supply_max + 1e-9)
     };
     let unspecified: Vec<String> = rules
         .families

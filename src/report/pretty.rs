@@ -352,7 +352,7 @@ fn clean(bytes: &[u8]) -> bool {
         return !any_special(&block);
     }
     let mut blocks = bytes.chunks_exact(BLOCK);
-    if (&mut blocks).any(any_special) {
+    if blocks.any(any_special) {
         return false;
     }
     // the last block, overlapping the one before, covers what is left

@@ -311,7 +311,7 @@ fn write_result(
         w,
         None,
         primary.map(|l| l.span),
-        primary.filter(|l| !l.text.is_empty()).map(|l| &*l.text),
+        primary.filter(|l| !l.text.is_empty()).map(|l| l.text),
     );
     w.close_array();
     let mut related = related_labels(d).enumerate().peekable();
@@ -319,7 +319,7 @@ fn write_result(
         w.key("relatedLocations").open_array();
         for (i, l) in related {
             w.item();
-            location(w, Some(i + 1), Some(l.span), Some(&l.text));
+            location(w, Some(i + 1), Some(l.span), Some(l.text));
         }
         w.close_array();
     }
