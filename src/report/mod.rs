@@ -875,16 +875,20 @@ mod tests {
             coverage: None,
             waived: 0,
         };
-        let mut by_text: std::collections::HashMap<String, usize> = Default::default();
-        let want: Vec<usize> = f
-            .diags
-            .iter()
-            .map(|d| {
-                let n = by_text.entry(fingerprint_key(d, None)).or_insert(0);
-                *n += 1;
-                *n - 1
-            })
-            .collect();
+        // each finding's rank among the findings before it with the same key, from the key's
+        // text: what the hashed passes must give
+        let ranks_by_text = |f: &FileOutcome| -> Vec<usize> {
+            let mut by_text: std::collections::HashMap<String, usize> = Default::default();
+            f.diags
+                .iter()
+                .map(|d| {
+                    let n = by_text.entry(fingerprint_key(d, None)).or_insert(0);
+                    *n += 1;
+                    *n - 1
+                })
+                .collect()
+        };
+        let want = ranks_by_text(&f);
         assert_eq!(want, [0, 0, 1, 0, 1, 2, 0, 1]);
         type Hash = fn(DiagRef<'_>, Option<&SourceFile>, &mut KeyHasher) -> u64;
         for hash in [
@@ -913,16 +917,7 @@ mod tests {
                 .into(),
             ..f
         };
-        let mut by_text: std::collections::HashMap<String, usize> = Default::default();
-        let want: Vec<usize> = many
-            .diags
-            .iter()
-            .map(|d| {
-                let n = by_text.entry(fingerprint_key(d, None)).or_insert(0);
-                *n += 1;
-                *n - 1
-            })
-            .collect();
+        let want = ranks_by_text(&many);
         for (batch, above) in [(SLOT_BATCH, usize::MAX), (SLOT_BATCH, 0), (777, 0), (64, 0)] {
             let got: Vec<usize> = key_ranks_in(&many, fingerprint_hash, batch, above)
                 .map(|(_, n)| n)
