@@ -7,7 +7,8 @@
 //! e.g. `-- 5,50,500 3 2000` (defaults `5,50`, 3, 2000 and every shape of
 //! `netmargin::synth::SHAPES`; the 500 MB files only when asked; 0 files skips the folder).
 //! Each shape is checked at each size against a floor measured in the same run: the bench
-//! itself, in a child process, reading and modelling the same file (`netlist::read`). The
+//! itself, in a child process, reading the same file as the check reads it (a large one
+//! mapped, `input::file_bytes`) and modelling it (`netlist::read`). The
 //! column "time x for 10 x data" is the check's time over that of the size ten times smaller.
 //! Start-up is a small netlist and `--version` against spawning `true`, 200 runs each (wall
 //! time and CPU time per run). With
@@ -195,8 +196,10 @@ fn touch(bytes: usize) {
 }
 
 fn read_and_model(path: &str) {
-    let text = std::fs::read_to_string(path).expect("bench file");
-    let nl = netmargin::netlist::read(&text).expect("a netlist");
+    // read as the check reads it (a large file mapped, `input::file_bytes`)
+    let bytes = netmargin::pipeline::read_bytes(path, &Default::default()).expect("bench file");
+    let source = netmargin::input::load(path, bytes).expect("a text file");
+    let nl = netmargin::netlist::read(source.text()).expect("a netlist");
     std::hint::black_box(&nl);
 }
 

@@ -45,8 +45,9 @@ impl FileOutcome {
     }
 }
 
-/// Reads the bytes of `path` (`-` is standard input).
-pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
+/// Reads the bytes of `path` (`-` is standard input); a large file is mapped
+/// ([`input::file_bytes`]).
+pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<input::Bytes, Diag> {
     let too_big = |len: u64| {
         Diag::error(
             "too-large",
@@ -74,7 +75,7 @@ pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
             )
             .with_help("raise the limit with --max-bytes if the machine has the memory for it"));
         }
-        return Ok(buf);
+        return Ok(buf.into());
     }
     let p = Path::new(path);
     let meta = std::fs::metadata(p).map_err(|e| io_diag(path, &e))?;
@@ -88,7 +89,9 @@ pub fn read_bytes(path: &str, opts: &ReadOptions) -> Result<Vec<u8>, Diag> {
     if meta.len() > opts.max_bytes {
         return Err(too_big(meta.len()));
     }
-    std::fs::read(p).map_err(|e| io_diag(path, &e))
+    std::fs::File::open(p)
+        .and_then(|f| input::file_bytes(f, meta.len()))
+        .map_err(|e| io_diag(path, &e))
 }
 
 fn io_diag(path: &str, e: &std::io::Error) -> Diag {

@@ -43,8 +43,9 @@ impl From<Span> for SourceSpan {
 #[derive(Debug, Clone)]
 pub struct SourceFile {
     name: Arc<str>,
-    /// Kept as the `String` it was read into, so loading a file copies nothing.
-    text: Arc<String>,
+    /// Kept as the `String` it was read into, or as the mapped file (a large one), so
+    /// loading a file copies nothing.
+    text: Arc<Held>,
     /// `Arc<str>` handed out by [`SourceFile::shared_text`], made on first call.
     shared: Arc<OnceLock<Arc<str>>>,
     /// Built on first use.
@@ -53,6 +54,28 @@ pub struct SourceFile {
     /// [`SourceFile::from_files`]): where each file starts in the text, in order. Empty for
     /// a single file.
     files: Arc<[FilePart]>,
+}
+
+/// A source's text: a `String` it was read into or made as, or a large file mapped into
+/// memory ([`SourceFile::from_mapped`]), whose pages are the system's cache of the file: not
+/// copied, and not memory the process takes afresh. Read as a `str` either way.
+#[derive(Debug)]
+enum Held {
+    Owned(String),
+    /// Checked to be UTF-8 when it was made.
+    Mapped(memmap2::Mmap),
+}
+
+impl std::ops::Deref for Held {
+    type Target = str;
+    fn deref(&self) -> &str {
+        match self {
+            Held::Owned(s) => s,
+            // SAFETY: `from_mapped` takes only a map whose bytes are UTF-8, and the map is
+            // read only
+            Held::Mapped(m) => unsafe { std::str::from_utf8_unchecked(m) },
+        }
+    }
 }
 
 /// One file of a source made of several: its name, and where its text starts.
@@ -77,7 +100,7 @@ impl SourceFile {
         let shared: Arc<str> = text.into();
         SourceFile {
             name: name.into(),
-            text: Arc::new(shared.to_string()),
+            text: Arc::new(Held::Owned(shared.to_string())),
             shared: Arc::new(OnceLock::from(shared)),
             line_starts: Arc::default(),
             files: Arc::from([]),
@@ -88,11 +111,29 @@ impl SourceFile {
     pub fn from_string(name: impl Into<Arc<str>>, text: String) -> SourceFile {
         SourceFile {
             name: name.into(),
-            text: Arc::new(text),
+            text: Arc::new(Held::Owned(text)),
             shared: Arc::default(),
             line_starts: Arc::default(),
             files: Arc::from([]),
         }
+    }
+
+    /// A source whose text is a file mapped into memory, without a copy: `Err` gives the map
+    /// back with where it stops being UTF-8.
+    pub fn from_mapped(
+        name: impl Into<Arc<str>>,
+        map: memmap2::Mmap,
+    ) -> Result<SourceFile, (memmap2::Mmap, std::str::Utf8Error)> {
+        if let Err(e) = std::str::from_utf8(&map) {
+            return Err((map, e));
+        }
+        Ok(SourceFile {
+            name: name.into(),
+            text: Arc::new(Held::Mapped(map)),
+            shared: Arc::default(),
+            line_starts: Arc::default(),
+            files: Arc::from([]),
+        })
     }
 
     /// One source for several files (the sheets of a schematic project): the texts are
@@ -127,16 +168,21 @@ impl SourceFile {
         }
         SourceFile {
             name: name.into(),
-            text: Arc::new(text),
+            text: Arc::new(Held::Owned(text)),
             shared: Arc::default(),
             line_starts: Arc::default(),
             files: parts.into(),
         }
     }
 
-    /// The text, taken out of the source without a copy when no other handle shares it.
+    /// The text, taken out of the source without a copy when it was read into a `String`
+    /// and no other handle shares it.
     pub fn into_text(self) -> String {
-        Arc::try_unwrap(self.text).unwrap_or_else(|t| t.as_str().to_string())
+        match Arc::try_unwrap(self.text) {
+            Ok(Held::Owned(s)) => s,
+            Ok(held) => held.to_string(),
+            Err(shared) => shared.to_string(),
+        }
     }
 
     /// The files of a source made of several (empty for a single file).
@@ -189,9 +235,7 @@ impl SourceFile {
 
     /// The text as a shared `Arc<str>` (copied from the loaded text once, on first call).
     pub fn shared_text(&self) -> Arc<str> {
-        self.shared
-            .get_or_init(|| Arc::from(self.text.as_str()))
-            .clone()
+        self.shared.get_or_init(|| Arc::from(&**self.text)).clone()
     }
 
     /// The 0-based line holding byte `offset`.
