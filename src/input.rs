@@ -32,7 +32,8 @@ pub struct LoadError {
 
 /// A file at least this large is mapped into memory rather than read into it
 /// ([`Bytes::Mapped`]): its text is then the system's cache of the file, with no copy and no
-/// fresh memory for it. Below, reading it costs less than setting up the mapping.
+/// fresh memory for it. Below, the copy costs a few milliseconds at most, and a file read
+/// whole cannot be cut short under netmargin by another program while it runs.
 pub const MAP_FROM_BYTES: u64 = 16 << 20;
 
 /// An input's bytes: read into memory, or the file mapped (a large one, [`MAP_FROM_BYTES`]).
