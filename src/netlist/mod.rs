@@ -550,6 +550,11 @@ impl<'a> Node<'a> {
         }
     }
 
+    /// The number of the reference kept apart ([`NodeTexts::reference`]), for a node whose
+    /// texts are.
+    pub(crate) fn reference_number(&self) -> Option<usize> {
+        (self.bits & APART != 0).then(|| joined(self.at[0]))
+    }
     /// The reference kept apart, for a node whose texts are.
     #[inline]
     fn apart_ref<'n>(&self, t: &'n NodeTexts<'a>) -> Option<&'n Text<'a>> {

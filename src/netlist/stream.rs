@@ -1048,11 +1048,18 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
             }
         }
         for (k, node) in nl.nodes[net.range()].iter_mut().enumerate() {
-            let r = node.reference_in(&nl.node_texts);
-            let key = RefKey::of(r);
-            let comps = &nl.components;
-            match by_ref.find(text_hash(r), |&j| same_ref(&ref_keys, comps, j, r, &key)) {
-                Some(&ci) => {
+            // a reader that made the components with the nodes (the schematic's) may have
+            // linked a node already, to the component of its reference
+            let found = node.component().or_else(|| {
+                let r = node.reference_in(&nl.node_texts);
+                let key = RefKey::of(r);
+                let comps = &nl.components;
+                by_ref
+                    .find(text_hash(r), |&j| same_ref(&ref_keys, comps, j, r, &key))
+                    .copied()
+            });
+            match found {
+                Some(ci) => {
                     node.set_component(ci);
                     comp_at[ci as usize + 1] += 1;
                     linked += 1;
@@ -1071,7 +1078,8 @@ fn link_pins<'a>(text: &'a str, nl: &mut Netlist<'a>, diags: &mut Vec<Diag>) {
                         "unknown-component",
                         format!(
                             "net `{}` names {}, which is not among the components",
-                            net.name, r
+                            net.name,
+                            node.reference_in(&nl.node_texts)
                         ),
                     )
                     .at(
