@@ -1734,9 +1734,12 @@ fn rails_by_usage(
         if rail.get(net).is_some() || outputs[net] {
             continue;
         }
-        let name = nl.nets[net].name.as_str();
-        // a pin alone on its net is wired to nothing, whatever its type
-        if name.to_ascii_lowercase().starts_with("unconnected-") || nl.nets[net].node_count() < 2 {
+        // a pin alone on its net is wired to nothing, whatever its type (the count read
+        // first: the name lies elsewhere in memory)
+        if nl.nets[net].node_count() < 2 || {
+            let name = nl.nets[net].name.as_str().as_bytes();
+            name.len() >= 12 && name[..12].eq_ignore_ascii_case(b"unconnected-")
+        } {
             continue;
         }
         let (s, g) = (supply_pins[net], ground_pins[net]);
@@ -1781,14 +1784,25 @@ fn rails_by_usage(
     // (each distinct value read once: boards repeat values)
     let mut regulators: rustc_hash::FxHashMap<&str, Option<(f64, &'static str)>> =
         Default::default();
+    // parts alike share one classification, and their values are alike: what a part's value
+    // says is kept by its classification too, so a board of many alike parts reads a value
+    // once per kind of part, not once a part (each value lies elsewhere in memory)
+    let mut regulator_of: rustc_hash::FxHashMap<
+        *const crate::classify::classifier::PartClass,
+        Option<(f64, &'static str)>,
+    > = Default::default();
     for (ci, c) in nl.components.iter().enumerate() {
         // a logic part is no regulator: its value is not read again
         if cl.parts[ci].is_logic() {
             continue;
         }
-        let Some((volts, out_pin)) = *regulators
-            .entry(c.value_str())
-            .or_insert_with(|| rails::fixed_regulator(c.value_str()))
+        let Some((volts, out_pin)) = *regulator_of
+            .entry(Arc::as_ptr(&cl.parts[ci]))
+            .or_insert_with(|| {
+                *regulators
+                    .entry(c.value_str())
+                    .or_insert_with(|| rails::fixed_regulator(c.value_str()))
+            })
         else {
             continue;
         };

@@ -1097,8 +1097,9 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     for run in nodes.chunk_by_mut(|a, b| a.0 == b.0) {
         run.sort_by(|(_, a), (_, b)| key(a, t).cmp(&key(b, t)));
     }
+    // the pins first: their texts are few and near, the references many and apart
     nodes.dedup_by(|(nb, b), (na, a)| {
-        na == nb && a.reference_in(t) == b.reference_in(t) && a.pin_in(t) == b.pin_in(t)
+        na == nb && a.pin_in(t) == b.pin_in(t) && a.reference_in(t) == b.reference_in(t)
     });
 
     drop(tp);
@@ -1140,8 +1141,12 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
     // at most one component per listed placement: allocated once
     let listed = placements.listed_count;
     let mut components: Vec<Component<'_>> = Vec::with_capacity(listed);
-    // each reference's component
+    // each reference's component, and each placement's: a listed one's as the components
+    // are made, an unlisted one's (a power symbol, a part not on the board) by its reference
+    // once they are all made
     let mut comp_of: rustc_hash::FxHashMap<&str, u32> = rustc_hash::FxHashMap::default();
+    let mut comp_of_placement: Vec<Option<u32>> = vec![None; placements.units.len()];
+    let mut unlisted: Vec<usize> = Vec::new();
     let mut libparts: Vec<LibPart<'_>> = Vec::new();
     let mut lib_of: HashMap<&str, usize> = HashMap::default();
     for &(ui, _) in &order {
@@ -1151,12 +1156,17 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
         pls.sort_by(|a, b| natural_cmp(a.reference.as_str(), b.reference.as_str()));
         for pl in pls {
             if !pl.listed {
+                unlisted.push(pl.at);
                 continue;
             }
             match comp_of.entry(pl.reference.as_str()) {
-                std::collections::hash_map::Entry::Occupied(_) => continue,
+                std::collections::hash_map::Entry::Occupied(e) => {
+                    comp_of_placement[pl.at] = Some(*e.get());
+                    continue;
+                }
                 std::collections::hash_map::Entry::Vacant(v) => {
                     v.insert(components.len() as u32);
+                    comp_of_placement[pl.at] = Some(components.len() as u32);
                 }
             }
             let placed = pl.placed;
@@ -1235,16 +1245,14 @@ pub fn read_source(source: &SourceFile) -> Result<Netlist<'_>, Diag> {
             components.push(comp);
         }
     }
-    // each node linked here to the component of its reference (any component of that
+    for at in unlisted {
+        comp_of_placement[at] = comp_of
+            .get(node_texts.reference_at(at as u32).as_str())
+            .copied();
+    }
+    // each node linked here to the component of its reference (the one component of that
     // reference, as the linking would find it, whether or not the node's placement is
-    // listed), looked up once a placement instead of once a node
-    let comp_of_placement: Vec<Option<u32>> = (0..placements.units.len())
-        .map(|at| {
-            comp_of
-                .get(node_texts.reference_at(at as u32).as_str())
-                .copied()
-        })
-        .collect();
+    // listed), found once a placement instead of looked up once a node
     for (_, node) in &mut nodes {
         if let Some(ci) = node
             .reference_number()
