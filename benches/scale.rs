@@ -663,7 +663,10 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize) {
             ];
             let (mut t, mut cpu) = (Vec::new(), Vec::new());
             let mut peak = None;
-            for _ in 0..runs {
+            // as for the netlists: the smallest projects (up to 5 MB) run in well under a
+            // second, and more runs steady their medians
+            let n_runs = if size_mb <= 5 { runs.max(5) } else { runs };
+            for _ in 0..n_runs {
                 let r = run(bin, &args, &[]);
                 assert!(
                     matches!(r.code, Some(0 | 1)),
@@ -676,7 +679,7 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize) {
                 cpu.extend(r.cpu);
             }
             let cat_args: Vec<&std::ffi::OsStr> = files.iter().map(|p| p.as_os_str()).collect();
-            let f = median((0..runs).map(|_| run(&cat, &cat_args, &[]).secs).collect());
+            let f = median((0..n_runs).map(|_| run(&cat, &cat_args, &[]).secs).collect());
             let w = median(t);
             let cpu = (!cpu.is_empty()).then(|| median(cpu));
             let growth = match (prev_cpu, cpu) {
