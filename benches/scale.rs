@@ -679,7 +679,11 @@ fn schematics(bin: &Path, dir: &Path, sizes: &[usize], runs: usize) {
                 cpu.extend(r.cpu);
             }
             let cat_args: Vec<&std::ffi::OsStr> = files.iter().map(|p| p.as_os_str()).collect();
-            let f = median((0..n_runs).map(|_| run(&cat, &cat_args, &[]).secs).collect());
+            let f = median(
+                (0..n_runs)
+                    .map(|_| run(&cat, &cat_args, &[]).secs)
+                    .collect(),
+            );
             let w = median(t);
             let cpu = (!cpu.is_empty()).then(|| median(cpu));
             let growth = match (prev_cpu, cpu) {
